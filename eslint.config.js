@@ -1,0 +1,26 @@
+import js from '@eslint/js';
+import pluginVue from 'eslint-plugin-vue';
+import { defineConfigWithVueTs, vueTsConfigs } from '@vue/eslint-config-typescript';
+
+export default defineConfigWithVueTs(
+  { ignores: ['dist/**', 'node_modules/**', '.data/**', 'coverage/**', 'tests/e2e/artifacts/**'] },
+  js.configs.recommended,
+  pluginVue.configs['flat/recommended'],
+  vueTsConfigs.recommended,
+  {
+    languageOptions: {
+      globals: {
+        console: 'readonly', process: 'readonly', URL: 'readonly', setTimeout: 'readonly',
+        clearTimeout: 'readonly', setInterval: 'readonly', clearInterval: 'readonly',
+        window: 'readonly', document: 'readonly', fetch: 'readonly', Buffer: 'readonly',
+      },
+    },
+    rules: {
+      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_' }],
+      'vue/multi-word-component-names': 'off',
+      'vue/max-attributes-per-line': 'off',
+      'vue/singleline-html-element-content-newline': 'off',
+      'vue/html-self-closing': 'off',
+    },
+  },
+);

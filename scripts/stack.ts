@@ -1,0 +1,137 @@
+/**
+ * `npm start` and `npm test` in one place: start what the product needs on 127.0.0.1 (PostgreSQL,
+ * Redis, the fake sign-in provider), prepare the database, run the product or the checks, and
+ * stop everything this run started when it ends (Ctrl-C included).
+ */
+import { existsSync, readdirSync, statSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { spawn, type ChildProcess } from 'node:child_process';
+import { ensureDebianPackages } from './services/debian.ts';
+import { ensureDatabase, startPostgres } from './services/postgres.ts';
+import { startRedis } from './services/redis.ts';
+import { runInherit } from './services/shell.ts';
+import { startFakeOAuthProvider } from './fakes/oauth-provider.ts';
+import { DEMO_ACCOUNTS } from '../seeds/demo-accounts.ts';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+const dataDir = path.join(root, '.data');
+const mode = process.argv[2] === 'test' ? 'test' : 'start';
+const PORTS = {
+  postgres: Number(process.env.WATERLINE_PG_PORT ?? 54329),
+  redis: Number(process.env.WATERLINE_REDIS_PORT ?? 63799),
+  oauth: mode === 'test' ? 4111 : 4011,
+  app: Number(process.env.PORT ?? 3000),
+};
+
+const cleanups: (() => void | Promise<void>)[] = [];
+let children: ChildProcess[] = [];
+let stopping = false;
+
+async function stopAll(code: number): Promise<never> {
+  if (!stopping) {
+    stopping = true;
+    for (const child of children) child.kill('SIGTERM');
+    await Promise.all(children.map((c) => new Promise((r) => (c.exitCode !== null ? r(null) : c.once('exit', r)))));
+    for (const cleanup of cleanups.reverse()) {
+      try { await cleanup(); } catch (error) { console.error(String(error)); }
+    }
+  }
+  process.exit(code);
+}
+process.on('SIGINT', () => void stopAll(130));
+process.on('SIGTERM', () => void stopAll(143));
+
+function newestMtime(paths: string[]): number {
+  let newest = 0;
+  const visit = (p: string) => {
+    if (!existsSync(p)) return;
+    const s = statSync(p);
+    if (s.isDirectory()) for (const f of readdirSync(p)) visit(path.join(p, f));
+    else newest = Math.max(newest, s.mtimeMs);
+  };
+  paths.forEach((p) => visit(path.join(root, p)));
+  return newest;
+}
+
+/** The client is rebuilt only when its sources are newer than the last build. */
+async function buildClientIfStale(): Promise<void> {
+  const built = path.join(root, 'dist', 'index.html');
+  const sources = newestMtime(['src', 'shared', 'index.html', 'vite.config.ts', 'public', 'package-lock.json']);
+  if (existsSync(built) && statSync(built).mtimeMs >= sources) return;
+  console.log('Building the web app…');
+  const code = await runInherit(path.join(root, 'node_modules', '.bin', 'vite'), ['build', '--logLevel', 'warn'], { cwd: root });
+  if (code !== 0) throw new Error('vite build failed');
+}
+
+function spawnChild(cmd: string, args: string[], env: NodeJS.ProcessEnv): ChildProcess {
+  const child = spawn(cmd, args, { cwd: root, stdio: 'inherit', env });
+  children.push(child);
+  child.on('exit', () => { children = children.filter((c) => c !== child); });
+  return child;
+}
+
+async function main(): Promise<void> {
+  ensureDebianPackages(mode === 'test' ? ['redis-server', 'chromium'] : ['redis-server']);
+
+  const pg = await startPostgres(dataDir, PORTS.postgres);
+  cleanups.push(() => pg.stop());
+  const database = mode === 'test' ? 'waterline_test' : 'waterline';
+  await ensureDatabase(PORTS.postgres, database);
+  const redis = await startRedis(dataDir, PORTS.redis);
+  cleanups.push(() => redis.stop());
+  const oauth = await startFakeOAuthProvider(PORTS.oauth, DEMO_ACCOUNTS.map((a) => ({ email: a.email, name: a.name, hint: `${a.role} · ${a.firm}` })));
+  cleanups.push(() => oauth.stop());
+
+  const publicUrl = `http://127.0.0.1:${PORTS.app}`;
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    NODE_ENV: mode === 'test' ? 'test' : 'development',
+    PORT: String(PORTS.app),
+    PUBLIC_URL: publicUrl,
+    DATABASE_URL: `postgres://postgres@127.0.0.1:${PORTS.postgres}/${database}`,
+    REDIS_URL: `redis://127.0.0.1:${PORTS.redis}/${mode === 'test' ? 1 : 0}`,
+    SESSION_SECRET: process.env.SESSION_SECRET ?? 'local-only-session-secret-not-for-production',
+    GOOGLE_CLIENT_ID: 'waterline-local',
+    GOOGLE_CLIENT_SECRET: 'waterline-local-secret',
+    OAUTH_AUTHORIZATION_URL: oauth.authorizationURL,
+    OAUTH_TOKEN_URL: oauth.tokenURL,
+    OAUTH_USERINFO_URL: oauth.userProfileURL,
+    FAKE_OAUTH_URL: oauth.url,
+    LOG_LEVEL: process.env.LOG_LEVEL ?? (mode === 'test' ? 'silent' : 'info'),
+  };
+  const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
+
+  if (mode === 'test') {
+    const steps: [string, string[]][] = [
+      ['npm', ['run', '--silent', 'lint']],
+      ['npm', ['run', '--silent', 'typecheck']],
+      [path.join(root, 'node_modules', '.bin', 'vitest'), ['run', ...process.argv.slice(3)]],
+    ];
+    for (const [cmd, args] of steps) {
+      console.log(`\n▶ ${path.basename(cmd)} ${args.join(' ')}`);
+      const code = await new Promise<number>((resolve) => spawnChild(cmd, args, env).on('exit', (c) => resolve(c ?? 1)));
+      if (code !== 0) { console.error(`✖ ${path.basename(cmd)} ${args.join(' ')} failed`); return stopAll(code); }
+    }
+    return stopAll(0);
+  }
+
+  const migrate = await runInherit(tsx, [path.join(root, 'scripts', 'migrate.ts'), 'latest', '--seed'], { cwd: root, env });
+  if (migrate !== 0) return stopAll(migrate);
+  await buildClientIfStale();
+  const server = spawnChild(tsx, [path.join(root, 'server', 'index.ts')], { ...env, RUN_WORKER: '1' });
+  server.on('exit', (code) => { if (!stopping) void stopAll(code ?? 1); });
+  console.log([
+    '',
+    `Waterline is starting at ${publicUrl}`,
+    'Sign in with the local provider as any of the demo accounts:',
+    ...DEMO_ACCOUNTS.map((a) => `  ${a.role.padEnd(9)} ${a.name.padEnd(16)} ${a.email}  (${a.firm})`),
+    'Press Ctrl-C to stop; PostgreSQL and Redis stop with it.',
+    '',
+  ].join('\n'));
+}
+
+main().catch((error: unknown) => {
+  console.error(error instanceof Error ? error.message : error);
+  void stopAll(1);
+});

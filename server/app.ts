@@ -1,0 +1,108 @@
+import express, { type Express } from 'express';
+import session from 'express-session';
+import connectPgSimple from 'connect-pg-simple';
+import helmet from 'helmet';
+import { pinoHttp } from 'pino-http';
+import pino from 'pino';
+import pg from 'pg';
+import path from 'node:path';
+import { existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import type { Knex } from 'knex';
+import type { Config } from './config.ts';
+import { errorHandler, notFoundHandler } from './errors.ts';
+import { RouteTable } from './routes/table.ts';
+import { apiRoutes } from './routes/api.ts';
+import { authRoutes } from './routes/auth.ts';
+import { createPassport } from './auth/google.ts';
+import { csrfProtection } from './middleware/csrf.ts';
+import { actorFor } from './services/session.ts';
+import { Health } from './health.ts';
+
+export interface AppDeps { config: Config; knex: Knex }
+
+export interface WaterlineApp {
+  app: Express;
+  routes: RouteTable;
+  close(): Promise<void>;
+}
+
+const distDir = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'dist');
+
+/** Builds the Express app; index.ts only listens. Tests call this with their own settings. */
+export function createApp({ config, knex }: AppDeps): WaterlineApp {
+  const app = express();
+  const logger = pino({ level: config.LOG_LEVEL });
+  const health = new Health(knex, config.REDIS_URL);
+  const sessionPool = new pg.Pool({ connectionString: config.DATABASE_URL, max: 5 });
+  const PgStore = connectPgSimple(session);
+
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(pinoHttp({
+    logger,
+    autoLogging: { ignore: (req) => req.url === '/api/health' || !req.url?.startsWith('/api') && !req.url?.startsWith('/auth') },
+    // Logs carry what a request was, never its cookies or tokens.
+    serializers: {
+      req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url.replace(/([?&](code|state|access_token)=)[^&]*/g, '$1…') }),
+      res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
+    },
+  }));
+  app.use(helmet({
+    contentSecurityPolicy: {
+      directives: {
+        'default-src': ["'self'"],
+        'img-src': ["'self'", 'data:', 'blob:'],
+        'style-src': ["'self'", "'unsafe-inline'"],
+        'script-src': ["'self'"],
+        'connect-src': ["'self'"],
+        'form-action': ["'self'", ...(config.OAUTH_AUTHORIZATION_URL ? [new URL(config.OAUTH_AUTHORIZATION_URL).origin] : ['https://accounts.google.com'])],
+        'upgrade-insecure-requests': config.NODE_ENV === 'production' ? [] : null,
+      },
+    },
+  }));
+  app.use(express.json({ limit: '1mb' }));
+  app.use(session({
+    name: 'waterline.sid',
+    store: new PgStore({ pool: sessionPool, tableName: 'session', pruneSessionInterval: 60 * 15 }),
+    secret: config.SESSION_SECRET,
+    resave: false,
+    saveUninitialized: false,
+    rolling: true,
+    cookie: { httpOnly: true, sameSite: 'lax', secure: config.PUBLIC_URL.startsWith('https://'), maxAge: 1000 * 60 * 60 * 12 },
+  }));
+  // The actor: who is signed in, acting for which firm in which role.
+  app.use(async (req, _res, next) => {
+    if (req.session.userId) {
+      const actor = await actorFor(knex, req.session.userId, req.session.firmId);
+      if (actor) req.actor = actor;
+    }
+    next();
+  });
+  app.use(csrfProtection);
+
+  const auth = createPassport(config, knex);
+  app.use(auth.initialize());
+  const routes = new RouteTable();
+  authRoutes(routes, config, auth);
+  apiRoutes(routes, { knex, health });
+  routes.mount(app.router);
+
+  app.use('/api', notFoundHandler);
+  if (existsSync(distDir)) {
+    app.use(express.static(distDir, { index: false, maxAge: '1h' }));
+    // The Vue app owns every other path (its router shows its own 404).
+    app.get('/{*path}', (_req, res) => res.sendFile(path.join(distDir, 'index.html')));
+  }
+  app.use(notFoundHandler);
+  app.use(errorHandler);
+
+  return {
+    app,
+    routes,
+    async close() {
+      await health.close();
+      await sessionPool.end();
+    },
+  };
+}

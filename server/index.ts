@@ -1,0 +1,28 @@
+import { loadConfig } from './config.ts';
+import { createKnex } from './db.ts';
+import { createApp } from './app.ts';
+
+const config = loadConfig();
+const knex = createKnex(config.DATABASE_URL);
+const { app, close } = createApp({ config, knex });
+
+const server = app.listen(config.PORT, config.HOST, () => {
+  console.log(`Waterline is listening on ${config.PUBLIC_URL}`);
+});
+
+// Graceful shutdown: stop taking connections, finish what is under way, then close the pools.
+let stopping = false;
+async function shutdown(signal: string) {
+  if (stopping) return;
+  stopping = true;
+  console.log(`${signal}: shutting down…`);
+  server.close();
+  server.closeIdleConnections();
+  const force = setTimeout(() => process.exit(1), 10_000);
+  force.unref();
+  await close();
+  await knex.destroy();
+  process.exit(0);
+}
+process.on('SIGTERM', () => void shutdown('SIGTERM'));
+process.on('SIGINT', () => void shutdown('SIGINT'));

@@ -1,0 +1,21 @@
+import { randomBytes, timingSafeEqual } from 'node:crypto';
+import type { RequestHandler } from 'express';
+import { HttpError } from '../errors.ts';
+
+export const newCsrfToken = () => randomBytes(24).toString('base64url');
+
+const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
+
+/**
+ * Synchroniser-token CSRF protection: a state-changing request from a signed-in session must carry
+ * the session's token in X-CSRF-Token (the client reads it from GET /api/session).
+ */
+export const csrfProtection: RequestHandler = (req, _res, next) => {
+  if (SAFE.has(req.method) || !req.session?.userId) return next();
+  const expected = req.session.csrfToken ?? '';
+  const given = req.get('x-csrf-token') ?? '';
+  const ok = expected.length > 0 && given.length === expected.length
+    && timingSafeEqual(Buffer.from(given), Buffer.from(expected));
+  if (!ok) return next(new HttpError(403, 'csrf', 'Missing or wrong CSRF token', 'Reload the page and try again.'));
+  next();
+};

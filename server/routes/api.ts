@@ -1,0 +1,73 @@
+import type { Knex } from 'knex';
+import type { RouteTable } from './table.ts';
+import { parse } from '../middleware/validate.ts';
+import { IdParams } from '../../shared/schemas/common.ts';
+import { CreateJob, JobQuery } from '../../shared/schemas/jobs.ts';
+import { BookingRange, CreateBooking, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import { SwitchFirm } from '../../shared/schemas/session.ts';
+import { JobsService } from '../services/jobs.ts';
+import { DirectoryService } from '../services/directory.ts';
+import { BookingsService } from '../services/bookings.ts';
+import { actorFor, sessionInfo } from '../services/session.ts';
+import { NotFoundError } from '../errors.ts';
+import type { Health } from '../health.ts';
+
+export interface ApiDeps { knex: Knex; health: Health }
+
+/** The JSON API: one line a route, each naming who may call it. */
+export function apiRoutes(table: RouteTable, { knex, health }: ApiDeps): void {
+  const jobs = new JobsService(knex);
+  const directory = new DirectoryService();
+  const bookings = new BookingsService(knex);
+
+  table
+    .get('/api/health', 'public', async (_req, res) => {
+      const report = await health.check();
+      res.status(report.status === 'ok' ? 200 : 503).json(report);
+    })
+    .get('/api/session', 'signed-in', async (req, res) => {
+      res.json(await sessionInfo(knex, req.actor!, req.session.csrfToken ?? ''));
+    })
+    .put('/api/session/firm', 'signed-in', async (req, res) => {
+      const { firmId } = parse(SwitchFirm, req.body);
+      const actor = await actorFor(knex, req.actor!.userId, firmId);
+      if (!actor || actor.firmId !== firmId) throw new NotFoundError('firm');
+      req.session.firmId = firmId;
+      res.json(await sessionInfo(knex, actor, req.session.csrfToken ?? ''));
+    })
+    .get('/api/firms', 'firms:read', async (req, res) => {
+      res.json({ items: await directory.firms(req.actor!) });
+    })
+    .get('/api/firm/members', 'firm:manage', async (req, res) => {
+      res.json({ items: await directory.members(req.actor!) });
+    })
+    .get('/api/resources', 'resources:read', async (req, res) => {
+      res.json({ items: await directory.resources(req.actor!) });
+    })
+    .get('/api/units', 'units:read', async (req, res) => {
+      res.json({ items: await directory.units(req.actor!) });
+    })
+    .get('/api/jobs', 'jobs:read', async (req, res) => {
+      res.json(await jobs.list(req.actor!, parse(JobQuery, req.query, 'query')));
+    })
+    .post('/api/jobs', 'jobs:write', async (req, res) => {
+      res.status(201).json(await jobs.create(req.actor!, parse(CreateJob, req.body)));
+    })
+    .get('/api/jobs/:id', 'jobs:read', async (req, res) => {
+      res.json(await jobs.get(req.actor!, parse(IdParams, req.params, 'params').id));
+    })
+    .get('/api/bookings', 'bookings:read', async (req, res) => {
+      const { from, to } = parse(BookingRange, req.query, 'query');
+      res.json({ items: await bookings.list(req.actor!, from, to) });
+    })
+    .post('/api/bookings', 'bookings:write', async (req, res) => {
+      res.status(201).json(await bookings.create(req.actor!, parse(CreateBooking, req.body)));
+    })
+    .get('/api/bookings/:id', 'bookings:read', async (req, res) => {
+      res.json(await bookings.get(req.actor!, parse(IdParams, req.params, 'params').id));
+    })
+    .patch('/api/bookings/:id', 'bookings:write', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await bookings.update(req.actor!, id, parse(UpdateBooking, req.body)));
+    });
+}

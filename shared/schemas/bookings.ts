@@ -1,0 +1,47 @@
+import { z } from 'zod';
+import { Id, IsoInstant } from './common.ts';
+
+export const BOOKING_STATES = ['pencilled', 'sent', 'confirmed', 'declined', 'on_site', 'done'] as const;
+export type BookingState = (typeof BOOKING_STATES)[number];
+
+export const BookingRange = z.object({
+  from: IsoInstant,
+  to: IsoInstant,
+}).refine((r) => Date.parse(r.to) > Date.parse(r.from), { path: ['to'], message: 'must be after from' })
+  .refine((r) => Date.parse(r.to) - Date.parse(r.from) <= 1000 * 60 * 60 * 24 * 100, { path: ['to'], message: 'range may span at most 100 days' });
+
+const times = <T extends { startsAt: string; endsAt: string }>(b: T) => Date.parse(b.endsAt) > Date.parse(b.startsAt);
+
+export const CreateBooking = z.object({
+  stageId: Id,
+  resourceId: Id,
+  startsAt: IsoInstant,
+  endsAt: IsoInstant,
+  state: z.enum(['pencilled', 'confirmed']).default('pencilled'),
+}).refine(times, { path: ['endsAt'], message: 'must be after the start' });
+export type CreateBooking = z.infer<typeof CreateBooking>;
+
+export const UpdateBooking = z.object({
+  version: z.number().int().min(1),
+  resourceId: Id.optional(),
+  startsAt: IsoInstant,
+  endsAt: IsoInstant,
+  state: z.enum(BOOKING_STATES).optional(),
+}).refine(times, { path: ['endsAt'], message: 'must be after the start' });
+export type UpdateBooking = z.infer<typeof UpdateBooking>;
+
+export const BookingView = z.object({
+  id: Id,
+  stageId: Id,
+  jobId: Id,
+  resourceId: Id,
+  startsAt: z.string(),
+  endsAt: z.string(),
+  state: z.enum(BOOKING_STATES),
+  version: z.number(),
+  stageName: z.string(),
+  stageKind: z.string(),
+  jobReference: z.string(),
+  siteTown: z.string(),
+});
+export type BookingView = z.infer<typeof BookingView>;

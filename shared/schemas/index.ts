@@ -1,0 +1,4 @@
+export * from './common.ts';
+export * from './session.ts';
+export * from './jobs.ts';
+export * from './bookings.ts';

@@ -1,0 +1,50 @@
+import { z } from 'zod';
+import { Id, IsoDate, Paging } from './common.ts';
+
+export const INSTALLATION_TYPES = ['in_ground', 'semi_recessed', 'slab', 'deck'] as const;
+export const JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress', 'handed_over', 'cancelled'] as const;
+
+export const JobQuery = Paging.extend({
+  search: z.string().trim().max(100).optional(),
+  status: z.enum(JOB_STATUSES).optional(),
+  installationType: z.enum(INSTALLATION_TYPES).optional(),
+  sort: z.enum(['promisedFrom', 'reference', 'customerName', 'status', 'orderedOn']).default('promisedFrom'),
+  order: z.enum(['asc', 'desc']).default('asc'),
+});
+export type JobQuery = z.infer<typeof JobQuery>;
+
+const UkPostcode = z.string().trim().toUpperCase()
+  .regex(/^[A-Z]{1,2}[0-9][A-Z0-9]? ?[0-9][A-Z]{2}$/, 'must be a UK postcode such as LS6 2AB');
+
+export const CreateJob = z.object({
+  reference: z.string().trim().min(1, 'is required').max(40),
+  customerName: z.string().trim().min(1, 'is required').max(200),
+  customerPhone: z.string().trim().max(40).optional(),
+  customerEmail: z.email('must be an e-mail address').optional(),
+  siteAddress: z.string().trim().min(1, 'is required').max(500),
+  siteTown: z.string().trim().min(1, 'is required').max(100),
+  sitePostcode: UkPostcode,
+  accessNotes: z.string().trim().max(2000).optional(),
+  unitId: Id.optional(),
+  installationType: z.enum(INSTALLATION_TYPES),
+  promisedFrom: IsoDate.optional(),
+  promisedTo: IsoDate.optional(),
+  orderedOn: IsoDate.optional(),
+}).refine((j) => !j.promisedFrom || !j.promisedTo || j.promisedTo >= j.promisedFrom, {
+  path: ['promisedTo'], message: 'must be on or after the start of the promised window',
+});
+export type CreateJob = z.infer<typeof CreateJob>;
+
+export const JobSummary = z.object({
+  id: Id,
+  reference: z.string(),
+  customerName: z.string(),
+  siteTown: z.string(),
+  unitName: z.string().nullable(),
+  installationType: z.enum(INSTALLATION_TYPES),
+  status: z.enum(JOB_STATUSES),
+  promisedFrom: z.string().nullable(),
+  promisedTo: z.string().nullable(),
+  orderedOn: z.string().nullable(),
+});
+export type JobSummary = z.infer<typeof JobSummary>;
