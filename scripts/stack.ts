@@ -103,10 +103,11 @@ async function main(): Promise<void> {
   const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
 
   if (mode === 'test') {
+    // `npm test -- <filter>` runs just those test files (for work in progress); plain `npm test` runs everything.
+    const filters = process.argv.slice(3);
     const steps: [string, string[]][] = [
-      ['npm', ['run', '--silent', 'lint']],
-      ['npm', ['run', '--silent', 'typecheck']],
-      [path.join(root, 'node_modules', '.bin', 'vitest'), ['run', ...process.argv.slice(3)]],
+      ...(filters.length ? [] : [['npm', ['run', '--silent', 'lint']], ['npm', ['run', '--silent', 'typecheck']]] as [string, string[]][]),
+      [path.join(root, 'node_modules', '.bin', 'vitest'), ['run', ...filters]],
     ];
     for (const [cmd, args] of steps) {
       console.log(`\n▶ ${path.basename(cmd)} ${args.join(' ')}`);

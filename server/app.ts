@@ -91,8 +91,9 @@ export function createApp({ config, knex }: AppDeps): WaterlineApp {
   app.use('/api', notFoundHandler);
   if (existsSync(distDir)) {
     app.use(express.static(distDir, { index: false, maxAge: '1h' }));
-    // The Vue app owns every other path (its router shows its own 404).
-    app.get('/{*path}', (_req, res) => res.sendFile(path.join(distDir, 'index.html')));
+    // The Vue app owns every other page (its router shows its own 404). Middleware, not a route:
+    // every route is in the route table.
+    app.use((req, res, next) => (req.method === 'GET' && !req.path.startsWith('/auth/') ? res.sendFile(path.join(distDir, 'index.html')) : next()));
   }
   app.use(notFoundHandler);
   app.use(errorHandler);

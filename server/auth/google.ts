@@ -18,14 +18,14 @@ export function createPassport(config: Config, knex: Knex): passport.PassportSta
     ...(config.OAUTH_TOKEN_URL ? { tokenURL: config.OAUTH_TOKEN_URL } : {}),
     ...(config.OAUTH_USERINFO_URL ? { userProfileURL: config.OAUTH_USERINFO_URL } : {}),
     state: true,
-  }, (_accessToken: string, _refreshToken: string, profile: Profile, done: (err: unknown, user?: Express.User | false) => void) => {
+  }, (_accessToken: string, _refreshToken: string, profile: Profile, done: (err: unknown, user?: Express.User | false, info?: { message: string }) => void) => {
     const json = (profile._json ?? {}) as { email?: string; email_verified?: boolean | string };
     userForGoogleProfile(knex, {
       sub: profile.id,
       email: json.email ?? profile.emails?.[0]?.value,
       emailVerified: json.email_verified === true || json.email_verified === 'true',
       name: profile.displayName,
-    }).then((user) => done(null, user ? { id: user.id } : false), done);
+    }).then((user) => (user ? done(null, { id: user.id }) : done(null, false, { message: 'unknown_account' })), done);
   }));
   return instance;
 }

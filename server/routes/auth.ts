@@ -33,12 +33,13 @@ export function authRoutes(table: RouteTable, config: Config, auth: passport.Pas
   }, auth.authenticate('google', { scope: ['profile', 'email'], session: false })));
 
   table.get('/auth/google/callback', 'public', chain(limiter, (req: Request, res: Response, next: NextFunction) => {
-    auth.authenticate('google', { session: false }, (err: unknown, user: { id: string } | false) => {
+    auth.authenticate('google', { session: false }, (err: unknown, user: { id: string } | false, info?: { message?: string }) => {
       if (err) {
         req.log.warn({ err }, 'sign-in with the provider failed');
         return res.redirect('/sign-in?error=provider');
       }
-      if (!user) return res.redirect('/sign-in?error=unknown_account');
+      // No user: either an account nobody invited, or a stale or forged state from the provider.
+      if (!user) return res.redirect(`/sign-in?error=${info?.message === 'unknown_account' ? 'unknown_account' : 'sign_in_failed'}`);
       const nextPath = safeNext(req.session.next);
       // A new session id at sign-in, so a session fixed before sign-in is worthless.
       req.session.regenerate((regenErr) => {

@@ -1,0 +1,79 @@
+import request from 'supertest';
+import type { Knex } from 'knex';
+import { loadConfig, type Config } from '../../server/config.ts';
+import { createKnex, migrationConfig } from '../../server/db.ts';
+import { createApp, type WaterlineApp } from '../../server/app.ts';
+import { seedDemo } from '../../seeds/demo.ts';
+import { DEMO_ACCOUNTS, type DemoAccount } from '../../seeds/demo-accounts.ts';
+import type { Role } from '../../shared/permissions.ts';
+
+/** The fixed "today" of the test scenario, so its dates are the same on every run. */
+export const TEST_TODAY = new Date('2026-06-01T07:00:00Z');
+
+export interface TestContext {
+  config: Config;
+  knex: Knex;
+  waterline: WaterlineApp;
+  close(): Promise<void>;
+}
+
+const TABLES = ['audit_log', 'bookings', 'dependencies', 'stages', 'jobs', 'units', 'lead_time_rules', 'hire_periods',
+  'calendar_exceptions', 'crew_members', 'resources', 'calendars', 'partnerships', 'memberships', 'users', 'firms', 'session'];
+
+export function testConfig(overrides: Partial<Record<string, string>> = {}): Config {
+  if (!process.env.DATABASE_URL || !process.env.FAKE_OAUTH_URL) {
+    throw new Error('Server tests need PostgreSQL, Redis and the fake sign-in provider: run them with `npm test`.');
+  }
+  return loadConfig({ ...process.env, LOG_LEVEL: 'silent', SIGN_IN_RATE_LIMIT: '10000', ...overrides });
+}
+
+/** A migrated database holding exactly the demo scenario, and an app over it. */
+export async function startTestApp(overrides: Partial<Record<string, string>> = {}): Promise<TestContext> {
+  const config = testConfig(overrides);
+  const knex = createKnex(config.DATABASE_URL);
+  await knex.migrate.latest(migrationConfig);
+  await knex.raw(`TRUNCATE ${TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+  await seedDemo(knex, { today: TEST_TODAY });
+  const waterline = createApp({ config, knex });
+  return {
+    config, knex, waterline,
+    async close() { await waterline.close(); await knex.destroy(); },
+  };
+}
+
+export type Agent = ReturnType<typeof request.agent> & { csrf: string };
+
+/**
+ * Signs in through the real redirect flow: the app sends the browser to the provider, the provider
+ * sends it back with a code, the app exchanges the code and fetches the profile.
+ */
+export async function signIn(ctx: TestContext, email: string): Promise<Agent> {
+  const agent = request.agent(ctx.waterline.app) as Agent;
+  const start = await agent.get('/auth/google?next=/jobs').expect(302);
+  const pick = new URL(start.headers.location as string);
+  const authorize = new URL('/authorize', pick.origin);
+  pick.searchParams.forEach((v, k) => authorize.searchParams.set(k, v));
+  authorize.searchParams.set('login_hint', email);
+  const provider = await fetch(authorize, { redirect: 'manual' });
+  const callback = new URL(provider.headers.get('location') ?? '');
+  const done = await agent.get(callback.pathname + callback.search);
+  if (done.status !== 302 || done.headers.location !== '/jobs') {
+    throw Object.assign(new Error(`sign-in as ${email} ended at ${done.status} ${done.headers.location}`), { location: done.headers.location });
+  }
+  const session = await agent.get('/api/session').expect(200);
+  agent.csrf = session.body.csrfToken;
+  return agent;
+}
+
+export function account(role: Role, firm = 'Tideway Hot Tubs'): DemoAccount {
+  const found = DEMO_ACCOUNTS.find((a) => a.role === role && a.firm === firm);
+  if (!found) throw new Error(`no demo ${role} at ${firm}`);
+  return found;
+}
+
+/** Ids from the demo scenario by name. */
+export async function idOf(knex: Knex, table: string, where: Record<string, unknown>): Promise<string> {
+  const row = await knex(table).where(where).first('id');
+  if (!row) throw new Error(`no ${table} row matching ${JSON.stringify(where)}`);
+  return String(row.id);
+}
