@@ -1,7 +1,6 @@
 import type { Actor } from './services/actor.ts';
 
 declare global {
-  // eslint-disable-next-line @typescript-eslint/no-namespace
   namespace Express {
     interface Request {
       /** The signed-in person acting for their active firm; absent when signed out. */

@@ -1,0 +1,32 @@
+import { h } from 'vue';
+import { useMessage, useNotification } from 'naive-ui';
+import { fieldProblemText, problemSummary } from '@/utils/problem';
+
+/**
+ * The one way the app tells a person that something failed. A short problem becomes a message;
+ * one with field errors becomes a notification listing them. Needs the providers in App.vue.
+ */
+export function useProblemMessage() {
+  const message = useMessage();
+  const notification = useNotification();
+
+  function showProblem(error: unknown): void {
+    const summary = problemSummary(error);
+    if (summary.fields.length === 0) {
+      message.error(summary.detail ? `${summary.title}. ${summary.detail}` : summary.title, { duration: 6000, closable: true });
+      return;
+    }
+    notification.error({
+      title: summary.title,
+      description: summary.detail,
+      content: () => h('ul', { class: 'problem-fields' }, summary.fields.map((field) => h('li', fieldProblemText(field)))),
+      duration: 10000,
+    });
+  }
+
+  function showDone(text: string): void {
+    message.success(text);
+  }
+
+  return { showProblem, showDone };
+}

@@ -1,0 +1,117 @@
+/**
+ * Who may see what in the client. The server enforces every rule again; this table only
+ * decides what the app shows, so a role never meets a page or a button it cannot use.
+ */
+import type { Role } from '@/api/types';
+
+export const ALL_ROLES: readonly Role[] = ['owner', 'scheduler', 'manager', 'crew', 'partner', 'viewer'];
+
+/** Things the client shows or hides. Names are the client's own; the server has its own list. */
+export type Permission =
+  | 'board:view'
+  | 'jobs:view'
+  | 'jobs:edit'
+  | 'resources:view'
+  | 'resources:edit'
+  | 'firm:view'
+  | 'members:view'
+  | 'my-work:view'
+  | 'slots:view';
+
+const PERMISSIONS: Record<Permission, readonly Role[]> = {
+  'board:view': ['owner', 'scheduler', 'manager', 'viewer'],
+  'jobs:view': ['owner', 'scheduler', 'manager', 'viewer'],
+  'jobs:edit': ['owner', 'scheduler', 'manager'],
+  'resources:view': ['owner', 'scheduler', 'manager'],
+  'resources:edit': ['owner', 'scheduler', 'manager'],
+  'firm:view': ['owner'],
+  'members:view': ['owner'],
+  'my-work:view': ['crew'],
+  'slots:view': ['partner'],
+};
+
+/** @example can('viewer', 'jobs:edit') // false */
+export function can(role: Role | null | undefined, permission: Permission): boolean {
+  return role ? PERMISSIONS[permission].includes(role) : false;
+}
+
+/** The roles holding a permission, for a route's `meta.roles`. @example rolesWith('firm:view') // ['owner'] */
+export function rolesWith(permission: Permission): Role[] {
+  return [...PERMISSIONS[permission]];
+}
+
+/** Where each role lands after sign-in, and where it is sent from a page it may not see. */
+const HOMES: Record<Role, string> = {
+  owner: '/board',
+  scheduler: '/board',
+  manager: '/board',
+  viewer: '/board',
+  crew: '/my-work',
+  partner: '/slots',
+};
+
+/** @example homeFor('crew') // '/my-work' */
+export function homeFor(role: Role): string {
+  return HOMES[role];
+}
+
+export function isRole(value: unknown): value is Role {
+  return typeof value === 'string' && (ALL_ROLES as readonly string[]).includes(value);
+}
+
+export interface NavItem { label: string; path: string; permission: Permission }
+
+/** The main navigation, in the order it is shown. */
+export const NAV_ITEMS: readonly NavItem[] = [
+  { label: 'Board', path: '/board', permission: 'board:view' },
+  { label: 'Jobs', path: '/jobs', permission: 'jobs:view' },
+  { label: 'Resources', path: '/resources', permission: 'resources:view' },
+  { label: 'Firm', path: '/firm', permission: 'firm:view' },
+  { label: 'My work', path: '/my-work', permission: 'my-work:view' },
+  { label: 'Our slots', path: '/slots', permission: 'slots:view' },
+];
+
+/** @example navFor('viewer').map((item) => item.label) // ['Board', 'Jobs'] */
+export function navFor(role: Role | null | undefined): NavItem[] {
+  return NAV_ITEMS.filter((item) => can(role, item.permission));
+}
+
+export interface AccessMeta { public?: boolean; roles?: readonly Role[] }
+
+/** Whether a role may open a route. Routes without `meta.roles` are open to anyone signed in. */
+export function mayVisit(meta: AccessMeta, role: Role | null | undefined): boolean {
+  if (meta.public) return true;
+  if (!role) return false;
+  return meta.roles ? meta.roles.includes(role) : true;
+}
+
+/**
+ * Keeps `?next=` to paths inside this app, so a crafted sign-in link cannot send anyone elsewhere.
+ * @example safeNext('//elsewhere.example') // null
+ */
+export function safeNext(next: unknown): string | null {
+  if (typeof next !== 'string' || !next.startsWith('/')) return null;
+  if (next.startsWith('//') || next.startsWith('/\\') || next.startsWith('/sign-in')) return null;
+  return next;
+}
+
+export interface GuardTarget { path: string; fullPath: string; meta: AccessMeta; query?: Record<string, unknown> }
+export interface GuardSession { signedIn: boolean; role: Role | null }
+export type GuardDecision = true | { path: string; query?: Record<string, string> };
+
+/**
+ * The router guard's rules as a pure function.
+ * - Signed out: public routes open; anything else goes to /sign-in?next=<where they were going>.
+ * - Signed in: /sign-in and / lead to `next` or the role's home; a route the role may not see
+ *   leads to the role's home.
+ */
+export function decideNavigation(to: GuardTarget, session: GuardSession): GuardDecision {
+  const role = session.signedIn ? session.role : null;
+  if (!role) {
+    if (to.meta.public) return true;
+    return to.fullPath === '/' ? { path: '/sign-in' } : { path: '/sign-in', query: { next: to.fullPath } };
+  }
+  if (to.path === '/sign-in') return { path: safeNext(to.query?.next) ?? homeFor(role) };
+  if (to.path === '/') return { path: homeFor(role) };
+  return mayVisit(to.meta, role) ? true : { path: homeFor(role) };
+}

@@ -1,0 +1,48 @@
+import { createRouter, createWebHistory, type RouteRecordRaw } from 'vue-router';
+import type { Role } from '@/api/types';
+import { useSessionStore } from '@/stores/session';
+import { decideNavigation, rolesWith } from './access';
+
+declare module 'vue-router' {
+  interface RouteMeta {
+    /** Open without signing in. */
+    public?: boolean;
+    /** Roles that may open the route; left out means anyone signed in. */
+    roles?: Role[];
+    /** Shown in the browser tab. */
+    title?: string;
+  }
+}
+
+export const routes: RouteRecordRaw[] = [
+  { path: '/sign-in', name: 'sign-in', component: () => import('@/views/SignInView.vue'), meta: { public: true, title: 'Sign in' } },
+  { path: '/', name: 'home', component: () => import('@/views/HomeView.vue'), meta: { title: 'Home' } },
+  { path: '/board', name: 'board', component: () => import('@/views/BoardView.vue'), meta: { roles: rolesWith('board:view'), title: 'Board' } },
+  { path: '/jobs', name: 'jobs', component: () => import('@/views/JobsView.vue'), meta: { roles: rolesWith('jobs:view'), title: 'Jobs' } },
+  { path: '/resources', name: 'resources', component: () => import('@/views/ResourcesView.vue'), meta: { roles: rolesWith('resources:view'), title: 'Resources' } },
+  { path: '/firm', name: 'firm', component: () => import('@/views/FirmView.vue'), meta: { roles: rolesWith('firm:view'), title: 'Firm' } },
+  { path: '/my-work', name: 'my-work', component: () => import('@/views/MyWorkView.vue'), meta: { roles: rolesWith('my-work:view'), title: 'My work' } },
+  { path: '/slots', name: 'slots', component: () => import('@/views/SlotsView.vue'), meta: { roles: rolesWith('slots:view'), title: 'Our slots' } },
+  { path: '/:pathMatch(.*)*', name: 'not-found', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Page not found' } },
+];
+
+export const router = createRouter({
+  history: createWebHistory(import.meta.env.BASE_URL),
+  routes,
+  scrollBehavior: (_to, _from, saved) => saved ?? { top: 0 },
+});
+
+router.beforeEach(async (to) => {
+  const session = useSessionStore();
+  try {
+    await session.load();
+  } catch {
+    // The server could not be reached: the sign-in page explains and offers to try again.
+    return to.path === '/sign-in' ? true : { path: '/sign-in', query: { error: 'unavailable', next: to.fullPath } };
+  }
+  return decideNavigation(to, { signedIn: session.signedIn, role: session.role });
+});
+
+router.afterEach((to) => {
+  document.title = to.meta.title ? `${to.meta.title} · Waterline` : 'Waterline';
+});

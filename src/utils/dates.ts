@@ -1,0 +1,70 @@
+/**
+ * Dates as the firm reads them, British style ("Tue 12 May").
+ * Calendar dates (`YYYY-MM-DD`) name a day, not an instant, so they are never shifted by a
+ * time zone; the firm's zone decides only what "today" and "this year" are, and how instants show.
+ */
+
+const CALENDAR_DATE = /^(\d{4})-(\d{2})-(\d{2})$/;
+
+function calendarToUtc(date: string): Date | null {
+  const match = CALENDAR_DATE.exec(date);
+  if (!match) return null;
+  const [, y, m, d] = match;
+  const value = new Date(Date.UTC(Number(y), Number(m) - 1, Number(d)));
+  return Number.isNaN(value.getTime()) || value.getUTCDate() !== Number(d) ? null : value;
+}
+
+/** Today's calendar date in a time zone. @example todayIn('Europe/London', new Date('2026-03-29T23:30:00Z')) // '2026-03-30' */
+export function todayIn(timeZone: string, now: Date): string {
+  const parts = new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).formatToParts(now);
+  const get = (type: string) => parts.find((part) => part.type === type)?.value ?? '';
+  return `${get('year')}-${get('month')}-${get('day')}`;
+}
+
+export interface CalendarDateOptions {
+  /** Year to leave out (usually the firm's current year); other years are shown. */
+  currentYear?: number;
+}
+
+/**
+ * @example formatCalendarDate('2026-05-12') // 'Tue 12 May 2026'
+ * @example formatCalendarDate('2026-05-12', { currentYear: 2026 }) // 'Tue 12 May'
+ */
+export function formatCalendarDate(date: string | null | undefined, options: CalendarDateOptions = {}): string {
+  if (!date) return '';
+  const value = calendarToUtc(date);
+  if (!value) return date;
+  const withYear = value.getUTCFullYear() !== options.currentYear;
+  return new Intl.DateTimeFormat('en-GB', {
+    timeZone: 'UTC',
+    weekday: 'short',
+    day: 'numeric',
+    month: 'short',
+    ...(withYear ? { year: 'numeric' } : {}),
+  })
+    .format(value)
+    .replace(',', '');
+}
+
+/** @example formatCalendarRange('2026-05-12', '2026-05-14', { currentYear: 2026 }) // 'Tue 12 May – Thu 14 May' */
+export function formatCalendarRange(from: string | null, to: string | null, options: CalendarDateOptions = {}): string {
+  if (!from && !to) return '';
+  if (!from || !to || from === to) return formatCalendarDate(from ?? to, options);
+  return `${formatCalendarDate(from, options)} – ${formatCalendarDate(to, options)}`;
+}
+
+/** An instant in the firm's zone. @example formatInstant('2026-05-12T07:30:00Z', 'Europe/London') // 'Tue 12 May 2026, 08:30' */
+export function formatInstant(iso: string, timeZone: string, options: CalendarDateOptions = {}): string {
+  const value = new Date(iso);
+  if (Number.isNaN(value.getTime())) return iso;
+  const year = Number(new Intl.DateTimeFormat('en-GB', { timeZone, year: 'numeric' }).format(value));
+  const parts = new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    weekday: 'short',
+    day: 'numeric',
+    month: 'short',
+    ...(year !== options.currentYear ? { year: 'numeric' } : {}),
+  }).format(value);
+  const time = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(value);
+  return `${parts.replace(',', '')}, ${time}`;
+}

@@ -1,0 +1,45 @@
+/** Words the app shows for the server's codes. */
+import type { InstallationType, JobStatus, Ownership, ResourceCategory, Role } from '@/api/types';
+
+export const JOB_STATUS_LABELS: Record<JobStatus, string> = {
+  enquiry: 'Enquiry',
+  surveyed: 'Surveyed',
+  planned: 'Planned',
+  in_progress: 'In progress',
+  handed_over: 'Handed over',
+  cancelled: 'Cancelled',
+};
+
+export const INSTALLATION_TYPE_LABELS: Record<InstallationType, string> = {
+  in_ground: 'In-ground',
+  semi_recessed: 'Semi-recessed',
+  slab: 'On a slab',
+  deck: 'On a deck',
+};
+
+export const ROLE_LABELS: Record<Role, string> = {
+  owner: 'Owner',
+  scheduler: 'Scheduler',
+  manager: 'Installation manager',
+  crew: 'Crew',
+  partner: 'Partner firm',
+  viewer: 'Viewer',
+};
+
+export const OWNERSHIP_LABELS: Record<Ownership, string> = {
+  owned: 'Our own',
+  hired: 'Hired',
+  partner: 'Partner firm',
+};
+
+export const CATEGORY_LABELS: Record<ResourceCategory, string> = {
+  crew: 'Crew',
+  person: 'Person',
+  machine: 'Machine',
+};
+
+/** Turns an open-ended code such as `plant_hire` into words. @example humanise('plant_hire') // 'Plant hire' */
+export function humanise(code: string): string {
+  const words = code.replace(/[_-]+/g, ' ').trim();
+  return words ? words.charAt(0).toUpperCase() + words.slice(1) : code;
+}

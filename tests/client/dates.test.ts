@@ -1,0 +1,38 @@
+import { describe, expect, it } from 'vitest';
+import { formatCalendarDate, formatCalendarRange, formatInstant, todayIn } from '@/utils/dates';
+
+// Weekdays checked against a printed 2026 calendar: 12 May 2026 is a Tuesday, 29 March 2026 a Sunday.
+describe('formatCalendarDate', () => {
+  it('writes a date British style, leaving out the current year', () => {
+    expect(formatCalendarDate('2026-05-12', { currentYear: 2026 })).toBe('Tue 12 May');
+  });
+  it('shows the year when it is not the current one', () => {
+    expect(formatCalendarDate('2027-01-04', { currentYear: 2026 })).toBe('Mon 4 Jan 2027');
+  });
+  it('never shifts a calendar date by a time zone', () => {
+    expect(formatCalendarDate('2026-03-29', { currentYear: 2026 })).toBe('Sun 29 Mar');
+  });
+  it('gives back what it cannot read, and nothing for no date', () => {
+    expect(formatCalendarDate('2026-02-30')).toBe('2026-02-30');
+    expect(formatCalendarDate(null)).toBe('');
+  });
+});
+
+describe('formatCalendarRange', () => {
+  it('joins two days with an en dash, and shows one day once', () => {
+    expect(formatCalendarRange('2026-05-12', '2026-05-14', { currentYear: 2026 })).toBe('Tue 12 May – Thu 14 May');
+    expect(formatCalendarRange('2026-05-12', '2026-05-12', { currentYear: 2026 })).toBe('Tue 12 May');
+    expect(formatCalendarRange('2026-05-12', null, { currentYear: 2026 })).toBe('Tue 12 May');
+    expect(formatCalendarRange(null, null)).toBe('');
+  });
+});
+
+describe('in the firm time zone', () => {
+  it('reads today in London across the spring clock change (01:00 UTC on 29 March 2026)', () => {
+    expect(todayIn('Europe/London', new Date('2026-03-29T23:30:00Z'))).toBe('2026-03-30');
+    expect(todayIn('Europe/London', new Date('2026-01-15T23:30:00Z'))).toBe('2026-01-15');
+  });
+  it('shows an instant in British Summer Time as local time', () => {
+    expect(formatInstant('2026-05-12T07:30:00Z', 'Europe/London', { currentYear: 2026 })).toBe('Tue 12 May, 08:30');
+  });
+});
