@@ -30,6 +30,9 @@ export const PERMISSIONS = {
   'reports:read': ['owner', 'manager'],
   'audit:read': ['owner', 'manager'],
   'firm:manage': ['owner'],
+  /** A crew member's own assignments; a partner coordinator's own firm's slots. */
+  'my-work:read': ['crew'],
+  'slots:read': ['partner'],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof PERMISSIONS;

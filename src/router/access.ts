@@ -3,57 +3,25 @@
  * decides what the app shows, so a role never meets a page or a button it cannot use.
  */
 import type { Role } from '@/api/types';
+import { homeFor, may, type Permission as SharedPermission } from '@shared/permissions';
 
 export const ALL_ROLES: readonly Role[] = ['owner', 'scheduler', 'manager', 'crew', 'partner', 'viewer'];
 
-/** Things the client shows or hides. Names are the client's own; the server has its own list. */
-export type Permission =
-  | 'board:view'
-  | 'jobs:view'
-  | 'jobs:edit'
-  | 'resources:view'
-  | 'resources:edit'
-  | 'firm:view'
-  | 'members:view'
-  | 'my-work:view'
-  | 'slots:view';
+/** Client and server share one permission table (shared/permissions.ts). */
+export type Permission = SharedPermission;
 
-const PERMISSIONS: Record<Permission, readonly Role[]> = {
-  'board:view': ['owner', 'scheduler', 'manager', 'viewer'],
-  'jobs:view': ['owner', 'scheduler', 'manager', 'viewer'],
-  'jobs:edit': ['owner', 'scheduler', 'manager'],
-  'resources:view': ['owner', 'scheduler', 'manager'],
-  'resources:edit': ['owner', 'scheduler', 'manager'],
-  'firm:view': ['owner'],
-  'members:view': ['owner'],
-  'my-work:view': ['crew'],
-  'slots:view': ['partner'],
-};
-
-/** @example can('viewer', 'jobs:edit') // false */
+/** @example can('viewer', 'jobs:write') // false */
 export function can(role: Role | null | undefined, permission: Permission): boolean {
-  return role ? PERMISSIONS[permission].includes(role) : false;
+  return role ? may(role, permission) : false;
 }
 
-/** The roles holding a permission, for a route's `meta.roles`. @example rolesWith('firm:view') // ['owner'] */
+/** The roles holding a permission, for a route's `meta.roles`. @example rolesWith('firm:manage') // ['owner'] */
 export function rolesWith(permission: Permission): Role[] {
-  return [...PERMISSIONS[permission]];
+  return ALL_ROLES.filter((role) => may(role, permission));
 }
 
 /** Where each role lands after sign-in, and where it is sent from a page it may not see. */
-const HOMES: Record<Role, string> = {
-  owner: '/board',
-  scheduler: '/board',
-  manager: '/board',
-  viewer: '/board',
-  crew: '/my-work',
-  partner: '/slots',
-};
-
-/** @example homeFor('crew') // '/my-work' */
-export function homeFor(role: Role): string {
-  return HOMES[role];
-}
+export { homeFor };
 
 export function isRole(value: unknown): value is Role {
   return typeof value === 'string' && (ALL_ROLES as readonly string[]).includes(value);
@@ -63,12 +31,12 @@ export interface NavItem { label: string; path: string; permission: Permission }
 
 /** The main navigation, in the order it is shown. */
 export const NAV_ITEMS: readonly NavItem[] = [
-  { label: 'Board', path: '/board', permission: 'board:view' },
-  { label: 'Jobs', path: '/jobs', permission: 'jobs:view' },
-  { label: 'Resources', path: '/resources', permission: 'resources:view' },
-  { label: 'Firm', path: '/firm', permission: 'firm:view' },
-  { label: 'My work', path: '/my-work', permission: 'my-work:view' },
-  { label: 'Our slots', path: '/slots', permission: 'slots:view' },
+  { label: 'Board', path: '/board', permission: 'board:read' },
+  { label: 'Jobs', path: '/jobs', permission: 'jobs:read' },
+  { label: 'Resources', path: '/resources', permission: 'board:read' },
+  { label: 'Firm', path: '/firm', permission: 'firm:manage' },
+  { label: 'My work', path: '/my-work', permission: 'my-work:read' },
+  { label: 'Our slots', path: '/slots', permission: 'slots:read' },
 ];
 
 /** @example navFor('viewer').map((item) => item.label) // ['Board', 'Jobs'] */

@@ -17,12 +17,12 @@ declare module 'vue-router' {
 export const routes: RouteRecordRaw[] = [
   { path: '/sign-in', name: 'sign-in', component: () => import('@/views/SignInView.vue'), meta: { public: true, title: 'Sign in' } },
   { path: '/', name: 'home', component: () => import('@/views/HomeView.vue'), meta: { title: 'Home' } },
-  { path: '/board', name: 'board', component: () => import('@/views/BoardView.vue'), meta: { roles: rolesWith('board:view'), title: 'Board' } },
-  { path: '/jobs', name: 'jobs', component: () => import('@/views/JobsView.vue'), meta: { roles: rolesWith('jobs:view'), title: 'Jobs' } },
-  { path: '/resources', name: 'resources', component: () => import('@/views/ResourcesView.vue'), meta: { roles: rolesWith('resources:view'), title: 'Resources' } },
-  { path: '/firm', name: 'firm', component: () => import('@/views/FirmView.vue'), meta: { roles: rolesWith('firm:view'), title: 'Firm' } },
-  { path: '/my-work', name: 'my-work', component: () => import('@/views/MyWorkView.vue'), meta: { roles: rolesWith('my-work:view'), title: 'My work' } },
-  { path: '/slots', name: 'slots', component: () => import('@/views/SlotsView.vue'), meta: { roles: rolesWith('slots:view'), title: 'Our slots' } },
+  { path: '/board', name: 'board', component: () => import('@/views/BoardView.vue'), meta: { roles: rolesWith('board:read'), title: 'Board' } },
+  { path: '/jobs', name: 'jobs', component: () => import('@/views/JobsView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Jobs' } },
+  { path: '/resources', name: 'resources', component: () => import('@/views/ResourcesView.vue'), meta: { roles: rolesWith('board:read'), title: 'Resources' } },
+  { path: '/firm', name: 'firm', component: () => import('@/views/FirmView.vue'), meta: { roles: rolesWith('firm:manage'), title: 'Firm' } },
+  { path: '/my-work', name: 'my-work', component: () => import('@/views/MyWorkView.vue'), meta: { roles: rolesWith('my-work:read'), title: 'My work' } },
+  { path: '/slots', name: 'slots', component: () => import('@/views/SlotsView.vue'), meta: { roles: rolesWith('slots:read'), title: 'Our slots' } },
   { path: '/:pathMatch(.*)*', name: 'not-found', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Page not found' } },
 ];
 

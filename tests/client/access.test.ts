@@ -9,7 +9,7 @@ describe('navigation by role', () => {
     expect(navLabels('owner')).toEqual(['Board', 'Jobs', 'Resources', 'Firm']);
     expect(navLabels('scheduler')).toEqual(['Board', 'Jobs', 'Resources']);
     expect(navLabels('manager')).toEqual(['Board', 'Jobs', 'Resources']);
-    expect(navLabels('viewer')).toEqual(['Board', 'Jobs']);
+    expect(navLabels('viewer')).toEqual(['Board', 'Jobs', 'Resources']);
     expect(navLabels('crew')).toEqual(['My work']);
     expect(navLabels('partner')).toEqual(['Our slots']);
   });
@@ -38,17 +38,17 @@ describe('homeFor', () => {
 
 describe('can', () => {
   it('lets a viewer look at jobs but not change them', () => {
-    expect(can('viewer', 'jobs:view')).toBe(true);
-    expect(can('viewer', 'jobs:edit')).toBe(false);
+    expect(can('viewer', 'jobs:read')).toBe(true);
+    expect(can('viewer', 'jobs:write')).toBe(false);
   });
   it('shows the firm and its people to owners only', () => {
-    expect(rolesWith('members:view')).toEqual(['owner']);
-    expect(can(null, 'board:view')).toBe(false);
+    expect(rolesWith('firm:manage')).toEqual(['owner']);
+    expect(can(null, 'board:read')).toBe(false);
   });
 });
 
 describe('mayVisit', () => {
-  const firmPage = { roles: rolesWith('firm:view') };
+  const firmPage = { roles: rolesWith('firm:manage') };
   it('opens a route to the roles it lists', () => {
     expect(mayVisit(firmPage, 'owner')).toBe(true);
     expect(mayVisit(firmPage, 'scheduler')).toBe(false);
@@ -85,7 +85,7 @@ describe('decideNavigation', () => {
 
   describe('when signed out', () => {
     it('sends to sign-in and remembers where the person was going', () => {
-      expect(decideNavigation(to('/jobs?page=2', { roles: rolesWith('jobs:view') }), signedOut)).toEqual({
+      expect(decideNavigation(to('/jobs?page=2', { roles: rolesWith('jobs:read') }), signedOut)).toEqual({
         path: '/sign-in',
         query: { next: '/jobs?page=2' },
       });
@@ -108,12 +108,12 @@ describe('decideNavigation', () => {
       expect(decideNavigation(to('/sign-in', { public: true }, { next: '//elsewhere.example' }), as('manager'))).toEqual({ path: '/board' });
     });
     it("sends a role that may not see a page to its home", () => {
-      expect(decideNavigation(to('/firm', { roles: rolesWith('firm:view') }), as('scheduler'))).toEqual({ path: '/board' });
-      expect(decideNavigation(to('/jobs', { roles: rolesWith('jobs:view') }), as('crew'))).toEqual({ path: '/my-work' });
-      expect(decideNavigation(to('/resources', { roles: rolesWith('resources:view') }), as('viewer'))).toEqual({ path: '/board' });
+      expect(decideNavigation(to('/firm', { roles: rolesWith('firm:manage') }), as('scheduler'))).toEqual({ path: '/board' });
+      expect(decideNavigation(to('/jobs', { roles: rolesWith('jobs:read') }), as('crew'))).toEqual({ path: '/my-work' });
+      expect(decideNavigation(to('/resources', { roles: rolesWith('board:read') }), as('partner'))).toEqual({ path: '/slots' });
     });
     it('lets a role open what it may see', () => {
-      expect(decideNavigation(to('/firm', { roles: rolesWith('firm:view') }), as('owner'))).toBe(true);
+      expect(decideNavigation(to('/firm', { roles: rolesWith('firm:manage') }), as('owner'))).toBe(true);
     });
   });
 });

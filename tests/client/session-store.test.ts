@@ -66,8 +66,8 @@ describe('useSessionStore', () => {
     it('answers can() from the role', async () => {
       const session = useSessionStore();
       await session.load();
-      expect(session.can('resources:view')).toBe(true);
-      expect(session.can('members:view')).toBe(false);
+      expect(session.can('board:read')).toBe(true);
+      expect(session.can('firm:manage')).toBe(false);
     });
   });
 
@@ -78,7 +78,7 @@ describe('useSessionStore', () => {
       await expect(session.load()).resolves.toBe(false);
       expect(session.signedIn).toBe(false);
       expect(session.loaded).toBe(true);
-      expect(session.can('board:view')).toBe(false);
+      expect(session.can('board:read')).toBe(false);
     });
   });
 
@@ -93,7 +93,7 @@ describe('useSessionStore', () => {
       expect(put?.headers['X-CSRF-Token']).toBe('csrf-installer');
       expect(session.firm?.name).toBe('Marsh Groundworks');
       expect(session.role).toBe('owner');
-      expect(session.can('members:view')).toBe(true);
+      expect(session.can('firm:manage')).toBe(true);
       expect(session.csrfToken).toBe('csrf-groundworks');
     });
   });
