@@ -12,6 +12,8 @@ import { ensureDatabase, startPostgres } from './services/postgres.ts';
 import { startRedis } from './services/redis.ts';
 import { runInherit } from './services/shell.ts';
 import { startFakeOAuthProvider } from './fakes/oauth-provider.ts';
+import { startFakeObjectStore } from './fakes/object-store.ts';
+import { startFakeSmtpInbox } from './fakes/smtp-inbox.ts';
 import { DEMO_ACCOUNTS } from '../seeds/demo-accounts.ts';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
@@ -20,7 +22,11 @@ const mode = process.argv[2] === 'test' ? 'test' : 'start';
 const PORTS = {
   postgres: Number(process.env.WATERLINE_PG_PORT ?? 54329),
   redis: Number(process.env.WATERLINE_REDIS_PORT ?? 63799),
-  oauth: mode === 'test' ? 4111 : 4011,
+  // Tests take any free port for the fakes (their URLs are passed on), so runs never collide.
+  oauth: mode === 'test' ? 0 : 4011,
+  objectStore: mode === 'test' ? 0 : 4569,
+  smtp: mode === 'test' ? 0 : 2525,
+  inbox: mode === 'test' ? 0 : 1080,
   app: Number(process.env.PORT ?? 3000),
 };
 
@@ -76,12 +82,18 @@ async function main(): Promise<void> {
 
   const pg = await startPostgres(dataDir, PORTS.postgres);
   cleanups.push(() => pg.stop());
-  const database = mode === 'test' ? 'waterline_test' : 'waterline';
+  const database = mode === 'test' ? (process.env.WATERLINE_TEST_DB ?? 'waterline_test') : 'waterline';
   await ensureDatabase(PORTS.postgres, database);
   const redis = await startRedis(dataDir, PORTS.redis);
   cleanups.push(() => redis.stop());
   const oauth = await startFakeOAuthProvider(PORTS.oauth, DEMO_ACCOUNTS.map((a) => ({ email: a.email, name: a.name, hint: `${a.role} · ${a.firm}` })));
   cleanups.push(() => oauth.stop());
+  // Job photos and documents: a fake S3 on loopback (emptied for each test run).
+  const s3 = await startFakeObjectStore(dataDir, PORTS.objectStore, 'waterline', mode === 'test');
+  cleanups.push(() => s3.stop());
+  // E-mail goes to a local inbox page instead of anyone's mailbox.
+  const inbox = await startFakeSmtpInbox({ smtp: PORTS.smtp, web: PORTS.inbox });
+  cleanups.push(() => inbox.stop());
 
   const publicUrl = `http://127.0.0.1:${PORTS.app}`;
   const env: NodeJS.ProcessEnv = {
@@ -98,6 +110,12 @@ async function main(): Promise<void> {
     OAUTH_TOKEN_URL: oauth.tokenURL,
     OAUTH_USERINFO_URL: oauth.userProfileURL,
     FAKE_OAUTH_URL: oauth.url,
+    S3_ENDPOINT: s3.endpoint,
+    S3_BUCKET: s3.bucket,
+    S3_ACCESS_KEY_ID: s3.accessKeyId,
+    S3_SECRET_ACCESS_KEY: s3.secretAccessKey,
+    SMTP_URL: inbox.smtpUrl,
+    FAKE_INBOX_URL: inbox.url,
     LOG_LEVEL: process.env.LOG_LEVEL ?? (mode === 'test' ? 'silent' : 'info'),
   };
   const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
@@ -109,6 +127,8 @@ async function main(): Promise<void> {
       ...(filters.length ? [] : [['npm', ['run', '--silent', 'lint']], ['npm', ['run', '--silent', 'typecheck']]] as [string, string[]][]),
       [path.join(root, 'node_modules', '.bin', 'vitest'), ['run', ...filters]],
     ];
+    // The end-to-end tests drive the built app in a real browser.
+    await buildClientIfStale();
     for (const [cmd, args] of steps) {
       console.log(`\n▶ ${path.basename(cmd)} ${args.join(' ')}`);
       const code = await new Promise<number>((resolve) => spawnChild(cmd, args, env).on('exit', (c) => resolve(c ?? 1)));
@@ -127,6 +147,7 @@ async function main(): Promise<void> {
     `Waterline is starting at ${publicUrl}`,
     'Sign in with the local provider as any of the demo accounts:',
     ...DEMO_ACCOUNTS.map((a) => `  ${a.role.padEnd(9)} ${a.name.padEnd(16)} ${a.email}  (${a.firm})`),
+    `E-mail it sends (requests to partners, invitations) lands in the local inbox: ${inbox.url}`,
     'Press Ctrl-C to stop; PostgreSQL and Redis stop with it.',
     '',
   ].join('\n'));

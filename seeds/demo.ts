@@ -1,5 +1,9 @@
 import type { Knex } from 'knex';
 import { DEMO_ACCOUNTS } from './demo-accounts.ts';
+import { DEFAULT_TEMPLATES } from '../shared/templates/defaults.ts';
+import { planFromTemplate } from '../shared/templates/plan.ts';
+import { jobQuantities, type InstallationType } from '../shared/quantities/job-quantities.ts';
+import { DEFAULT_QUANTITY_SETTINGS } from '../shared/quantities/settings.ts';
 
 /**
  * The demo scenario (all names invented): one installer with three crews and its own and hired
@@ -7,16 +11,16 @@ import { DEMO_ACCOUNTS } from './demo-accounts.ts';
  * coming six weeks at different stages. Dates are relative to `today`, so the board is always live.
  */
 
-type Firm = { name: string; kind: string; region?: string; phone: string };
+type Firm = { name: string; kind: string; region?: string; phone: string; email?: string };
 const FIRMS: Firm[] = [
   { name: 'Tideway Hot Tubs', kind: 'installer', phone: '0113 496 0001' },
   { name: 'Moorview Spas', kind: 'installer', phone: '01423 496 002' },
-  { name: 'Fellside Crane Hire', kind: 'crane_hire', phone: '0113 496 0101' },
-  { name: 'Ridgeway Plant Hire', kind: 'plant_hire', phone: '0113 496 0102' },
-  { name: 'Brightspark Electrical', kind: 'electrical', phone: '0113 496 0103' },
-  { name: 'Northgate Electrical', kind: 'electrical', phone: '0113 496 0104' },
-  { name: 'Millstone Groundworks', kind: 'groundworks', phone: '0113 496 0105' },
-  { name: 'Carrow Haulage', kind: 'haulage', phone: '0113 496 0106' },
+  { name: 'Fellside Crane Hire', kind: 'crane_hire', phone: '0113 496 0101', email: 'bookings@fellside.example' },
+  { name: 'Ridgeway Plant Hire', kind: 'plant_hire', phone: '0113 496 0102', email: 'bookings@ridgeway.example' },
+  { name: 'Brightspark Electrical', kind: 'electrical', phone: '0113 496 0103', email: 'bookings@brightspark.example' },
+  { name: 'Northgate Electrical', kind: 'electrical', phone: '0113 496 0104', email: 'bookings@northgate.example' },
+  { name: 'Millstone Groundworks', kind: 'groundworks', phone: '0113 496 0105', email: 'bookings@millstone.example' },
+  { name: 'Carrow Haulage', kind: 'haulage', phone: '0113 496 0106', email: 'bookings@carrow.example' },
 ];
 
 const WEEKDAYS_8_TO_5 = { 1: [[480, 1020]], 2: [[480, 1020]], 3: [[480, 1020]], 4: [[480, 1020]], 5: [[480, 1020]] };
@@ -58,44 +62,9 @@ const UNITS = [
   { model: 'Tarn Swim 45', maker: 'Ostra Baths', lengthMm: 4500, widthMm: 2300, heightMm: 1300, dryWeightKg: 1600, filledWeightKg: 10500, waterLitres: 8900, supplies: [{ amps: 32 }, { amps: 32 }], makerLeadDays: 35 },
 ];
 
-type StagePlan = { kind: string; name: string; minutes: number; needs: [string, number][]; cure?: number };
-const IN_GROUND: StagePlan[] = [
-  { kind: 'survey', name: 'Site survey', minutes: 120, needs: [['install_crew', 1]] },
-  { kind: 'excavation', name: 'Excavate pit', minutes: 720, needs: [['groundworks_crew', 1], ['excavator', 1], ['dumper', 1]] },
-  { kind: 'base_pour', name: 'Pour reinforced base', minutes: 300, needs: [['groundworks_crew', 1]], cure: 0.7 },
-  { kind: 'walls', name: 'Block retaining walls', minutes: 960, needs: [['groundworks_crew', 1]] },
-  { kind: 'electrical_first_fix', name: 'Supply cable first fix', minutes: 240, needs: [['electrician', 1]] },
-  { kind: 'delivery', name: 'Delivery', minutes: 120, needs: [['lorry', 1]] },
-  { kind: 'lift', name: 'Crane lift into pit', minutes: 240, needs: [['crane', 1], ['install_crew', 1], ['pallet_truck', 2], ['rollers', 1]] },
-  { kind: 'fill', name: 'Fill', minutes: 180, needs: [['install_crew', 1]] },
-  { kind: 'electrical_connect', name: 'Connect and certify', minutes: 240, needs: [['electrician', 1]] },
-  { kind: 'commission', name: 'Commission', minutes: 180, needs: [['install_crew', 1]] },
-  { kind: 'handover', name: 'Handover', minutes: 60, needs: [['install_crew', 1]] },
-];
-const ON_SLAB: StagePlan[] = [
-  { kind: 'survey', name: 'Site survey', minutes: 120, needs: [['install_crew', 1]] },
-  { kind: 'base_pour', name: 'Pour slab', minutes: 360, needs: [['groundworks_crew', 1]], cure: 0.7 },
-  { kind: 'electrical_first_fix', name: 'Supply cable first fix', minutes: 240, needs: [['electrician', 1]] },
-  { kind: 'delivery', name: 'Delivery', minutes: 120, needs: [['lorry', 1]] },
-  { kind: 'placement', name: 'Move into place', minutes: 180, needs: [['install_crew', 1], ['pallet_truck', 2]] },
-  { kind: 'fill', name: 'Fill', minutes: 180, needs: [['install_crew', 1]] },
-  { kind: 'electrical_connect', name: 'Connect and certify', minutes: 240, needs: [['electrician', 1]] },
-  { kind: 'commission', name: 'Commission', minutes: 180, needs: [['install_crew', 1]] },
-  { kind: 'handover', name: 'Handover', minutes: 60, needs: [['install_crew', 1]] },
-];
-/** [from, to, lag amount, lag unit]: the order of stages (base cures before the lift via its cure rule). */
-const LINKS: [string, string, number, string][] = [
-  ['survey', 'excavation', 0, 'working_days'], ['survey', 'base_pour', 0, 'working_days'],
-  ['excavation', 'base_pour', 0, 'working_hours'], ['base_pour', 'walls', 1, 'elapsed_days'],
-  ['survey', 'electrical_first_fix', 0, 'working_days'], ['walls', 'lift', 0, 'working_hours'],
-  ['base_pour', 'lift', 0, 'working_hours'], ['base_pour', 'placement', 0, 'working_hours'],
-  ['delivery', 'lift', 0, 'working_hours'], ['delivery', 'placement', 0, 'working_hours'],
-  ['electrical_first_fix', 'lift', 0, 'working_hours'], ['electrical_first_fix', 'placement', 0, 'working_hours'],
-  ['lift', 'fill', 0, 'working_hours'], ['placement', 'fill', 0, 'working_hours'],
-  ['lift', 'electrical_connect', 0, 'working_hours'], ['placement', 'electrical_connect', 0, 'working_hours'],
-  ['fill', 'commission', 0, 'working_hours'], ['electrical_connect', 'commission', 0, 'working_hours'],
-  ['commission', 'handover', 0, 'working_hours'],
-];
+// Stages come from the same templates a firm plans its jobs with (shared/templates), for the
+// installation type, the unit and the survey's crane decision.
+const GROUND_TYPES = ['clay', 'loam', 'sand_gravel'] as const;
 
 const CUSTOMERS = [
   ['Hannah Greaves', '14 Larch Rise', 'Otley', 'LS21 3QP'], ['Marcus Doyle', '2 The Paddocks', 'Ilkley', 'LS29 8RT'],
@@ -139,7 +108,7 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
   return knex.transaction(async (trx) => {
     const firmId = new Map<string, string>();
     for (const f of FIRMS) {
-      const [row] = await trx('firms').insert({ name: f.name, kind: f.kind, time_zone: 'Europe/London', holiday_region: f.region ?? 'GB-ENG', phone: f.phone }).returning('id');
+      const [row] = await trx('firms').insert({ name: f.name, kind: f.kind, time_zone: 'Europe/London', holiday_region: f.region ?? 'GB-ENG', phone: f.phone, email: f.email ?? null }).returning('id');
       firmId.set(f.name, String(row.id));
     }
     const F = (name: string) => firmId.get(name)!;
@@ -226,7 +195,8 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
     for (let i = 0; i < CUSTOMERS.length; i += 1) {
       const [customer, address, town, postcode] = CUSTOMERS[i]! as [string, string, string, string];
       const inGround = i % 3 !== 2;
-      const plan = inGround ? IN_GROUND : ON_SLAB;
+      const installationType: InstallationType = inGround ? (i % 5 === 0 ? 'semi_recessed' : 'in_ground') : 'slab';
+      const unit = UNITS[i % UNITS.length]!;
       const startOffset = -10 + Math.floor(i * 2.2); // work spreads from ten days ago over the next six weeks
       const promised = day0 + (startOffset + 24) * DAY;
       const status = i < 3 ? 'in_progress' : i < 12 ? 'planned' : i < 20 ? 'surveyed' : 'enquiry';
@@ -234,24 +204,40 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
         firm_id: tideway, reference: `TW-${String(2401 + i)}`, customer_name: customer, customer_phone: `07700 900${String(100 + i)}`,
         customer_email: `${(customer ?? '').split(' ')[0]!.toLowerCase()}@home.example`, site_address: address, site_town: town, site_postcode: postcode,
         access_notes: i % 4 === 0 ? 'Side gate 900 mm wide; park on the drive' : 'Access across the lawn; no parking restrictions',
-        unit_id: unitIds[i % unitIds.length], installation_type: inGround ? (i % 5 === 0 ? 'semi_recessed' : 'in_ground') : 'slab',
+        unit_id: unitIds[i % unitIds.length], installation_type: installationType,
         status, promised_from: isoDate(promised), promised_to: isoDate(promised + 7 * DAY), ordered_on: isoDate(day0 + (startOffset - 20) * DAY),
       }).returning('id');
       jobs += 1;
 
+      // Jobs past the enquiry have a survey; a side gate makes the narrow routes.
+      const survey = status === 'enquiry' ? null : {
+        accessWidthMm: i % 4 === 0 ? 900 : 1200, accessHeightMm: i % 4 === 0 ? 2100 : null, steps: i % 3, gates: i % 4 === 0 ? 1 : 0,
+        overheadObstructions: i % 7 === 3, overheadNotes: i % 7 === 3 ? 'Telephone line crosses the garden at about 5 m' : null,
+        groundType: GROUND_TYPES[i % GROUND_TYPES.length]!, buriedServicesNotes: 'Water supply pipe runs under the drive (deeds plan); scan before digging',
+        craneStandingPosition: 'On the drive, outriggers on spreader mats', craneDistanceToSetDownM: 8 + (i % 5), consumerUnitDistanceM: 12 + i,
+        mainFuseAmps: [60, 80, 100][i % 3]!, drainage: 'Soakaway at the foot of the garden', craneRequired: null, excavatorSize: null, notes: null,
+      };
+      if (survey) {
+        await trx('surveys').insert({ job_id: job.id, ...Object.fromEntries(Object.entries(survey).map(([k, v]) => [k.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`), v])),
+          surveyed_by: userId.get('connor.reid@tideway.example'), surveyed_at: londonAt(day0 + (startOffset - 14) * DAY, 600) });
+      }
+      const q = jobQuantities({ installationType, unit, survey, settings: DEFAULT_QUANTITY_SETTINGS });
+      const plan = planFromTemplate(DEFAULT_TEMPLATES[installationType], {
+        craneNeeded: q.crane.result.needed, excavationMinutes: q.excavationTime?.result.minutes ?? null, makerLeadDays: unit.makerLeadDays,
+      }).stages;
+      const links = planFromTemplate(DEFAULT_TEMPLATES[installationType], { craneNeeded: q.crane.result.needed, excavationMinutes: null }).links;
+
       const stageId = new Map<string, string>();
-      for (const [seq, s] of plan.entries()) {
+      for (const s of plan) {
         const [row] = await trx('stages').insert({
-          job_id: job.id, kind: s.kind, name: s.name, sequence: seq + 1, duration_minutes: s.minutes,
-          requirements: JSON.stringify(s.needs.map(([kind, count]) => ({ kind, count }))),
-          cure: s.cure ? JSON.stringify({ targetFraction: s.cure }) : null,
+          job_id: job.id, kind: s.kind, name: s.name, sequence: s.sequence, duration_minutes: s.durationMinutes,
+          requirements: JSON.stringify(s.requirements), cure: s.cure ? JSON.stringify(s.cure) : null,
+          notes: s.kind === 'lift' || s.kind === 'placement' ? q.crane.result.reason : null,
         }).returning('id');
         stageId.set(s.kind, String(row.id));
       }
-      for (const [from, to, amount, unit] of LINKS) {
-        if (stageId.has(from) && stageId.has(to)) {
-          await trx('dependencies').insert({ from_stage_id: stageId.get(from), to_stage_id: stageId.get(to), type: 'FS', lag_amount: amount, lag_unit: unit });
-        }
+      for (const l of links) {
+        await trx('dependencies').insert({ from_stage_id: stageId.get(l.fromKind), to_stage_id: stageId.get(l.toKind), type: l.type, lag_amount: l.lagAmount, lag_unit: l.lagUnit });
       }
 
       // The first sixteen jobs are booked (fully or partly); the rest wait in the tray.
@@ -259,12 +245,12 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
       let cursor = workingDayFrom(day0 + startOffset * DAY, 0);
       const stagesToBook = i < 12 ? plan.length : 3;
       for (const s of plan.slice(0, stagesToBook)) {
-        const days = Math.max(1, Math.ceil(s.minutes / 540));
+        const days = Math.max(1, Math.ceil(s.durationMinutes / 540));
         const start = londonAt(cursor, 480).getTime();
-        const end = days === 1 ? start + s.minutes * 60_000 : londonAt(workingDayFrom(cursor, days - 1), 480 + s.minutes - (days - 1) * 540).getTime();
+        const end = days === 1 ? start + s.durationMinutes * 60_000 : londonAt(workingDayFrom(cursor, days - 1), 480 + s.durationMinutes - (days - 1) * 540).getTime();
         const past = end < today.getTime();
         const wanted = past ? 'done' : start < today.getTime() ? 'on_site' : i < 8 ? 'confirmed' : i % 2 ? 'sent' : 'pencilled';
-        for (const [kind, count] of s.needs) {
+        for (const { kind, count } of s.requirements) {
           const pool = byKind.get(kind) ?? [];
           for (let c = 0; c < count; c += 1) {
             const res = pool[(i + c) % pool.length];

@@ -13,13 +13,22 @@ import type { Config } from './config.ts';
 import { errorHandler, notFoundHandler } from './errors.ts';
 import { RouteTable } from './routes/table.ts';
 import { apiRoutes } from './routes/api.ts';
+import { jobWorkRoutes } from './routes/job-work.ts';
+import { partnerRoutes } from './routes/partners.ts';
+import { answerRoutes } from './routes/answers.ts';
 import { authRoutes } from './routes/auth.ts';
 import { createPassport } from './auth/google.ts';
 import { csrfProtection } from './middleware/csrf.ts';
 import { actorFor } from './services/session.ts';
 import { Health } from './health.ts';
+import { BoardStream } from './services/board-stream.ts';
 
-export interface AppDeps { config: Config; knex: Knex }
+export interface AppDeps {
+  config: Config;
+  knex: Knex;
+  /** The clock the engine checks against; tests fix it. */
+  now?: () => number;
+}
 
 export interface WaterlineApp {
   app: Express;
@@ -30,10 +39,11 @@ export interface WaterlineApp {
 const distDir = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'dist');
 
 /** Builds the Express app; index.ts only listens. Tests call this with their own settings. */
-export function createApp({ config, knex }: AppDeps): WaterlineApp {
+export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineApp {
   const app = express();
   const logger = pino({ level: config.LOG_LEVEL });
   const health = new Health(knex, config.REDIS_URL);
+  const stream = new BoardStream(config.DATABASE_URL, knex);
   const sessionPool = new pg.Pool({ connectionString: config.DATABASE_URL, max: 5 });
   const PgStore = connectPgSimple(session);
 
@@ -52,7 +62,8 @@ export function createApp({ config, knex }: AppDeps): WaterlineApp {
     contentSecurityPolicy: {
       directives: {
         'default-src': ["'self'"],
-        'img-src': ["'self'", 'data:', 'blob:'],
+        // Job photos come from object storage through short-lived private links.
+        'img-src': ["'self'", 'data:', 'blob:', ...(config.S3_ENDPOINT ? [new URL(config.S3_ENDPOINT).origin] : [])],
         'style-src': ["'self'", "'unsafe-inline'"],
         'script-src': ["'self'"],
         'connect-src': ["'self'"],
@@ -85,7 +96,10 @@ export function createApp({ config, knex }: AppDeps): WaterlineApp {
   app.use(auth.initialize());
   const routes = new RouteTable();
   authRoutes(routes, config, auth);
-  apiRoutes(routes, { knex, health });
+  apiRoutes(routes, { knex, health, stream, now, fullcalendarLicenseKey: config.FULLCALENDAR_LICENSE_KEY });
+  const jobWork = jobWorkRoutes(routes, { knex, config });
+  partnerRoutes(routes, { knex, config });
+  answerRoutes(routes, { knex, config });
   routes.mount(app.router);
 
   app.use('/api', notFoundHandler);
@@ -102,6 +116,7 @@ export function createApp({ config, knex }: AppDeps): WaterlineApp {
     app,
     routes,
     async close() {
+      jobWork.close();
       await health.close();
       await sessionPool.end();
     },

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { z } from 'zod';
 
 /** Every production setting comes from the environment; see .env.example. */
@@ -24,8 +25,14 @@ const Env = z.object({
   FULLCALENDAR_LICENSE_KEY: z.string().default('GPL-My-Project-Is-Open-Source'),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   SIGN_IN_RATE_LIMIT: z.coerce.number().int().min(1).default(30),
+  // Signs the answer, invitation and feed links in e-mails; required in production (see loadConfig).
+  LINK_SECRET: z.string().min(32, 'LINK_SECRET must be at least 32 characters').optional(),
+  // A request to a partner unanswered this long is flagged overdue and gets one reminder.
+  REMINDER_HOURS: z.coerce.number().min(1).default(48),
+  // The BullMQ queue the outbox relay feeds and the mail worker drains.
+  MAIL_QUEUE: z.string().regex(/^[\w-]+$/).default('mail'),
 });
-export type Config = z.infer<typeof Env>;
+export type Config = z.infer<typeof Env> & { LINK_SECRET: string };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const parsed = Env.safeParse(env);
@@ -33,5 +40,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`);
     throw new Error(`Waterline's settings are incomplete:\n${lines.join('\n')}`);
   }
-  return parsed.data;
+  const { LINK_SECRET, ...rest } = parsed.data;
+  if (!LINK_SECRET && rest.NODE_ENV === 'production') {
+    throw new Error("Waterline's settings are incomplete:\n  LINK_SECRET: is required in production");
+  }
+  // Outside production a link secret derived from the session secret keeps local set-up to one setting.
+  return { ...rest, LINK_SECRET: LINK_SECRET ?? createHash('sha256').update(`waterline-links:${rest.SESSION_SECRET}`).digest('base64url') };
 }

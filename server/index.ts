@@ -1,10 +1,17 @@
 import { loadConfig } from './config.ts';
 import { createKnex } from './db.ts';
 import { createApp } from './app.ts';
+import pino from 'pino';
+import { startMailPipeline, type MailPipeline } from '../workers/pipeline.ts';
 
 const config = loadConfig();
 const knex = createKnex(config.DATABASE_URL);
 const { app, close } = createApp({ config, knex });
+// `npm start` runs the outbox relay and mail worker in this process (RUN_WORKER=1); production runs `npm run worker` apart.
+let mail: MailPipeline | null = null;
+if (process.env.RUN_WORKER === '1') {
+  mail = startMailPipeline({ knex, config, logger: pino({ level: config.LOG_LEVEL }).child({ process: 'worker' }) });
+}
 
 const server = app.listen(config.PORT, config.HOST, () => {
   console.log(`Waterline is listening on ${config.PUBLIC_URL}`);
@@ -20,6 +27,7 @@ async function shutdown(signal: string) {
   server.closeIdleConnections();
   const force = setTimeout(() => process.exit(1), 10_000);
   force.unref();
+  await mail?.close();
   await close();
   await knex.destroy();
   process.exit(0);

@@ -5,6 +5,7 @@ import { HttpError } from '../errors.ts';
 export const newCsrfToken = () => randomBytes(24).toString('base64url');
 
 const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
+const LINK_FORMS = /^\/(answer|invite)\/[^/]+$/;
 
 /**
  * Synchroniser-token CSRF protection: a state-changing request from a signed-in session must carry
@@ -12,6 +13,9 @@ const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
  */
 export const csrfProtection: RequestHandler = (req, _res, next) => {
   if (SAFE.has(req.method) || !req.session?.userId) return next();
+  // Answer and invitation links from e-mails post a form with no session token (the partner or
+  // invitee may have no session, or another person's): their signed, single-use token is the proof.
+  if (LINK_FORMS.test(req.path)) return next();
   const expected = req.session.csrfToken ?? '';
   const given = req.get('x-csrf-token') ?? '';
   const ok = expected.length > 0 && given.length === expected.length

@@ -3,27 +3,39 @@ import type { RouteTable } from './table.ts';
 import { parse } from '../middleware/validate.ts';
 import { IdParams } from '../../shared/schemas/common.ts';
 import { CreateJob, JobQuery } from '../../shared/schemas/jobs.ts';
-import { BookingRange, CreateBooking, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import { BookingRange, CreateBooking, CreateBookings, MoveStage, RemoveBooking, UpdateBooking } from '../../shared/schemas/bookings.ts';
 import { SwitchFirm } from '../../shared/schemas/session.ts';
 import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
 import { BookingsService } from '../services/bookings.ts';
 import { actorFor, sessionInfo } from '../services/session.ts';
+import { loadBoard } from '../services/board.ts';
+import type { BoardStream } from '../services/board-stream.ts';
 import { NotFoundError } from '../errors.ts';
 import type { Health } from '../health.ts';
 
-export interface ApiDeps { knex: Knex; health: Health }
+export interface ApiDeps { knex: Knex; health: Health; stream: BoardStream; fullcalendarLicenseKey: string; now?: () => number }
 
 /** The JSON API: one line a route, each naming who may call it. */
-export function apiRoutes(table: RouteTable, { knex, health }: ApiDeps): void {
+export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalendarLicenseKey, now = Date.now }: ApiDeps): void {
   const jobs = new JobsService(knex);
   const directory = new DirectoryService();
-  const bookings = new BookingsService(knex);
+  const bookings = new BookingsService(knex, now);
 
   table
     .get('/api/health', 'public', async (_req, res) => {
       const report = await health.check();
       res.status(report.status === 'ok' ? 200 : 503).json(report);
+    })
+    .get('/api/client-config', 'public', (_req, res) => {
+      res.json({ fullcalendarLicenseKey });
+    })
+    .get('/api/board', 'bookings:read', async (req, res) => {
+      const { from, to } = parse(BookingRange, req.query, 'query');
+      res.json(await loadBoard(knex, req.actor!, { from: Date.parse(from), to: Date.parse(to), now: now() }));
+    })
+    .get('/api/board/stream', 'bookings:read', async (req, res) => {
+      await stream.open(req, res, req.actor!);
     })
     .get('/api/session', 'signed-in', async (req, res) => {
       res.json(await sessionInfo(knex, req.actor!, req.session.csrfToken ?? ''));
@@ -66,8 +78,20 @@ export function apiRoutes(table: RouteTable, { knex, health }: ApiDeps): void {
     .get('/api/bookings/:id', 'bookings:read', async (req, res) => {
       res.json(await bookings.get(req.actor!, parse(IdParams, req.params, 'params').id));
     })
+    .post('/api/bookings/batch', 'bookings:write', async (req, res) => {
+      res.status(201).json(await bookings.createMany(req.actor!, parse(CreateBookings, req.body).bookings));
+    })
     .patch('/api/bookings/:id', 'bookings:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
       res.json(await bookings.update(req.actor!, id, parse(UpdateBooking, req.body)));
+    })
+    .delete('/api/bookings/:id', 'bookings:write', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      await bookings.remove(req.actor!, id, parse(RemoveBooking, req.query, 'query').version);
+      res.status(204).end();
+    })
+    .post('/api/stages/:id/move', 'bookings:write', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await bookings.moveStage(req.actor!, id, parse(MoveStage, req.body)));
     });
 }

@@ -12,13 +12,16 @@ export const BookingRange = z.object({
 
 const times = <T extends { startsAt: string; endsAt: string }>(b: T) => Date.parse(b.endsAt) > Date.parse(b.startsAt);
 
+const endsAfterStart = (b: { startsAt: string; endsAt?: string | undefined }) => b.endsAt === undefined || Date.parse(b.endsAt) > Date.parse(b.startsAt);
+
+/** A stage booked on a resource; without `endsAt` the stage's working duration on that resource's calendar is used. */
 export const CreateBooking = z.object({
   stageId: Id,
   resourceId: Id,
   startsAt: IsoInstant,
-  endsAt: IsoInstant,
+  endsAt: IsoInstant.optional(),
   state: z.enum(['pencilled', 'confirmed']).default('pencilled'),
-}).refine(times, { path: ['endsAt'], message: 'must be after the start' });
+}).refine(endsAfterStart, { path: ['endsAt'], message: 'must be after the start' });
 export type CreateBooking = z.infer<typeof CreateBooking>;
 
 export const UpdateBooking = z.object({
@@ -29,6 +32,26 @@ export const UpdateBooking = z.object({
   state: z.enum(BOOKING_STATES).optional(),
 }).refine(times, { path: ['endsAt'], message: 'must be after the start' });
 export type UpdateBooking = z.infer<typeof UpdateBooking>;
+
+export const CreateBookings = z.object({
+  bookings: z.array(CreateBooking).min(1, 'needs at least one booking').max(500, 'at most 500 bookings at once'),
+});
+export type CreateBookings = z.infer<typeof CreateBookings>;
+
+/** A drag on the board: all of a stage's bookings move together; optionally one changes resource. */
+export const MoveStage = z.object({
+  startsAt: IsoInstant,
+  endsAt: IsoInstant.optional(),
+  resourceId: Id.optional(),
+  bookingId: Id.optional(),
+  /** The version of each booking the move was based on: any newer one refuses the move (409). */
+  versions: z.record(Id, z.number().int().min(1)),
+  moveDependents: z.boolean().default(false),
+}).refine(endsAfterStart, { path: ['endsAt'], message: 'must be after the start' })
+  .refine((m) => !m.resourceId || m.bookingId, { path: ['bookingId'], message: 'is required when changing resource' });
+export type MoveStage = z.infer<typeof MoveStage>;
+
+export const RemoveBooking = z.object({ version: z.coerce.number().int().min(1) });
 
 export const BookingView = z.object({
   id: Id,

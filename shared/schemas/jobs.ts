@@ -16,7 +16,8 @@ export type JobQuery = z.infer<typeof JobQuery>;
 const UkPostcode = z.string().trim().toUpperCase()
   .regex(/^[A-Z]{1,2}[0-9][A-Z0-9]? ?[0-9][A-Z]{2}$/, 'must be a UK postcode such as LS6 2AB');
 
-export const CreateJob = z.object({
+/** A job's editable fields, without the cross-field rules (zod cannot make a refined object partial). */
+export const JobFields = z.object({
   reference: z.string().trim().min(1, 'is required').max(40),
   customerName: z.string().trim().min(1, 'is required').max(200),
   customerPhone: z.string().trim().max(40).optional(),
@@ -26,14 +27,25 @@ export const CreateJob = z.object({
   sitePostcode: UkPostcode,
   accessNotes: z.string().trim().max(2000).optional(),
   unitId: Id.optional(),
-  installationType: z.enum(INSTALLATION_TYPES),
+  installationType: z.enum(INSTALLATION_TYPES, { message: 'pick an installation type' }),
   promisedFrom: IsoDate.optional(),
   promisedTo: IsoDate.optional(),
   orderedOn: IsoDate.optional(),
-}).refine((j) => !j.promisedFrom || !j.promisedTo || j.promisedTo >= j.promisedFrom, {
-  path: ['promisedTo'], message: 'must be on or after the start of the promised window',
 });
+
+const promisedInOrder = (j: { promisedFrom?: string | undefined; promisedTo?: string | undefined }) =>
+  !j.promisedFrom || !j.promisedTo || j.promisedTo >= j.promisedFrom;
+const promisedRule = { path: ['promisedTo'], message: 'must be on or after the start of the promised window' };
+
+export const CreateJob = JobFields.refine(promisedInOrder, promisedRule);
 export type CreateJob = z.infer<typeof CreateJob>;
+
+/** PATCH /api/jobs/:id: any of the job's fields, and the version the change is based on. */
+export const UpdateJob = JobFields.partial().extend({
+  version: z.number().int().min(1),
+  status: z.enum(JOB_STATUSES).optional(),
+}).refine(promisedInOrder, promisedRule);
+export type UpdateJob = z.infer<typeof UpdateJob>;
 
 export const JobSummary = z.object({
   id: Id,

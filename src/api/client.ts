@@ -12,8 +12,10 @@ export class ApiError extends Error {
   readonly detail: string | undefined;
   readonly type: string | undefined;
   readonly errors: FieldProblem[];
+  /** The whole problem document, for members beyond the standard ones (violations, current, code). */
+  readonly problem: Record<string, unknown>;
 
-  constructor(init: { status: number; title: string; detail?: string; type?: string; errors?: FieldProblem[] }) {
+  constructor(init: { status: number; title: string; detail?: string; type?: string; errors?: FieldProblem[]; problem?: Record<string, unknown> }) {
     super(init.detail ?? init.title);
     this.name = 'ApiError';
     this.status = init.status;
@@ -21,6 +23,7 @@ export class ApiError extends Error {
     this.detail = init.detail;
     this.type = init.type;
     this.errors = init.errors ?? [];
+    this.problem = init.problem ?? {};
   }
 }
 
@@ -69,7 +72,7 @@ export function problemToError(status: number, body: unknown): ApiError {
   const title = typeof body.title === 'string' && body.title.trim() ? body.title : fallback;
   const detail = typeof body.detail === 'string' && body.detail.trim() ? body.detail : undefined;
   const type = typeof body.type === 'string' ? body.type : undefined;
-  return new ApiError({ status, title, detail, type, errors: readFieldProblems(body.errors) });
+  return new ApiError({ status, title, detail, type, errors: readFieldProblems(body.errors), problem: body });
 }
 
 export interface RequestOptions {

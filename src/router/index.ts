@@ -23,6 +23,11 @@ export const routes: RouteRecordRaw[] = [
   { path: '/firm', name: 'firm', component: () => import('@/views/FirmView.vue'), meta: { roles: rolesWith('firm:manage'), title: 'Firm' } },
   { path: '/my-work', name: 'my-work', component: () => import('@/views/MyWorkView.vue'), meta: { roles: rolesWith('my-work:read'), title: 'My work' } },
   { path: '/slots', name: 'slots', component: () => import('@/views/SlotsView.vue'), meta: { roles: rolesWith('slots:read'), title: 'Our slots' } },
+  { path: '/jobs/new', name: 'job-new', component: () => import('@/views/JobFormView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'New job' } },
+  { path: '/jobs/:id(\\d+)', name: 'job', component: () => import('@/views/JobDetailView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Job' } },
+  { path: '/jobs/:id(\\d+)/edit', name: 'job-edit', component: () => import('@/views/JobFormView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'Edit job' } },
+  { path: '/jobs/:id(\\d+)/survey', name: 'job-survey', component: () => import('@/views/SurveyView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'Site survey' } },
+  { path: '/day-sheets', name: 'day-sheets', component: () => import('@/views/DaySheetView.vue'), meta: { roles: rolesWith('bookings:read'), title: 'Day sheets' } },
   { path: '/:pathMatch(.*)*', name: 'not-found', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Page not found' } },
 ];
 

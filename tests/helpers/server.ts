@@ -24,7 +24,7 @@ export function testConfig(overrides: Partial<Record<string, string>> = {}): Con
   if (!process.env.DATABASE_URL || !process.env.FAKE_OAUTH_URL) {
     throw new Error('Server tests need PostgreSQL, Redis and the fake sign-in provider: run them with `npm test`.');
   }
-  return loadConfig({ ...process.env, LOG_LEVEL: 'silent', SIGN_IN_RATE_LIMIT: '10000', ...overrides });
+  return loadConfig({ ...process.env, LOG_LEVEL: process.env.TEST_LOG_LEVEL ?? 'silent', SIGN_IN_RATE_LIMIT: '10000', ...overrides });
 }
 
 /** A migrated database holding exactly the demo scenario, and an app over it. */
@@ -34,7 +34,7 @@ export async function startTestApp(overrides: Partial<Record<string, string>> = 
   await knex.migrate.latest(migrationConfig);
   await knex.raw(`TRUNCATE ${TABLES.join(', ')} RESTART IDENTITY CASCADE`);
   await seedDemo(knex, { today: TEST_TODAY });
-  const waterline = createApp({ config, knex });
+  const waterline = createApp({ config, knex, now: () => TEST_TODAY.getTime() });
   return {
     config, knex, waterline,
     async close() { await waterline.close(); await knex.destroy(); },

@@ -10,9 +10,9 @@ let crane: string;
 beforeAll(async () => {
   ctx = await startTestApp();
   scheduler = await signIn(ctx, account('scheduler').email);
-  // Two unbooked jobs from the tray (TW-2421, TW-2422) both need a crane.
-  stageA = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2421' }), kind: 'handover' });
-  stageB = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2422' }), kind: 'handover' });
+  // Two unbooked in-ground jobs from the tray (TW-2422, TW-2423) both need a crane for the lift.
+  stageA = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2422' }), kind: 'lift' });
+  stageB = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2423' }), kind: 'lift' });
   crane = await idOf(ctx.knex, 'resources', { name: '60 t mobile crane' });
 });
 afterAll(async () => { await ctx.close(); });
@@ -26,7 +26,7 @@ describe('two schedulers confirming the same crane at the same time', () => {
       scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf).send({ stageId: stageA, resourceId: crane, state: 'confirmed', ...slot }),
       other.post('/api/bookings').set('X-CSRF-Token', other.csrf).send({ stageId: stageB, resourceId: crane, state: 'confirmed', ...slot }),
     ]);
-    expect([a.status, b.status].sort()).toEqual([201, 409]);
+    expect([a.status, b.status].sort(), JSON.stringify([a.body, b.body])).toEqual([201, 409]);
     const refused = a.status === 409 ? a : b;
     expect(refused.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(refused.body).toMatchObject({ status: 409, code: 'double-booked' });
@@ -34,21 +34,31 @@ describe('two schedulers confirming the same crane at the same time', () => {
     expect(rows).toHaveLength(1);
   });
 
-  it('still allows pencilled bookings to overlap (they are only plans)', async () => {
+  it("refuses a pencilled booking over the confirmed one with the engine's reason (422)", async () => {
+    const stage = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2420' }), kind: 'lift' });
     const res = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
-      .send({ stageId: await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2423' }), kind: 'handover' }), resourceId: crane, state: 'pencilled', ...slot });
-    expect(res.status).toBe(201);
-    expect(res.body.state).toBe('pencilled');
+      .send({ stageId: stage, resourceId: crane, state: 'pencilled', ...slot }).expect(422);
+    expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
+    expect(res.body.violations.map((v: { kind: string }) => v.kind)).toContain('clash');
+    expect(await ctx.knex('bookings').where({ stage_id: stage })).toEqual([]);
   });
 });
 
 describe('moving a booking', () => {
+  let handoverA: string;
+  let handoverB: string;
+  beforeAll(async () => {
+    handoverA = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2417' }), kind: 'handover' });
+    handoverB = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2418' }), kind: 'handover' });
+  });
+
   it('saves with the next version and writes the audit log', async () => {
-    const created = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
-      .send({ stageId: stageA, resourceId: await idOf(ctx.knex, 'resources', { name: 'Crew Otter' }), startsAt: '2026-10-07T08:00:00Z', endsAt: '2026-10-07T09:00:00Z' }).expect(201);
+    const res = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
+      .send({ stageId: handoverA, resourceId: await idOf(ctx.knex, 'resources', { name: 'Crew Otter' }), startsAt: '2026-10-07T08:00:00Z', endsAt: '2026-10-07T09:00:00Z' }).expect(201);
+    const created = { body: res.body.bookings[0] };
     const moved = await scheduler.patch(`/api/bookings/${created.body.id}`).set('X-CSRF-Token', scheduler.csrf)
       .send({ version: 1, startsAt: '2026-10-08T08:00:00Z', endsAt: '2026-10-08T09:00:00Z' }).expect(200);
-    expect(moved.body).toMatchObject({ version: 2, startsAt: '2026-10-08T08:00:00.000Z', endsAt: '2026-10-08T09:00:00.000Z', jobReference: 'TW-2421' });
+    expect(moved.body.bookings[0]).toMatchObject({ version: 2, startsAt: '2026-10-08T08:00:00.000Z', endsAt: '2026-10-08T09:00:00.000Z', jobReference: 'TW-2417' });
     const audit = await ctx.knex('audit_log').where({ entity: 'booking', entity_id: created.body.id }).orderBy('id');
     expect(audit.map((a) => a.action)).toEqual(['create', 'update']);
     expect(audit[1].before.startsAt).toBe('2026-10-07T08:00:00.000Z');
@@ -57,8 +67,9 @@ describe('moving a booking', () => {
   });
 
   it('refuses a change based on an old version (409) and leaves the newer one in place', async () => {
-    const created = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
-      .send({ stageId: stageB, resourceId: await idOf(ctx.knex, 'resources', { name: 'Crew Kestrel' }), startsAt: '2026-10-09T08:00:00Z', endsAt: '2026-10-09T09:00:00Z' }).expect(201);
+    const res = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
+      .send({ stageId: handoverB, resourceId: await idOf(ctx.knex, 'resources', { name: 'Crew Kestrel' }), startsAt: '2026-10-09T08:00:00Z', endsAt: '2026-10-09T09:00:00Z' }).expect(201);
+    const created = { body: res.body.bookings[0] };
     await scheduler.patch(`/api/bookings/${created.body.id}`).set('X-CSRF-Token', scheduler.csrf)
       .send({ version: 1, startsAt: '2026-10-09T10:00:00Z', endsAt: '2026-10-09T11:00:00Z' }).expect(200);
     const stale = await scheduler.patch(`/api/bookings/${created.body.id}`).set('X-CSRF-Token', scheduler.csrf)

@@ -41,7 +41,7 @@ describe('the demo scenario', () => {
   });
 
   it('spreads the work over the coming six weeks', async () => {
-    const span = await ctx.knex('bookings').min('starts_at as first').max('ends_at as last').first();
+    const span = (await ctx.knex('bookings').min('starts_at as first').max('ends_at as last').first())!;
     const weeks = (new Date(span.last).getTime() - TEST_TODAY.getTime()) / (7 * 86_400_000);
     expect(weeks).toBeGreaterThan(4);
     expect(weeks).toBeLessThan(9);

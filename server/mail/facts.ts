@@ -1,0 +1,84 @@
+import type { Knex } from 'knex';
+
+/**
+ * Everything an e-mail about one booking says, read fresh when it is sent (the outbox row holds ids
+ * only). The worker acts for no user: these reads are the system's, not scoped to an actor.
+ */
+export interface BookingFacts {
+  booking: { id: string; version: number; state: string; startsAt: Date; endsAt: Date };
+  stage: { id: string; kind: string; name: string; notes: string | null };
+  job: {
+    id: string; reference: string; siteAddress: string; siteTown: string; sitePostcode: string; accessNotes: string | null;
+    customerName: string; customerEmail: string | null;
+  };
+  unit: { model: string; lengthMm: number; widthMm: number; heightMm: number; dryWeightKg: number } | null;
+  installer: { id: string; name: string; phone: string | null; email: string | null; timeZone: string };
+  resource: { id: string; name: string; kind: string; firmId: string };
+  partner: { id: string; name: string; email: string | null };
+  /** The partner firm's booking address and its coordinators (members with the partner role). */
+  recipients: string[];
+}
+
+/** The booking as the audit log kept it when it was deleted. */
+export interface BookingSnapshot { id: string; version: number; state: string; startsAt: string; endsAt: string; resourceId: string; stageId: string }
+
+export async function loadBookingFacts(knex: Knex, bookingId: string, resourceId?: string, snapshot?: BookingSnapshot): Promise<BookingFacts | null> {
+  const live = await knex('bookings').where('id', bookingId).first('id');
+  const base = live
+    ? knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').where('b.id', bookingId)
+      .select('b.id', 'b.version', 'b.state', 'b.starts_at', 'b.ends_at', 'b.resource_id')
+    : snapshot
+      ? knex('stages as s').where('s.id', snapshot.stageId)
+        .select(knex.raw('?::bigint as id, ?::int as version, ?::text as state, ?::timestamptz as starts_at, ?::timestamptz as ends_at, ?::bigint as resource_id',
+          [snapshot.id, snapshot.version, snapshot.state, snapshot.startsAt, snapshot.endsAt, snapshot.resourceId]))
+      : null;
+  if (!base) return null;
+  const row = await base
+    .join('jobs as j', 'j.id', 's.job_id')
+    .join('firms as i', 'i.id', 'j.firm_id')
+    .leftJoin('units as u', 'u.id', 'j.unit_id')
+    .first(
+      's.id as stage_id', 's.kind as stage_kind', 's.name as stage_name', 's.notes as stage_notes',
+      'j.id as job_id', 'j.reference', 'j.site_address', 'j.site_town', 'j.site_postcode', 'j.access_notes',
+      'j.customer_name', 'j.customer_email',
+      'u.model as unit_model', 'u.length_mm', 'u.width_mm', 'u.height_mm', 'u.dry_weight_kg',
+      'i.id as installer_id', 'i.name as installer_name', 'i.phone as installer_phone', 'i.email as installer_email', 'i.time_zone',
+    );
+  if (!row) return null;
+  // A cancellation goes to the resource the booking was on, which may no longer be its resource.
+  const resource = await knex('resources as r').join('firms as f', 'f.id', 'r.firm_id')
+    .where('r.id', resourceId ?? row.resourceId)
+    .first('r.id', 'r.name', 'r.kind', 'r.firm_id', 'f.name as firm_name', 'f.email as firm_email');
+  if (!resource) return null;
+  const coordinators: string[] = await knex('memberships as m').join('users as u', 'u.id', 'm.user_id')
+    .where({ 'm.firm_id': resource.firmId, 'm.role': 'partner' }).orderBy('u.email').pluck('u.email');
+  const recipients = [...new Set([resource.firmEmail, ...coordinators].filter((e): e is string => Boolean(e)).map((e) => e.toLowerCase()))];
+  return {
+    booking: { id: String(row.id), version: row.version, state: row.state, startsAt: row.startsAt, endsAt: row.endsAt },
+    stage: { id: String(row.stageId), kind: row.stageKind, name: row.stageName, notes: row.stageNotes },
+    job: {
+      id: String(row.jobId), reference: row.reference, siteAddress: row.siteAddress, siteTown: row.siteTown, sitePostcode: row.sitePostcode,
+      accessNotes: row.accessNotes, customerName: row.customerName, customerEmail: row.customerEmail,
+    },
+    unit: row.unitModel ? { model: row.unitModel, lengthMm: row.lengthMm, widthMm: row.widthMm, heightMm: row.heightMm, dryWeightKg: row.dryWeightKg } : null,
+    installer: { id: String(row.installerId), name: row.installerName, phone: row.installerPhone, email: row.installerEmail, timeZone: row.timeZone },
+    resource: { id: String(resource.id), name: resource.name, kind: resource.kind, firmId: String(resource.firmId) },
+    partner: { id: String(resource.firmId), name: resource.firmName, email: resource.firmEmail },
+    recipients,
+  };
+}
+
+/** "Tuesday 6 October 2026", "08:00–12:00" in the installer firm's time zone. */
+export function describeWindow(startsAt: Date, endsAt: Date, timeZone: string): { date: string; window: string; zone: string } {
+  const day = new Intl.DateTimeFormat('en-GB', { timeZone, weekday: 'long', day: 'numeric', month: 'long', year: 'numeric' });
+  const time = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
+  const zoneName = new Intl.DateTimeFormat('en-GB', { timeZone, timeZoneName: 'short' }).formatToParts(startsAt)
+    .find((p) => p.type === 'timeZoneName')?.value ?? timeZone;
+  const dayOf = (d: Date) => day.format(d).replace(',', '');
+  const sameDay = dayOf(startsAt) === dayOf(endsAt);
+  return {
+    date: sameDay ? dayOf(startsAt) : `${dayOf(startsAt)} to ${dayOf(endsAt)}`,
+    window: sameDay ? `${time.format(startsAt)}–${time.format(endsAt)}` : `${time.format(startsAt)} on the first day to ${time.format(endsAt)} on the last`,
+    zone: `${timeZone} (${zoneName})`,
+  };
+}

@@ -1,0 +1,90 @@
+import type { Knex } from 'knex';
+import { reachOf, type Actor } from '../services/actor.ts';
+import { ScopedModel, visibleJobIds, type AnyQuery } from './base.ts';
+import type { InstallTemplate } from '../../shared/templates/types.ts';
+import type { QuantitySettingsPatch } from '../../shared/schemas/firm-settings.ts';
+
+const knexOf = (q: AnyQuery): Knex => q.modelClass().knex();
+
+/** The site survey of a job: visible to whoever sees the job. */
+export class Survey extends ScopedModel {
+  static override tableName = 'surveys';
+  id!: string;
+  jobId!: string;
+  accessWidthMm!: number;
+  accessHeightMm!: number | null;
+  steps!: number;
+  gates!: number;
+  overheadObstructions!: boolean;
+  overheadNotes!: string | null;
+  groundType!: string;
+  buriedServicesNotes!: string | null;
+  craneStandingPosition!: string | null;
+  craneDistanceToSetDownM!: number | null;
+  consumerUnitDistanceM!: number | null;
+  mainFuseAmps!: number | null;
+  drainage!: string | null;
+  craneRequired!: boolean | null;
+  excavatorSize!: '1.5t' | '3t' | '5t' | null;
+  notes!: string | null;
+  surveyedBy!: string | null;
+  surveyedAt!: Date;
+  version!: number;
+  updatedAt!: Date;
+  static override scope(q: AnyQuery, actor: Actor) {
+    q.whereIn('surveys.job_id', visibleJobIds(knexOf(q), actor));
+  }
+}
+
+/** A firm's edited stage template; only the installer office reads and edits its own. */
+export class StageTemplateRow extends ScopedModel {
+  static override tableName = 'stage_templates';
+  static override jsonAttributes = ['stages', 'links'];
+  id!: string;
+  firmId!: string;
+  installationType!: InstallTemplate['installationType'];
+  name!: string;
+  stages!: InstallTemplate['stages'];
+  links!: InstallTemplate['links'];
+  version!: number;
+  updatedBy!: string | null;
+  updatedAt!: Date;
+  static override scope(q: AnyQuery, actor: Actor) {
+    if (reachOf(actor) === 'installer-office') q.where('stage_templates.firm_id', actor.firmId);
+    else q.whereRaw('false');
+  }
+}
+
+/** A firm's own quantity figures over the defaults. */
+export class FirmSettings extends ScopedModel {
+  static override tableName = 'firm_settings';
+  static override idColumn = 'firm_id';
+  static override jsonAttributes = ['quantities'];
+  firmId!: string;
+  quantities!: QuantitySettingsPatch;
+  version!: number;
+  updatedAt!: Date;
+  static override scope(q: AnyQuery, actor: Actor) {
+    q.where('firm_settings.firm_id', actor.firmId);
+  }
+}
+
+/** A photo or document kept on a job. */
+export class JobFile extends ScopedModel {
+  static override tableName = 'job_files';
+  id!: string;
+  jobId!: string;
+  objectKey!: string;
+  thumbnailKey!: string | null;
+  name!: string;
+  contentType!: string;
+  sizeBytes!: number;
+  uploadedBy!: string | null;
+  createdAt!: Date;
+  static override scope(q: AnyQuery, actor: Actor) {
+    q.whereIn('job_files.job_id', visibleJobIds(knexOf(q), actor));
+  }
+}
+
+/** This module's scoped models, for the test that checks each declares its scope. */
+export const JOB_RECORD_MODELS = [Survey, StageTemplateRow, FirmSettings, JobFile] as const;

@@ -1,0 +1,82 @@
+import { CAUTION_FOOTNOTE, cautionsFor } from '../mail/cautions.ts';
+import { describeWindow, type BookingFacts } from '../mail/facts.ts';
+import type { AnswerAction } from '../services/links.ts';
+import type { LinkRefusal } from '../services/links.ts';
+import { escapeHtml as e, page } from './page.ts';
+
+const ACTION_LABEL: Record<AnswerAction, { title: string; button: string }> = {
+  confirm: { title: 'Confirm this slot', button: 'Confirm' },
+  decline: { title: 'Decline this slot', button: 'Decline' },
+  propose: { title: 'Propose another time', button: 'Send my proposal' },
+};
+
+/** The slot as the partner needs it on the day. */
+export function slotDetails(f: BookingFacts): string {
+  const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
+  const cautions = cautionsFor(f.stage.kind);
+  return `<dl>
+<dt>Work</dt><dd>${e(f.stage.name)} for ${e(f.installer.name)} (job ${e(f.job.reference)})</dd>
+<dt>Booked</dt><dd>${e(f.resource.name)}</dd>
+<dt>When</dt><dd>${e(when.date)}<br>${e(when.window)} (${e(when.zone)})</dd>
+<dt>Site</dt><dd>${e(f.job.siteAddress)}, ${e(f.job.siteTown)} ${e(f.job.sitePostcode)}</dd>
+<dt>Access and parking</dt><dd>${e(f.job.accessNotes ?? 'Ask the installer before you travel.')}</dd>
+<dt>On the day, call</dt><dd>${e(f.installer.name)}: ${e(f.installer.phone ?? '')}</dd>
+</dl>${cautions.length ? `<div class="caution"><strong>Safety on this job</strong><ul>${cautions.map((c) => `<li>${e(c)}</li>`).join('')}</ul><strong>${e(CAUTION_FOOTNOTE)}</strong></div>` : ''}`;
+}
+
+/** Local date and times of the slot, to pre-fill the proposal form. */
+function localParts(d: Date, timeZone: string): { date: string; time: string } {
+  const parts = Object.fromEntries(new Intl.DateTimeFormat('en-GB', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' })
+    .formatToParts(d).map((p) => [p.type, p.value]));
+  return { date: `${parts.year}-${parts.month}-${parts.day}`, time: `${parts.hour}:${parts.minute}` };
+}
+
+/** GET /answer/:token: shows the slot and one button. Nothing changes until the form is sent. */
+export function answerForm(f: BookingFacts, action: AnswerAction, formAction: string, error?: string): string {
+  const label = ACTION_LABEL[action];
+  const start = localParts(f.booking.startsAt, f.installer.timeZone);
+  const end = localParts(f.booking.endsAt, f.installer.timeZone);
+  const fields = action === 'propose' ? `
+<p>Times are in ${e(f.installer.timeZone)}, the installer's time zone.</p>
+<label for="date">Date</label><input id="date" name="date" type="date" required value="${e(start.date)}">
+<label for="start">From</label><input id="start" name="start" type="time" required value="${e(start.time)}">
+<label for="endDate">Until (date)</label><input id="endDate" name="endDate" type="date" value="${e(end.date)}">
+<label for="end">Until (time)</label><input id="end" name="end" type="time" required value="${e(end.time)}">` : '';
+  return page(label.title, `${error ? `<p role="alert"><strong>${e(error)}</strong></p>` : ''}${slotDetails(f)}
+<form method="post" action="${e(formAction)}">${fields}<button type="submit">${e(label.button)}</button></form>`);
+}
+
+export function answeredPage(f: BookingFacts, result: 'confirmed' | 'declined' | 'proposed'): string {
+  const text = {
+    confirmed: ['Thank you: the slot is confirmed', `${f.installer.name} can see your confirmation now.`],
+    declined: ['Thank you: the slot is declined', `${f.installer.name} can see your answer now and will find another slot.`],
+    proposed: ['Thank you: your proposal is sent', `${f.installer.name} will accept it or keep the original time; you will get an e-mail either way.`],
+  }[result];
+  return page(text[0]!, `<p>${e(text[1])}</p>${slotDetails(f)}`, 'ok');
+}
+
+export function stalePage(f: BookingFacts): string {
+  return page('This slot has changed', `<p>${e(f.installer.name)} changed this booking after the e-mail you used was sent, so its links no longer work.
+A newer e-mail has been sent to you; here is the slot as it is now:</p>${slotDetails(f)}`, 'warn');
+}
+
+export function closedPage(f: BookingFacts): string {
+  const state = { confirmed: 'confirmed', declined: 'declined', pencilled: 'withdrawn by the installer', on_site: 'under way', done: 'done', sent: 'waiting for an answer' }[f.booking.state] ?? f.booking.state;
+  return page('Already answered', `<p>This booking is ${e(state)}, so there is nothing to answer. Call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')} to change anything.</p>${slotDetails(f)}`, 'warn');
+}
+
+export function takenPage(f: BookingFacts): string {
+  return page('That time was taken meanwhile', `<p>${e(f.resource.name)} was confirmed for another job that overlaps this slot, so this one cannot be confirmed.
+Please decline it or propose another time from the e-mail, or call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')}.</p>${slotDetails(f)}`, 'refused');
+}
+
+export function refusalPage(reason: LinkRefusal | 'used' | 'gone'): string {
+  const text: Record<typeof reason, [string, string]> = {
+    tampered: ['This link is not valid', 'The link is incomplete or has been altered. Open it again from the e-mail, or copy the whole address.'],
+    expired: ['This link has expired', 'The slot this link was for is over or the link is too old. Ask the installer for a new request.'],
+    'wrong-purpose': ['This link is not valid here', 'The link was made for something else. Open it again from the e-mail.'],
+    used: ['This link has already been used', 'Each link in an e-mail works once. Your earlier answer stands; call the installer to change it.'],
+    gone: ['This booking no longer exists', 'The installer has removed this booking. Nothing more is needed from you.'],
+  };
+  return page(text[reason][0], `<p>${e(text[reason][1])}</p>`, 'refused');
+}

@@ -1,0 +1,136 @@
+import express, { type Request, type Response } from 'express';
+import type { Knex } from 'knex';
+import type { RouteTable } from './table.ts';
+import type { Config } from '../config.ts';
+import { LinkError, LinkSigner, type AnswerClaims, type InviteClaims, type LinkRefusal } from '../services/links.ts';
+import { ConfirmationsService } from '../services/confirmations.ts';
+import { InvitationsService, type InvitationView } from '../services/invitations.ts';
+import { FeedsService } from '../services/feeds.ts';
+import { loadBookingFacts } from '../mail/facts.ts';
+import { answerForm, answeredPage, closedPage, refusalPage, stalePage, takenPage } from '../pages/answers.ts';
+import { escapeHtml as e, page } from '../pages/page.ts';
+import { dayNumber, localToInstant } from '../../shared/scheduler/time-zone.ts';
+
+export interface AnswerRouteDeps { knex: Knex; config: Config }
+
+const formParser = express.urlencoded({ extended: false, limit: '4kb' });
+const parseForm = (req: Request, res: Response) => new Promise<void>((resolve, reject) => formParser(req, res, (err?: unknown) => (err ? reject(err) : resolve())));
+
+const STATUS: Record<LinkRefusal | 'used' | 'gone', number> = { tampered: 400, 'wrong-purpose': 400, expired: 410, used: 409, gone: 410 };
+
+/** 2026-10-06 + 08:30 in a zone → the instant, or null when the form's values are not a date and time. */
+function instantOf(date: unknown, time: unknown, timeZone: string): Date | null {
+  const d = typeof date === 'string' ? /^(\d{4})-(\d{2})-(\d{2})$/.exec(date) : null;
+  const t = typeof time === 'string' ? /^(\d{2}):(\d{2})$/.exec(time) : null;
+  if (!d || !t || Number(t[1]) > 23 || Number(t[2]) > 59) return null;
+  return new Date(localToInstant(timeZone, dayNumber(Number(d[1]), Number(d[2]), Number(d[3])), Number(t[1]) * 60 + Number(t[2])));
+}
+
+/**
+ * Public pages behind the links in e-mails, for people without a session. A GET only shows a page
+ * (mail scanners and link previews follow links); the page's form POSTs the one action the token
+ * names. These POSTs are exempt from the session CSRF check (middleware/csrf.ts): the signed,
+ * single-use token is the proof.
+ */
+export function answerRoutes(table: RouteTable, { knex, config }: AnswerRouteDeps): void {
+  const signer = new LinkSigner(config.LINK_SECRET);
+  const confirmations = new ConfirmationsService(knex);
+  const invitations = new InvitationsService(knex);
+  const feeds = new FeedsService(knex, config.PUBLIC_URL);
+
+  async function refuse(req: Request, res: Response, reason: LinkRefusal | 'used' | 'gone', jti?: string): Promise<void> {
+    const path = req.path.replace(/\/[^/]+$/, '/…');
+    req.log?.warn({ reason, jti, path }, 'link refused');
+    await knex('link_attempts').insert({ reason, path, jti: jti ?? null, ip: req.ip ?? null });
+    res.status(STATUS[reason]).type('html').send(refusalPage(reason));
+  }
+
+  async function claims(req: Request, res: Response, purpose: 'answer'): Promise<AnswerClaims | null>;
+  async function claims(req: Request, res: Response, purpose: 'invite'): Promise<InviteClaims | null>;
+  async function claims(req: Request, res: Response, purpose: 'answer' | 'invite'): Promise<AnswerClaims | InviteClaims | null> {
+    try {
+      return await signer.verify(String(req.params.token), purpose);
+    } catch (error) {
+      if (!(error instanceof LinkError)) throw error;
+      await refuse(req, res, error.reason, error.jti);
+      return null;
+    }
+  }
+
+  const noStore = (res: Response) => res.set('Cache-Control', 'no-store');
+
+  table.get('/answer/:token', 'public', async (req, res) => {
+    noStore(res);
+    const c = await claims(req, res, 'answer');
+    if (!c) return;
+    const facts = await loadBookingFacts(knex, c.bookingId);
+    if (!facts) return refuse(req, res, 'gone', c.jti);
+    if (await knex('link_uses').where('jti', c.jti).first()) return refuse(req, res, 'used', c.jti);
+    if (facts.booking.version !== c.version) { res.type('html').send(stalePage(facts)); return; }
+    const open = c.action === 'confirm' ? facts.booking.state === 'sent' : ['sent', 'confirmed'].includes(facts.booking.state);
+    res.type('html').send(open ? answerForm(facts, c.action, req.originalUrl) : closedPage(facts));
+  });
+
+  table.post('/answer/:token', 'public', async (req, res) => {
+    noStore(res);
+    const c = await claims(req, res, 'answer');
+    if (!c) return;
+    let proposal: { start: Date; end: Date } | undefined;
+    if (c.action === 'propose') {
+      await parseForm(req, res);
+      const facts = await loadBookingFacts(knex, c.bookingId);
+      if (!facts) return refuse(req, res, 'gone', c.jti);
+      const body = (req.body ?? {}) as Record<string, unknown>;
+      const start = instantOf(body.date, body.start, facts.installer.timeZone);
+      const end = instantOf(body.endDate || body.date, body.end, facts.installer.timeZone);
+      if (!start || !end || end <= start) {
+        res.status(400).type('html').send(answerForm(facts, 'propose', req.originalUrl, 'Give a date and a finishing time after the start.'));
+        return;
+      }
+      proposal = { start, end };
+    }
+    const outcome = await confirmations.answerByLink(c, proposal);
+    if (outcome.result === 'used' || outcome.result === 'gone') return refuse(req, res, outcome.result, c.jti);
+    const facts = (await loadBookingFacts(knex, c.bookingId))!;
+    switch (outcome.result) {
+      case 'stale': res.status(409).type('html').send(stalePage(facts)); return;
+      case 'closed': res.status(409).type('html').send(closedPage(facts)); return;
+      case 'taken': res.status(409).type('html').send(takenPage(facts)); return;
+      default:
+        req.log?.info({ bookingId: c.bookingId, version: c.version, result: outcome.result }, 'partner answered by link');
+        res.type('html').send(answeredPage(facts, outcome.result));
+    }
+  });
+
+  const invitationBody = (inv: InvitationView) => `<dl><dt>Firm</dt><dd>${e(inv.firmName)}</dd><dt>Role</dt><dd>${e(inv.role)}</dd>
+<dt>For</dt><dd>${e(inv.email)}</dd></dl>`;
+
+  table.get('/invite/:token', 'public', async (req, res) => {
+    noStore(res);
+    const c = await claims(req, res, 'invite');
+    if (!c) return;
+    const inv = await invitations.peek(c);
+    if (!inv) return refuse(req, res, 'gone', c.jti);
+    if (inv.acceptedAt || await knex('link_uses').where('jti', c.jti).first()) return refuse(req, res, 'used', c.jti);
+    res.type('html').send(page(`Join ${inv.firmName} on Waterline`, `${invitationBody(inv)}
+<form method="post" action="${e(req.originalUrl)}"><button type="submit">Accept the invitation</button></form>`));
+  });
+
+  table.post('/invite/:token', 'public', async (req, res) => {
+    noStore(res);
+    const c = await claims(req, res, 'invite');
+    if (!c) return;
+    const outcome = await invitations.accept(c);
+    if (outcome.result === 'used' || outcome.result === 'gone' || outcome.result === 'expired') return refuse(req, res, outcome.result, c.jti);
+    res.type('html').send(page(outcome.result === 'accepted' ? 'Invitation accepted' : 'You are already a member', `${invitationBody(outcome.invitation)}
+<p>Now sign in with Google using <strong>${e(outcome.invitation.email)}</strong>.</p>
+<form method="get" action="/auth/google"><button type="submit">Sign in with Google</button></form>`, 'ok'));
+  });
+
+  // A calendar app polls this; the token in the path is the whole credential (see FeedsService).
+  table.get('/feeds/:token.ics', 'public', async (req, res) => {
+    const body = await feeds.render(String(req.params.token));
+    if (!body) { res.status(404).type('text').send('No such feed'); return; }
+    res.set('Cache-Control', 'private, max-age=300').type('text/calendar; charset=utf-8').send(body);
+  });
+}

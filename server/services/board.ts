@@ -1,0 +1,157 @@
+import type { Knex } from 'knex';
+import type { BoardBooking, BoardData, BoardJob, BoardResource, BoardStage } from '../../shared/board-data.ts';
+import { ELSEWHERE_JOB_ID, elsewhereStageId } from '../../shared/board-data.ts';
+import type { Dependency, HirePeriod, LeadTimeRule, WorkingCalendar } from '../../shared/scheduler/index.ts';
+import { Booking, Calendar, CalendarException, Dependency as DependencyModel, HirePeriod as HireModel, Job, LeadTimeRule as LeadModel, Resource, Stage } from '../models/index.ts';
+import { reachOf, type Actor } from './actor.ts';
+import { scoped } from './scope.ts';
+
+const OPEN_JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress'];
+
+export interface BoardQuery {
+  from: number;
+  to: number;
+  /** Jobs to include whatever the range (the job being written, its dependents). */
+  jobIds?: string[];
+  now: number;
+}
+
+/** date-holidays region from the stored form, e.g. GB-ENG → { country: 'GB', state: 'ENG' }. */
+export function holidayRegionOf(code: string | null | undefined): WorkingCalendar['holidayRegion'] {
+  if (!code) return null;
+  const [country, state] = code.split('-');
+  return country ? { country, ...(state ? { state } : {}) } : null;
+}
+
+function weeklyFromJson(json: Record<string, [number, number][]>): WorkingCalendar['weekly'] {
+  return Array.from({ length: 7 }, (_, d) => (json[String(d)] ?? []).map(([a, b]) => [a, b] as const));
+}
+
+type ResourceRow = Resource & { firmName: string; firmKind: string; timeZone: string; holidayRegion: string };
+
+/**
+ * Loads what the board and the write checks need from the database, scoped to the actor: the
+ * resources they may see, the bookings in the range, the jobs, stages and dependencies behind them,
+ * calendars with closures and absences, hire periods and lead-time rules. Another installer's
+ * booking of a shared partner resource comes only as an anonymous "busy elsewhere" block.
+ */
+export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, query: BoardQuery): Promise<BoardData> {
+  const trx = knex.isTransaction ? (knex as Knex.Transaction) : undefined;
+  const from = new Date(query.from);
+  const to = new Date(query.to);
+  const reach = reachOf(actor);
+
+  const resources = await scoped(Resource, actor, trx).where('resources.active', true)
+    .join('firms', 'firms.id', 'resources.firm_id')
+    .select('resources.*', 'firms.name as firmName', 'firms.kind as firmKind', 'firms.time_zone as timeZone', 'firms.holiday_region as holidayRegion')
+    .orderBy(['resources.id']) as ResourceRow[];
+  const resourceIds = resources.map((r) => r.id);
+  const firmIds = [...new Set(resources.map((r) => r.firmId))];
+
+  const [members, calendarRows, exceptions, windowBookings] = await Promise.all([
+    knex('crew_members').whereIn('crew_id', resourceIds).select('crew_id as crewId', 'person_id as personId') as Promise<{ crewId: string; personId: string }[]>,
+    Calendar.query(trx).whereIn('firm_id', firmIds).orderBy('id'),
+    scoped(CalendarException, actor, trx).where('ends_at', '>', new Date(query.from - 30 * 86_400_000)).where('starts_at', '<', new Date(query.to + 60 * 86_400_000)),
+    scoped(Booking, actor, trx).where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from),
+  ]);
+
+  // Jobs: those with work in the range, the ones asked for, and (for the office) every open job
+  // that still has stages waiting in the tray.
+  const windowJobIds = (await knex('stages').whereIn('id', windowBookings.map((b) => b.stageId)).distinct().pluck('job_id')).map(String);
+  const jobQuery = scoped(Job, actor, trx).where((w) => {
+    w.whereIn('jobs.id', [...windowJobIds, ...(query.jobIds ?? [])]);
+    if (reach === 'installer-office') {
+      w.orWhereRaw(`jobs.status = ANY(?) AND EXISTS (SELECT 1 FROM stages s WHERE s.job_id = jobs.id
+        AND NOT EXISTS (SELECT 1 FROM bookings b WHERE b.stage_id = s.id AND b.state <> 'declined'))`, [OPEN_JOB_STATUSES]);
+    }
+  });
+  const jobs = await jobQuery;
+  const jobIds = jobs.map((j) => j.id);
+  const stages = await scoped(Stage, actor, trx).whereIn('stages.job_id', jobIds).orderBy(['stages.job_id', 'stages.sequence']);
+  const stageIds = stages.map((s) => s.id);
+  const [deps, jobBookings, hires, rules] = await Promise.all([
+    scoped(DependencyModel, actor, trx).whereIn('dependencies.from_stage_id', stageIds),
+    scoped(Booking, actor, trx).whereIn('bookings.stage_id', stageIds),
+    scoped(HireModel, actor, trx).whereIn('hire_periods.resource_id', resourceIds),
+    reach === 'installer-office' ? scoped(LeadModel, actor, trx) : Promise.resolve([] as LeadModel[]),
+  ]);
+
+  const visibleBookings = new Map<string, Booking>();
+  for (const b of [...windowBookings, ...jobBookings]) visibleBookings.set(b.id, b);
+  // Bookings on visible resources by stages we may not see (another installer's, on a shared
+  // partner): they block the slot, nothing more is told.
+  const partnerResourceIds = resources.filter((r) => r.firmId !== actor.firmId).map((r) => r.id);
+  const elsewhere = reach === 'installer-office' && partnerResourceIds.length
+    ? await knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').join('jobs as j', 'j.id', 's.job_id')
+      .whereIn('b.resource_id', partnerResourceIds).whereNot('j.firm_id', actor.firmId).whereNot('b.state', 'declined')
+      .where('b.starts_at', '<', to).where('b.ends_at', '>', from)
+      .select('b.id', 'b.resource_id as resourceId', 'b.starts_at as startsAt', 'b.ends_at as endsAt', 'b.state') as { id: string; resourceId: string; startsAt: Date; endsAt: Date; state: Booking['state'] }[]
+    : [];
+
+  const jobById = new Map(jobs.map((j) => [j.id, j]));
+  const stageById = new Map(stages.map((s) => [s.id, s]));
+
+  // Calendars: the firm's calendar as stored, plus one per resource with absences.
+  const firmOf = new Map(resources.map((r) => [r.firmId, r]));
+  const calendars: WorkingCalendar[] = [];
+  const closuresOf = (calendarId: string) => exceptions.filter((e) => e.calendarId === calendarId).map((e) => ({ start: e.startsAt.getTime(), end: e.endsAt.getTime() }));
+  const defaultCalendarOfFirm = new Map<string, string>();
+  for (const c of calendarRows) {
+    const firm = firmOf.get(c.firmId);
+    if (!firm) continue;
+    if (!defaultCalendarOfFirm.has(c.firmId)) defaultCalendarOfFirm.set(c.firmId, c.id);
+    calendars.push({ id: c.id, timeZone: firm.timeZone, weekly: weeklyFromJson(c.weeklyHours), holidayRegion: holidayRegionOf(firm.holidayRegion), closures: closuresOf(c.id) });
+  }
+  const calendarById = new Map(calendars.map((c) => [c.id, c]));
+  const personIdsOf = new Map<string, string[]>();
+  for (const m of members) personIdsOf.set(String(m.crewId), [...(personIdsOf.get(String(m.crewId)) ?? []), String(m.personId)]);
+
+  const boardResources: BoardResource[] = resources.map((r) => {
+    let calendarId = r.calendarId ?? defaultCalendarOfFirm.get(r.firmId) ?? '';
+    const absences = exceptions.filter((e) => e.resourceId === r.id);
+    const base = calendarById.get(calendarId);
+    if (base && absences.length) {
+      const own = { ...base, id: `${calendarId}+r${r.id}`, closures: [...(base.closures ?? []), ...absences.map((e) => ({ start: e.startsAt.getTime(), end: e.endsAt.getTime() }))] };
+      calendars.push(own);
+      calendarId = own.id;
+    }
+    return {
+      id: r.id, firmId: r.firmId, category: r.category, kind: r.kind, calendarId, hired: r.ownership === 'hired',
+      personIds: personIdsOf.get(r.id) ?? [], name: r.name, firmName: r.firmName, firmKind: r.firmKind,
+      ownership: r.firmId === actor.firmId ? r.ownership : 'partner',
+    };
+  });
+
+  const bookings: BoardBooking[] = [...visibleBookings.values()].filter((b) => stageById.has(b.stageId)).map((b) => ({
+    id: b.id, stageId: b.stageId, resourceId: b.resourceId, start: b.startsAt.getTime(), end: b.endsAt.getTime(),
+    state: b.state, version: b.version, installerFirmId: jobById.get(stageById.get(b.stageId)!.jobId)!.firmId,
+  }));
+  const boardStages: BoardStage[] = stages.map((s) => ({
+    id: s.id, jobId: s.jobId, kind: s.kind, name: s.name, durationMinutes: s.durationMinutes,
+    requirements: s.requirements, cure: s.cure, sequence: s.sequence,
+  }));
+  const boardJobs: BoardJob[] = jobs.map((j) => ({
+    id: j.id, firmId: j.firmId, reference: j.reference, customerName: reach === 'installer-office' ? j.customerName : '',
+    siteTown: j.siteTown, status: j.status, installationType: j.installationType,
+    promisedBy: j.promisedTo ? Date.parse(`${j.promisedTo}T17:00:00Z`) : null,
+    orderedAt: j.orderedOn ? Date.parse(`${j.orderedOn}T09:00:00Z`) : null,
+  }));
+  if (elsewhere.length) {
+    boardJobs.push({ id: ELSEWHERE_JOB_ID, firmId: ELSEWHERE_JOB_ID, reference: '', customerName: '', siteTown: '', status: 'planned', installationType: 'slab', promisedBy: null, orderedAt: null });
+    for (const e of elsewhere) {
+      const stageId = elsewhereStageId(String(e.id));
+      boardStages.push({ id: stageId, jobId: ELSEWHERE_JOB_ID, kind: 'elsewhere', name: 'Busy elsewhere', durationMinutes: Math.max(1, Math.round((e.endsAt.getTime() - e.startsAt.getTime()) / 60_000)), requirements: [], cure: null, sequence: 0 });
+      bookings.push({ id: `elsewhere-${e.id}`, stageId, resourceId: String(e.resourceId), start: e.startsAt.getTime(), end: e.endsAt.getTime(), state: e.state, installerFirmId: ELSEWHERE_JOB_ID, elsewhere: true });
+    }
+  }
+  const dependencies: Dependency[] = deps.filter((d) => stageById.has(d.toStageId)).map((d) => ({
+    id: d.id, fromStageId: d.fromStageId, toStageId: d.toStageId, type: d.type, lag: { amount: Number(d.lagAmount), unit: d.lagUnit },
+  }));
+  const hirePeriods: HirePeriod[] = hires.map((h) => ({ id: h.id, resourceId: h.resourceId, onHire: h.onHireAt.getTime(), offHire: h.offHireAt.getTime(), dayRatePence: h.dayRatePence }));
+  const leadTimeRules: LeadTimeRule[] = rules.map((r) => ({
+    appliesTo: { ...(r.resourceKind ? { resourceKind: r.resourceKind } : {}), ...(r.stageKind ? { stageKind: r.stageKind } : {}) },
+    workingDays: r.workingDays, from: r.countedFrom,
+  }));
+
+  return { from: query.from, to: query.to, now: query.now, firmId: actor.firmId, resources: boardResources, calendars, jobs: boardJobs, stages: boardStages, dependencies, bookings, hirePeriods, leadTimeRules };
+}

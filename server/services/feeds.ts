@@ -1,0 +1,78 @@
+import { createHash, randomBytes } from 'node:crypto';
+import type { Knex } from 'knex';
+import { Resource } from '../models/index.ts';
+import { UnprocessableError } from '../errors.ts';
+import { personFeed } from '../mail/calendar.ts';
+import { CAUTION_FOOTNOTE, cautionsFor } from '../mail/cautions.ts';
+import { describeWindow, loadBookingFacts } from '../mail/facts.ts';
+import type { Actor } from './actor.ts';
+import { findVisible } from './scope.ts';
+
+const hashOf = (token: string) => createHash('sha256').update(token).digest('hex');
+const DAY = 86_400_000;
+
+/**
+ * Private iCalendar feeds, one per person: the URL holds a random token (only its hash is stored),
+ * so a calendar app can subscribe without signing in. Rotating makes a new URL and kills the old;
+ * revoking kills it outright.
+ */
+export class FeedsService {
+  constructor(private readonly knex: Knex, private readonly publicUrl: string) {}
+
+  private async person(actor: Actor, resourceId: string, trx: Knex.Transaction): Promise<Resource> {
+    const person = await findVisible(Resource, actor, resourceId, trx, 'person');
+    if (person.category !== 'person' || String(person.firmId) !== actor.firmId) {
+      throw new UnprocessableError('A feed belongs to one of your own people.', { code: 'not-a-person' });
+    }
+    return person;
+  }
+
+  async rotate(actor: Actor, resourceId: string): Promise<{ url: string; createdAt: string }> {
+    return this.knex.transaction(async (trx) => {
+      const person = await this.person(actor, resourceId, trx);
+      await trx('calendar_feeds').where({ resource_id: person.id }).whereNull('revoked_at').update({ revoked_at: new Date() });
+      const token = randomBytes(24).toString('base64url');
+      const [row] = await trx('calendar_feeds').insert({ resource_id: person.id, token_hash: hashOf(token), created_by: actor.userId }).returning('created_at');
+      return { url: `${this.publicUrl}/feeds/${token}.ics`, createdAt: row.createdAt.toISOString() };
+    });
+  }
+
+  async revoke(actor: Actor, resourceId: string): Promise<void> {
+    await this.knex.transaction(async (trx) => {
+      const person = await this.person(actor, resourceId, trx);
+      await trx('calendar_feeds').where({ resource_id: person.id }).whereNull('revoked_at').update({ revoked_at: new Date() });
+    });
+  }
+
+  /** The feed for a live token, or null (unknown and revoked tokens look the same). */
+  async render(token: string, now = new Date()): Promise<string | null> {
+    if (!/^[\w-]{20,64}$/.test(token)) return null;
+    const feed = await this.knex('calendar_feeds as f').join('resources as r', 'r.id', 'f.resource_id')
+      .where('f.token_hash', hashOf(token)).whereNull('f.revoked_at').first('r.id', 'r.name');
+    if (!feed) return null;
+    // The person's own bookings and their crews'; shown once sent to the firm.
+    const ids: string[] = await this.knex('bookings as b')
+      .where((w) => w.where('b.resource_id', feed.id)
+        .orWhereIn('b.resource_id', this.knex('crew_members').select('crew_id').where('person_id', feed.id)))
+      .whereIn('b.state', ['sent', 'confirmed', 'on_site', 'done'])
+      .where('b.ends_at', '>', new Date(now.getTime() - 60 * DAY)).where('b.starts_at', '<', new Date(now.getTime() + 400 * DAY))
+      .orderBy('b.starts_at').limit(1000).pluck('b.id');
+    const events = [];
+    for (const id of ids) {
+      const facts = await loadBookingFacts(this.knex, String(id));
+      if (!facts) continue;
+      const when = describeWindow(facts.booking.startsAt, facts.booking.endsAt, facts.installer.timeZone);
+      const cautions = cautionsFor(facts.stage.kind);
+      events.push({
+        facts,
+        description: [
+          `${facts.stage.name} for ${facts.installer.name} (job ${facts.job.reference})`, `${when.date}, ${when.window}`,
+          facts.booking.state === 'sent' ? 'Not yet confirmed.' : `State: ${facts.booking.state}.`,
+          `Access and parking: ${facts.job.accessNotes ?? 'ask the installer'}`, `On the day call ${facts.installer.name}: ${facts.installer.phone ?? ''}`,
+          ...(cautions.length ? ['', ...cautions.map((c) => `- ${c}`), CAUTION_FOOTNOTE] : []),
+        ].join('\n'),
+      });
+    }
+    return personFeed(`${feed.name} · Waterline`, events, now);
+  }
+}

@@ -1,0 +1,34 @@
+import type { Knex } from 'knex';
+import type { UpdateJob } from '../../shared/schemas/jobs.ts';
+import { Job, Unit } from '../models/index.ts';
+import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
+import type { Actor } from './actor.ts';
+import { scoped } from './scope.ts';
+import { recordChange } from './audit.ts';
+
+/** Editing a job's details, guarded by its version. */
+export class JobEditsService {
+  constructor(private readonly knex: Knex) {}
+
+  async update(actor: Actor, id: string, input: UpdateJob): Promise<Job> {
+    return this.knex.transaction(async (trx) => {
+      const before = await scoped(Job, actor, trx).findById(id).forUpdate();
+      if (!before) throw new NotFoundError('job');
+      if (before.version !== input.version) {
+        throw new ConflictError('Someone else changed this job since you loaded it.', { code: 'stale-version', current: before });
+      }
+      const { version: _version, ...changes } = input;
+      if (changes.unitId && !(await scoped(Unit, actor, trx).findById(changes.unitId))) {
+        throw new BadRequestError('The unit is not in your catalogue.', [{ field: 'unitId', message: 'is not a unit in your catalogue' }]);
+      }
+      const from = changes.promisedFrom ?? before.promisedFrom;
+      const to = changes.promisedTo ?? before.promisedTo;
+      if (from && to && to < from) {
+        throw new BadRequestError('The promised window ends before it starts.', [{ field: 'promisedTo', message: 'must be on or after the start of the promised window' }]);
+      }
+      const after = await Job.query(trx).patchAndFetchById(id, { ...changes, version: before.version + 1 } as Partial<Job>);
+      await recordChange(trx, actor, 'job', id, 'update', before, after);
+      return after;
+    });
+  }
+}

@@ -1,0 +1,79 @@
+import type { Knex } from 'knex';
+import { DEFAULT_TEMPLATES } from '../../shared/templates/defaults.ts';
+import { templateProblems } from '../../shared/templates/plan.ts';
+import type { InstallTemplate, InstallationType } from '../../shared/templates/types.ts';
+import { DEFAULT_QUANTITY_SETTINGS, SETTING_SOURCES, settingsWith, type QuantitySettings } from '../../shared/quantities/settings.ts';
+import type { PutTemplate } from '../../shared/schemas/templates.ts';
+import type { PutFirmSettings } from '../../shared/schemas/firm-settings.ts';
+import { INSTALLATION_TYPES } from '../../shared/schemas/jobs.ts';
+import { FirmSettings, StageTemplateRow } from '../models/job-records.ts';
+import { BadRequestError, ConflictError } from '../errors.ts';
+import type { Actor } from './actor.ts';
+import { scoped } from './scope.ts';
+import { recordChange } from './audit.ts';
+
+export interface TemplateView extends InstallTemplate { version: number; isDefault: boolean; updatedAt: string | null }
+
+function toView(row: StageTemplateRow | undefined, type: InstallationType): TemplateView {
+  if (!row) return { ...structuredClone(DEFAULT_TEMPLATES[type]), version: 0, isDefault: true, updatedAt: null };
+  return { installationType: type, name: row.name, stages: row.stages, links: row.links, version: row.version, isDefault: false, updatedAt: row.updatedAt.toISOString() };
+}
+
+export interface SettingsView { quantities: QuantitySettings; overrides: Partial<QuantitySettings>; defaults: QuantitySettings; sources: typeof SETTING_SOURCES; version: number }
+
+/** A firm's stage templates (its own edits over the built-in defaults) and its quantity settings. */
+export class TemplatesService {
+  constructor(private readonly knex: Knex) {}
+
+  async list(actor: Actor): Promise<TemplateView[]> {
+    const rows = await scoped(StageTemplateRow, actor);
+    return INSTALLATION_TYPES.map((t) => toView(rows.find((r) => r.installationType === t), t));
+  }
+
+  async get(actor: Actor, type: InstallationType, trx?: Knex.Transaction): Promise<TemplateView> {
+    return toView(await scoped(StageTemplateRow, actor, trx).findOne({ installationType: type }), type);
+  }
+
+  /** Saves the firm's template; a change based on an old version is refused (409). */
+  async put(actor: Actor, type: InstallationType, input: PutTemplate): Promise<TemplateView> {
+    const template: InstallTemplate = { installationType: type, name: input.name, stages: input.stages, links: input.links };
+    const problems = templateProblems(template);
+    if (problems.length) throw new BadRequestError('The template does not hold together.', problems.map((p) => ({ field: p.split(':')[0] ?? '(body)', message: p })));
+    return this.knex.transaction(async (trx) => {
+      const before = await scoped(StageTemplateRow, actor, trx).findOne({ installationType: type }).forUpdate();
+      const current = before?.version ?? 0;
+      if (current !== input.version) {
+        throw new ConflictError('Someone else changed this template since you loaded it.', { code: 'stale-version', current: toView(before, type) });
+      }
+      const values = { name: input.name, stages: input.stages, links: input.links, updatedBy: actor.userId, updatedAt: new Date() };
+      const after = before
+        ? await StageTemplateRow.query(trx).patchAndFetchById(before.id, { ...values, version: current + 1 } as Partial<StageTemplateRow>)
+        : await StageTemplateRow.query(trx).insertAndFetch({ ...values, firmId: actor.firmId, installationType: type, version: 1 } as Partial<StageTemplateRow>);
+      await recordChange(trx, actor, 'stage_template', after.id, before ? 'update' : 'create', before ?? null, after);
+      return toView(after, type);
+    });
+  }
+
+  async settings(actor: Actor, trx?: Knex.Transaction): Promise<SettingsView> {
+    const row = await scoped(FirmSettings, actor, trx).first();
+    const overrides = (row?.quantities ?? {}) as Partial<QuantitySettings>;
+    return { quantities: settingsWith(overrides), overrides, defaults: DEFAULT_QUANTITY_SETTINGS, sources: SETTING_SOURCES, version: row?.version ?? 0 };
+  }
+
+  /** Replaces the firm's overrides (left-out figures fall back to the defaults). */
+  async putSettings(actor: Actor, input: PutFirmSettings): Promise<SettingsView> {
+    return this.knex.transaction(async (trx) => {
+      const before = await scoped(FirmSettings, actor, trx).first().forUpdate();
+      if ((before?.version ?? 0) !== input.version) {
+        throw new ConflictError('Someone else changed these settings since you loaded them.', { code: 'stale-version', current: await this.settings(actor, trx) });
+      }
+      if (before) {
+        await FirmSettings.query(trx).patch({ quantities: input.quantities, version: before.version + 1, updatedAt: new Date() } as Partial<FirmSettings>).where('firm_id', actor.firmId);
+      } else {
+        await FirmSettings.query(trx).insert({ firmId: actor.firmId, quantities: input.quantities, version: 1 } as Partial<FirmSettings>);
+      }
+      await recordChange(trx, actor, 'firm_settings', actor.firmId, before ? 'update' : 'create', before?.quantities ?? null, input.quantities);
+      return this.settings(actor, trx);
+    });
+  }
+}

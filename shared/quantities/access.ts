@@ -1,0 +1,66 @@
+import { requireNumber, type Computation } from './types.ts';
+
+export interface AccessInputs {
+  unitWidthMm: number;
+  unitHeightMm: number;
+  unitDryWeightKg: number;
+  /** Narrowest width and height along the route from the road to the position. */
+  routeWidthMm: number;
+  /** null when nothing limits the height (open sky). */
+  routeHeightMm: number | null;
+  widthAllowanceMm: number;
+  dollyHeightMm: number;
+  uprightRaiseMm: number;
+  maxDollyDryWeightKg: number;
+}
+export type AccessWay = 'upright' | 'on_side' | 'crane';
+export interface AccessCheck {
+  way: AccessWay;
+  upright: { widthNeededMm: number; heightNeededMm: number; fits: boolean };
+  onSide: { widthNeededMm: number; heightNeededMm: number; fits: boolean; tooHeavy: boolean };
+  reason: string;
+}
+
+/**
+ * Whether a unit can go along the access route upright (on pallet trucks or skates), or on its side
+ * on a dolly; otherwise it needs a crane.
+ * Upright it needs width W + allowance and height H + raise; on its side its height H becomes the
+ * width (H + allowance) and its width W the height (W + dolly).
+ * @example
+ * accessCheck({ unitWidthMm: 2200, unitHeightMm: 900, unitDryWeightKg: 380, routeWidthMm: 1100, routeHeightMm: 2400,
+ *   widthAllowanceMm: 100, dollyHeightMm: 150, uprightRaiseMm: 100, maxDollyDryWeightKg: 600 }).result.way
+ * // 'on_side'  (900 + 100 = 1000 ≤ 1100 wide; 2200 + 150 = 2350 ≤ 2400 high)
+ */
+export function accessCheck(inputs: AccessInputs): Computation<AccessInputs, AccessCheck> {
+  const i = inputs;
+  requireNumber('unitWidthMm', i.unitWidthMm, 0, true);
+  requireNumber('unitHeightMm', i.unitHeightMm, 0, true);
+  requireNumber('routeWidthMm', i.routeWidthMm);
+  if (i.routeHeightMm !== null) requireNumber('routeHeightMm', i.routeHeightMm);
+  const heightOk = (needed: number) => i.routeHeightMm === null || needed <= i.routeHeightMm;
+  const uw = i.unitWidthMm + i.widthAllowanceMm;
+  const uh = i.unitHeightMm + i.uprightRaiseMm;
+  const upright = { widthNeededMm: uw, heightNeededMm: uh, fits: uw <= i.routeWidthMm && heightOk(uh) };
+  const sw = i.unitHeightMm + i.widthAllowanceMm;
+  const sh = i.unitWidthMm + i.dollyHeightMm;
+  const tooHeavy = i.unitDryWeightKg > i.maxDollyDryWeightKg;
+  const onSide = { widthNeededMm: sw, heightNeededMm: sh, fits: sw <= i.routeWidthMm && heightOk(sh) && !tooHeavy, tooHeavy };
+  const way: AccessWay = upright.fits ? 'upright' : onSide.fits ? 'on_side' : 'crane';
+  const h = i.routeHeightMm === null ? 'no height limit' : `${i.routeHeightMm} mm high`;
+  const reason = way === 'upright'
+    ? `Upright it needs ${uw} × ${uh} mm; the route is ${i.routeWidthMm} mm wide, ${h}.`
+    : way === 'on_side'
+      ? `Upright needs ${uw} mm of width; on its side on a dolly it needs ${sw} mm wide × ${sh} mm high, and the route is ${i.routeWidthMm} mm wide, ${h}.`
+      : tooHeavy && sw <= i.routeWidthMm && heightOk(sh)
+        ? `At ${i.unitDryWeightKg} kg dry it is over the ${i.maxDollyDryWeightKg} kg limit for a dolly; upright it needs ${uw} mm of width.`
+        : `Upright needs ${uw} × ${uh} mm and on its side ${sw} × ${sh} mm; the route is ${i.routeWidthMm} mm wide, ${h}.`;
+  return {
+    name: 'Access check',
+    inputs: { ...inputs },
+    formula: `upright: ${i.unitWidthMm} + ${i.widthAllowanceMm} = ${uw} mm wide, ${i.unitHeightMm} + ${i.uprightRaiseMm} = ${uh} mm high; `
+      + `on its side: ${i.unitHeightMm} + ${i.widthAllowanceMm} = ${sw} mm wide, ${i.unitWidthMm} + ${i.dollyHeightMm} = ${sh} mm high; route ${i.routeWidthMm} mm wide, ${h}`,
+    result: { way, upright, onSide, reason },
+    unit: '',
+    notes: ['Width allowance, dolly height, raise and the dolly weight limit: common practice, no source. Steps and slopes need a team lift plan.'],
+  };
+}

@@ -1,0 +1,151 @@
+import { compareBookings, resourceCalendarOf, type BoardIndex } from '../board-index.js';
+import { formatInstant } from '../format.js';
+import type { Booking, Violation } from '../types.js';
+import { capitalise, makeViolation, resourceLabel, stageLabel } from './violation.js';
+
+function ordered(a: Booking, b: Booking): [Booking, Booking] {
+  return compareBookings(a, b) <= 0 ? [a, b] : [b, a];
+}
+
+function overlapWords(index: BoardIndex, resourceId: string, a: Booking, b: Booking): { from: number; to: number; words: string } {
+  const tz = resourceCalendarOf(index, resourceId).timeZone;
+  const from = Math.max(a.start, b.start), to = Math.min(a.end, b.end);
+  return { from, to, words: `from ${formatInstant(from, tz)} to ${formatInstant(to, tz)}` };
+}
+
+/**
+ * Violations for two overlapping bookings of the same resource: a 'clash' (error) when one
+ * installer made both; two 'cross_firm' errors (one per side, each naming only its own stage and
+ * booking, "busy elsewhere") when different installer firms booked a partner's resource.
+ *
+ * @example
+ * resourcePairViolations(index, bookingA, bookingB)
+ */
+export function resourcePairViolations(index: BoardIndex, x: Booking, y: Booking): Violation[] {
+  const [a, b] = ordered(x, y);
+  const rid = a.resourceId;
+  const { from, to, words } = overlapWords(index, rid, a, b);
+  const who = capitalise(resourceLabel(index, rid));
+  if (a.installerFirmId === b.installerFirmId) {
+    const what = a.stageId === b.stageId
+      ? `twice for ${stageLabel(index, a.stageId)}`
+      : `for both ${stageLabel(index, a.stageId)} and ${stageLabel(index, b.stageId)}`;
+    return [makeViolation('clash', 'error', [a.stageId, b.stageId], [rid], [a.id, b.id], `${who} is booked ${what} ${words}`, { from, to })];
+  }
+  return [a, b].map((own) => makeViolation('cross_firm', 'error', [own.stageId], [rid], [own.id],
+    `${who} is busy elsewhere ${words}`, { from, to }));
+}
+
+/**
+ * Violations for one person booked on two resources (crews sharing a person, or a person booked
+ * on their own and with a crew) at overlapping times. Severity error.
+ *
+ * @example
+ * personPairViolation(index, 'p-sam', crewABooking, crewBBooking)
+ */
+export function personPairViolation(index: BoardIndex, personId: string, x: Booking, y: Booking): Violation {
+  const [a, b] = ordered(x, y);
+  const { from, to, words } = overlapWords(index, a.resourceId, a, b);
+  return makeViolation('person_double', 'error', [a.stageId, b.stageId], [a.resourceId, b.resourceId], [a.id, b.id],
+    `${personId} would be in two places ${words}: with ${resourceLabel(index, a.resourceId)} on ${stageLabel(index, a.stageId)} and with ${resourceLabel(index, b.resourceId)} on ${stageLabel(index, b.stageId)}`,
+    { personId, from, to });
+}
+
+/** Calls `visit` for every overlapping pair in a list sorted by start (sweep, O(n log n + pairs)). */
+function sweep(list: readonly Booking[], visit: (a: Booking, b: Booking) => void): void {
+  const active: Booking[] = [];
+  for (const b of list) {
+    let keep = 0;
+    for (let i = 0; i < active.length; i++) {
+      const a = active[i] as Booking;
+      if (a.end > b.start) {
+        active[keep++] = a;
+        visit(a, b);
+      }
+    }
+    active.length = keep;
+    active.push(b);
+  }
+}
+
+/**
+ * Every pair of overlapping active bookings on the same resource: group by resource, sort by
+ * start, sweep with the set of bookings still running. O(n log n + pairs), never pairwise.
+ *
+ * @example
+ * overlappingPairs(board.bookings).length // number of double bookings
+ */
+export function overlappingPairs(bookings: readonly Booking[]): [Booking, Booking][] {
+  const byResource = new Map<string, Booking[]>();
+  for (const b of bookings) {
+    if (b.state === 'declined') continue;
+    const l = byResource.get(b.resourceId);
+    if (l === undefined) byResource.set(b.resourceId, [b]); else l.push(b);
+  }
+  const out: [Booking, Booking][] = [];
+  for (const list of byResource.values()) {
+    list.sort(compareBookings);
+    sweep(list, (a, b) => { out.push([a, b]); });
+  }
+  return out;
+}
+
+/**
+ * All clash and cross-firm violations on the board: one sweep per resource over its bookings
+ * sorted by start.
+ *
+ * @example
+ * checkAllResourceClashes(index).filter(v => v.kind === 'clash')
+ */
+export function checkAllResourceClashes(index: BoardIndex): Violation[] {
+  const out: Violation[] = [];
+  for (const { list } of index.bookingsByResource.values()) {
+    sweep(list, (a, b) => { for (const v of resourcePairViolations(index, a, b)) out.push(v); });
+  }
+  return out;
+}
+
+/**
+ * All one-person-in-two-places violations: one sweep per person over the bookings of every
+ * resource they belong to.
+ *
+ * @example
+ * checkAllPersonDoubles(index)
+ */
+export function checkAllPersonDoubles(index: BoardIndex): Violation[] {
+  const out: Violation[] = [];
+  for (const [personId, rids] of index.resourcesOfPerson) {
+    if (rids.length < 2) continue;
+    const all: Booking[] = [];
+    for (const rid of rids) for (const b of index.bookingsByResource.get(rid)?.list ?? []) all.push(b);
+    all.sort(compareBookings);
+    sweep(all, (a, b) => { if (a.resourceId !== b.resourceId) out.push(personPairViolation(index, personId, a, b)); });
+  }
+  return out;
+}
+
+/**
+ * Bookings on a resource (from the index) overlapping [start, end), skipping one stage's own.
+ * Binary search on start, bounded below by the longest booking on that resource.
+ *
+ * @example
+ * overlappingOnResource(index, 'crane-1', start, end, 'lift-1')
+ */
+export function overlappingOnResource(index: BoardIndex, resourceId: string, start: number, end: number, skipStageId: string): Booking[] {
+  const rb = index.bookingsByResource.get(resourceId);
+  if (rb === undefined) return [];
+  const { list, maxLength } = rb;
+  const lowStart = start - maxLength;
+  let lo = 0, hi = list.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if ((list[mid] as Booking).start <= lowStart) lo = mid + 1; else hi = mid;
+  }
+  const out: Booking[] = [];
+  for (let i = lo; i < list.length; i++) {
+    const b = list[i] as Booking;
+    if (b.start >= end) break;
+    if (b.end > start && b.stageId !== skipStageId) out.push(b);
+  }
+  return out;
+}

@@ -1,0 +1,100 @@
+import { spanEnd, spanOf, spanStart, resourceCalendarOf, stageCalendarOf, type BoardIndex } from '../board-index.js';
+import { cureRelease, releaseInstant } from '../cure.js';
+import type { CureRule } from '../types.js';
+import { formatInstant } from '../format.js';
+import { applyLag, describeLag } from '../lag.js';
+import type { Booking, Dependency, Stage, Violation } from '../types.js';
+import { makeViolation, stageLabel, type BookingsOf } from './violation.js';
+
+const cureCache = new WeakMap<CureRule, number>();
+
+/** Elapsed days a cure rule needs, cached per rule object. */
+function cureDays(rule: CureRule): number {
+  let d = cureCache.get(rule);
+  if (d === undefined) { d = cureRelease(0, rule).elapsedDays; cureCache.set(rule, d); }
+  return d;
+}
+
+const WORDS = {
+  FS: ['start', 'finished', 'finishes'],
+  SS: ['start', 'started', 'starts'],
+  FF: ['finish', 'finished', 'finishes'],
+  SF: ['finish', 'started', 'starts'],
+} as const;
+
+/**
+ * Order, lag and cure checks of one dependency between two booked stages (severity error).
+ * Working lags count on the successor's calendar; the cure of a base stage counts from the end
+ * of the pour in elapsed time.
+ *
+ * @example
+ * checkDependency(index, { id: 'd1', fromStageId: 'base', toStageId: 'lift', type: 'FS', lag: { amount: 0, unit: 'working_hours' } }, bookingsOf)
+ */
+export function checkDependency(index: BoardIndex, dep: Dependency, bookingsOf: BookingsOf, out: Violation[] = []): Violation[] {
+  return checkDependencyBetween(index, dep, bookingsOf(dep.fromStageId), bookingsOf(dep.toStageId), out);
+}
+
+/**
+ * {@link checkDependency} given both stages' bookings; appends to `out` and returns it.
+ *
+ * @example
+ * checkDependencyBetween(index, dep, baseBookings, liftBookings, [])
+ */
+export function checkDependencyBetween(
+  index: BoardIndex, dep: Dependency, pb: readonly Booking[], sb: readonly Booking[], out: Violation[] = [],
+  from: Stage | undefined = index.stages.get(dep.fromStageId)?.stage,
+): Violation[] {
+  if (pb.length === 0 || sb.length === 0) return out;
+  const pStart = spanStart(pb), pEnd = spanEnd(pb), sStart = spanStart(sb), sEnd = spanEnd(sb);
+  const succCal = stageCalendarOf(index, dep.toStageId, sb);
+  const tz = succCal.timeZone;
+  const anchor = dep.type === 'FS' || dep.type === 'FF' ? pEnd : pStart;
+  const subject = dep.type === 'FS' || dep.type === 'SS' ? sStart : sEnd;
+  const bound = applyLag(succCal, anchor, dep.lag);
+  const [verb, done, does] = WORDS[dep.type];
+  if (subject < bound) {
+    const P = stageLabel(index, dep.fromStageId), S = stageLabel(index, dep.toStageId);
+    const ids = [dep.fromStageId, dep.toStageId];
+    const details: Record<string, unknown> = { dependencyId: dep.id, type: dep.type, earliest: bound, actual: subject };
+    if (dep.type === 'FS' || dep.type === 'SS') details.earliestStart = bound;
+    if (dep.lag.amount === 0) {
+      out.push(makeViolation('order', 'error', ids, [], [], `${S} can't ${verb} before ${P} has ${done} (${formatInstant(bound, tz)})`, details));
+    } else {
+      const rel = dep.lag.amount > 0 ? 'after' : 'before';
+      out.push(makeViolation('lag', 'error', ids, [], [],
+        `${S} can't ${verb} before ${formatInstant(bound, tz)}: it must wait ${describeLag(dep.lag)} ${rel} ${P} ${does}`, details));
+    }
+  }
+  const cure = from?.cure;
+  if (cure && sStart < releaseInstant(pEnd, cureDays(cure))) {
+    const ex = cureRelease(pEnd, cure);
+    if (sStart < ex.releaseAt) {
+      const S = stageLabel(index, dep.toStageId);
+      const pct = Math.round(cure.targetFraction * 100);
+      out.push(makeViolation('cure', 'error', [dep.fromStageId, dep.toStageId], [], [],
+        `${S} can't start before the base has cured: ${pct}% strength is reached at ${formatInstant(ex.releaseAt, tz)}`,
+        { dependencyId: dep.id, earliestStart: ex.releaseAt, ...ex }));
+    }
+  }
+  return out;
+}
+
+/**
+ * The earliest start the dependencies into a stage allow, given its duration would be counted on
+ * `resourceId`'s calendar (FS/SS bounds and cures; FF/SF are left to the full check).
+ *
+ * @example
+ * earliestStartFromPredecessors(index, 'lift-1', 'crane-1', bookingsOf) // epoch ms
+ */
+export function earliestStartFromPredecessors(index: BoardIndex, stageId: string, resourceId: string, bookingsOf: BookingsOf): number {
+  const cal = resourceCalendarOf(index, resourceId);
+  let t = Number.NEGATIVE_INFINITY;
+  for (const { dep } of index.stages.get(stageId)?.depsIn ?? []) {
+    const p = spanOf(bookingsOf(dep.fromStageId));
+    if (p === null || dep.fromStageId === stageId) continue;
+    if (dep.type === 'FS' || dep.type === 'SS') t = Math.max(t, applyLag(cal, dep.type === 'FS' ? p.end : p.start, dep.lag));
+    const cure = index.stages.get(dep.fromStageId)?.stage.cure;
+    if (cure) t = Math.max(t, releaseInstant(p.end, cureDays(cure)));
+  }
+  return t;
+}

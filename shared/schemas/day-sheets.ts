@@ -1,0 +1,27 @@
+import { z } from 'zod';
+import { IsoDate } from './common.ts';
+
+export const DaySheetQuery = z.object({ date: IsoDate });
+export type DaySheetQuery = z.infer<typeof DaySheetQuery>;
+
+export interface DaySheetVisit {
+  bookingId: string;
+  startsAt: string;
+  endsAt: string;
+  state: string;
+  stage: { id: string; kind: string; name: string };
+  job: { id: string; reference: string; unitName: string | null; installationType: string };
+  site: { address: string; town: string; postcode: string; accessNotes: string | null };
+  contacts: { name: string; phone: string | null; role: string }[];
+  /** Other resources booked on the same stage (crane, plant, partner firms). */
+  alongside: { name: string; kind: string; firmName: string }[];
+  cautions: string[];
+}
+
+export interface DaySheet {
+  resource: { id: string; name: string; kind: string; category: string; firmName: string };
+  date: string;
+  visits: DaySheetVisit[];
+}
+
+export interface DaySheetList { date: string; timeZone: string; sheets: DaySheet[] }

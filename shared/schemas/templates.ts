@@ -1,0 +1,36 @@
+import { z } from 'zod';
+import { INSTALLATION_TYPES } from './jobs.ts';
+
+const Kind = z.string().trim().regex(/^[a-z][a-z0-9_]{1,39}$/, 'must be lower_snake_case');
+
+export const StageTemplateSchema = z.object({
+  kind: Kind,
+  name: z.string().trim().min(1, 'is required').max(120),
+  duration: z.discriminatedUnion('kind', [
+    z.object({ kind: z.literal('fixed'), minutes: z.number().int().min(15).max(60 * 24 * 10) }),
+    z.object({ kind: z.literal('excavation'), fallbackMinutes: z.number().int().min(15).max(60 * 24 * 10) }),
+  ]),
+  requirements: z.array(z.object({ kind: Kind, count: z.number().int().min(1).max(10) })).max(10),
+  cure: z.object({ targetFraction: z.number().gt(0).max(1) }).nullable().optional(),
+  leadTime: z.object({ workingDays: z.number().int().min(0).max(250), countedFrom: z.enum(['now', 'order']) }).nullable().optional(),
+  when: z.enum(['always', 'crane', 'no_crane']).optional(),
+});
+
+export const LinkTemplateSchema = z.object({
+  from: Kind,
+  to: Kind,
+  type: z.enum(['FS', 'SS', 'FF', 'SF']).default('FS'),
+  lagAmount: z.number().min(0).max(1000).default(0),
+  lagUnit: z.enum(['working_hours', 'working_days', 'elapsed_hours', 'elapsed_days']).default('working_hours'),
+});
+
+export const InstallationTypeParams = z.object({ installationType: z.enum(INSTALLATION_TYPES) });
+
+/** PUT /api/templates/:installationType — the whole template and the version it was based on (0 = the default). */
+export const PutTemplate = z.object({
+  version: z.number().int().min(0),
+  name: z.string().trim().min(1, 'is required').max(120),
+  stages: z.array(StageTemplateSchema).min(1, 'needs at least one stage').max(40),
+  links: z.array(LinkTemplateSchema).max(200),
+});
+export type PutTemplate = z.infer<typeof PutTemplate>;

@@ -1,0 +1,129 @@
+import type { InstallTemplate, LinkTemplate, StageTemplate } from './types.ts';
+
+/*
+ * The default templates. Durations are a firm's usual working minutes (common practice, no source):
+ * a working day is about 540 minutes. Lead times: crane 5 working days, electrician 3 (common
+ * practice, no source); the unit's delivery waits on the maker's lead time from the order.
+ */
+
+const fixed = (minutes: number) => ({ kind: 'fixed', minutes }) as const;
+const fs = (from: string, to: string, lagAmount = 0, lagUnit: LinkTemplate['lagUnit'] = 'working_hours'): LinkTemplate =>
+  ({ from, to, type: 'FS', lagAmount, lagUnit });
+
+const SURVEY: StageTemplate = { kind: 'survey', name: 'Site survey', duration: fixed(120), requirements: [{ kind: 'install_crew', count: 1 }] };
+const FIRST_FIX: StageTemplate = { kind: 'electrical_first_fix', name: 'Supply cable first fix', duration: fixed(240), requirements: [{ kind: 'electrician', count: 1 }], leadTime: { workingDays: 3, countedFrom: 'now' } };
+const DELIVERY: StageTemplate = { kind: 'delivery', name: 'Delivery', duration: fixed(120), requirements: [{ kind: 'lorry', count: 1 }], leadTime: { workingDays: 15, countedFrom: 'order' } };
+const LIFT = (name: string): StageTemplate => ({
+  kind: 'lift', name, duration: fixed(240), when: 'crane', leadTime: { workingDays: 5, countedFrom: 'now' },
+  requirements: [{ kind: 'crane', count: 1 }, { kind: 'install_crew', count: 1 }, { kind: 'pallet_truck', count: 2 }, { kind: 'rollers', count: 1 }],
+});
+const PLACEMENT = (name: string, rollers: boolean): StageTemplate => ({
+  kind: 'placement', name, duration: fixed(180), when: 'no_crane',
+  requirements: [{ kind: 'install_crew', count: 1 }, { kind: 'pallet_truck', count: 2 }, ...(rollers ? [{ kind: 'rollers', count: 1 }] : [])],
+});
+const FINISH: StageTemplate[] = [
+  { kind: 'fill', name: 'Fill', duration: fixed(180), requirements: [{ kind: 'install_crew', count: 1 }] },
+  { kind: 'electrical_connect', name: 'Connect and certify', duration: fixed(240), requirements: [{ kind: 'electrician', count: 1 }], leadTime: { workingDays: 3, countedFrom: 'now' } },
+  { kind: 'commission', name: 'Commission', duration: fixed(180), requirements: [{ kind: 'install_crew', count: 1 }] },
+  { kind: 'handover', name: 'Handover', duration: fixed(60), requirements: [{ kind: 'install_crew', count: 1 }] },
+];
+const CURE_70 = { targetFraction: 0.7 };
+
+/** The unit goes in (lift or placement), then fill and connect, commission, handover. */
+const FINISH_LINKS: LinkTemplate[] = [
+  fs('delivery', 'lift'), fs('delivery', 'placement'),
+  fs('electrical_first_fix', 'lift'), fs('electrical_first_fix', 'placement'),
+  fs('lift', 'fill'), fs('placement', 'fill'),
+  fs('lift', 'electrical_connect'), fs('placement', 'electrical_connect'),
+  fs('fill', 'commission'), fs('electrical_connect', 'commission'),
+  fs('commission', 'handover'),
+];
+
+const PIT_LINKS: LinkTemplate[] = [
+  fs('survey', 'excavation', 0, 'working_days'), fs('survey', 'electrical_first_fix', 0, 'working_days'),
+  fs('excavation', 'base_pour'),
+  // Walls go up on the base once it has set overnight; the lift waits for the cure rule.
+  fs('base_pour', 'walls', 1, 'elapsed_days'),
+  fs('base_pour', 'lift'), fs('base_pour', 'placement'),
+  fs('walls', 'lift'), fs('walls', 'placement'),
+  ...FINISH_LINKS,
+];
+
+export const IN_GROUND_TEMPLATE: InstallTemplate = {
+  installationType: 'in_ground',
+  name: 'In-ground pit',
+  stages: [
+    SURVEY,
+    { kind: 'excavation', name: 'Excavate pit', duration: { kind: 'excavation', fallbackMinutes: 720 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }] },
+    { kind: 'base_pour', name: 'Pour reinforced base', duration: fixed(300), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
+    { kind: 'walls', name: 'Block retaining walls', duration: fixed(960), requirements: [{ kind: 'groundworks_crew', count: 1 }] },
+    FIRST_FIX,
+    DELIVERY,
+    LIFT('Crane lift into pit'),
+    PLACEMENT('Lower into pit on boards and rollers', true),
+    ...FINISH,
+  ],
+  links: PIT_LINKS,
+};
+
+export const SEMI_RECESSED_TEMPLATE: InstallTemplate = {
+  installationType: 'semi_recessed',
+  name: 'Semi-recessed pit',
+  stages: [
+    SURVEY,
+    { kind: 'excavation', name: 'Excavate part-depth pit', duration: { kind: 'excavation', fallbackMinutes: 480 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }] },
+    { kind: 'base_pour', name: 'Pour reinforced base', duration: fixed(300), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
+    { kind: 'walls', name: 'Block walls to part height', duration: fixed(540), requirements: [{ kind: 'groundworks_crew', count: 1 }] },
+    FIRST_FIX,
+    DELIVERY,
+    LIFT('Crane lift into place'),
+    PLACEMENT('Move into place on boards and rollers', true),
+    ...FINISH,
+  ],
+  links: PIT_LINKS,
+};
+
+export const SLAB_TEMPLATE: InstallTemplate = {
+  installationType: 'slab',
+  name: 'On a slab',
+  stages: [
+    SURVEY,
+    { kind: 'base_pour', name: 'Pour slab', duration: fixed(360), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
+    FIRST_FIX,
+    DELIVERY,
+    LIFT('Crane lift onto slab'),
+    PLACEMENT('Move into place', false),
+    ...FINISH,
+  ],
+  links: [
+    fs('survey', 'base_pour', 0, 'working_days'), fs('survey', 'electrical_first_fix', 0, 'working_days'),
+    fs('base_pour', 'lift'), fs('base_pour', 'placement'),
+    ...FINISH_LINKS,
+  ],
+};
+
+export const DECK_TEMPLATE: InstallTemplate = {
+  installationType: 'deck',
+  name: 'On a deck',
+  stages: [
+    SURVEY,
+    { kind: 'deck_check', name: "Confirm the deck's rating with the engineer", duration: fixed(60), requirements: [{ kind: 'install_crew', count: 1 }] },
+    FIRST_FIX,
+    DELIVERY,
+    LIFT('Crane lift onto deck'),
+    PLACEMENT('Move onto deck', false),
+    ...FINISH,
+  ],
+  links: [
+    fs('survey', 'deck_check', 0, 'working_days'), fs('survey', 'electrical_first_fix', 0, 'working_days'),
+    fs('deck_check', 'lift'), fs('deck_check', 'placement'),
+    ...FINISH_LINKS,
+  ],
+};
+
+export const DEFAULT_TEMPLATES: Record<InstallTemplate['installationType'], InstallTemplate> = {
+  in_ground: IN_GROUND_TEMPLATE,
+  semi_recessed: SEMI_RECESSED_TEMPLATE,
+  slab: SLAB_TEMPLATE,
+  deck: DECK_TEMPLATE,
+};

@@ -1,0 +1,109 @@
+import { cautionsFor } from '../cautions.ts';
+import type { DependencyType, InstallTemplate, LagUnit, Requirement } from './types.ts';
+
+export interface PlanOptions {
+  craneNeeded: boolean;
+  /** Excavation minutes worked out from the job's quantities, or null to use the fallback. */
+  excavationMinutes: number | null;
+  /** The maker's lead time for this unit, in working days, replacing the delivery stage's default. */
+  makerLeadDays?: number | null;
+}
+
+export interface PlannedStage {
+  kind: string;
+  name: string;
+  sequence: number;
+  durationMinutes: number;
+  /** How the duration was reached, for the job page. */
+  durationSource: string;
+  requirements: Requirement[];
+  cure: { targetFraction: number } | null;
+  leadTime: { workingDays: number; countedFrom: 'now' | 'order' } | null;
+  cautions: string[];
+}
+
+export interface PlannedLink { fromKind: string; toKind: string; type: DependencyType; lagAmount: number; lagUnit: LagUnit }
+
+export interface Plan { stages: PlannedStage[]; links: PlannedLink[] }
+
+/**
+ * A job's stages and dependencies from a template: a crane lift only when a crane is needed,
+ * otherwise the placement stage; links touching a stage left out are left out too. Pure; the
+ * template is not changed.
+ * @example
+ * planFromTemplate(SLAB_TEMPLATE, { craneNeeded: false, excavationMinutes: null }).stages.map((s) => s.kind)
+ * // ['survey', 'base_pour', 'electrical_first_fix', 'delivery', 'placement', 'fill', 'electrical_connect', 'commission', 'handover']
+ */
+export function planFromTemplate(template: InstallTemplate, options: PlanOptions): Plan {
+  const wanted = template.stages.filter((s) => {
+    const when = s.when ?? 'always';
+    return when === 'always' || (when === 'crane') === options.craneNeeded;
+  });
+  const stages = wanted.map((s, n): PlannedStage => {
+    let durationMinutes: number;
+    let durationSource: string;
+    if (s.duration.kind === 'fixed') {
+      durationMinutes = s.duration.minutes;
+      durationSource = 'fixed in the template';
+    } else if (options.excavationMinutes !== null && options.excavationMinutes > 0) {
+      durationMinutes = options.excavationMinutes;
+      durationSource = 'from the excavation volume and the excavator’s rate';
+    } else {
+      durationMinutes = s.duration.fallbackMinutes;
+      durationSource = 'template fallback (no quantities yet)';
+    }
+    const leadTime = s.kind === 'delivery' && options.makerLeadDays
+      ? { workingDays: options.makerLeadDays, countedFrom: 'order' as const }
+      : s.leadTime ? { ...s.leadTime } : null;
+    return {
+      kind: s.kind, name: s.name, sequence: n + 1, durationMinutes, durationSource,
+      requirements: s.requirements.map((r) => ({ ...r })),
+      cure: s.cure ? { ...s.cure } : null,
+      leadTime,
+      cautions: cautionsFor(s.kind),
+    };
+  });
+  const kinds = new Set(stages.map((s) => s.kind));
+  const links = template.links.filter((l) => kinds.has(l.from) && kinds.has(l.to))
+    .map((l): PlannedLink => ({ fromKind: l.from, toKind: l.to, type: l.type, lagAmount: l.lagAmount, lagUnit: l.lagUnit }));
+  return { stages, links };
+}
+
+/**
+ * Problems with a template as a firm edited it: repeated kinds, links to unknown stages, a stage
+ * linked to itself, or a loop. Empty when it is sound.
+ * @example
+ * templateProblems({ ...SLAB_TEMPLATE, links: [{ from: 'fill', to: 'fill', type: 'FS', lagAmount: 0, lagUnit: 'working_hours' }] })
+ * // ['links[0]: a stage cannot depend on itself']
+ */
+export function templateProblems(template: InstallTemplate): string[] {
+  const problems: string[] = [];
+  const kinds = new Set<string>();
+  template.stages.forEach((s, n) => {
+    if (kinds.has(s.kind)) problems.push(`stages[${n}]: kind ${s.kind} appears twice`);
+    kinds.add(s.kind);
+  });
+  template.links.forEach((l, n) => {
+    if (!kinds.has(l.from)) problems.push(`links[${n}]: no stage ${l.from}`);
+    if (!kinds.has(l.to)) problems.push(`links[${n}]: no stage ${l.to}`);
+    if (l.from === l.to) problems.push(`links[${n}]: a stage cannot depend on itself`);
+  });
+  if (problems.length) return problems;
+  // A loop in either planned variant (crane or not) would leave the job unschedulable.
+  for (const craneNeeded of [true, false]) {
+    const plan = planFromTemplate(template, { craneNeeded, excavationMinutes: null });
+    const next = new Map<string, string[]>();
+    for (const l of plan.links) next.set(l.fromKind, [...(next.get(l.fromKind) ?? []), l.toKind]);
+    const state = new Map<string, 1 | 2>();
+    const visit = (k: string): boolean => {
+      if (state.get(k) === 2) return false;
+      if (state.get(k) === 1) return true;
+      state.set(k, 1);
+      const loop = (next.get(k) ?? []).some(visit);
+      state.set(k, 2);
+      return loop;
+    };
+    if (plan.stages.some((s) => visit(s.kind))) { problems.push('links form a loop'); break; }
+  }
+  return problems;
+}

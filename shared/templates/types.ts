@@ -1,0 +1,39 @@
+/** Stage templates: how a job of each installation type breaks down into stages. */
+export type InstallationType = 'in_ground' | 'semi_recessed' | 'slab' | 'deck';
+export type DependencyType = 'FS' | 'SS' | 'FF' | 'SF';
+export type LagUnit = 'working_hours' | 'working_days' | 'elapsed_hours' | 'elapsed_days';
+
+/** A stage's length: fixed, or worked out from the job's excavation volume (with a fallback). */
+export type DurationRule =
+  | { kind: 'fixed'; minutes: number }
+  | { kind: 'excavation'; fallbackMinutes: number };
+
+export interface Requirement { kind: string; count: number }
+
+export interface StageTemplate {
+  kind: string;
+  name: string;
+  duration: DurationRule;
+  requirements: Requirement[];
+  /** Successors wait until the base reaches this share of its 28-day strength. */
+  cure?: { targetFraction: number } | null;
+  /** Notice the stage needs, in working days, counted from now or from the order date. */
+  leadTime?: { workingDays: number; countedFrom: 'now' | 'order' } | null;
+  /** 'crane' stages are planned only when a crane is needed; 'no_crane' only when it is not. */
+  when?: 'always' | 'crane' | 'no_crane';
+}
+
+export interface LinkTemplate {
+  from: string;
+  to: string;
+  type: DependencyType;
+  lagAmount: number;
+  lagUnit: LagUnit;
+}
+
+export interface InstallTemplate {
+  installationType: InstallationType;
+  name: string;
+  stages: StageTemplate[];
+  links: LinkTemplate[];
+}

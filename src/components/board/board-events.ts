@@ -1,0 +1,170 @@
+/**
+ * The board's data turned into what the resource timeline draws: rows (resources, grouped by firm
+ * and kind), events (bookings) and background blocks (holidays, closures, absences). Pure, so it is
+ * tested without a browser.
+ */
+import type { BoardBooking, BoardData, BoardJob, BoardResource, BoardStage } from '@shared/board-data';
+import type { BookingState, Violation } from '@shared/scheduler/index';
+
+export interface RowInput {
+  id: string;
+  title: string;
+  /** Group heading, e.g. "Our crews" or "Fellside Crane Hire". */
+  group: string;
+  /** Sort key of the group, so our own rows come first. */
+  groupOrder: string;
+  kind: string;
+  firmId: string;
+  businessHours: { daysOfWeek: number[]; startTime: string; endTime: string }[];
+}
+
+export interface EventInput {
+  id: string;
+  resourceId: string;
+  start: number;
+  end: number;
+  title: string;
+  classNames: string[];
+  editable: boolean;
+  extendedProps: { bookingId: string; stageId: string; jobId: string; state: BookingState; elsewhere: boolean; problems: string[] };
+}
+
+export interface BackgroundInput {
+  id: string;
+  resourceIds: string[];
+  start: number;
+  end: number;
+  display: 'background';
+  classNames: string[];
+  title: string;
+}
+
+/** Our own names for booking states, each with a symbol so colour is never the only sign. */
+export const STATE_LABELS: Record<BookingState, { label: string; symbol: string; description: string }> = {
+  pencilled: { label: 'Pencilled', symbol: '✎', description: 'planned, nobody asked yet' },
+  sent: { label: 'Asked', symbol: '✉', description: 'request sent, waiting for an answer' },
+  confirmed: { label: 'Confirmed', symbol: '✔', description: 'the firm said yes' },
+  declined: { label: 'Declined', symbol: '✖', description: 'the firm said no' },
+  on_site: { label: 'On site', symbol: '▶', description: 'work under way' },
+  done: { label: 'Done', symbol: '■', description: 'finished' },
+};
+
+const KIND_LABELS: Record<string, string> = {
+  install_crew: 'install crew', groundworks_crew: 'groundworks crew', electrician: 'electrician', crane: 'crane',
+  excavator: 'excavator', dumper: 'dumper', pallet_truck: 'pallet truck', rollers: 'rollers', lorry: 'lorry', installer: 'installer',
+};
+
+/** The heading a resource's row sits under: crews, machines, hired machines, partner firms, people. */
+export function groupOf(r: BoardResource): { group: string; order: string } {
+  if (r.ownership === 'partner') return { group: r.firmName, order: `3 ${r.firmName}` };
+  if (r.ownership === 'hired') return { group: 'Hired machines', order: '2' };
+  if (r.category === 'machine') return { group: 'Our machines', order: '1' };
+  // People mostly work as part of a crew: their own rows come last.
+  return r.category === 'crew' ? { group: 'Our crews', order: '0' } : { group: 'Our people', order: '4' };
+}
+
+export function kindLabel(kind: string): string {
+  return KIND_LABELS[kind] ?? kind.replace(/_/g, ' ');
+}
+
+const hhmm = (minute: number) => `${String(Math.floor(minute / 60)).padStart(2, '0')}:${String(minute % 60).padStart(2, '0')}`;
+
+export interface RowFilter { firmIds?: string[]; kinds?: string[]; search?: string }
+
+/** Rows for the timeline: grouped, filtered, with each resource's weekly hours as business hours. */
+export function rowsOf(data: BoardData, filter: RowFilter = {}): RowInput[] {
+  const calendars = new Map(data.calendars.map((c) => [c.id, c]));
+  const search = filter.search?.trim().toLowerCase();
+  return data.resources
+    .filter((r) => !filter.firmIds?.length || filter.firmIds.includes(r.firmId))
+    .filter((r) => !filter.kinds?.length || filter.kinds.includes(r.kind))
+    .filter((r) => !search || r.name.toLowerCase().includes(search) || r.firmName.toLowerCase().includes(search))
+    .map((r) => {
+      const { group, order } = groupOf(r);
+      const weekly = calendars.get(r.calendarId)?.weekly ?? [];
+      const businessHours = weekly.flatMap((ranges, day) => ranges.map(([a, b]) => ({ daysOfWeek: [day], startTime: hhmm(a), endTime: hhmm(b) })));
+      return { id: r.id, title: r.name, group, groupOrder: order, kind: kindLabel(r.kind), firmId: r.firmId, businessHours };
+    })
+    .sort((a, b) => a.groupOrder.localeCompare(b.groupOrder) || a.kind.localeCompare(b.kind) || a.title.localeCompare(b.title));
+}
+
+export interface EventFilter { jobId?: string | null; states?: BookingState[]; search?: string }
+
+/** Problems per booking id, from the engine's violations. */
+export function problemsByBooking(violations: readonly Violation[]): Map<string, Violation[]> {
+  const out = new Map<string, Violation[]>();
+  for (const v of violations) for (const id of v.bookingIds) out.set(id, [...(out.get(id) ?? []), v]);
+  return out;
+}
+
+/** One event per booking; another installer's booking of a shared resource shows only as busy. */
+export function eventsOf(data: BoardData, options: { canEdit: boolean; problems?: Map<string, Violation[]>; filter?: EventFilter }): EventInput[] {
+  const stages = new Map<string, BoardStage>(data.stages.map((s) => [s.id, s]));
+  const jobs = new Map<string, BoardJob>(data.jobs.map((j) => [j.id, j]));
+  const search = options.filter?.search?.trim().toLowerCase();
+  const out: EventInput[] = [];
+  for (const b of data.bookings) {
+    if (b.state === 'declined' && !b.elsewhere) continue;
+    const stage = stages.get(b.stageId);
+    const job = stage ? jobs.get(stage.jobId) : undefined;
+    if (!stage || !job) continue;
+    const f = options.filter;
+    if (!b.elsewhere && f?.jobId && job.id !== f.jobId) continue;
+    if (!b.elsewhere && f?.states?.length && !f.states.includes(b.state)) continue;
+    const title = b.elsewhere ? 'Busy elsewhere' : `${job.reference} · ${stage.name}`;
+    if (search && !b.elsewhere && !`${title} ${job.customerName} ${job.siteTown}`.toLowerCase().includes(search)) continue;
+    const problems = (options.problems?.get(b.id) ?? []).filter((v) => v.severity === 'error').map((v) => v.message);
+    out.push(toEvent(b, title, stage, job, options.canEdit, problems));
+  }
+  return out;
+}
+
+function toEvent(b: BoardBooking, title: string, stage: BoardStage, job: BoardJob, canEdit: boolean, problems: string[]): EventInput {
+  const state = STATE_LABELS[b.state];
+  return {
+    id: b.id,
+    resourceId: b.resourceId,
+    start: b.start,
+    end: b.end,
+    title: b.elsewhere ? title : `${problems.length ? '⚠ ' : ''}${state.symbol} ${title}`,
+    classNames: ['wl-booking', b.elsewhere ? 'wl-elsewhere' : `wl-state-${b.state}`, ...(problems.length ? ['wl-has-problem'] : [])],
+    editable: canEdit && !b.elsewhere && b.state !== 'done' && b.state !== 'on_site',
+    extendedProps: { bookingId: b.id, stageId: stage.id, jobId: job.id, state: b.state, elsewhere: Boolean(b.elsewhere), problems },
+  };
+}
+
+/** Calendar closures and absences as shaded blocks on the rows they apply to. */
+export function closuresOf(data: BoardData, holidays: { calendarId: string; start: number; end: number; name: string }[] = []): BackgroundInput[] {
+  const rowsByCalendar = new Map<string, string[]>();
+  for (const r of data.resources) rowsByCalendar.set(r.calendarId, [...(rowsByCalendar.get(r.calendarId) ?? []), r.id]);
+  const out: BackgroundInput[] = [];
+  for (const c of data.calendars) {
+    const rows = rowsByCalendar.get(c.id);
+    if (!rows) continue;
+    (c.closures ?? []).forEach((span, i) => {
+      if (span.end > data.from && span.start < data.to) {
+        out.push({ id: `closure-${c.id}-${i}`, resourceIds: rows, start: span.start, end: span.end, display: 'background', classNames: ['wl-closed'], title: 'Not working' });
+      }
+    });
+  }
+  for (const h of holidays) {
+    const rows = rowsByCalendar.get(h.calendarId);
+    if (rows) out.push({ id: `holiday-${h.calendarId}-${h.start}`, resourceIds: rows, start: h.start, end: h.end, display: 'background', classNames: ['wl-holiday'], title: h.name });
+  }
+  return out;
+}
+
+/** The stages still waiting for a booking, per job, in the order they must happen. */
+export function trayOf(data: BoardData, order: (jobId: string) => string[]): { job: BoardJob; stages: BoardStage[] }[] {
+  const booked = new Set(data.bookings.filter((b) => b.state !== 'declined').map((b) => b.stageId));
+  const byJob = new Map<string, BoardStage[]>();
+  for (const s of data.stages) if (!booked.has(s.id) && s.kind !== 'elsewhere') byJob.set(s.jobId, [...(byJob.get(s.jobId) ?? []), s]);
+  const jobs = new Map(data.jobs.map((j) => [j.id, j]));
+  return [...byJob.entries()]
+    .map(([jobId, stages]) => {
+      const rank = new Map(order(jobId).map((id, i) => [id, i]));
+      return { job: jobs.get(jobId)!, stages: [...stages].sort((a, b) => (rank.get(a.id) ?? a.sequence) - (rank.get(b.id) ?? b.sequence)) };
+    })
+    .filter((t) => t.job)
+    .sort((a, b) => (a.job.promisedBy ?? Infinity) - (b.job.promisedBy ?? Infinity) || a.job.reference.localeCompare(b.job.reference));
+}

@@ -1,0 +1,64 @@
+import { reactive, ref, type Ref } from 'vue';
+import { CreateJob, UpdateJob } from '@shared/schemas/jobs';
+import { ApiError } from '@/api/client';
+import { jobWork, type JobDetail, type UnitOption } from '@/api/job-work';
+import type { InstallationType } from '@/api/types';
+
+const FIELDS = ['reference', 'customerName', 'customerPhone', 'customerEmail', 'siteAddress', 'siteTown', 'sitePostcode', 'accessNotes',
+  'unitId', 'installationType', 'promisedFrom', 'promisedTo', 'orderedOn'] as const;
+type Field = (typeof FIELDS)[number];
+export type JobDraft = Record<Exclude<Field, 'installationType'>, string> & { installationType: InstallationType | null };
+
+const blank = (): JobDraft => ({
+  reference: '', customerName: '', customerPhone: '', customerEmail: '', siteAddress: '', siteTown: '', sitePostcode: '',
+  accessNotes: '', unitId: '', installationType: null, promisedFrom: '', promisedTo: '', orderedOn: '',
+});
+
+/**
+ * The new/edit job form: the same schemas as the server (CreateJob, UpdateJob), so a field the server
+ * would refuse is marked before anything is sent. An edit sends only what changed, with the version.
+ */
+export function useJobForm(jobId: Ref<string | null>) {
+  const draft = reactive<JobDraft>(blank());
+  const errors = ref<Record<string, string>>({});
+  const units = ref<UnitOption[]>([]);
+  const loaded = ref<JobDetail | null>(null);
+  const saving = ref(false);
+
+  async function load(): Promise<void> {
+    units.value = (await jobWork.units()).items;
+    if (!jobId.value) return;
+    const job = await jobWork.job(jobId.value);
+    loaded.value = job;
+    for (const f of FIELDS) (draft as Record<string, unknown>)[f] = job[f] ?? '';
+  }
+
+  // Empty optional boxes are left out (absent rather than ""); empty required ones stay, so the
+  // schema answers "is required" for them.
+  const REQUIRED = new Set(['reference', 'customerName', 'siteAddress', 'siteTown', 'sitePostcode', 'installationType']);
+  const present = () => Object.fromEntries(Object.entries(draft).filter(([k, v]) => REQUIRED.has(k) || (v !== '' && v !== null)));
+
+  function changes(): Record<string, unknown> {
+    const was = loaded.value as unknown as Record<string, unknown>;
+    return Object.fromEntries(Object.entries(present()).filter(([k, v]) => v !== (was[k] ?? '')));
+  }
+
+  async function save(): Promise<JobDetail | null> {
+    const result = loaded.value
+      ? UpdateJob.safeParse({ ...changes(), version: loaded.value.version })
+      : CreateJob.safeParse(present());
+    errors.value = result.success ? {} : Object.fromEntries(result.error.issues.map((i) => [i.path.join('.'), i.message]));
+    if (!result.success) return null;
+    saving.value = true;
+    try {
+      return loaded.value ? await jobWork.updateJob(loaded.value.id, result.data as UpdateJob) : await jobWork.createJob(result.data as CreateJob);
+    } catch (error) {
+      if (error instanceof ApiError) errors.value = Object.fromEntries(error.errors.map((e) => [e.field, e.message]));
+      throw error;
+    } finally {
+      saving.value = false;
+    }
+  }
+
+  return { draft, errors, units, loaded, saving, load, save };
+}

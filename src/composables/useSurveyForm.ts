@@ -1,0 +1,69 @@
+import { reactive, ref, type Ref } from 'vue';
+import { SurveyFields, type SurveyInput } from '@shared/schemas/surveys';
+import { ApiError } from '@/api/client';
+import { jobWork } from '@/api/job-work';
+
+export type SurveyDraft = Required<Omit<SurveyInput, 'surveyedAt' | 'accessWidthMm' | 'groundType'>> & { accessWidthMm: number | null; groundType: SurveyInput['groundType'] | null };
+
+const blank = (): SurveyDraft => ({
+  accessWidthMm: null, accessHeightMm: null, steps: 0, gates: 0, overheadObstructions: false, overheadNotes: null,
+  groundType: null, buriedServicesNotes: null, craneStandingPosition: null, craneDistanceToSetDownM: null,
+  consumerUnitDistanceM: null, mainFuseAmps: null, drainage: null, craneRequired: null, excavatorSize: null, notes: null,
+});
+
+/**
+ * The survey form's state: loads the saved survey (or starts a blank one), checks the draft with the
+ * same schema the server uses, and saves against the version it loaded.
+ */
+export function useSurveyForm(jobId: Ref<string>) {
+  const draft = reactive<SurveyDraft>(blank());
+  const version = ref(0);
+  const errors = ref<Record<string, string>>({});
+  const loading = ref(true);
+  const saving = ref(false);
+  const loadError = ref<ApiError | null>(null);
+
+  async function load(): Promise<void> {
+    loading.value = true;
+    loadError.value = null;
+    try {
+      const saved = await jobWork.survey(jobId.value);
+      const { jobId: _j, surveyedAt: _a, surveyedBy: _b, version: v, ...fields } = saved;
+      Object.assign(draft, fields);
+      version.value = v;
+    } catch (error) {
+      if (error instanceof ApiError && error.status === 404) Object.assign(draft, blank());
+      else loadError.value = error instanceof ApiError ? error : new ApiError({ status: 0, title: 'Something went wrong' });
+    } finally {
+      loading.value = false;
+    }
+  }
+
+  // Empty text boxes mean "nothing recorded".
+  const cleaned = () => Object.fromEntries(Object.entries(draft).map(([k, v]) => [k, typeof v === 'string' && v.trim() === '' ? null : v]));
+
+  /** Checks the draft; returns the parsed fields, or null with `errors` filled in per field. */
+  function check() {
+    const result = SurveyFields.safeParse(cleaned());
+    errors.value = result.success ? {} : Object.fromEntries(result.error.issues.map((i) => [i.path.join('.'), i.message]));
+    return result.success ? result.data : null;
+  }
+
+  async function save(): Promise<boolean> {
+    const fields = check();
+    if (!fields) return false;
+    saving.value = true;
+    try {
+      const saved = await jobWork.saveSurvey(jobId.value, version.value, fields);
+      version.value = saved.version;
+      return true;
+    } catch (error) {
+      if (error instanceof ApiError) errors.value = Object.fromEntries(error.errors.map((e) => [e.field.replace(/^survey\./, ''), e.message]));
+      throw error;
+    } finally {
+      saving.value = false;
+    }
+  }
+
+  return { draft, version, errors, loading, saving, loadError, load, check, save };
+}

@@ -1,0 +1,72 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { account, idOf } from '../helpers/server.ts';
+
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+
+beforeAll(async () => {
+  app = await startServer();
+  browser = await launchBrowser();
+  page = await (await browser.newContext({ viewport: { width: 1440, height: 900 }, timezoneId: 'Europe/London' })).newPage();
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+/** Drags a tray stage onto a resource's row at a local time, as a person would with the mouse. */
+async function dragTrayStage(stageTitle: string, resourceId: string, slotDate: string, fractionIntoSlot: number): Promise<void> {
+  const item = page.locator(`.tray-stage[data-title="${stageTitle}"]`);
+  await item.scrollIntoViewIfNeeded();
+  const from = (await item.boundingBox())!;
+  const slot = (await page.locator(`td.fc-timeline-slot-lane[data-date="${slotDate}"]`).first().boundingBox())!;
+  const lane = (await page.locator(`td.fc-timeline-lane[data-resource-id="${resourceId}"]`).first().boundingBox())!;
+  const to = { x: slot.x + slot.width * fractionIntoSlot + 4, y: lane.y + lane.height / 2 };
+  await page.mouse.move(from.x + 20, from.y + 10);
+  await page.mouse.down();
+  for (let i = 1; i <= 20; i += 1) await page.mouse.move(from.x + 20 + ((to.x - from.x - 20) * i) / 20, from.y + 10 + ((to.y - from.y - 10) * i) / 20);
+  await page.waitForTimeout(150);
+  await page.mouse.up();
+}
+
+describe('the scheduler on the board', () => {
+  it('books a stage from the tray onto a groundworks crew, and it is still there after a reload', async () => {
+    await signInThroughPage(page, app.url, account('scheduler').email);
+    await page.waitForURL(/\/board/);
+    const gang = await idOf(app.ctx.knex, 'resources', { name: 'Millstone gang' });
+    // Week of Monday 14 September 2026, rows filtered to the groundworks firm.
+    await page.goto(`${app.url}/board?view=week&date=2026-09-14&q=Millstone`);
+    await page.waitForSelector(`td.fc-timeline-lane[data-resource-id="${gang}"]`);
+    // 07:00–10:00 slot; a third of the way in is 08:00, when the gang starts work.
+    await dragTrayStage('TW-2417 · Pour reinforced base', gang, '2026-09-14T07:00:00', 1 / 3);
+    await page.getByText(/Saved/).first().waitFor({ timeout: 10_000 });
+
+    await page.reload();
+    const event = page.locator('.fc-event', { hasText: 'TW-2417 · Pour reinforced base' });
+    await event.first().waitFor({ timeout: 10_000 });
+    const rows = await app.ctx.knex('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
+      .where({ 'jobs.reference': 'TW-2417', 'stages.kind': 'base_pour' }).select('bookings.*');
+    expect(rows).toHaveLength(1);
+    // 08:00 BST is 07:00 UTC; the pour lasts its 300 working minutes.
+    expect(rows[0].startsAt.toISOString()).toBe('2026-09-14T07:00:00.000Z');
+    expect(rows[0].endsAt.toISOString()).toBe('2026-09-14T12:00:00.000Z');
+    expect(String(rows[0].resourceId)).toBe(gang);
+  }, 90_000);
+
+  it('refuses a lift dropped before the base has cured, and says why', async () => {
+    const heron = await idOf(app.ctx.knex, 'resources', { name: 'Crew Heron' });
+    await page.goto(`${app.url}/board?view=week&date=2026-09-14&q=Heron`);
+    await page.waitForSelector(`td.fc-timeline-lane[data-resource-id="${heron}"]`);
+    // Wednesday 16 September 08:00: two days after the pour, far short of 70 % strength.
+    await dragTrayStage('TW-2417 · Crane lift into pit', heron, '2026-09-16T07:00:00', 1 / 3);
+    const refusal = page.getByText(/Not booked:.*(cure|strength)/i);
+    await refusal.first().waitFor({ timeout: 10_000 });
+    const rows = await app.ctx.knex('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
+      .where({ 'jobs.reference': 'TW-2417', 'stages.kind': 'lift' });
+    expect(rows).toEqual([]);
+    await page.screenshot({ path: 'tests/e2e/artifacts/board-refused-lift.png' });
+  }, 90_000);
+});

@@ -1,0 +1,55 @@
+import request from 'supertest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { account, signIn, type Agent } from '../helpers/server.ts';
+import { startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
+
+let ctx: MailTestContext;
+let owner: Agent;
+const EMAIL = 'jo.planner@tideway.example';
+
+beforeAll(async () => {
+  ctx = await startMailTestApp();
+  ctx.startPipeline();
+  owner = await signIn(ctx, account('owner').email);
+});
+afterAll(async () => { await ctx.close(); });
+
+describe('inviting a new scheduler', () => {
+  it('e-mails a signed link; accepting it lets that Google account sign in with the role', async () => {
+    await expect(signIn(ctx, EMAIL)).rejects.toMatchObject({ location: '/sign-in?error=unknown_account' });
+    const created = await owner.post('/api/firm/invitations').set('X-CSRF-Token', owner.csrf).send({ email: 'Jo.Planner@tideway.example', role: 'scheduler' }).expect(201);
+    expect(created.body).toMatchObject({ email: EMAIL, role: 'scheduler', firmName: 'Tideway Hot Tubs', acceptedAt: null });
+    const list = await owner.get('/api/firm/invitations').expect(200);
+    expect(list.body.items.map((i: { email: string }) => i.email)).toContain(EMAIL);
+
+    const [mail] = await ctx.inbox.waitFor((m) => m.to.includes(EMAIL));
+    expect(mail!.subject).toBe('Tideway Hot Tubs invited you to Waterline');
+    const link = new URL(/^Accept the invitation:\n(\S+)$/m.exec(mail!.text)![1]!).pathname;
+    expect(link).toMatch(/^\/invite\//);
+
+    // Opening the link changes nothing.
+    const page = await request(ctx.waterline.app).get(link).expect(200);
+    expect(page.text).toContain('Accept the invitation');
+    expect(await ctx.knex('users').whereRaw('lower(email) = ?', [EMAIL]).first()).toBeUndefined();
+
+    const accepted = await request(ctx.waterline.app).post(link).type('form').send({}).expect(200);
+    expect(accepted.text).toContain('Invitation accepted');
+    const agent = await signIn(ctx, EMAIL);
+    const session = await agent.get('/api/session').expect(200);
+    expect(session.body).toMatchObject({ role: 'scheduler', firm: { name: 'Tideway Hot Tubs' }, user: { email: EMAIL } });
+
+    // The link works once.
+    const again = await request(ctx.waterline.app).post(link).type('form').send({}).expect(409);
+    expect(again.text).toContain('already been used');
+  });
+
+  it('is for owners only', async () => {
+    const scheduler = await signIn(ctx, account('scheduler').email);
+    await scheduler.post('/api/firm/invitations').set('X-CSRF-Token', scheduler.csrf).send({ email: 'x@tideway.example', role: 'viewer' }).expect(403);
+  });
+
+  it('refuses a bad address or role by name', async () => {
+    const res = await owner.post('/api/firm/invitations').set('X-CSRF-Token', owner.csrf).send({ email: 'nope', role: 'boss' }).expect(400);
+    expect(res.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['email', 'role']);
+  });
+});

@@ -1,0 +1,173 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { account, idOf, signIn, type Agent } from '../helpers/server.ts';
+import { Booking } from '../../server/models/index.ts';
+import { actorFor } from '../../server/services/session.ts';
+import { bookingChanged } from '../../server/services/outbox.ts';
+import { answerLinks, calendarOf, pencilIn, startMailTestApp, waitUntil, type MailTestContext } from '../helpers/mail.ts';
+import { scanOverdueRequests } from '../../server/services/reminders.ts';
+
+let ctx: MailTestContext;
+let scheduler: Agent;
+let lift: { id: string; version: number };
+
+// TW-2417 is a tray job of the demo scenario (in-ground, householder Freya Lund, 56 Church Street, Bingley).
+const SLOT = { startsAt: '2027-03-10T08:00:00.000Z', endsAt: '2027-03-10T12:00:00.000Z' }; // GMT: 08:00–12:00 local
+
+beforeAll(async () => {
+  ctx = await startMailTestApp();
+  ctx.startPipeline();
+  scheduler = await signIn(ctx, account('scheduler').email);
+  lift = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'lift', resource: '60 t mobile crane', ...SLOT });
+});
+afterAll(async () => { await ctx.close(); });
+
+const toFellside = (m: { to: string[] }) => m.to.includes('bookings@fellside.example');
+
+describe('publishing a crane booking', () => {
+  it('sends one request e-mail with the slot, the cautions, three links and an invite', async () => {
+    const res = await scheduler.post(`/api/bookings/${lift.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    expect(res.body).toMatchObject({ id: lift.id, state: 'sent', version: 2, overdue: false, answer: null });
+    const outbox = await ctx.knex('outbox').where('kind', 'booking_request');
+    expect(outbox).toHaveLength(1);
+    expect(outbox[0].payload).toEqual({ bookingId: lift.id, version: 2, resourceId: expect.any(String) });
+
+    const [mail] = await ctx.inbox.waitFor(toFellside);
+    expect(mail!.to).toEqual(['bookings@fellside.example', 'fiona.fell@fellside.example']);
+    expect(mail!.subject).toBe('Booking request: Crane lift into pit, Bingley, Wed 10 Mar 2027');
+    for (const body of [mail!.text, mail!.html]) {
+      expect(body).toContain('Wednesday 10 March 2027');
+      expect(body).toContain('08:00–12:00');
+      expect(body).toContain('56 Church Street');
+      expect(body).toContain('Tideway Hot Tubs: 0113 496 0001');
+      expect(body).toMatch(/lift plan made by a competent person/);
+      expect(body).toMatch(/exclusion zone/);
+      expect(body).toMatch(/wind exceeds/);
+      expect(body).toMatch(/Nobody stands or walks under a suspended load/);
+      expect(body).toContain('Follow local codes and licensed practice');
+      expect(body).toContain('Outrigger mats');
+      // The partner needs the site, not the householder's contact details.
+      expect(body).not.toContain('07700 900116');
+      expect(body).not.toContain('freya@home.example');
+    }
+    const links = answerLinks(mail!);
+    expect(links.confirm).toMatch(/^\/answer\/[\w-]+\.[\w-]+\.[\w-]+$/);
+    expect(new Set([links.confirm, links.decline, links.propose]).size).toBe(3);
+    expect(mail!.html).toContain(`http://127.0.0.1:3000${links.confirm}`.replace('http://127.0.0.1:3000', ctx.config.PUBLIC_URL));
+
+    const ics = calendarOf(mail!);
+    expect(ics.method).toBe('REQUEST'); // RFC 5546 §3.2.2 via the METHOD property, RFC 5545 §3.7.2
+    expect(ics.uid).toBe(`booking-${lift.id}@waterline`); // RFC 5545 §3.8.4.7 UID: one per booking, kept across versions
+    expect(ics.sequence).toBe(2); // RFC 5545 §3.8.7.4 SEQUENCE: the booking version
+    expect(ics.start.toISOString()).toBe(SLOT.startsAt); // RFC 5545 §3.8.2.4 DTSTART
+    expect(ics.end.toISOString()).toBe(SLOT.endsAt); // RFC 5545 §3.8.2.2 DTEND
+    await waitUntil(async () => (await ctx.knex('outbox').where('id', outbox[0].id).first()).status === 'sent', 5000, 'outbox row sent');
+  });
+
+  it('refuses to publish an own-firm resource (there is nobody to ask)', async () => {
+    const own = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'fill', resource: 'Crew Otter', startsAt: '2027-03-12T08:00:00Z', endsAt: '2027-03-12T11:00:00Z' });
+    const res = await scheduler.post(`/api/bookings/${own.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(422);
+    expect(res.body.code).toBe('own-resource');
+  });
+});
+
+/**
+ * A scheduler's move as BookingsService.update makes it: the row is saved with the next version,
+ * then bookingChanged runs in the same transaction (the hook the update calls before auditing).
+ */
+async function moveAsScheduler(id: string, startsAt: string, endsAt: string): Promise<Booking> {
+  const actor = await actorFor(ctx.knex, await idOf(ctx.knex, 'users', { email: account('scheduler').email }), undefined);
+  return ctx.knex.transaction(async (trx) => {
+    const before = (await Booking.query(trx).findById(id).forUpdate())!;
+    const after = await Booking.query(trx).patchAndFetchById(id, { startsAt: new Date(startsAt), endsAt: new Date(endsAt), version: before.version + 1 } as Partial<Booking>);
+    await bookingChanged(trx, actor!, before, after);
+    return after;
+  });
+}
+
+describe('moving a booking already sent', () => {
+  it('sends an update with the same UID and a higher SEQUENCE, and the booking waits for a new answer', async () => {
+    await ctx.inbox.clear();
+    const after = await moveAsScheduler(lift.id, '2027-03-11T08:00:00Z', '2027-03-11T12:00:00Z');
+    expect(after).toMatchObject({ version: 3, state: 'sent' });
+    const [mail] = await ctx.inbox.waitFor(toFellside);
+    expect(mail!.subject).toMatch(/^Booking changed: Crane lift into pit, Bingley, Thu 11 Mar 2027/);
+    const ics = calendarOf(mail!);
+    expect(ics).toMatchObject({ method: 'REQUEST', uid: `booking-${lift.id}@waterline`, sequence: 3 }); // §3.8.7.4: increases
+    expect(ics.start.toISOString()).toBe('2027-03-11T08:00:00.000Z');
+  });
+
+  it('tells the householder when a confirmed lift day moves', async () => {
+    await ctx.inbox.clear();
+    await ctx.knex('bookings').where('id', lift.id).update({ state: 'confirmed' });
+    await moveAsScheduler(lift.id, '2027-03-15T08:00:00Z', '2027-03-15T12:00:00Z');
+    const [customer] = await ctx.inbox.waitFor((m) => m.to.includes('freya@home.example'));
+    expect(customer!.subject).toBe('Change to your lift day: Mon 15 Mar 2027');
+    expect(customer!.text).toContain('Monday 15 March 2027');
+    expect(customer!.text).toMatch(/Clear the access route/);
+    expect(customer!.text).toMatch(/Parking: keep room at the kerb for the lorry \(and the crane/);
+    expect(customer!.text).toMatch(/Power ready/);
+    const [partner] = await ctx.inbox.waitFor(toFellside);
+    expect(calendarOf(partner!).sequence).toBe(4);
+    expect((await ctx.knex('bookings').where('id', lift.id).first()).state).toBe('sent');
+  });
+});
+
+describe('cancelling a sent booking', () => {
+  it('sends METHOD:CANCEL for the same UID and puts the booking back to pencilled', async () => {
+    await ctx.inbox.clear();
+    const res = await scheduler.post(`/api/bookings/${lift.id}/cancel`).set('X-CSRF-Token', scheduler.csrf).send({ version: 4 }).expect(200);
+    expect(res.body).toMatchObject({ state: 'pencilled', version: 5 });
+    const [mail] = await ctx.inbox.waitFor(toFellside);
+    expect(mail!.subject).toMatch(/^Booking cancelled: Crane lift into pit/);
+    const ics = calendarOf(mail!);
+    expect(ics).toMatchObject({ method: 'CANCEL', uid: `booking-${lift.id}@waterline`, sequence: 5, status: 'CANCELLED' }); // RFC 5546 §3.2.5
+    expect(mail!.text).not.toMatch(/Confirm:/);
+  });
+
+  it('sends a cancellation when a sent booking is taken off the board altogether', async () => {
+    await ctx.inbox.clear();
+    const sparky = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'electrical_connect', resource: 'Gareth Pryce', startsAt: '2027-03-16T09:00:00Z', endsAt: '2027-03-16T13:00:00Z' });
+    await scheduler.post(`/api/bookings/${sparky.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking request: Connect and certify'));
+    await scheduler.delete(`/api/bookings/${sparky.id}?version=2`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+    const [mail] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking cancelled: Connect and certify'));
+    expect(mail!.to).toEqual(['bookings@northgate.example']);
+    expect(calendarOf(mail!)).toMatchObject({ method: 'CANCEL', uid: `booking-${sparky.id}@waterline`, sequence: 3 });
+  });
+});
+
+describe('when the mail server refuses for a while', () => {
+  it('retries with back-off and delivers the message once', async () => {
+    await ctx.inbox.clear();
+    await ctx.inbox.failNext(2);
+    const b = await pencilIn(ctx.knex, { job: 'TW-2420', stage: 'lift', resource: '25 t city crane', startsAt: '2027-04-06T08:00:00Z', endsAt: '2027-04-06T12:00:00Z' });
+    await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    const mails = await ctx.inbox.waitFor(toFellside, 1, 20_000);
+    expect(mails).toHaveLength(1);
+    const row = await ctx.knex('outbox').where('kind', 'booking_request').whereRaw("payload->>'bookingId' = ?", [b.id]).first();
+    await waitUntil(async () => (await ctx.knex('outbox').where('id', row.id).first()).status === 'sent', 5000, 'sent');
+    expect((await ctx.knex('outbox').where('id', row.id).first()).attempts).toBeGreaterThanOrEqual(3);
+    await new Promise((r) => setTimeout(r, 500));
+    expect((await ctx.inbox.list()).filter(toFellside)).toHaveLength(1);
+  });
+});
+
+describe('a request nobody answers', () => {
+  it('is flagged overdue after REMINDER_HOURS and gets exactly one reminder per version', async () => {
+    await ctx.inbox.clear();
+    const b = await pencilIn(ctx.knex, { job: 'TW-2422', stage: 'lift', resource: '60 t mobile crane', startsAt: '2027-04-07T08:00:00Z', endsAt: '2027-04-07T12:00:00Z' });
+    await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking request: Crane lift into pit') && m.subject.includes('7 Apr 2027'));
+    const sentAt = (await ctx.knex('booking_requests').where({ booking_id: b.id, booking_version: 2 }).first()).requestedAt as Date;
+    // REMINDER_HOURS defaults to 48 (config.ts); 47 hours on nothing is due, 49 hours on it is.
+    expect(await scanOverdueRequests(ctx.knex, { now: new Date(sentAt.getTime() + 47 * 3_600_000), reminderHours: ctx.config.REMINDER_HOURS })).toBe(0);
+    expect((await scheduler.get(`/api/bookings/${b.id}`).expect(200)).body.overdue).toBe(false);
+    expect(await scanOverdueRequests(ctx.knex, { now: new Date(sentAt.getTime() + 49 * 3_600_000), reminderHours: 48 })).toBeGreaterThanOrEqual(1);
+    expect((await ctx.knex('booking_requests').where({ booking_id: b.id, booking_version: 2 }).first()).overdueAt).toBeInstanceOf(Date);
+    expect(await scanOverdueRequests(ctx.knex, { now: new Date(sentAt.getTime() + 99 * 3_600_000), reminderHours: 48 })).toBe(0);
+    expect((await scheduler.get(`/api/bookings/${b.id}`).expect(200)).body.overdue).toBe(true);
+    const reminders = await ctx.inbox.waitFor((m) => m.subject.startsWith('Reminder, please answer: Crane lift into pit') && m.subject.includes('7 Apr 2027'));
+    expect(reminders).toHaveLength(1);
+    expect(calendarOf(reminders[0]!).sequence).toBe(2);
+  });
+});

@@ -1,0 +1,78 @@
+import { mkdtempSync, rmSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { account, signIn, type Agent } from '../helpers/server.ts';
+import { pencilIn, startMailTestApp, waitUntil, type MailTestContext } from '../helpers/mail.ts';
+import { startRedis, type RedisHandle } from '../../scripts/services/redis.ts';
+import { run } from '../../scripts/services/shell.ts';
+import { queueBookingMessage } from '../../server/services/outbox.ts';
+import type { MailPipeline } from '../../workers/pipeline.ts';
+
+// A private Redis for this file only, so stopping it leaves the shared test Redis alone.
+const PORT = 63_905;
+const dir = mkdtempSync(path.join(os.tmpdir(), 'waterline-redis-'));
+let redis: RedisHandle;
+let ctx: MailTestContext;
+let scheduler: Agent;
+let pipeline: MailPipeline;
+
+const up = () => { try { return run('redis-cli', ['-p', String(PORT), 'ping']).trim() === 'PONG'; } catch { return false; } };
+const about = (bookingId: string) => (m: { attachments: { content: string }[] }) => m.attachments.some((a) => a.content.includes(`booking-${bookingId}@waterline`));
+
+beforeAll(async () => {
+  redis = await startRedis(dir, PORT);
+  ctx = await startMailTestApp();
+  pipeline = ctx.startPipeline(`redis://127.0.0.1:${PORT}/0`);
+  scheduler = await signIn(ctx, account('scheduler').email);
+});
+afterAll(async () => {
+  await ctx.close();
+  redis.stop();
+  rmSync(dir, { recursive: true, force: true });
+});
+
+async function publish(job: string, startsAt: string, endsAt: string): Promise<string> {
+  const b = await pencilIn(ctx.knex, { job, stage: 'lift', resource: '60 t mobile crane', startsAt, endsAt });
+  await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+  return b.id;
+}
+
+describe('the outbox while Redis is down', () => {
+  it('keeps the message, and sends exactly one once Redis is back', async () => {
+    // Working normally first.
+    const before = await publish('TW-2417', '2027-07-05T08:00:00Z', '2027-07-05T12:00:00Z');
+    await ctx.inbox.waitFor(about(before));
+
+    redis.stop();
+    await waitUntil(() => !up(), 10_000, 'Redis to stop');
+    // Publishing needs only PostgreSQL: the request is written to the outbox in the same transaction.
+    const during = await publish('TW-2422', '2027-07-06T08:00:00Z', '2027-07-06T12:00:00Z');
+    await new Promise((r) => setTimeout(r, 2500));
+    const row = await ctx.knex('outbox').whereRaw("payload->>'bookingId' = ?", [during]).first();
+    expect(row.status).toBe('pending');
+    expect((await ctx.inbox.list()).filter(about(during))).toHaveLength(0);
+
+    redis = await startRedis(dir, PORT);
+    const mails = await ctx.inbox.waitFor(about(during), 1, 30_000);
+    expect(mails).toHaveLength(1);
+    await waitUntil(async () => (await ctx.knex('outbox').where('id', row.id).first()).status === 'sent', 10_000, 'row sent');
+    await new Promise((r) => setTimeout(r, 1500));
+    expect((await ctx.inbox.list()).filter(about(during))).toHaveLength(1);
+    expect((await ctx.inbox.list()).filter(about(before))).toHaveLength(1);
+  }, 90_000);
+
+  it('hands a row over again when its job died with Redis (a restart without persistence), and sends it once', async () => {
+    const b = await pencilIn(ctx.knex, { job: 'TW-2423', stage: 'lift', resource: '60 t mobile crane', startsAt: '2027-07-07T08:00:00Z', endsAt: '2027-07-07T12:00:00Z', state: 'sent' });
+    // As a restarted Redis leaves it: the row says queued a while ago, and no job exists for it.
+    await ctx.knex.transaction((trx) => queueBookingMessage(trx, { bookingId: b.id, kind: 'request', version: 1 }));
+    const row = await ctx.knex('outbox').whereRaw("payload->>'bookingId' = ?", [b.id]).first();
+    await ctx.knex('outbox').where('id', row.id).update({ status: 'queued', next_attempt_at: new Date(Date.now() - 3_600_000) });
+    expect(await pipeline.relay.requeueStale()).toBe(1);
+    await waitUntil(async () => (await ctx.knex('outbox').where('id', row.id).first()).status === 'sent', 10_000, 'row sent');
+    await new Promise((r) => setTimeout(r, 500));
+    expect((await ctx.inbox.list()).filter(about(b.id))).toHaveLength(1);
+    // Nothing is stale any more.
+    expect(await pipeline.relay.requeueStale()).toBe(0);
+  });
+});

@@ -1,0 +1,117 @@
+import request from 'supertest';
+import ICAL from 'ical.js';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { account, idOf, signIn, type Agent } from '../helpers/server.ts';
+import { pencilIn, startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
+
+let ctx: MailTestContext;
+let scheduler: Agent;
+let partner: Agent;
+let slot: string;
+
+beforeAll(async () => {
+  ctx = await startMailTestApp();
+  scheduler = await signIn(ctx, account('scheduler').email);
+  partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
+  const b = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'electrical_connect', resource: 'Priya Nair', startsAt: '2027-08-03T08:00:00Z', endsAt: '2027-08-03T12:00:00Z' });
+  await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+  slot = b.id;
+});
+afterAll(async () => { await ctx.close(); });
+
+describe("a partner's own slots", () => {
+  it('lists upcoming slots of the firm for every installer it works with, with only what the day needs', async () => {
+    const res = await partner.get('/api/partner/slots?from=2026-05-01T00:00:00Z').expect(200);
+    const items = res.body.items as { id: string; state: string; installer: { name: string }; site: Record<string, unknown> }[];
+    expect(new Set(items.map((i) => i.installer.name))).toEqual(new Set(['Tideway Hot Tubs', 'Moorview Spas']));
+    const mine = items.find((i) => i.id === slot)!;
+    expect(mine).toMatchObject({
+      state: 'sent', version: 2, timeZone: 'Europe/London',
+      stage: { name: 'Connect and certify', kind: 'electrical_connect' },
+      resource: { name: 'Priya Nair', kind: 'electrician' },
+      site: { address: '56 Church Street', town: 'Bingley', postcode: 'BD16 2LE' },
+      installer: { name: 'Tideway Hot Tubs', phone: '0113 496 0001' },
+    });
+    expect((mine as unknown as { cautions: string[] }).cautions.join(' ')).toMatch(/registered \(licensed\) electrician/);
+    // A pencilled booking is the installer's private plan.
+    expect(items.map((i) => i.state)).not.toContain('pencilled');
+    expect(items.length).toBeGreaterThan(1);
+  });
+
+  it('never shows the householder, their phone or e-mail, or any price', async () => {
+    const res = await partner.get('/api/partner/slots?from=2026-05-01T00:00:00Z').expect(200);
+    const body = JSON.stringify(res.body);
+    const jobs = await ctx.knex('jobs').select('customer_name', 'customer_phone', 'customer_email');
+    for (const j of jobs) {
+      expect(body).not.toContain(j.customerName);
+      if (j.customerPhone) expect(body).not.toContain(j.customerPhone);
+      if (j.customerEmail) expect(body).not.toContain(j.customerEmail);
+    }
+    expect(body).not.toMatch(/pence|price|rate|customer/i);
+  });
+
+  it('answers through the app: a proposal shows on the board', async () => {
+    const res = await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf)
+      .send({ action: 'propose', proposedStart: '2027-08-04T08:00:00Z', proposedEnd: '2027-08-04T12:00:00Z' }).expect(200);
+    expect(res.body).toMatchObject({ result: 'proposed', slot: { id: slot, answer: { action: 'propose', via: 'app', proposalStatus: 'open' } } });
+    const board = await scheduler.get(`/api/bookings/${slot}`).expect(200);
+    expect(board.body.answer).toMatchObject({ action: 'propose', proposedStart: '2027-08-04T08:00:00.000Z' });
+    await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'propose' }).expect(400);
+  });
+
+  it("refuses another firm's slot with 404", async () => {
+    const crane = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'lift', resource: '60 t mobile crane', startsAt: '2027-08-05T08:00:00Z', endsAt: '2027-08-05T12:00:00Z', state: 'sent' });
+    await partner.post(`/api/partner/slots/${crane.id}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'confirm' }).expect(404);
+  });
+
+  it('puts another of its own people on the slot, and no one else', async () => {
+    const tom = await idOf(ctx.knex, 'resources', { name: 'Tom Ashworth' });
+    const res = await partner.put(`/api/partner/slots/${slot}/person`).set('X-CSRF-Token', partner.csrf).send({ resourceId: tom }).expect(200);
+    expect(res.body).toMatchObject({ id: slot, version: 3, resource: { name: 'Tom Ashworth' } });
+    // Still awaiting an answer: a fresh request (version 3) goes out so the links in hand work.
+    expect(await ctx.knex('outbox').where('idempotency_key', `booking.${slot}.v3.update.r${tom}`)).toHaveLength(1);
+    await partner.put(`/api/partner/slots/${slot}/person`).set('X-CSRF-Token', partner.csrf)
+      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' }) }).expect(404);
+    await partner.put(`/api/partner/slots/${slot}/person`).set('X-CSRF-Token', partner.csrf)
+      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: '60 t mobile crane' }) }).expect(404);
+  });
+
+  it('confirms through the app', async () => {
+    const res = await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'confirm' }).expect(200);
+    expect(res.body).toMatchObject({ result: 'confirmed', slot: { state: 'confirmed' } });
+    const again = await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'confirm' }).expect(409);
+    expect(again.body.code).toBe('not-awaiting-answer');
+  });
+});
+
+describe('a private calendar feed per person', () => {
+  it('is made, rotated and revoked by the partner; the URL alone opens it', async () => {
+    const tom = await idOf(ctx.knex, 'resources', { name: 'Tom Ashworth' });
+    const first = await partner.post(`/api/partner/people/${tom}/feed`).set('X-CSRF-Token', partner.csrf).expect(201);
+    expect(first.body.url).toMatch(/\/feeds\/[\w-]{32}\.ics$/);
+    const path1 = new URL(first.body.url).pathname;
+    const feed = await request(ctx.waterline.app).get(path1).expect(200);
+    expect(feed.headers['content-type']).toMatch(/^text\/calendar/);
+    const cal = new ICAL.Component(ICAL.parse(feed.text));
+    expect(cal.getFirstPropertyValue('method')).toBe('PUBLISH'); // RFC 5546 §3.2.1
+    const events = cal.getAllSubcomponents('vevent').map((v) => new ICAL.Event(v));
+    const mine = events.find((e) => e.uid === `booking-${slot}@waterline`); // RFC 5545 §3.8.4.7: same UID as the invites
+    expect(mine).toBeDefined();
+    expect(mine!.sequence).toBe(3);
+    expect(mine!.startDate.toJSDate().toISOString()).toBe('2027-08-03T08:00:00.000Z');
+    expect(mine!.description).toContain('Follow local codes and licensed practice');
+    expect(feed.text).not.toContain('@home.example');
+    expect(await ctx.knex('calendar_feeds').where('token_hash', path1)).toHaveLength(0); // only a hash is stored
+
+    const second = await partner.post(`/api/partner/people/${tom}/feed`).set('X-CSRF-Token', partner.csrf).expect(201);
+    await request(ctx.waterline.app).get(path1).expect(404);
+    const path2 = new URL(second.body.url).pathname;
+    await request(ctx.waterline.app).get(path2).expect(200);
+    await partner.delete(`/api/partner/people/${tom}/feed`).set('X-CSRF-Token', partner.csrf).expect(204);
+    await request(ctx.waterline.app).get(path2).expect(404);
+  });
+
+  it("is only for the firm's own people", async () => {
+    await partner.post(`/api/partner/people/${await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' })}/feed`).set('X-CSRF-Token', partner.csrf).expect(404);
+  });
+});

@@ -1,0 +1,80 @@
+import { describe, expect, it } from 'vitest';
+import { DEFAULT_TEMPLATES, IN_GROUND_TEMPLATE, SLAB_TEMPLATE, planFromTemplate, templateProblems } from '../../../shared/templates/index.ts';
+import { CAUTION_NOTE, cautionsFor } from '../../../shared/cautions.ts';
+
+describe('planning an in-ground job from its template', () => {
+  const withCrane = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: 300, makerLeadDays: 20 });
+
+  it('has the stages in order, with a crane lift and no placement', () => {
+    expect(withCrane.stages.map((s) => s.kind)).toEqual(['survey', 'excavation', 'base_pour', 'walls', 'electrical_first_fix', 'delivery', 'lift', 'fill', 'electrical_connect', 'commission', 'handover']);
+    expect(withCrane.stages.map((s) => s.sequence)).toEqual([1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11]);
+  });
+
+  it('takes the excavation time from the quantities and the delivery notice from the maker', () => {
+    const dig = withCrane.stages.find((s) => s.kind === 'excavation')!;
+    expect(dig.durationMinutes).toBe(300);
+    expect(withCrane.stages.find((s) => s.kind === 'delivery')!.leadTime).toEqual({ workingDays: 20, countedFrom: 'order' });
+    expect(withCrane.stages.find((s) => s.kind === 'lift')!.leadTime).toEqual({ workingDays: 5, countedFrom: 'now' });
+  });
+
+  it('falls back to the template time without quantities', () => {
+    const plan = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: null });
+    expect(plan.stages.find((s) => s.kind === 'excavation')!.durationMinutes).toBe(720);
+  });
+
+  it('puts the cure rule on the base and links the lift after it', () => {
+    expect(withCrane.stages.find((s) => s.kind === 'base_pour')!.cure).toEqual({ targetFraction: 0.7 });
+    expect(withCrane.links).toContainEqual({ fromKind: 'base_pour', toKind: 'lift', type: 'FS', lagAmount: 0, lagUnit: 'working_hours' });
+    expect(withCrane.links).toContainEqual({ fromKind: 'base_pour', toKind: 'walls', type: 'FS', lagAmount: 1, lagUnit: 'elapsed_days' });
+    expect(withCrane.links.some((l) => l.fromKind === 'placement' || l.toKind === 'placement')).toBe(false);
+  });
+
+  it('asks for the crane and the lifting cautions on the lift', () => {
+    const lift = withCrane.stages.find((s) => s.kind === 'lift')!;
+    expect(lift.requirements).toContainEqual({ kind: 'crane', count: 1 });
+    expect(lift.cautions).toContain('Nobody stands or walks under a suspended load.');
+    expect(lift.cautions.at(-1)).toBe(CAUTION_NOTE);
+  });
+});
+
+describe('planning without a crane', () => {
+  it('places the unit with pallet trucks instead', () => {
+    const plan = planFromTemplate(SLAB_TEMPLATE, { craneNeeded: false, excavationMinutes: null });
+    expect(plan.stages.map((s) => s.kind)).toEqual(['survey', 'base_pour', 'electrical_first_fix', 'delivery', 'placement', 'fill', 'electrical_connect', 'commission', 'handover']);
+    const placement = plan.stages.find((s) => s.kind === 'placement')!;
+    expect(placement.requirements).toEqual([{ kind: 'install_crew', count: 1 }, { kind: 'pallet_truck', count: 2 }]);
+    expect(plan.stages.some((s) => s.requirements.some((r) => r.kind === 'crane'))).toBe(false);
+  });
+});
+
+describe('the default templates', () => {
+  it('all hold together', () => {
+    for (const t of Object.values(DEFAULT_TEMPLATES)) expect(templateProblems(t), t.installationType).toEqual([]);
+  });
+
+  it('are not changed by planning', () => {
+    const before = structuredClone(IN_GROUND_TEMPLATE);
+    const plan = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: 60 });
+    plan.stages[0]!.requirements.push({ kind: 'lorry', count: 9 });
+    expect(IN_GROUND_TEMPLATE).toEqual(before);
+  });
+
+  it('refuse a loop, a stage linked to itself and a link to nowhere', () => {
+    const fs = { type: 'FS' as const, lagAmount: 0, lagUnit: 'working_hours' as const };
+    expect(templateProblems({ ...SLAB_TEMPLATE, links: [...SLAB_TEMPLATE.links, { from: 'handover', to: 'survey', ...fs }] })).toEqual(['links form a loop']);
+    expect(templateProblems({ ...SLAB_TEMPLATE, links: [{ from: 'fill', to: 'fill', ...fs }] })).toEqual(['links[0]: a stage cannot depend on itself']);
+    expect(templateProblems({ ...SLAB_TEMPLATE, links: [{ from: 'fill', to: 'sauna', ...fs }] })).toEqual(['links[0]: no stage sauna']);
+  });
+});
+
+describe('cautions', () => {
+  it('name the dangers of each kind of work and always end with the note', () => {
+    expect(cautionsFor('excavation').join(' ')).toMatch(/collapse/);
+    expect(cautionsFor('excavation').join(' ')).toMatch(/buried services/);
+    expect(cautionsFor('electrical_connect').join(' ')).toMatch(/RCD/);
+    expect(cautionsFor('commission').join(' ')).toMatch(/[Ss]anitiser/);
+    expect(cautionsFor('placement').join(' ')).toMatch(/[Ff]ingers/);
+    expect(cautionsFor('something_new')).toEqual([CAUTION_NOTE]);
+    expect(CAUTION_NOTE).toBe('Follow local codes and licensed practice.');
+  });
+});

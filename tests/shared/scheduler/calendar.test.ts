@@ -1,0 +1,198 @@
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import {
+  addWorkingDays, addWorkingMinutes, compileCalendar, countWorkingDays, dayNumber, isWorkingInstant, localToInstant,
+  nextWorkingInstant, publicHolidays, resourceCalendar, SchedulerError, timeZoneOffset, weeklyHours,
+  workingIntervals, workingMinutesBetween, type WorkingCalendar,
+} from '../../../shared/scheduler/index.js';
+import { at, firmCal, LONDON, MON_FRI_8_TO_5 } from './scenario.js';
+
+const dates = (country: string, state: string, year: number): string[] =>
+  publicHolidays({ country, state }, year).map((h) => h.date);
+
+describe('UK public holidays from date-holidays (observed days, as gov.uk lists them)', () => {
+  // Source: gov.uk/bank-holidays, England and Wales 2026 and 2027 — from memory (not read in this session).
+  it('England and Wales 2026, Boxing Day moved to Monday 28 December', () => {
+    expect(dates('GB', 'ENG', 2026)).toEqual([
+      '2026-01-01', '2026-04-03', '2026-04-06', '2026-05-04', '2026-05-25', '2026-08-31', '2026-12-25', '2026-12-28',
+    ]);
+    const boxing = publicHolidays({ country: 'GB', state: 'ENG' }, 2026).find((h) => h.date === '2026-12-28');
+    expect(boxing?.substitute).toBe(true);
+  });
+
+  it('England and Wales 2027, both Christmas days moved to 27 and 28 December', () => {
+    // Source: gov.uk/bank-holidays — from memory.
+    expect(dates('GB', 'ENG', 2027)).toEqual([
+      '2027-01-01', '2027-03-26', '2027-03-29', '2027-05-03', '2027-05-31', '2027-08-30', '2027-12-27', '2027-12-28',
+    ]);
+  });
+
+  it('Wales (GB/WLS) has the same list as England (GB/ENG), as gov.uk publishes one England and Wales list', () => {
+    for (const y of [2026, 2027]) expect(dates('GB', 'WLS', y)).toEqual(dates('GB', 'ENG', y));
+  });
+
+  it('Scotland 2026: 2 January, first Monday of August, St Andrew\'s Day, no Easter Monday', () => {
+    // Source: gov.uk/bank-holidays, Scotland 2026 — from memory.
+    expect(dates('GB', 'SCT', 2026)).toEqual([
+      '2026-01-01', '2026-01-02', '2026-04-03', '2026-05-04', '2026-05-25', '2026-08-03', '2026-11-30', '2026-12-25', '2026-12-28',
+    ]);
+  });
+
+  it('Scotland 2027: 2 January (a Saturday) moved to Monday 4 January', () => {
+    // Source: gov.uk/bank-holidays, Scotland 2027 — from memory.
+    expect(dates('GB', 'SCT', 2027)).toEqual([
+      '2027-01-01', '2027-01-04', '2027-03-26', '2027-05-03', '2027-05-31', '2027-08-02', '2027-11-30', '2027-12-27', '2027-12-28',
+    ]);
+  });
+
+  it('Northern Ireland 2026: St Patrick\'s Day, and the Battle of the Boyne (12 July, a Sunday) on Monday 13 July', () => {
+    // Source: gov.uk/bank-holidays, Northern Ireland 2026 — from memory; 13 July as the substitute
+    // is what date-holidays gives and what we recall gov.uk publishing (check against gov.uk before relying on it).
+    expect(dates('GB', 'NIR', 2026)).toEqual([
+      '2026-01-01', '2026-03-17', '2026-04-03', '2026-04-06', '2026-05-04', '2026-05-25', '2026-07-13', '2026-08-31', '2026-12-25', '2026-12-28',
+    ]);
+  });
+
+  it('Northern Ireland 2027: 17 March and 12 July fall on weekdays', () => {
+    // Source: gov.uk/bank-holidays, Northern Ireland 2027 — from memory.
+    expect(dates('GB', 'NIR', 2027)).toEqual([
+      '2027-01-01', '2027-03-17', '2027-03-26', '2027-03-29', '2027-05-03', '2027-05-31', '2027-07-12', '2027-08-30', '2027-12-27', '2027-12-28',
+    ]);
+  });
+
+  it('keeps weekend originals when asked (date-holidays lists them beside the substitutes)', () => {
+    const all = publicHolidays({ country: 'GB', state: 'ENG' }, 2026, { observedOnly: false }).map((h) => h.date);
+    expect(all).toContain('2026-12-26');
+    expect(all).toContain('2026-12-28');
+  });
+});
+
+describe('Europe/London clock changes (last Sunday of March and October at 01:00 UTC, EU/UK summer-time rule)', () => {
+  const cases = [
+    { date: [2026, 3, 29], change: Date.UTC(2026, 2, 29, 1), hours: 23 },
+    { date: [2026, 10, 25], change: Date.UTC(2026, 9, 25, 1), hours: 25 },
+    { date: [2027, 3, 28], change: Date.UTC(2027, 2, 28, 1), hours: 23 },
+    { date: [2027, 10, 31], change: Date.UTC(2027, 9, 31, 1), hours: 25 },
+  ] as const;
+  for (const c of cases) {
+    it(`${c.date.join('-')} is a ${c.hours}-hour day, the offset changing at ${new Date(c.change).toISOString()}`, () => {
+      const [y, m, d] = c.date;
+      const day = dayNumber(y, m, d);
+      expect((localToInstant(LONDON, day + 1, 0) - localToInstant(LONDON, day, 0)) / 3_600_000).toBe(c.hours);
+      const before = timeZoneOffset(LONDON, c.change - 1), after = timeZoneOffset(LONDON, c.change);
+      expect(before).not.toBe(after);
+      expect(Math.abs(after - before)).toBe(3_600_000);
+      expect(timeZoneOffset(LONDON, c.change - 3_600_000)).toBe(before);
+    });
+  }
+
+  it('a round-the-clock calendar has 1380 working minutes on the spring day and 1500 on the autumn day', () => {
+    const allDay: WorkingCalendar = { id: 'always', timeZone: LONDON, weekly: weeklyHours([0, 1, 2, 3, 4, 5, 6], [[0, 1440]]) };
+    expect(workingMinutesBetween(allDay, at(2026, 3, 29), at(2026, 3, 30))).toBe(1380);
+    expect(workingMinutesBetween(allDay, at(2026, 10, 25), at(2026, 10, 26))).toBe(1500);
+  });
+
+  it('a 01:30 start on the spring day (a time that never happens) moves forward to 02:30 BST', () => {
+    expect(localToInstant(LONDON, dayNumber(2026, 3, 29), 90)).toBe(Date.UTC(2026, 2, 29, 1, 30));
+  });
+});
+
+describe('working time on a Monday–Friday 08:00–17:00 calendar in England', () => {
+  it('adds working time across a bank-holiday weekend: Fri 1 May 16:00 + 2 h is Tue 5 May 09:00', () => {
+    // 4 May 2026 is the early May bank holiday (gov.uk, from memory; date-holidays agrees above).
+    expect(addWorkingMinutes(firmCal, at(2026, 5, 1, 16), 120)).toBe(at(2026, 5, 5, 9));
+  });
+
+  it('subtracts with negative minutes, landing at the start', () => {
+    expect(addWorkingMinutes(firmCal, at(2026, 5, 5, 9), -120)).toBe(at(2026, 5, 1, 16));
+  });
+
+  it('finishing exactly at 17:00 stays at 17:00 rather than jumping to the next morning', () => {
+    expect(addWorkingMinutes(firmCal, at(2026, 6, 1, 8), 540)).toBe(at(2026, 6, 1, 17));
+  });
+
+  it('next working instant from a Saturday is Monday 08:00', () => {
+    expect(nextWorkingInstant(firmCal, at(2026, 6, 6, 10))).toBe(at(2026, 6, 8, 8));
+    expect(isWorkingInstant(firmCal, at(2026, 6, 8, 8))).toBe(true);
+    expect(isWorkingInstant(firmCal, at(2026, 6, 8, 17))).toBe(false);
+  });
+
+  it('counts working days between dates over Christmas 2026: 8 from Fri 18 Dec to Mon 4 Jan', () => {
+    // 18, 21, 22, 23, 24, 29, 30, 31 Dec; 25 and 28 Dec and 1 Jan are bank holidays.
+    expect(countWorkingDays(firmCal, at(2026, 12, 18), at(2027, 1, 4))).toBe(8);
+    expect(countWorkingDays(firmCal, at(2027, 1, 4), at(2026, 12, 18))).toBe(-8);
+  });
+
+  it('lists the working intervals of a range for the board to shade the rest', () => {
+    expect(workingIntervals(firmCal, { start: at(2026, 6, 5, 12), end: at(2026, 6, 8, 10) })).toEqual([
+      { start: at(2026, 6, 5, 12), end: at(2026, 6, 5, 17) },
+      { start: at(2026, 6, 8, 8), end: at(2026, 6, 8, 10) },
+    ]);
+  });
+
+  it('moves whole working days keeping the time of day: Tue 10:00 + 5 is next Tue 10:00; Fri 17:00 + 1 is Mon 17:00', () => {
+    expect(addWorkingDays(firmCal, at(2026, 6, 2, 10), 5)).toBe(at(2026, 6, 9, 10));
+    expect(addWorkingDays(firmCal, at(2026, 6, 5, 17), 1)).toBe(at(2026, 6, 8, 17));
+    expect(addWorkingDays(firmCal, at(2026, 6, 9, 10), -5)).toBe(at(2026, 6, 2, 10));
+    expect(addWorkingDays(firmCal, at(2026, 6, 6, 12), 1)).toBe(at(2026, 6, 9, 8));
+  });
+});
+
+describe('a resource calendar: firm calendar, own hours and absences', () => {
+  const sam = resourceCalendar(firmCal, {
+    id: 'sam', weekly: weeklyHours([1, 2, 3, 4], [[7 * 60, 16 * 60]]),
+    absences: [{ start: at(2026, 6, 9), end: at(2026, 6, 11) }],
+  });
+
+  it('works Monday to Thursday 07:00–16:00 and not on the absence', () => {
+    expect(nextWorkingInstant(sam, at(2026, 6, 5, 9))).toBe(at(2026, 6, 8, 7));
+    expect(nextWorkingInstant(sam, at(2026, 6, 8, 16))).toBe(at(2026, 6, 11, 7));
+  });
+
+  it('keeps the firm\'s bank holidays: Spring bank holiday 25 May 2026 is off', () => {
+    expect(nextWorkingInstant(sam, at(2026, 5, 25, 9))).toBe(at(2026, 5, 26, 7));
+  });
+
+  it('does not change the firm calendar', () => {
+    expect(firmCal.closures).toBeUndefined();
+    expect(firmCal.weekly).toBe(MON_FRI_8_TO_5);
+  });
+});
+
+describe('refuses bad input with typed errors', () => {
+  it('an unknown time zone', () => {
+    expect(() => compileCalendar({ id: 'x', timeZone: 'Mars/Olympus', weekly: MON_FRI_8_TO_5 })).toThrow(SchedulerError);
+  });
+  it('working hours that are not minutes of a day', () => {
+    const bad = { id: 'x', timeZone: LONDON, weekly: weeklyHours([1], [[600, 1500]]) };
+    expect(() => compileCalendar(bad)).toThrowError(expect.objectContaining({ code: 'invalid_calendar' }));
+  });
+  it('a calendar with no working time at all', () => {
+    const never = { id: 'never', timeZone: LONDON, weekly: weeklyHours([], []) };
+    expect(() => nextWorkingInstant(never, at(2026, 1, 1))).toThrowError(expect.objectContaining({ code: 'no_working_time' }));
+  });
+  it('a non-finite instant', () => {
+    expect(() => addWorkingMinutes(firmCal, Number.NaN, 10)).toThrow(RangeError);
+  });
+});
+
+describe('properties of working time', () => {
+  const start2026 = at(2026, 1, 1);
+  const workingStart = fc.integer({ min: 0, max: 2 * 365 * 24 * 60 }).map((m) => nextWorkingInstant(firmCal, start2026 + m * 60_000));
+
+  it('adding then subtracting working time returns the start (starts inside working time)', () => {
+    fc.assert(fc.property(workingStart, fc.integer({ min: 1, max: 20_000 }), (s, minutes) => {
+      const end = addWorkingMinutes(firmCal, s, minutes);
+      expect(addWorkingMinutes(firmCal, end, -minutes)).toBe(s);
+      expect(workingMinutesBetween(firmCal, s, end)).toBeCloseTo(minutes, 6);
+    }), { numRuns: 300 });
+  });
+
+  it('the same holds in New York, across US clock changes and federal holidays', () => {
+    const ny: WorkingCalendar = { id: 'ny', timeZone: 'America/New_York', weekly: MON_FRI_8_TO_5, holidayRegion: { country: 'US' } };
+    fc.assert(fc.property(fc.integer({ min: 0, max: 365 * 24 * 60 }), fc.integer({ min: 1, max: 5000 }), (m, minutes) => {
+      const s = nextWorkingInstant(ny, start2026 + m * 60_000);
+      expect(addWorkingMinutes(ny, addWorkingMinutes(ny, s, minutes), -minutes)).toBe(s);
+    }), { numRuns: 200 });
+  });
+});

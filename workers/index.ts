@@ -1,0 +1,25 @@
+/** The worker process (`npm run worker`): the outbox relay and the mail worker, until SIGTERM. */
+import pino from 'pino';
+import { loadConfig } from '../server/config.ts';
+import { createKnex } from '../server/db.ts';
+import { startMailPipeline } from './pipeline.ts';
+
+const config = loadConfig();
+const logger = pino({ level: config.LOG_LEVEL }).child({ process: 'worker' });
+const knex = createKnex(config.DATABASE_URL, { min: 0, max: 5 });
+const pipeline = startMailPipeline({ knex, config, logger });
+logger.info({ queue: config.MAIL_QUEUE }, 'mail worker started');
+
+let stopping = false;
+async function shutdown(signal: string): Promise<void> {
+  if (stopping) return;
+  stopping = true;
+  logger.info(`${signal}: finishing the mail in hand…`);
+  const force = setTimeout(() => process.exit(1), 15_000);
+  force.unref();
+  await pipeline.close();
+  await knex.destroy();
+  process.exit(0);
+}
+process.on('SIGTERM', () => void shutdown('SIGTERM'));
+process.on('SIGINT', () => void shutdown('SIGINT'));
