@@ -1,0 +1,96 @@
+import { describe, expect, it } from 'vitest';
+import type { BoardData } from '@shared/board-data';
+import { closuresOf, eventsOf, groupOf, problemsByBooking, rowsOf, trayOf } from '@/components/board/board-events';
+
+const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as const;
+const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London
+
+function board(): BoardData {
+  return {
+    from: MON - 3_600_000, to: MON + 7 * 86_400_000, now: MON - 86_400_000, firmId: 'f1',
+    calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK.map((d) => d.map(([a, b]) => [a, b] as const)), holidayRegion: { country: 'GB', state: 'ENG' }, closures: [{ start: MON + 86_400_000, end: MON + 2 * 86_400_000 }] }],
+    resources: [
+      { id: 'r1', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'c1', name: 'Crew Heron', firmName: 'Tideway', firmKind: 'installer', ownership: 'owned' },
+      { id: 'r2', firmId: 'f1', category: 'machine', kind: 'excavator', calendarId: 'c1', hired: true, name: '3 t excavator', firmName: 'Tideway', firmKind: 'installer', ownership: 'hired' },
+      { id: 'r3', firmId: 'f2', category: 'person', kind: 'electrician', calendarId: 'c1', name: 'Priya', firmName: 'Brightspark', firmKind: 'electrical', ownership: 'partner' },
+    ],
+    jobs: [
+      { id: 'j1', firmId: 'f1', reference: 'TW-1', customerName: 'A Customer', siteTown: 'Otley', status: 'planned', installationType: 'in_ground', promisedBy: MON + 20 * 86_400_000 },
+      { id: 'elsewhere', firmId: 'elsewhere', reference: '', customerName: '', siteTown: '', status: 'planned', installationType: 'slab', promisedBy: null },
+    ],
+    stages: [
+      { id: 's1', jobId: 'j1', kind: 'excavation', name: 'Excavate pit', durationMinutes: 720, requirements: [{ kind: 'excavator', count: 1 }], sequence: 1 },
+      { id: 's2', jobId: 'j1', kind: 'lift', name: 'Crane lift', durationMinutes: 240, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 2 },
+      { id: 's3', jobId: 'j1', kind: 'fill', name: 'Fill', durationMinutes: 180, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 3 },
+      { id: 'elsewhere:9', jobId: 'elsewhere', kind: 'elsewhere', name: 'Busy elsewhere', durationMinutes: 60, requirements: [], sequence: 0 },
+    ],
+    dependencies: [{ id: 'd1', fromStageId: 's2', toStageId: 's3', type: 'FS', lag: { amount: 0, unit: 'working_hours' } }],
+    bookings: [
+      { id: 'b1', stageId: 's1', resourceId: 'r2', start: MON, end: MON + 9 * 3_600_000, state: 'confirmed', installerFirmId: 'f1', version: 3 },
+      { id: 'b2', stageId: 's2', resourceId: 'r1', start: MON + 86_400_000, end: MON + 86_400_000 + 4 * 3_600_000, state: 'declined', installerFirmId: 'f1', version: 1 },
+      { id: 'elsewhere-9', stageId: 'elsewhere:9', resourceId: 'r3', start: MON, end: MON + 3_600_000, state: 'sent', installerFirmId: 'elsewhere', elsewhere: true },
+    ],
+    hirePeriods: [], leadTimeRules: [],
+  };
+}
+
+describe('rows on the board', () => {
+  it('come grouped: own crews, own machines, hired machines, each partner firm, then people', () => {
+    const rows = rowsOf(board());
+    expect(rows.map((r) => [r.title, r.group])).toEqual([['Crew Heron', 'Our crews'], ['3 t excavator', 'Hired machines'], ['Priya', 'Brightspark']]);
+    expect(groupOf({ ...board().resources[0]!, category: 'person' }).group).toBe('Our people');
+  });
+
+  it("carry each resource's weekly hours as business hours (Monday–Friday 08:00–17:00)", () => {
+    const [heron] = rowsOf(board());
+    expect(heron!.businessHours).toEqual([1, 2, 3, 4, 5].map((d) => ({ daysOfWeek: [d], startTime: '08:00', endTime: '17:00' })));
+  });
+
+  it('filter by firm, kind and search', () => {
+    expect(rowsOf(board(), { firmIds: ['f2'] }).map((r) => r.id)).toEqual(['r3']);
+    expect(rowsOf(board(), { kinds: ['excavator'] }).map((r) => r.id)).toEqual(['r2']);
+    expect(rowsOf(board(), { search: 'bright' }).map((r) => r.id)).toEqual(['r3']);
+  });
+});
+
+describe('bookings as events', () => {
+  it('show job, stage and state (symbol and class), and leave declined ones off', () => {
+    const events = eventsOf(board(), { canEdit: true });
+    expect(events.map((e) => e.id)).toEqual(['b1', 'elsewhere-9']);
+    expect(events[0]).toMatchObject({ resourceId: 'r2', start: MON, title: '✔ TW-1 · Excavate pit', editable: true, classNames: ['wl-booking', 'wl-state-confirmed'] });
+    expect(events[0]!.extendedProps).toMatchObject({ bookingId: 'b1', stageId: 's1', jobId: 'j1', state: 'confirmed' });
+  });
+
+  it("show another installer's booking only as busy elsewhere, never editable", () => {
+    const busy = eventsOf(board(), { canEdit: true }).find((e) => e.id === 'elsewhere-9')!;
+    expect(busy).toMatchObject({ title: 'Busy elsewhere', editable: false, classNames: ['wl-booking', 'wl-elsewhere'] });
+  });
+
+  it("are read-only for a role that can't edit", () => {
+    expect(eventsOf(board(), { canEdit: false }).every((e) => !e.editable)).toBe(true);
+  });
+
+  it('mark a booking with an error and say what is wrong', () => {
+    const problems = problemsByBooking([{ kind: 'clash', severity: 'error', stageIds: ['s1'], resourceIds: ['r2'], bookingIds: ['b1'], message: 'The excavator is booked twice' }]);
+    const [e] = eventsOf(board(), { canEdit: true, problems });
+    expect(e!.title).toBe('⚠ ✔ TW-1 · Excavate pit');
+    expect(e!.classNames).toContain('wl-has-problem');
+    expect(e!.extendedProps.problems).toEqual(['The excavator is booked twice']);
+  });
+
+  it('filter by job and state, keeping busy blocks', () => {
+    expect(eventsOf(board(), { canEdit: true, filter: { states: ['pencilled'] } }).map((e) => e.id)).toEqual(['elsewhere-9']);
+    expect(eventsOf(board(), { canEdit: true, filter: { jobId: 'j1' } }).map((e) => e.id)).toEqual(['b1', 'elsewhere-9']);
+  });
+});
+
+describe('shading and the tray', () => {
+  it('shade closures on the rows that work to that calendar', () => {
+    expect(closuresOf(board())).toEqual([{ id: 'closure-c1-0', resourceIds: ['r1', 'r2', 'r3'], start: MON + 86_400_000, end: MON + 2 * 86_400_000, display: 'background', classNames: ['wl-closed'], title: 'Not working' }]);
+  });
+
+  it('list unbooked stages per job in dependency order (a declined booking puts a stage back)', () => {
+    const tray = trayOf(board(), () => ['s3', 's2']);
+    expect(tray.map((t) => [t.job.reference, t.stages.map((s) => s.id)])).toEqual([['TW-1', ['s3', 's2']]]);
+  });
+});
