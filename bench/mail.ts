@@ -1,7 +1,7 @@
 /**
  * `npm run bench:mail`: 1,000 bookings published to partner firms → 1,000 e-mails in a fake inbox,
  * through the real path (publish transaction → outbox → relay → BullMQ → worker → SMTP).
- * Starts its own database (waterline_bench on the project's PostgreSQL), Redis and fake SMTP inbox.
+ * Starts its own database (waterline_bench_mail on the project's PostgreSQL), Redis and fake SMTP inbox.
  */
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -21,7 +21,7 @@ const COUNT = Number(process.env.BENCH_MAIL_COUNT ?? 1000);
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const PG_PORT = Number(process.env.WATERLINE_PG_PORT ?? 54329);
 const REDIS_PORT = 63_812;
-const DB = 'waterline_bench';
+const DB = 'waterline_bench_mail';
 
 const pgHandle = await startPostgres(path.join(root, '.data'), PG_PORT);
 const admin = new pg.Client({ host: '127.0.0.1', port: PG_PORT, user: 'postgres', database: 'postgres' });
@@ -68,8 +68,8 @@ try {
   const scheduler = await knex('users').where('email', 'sam.okafor@tideway.example').first('id');
   const actor = (await actorFor(knex, String(scheduler.id), String(tideway.id)))!;
   const confirmations = new ConfirmationsService(knex);
-  const pipeline = startMailPipeline({ knex, config, logger: pino({ level: 'warn' }), concurrency: 20, relay: { idleMs: 20, batchSize: 200 } });
-
+  // Publishing first (the outbox fills; nothing needs Redis), then the relay and worker drain it:
+  // the two figures are the write path and the mail path on their own.
   console.log(`Publishing ${COUNT} bookings of partner firms' resources…`);
   const t0 = performance.now();
   let next = 0;
@@ -80,7 +80,9 @@ try {
     }
   }));
   const tPublished = performance.now();
-  while (inbox.messages.length < COUNT && performance.now() - t0 < 300_000) await new Promise((r) => setTimeout(r, 20));
+  console.log(`Starting the relay and mail worker (concurrency 20)…`);
+  const pipeline = startMailPipeline({ knex, config, logger: pino({ level: 'warn' }), concurrency: 20, relay: { idleMs: 20, batchSize: 200 } });
+  while (inbox.messages.length < COUNT && performance.now() - tPublished < 300_000) await new Promise((r) => setTimeout(r, 20));
   const tDelivered = performance.now();
   await new Promise((r) => setTimeout(r, 2000)); // anything doubled would arrive by now
 
@@ -89,11 +91,13 @@ try {
   const wanted = new Set(bookings.map((b) => `booking.${b.id}.v${b.version + 1}.request`));
   const missing = [...wanted].filter((k) => ![...unique].some((u) => u?.startsWith(k)));
   const outbox = await knex('outbox').select('status').count('* as n').groupBy('status');
-  const seconds = (tDelivered - t0) / 1000;
+  const publishS = (tPublished - t0) / 1000;
+  const mailS = (tDelivered - tPublished) / 1000;
   console.log([
-    `published:            ${COUNT} in ${((tPublished - t0) / 1000).toFixed(2)} s`,
-    `delivered:            ${inbox.messages.length} e-mails in ${seconds.toFixed(2)} s from the first publish`,
-    `throughput:           ${(inbox.messages.length / seconds).toFixed(1)} e-mails/s`,
+    `published:            ${COUNT} bookings in ${publishS.toFixed(2)} s (${(COUNT / publishS).toFixed(1)} publishes/s, 8 at a time)`,
+    `delivered:            ${inbox.messages.length} e-mails in ${mailS.toFixed(2)} s after the worker started`,
+    `mail throughput:      ${(inbox.messages.length / mailS).toFixed(1)} e-mails/s (render + sign links + iCalendar + SMTP + parse at the inbox)`,
+    `end to end:           ${((tDelivered - t0) / 1000).toFixed(2)} s from the first publish to the last e-mail`,
     `distinct messages:    ${unique.size} (doubled: ${keys.length - unique.size}, missing: ${missing.length})`,
     `outbox rows:          ${outbox.map((r) => `${r.status} ${r.n}`).join(', ')}`,
   ].join('\n'));

@@ -18,15 +18,17 @@ import { DEMO_ACCOUNTS } from '../seeds/demo-accounts.ts';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const dataDir = path.join(root, '.data');
-const mode = process.argv[2] === 'test' ? 'test' : 'start';
+const mode = process.argv[2] === 'test' || process.argv[2] === 'bench' ? process.argv[2] : 'start';
+/** Tests and benchmarks run beside a running `npm start`: fakes on free ports, their own database. */
+const isolated = mode !== 'start';
 const PORTS = {
   postgres: Number(process.env.WATERLINE_PG_PORT ?? 54329),
   redis: Number(process.env.WATERLINE_REDIS_PORT ?? 63799),
   // Tests take any free port for the fakes (their URLs are passed on), so runs never collide.
-  oauth: mode === 'test' ? 0 : 4011,
-  objectStore: mode === 'test' ? 0 : 4569,
-  smtp: mode === 'test' ? 0 : 2525,
-  inbox: mode === 'test' ? 0 : 1080,
+  oauth: isolated ? 0 : 4011,
+  objectStore: isolated ? 0 : 4569,
+  smtp: isolated ? 0 : 2525,
+  inbox: isolated ? 0 : 1080,
   app: Number(process.env.PORT ?? 3000),
 };
 
@@ -78,18 +80,18 @@ function spawnChild(cmd: string, args: string[], env: NodeJS.ProcessEnv): ChildP
 }
 
 async function main(): Promise<void> {
-  ensureDebianPackages(mode === 'test' ? ['redis-server', 'chromium'] : ['redis-server']);
+  ensureDebianPackages(isolated ? ['redis-server', 'chromium'] : ['redis-server']);
 
   const pg = await startPostgres(dataDir, PORTS.postgres);
   cleanups.push(() => pg.stop());
-  const database = mode === 'test' ? (process.env.WATERLINE_TEST_DB ?? 'waterline_test') : 'waterline';
+  const database = mode === 'test' ? (process.env.WATERLINE_TEST_DB ?? 'waterline_test') : mode === 'bench' ? 'waterline_bench' : 'waterline';
   await ensureDatabase(PORTS.postgres, database);
   const redis = await startRedis(dataDir, PORTS.redis);
   cleanups.push(() => redis.stop());
   const oauth = await startFakeOAuthProvider(PORTS.oauth, DEMO_ACCOUNTS.map((a) => ({ email: a.email, name: a.name, hint: `${a.role} · ${a.firm}` })));
   cleanups.push(() => oauth.stop());
   // Job photos and documents: a fake S3 on loopback (emptied for each test run).
-  const s3 = await startFakeObjectStore(dataDir, PORTS.objectStore, 'waterline', mode === 'test');
+  const s3 = await startFakeObjectStore(dataDir, PORTS.objectStore, 'waterline', isolated);
   cleanups.push(() => s3.stop());
   // E-mail goes to a local inbox page instead of anyone's mailbox.
   const inbox = await startFakeSmtpInbox({ smtp: PORTS.smtp, web: PORTS.inbox });
@@ -98,11 +100,11 @@ async function main(): Promise<void> {
   const publicUrl = `http://127.0.0.1:${PORTS.app}`;
   const env: NodeJS.ProcessEnv = {
     ...process.env,
-    NODE_ENV: mode === 'test' ? 'test' : 'development',
+    NODE_ENV: isolated ? 'test' : 'development',
     PORT: String(PORTS.app),
     PUBLIC_URL: publicUrl,
     DATABASE_URL: `postgres://postgres@127.0.0.1:${PORTS.postgres}/${database}`,
-    REDIS_URL: `redis://127.0.0.1:${PORTS.redis}/${mode === 'test' ? 1 : 0}`,
+    REDIS_URL: `redis://127.0.0.1:${PORTS.redis}/${mode === 'test' ? 1 : mode === 'bench' ? 2 : 0}`,
     SESSION_SECRET: process.env.SESSION_SECRET ?? 'local-only-session-secret-not-for-production',
     GOOGLE_CLIENT_ID: 'waterline-local',
     GOOGLE_CLIENT_SECRET: 'waterline-local-secret',
@@ -116,9 +118,18 @@ async function main(): Promise<void> {
     S3_SECRET_ACCESS_KEY: s3.secretAccessKey,
     SMTP_URL: inbox.smtpUrl,
     FAKE_INBOX_URL: inbox.url,
-    LOG_LEVEL: process.env.LOG_LEVEL ?? (mode === 'test' ? 'silent' : 'info'),
+    LOG_LEVEL: process.env.LOG_LEVEL ?? (isolated ? 'silent' : 'info'),
   };
   const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
+
+  if (mode === 'bench') {
+    // `npm run bench:… ` → the named benchmark script, with the services it needs.
+    await buildClientIfStale();
+    const [script, ...rest] = process.argv.slice(3);
+    if (!script) throw new Error('bench mode needs a script, e.g. bench/board.ts');
+    const code = await new Promise<number>((resolve) => spawnChild(tsx, [path.join(root, script), ...rest], env).on('exit', (c) => resolve(c ?? 1)));
+    return stopAll(code);
+  }
 
   if (mode === 'test') {
     // `npm test -- <filter>` runs just those test files (for work in progress); plain `npm test` runs everything.

@@ -18,7 +18,7 @@ export interface MailWorkerOptions {
 interface OutboxRow { id: string; idempotencyKey: string; kind: OutboxKind; payload: OutboxPayload; status: string }
 
 export function createTransport(smtpUrl: string): Transporter {
-  return nodemailer.createTransport({ url: smtpUrl, pool: true, maxConnections: 5, maxMessages: 500 } as never);
+  return nodemailer.createTransport({ url: smtpUrl, pool: true, maxConnections: 10, maxMessages: 500 } as never);
 }
 
 /**

@@ -79,6 +79,6 @@ export function describeWindow(startsAt: Date, endsAt: Date, timeZone: string): 
   return {
     date: sameDay ? dayOf(startsAt) : `${dayOf(startsAt)} to ${dayOf(endsAt)}`,
     window: sameDay ? `${time.format(startsAt)}–${time.format(endsAt)}` : `${time.format(startsAt)} on the first day to ${time.format(endsAt)} on the last`,
-    zone: `${timeZone} (${zoneName})`,
+    zone: `${timeZone}, ${zoneName}`,
   };
 }

@@ -94,7 +94,9 @@ async function composeRequest(deps: ComposeDeps, f: BookingFacts, kind: OutboxKi
     footer: [`Sent by Waterline for ${f.installer.name} to ${f.partner.name}. Each button opens a page where you confirm your choice; the links stop working once used or when the slot changes.`],
   };
   const { html, text } = renderMail(content);
-  const ics = bookingInvite(f, f.booking.version, { method: 'request', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), description: text, now });
+  // The calendar entry carries the facts, not the single-use answer links (calendars get shared).
+  const description = renderMail({ ...content, buttons: [] }).text;
+  const ics = bookingInvite(f, f.booking.version, { method: 'request', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), description, now });
   return { to: f.recipients, subject: head.subject, html, text, ics: { method: 'REQUEST', content: ics } };
 }
 

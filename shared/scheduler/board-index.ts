@@ -80,17 +80,27 @@ function byId(a: Booking, b: Booking): number {
   return a.id < b.id ? -1 : a.id > b.id ? 1 : 0;
 }
 
-/** Kahn's algorithm over the resolved links; Tarjan's only over what it could not order. */
+/**
+ * Kahn's algorithm over the resolved links, taking the most recently freed stage first (a stack),
+ * so each job's stages come out together; Tarjan's only over what it could not order.
+ */
 function orderStages(list: StageInfo[]): { order: StageInfo[]; blocked: Set<string>; cycles: string[][] } {
   const indeg = new Int32Array(list.length);
   for (const s of list) indeg[s.idx] = s.depsIn.length;
+  const stack: StageInfo[] = [];
+  for (let i = list.length - 1; i >= 0; i--) {
+    const s = list[i] as StageInfo;
+    if (indeg[s.idx] === 0) stack.push(s);
+  }
   const order: StageInfo[] = [];
-  for (const s of list) if (indeg[s.idx] === 0) order.push(s);
-  for (let q = 0; q < order.length; q++) {
-    for (const l of (order[q] as StageInfo).depsOut) {
-      const left = (indeg[l.to.idx] as number) - 1;
-      indeg[l.to.idx] = left;
-      if (left === 0) order.push(l.to);
+  while (stack.length > 0) {
+    const s = stack.pop() as StageInfo;
+    order.push(s);
+    for (let k = s.depsOut.length - 1; k >= 0; k--) {
+      const to = (s.depsOut[k] as DepLink).to;
+      const left = (indeg[to.idx] as number) - 1;
+      indeg[to.idx] = left;
+      if (left === 0) stack.push(to);
     }
   }
   if (order.length === list.length) return { order, blocked: new Set(), cycles: [] };

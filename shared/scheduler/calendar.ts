@@ -25,7 +25,11 @@ export interface CompiledCalendar {
 class CalendarImpl implements CompiledCalendar {
   readonly source: WorkingCalendar;
   readonly timeZone: string;
-  private readonly days = new Map<number, readonly number[]>();
+  // Day intervals by local day, in a dense array from dayBase (days in use span a year or two, so
+  // an array beats a Map on the hot path). Far-off days fall back to the Map.
+  private dayBase = 0;
+  private dayArr: (readonly number[] | undefined)[] = [];
+  private readonly farDays = new Map<number, readonly number[]>();
   private readonly closures: number[];
   private cumBase = 0;
   private cum: number[] = [];
@@ -49,11 +53,35 @@ class CalendarImpl implements CompiledCalendar {
   }
 
   dayIntervals(day: number): readonly number[] {
-    const cached = this.days.get(day);
-    if (cached !== undefined) return cached;
-    const built = this.build(day);
-    this.days.set(day, built);
-    return built;
+    const i = day - this.dayBase;
+    const arr = this.dayArr;
+    if (i >= 0 && i < arr.length) {
+      const hit = arr[i];
+      if (hit !== undefined) return hit;
+      const built = this.build(day);
+      arr[i] = built;
+      return built;
+    }
+    if (arr.length === 0) {
+      this.dayBase = day - 366;
+      this.dayArr = new Array<readonly number[] | undefined>(3 * 366).fill(undefined);
+      return this.dayIntervals(day);
+    }
+    // Grow towards the day when it is near (within about four years), else keep it aside.
+    if (i < 0 && i > -1500) {
+      const grow = -i + 366;
+      this.dayArr = new Array<readonly number[] | undefined>(grow).fill(undefined).concat(arr);
+      this.dayBase -= grow;
+      return this.dayIntervals(day);
+    }
+    if (i >= arr.length && i < arr.length + 1500) {
+      const target = i + 366;
+      while (arr.length < target) arr.push(undefined);
+      return this.dayIntervals(day);
+    }
+    let far = this.farDays.get(day);
+    if (far === undefined) { far = this.build(day); this.farDays.set(day, far); }
+    return far;
   }
 
   workedUntil(instant: Instant): number {

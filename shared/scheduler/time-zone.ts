@@ -30,6 +30,8 @@ interface ZoneCache {
   hi: number;
   starts: number[];
   offsets: number[];
+  /** Segment of the last lookup: most lookups fall in the same one. */
+  hint: number;
 }
 
 const zones = new Map<string, ZoneCache>();
@@ -49,7 +51,7 @@ function zone(timeZone: string): ZoneCache {
     } catch {
       throw new SchedulerError('invalid_time_zone', `"${timeZone}" is not a time zone this engine knows`);
     }
-    z = { format, lo: 0, hi: 0, starts: [], offsets: [] };
+    z = { format, lo: 0, hi: 0, starts: [], offsets: [], hint: 0 };
     zones.set(timeZone, z);
   }
   lastName = timeZone;
@@ -152,11 +154,14 @@ export function timeZoneOffset(timeZone: string, instant: Instant): number {
     cover(z, instant);
   }
   const starts = z.starts;
+  const h = z.hint;
+  if ((starts[h] as number) <= instant && (h + 1 >= starts.length || instant < (starts[h + 1] as number))) return z.offsets[h] as number;
   let lo = 0, hi = starts.length - 1;
   while (lo < hi) {
     const mid = (lo + hi + 1) >> 1;
     if ((starts[mid] as number) <= instant) lo = mid; else hi = mid - 1;
   }
+  z.hint = lo;
   return z.offsets[lo] as number;
 }
 

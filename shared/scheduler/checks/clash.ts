@@ -53,18 +53,21 @@ export function personPairViolation(index: BoardIndex, personId: string, x: Book
 
 /** Calls `visit` for every overlapping pair in a list sorted by start (sweep, O(n log n + pairs)). */
 function sweep(list: readonly Booking[], visit: (a: Booking, b: Booking) => void): void {
+  // `active` holds the bookings still running, compacted in place; its tail beyond `n` is stale
+  // (shrinking an array's length trims the heap and was slow in the benchmark).
   const active: Booking[] = [];
+  let n = 0;
   for (const b of list) {
     let keep = 0;
-    for (let i = 0; i < active.length; i++) {
+    for (let i = 0; i < n; i++) {
       const a = active[i] as Booking;
       if (a.end > b.start) {
         active[keep++] = a;
         visit(a, b);
       }
     }
-    active.length = keep;
-    active.push(b);
+    active[keep] = b;
+    n = keep + 1;
   }
 }
 

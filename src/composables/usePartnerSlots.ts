@@ -1,0 +1,27 @@
+import { computed, ref } from 'vue';
+import { api } from '@/api/client';
+import { useApiResource } from '@/composables/useApiResource';
+import type { PartnerAnswer, PartnerSlot } from '@shared/schemas/answers';
+
+/**
+ * A partner firm's upcoming slots (GET /api/partner/slots) and its answers to them. `busy` holds
+ * the id of the slot being answered, so its buttons can show progress.
+ * @example const { slots, loading, error, refresh, answer } = usePartnerSlots()
+ */
+export function usePartnerSlots() {
+  const { data, loading, error, refresh } = useApiResource<{ items: PartnerSlot[] }>(() => ({ path: '/api/partner/slots' }));
+  const busy = ref<string | null>(null);
+  const slots = computed(() => data.value?.items ?? []);
+
+  async function answer(slotId: string, body: PartnerAnswer): Promise<void> {
+    busy.value = slotId;
+    try {
+      await api.post(`/api/partner/slots/${slotId}/answer`, body);
+      await refresh();
+    } finally {
+      busy.value = null;
+    }
+  }
+
+  return { slots, loading, error, refresh, answer, busy };
+}
