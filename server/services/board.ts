@@ -41,53 +41,57 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
   const to = new Date(query.to);
   const reach = reachOf(actor);
 
-  const resources = await scoped(Resource, actor, trx).where('resources.active', true)
-    .join('firms', 'firms.id', 'resources.firm_id')
-    .select('resources.*', 'firms.name as firmName', 'firms.kind as firmKind', 'firms.time_zone as timeZone', 'firms.holiday_region as holidayRegion')
-    .orderBy(['resources.id']) as ResourceRow[];
-  const resourceIds = resources.map((r) => r.id);
-  const firmIds = [...new Set(resources.map((r) => r.firmId))];
-
-  const [members, calendarRows, exceptions, windowBookings] = await Promise.all([
-    knex('crew_members').whereIn('crew_id', resourceIds).select('crew_id as crewId', 'person_id as personId') as Promise<{ crewId: string; personId: string }[]>,
-    Calendar.query(trx).whereIn('firm_id', firmIds).orderBy('id'),
-    scoped(CalendarException, actor, trx).where('ends_at', '>', new Date(query.from - 30 * 86_400_000)).where('starts_at', '<', new Date(query.to + 60 * 86_400_000)),
-    scoped(Booking, actor, trx).where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from),
-  ]);
-
-  // Jobs: those with work in the range, the ones asked for, and (for the office) every open job
-  // that still has stages waiting in the tray.
-  const windowJobIds = (await knex('stages').whereIn('id', windowBookings.map((b) => b.stageId)).distinct().pluck('job_id')).map(String);
-  const jobQuery = scoped(Job, actor, trx).where((w) => {
-    w.whereIn('jobs.id', [...windowJobIds, ...(query.jobIds ?? [])]);
+  // Every query is scoped, and they run together: the sets they depend on (the visible
+  // resources, the jobs in play) are subqueries, not round trips. Rows come back plain (no model
+  // instances): the board reads thousands of them.
+  // A knex builder runs again on every await: take its result once, as a plain promise.
+  const rows = <T>(q: { toKnexQuery(): Knex.QueryBuilder }): Promise<T[]> => q.toKnexQuery().then((r: unknown) => r as T[]);
+  const visibleResourceIds = scoped(Resource, actor, trx).where('resources.active', true).select('resources.id').toKnexQuery();
+  const windowStageIds = scoped(Booking, actor, trx).where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from).select('bookings.stage_id').toKnexQuery();
+  const jobIdQuery = scoped(Job, actor, trx).where((w) => {
+    w.whereIn('jobs.id', knex('stages').select('job_id').whereIn('id', windowStageIds) as never);
+    if (query.jobIds?.length) w.orWhereIn('jobs.id', query.jobIds);
+    // The office also sees every open job that still has stages waiting in the tray.
     if (reach === 'installer-office') {
       w.orWhereRaw(`jobs.status = ANY(?) AND EXISTS (SELECT 1 FROM stages s WHERE s.job_id = jobs.id
         AND NOT EXISTS (SELECT 1 FROM bookings b WHERE b.stage_id = s.id AND b.state <> 'declined'))`, [OPEN_JOB_STATUSES]);
     }
   });
-  const jobs = await jobQuery;
-  const jobIds = jobs.map((j) => j.id);
-  const stages = await scoped(Stage, actor, trx).whereIn('stages.job_id', jobIds).orderBy(['stages.job_id', 'stages.sequence']);
-  const stageIds = stages.map((s) => s.id);
-  const [deps, jobBookings, hires, rules] = await Promise.all([
-    scoped(DependencyModel, actor, trx).whereIn('dependencies.from_stage_id', stageIds),
-    scoped(Booking, actor, trx).whereIn('bookings.stage_id', stageIds),
-    scoped(HireModel, actor, trx).whereIn('hire_periods.resource_id', resourceIds),
-    reach === 'installer-office' ? scoped(LeadModel, actor, trx) : Promise.resolve([] as LeadModel[]),
+  // The jobs in play are found once; the rest is fetched by those ids as one array parameter.
+  const jobsPromise = rows<Job>(jobIdQuery.select('jobs.id', 'jobs.firm_id', 'jobs.reference', 'jobs.customer_name', 'jobs.site_town', 'jobs.status', 'jobs.installation_type', 'jobs.promised_to', 'jobs.ordered_on'));
+  const byJobs = async <T>(build: (jobIds: string[]) => { toKnexQuery(): Knex.QueryBuilder }) => rows<T>(build((await jobsPromise).map((j) => j.id)));
+  const stagesOf = (jobIds: string[]) => knex.raw('SELECT id FROM stages WHERE job_id = ANY(?::bigint[])', [jobIds]);
+
+  const [resources, members, calendarRows, exceptions, jobs, stages, deps, bookingRows, hires, rules, elsewhere] = await Promise.all([
+    rows<ResourceRow>(scoped(Resource, actor, trx).where('resources.active', true).join('firms', 'firms.id', 'resources.firm_id')
+      .select('resources.*', 'firms.name as firmName', 'firms.kind as firmKind', 'firms.time_zone as timeZone', 'firms.holiday_region as holidayRegion')
+      .orderBy('resources.id')),
+    knex('crew_members').whereIn('crew_id', visibleResourceIds).select('crew_id', 'person_id') as Promise<{ crewId: string; personId: string }[]>,
+    rows<Calendar>(Calendar.query(trx).whereIn('firm_id', knex('resources').select('firm_id').whereIn('id', visibleResourceIds) as never).orderBy('id')),
+    rows<CalendarException>(scoped(CalendarException, actor, trx).where('ends_at', '>', new Date(query.from - 30 * 86_400_000)).where('starts_at', '<', new Date(query.to + 60 * 86_400_000))),
+    jobsPromise,
+    byJobs<Stage>((ids) => scoped(Stage, actor, trx).whereRaw('stages.job_id = ANY(?::bigint[])', [ids])
+      .select('stages.id', 'stages.job_id', 'stages.kind', 'stages.name', 'stages.sequence', 'stages.duration_minutes', 'stages.requirements', 'stages.cure').orderBy(['stages.job_id', 'stages.sequence'])),
+    byJobs<DependencyModel>((ids) => scoped(DependencyModel, actor, trx).whereIn('dependencies.to_stage_id', stagesOf(ids) as never)
+      .select('dependencies.id', 'dependencies.from_stage_id', 'dependencies.to_stage_id', 'dependencies.type', 'dependencies.lag_amount', 'dependencies.lag_unit')),
+    byJobs<Booking & { startMs: number; endMs: number }>((ids) => scoped(Booking, actor, trx).where((w) => w.whereIn('bookings.stage_id', stagesOf(ids) as never)
+      .orWhere((o) => o.where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from)))
+      .select('bookings.id', 'bookings.stage_id', 'bookings.resource_id', 'bookings.state', 'bookings.version',
+        // Instants as epoch milliseconds straight from PostgreSQL: no Date per row.
+        knex.raw('(extract(epoch from bookings.starts_at) * 1000)::float8 AS start_ms'), knex.raw('(extract(epoch from bookings.ends_at) * 1000)::float8 AS end_ms'))),
+    rows<HireModel>(scoped(HireModel, actor, trx).whereIn('hire_periods.resource_id', visibleResourceIds as never)),
+    reach === 'installer-office' ? rows<LeadModel>(scoped(LeadModel, actor, trx)) : Promise.resolve([] as LeadModel[]),
+    // Bookings on visible partner resources by stages we may not see (another installer's on a
+    // shared partner): they block the slot, nothing more is told.
+    reach === 'installer-office'
+      ? knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').join('jobs as j', 'j.id', 's.job_id')
+        .whereIn('b.resource_id', knex('resources').select('id').whereIn('id', visibleResourceIds).whereNot('firm_id', actor.firmId))
+        .whereNot('j.firm_id', actor.firmId).whereNot('b.state', 'declined').where('b.starts_at', '<', to).where('b.ends_at', '>', from)
+        .select('b.id', 'b.resource_id as resourceId', 'b.starts_at as startsAt', 'b.ends_at as endsAt', 'b.state') as Promise<{ id: string; resourceId: string; startsAt: Date; endsAt: Date; state: Booking['state'] }[]>
+      : Promise.resolve([]),
   ]);
 
-  const visibleBookings = new Map<string, Booking>();
-  for (const b of [...windowBookings, ...jobBookings]) visibleBookings.set(b.id, b);
-  // Bookings on visible resources by stages we may not see (another installer's, on a shared
-  // partner): they block the slot, nothing more is told.
-  const partnerResourceIds = resources.filter((r) => r.firmId !== actor.firmId).map((r) => r.id);
-  const elsewhere = reach === 'installer-office' && partnerResourceIds.length
-    ? await knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').join('jobs as j', 'j.id', 's.job_id')
-      .whereIn('b.resource_id', partnerResourceIds).whereNot('j.firm_id', actor.firmId).whereNot('b.state', 'declined')
-      .where('b.starts_at', '<', to).where('b.ends_at', '>', from)
-      .select('b.id', 'b.resource_id as resourceId', 'b.starts_at as startsAt', 'b.ends_at as endsAt', 'b.state') as { id: string; resourceId: string; startsAt: Date; endsAt: Date; state: Booking['state'] }[]
-    : [];
-
+  const visibleBookings = new Map(bookingRows.map((b) => [b.id, b]));
   const jobById = new Map(jobs.map((j) => [j.id, j]));
   const stageById = new Map(stages.map((s) => [s.id, s]));
 
@@ -123,7 +127,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
   });
 
   const bookings: BoardBooking[] = [...visibleBookings.values()].filter((b) => stageById.has(b.stageId)).map((b) => ({
-    id: b.id, stageId: b.stageId, resourceId: b.resourceId, start: b.startsAt.getTime(), end: b.endsAt.getTime(),
+    id: b.id, stageId: b.stageId, resourceId: b.resourceId, start: b.startMs, end: b.endMs,
     state: b.state, version: b.version, installerFirmId: jobById.get(stageById.get(b.stageId)!.jobId)!.firmId,
   }));
   const boardStages: BoardStage[] = stages.map((s) => ({

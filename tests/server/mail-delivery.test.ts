@@ -112,6 +112,21 @@ describe('moving a booking already sent', () => {
   });
 });
 
+describe('a move through the board API (PATCH /api/bookings/:id)', () => {
+  it('queues the update in the same transaction as the move', async () => {
+    await ctx.inbox.clear();
+    const b = await pencilIn(ctx.knex, { job: 'TW-2423', stage: 'lift', resource: '25 t city crane', startsAt: '2027-03-22T08:00:00Z', endsAt: '2027-03-22T12:00:00Z' });
+    await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking request') && m.subject.includes('22 Mar 2027'));
+    const res = await scheduler.patch(`/api/bookings/${b.id}`).set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 2, startsAt: '2027-03-23T08:00:00Z', endsAt: '2027-03-23T12:00:00Z' });
+    expect(res.status).toBe(200);
+    expect(res.body.bookings[0]).toMatchObject({ version: 3, state: 'sent' });
+    const [mail] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking changed') && m.subject.includes('23 Mar 2027'));
+    expect(calendarOf(mail!)).toMatchObject({ uid: `booking-${b.id}@waterline`, sequence: 3 });
+  });
+});
+
 describe('cancelling a sent booking', () => {
   it('sends METHOD:CANCEL for the same UID and puts the booking back to pencilled', async () => {
     await ctx.inbox.clear();

@@ -27,3 +27,24 @@ export function boardTitle(view: BoardViewName, date: string): string {
   monday.setUTCDate(d.getUTCDate() - ((d.getUTCDay() + 6) % 7));
   return `Week of ${new Intl.DateTimeFormat('en-GB', { timeZone: 'UTC', day: 'numeric', month: 'long', year: 'numeric' }).format(monday)}`;
 }
+
+const DAY = 86_400_000;
+
+/**
+ * The instants a view of `date` shows, with a day's margin each side (so the firm's time zone never
+ * cuts a booking off): what the board loads before the timeline is drawn.
+ * @example rangeOf('resourceTimelineWeek', '2026-12-09') // Mon 7 Dec − 1 day … Mon 14 Dec + 1 day
+ */
+export function rangeOf(view: BoardViewName, date: string): { from: number; to: number } {
+  const d = new Date(`${date}T00:00:00Z`);
+  let start = d.getTime();
+  let end = start + DAY;
+  if (view === 'resourceTimelineWeek') {
+    start -= ((d.getUTCDay() + 6) % 7) * DAY;
+    end = start + 7 * DAY;
+  } else if (view === 'resourceTimelineMonth') {
+    start = Date.UTC(d.getUTCFullYear(), d.getUTCMonth(), 1);
+    end = Date.UTC(d.getUTCFullYear(), d.getUTCMonth() + 1, 1);
+  }
+  return { from: start - DAY, to: end + DAY };
+}
