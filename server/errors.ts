@@ -47,9 +47,7 @@ export function fieldErrorsOf(error: ZodError, prefix?: string): FieldError[] {
 function toHttpError(err: unknown): HttpError | null {
   if (err instanceof HttpError) return err;
   if (err instanceof ZodError) return new BadRequestError('Some fields are not valid.', fieldErrorsOf(err));
-  if (err instanceof ConstraintViolationError || (err as { code?: string })?.code === '23P01') {
-    return new ConflictError('That resource already has a confirmed booking at that time.', { code: 'double-booked' });
-  }
+  // Unique, foreign-key and check violations are ConstraintViolationErrors too: test them first.
   if (err instanceof UniqueViolationError) {
     return new ConflictError(`That ${err.columns?.join(', ') || 'value'} is already in use.`, { errors: (err.columns ?? []).map((c) => ({ field: c, message: 'is already in use' })) });
   }
@@ -57,6 +55,10 @@ function toHttpError(err: unknown): HttpError | null {
   if (err instanceof NotNullViolationError) return new BadRequestError(`${err.column} is required.`, [{ field: err.column, message: 'is required' }]);
   if (err instanceof CheckViolationError) return new BadRequestError('A value is out of range.', [{ field: err.constraint, message: 'is out of range' }]);
   if (err instanceof DataError) return new BadRequestError('A value has the wrong form.');
+  const sqlState = (err as { nativeError?: { code?: string }; code?: string })?.nativeError?.code ?? (err as { code?: string })?.code;
+  if (sqlState === '23P01' || err instanceof ConstraintViolationError) {
+    return new ConflictError('That resource already has a confirmed booking at that time.', { code: 'double-booked' });
+  }
   const e = err as { type?: string; status?: number; statusCode?: number; expose?: boolean; message?: string };
   // body-parser errors (malformed JSON, too large) carry their own status.
   if (e?.expose && typeof (e.status ?? e.statusCode) === 'number') {

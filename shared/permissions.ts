@@ -25,6 +25,9 @@ export const PERMISSIONS = {
   /** Crew mark their own bookings on site and done. */
   'bookings:progress': ['crew', 'owner', 'scheduler'],
   'units:read': OFFICE,
+  /** Site surveys: the office reads them; whoever stands in the garden (often a crew) fills them in. */
+  'surveys:read': [...OFFICE, 'crew'],
+  'surveys:write': ['owner', 'scheduler', 'crew'],
   'hire:read': ['owner', 'scheduler', 'manager'],
   'hire:approve': ['owner', 'manager'],
   'reports:read': ['owner', 'manager'],

@@ -3,7 +3,7 @@ import type { RouteTable } from './table.ts';
 import { parse } from '../middleware/validate.ts';
 import { IdParams } from '../../shared/schemas/common.ts';
 import { CreateJob, JobQuery } from '../../shared/schemas/jobs.ts';
-import { BookingRange, CreateBooking, CreateBookings, MoveStage, RemoveBooking, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import { BookingRange, CreateBooking, CreateBookings, MarkProgress, MoveStage, RemoveBooking, UpdateBooking } from '../../shared/schemas/bookings.ts';
 import { SwitchFirm } from '../../shared/schemas/session.ts';
 import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
@@ -65,7 +65,7 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     .post('/api/jobs', 'jobs:write', async (req, res) => {
       res.status(201).json(await jobs.create(req.actor!, parse(CreateJob, req.body)));
     })
-    .get('/api/jobs/:id', 'jobs:read', async (req, res) => {
+    .get('/api/jobs/:id', 'surveys:read', async (req, res) => {
       res.json(await jobs.get(req.actor!, parse(IdParams, req.params, 'params').id));
     })
     .get('/api/bookings', 'bookings:read', async (req, res) => {
@@ -89,6 +89,10 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
       const { id } = parse(IdParams, req.params, 'params');
       await bookings.remove(req.actor!, id, parse(RemoveBooking, req.query, 'query').version);
       res.status(204).end();
+    })
+    .post('/api/bookings/:id/progress', 'bookings:progress', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await bookings.markProgress(req.actor!, id, parse(MarkProgress, req.body)));
     })
     .post('/api/stages/:id/move', 'bookings:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');

@@ -56,14 +56,14 @@ export function jobWorkRoutes(table: RouteTable, { knex, config, store: given }:
     .patch('/api/jobs/:id', 'jobs:write', async (req, res) => {
       res.json(await edits.update(req.actor!, id(req), parse(UpdateJob, req.body)));
     })
-    .get('/api/jobs/:id/survey', 'jobs:read', async (req, res) => {
+    .get('/api/jobs/:id/survey', 'surveys:read', async (req, res) => {
       res.json(await surveys.get(req.actor!, id(req)));
     })
-    .put('/api/jobs/:id/survey', 'jobs:write', async (req, res) => {
+    .put('/api/jobs/:id/survey', 'surveys:write', async (req, res) => {
       const jobId = id(req);
       res.json(await surveys.put(req.actor!, jobId, parse(PutSurvey, req.body)));
     })
-    .get('/api/jobs/:id/quantities', 'jobs:read', async (req, res) => {
+    .get('/api/jobs/:id/quantities', 'surveys:read', async (req, res) => {
       res.json(await surveys.quantities(req.actor!, id(req)));
     })
     .get('/api/jobs/:id/stages', 'jobs:read', async (req, res) => {
@@ -72,10 +72,10 @@ export function jobWorkRoutes(table: RouteTable, { knex, config, store: given }:
     .post('/api/jobs/:id/plan', 'jobs:write', async (req, res) => {
       res.status(201).json(await plans.plan(req.actor!, id(req)));
     })
-    .get('/api/jobs/:id/files', 'jobs:read', async (req, res) => {
+    .get('/api/jobs/:id/files', 'surveys:read', async (req, res) => {
       res.json({ items: await files.list(req.actor!, id(req)) });
     })
-    .post('/api/jobs/:id/files', 'jobs:write', async (req, res) => {
+    .post('/api/jobs/:id/files', 'surveys:write', async (req, res) => {
       const jobId = id(req);
       await receiveFile(req, res);
       if (!req.file) throw new BadRequestError('Choose a file to upload.', [{ field: 'file', message: 'is required' }]);

@@ -1,5 +1,5 @@
 import type { Knex } from 'knex';
-import type { BookingView, CreateBooking, MoveStage, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import type { BookingView, CreateBooking, MarkProgress, MoveStage, UpdateBooking } from '../../shared/schemas/bookings.ts';
 import { addWorkingMinutes, createBoardIndex, resourceCalendarOf, type Violation } from '../../shared/scheduler/index.ts';
 import { bookingsOfStage, shiftDependents } from '../../shared/board-actions.ts';
 import { toEngineBoard } from '../../shared/board-data.ts';
@@ -157,6 +157,27 @@ export class BookingsService {
       }
       const warnings = await verifyStages(trx, actor, shifts.map((s) => s.stageId), this.now());
       return { bookings: await this.views(actor, changed.map((b) => b.id), trx), warnings };
+    });
+  }
+
+  /**
+   * A crew marks its own booking on site, then done. Only the state changes (the time stays), so
+   * the engine has nothing new to check; it must happen in order.
+   */
+  async markProgress(actor: Actor, id: string, input: MarkProgress): Promise<BookingView> {
+    return this.knex.transaction(async (trx) => {
+      const before = await scoped(Booking, actor, trx).findById(id).forUpdate();
+      if (!before) throw new NotFoundError('booking');
+      if (before.version !== input.version) {
+        throw new ConflictError('This booking changed since you loaded it.', { code: 'stale-version', current: await this.get(actor, id, trx) });
+      }
+      const allowedFrom: Record<MarkProgress['state'], Booking['state'][]> = { on_site: ['pencilled', 'sent', 'confirmed'], done: ['on_site', 'confirmed'] };
+      if (!allowedFrom[input.state].includes(before.state)) {
+        throw new BadRequestError(`A ${before.state.replace('_', ' ')} booking can't be marked ${input.state.replace('_', ' ')}.`, [{ field: 'state', message: `can't follow ${before.state}` }]);
+      }
+      const after = await Booking.query(trx).patchAndFetchById(id, { state: input.state, version: before.version + 1, updatedAt: new Date() } as Partial<Booking>);
+      await recordChange(trx, actor, 'booking', id, 'update', before, after);
+      return this.get(actor, id, trx);
     });
   }
 

@@ -53,6 +53,13 @@ export type MoveStage = z.infer<typeof MoveStage>;
 
 export const RemoveBooking = z.object({ version: z.coerce.number().int().min(1) });
 
+/** A crew marks its own work: arrived on site, then done. */
+export const MarkProgress = z.object({
+  state: z.enum(['on_site', 'done']),
+  version: z.number().int().min(1),
+});
+export type MarkProgress = z.infer<typeof MarkProgress>;
+
 export const BookingView = z.object({
   id: Id,
   stageId: Id,

@@ -31,12 +31,13 @@ export interface NavItem { label: string; path: string; permission: Permission }
 
 /** The main navigation, in the order it is shown. */
 export const NAV_ITEMS: readonly NavItem[] = [
-  { label: 'Board', path: '/board', permission: 'board:read' },
-  { label: 'Jobs', path: '/jobs', permission: 'jobs:read' },
-  { label: 'Resources', path: '/resources', permission: 'board:read' },
-  { label: 'Firm', path: '/firm', permission: 'firm:manage' },
   { label: 'My work', path: '/my-work', permission: 'my-work:read' },
   { label: 'Our slots', path: '/slots', permission: 'slots:read' },
+  { label: 'Board', path: '/board', permission: 'bookings:read' },
+  { label: 'Jobs', path: '/jobs', permission: 'jobs:read' },
+  { label: 'Resources', path: '/resources', permission: 'board:read' },
+  { label: 'Day sheets', path: '/day-sheets', permission: 'bookings:read' },
+  { label: 'Firm', path: '/firm', permission: 'firm:manage' },
 ];
 
 /** @example navFor('viewer').map((item) => item.label) // ['Board', 'Jobs'] */

@@ -6,12 +6,13 @@ const navLabels = (role: Role) => navFor(role).map((item) => item.label);
 
 describe('navigation by role', () => {
   it('gives each role the places agreed for it', () => {
-    expect(navLabels('owner')).toEqual(['Board', 'Jobs', 'Resources', 'Firm']);
-    expect(navLabels('scheduler')).toEqual(['Board', 'Jobs', 'Resources']);
-    expect(navLabels('manager')).toEqual(['Board', 'Jobs', 'Resources']);
-    expect(navLabels('viewer')).toEqual(['Board', 'Jobs', 'Resources']);
-    expect(navLabels('crew')).toEqual(['My work']);
-    expect(navLabels('partner')).toEqual(['Our slots']);
+    expect(navLabels('owner')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets', 'Firm']);
+    expect(navLabels('scheduler')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets']);
+    expect(navLabels('manager')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets']);
+    expect(navLabels('viewer')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets']);
+    // Crews and partner firms see the board too, with only their own rows.
+    expect(navLabels('crew')).toEqual(['My work', 'Board', 'Day sheets']);
+    expect(navLabels('partner')).toEqual(['Our slots', 'Board', 'Day sheets']);
   });
 
   it('gives no navigation without a role', () => {

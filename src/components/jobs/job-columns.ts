@@ -1,4 +1,5 @@
 import { h } from 'vue';
+import { RouterLink } from 'vue-router';
 import type { DataTableColumns, DataTableSortState } from 'naive-ui';
 import type { JobRow } from '@/api/types';
 import type { JobSortKey } from '@/composables/useJobList';
@@ -19,7 +20,7 @@ export function jobColumns(options: { sort: JobSortKey; order: 'asc' | 'desc'; c
     options.sort === key ? (options.order === 'asc' ? 'ascend' : 'descend') : false;
   const dates = { currentYear: options.currentYear };
   return [
-    { key: 'reference', title: 'Job', sorter: true, sortOrder: sortOrder('reference'), width: 120 },
+    { key: 'reference', title: 'Job', sorter: true, sortOrder: sortOrder('reference'), width: 120, render: (row) => h(RouterLink, { to: `/jobs/${row.id}` }, () => row.reference) },
     {
       key: 'customerName',
       title: 'Customer and site',
