@@ -39,6 +39,8 @@ export interface Resource {
   /** Matchable kind: 'install_crew', 'groundworks_crew', 'electrician', 'crane', 'excavator', … */
   kind: string;
   calendarId: string;
+  /** What people call it ("Crew Heron", "60 t mobile crane"); messages use it when given. */
+  name?: string;
   hired?: boolean;
   /** People in a crew, to catch one person booked in two places. */
   personIds?: string[];

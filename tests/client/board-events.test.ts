@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import type { BoardData } from '@shared/board-data';
-import { closuresOf, eventsOf, groupOf, problemsByBooking, rowsOf, trayOf } from '@/components/board/board-events';
+import { closuresOf, eventsOf, groupHeading, groupOf, problemsByBooking, rowsOf, trayOf } from '@/components/board/board-events';
 
 const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as const;
 const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London
@@ -37,7 +37,8 @@ function board(): BoardData {
 describe('rows on the board', () => {
   it('come grouped: own crews, own machines, hired machines, each partner firm, then people', () => {
     const rows = rowsOf(board());
-    expect(rows.map((r) => [r.title, r.group])).toEqual([['Crew Heron', 'Our crews'], ['3 t excavator', 'Hired machines'], ['Priya', 'Brightspark']]);
+    expect(rows.map((r) => [r.title, groupHeading(r.group)])).toEqual([['Crew Heron', 'Our crews'], ['3 t excavator', 'Hired machines'], ['Priya', 'Brightspark']]);
+    expect(rows.map((r) => r.group).sort()).toEqual(rows.map((r) => r.group));
     expect(groupOf({ ...board().resources[0]!, category: 'person' }).group).toBe('Our people');
   });
 

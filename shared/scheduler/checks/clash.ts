@@ -47,7 +47,7 @@ export function personPairViolation(index: BoardIndex, personId: string, x: Book
   const [a, b] = ordered(x, y);
   const { from, to, words } = overlapWords(index, a.resourceId, a, b);
   return makeViolation('person_double', 'error', [a.stageId, b.stageId], [a.resourceId, b.resourceId], [a.id, b.id],
-    `${personId} would be in two places ${words}: with ${resourceLabel(index, a.resourceId)} on ${stageLabel(index, a.stageId)} and with ${resourceLabel(index, b.resourceId)} on ${stageLabel(index, b.stageId)}`,
+    `${capitalise(resourceLabel(index, personId))} would be in two places ${words}: with ${resourceLabel(index, a.resourceId)} on ${stageLabel(index, a.stageId)} and with ${resourceLabel(index, b.resourceId)} on ${stageLabel(index, b.stageId)}`,
     { personId, from, to });
 }
 

@@ -63,7 +63,9 @@ export function normaliseViolations(list: readonly Violation[]): Violation[] {
  */
 export function resourceLabel(index: BoardIndex, resourceId: string): string {
   const r = index.resources.get(resourceId);
-  return r === undefined ? resourceId : `the ${r.kind.replace(/_/g, ' ')} (${r.id})`;
+  if (r === undefined) return resourceId;
+  // A named resource reads as a scheduler would say it: "the dumper Tracked dumper" is clumsy, so the name alone.
+  return r.name ? r.name : `the ${r.kind.replace(/_/g, ' ')} (${r.id})`;
 }
 
 /**

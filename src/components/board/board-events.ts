@@ -9,7 +9,7 @@ import type { BookingState, Violation } from '@shared/scheduler/index';
 export interface RowInput {
   id: string;
   title: string;
-  /** Group heading, e.g. "Our crews" or "Fellside Crane Hire". */
+  /** Group, as "<order>|<heading>", e.g. "0|Our crews" or "3 Fellside Crane Hire|Fellside Crane Hire". */
   group: string;
   /** Sort key of the group, so our own rows come first. */
   groupOrder: string;
@@ -54,6 +54,11 @@ const KIND_LABELS: Record<string, string> = {
   excavator: 'excavator', dumper: 'dumper', pallet_truck: 'pallet truck', rollers: 'rollers', lorry: 'lorry', installer: 'installer',
 };
 
+/** The heading shown for a row group. */
+export function groupHeading(group: string): string {
+  return group.slice(group.indexOf('|') + 1);
+}
+
 /** The heading a resource's row sits under: crews, machines, hired machines, partner firms, people. */
 export function groupOf(r: BoardResource): { group: string; order: string } {
   if (r.ownership === 'partner') return { group: r.firmName, order: `3 ${r.firmName}` };
@@ -83,7 +88,8 @@ export function rowsOf(data: BoardData, filter: RowFilter = {}): RowInput[] {
       const { group, order } = groupOf(r);
       const weekly = calendars.get(r.calendarId)?.weekly ?? [];
       const businessHours = weekly.flatMap((ranges, day) => ranges.map(([a, b]) => ({ daysOfWeek: [day], startTime: hhmm(a), endTime: hhmm(b) })));
-      return { id: r.id, title: r.name, group, groupOrder: order, kind: kindLabel(r.kind), firmId: r.firmId, businessHours };
+      // The timeline orders groups by their value: the order key leads it, the label follows.
+      return { id: r.id, title: r.name, group: `${order}|${group}`, groupOrder: order, kind: kindLabel(r.kind), firmId: r.firmId, businessHours };
     })
     .sort((a, b) => a.groupOrder.localeCompare(b.groupOrder) || a.kind.localeCompare(b.kind) || a.title.localeCompare(b.title));
 }

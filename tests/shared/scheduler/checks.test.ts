@@ -162,7 +162,7 @@ describe('one person in two places', () => {
     ]);
     const pd = of(analyseBoard(b, { now: NOW }).violations, 'person_double');
     expect(pd).toHaveLength(1);
-    expect(pd[0]?.message).toBe("ria would be in two places from Tue 2 Jun 11:00 to Tue 2 Jun 12:00: with the install crew (crew-a) on 'Lift' and with the install crew (crew-b) on 'Excavation'");
+    expect(pd[0]?.message).toBe("Ria would be in two places from Tue 2 Jun 11:00 to Tue 2 Jun 12:00: with the install crew (crew-a) on 'Lift' and with the install crew (crew-b) on 'Excavation'");
   });
 });
 

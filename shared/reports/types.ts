@@ -1,0 +1,167 @@
+/**
+ * What the manager's reports return. Instants are epoch milliseconds, money is pence, working
+ * time is minutes; `date` fields are local dates (YYYY-MM-DD) in the firm's time zone.
+ * Every job, stage and booking named here is the reader's own firm's: another installer's work on
+ * a shared partner resource shows only as "busy elsewhere", with no id, reference, customer or site.
+ */
+
+/** The span a report covers and the clock it is read against. */
+export interface ReportRange {
+  from: number;
+  to: number;
+  now: number;
+  /** The reader's firm's IANA time zone (week starts and local dates). */
+  timeZone: string;
+}
+
+/** A place the slot finder would put the offending stage instead, with what it costs. */
+export interface SuggestedFix {
+  resourceId: string;
+  resourceName: string;
+  start: number;
+  end: number;
+  date: string;
+  extraHireDays: number;
+  extraHirePence: number;
+  floatUsedMinutes: number;
+  delaysJob: boolean;
+  /** Plain words, e.g. "Move to 25 t city crane on Tue 9 Jun 08:00 — no extra cost". */
+  label: string;
+  link: string;
+}
+
+export type ClashKind = 'clash' | 'hire' | 'person_double' | 'cross_firm';
+
+export interface ClashRow {
+  /** Stable key of the engine's violation. */
+  id: string;
+  kind: ClashKind;
+  kindLabel: string;
+  date: string;
+  from: number;
+  to: number;
+  message: string;
+  jobIds: string[];
+  jobReferences: string[];
+  /** The stage the fixes are for (the later-booked one of a pair), or null. */
+  stageId: string | null;
+  stageName: string;
+  resourceNames: string[];
+  /** Money the clash costs as booked: extra hire days outside the hire period × the day rate. */
+  costPence: number;
+  link: string;
+  fixes: SuggestedFix[];
+}
+
+export interface ClashReport {
+  range: ReportRange;
+  rows: ClashRow[];
+  /** Clashes per week (week starting Monday), for the chart. */
+  perWeek: { week: string; count: number }[];
+}
+
+export interface HireSuggestion {
+  kind: 'end' | 'shorten_start' | 'shorten_end' | 'split' | 'merge';
+  /** e.g. "Off-hire 2 days earlier (last paid day Wed 17 Jun): saves £290.00". */
+  label: string;
+  savesPence: number;
+}
+
+export interface HirePeriodRow {
+  id: string;
+  resourceId: string;
+  resourceName: string;
+  supplierFirmId: string;
+  supplierName: string;
+  status: 'requested' | 'approved' | 'ended';
+  version: number;
+  onHire: number;
+  offHire: number;
+  onHireDate: string;
+  offHireDate: string;
+  dayRatePence: number;
+  deliveryPence: number;
+  collectionPence: number;
+  /** Working days of the machine's calendar inside the hire: the days paid. */
+  paidDays: number;
+  bookedDays: number;
+  idleDays: string[];
+  idleCostPence: number;
+  /** Paid days × day rate + delivery + collection. */
+  totalCostPence: number;
+  bookingsOutsideHire: number;
+  suggestions: HireSuggestion[];
+  link: string;
+}
+
+export interface HireReport {
+  range: ReportRange;
+  periods: HirePeriodRow[];
+  totals: { paidDays: number; idleDays: number; idleCostPence: number; totalCostPence: number };
+  /** Idle paid cost per week inside the range, for the chart. */
+  idlePerWeek: { week: string; idleDays: number; costPence: number }[];
+}
+
+export type UtilisationGroup = 'crew' | 'machine' | 'partner';
+
+export interface UtilisationWeek {
+  week: string;
+  availableMinutes: number;
+  bookedMinutes: number;
+  /** Booked ÷ available, 0..1 (booked time is counted in working minutes, so it never exceeds available). */
+  ratio: number;
+}
+
+export interface UtilisationRow {
+  resourceId: string;
+  resourceName: string;
+  firmName: string;
+  group: UtilisationGroup;
+  kind: string;
+  availableMinutes: number;
+  bookedMinutes: number;
+  /** A partner resource's working minutes taken by other installers ("busy elsewhere"). */
+  elsewhereMinutes: number;
+  ratio: number;
+  weeks: UtilisationWeek[];
+  link: string;
+}
+
+export type RiskReason = 'late' | 'waiting' | 'overdue' | 'lead_time';
+
+export interface RiskItem {
+  reason: RiskReason;
+  label: string;
+}
+
+export interface RiskRow {
+  jobId: string;
+  reference: string;
+  customerName: string;
+  siteTown: string;
+  promisedBy: number | null;
+  /** Elapsed ms past the promised date by the critical path (0 = on time). */
+  lateByMs: number;
+  /** Least total float, working minutes (negative = that much work too late). */
+  floatMinutes: number;
+  reasons: RiskItem[];
+  link: string;
+}
+
+export interface UtilisationReport {
+  range: ReportRange;
+  weeks: string[];
+  resources: UtilisationRow[];
+  risks: RiskRow[];
+}
+
+/** One of "the three worst problems first". */
+export interface WorstProblem {
+  source: 'clash' | 'idle_hire' | 'late_job';
+  title: string;
+  detail: string;
+  costPence: number;
+  date: string;
+  link: string;
+  fixes: string[];
+}

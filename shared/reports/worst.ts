@@ -1,0 +1,39 @@
+import { DAY_MS, formatPence } from '../scheduler/index.ts';
+import type { ClashReport, HireReport, UtilisationReport, WorstProblem } from './types.ts';
+
+/**
+ * "The three worst problems first": the worst of each kind — the soonest clash (costliest on
+ * the day), the costliest idle hire, the latest job — so no one kind hides the others; when a
+ * kind has none, the next worst of the others fill the place. Within a kind, clashes rank by
+ * date then cost, idle hires by idle cost, late jobs by how late.
+ *
+ * @example
+ * worstProblems(clashes, hire, utilisation).map((p) => p.source) // ['clash', 'idle_hire', 'late_job']
+ */
+export function worstProblems(clashes: ClashReport, hire: HireReport, utilisation: UtilisationReport, count = 3): WorstProblem[] {
+  const clashList: WorstProblem[] = clashes.rows.map((c) => ({
+    source: 'clash', title: `${c.kindLabel}: ${c.resourceNames.join(', ')}`,
+    detail: `${c.message}${c.jobReferences.length ? ` (${c.jobReferences.join(', ')})` : ''}`,
+    costPence: c.costPence, date: c.date, link: c.link, fixes: c.fixes.map((f) => f.label),
+  }));
+  const idleList: WorstProblem[] = hire.periods.filter((p) => p.idleCostPence > 0)
+    .sort((a, b) => b.idleCostPence - a.idleCostPence || a.onHire - b.onHire)
+    .map((p) => ({
+      source: 'idle_hire', title: `Idle hire: ${p.resourceName}`,
+      detail: `${p.idleDays.length} of ${p.paidDays} paid days with nothing booked: ${formatPence(p.idleCostPence)} at ${formatPence(p.dayRatePence)} a day`,
+      costPence: p.idleCostPence, date: p.idleDays[0] ?? p.onHireDate, link: p.link, fixes: p.suggestions.map((s) => s.label),
+    }));
+  const lateList: WorstProblem[] = utilisation.risks.filter((r) => r.lateByMs > 0).map((r) => ({
+    source: 'late_job', title: `Late: ${r.reference}${r.siteTown ? `, ${r.siteTown}` : ''}`,
+    detail: r.reasons.map((x) => x.label).join('; '),
+    costPence: 0, date: r.promisedBy === null ? '' : new Date(r.promisedBy).toISOString().slice(0, 10), link: r.link,
+    fixes: [`${Math.ceil(r.lateByMs / DAY_MS)} day(s) to win back: open the job on the board and let the slot finder offer earlier places`],
+  }));
+  const lists = [clashList, idleList, lateList];
+  const out: WorstProblem[] = [];
+  for (const l of lists) if (l[0] && out.length < count) out.push(l.shift() as WorstProblem);
+  while (out.length < count && lists.some((l) => l.length > 0)) {
+    for (const l of lists) if (l[0] && out.length < count) out.push(l.shift() as WorstProblem);
+  }
+  return out;
+}
