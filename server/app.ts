@@ -16,6 +16,7 @@ import { apiRoutes } from './routes/api.ts';
 import { jobWorkRoutes } from './routes/job-work.ts';
 import { partnerRoutes } from './routes/partners.ts';
 import { answerRoutes } from './routes/answers.ts';
+import { reportRoutes } from './routes/reports.ts';
 import { authRoutes } from './routes/auth.ts';
 import { createPassport } from './auth/google.ts';
 import { csrfProtection } from './middleware/csrf.ts';
@@ -100,6 +101,7 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
   const jobWork = jobWorkRoutes(routes, { knex, config });
   partnerRoutes(routes, { knex, config });
   answerRoutes(routes, { knex, config });
+  reportRoutes(routes, { knex, now });
   routes.mount(app.router);
 
   app.use('/api', notFoundHandler);

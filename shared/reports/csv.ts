@@ -7,7 +7,7 @@ export interface CsvColumn<T> {
 /**
  * One CSV field per RFC 4180: quoted when it holds a comma, a double quote, CR or LF, with
  * quotes doubled. Text starting with = + - @ (or a tab/CR) gets a leading apostrophe so a
- * spreadsheet does not run it as a formula; numbers are written as they are.
+ * spreadsheet does not run it as a formula (a plain number such as -5.00 is left alone).
  *
  * @example
  * csvField('Dig, then pour') // '"Dig, then pour"'
@@ -17,7 +17,7 @@ export function csvField(value: string | number | boolean | null | undefined): s
   if (value === null || value === undefined) return '';
   if (typeof value === 'number') return Number.isFinite(value) ? String(value) : '';
   let text = String(value);
-  if (/^[=+\-@\t\r]/.test(text)) text = `'${text}`;
+  if (/^[=+\-@\t\r]/.test(text) && !/^[-+]?\d+(\.\d+)?$/.test(text)) text = `'${text}`;
   return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
 }
 
