@@ -24,6 +24,10 @@ export interface BoardStage extends Stage {
 export interface BoardBooking extends Booking {
   /** True for another installer's booking of a shared partner resource: shown only as busy. */
   elsewhere?: boolean;
+  /** A request to a partner firm went unanswered past the reminder time. */
+  overdue?: boolean;
+  /** The partner proposed another time, waiting for the scheduler to accept or refuse it. */
+  proposal?: { start: number; end: number } | null;
 }
 
 /**

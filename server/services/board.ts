@@ -5,6 +5,7 @@ import type { Dependency, HirePeriod, LeadTimeRule, WorkingCalendar } from '../.
 import { Booking, Calendar, CalendarException, Dependency as DependencyModel, HirePeriod as HireModel, Job, LeadTimeRule as LeadModel, Resource, Stage } from '../models/index.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { scoped } from './scope.ts';
+import { withAnswers } from './answer-views.ts';
 
 const OPEN_JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress'];
 
@@ -130,6 +131,18 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     id: b.id, stageId: b.stageId, resourceId: b.resourceId, start: b.startMs, end: b.endMs,
     state: b.state, version: b.version, installerFirmId: jobById.get(stageById.get(b.stageId)!.jobId)!.firmId,
   }));
+  // Partners' answers: requests gone unanswered too long, and times they proposed instead.
+  const asked = bookings.filter((b) => b.state === 'sent');
+  if (asked.length) {
+    const answered = await withAnswers(knex, asked.map((b) => ({ id: b.id, version: b.version ?? 1, state: b.state })));
+    const byId = new Map(answered.map((a) => [a.id, a]));
+    for (const b of asked) {
+      const a = byId.get(b.id);
+      b.overdue = a?.overdue ?? false;
+      b.proposal = a?.answer?.action === 'propose' && a.answer.proposalStatus === 'open' && a.answer.proposedStart && a.answer.proposedEnd
+        ? { start: Date.parse(a.answer.proposedStart), end: Date.parse(a.answer.proposedEnd) } : null;
+    }
+  }
   const boardStages: BoardStage[] = stages.map((s) => ({
     id: s.id, jobId: s.jobId, kind: s.kind, name: s.name, durationMinutes: s.durationMinutes,
     requirements: s.requirements, cure: s.cure, sequence: s.sequence,

@@ -132,8 +132,9 @@ function toEvent(b: BoardBooking, title: string, stage: BoardStage, job: BoardJo
     resourceId: b.resourceId,
     start: b.start,
     end: b.end,
-    title: b.elsewhere ? title : `${problems.length ? '⚠ ' : ''}${state.symbol} ${title}`,
-    classNames: ['wl-booking', b.elsewhere ? 'wl-elsewhere' : `wl-state-${b.state}`, ...(problems.length ? ['wl-has-problem'] : [])],
+    title: b.elsewhere ? title : `${problems.length ? '⚠ ' : ''}${b.overdue ? '⏰ ' : ''}${b.proposal ? '⇄ ' : ''}${state.symbol} ${title}`,
+    classNames: ['wl-booking', b.elsewhere ? 'wl-elsewhere' : `wl-state-${b.state}`, ...(problems.length ? ['wl-has-problem'] : []),
+      ...(b.overdue ? ['wl-overdue'] : []), ...(b.proposal ? ['wl-proposed'] : [])],
     editable: canEdit && !b.elsewhere && b.state !== 'done' && b.state !== 'on_site',
     extendedProps: { bookingId: b.id, stageId: stage.id, jobId: job.id, state: b.state, elsewhere: Boolean(b.elsewhere), problems },
   };
