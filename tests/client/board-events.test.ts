@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import type { BoardData } from '@shared/board-data';
-import { closuresOf, eventsOf, groupHeading, groupOf, problemsByBooking, rowsOf, trayOf } from '@/components/board/board-events';
+import { closuresOf, eventsOf, groupHeading, groupOf, holidaysOf, problemsByBooking, rowsOf, trayOf } from '@/components/board/board-events';
 
 const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as const;
 const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London
@@ -93,5 +93,16 @@ describe('shading and the tray', () => {
   it('list unbooked stages per job in dependency order (a declined booking puts a stage back)', () => {
     const tray = trayOf(board(), () => ['s3', 's2']);
     expect(tray.map((t) => [t.job.reference, t.stages.map((s) => s.id)])).toEqual([['TW-1', ['s3', 's2']]]);
+  });
+});
+
+describe('bank holidays on the board', () => {
+  it('shade the whole local day on the rows of that calendar (Christmas Day 2026, England and Wales)', async () => {
+    const { publicHolidays, localToInstant, dayNumber } = await import('@shared/scheduler/index');
+    const data = { ...board(), from: Date.UTC(2026, 11, 21), to: Date.UTC(2026, 11, 31) };
+    const days = holidaysOf(data, (r, y) => publicHolidays(r, y), localToInstant, dayNumber);
+    // gov.uk bank holidays for England and Wales (from memory): Fri 25 Dec 2026, Mon 28 Dec 2026 (Boxing Day substitute).
+    expect(days.map((d) => new Date(d.start).toISOString())).toEqual(['2026-12-25T00:00:00.000Z', '2026-12-28T00:00:00.000Z']);
+    expect(days.every((d) => d.end - d.start === 86_400_000)).toBe(true);
   });
 });
