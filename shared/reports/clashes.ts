@@ -15,7 +15,7 @@ const CLASH_KINDS = new Set<string>(Object.keys(KIND_LABELS));
 export interface ClashReportOptions {
   /** Slot-finder alternatives per clash after the earliest (default 2: three fixes). */
   alternatives?: number;
-  /** Fixes are worked out for this many clashes, soonest first (default 30); the rest list none. */
+  /** Fixes are worked out for this many clashes, soonest first (default 60); the rest list none. */
   fixesFor?: number;
 }
 
@@ -119,7 +119,7 @@ export function clashReport(ctx: ReportContext, options: ClashReportOptions = {}
     if (row && row.to > ctx.range.from && row.from < ctx.range.to) rows.push(row);
   }
   rows.sort((a, b) => (a.date < b.date ? -1 : a.date > b.date ? 1 : 0) || b.costPence - a.costPence || a.from - b.from || (a.id < b.id ? -1 : 1));
-  const fixesFor = options.fixesFor ?? 30;
+  const fixesFor = options.fixesFor ?? 60;
   const out: ClashRow[] = rows.map((row, i) => {
     const { offending, ...rest } = row;
     const kind = offending ? ctx.index.resources.get(offending.resourceId)?.kind : undefined;

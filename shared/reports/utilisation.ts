@@ -1,6 +1,6 @@
 import { DAY_MS, formatInstant, resourceCalendarOf, workingMinutesBetween, type Booking, type CompiledCalendar, type Interval } from '../scheduler/index.ts';
 import { ELSEWHERE_JOB_ID } from '../board-data.ts';
-import { boardLink, dateIn, jobOfStage, namedMessage, resourceName, type ReportContext } from './context.ts';
+import { boardLink, dateIn, jobOfStage, namedMessage, type ReportContext } from './context.ts';
 import type { RiskItem, RiskRow, UtilisationGroup, UtilisationReport, UtilisationRow } from './types.ts';
 import { weeksOf } from './weeks.ts';
 
@@ -101,17 +101,21 @@ export function riskRows(ctx: ReportContext, overdueBookingIds: ReadonlySet<stri
     add(job.id, { reason: 'late', label: `Finishes ${days} day${days === 1 ? '' : 's'} after the promised date (${formatInstant(cp.promisedBy, tz).slice(0, -6)})` });
   }
   const inRange = (b: { start: number; end: number }) => b.end > ctx.range.from && b.start < ctx.range.to;
+  // One line per job and partner firm: the stages still waiting for that firm's answer.
+  const waiting = new Map<string, { jobId: string; firm: string; overdue: boolean; what: string[] }>();
   for (const b of ctx.data.bookings) {
     if (b.elsewhere || b.state !== 'sent' || !inRange(b)) continue;
     const job = jobOfStage(ctx, b.stageId);
-    if (!job) continue;
     const r = ctx.resources.get(b.resourceId);
-    const stage = ctx.index.stages.get(b.stageId)?.stage.name ?? '';
-    const overdue = overdueBookingIds.has(b.id);
-    add(job.id, {
-      reason: overdue ? 'overdue' : 'waiting',
-      label: `${overdue ? 'Answer overdue' : 'Waiting for an answer'} from ${r?.firmName ?? 'the partner'} (${resourceName(ctx, b.resourceId)}) for '${stage}' on ${formatInstant(b.start, tz)}`,
-    });
+    if (!job || r?.ownership !== 'partner') continue;
+    const key = `${job.id}|${r.firmName}`;
+    const w = waiting.get(key) ?? { jobId: job.id, firm: r.firmName, overdue: false, what: [] };
+    w.overdue ||= overdueBookingIds.has(b.id);
+    w.what.push(`'${ctx.index.stages.get(b.stageId)?.stage.name ?? ''}' ${formatInstant(b.start, tz).slice(0, -6)}`);
+    waiting.set(key, w);
+  }
+  for (const w of waiting.values()) {
+    add(w.jobId, { reason: w.overdue ? 'overdue' : 'waiting', label: `${w.overdue ? 'Answer overdue' : 'Waiting for an answer'} from ${w.firm}: ${w.what.join(', ')}` });
   }
   for (const v of ctx.violations) {
     if (v.kind !== 'lead_time') continue;

@@ -61,3 +61,18 @@ export function weekOfDate(isoDate: string): string {
   const day = Math.round(Date.parse(`${isoDate}T00:00:00Z`) / DAY_MS);
   return isoDateOfDay(day - ((weekdayOfDay(day) + 6) % 7));
 }
+
+/**
+ * A report span of whole weeks from the Monday of the week `now` falls in, as ISO instants.
+ *
+ * @example
+ * weeksFrom(Date.UTC(2026, 5, 3), 'Europe/London', 2) // { from: '2026-05-31T23:00:00.000Z', to: '2026-06-14T23:00:00.000Z' }
+ */
+export function weeksFrom(now: number, timeZone: string, weeks: number): { from: string; to: string } {
+  const day = localDayOf(timeZone, now);
+  const monday = day - ((weekdayOfDay(day) + 6) % 7);
+  return {
+    from: new Date(localToInstant(timeZone, monday, 0)).toISOString(),
+    to: new Date(localToInstant(timeZone, monday + 7 * weeks, 0)).toISOString(),
+  };
+}

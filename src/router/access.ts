@@ -37,6 +37,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'Jobs', path: '/jobs', permission: 'jobs:read' },
   { label: 'Resources', path: '/resources', permission: 'board:read' },
   { label: 'Day sheets', path: '/day-sheets', permission: 'bookings:read' },
+  { label: 'Templates', path: '/templates', permission: 'jobs:write' },
   { label: 'Reports', path: '/reports', permission: 'reports:read' },
   { label: 'Firm', path: '/firm', permission: 'firm:manage' },
 ];

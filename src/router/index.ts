@@ -27,6 +27,7 @@ export const routes: RouteRecordRaw[] = [
   { path: '/jobs/:id(\\d+)', name: 'job', component: () => import('@/views/JobDetailView.vue'), meta: { roles: rolesWith('surveys:read'), title: 'Job' } },
   { path: '/jobs/:id(\\d+)/edit', name: 'job-edit', component: () => import('@/views/JobFormView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'Edit job' } },
   { path: '/jobs/:id(\\d+)/survey', name: 'job-survey', component: () => import('@/views/SurveyView.vue'), meta: { roles: rolesWith('surveys:write'), title: 'Site survey' } },
+  { path: '/templates', name: 'templates', component: () => import('@/views/TemplatesView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'Stage templates' } },
   { path: '/day-sheets', name: 'day-sheets', component: () => import('@/views/DaySheetView.vue'), meta: { roles: rolesWith('bookings:read'), title: 'Day sheets' } },
   { path: '/reports', name: 'reports', component: () => import('@/views/ReportsView.vue'), meta: { roles: rolesWith('reports:read'), title: 'Reports' } },
   { path: '/:pathMatch(.*)*', name: 'not-found', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Page not found' } },

@@ -6,9 +6,9 @@ const navLabels = (role: Role) => navFor(role).map((item) => item.label);
 
 describe('navigation by role', () => {
   it('gives each role the places agreed for it', () => {
-    expect(navLabels('owner')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets', 'Firm']);
-    expect(navLabels('scheduler')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets']);
-    expect(navLabels('manager')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets']);
+    expect(navLabels('owner')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets', 'Templates', 'Reports', 'Firm']);
+    expect(navLabels('scheduler')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets', 'Templates']);
+    expect(navLabels('manager')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets', 'Reports']);
     expect(navLabels('viewer')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets']);
     // Crews and partner firms see the board too, with only their own rows.
     expect(navLabels('crew')).toEqual(['My work', 'Board', 'Day sheets']);

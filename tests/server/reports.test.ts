@@ -69,14 +69,17 @@ beforeAll(async () => {
 afterAll(async () => { await ctx.close(); });
 
 describe('recording and approving a hire period', () => {
-  it('refuses an off-hire before the on-hire and a missing day rate, naming the fields (400 problem+json)', async () => {
-    const res = await manager.post('/api/hire-periods').set('X-CSRF-Token', manager.csrf).send({
-      supplierFirmId: await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' }), resourceId: digger,
-      onHireAt: '2026-06-26T17:00:00Z', offHireAt: '2026-06-22T06:00:00Z',
-    });
-    expect(res.status).toBe(400);
-    expect(res.headers['content-type']).toContain('application/problem+json');
-    expect(res.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['dayRatePence', 'offHireAt']);
+  it('refuses a missing day rate and an off-hire before the on-hire, naming the field (400 problem+json)', async () => {
+    const base = { supplierFirmId: await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' }), resourceId: digger };
+    const noRate = await manager.post('/api/hire-periods').set('X-CSRF-Token', manager.csrf)
+      .send({ ...base, onHireAt: '2026-06-22T06:00:00Z', offHireAt: '2026-06-26T17:00:00Z' });
+    expect(noRate.status).toBe(400);
+    expect(noRate.headers['content-type']).toContain('application/problem+json');
+    expect(noRate.body.errors.map((e: { field: string }) => e.field)).toEqual(['dayRatePence']);
+    const backwards = await manager.post('/api/hire-periods').set('X-CSRF-Token', manager.csrf)
+      .send({ ...base, onHireAt: '2026-06-26T17:00:00Z', offHireAt: '2026-06-22T06:00:00Z', dayRatePence: 14500 });
+    expect(backwards.status).toBe(400);
+    expect(backwards.body.errors).toEqual([{ field: 'offHireAt', message: 'must be after the on-hire' }]);
   });
 
   it('records the digger on hire Mon 22 – Fri 26 Jun at £145.00 a day, approved and audited', async () => {
