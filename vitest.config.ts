@@ -1,15 +1,8 @@
-import { defineConfig } from 'vitest/config';
-import vue from '@vitejs/plugin-vue';
-import { fileURLToPath } from 'node:url';
+import { defineConfig, mergeConfig } from 'vitest/config';
+import viteConfig from './vite.config.ts';
 
-export default defineConfig({
-  plugins: [vue()],
-  resolve: {
-    alias: {
-      '@': fileURLToPath(new URL('./src', import.meta.url)),
-      '@shared': fileURLToPath(new URL('./shared', import.meta.url)),
-    },
-  },
+// The app's own Vite settings (the Vue plugin, the @ and @shared aliases), plus what tests need.
+export default mergeConfig(viteConfig, defineConfig({
   test: {
     include: ['tests/**/*.test.ts'],
     testTimeout: 20_000,
@@ -17,4 +10,4 @@ export default defineConfig({
     // Server tests share one database; files run one at a time to keep them independent.
     fileParallelism: false,
   },
-});
+}));
