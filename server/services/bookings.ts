@@ -10,7 +10,7 @@ import { findVisible, scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
 import { loadBoard } from './board.ts';
 import { verifyStages } from './schedule-check.ts';
-import { bookingChanged, bookingRemoved } from './outbox.ts';
+import { bookingChanged, bookingRemoved, queueCustomerNotice } from './outbox.ts';
 import { withAnswers, type BookingWithAnswer } from './answer-views.ts';
 
 const VIEW_COLUMNS = ['bookings.*', 'stages.name as stageName', 'stages.kind as stageKind', 'stages.job_id as jobId',
@@ -75,6 +75,8 @@ export class BookingsService {
       endsAt: await this.endOf(actor, trx, input, stage), state: input.state, createdBy: actor.userId,
     } as Partial<Booking>);
     await recordChange(trx, actor, 'booking', created.id, 'create', null, created);
+    // Booked straight in as confirmed (the installer's own people): the householder hears of a delivery or lift day at once.
+    if (created.state === 'confirmed') await queueCustomerNotice(trx, { bookingId: created.id, event: 'confirmed' });
     return created;
   }
 

@@ -84,3 +84,15 @@ describe('taking a booking off the board', () => {
     expect(audit).toHaveLength(1);
   });
 });
+
+describe('a delivery booked straight in as confirmed', () => {
+  it("queues the householder's notice of the day with the booking, in the same transaction", async () => {
+    const job = await idOf(ctx.knex, 'jobs', { reference: 'TW-2419' });
+    const delivery = await idOf(ctx.knex, 'stages', { job_id: job, kind: 'delivery' });
+    const lorry = await idOf(ctx.knex, 'resources', { name: '18 t lorry with loader crane' });
+    const res = await post('/api/bookings', { stageId: delivery, resourceId: lorry, startsAt: '2026-10-05T08:00:00Z', state: 'confirmed' }).expect(201);
+    const notices = await ctx.knex('outbox').where({ kind: 'customer_notice' }).whereRaw("payload->>'bookingId' = ?", [res.body.bookings[0].id]);
+    expect(notices).toHaveLength(1);
+    expect(notices[0].payload).toMatchObject({ event: 'confirmed' });
+  });
+});
