@@ -4,16 +4,10 @@ import type { StageMove } from '../../../shared/scheduler/index.js';
 import { firmCal, MON_FRI_8_TO_5 } from './scenario.js';
 import { weeklyHours } from '../../../shared/scheduler/index.js';
 
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+// The benchmark's seeded generator (mulberry32), so tests and benchmark draw boards the same way.
+import { prng } from '../../../bench/generate.js';
+
+export { prng };
 
 const KINDS = ['install_crew', 'groundworks_crew', 'crane', 'excavator', 'pallet_truck', 'electrician'];
 const STAGE_KINDS = ['excavation', 'base_pour', 'delivery', 'lift', 'electrical_connect', 'commission'];
