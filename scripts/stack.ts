@@ -104,7 +104,8 @@ async function main(): Promise<void> {
     PORT: String(PORTS.app),
     PUBLIC_URL: publicUrl,
     DATABASE_URL: `postgres://postgres@127.0.0.1:${PORTS.postgres}/${database}`,
-    REDIS_URL: `redis://127.0.0.1:${PORTS.redis}/${mode === 'test' ? 1 : mode === 'bench' ? 2 : 0}`,
+    // WATERLINE_TEST_REDIS_DB keeps two people's test runs on one machine apart (as WATERLINE_TEST_DB does).
+    REDIS_URL: `redis://127.0.0.1:${PORTS.redis}/${mode === 'test' ? (process.env.WATERLINE_TEST_REDIS_DB ?? 1) : mode === 'bench' ? 2 : 0}`,
     SESSION_SECRET: process.env.SESSION_SECRET ?? 'local-only-session-secret-not-for-production',
     GOOGLE_CLIENT_ID: 'waterline-local',
     GOOGLE_CLIENT_SECRET: 'waterline-local-secret',
