@@ -139,8 +139,8 @@ async function main(): Promise<void> {
       ...(filters.length ? [] : [['npm', ['run', '--silent', 'lint']], ['npm', ['run', '--silent', 'typecheck']]] as [string, string[]][]),
       [path.join(root, 'node_modules', '.bin', 'vitest'), ['run', ...filters]],
     ];
-    // The end-to-end tests drive the built app in a real browser.
-    await buildClientIfStale();
+    // The end-to-end tests drive the built app in a real browser (a run of other files alone needs no build).
+    if (!filters.length || filters.some((f) => f.includes('e2e'))) await buildClientIfStale();
     for (const [cmd, args] of steps) {
       console.log(`\n▶ ${path.basename(cmd)} ${args.join(' ')}`);
       const code = await new Promise<number>((resolve) => spawnChild(cmd, args, env).on('exit', (c) => resolve(c ?? 1)));

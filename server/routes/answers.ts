@@ -1,29 +1,38 @@
 import express, { type Request, type Response } from 'express';
 import type { Knex } from 'knex';
 import type { RouteTable } from './table.ts';
-import type { Config } from '../config.ts';
+import { bookingLimitsOf, type Config } from '../config.ts';
 import { LinkError, LinkSigner, type AnswerClaims, type InviteClaims, type LinkRefusal } from '../services/links.ts';
-import { ConfirmationsService } from '../services/confirmations.ts';
+import { ConfirmationsService, requestKeyOf } from '../services/confirmations.ts';
 import { InvitationsService, type InvitationView } from '../services/invitations.ts';
 import { FeedsService } from '../services/feeds.ts';
 import { loadBookingFacts } from '../mail/facts.ts';
 import { answerForm, answeredPage, closedPage, refusalPage, stalePage, takenPage } from '../pages/answers.ts';
 import { escapeHtml as e, page } from '../pages/page.ts';
-import { dayNumber, localToInstant } from '../../shared/scheduler/time-zone.ts';
+import { dayNumber, isoDateOfDay, localDayOf, localToInstant, timeZoneOffset } from '../../shared/scheduler/time-zone.ts';
 
-export interface AnswerRouteDeps { knex: Knex; config: Config }
+export interface AnswerRouteDeps { knex: Knex; config: Config; now?: () => number }
 
 const formParser = express.urlencoded({ extended: false, limit: '4kb' });
 const parseForm = (req: Request, res: Response) => new Promise<void>((resolve, reject) => formParser(req, res, (err?: unknown) => (err ? reject(err) : resolve())));
 
 const STATUS: Record<LinkRefusal | 'used' | 'gone', number> = { tampered: 400, 'wrong-purpose': 400, expired: 410, used: 409, gone: 410 };
 
-/** 2026-10-06 + 08:30 in a zone → the instant, or null when the form's values are not a date and time. */
-function instantOf(date: unknown, time: unknown, timeZone: string): Date | null {
+/**
+ * 2026-10-06 + 08:30 in a zone → the instant, or null when the form's values are not a real date
+ * and a time that exists there (30 February, or 01:30 on the morning the clocks go forward).
+ */
+export function instantOf(date: unknown, time: unknown, timeZone: string): Date | null {
   const d = typeof date === 'string' ? /^(\d{4})-(\d{2})-(\d{2})$/.exec(date) : null;
   const t = typeof time === 'string' ? /^(\d{2}):(\d{2})$/.exec(time) : null;
   if (!d || !t || Number(t[1]) > 23 || Number(t[2]) > 59) return null;
-  return new Date(localToInstant(timeZone, dayNumber(Number(d[1]), Number(d[2]), Number(d[3])), Number(t[1]) * 60 + Number(t[2])));
+  const day = dayNumber(Number(d[1]), Number(d[2]), Number(d[3]));
+  if (isoDateOfDay(day) !== date) return null;
+  const minute = Number(t[1]) * 60 + Number(t[2]);
+  const instant = localToInstant(timeZone, day, minute);
+  // A local time that does not exist is moved by the conversion: going back must give the same day and minute.
+  if (localDayOf(timeZone, instant) !== day || Math.round((instant + timeZoneOffset(timeZone, instant)) / 60_000) - day * 1440 !== minute) return null;
+  return new Date(instant);
 }
 
 /**
@@ -32,9 +41,9 @@ function instantOf(date: unknown, time: unknown, timeZone: string): Date | null 
  * names. These POSTs are exempt from the session CSRF check (middleware/csrf.ts): the signed,
  * single-use token is the proof.
  */
-export function answerRoutes(table: RouteTable, { knex, config }: AnswerRouteDeps): void {
+export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }: AnswerRouteDeps): void {
   const signer = new LinkSigner(config.LINK_SECRET);
-  const confirmations = new ConfirmationsService(knex);
+  const confirmations = new ConfirmationsService(knex, now, bookingLimitsOf(config));
   const invitations = new InvitationsService(knex);
   const feeds = new FeedsService(knex, config.PUBLIC_URL);
 
@@ -65,7 +74,7 @@ export function answerRoutes(table: RouteTable, { knex, config }: AnswerRouteDep
     if (!c) return;
     const facts = await loadBookingFacts(knex, c.bookingId);
     if (!facts) return refuse(req, res, 'gone', c.jti);
-    if (await knex('link_uses').where('jti', c.jti).first()) return refuse(req, res, 'used', c.jti);
+    if (await knex('link_uses').where('jti', requestKeyOf(c)).first()) return refuse(req, res, 'used', c.jti);
     if (facts.booking.version !== c.version) { res.type('html').send(stalePage(facts)); return; }
     const open = c.action === 'confirm' ? facts.booking.state === 'sent' : ['sent', 'confirmed'].includes(facts.booking.state);
     res.type('html').send(open ? answerForm(facts, c.action, req.originalUrl) : closedPage(facts));

@@ -8,19 +8,20 @@ import { SwitchFirm } from '../../shared/schemas/session.ts';
 import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
 import { BookingsService } from '../services/bookings.ts';
+import type { BookingLimits } from '../services/booking-writes.ts';
 import { actorFor, sessionInfo } from '../services/session.ts';
 import { loadBoard } from '../services/board.ts';
 import type { BoardStream } from '../services/board-stream.ts';
 import { NotFoundError } from '../errors.ts';
 import type { Health } from '../health.ts';
 
-export interface ApiDeps { knex: Knex; health: Health; stream: BoardStream; fullcalendarLicenseKey: string; now?: () => number }
+export interface ApiDeps { knex: Knex; health: Health; stream: BoardStream; fullcalendarLicenseKey: string; now?: () => number; limits?: BookingLimits }
 
 /** The JSON API: one line a route, each naming who may call it. */
-export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalendarLicenseKey, now = Date.now }: ApiDeps): void {
+export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalendarLicenseKey, now = Date.now, limits }: ApiDeps): void {
   const jobs = new JobsService(knex);
   const directory = new DirectoryService();
-  const bookings = new BookingsService(knex, now);
+  const bookings = new BookingsService(knex, now, limits);
 
   table
     .get('/api/health', 'public', async (_req, res) => {
@@ -30,11 +31,11 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     .get('/api/client-config', 'public', (_req, res) => {
       res.json({ fullcalendarLicenseKey });
     })
-    .get('/api/board', 'bookings:read', async (req, res) => {
+    .get('/api/board', 'board:read', async (req, res) => {
       const { from, to } = parse(BookingRange, req.query, 'query');
       res.json(await loadBoard(knex, req.actor!, { from: Date.parse(from), to: Date.parse(to), now: now() }));
     })
-    .get('/api/board/stream', 'bookings:read', async (req, res) => {
+    .get('/api/board/stream', 'board:read', async (req, res) => {
       await stream.open(req, res, req.actor!);
     })
     .get('/api/session', 'signed-in', async (req, res) => {
@@ -65,7 +66,7 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     .post('/api/jobs', 'jobs:write', async (req, res) => {
       res.status(201).json(await jobs.create(req.actor!, parse(CreateJob, req.body)));
     })
-    .get('/api/jobs/:id', 'surveys:read', async (req, res) => {
+    .get('/api/jobs/:id', 'jobs:read', async (req, res) => {
       res.json(await jobs.get(req.actor!, parse(IdParams, req.params, 'params').id));
     })
     .get('/api/bookings', 'bookings:read', async (req, res) => {

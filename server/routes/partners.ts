@@ -1,6 +1,6 @@
 import type { Knex } from 'knex';
 import type { RouteTable } from './table.ts';
-import type { Config } from '../config.ts';
+import { bookingLimitsOf, type Config } from '../config.ts';
 import { parse } from '../middleware/validate.ts';
 import { IdParams } from '../../shared/schemas/common.ts';
 import { AssignPerson, CreateInvitation, PartnerAnswer, SlotQuery, VersionBody } from '../../shared/schemas/answers.ts';
@@ -10,15 +10,15 @@ import { FeedsService } from '../services/feeds.ts';
 import { InvitationsService } from '../services/invitations.ts';
 import { ConflictError } from '../errors.ts';
 
-export interface PartnerRouteDeps { knex: Knex; config: Config }
+export interface PartnerRouteDeps { knex: Knex; config: Config; now?: () => number }
 
 /**
  * Requests to partner firms and their answers (the scheduler's side and the partner's own pages),
  * per-person calendar feeds and invitations: one line a route, each naming who may call it.
  */
-export function partnerRoutes(table: RouteTable, { knex, config }: PartnerRouteDeps): void {
-  const confirmations = new ConfirmationsService(knex);
-  const slots = new PartnerSlotsService(knex);
+export function partnerRoutes(table: RouteTable, { knex, config, now = Date.now }: PartnerRouteDeps): void {
+  const confirmations = new ConfirmationsService(knex, now, bookingLimitsOf(config));
+  const slots = new PartnerSlotsService(knex, now, bookingLimitsOf(config));
   const feeds = new FeedsService(knex, config.PUBLIC_URL);
   const invitations = new InvitationsService(knex);
   const id = (params: unknown) => parse(IdParams, params, 'params').id;
@@ -36,7 +36,7 @@ export function partnerRoutes(table: RouteTable, { knex, config }: PartnerRouteD
     .post('/api/bookings/:id/proposal/refuse', 'bookings:write', async (req, res) => {
       res.json(await confirmations.refuseProposal(req.actor!, id(req.params), parse(VersionBody, req.body).version));
     })
-    .get('/api/partner/slots', 'bookings:answer', async (req, res) => {
+    .get('/api/partner/slots', 'slots:read', async (req, res) => {
       const { from } = parse(SlotQuery, req.query, 'query');
       res.json({ items: await slots.list(req.actor!, from ? new Date(from) : new Date()) });
     })

@@ -1,17 +1,16 @@
 import type { Knex } from 'knex';
-import type { BookingView, CreateBooking, MarkProgress, MoveStage, UpdateBooking } from '../../shared/schemas/bookings.ts';
-import { addWorkingMinutes, createBoardIndex, resourceCalendarOf, type Violation } from '../../shared/scheduler/index.ts';
+import type { BookingState, BookingView, CreateBooking, MarkProgress, MoveStage, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import { createBoardIndex, type Violation } from '../../shared/scheduler/index.ts';
 import { bookingsOfStage, shiftDependents } from '../../shared/board-actions.ts';
 import { toEngineBoard } from '../../shared/board-data.ts';
-import { Booking, Resource, Stage } from '../models/index.ts';
-import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
+import type { ResourceSide } from '../../shared/booking-states.ts';
+import { Booking, Stage } from '../models/index.ts';
+import { BadRequestError, HttpError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
-import { recordChange } from './audit.ts';
 import { loadBoard } from './board.ts';
-import { verifyStages } from './schedule-check.ts';
-import { bookingChanged, bookingRemoved, queueCustomerNotice } from './outbox.ts';
 import { withAnswers, type BookingWithAnswer } from './answer-views.ts';
+import { BookingWriter, TransitionRefusedError, partyOf, type BookingChange, type BookingLimits, type WriteOutcome } from './booking-writes.ts';
 
 const VIEW_COLUMNS = ['bookings.*', 'stages.name as stageName', 'stages.kind as stageKind', 'stages.job_id as jobId',
   'jobs.reference as jobReference', 'jobs.site_town as siteTown'];
@@ -32,7 +31,11 @@ export interface WriteResult { bookings: BookingView[]; warnings: Violation[] }
 const DAY = 86_400_000;
 
 export class BookingsService {
-  constructor(private readonly knex: Knex, private readonly now: () => number = Date.now) {}
+  private readonly writer: BookingWriter;
+
+  constructor(private readonly knex: Knex, private readonly now: () => number = Date.now, limits?: BookingLimits) {
+    this.writer = new BookingWriter(knex, now, limits);
+  }
 
   private view(actor: Actor, trx?: Knex.Transaction) {
     return scoped(Booking, actor, trx).join('stages', 'stages.id', 'bookings.stage_id')
@@ -52,72 +55,53 @@ export class BookingsService {
     return (await withAnswers(trx ?? this.knex, [toView(row)]))[0]!;
   }
 
-  private async views(actor: Actor, ids: string[], trx: Knex.Transaction): Promise<BookingView[]> {
-    const rows = await this.view(actor, trx).whereIn('bookings.id', ids).orderBy('bookings.id') as BookingRow[];
-    return rows.map(toView);
-  }
-
-  /** Ends a booking at the stage's working duration on the resource's calendar when no end is given. */
-  private async endOf(actor: Actor, trx: Knex.Transaction, input: CreateBooking, stage: Stage): Promise<Date> {
-    if (input.endsAt) return new Date(input.endsAt);
-    const start = Date.parse(input.startsAt);
-    const data = await loadBoard(trx, actor, { from: start - DAY, to: start + DAY, jobIds: [stage.jobId], now: this.now() });
-    const index = createBoardIndex(toEngineBoard(data), { now: this.now() });
-    if (!index.resources.has(input.resourceId)) throw new NotFoundError('resource');
-    return new Date(addWorkingMinutes(resourceCalendarOf(index, input.resourceId), start, stage.durationMinutes));
-  }
-
-  private async insert(actor: Actor, trx: Knex.Transaction, input: CreateBooking): Promise<Booking> {
-    const stage = await findVisible(Stage, actor, input.stageId, trx, 'stage');
-    await findVisible(Resource, actor, input.resourceId, trx, 'resource');
-    const created = await Booking.query(trx).insert({
-      stageId: input.stageId, resourceId: input.resourceId, startsAt: new Date(input.startsAt),
-      endsAt: await this.endOf(actor, trx, input, stage), state: input.state, createdBy: actor.userId,
-    } as Partial<Booking>);
-    await recordChange(trx, actor, 'booking', created.id, 'create', null, created);
-    // Booked straight in as confirmed (the installer's own people): the householder hears of a delivery or lift day at once.
-    if (created.state === 'confirmed') await queueCustomerNotice(trx, { bookingId: created.id, event: 'confirmed' });
-    return created;
+  /** The bookings a write kept, as the actor sees them, with the engine's warnings. */
+  private async saved(actor: Actor, outcome: WriteOutcome<unknown>): Promise<WriteResult> {
+    const ids = outcome.written.filter((w) => w.after).map((w) => String(w.after!.id));
+    const rows = ids.length ? await this.view(actor).whereIn('bookings.id', [...new Set(ids)]).orderBy('bookings.id') as BookingRow[] : [];
+    return { bookings: rows.map(toView), warnings: outcome.warnings };
   }
 
   /** Books a stage on a resource (a drop from the tray); the engine checks it before it is kept. */
   async create(actor: Actor, input: CreateBooking): Promise<WriteResult> {
-    return this.knex.transaction(async (trx) => {
-      const created = await this.insert(actor, trx, input);
-      const warnings = await verifyStages(trx, actor, [input.stageId], this.now());
-      return { bookings: await this.views(actor, [created.id], trx), warnings };
-    });
+    const outcome = await this.writer.run({ actor, party: partyOf(actor) }, { stageIds: [input.stageId], resourceIds: [input.resourceId] },
+      (w) => w.apply(bookChange(input)));
+    return this.saved(actor, outcome);
   }
 
-  /** Several bookings in one go (an auto-place preview being applied): all are kept or none. */
+  /** Several bookings in one go (an auto-place preview being applied): all are kept or none; a refusal names the item. */
   async createMany(actor: Actor, inputs: CreateBooking[]): Promise<WriteResult> {
-    return this.knex.transaction(async (trx) => {
-      const ids: string[] = [];
-      for (const input of inputs) ids.push((await this.insert(actor, trx, input)).id);
-      const warnings = await verifyStages(trx, actor, [...new Set(inputs.map((i) => i.stageId))], this.now());
-      return { bookings: await this.views(actor, ids, trx), warnings };
-    });
+    const outcome = await this.writer.run({ actor, party: partyOf(actor) },
+      { stageIds: inputs.map((i) => i.stageId), resourceIds: inputs.map((i) => i.resourceId) }, async (w) => {
+        for (const [n, input] of inputs.entries()) {
+          try {
+            await w.apply(bookChange(input));
+          } catch (error) {
+            throw inItem(error, n);
+          }
+        }
+      });
+    return this.saved(actor, outcome);
   }
 
-  /** Changes one booking; a change based on an old version is refused (409), never overwritten. */
+  /**
+   * Changes one booking: its time or resource (a move), and for the firm's own crews and machines
+   * its confirmation. Sending, answering and progress have their own actions; a state this route
+   * cannot set is refused by the state machine (409). A change based on an old version is refused.
+   */
   async update(actor: Actor, id: string, input: UpdateBooking): Promise<WriteResult> {
-    return this.knex.transaction(async (trx) => {
-      const before = await scoped(Booking, actor, trx).findById(id).forUpdate();
-      if (!before) throw new NotFoundError('booking');
-      if (before.version !== input.version) {
-        throw new ConflictError('Someone else changed this booking since you loaded it.', { code: 'stale-version', current: await this.get(actor, id, trx) });
+    const outcome = await this.writer.run({ actor, party: partyOf(actor) }, { bookingIds: [id], resourceIds: input.resourceId ? [input.resourceId] : [] }, async (w) => {
+      const before = await w.booking(id, input.version);
+      const startsAt = Date.parse(input.startsAt);
+      const endsAt = Date.parse(input.endsAt);
+      const moves = startsAt !== before.startsAt.getTime() || endsAt !== before.endsAt.getTime() || (input.resourceId !== undefined && input.resourceId !== String(before.resourceId));
+      let current = before;
+      if (moves) current = (await w.apply({ action: 'move', bookingId: id, startsAt, endsAt, resourceId: input.resourceId }))!;
+      if (input.state && input.state !== current.state) {
+        await w.apply({ action: patchAction(current.state, input.state, await w.sideOfBooking(current)), bookingId: id });
       }
-      if (input.resourceId && input.resourceId !== before.resourceId) await findVisible(Resource, actor, input.resourceId, trx, 'resource');
-      const after = await Booking.query(trx).patchAndFetchById(id, {
-        startsAt: new Date(input.startsAt), endsAt: new Date(input.endsAt),
-        resourceId: input.resourceId ?? before.resourceId, state: input.state ?? before.state,
-        version: before.version + 1, updatedAt: new Date(),
-      } as Partial<Booking>);
-      await bookingChanged(trx, actor, before, after); // the partner's update/cancel e-mail, in this transaction
-      await recordChange(trx, actor, 'booking', id, 'update', before, after);
-      const warnings = await verifyStages(trx, actor, [before.stageId], this.now());
-      return { bookings: await this.views(actor, [id], trx), warnings };
     });
+    return this.saved(actor, outcome);
   }
 
   /**
@@ -125,75 +109,71 @@ export class BookingsService {
    * with `moveDependents` the booked stages after it move by the same working time.
    */
   async moveStage(actor: Actor, stageId: string, input: MoveStage): Promise<WriteResult> {
-    return this.knex.transaction(async (trx) => {
-      const stage = await findVisible(Stage, actor, stageId, trx, 'stage');
-      const current = await scoped(Booking, actor, trx).where('stage_id', stageId).whereNot('state', 'declined').forUpdate().orderBy('id');
+    const outcome = await this.writer.run({ actor, party: partyOf(actor) }, { stageIds: [stageId], resourceIds: input.resourceId ? [input.resourceId] : [] }, async (w) => {
+      const stage = await findVisible(Stage, actor, stageId, w.trx, 'stage');
+      const current = await scoped(Booking, actor, w.trx).where('stage_id', stageId).whereNot('state', 'declined').orderBy('id');
       if (!current.length) throw new BadRequestError('This stage has no booking to move yet.', [{ field: 'stageId', message: 'has no booking; book it from the tray' }]);
       const start = Date.parse(input.startsAt);
-      const data = await loadBoard(trx, actor, { from: Math.min(start, ...current.map((b) => b.startsAt.getTime())) - 7 * DAY, to: start + 60 * DAY, jobIds: [stage.jobId], now: this.now() });
+      w.checkTimes(start, input.endsAt ? Date.parse(input.endsAt) : undefined);
+      const spanStart = Math.min(...current.map((b) => b.startsAt.getTime()));
+      const data = await loadBoard(w.trx, actor, { from: Math.min(start, spanStart) - 7 * DAY, to: start + 60 * DAY, jobIds: [stage.jobId], now: this.now() });
       const index = createBoardIndex(toEngineBoard(data), { now: this.now() });
       const shifts = [{ stageId, bookings: bookingsOfStage(index, stageId) }];
       if (input.moveDependents) shifts.push(...shiftDependents(index, stageId, start));
-      const changed: Booking[] = [];
-      const spanStart = Math.min(...current.map((b) => b.startsAt.getTime()));
       for (const shift of shifts) {
+        const own = shift.stageId === stageId;
         for (const planned of shift.bookings) {
-          const before = await scoped(Booking, actor, trx).findById(planned.id).forUpdate();
-          if (!before) throw new NotFoundError('booking');
-          const expected = input.versions[before.id];
-          if (expected !== undefined && expected !== before.version) {
-            throw new ConflictError('Someone else changed this stage since you loaded it.', { code: 'stale-version', current: await this.get(actor, before.id, trx) });
-          }
-          const own = shift.stageId === stageId;
-          const newStart = own ? (input.endsAt ? start : before.startsAt.getTime() + (start - spanStart)) : planned.start;
-          const newEnd = own ? (input.endsAt ? Date.parse(input.endsAt) : before.endsAt.getTime() + (start - spanStart)) : planned.end;
-          const resourceId = own && input.bookingId === before.id && input.resourceId ? input.resourceId : before.resourceId;
-          if (resourceId !== before.resourceId) await findVisible(Resource, actor, resourceId, trx, 'resource');
-          const after = await Booking.query(trx).patchAndFetchById(before.id, {
-            startsAt: new Date(newStart), endsAt: new Date(newEnd), resourceId, version: before.version + 1, updatedAt: new Date(),
-          } as Partial<Booking>);
-          await bookingChanged(trx, actor, before, after);
-          await recordChange(trx, actor, 'booking', before.id, 'update', before, after);
-          changed.push(after);
+          const before = current.find((b) => String(b.id) === String(planned.id));
+          const startsAt = own ? (input.endsAt ? start : (before ?? planned as never as Booking).startsAt.getTime() + (start - spanStart)) : planned.start;
+          const endsAt = own ? (input.endsAt ? Date.parse(input.endsAt) : (before ?? planned as never as Booking).endsAt.getTime() + (start - spanStart)) : planned.end;
+          const resourceId = own && input.bookingId === String(planned.id) && input.resourceId ? input.resourceId : undefined;
+          await w.apply({ action: 'move', bookingId: String(planned.id), version: input.versions[String(planned.id)], startsAt, endsAt, resourceId });
         }
       }
-      const warnings = await verifyStages(trx, actor, shifts.map((s) => s.stageId), this.now());
-      return { bookings: await this.views(actor, changed.map((b) => b.id), trx), warnings };
     });
+    return this.saved(actor, outcome);
   }
 
-  /**
-   * A crew marks its own booking on site, then done. Only the state changes (the time stays), so
-   * the engine has nothing new to check; it must happen in order.
-   */
+  /** A crew (or the office) marks a booking on site, then done, or takes either back. */
   async markProgress(actor: Actor, id: string, input: MarkProgress): Promise<BookingView> {
-    return this.knex.transaction(async (trx) => {
-      const before = await scoped(Booking, actor, trx).findById(id).forUpdate();
-      if (!before) throw new NotFoundError('booking');
-      if (before.version !== input.version) {
-        throw new ConflictError('This booking changed since you loaded it.', { code: 'stale-version', current: await this.get(actor, id, trx) });
-      }
-      const allowedFrom: Record<MarkProgress['state'], Booking['state'][]> = { on_site: ['pencilled', 'sent', 'confirmed'], done: ['on_site', 'confirmed'] };
-      if (!allowedFrom[input.state].includes(before.state)) {
-        throw new BadRequestError(`A ${before.state.replace('_', ' ')} booking can't be marked ${input.state.replace('_', ' ')}.`, [{ field: 'state', message: `can't follow ${before.state}` }]);
-      }
-      const after = await Booking.query(trx).patchAndFetchById(id, { state: input.state, version: before.version + 1, updatedAt: new Date() } as Partial<Booking>);
-      await recordChange(trx, actor, 'booking', id, 'update', before, after);
-      return this.get(actor, id, trx);
-    });
+    await this.writer.run({ actor, party: partyOf(actor) }, { bookingIds: [id] },
+      (w) => w.apply({ action: input.state === 'on_site' ? 'arrive' : 'finish', bookingId: id, version: input.version }));
+    return this.get(actor, id);
   }
 
-  /** Takes a booking off the board (the stage goes back to the tray). */
+  /** Takes a booking off the board (the stage goes back to the tray); a partner it was sent to is told. */
   async remove(actor: Actor, id: string, version: number): Promise<void> {
-    await this.knex.transaction(async (trx) => {
-      const before = await scoped(Booking, actor, trx).findById(id).forUpdate();
-      if (!before) throw new NotFoundError('booking');
-      if (before.version !== version) {
-        throw new ConflictError('Someone else changed this booking since you loaded it.', { code: 'stale-version', current: await this.get(actor, id, trx) });
-      }
-      await Booking.query(trx).deleteById(id);
-      await recordChange(trx, actor, 'booking', id, 'delete', before, null);
-      await bookingRemoved(trx, actor, before);
-    });
+    await this.writer.run({ actor, party: partyOf(actor) }, { bookingIds: [id] }, (w) => w.apply({ action: 'unbook', bookingId: id, version }));
   }
+}
+
+function bookChange(input: CreateBooking): BookingChange {
+  return {
+    action: input.state === 'confirmed' ? 'book-confirmed' : 'book', stageId: input.stageId, resourceId: input.resourceId,
+    startsAt: Date.parse(input.startsAt), endsAt: input.endsAt ? Date.parse(input.endsAt) : undefined,
+  };
+}
+
+/** The state a PATCH asks for, as the action that gets there; the state machine then decides whether it may. */
+function patchAction(from: BookingState, to: BookingState, side: ResourceSide): 'confirm' | 'unconfirm' | 'withdraw' | 'rebook' {
+  if (to === 'confirmed') return 'confirm';
+  if (to === 'pencilled') return side === 'partner' && from !== 'declined' ? 'withdraw' : from === 'declined' ? 'rebook' : 'unconfirm';
+  const how: Record<'sent' | 'declined' | 'on_site' | 'done', string> = {
+    sent: 'A booking becomes sent only by sending the partner a request (Send request), which e-mails them.',
+    declined: 'Only the partner firm declines a slot of its own.',
+    on_site: 'On site is marked through progress, by the crew on the booking or the office.',
+    done: 'Done is marked through progress, after on site, by the crew on the booking or the office.',
+  };
+  throw new TransitionRefusedError('move', from, `A ${from.replace('_', ' ')} booking can't be set to ${to.replace('_', ' ')} here. ${how[to]}`);
+}
+
+/** A refusal inside a batch names the item it is about (bookings[3].startsAt). */
+function inItem(error: unknown, n: number): unknown {
+  if (error instanceof BadRequestError) {
+    return new BadRequestError(`Booking ${n + 1} of the batch: ${error.detail ?? error.message}`, error.errors.map((e) => ({ ...e, field: `bookings[${n}].${e.field}` })));
+  }
+  if (error instanceof HttpError) {
+    return new HttpError(error.status, error.code, error.title, `Booking ${n + 1} of the batch: ${error.detail ?? error.message}`, { ...error.extra, item: n });
+  }
+  return error;
 }

@@ -48,47 +48,9 @@ export async function queueCustomerNotice(trx: Knex.Transaction, input: { bookin
 const OUT = ['sent', 'confirmed'];
 
 /**
- * What a scheduler's change to a booking means for the partner and the householder; called by
- * BookingsService.update inside its transaction, after the row is saved and before it is audited.
- * A booking of another firm's resource that was sent or confirmed and now has a new time → update
- * (and back to 'sent': the partner must confirm the new time); a new resource → cancellation to the
- * old one and a request to the new one; back to pencilled → cancellation. Mutates `after.state`
- * when it resets it, so the audit row shows the state saved.
- */
-export async function bookingChanged(trx: Knex.Transaction, actor: Actor, before: Booking, after: Booking): Promise<void> {
-  const firms = new Map<string, string>((await trx('resources').whereIn('id', [before.resourceId, after.resourceId]).select('id', 'firm_id'))
-    .map((r: { id: string; firmId: string }) => [String(r.id), String(r.firmId)]));
-  const isPartner = (resourceId: string) => firms.get(String(resourceId)) !== actor.firmId;
-  const moved = before.startsAt.getTime() !== after.startsAt.getTime() || before.endsAt.getTime() !== after.endsAt.getTime();
-  const newResource = String(before.resourceId) !== String(after.resourceId);
-  const wasOut = OUT.includes(before.state) && isPartner(before.resourceId);
-  const setState = async (state: Booking['state']) => {
-    await trx('bookings').where('id', after.id).update({ state });
-    after.state = state;
-  };
-
-  if (wasOut && (after.state === 'pencilled' || newResource)) {
-    await queueBookingMessage(trx, { bookingId: after.id, kind: 'cancel', version: after.version, resourceId: String(before.resourceId) });
-    if (newResource && isPartner(after.resourceId) && after.state !== 'pencilled') {
-      await setState('sent');
-      await queueBookingMessage(trx, { bookingId: after.id, kind: 'request', version: after.version });
-    }
-  } else if (wasOut && moved) {
-    await setState('sent');
-    await queueBookingMessage(trx, { bookingId: after.id, kind: 'update', version: after.version });
-  }
-  // A withdrawn date is not news to the householder until there is a new one to tell them.
-  if (before.state === 'confirmed' && moved && after.state !== 'pencilled') {
-    await queueCustomerNotice(trx, { bookingId: after.id, event: 'changed' });
-  } else if (after.state === 'confirmed' && before.state !== 'confirmed') {
-    await queueCustomerNotice(trx, { bookingId: after.id, event: 'confirmed' });
-  }
-}
-
-/**
  * A sent or confirmed booking of a partner's resource was taken off the board: the partner gets a
  * cancellation. The booking row is gone, so the message is rendered from the audit row's snapshot
- * (the payload still holds ids only). Called by BookingsService.remove after it audits the delete.
+ * (the payload still holds ids only). Called by the guarded write path after it audits the delete.
  */
 export async function bookingRemoved(trx: Knex.Transaction, actor: Actor, before: Booking): Promise<void> {
   if (!OUT.includes(before.state)) return;

@@ -5,9 +5,8 @@ import { NotFoundError, UnprocessableError } from '../errors.ts';
 import { cautionsFor } from '../mail/cautions.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
-import { recordChange } from './audit.ts';
 import { latestAnswers } from './answer-views.ts';
-import { queueBookingMessage } from './outbox.ts';
+import { BookingWriter, type BookingLimits } from './booking-writes.ts';
 
 /** States a partner sees: a pencilled booking is the installer's private plan until it is sent. */
 const SHOWN = ['sent', 'confirmed', 'on_site'];
@@ -23,7 +22,11 @@ type SlotRow = Booking & {
  * householder's name, phone and e-mail and every price stay with the installer.
  */
 export class PartnerSlotsService {
-  constructor(private readonly knex: Knex) {}
+  private readonly writer: BookingWriter;
+
+  constructor(private readonly knex: Knex, now: () => number = Date.now, limits?: BookingLimits) {
+    this.writer = new BookingWriter(knex, now, limits);
+  }
 
   async list(actor: Actor, from: Date): Promise<PartnerSlot[]> {
     const rows = await scoped(Booking, actor)
@@ -52,19 +55,17 @@ export class PartnerSlotsService {
    * on; a slot still awaiting an answer gets a fresh request so the links in hand stay good.
    */
   async assignPerson(actor: Actor, id: string, resourceId: string): Promise<PartnerSlot> {
-    await this.knex.transaction(async (trx) => {
-      const before = await scoped(Booking, actor, trx).findById(id).forUpdate();
-      if (!before || !SHOWN.includes(before.state)) throw new NotFoundError('slot');
-      const current = await Resource.query(trx).findById(before.resourceId);
-      const person = await findVisible(Resource, actor, resourceId, trx, 'person');
+    await this.writer.run({ actor, party: 'partner' }, { bookingIds: [id], resourceIds: [resourceId] }, async (w) => {
+      const before = await w.booking(id);
+      if (!SHOWN.includes(before.state)) throw new NotFoundError('slot');
+      const current = await Resource.query(w.trx).findById(before.resourceId);
+      const person = await findVisible(Resource, actor, resourceId, w.trx, 'person');
       if (person.category !== 'person' || String(person.firmId) !== actor.firmId || person.kind !== current?.kind) {
         throw new UnprocessableError(`Choose one of your own people who does ${current?.kind ?? 'this'} work.`, { code: 'wrong-person' });
       }
       if (String(person.id) === String(before.resourceId)) return;
-      const after = await Booking.query(trx).patchAndFetchById(id, { resourceId: person.id, version: before.version + 1, updatedAt: new Date() } as Partial<Booking>);
-      if (after.state === 'sent') await queueBookingMessage(trx, { bookingId: id, kind: 'update', version: after.version });
-      const installer = await trx('stages as s').join('jobs as j', 'j.id', 's.job_id').where('s.id', before.stageId).first('j.firm_id');
-      await recordChange(trx, actor, 'booking', id, 'update', before, after, String(installer.firmId));
+      // The engine checks the person like any booking: free then, working then, not in two places.
+      await w.apply({ action: 'assign', bookingId: id, resourceId: String(person.id) });
     });
     const slot = (await this.list(actor, new Date(0))).find((s) => s.id === String(id));
     if (!slot) throw new NotFoundError('slot');

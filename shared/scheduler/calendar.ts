@@ -96,6 +96,11 @@ class CalendarImpl implements CompiledCalendar {
       cum.push(0);
     }
     let i = day - this.cumBase;
+    // Working time is counted day by day from the first day asked about: a span of more than about
+    // ten years is refused rather than counted (year 9999 would take minutes and block everyone).
+    if (i < -SEARCH_DAYS || i > cum.length + SEARCH_DAYS) {
+      throw new SchedulerError('out_of_range', `Calendar ${this.source.id} can't count working time across more than ten years`);
+    }
     if (i < 0) {
       // Prepend earlier days with negative totals so the origin (and every value handed out) stays put.
       const part: number[] = new Array<number>(-i);
@@ -307,6 +312,10 @@ export function workingMinutesBetween(cal: Cal, start: Instant, end: Instant): n
   checkInstant(start, 'start');
   checkInstant(end, 'end');
   const c = compileCalendar(cal);
+  // Refused before any counting, so the calendar's running totals are never started from a far-off day.
+  if (Math.abs(end - start) > SEARCH_DAYS * DAY_MS) {
+    throw new SchedulerError('out_of_range', `Calendar ${c.source.id} can't count working time across more than ten years`);
+  }
   return (c.workedUntil(end) - c.workedUntil(start)) / MINUTE_MS;
 }
 

@@ -9,7 +9,8 @@ export type SchedulerErrorCode =
   | 'unknown_calendar'
   | 'unknown_booking'
   | 'cycle'
-  | 'no_working_time';
+  | 'no_working_time'
+  | 'out_of_range';
 
 /**
  * The error the engine throws for input it cannot work with. `code` is stable; `message` is

@@ -32,6 +32,8 @@ interface ZoneCache {
   offsets: number[];
   /** Segment of the last lookup: most lookups fall in the same one. */
   hint: number;
+  /** Offsets of far-off chunks (by chunk number), kept apart so one far instant costs one chunk, not every year between. */
+  far: Map<number, { starts: number[]; offsets: number[] }>;
 }
 
 const zones = new Map<string, ZoneCache>();
@@ -51,7 +53,7 @@ function zone(timeZone: string): ZoneCache {
     } catch {
       throw new SchedulerError('invalid_time_zone', `"${timeZone}" is not a time zone this engine knows`);
     }
-    z = { format, lo: 0, hi: 0, starts: [], offsets: [], hint: 0 };
+    z = { format, lo: 0, hi: 0, starts: [], offsets: [], hint: 0, far: new Map() };
     zones.set(timeZone, z);
   }
   lastName = timeZone;
@@ -104,6 +106,21 @@ function segments(z: ZoneCache, from: number, to: number): { starts: number[]; o
   return { starts, offsets };
 }
 
+/** Instants further than this from the covered years are looked up in a chunk of their own. */
+const FAR_MS = 4 * CHUNK_MS;
+
+function farOffset(z: ZoneCache, instant: number): number {
+  const n = Math.floor(instant / CHUNK_MS);
+  let chunk = z.far.get(n);
+  if (chunk === undefined) {
+    chunk = segments(z, n * CHUNK_MS, (n + 1) * CHUNK_MS);
+    z.far.set(n, chunk);
+  }
+  let i = chunk.starts.length - 1;
+  while (i > 0 && (chunk.starts[i] as number) > instant) i--;
+  return chunk.offsets[i] as number;
+}
+
 function cover(z: ZoneCache, instant: number): void {
   if (z.starts.length === 0) {
     const from = Math.floor(instant / CHUNK_MS) * CHUNK_MS;
@@ -151,6 +168,7 @@ export function timeZoneOffset(timeZone: string, instant: Instant): number {
   const z = zone(timeZone);
   if (!(instant >= z.lo && instant < z.hi)) {
     if (!Number.isFinite(instant)) throw new RangeError('An instant must be finite');
+    if (z.starts.length > 0 && (instant < z.lo - FAR_MS || instant >= z.hi + FAR_MS)) return farOffset(z, instant);
     cover(z, instant);
   }
   const starts = z.starts;

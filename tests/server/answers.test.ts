@@ -113,8 +113,11 @@ describe('a link for a version that has changed', () => {
 
 describe('confirming a time that was taken meanwhile', () => {
   it('shows a clear page: PostgreSQL refused the overlap', async () => {
-    const first = await requested({ job: 'TW-2421', stage: 'lift', resource: '25 t city crane', startsAt: '2027-06-01T08:00:00Z', endsAt: '2027-06-01T12:00:00Z' });
+    // The write path never sends two overlapping requests for one crane, so the overlap is made
+    // behind its back: PostgreSQL's exclusion constraint is the last guard, and the page explains it.
+    const first = await requested({ job: 'TW-2421', stage: 'lift', resource: '25 t city crane', startsAt: '2027-05-27T08:00:00Z', endsAt: '2027-05-27T12:00:00Z' });
     const second = await requested({ job: 'TW-2422', stage: 'lift', resource: '25 t city crane', startsAt: '2027-06-01T10:00:00Z', endsAt: '2027-06-01T14:00:00Z' });
+    await ctx.knex('bookings').where('id', first.id).update({ starts_at: '2027-06-01T08:00:00Z', ends_at: '2027-06-01T12:00:00Z' });
     await web().post(answerLinks(first.mail).confirm).type('form').send({}).expect(200);
     const page = await web().post(answerLinks(second.mail).confirm).type('form').send({}).expect(409);
     expect(page.text).toContain('That time was taken meanwhile');
@@ -139,19 +142,19 @@ describe('proposing another time', () => {
     expect(form.text).toContain('name="date"');
     expect(form.text).toContain('value="2027-05-12"');
     await web().post(links.propose).type('form').send({ date: '2027-05-13', start: '13:00', end: '10:00' }).expect(400);
-    const done = await web().post(links.propose).type('form').send({ date: '2027-05-13', start: '13:00', end: '17:00' }).expect(200);
+    const done = await web().post(links.propose).type('form').send({ date: '2027-05-13', start: '12:00', end: '16:00' }).expect(200);
     expect(done.text).toContain('your proposal is sent');
     const view = (await scheduler.get(`/api/bookings/${id}`).expect(200)).body;
-    // 13:00–17:00 BST is 12:00–16:00 UTC.
-    expect(view.answer).toMatchObject({ action: 'propose', proposalStatus: 'open', proposedStart: '2027-05-13T12:00:00.000Z', proposedEnd: '2027-05-13T16:00:00.000Z' });
+    // 12:00–16:00 BST is 11:00–15:00 UTC.
+    expect(view.answer).toMatchObject({ action: 'propose', proposalStatus: 'open', proposedStart: '2027-05-13T11:00:00.000Z', proposedEnd: '2027-05-13T15:00:00.000Z' });
     expect(view.state).toBe('sent');
 
     await ctx.inbox.clear();
     const accepted = await scheduler.post(`/api/bookings/${id}/proposal/accept`).set('X-CSRF-Token', scheduler.csrf).send({ version: 2 }).expect(200);
-    expect(accepted.body).toMatchObject({ version: 3, state: 'sent', startsAt: '2027-05-13T12:00:00.000Z', endsAt: '2027-05-13T16:00:00.000Z', answer: { proposalStatus: 'accepted' } });
+    expect(accepted.body).toMatchObject({ version: 3, state: 'sent', startsAt: '2027-05-13T11:00:00.000Z', endsAt: '2027-05-13T15:00:00.000Z', answer: { proposalStatus: 'accepted' } });
     const [update] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking changed: Connect and certify'));
     expect(calendarOf(update!)).toMatchObject({ method: 'REQUEST', uid: `booking-${id}@waterline`, sequence: 3 });
-    expect(calendarOf(update!).start.toISOString()).toBe('2027-05-13T12:00:00.000Z');
+    expect(calendarOf(update!).start.toISOString()).toBe('2027-05-13T11:00:00.000Z');
     await scheduler.post(`/api/bookings/${id}/proposal/accept`).set('X-CSRF-Token', scheduler.csrf).send({ version: 3 }).expect(409);
   });
 
@@ -160,7 +163,8 @@ describe('proposing another time', () => {
     await web().post(answerLinks(mail).propose).type('form').send({ date: '2027-05-19', start: '09:00', end: '13:00' }).expect(200);
     await ctx.inbox.clear();
     const refused = await scheduler.post(`/api/bookings/${id}/proposal/refuse`).set('X-CSRF-Token', scheduler.csrf).send({ version: 2 }).expect(200);
-    expect(refused.body).toMatchObject({ version: 2, startsAt: '2027-05-18T08:00:00.000Z', answer: { proposalStatus: 'refused' } });
+    // The slot stands and the partner is asked about it again: a new request version, with new links.
+    expect(refused.body).toMatchObject({ version: 3, state: 'sent', startsAt: '2027-05-18T08:00:00.000Z', answer: { proposalStatus: 'refused' } });
     const [again] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Your proposed time could not be used'));
     // The new links work: the partner confirms the original slot.
     await web().post(answerLinks(again!).confirm).type('form').send({}).expect(200);

@@ -5,39 +5,39 @@ let ctx: TestContext;
 let scheduler: Agent;
 let stageA: string;
 let stageB: string;
-let crane: string;
+let crew: string;
 
 beforeAll(async () => {
   ctx = await startTestApp();
   scheduler = await signIn(ctx, account('scheduler').email);
-  // Two unbooked in-ground jobs from the tray (TW-2422, TW-2423) both need a crane for the lift.
+  // Two unbooked in-ground jobs from the tray (TW-2422, TW-2423) both need an install crew for the lift.
   stageA = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2422' }), kind: 'lift' });
   stageB = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2423' }), kind: 'lift' });
-  crane = await idOf(ctx.knex, 'resources', { name: '60 t mobile crane' });
+  crew = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
 });
 afterAll(async () => { await ctx.close(); });
 
 const slot = { startsAt: '2026-10-06T08:00:00Z', endsAt: '2026-10-06T12:00:00Z' };
 
-describe('two schedulers confirming the same crane at the same time', () => {
+describe('two schedulers confirming the same crew at the same time', () => {
   it('lets exactly one through; PostgreSQL refuses the other with 409', async () => {
     const other = await signIn(ctx, account('owner').email);
     const [a, b] = await Promise.all([
-      scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf).send({ stageId: stageA, resourceId: crane, state: 'confirmed', ...slot }),
-      other.post('/api/bookings').set('X-CSRF-Token', other.csrf).send({ stageId: stageB, resourceId: crane, state: 'confirmed', ...slot }),
+      scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf).send({ stageId: stageA, resourceId: crew, state: 'confirmed', ...slot }),
+      other.post('/api/bookings').set('X-CSRF-Token', other.csrf).send({ stageId: stageB, resourceId: crew, state: 'confirmed', ...slot }),
     ]);
     expect([a.status, b.status].sort(), JSON.stringify([a.body, b.body])).toEqual([201, 409]);
     const refused = a.status === 409 ? a : b;
     expect(refused.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(refused.body).toMatchObject({ status: 409, code: 'double-booked' });
-    const rows = await ctx.knex('bookings').where({ resource_id: crane, state: 'confirmed' }).where('starts_at', new Date(slot.startsAt));
+    const rows = await ctx.knex('bookings').where({ resource_id: crew, state: 'confirmed' }).where('starts_at', new Date(slot.startsAt));
     expect(rows).toHaveLength(1);
   });
 
   it("refuses a pencilled booking over the confirmed one with the engine's reason (422)", async () => {
     const stage = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2420' }), kind: 'lift' });
     const res = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
-      .send({ stageId: stage, resourceId: crane, state: 'pencilled', ...slot }).expect(422);
+      .send({ stageId: stage, resourceId: crew, state: 'pencilled', ...slot }).expect(422);
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(res.body.violations.map((v: { kind: string }) => v.kind)).toContain('clash');
     expect(await ctx.knex('bookings').where({ stage_id: stage })).toEqual([]);
@@ -81,7 +81,7 @@ describe('moving a booking', () => {
 describe('bad input', () => {
   it('gets 400 problem+json naming each field and the reason', async () => {
     const res = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
-      .send({ stageId: 'abc', resourceId: crane, startsAt: '2026-10-06 08:00', endsAt: '2026-10-06T07:00:00Z' }).expect(400);
+      .send({ stageId: 'abc', resourceId: crew, startsAt: '2026-10-06 08:00', endsAt: '2026-10-06T07:00:00Z' }).expect(400);
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(res.body.status).toBe(400);
     const fields = Object.fromEntries(res.body.errors.map((e: { field: string; message: string }) => [e.field, e.message]));
@@ -91,7 +91,7 @@ describe('bad input', () => {
 
   it('names the field when the end is before the start', async () => {
     const res = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
-      .send({ stageId: stageA, resourceId: crane, startsAt: '2026-10-06T12:00:00Z', endsAt: '2026-10-06T08:00:00Z' }).expect(400);
+      .send({ stageId: stageA, resourceId: crew, startsAt: '2026-10-06T12:00:00Z', endsAt: '2026-10-06T08:00:00Z' }).expect(400);
     expect(res.body.errors).toEqual([{ field: 'endsAt', message: 'must be after the start' }]);
   });
 

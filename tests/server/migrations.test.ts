@@ -30,8 +30,8 @@ describe('migrations', () => {
     expect(plain).toEqual([]);
   });
 
-  it('protect confirmed bookings with an exclusion constraint partial on the confirmed state', async () => {
-    const row = await knex.raw(`SELECT pg_get_constraintdef(oid) AS def FROM pg_constraint WHERE conname = 'bookings_no_confirmed_overlap'`);
-    expect(row.rows[0].def).toBe("EXCLUDE USING gist (resource_id WITH =, tstzrange(starts_at, ends_at) WITH &&) WHERE ((state = 'confirmed'::text))");
+  it('protect held bookings (confirmed and on site) with an exclusion constraint partial on those states', async () => {
+    const row = await knex.raw(`SELECT pg_get_constraintdef(oid) AS def FROM pg_constraint WHERE conname = 'bookings_no_held_overlap'`);
+    expect(row.rows[0].def).toBe("EXCLUDE USING gist (resource_id WITH =, tstzrange(starts_at, ends_at) WITH &&) WHERE ((state = ANY (ARRAY['confirmed'::text, 'on_site'::text])))");
   });
 });

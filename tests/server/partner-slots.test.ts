@@ -60,7 +60,7 @@ describe("a partner's own slots", () => {
   });
 
   it("refuses another firm's slot with 404", async () => {
-    const crane = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'lift', resource: '60 t mobile crane', startsAt: '2027-08-05T08:00:00Z', endsAt: '2027-08-05T12:00:00Z', state: 'sent' });
+    const crane = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'lift', resource: '60 t mobile crane', startsAt: '2027-07-29T08:00:00Z', endsAt: '2027-07-29T12:00:00Z', state: 'sent' });
     await partner.post(`/api/partner/slots/${crane.id}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'confirm' }).expect(404);
   });
 
@@ -97,7 +97,7 @@ describe('a private calendar feed per person', () => {
     const events = cal.getAllSubcomponents('vevent').map((v) => new ICAL.Event(v));
     const mine = events.find((e) => e.uid === `booking-${slot}@waterline`); // RFC 5545 §3.8.4.7: same UID as the invites
     expect(mine).toBeDefined();
-    expect(mine!.sequence).toBe(3);
+    expect(mine!.sequence).toBe(4); // request (2), another person (3), confirmed (4)
     expect(mine!.startDate.toJSDate().toISOString()).toBe('2027-08-03T08:00:00.000Z');
     expect(mine!.description).toContain('Follow local codes and licensed practice');
     expect(feed.text).not.toContain('@home.example');

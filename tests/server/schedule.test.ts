@@ -85,14 +85,24 @@ describe('taking a booking off the board', () => {
   });
 });
 
-describe('a delivery booked straight in as confirmed', () => {
+describe('a lift booked straight in as confirmed on the firm\'s own crew', () => {
   it("queues the householder's notice of the day with the booking, in the same transaction", async () => {
-    const job = await idOf(ctx.knex, 'jobs', { reference: 'TW-2419' });
-    const delivery = await idOf(ctx.knex, 'stages', { job_id: job, kind: 'delivery' });
-    const lorry = await idOf(ctx.knex, 'resources', { name: '18 t lorry with loader crane' });
-    const res = await post('/api/bookings', { stageId: delivery, resourceId: lorry, startsAt: '2026-10-05T08:00:00Z', state: 'confirmed' }).expect(201);
+    const job = await idOf(ctx.knex, 'jobs', { reference: 'TW-2421' });
+    const lift = await idOf(ctx.knex, 'stages', { job_id: job, kind: 'lift' });
+    const crew = await idOf(ctx.knex, 'resources', { name: 'Crew Kestrel' });
+    const res = await post('/api/bookings', { stageId: lift, resourceId: crew, startsAt: '2026-10-05T08:00:00Z', state: 'confirmed' }).expect(201);
     const notices = await ctx.knex('outbox').where({ kind: 'customer_notice' }).whereRaw("payload->>'bookingId' = ?", [res.body.bookings[0].id]);
     expect(notices).toHaveLength(1);
     expect(notices[0].payload).toMatchObject({ event: 'confirmed' });
+  });
+
+  it("refuses to book a partner firm's lorry as confirmed: only the haulier's answer confirms it", async () => {
+    const job = await idOf(ctx.knex, 'jobs', { reference: 'TW-2419' });
+    const delivery = await idOf(ctx.knex, 'stages', { job_id: job, kind: 'delivery' });
+    const lorry = await idOf(ctx.knex, 'resources', { name: '18 t lorry with loader crane' });
+    const res = await post('/api/bookings', { stageId: delivery, resourceId: lorry, startsAt: '2026-10-05T08:00:00Z', state: 'confirmed' }).expect(409);
+    expect(res.body).toMatchObject({ code: 'transition-refused', detail: 'Only the partner firm can confirm its own people and machines: send them a request instead.' });
+    expect(await ctx.knex('bookings').where({ stage_id: delivery })).toEqual([]);
+    expect(await ctx.knex('outbox').where({ kind: 'customer_notice' }).whereRaw("payload->>'bookingId' IS NULL")).toEqual([]);
   });
 });

@@ -174,6 +174,16 @@ describe('refuses bad input with typed errors', () => {
   it('a non-finite instant', () => {
     expect(() => addWorkingMinutes(firmCal, Number.NaN, 10)).toThrow(RangeError);
   });
+  it('working time counted across millennia (year 9999), at once rather than after minutes of work', () => {
+    const cal = { ...firmCal, id: 'far' };
+    const started = performance.now();
+    expect(() => workingMinutesBetween(cal, at(2026, 6, 1), Date.UTC(9999, 0, 4, 9))).toThrowError(expect.objectContaining({ code: 'out_of_range' }));
+    expect(() => workingMinutesBetween({ ...cal, id: 'far-back' }, Date.parse('0001-01-04T09:00:00Z'), at(2026, 6, 1))).toThrowError(expect.objectContaining({ code: 'out_of_range' }));
+    expect(performance.now() - started).toBeLessThan(1000);
+    // A year still counts: 2026-06-01 to 2027-06-01 holds 261 weekdays, less the 8 England and Wales
+    // bank holidays in it (gov.uk lists, as checked above), each of 9 working hours: 253 × 540 minutes.
+    expect(workingMinutesBetween(cal, at(2026, 6, 1), at(2027, 6, 1))).toBe(253 * 540);
+  });
 });
 
 describe('properties of working time', () => {
