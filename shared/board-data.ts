@@ -22,7 +22,12 @@ export interface BoardStage extends Stage {
 }
 
 export interface BoardBooking extends Booking {
-  /** True for another installer's booking of a shared partner resource: shown only as busy. */
+  /**
+   * True for a "busy elsewhere" placeholder: another installer's sent, confirmed, on-site or done
+   * bookings of a shared partner resource, merged into one block per busy span. Its id is
+   * `elsewhere-<n>` (an index in this response, never the other installer's booking id), its
+   * state always 'confirmed', its stage and job the placeholders below.
+   */
   elsewhere?: boolean;
   /** A request to a partner firm went unanswered past the reminder time. */
   overdue?: boolean;
@@ -59,4 +64,25 @@ export function toEngineBoard(data: BoardData): Board {
 
 /** The placeholder job and stage that stand for another installer's booking on a shared resource. */
 export const ELSEWHERE_JOB_ID = 'elsewhere';
-export const elsewhereStageId = (bookingId: string) => `elsewhere:${bookingId}`;
+/** The n-th busy-elsewhere block of one board response (an opaque index, not anyone's id). */
+export const elsewhereStageId = (n: number) => `elsewhere:${n}`;
+export const elsewhereBookingId = (n: number) => `elsewhere-${n}`;
+
+/**
+ * The engine's violations that concern the reader's own work. A violation that involves only
+ * busy-elsewhere placeholders (two of them overlapping, one outside the partner's hours, …) is
+ * another installer's business and is dropped; one that names an own booking or stage stays
+ * (its cross-firm side names only the own booking).
+ *
+ * @example
+ * ownViolations(data, analyseBoard(toEngineBoard(data), { now }).violations)
+ */
+export function ownViolations<V extends { bookingIds: readonly string[]; stageIds: readonly string[] }>(data: Pick<BoardData, 'bookings' | 'stages'>, violations: readonly V[]): V[] {
+  const elsewhereBookings = new Set(data.bookings.filter((b) => b.elsewhere).map((b) => b.id));
+  if (elsewhereBookings.size === 0) return [...violations];
+  const elsewhereStages = new Set(data.stages.filter((s) => s.jobId === ELSEWHERE_JOB_ID).map((s) => s.id));
+  return violations.filter((v) => {
+    const ids = [...v.bookingIds.map((id) => elsewhereBookings.has(id)), ...v.stageIds.map((id) => elsewhereStages.has(id))];
+    return ids.length === 0 || ids.some((isElsewhere) => !isElsewhere);
+  });
+}

@@ -1,6 +1,8 @@
 /**
- * Who may do what. The server enforces these on every route (refused by default); the client uses
- * the same table to hide what a role cannot do.
+ * Who may do what. The server enforces these on every route (refused by default), and every
+ * permission here is the access rule of at least one route (tests/server/access.test.ts checks
+ * both ways); the client uses the same table to hide what a role cannot do. Which rows and fields a
+ * permitted reader then gets is server/services/read-policy.ts's and the model scopes' business.
  */
 export const ROLES = ['owner', 'scheduler', 'manager', 'crew', 'partner', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
@@ -11,30 +13,33 @@ export type FirmKind = (typeof FIRM_KINDS)[number];
 const OFFICE: Role[] = ['owner', 'scheduler', 'manager', 'viewer'];
 
 export const PERMISSIONS = {
-  /** The board, jobs, resources and firms of one's own firm and its partners. */
-  'board:read': OFFICE,
-  'jobs:read': OFFICE,
+  /** The board and its live stream: the office sees its whole firm, crew only their own rows. */
+  'board:read': [...OFFICE, 'crew'],
+  /** Jobs of one's own firm: the office all of them, crew the ones they are booked on (no householder e-mail or phone). */
+  'jobs:read': [...OFFICE, 'crew'],
   'jobs:write': ['owner', 'scheduler'],
+  /** Resources: the office its own and its partners', crew the rows they work as, a partner firm its own. */
   'resources:read': [...OFFICE, 'crew', 'partner'],
-  'resources:write': ['owner', 'scheduler'],
   'firms:read': [...OFFICE, 'partner'],
-  'bookings:read': [...OFFICE, 'crew', 'partner'],
+  /** The bookings API (lists and single bookings of the firm's jobs). Crew read theirs through My work. */
+  'bookings:read': OFFICE,
   'bookings:write': ['owner', 'scheduler'],
   /** A partner firm's coordinator answers the requests for its own resources. */
   'bookings:answer': ['partner'],
   /** Crew mark their own bookings on site and done. */
   'bookings:progress': ['crew', 'owner', 'scheduler'],
+  /** Day sheets of the installer's own people: the office all of them, crew their own. */
+  'day-sheets:read': [...OFFICE, 'crew'],
   'units:read': OFFICE,
   /** Site surveys: the office reads them; whoever stands in the garden (often a crew) fills them in. */
   'surveys:read': [...OFFICE, 'crew'],
   'surveys:write': ['owner', 'scheduler', 'crew'],
-  'hire:read': ['owner', 'scheduler', 'manager'],
   'hire:approve': ['owner', 'manager'],
   'reports:read': ['owner', 'manager'],
-  'audit:read': ['owner', 'manager'],
   'firm:manage': ['owner'],
-  /** A crew member's own assignments; a partner coordinator's own firm's slots. */
+  /** A crew member's own assignments, with what each visit needs. */
   'my-work:read': ['crew'],
+  /** A partner coordinator's own firm's slots (sent, confirmed, on site) and their day sheet. */
   'slots:read': ['partner'],
 } as const satisfies Record<string, readonly Role[]>;
 

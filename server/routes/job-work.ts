@@ -10,6 +10,7 @@ import { PutSurvey } from '../../shared/schemas/surveys.ts';
 import { InstallationTypeParams, PutTemplate } from '../../shared/schemas/templates.ts';
 import { PutFirmSettings } from '../../shared/schemas/firm-settings.ts';
 import { DaySheetQuery } from '../../shared/schemas/day-sheets.ts';
+import { BookingRange } from '../../shared/schemas/bookings.ts';
 import { MAX_FILE_BYTES } from '../../shared/schemas/files.ts';
 import { BadRequestError, HttpError } from '../errors.ts';
 import { TemplatesService } from '../services/templates.ts';
@@ -98,9 +99,18 @@ export function jobWorkRoutes(table: RouteTable, { knex, config, store: given }:
     .put('/api/firm/settings', 'firm:manage', async (req, res) => {
       res.json(await templates.putSettings(req.actor!, parse(PutFirmSettings, req.body)));
     })
-    .get('/api/day-sheets', 'bookings:read', async (req, res) => {
+    .get('/api/day-sheets', 'day-sheets:read', async (req, res) => {
       const { date } = parse(DaySheetQuery, req.query, 'query');
       res.json(await daySheets.forDate(req.actor!, date));
+    })
+    // A partner firm's own day sheet, built from its slots (read-policy.ts decides what it shows).
+    .get('/api/partner/day-sheets', 'slots:read', async (req, res) => {
+      const { date } = parse(DaySheetQuery, req.query, 'query');
+      res.json(await daySheets.forDate(req.actor!, date));
+    })
+    .get('/api/my-work', 'my-work:read', async (req, res) => {
+      const { from, to } = parse(BookingRange, req.query, 'query');
+      res.json(await daySheets.myWork(req.actor!, new Date(from), new Date(to)));
     });
 
   return { close: () => store.close() };

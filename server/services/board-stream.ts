@@ -1,27 +1,36 @@
 import pg from 'pg';
 import type { Knex } from 'knex';
 import type { Request, Response } from 'express';
-import type { Actor } from './actor.ts';
-import { visibleFirmIds } from '../models/base.ts';
+import { reachOf, type Actor } from './actor.ts';
+import { ownResourceIds } from '../models/base.ts';
+import { mayHearOf, streamEvent, type BookingChange, type StreamReader } from './read-policy.ts';
 
 const CHANNEL = 'board_changes';
 
 /**
- * Tells every open board about a booking change, inside the writing transaction: PostgreSQL
+ * Tells the open boards about a booking change, inside the writing transaction: PostgreSQL
  * delivers the notification only when the transaction commits, to every server process listening.
+ * The notification (server side only) names the installer whose job it is and the resource's
+ * firm, so each process can hand it only to the streams allowed to hear of it.
  */
 export async function notifyBookingChange(trx: Knex.Transaction, bookingId: string, stageId: string, resourceId: string): Promise<void> {
-  await trx.raw(`SELECT pg_notify(?, json_build_object('bookingId', ?::text, 'firmIds', ARRAY(
-      SELECT j.firm_id::text FROM stages s JOIN jobs j ON j.id = s.job_id WHERE s.id = ?
-      UNION SELECT r.firm_id::text FROM resources r WHERE r.id = ?))::text)`, [CHANNEL, bookingId, stageId, resourceId]);
+  await trx.raw(`SELECT pg_notify(?, json_build_object('bookingId', ?::text, 'resourceId', ?::text,
+      'installerFirmId', (SELECT j.firm_id::text FROM stages s JOIN jobs j ON j.id = s.job_id WHERE s.id = ?),
+      'resourceFirmId', (SELECT r.firm_id::text FROM resources r WHERE r.id = ?))::text)`, [CHANNEL, bookingId, resourceId, stageId, resourceId]);
 }
 
-interface Subscriber { firmIds: Set<string>; res: Response }
+interface Subscriber { reader: StreamReader; userId: string; sessionId: string; res: Response }
+
+/** The stored session as express-session keeps it (connect-pg-simple's `sess` column). */
+interface StoredSession { userId?: string; firmId?: string }
 
 /**
  * Server-sent events for the board. Each server process LISTENs on one PostgreSQL connection and
- * fans each change out to its own open streams whose firm can see it, so boards served by
- * different processes stay in step without sharing memory.
+ * hands each change to its own open streams that may read the booking (read-policy.ts
+ * `mayHearOf`), so boards served by different processes stay in step without sharing memory.
+ * A stream lives only as long as its session: before each delivery, and at each keep-alive, the
+ * session is looked up, and a stream whose session signed out, expired or switched firm is ended
+ * (the browser's reconnection then meets 401 and stops).
  */
 export class BoardStream {
   private readonly subscribers = new Set<Subscriber>();
@@ -29,41 +38,78 @@ export class BoardStream {
   private starting: Promise<void> | null = null;
   private closed = false;
   private heartbeat: ReturnType<typeof setInterval> | null = null;
+  // Deliveries run one after another, so events keep the order PostgreSQL sent them in.
+  private queue: Promise<void> = Promise.resolve();
 
   constructor(private readonly databaseUrl: string, private readonly knex: Knex) {}
 
   private start(): Promise<void> {
     this.starting ??= (async () => {
       const client = new pg.Client({ connectionString: this.databaseUrl });
-      client.on('notification', (msg) => this.deliver(msg.payload ?? ''));
+      client.on('notification', (msg) => this.enqueue(() => this.deliver(msg.payload ?? '')));
       client.on('error', () => { this.client = null; this.starting = null; });
       await client.connect();
       await client.query(`LISTEN ${CHANNEL}`);
       this.client = client;
-      this.heartbeat = setInterval(() => { for (const s of this.subscribers) s.res.write(': keep-alive\n\n'); }, 25_000);
+      this.heartbeat = setInterval(() => this.enqueue(() => this.keepAlive()), 25_000);
       this.heartbeat.unref();
     })();
     return this.starting;
   }
 
-  private deliver(payload: string): void {
-    let message: { bookingId: string; firmIds: string[] };
-    try { message = JSON.parse(payload) as typeof message; } catch { return; }
-    for (const s of this.subscribers) {
-      if (message.firmIds.some((f) => s.firmIds.has(f))) s.res.write(`event: bookings\ndata: ${JSON.stringify({ bookingId: message.bookingId })}\n\n`);
+  private enqueue(task: () => Promise<void>): void {
+    this.queue = this.queue.then(task).catch(() => undefined);
+  }
+
+  /** The subscribers among `list` whose session is still the one their stream was opened for. */
+  private async live(list: Subscriber[]): Promise<Set<Subscriber>> {
+    if (this.closed || list.length === 0) return new Set();
+    const rows = await this.knex('session').whereIn('sid', [...new Set(list.map((s) => s.sessionId))])
+      .where('expire', '>', new Date()).select('sid', 'sess') as { sid: string; sess: StoredSession | string }[];
+    const bySid = new Map(rows.map((r) => [r.sid, (typeof r.sess === 'string' ? JSON.parse(r.sess) : r.sess) as StoredSession]));
+    return new Set(list.filter((s) => {
+      const sess = bySid.get(s.sessionId);
+      return sess !== undefined && String(sess.userId) === s.userId && (sess.firmId === undefined || String(sess.firmId) === s.reader.firmId);
+    }));
+  }
+
+  private end(s: Subscriber): void {
+    this.subscribers.delete(s);
+    s.res.end();
+  }
+
+  private async deliver(payload: string): Promise<void> {
+    let change: BookingChange;
+    try { change = JSON.parse(payload) as BookingChange; } catch { return; }
+    const listeners = [...this.subscribers].filter((s) => mayHearOf(s.reader, change));
+    const live = await this.live(listeners);
+    const data = JSON.stringify(streamEvent(change));
+    for (const s of listeners) {
+      if (live.has(s)) s.res.write(`event: bookings\ndata: ${data}\n\n`);
+      else this.end(s);
     }
   }
 
-  /** Opens a stream for one signed-in person; it ends when they leave. */
+  private async keepAlive(): Promise<void> {
+    const all = [...this.subscribers];
+    const live = await this.live(all);
+    for (const s of all) {
+      if (live.has(s)) s.res.write(': keep-alive\n\n');
+      else this.end(s);
+    }
+  }
+
+  /** Opens a stream for one signed-in person; it ends when they leave or their session ends. */
   async open(req: Request, res: Response, actor: Actor): Promise<void> {
     if (this.closed) { res.status(503).end(); return; }
     await this.start();
-    const rows = (await visibleFirmIds(this.knex, actor)) as Record<string, unknown>[];
-    const firmIds = new Set<string>(rows.map((r) => String(Object.values(r)[0])));
+    const reach = reachOf(actor);
+    const own = reach === 'crew' ? (await ownResourceIds(this.knex, actor)) as { id: string }[] : [];
+    const reader: StreamReader = { reach, firmId: actor.firmId, ownResourceIds: new Set(own.map((r) => String(r.id))) };
     res.status(200).set({ 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-cache, no-transform', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
     res.flushHeaders();
     res.write('retry: 3000\n\n');
-    const subscriber = { firmIds, res };
+    const subscriber: Subscriber = { reader, userId: actor.userId, sessionId: req.sessionID, res };
     this.subscribers.add(subscriber);
     req.on('close', () => this.subscribers.delete(subscriber));
   }

@@ -1,11 +1,12 @@
 import type { Knex } from 'knex';
 import type { BoardBooking, BoardData, BoardJob, BoardResource, BoardStage } from '../../shared/board-data.ts';
-import { ELSEWHERE_JOB_ID, elsewhereStageId } from '../../shared/board-data.ts';
+import { ELSEWHERE_JOB_ID, elsewhereBookingId, elsewhereStageId } from '../../shared/board-data.ts';
 import type { Dependency, HirePeriod, LeadTimeRule, WorkingCalendar } from '../../shared/scheduler/index.ts';
 import { Booking, Calendar, CalendarException, Dependency as DependencyModel, HirePeriod as HireModel, Job, LeadTimeRule as LeadModel, Resource, Stage } from '../models/index.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { withAnswers } from './answer-views.ts';
+import { boardCustomerName, busyElsewhere, ELSEWHERE_BLOCKING_STATES, ELSEWHERE_STATE } from './read-policy.ts';
 
 const OPEN_JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress'];
 
@@ -34,7 +35,8 @@ type ResourceRow = Resource & { firmName: string; firmKind: string; timeZone: st
  * Loads what the board and the write checks need from the database, scoped to the actor: the
  * resources they may see, the bookings in the range, the jobs, stages and dependencies behind them,
  * calendars with closures and absences, hire periods and lead-time rules. Another installer's
- * booking of a shared partner resource comes only as an anonymous "busy elsewhere" block.
+ * booking of a shared partner resource comes only as an anonymous "busy elsewhere" block, and only
+ * once it was sent (read-policy.ts decides which states block and what the block tells).
  */
 export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, query: BoardQuery): Promise<BoardData> {
   const trx = knex.isTransaction ? (knex as Knex.Transaction) : undefined;
@@ -83,12 +85,12 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     rows<HireModel>(scoped(HireModel, actor, trx).whereIn('hire_periods.resource_id', visibleResourceIds as never)),
     reach === 'installer-office' ? rows<LeadModel>(scoped(LeadModel, actor, trx)) : Promise.resolve([] as LeadModel[]),
     // Bookings on visible partner resources by stages we may not see (another installer's on a
-    // shared partner): they block the slot, nothing more is told.
+    // shared partner), once sent: they block the slot, nothing more is told (not even their ids).
     reach === 'installer-office'
       ? knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').join('jobs as j', 'j.id', 's.job_id')
         .whereIn('b.resource_id', knex('resources').select('id').whereIn('id', visibleResourceIds).whereNot('firm_id', actor.firmId))
-        .whereNot('j.firm_id', actor.firmId).whereNot('b.state', 'declined').where('b.starts_at', '<', to).where('b.ends_at', '>', from)
-        .select('b.id', 'b.resource_id as resourceId', 'b.starts_at as startsAt', 'b.ends_at as endsAt', 'b.state') as Promise<{ id: string; resourceId: string; startsAt: Date; endsAt: Date; state: Booking['state'] }[]>
+        .whereNot('j.firm_id', actor.firmId).whereIn('b.state', ELSEWHERE_BLOCKING_STATES).where('b.starts_at', '<', to).where('b.ends_at', '>', from)
+        .select('b.resource_id as resourceId', 'b.starts_at as startsAt', 'b.ends_at as endsAt') as Promise<{ resourceId: string; startsAt: Date; endsAt: Date }[]>
       : Promise.resolve([]),
   ]);
 
@@ -148,18 +150,19 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     requirements: s.requirements, cure: s.cure, sequence: s.sequence,
   }));
   const boardJobs: BoardJob[] = jobs.map((j) => ({
-    id: j.id, firmId: j.firmId, reference: j.reference, customerName: reach === 'installer-office' ? j.customerName : '',
+    id: j.id, firmId: j.firmId, reference: j.reference, customerName: boardCustomerName(actor, j.customerName),
     siteTown: j.siteTown, status: j.status, installationType: j.installationType,
     promisedBy: j.promisedTo ? Date.parse(`${j.promisedTo}T17:00:00Z`) : null,
     orderedAt: j.orderedOn ? Date.parse(`${j.orderedOn}T09:00:00Z`) : null,
   }));
   if (elsewhere.length) {
     boardJobs.push({ id: ELSEWHERE_JOB_ID, firmId: ELSEWHERE_JOB_ID, reference: '', customerName: '', siteTown: '', status: 'planned', installationType: 'slab', promisedBy: null, orderedAt: null });
-    for (const e of elsewhere) {
-      const stageId = elsewhereStageId(String(e.id));
-      boardStages.push({ id: stageId, jobId: ELSEWHERE_JOB_ID, kind: 'elsewhere', name: 'Busy elsewhere', durationMinutes: Math.max(1, Math.round((e.endsAt.getTime() - e.startsAt.getTime()) / 60_000)), requirements: [], cure: null, sequence: 0 });
-      bookings.push({ id: `elsewhere-${e.id}`, stageId, resourceId: String(e.resourceId), start: e.startsAt.getTime(), end: e.endsAt.getTime(), state: e.state, installerFirmId: ELSEWHERE_JOB_ID, elsewhere: true });
-    }
+    const blocks = busyElsewhere(elsewhere.map((e) => ({ resourceId: String(e.resourceId), start: e.startsAt.getTime(), end: e.endsAt.getTime() })));
+    blocks.forEach((e, n) => {
+      const stageId = elsewhereStageId(n + 1);
+      boardStages.push({ id: stageId, jobId: ELSEWHERE_JOB_ID, kind: 'elsewhere', name: 'Busy elsewhere', durationMinutes: Math.max(1, Math.round((e.end - e.start) / 60_000)), requirements: [], cure: null, sequence: 0 });
+      bookings.push({ id: elsewhereBookingId(n + 1), stageId, resourceId: e.resourceId, start: e.start, end: e.end, state: ELSEWHERE_STATE, installerFirmId: ELSEWHERE_JOB_ID, elsewhere: true });
+    });
   }
   const dependencies: Dependency[] = deps.filter((d) => stageById.has(d.toStageId)).map((d) => ({
     id: d.id, fromStageId: d.fromStageId, toStageId: d.toStageId, type: d.type, lag: { amount: Number(d.lagAmount), unit: d.lagUnit },

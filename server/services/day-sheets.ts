@@ -1,9 +1,11 @@
 import type { Knex } from 'knex';
 import { cautionsFor } from '../../shared/cautions.ts';
-import type { DaySheet, DaySheetList, DaySheetVisit } from '../../shared/schemas/day-sheets.ts';
+import type { DaySheet, DaySheetList } from '../../shared/schemas/day-sheets.ts';
+import type { MyWorkItem, MyWorkList } from '../../shared/schemas/my-work.ts';
 import { Booking, Firm } from '../models/index.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
+import { alongsideFor, contactsFor, visitStatesFor, type AlongsideRow } from './read-policy.ts';
 
 /** Offset of `timeZone` from UTC at an instant, in minutes. */
 function offsetMinutes(timeZone: string, at: number): number {
@@ -29,17 +31,22 @@ type Row = Booking & {
   stageKind: string; stageName: string; jobId: string; jobReference: string; installationType: string;
   siteAddress: string; siteTown: string; sitePostcode: string; accessNotes: string | null;
   customerName: string; customerPhone: string | null; officeName: string; officePhone: string | null; unitName: string | null;
+  sharesCustomerContact: boolean | null;
 };
 
-/** One printable sheet per crew (or person) per day: where they go, when, whom to call, what to watch for. */
+/** A visit with the booking's own facts a page needs beside the day sheet's (My work's item). */
+export type Visit = MyWorkItem;
+
+/**
+ * One printable sheet per crew (or person) per day: where they go, when, whom to call, what to
+ * watch for. The office gets its firm's, crew their own, a partner firm its own people's sent,
+ * confirmed and on-site slots; which contacts and neighbours each sees is read-policy.ts's call.
+ */
 export class DaySheetsService {
   constructor(private readonly knex: Knex) {}
 
-  async forDate(actor: Actor, date: string): Promise<DaySheetList> {
-    const firm = await Firm.query(this.knex).findById(actor.firmId);
-    const timeZone = firm?.timeZone ?? 'Europe/London';
-    const from = startOfZonedDay(date, timeZone);
-    const to = startOfZonedDay(nextDate(date), timeZone);
+  /** The reader's visits overlapping [from, to), in time order (read-policy.ts decides the fields). */
+  async visits(actor: Actor, from: Date, to: Date): Promise<Visit[]> {
     const rows = await scoped(Booking, actor)
       .join('resources as r', 'r.id', 'bookings.resource_id')
       .join('firms as rf', 'rf.id', 'r.firm_id')
@@ -47,39 +54,50 @@ export class DaySheetsService {
       .join('jobs as j', 'j.id', 's.job_id')
       .join('firms as jf', 'jf.id', 'j.firm_id')
       .leftJoin('units as u', 'u.id', 'j.unit_id')
+      .leftJoin('firm_settings as fs', 'fs.firm_id', 'j.firm_id')
       .where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from)
-      .whereNot('bookings.state', 'declined')
+      .whereIn('bookings.state', visitStatesFor(actor))
       .select('bookings.*', 'r.name as resourceName', 'r.kind as resourceKind', 'r.category as resourceCategory', 'r.phone as resourcePhone',
         'rf.name as resourceFirmName', 's.kind as stageKind', 's.name as stageName', 'j.id as jobId', 'j.reference as jobReference',
         'j.installation_type', 'j.site_address', 'j.site_town', 'j.site_postcode', 'j.access_notes', 'j.customer_name', 'j.customer_phone',
-        'jf.name as officeName', 'jf.phone as officePhone', 'u.model as unitName')
-      .orderBy('bookings.starts_at') as Row[];
+        'jf.name as officeName', 'jf.phone as officePhone', 'u.model as unitName', 'fs.share_customer_contact_with_partners as sharesCustomerContact')
+      .orderBy('bookings.starts_at').orderBy('bookings.id') as Row[];
 
-    // Who else is on each stage that day: the crane, the plant, the partner firms.
+    // Who else is on each stage: the crane, the plant, the partner firms (filtered per reader below).
     const stageIds = [...new Set(rows.map((r) => r.stageId))];
     const others = stageIds.length ? await this.knex('bookings as b').join('resources as r', 'r.id', 'b.resource_id')
       .join('firms as f', 'f.id', 'r.firm_id').whereIn('b.stage_id', stageIds).whereNot('b.state', 'declined')
-      .select('b.stage_id', 'b.resource_id', 'r.name', 'r.kind', 'f.name as firmName') as { stageId: string; resourceId: string; name: string; kind: string; firmName: string }[] : [];
+      .select('b.stage_id', 'b.resource_id', 'b.state', 'r.name', 'r.kind', 'r.category', 'r.firm_id', 'f.name as firmName') as (AlongsideRow & { stageId: string })[] : [];
 
+    return rows.map((r) => ({
+      bookingId: r.id, version: r.version, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), state: r.state,
+      resource: { id: r.resourceId, name: r.resourceName, kind: r.resourceKind, category: r.resourceCategory, firmName: r.resourceFirmName },
+      stage: { id: r.stageId, kind: r.stageKind, name: r.stageName },
+      job: { id: r.jobId, reference: r.jobReference, unitName: r.unitName, installationType: r.installationType },
+      site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
+      contacts: contactsFor(actor, { customerName: r.customerName, customerPhone: r.customerPhone, officeName: r.officeName, officePhone: r.officePhone, sharesCustomerContact: r.sharesCustomerContact === true }),
+      alongside: alongsideFor(actor, others.filter((o) => String(o.stageId) === String(r.stageId) && String(o.resourceId) !== String(r.resourceId))
+        .map((o) => ({ ...o, resourceId: String(o.resourceId), firmId: String(o.firmId) }))),
+      cautions: cautionsFor(r.stageKind),
+    }));
+  }
+
+  async forDate(actor: Actor, date: string): Promise<DaySheetList> {
+    const firm = await Firm.query(this.knex).findById(actor.firmId);
+    const timeZone = firm?.timeZone ?? 'Europe/London';
+    const visits = await this.visits(actor, startOfZonedDay(date, timeZone), startOfZonedDay(nextDate(date), timeZone));
     const sheets = new Map<string, DaySheet>();
-    for (const r of rows) {
-      if (r.resourceCategory === 'machine') continue;
-      const sheet = sheets.get(r.resourceId) ?? { resource: { id: r.resourceId, name: r.resourceName, kind: r.resourceKind, category: r.resourceCategory, firmName: r.resourceFirmName }, date, visits: [] };
-      const visit: DaySheetVisit = {
-        bookingId: r.id, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), state: r.state,
-        stage: { id: r.stageId, kind: r.stageKind, name: r.stageName },
-        job: { id: r.jobId, reference: r.jobReference, unitName: r.unitName, installationType: r.installationType },
-        site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
-        contacts: [
-          { name: r.customerName, phone: r.customerPhone, role: 'Customer' },
-          { name: r.officeName, phone: r.officePhone, role: 'Installer office' },
-        ],
-        alongside: others.filter((o) => o.stageId === r.stageId && o.resourceId !== r.resourceId).map((o) => ({ name: o.name, kind: o.kind, firmName: o.firmName })),
-        cautions: cautionsFor(r.stageKind),
-      };
+    for (const { resource, version: _version, ...visit } of visits) {
+      if (resource.category === 'machine') continue;
+      const sheet = sheets.get(resource.id) ?? { resource, date, visits: [] };
       sheet.visits.push(visit);
-      sheets.set(r.resourceId, sheet);
+      sheets.set(resource.id, sheet);
     }
     return { date, timeZone, sheets: [...sheets.values()].sort((a, b) => a.resource.name.localeCompare(b.resource.name)) };
+  }
+
+  /** A crew member's own bookings over a range, with what each visit needs (the My work page). */
+  async myWork(actor: Actor, from: Date, to: Date): Promise<MyWorkList> {
+    return { items: await this.visits(actor, from, to) };
   }
 }

@@ -5,6 +5,7 @@ import { BadRequestError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
+import { jobForReader } from './read-policy.ts';
 
 const SORT_COLUMNS: Record<JobQuery['sort'], string> = {
   promisedFrom: 'jobs.promised_from', reference: 'jobs.reference', customerName: 'jobs.customer_name',
@@ -39,8 +40,9 @@ export class JobsService {
     };
   }
 
+  /** One job as the reader may see it (read-policy.ts: crew get no householder e-mail or phone). */
   async get(actor: Actor, id: string): Promise<Job> {
-    return findVisible(Job, actor, id, undefined, 'job');
+    return jobForReader(actor, await findVisible(Job, actor, id, undefined, 'job'));
   }
 
   async create(actor: Actor, input: CreateJob): Promise<Job> {

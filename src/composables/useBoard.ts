@@ -1,7 +1,7 @@
 import { computed, ref, shallowRef, onScopeDispose } from 'vue';
 import { api, ApiError, request } from '@/api/client';
 import type { BoardBooking, BoardData } from '@shared/board-data';
-import { toEngineBoard } from '@shared/board-data';
+import { ownViolations, toEngineBoard } from '@shared/board-data';
 import { analyseBoard, createBoardIndex, type BoardIndex, type BoardAnalysis } from '@shared/scheduler/index';
 import { callFor, fromView, undoOf, type Intent, type WriteResult } from '@/components/board/drop-actions';
 
@@ -22,7 +22,14 @@ export function useBoard() {
   let range: BoardRange | null = null;
 
   const index = computed<BoardIndex | null>(() => (data.value ? createBoardIndex(toEngineBoard(data.value), { now: data.value.now }) : null));
-  const analysis = computed<BoardAnalysis | null>(() => (data.value ? analyseBoard(toEngineBoard(data.value), { now: data.value.now }) : null));
+  // Problems that involve only busy-elsewhere blocks are another installer's business: dropped.
+  const analysis = computed<BoardAnalysis | null>(() => {
+    if (!data.value) return null;
+    const full = analyseBoard(toEngineBoard(data.value), { now: data.value.now });
+    const violations = ownViolations(data.value, full.violations);
+    const errorCount = violations.filter((v) => v.severity === 'error').length;
+    return { ...full, violations, errorCount, warningCount: violations.length - errorCount };
+  });
 
   async function load(next: BoardRange = range ?? { from: Date.now(), to: Date.now() + 7 * 86_400_000 }): Promise<void> {
     range = next;

@@ -33,10 +33,12 @@ export interface NavItem { label: string; path: string; permission: Permission }
 export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'My work', path: '/my-work', permission: 'my-work:read' },
   { label: 'Our slots', path: '/slots', permission: 'slots:read' },
-  { label: 'Board', path: '/board', permission: 'bookings:read' },
+  { label: 'Board', path: '/board', permission: 'board:read' },
   { label: 'Jobs', path: '/jobs', permission: 'jobs:read' },
-  { label: 'Resources', path: '/resources', permission: 'board:read' },
-  { label: 'Day sheets', path: '/day-sheets', permission: 'bookings:read' },
+  { label: 'Resources', path: '/resources', permission: 'resources:read' },
+  { label: 'Day sheets', path: '/day-sheets', permission: 'day-sheets:read' },
+  // A partner firm's own day sheet, from its slots: the same page over its own API.
+  { label: 'Day sheets', path: '/slots/day-sheets', permission: 'slots:read' },
   { label: 'Templates', path: '/templates', permission: 'jobs:write' },
   { label: 'Reports', path: '/reports', permission: 'reports:read' },
   { label: 'Firm', path: '/firm', permission: 'firm:manage' },

@@ -10,9 +10,11 @@ describe('navigation by role', () => {
     expect(navLabels('scheduler')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets', 'Templates']);
     expect(navLabels('manager')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets', 'Reports']);
     expect(navLabels('viewer')).toEqual(['Board', 'Jobs', 'Resources', 'Day sheets']);
-    // Crews and partner firms see the board too, with only their own rows.
-    expect(navLabels('crew')).toEqual(['My work', 'Board', 'Day sheets']);
-    expect(navLabels('partner')).toEqual(['Our slots', 'Board', 'Day sheets']);
+    // Crews see the board, the jobs and resources of their own bookings; partner firms only their own slots, people and day sheet.
+    expect(navLabels('crew')).toEqual(['My work', 'Board', 'Jobs', 'Resources', 'Day sheets']);
+    expect(navLabels('partner')).toEqual(['Our slots', 'Resources', 'Day sheets']);
+    expect(navFor('partner').find((item) => item.label === 'Day sheets')?.path).toBe('/slots/day-sheets');
+    expect(navFor('crew').find((item) => item.label === 'Day sheets')?.path).toBe('/day-sheets');
   });
 
   it('gives no navigation without a role', () => {
@@ -110,8 +112,9 @@ describe('decideNavigation', () => {
     });
     it("sends a role that may not see a page to its home", () => {
       expect(decideNavigation(to('/firm', { roles: rolesWith('firm:manage') }), as('scheduler'))).toEqual({ path: '/board' });
-      expect(decideNavigation(to('/jobs', { roles: rolesWith('jobs:read') }), as('crew'))).toEqual({ path: '/my-work' });
-      expect(decideNavigation(to('/resources', { roles: rolesWith('board:read') }), as('partner'))).toEqual({ path: '/slots' });
+      expect(decideNavigation(to('/reports', { roles: rolesWith('reports:read') }), as('crew'))).toEqual({ path: '/my-work' });
+      expect(decideNavigation(to('/board', { roles: rolesWith('board:read') }), as('partner'))).toEqual({ path: '/slots' });
+      expect(decideNavigation(to('/jobs', { roles: rolesWith('jobs:read') }), as('partner'))).toEqual({ path: '/slots' });
     });
     it('lets a role open what it may see', () => {
       expect(decideNavigation(to('/firm', { roles: rolesWith('firm:manage') }), as('owner'))).toBe(true);

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import type { BoardData } from '@shared/board-data';
+import { ownViolations, type BoardData } from '@shared/board-data';
+import type { Violation } from '@shared/scheduler/index';
 import { closuresOf, eventsOf, groupHeading, groupOf, holidaysOf, problemsByBooking, rowsOf, trayOf } from '@/components/board/board-events';
 
 const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as const;
@@ -22,13 +23,13 @@ function board(): BoardData {
       { id: 's1', jobId: 'j1', kind: 'excavation', name: 'Excavate pit', durationMinutes: 720, requirements: [{ kind: 'excavator', count: 1 }], sequence: 1 },
       { id: 's2', jobId: 'j1', kind: 'lift', name: 'Crane lift', durationMinutes: 240, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 2 },
       { id: 's3', jobId: 'j1', kind: 'fill', name: 'Fill', durationMinutes: 180, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 3 },
-      { id: 'elsewhere:9', jobId: 'elsewhere', kind: 'elsewhere', name: 'Busy elsewhere', durationMinutes: 60, requirements: [], sequence: 0 },
+      { id: 'elsewhere:1', jobId: 'elsewhere', kind: 'elsewhere', name: 'Busy elsewhere', durationMinutes: 60, requirements: [], sequence: 0 },
     ],
     dependencies: [{ id: 'd1', fromStageId: 's2', toStageId: 's3', type: 'FS', lag: { amount: 0, unit: 'working_hours' } }],
     bookings: [
       { id: 'b1', stageId: 's1', resourceId: 'r2', start: MON, end: MON + 9 * 3_600_000, state: 'confirmed', installerFirmId: 'f1', version: 3 },
       { id: 'b2', stageId: 's2', resourceId: 'r1', start: MON + 86_400_000, end: MON + 86_400_000 + 4 * 3_600_000, state: 'declined', installerFirmId: 'f1', version: 1 },
-      { id: 'elsewhere-9', stageId: 'elsewhere:9', resourceId: 'r3', start: MON, end: MON + 3_600_000, state: 'sent', installerFirmId: 'elsewhere', elsewhere: true },
+      { id: 'elsewhere-1', stageId: 'elsewhere:1', resourceId: 'r3', start: MON, end: MON + 3_600_000, state: 'confirmed', installerFirmId: 'elsewhere', elsewhere: true },
     ],
     hirePeriods: [], leadTimeRules: [],
   };
@@ -57,13 +58,13 @@ describe('rows on the board', () => {
 describe('bookings as events', () => {
   it('show job, stage and state (symbol and class), and leave declined ones off', () => {
     const events = eventsOf(board(), { canEdit: true });
-    expect(events.map((e) => e.id)).toEqual(['b1', 'elsewhere-9']);
+    expect(events.map((e) => e.id)).toEqual(['b1', 'elsewhere-1']);
     expect(events[0]).toMatchObject({ resourceId: 'r2', start: MON, title: '✔ TW-1 · Excavate pit', editable: true, classNames: ['wl-booking', 'wl-state-confirmed'] });
     expect(events[0]!.extendedProps).toMatchObject({ bookingId: 'b1', stageId: 's1', jobId: 'j1', state: 'confirmed' });
   });
 
   it("show another installer's booking only as busy elsewhere, never editable", () => {
-    const busy = eventsOf(board(), { canEdit: true }).find((e) => e.id === 'elsewhere-9')!;
+    const busy = eventsOf(board(), { canEdit: true }).find((e) => e.id === 'elsewhere-1')!;
     expect(busy).toMatchObject({ title: 'Busy elsewhere', editable: false, classNames: ['wl-booking', 'wl-elsewhere'] });
   });
 
@@ -79,9 +80,17 @@ describe('bookings as events', () => {
     expect(e!.extendedProps.problems).toEqual(['The excavator is booked twice']);
   });
 
+  it("never show another installer's problems on a busy-elsewhere block", () => {
+    // Two of the other installer's bookings overlapping, or one outside the partner's hours, are not this board's business.
+    const problems = problemsByBooking([{ kind: 'availability', severity: 'error', stageIds: ['elsewhere:1'], resourceIds: ['r3'], bookingIds: ['elsewhere-1'], message: 'Priya is not working then' }]);
+    const busy = eventsOf(board(), { canEdit: true, problems }).find((e) => e.id === 'elsewhere-1')!;
+    expect(busy.extendedProps.problems).toEqual([]);
+    expect(busy.classNames).toEqual(['wl-booking', 'wl-elsewhere']);
+  });
+
   it('filter by job and state, keeping busy blocks', () => {
-    expect(eventsOf(board(), { canEdit: true, filter: { states: ['pencilled'] } }).map((e) => e.id)).toEqual(['elsewhere-9']);
-    expect(eventsOf(board(), { canEdit: true, filter: { jobId: 'j1' } }).map((e) => e.id)).toEqual(['b1', 'elsewhere-9']);
+    expect(eventsOf(board(), { canEdit: true, filter: { states: ['pencilled'] } }).map((e) => e.id)).toEqual(['elsewhere-1']);
+    expect(eventsOf(board(), { canEdit: true, filter: { jobId: 'j1' } }).map((e) => e.id)).toEqual(['b1', 'elsewhere-1']);
   });
 });
 
@@ -104,5 +113,20 @@ describe('bank holidays on the board', () => {
     // gov.uk bank holidays for England and Wales (from memory): Fri 25 Dec 2026, Mon 28 Dec 2026 (Boxing Day substitute).
     expect(days.map((d) => new Date(d.start).toISOString())).toEqual(['2026-12-25T00:00:00.000Z', '2026-12-28T00:00:00.000Z']);
     expect(days.every((d) => d.end - d.start === 86_400_000)).toBe(true);
+  });
+});
+
+describe("the board's own problems", () => {
+  const v = (bookingIds: string[], stageIds: string[], message: string): Violation => ({ kind: 'clash', severity: 'error', stageIds, resourceIds: ['r3'], bookingIds, message });
+
+  it('drop a problem that involves only busy-elsewhere blocks and keep every one that names own work', () => {
+    const others = v(['elsewhere-1', 'elsewhere-2'], ['elsewhere:1', 'elsewhere:2'], 'Priya is booked twice');
+    const mine = v(['b1'], ['s1'], 'Priya is busy elsewhere');
+    const mixed = v(['b1', 'elsewhere-1'], ['s1', 'elsewhere:1'], 'both');
+    const noIds = v([], [], 'The digger stands idle');
+    const data = board();
+    data.bookings.push({ ...data.bookings[2]!, id: 'elsewhere-2', stageId: 'elsewhere:2' });
+    data.stages.push({ ...data.stages[3]!, id: 'elsewhere:2' });
+    expect(ownViolations(data, [others, mine, mixed, noIds]).map((x) => x.message)).toEqual(['Priya is busy elsewhere', 'both', 'The digger stands idle']);
   });
 });

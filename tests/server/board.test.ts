@@ -54,14 +54,12 @@ describe('the board data for a scheduler', () => {
   });
 });
 
-describe('the board data for a partner coordinator', () => {
-  it("has only their own firm's rows, with both installers' bookings", async () => {
+describe('a partner coordinator', () => {
+  it('is refused the board and its stream: their own slots are on the partner pages (tests/server/read-policy.test.ts)', async () => {
     const agent = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
-    const data: BoardData = (await agent.get('/api/board').query(range).expect(200)).body;
-    expect(new Set(data.resources.map((r) => r.firmName))).toEqual(new Set(['Brightspark Electrical']));
-    expect(data.jobs.map((j) => j.reference)).toContain('MV-118');
-    expect(data.jobs.every((j) => j.customerName === '')).toBe(true);
-    expect(data.leadTimeRules).toEqual([]);
+    const res = await agent.get('/api/board').query(range).expect(403);
+    expect(JSON.stringify(res.body)).not.toContain('MV-118');
+    await agent.get('/api/board/stream').expect(403);
   });
 });
 
@@ -71,6 +69,10 @@ describe('the board data for a crew member', () => {
     const data: BoardData = (await agent.get('/api/board').query(range).expect(200)).body;
     expect(data.resources.map((r) => r.name).sort()).toEqual(['Connor Reid', 'Crew Heron']);
     expect(data.bookings.every((b) => data.resources.some((r) => r.id === b.resourceId) || !b.elsewhere)).toBe(true);
+    // Their own bookings only, and no householder's name on the board.
+    expect(data.bookings.length).toBeGreaterThan(0);
+    expect(data.bookings.every((b) => data.resources.some((r) => r.id === b.resourceId))).toBe(true);
+    expect(data.jobs.every((j) => j.customerName === '')).toBe(true);
   });
 });
 

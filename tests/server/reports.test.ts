@@ -221,6 +221,9 @@ describe('privacy between installer firms', () => {
     const [user] = await ctx.knex('users').insert({ email: 'nell.moor@moorview.example', name: 'Nell Moor' }).returning('id');
     await ctx.knex('memberships').insert({ user_id: user.id, firm_id: moorviewId, role: 'manager' });
     moorview = await signIn(ctx, 'nell.moor@moorview.example');
+    // Tideway sends its request to Priya: only then is she busy for Moorview (a pencilled booking blocks nobody else).
+    await ctx.knex('bookings').where({ resource_id: priya, starts_at: new Date('2026-06-08T08:00:00Z') })
+      .whereIn('stage_id', ctx.knex('stages').select('id').where('name', 'Connect (test)')).update({ state: 'sent' });
   });
 
   const paths = ['clashes', 'clashes.csv', 'hire', 'hire.csv', 'utilisation', 'utilisation.csv', 'risks.csv'];

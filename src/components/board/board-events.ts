@@ -119,7 +119,8 @@ export function eventsOf(data: BoardData, options: { canEdit: boolean; problems?
     if (!b.elsewhere && f?.states?.length && !f.states.includes(b.state)) continue;
     const title = b.elsewhere ? 'Busy elsewhere' : `${job.reference} · ${stage.name}`;
     if (search && !b.elsewhere && !`${title} ${job.customerName} ${job.siteTown}`.toLowerCase().includes(search)) continue;
-    const problems = (options.problems?.get(b.id) ?? []).filter((v) => v.severity === 'error').map((v) => v.message);
+    // A busy-elsewhere block is another installer's: its problems are not this board's to show.
+    const problems = b.elsewhere ? [] : (options.problems?.get(b.id) ?? []).filter((v) => v.severity === 'error').map((v) => v.message);
     out.push(toEvent(b, title, stage, job, options.canEdit, problems));
   }
   return out;

@@ -1,0 +1,137 @@
+import { reachOf, type Actor, type Reach } from './actor.ts';
+
+/**
+ * The read policy: what each reach (installer office, crew, partner firm) may read, and which
+ * fields of it. Which rows exist for a reader is the model scopes' business (`scoped()` in
+ * scope.ts, `static scope` in models/index.ts); which of their fields, which booking states and
+ * which live events reach whom is decided here, and only here. Services call these functions
+ * rather than testing roles themselves, so one file answers "who sees what".
+ *
+ * In short (DEVELOPERS.md, "Firms, roles and what each sees"):
+ * - installer office (owner, scheduler, manager, viewer): everything of their own firm's jobs;
+ *   another installer's booking of a shared partner resource only as an anonymous busy block;
+ * - crew: their own bookings and what the day needs (site, times, cautions, who else is on the
+ *   stage, the office's phone, and the householder's name and phone on those bookings); a job's
+ *   page without the householder's e-mail or phone;
+ * - partner firm: its own resources' slots once sent (sent, confirmed, on site), with the site and
+ *   the installer's phone; the householder's name and phone only where that installer switched
+ *   `shareCustomerContactWithPartners` on. Never the board, the bookings API or the jobs API.
+ */
+
+/** The booking states a partner firm sees: a pencilled booking is the installer's private plan. */
+export const PARTNER_VISIBLE_STATES = ['sent', 'confirmed', 'on_site'] as const;
+
+/**
+ * The states in which another installer's booking of a shared partner resource blocks it for
+ * this installer ("busy elsewhere"): once the partner has been asked. A pencilled booking is a
+ * private plan and blocks nobody else; a declined one is over; a done one really happened.
+ */
+export const ELSEWHERE_BLOCKING_STATES = ['sent', 'confirmed', 'on_site', 'done'] as const;
+
+/** The one state every busy-elsewhere placeholder carries, whatever the other installer's is. */
+export const ELSEWHERE_STATE = 'confirmed' as const;
+
+export function isOffice(actor: Actor): boolean {
+  return reachOf(actor) === 'installer-office';
+}
+
+/** Booking states a reader may list on a day sheet or My work (declined never shows). */
+export function visitStatesFor(actor: Actor): readonly string[] {
+  return reachOf(actor) === 'partner' ? PARTNER_VISIBLE_STATES : ['pencilled', 'sent', 'confirmed', 'on_site', 'done'];
+}
+
+/** A job as a reader may see it: crew get the site and the householder's name, not their e-mail or phone. */
+export function jobForReader<J extends { customerPhone: string | null; customerEmail: string | null }>(actor: Actor, job: J): J {
+  if (isOffice(actor)) return job;
+  return { ...job, customerPhone: null, customerEmail: null };
+}
+
+/** The householder's name on the board: the office only (crew and partners plan nothing by it). */
+export function boardCustomerName(actor: Actor, name: string): string {
+  return isOffice(actor) ? name : '';
+}
+
+/** Everything a day-sheet visit could tell; `contactsFor` and `alongsideFor` pick what a reader gets. */
+export interface VisitFacts {
+  customerName: string;
+  customerPhone: string | null;
+  officeName: string;
+  officePhone: string | null;
+  /** The installer whose job it is switched sharing the householder's contact with partners on. */
+  sharesCustomerContact: boolean;
+}
+
+export interface VisitContact { name: string; phone: string | null; role: string }
+
+/**
+ * Whom a reader may call about a visit. The installer's office always. The householder: the
+ * office; the crew on their own booking (they knock on the door); a partner only where the
+ * installer shares it.
+ */
+export function contactsFor(actor: Actor, v: VisitFacts): VisitContact[] {
+  const office = { name: v.officeName, phone: v.officePhone, role: 'Installer office' };
+  const customer = { name: v.customerName, phone: v.customerPhone, role: 'Customer' };
+  if (reachOf(actor) === 'partner' && !v.sharesCustomerContact) return [office];
+  return [customer, office];
+}
+
+/** Another booking on the same stage, as the day sheet's "with" line may show it. */
+export interface AlongsideRow { resourceId: string; name: string; kind: string; category: string; firmId: string; firmName: string; state: string }
+
+/**
+ * Who else is on the stage. The installer's office and crew see every active booking on it. A
+ * partner sees only bookings already sent (another firm's pencilled booking is the installer's
+ * plan), and other firms' people by their trade, not their name.
+ */
+export function alongsideFor(actor: Actor, rows: readonly AlongsideRow[]): { name: string; kind: string; firmName: string }[] {
+  const partner = reachOf(actor) === 'partner';
+  return rows
+    .filter((o) => o.state !== 'declined' && (!partner || (PARTNER_VISIBLE_STATES as readonly string[]).includes(o.state)))
+    .map((o) => ({
+      name: partner && o.firmId !== actor.firmId && o.category === 'person' ? o.kind.replace(/_/g, ' ') : o.name,
+      kind: o.kind, firmName: o.firmName,
+    }));
+}
+
+/** A booking change as the live stream hears of it (from PostgreSQL NOTIFY, server side only). */
+export interface BookingChange { bookingId: string; installerFirmId: string | null; resourceId: string; resourceFirmId: string | null }
+
+/** An open board stream's reader: who they act for, and (crew) the resources they work as. */
+export interface StreamReader { reach: Reach; firmId: string; ownResourceIds: ReadonlySet<string> }
+
+/**
+ * Whether a change reaches a stream: only when it is to a booking the reader may read. The office
+ * hears of its own firm's jobs (not of another installer booking a shared partner); crew hear of
+ * their own bookings; partner firms keep no board stream.
+ */
+export function mayHearOf(reader: StreamReader, change: BookingChange): boolean {
+  switch (reader.reach) {
+    case 'installer-office': return change.installerFirmId === reader.firmId;
+    case 'crew': return change.installerFirmId === reader.firmId && reader.ownResourceIds.has(change.resourceId);
+    case 'partner': return false;
+  }
+}
+
+/** What a live event tells its reader: the booking's id, nothing of any other firm. */
+export function streamEvent(change: BookingChange): { bookingId: string } {
+  return { bookingId: change.bookingId };
+}
+
+/** A busy interval of a shared resource, from another installer's booking. */
+export interface BusySpan { resourceId: string; start: number; end: number }
+
+/**
+ * Another installer's bookings of shared resources as busy blocks: overlapping or touching spans
+ * of one resource are merged, so neither their count, their ids, their states nor their own
+ * clashes can be read from the board. Sorted by resource and start.
+ */
+export function busyElsewhere(spans: readonly BusySpan[]): BusySpan[] {
+  const sorted = [...spans].sort((a, b) => (a.resourceId < b.resourceId ? -1 : a.resourceId > b.resourceId ? 1 : a.start - b.start));
+  const out: BusySpan[] = [];
+  for (const s of sorted) {
+    const last = out[out.length - 1];
+    if (last && last.resourceId === s.resourceId && s.start <= last.end) last.end = Math.max(last.end, s.end);
+    else out.push({ ...s });
+  }
+  return out;
+}
