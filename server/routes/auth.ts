@@ -1,22 +1,21 @@
 import type { Request, Response, NextFunction, RequestHandler } from 'express';
 import type passport from 'passport';
-import rateLimit from 'express-rate-limit';
 import type { RouteTable } from './table.ts';
-import type { Config } from '../config.ts';
 import { newCsrfToken } from '../middleware/csrf.ts';
+import type { RateBudget } from '../middleware/rate-limit.ts';
 
 /** Only same-site paths are followed after sign-in. */
 export function safeNext(value: unknown): string {
   return typeof value === 'string' && value.startsWith('/') && !value.startsWith('//') && !value.startsWith('/\\') ? value : '/';
 }
 
-export function authRoutes(table: RouteTable, config: Config, auth: passport.PassportStatic): void {
-  const limiter = rateLimit({
-    windowMs: 15 * 60 * 1000, limit: config.SIGN_IN_RATE_LIMIT, standardHeaders: 'draft-7', legacyHeaders: false,
-    handler: (_req, res) => {
-      res.status(429).type('application/problem+json').json({ type: '/problems/rate-limited', title: 'Too many sign-in attempts', status: 429, detail: 'Wait a few minutes and try again.' });
-    },
-  });
+/**
+ * Sign-in with Google and sign-out. A sign-in costs one point of the address's sign-in budget, taken
+ * when the flow starts (`/auth/google`). A callback that completes a flow this session started is
+ * free; one that fails (a forged, stale or replayed state, or a code the provider refuses) costs a
+ * point too, so the callback cannot be hammered for free either.
+ */
+export function authRoutes(table: RouteTable, auth: passport.PassportStatic, signInLimit: RateBudget): void {
   const chain = (...handlers: RequestHandler[]): RequestHandler => (req, res, next) => {
     const step = (i: number) => (err?: unknown) => {
       if (err) return next(err);
@@ -27,19 +26,22 @@ export function authRoutes(table: RouteTable, config: Config, auth: passport.Pas
     step(0)();
   };
 
-  table.get('/auth/google', 'public', chain(limiter, (req: Request, _res: Response, next: NextFunction) => {
+  table.get('/auth/google', 'public', chain(signInLimit.count, (req: Request, _res: Response, next: NextFunction) => {
     req.session.next = safeNext(req.query.next);
     next();
   }, auth.authenticate('google', { scope: ['profile', 'email'], session: false })));
 
-  table.get('/auth/google/callback', 'public', chain(limiter, (req: Request, res: Response, next: NextFunction) => {
+  table.get('/auth/google/callback', 'public', (req: Request, res: Response, next: NextFunction) => {
+    // A failed callback is charged as an attempt; past the budget it is refused (429) instead.
+    const failed = (error: string) => void signInLimit.count(req, res, (limitErr?: unknown) => (limitErr ? next(limitErr) : res.redirect(`/sign-in?error=${error}`)));
     auth.authenticate('google', { session: false }, (err: unknown, user: { id: string } | false, info?: { message?: string }) => {
       if (err) {
         req.log.warn({ err }, 'sign-in with the provider failed');
-        return res.redirect('/sign-in?error=provider');
+        return failed('provider');
       }
-      // No user: either an account nobody invited, or a stale or forged state from the provider.
-      if (!user) return res.redirect(`/sign-in?error=${info?.message === 'unknown_account' ? 'unknown_account' : 'sign_in_failed'}`);
+      // An account nobody invited finished a real flow (already counted at its start); anything
+      // else without a user is a stale, forged or replayed state.
+      if (!user) return info?.message === 'unknown_account' ? res.redirect('/sign-in?error=unknown_account') : failed('sign_in_failed');
       const nextPath = safeNext(req.session.next);
       // A new session id at sign-in, so a session fixed before sign-in is worthless.
       req.session.regenerate((regenErr) => {
@@ -49,7 +51,7 @@ export function authRoutes(table: RouteTable, config: Config, auth: passport.Pas
         req.session.save((saveErr) => (saveErr ? next(saveErr) : res.redirect(nextPath)));
       });
     })(req, res, next);
-  }));
+  });
 
   table.post('/auth/sign-out', 'signed-in', (req, res, next) => {
     req.session.destroy((err) => {
