@@ -9,7 +9,7 @@ import path from 'node:path';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { Knex } from 'knex';
-import type { Config } from './config.ts';
+import { bookingLimitsOf, type Config } from './config.ts';
 import { errorHandler, notFoundHandler } from './errors.ts';
 import { RouteTable } from './routes/table.ts';
 import { apiRoutes } from './routes/api.ts';
@@ -20,6 +20,7 @@ import { reportRoutes } from './routes/reports.ts';
 import { authRoutes } from './routes/auth.ts';
 import { createPassport } from './auth/google.ts';
 import { csrfProtection } from './middleware/csrf.ts';
+import { createRateLimits } from './middleware/rate-limit.ts';
 import { actorFor } from './services/session.ts';
 import { Health } from './health.ts';
 import { BoardStream } from './services/board-stream.ts';
@@ -49,7 +50,8 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
   const PgStore = connectPgSimple(session);
 
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // Only configured proxies may name the client (X-Forwarded-For); by default it is the socket's address.
+  app.set('trust proxy', config.TRUST_PROXY);
   app.use(pinoHttp({
     logger,
     autoLogging: { ignore: (req) => req.url === '/api/health' || !req.url?.startsWith('/api') && !req.url?.startsWith('/auth') },
@@ -73,6 +75,12 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
       },
     },
   }));
+  // Public links are limited per address before anything else runs (sessions, token checks, the
+  // link_attempts row a refused token writes). The budgets live in Redis, shared by every process.
+  const limits = createRateLimits(config, { logger });
+  app.use('/answer', limits.answerLinks.count);
+  app.use('/invite', limits.inviteLinks.count);
+  app.use('/feeds', limits.feeds.count);
   app.use(express.json({ limit: '1mb' }));
   app.use(session({
     name: 'waterline.sid',
@@ -96,11 +104,11 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
   const auth = createPassport(config, knex);
   app.use(auth.initialize());
   const routes = new RouteTable();
-  authRoutes(routes, config, auth);
-  apiRoutes(routes, { knex, health, stream, now, fullcalendarLicenseKey: config.FULLCALENDAR_LICENSE_KEY });
+  authRoutes(routes, auth, limits.signIn);
+  apiRoutes(routes, { knex, health, stream, now, limits: bookingLimitsOf(config), fullcalendarLicenseKey: config.FULLCALENDAR_LICENSE_KEY });
   const jobWork = jobWorkRoutes(routes, { knex, config });
-  partnerRoutes(routes, { knex, config });
-  answerRoutes(routes, { knex, config });
+  partnerRoutes(routes, { knex, config, now });
+  answerRoutes(routes, { knex, config, now });
   reportRoutes(routes, { knex, now });
   routes.mount(app.router);
 
@@ -120,6 +128,7 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
     async close() {
       jobWork.close();
       await health.close();
+      await limits.close();
       await sessionPool.end();
     },
   };

@@ -1,5 +1,26 @@
 import { createHash } from 'node:crypto';
+import { isIP } from 'node:net';
 import { z } from 'zod';
+
+/** Express's named ranges for `trust proxy` (proxy-addr). */
+const PROXY_RANGES = new Set(['loopback', 'linklocal', 'uniquelocal']);
+
+/**
+ * TRUST_PROXY: which proxies may say who the client is (X-Forwarded-For). Unset or `false` trusts
+ * none, so the client address is the socket's; a whole number trusts that many hops; otherwise a
+ * comma-separated list of addresses, CIDR ranges and Express's named ranges. `true` (trust every
+ * hop) is refused: any client could then pick its own address, and with it its rate-limit bucket.
+ */
+const TrustProxy = z.string().trim().default('false')
+  .refine((v) => v !== 'true', 'true would let any client choose its address; give a number of proxies or their addresses')
+  .refine((v) => v === 'false' || /^\d+$/.test(v) || v.split(',').every((part) => {
+    const [address = '', bits, ...extra] = part.trim().split('/');
+    if (PROXY_RANGES.has(address) && bits === undefined) return true;
+    const family = isIP(address);
+    const maxBits = family === 4 ? 32 : 128;
+    return family !== 0 && extra.length === 0 && (bits === undefined || (/^\d+$/.test(bits) && Number(bits) <= maxBits));
+  }), 'give false, a number of proxies, or addresses, CIDR ranges, loopback, linklocal or uniquelocal separated by commas')
+  .transform((v): false | number | string[] => (v === 'false' ? false : /^\d+$/.test(v) ? Number(v) : v.split(',').map((part) => part.trim())));
 
 /** Every production setting comes from the environment; see .env.example. */
 const Env = z.object({
@@ -24,13 +45,29 @@ const Env = z.object({
   S3_SECRET_ACCESS_KEY: z.string().optional(),
   FULLCALENDAR_LICENSE_KEY: z.string().default('GPL-My-Project-Is-Open-Source'),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  // Rate limits, counted per client address in Redis so every web process shares them
+  // (server/middleware/rate-limit.ts). Sign-ins started per window:
   SIGN_IN_RATE_LIMIT: z.coerce.number().int().min(1).default(30),
+  // Refused answer links, invitation links and calendar feeds per window (a good link is free).
+  // The default figures are our own judgement of a busy office behind one address, no source.
+  ANSWER_LINK_RATE_LIMIT: z.coerce.number().int().min(1).default(30),
+  INVITE_LINK_RATE_LIMIT: z.coerce.number().int().min(1).default(20),
+  FEED_RATE_LIMIT: z.coerce.number().int().min(1).default(30),
+  RATE_LIMIT_WINDOW_SECONDS: z.coerce.number().int().min(1).default(15 * 60),
+  // The start of every rate-limit key in Redis, so two deployments (or test runs) sharing one never mix.
+  RATE_LIMIT_PREFIX: z.string().regex(/^[\w:.-]+$/).default('waterline:rate'),
+  TRUST_PROXY: TrustProxy,
   // Signs the answer, invitation and feed links in e-mails; required in production (see loadConfig).
   LINK_SECRET: z.string().min(32, 'LINK_SECRET must be at least 32 characters').optional(),
   // A request to a partner unanswered this long is flagged overdue and gets one reminder.
   REMINDER_HOURS: z.coerce.number().min(1).default(48),
   // The BullMQ queue the outbox relay feeds and the mail worker drains.
   MAIL_QUEUE: z.string().regex(/^[\w-]+$/).default('mail'),
+  // Bookings lie within this many days of today (the write path refuses others with a field error).
+  BOOKING_WINDOW_PAST_DAYS: z.coerce.number().int().min(1).max(3650).default(730),
+  BOOKING_WINDOW_FUTURE_DAYS: z.coerce.number().int().min(1).max(3650).default(1095),
+  // Working minutes a booking may run past what its stage needs (one working day by default).
+  BOOKING_EXTRA_WORKING_MINUTES: z.coerce.number().int().min(0).max(10 * 480).default(480),
 });
 export type Config = z.infer<typeof Env> & { LINK_SECRET: string };
 
@@ -46,4 +83,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   }
   // Outside production a link secret derived from the session secret keeps local set-up to one setting.
   return { ...rest, LINK_SECRET: LINK_SECRET ?? createHash('sha256').update(`waterline-links:${rest.SESSION_SECRET}`).digest('base64url') };
+}
+
+/** The booking bounds the guarded write path keeps. */
+export function bookingLimitsOf(config: Pick<Config, 'BOOKING_WINDOW_PAST_DAYS' | 'BOOKING_WINDOW_FUTURE_DAYS' | 'BOOKING_EXTRA_WORKING_MINUTES'>) {
+  return { pastDays: config.BOOKING_WINDOW_PAST_DAYS, futureDays: config.BOOKING_WINDOW_FUTURE_DAYS, extraWorkingMinutes: config.BOOKING_EXTRA_WORKING_MINUTES };
 }

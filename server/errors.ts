@@ -1,6 +1,7 @@
-import type { ErrorRequestHandler, RequestHandler } from 'express';
+import type { ErrorRequestHandler, Request, RequestHandler } from 'express';
 import { ZodError } from 'zod';
-import { ConstraintViolationError, ForeignKeyViolationError, NotNullViolationError, UniqueViolationError, CheckViolationError, DataError } from 'objection';
+import { SchedulerError } from '../shared/scheduler/errors.ts';
+import { DBError } from 'objection';
 
 export interface FieldError { field: string; message: string }
 
@@ -44,21 +45,153 @@ export function fieldErrorsOf(error: ZodError, prefix?: string): FieldError[] {
   }));
 }
 
-function toHttpError(err: unknown): HttpError | null {
+/** What a database refusal means, in the words of the person whose change it refused. */
+interface PlainRefusal { detail: string; field?: string; message?: string }
+
+const TRY_AGAIN = 'reload and try again';
+
+/**
+ * Every named unique, exclusion and check constraint in migrations/, as a plain sentence (and the
+ * request field it concerns, where there is one). A constraint not listed gets its kind's plain
+ * fallback below: never a table, column or constraint name.
+ */
+export const CONSTRAINT_REFUSALS: Record<string, PlainRefusal> = {
+  // unique (→ 409)
+  jobs_firm_id_reference_unique: { detail: 'Another job already has this reference.', field: 'reference', message: 'is already used by another job' },
+  bookings_stage_id_resource_id_unique: { detail: 'This stage is already booked on that resource.', field: 'resourceId', message: 'already has this stage' },
+  resources_firm_id_name_unique: { detail: 'Another resource of your firm already has this name.', field: 'name', message: 'is already used by another resource' },
+  calendars_firm_id_name_unique: { detail: 'Another calendar of your firm already has this name.', field: 'name', message: 'is already used by another calendar' },
+  units_firm_id_model_unique: { detail: 'Your firm already lists this model.', field: 'model', message: 'is already listed' },
+  firms_name_unique: { detail: 'Another firm already has this name.', field: 'name', message: 'is already used by another firm' },
+  users_email_lower_unique: { detail: 'Someone already uses this e-mail address.', field: 'email', message: 'is already in use' },
+  users_google_sub_unique: { detail: 'This sign-in account is already linked to someone.' },
+  memberships_user_id_firm_id_unique: { detail: 'This person is already a member of the firm.' },
+  partnerships_installer_firm_id_partner_firm_id_unique: { detail: 'These firms already work together.' },
+  dependencies_from_stage_id_to_stage_id_unique: { detail: 'These two stages are already linked.' },
+  stages_job_id_sequence_unique: { detail: `Someone else changed this job's stages at the same moment; ${TRY_AGAIN}.` },
+  stage_templates_firm_id_installation_type_unique: { detail: `Someone else saved this template at the same moment; ${TRY_AGAIN}.` },
+  surveys_job_id_unique: { detail: `Someone else saved a survey of this job at the same moment; ${TRY_AGAIN}.` },
+  firm_settings_pkey: { detail: `Someone else saved the firm's settings at the same moment; ${TRY_AGAIN}.` },
+  calendar_feeds_one_live: { detail: 'This resource already has a live calendar feed.' },
+  calendar_feeds_token_hash_unique: { detail: 'The calendar feed could not be made; try again.' },
+  booking_requests_booking_id_booking_version_unique: { detail: 'This booking request has already been sent.' },
+  outbox_idempotency_key_unique: { detail: 'This message is already on its way.' },
+  job_files_object_key_unique: { detail: 'The file could not be saved; try again.' },
+  // exclusion (→ 409, code double-booked)
+  bookings_no_confirmed_overlap: { detail: 'That resource already has a confirmed booking at that time.' },
+  bookings_no_held_overlap: { detail: 'That resource already has a confirmed booking at that time.' },
+  // check (→ 400)
+  jobs_promised_order: { detail: 'The promised window ends before it starts.', field: 'promisedTo', message: 'must be on or after the start of the promised window' },
+  bookings_time_order: { detail: 'A booking must end after it starts.', field: 'endsAt', message: 'must be after the start' },
+  hire_periods_order: { detail: 'A hire period must end after it starts.', field: 'offHireAt', message: 'must be after the on-hire' },
+  hire_periods_rate: { detail: 'The day rate cannot be negative.', field: 'dayRatePence', message: "can't be negative" },
+  calendar_exceptions_order: { detail: 'A closure must end after it starts.' },
+  calendar_exceptions_owner: { detail: 'A closure belongs to one calendar or to one resource.' },
+  surveys_access_positive: { detail: 'The access width and height must be more than 0.', field: 'survey.accessWidthMm', message: 'must be more than 0' },
+  surveys_counts: { detail: 'Steps and gates cannot be negative.', field: 'survey.steps', message: 'cannot be negative' },
+  surveys_fuse_positive: { detail: 'The main fuse must be more than 0 A.', field: 'survey.mainFuseAmps', message: 'must be more than 0' },
+  stages_duration_positive: { detail: 'A stage must take some time.' },
+  job_files_size_positive: { detail: 'The file has no content.', field: 'file', message: 'is empty' },
+  partnerships_distinct: { detail: 'A firm cannot be its own partner.' },
+  dependencies_distinct: { detail: 'A stage cannot wait for itself.' },
+  resources_user_only_for_people: { detail: 'Only a person can be linked to a sign-in account.' },
+  lead_time_rules_target: { detail: 'A lead time applies to a kind of resource or a kind of stage, not both.' },
+  booking_answers_proposal_times: { detail: 'A proposal needs a start and an end.', field: 'proposedStart', message: 'a proposal needs a start and an end' },
+};
+
+/** Foreign keys a request names directly: the field whose id points at nothing. */
+const MISSING_REFERENCES: Record<string, { field: string; message: string }> = {
+  jobs_unit_id_foreign: { field: 'unitId', message: 'is not a unit your firm lists' },
+  bookings_stage_id_foreign: { field: 'stageId', message: 'is not a stage that still exists' },
+  bookings_resource_id_foreign: { field: 'resourceId', message: 'is not a resource that still exists' },
+  hire_periods_resource_id_foreign: { field: 'resourceId', message: 'is not a resource that still exists' },
+  hire_periods_supplier_firm_id_foreign: { field: 'supplierFirmId', message: 'is not a firm that still exists' },
+};
+
+const DATA_REFUSALS: Record<string, string> = {
+  '22001': 'A value is too long.',
+  '22003': 'A number is too large.',
+  '22007': 'A date or time is not valid.',
+  '22008': 'A date or time is out of range.',
+  '22021': 'A value contains a character that cannot be stored.',
+  '22P05': 'A value contains a character that cannot be stored.',
+};
+
+interface PgLike { code?: unknown; constraint?: unknown; message?: unknown; severity?: unknown }
+
+/** The PostgreSQL error under an Objection wrapper, or a raw one from a knex query. */
+function postgresError(err: unknown): { code: string; constraint: string; message: string } | null {
+  const native = ((err as { nativeError?: PgLike })?.nativeError ?? err) as PgLike | null;
+  if (!native || typeof native.code !== 'string' || !/^[0-9A-Z]{5}$/.test(native.code)) return null;
+  if (!(err instanceof DBError) && typeof native.severity !== 'string') return null;
+  return { code: native.code, constraint: typeof native.constraint === 'string' ? native.constraint : '', message: typeof native.message === 'string' ? native.message : '' };
+}
+
+const withField = (r: PlainRefusal) => (r.field && r.message ? [{ field: r.field, message: r.message }] : []);
+
+/**
+ * Database refusals in the user's words: the status by kind (unique/exclusion → 409, a missing
+ * reference → 422, one still in use → 409, not-null/check/data → 400), the sentence by constraint.
+ */
+function databaseError(err: unknown): HttpError | null {
+  const pg = postgresError(err);
+  if (!pg) return null;
+  const known = CONSTRAINT_REFUSALS[pg.constraint];
+  switch (pg.code) {
+    case '23505':
+      return new ConflictError(known?.detail ?? 'This would repeat something that is already recorded; reload to see it.', { code: 'duplicate', errors: known ? withField(known) : [] });
+    case '23P01':
+      return new ConflictError(known?.detail ?? 'That clashes with a booking already made for that time.', { code: 'double-booked' });
+    case '23503': {
+      // PostgreSQL words the two directions differently: a row pointing at nothing, or a row still pointed at.
+      if (/\bupdate or delete on table\b/.test(pg.message)) {
+        return new ConflictError('This is still in use elsewhere, so it cannot be removed.', { code: 'still-in-use' });
+      }
+      const field = MISSING_REFERENCES[pg.constraint];
+      return new HttpError(422, 'reference', 'A referenced record does not exist', 'Something this refers to does not exist (it may just have been removed).', { errors: field ? [field] : [] });
+    }
+    case '23502':
+      return new BadRequestError('A required value is missing.');
+    case '23514':
+      return new BadRequestError(known?.detail ?? 'A value is outside what is allowed.', known ? withField(known) : []);
+  }
+  if (pg.code.startsWith('23')) return new ConflictError('The change conflicts with what is already recorded; reload and try again.');
+  if (pg.code.startsWith('22')) return new BadRequestError(DATA_REFUSALS[pg.code] ?? 'A value has the wrong form.');
+  return null;
+}
+
+/**
+ * The route parameter whose %-escape cannot be decoded, found by laying the raw path over each
+ * route's pattern in the order Express tries them; null if no route's pattern fits.
+ */
+function malformedParam(req: Request | undefined): string | null {
+  const stack = (req?.app as { router?: { stack?: { route?: { path?: unknown } }[] } } | undefined)?.router?.stack ?? [];
+  const segments = (req?.originalUrl ?? '').split('?')[0]!.split('/');
+  const undecodable = (s: string) => { try { decodeURIComponent(s); return false; } catch { return true; } };
+  for (const layer of stack) {
+    const pattern = layer.route?.path;
+    if (typeof pattern !== 'string') continue;
+    const parts = pattern.split('/');
+    if (parts.length !== segments.length) continue;
+    if (!parts.every((p, i) => p.startsWith(':') || p === segments[i])) continue;
+    const bad = parts.findIndex((p, i) => p.startsWith(':') && undecodable(segments[i]!));
+    if (bad >= 0) return parts[bad]!.slice(1);
+  }
+  return null;
+}
+
+function toHttpError(err: unknown, req?: Request): HttpError | null {
   if (err instanceof HttpError) return err;
   if (err instanceof ZodError) return new BadRequestError('Some fields are not valid.', fieldErrorsOf(err));
-  // Unique, foreign-key and check violations are ConstraintViolationErrors too: test them first.
-  if (err instanceof UniqueViolationError) {
-    return new ConflictError(`That ${err.columns?.join(', ') || 'value'} is already in use.`, { errors: (err.columns ?? []).map((c) => ({ field: c, message: 'is already in use' })) });
+  // The router could not decode a %-escape in the path (e.g. /api/jobs/%zz); it marks the error 400.
+  if (err instanceof URIError && (err as { status?: number }).status === 400) {
+    const name = malformedParam(req);
+    return new BadRequestError('The address has a broken %-escape.', [{ field: name ? `params.${name}` : 'path', message: 'is not valid in an address (a % must be followed by two hexadecimal digits)' }]);
   }
-  if (err instanceof ForeignKeyViolationError) return new HttpError(422, 'reference', 'A referenced record does not exist', 'A referenced record does not exist or is still in use.');
-  if (err instanceof NotNullViolationError) return new BadRequestError(`${err.column} is required.`, [{ field: err.column, message: 'is required' }]);
-  if (err instanceof CheckViolationError) return new BadRequestError('A value is out of range.', [{ field: err.constraint, message: 'is out of range' }]);
-  if (err instanceof DataError) return new BadRequestError('A value has the wrong form.');
-  const sqlState = (err as { nativeError?: { code?: string }; code?: string })?.nativeError?.code ?? (err as { code?: string })?.code;
-  if (sqlState === '23P01' || err instanceof ConstraintViolationError) {
-    return new ConflictError('That resource already has a confirmed booking at that time.', { code: 'double-booked' });
-  }
+  const database = databaseError(err);
+  if (database) return database;
+  // The engine refuses input it cannot plan with (a calendar with no working time, a span of decades).
+  if (err instanceof SchedulerError) return new UnprocessableError(err.message, { code: `engine-${err.code.replace(/_/g, '-')}` });
   const e = err as { type?: string; status?: number; statusCode?: number; expose?: boolean; message?: string };
   // body-parser errors (malformed JSON, too large) carry their own status.
   if (e?.expose && typeof (e.status ?? e.statusCode) === 'number') {
@@ -80,7 +213,7 @@ export function problemBody(err: HttpError, instance?: string): Record<string, u
 
 /** The one error handler: problem+json, never a stack trace or SQL. */
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
-  const http = toHttpError(err);
+  const http = toHttpError(err, req);
   if (!http) {
     req.log?.error({ err }, 'unhandled error');
     res.status(500).type('application/problem+json').json({ type: '/problems/internal', title: 'Something went wrong on our side', status: 500 });

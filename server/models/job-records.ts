@@ -62,6 +62,10 @@ export class FirmSettings extends ScopedModel {
   static override jsonAttributes = ['quantities'];
   firmId!: string;
   quantities!: QuantitySettingsPatch;
+  /** Keep EXIF location in stored photo originals (off: it is removed on upload). */
+  keepPhotoLocation!: boolean;
+  /** Partners booked on a job see the householder's name and phone (read-policy.ts); off by default. */
+  shareCustomerContactWithPartners!: boolean;
   version!: number;
   updatedAt!: Date;
   static override scope(q: AnyQuery, actor: Actor) {

@@ -3,10 +3,10 @@ import type { Knex } from 'knex';
 import type { FileView } from '../../shared/schemas/files.ts';
 import { FILE_TYPES, type FileContentType } from '../../shared/schemas/files.ts';
 import { Job } from '../models/index.ts';
-import { JobFile } from '../models/job-records.ts';
+import { FirmSettings, JobFile } from '../models/job-records.ts';
 import { HttpError, NotFoundError } from '../errors.ts';
 import type { ObjectStore } from '../storage/object-store.ts';
-import { inspectFile, thumbnailOf } from '../storage/inspect.ts';
+import { inspectFile, storedOriginal, thumbnailOf } from '../storage/inspect.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
@@ -23,7 +23,8 @@ export interface Upload { buffer: Buffer; originalName: string }
 /**
  * A job's photos and documents. The bytes go to object storage and a row to the database, both or
  * neither: if the row cannot be written the objects are removed again, and if storage fails no row
- * is written.
+ * is written. A photo's original is stored without its location and camera details unless the
+ * firm's settings keep them (see storedOriginal).
  */
 export class FilesService {
   constructor(private readonly knex: Knex, private readonly store: ObjectStore, private readonly log: { error: (o: object, m: string) => void } = console) {}
@@ -51,12 +52,15 @@ export class FilesService {
     const job = await findVisible(Job, actor, jobId, undefined, 'job');
     const info = await inspectFile(upload.buffer, upload.originalName);
     const thumbnail = info.isPhoto ? await thumbnailOf(upload.buffer, info.contentType) : null;
+    // The firm's own photos are the firm's call: by default a stored original carries no location.
+    const keepLocation = (await scoped(FirmSettings, actor).first())?.keepPhotoLocation ?? false;
+    const original = storedOriginal(upload.buffer, info, keepLocation);
     const base = `jobs/${job.id}/${randomUUID()}`;
     const objectKey = `${base}.${info.ext}`;
     const thumbnailKey = thumbnail ? `${base}-thumb.jpg` : null;
     const stored: string[] = [];
     try {
-      await this.store.put(objectKey, upload.buffer, info.contentType);
+      await this.store.put(objectKey, original, info.contentType);
       stored.push(objectKey);
       if (thumbnail && thumbnailKey) {
         await this.store.put(thumbnailKey, thumbnail, 'image/jpeg');
@@ -70,7 +74,7 @@ export class FilesService {
     try {
       const row = await this.knex.transaction(async (trx) => {
         const created = await JobFile.query(trx).insertAndFetch({
-          jobId: job.id, objectKey, thumbnailKey, name: info.name, contentType: info.contentType, sizeBytes: upload.buffer.length, uploadedBy: actor.userId,
+          jobId: job.id, objectKey, thumbnailKey, name: info.name, contentType: info.contentType, sizeBytes: original.length, uploadedBy: actor.userId,
         } as Partial<JobFile>);
         await recordChange(trx, actor, 'job_file', created.id, 'create', null, { ...created });
         return created;

@@ -19,7 +19,13 @@ function toView(row: StageTemplateRow | undefined, type: InstallationType): Temp
   return { installationType: type, name: row.name, stages: row.stages, links: row.links, version: row.version, isDefault: false, updatedAt: row.updatedAt.toISOString() };
 }
 
-export interface SettingsView { quantities: QuantitySettings; overrides: Partial<QuantitySettings>; defaults: QuantitySettings; sources: typeof SETTING_SOURCES; version: number }
+export interface SettingsView {
+  quantities: QuantitySettings; overrides: Partial<QuantitySettings>; defaults: QuantitySettings; sources: typeof SETTING_SOURCES; version: number;
+  /** Whether stored photo originals keep where they were taken (EXIF GPS). */
+  keepPhotoLocation: boolean;
+  /** Whether partner firms booked on a job see the householder's name and phone (read-policy.ts). */
+  shareCustomerContactWithPartners: boolean;
+}
 
 /** A firm's stage templates (its own edits over the built-in defaults) and its quantity settings. */
 export class TemplatesService {
@@ -57,22 +63,39 @@ export class TemplatesService {
   async settings(actor: Actor, trx?: Knex.Transaction): Promise<SettingsView> {
     const row = await scoped(FirmSettings, actor, trx).first();
     const overrides = (row?.quantities ?? {}) as Partial<QuantitySettings>;
-    return { quantities: settingsWith(overrides), overrides, defaults: DEFAULT_QUANTITY_SETTINGS, sources: SETTING_SOURCES, version: row?.version ?? 0 };
+    return {
+      quantities: settingsWith(overrides), overrides, defaults: DEFAULT_QUANTITY_SETTINGS, sources: SETTING_SOURCES, version: row?.version ?? 0,
+      keepPhotoLocation: row?.keepPhotoLocation ?? false,
+      shareCustomerContactWithPartners: row?.shareCustomerContactWithPartners ?? false,
+    };
   }
 
-  /** Replaces the firm's overrides (left-out figures fall back to the defaults). */
+  /**
+   * Replaces the firm's quantity overrides (left-out figures fall back to the defaults) and/or sets
+   * the photo and partner-sharing switches. Only a quantities change moves the version (see PutFirmSettings).
+   */
   async putSettings(actor: Actor, input: PutFirmSettings): Promise<SettingsView> {
     return this.knex.transaction(async (trx) => {
       const before = await scoped(FirmSettings, actor, trx).first().forUpdate();
-      if ((before?.version ?? 0) !== input.version) {
+      const current = before?.version ?? 0;
+      if (input.version !== undefined && current !== input.version) {
         throw new ConflictError('Someone else changed these settings since you loaded them.', { code: 'stale-version', current: await this.settings(actor, trx) });
       }
+      const was = { quantities: before?.quantities ?? {}, keepPhotoLocation: before?.keepPhotoLocation ?? false,
+        shareCustomerContactWithPartners: before?.shareCustomerContactWithPartners ?? false };
+      const now = {
+        quantities: input.quantities ?? was.quantities,
+        keepPhotoLocation: input.keepPhotoLocation ?? was.keepPhotoLocation,
+        shareCustomerContactWithPartners: input.shareCustomerContactWithPartners ?? was.shareCustomerContactWithPartners,
+        version: input.quantities ? current + 1 : current,
+      };
       if (before) {
-        await FirmSettings.query(trx).patch({ quantities: input.quantities, version: before.version + 1, updatedAt: new Date() } as Partial<FirmSettings>).where('firm_id', actor.firmId);
+        await FirmSettings.query(trx).patch({ ...now, updatedAt: new Date() } as Partial<FirmSettings>).where('firm_id', actor.firmId);
       } else {
-        await FirmSettings.query(trx).insert({ firmId: actor.firmId, quantities: input.quantities, version: 1 } as Partial<FirmSettings>);
+        await FirmSettings.query(trx).insert({ firmId: actor.firmId, ...now } as Partial<FirmSettings>);
       }
-      await recordChange(trx, actor, 'firm_settings', actor.firmId, before ? 'update' : 'create', before?.quantities ?? null, input.quantities);
+      await recordChange(trx, actor, 'firm_settings', actor.firmId, before ? 'update' : 'create', before ? was : null,
+        { quantities: now.quantities, keepPhotoLocation: now.keepPhotoLocation, shareCustomerContactWithPartners: now.shareCustomerContactWithPartners });
       return this.settings(actor, trx);
     });
   }

@@ -1,7 +1,9 @@
 import { fileTypeFromBuffer } from 'file-type';
 import sharp from 'sharp';
 import { FILE_TYPES, type FileContentType } from '../../shared/schemas/files.ts';
+import { TEXT_MESSAGES, textProblem } from '../../shared/schemas/common.ts';
 import { HttpError } from '../errors.ts';
+import { stripPhotoMetadata } from './photo-metadata.ts';
 
 /** Width of photo thumbnails, px. */
 export const THUMBNAIL_WIDTH = 320;
@@ -16,18 +18,23 @@ const EXTENSIONS: Record<string, FileContentType[]> = {
 const badName = (detail: string) => new HttpError(400, 'bad-file-name', 'The file name is not accepted', detail, { errors: [{ field: 'file', message: detail }] });
 
 /**
- * A display name the product will keep: no folders, no "..", no control characters. A name that
- * tries to point somewhere is refused rather than quietly changed, so the sender sees why.
+ * A display name the product will keep: no folders, no "..", no control characters, no
+ * text-direction overrides (U+202A–U+202E, U+2066–U+2069). A name that tries to point somewhere or
+ * to disguise itself is refused rather than quietly changed, so the sender sees why.
  * @example checkFileName('pit photo.jpg') // 'pit photo.jpg'
  */
 export function checkFileName(raw: string): string {
-  const name = raw.normalize('NFC').trim();
+  const normalized = raw.normalize('NFC');
+  const name = normalized.trim();
   if (!name) throw badName('The file has no name.');
   if (/[/\\]/.test(name) || name.includes('..')) {
     throw badName('A file name may not contain a folder path or "..".');
   }
-  // eslint-disable-next-line no-control-regex
-  if (/[\u0000-\u001f\u007f]/.test(name)) throw badName('A file name may not contain control characters.');
+  // Control characters and bidirectional overrides (a name that shows as "gpj.exe" the other way
+  // round), looked for before trimming so a trailing line break is refused too, never cleaned away.
+  const problem = textProblem(normalized, 'one-line');
+  if (problem === TEXT_MESSAGES.brokenCharacter) throw badName('A file name may not contain broken characters.');
+  if (problem) throw badName('A file name may not contain line breaks, tabs, control characters or text-direction overrides.');
   if (name.startsWith('.')) throw badName('A file name may not start with a dot.');
   if (name.length > 200) throw badName('A file name may be at most 200 characters.');
   return name;
@@ -66,4 +73,19 @@ export async function thumbnailOf(buffer: Buffer, contentType: FileContentType):
     if (contentType === 'image/heic' || contentType === 'image/heif') return null;
     throw new HttpError(400, 'unreadable-image', 'The photo could not be read', 'The file looks like a photo but is damaged or incomplete.', { errors: [{ field: 'file', message: 'could not be read as an image' }] });
   }
+}
+
+/**
+ * The original as it is stored: without its location and camera details (EXIF, XMP, IPTC), the
+ * orientation tag kept and the image data untouched, unless the firm keeps photo locations.
+ * A photo whose layout cannot be followed is refused rather than stored with its location.
+ */
+export function storedOriginal(buffer: Buffer, info: InspectedFile, keepLocation: boolean): Buffer {
+  if (!info.isPhoto || keepLocation) return buffer;
+  const cleaned = stripPhotoMetadata(buffer, info.contentType);
+  if (!cleaned) {
+    throw new HttpError(400, 'unreadable-image', 'The photo could not be read', 'The photo\'s layout could not be followed, so its location could not be removed.',
+      { errors: [{ field: 'file', message: 'could not be read as an image' }] });
+  }
+  return cleaned;
 }

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { ROLES } from '../permissions.ts';
-import { Id, IsoInstant } from './common.ts';
+import { EmailAddress, Id, WorkInstant } from './common.ts';
 
 export const ANSWER_ACTIONS = ['confirm', 'decline', 'propose'] as const;
 export type AnswerActionName = (typeof ANSWER_ACTIONS)[number];
@@ -12,8 +12,8 @@ export type VersionBody = z.infer<typeof VersionBody>;
 /** A partner's answer to a booking request. A proposal names the time that would suit. */
 export const PartnerAnswer = z.object({
   action: z.enum(ANSWER_ACTIONS),
-  proposedStart: IsoInstant.optional(),
-  proposedEnd: IsoInstant.optional(),
+  proposedStart: WorkInstant.optional(),
+  proposedEnd: WorkInstant.optional(),
 }).refine((a) => a.action !== 'propose' || (a.proposedStart && a.proposedEnd), { path: ['proposedStart'], message: 'a proposal needs a start and an end' })
   .refine((a) => !a.proposedStart || !a.proposedEnd || Date.parse(a.proposedEnd) > Date.parse(a.proposedStart), { path: ['proposedEnd'], message: 'must be after the start' });
 export type PartnerAnswer = z.infer<typeof PartnerAnswer>;
@@ -22,12 +22,12 @@ export const AssignPerson = z.object({ resourceId: Id });
 export type AssignPerson = z.infer<typeof AssignPerson>;
 
 export const CreateInvitation = z.object({
-  email: z.email('must be an e-mail address').transform((e) => e.toLowerCase()),
+  email: EmailAddress.transform((e) => e.toLowerCase()),
   role: z.enum(ROLES),
 });
 export type CreateInvitation = z.infer<typeof CreateInvitation>;
 
-export const SlotQuery = z.object({ from: IsoInstant.optional() });
+export const SlotQuery = z.object({ from: WorkInstant.optional() });
 
 /** The latest answer to a booking, as the board shows it. */
 export const BookingAnswerView = z.object({

@@ -4,8 +4,87 @@ import { z } from 'zod';
 export const Id = z.string().regex(/^[1-9][0-9]{0,17}$/, 'must be a numeric id');
 export type Id = z.infer<typeof Id>;
 
-export const IsoInstant = z.iso.datetime({ offset: true, message: 'must be an ISO 8601 date-time with an offset, e.g. 2026-05-12T08:00:00Z' });
-export const IsoDate = z.iso.date({ message: 'must be a date like 2026-05-12' });
+/**
+ * The years any date or instant may name. Wide enough for a householder's order history and a
+ * long guarantee, narrow enough that nothing downstream (working calendars, bank holidays, time
+ * zones) is ever asked about year 0 or year 9999. Common practice, no source.
+ */
+export const DATE_YEARS = { min: 1900, max: 2200 } as const;
+
+/**
+ * The years work can be planned in or looked up for: day sheets, reports, bookings' answers, hire
+ * and a job's promised window. Common practice, no source.
+ */
+export const WORK_YEARS = { min: 2000, max: 2100 } as const;
+
+type Years = { readonly min: number; readonly max: number };
+const yearOf = (isoDate: string) => Number(isoDate.slice(0, 4));
+const startOfYear = (year: number) => Date.UTC(year, 0, 1);
+const yearsMessage = (what: string, years: Years) => `must be a ${what} between ${years.min} and ${years.max}`;
+
+const isoDate = (years: Years) => z.iso.date({ message: 'must be a date like 2026-05-12', abort: true })
+  .refine((d) => yearOf(d) >= years.min && yearOf(d) <= years.max, yearsMessage('date', years));
+// The instant itself (offset applied) must fall in the years, so 1900-01-01T00:30+01:00 is refused.
+const isoInstant = (years: Years) => z.iso.datetime({ offset: true, abort: true, message: 'must be an ISO 8601 date-time with an offset, e.g. 2026-05-12T08:00:00Z' })
+  .refine((t) => { const ms = Date.parse(t); return ms >= startOfYear(years.min) && ms < startOfYear(years.max + 1); }, yearsMessage('time', years));
+
+/** A calendar date (YYYY-MM-DD) that exists (no 2026-02-30) and falls within DATE_YEARS. */
+export const IsoDate = isoDate(DATE_YEARS);
+/** An ISO 8601 date-time with an offset that exists and falls within DATE_YEARS. */
+export const IsoInstant = isoInstant(DATE_YEARS);
+/** A date within WORK_YEARS: the day sheet's date, a promised window. */
+export const WorkDate = isoDate(WORK_YEARS);
+/** An instant within WORK_YEARS: a report's range, a partner's proposal, a hire period. */
+export const WorkInstant = isoInstant(WORK_YEARS);
+
+/*
+ * Text people type. What no text field takes: C0 controls (NUL, TAB, CR, LF…), DEL and C1
+ * controls, the bidirectional overrides and isolates that make "gpj.exe" read as "exe.jpg"
+ * (U+202A–U+202E, U+2066–U+2069, Unicode TR #9), the line and paragraph separators
+ * (U+2028, U+2029) and lone UTF-16 surrogates, which no UTF-8 database or file can hold.
+ */
+const LINE_BREAK = /[\n\r\u2028\u2029]/;
+// eslint-disable-next-line no-control-regex
+const CONTROL = /[\u0000-\u0009\u000b\u000c\u000e-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
+const LONE_SURROGATE = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
+
+export const TEXT_MESSAGES = {
+  lineBreak: 'must be a single line (no line breaks)',
+  control: 'must not contain tabs or hidden control characters',
+  brokenCharacter: 'contains a broken character; type it again',
+} as const;
+
+/**
+ * Why a piece of text is refused, or null when it is fine. One-line text takes no line breaks;
+ * multi-line text takes LF and CRLF and nothing else from the list above.
+ * @example textProblem('Crew\nHeron', 'one-line') // 'must be a single line (no line breaks)'
+ */
+export function textProblem(text: string, kind: 'one-line' | 'multi-line'): string | null {
+  if (LONE_SURROGATE.test(text)) return TEXT_MESSAGES.brokenCharacter;
+  if (kind === 'one-line' && LINE_BREAK.test(text)) return TEXT_MESSAGES.lineBreak;
+  const rest = kind === 'multi-line' ? text.replace(/\r\n|\n/g, '') : text;
+  if (CONTROL.test(rest) || (kind === 'multi-line' && LINE_BREAK.test(rest))) return TEXT_MESSAGES.control;
+  return null;
+}
+
+// `abort` stops the length checks after it, so a field gets the one message that matters.
+const refuse = (kind: 'one-line' | 'multi-line') => (value: string, ctx: z.RefinementCtx) => {
+  const problem = textProblem(value, kind);
+  if (problem) ctx.addIssue({ code: 'custom', message: problem, continue: false });
+};
+
+/** One line of text (a name, reference, town, phone number, title), trimmed. */
+export const OneLine = z.string().trim().superRefine(refuse('one-line'));
+/** Several lines of text (notes), trimmed; CRLF is kept as LF. */
+export const MultiLine = z.string().trim().overwrite((s) => s.replace(/\r\n/g, '\n')).superRefine(refuse('multi-line'));
+
+/** One line of at most `max` characters. @example oneLineText(40).min(1, 'is required') */
+export const oneLineText = (max: number) => OneLine.max(max, `must be at most ${max} characters`);
+/** Notes of at most `max` characters. */
+export const multiLineText = (max: number) => MultiLine.max(max, `must be at most ${max} characters`);
+
+/** An e-mail address, trimmed (RFC 5321 caps a path at 254 characters). */
+export const EmailAddress = oneLineText(254).pipe(z.email('must be an e-mail address'));
 
 export const IdParams = z.object({ id: Id });
 

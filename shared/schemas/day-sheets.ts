@@ -1,7 +1,8 @@
 import { z } from 'zod';
-import { IsoDate } from './common.ts';
+import { WorkDate } from './common.ts';
 
-export const DaySheetQuery = z.object({ date: IsoDate });
+/** The day a sheet is for: a real date within WORK_YEARS (a date far off is a typing slip, not a plan). */
+export const DaySheetQuery = z.object({ date: WorkDate });
 export type DaySheetQuery = z.infer<typeof DaySheetQuery>;
 
 export interface DaySheetVisit {

@@ -27,5 +27,20 @@ export const QuantitySettingsPatch = z.object({
 }).partial().strict();
 export type QuantitySettingsPatch = z.infer<typeof QuantitySettingsPatch>;
 
-export const PutFirmSettings = z.object({ version: z.number().int().min(0), quantities: QuantitySettingsPatch });
+/**
+ * PUT /api/firm/settings. `version` guards the quantity figures: a form of many values where a save
+ * based on old figures would quietly undo someone else's. The photo switch is one yes/no whose
+ * request states the whole outcome, so it may be sent on its own without a version.
+ */
+export const PutFirmSettings = z.object({
+  version: z.number().int().min(0).optional(),
+  quantities: QuantitySettingsPatch.optional(),
+  /** Keep where a photo was taken (EXIF GPS) in the stored original; off by default. */
+  keepPhotoLocation: z.boolean().optional(),
+  /** Show the householder's name and phone to the partner firms booked on the job (their day sheet); off by default. */
+  shareCustomerContactWithPartners: z.boolean().optional(),
+})
+  .refine((s) => s.quantities === undefined || s.version !== undefined, { path: ['version'], message: 'is required when changing the quantities' })
+  .refine((s) => s.quantities !== undefined || s.keepPhotoLocation !== undefined || s.shareCustomerContactWithPartners !== undefined,
+    { path: ['quantities'], message: 'send the quantities, the photo setting or the sharing setting' });
 export type PutFirmSettings = z.infer<typeof PutFirmSettings>;

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { Id, IsoInstant } from './common.ts';
+import { Id, WorkInstant } from './common.ts';
 
 const pence = (what: string) => z.number({ message: `${what} must be a whole number of pence` }).int(`${what} must be a whole number of pence`).min(0, `${what} can't be negative`).max(100_000_000, `${what} is too large`);
 
@@ -7,8 +7,8 @@ const pence = (what: string) => z.number({ message: `${what} must be a whole num
 export const CreateHirePeriod = z.object({
   supplierFirmId: Id,
   resourceId: Id,
-  onHireAt: IsoInstant,
-  offHireAt: IsoInstant,
+  onHireAt: WorkInstant,
+  offHireAt: WorkInstant,
   dayRatePence: pence('The day rate'),
   deliveryPence: pence('The delivery charge').default(0),
   collectionPence: pence('The collection charge').default(0),
@@ -21,8 +21,8 @@ export type CreateHirePeriod = z.infer<typeof CreateHirePeriod>;
 export const UpdateHirePeriod = z.object({
   version: z.number().int().min(1),
   status: z.enum(['approved', 'ended']).optional(),
-  onHireAt: IsoInstant.optional(),
-  offHireAt: IsoInstant.optional(),
+  onHireAt: WorkInstant.optional(),
+  offHireAt: WorkInstant.optional(),
   dayRatePence: pence('The day rate').optional(),
   deliveryPence: pence('The delivery charge').optional(),
   collectionPence: pence('The collection charge').optional(),

@@ -1,11 +1,11 @@
 import { z } from 'zod';
-import { Id, IsoDate, Paging } from './common.ts';
+import { EmailAddress, Id, OneLine, Paging, WorkDate, multiLineText, oneLineText } from './common.ts';
 
 export const INSTALLATION_TYPES = ['in_ground', 'semi_recessed', 'slab', 'deck'] as const;
 export const JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress', 'handed_over', 'cancelled'] as const;
 
 export const JobQuery = Paging.extend({
-  search: z.string().trim().max(100).optional(),
+  search: oneLineText(100).optional(),
   status: z.enum(JOB_STATUSES).optional(),
   installationType: z.enum(INSTALLATION_TYPES).optional(),
   sort: z.enum(['promisedFrom', 'reference', 'customerName', 'status', 'orderedOn']).default('promisedFrom'),
@@ -13,24 +13,24 @@ export const JobQuery = Paging.extend({
 });
 export type JobQuery = z.infer<typeof JobQuery>;
 
-const UkPostcode = z.string().trim().toUpperCase()
+const UkPostcode = OneLine.toUpperCase()
   .regex(/^[A-Z]{1,2}[0-9][A-Z0-9]? ?[0-9][A-Z]{2}$/, 'must be a UK postcode such as LS6 2AB');
 
 /** A job's editable fields, without the cross-field rules (zod cannot make a refined object partial). */
 export const JobFields = z.object({
-  reference: z.string().trim().min(1, 'is required').max(40),
-  customerName: z.string().trim().min(1, 'is required').max(200),
-  customerPhone: z.string().trim().max(40).optional(),
-  customerEmail: z.email('must be an e-mail address').optional(),
-  siteAddress: z.string().trim().min(1, 'is required').max(500),
-  siteTown: z.string().trim().min(1, 'is required').max(100),
+  reference: oneLineText(40).min(1, 'is required'),
+  customerName: oneLineText(200).min(1, 'is required'),
+  customerPhone: oneLineText(40).optional(),
+  customerEmail: EmailAddress.optional(),
+  siteAddress: oneLineText(500).min(1, 'is required'),
+  siteTown: oneLineText(100).min(1, 'is required'),
   sitePostcode: UkPostcode,
-  accessNotes: z.string().trim().max(2000).optional(),
+  accessNotes: multiLineText(2000).optional(),
   unitId: Id.optional(),
   installationType: z.enum(INSTALLATION_TYPES, { message: 'pick an installation type' }),
-  promisedFrom: IsoDate.optional(),
-  promisedTo: IsoDate.optional(),
-  orderedOn: IsoDate.optional(),
+  promisedFrom: WorkDate.optional(),
+  promisedTo: WorkDate.optional(),
+  orderedOn: WorkDate.optional(),
 });
 
 const promisedInOrder = (j: { promisedFrom?: string | undefined; promisedTo?: string | undefined }) =>

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { IsoInstant } from './common.ts';
+import { IsoInstant, multiLineText, oneLineText } from './common.ts';
 import { EXCAVATOR_SIZES } from '../quantities/settings.ts';
 
 export const GROUND_TYPES = ['clay', 'loam', 'sand_gravel', 'chalk', 'rock', 'made_ground', 'unknown'] as const;
@@ -7,7 +7,6 @@ export type GroundType = (typeof GROUND_TYPES)[number];
 
 const mm = (label: string, max: number) => z.number({ message: `${label} must be a number of millimetres` }).int('must be whole millimetres').min(1, 'must be more than 0').max(max, `must be at most ${max} mm`);
 const metres = z.number({ message: 'must be a number of metres' }).min(0, 'cannot be negative').max(500, 'must be at most 500 m');
-const text = (max: number) => z.string().trim().max(max, `must be at most ${max} characters`);
 
 /**
  * What the surveyor records on site. Shared by the phone form and PUT /api/jobs/:id/survey.
@@ -21,18 +20,18 @@ export const SurveyFields = z.object({
   steps: z.number().int('must be a whole number').min(0, 'cannot be negative').max(200).default(0),
   gates: z.number().int('must be a whole number').min(0, 'cannot be negative').max(20).default(0),
   overheadObstructions: z.boolean().default(false),
-  overheadNotes: text(1000).nullable().default(null),
+  overheadNotes: multiLineText(1000).nullable().default(null),
   groundType: z.enum(GROUND_TYPES, { message: 'pick a ground type' }),
-  buriedServicesNotes: text(2000).nullable().default(null),
-  craneStandingPosition: text(500).nullable().default(null),
+  buriedServicesNotes: multiLineText(2000).nullable().default(null),
+  craneStandingPosition: oneLineText(500).nullable().default(null),
   craneDistanceToSetDownM: metres.nullable().default(null),
   consumerUnitDistanceM: metres.nullable().default(null),
   mainFuseAmps: z.number({ message: 'must be a number of amps' }).int('must be whole amps').min(1, 'must be more than 0').max(400, 'must be at most 400 A').nullable().default(null),
-  drainage: text(1000).nullable().default(null),
+  drainage: oneLineText(1000).nullable().default(null),
   /** The surveyor's own call on a crane; null leaves it to the access check. */
   craneRequired: z.boolean().nullable().default(null),
   excavatorSize: z.enum(EXCAVATOR_SIZES).nullable().default(null),
-  notes: text(4000).nullable().default(null),
+  notes: multiLineText(4000).nullable().default(null),
   surveyedAt: IsoInstant.optional(),
 }).refine((s) => !s.overheadObstructions || Boolean(s.overheadNotes?.trim()), {
   path: ['overheadNotes'], message: 'say what is overhead (lines, trees, eaves)',

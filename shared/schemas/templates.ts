@@ -1,11 +1,12 @@
 import { z } from 'zod';
 import { INSTALLATION_TYPES } from './jobs.ts';
+import { oneLineText } from './common.ts';
 
 const Kind = z.string().trim().regex(/^[a-z][a-z0-9_]{1,39}$/, 'must be lower_snake_case');
 
 export const StageTemplateSchema = z.object({
   kind: Kind,
-  name: z.string().trim().min(1, 'is required').max(120),
+  name: oneLineText(120).min(1, 'is required'),
   duration: z.discriminatedUnion('kind', [
     z.object({ kind: z.literal('fixed'), minutes: z.number().int().min(15).max(60 * 24 * 10) }),
     z.object({ kind: z.literal('excavation'), fallbackMinutes: z.number().int().min(15).max(60 * 24 * 10) }),
@@ -29,7 +30,7 @@ export const InstallationTypeParams = z.object({ installationType: z.enum(INSTAL
 /** PUT /api/templates/:installationType — the whole template and the version it was based on (0 = the default). */
 export const PutTemplate = z.object({
   version: z.number().int().min(0),
-  name: z.string().trim().min(1, 'is required').max(120),
+  name: oneLineText(120).min(1, 'is required'),
   stages: z.array(StageTemplateSchema).min(1, 'needs at least one stage').max(40),
   links: z.array(LinkTemplateSchema).max(200),
 });

@@ -1,3 +1,4 @@
+import { randomUUID } from 'node:crypto';
 import request from 'supertest';
 import type { Knex } from 'knex';
 import { loadConfig, type Config } from '../../server/config.ts';
@@ -24,7 +25,9 @@ export function testConfig(overrides: Partial<Record<string, string>> = {}): Con
   if (!process.env.DATABASE_URL || !process.env.FAKE_OAUTH_URL) {
     throw new Error('Server tests need PostgreSQL, Redis and the fake sign-in provider: run them with `npm test`.');
   }
-  return loadConfig({ ...process.env, LOG_LEVEL: process.env.TEST_LOG_LEVEL ?? 'silent', SIGN_IN_RATE_LIMIT: '10000', ...overrides });
+  // Generous rate limits, and Redis keys of their own, so one test's requests never use up another's budget.
+  const limits = { SIGN_IN_RATE_LIMIT: '10000', ANSWER_LINK_RATE_LIMIT: '10000', INVITE_LINK_RATE_LIMIT: '10000', FEED_RATE_LIMIT: '10000', RATE_LIMIT_PREFIX: `waterline-test:${randomUUID()}` };
+  return loadConfig({ ...process.env, LOG_LEVEL: process.env.TEST_LOG_LEVEL ?? 'silent', ...limits, ...overrides });
 }
 
 /** A migrated database holding exactly the demo scenario, and an app over it. */
