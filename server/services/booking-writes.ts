@@ -1,6 +1,6 @@
 import type { Knex } from 'knex';
 import {
-  addWorkingMinutes, createBoardIndex, formatInstant, resourceCalendarOf, type BoardIndex, type Violation,
+  addWorkingMinutes, createBoardIndex, formatInstant, localDayOf, resourceCalendarOf, type BoardIndex, type Violation,
 } from '../../shared/scheduler/index.ts';
 import { toEngineBoard } from '../../shared/board-data.ts';
 import { nextState, type BookingAction, type BookingParty, type ResourceSide } from '../../shared/booking-states.ts';
@@ -240,6 +240,7 @@ export class BookingWork {
     // A declined booking moved to another time or person is rebooked: it starts again as pencilled.
     if (timed && action === 'move' && before.state === 'declined') action = 'rebook';
     const to = this.stateAfter(action, before.state, side);
+    if (action === 'arrive') await this.checkOnTheDay(before, installerFirmId);
 
     if (to === 'removed') {
       await Booking.query(this.trx).deleteById(before.id);
@@ -338,6 +339,18 @@ export class BookingWork {
     const firmId = installerFirmId ?? (await this.sideOf(String(row.stageId), String(row.resourceId))).installerFirmId;
     const snapshot = after ? { ...after.toJSON(), action } : null;
     await recordChange(this.trx, this.ctx.actor, 'booking', String(row.id), before === null ? 'create' : after === null ? 'delete' : 'update', before, snapshot, firmId);
+  }
+
+  /** People are on site on the day of the booking, not a week ahead: today, in the firm's zone, must fall within it. */
+  private async checkOnTheDay(booking: Booking, installerFirmId: string): Promise<void> {
+    const firm = await this.trx('firms').where('id', installerFirmId).first('time_zone');
+    const zone = String(firm?.timeZone ?? 'Europe/London');
+    const today = localDayOf(zone, this.writer.now());
+    const first = localDayOf(zone, booking.startsAt.getTime());
+    const last = localDayOf(zone, booking.endsAt.getTime() - 1);
+    if (today < first || today > last) {
+      throw new TransitionRefusedError('arrive', booking.state, `This booking is on ${formatInstant(booking.startsAt.getTime(), zone)}: it can be marked on site on that day.`);
+    }
   }
 
   /** Records an instant a partner proposed, in bounds like any booking time. */

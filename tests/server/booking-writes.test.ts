@@ -69,6 +69,21 @@ describe("a partner firm's consent", () => {
   });
 });
 
+describe('progress on site', () => {
+  // The demo scenario's today is Monday 1 June 2026; Crew Kestrel is booked that morning, Crew Heron on Thursday.
+  const crewBooking = async (crew: string, day: string) => String((await ctx.knex('bookings').where('resource_id', await resource(crew))
+    .where('starts_at', '>=', `${day}T00:00:00Z`).where('starts_at', '<', `${day}T23:00:00Z`).where('state', 'confirmed').first('id')).id);
+
+  it('is marked on the day of the booking, not days ahead', async () => {
+    const thursday = await crewBooking('Crew Heron', '2026-06-04');
+    const early = await write(scheduler, 'post', `/api/bookings/${thursday}/progress`, { state: 'on_site', version: (await row(thursday)).version }).expect(409);
+    expect(early.body).toMatchObject({ code: 'transition-refused', detail: 'This booking is on Thu 4 Jun 08:00: it can be marked on site on that day.' });
+    const today = await crewBooking('Crew Kestrel', '2026-06-01');
+    const res = await write(scheduler, 'post', `/api/bookings/${today}/progress`, { state: 'on_site', version: (await row(today)).version }).expect(200);
+    expect(res.body.state).toBe('on_site');
+  });
+});
+
 describe('the engine on every path', () => {
   let lift: { id: string };
 
