@@ -255,8 +255,10 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
           for (let c = 0; c < count; c += 1) {
             const res = pool[(i + c) % pool.length];
             if (!res) continue;
-            const state = wanted === 'confirmed' && !isFree(res, start, end) ? 'pencilled' : wanted;
-            if (state === 'confirmed') confirmedBusy.set(res, [...(confirmedBusy.get(res) ?? []), [start, end]]);
+            // Confirmed and on-site bookings hold their resource: the database refuses two at once.
+            const held = wanted === 'confirmed' || wanted === 'on_site';
+            const state = held && !isFree(res, start, end) ? 'pencilled' : wanted;
+            if (state === 'confirmed' || state === 'on_site') confirmedBusy.set(res, [...(confirmedBusy.get(res) ?? []), [start, end]]);
             await trx('bookings').insert({ stage_id: stageId.get(s.kind), resource_id: resourceId.get(res), starts_at: new Date(start), ends_at: new Date(end), state, created_by: userId.get('sam.okafor@tideway.example') });
             bookings += 1;
           }

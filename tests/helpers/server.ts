@@ -18,7 +18,8 @@ export interface TestContext {
   close(): Promise<void>;
 }
 
-const TABLES = ['audit_log', 'bookings', 'dependencies', 'stages', 'jobs', 'units', 'lead_time_rules', 'hire_periods',
+/** The tables the demo scenario fills (emptied before each seeding). */
+export const SEEDED_TABLES = ['audit_log', 'bookings', 'dependencies', 'stages', 'jobs', 'units', 'lead_time_rules', 'hire_periods',
   'calendar_exceptions', 'crew_members', 'resources', 'calendars', 'partnerships', 'memberships', 'users', 'firms', 'session'];
 
 export function testConfig(overrides: Partial<Record<string, string>> = {}): Config {
@@ -35,7 +36,7 @@ export async function startTestApp(overrides: Partial<Record<string, string>> = 
   const config = testConfig(overrides);
   const knex = createKnex(config.DATABASE_URL);
   await knex.migrate.latest(migrationConfig);
-  await knex.raw(`TRUNCATE ${TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+  await knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
   await seedDemo(knex, { today: TEST_TODAY });
   const waterline = createApp({ config, knex, now: () => TEST_TODAY.getTime() });
   return {

@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { seedDemo } from '../../seeds/demo.ts';
 import { DEMO_ACCOUNTS } from '../../seeds/demo-accounts.ts';
 import { ROLES } from '../../shared/permissions.ts';
-import { startTestApp, TEST_TODAY, type TestContext } from '../helpers/server.ts';
+import { SEEDED_TABLES, startTestApp, TEST_TODAY, type TestContext } from '../helpers/server.ts';
 
 let ctx: TestContext;
 beforeAll(async () => { ctx = await startTestApp(); });
@@ -46,5 +46,17 @@ describe('the demo scenario', () => {
     expect(weeks).toBeGreaterThan(4);
     expect(weeks).toBeLessThan(9);
     expect(new Date(span.first).getTime()).toBeLessThan(TEST_TODAY.getTime());
+  });
+
+  it('can be seeded on any day of the year (npm start seeds it on the day it first runs)', async () => {
+    // Days that once broke it or sit on edges: a Wednesday in December, the day after each clock
+    // change, a bank holiday, a Saturday, and the first of the year.
+    const days = ['2026-12-02T09:00:00Z', '2027-03-29T08:00:00Z', '2026-10-26T09:00:00Z', '2026-12-25T10:00:00Z', '2027-05-15T10:00:00Z', '2027-01-01T09:00:00Z'];
+    for (const day of days) {
+      await ctx.knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+      const result = await seedDemo(ctx.knex, { today: new Date(day) });
+      expect(result.skipped, day).toBe(false);
+      expect(result.bookings, day).toBeGreaterThan(100);
+    }
   });
 });
