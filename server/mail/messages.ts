@@ -1,7 +1,8 @@
 import type { Knex } from 'knex';
 import type { Config } from '../config.ts';
 import { LinkSigner, type AnswerAction } from '../services/links.ts';
-import { CAUTION_FOOTNOTE, cautionsFor, whatToBring } from './cautions.ts';
+import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
+import { whatToBring } from './what-to-bring.ts';
 import { bookingInvite } from './calendar.ts';
 import { describeWindow, loadBookingFacts, type BookingFacts } from './facts.ts';
 import { renderMail, type MailContent } from './layout.ts';
@@ -65,8 +66,8 @@ function slotLines(f: BookingFacts): MailContent['sections'] {
 }
 
 function cautionBlock(stageKind: string): MailContent['cautions'] {
-  const lines = cautionsFor(stageKind);
-  return { heading: 'Safety on this job', lines: lines.length ? lines : ['Check the site for hazards on arrival and agree the plan with the installer.'], footnote: CAUTION_FOOTNOTE };
+  const lines = cautionLines(stageKind);
+  return { heading: 'Safety on this job', lines: lines.length ? lines : ['Check the site for hazards on arrival and agree the plan with the installer.'], footnote: CAUTION_NOTE };
 }
 
 async function composeRequest(deps: ComposeDeps, f: BookingFacts, kind: OutboxKind): Promise<OutgoingMail | SkippedMail> {

@@ -1,4 +1,4 @@
-import { CAUTION_FOOTNOTE, cautionsFor } from '../mail/cautions.ts';
+import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
 import { describeWindow, type BookingFacts } from '../mail/facts.ts';
 import type { AnswerAction } from '../services/links.ts';
 import type { LinkRefusal } from '../services/links.ts';
@@ -13,7 +13,7 @@ const ACTION_LABEL: Record<AnswerAction, { title: string; button: string }> = {
 /** The slot as the partner needs it on the day. */
 export function slotDetails(f: BookingFacts): string {
   const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
-  const cautions = cautionsFor(f.stage.kind);
+  const cautions = cautionLines(f.stage.kind);
   return `<dl>
 <dt>Work</dt><dd>${e(f.stage.name)} for ${e(f.installer.name)} (job ${e(f.job.reference)})</dd>
 <dt>Booked</dt><dd>${e(f.resource.name)}</dd>
@@ -21,7 +21,7 @@ export function slotDetails(f: BookingFacts): string {
 <dt>Site</dt><dd>${e(f.job.siteAddress)}, ${e(f.job.siteTown)} ${e(f.job.sitePostcode)}</dd>
 <dt>Access and parking</dt><dd>${e(f.job.accessNotes ?? 'Ask the installer before you travel.')}</dd>
 <dt>On the day, call</dt><dd>${e(f.installer.name)}: ${e(f.installer.phone ?? '')}</dd>
-</dl>${cautions.length ? `<div class="caution"><strong>Safety on this job</strong><ul>${cautions.map((c) => `<li>${e(c)}</li>`).join('')}</ul><strong>${e(CAUTION_FOOTNOTE)}</strong></div>` : ''}`;
+</dl>${cautions.length ? `<div class="caution"><strong>Safety on this job</strong><ul>${cautions.map((c) => `<li>${e(c)}</li>`).join('')}</ul><strong>${e(CAUTION_NOTE)}</strong></div>` : ''}`;
 }
 
 /** Local date and times of the slot, to pre-fill the proposal form. */

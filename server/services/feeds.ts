@@ -3,7 +3,7 @@ import type { Knex } from 'knex';
 import { Resource } from '../models/index.ts';
 import { UnprocessableError } from '../errors.ts';
 import { personFeed } from '../mail/calendar.ts';
-import { CAUTION_FOOTNOTE, cautionsFor } from '../mail/cautions.ts';
+import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
 import { describeWindow, loadBookingFacts } from '../mail/facts.ts';
 import type { Actor } from './actor.ts';
 import { findVisible } from './scope.ts';
@@ -62,14 +62,14 @@ export class FeedsService {
       const facts = await loadBookingFacts(this.knex, String(id));
       if (!facts) continue;
       const when = describeWindow(facts.booking.startsAt, facts.booking.endsAt, facts.installer.timeZone);
-      const cautions = cautionsFor(facts.stage.kind);
+      const cautions = cautionLines(facts.stage.kind);
       events.push({
         facts,
         description: [
           `${facts.stage.name} for ${facts.installer.name} (job ${facts.job.reference})`, `${when.date}, ${when.window}`,
           facts.booking.state === 'sent' ? 'Not yet confirmed.' : `State: ${facts.booking.state}.`,
           `Access and parking: ${facts.job.accessNotes ?? 'ask the installer'}`, `On the day call ${facts.installer.name}: ${facts.installer.phone ?? ''}`,
-          ...(cautions.length ? ['', ...cautions.map((c) => `- ${c}`), CAUTION_FOOTNOTE] : []),
+          ...(cautions.length ? ['', ...cautions.map((c) => `- ${c}`), CAUTION_NOTE] : []),
         ].join('\n'),
       });
     }

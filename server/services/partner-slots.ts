@@ -2,7 +2,7 @@ import type { Knex } from 'knex';
 import type { PartnerSlot } from '../../shared/schemas/answers.ts';
 import { Booking, Resource } from '../models/index.ts';
 import { NotFoundError, UnprocessableError } from '../errors.ts';
-import { cautionsFor } from '../mail/cautions.ts';
+import { cautionsFor } from '../../shared/cautions.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { latestAnswers } from './answer-views.ts';

@@ -72,7 +72,7 @@ describe('cautions', () => {
     expect(cautionsFor('excavation').join(' ')).toMatch(/collapse/);
     expect(cautionsFor('excavation').join(' ')).toMatch(/buried services/);
     expect(cautionsFor('electrical_connect').join(' ')).toMatch(/RCD/);
-    expect(cautionsFor('commission').join(' ')).toMatch(/[Ss]anitiser/);
+    expect(cautionsFor('handover').join(' ')).toMatch(/[Ss]anitiser/);
     expect(cautionsFor('placement').join(' ')).toMatch(/[Ff]ingers/);
     expect(cautionsFor('something_new')).toEqual([CAUTION_NOTE]);
     expect(CAUTION_NOTE).toBe('Follow local codes and licensed practice.');
