@@ -106,10 +106,10 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
   const routes = new RouteTable();
   authRoutes(routes, auth, limits.signIn);
   apiRoutes(routes, { knex, health, stream, now, limits: bookingLimitsOf(config), fullcalendarLicenseKey: config.FULLCALENDAR_LICENSE_KEY });
-  const jobWork = jobWorkRoutes(routes, { knex, config });
+  const jobWork = jobWorkRoutes(routes, { knex, config, now });
   partnerRoutes(routes, { knex, config, now });
   answerRoutes(routes, { knex, config, now });
-  reportRoutes(routes, { knex, now });
+  reportRoutes(routes, { knex, now, publicUrl: config.PUBLIC_URL, extraWorkingMinutes: bookingLimitsOf(config).extraWorkingMinutes });
   routes.mount(app.router);
 
   app.use('/api', notFoundHandler);

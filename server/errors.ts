@@ -90,6 +90,8 @@ export const CONSTRAINT_REFUSALS: Record<string, PlainRefusal> = {
   surveys_access_positive: { detail: 'The access width and height must be more than 0.', field: 'survey.accessWidthMm', message: 'must be more than 0' },
   surveys_counts: { detail: 'Steps and gates cannot be negative.', field: 'survey.steps', message: 'cannot be negative' },
   surveys_fuse_positive: { detail: 'The main fuse must be more than 0 A.', field: 'survey.mainFuseAmps', message: 'must be more than 0' },
+  surveys_large_loads_positive: { detail: 'A large load on the supply must be more than 0 A; leave it empty when there is none.' },
+  surveys_hose_flow_positive: { detail: 'The hose flow must be more than 0 litres a minute.', field: 'survey.hoseFlowLitresPerMinute', message: 'must be more than 0' },
   stages_duration_positive: { detail: 'A stage must take some time.' },
   job_files_size_positive: { detail: 'The file has no content.', field: 'file', message: 'is empty' },
   partnerships_distinct: { detail: 'A firm cannot be its own partner.' },

@@ -13,6 +13,8 @@ export interface BoardJob extends Job {
   reference: string;
   customerName: string;
   siteTown: string;
+  /** The site's postcode: the board's search finds a job by it. */
+  sitePostcode?: string;
   status: string;
   installationType: string;
 }
@@ -33,6 +35,8 @@ export interface BoardBooking extends Booking {
   overdue?: boolean;
   /** The partner proposed another time, waiting for the scheduler to accept or refuse it. */
   proposal?: { start: number; end: number } | null;
+  /** A declined booking: when the partner said no, and whether from the e-mailed link or their pages. */
+  declined?: { at: number; via: 'link' | 'app' } | null;
 }
 
 /**

@@ -8,7 +8,7 @@ import { describeWindow, loadBookingFacts, type BookingFacts } from './facts.ts'
 import { renderMail, type MailContent } from './layout.ts';
 
 /** What the outbox can send; each row's payload carries ids only. */
-export const OUTBOX_KINDS = ['booking_request', 'booking_update', 'booking_reminder', 'booking_cancel', 'proposal_refused', 'customer_notice', 'invitation'] as const;
+export const OUTBOX_KINDS = ['booking_request', 'booking_update', 'booking_reminder', 'booking_cancel', 'proposal_refused', 'customer_notice', 'invitation', 'booking_declined'] as const;
 export type OutboxKind = (typeof OUTBOX_KINDS)[number];
 
 export interface OutboxPayload {
@@ -47,6 +47,7 @@ export async function composeMessage(deps: ComposeDeps, kind: OutboxKind, payloa
   if (!facts) return { skip: 'the booking no longer exists' };
   if (kind === 'customer_notice') return composeCustomerNotice(deps, facts, payload);
   if (kind === 'booking_cancel') return composeCancel(deps, facts, payload.version ?? facts.booking.version);
+  if (kind === 'booking_declined') return composeDeclined(deps, facts, payload);
   // A request, update or reminder for a version that has since changed would carry dead links.
   if (payload.version !== facts.booking.version) return { skip: `superseded by version ${facts.booking.version}` };
   if (kind === 'booking_reminder' && facts.booking.state !== 'sent') return { skip: `already answered (${facts.booking.state})` };
@@ -117,6 +118,45 @@ async function composeCancel(deps: ComposeDeps, f: BookingFacts, version: number
   const { html, text } = renderMail(content);
   const ics = bookingInvite(f, version, { method: 'cancel', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), description: text, now: deps.now ?? new Date() });
   return { to: f.recipients, subject: `Booking cancelled: ${f.stage.name}, ${f.job.siteTown}, ${shortDate(f.booking.startsAt, f.installer.timeZone)}`, html, text, ics: { method: 'CANCEL', content: ics } };
+}
+
+/**
+ * The installer's schedulers hear that a partner declined a slot: the booking stays on their board
+ * marked declined until someone books the stage again. Goes to the firm's schedulers (its owners
+ * when it has none); not sent once the booking has been rebooked or sent again.
+ */
+async function composeDeclined(deps: ComposeDeps, f: BookingFacts, payload: OutboxPayload): Promise<OutgoingMail | SkippedMail> {
+  if (f.booking.state !== 'declined' || (payload.version !== undefined && payload.version !== f.booking.version)) {
+    return { skip: `already dealt with (the booking is ${f.booking.state}, version ${f.booking.version})` };
+  }
+  const people = (role: string): Promise<string[]> => deps.knex('memberships as m').join('users as u', 'u.id', 'm.user_id')
+    .where({ 'm.firm_id': f.installer.id, 'm.role': role }).orderBy('u.email').pluck('u.email');
+  const schedulers = await people('scheduler');
+  const to = [...new Set((schedulers.length ? schedulers : await people('owner')).map((e) => e.toLowerCase()))];
+  if (to.length === 0) return { skip: `${f.installer.name} has no scheduler or owner to tell` };
+  const answer = await deps.knex('booking_answers').where({ booking_id: f.booking.id, action: 'decline' })
+    .orderBy('created_at', 'desc').orderBy('id', 'desc').first('via', 'created_at');
+  const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
+  const day = new Intl.DateTimeFormat('en-CA', { timeZone: f.installer.timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(f.booking.startsAt);
+  const board = `${deps.config.PUBLIC_URL}/board?date=${day}&job=${encodeURIComponent(f.job.id)}`;
+  const answered = answer ? [`Declined ${answer.via === 'link' ? 'from the e-mailed request' : 'on their Waterline page'} on ${describeWindow(answer.createdAt, answer.createdAt, f.installer.timeZone).date}.`] : [];
+  const content: MailContent = {
+    preview: `${f.partner.name} can't do ${f.stage.name} for job ${f.job.reference} on ${when.date}.`,
+    title: `${f.partner.name} declined ${f.stage.name} for job ${f.job.reference}`,
+    intro: [`${f.partner.name} can't do the slot below with ${f.resource.name}.`, 'The booking stays on the board marked declined until the stage is booked again.'],
+    sections: [
+      { heading: 'Declined slot', lines: [when.date, `${when.window} (${when.zone})`, ...answered] },
+      { heading: 'Work', lines: [`${f.stage.name} for job ${f.job.reference}`, `${f.job.siteAddress}, ${f.job.siteTown}`, `Asked of: ${f.resource.name} (${f.partner.name})`] },
+      { heading: 'What now', lines: [
+        'Drop the stage again on the board: at another time, or on another resource of the same kind.',
+        `Or send ${f.partner.name} the request again, if they may manage it after all.`,
+      ] },
+    ],
+    buttons: [{ label: 'Open the board at that day', href: board }],
+    footer: [`Sent by Waterline to ${f.installer.name}'s schedulers.`],
+  };
+  const { html, text } = renderMail(content);
+  return { to, subject: `Declined: ${f.stage.name}, ${f.job.reference}, ${shortDate(f.booking.startsAt, f.installer.timeZone)}`, html, text };
 }
 
 /** The householder's checklist before a delivery or lift day. */

@@ -173,6 +173,7 @@ export class Stage extends ScopedModel {
   durationMinutes!: number;
   requirements!: { kind: string; count: number }[];
   cure!: { targetFraction: number; dailyMeanTempsC?: number[] } | null;
+  mayContinueNextDay!: boolean;
   notes!: string | null;
   static override scope(q: AnyQuery, actor: Actor) {
     q.whereIn('stages.job_id', visibleJobIds(knexOf(q), actor));

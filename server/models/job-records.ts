@@ -3,6 +3,7 @@ import { reachOf, type Actor } from '../services/actor.ts';
 import { ScopedModel, visibleJobIds, type AnyQuery } from './base.ts';
 import type { InstallTemplate } from '../../shared/templates/types.ts';
 import type { QuantitySettingsPatch } from '../../shared/schemas/firm-settings.ts';
+import type { EarthingArrangement } from '../../shared/quantities/supply.ts';
 
 const knexOf = (q: AnyQuery): Knex => q.modelClass().knex();
 
@@ -26,6 +27,13 @@ export class Survey extends ScopedModel {
   drainage!: string | null;
   craneRequired!: boolean | null;
   excavatorSize!: '1.5t' | '3t' | '5t' | null;
+  evChargerAmps!: number | null;
+  electricShowerAmps!: number | null;
+  heatPumpAmps!: number | null;
+  otherLargeLoadAmps!: number | null;
+  otherLargeLoadNotes!: string | null;
+  earthingArrangement!: EarthingArrangement | null;
+  hoseFlowLitresPerMinute!: number | null;
   notes!: string | null;
   surveyedBy!: string | null;
   surveyedAt!: Date;

@@ -3,12 +3,14 @@ import type { RouteTable } from './table.ts';
 import { parse } from '../middleware/validate.ts';
 import { IdParams } from '../../shared/schemas/common.ts';
 import { CreateJob, JobQuery } from '../../shared/schemas/jobs.ts';
-import { BookingRange, CreateBooking, CreateBookings, MarkProgress, MoveStage, RemoveBooking, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import { BookingRange, CompletionQuery, CreateBooking, CreateBookings, MarkProgress, MoveStage, RemoveBooking, UpdateBooking } from '../../shared/schemas/bookings.ts';
 import { SwitchFirm } from '../../shared/schemas/session.ts';
 import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
 import { BookingsService } from '../services/bookings.ts';
 import type { BookingLimits } from '../services/booking-writes.ts';
+import { CompletionService } from '../services/completion.ts';
+import { UndoService, type UndoContext, type UndoVerb } from '../services/undo.ts';
 import { actorFor, sessionInfo } from '../services/session.ts';
 import { loadBoard } from '../services/board.ts';
 import type { BoardStream } from '../services/board-stream.ts';
@@ -22,6 +24,10 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
   const jobs = new JobsService(knex);
   const directory = new DirectoryService();
   const bookings = new BookingsService(knex, now, limits);
+  const completion = new CompletionService(knex, now);
+  const undo = new UndoService(knex, now, limits);
+  // A board change goes on the undo stack of the session it was made in.
+  const undoable = (req: { sessionID: string }, verb: UndoVerb): UndoContext => ({ sessionId: req.sessionID, verb });
 
   table
     .get('/api/health', 'public', async (_req, res) => {
@@ -74,21 +80,21 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
       res.json({ items: await bookings.list(req.actor!, from, to) });
     })
     .post('/api/bookings', 'bookings:write', async (req, res) => {
-      res.status(201).json(await bookings.create(req.actor!, parse(CreateBooking, req.body)));
+      res.status(201).json(await bookings.create(req.actor!, parse(CreateBooking, req.body), undoable(req, 'book')));
     })
     .get('/api/bookings/:id', 'bookings:read', async (req, res) => {
       res.json(await bookings.get(req.actor!, parse(IdParams, req.params, 'params').id));
     })
     .post('/api/bookings/batch', 'bookings:write', async (req, res) => {
-      res.status(201).json(await bookings.createMany(req.actor!, parse(CreateBookings, req.body).bookings));
+      res.status(201).json(await bookings.createMany(req.actor!, parse(CreateBookings, req.body).bookings, undoable(req, 'book')));
     })
     .patch('/api/bookings/:id', 'bookings:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
-      res.json(await bookings.update(req.actor!, id, parse(UpdateBooking, req.body)));
+      res.json(await bookings.update(req.actor!, id, parse(UpdateBooking, req.body), undoable(req, 'change')));
     })
     .delete('/api/bookings/:id', 'bookings:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
-      await bookings.remove(req.actor!, id, parse(RemoveBooking, req.query, 'query').version);
+      await bookings.remove(req.actor!, id, parse(RemoveBooking, req.query, 'query').version, undoable(req, 'take off'));
       res.status(204).end();
     })
     .post('/api/bookings/:id/progress', 'bookings:progress', async (req, res) => {
@@ -97,6 +103,17 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     })
     .post('/api/stages/:id/move', 'bookings:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
-      res.json(await bookings.moveStage(req.actor!, id, parse(MoveStage, req.body)));
+      res.json(await bookings.moveStage(req.actor!, id, parse(MoveStage, req.body), undoable(req, 'move')));
+    })
+    .get('/api/stages/:id/completion', 'bookings:write', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await completion.complete(req.actor!, id, parse(CompletionQuery, req.query, 'query')));
+    })
+    .get('/api/undo', 'bookings:write', async (req, res) => {
+      res.json({ items: await undo.list(req.actor!, req.sessionID) });
+    })
+    .post('/api/undo', 'bookings:write', async (req, res) => {
+      const { undone, outcome } = await undo.undo(req.actor!, req.sessionID);
+      res.json({ undone, ...await bookings.saved(req.actor!, outcome), remaining: await undo.list(req.actor!, req.sessionID) });
     });
 }

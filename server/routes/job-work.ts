@@ -10,7 +10,8 @@ import { PutSurvey } from '../../shared/schemas/surveys.ts';
 import { InstallationTypeParams, PutTemplate } from '../../shared/schemas/templates.ts';
 import { PutFirmSettings } from '../../shared/schemas/firm-settings.ts';
 import { DaySheetQuery } from '../../shared/schemas/day-sheets.ts';
-import { BookingRange } from '../../shared/schemas/bookings.ts';
+import { MyWorkQuery } from '../../shared/schemas/my-work.ts';
+import { NextReferenceQuery } from '../../shared/schemas/jobs.ts';
 import { MAX_FILE_BYTES } from '../../shared/schemas/files.ts';
 import { BadRequestError, HttpError } from '../errors.ts';
 import { TemplatesService } from '../services/templates.ts';
@@ -19,9 +20,10 @@ import { PlansService } from '../services/plans.ts';
 import { JobEditsService } from '../services/job-edits.ts';
 import { FilesService } from '../services/files.ts';
 import { DaySheetsService } from '../services/day-sheets.ts';
+import { JobsService } from '../services/jobs.ts';
 import { S3ObjectStore, type ObjectStore } from '../storage/object-store.ts';
 
-export interface JobWorkDeps { knex: Knex; config: Config; store?: ObjectStore }
+export interface JobWorkDeps { knex: Knex; config: Config; store?: ObjectStore; now?: () => number }
 
 // One file, in memory (10 MB at most), parsed only after the route's access rule has let the caller in.
 const receiveOne = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_FILE_BYTES, files: 1, fields: 5, parts: 6 },
@@ -43,17 +45,22 @@ function receiveFile(req: Request, res: Response): Promise<void> {
  * Surveys, quantities, templates, planning, job edits, files and day sheets. Returns a handle that
  * releases the storage client when the app closes.
  */
-export function jobWorkRoutes(table: RouteTable, { knex, config, store: given }: JobWorkDeps): { close(): void } {
+export function jobWorkRoutes(table: RouteTable, { knex, config, store: given, now = Date.now }: JobWorkDeps): { close(): void } {
   const store = given ?? new S3ObjectStore(config);
   const templates = new TemplatesService(knex);
   const surveys = new SurveysService(knex, templates);
   const plans = new PlansService(knex, templates);
   const edits = new JobEditsService(knex);
   const files = new FilesService(knex, store);
-  const daySheets = new DaySheetsService(knex);
+  const daySheets = new DaySheetsService(knex, now);
+  const jobs = new JobsService(knex);
   const id = (req: Request) => parse(IdParams, req.params, 'params').id;
 
   table
+    // The reference a new job would get: the firm's highest of the prefix + 1 (the form still lets it be changed).
+    .get('/api/job-references/next', 'jobs:write', async (req, res) => {
+      res.json(await jobs.nextReference(req.actor!, parse(NextReferenceQuery, req.query, 'query').prefix));
+    })
     .patch('/api/jobs/:id', 'jobs:write', async (req, res) => {
       res.json(await edits.update(req.actor!, id(req), parse(UpdateJob, req.body)));
     })
@@ -109,8 +116,7 @@ export function jobWorkRoutes(table: RouteTable, { knex, config, store: given }:
       res.json(await daySheets.forDate(req.actor!, date));
     })
     .get('/api/my-work', 'my-work:read', async (req, res) => {
-      const { from, to } = parse(BookingRange, req.query, 'query');
-      res.json(await daySheets.myWork(req.actor!, new Date(from), new Date(to)));
+      res.json(await daySheets.myWork(req.actor!, parse(MyWorkQuery, req.query, 'query')));
     });
 
   return { close: () => store.close() };

@@ -7,24 +7,26 @@ import { ReportQuery } from '../../shared/schemas/reports.ts';
 import { CreateHirePeriod, UpdateHirePeriod } from '../../shared/schemas/hire.ts';
 import { ReportsService, type ReportSpan } from '../services/reports.ts';
 import { HirePeriodsService } from '../services/hire-periods.ts';
+import { UTF8_BOM } from '../../shared/reports/csv.ts';
 
-export interface ReportRouteDeps { knex: Knex; now?: () => number }
+export interface ReportRouteDeps { knex: Knex; now?: () => number; publicUrl?: string; extraWorkingMinutes?: number }
 
 const spanOf = (query: unknown): ReportSpan => {
   const { from, to } = parse(ReportQuery, query, 'query');
   return { from: Date.parse(from), to: Date.parse(to) };
 };
 
+/** A CSV download: UTF-8 with its byte order mark, so spreadsheets read "£" and names right. */
 function sendCsv(res: Response, name: string, span: ReportSpan, body: string): void {
   const day = (t: number) => new Date(t).toISOString().slice(0, 10);
   res.type('text/csv; charset=utf-8')
     .set('Content-Disposition', `attachment; filename="waterline-${name}-${day(span.from)}-to-${day(span.to)}.csv"`)
-    .send(body);
+    .send(Buffer.from(UTF8_BOM + body, 'utf8'));
 }
 
 /** The manager's reports (and their CSV) and the hire periods the manager records and approves. */
-export function reportRoutes(table: RouteTable, { knex, now = Date.now }: ReportRouteDeps): void {
-  const reports = new ReportsService(knex, now);
+export function reportRoutes(table: RouteTable, { knex, now = Date.now, publicUrl, extraWorkingMinutes }: ReportRouteDeps): void {
+  const reports = new ReportsService(knex, now, publicUrl, extraWorkingMinutes);
   const hires = new HirePeriodsService(knex);
 
   table
@@ -48,6 +50,10 @@ export function reportRoutes(table: RouteTable, { knex, now = Date.now }: Report
     .get('/api/reports/utilisation.csv', 'reports:read', async (req, res) => {
       const span = spanOf(req.query);
       sendCsv(res, 'utilisation', span, await reports.utilisationCsv(req.actor!, span));
+    })
+    .get('/api/reports/utilisation-summary.csv', 'reports:read', async (req, res) => {
+      const span = spanOf(req.query);
+      sendCsv(res, 'utilisation-summary', span, await reports.utilisationSummaryCsv(req.actor!, span));
     })
     .get('/api/reports/risks.csv', 'reports:read', async (req, res) => {
       const span = spanOf(req.query);

@@ -61,7 +61,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     }
   });
   // The jobs in play are found once; the rest is fetched by those ids as one array parameter.
-  const jobsPromise = rows<Job>(jobIdQuery.select('jobs.id', 'jobs.firm_id', 'jobs.reference', 'jobs.customer_name', 'jobs.site_town', 'jobs.status', 'jobs.installation_type', 'jobs.promised_to', 'jobs.ordered_on'));
+  const jobsPromise = rows<Job>(jobIdQuery.select('jobs.id', 'jobs.firm_id', 'jobs.reference', 'jobs.customer_name', 'jobs.site_town', 'jobs.site_postcode', 'jobs.status', 'jobs.installation_type', 'jobs.promised_to', 'jobs.ordered_on'));
   const byJobs = async <T>(build: (jobIds: string[]) => { toKnexQuery(): Knex.QueryBuilder }) => rows<T>(build((await jobsPromise).map((j) => j.id)));
   const stagesOf = (jobIds: string[]) => knex.raw('SELECT id FROM stages WHERE job_id = ANY(?::bigint[])', [jobIds]);
 
@@ -74,7 +74,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     rows<CalendarException>(scoped(CalendarException, actor, trx).where('ends_at', '>', new Date(query.from - 30 * 86_400_000)).where('starts_at', '<', new Date(query.to + 60 * 86_400_000))),
     jobsPromise,
     byJobs<Stage>((ids) => scoped(Stage, actor, trx).whereRaw('stages.job_id = ANY(?::bigint[])', [ids])
-      .select('stages.id', 'stages.job_id', 'stages.kind', 'stages.name', 'stages.sequence', 'stages.duration_minutes', 'stages.requirements', 'stages.cure').orderBy(['stages.job_id', 'stages.sequence'])),
+      .select('stages.id', 'stages.job_id', 'stages.kind', 'stages.name', 'stages.sequence', 'stages.duration_minutes', 'stages.requirements', 'stages.cure', 'stages.may_continue_next_day').orderBy(['stages.job_id', 'stages.sequence'])),
     byJobs<DependencyModel>((ids) => scoped(DependencyModel, actor, trx).whereIn('dependencies.to_stage_id', stagesOf(ids) as never)
       .select('dependencies.id', 'dependencies.from_stage_id', 'dependencies.to_stage_id', 'dependencies.type', 'dependencies.lag_amount', 'dependencies.lag_unit')),
     byJobs<Booking & { startMs: number; endMs: number }>((ids) => scoped(Booking, actor, trx).where((w) => w.whereIn('bookings.stage_id', stagesOf(ids) as never)
@@ -133,8 +133,8 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     id: b.id, stageId: b.stageId, resourceId: b.resourceId, start: b.startMs, end: b.endMs,
     state: b.state, version: b.version, installerFirmId: jobById.get(stageById.get(b.stageId)!.jobId)!.firmId,
   }));
-  // Partners' answers: requests gone unanswered too long, and times they proposed instead.
-  const asked = bookings.filter((b) => b.state === 'sent');
+  // Partners' answers: requests gone unanswered too long, times they proposed instead, and declines.
+  const asked = bookings.filter((b) => b.state === 'sent' || b.state === 'declined');
   if (asked.length) {
     const answered = await withAnswers(knex, asked.map((b) => ({ id: b.id, version: b.version ?? 1, state: b.state })));
     const byId = new Map(answered.map((a) => [a.id, a]));
@@ -143,15 +143,16 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
       b.overdue = a?.overdue ?? false;
       b.proposal = a?.answer?.action === 'propose' && a.answer.proposalStatus === 'open' && a.answer.proposedStart && a.answer.proposedEnd
         ? { start: Date.parse(a.answer.proposedStart), end: Date.parse(a.answer.proposedEnd) } : null;
+      if (b.state === 'declined') b.declined = a?.answer?.action === 'decline' ? { at: Date.parse(a.answer.at), via: a.answer.via } : null;
     }
   }
   const boardStages: BoardStage[] = stages.map((s) => ({
     id: s.id, jobId: s.jobId, kind: s.kind, name: s.name, durationMinutes: s.durationMinutes,
-    requirements: s.requirements, cure: s.cure, sequence: s.sequence,
+    requirements: s.requirements, cure: s.cure, sequence: s.sequence, mayContinueNextDay: s.mayContinueNextDay,
   }));
   const boardJobs: BoardJob[] = jobs.map((j) => ({
     id: j.id, firmId: j.firmId, reference: j.reference, customerName: boardCustomerName(actor, j.customerName),
-    siteTown: j.siteTown, status: j.status, installationType: j.installationType,
+    siteTown: j.siteTown, sitePostcode: j.sitePostcode, status: j.status, installationType: j.installationType,
     promisedBy: j.promisedTo ? Date.parse(`${j.promisedTo}T17:00:00Z`) : null,
     orderedAt: j.orderedOn ? Date.parse(`${j.orderedOn}T09:00:00Z`) : null,
   }));

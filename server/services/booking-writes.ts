@@ -314,6 +314,10 @@ export class BookingWork {
       case 'assign':
         if (after.state === 'sent') await queueBookingMessage(this.trx, { bookingId: id, kind: 'update', version: after.version });
         break;
+      case 'decline':
+        // The installer's schedulers hear of it at once: a declined slot is work for them (book it again).
+        await enqueueMessage(this.trx, `booking.${id}.v${after.version}.declined`, 'booking_declined', { bookingId: id, version: after.version });
+        break;
       case 'move': case 'take-proposal': case 'rebook':
         if (wasOut && newResource) {
           await queueBookingMessage(this.trx, { bookingId: id, kind: 'cancel', version: after.version, resourceId: String(before.resourceId) });

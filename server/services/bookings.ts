@@ -1,16 +1,21 @@
 import type { Knex } from 'knex';
-import type { BookingState, BookingView, CreateBooking, MarkProgress, MoveStage, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import type { BookingState, BookingView, CreateBooking, MarkProgress, MoveStage, PartnerBookingNote, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import { dependentChoiceOf } from '../../shared/schemas/bookings.ts';
+import { plural } from '../../shared/plural.ts';
+import { progressActionOf } from '../../shared/schemas/bookings.ts';
 import { createBoardIndex, type Violation } from '../../shared/scheduler/index.ts';
 import { bookingsOfStage, shiftDependents } from '../../shared/board-actions.ts';
 import { toEngineBoard } from '../../shared/board-data.ts';
+import type { BoardData } from '../../shared/board-data.ts';
 import type { ResourceSide } from '../../shared/booking-states.ts';
 import { Booking, Stage } from '../models/index.ts';
-import { BadRequestError, HttpError, NotFoundError } from '../errors.ts';
+import { BadRequestError, ConflictError, HttpError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { loadBoard } from './board.ts';
 import { withAnswers, type BookingWithAnswer } from './answer-views.ts';
 import { BookingWriter, TransitionRefusedError, partyOf, type BookingChange, type BookingLimits, type WriteOutcome } from './booking-writes.ts';
+import { recordUndo, type UndoContext } from './undo.ts';
 
 const VIEW_COLUMNS = ['bookings.*', 'stages.name as stageName', 'stages.kind as stageKind', 'stages.job_id as jobId',
   'jobs.reference as jobReference', 'jobs.site_town as siteTown'];
@@ -27,6 +32,24 @@ function toView(b: BookingRow): BookingView {
 
 /** What a write returns: the saved bookings and the engine's warnings about them. */
 export interface WriteResult { bookings: BookingView[]; warnings: Violation[] }
+
+/** A stage move also says which partner firms' sent or confirmed bookings it moved (each is asked again). */
+export interface MoveResult extends WriteResult { reasked: PartnerBookingNote[] }
+
+const PARTNER_HELD: readonly BookingState[] = ['sent', 'confirmed'];
+
+/** A partner firm's sent or confirmed booking on the board, named for the scheduler; null for any other booking. */
+function partnerNote(data: BoardData, bookingId: string): PartnerBookingNote | null {
+  const b = data.bookings.find((x) => x.id === bookingId);
+  const resource = b && data.resources.find((r) => r.id === b.resourceId);
+  if (!b || !resource || resource.ownership !== 'partner' || !PARTNER_HELD.includes(b.state)) return null;
+  const stage = data.stages.find((s) => s.id === b.stageId);
+  const job = data.jobs.find((j) => j.id === stage?.jobId);
+  return {
+    bookingId: b.id, stageName: stage?.name ?? 'a stage', jobReference: job?.reference ?? '', resourceName: resource.name,
+    firmName: resource.firmName, state: b.state, startsAt: new Date(b.start).toISOString(),
+  };
+}
 
 const DAY = 86_400_000;
 
@@ -56,21 +79,23 @@ export class BookingsService {
   }
 
   /** The bookings a write kept, as the actor sees them, with the engine's warnings. */
-  private async saved(actor: Actor, outcome: WriteOutcome<unknown>): Promise<WriteResult> {
+  async saved(actor: Actor, outcome: WriteOutcome<unknown>): Promise<WriteResult> {
     const ids = outcome.written.filter((w) => w.after).map((w) => String(w.after!.id));
     const rows = ids.length ? await this.view(actor).whereIn('bookings.id', [...new Set(ids)]).orderBy('bookings.id') as BookingRow[] : [];
     return { bookings: rows.map(toView), warnings: outcome.warnings };
   }
 
   /** Books a stage on a resource (a drop from the tray); the engine checks it before it is kept. */
-  async create(actor: Actor, input: CreateBooking): Promise<WriteResult> {
-    const outcome = await this.writer.run({ actor, party: partyOf(actor) }, { stageIds: [input.stageId], resourceIds: [input.resourceId] },
-      (w) => w.apply(bookChange(input)));
+  async create(actor: Actor, input: CreateBooking, undo?: UndoContext): Promise<WriteResult> {
+    const outcome = await this.writer.run({ actor, party: partyOf(actor) }, { stageIds: [input.stageId], resourceIds: [input.resourceId] }, async (w) => {
+      await w.apply(bookChange(input));
+      if (undo) await recordUndo(w.trx, actor, undo, w.written);
+    });
     return this.saved(actor, outcome);
   }
 
   /** Several bookings in one go (an auto-place preview being applied): all are kept or none; a refusal names the item. */
-  async createMany(actor: Actor, inputs: CreateBooking[]): Promise<WriteResult> {
+  async createMany(actor: Actor, inputs: CreateBooking[], undo?: UndoContext): Promise<WriteResult> {
     const outcome = await this.writer.run({ actor, party: partyOf(actor) },
       { stageIds: inputs.map((i) => i.stageId), resourceIds: inputs.map((i) => i.resourceId) }, async (w) => {
         for (const [n, input] of inputs.entries()) {
@@ -80,6 +105,7 @@ export class BookingsService {
             throw inItem(error, n);
           }
         }
+        if (undo) await recordUndo(w.trx, actor, undo, w.written);
       });
     return this.saved(actor, outcome);
   }
@@ -89,7 +115,7 @@ export class BookingsService {
    * its confirmation. Sending, answering and progress have their own actions; a state this route
    * cannot set is refused by the state machine (409). A change based on an old version is refused.
    */
-  async update(actor: Actor, id: string, input: UpdateBooking): Promise<WriteResult> {
+  async update(actor: Actor, id: string, input: UpdateBooking, undo?: UndoContext): Promise<WriteResult> {
     const outcome = await this.writer.run({ actor, party: partyOf(actor) }, { bookingIds: [id], resourceIds: input.resourceId ? [input.resourceId] : [] }, async (w) => {
       const before = await w.booking(id, input.version);
       const startsAt = Date.parse(input.startsAt);
@@ -100,15 +126,21 @@ export class BookingsService {
       if (input.state && input.state !== current.state) {
         await w.apply({ action: patchAction(current.state, input.state, await w.sideOfBooking(current)), bookingId: id });
       }
+      if (undo) await recordUndo(w.trx, actor, undo, w.written);
     });
     return this.saved(actor, outcome);
   }
 
   /**
    * A drag on the board: every booking of the stage moves together (one may change resource), and
-   * with `moveDependents` the booked stages after it move by the same working time.
+   * the booked stages after it move by the same working time as `dependents` says: none ("only
+   * this"), those starting within the next `withinDays` days of the stage, or all. A partner firm's
+   * sent or confirmed booking among those stages moves only when the scheduler named it in
+   * `askAgain` (its partner is asked again); otherwise the move is refused (409) listing them, so
+   * none is moved silently. The result lists every partner booking the move asks again.
    */
-  async moveStage(actor: Actor, stageId: string, input: MoveStage): Promise<WriteResult> {
+  async moveStage(actor: Actor, stageId: string, input: MoveStage, undo?: UndoContext): Promise<MoveResult> {
+    let reasked: PartnerBookingNote[] = [];
     const outcome = await this.writer.run({ actor, party: partyOf(actor) }, { stageIds: [stageId], resourceIds: input.resourceId ? [input.resourceId] : [] }, async (w) => {
       const stage = await findVisible(Stage, actor, stageId, w.trx, 'stage');
       const current = await scoped(Booking, actor, w.trx).where('stage_id', stageId).whereNot('state', 'declined').orderBy('id');
@@ -119,7 +151,22 @@ export class BookingsService {
       const data = await loadBoard(w.trx, actor, { from: Math.min(start, spanStart) - 7 * DAY, to: start + 60 * DAY, jobIds: [stage.jobId], now: this.now() });
       const index = createBoardIndex(toEngineBoard(data), { now: this.now() });
       const shifts = [{ stageId, bookings: bookingsOfStage(index, stageId) }];
-      if (input.moveDependents) shifts.push(...shiftDependents(index, stageId, start));
+      const choice = dependentChoiceOf(input);
+      if (choice !== 'none') {
+        // "Within the next N days": the stages after it that now start before the stage's start plus N days.
+        const limit = choice === 'within' ? spanStart + (input.withinDays ?? 0) * DAY : Number.POSITIVE_INFINITY;
+        shifts.push(...shiftDependents(index, stageId, start).filter((s) => Math.min(...bookingsOfStage(index, s.stageId).map((b) => b.start)) < limit));
+      }
+      const originalOf = new Map(data.bookings.map((b) => [b.id, b]));
+      const movesAt = (planned: { id: string; start: number; end: number }) => originalOf.get(planned.id)?.start !== planned.start || originalOf.get(planned.id)?.end !== planned.end;
+      const dependentNotes = shifts.slice(1).flatMap((s) => s.bookings.filter(movesAt).map((b) => partnerNote(data, b.id)))
+        .filter((n): n is PartnerBookingNote => n !== null);
+      const unasked = dependentNotes.filter((n) => !input.askAgain.includes(n.bookingId));
+      if (unasked.length) {
+        const names = unasked.map((n) => `'${n.stageName}' on ${n.jobReference} (${n.resourceName}, ${n.firmName}, ${n.state})`).join('; ');
+        throw new ConflictError(`Moving the stages after it would ask ${plural(unasked.length, 'partner booking')} again: ${names}. Choose to ask again, or move fewer stages.`,
+          { code: 'asks-partners-again', bookings: unasked });
+      }
       for (const shift of shifts) {
         const own = shift.stageId === stageId;
         for (const planned of shift.bookings) {
@@ -130,20 +177,27 @@ export class BookingsService {
           await w.apply({ action: 'move', bookingId: String(planned.id), version: input.versions[String(planned.id)], startsAt, endsAt, resourceId });
         }
       }
+      const moved = new Set(w.written.filter((x) => x.before && x.after && (x.before.startsAt.getTime() !== x.after.startsAt.getTime()
+        || x.before.endsAt.getTime() !== x.after.endsAt.getTime() || String(x.before.resourceId) !== String(x.after.resourceId))).map((x) => String(x.after!.id)));
+      reasked = [...moved].map((id) => partnerNote(data, id)).filter((n): n is PartnerBookingNote => n !== null);
+      if (undo) await recordUndo(w.trx, actor, undo, w.written);
     });
-    return this.saved(actor, outcome);
+    return { ...await this.saved(actor, outcome), reasked };
   }
 
   /** A crew (or the office) marks a booking on site, then done, or takes either back. */
   async markProgress(actor: Actor, id: string, input: MarkProgress): Promise<BookingView> {
     await this.writer.run({ actor, party: partyOf(actor) }, { bookingIds: [id] },
-      (w) => w.apply({ action: input.state === 'on_site' ? 'arrive' : 'finish', bookingId: id, version: input.version }));
+      (w) => w.apply({ action: progressActionOf(input), bookingId: id, version: input.version }));
     return this.get(actor, id);
   }
 
   /** Takes a booking off the board (the stage goes back to the tray); a partner it was sent to is told. */
-  async remove(actor: Actor, id: string, version: number): Promise<void> {
-    await this.writer.run({ actor, party: partyOf(actor) }, { bookingIds: [id] }, (w) => w.apply({ action: 'unbook', bookingId: id, version }));
+  async remove(actor: Actor, id: string, version: number, undo?: UndoContext): Promise<void> {
+    await this.writer.run({ actor, party: partyOf(actor) }, { bookingIds: [id] }, async (w) => {
+      await w.apply({ action: 'unbook', bookingId: id, version });
+      if (undo) await recordUndo(w.trx, actor, undo, w.written);
+    });
   }
 }
 

@@ -1,7 +1,10 @@
 import type { Knex } from 'knex';
 import { cautionsFor } from '../../shared/cautions.ts';
 import type { DaySheet, DaySheetList } from '../../shared/schemas/day-sheets.ts';
-import type { MyWorkItem, MyWorkList } from '../../shared/schemas/my-work.ts';
+import type { MyWorkItem, MyWorkList, MyWorkQuery } from '../../shared/schemas/my-work.ts';
+import { PROGRESS_ACTIONS, type BookingState, type ProgressAction } from '../../shared/schemas/bookings.ts';
+import { actionsFor } from '../../shared/booking-states.ts';
+import { isoDateOfDay, localDayOf } from '../../shared/scheduler/index.ts';
 import { Booking, Firm } from '../models/index.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
@@ -31,11 +34,25 @@ type Row = Booking & {
   stageKind: string; stageName: string; jobId: string; jobReference: string; installationType: string;
   siteAddress: string; siteTown: string; sitePostcode: string; accessNotes: string | null;
   customerName: string; customerPhone: string | null; officeName: string; officePhone: string | null; unitName: string | null;
-  sharesCustomerContact: boolean | null;
+  sharesCustomerContact: boolean | null; resourceFirmId: string; jobFirmId: string;
 };
 
-/** A visit with the booking's own facts a page needs beside the day sheet's (My work's item). */
-export type Visit = MyWorkItem;
+/** A visit with the booking's own facts a page needs beside the day sheet's. */
+export type Visit = Omit<MyWorkItem, 'day' | 'actions'> & { ownResource: boolean };
+
+const DAY_MS = 86_400_000;
+
+/**
+ * The progress a crew may mark on its own booking now: the state machine's crew actions, and
+ * "arrive" only on a day the booking covers (the writer refuses it on any other day).
+ *
+ * @example
+ * progressActions('confirmed', true, { first: '2026-06-01', last: '2026-06-01' }, '2026-06-01') // ['arrive']
+ */
+export function progressActions(state: string, ownResource: boolean, days: { first: string; last: string }, today: string): ProgressAction[] {
+  const allowed = actionsFor(state as BookingState, { party: 'crew', side: ownResource ? 'own' : 'partner' });
+  return PROGRESS_ACTIONS.filter((a) => allowed.includes(a) && (a !== 'arrive' || (days.first <= today && today <= days.last)));
+}
 
 /**
  * One printable sheet per crew (or person) per day: where they go, when, whom to call, what to
@@ -43,7 +60,7 @@ export type Visit = MyWorkItem;
  * confirmed and on-site slots; which contacts and neighbours each sees is read-policy.ts's call.
  */
 export class DaySheetsService {
-  constructor(private readonly knex: Knex) {}
+  constructor(private readonly knex: Knex, private readonly now: () => number = Date.now) {}
 
   /** The reader's visits overlapping [from, to), in time order (read-policy.ts decides the fields). */
   async visits(actor: Actor, from: Date, to: Date): Promise<Visit[]> {
@@ -60,7 +77,8 @@ export class DaySheetsService {
       .select('bookings.*', 'r.name as resourceName', 'r.kind as resourceKind', 'r.category as resourceCategory', 'r.phone as resourcePhone',
         'rf.name as resourceFirmName', 's.kind as stageKind', 's.name as stageName', 'j.id as jobId', 'j.reference as jobReference',
         'j.installation_type', 'j.site_address', 'j.site_town', 'j.site_postcode', 'j.access_notes', 'j.customer_name', 'j.customer_phone',
-        'jf.name as officeName', 'jf.phone as officePhone', 'u.model as unitName', 'fs.share_customer_contact_with_partners as sharesCustomerContact')
+        'jf.name as officeName', 'jf.phone as officePhone', 'u.model as unitName', 'fs.share_customer_contact_with_partners as sharesCustomerContact',
+        'r.firm_id as resourceFirmId', 'j.firm_id as jobFirmId')
       .orderBy('bookings.starts_at').orderBy('bookings.id') as Row[];
 
     // Who else is on each stage: the crane, the plant, the partner firms (filtered per reader below).
@@ -70,7 +88,7 @@ export class DaySheetsService {
       .select('b.stage_id', 'b.resource_id', 'b.state', 'r.name', 'r.kind', 'r.category', 'r.firm_id', 'f.name as firmName') as (AlongsideRow & { stageId: string })[] : [];
 
     return rows.map((r) => ({
-      bookingId: r.id, version: r.version, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), state: r.state,
+      bookingId: r.id, version: r.version, ownResource: String(r.resourceFirmId) === String(r.jobFirmId), startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), state: r.state,
       resource: { id: r.resourceId, name: r.resourceName, kind: r.resourceKind, category: r.resourceCategory, firmName: r.resourceFirmName },
       stage: { id: r.stageId, kind: r.stageKind, name: r.stageName },
       job: { id: r.jobId, reference: r.jobReference, unitName: r.unitName, installationType: r.installationType },
@@ -87,7 +105,7 @@ export class DaySheetsService {
     const timeZone = firm?.timeZone ?? 'Europe/London';
     const visits = await this.visits(actor, startOfZonedDay(date, timeZone), startOfZonedDay(nextDate(date), timeZone));
     const sheets = new Map<string, DaySheet>();
-    for (const { resource, version: _version, ...visit } of visits) {
+    for (const { resource, version: _version, ownResource: _own, ...visit } of visits) {
       if (resource.category === 'machine') continue;
       const sheet = sheets.get(resource.id) ?? { resource, date, visits: [] };
       sheet.visits.push(visit);
@@ -96,8 +114,25 @@ export class DaySheetsService {
     return { date, timeZone, sheets: [...sheets.values()].sort((a, b) => a.resource.name.localeCompare(b.resource.name)) };
   }
 
-  /** A crew member's own bookings over a range, with what each visit needs (the My work page). */
-  async myWork(actor: Actor, from: Date, to: Date): Promise<MyWorkList> {
-    return { items: await this.visits(actor, from, to) };
+  /**
+   * A crew member's own bookings, with what each visit needs (the My work page): by default from
+   * the start of today in the firm's zone for `days` days, today's first. Each says which progress
+   * may be marked now, by the same rules the server enforces.
+   */
+  async myWork(actor: Actor, query: MyWorkQuery): Promise<MyWorkList> {
+    const firm = await Firm.query(this.knex).findById(actor.firmId);
+    const timeZone = firm?.timeZone ?? 'Europe/London';
+    const today = isoDateOfDay(localDayOf(timeZone, this.now()));
+    const from = query.from ? new Date(query.from) : startOfZonedDay(today, timeZone);
+    const to = query.to ? new Date(query.to) : new Date(from.getTime() + query.days * DAY_MS);
+    const visits = await this.visits(actor, from, to);
+    const dayOf = (iso: string) => isoDateOfDay(localDayOf(timeZone, Date.parse(iso)));
+    return {
+      today, timeZone,
+      items: visits.map(({ ownResource, ...v }) => {
+        const days = { first: dayOf(v.startsAt), last: dayOf(new Date(Date.parse(v.endsAt) - 1).toISOString()) };
+        return { ...v, day: days.first, actions: progressActions(v.state, ownResource, days, today) };
+      }),
+    };
   }
 }

@@ -5,6 +5,7 @@ import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
+import { JobsService } from './jobs.ts';
 
 /** Editing a job's details, guarded by its version. */
 export class JobEditsService {
@@ -18,6 +19,7 @@ export class JobEditsService {
         throw new ConflictError('Someone else changed this job since you loaded it.', { code: 'stale-version', current: before });
       }
       const { version: _version, ...changes } = input;
+      if (changes.reference !== undefined && changes.reference !== before.reference) await new JobsService(this.knex).checkReferenceFree(actor, changes.reference, trx, id);
       if (changes.unitId && !(await scoped(Unit, actor, trx).findById(changes.unitId))) {
         throw new BadRequestError('The unit is not in your catalogue.', [{ field: 'unitId', message: 'is not a unit in your catalogue' }]);
       }

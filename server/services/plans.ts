@@ -9,13 +9,12 @@ import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
 import type { TemplatesService } from './templates.ts';
+import { plural } from '../../shared/plural.ts';
 
 export interface PlanResult extends Plan {
   crane: { needed: boolean; reason: string };
   template: { name: string; isDefault: boolean; version: number };
 }
-
-const plural = (n: number, word: string) => `${n} ${word}${n === 1 ? '' : 's'}`;
 
 /** Turns a job into stages and dependencies from the firm's template for its installation type. */
 export class PlansService {
@@ -59,7 +58,8 @@ export class PlansService {
         ].filter(Boolean).join(' ');
         const row = await Stage.query(trx).insert({
           jobId: job.id, kind: s.kind, name: s.name, sequence: s.sequence, durationMinutes: s.durationMinutes,
-          requirements: JSON.stringify(s.requirements) as never, cure: (s.cure ? JSON.stringify(s.cure) : null) as never, notes: notes || null,
+          requirements: JSON.stringify(s.requirements) as never, cure: (s.cure ? JSON.stringify(s.cure) : null) as never,
+          mayContinueNextDay: s.mayContinueNextDay, notes: notes || null,
         } as Partial<Stage>);
         ids.set(s.kind, row.id);
       }
@@ -82,11 +82,13 @@ export class PlansService {
     const bookings = await scoped(Booking, actor).whereIn('stage_id', ids).join('resources', 'resources.id', 'bookings.resource_id')
       .select('bookings.*', 'resources.name as resourceName', 'resources.kind as resourceKind').orderBy('bookings.starts_at') as (Booking & { resourceName: string; resourceKind: string })[];
     const kindOf = new Map(stages.map((s) => [s.id, s.kind]));
+    // Predecessors by the name their stage actually has (a kind's words can differ from it).
+    const nameOf = new Map(stages.map((s) => [s.id, s.name]));
     return {
       items: stages.map((s) => ({
         id: s.id, kind: s.kind, name: s.name, sequence: s.sequence, durationMinutes: s.durationMinutes,
         requirements: s.requirements, cure: s.cure, notes: s.notes, cautions: cautionsFor(s.kind),
-        after: deps.filter((d) => d.toStageId === s.id).map((d) => ({ stageId: d.fromStageId, kind: kindOf.get(d.fromStageId) ?? null, type: d.type, lagAmount: d.lagAmount, lagUnit: d.lagUnit })),
+        after: deps.filter((d) => d.toStageId === s.id).map((d) => ({ stageId: d.fromStageId, kind: kindOf.get(d.fromStageId) ?? null, name: nameOf.get(d.fromStageId) ?? null, type: d.type, lagAmount: d.lagAmount, lagUnit: d.lagUnit })),
         bookings: bookings.filter((b) => b.stageId === s.id).map((b) => ({
           id: b.id, resourceId: b.resourceId, resourceName: b.resourceName, resourceKind: b.resourceKind,
           startsAt: b.startsAt.toISOString(), endsAt: b.endsAt.toISOString(), state: b.state,

@@ -8,7 +8,7 @@ import { reportContext, type ReportContext } from '../../shared/reports/context.
 import { clashReport } from '../../shared/reports/clashes.ts';
 import { hireReport, type HirePeriodFacts } from '../../shared/reports/hire.ts';
 import { utilisationReport } from '../../shared/reports/utilisation.ts';
-import { poundsCell, toCsv } from '../../shared/reports/csv.ts';
+import { absoluteLink, poundsCell, toCsv } from '../../shared/reports/csv.ts';
 import type { ClashReport, HireReport, UtilisationReport } from '../../shared/reports/types.ts';
 
 export interface ReportSpan { from: number; to: number }
@@ -21,7 +21,13 @@ const percent = (ratio: number) => (ratio * 100).toFixed(1);
  * a shared partner resource arrive anonymous), analysed by the same engine as the board.
  */
 export class ReportsService {
-  constructor(private readonly knex: Knex, private readonly now: () => number) {}
+  /** `publicUrl`: the site's own address (PUBLIC_URL), so CSV links open from a spreadsheet. */
+  constructor(private readonly knex: Knex, private readonly now: () => number, private readonly publicUrl = 'http://127.0.0.1:3000',
+    private readonly extraWorkingMinutes?: number) {}
+
+  private link(relative: string): string {
+    return absoluteLink(relative, this.publicUrl);
+  }
 
   private async context(actor: Actor, span: ReportSpan, load: ReportSpan = span, criticalPath = true): Promise<ReportContext> {
     const [firm, data] = await Promise.all([
@@ -32,7 +38,7 @@ export class ReportsService {
   }
 
   async clashes(actor: Actor, span: ReportSpan): Promise<ClashReport> {
-    return clashReport(await this.context(actor, span));
+    return clashReport(await this.context(actor, span), { extraWorkingMinutes: this.extraWorkingMinutes });
   }
 
   async hire(actor: Actor, span: ReportSpan): Promise<HireReport> {
@@ -69,7 +75,7 @@ export class ReportsService {
       { header: 'What the check says', value: (r) => r.message },
       { header: 'Cost as booked (£)', value: (r) => poundsCell(r.costPence) },
       { header: 'Suggested fixes', value: (r) => r.fixes.map((f) => f.label).join('\n') },
-      { header: 'Board link', value: (r) => r.link },
+      { header: 'Board link', value: (r) => this.link(r.link) },
     ]);
   }
 
@@ -92,24 +98,40 @@ export class ReportsService {
       { header: 'Total cost (£)', value: (r) => poundsCell(r.totalCostPence) },
       { header: 'Bookings outside the hire', value: (r) => r.bookingsOutsideHire },
       { header: 'Suggestions', value: (r) => r.suggestions.map((s) => s.label).join('\n') },
+      { header: 'Board link', value: (r) => this.link(r.link) },
     ]);
   }
 
+  /**
+   * One row per resource and week, nothing else: a spreadsheet can sum, filter and pivot it
+   * without a total row being counted twice. The totals are utilisation-summary.csv.
+   */
   async utilisationCsv(actor: Actor, span: ReportSpan): Promise<string> {
     const report = await this.utilisation(actor, span);
-    const rows = report.resources.flatMap((r) => [
-      { r, week: 'All', available: r.availableMinutes, booked: r.bookedMinutes, ratio: r.ratio },
-      ...r.weeks.map((w) => ({ r, week: w.week, available: w.availableMinutes, booked: w.bookedMinutes, ratio: w.ratio })),
-    ]);
+    const rows = report.resources.flatMap((r) => r.weeks.map((w) => ({ r, w })));
     return toCsv(rows, [
       { header: 'Resource', value: (x) => x.r.resourceName },
       { header: 'Firm', value: (x) => x.r.firmName },
       { header: 'Group', value: (x) => x.r.group },
-      { header: 'Week from', value: (x) => x.week },
-      { header: 'Available hours', value: (x) => hours(x.available) },
-      { header: 'Booked hours', value: (x) => hours(x.booked) },
-      { header: 'Booked %', value: (x) => percent(x.ratio) },
-      { header: 'Busy elsewhere hours', value: (x) => (x.week === 'All' ? hours(x.r.elsewhereMinutes) : '') },
+      { header: 'Week from', value: (x) => x.w.week },
+      { header: 'Available hours', value: (x) => hours(x.w.availableMinutes) },
+      { header: 'Booked hours', value: (x) => hours(x.w.bookedMinutes) },
+      { header: 'Booked %', value: (x) => percent(x.w.ratio) },
+    ]);
+  }
+
+  /** One row per resource over the whole span (its own file: see utilisationCsv), with its board link. */
+  async utilisationSummaryCsv(actor: Actor, span: ReportSpan): Promise<string> {
+    const report = await this.utilisation(actor, span);
+    return toCsv(report.resources, [
+      { header: 'Resource', value: (r) => r.resourceName },
+      { header: 'Firm', value: (r) => r.firmName },
+      { header: 'Group', value: (r) => r.group },
+      { header: 'Available hours', value: (r) => hours(r.availableMinutes) },
+      { header: 'Booked hours', value: (r) => hours(r.bookedMinutes) },
+      { header: 'Booked %', value: (r) => percent(r.ratio) },
+      { header: 'Busy elsewhere hours', value: (r) => hours(r.elsewhereMinutes) },
+      { header: 'Board link', value: (r) => this.link(r.link) },
     ]);
   }
 
@@ -121,9 +143,10 @@ export class ReportsService {
       { header: 'Town', value: (r) => r.siteTown },
       { header: 'Promised by', value: (r) => (r.promisedBy === null ? '' : new Date(r.promisedBy).toISOString().slice(0, 10)) },
       { header: 'Days late', value: (r) => Math.ceil(r.lateByMs / 86_400_000) },
+      { header: 'Status', value: (r) => r.statusLabel },
       { header: 'Float (working hours)', value: (r) => hours(r.floatMinutes) },
       { header: 'Why', value: (r) => r.reasons.map((x) => x.label).join('\n') },
-      { header: 'Board link', value: (r) => r.link },
+      { header: 'Board link', value: (r) => this.link(r.link) },
     ]);
   }
 }

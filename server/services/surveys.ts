@@ -15,13 +15,16 @@ function toView(s: Survey, surveyor: User | undefined): SurveyView {
     overheadObstructions: s.overheadObstructions, overheadNotes: s.overheadNotes, groundType: s.groundType as SurveyView['groundType'],
     buriedServicesNotes: s.buriedServicesNotes, craneStandingPosition: s.craneStandingPosition,
     craneDistanceToSetDownM: s.craneDistanceToSetDownM, consumerUnitDistanceM: s.consumerUnitDistanceM, mainFuseAmps: s.mainFuseAmps,
-    drainage: s.drainage, craneRequired: s.craneRequired, excavatorSize: s.excavatorSize, notes: s.notes,
+    drainage: s.drainage, craneRequired: s.craneRequired, excavatorSize: s.excavatorSize,
+    evChargerAmps: s.evChargerAmps, electricShowerAmps: s.electricShowerAmps, heatPumpAmps: s.heatPumpAmps,
+    otherLargeLoadAmps: s.otherLargeLoadAmps, otherLargeLoadNotes: s.otherLargeLoadNotes, earthingArrangement: s.earthingArrangement,
+    hoseFlowLitresPerMinute: s.hoseFlowLitresPerMinute, notes: s.notes,
     surveyedAt: s.surveyedAt.toISOString(), surveyedBy: surveyor ? { id: surveyor.id, name: surveyor.name } : null, version: s.version,
   };
 }
 
 export interface QuantitiesView {
-  unit: { id: string; model: string; lengthMm: number; widthMm: number; heightMm: number; dryWeightKg: number; filledWeightKg: number; supplies: { amps: number }[] };
+  unit: { id: string; model: string; lengthMm: number; widthMm: number; heightMm: number; dryWeightKg: number; filledWeightKg: number; waterLitres: number; supplies: { amps: number }[] };
   surveyed: boolean;
   quantities: JobQuantities;
 }
@@ -69,12 +72,13 @@ export class SurveysService {
   /** The job's quantities from its unit, its survey (if any) and the firm's settings. */
   async quantities(actor: Actor, jobId: string, trx?: Knex.Transaction): Promise<QuantitiesView> {
     const job = await findVisible(Job, actor, jobId, trx, 'job');
-    const unit = job.unitId ? await scoped(Unit, actor, trx).findById(job.unitId) : undefined;
+    // The job's own unit, read through the job: crew booked on it see it (not the firm's catalogue).
+    const unit = job.unitId ? await scoped(Job, actor, trx).where('jobs.id', jobId).join('units', 'units.id', 'jobs.unit_id').select('units.*').first() as unknown as Unit | undefined : undefined;
     if (!unit) throw new HttpError(422, 'no-unit', 'The job has no unit yet', 'Choose the unit on the job before working out quantities.');
     const survey = await scoped(Survey, actor, trx).findOne({ jobId });
     const { quantities: settings } = await this.templates.settings(actor, trx);
     return {
-      unit: { id: unit.id, model: unit.model, lengthMm: unit.lengthMm, widthMm: unit.widthMm, heightMm: unit.heightMm, dryWeightKg: unit.dryWeightKg, filledWeightKg: unit.filledWeightKg, supplies: unit.supplies },
+      unit: { id: unit.id, model: unit.model, lengthMm: unit.lengthMm, widthMm: unit.widthMm, heightMm: unit.heightMm, dryWeightKg: unit.dryWeightKg, filledWeightKg: unit.filledWeightKg, waterLitres: unit.waterLitres, supplies: unit.supplies },
       surveyed: Boolean(survey),
       quantities: jobQuantities({ installationType: job.installationType, unit, survey: survey ?? null, settings }),
     };

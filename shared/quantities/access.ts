@@ -64,3 +64,57 @@ export function accessCheck(inputs: AccessInputs): Computation<AccessInputs, Acc
     notes: ['Width allowance, dolly height, raise and the dolly weight limit: common practice, no source. Steps and slopes need a team lift plan.'],
   };
 }
+
+export interface MoveInInputs {
+  /** Lifted in by crane (over the route) rather than moved along it by hand. */
+  byCrane: boolean;
+  /** Steps along the route, from the survey. */
+  steps: number;
+  crew: number;
+  extraCrewOnSteps: number;
+  minutes: number;
+  minutesPerStep: number;
+}
+export interface MoveIn { people: number; minutes: number; boards: boolean }
+
+/**
+ * Moving the unit from the road to its position along the surveyed route. Steps slow it (minutes per step)
+ * and need boards laid over them and more hands; a crane lift carries the unit over them.
+ * @example
+ * moveIn({ byCrane: false, steps: 4, crew: 2, extraCrewOnSteps: 2, minutes: 30, minutesPerStep: 5 }).result
+ * // { people: 4, minutes: 50, boards: true }  (30 + 4 × 5 = 50 min; 2 + 2 people)
+ */
+export function moveIn(inputs: MoveInInputs): Computation<MoveInInputs, MoveIn> {
+  const { byCrane, steps, crew, extraCrewOnSteps: extra, minutes: base, minutesPerStep: perStep } = inputs;
+  requireNumber('steps', steps);
+  requireNumber('crew', crew, 0, true);
+  requireNumber('extraCrewOnSteps', extra);
+  requireNumber('minutes', base);
+  requireNumber('minutesPerStep', perStep);
+  if (byCrane) {
+    return {
+      name: 'Moving the unit in',
+      inputs: { ...inputs },
+      formula: `crane lift: ${crew} people to guide and land it; the route's ${steps} step${steps === 1 ? '' : 's'} not used`,
+      result: { people: crew, minutes: base, boards: false },
+      unit: 'min',
+      notes: ['The lift itself is planned with the crane firm; steps on the route do not slow it.'],
+    };
+  }
+  const onSteps = steps > 0;
+  const people = crew + (onSteps ? extra : 0);
+  const minutes = base + steps * perStep;
+  return {
+    name: 'Moving the unit in',
+    inputs: { ...inputs },
+    formula: onSteps
+      ? `${base} min + ${steps} steps × ${perStep} min = ${minutes} min; ${crew} + ${extra} people on steps = ${people}; boards over the steps`
+      : `${base} min on a level route; ${crew} people`,
+    result: { people, minutes, boards: onSteps },
+    unit: 'min',
+    notes: [
+      'People, minutes and the extra hands on steps: common practice, no source.',
+      ...(onSteps ? ['Steps need boards or a ramp laid over them and a plan for each lift of the unit: a team lift, never one person.'] : []),
+    ],
+  };
+}

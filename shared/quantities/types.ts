@@ -28,3 +28,12 @@ export function requireNumber(name: string, value: number, min = 0, strict = fal
     throw new RangeError(`${name} must be a number ${strict ? '>' : '≥'} ${min}; got ${value}`);
   }
 }
+
+/**
+ * Rounds `value` up to a whole number of `step`s (what a supplier sells), e.g. 1.56 m³ in 0.25 m³ steps → 1.75.
+ * A value already on a step stays there, even after floating-point noise (1.0000000001 → 1).
+ */
+export function roundUpToStep(value: number, step: number): number {
+  requireNumber('step', step, 0, true);
+  return round(Math.ceil(round(value / step, 9)) * step, 6);
+}

@@ -1,6 +1,7 @@
-import { findSlots, formatInstant, formatPence, resourceCalendarOf, violationKey, type Booking, type Violation } from '../scheduler/index.ts';
+import { resourceCalendarOf, violationKey, type Booking, type Violation } from '../scheduler/index.ts';
 import { boardLink, dateIn, isElsewhere, jobOfStage, namedMessage, resourceName, type ReportContext } from './context.ts';
-import type { ClashKind, ClashReport, ClashRow, SuggestedFix } from './types.ts';
+import { suggestedFixes } from './fixes.ts';
+import type { ClashKind, ClashReport, ClashRow } from './types.ts';
 import { weekOf } from './weeks.ts';
 
 const KIND_LABELS: Record<ClashKind, string> = {
@@ -15,6 +16,8 @@ const CLASH_KINDS = new Set<string>(Object.keys(KIND_LABELS));
 export interface ClashReportOptions {
   /** Slot-finder alternatives per clash after the earliest (default 2: three fixes). */
   alternatives?: number;
+  /** The writer's slack past a stage's working time (BOOKING_EXTRA_WORKING_MINUTES), so no fix is one it would refuse. */
+  extraWorkingMinutes?: number;
   /** Fixes are worked out for this many clashes, soonest first (default 60); the rest list none. */
   fixesFor?: number;
 }
@@ -43,37 +46,10 @@ export function extraHire(ctx: ReportContext, booking: Booking): { days: number;
   return { days, pence: days * rate };
 }
 
-function fixLabel(name: string, start: number, tz: string, cost: { extraHireDays: number; extraHirePence: number; delaysJob: boolean }): string {
-  const money = cost.extraHireDays > 0
-    ? `${formatPence(cost.extraHirePence)} extra hire (${cost.extraHireDays} day${cost.extraHireDays === 1 ? '' : 's'})`
-    : 'no extra cost';
-  return `Move to ${name} on ${formatInstant(start, tz)} — ${money}${cost.delaysJob ? '; the job finishes later' : ''}`;
-}
-
-/**
- * The slot finder's places for a stage on resources of a kind, from now, each with its cost.
- *
- * @example
- * suggestedFixes(ctx, 'lift-1', 'crane', 2)[0].label // 'Move to 60 t mobile crane on Wed 10 Jun 08:00 — no extra cost'
- */
-export function suggestedFixes(ctx: ReportContext, stageId: string, kind: string, alternatives = 2): SuggestedFix[] {
-  const jobId = ctx.index.stages.get(stageId)?.stage.jobId ?? '';
-  let slots;
-  try {
-    slots = findSlots(ctx.index, { stageId, resourceKind: kind, earliest: ctx.range.now }, { alternatives });
-  } catch {
-    return []; // unknown stage or kind: nothing to suggest
-  }
-  return slots.map((s) => {
-    const name = resourceName(ctx, s.resourceId);
-    const tz = resourceCalendarOf(ctx.index, s.resourceId).timeZone;
-    const date = dateIn(ctx, s.start);
-    return {
-      resourceId: s.resourceId, resourceName: name, start: s.start, end: s.end, date,
-      extraHireDays: s.cost.extraHireDays, extraHirePence: s.cost.extraHirePence, floatUsedMinutes: s.cost.floatUsedMinutes, delaysJob: s.cost.delaysJob,
-      label: fixLabel(name, s.start, tz, s.cost), link: boardLink(date, { jobId }),
-    };
-  });
+/** The hire period of a booking's machine nearest to the booking in time, if it has any. */
+function nearestHire(ctx: ReportContext, booking: Booking): { id: string } | undefined {
+  const gap = (p: { onHire: number; offHire: number }) => Math.max(0, p.onHire - booking.end, booking.start - p.offHire);
+  return [...(ctx.index.hireByResource.get(booking.resourceId) ?? [])].sort((a, b) => gap(a) - gap(b))[0];
 }
 
 function rowOf(ctx: ReportContext, v: Violation): (ClashRow & { offending?: Booking }) | null {
@@ -86,18 +62,24 @@ function rowOf(ctx: ReportContext, v: Violation): (ClashRow & { offending?: Book
   const from = typeof v.details?.from === 'number' ? v.details.from : Math.min(...ownBookings.map((b) => b.start));
   const to = typeof v.details?.to === 'number' ? v.details.to : Math.max(...ownBookings.map((b) => b.end));
   const jobs = [...new Map(ownStages.map((id) => jobOfStage(ctx, id)).filter((j) => j !== undefined).map((j) => [j.id, j])).values()];
-  const offendingJob = jobOfStage(ctx, offending.stageId);
   const date = dateIn(ctx, from);
   const kind = v.kind as ClashKind;
   const resourceIds = kind === 'person_double' ? v.resourceIds : [offending.resourceId];
+  const bookingIds = ownBookings.map((b) => b.id);
   return {
-    id: violationKey(v), kind, kindLabel: KIND_LABELS[kind], date, from, to,
+    id: violationKey(v), kind, kindLabel: KIND_LABELS[kind], bookingIds, date, from, to,
     message: namedMessage(ctx, v),
     jobIds: jobs.map((j) => j.id), jobReferences: jobs.map((j) => j.reference),
     stageId: offending.stageId, stageName: ctx.index.stages.get(offending.stageId)?.stage.name ?? '',
     resourceNames: resourceIds.map((id) => resourceName(ctx, id)),
     costPence: kind === 'hire' ? extraHire(ctx, offending).pence : 0,
-    link: boardLink(date, offendingJob ? { jobId: offendingJob.id } : { resourceName: resourceName(ctx, offending.resourceId) }),
+    // Both sides on the board: the resource's row (a person in two places is on two rows: no row
+    // search), no job filter, the reader's own bookings of the problem outlined.
+    link: boardLink(date, {
+      resourceName: kind === 'person_double' ? undefined : resourceName(ctx, offending.resourceId), highlight: bookingIds,
+      // A machine outside its hire: the hire it falls outside of is drawn beside it.
+      hireId: kind === 'hire' ? nearestHire(ctx, offending)?.id : undefined,
+    }),
     fixes: [], offending,
   };
 }
@@ -106,10 +88,10 @@ function rowOf(ctx: ReportContext, v: Violation): (ClashRow & { offending?: Book
  * Every clash the engine finds in the range — a resource double-booked, a machine outside its
  * hire, a person in two places, a partner's resource booked by another installer — soonest
  * first and, on the same day, the costliest first; each with a board link and the slot finder's
- * fixes for the later-booked stage. Another installer's side of a shared resource is never listed.
+ * fixes for the later-booked stage (only ones the write path would accept). Another installer's side of a shared resource is never listed.
  *
  * @example
- * clashReport(ctx).rows[0] // { kind: 'clash', date: '2026-06-09', link: '/board?view=day&date=2026-06-09&job=14', fixes: [...] }
+ * clashReport(ctx).rows[0] // { kind: 'clash', date: '2026-06-09', link: '/board?view=day&date=2026-06-09&q=Crew+Finch&highlight=31%2C32', fixes: [...] }
  */
 export function clashReport(ctx: ReportContext, options: ClashReportOptions = {}): ClashReport {
   const rows: (ClashRow & { offending?: Booking })[] = [];
@@ -123,7 +105,9 @@ export function clashReport(ctx: ReportContext, options: ClashReportOptions = {}
   const out: ClashRow[] = rows.map((row, i) => {
     const { offending, ...rest } = row;
     const kind = offending ? ctx.index.resources.get(offending.resourceId)?.kind : undefined;
-    const fixes = i < fixesFor && offending && kind ? suggestedFixes(ctx, offending.stageId, kind, options.alternatives ?? 2) : [];
+    const fixes = i < fixesFor && offending && kind
+      ? suggestedFixes(ctx, offending.stageId, offending.id, kind, { alternatives: options.alternatives ?? 2, extraWorkingMinutes: options.extraWorkingMinutes })
+      : [];
     return { ...rest, fixes };
   });
   const perWeek = new Map<string, number>();

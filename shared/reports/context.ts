@@ -80,17 +80,34 @@ export function namedMessage(ctx: ReportContext, v: Violation): string {
   return text;
 }
 
+/** Where a board link points: a job's bookings, or a resource's row with bookings and a hire picked out. */
+export interface BoardLinkTarget {
+  /** Filters the board to one job's bookings (a job's own problems, never a clash: it hides the other side). */
+  jobId?: string;
+  /** Finds the resource's row by name (the board's row search), keeping every booking on it. */
+  resourceName?: string;
+  /** The reader's own bookings the board outlines (both sides of a clash). */
+  highlight?: readonly string[];
+  /** A hire period the board draws on the machine's row. */
+  hireId?: string;
+  view?: 'day' | 'week' | 'month';
+}
+
 /**
- * A link to the board on one day: at a job (its bookings are picked out) or at a resource (its
- * row found by name). The board reads ?view=&date=&job=&q=.
+ * A link to the board on a day: at a job (its bookings only), or at a resource's row with the
+ * bookings of a problem outlined and a hire period drawn. The board reads
+ * ?view=&date=&job=&q=&highlight=&hire=.
  *
  * @example
  * boardLink('2026-06-09', { jobId: '14' }) // '/board?view=day&date=2026-06-09&job=14'
+ * boardLink('2026-06-25', { resourceName: 'Crew Finch', highlight: ['31', '32'] }) // '/board?view=day&date=2026-06-25&q=Crew+Finch&highlight=31%2C32'
  */
-export function boardLink(date: string, at: { jobId?: string; resourceName?: string }): string {
-  const q = new URLSearchParams({ view: 'day', date });
+export function boardLink(date: string, at: BoardLinkTarget): string {
+  const q = new URLSearchParams({ view: at.view ?? 'day', date });
   if (at.jobId) q.set('job', at.jobId);
   else if (at.resourceName) q.set('q', at.resourceName);
+  if (at.highlight?.length) q.set('highlight', at.highlight.join(','));
+  if (at.hireId) q.set('hire', at.hireId);
   return `/board?${q.toString()}`;
 }
 

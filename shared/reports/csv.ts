@@ -42,3 +42,20 @@ export function toCsv<T>(rows: readonly T[], columns: readonly CsvColumn<T>[]): 
 export function poundsCell(pence: number): string {
   return (pence / 100).toFixed(2);
 }
+
+/**
+ * The UTF-8 byte order mark. Common spreadsheet programs read a CSV without it in the machine's
+ * legacy code page, so "£" arrives as "Â£"; with it they read UTF-8 (RFC 3629 §6 allows the mark
+ * as a signature; common practice for CSV, no source).
+ */
+export const UTF8_BOM = '\uFEFF';
+
+/**
+ * A board link made absolute from the site's public address, so it still works from a spreadsheet.
+ *
+ * @example
+ * absoluteLink('/board?view=day&date=2026-06-09', 'https://plan.example/') // 'https://plan.example/board?view=day&date=2026-06-09'
+ */
+export function absoluteLink(link: string, publicUrl: string): string {
+  return new URL(link, publicUrl).toString();
+}

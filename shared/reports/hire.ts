@@ -1,7 +1,20 @@
 import { formatInstant, formatPence, idleHireDays, isoDateOfDay, resourceCalendarOf, type HirePeriod } from '../scheduler/index.ts';
 import { boardLink, dateIn, resourceName, type ReportContext } from './context.ts';
 import type { HirePeriodRow, HireReport, HireSuggestion } from './types.ts';
-import { weekOfDate } from './weeks.ts';
+import { weekOf, weekOfDate } from './weeks.ts';
+
+/**
+ * The board at the hire's dates, on the machine's row, with the hire period drawn: a week view when
+ * the hire falls in one week, else the month it starts in (a single idle day showed an empty day).
+ *
+ * @example
+ * hireLink(ctx, monToFriHire, 'Test mini digger (hired)') // '/board?view=week&date=2026-06-22&q=Test+mini+digger+%28hired%29&hire=7'
+ */
+export function hireLink(ctx: ReportContext, p: HirePeriod, machine: string): string {
+  const tz = ctx.range.timeZone;
+  const oneWeek = weekOf(p.onHire, tz) === weekOf(p.offHire - 1, tz);
+  return boardLink(dateIn(ctx, p.onHire), { resourceName: machine, hireId: p.id, view: oneWeek ? 'week' : 'month' });
+}
 
 /** What the database knows about a hire period beyond the engine's fields. */
 export interface HirePeriodFacts {
@@ -117,7 +130,7 @@ export function hireReport(ctx: ReportContext, facts: ReadonlyMap<string, HirePe
       totalCostPence: idle.paidDays * p.dayRatePence + charges.deliveryPence + charges.collectionPence,
       bookingsOutsideHire: outside,
       suggestions: hireSuggestions(paid, new Set(idle.idleDays), p.dayRatePence, charges, today),
-      link: boardLink(idle.idleDays.find((d) => d >= today) ?? dateIn(ctx, Math.max(p.onHire, ctx.range.from)), { resourceName: name }),
+      link: hireLink(ctx, p, name),
     };
   });
   addMergeSuggestions(ctx, rows);

@@ -14,8 +14,35 @@ export interface ReportRange {
   timeZone: string;
 }
 
-/** A place the slot finder would put the offending stage instead, with what it costs. */
+/** One booking a fix changes: where it is now and where the move puts it. */
+export interface FixMove {
+  bookingId: string;
+  fromResourceId: string;
+  fromResourceName: string;
+  fromStart: number;
+  fromEnd: number;
+  resourceId: string;
+  resourceName: string;
+  start: number;
+  end: number;
+  /** A partner firm's sent or confirmed booking moves: the partner is asked again. */
+  asksPartnerAgain: boolean;
+}
+
+/**
+ * A place the slot finder would put the offending stage instead, with what it costs. Only fixes
+ * the guarded write path would accept are listed: the engine's blocking checks pass on the moved
+ * bookings, every moved booking keeps its notice period, none is under way or done.
+ */
 export interface SuggestedFix {
+  /** The stage that moves (all its bookings move together, as on the board). */
+  stageId: string;
+  /** The booking that changes resource (or only time). */
+  bookingId: string;
+  /** The version of each of the stage's bookings the fix was worked out from: a newer one refuses it (409). */
+  versions: Record<string, number>;
+  /** Every booking of the stage, before and after: the preview. */
+  moves: FixMove[];
   resourceId: string;
   resourceName: string;
   start: number;
@@ -36,6 +63,8 @@ export interface ClashRow {
   /** Stable key of the engine's violation. */
   id: string;
   kind: ClashKind;
+  /** The reader's own bookings on either side of the problem (the board outlines them). */
+  bookingIds: string[];
   kindLabel: string;
   date: string;
   from: number;
@@ -127,7 +156,15 @@ export interface UtilisationRow {
   link: string;
 }
 
-export type RiskReason = 'late' | 'waiting' | 'overdue' | 'lead_time';
+/**
+ * Why a job is at risk: late on its critical path, waiting for (or overdue) a partner's answer,
+ * booked inside a notice period, a booked stage short of resources, or stages booked out of order
+ * (a dependency, its lag or a cure broken).
+ */
+export type RiskReason = 'late' | 'waiting' | 'overdue' | 'lead_time' | 'short_resourced' | 'order';
+
+/** A job at risk in one word: late, can't go ahead as booked, or waiting on a partner. Never "on time". */
+export type RiskStatus = 'late' | 'blocked' | 'waiting';
 
 export interface RiskItem {
   reason: RiskReason;
@@ -145,6 +182,9 @@ export interface RiskRow {
   /** Least total float, working minutes (negative = that much work too late). */
   floatMinutes: number;
   reasons: RiskItem[];
+  status: RiskStatus;
+  /** e.g. "3 d late", "Can't go ahead as booked", "Waiting for an answer". */
+  statusLabel: string;
   link: string;
 }
 
@@ -157,7 +197,7 @@ export interface UtilisationReport {
 
 /** One of "the three worst problems first". */
 export interface WorstProblem {
-  source: 'clash' | 'idle_hire' | 'late_job';
+  source: 'clash' | 'idle_hire' | 'late_job' | 'blocked_job';
   title: string;
   detail: string;
   costPence: number;

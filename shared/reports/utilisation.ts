@@ -1,7 +1,7 @@
 import { DAY_MS, formatInstant, resourceCalendarOf, workingMinutesBetween, type Booking, type CompiledCalendar, type Interval } from '../scheduler/index.ts';
 import { ELSEWHERE_JOB_ID } from '../board-data.ts';
 import { boardLink, dateIn, jobOfStage, namedMessage, type ReportContext } from './context.ts';
-import type { RiskItem, RiskRow, UtilisationGroup, UtilisationReport, UtilisationRow } from './types.ts';
+import type { RiskItem, RiskReason, RiskRow, RiskStatus, UtilisationGroup, UtilisationReport, UtilisationRow } from './types.ts';
 import { weeksOf } from './weeks.ts';
 
 /**
@@ -81,10 +81,31 @@ export function utilisationRows(ctx: ReportContext): { weeks: string[]; rows: Ut
   return { weeks: weeks.map((w) => w.week), rows };
 }
 
+/** The engine's checks that make a job's booked plan unworkable, as the risk they are. */
+const PLAN_PROBLEMS: Record<string, RiskReason> = {
+  lead_time: 'lead_time', capacity: 'short_resourced', order: 'order', lag: 'order', cure: 'order', cycle: 'order',
+};
+/** Reasons that mean the job can't go ahead as booked, whatever its dates. */
+const BLOCKING_REASONS: ReadonlySet<RiskReason> = new Set(['lead_time', 'short_resourced', 'order']);
+
+/**
+ * A job at risk in one word, never "on time": late on its critical path, can't go ahead as booked
+ * (a stage short of resources, stages out of order, a notice period broken), or waiting on a partner.
+ *
+ * @example
+ * riskStatus(0, [{ reason: 'short_resourced', label: '…' }]) // { status: 'blocked', statusLabel: "Can't go ahead as booked" }
+ */
+export function riskStatus(lateByMs: number, reasons: readonly RiskItem[]): { status: RiskStatus; statusLabel: string } {
+  if (lateByMs > 0) return { status: 'late', statusLabel: `${Math.ceil(lateByMs / DAY_MS)} d late` };
+  if (reasons.some((r) => BLOCKING_REASONS.has(r.reason))) return { status: 'blocked', statusLabel: "Can't go ahead as booked" };
+  return { status: 'waiting', statusLabel: reasons.some((r) => r.reason === 'overdue') ? 'Answer overdue' : 'Waiting for an answer' };
+}
+
 /**
  * Jobs at risk: finishing after the promised date on the engine's critical path (negative
  * float), waiting on a partner's answer (bookings still 'sent'; `overdue` when the reminder scan
- * flagged them), or booked inside a lead time. Latest first.
+ * flagged them), booked inside a lead time, a booked stage short of a resource it needs
+ * (capacity), or stages booked out of order (order, lag, cure, cycle). Latest first.
  *
  * @example
  * riskRows(ctx, new Set(['31']))[0].reasons // [{ reason: 'late', label: 'Finishes 3 days after the promised date (Fri 19 Jun)' }, …]
@@ -118,11 +139,14 @@ export function riskRows(ctx: ReportContext, overdueBookingIds: ReadonlySet<stri
     add(w.jobId, { reason: w.overdue ? 'overdue' : 'waiting', label: `${w.overdue ? 'Answer overdue' : 'Waiting for an answer'} from ${w.firm}: ${w.what.join(', ')}` });
   }
   for (const v of ctx.violations) {
-    if (v.kind !== 'lead_time') continue;
-    const b = ctx.bookings.get(v.bookingIds[0] ?? '');
-    const job = v.stageIds[0] ? jobOfStage(ctx, v.stageIds[0]) : undefined;
-    if (!b || !job || !inRange(b)) continue;
-    add(job.id, { reason: 'lead_time', label: namedMessage(ctx, v) });
+    const reason = PLAN_PROBLEMS[v.kind];
+    if (reason === undefined || v.severity !== 'error') continue;
+    const own = v.bookingIds.map((id) => ctx.bookings.get(id)).filter((b): b is NonNullable<typeof b> => b !== undefined && !b.elsewhere);
+    const job = v.stageIds.map((id) => jobOfStage(ctx, id)).find((j) => j !== undefined);
+    // A problem counts in the span when one of its bookings does (a cycle names stages only).
+    if (!job || (own.length > 0 ? !own.some(inRange) : v.bookingIds.length > 0)) continue;
+    const label = namedMessage(ctx, v);
+    if (!(byJob.get(job.id) ?? []).some((x) => x.label === label)) add(job.id, { reason, label });
   }
   const rows: RiskRow[] = [...byJob.entries()].map(([jobId, reasons]) => {
     const job = ctx.jobs.get(jobId)!;
@@ -131,11 +155,12 @@ export function riskRows(ctx: ReportContext, overdueBookingIds: ReadonlySet<stri
       .reduce<number | null>((m, b) => (m === null || b.start < m ? b.start : m), null);
     return {
       jobId, reference: job.reference, customerName: job.customerName, siteTown: job.siteTown, promisedBy: job.promisedBy ?? null,
-      lateByMs: cp?.lateByMs ?? 0, floatMinutes: cp?.floatMinutes ?? 0, reasons,
+      lateByMs: cp?.lateByMs ?? 0, floatMinutes: cp?.floatMinutes ?? 0, reasons, ...riskStatus(cp?.lateByMs ?? 0, reasons),
       link: boardLink(dateIn(ctx, firstBooking ?? ctx.range.now), { jobId }),
     };
   });
-  rows.sort((a, b) => b.lateByMs - a.lateByMs || b.reasons.length - a.reasons.length || (a.promisedBy ?? Infinity) - (b.promisedBy ?? Infinity) || a.reference.localeCompare(b.reference));
+  const rank: Record<RiskStatus, number> = { late: 0, blocked: 1, waiting: 2 };
+  rows.sort((a, b) => b.lateByMs - a.lateByMs || rank[a.status] - rank[b.status] || b.reasons.length - a.reasons.length || (a.promisedBy ?? Infinity) - (b.promisedBy ?? Infinity) || a.reference.localeCompare(b.reference));
   return rows;
 }
 

@@ -3,7 +3,7 @@ import type { ClashReport, HireReport, UtilisationReport, WorstProblem } from '.
 
 /**
  * "The three worst problems first": the worst of each kind — the soonest clash (costliest on
- * the day), the costliest idle hire, the latest job — so no one kind hides the others; when a
+ * the day), the costliest idle hire, the latest job (then one that can't go ahead as booked) — so no one kind hides the others; when a
  * kind has none, the next worst of the others fill the place. Within a kind, clashes rank by
  * date then cost, idle hires by idle cost, late jobs by how late.
  *
@@ -23,11 +23,15 @@ export function worstProblems(clashes: ClashReport, hire: HireReport, utilisatio
       detail: `${p.idleDays.length} of ${p.paidDays} paid days with nothing booked: ${formatPence(p.idleCostPence)} at ${formatPence(p.dayRatePence)} a day`,
       costPence: p.idleCostPence, date: p.idleDays[0] ?? p.onHireDate, link: p.link, fixes: p.suggestions.map((s) => s.label),
     }));
-  const lateList: WorstProblem[] = utilisation.risks.filter((r) => r.lateByMs > 0).map((r) => ({
-    source: 'late_job', title: `Late: ${r.reference}${r.siteTown ? `, ${r.siteTown}` : ''}`,
+  // Late jobs first, then jobs that can't go ahead as booked (short of a resource, out of order).
+  const lateList: WorstProblem[] = utilisation.risks.filter((r) => r.status === 'late' || r.status === 'blocked').map((r) => ({
+    source: r.status === 'late' ? 'late_job' : 'blocked_job',
+    title: `${r.status === 'late' ? 'Late' : "Can't go ahead as booked"}: ${r.reference}${r.siteTown ? `, ${r.siteTown}` : ''}`,
     detail: r.reasons.map((x) => x.label).join('; '),
     costPence: 0, date: r.promisedBy === null ? '' : new Date(r.promisedBy).toISOString().slice(0, 10), link: r.link,
-    fixes: [`${Math.ceil(r.lateByMs / DAY_MS)} day(s) to win back: open the job on the board and let the slot finder offer earlier places`],
+    fixes: [r.status === 'late'
+      ? `${Math.ceil(r.lateByMs / DAY_MS)} day(s) to win back: open the job on the board and let the slot finder offer earlier places`
+      : 'Open the job on the board: book what the stage is short of, or put its stages back in order'],
   }));
   const lists = [clashList, idleList, lateList];
   const out: WorstProblem[] = [];

@@ -1,4 +1,4 @@
-import { createBoardIndex, type BoardIndex } from './board-index.js';
+import { createBoardIndex, type BoardIndex, type BoardIndexOptions } from './board-index.js';
 import { boardCriticalPath, type JobCriticalPath } from './board-critical-path.js';
 import { checkAllPersonDoubles, checkAllResourceClashes } from './checks/clash.js';
 import { checkIdleHire } from './checks/hire.js';
@@ -6,7 +6,8 @@ import { checkDependencyBetween } from './checks/order.js';
 import { checkBooking, cycleViolations } from './checks/stage.js';
 import { checkCapacity } from './checks/capacity.js';
 import { normaliseViolations } from './checks/violation.js';
-import type { Board, BoardOptions, Violation } from './types.js';
+import { checkUnbookedLink, unbookedPlan, type UnbookedPlan } from './unbooked.js';
+import type { Board, Violation } from './types.js';
 
 /** Everything the board shows after a full check. */
 export interface BoardAnalysis {
@@ -17,7 +18,7 @@ export interface BoardAnalysis {
 }
 
 /** Options for {@link analyseBoard}. */
-export interface AnalyseBoardOptions extends BoardOptions {
+export interface AnalyseBoardOptions extends BoardIndexOptions {
   /** Skip the critical path (checks only). Default false. */
   skipCriticalPath?: boolean;
 }
@@ -30,9 +31,20 @@ export interface AnalyseBoardOptions extends BoardOptions {
  */
 export function boardViolations(index: BoardIndex): Violation[] {
   const out: Violation[] = [];
+  // Earliest times of unbooked stages, worked out only for those a booked successor waits on.
+  let plan: UnbookedPlan | undefined;
   for (const info of index.stageList) {
+    if (info.bookings.length === 0) {
+      if (!index.seesAllBookings) continue;
+      for (const l of info.depsOut) {
+        if (l.to.bookings.length === 0 || l.to === info) continue;
+        plan ??= unbookedPlan(index);
+        const v = checkUnbookedLink(plan, l, l.to.bookings);
+        if (v !== undefined) out.push(v);
+      }
+      continue;
+    }
     for (const l of info.depsOut) checkDependencyBetween(index, l.dep, info.bookings, l.to.bookings, out, info.stage);
-    if (info.bookings.length === 0) continue;
     for (const b of info.bookings) checkBooking(index, b, info.stage, out);
     checkCapacity(index, info.stage.id, info.bookings, info.stage, out);
   }
@@ -44,8 +56,9 @@ export function boardViolations(index: BoardIndex): Violation[] {
 }
 
 /**
- * Full analysis of a board: every check (order, lag, cure, lead time, clash, availability, hire,
- * idle hire, capacity, one person in two places, across firms, cycles) and every job's critical
+ * Full analysis of a board: every check (order, lag, cure, unbooked predecessors, lead time, clash,
+ * availability, one working day, hire, idle hire, capacity, one person in two places, across
+ * firms, cycles) and every job's critical
  * path. Declined bookings never count.
  *
  * @example

@@ -1,6 +1,7 @@
 import { bookingsOfStage, compareBookings, createBoardIndex, resourceCalendarOf, stageCalendarOf, type BoardIndex } from './board-index.js';
 import { boardCriticalPath } from './board-critical-path.js';
-import { addWorkingMinutes, isWorkingInstant, nextWorkingInstant } from './calendar.js';
+import { bookableStart, mustFitInOneDay } from './booking-step.js';
+import { addWorkingMinutes, isWorkingInstant } from './calendar.js';
 import { overlappingOnResource } from './checks/clash.js';
 import { capitalise, makeViolation, resourceLabel } from './checks/violation.js';
 import { formatInstant } from './format.js';
@@ -8,7 +9,7 @@ import { checkStageBookings } from './check-move.js';
 import { leadTimeEarliest } from './checks/lead-time.js';
 import { earliestStartFromPredecessors } from './checks/order.js';
 import type { BookingsOf } from './checks/violation.js';
-import { nextCandidate } from './slot-finder.js';
+import { laterCannotHelp, nextCandidate } from './slot-finder.js';
 import { DAY_MS } from './time-zone.js';
 import type { Board, BoardOptions, Booking, Instant, Resource, Stage, Violation } from './types.js';
 
@@ -112,7 +113,9 @@ function tryAt(index: BoardIndex, stage: Stage, t: Instant, firmId: string, seq:
  * schedule-generation scheme: repeatedly take, among stages whose predecessors all have bookings,
  * the one with the least total float, then the earliest promised date, then the smallest id;
  * book it at the earliest start where every requirement gets enough resources and no error check
- * fails. Existing bookings never move. Deterministic: same board, same answer.
+ * fails. Starts land on the booking step (`bookingStepMinutes`, local time) and, for a stage that
+ * must be done within one working day, where it fits in one. Existing bookings never move.
+ * Deterministic: same board, same answer.
  *
  * @example
  * const { bookings, unplaced } = autoPlace(board, { now, jobIds: ['job-7'] })
@@ -174,7 +177,10 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
       const probe: Booking = { id: 'probe', stageId: stage.id, resourceId: first.id, start: t0, end: t0 + 1, state: 'pencilled', installerFirmId: firmId };
       t0 = Math.max(t0, earliestStartFromPredecessors(index, stage.id, first.id, bookingsOf), leadTimeEarliest(index, probe));
     }
-    let t = nextWorkingInstant(cal, t0);
+    // Starts a person would book: on the step, and within one working day when the stage must be.
+    const fit = mustFitInOneDay(stage, cal) ? { fitMinutes: stage.durationMinutes } : {};
+    const at = (x: Instant): Instant => bookableStart(cal, x, { stepMinutes: index.stepMinutes, ...fit });
+    let t = at(t0);
     const limit = t + horizon;
     let placed: Booking[] | null = null;
     let lastRefusals: Violation[] = [];
@@ -182,7 +188,8 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
       const tried = tryAt(index, stage, t, firmId, seq);
       if (tried.bookings !== null) { placed = tried.bookings; break; }
       lastRefusals = tried.refusals;
-      t = nextCandidate(cal, t, tried.refusals);
+      if (laterCannotHelp(stage.id, tried.refusals)) break;
+      t = at(nextCandidate(cal, t, tried.refusals));
     }
     if (placed === null) {
       failed.add(stage.id);

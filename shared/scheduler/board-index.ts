@@ -1,3 +1,4 @@
+import { assertBookingStep, DEFAULT_BOOKING_STEP_MINUTES } from './booking-step.js';
 import { compileCalendar, type CompiledCalendar } from './calendar.js';
 import { SchedulerError } from './errors.js';
 import { findCycles } from './graph.js';
@@ -41,6 +42,10 @@ export interface StageInfo {
 export interface BoardIndex {
   readonly board: Board;
   readonly now: number;
+  /** The booking step in minutes that times worked out for people are rounded up to. */
+  readonly stepMinutes: number;
+  /** False when the board holds only part of the bookings: unbooked predecessors are not checked. */
+  readonly seesAllBookings: boolean;
   /** Stages by id, with their bookings and dependencies. */
   readonly stages: Map<string, StageInfo>;
   /** The same, in board order. */
@@ -63,7 +68,14 @@ export interface BoardIndex {
 }
 
 /** Options for {@link createBoardIndex}. */
-export type BoardIndexOptions = BoardOptions;
+export interface BoardIndexOptions extends BoardOptions {
+  /**
+   * False when the board holds only part of the bookings (a crew member's own rows): a stage with
+   * none here may be booked where this reader can't see, so the unbooked-predecessor check is
+   * skipped. Default true.
+   */
+  seesAllBookings?: boolean;
+}
 
 function push<K, V>(m: Map<K, V[]>, k: K, v: V): void {
   const l = m.get(k);
@@ -130,6 +142,8 @@ export function compareBookings(a: Booking, b: Booking): number {
  */
 export function createBoardIndex(board: Board, options: BoardIndexOptions): BoardIndex {
   if (!Number.isFinite(options.now)) throw new RangeError('now must be an epoch-millisecond instant');
+  const stepMinutes = options.bookingStepMinutes ?? DEFAULT_BOOKING_STEP_MINUTES;
+  assertBookingStep(stepMinutes);
   const calendars = new Map<string, CompiledCalendar>();
   for (const c of board.calendars) calendars.set(c.id, compileCalendar(c));
   const resources = new Map<string, Resource>();
@@ -201,8 +215,8 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
   for (const l of hireByResource.values()) l.sort((a, b) => a.onHire - b.onHire);
   const { order, blocked, cycles } = orderStages(stageList);
   return {
-    board, now: options.now, stages, stageList, jobs, resources, resourceInfo, calendars, bookingsByResource,
-    personsOfResource, resourcesOfPerson, hireByResource, resourcesByKind, cycles, order, blocked,
+    board, now: options.now, stepMinutes, seesAllBookings: options.seesAllBookings !== false, stages, stageList, jobs, resources,
+    resourceInfo, calendars, bookingsByResource, personsOfResource, resourcesOfPerson, hireByResource, resourcesByKind, cycles, order, blocked,
   };
 }
 
@@ -220,8 +234,9 @@ export function resourceCalendarOf(index: BoardIndex, resourceId: string): Compi
 
 /**
  * The calendar a stage's times are counted on: its first booking's resource when booked,
- * otherwise a resource of its first required kind (the job's firm first), otherwise the calendar
- * whose id is the firm's id, otherwise the board's first calendar.
+ * otherwise a resource of its first required kind that the board has (the job's firm first),
+ * otherwise the calendar whose id is the firm's id, otherwise the calendar of one of the firm's
+ * own resources, otherwise the board's first calendar.
  *
  * @example
  * stageCalendarOf(index, 'excavation-1', bookingsOfStage(index, 'excavation-1'))
@@ -232,17 +247,32 @@ export function stageCalendarOf(index: BoardIndex, stageId: string, bookings: re
   const stage = index.stages.get(stageId)?.stage;
   if (stage === undefined) throw new SchedulerError('unknown_stage', `Stage ${stageId} is not on the board`);
   const firmId = index.jobs.get(stage.jobId)?.firmId;
-  const kind = stage.requirements[0]?.kind;
-  if (kind !== undefined) {
-    const candidates = index.resourcesByKind.get(kind) ?? [];
-    const own = candidates.find((r) => r.firmId === firmId) ?? candidates[0];
-    if (own !== undefined) return index.calendars.get(own.calendarId) as CompiledCalendar;
+  for (const req of stage.requirements) {
+    const cal = kindCalendarOf(index, req.kind, firmId);
+    if (cal !== undefined) return cal;
   }
   const firmCal = firmId === undefined ? undefined : index.calendars.get(firmId);
   if (firmCal !== undefined) return firmCal;
+  // Calendars loaded from the database have their own ids: the firm's hours are its resources'.
+  if (firmId !== undefined) {
+    for (const info of index.resourceInfo.values()) if (info.resource.firmId === firmId) return info.cal;
+  }
   const any = index.calendars.values().next();
   if (any.done) throw new SchedulerError('unknown_calendar', 'The board has no calendars');
   return any.value;
+}
+
+/**
+ * The calendar of a resource of a kind (the firm's own first), or undefined when the board has none.
+ *
+ * @example
+ * kindCalendarOf(index, 'electrician', 'installer-1')?.source.id // 'cal-electricians'
+ */
+export function kindCalendarOf(index: BoardIndex, kind: string, firmId: string | undefined): CompiledCalendar | undefined {
+  const candidates = index.resourcesByKind.get(kind);
+  if (candidates === undefined || candidates.length === 0) return undefined;
+  const own = candidates.find((r) => r.firmId === firmId) ?? (candidates[0] as Resource);
+  return index.resourceInfo.get(own.id)?.cal;
 }
 
 const NONE: readonly Booking[] = Object.freeze([]);

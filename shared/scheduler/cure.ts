@@ -152,3 +152,18 @@ export function cureRelease(pouredAt: Instant, rule: CureRule): CureExplanation 
     releaseAt: releaseInstant(pouredAt, elapsedDays),
   };
 }
+
+const elapsedCache = new WeakMap<CureRule, number>();
+
+/**
+ * Elapsed days from the end of a pour to its release under a cure rule, cached per rule object
+ * (the checks ask for it once per link).
+ *
+ * @example
+ * cureElapsedDays({ targetFraction: 0.7 }) // 6.9136…
+ */
+export function cureElapsedDays(rule: CureRule): number {
+  let d = elapsedCache.get(rule);
+  if (d === undefined) { d = cureRelease(0, rule).elapsedDays; elapsedCache.set(rule, d); }
+  return d;
+}

@@ -1,4 +1,5 @@
 import { bookingsOfStage, resourceCalendarOf, spanOf, type BoardIndex } from './board-index.js';
+import { bookableStart, mustFitInOneDay } from './booking-step.js';
 import { jobCriticalPath } from './board-critical-path.js';
 import { addWorkingMinutes, nextWorkingInstant, workingMinutesBetween, type CompiledCalendar } from './calendar.js';
 import { checkStageBookings } from './check-move.js';
@@ -8,6 +9,7 @@ import type { BookingsOf } from './checks/violation.js';
 import { SchedulerError } from './errors.js';
 import { DAY_MS } from './time-zone.js';
 import type { Booking, Instant, Resource, Violation } from './types.js';
+import { unbookedPlan } from './unbooked.js';
 
 /** What to look for. Give `resourceId` or `resourceKind`. */
 export interface SlotRequest {
@@ -24,6 +26,8 @@ export interface FindSlotsOptions {
   alternatives?: number;
   /** How far ahead to look, in days from the first possible start (default 120). */
   horizonDays?: number;
+  /** Booking step in minutes that slot starts land on (default: the index's, 15 unless it was built with another). */
+  stepMinutes?: number;
 }
 
 /** What a slot costs. */
@@ -51,17 +55,27 @@ export interface Slot {
 const NOT_BLOCKING = new Set<Violation['kind']>(['capacity', 'hire']);
 
 /**
- * The stage's bookings with it placed at `start` on `resource`: existing bookings shift with it,
- * the first one of the resource's kind moves to the resource (or a new pencilled booking is added).
+ * The stage's bookings with it placed at `start` on `resource`: existing bookings move with it,
+ * each on its own resource's calendar keeping its working time and its working offset from the
+ * stage's start (a booking that ran 15:00 to 10:00 the next morning is four working hours, not
+ * nineteen); the first one of the resource's kind moves to the resource (or a new pencilled booking
+ * is added).
  */
 function candidateBookings(index: BoardIndex, stageId: string, resource: Resource, start: Instant, cal: CompiledCalendar): Booking[] {
   const stage = index.stages.get(stageId)?.stage;
   if (stage === undefined) throw new SchedulerError('unknown_stage', `Stage ${stageId} is not on the board`);
   const current = bookingsOfStage(index, stageId);
   const span = spanOf(current);
-  const delta = span === null ? 0 : start - span.start;
   const end = addWorkingMinutes(cal, start, stage.durationMinutes);
-  const out = current.map((b) => ({ ...b, start: b.start + delta, end: b.end + delta }));
+  const out = current.map((b) => {
+    if (span === null || b.resourceId === resource.id) return { ...b };
+    const bc = resourceCalendarOf(index, b.resourceId);
+    const offset = workingMinutesBetween(bc, span.start, b.start);
+    const length = workingMinutesBetween(bc, b.start, b.end);
+    const from = offset > 0 ? addWorkingMinutes(bc, start, offset) : start;
+    const to = length > 0 ? addWorkingMinutes(bc, from, length) : from + (b.end - b.start);
+    return { ...b, start: from, end: to };
+  });
   const same = out.findIndex((b) => b.resourceId === resource.id || index.resources.get(b.resourceId)?.kind === resource.kind);
   if (same >= 0) out[same] = { ...(out[same] as Booking), resourceId: resource.id, start, end: end > start ? end : start + 60_000 };
   else {
@@ -110,6 +124,20 @@ export function nextCandidate(cal: CompiledCalendar, t: Instant, refusals: reado
   return nextWorkingInstant(cal, next);
 }
 
+const FOLLOWERS = new Set<Violation['kind']>(['order', 'lag', 'cure', 'unbooked_predecessor']);
+
+/**
+ * True when a later start can't cure what refused this one: a booked stage further on already
+ * starts (or finishes) too early for this one, directly or through unbooked stages between them,
+ * and every bound only moves later with this stage's start.
+ *
+ * @example
+ * laterCannotHelp('excavation-1', refusals) // true: the lift is booked before the walls could be done
+ */
+export function laterCannotHelp(stageId: string, refusals: readonly Violation[]): boolean {
+  return refusals.some((v) => FOLLOWERS.has(v.kind) && typeof v.details?.successorId === 'string' && v.details.successorId !== stageId);
+}
+
 function lastEnd(cal: CompiledCalendar, day: number): number {
   const ivs = cal.dayIntervals(day);
   return ivs[ivs.length - 1] as number;
@@ -118,8 +146,10 @@ function lastEnd(cal: CompiledCalendar, day: number): number {
 /**
  * Earliest start at or after `earliest` where the stage passes every error check on the given
  * resource (or any resource of the given kind), then the next alternatives (each on a later
- * working day per resource), sorted by start then resource id. Capacity errors (other kinds not
- * yet booked) and hire errors (priced as extra hire days) don't refuse a slot.
+ * working day per resource), sorted by start then resource id. Starts land on the booking step
+ * (local time) and, for a stage that must be done within one working day, where it fits in one.
+ * Capacity errors (other kinds not yet booked) and hire errors (priced as extra hire days) don't
+ * refuse a slot.
  *
  * @example
  * findSlots(index, { stageId: 'lift-1', resourceKind: 'crane', earliest: now }, { alternatives: 3 })
@@ -148,12 +178,17 @@ export function findSlots(index: BoardIndex, request: SlotRequest, options: Find
     timing = undefined; // a cycle: float can't be worked out, slots are still found
   }
   const all: Slot[] = [];
+  const step = options.stepMinutes ?? index.stepMinutes;
+  const plan = unbookedPlan(index, bookingsOf);
   let enoughBy = Number.POSITIVE_INFINITY; // the wanted-th earliest start found so far
   for (const r of resources) {
     const cal = resourceCalendarOf(index, r.id);
+    // Starts a person would book: on the step, and within one working day when the stage must be.
+    const fit = mustFitInOneDay(stage, cal) ? { fitMinutes: stage.durationMinutes } : {};
+    const at = (x: Instant): Instant => bookableStart(cal, x, { stepMinutes: step, ...fit });
     const probe: Booking = { id: 'probe', stageId: stage.id, resourceId: r.id, start: request.earliest, end: request.earliest + 1, state: 'pencilled', installerFirmId: '' };
-    const t0 = Math.max(request.earliest, earliestStartFromPredecessors(index, stage.id, r.id, bookingsOf), leadTimeEarliest(index, probe));
-    let t = nextWorkingInstant(cal, t0);
+    const t0 = Math.max(request.earliest, earliestStartFromPredecessors(index, stage.id, r.id, bookingsOf, plan), leadTimeEarliest(index, probe));
+    let t = at(t0);
     const limit = t + horizon;
     let found = 0;
     while (t < limit && found < wanted && t <= enoughBy) {
@@ -168,9 +203,10 @@ export function findSlots(index: BoardIndex, request: SlotRequest, options: Find
           cost: { extraHireDays: hire.days, extraHirePence: hire.pence, floatUsedMinutes: used, delaysJob: timing !== undefined && used > timing.totalFloatMinutes + 0.5 },
         });
         found++;
-        t = nextCandidate(cal, t, []);
+        t = at(nextCandidate(cal, t, []));
       } else {
-        t = nextCandidate(cal, t, refusals);
+        if (laterCannotHelp(stage.id, refusals)) break;
+        t = at(nextCandidate(cal, t, refusals));
       }
     }
     if (all.length >= wanted) {

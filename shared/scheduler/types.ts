@@ -68,6 +68,12 @@ export interface Stage {
   durationMinutes: number;
   requirements: StageRequirement[];
   cure?: CureRule | null;
+  /**
+   * A stage no longer than a working day must be done within one working day (a pour, a lift, an
+   * electrician's visit) unless this is true (digging or block laying may stop overnight). Stages
+   * longer than a working day are split over days either way. Default false.
+   */
+  mayContinueNextDay?: boolean;
 }
 
 export type DependencyType = 'FS' | 'SS' | 'FF' | 'SF';
@@ -146,7 +152,9 @@ export type ViolationKind =
   | 'capacity'
   | 'person_double'
   | 'cross_firm'
-  | 'cycle';
+  | 'cycle'
+  | 'unbooked_predecessor'
+  | 'split';
 
 export type Severity = 'error' | 'warning';
 
@@ -165,4 +173,10 @@ export interface Violation {
 export interface BoardOptions {
   /** The current instant; the engine never reads a clock. */
   now: Instant;
+  /**
+   * The firm's booking step in minutes (default 15): times the engine works out for people (slot
+   * starts, auto-placed starts, shifted dependents, earliest starts in messages) are rounded up to
+   * it, aligned in the calendar's local time. A whole number from 1 to 1440.
+   */
+  bookingStepMinutes?: number;
 }

@@ -1,21 +1,30 @@
 import { z } from 'zod';
-import { EXCAVATOR_SIZES } from '../quantities/settings.ts';
+import { BLOCK_LAYINGS, EXCAVATOR_SIZES, GROUND_TYPES } from '../quantities/settings.ts';
 
 const positive = z.number().gt(0);
 
 /** A firm's own figures over the defaults; every field is optional (left out = the default). */
 export const QuantitySettingsPatch = z.object({
   perimeterGapMm: z.number().min(0).max(1000),
+  serviceSideGapMm: z.number().min(0).max(2000),
+  workingRoomMm: z.number().min(0).max(2000),
   baseThicknessMm: z.number().min(50).max(600),
   subBaseMm: z.number().min(0).max(600),
+  subBaseDensityTPerM3: positive.max(3),
+  subBaseOrderStepT: positive.max(30),
   bulkingFactor: z.number().min(1).max(2),
   skipVolumeM3: positive.max(40),
   grabLorryVolumeM3: positive.max(40),
   grabLorryPayloadT: positive.max(44),
+  skipPayloadT: positive.max(20),
+  spoilDensityTPerM3: positive.max(3),
   concreteWasteFraction: z.number().min(0).max(0.5),
+  concreteOrderStepM3: positive.max(10),
   blockLengthMm: positive.max(1000),
   blockHeightMm: positive.max(1000),
+  blockThicknessMm: positive.max(500),
   jointMm: z.number().min(0).max(30),
+  blockLaying: z.enum(BLOCK_LAYINGS),
   accessWidthAllowanceMm: z.number().min(0).max(1000),
   dollyHeightMm: z.number().min(0).max(1000),
   uprightRaiseMm: z.number().min(0).max(1000),
@@ -24,6 +33,15 @@ export const QuantitySettingsPatch = z.object({
   semiRecessedDepthFraction: z.number().gt(0).lt(1),
   excavatorRatesM3PerHour: z.object({ '1.5t': positive.max(50), '3t': positive.max(50), '5t': positive.max(50) }).partial(),
   defaultExcavator: z.enum(EXCAVATOR_SIZES),
+  groundRateFactors: z.partialRecord(z.enum(GROUND_TYPES), positive.max(5)),
+  moveCrew: z.number().int().min(1).max(20),
+  moveExtraCrewOnSteps: z.number().int().min(0).max(20),
+  moveMinutes: z.number().min(0).max(600),
+  moveMinutesPerStep: z.number().min(0).max(60),
+  hoseFlowLitresPerMinute: positive.max(200),
+  fillWaterTempC: z.number().min(0).max(40),
+  targetWaterTempC: z.number().min(20).max(40),
+  heaterKw: positive.max(20),
 }).partial().strict();
 export type QuantitySettingsPatch = z.infer<typeof QuantitySettingsPatch>;
 

@@ -47,6 +47,15 @@ export const UpdateJob = JobFields.partial().extend({
 }).refine(promisedInOrder, promisedRule);
 export type UpdateJob = z.infer<typeof UpdateJob>;
 
+/** GET /api/job-references/next: the prefix to count in (default: the prefix of the firm's latest job). */
+export const NextReferenceQuery = z.object({
+  prefix: oneLineText(30).regex(/^[^0-9]*$|^.*[^0-9]$/, 'must not end in a digit').optional(),
+});
+export type NextReferenceQuery = z.infer<typeof NextReferenceQuery>;
+
+/** The reference a new job would get: the highest of its prefix + 1, the digits as wide as before. */
+export interface NextReference { prefix: string; nextReference: string }
+
 export const JobSummary = z.object({
   id: Id,
   reference: z.string(),

@@ -1,13 +1,41 @@
+import { z } from 'zod';
 import type { DaySheet, DaySheetVisit } from './day-sheets.ts';
+import type { ProgressAction } from './bookings.ts';
+import { IsoInstant } from './common.ts';
 
 /**
- * One of a crew member's own bookings on My work (GET /api/my-work?from&to): the day sheet's visit
- * (site, times, contacts, who else is on the stage, cautions) plus what marking progress needs.
+ * GET /api/my-work: without a range, from the start of today (the firm's day, by the server's
+ * clock) for `days` days, so the phone and the server agree on what "today" is.
+ */
+export const MyWorkQuery = z.object({
+  from: IsoInstant.optional(),
+  to: IsoInstant.optional(),
+  days: z.coerce.number().int().min(1, 'must be at least 1 day').max(100, 'must be at most 100 days').default(14),
+}).refine((q) => (q.from === undefined) === (q.to === undefined), { path: ['to'], message: 'give both from and to, or neither' })
+  .refine((q) => q.from === undefined || q.to === undefined || Date.parse(q.to) > Date.parse(q.from), { path: ['to'], message: 'must be after from' })
+  .refine((q) => q.from === undefined || q.to === undefined || Date.parse(q.to) - Date.parse(q.from) <= 100 * 86_400_000, { path: ['to'], message: 'range may span at most 100 days' });
+export type MyWorkQuery = z.infer<typeof MyWorkQuery>;
+
+/**
+ * One of a crew member's own bookings on My work: the day sheet's visit (site, times, contacts,
+ * who else is on the stage, cautions) plus what marking progress needs.
  */
 export interface MyWorkItem extends DaySheetVisit {
   version: number;
   /** The crew or person row the booking is on. */
   resource: DaySheet['resource'];
+  /** The local date (firm's zone) the booking starts on, YYYY-MM-DD. */
+  day: string;
+  /**
+   * The progress the reader may mark now: the state machine's actions for the crew on its own
+   * booking, with "arrive" only on the booking's day(s) — the same rules the server enforces.
+   */
+  actions: ProgressAction[];
 }
 
-export interface MyWorkList { items: MyWorkItem[] }
+export interface MyWorkList {
+  /** Today in the firm's zone (YYYY-MM-DD), by the server's clock. */
+  today: string;
+  timeZone: string;
+  items: MyWorkItem[];
+}

@@ -1,12 +1,16 @@
 import { z } from 'zod';
 import { IsoInstant, multiLineText, oneLineText } from './common.ts';
-import { EXCAVATOR_SIZES } from '../quantities/settings.ts';
+import { EXCAVATOR_SIZES, GROUND_TYPES } from '../quantities/settings.ts';
+import { EARTHING_ARRANGEMENTS } from '../quantities/supply.ts';
 
-export const GROUND_TYPES = ['clay', 'loam', 'sand_gravel', 'chalk', 'rock', 'made_ground', 'unknown'] as const;
-export type GroundType = (typeof GROUND_TYPES)[number];
+// The ground types live with the quantities (they set the digging rate); kept exported from here for the forms.
+export { GROUND_TYPES, type GroundType } from '../quantities/settings.ts';
+export { EARTHING_ARRANGEMENTS, type EarthingArrangement } from '../quantities/supply.ts';
 
 const mm = (label: string, max: number) => z.number({ message: `${label} must be a number of millimetres` }).int('must be whole millimetres').min(1, 'must be more than 0').max(max, `must be at most ${max} mm`);
 const metres = z.number({ message: 'must be a number of metres' }).min(0, 'cannot be negative').max(500, 'must be at most 500 m');
+/** A large load already on the house's supply, at its rated current; null when there is none. */
+const loadAmps = z.number({ message: 'must be a number of amps' }).int('must be whole amps').min(1, 'must be more than 0').max(100, 'must be at most 100 A').nullable().default(null);
 
 /**
  * What the surveyor records on site. Shared by the phone form and PUT /api/jobs/:id/survey.
@@ -31,6 +35,16 @@ export const SurveyFields = z.object({
   /** The surveyor's own call on a crane; null leaves it to the access check. */
   craneRequired: z.boolean().nullable().default(null),
   excavatorSize: z.enum(EXCAVATOR_SIZES).nullable().default(null),
+  /** Large loads already on the supply, for the supply check against the main fuse. */
+  evChargerAmps: loadAmps,
+  electricShowerAmps: loadAmps,
+  heatPumpAmps: loadAmps,
+  otherLargeLoadAmps: loadAmps,
+  otherLargeLoadNotes: oneLineText(200).nullable().default(null),
+  /** How the house is earthed, as read at the meter or consumer unit; null when not recorded. */
+  earthingArrangement: z.enum(EARTHING_ARRANGEMENTS, { message: 'pick an earthing arrangement' }).nullable().default(null),
+  /** Hose flow at the tap the unit will be filled from (time a bucket); null leaves the firm's default. */
+  hoseFlowLitresPerMinute: z.number({ message: 'must be a number of litres a minute' }).gt(0, 'must be more than 0').max(200, 'must be at most 200 L/min').nullable().default(null),
   notes: multiLineText(4000).nullable().default(null),
   surveyedAt: IsoInstant.optional(),
 }).refine((s) => !s.overheadObstructions || Boolean(s.overheadNotes?.trim()), {

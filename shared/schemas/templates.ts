@@ -15,6 +15,7 @@ export const StageTemplateSchema = z.object({
   cure: z.object({ targetFraction: z.number().gt(0).max(1) }).nullable().optional(),
   leadTime: z.object({ workingDays: z.number().int().min(0).max(250), countedFrom: z.enum(['now', 'order']) }).nullable().optional(),
   when: z.enum(['always', 'crane', 'no_crane']).optional(),
+  mayContinueNextDay: z.boolean().optional(),
 });
 
 export const LinkTemplateSchema = z.object({

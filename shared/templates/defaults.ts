@@ -4,6 +4,9 @@ import type { InstallTemplate, LinkTemplate, StageTemplate } from './types.ts';
  * The default templates. Durations are a firm's usual working minutes (common practice, no source):
  * a working day is about 540 minutes. Lead times: crane 5 working days, electrician 3 (common
  * practice, no source); the unit's delivery waits on the maker's lead time from the order.
+ * Digging and block laying may stop at the end of the day and carry on the next
+ * (`mayContinueNextDay`); a pour, a lift, a delivery or an electrician's visit is done within one
+ * working day (common practice, no source).
  */
 
 const fixed = (minutes: number) => ({ kind: 'fixed', minutes }) as const;
@@ -54,9 +57,9 @@ export const IN_GROUND_TEMPLATE: InstallTemplate = {
   name: 'In-ground pit',
   stages: [
     SURVEY,
-    { kind: 'excavation', name: 'Excavate pit', duration: { kind: 'excavation', fallbackMinutes: 720 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }] },
+    { kind: 'excavation', name: 'Excavate pit', duration: { kind: 'excavation', fallbackMinutes: 720 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }], mayContinueNextDay: true },
     { kind: 'base_pour', name: 'Pour reinforced base', duration: fixed(300), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
-    { kind: 'walls', name: 'Block retaining walls', duration: fixed(960), requirements: [{ kind: 'groundworks_crew', count: 1 }] },
+    { kind: 'walls', name: 'Block retaining walls', duration: fixed(960), requirements: [{ kind: 'groundworks_crew', count: 1 }], mayContinueNextDay: true },
     FIRST_FIX,
     DELIVERY,
     LIFT('Crane lift into pit'),
@@ -71,9 +74,9 @@ export const SEMI_RECESSED_TEMPLATE: InstallTemplate = {
   name: 'Semi-recessed pit',
   stages: [
     SURVEY,
-    { kind: 'excavation', name: 'Excavate part-depth pit', duration: { kind: 'excavation', fallbackMinutes: 480 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }] },
+    { kind: 'excavation', name: 'Excavate part-depth pit', duration: { kind: 'excavation', fallbackMinutes: 480 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }], mayContinueNextDay: true },
     { kind: 'base_pour', name: 'Pour reinforced base', duration: fixed(300), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
-    { kind: 'walls', name: 'Block walls to part height', duration: fixed(540), requirements: [{ kind: 'groundworks_crew', count: 1 }] },
+    { kind: 'walls', name: 'Block walls to part height', duration: fixed(540), requirements: [{ kind: 'groundworks_crew', count: 1 }], mayContinueNextDay: true },
     FIRST_FIX,
     DELIVERY,
     LIFT('Crane lift into place'),

@@ -19,6 +19,8 @@ export interface PlannedStage {
   requirements: Requirement[];
   cure: { targetFraction: number } | null;
   leadTime: { workingDays: number; countedFrom: 'now' | 'order' } | null;
+  /** May a booking of it run over into the next working day (see StageTemplate.mayContinueNextDay). */
+  mayContinueNextDay: boolean;
   cautions: string[];
 }
 
@@ -60,6 +62,7 @@ export function planFromTemplate(template: InstallTemplate, options: PlanOptions
       requirements: s.requirements.map((r) => ({ ...r })),
       cure: s.cure ? { ...s.cure } : null,
       leadTime,
+      mayContinueNextDay: s.mayContinueNextDay === true,
       cautions: cautionsFor(s.kind),
     };
   });

@@ -21,6 +21,11 @@ export interface StageTemplate {
   leadTime?: { workingDays: number; countedFrom: 'now' | 'order' } | null;
   /** 'crane' stages are planned only when a crane is needed; 'no_crane' only when it is not. */
   when?: 'always' | 'crane' | 'no_crane';
+  /**
+   * A stage no longer than a working day is booked within one working day unless this is true
+   * (work that can stop overnight and carry on). Longer stages run over days either way. Default false.
+   */
+  mayContinueNextDay?: boolean;
 }
 
 export interface LinkTemplate {

@@ -7,7 +7,7 @@ import type { JobQuantities } from '@shared/quantities/job-quantities';
 import type { FileView } from '@shared/schemas/files';
 import type { SurveyFields, SurveyView } from '@shared/schemas/surveys';
 import type { DaySheetList } from '@shared/schemas/day-sheets';
-import type { CreateJob, UpdateJob } from '@shared/schemas/jobs';
+import type { CreateJob, NextReference, UpdateJob } from '@shared/schemas/jobs';
 import type { InstallationType, JobStatus } from '@/api/types';
 
 export interface JobDetail {
@@ -27,6 +27,11 @@ export interface JobDetail {
   promisedTo: string | null;
   orderedOn: string | null;
   version: number;
+  /** The unit's model and maker (read through the job, so crew see it too). */
+  unitName: string | null;
+  unitMaker: string | null;
+  /** When the survey was saved; null when there is none yet. */
+  surveyedAt: string | null;
 }
 
 export interface StageBooking { id: string; resourceId: string; resourceName: string; resourceKind: string; startsAt: string; endsAt: string; state: string }
@@ -40,7 +45,8 @@ export interface JobStage {
   cure: { targetFraction: number } | null;
   notes: string | null;
   cautions: string[];
-  after: { stageId: string; kind: string | null; type: string; lagAmount: number; lagUnit: string }[];
+  /** The stages this one waits for, by the names they have on this job. */
+  after: { stageId: string; kind: string | null; name: string | null; type: string; lagAmount: number; lagUnit: string }[];
   bookings: StageBooking[];
 }
 
@@ -57,6 +63,7 @@ export const jobWork = {
   createJob: (body: CreateJob) => api.post<JobDetail>('/api/jobs', body),
   updateJob: (id: string, body: UpdateJob) => api.patch<JobDetail>(`/api/jobs/${id}`, body),
   units: () => api.get<{ items: UnitOption[] }>('/api/units'),
+  nextReference: () => api.get<NextReference>('/api/job-references/next'),
   stages: (id: string) => api.get<{ items: JobStage[] }>(`/api/jobs/${id}/stages`),
   plan: (id: string) => api.post<{ crane: { needed: boolean; reason: string } }>(`/api/jobs/${id}/plan`),
   quantities: (id: string) => api.get<QuantitiesBody>(`/api/jobs/${id}/quantities`),

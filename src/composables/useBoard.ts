@@ -2,22 +2,26 @@ import { computed, ref, shallowRef, onScopeDispose } from 'vue';
 import { api, ApiError, request } from '@/api/client';
 import type { BoardBooking, BoardData } from '@shared/board-data';
 import { ownViolations, toEngineBoard } from '@shared/board-data';
+import type { UndoEntryView } from '@shared/schemas/bookings';
 import { analyseBoard, createBoardIndex, type BoardIndex, type BoardAnalysis } from '@shared/scheduler/index';
-import { callFor, fromView, undoOf, type Intent, type WriteResult } from '@/components/board/drop-actions';
+import { callFor, fromView, resultOf, type Intent, type WriteResult } from '@/components/board/drop-actions';
 
 export interface BoardRange { from: number; to: number }
 
 /**
  * The board's data for the visible range, the engine's index over it (for checks while dragging)
  * and its full analysis (for the violations shown on events and in the job panel). Writes go
- * through `send`, which merges the server's answer and remembers how to undo it.
+ * through `send`, which merges the server's answer. The undo stack is the server's, per session
+ * (GET/POST /api/undo), so it survives a reload; an undo is applied there through the guarded
+ * write path, and the board reloads.
  */
 export function useBoard() {
   const data = shallowRef<BoardData | null>(null);
   const loading = ref(false);
   const error = shallowRef<ApiError | null>(null);
   const saving = ref(false);
-  const lastUndo = shallowRef<{ label: string; intent: Intent } | null>(null);
+  const undoStack = shallowRef<UndoEntryView[]>([]);
+  const lastUndo = computed(() => undoStack.value[0] ?? null);
   let controller: AbortController | null = null;
   let range: BoardRange | null = null;
 
@@ -30,6 +34,15 @@ export function useBoard() {
     const errorCount = violations.filter((v) => v.severity === 'error').length;
     return { ...full, violations, errorCount, warningCount: violations.length - errorCount };
   });
+
+  /** The session's changes that can be taken back (the server keeps them). */
+  async function loadUndo(): Promise<void> {
+    try {
+      undoStack.value = (await api.get<{ items: UndoEntryView[] }>('/api/undo')).items;
+    } catch {
+      undoStack.value = [];
+    }
+  }
 
   async function load(next: BoardRange = range ?? { from: Date.now(), to: Date.now() + 7 * 86_400_000 }): Promise<void> {
     range = next;
@@ -55,37 +68,48 @@ export function useBoard() {
     const current = data.value;
     if (!current) return;
     const byId = new Map(saved.map((b) => [b.id, b]));
-    const bookings = current.bookings.filter((b) => !removedIds.includes(b.id)).map((b) => byId.get(b.id) ?? b);
+    // The board's own fields (a proposal, an overdue flag) stay until the next load; a decline goes with its state.
+    const bookings = current.bookings.filter((b) => !removedIds.includes(b.id)).map((b) => {
+      const saved = byId.get(b.id);
+      return saved ? { ...b, ...saved, ...(saved.state !== 'declined' ? { declined: null } : {}) } : b;
+    });
     for (const b of saved) if (!current.bookings.some((c) => c.id === b.id)) bookings.push(b);
     data.value = { ...current, bookings };
   }
 
   /** Sends one change to the server; throws the server's refusal for the caller to explain. */
-  async function send(intent: Intent, label: string): Promise<WriteResult> {
+  async function send(intent: Intent): Promise<WriteResult> {
     const call = callFor(intent);
-    const before = data.value?.bookings ?? [];
     saving.value = true;
     try {
-      const result = await request<WriteResult | undefined>(call.path, { method: call.method, body: call.body });
+      const result = resultOf(await request<unknown>(call.path, { method: call.method, body: call.body }));
       const firmId = data.value?.firmId ?? '';
       if (intent.kind === 'remove') merge([], [intent.bookingId]);
-      else merge((result?.bookings ?? []).map((v) => fromView(v, firmId)));
-      const undo = result ? undoOf(intent, before, result.bookings) : null;
-      lastUndo.value = undo ? { label, intent: undo } : null;
-      return result ?? { bookings: [], warnings: [] };
+      else merge(result.bookings.map((v) => fromView(v, firmId)));
+      void loadUndo();
+      return result;
     } finally {
       saving.value = false;
     }
   }
 
-  async function undo(): Promise<void> {
-    const entry = lastUndo.value;
-    if (!entry) return;
-    await send(entry.intent, `Undo ${entry.label}`);
-    lastUndo.value = null;
+  /** Takes back the session's newest change (on the server), then shows the board as it is now. */
+  async function undo(): Promise<{ label: string }> {
+    saving.value = true;
+    try {
+      const done = await api.post<{ undone: UndoEntryView; remaining: UndoEntryView[] }>('/api/undo', {});
+      undoStack.value = done.remaining;
+      await load();
+      return done.undone;
+    } catch (caught) {
+      await loadUndo();
+      throw caught;
+    } finally {
+      saving.value = false;
+    }
   }
 
   onScopeDispose(() => controller?.abort());
 
-  return { data, loading, error, saving, index, analysis, lastUndo, load, merge, send, undo };
+  return { data, loading, error, saving, index, analysis, lastUndo, undoStack, load, loadUndo, merge, send, undo };
 }

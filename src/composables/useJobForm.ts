@@ -24,10 +24,18 @@ export function useJobForm(jobId: Ref<string | null>) {
   const units = ref<UnitOption[]>([]);
   const loaded = ref<JobDetail | null>(null);
   const saving = ref(false);
+  /** The reference a new job would get (the firm's highest + 1), offered in the box and still editable. */
+  const suggestedReference = ref<string | null>(null);
 
   async function load(): Promise<void> {
+    if (!jobId.value) {
+      const [unitList, next] = await Promise.all([jobWork.units(), jobWork.nextReference()]);
+      units.value = unitList.items;
+      suggestedReference.value = next.nextReference;
+      if (draft.reference === '') draft.reference = next.nextReference;
+      return;
+    }
     units.value = (await jobWork.units()).items;
-    if (!jobId.value) return;
     const job = await jobWork.job(jobId.value);
     loaded.value = job;
     for (const f of FIELDS) (draft as Record<string, unknown>)[f] = job[f] ?? '';
@@ -53,12 +61,17 @@ export function useJobForm(jobId: Ref<string | null>) {
     try {
       return loaded.value ? await jobWork.updateJob(loaded.value.id, result.data as UpdateJob) : await jobWork.createJob(result.data as CreateJob);
     } catch (error) {
-      if (error instanceof ApiError) errors.value = Object.fromEntries(error.errors.map((e) => [e.field, e.message]));
+      if (error instanceof ApiError) {
+        errors.value = Object.fromEntries(error.errors.map((e) => [e.field, e.message]));
+        // A reference taken meanwhile: the server names the next free one; offer it.
+        const next = error.problem.nextReference;
+        if (typeof next === 'string') suggestedReference.value = next;
+      }
       throw error;
     } finally {
       saving.value = false;
     }
   }
 
-  return { draft, errors, units, loaded, saving, load, save };
+  return { draft, errors, units, loaded, saving, suggestedReference, load, save };
 }

@@ -8,7 +8,9 @@ export type SurveyDraft = Required<Omit<SurveyInput, 'surveyedAt' | 'accessWidth
 const blank = (): SurveyDraft => ({
   accessWidthMm: null, accessHeightMm: null, steps: 0, gates: 0, overheadObstructions: false, overheadNotes: null,
   groundType: null, buriedServicesNotes: null, craneStandingPosition: null, craneDistanceToSetDownM: null,
-  consumerUnitDistanceM: null, mainFuseAmps: null, drainage: null, craneRequired: null, excavatorSize: null, notes: null,
+  consumerUnitDistanceM: null, mainFuseAmps: null, drainage: null, craneRequired: null, excavatorSize: null,
+  evChargerAmps: null, electricShowerAmps: null, heatPumpAmps: null, otherLargeLoadAmps: null, otherLargeLoadNotes: null,
+  earthingArrangement: null, hoseFlowLitresPerMinute: null, notes: null,
 });
 
 /**

@@ -49,6 +49,34 @@ export const ownershipColours = {
   partner: { text: '#4F2F86', background: '#EEE8F7' },
 } as const satisfies Record<string, TagColours>;
 
+/**
+ * Booking states on the board: ink on a pale tint, framed by an edge of the state's hue. The edge's
+ * shape (dashed, dotted, solid, double, thick left) tells the state as well (board.css), and so does
+ * the symbol in the label, so colour is never the only sign.
+ */
+export const bookingStateColours = {
+  pencilled: { background: '#EEF3F4', edge: '#5E6F75' },
+  sent: { background: '#E2EDF8', edge: '#164B7C' },
+  confirmed: { background: '#D7EDE6', edge: '#17663F' },
+  declined: { background: '#FBE3E3', edge: '#8F1D1D' },
+  on_site: { background: '#FCEFD4', edge: '#7A4500' },
+  done: { background: '#ECE8E2', edge: '#857D73' },
+} as const satisfies Record<string, { background: string; edge: string }>;
+
+/**
+ * The booking-state colours as CSS custom properties (`--wl-booking-on-site-edge`, …), set by the
+ * board on its own page (the only place that draws bookings by state).
+ * @example bookingStateVariables()['--wl-booking-sent-background'] // '#E2EDF8'
+ */
+export function bookingStateVariables(): Record<string, string> {
+  const variables: Record<string, string> = {};
+  for (const [state, c] of Object.entries(bookingStateColours)) {
+    variables[`--wl-booking-${state.replace(/_/g, '-')}-background`] = c.background;
+    variables[`--wl-booking-${state.replace(/_/g, '-')}-edge`] = c.edge;
+  }
+  return variables;
+}
+
 /** Type scale on Work Sans: 16 px base, ratio 1.2, in rem. */
 export const typeScale = {
   small: '0.833rem',

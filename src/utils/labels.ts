@@ -1,5 +1,8 @@
 /** Words the app shows for the server's codes. */
-import type { InstallationType, JobStatus, Ownership, ResourceCategory, Role } from '@/api/types';
+import type { JobStatus, Ownership, ResourceCategory, Role } from '@/api/types';
+
+/** One wording of installation types for every page: the shared map (shared/installation-types.ts). */
+export { INSTALLATION_TYPE_LABELS, installationTypeLabel } from '@shared/installation-types';
 
 export const JOB_STATUS_LABELS: Record<JobStatus, string> = {
   enquiry: 'Enquiry',
@@ -8,13 +11,6 @@ export const JOB_STATUS_LABELS: Record<JobStatus, string> = {
   in_progress: 'In progress',
   handed_over: 'Handed over',
   cancelled: 'Cancelled',
-};
-
-export const INSTALLATION_TYPE_LABELS: Record<InstallationType, string> = {
-  in_ground: 'In-ground',
-  semi_recessed: 'Semi-recessed',
-  slab: 'On a slab',
-  deck: 'On a deck',
 };
 
 export const ROLE_LABELS: Record<Role, string> = {

@@ -37,18 +37,18 @@ describe('the scheduler on the board', () => {
     await signInThroughPage(page, app.url, account('scheduler').email);
     await page.waitForURL(/\/board/);
     const gang = await idOf(app.ctx.knex, 'resources', { name: 'Millstone gang' });
-    // Week of Monday 14 September 2026, rows filtered to the groundworks firm.
+    // TW-2423 is an in-ground job waiting in the tray. Week of Monday 14 September 2026, rows filtered to the groundworks firm.
     await page.goto(`${app.url}/board?view=week&date=2026-09-14&q=Millstone`);
     await page.waitForSelector(`td.fc-timeline-lane[data-resource-id="${gang}"]`);
-    // 07:00–10:00 slot; a third of the way in is 08:00, when the gang starts work.
-    await dragTrayStage('TW-2417 · Pour reinforced base', gang, '2026-09-14T07:00:00', 1 / 3);
+    // The week shows mornings (06:00–12:00) and afternoons; a third of the way into Monday morning is 08:00, when the gang starts work.
+    await dragTrayStage('TW-2423 · Pour reinforced base', gang, '2026-09-14T06:00:00', 1 / 3);
     await page.getByText(/Saved/).first().waitFor({ timeout: 10_000 });
 
     await page.reload();
-    const event = page.locator('.fc-event', { hasText: 'TW-2417 · Pour reinforced base' });
+    const event = page.locator('.fc-event', { hasText: 'TW-2423 · Pour reinforced base' });
     await event.first().waitFor({ timeout: 10_000 });
     const rows = await app.ctx.knex('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
-      .where({ 'jobs.reference': 'TW-2417', 'stages.kind': 'base_pour' }).select('bookings.*');
+      .where({ 'jobs.reference': 'TW-2423', 'stages.kind': 'base_pour' }).select('bookings.*');
     expect(rows).toHaveLength(1);
     // 08:00 BST is 07:00 UTC; the pour lasts its 300 working minutes.
     expect(rows[0].startsAt.toISOString()).toBe('2026-09-14T07:00:00.000Z');
@@ -61,11 +61,11 @@ describe('the scheduler on the board', () => {
     await page.goto(`${app.url}/board?view=week&date=2026-09-14&q=Heron`);
     await page.waitForSelector(`td.fc-timeline-lane[data-resource-id="${heron}"]`);
     // Wednesday 16 September 08:00: two days after the pour, far short of 70 % strength.
-    await dragTrayStage('TW-2417 · Crane lift into pit', heron, '2026-09-16T07:00:00', 1 / 3);
+    await dragTrayStage('TW-2423 · Crane lift into pit', heron, '2026-09-16T06:00:00', 1 / 3);
     const refusal = page.getByText(/Not booked:.*(cure|strength)/i);
     await refusal.first().waitFor({ timeout: 10_000 });
     const rows = await app.ctx.knex('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
-      .where({ 'jobs.reference': 'TW-2417', 'stages.kind': 'lift' });
+      .where({ 'jobs.reference': 'TW-2423', 'stages.kind': 'lift' });
     expect(rows).toEqual([]);
     await page.screenshot({ path: 'tests/e2e/artifacts/board-refused-lift.png' });
   }, 90_000);

@@ -49,6 +49,9 @@ export async function startMailTestApp(overrides: Record<string, string> = {}): 
   const ctx = await startTestApp({ MAIL_QUEUE: `mail-test-${process.pid}-${Date.now()}`, ...overrides });
   // Tables without a foreign key to the demo rows are not emptied by the helper's cascade.
   await ctx.knex.raw('TRUNCATE outbox, link_uses, link_attempts RESTART IDENTITY');
+  // The demo's open requests were sent the day before the test's today, which is months before the
+  // real clock the relay's reminder scan reads: dated now, only the one the demo flagged is overdue.
+  await ctx.knex('booking_requests').whereNull('overdue_at').update({ requested_at: ctx.knex.fn.now() });
   const inbox = new Inbox();
   await inbox.clear();
   const pipelines: MailPipeline[] = [];

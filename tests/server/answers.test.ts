@@ -2,6 +2,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, signIn, type Agent } from '../helpers/server.ts';
 import { answerLinks, calendarOf, pencilIn, startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
+import { unbookJobs } from '../helpers/demo.ts';
 import { LinkSigner } from '../../server/services/links.ts';
 import type { InboxMessage } from '../../scripts/fakes/smtp-inbox.ts';
 
@@ -12,6 +13,8 @@ const web = () => request(ctx.waterline.app);
 beforeAll(async () => {
   ctx = await startMailTestApp();
   ctx.startPipeline();
+  // The jobs this file books, at dates of its own, start with nothing booked.
+  await unbookJobs(ctx.knex, 'TW-2419', 'TW-2420', 'TW-2421');
   scheduler = await signIn(ctx, account('scheduler').email);
 });
 afterAll(async () => { await ctx.close(); });
@@ -159,12 +162,13 @@ describe('proposing another time', () => {
   });
 
   it('lets the scheduler refuse a proposal: the slot stands and the partner is asked again', async () => {
-    const { id, mail } = await requested({ job: 'TW-2424', stage: 'electrical_first_fix', resource: 'Gareth Pryce', startsAt: '2027-05-18T08:00:00Z', endsAt: '2027-05-18T12:00:00Z' });
-    await web().post(answerLinks(mail).propose).type('form').send({ date: '2027-05-19', start: '09:00', end: '13:00' }).expect(200);
+    // The first fix comes before the unit goes in and is connected (Thu 13 May, above): Thu 6 May.
+    const { id, mail } = await requested({ job: 'TW-2424', stage: 'electrical_first_fix', resource: 'Gareth Pryce', startsAt: '2027-05-06T08:00:00Z', endsAt: '2027-05-06T12:00:00Z' });
+    await web().post(answerLinks(mail).propose).type('form').send({ date: '2027-05-07', start: '09:00', end: '13:00' }).expect(200);
     await ctx.inbox.clear();
     const refused = await scheduler.post(`/api/bookings/${id}/proposal/refuse`).set('X-CSRF-Token', scheduler.csrf).send({ version: 2 }).expect(200);
     // The slot stands and the partner is asked about it again: a new request version, with new links.
-    expect(refused.body).toMatchObject({ version: 3, state: 'sent', startsAt: '2027-05-18T08:00:00.000Z', answer: { proposalStatus: 'refused' } });
+    expect(refused.body).toMatchObject({ version: 3, state: 'sent', startsAt: '2027-05-06T08:00:00.000Z', answer: { proposalStatus: 'refused' } });
     const [again] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Your proposed time could not be used'));
     // The new links work: the partner confirms the original slot.
     await web().post(answerLinks(again!).confirm).type('form').send({}).expect(200);

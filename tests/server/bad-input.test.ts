@@ -196,7 +196,10 @@ describe('database refusals in the user’s words', () => {
     const res = await write(scheduler, 'post', '/api/jobs', { ...NEW_JOB, reference: 'TW-2405' });
     expect(res.status).toBe(409);
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
-    expect(res.body).toMatchObject({ detail: 'Another job already has this reference.', errors: [{ field: 'reference', message: 'is already used by another job' }] });
+    // The next free reference is named, so the person can take it (the firm's highest TW- reference + 1).
+    const next = (await scheduler.get('/api/job-references/next').expect(200)).body.nextReference as string;
+    expect(res.body).toMatchObject({ code: 'duplicate-reference', nextReference: next, errors: [{ field: 'reference', message: `is already used by another job; ${next} is free` }] });
+    expect(res.body.detail).toMatch(new RegExp(`^TW-2405 is already the reference of another job \\(.+\\)\\. ${next} is the next free one\\.$`));
     expectPlain(res.body);
   });
 

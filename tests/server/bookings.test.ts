@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { unbookJobs } from '../helpers/demo.ts';
 
 let ctx: TestContext;
 let scheduler: Agent;
@@ -10,6 +11,8 @@ let crew: string;
 beforeAll(async () => {
   ctx = await startTestApp();
   scheduler = await signIn(ctx, account('scheduler').email);
+  // The planned jobs this file books at dates of its own start with nothing booked.
+  await unbookJobs(ctx.knex, 'TW-2417', 'TW-2418', 'TW-2420');
   // Two unbooked in-ground jobs from the tray (TW-2422, TW-2423) both need an install crew for the lift.
   stageA = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2422' }), kind: 'lift' });
   stageB = await idOf(ctx.knex, 'stages', { job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2423' }), kind: 'lift' });

@@ -4,19 +4,22 @@ import { Booking } from '../../server/models/index.ts';
 import { actorFor } from '../../server/services/session.ts';
 import { BookingsService } from '../../server/services/bookings.ts';
 import { answerLinks, calendarOf, pencilIn, startMailTestApp, waitUntil, type MailTestContext } from '../helpers/mail.ts';
+import { unbookJobs } from '../helpers/demo.ts';
 import { scanOverdueRequests } from '../../server/services/reminders.ts';
 
 let ctx: MailTestContext;
 let scheduler: Agent;
 let lift: { id: string; version: number };
 
-// TW-2417 is a tray job of the demo scenario (in-ground, householder Freya Lund, 56 Church Street, Bingley).
+// TW-2417 is a job of the demo scenario (in-ground, householder Freya Lund, 56 Church Street, Bingley),
+// booked here from nothing, as TW-2420 is.
 const SLOT = { startsAt: '2027-03-10T08:00:00.000Z', endsAt: '2027-03-10T12:00:00.000Z' }; // GMT: 08:00–12:00 local
 
 beforeAll(async () => {
   ctx = await startMailTestApp();
   ctx.startPipeline();
   scheduler = await signIn(ctx, account('scheduler').email);
+  await unbookJobs(ctx.knex, 'TW-2417', 'TW-2420');
   lift = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'lift', resource: '60 t mobile crane', ...SLOT });
 });
 afterAll(async () => { await ctx.close(); });

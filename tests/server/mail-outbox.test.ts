@@ -4,6 +4,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, signIn, type Agent } from '../helpers/server.ts';
 import { pencilIn, startMailTestApp, waitUntil, type MailTestContext } from '../helpers/mail.ts';
+import { unbookJobs } from '../helpers/demo.ts';
 import { startRedis, type RedisHandle } from '../../scripts/services/redis.ts';
 import { run } from '../../scripts/services/shell.ts';
 import { queueBookingMessage } from '../../server/services/outbox.ts';
@@ -23,6 +24,7 @@ const about = (bookingId: string) => (m: { attachments: { content: string }[] })
 beforeAll(async () => {
   redis = await startRedis(dir, PORT);
   ctx = await startMailTestApp();
+  await unbookJobs(ctx.knex, 'TW-2417');
   pipeline = ctx.startPipeline(`redis://127.0.0.1:${PORT}/0`);
   scheduler = await signIn(ctx, account('scheduler').email);
 });

@@ -39,8 +39,10 @@ describe('migrations', () => {
   it('keep older data that held one resource twice: the later booking goes back to pencilled, with an audit row saying why', async () => {
     await knex.migrate.latest(migrationConfig);
     await knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
-    while (String(await knex.migrate.currentVersion(migrationConfig)) >= '20261220000100') await knex.migrate.down(migrationConfig);
+    // The demo is planned with today's board loader, so it is seeded on today's schema and the
+    // migrations are then taken back to before the rule, data and all.
     await seedDemo(knex, { today: TEST_TODAY });
+    while (String(await knex.migrate.currentVersion(migrationConfig)) >= '20261220000100') await knex.migrate.down(migrationConfig);
     const crew = String((await knex('resources').where('name', 'Crew Otter').first('id')).id);
     const stages = await knex('stages').whereNotExists(knex('bookings').whereRaw('bookings.stage_id = stages.id')).limit(2).pluck('id');
     const [first, second] = await knex('bookings').insert(stages.map((stageId, n) => ({

@@ -3,6 +3,7 @@ import ICAL from 'ical.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, idOf, signIn, type Agent } from '../helpers/server.ts';
 import { pencilIn, startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
+import { unbookJobs } from '../helpers/demo.ts';
 
 let ctx: MailTestContext;
 let scheduler: Agent;
@@ -13,6 +14,7 @@ beforeAll(async () => {
   ctx = await startMailTestApp();
   scheduler = await signIn(ctx, account('scheduler').email);
   partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
+  await unbookJobs(ctx.knex, 'TW-2417');
   const b = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'electrical_connect', resource: 'Priya Nair', startsAt: '2027-08-03T08:00:00Z', endsAt: '2027-08-03T12:00:00Z' });
   await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
   slot = b.id;

@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { account, idOf, signIn, startTestApp, TEST_TODAY, type Agent, type TestContext } from '../helpers/server.ts';
+import { unbookJobs } from '../helpers/demo.ts';
 import { analyseBoard } from '../../shared/scheduler/index.ts';
 import { toEngineBoard, type BoardData } from '../../shared/board-data.ts';
 import type { DaySheetList } from '../../shared/schemas/day-sheets.ts';
@@ -26,6 +27,8 @@ let port = 0;
 
 beforeAll(async () => {
   ctx = await startTestApp();
+  // The demo jobs these tests book at dates of their own start with nothing booked.
+  await unbookJobs(ctx.knex, 'TW-2417', 'TW-2418', 'TW-2419', 'TW-2420');
   scheduler = await signIn(ctx, account('scheduler').email);
   owner = await signIn(ctx, account('owner').email);
   crew = await signIn(ctx, account('crew').email);
@@ -134,15 +137,19 @@ describe('a partner firm', () => {
     });
 
     it('names other firms\' people on the same stage by their trade, and leaves out their pencilled bookings', async () => {
-      // Tideway's crew on the same stage as Tom, confirmed; its excavator pencilled there too.
-      await insertBooking('TW-2417', 'electrical_connect', 'Crew Heron', '2026-06-08T13:00:00Z', '2026-06-08T15:00:00Z', 'confirmed');
-      await insertBooking('TW-2417', 'electrical_connect', 'Tracked dumper', '2026-06-08T13:00:00Z', '2026-06-08T15:00:00Z', 'pencilled');
+      // Tideway's crew on the same stage as Tom, confirmed (a crew with nothing else confirmed then); its dumper pencilled there too.
+      const [from, to] = ['2026-06-08T13:00:00Z', '2026-06-08T15:00:00Z'];
+      const { name: crewName } = await ctx.knex('resources').where({ kind: 'install_crew', firm_id: await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }) })
+        .whereNotExists(ctx.knex('bookings').whereRaw('bookings.resource_id = resources.id').whereIn('state', ['confirmed', 'on_site']).where('starts_at', '<', to).where('ends_at', '>', from))
+        .orderBy('id').first('name');
+      await insertBooking('TW-2417', 'electrical_connect', crewName, from, to, 'confirmed');
+      await insertBooking('TW-2417', 'electrical_connect', 'Tracked dumper', from, to, 'pencilled');
       const tw = visits(await sheet()).find((v) => v.bookingId === tidewaySent)!;
-      expect(tw.alongside).toEqual([{ name: 'Crew Heron', kind: 'install_crew', firmName: 'Tideway Hot Tubs' }]);
+      expect(tw.alongside).toEqual([{ name: crewName, kind: 'install_crew', firmName: 'Tideway Hot Tubs' }]);
       // The office's own sheet shows both.
       const office = (await scheduler.get('/api/day-sheets').query({ date: '2026-06-08' }).expect(200)).body as DaySheetList;
       const tom = office.sheets.flatMap((s) => s.visits).find((v) => v.bookingId === tidewaySent)!;
-      expect(tom.alongside.map((a) => a.name).sort()).toEqual(['Crew Heron', 'Tracked dumper']);
+      expect(tom.alongside.map((a) => a.name).sort()).toEqual([crewName, 'Tracked dumper']);
     });
   });
 });
@@ -269,7 +276,8 @@ describe('the live board stream', () => {
     try {
       const theirs = await moorview.post('/api/bookings').set('X-CSRF-Token', moorview.csrf).send({
         stageId: await freshStage('Moorview Spas', 'MV-401'),
-        resourceId: await idOf(ctx.knex, 'resources', { name: 'Priya Nair' }), startsAt: '2026-06-23T09:00:00Z', endsAt: '2026-06-23T10:00:00Z',
+        // Tue 20 Oct, 10:00–11:00 BST: after the demo's planned work, nobody has Priya then.
+        resourceId: await idOf(ctx.knex, 'resources', { name: 'Priya Nair' }), startsAt: '2026-10-20T09:00:00Z', endsAt: '2026-10-20T10:00:00Z',
       });
       expect(theirs.status, JSON.stringify(theirs.body)).toBe(201);
       const theirId = String(theirs.body.bookings[0].id);

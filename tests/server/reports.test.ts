@@ -124,7 +124,8 @@ describe('the hire report', () => {
     expect(p.bookingsOutsideHire).toBe(1); // Mon 29 Jun
     expect(p.suggestions.map((s) => [s.kind, s.savesPence])).toEqual([['shorten_start', 14500], ['shorten_end', 2 * 14500]]);
     expect(p.suggestions[1]!.label).toBe('Off-hire 2 days earlier (last paid day Wed 24 Jun): saves £290.00');
-    expect(p.link).toBe('/board?view=day&date=2026-06-22&q=Test+mini+digger+%28hired%29');
+    // The board at the hire's week, on the digger's row, with the hire drawn (a single idle day showed an empty day).
+    expect(p.link).toBe(`/board?view=week&date=2026-06-22&q=Test+mini+digger+%28hired%29&hire=${hireId}`);
     // Idle cost per week: all three idle days fall in the week of Mon 22 Jun.
     expect(report.idlePerWeek).toEqual([{ week: '2026-06-22', idleDays: 3, costPence: 43500 }]);
   });
@@ -169,7 +170,7 @@ describe('the utilisation report', () => {
 
   it('exports per resource and week to CSV', async () => {
     const res = await manager.get(`/api/reports/utilisation.csv?${qs(WEEK)}`).expect(200);
-    expect(res.text.split('\r\n')).toContain('Crew Wren,Tideway Hot Tubs,crew,2026-06-22,45.00,18.00,40.0,');
+    expect(res.text.split('\r\n')).toContain('Crew Wren,Tideway Hot Tubs,crew,2026-06-22,45.00,18.00,40.0');
   });
 });
 
@@ -185,7 +186,9 @@ describe('the clash report', () => {
     // The overlap: 10:00–12:00 BST on Thu 25 Jun = 09:00–11:00 UTC.
     expect([clash.from, clash.to]).toEqual([Date.parse('2026-06-25T09:00:00Z'), Date.parse('2026-06-25T11:00:00Z')]);
     expect(clash.stageName).toBe('Backfill'); // the later-booked of the two moves
-    expect(clash.link).toBe(`/board?view=day&date=2026-06-25&job=${jobId}`);
+    // Both sides: Crew Finch's row, no job filter, both bookings outlined.
+    const finchBookings = (await ctx.knex('bookings').where('resource_id', finch).orderBy('id').select('id')).map((b) => String(b.id));
+    expect(clash.link).toBe(`/board?view=day&date=2026-06-25&q=Crew+Finch&highlight=${finchBookings.join('%2C')}`);
     expect(clash.message).toContain('Crew Finch');
     expect(clash.fixes.length).toBeGreaterThan(0);
     for (const f of clash.fixes) {
@@ -210,7 +213,7 @@ describe('the clash report', () => {
   it('exports to CSV, quoting fields with commas, quotes and newlines', async () => {
     const res = await manager.get(`/api/reports/clashes.csv?${qs(JUNE)}`).expect(200);
     expect(res.headers['content-disposition']).toBe('attachment; filename="waterline-clashes-2026-05-31-to-2026-07-04.csv"');
-    expect(res.text.startsWith('Date,Problem,Resources,Jobs,Stage to move,What the check says,Cost as booked (£),Suggested fixes,Board link\r\n')).toBe(true);
+    expect(res.text.startsWith('\uFEFFDate,Problem,Resources,Jobs,Stage to move,What the check says,Cost as booked (£),Suggested fixes,Board link\r\n')).toBe(true);
     expect(res.text).toContain('2026-06-29,Machine used outside its hire,Test mini digger (hired),TW-9001,Level the pit,');
   });
 });

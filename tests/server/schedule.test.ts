@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { unbookJobs } from '../helpers/demo.ts';
 
 let ctx: TestContext;
 let scheduler: Agent;
@@ -11,6 +12,8 @@ let heron: string;
 beforeAll(async () => {
   ctx = await startTestApp();
   scheduler = await signIn(ctx, account('scheduler').email);
+  // The jobs this file books from the tray, at dates of its own.
+  await unbookJobs(ctx.knex, 'TW-2417', 'TW-2419', 'TW-2421');
   const job = await idOf(ctx.knex, 'jobs', { reference: 'TW-2417' });
   base = await idOf(ctx.knex, 'stages', { job_id: job, kind: 'base_pour' });
   lift = await idOf(ctx.knex, 'stages', { job_id: job, kind: 'lift' });
@@ -38,9 +41,10 @@ describe('when the base has not cured', () => {
     expect(await ctx.knex('bookings').where({ stage_id: lift })).toEqual([]);
   });
 
-  it('takes the lift once the base has reached its strength', async () => {
-    const res = await post('/api/bookings', { stageId: lift, resourceId: heron, startsAt: '2026-09-22T07:00:00Z' }).expect(201);
-    expect(res.body.bookings[0].endsAt).toBe('2026-09-22T11:00:00.000Z');
+  it('takes the lift once the base has reached its strength and the walls (not booked yet) could be built', async () => {
+    // Cured Mon 21 Sep 10:56 (11:00); the walls' 16 working hours then end Wed 23 Sep 09:00 BST.
+    const res = await post('/api/bookings', { stageId: lift, resourceId: heron, startsAt: '2026-09-23T08:00:00Z' }).expect(201);
+    expect(res.body.bookings[0].endsAt).toBe('2026-09-23T12:00:00.000Z');
     expect(res.body.warnings.map((v: { kind: string }) => v.kind)).toContain('capacity');
   });
 });
@@ -55,8 +59,9 @@ describe('moving a stage with its dependents', () => {
     expect(res.status, JSON.stringify(res.body)).toBe(200);
     const byStage = Object.fromEntries(res.body.bookings.map((b: { stageId: string }) => [b.stageId, b]));
     expect(byStage[base]).toMatchObject({ startsAt: '2026-09-15T07:00:00.000Z', endsAt: '2026-09-15T12:00:00.000Z', version: 2 });
-    // One working day (9 working hours) later on the crew's Mon–Fri 08:00–17:00 calendar.
-    expect(byStage[lift]).toMatchObject({ startsAt: '2026-09-23T07:00:00.000Z', endsAt: '2026-09-23T11:00:00.000Z', version: 2 });
+    // One working day (9 working hours) later on the crew's Mon–Fri 08:00–17:00 calendar; the walls
+    // after the moved pour (cured Tue 22 Sep 11:00, 16 h) end Thu 24 Sep 09:00, no later.
+    expect(byStage[lift]).toMatchObject({ startsAt: '2026-09-24T08:00:00.000Z', endsAt: '2026-09-24T12:00:00.000Z', version: 2 });
   });
 
   it('refuses the whole move when one booking changed meanwhile (409) and changes nothing', async () => {

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { backToEnquiry } from '../helpers/demo.ts';
 import { CreateJob, UpdateJob } from '../../shared/schemas/jobs.ts';
 import { PutSurvey } from '../../shared/schemas/surveys.ts';
 import { CAUTION_NOTE } from '../../shared/cautions.ts';
@@ -9,13 +10,14 @@ import { ScopedModel } from '../../server/models/base.ts';
 let ctx: TestContext;
 let scheduler: Agent;
 let owner: Agent;
-/** TW-2421: an enquiry for a Brook 4 (2000 × 2000 × 850 mm, 300 kg dry) on a slab, not yet surveyed or booked. */
+/** TW-2421: a Brook 4 (2000 × 2000 × 850 mm, 300 kg dry) on a slab, taken back to an enquiry: not yet surveyed or booked. */
 let enquiry: string;
 
 beforeAll(async () => {
   ctx = await startTestApp();
   scheduler = await signIn(ctx, account('scheduler').email);
   owner = await signIn(ctx, account('owner').email);
+  await backToEnquiry(ctx.knex, 'TW-2421');
   enquiry = await idOf(ctx.knex, 'jobs', { reference: 'TW-2421' });
 });
 afterAll(async () => { await ctx.close(); });
@@ -63,10 +65,10 @@ describe("the job's quantities", () => {
     const res = await scheduler.get(`/api/jobs/${enquiry}/quantities`).expect(200);
     const q = res.body.quantities;
     // Brook 4 on a slab: (2000 + 2 × 150)² = 2.3 × 2.3 = 5.29 m²; dug 5.29 × (150 + 100) mm = 1.3225 → 1.323 m³;
-    // concrete 5.29 × 0.15 = 0.7935 → 0.794 m³, × 1.05 = 0.833175 → 0.833 m³ to order.
-    expect(q.pit.result).toEqual({ lengthMm: 2300, widthMm: 2300, areaM2: 5.29 });
+    // concrete 5.29 × 0.15 = 0.7935 → 0.794 m³, × 1.05 = 0.833175 → 0.833 m³, ordered in 0.25 m³ steps: 1 m³.
+    expect(q.pit.result).toMatchObject({ lengthMm: 2300, widthMm: 2300, areaM2: 5.29 });
     expect(q.excavation.result.volumeM3).toBe(1.323);
-    expect(q.concrete.result).toEqual({ netVolumeM3: 0.794, orderVolumeM3: 0.833 });
+    expect(q.concrete.result).toEqual({ netVolumeM3: 0.794, withWasteM3: 0.833, orderVolumeM3: 1 });
     expect(q.concrete.formula).toContain('5.29 m² × 0.15 m');
     // On its side: 850 + 100 = 950 ≤ 1200 mm wide, 2000 + 150 = 2150 mm high with no limit → no crane.
     expect(q.access.result.way).toBe('on_side');

@@ -14,6 +14,18 @@ function overlapWords(index: BoardIndex, resourceId: string, a: Booking, b: Book
 }
 
 /**
+ * " on TW-2423" when two bookings are for different jobs and the board's job has a reference (the
+ * board's jobs carry one; the engine's own type needs none), so "'Excavate pit' and 'Excavate pit'"
+ * says which two jobs they are.
+ */
+function onJob(index: BoardIndex, b: Booking, other: Booking): string {
+  const jobId = index.stages.get(b.stageId)?.stage.jobId;
+  if (jobId === undefined || jobId === index.stages.get(other.stageId)?.stage.jobId) return '';
+  const reference = (index.jobs.get(jobId) as { reference?: unknown } | undefined)?.reference;
+  return typeof reference === 'string' && reference ? ` on ${reference}` : '';
+}
+
+/**
  * Violations for two overlapping bookings of the same resource: a 'clash' (error) when one
  * installer made both; two 'cross_firm' errors (one per side, each naming only its own stage and
  * booking, "busy elsewhere") when different installer firms booked a partner's resource.
@@ -29,7 +41,7 @@ export function resourcePairViolations(index: BoardIndex, x: Booking, y: Booking
   if (a.installerFirmId === b.installerFirmId) {
     const what = a.stageId === b.stageId
       ? `twice for ${stageLabel(index, a.stageId)}`
-      : `for both ${stageLabel(index, a.stageId)} and ${stageLabel(index, b.stageId)}`;
+      : `for both ${stageLabel(index, a.stageId)}${onJob(index, a, b)} and ${stageLabel(index, b.stageId)}${onJob(index, b, a)}`;
     return [makeViolation('clash', 'error', [a.stageId, b.stageId], [rid], [a.id, b.id], `${who} is booked ${what} ${words}`, { from, to })];
   }
   return [a, b].map((own) => makeViolation('cross_firm', 'error', [own.stageId], [rid], [own.id],
@@ -47,7 +59,7 @@ export function personPairViolation(index: BoardIndex, personId: string, x: Book
   const [a, b] = ordered(x, y);
   const { from, to, words } = overlapWords(index, a.resourceId, a, b);
   return makeViolation('person_double', 'error', [a.stageId, b.stageId], [a.resourceId, b.resourceId], [a.id, b.id],
-    `${capitalise(resourceLabel(index, personId))} would be in two places ${words}: with ${resourceLabel(index, a.resourceId)} on ${stageLabel(index, a.stageId)} and with ${resourceLabel(index, b.resourceId)} on ${stageLabel(index, b.stageId)}`,
+    `${capitalise(resourceLabel(index, personId))} would be in two places ${words}: with ${resourceLabel(index, a.resourceId)} on ${stageLabel(index, a.stageId)}${onJob(index, a, b)} and with ${resourceLabel(index, b.resourceId)} on ${stageLabel(index, b.stageId)}${onJob(index, b, a)}`,
     { personId, from, to });
 }
 

@@ -1,4 +1,5 @@
 import { resourceCalendarOf, type BoardIndex } from '../board-index.js';
+import { roundUpToStep } from '../booking-step.js';
 import { addWorkingDays } from '../calendar.js';
 import { formatInstant } from '../format.js';
 import type { Booking, LeadTimeRule, Violation } from '../types.js';
@@ -58,9 +59,11 @@ export function checkLeadTime(index: BoardIndex, booking: Booking): Violation[] 
         ? capitalise(resourceLabel(index, booking.resourceId))
         : stageLabel(index, booking.stageId);
       const fromWords = rule.from === 'order' ? (job?.orderedAt != null ? 'the order date' : 'today (the unit is not ordered yet)') : 'today';
+      // Counted from now the notice ends at an odd minute: say (and offer) the next booking step.
+      const shown = roundUpToStep(earliest, cal.timeZone, index.stepMinutes);
       out.push(makeViolation('lead_time', 'error', [booking.stageId], [booking.resourceId], [booking.id],
-        `${what} needs ${rule.workingDays} working days' notice from ${fromWords}: the earliest start is ${formatInstant(earliest, cal.timeZone)}`,
-        { earliest, earliestStart: earliest, workingDays: rule.workingDays, from: rule.from }));
+        `${what} needs ${rule.workingDays} working days' notice from ${fromWords}: the earliest start is ${formatInstant(shown, cal.timeZone)}`,
+        { earliest, earliestStart: shown, workingDays: rule.workingDays, from: rule.from }));
     }
   }
   return out;

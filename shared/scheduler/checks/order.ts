@@ -1,19 +1,11 @@
 import { spanEnd, spanOf, spanStart, resourceCalendarOf, stageCalendarOf, type BoardIndex } from '../board-index.js';
-import { cureRelease, releaseInstant } from '../cure.js';
-import type { CureRule } from '../types.js';
+import { roundUpToStep } from '../booking-step.js';
+import { cureElapsedDays as cureDays, cureRelease, releaseInstant } from '../cure.js';
 import { formatInstant } from '../format.js';
 import { applyLag, describeLag } from '../lag.js';
 import type { Booking, Dependency, Stage, Violation } from '../types.js';
 import { makeViolation, stageLabel, type BookingsOf } from './violation.js';
-
-const cureCache = new WeakMap<CureRule, number>();
-
-/** Elapsed days a cure rule needs, cached per rule object. */
-function cureDays(rule: CureRule): number {
-  let d = cureCache.get(rule);
-  if (d === undefined) { d = cureRelease(0, rule).elapsedDays; cureCache.set(rule, d); }
-  return d;
-}
+import { unbookedPlan, unbookedTimesOf, type UnbookedPlan } from '../unbooked.js';
 
 const WORDS = {
   FS: ['start', 'finished', 'finishes'],
@@ -55,14 +47,18 @@ export function checkDependencyBetween(
   if (subject < bound) {
     const P = stageLabel(index, dep.fromStageId), S = stageLabel(index, dep.toStageId);
     const ids = [dep.fromStageId, dep.toStageId];
-    const details: Record<string, unknown> = { dependencyId: dep.id, type: dep.type, earliest: bound, actual: subject };
-    if (dep.type === 'FS' || dep.type === 'SS') details.earliestStart = bound;
+    const details: Record<string, unknown> = {
+      dependencyId: dep.id, type: dep.type, predecessorId: dep.fromStageId, successorId: dep.toStageId, earliest: bound, actual: subject,
+    };
+    // Where a person would book it: the bound rounded up to the booking step (the check itself is exact).
+    const shown = roundUpToStep(bound, tz, index.stepMinutes);
+    if (dep.type === 'FS' || dep.type === 'SS') details.earliestStart = shown;
     if (dep.lag.amount === 0) {
       out.push(makeViolation('order', 'error', ids, [], [], `${S} can't ${verb} before ${P} has ${done} (${formatInstant(bound, tz)})`, details));
     } else {
       const rel = dep.lag.amount > 0 ? 'after' : 'before';
       out.push(makeViolation('lag', 'error', ids, [], [],
-        `${S} can't ${verb} before ${formatInstant(bound, tz)}: it must wait ${describeLag(dep.lag)} ${rel} ${P} ${does}`, details));
+        `${S} can't ${verb} before ${formatInstant(shown, tz)}: it must wait ${describeLag(dep.lag)} ${rel} ${P} ${does}`, details));
     }
   }
   const cure = from?.cure;
@@ -73,7 +69,7 @@ export function checkDependencyBetween(
       const pct = Math.round(cure.targetFraction * 100);
       out.push(makeViolation('cure', 'error', [dep.fromStageId, dep.toStageId], [], [],
         `${S} can't start before the base has cured: ${pct}% strength is reached at ${formatInstant(ex.releaseAt, tz)}`,
-        { dependencyId: dep.id, earliestStart: ex.releaseAt, ...ex }));
+        { dependencyId: dep.id, predecessorId: dep.fromStageId, successorId: dep.toStageId, ...ex, earliestStart: roundUpToStep(ex.releaseAt, tz, index.stepMinutes) }));
     }
   }
   return out;
@@ -81,17 +77,26 @@ export function checkDependencyBetween(
 
 /**
  * The earliest start the dependencies into a stage allow, given its duration would be counted on
- * `resourceId`'s calendar (FS/SS bounds and cures; FF/SF are left to the full check).
+ * `resourceId`'s calendar: FS/SS bounds and cures of booked predecessors, and of unbooked ones
+ * from their earliest times (see unbooked.ts); FF/SF are left to the full check. Exact (not
+ * rounded to the booking step).
  *
  * @example
  * earliestStartFromPredecessors(index, 'lift-1', 'crane-1', bookingsOf) // epoch ms
  */
-export function earliestStartFromPredecessors(index: BoardIndex, stageId: string, resourceId: string, bookingsOf: BookingsOf): number {
+export function earliestStartFromPredecessors(
+  index: BoardIndex, stageId: string, resourceId: string, bookingsOf: BookingsOf, plan: UnbookedPlan = unbookedPlan(index, bookingsOf),
+): number {
   const cal = resourceCalendarOf(index, resourceId);
   let t = Number.NEGATIVE_INFINITY;
   for (const { dep } of index.stages.get(stageId)?.depsIn ?? []) {
-    const p = spanOf(bookingsOf(dep.fromStageId));
-    if (p === null || dep.fromStageId === stageId) continue;
+    if (dep.fromStageId === stageId) continue;
+    let p = spanOf(bookingsOf(dep.fromStageId));
+    if (p === null && index.seesAllBookings) {
+      const u = unbookedTimesOf(plan, dep.fromStageId);
+      if (u !== null) p = { start: u.start, end: u.finish };
+    }
+    if (p === null) continue;
     if (dep.type === 'FS' || dep.type === 'SS') t = Math.max(t, applyLag(cal, dep.type === 'FS' ? p.end : p.start, dep.lag));
     const cure = index.stages.get(dep.fromStageId)?.stage.cure;
     if (cure) t = Math.max(t, releaseInstant(p.end, cureDays(cure)));

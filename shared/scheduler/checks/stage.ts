@@ -5,10 +5,12 @@ import { checkCapacity } from './capacity.js';
 import { checkDependency } from './order.js';
 import { checkHire } from './hire.js';
 import { checkLeadTime } from './lead-time.js';
+import { checkSplit } from './split.js';
 import { makeViolation, stageLabel, type BookingsOf } from './violation.js';
+import { unbookedPlan, unbookedViolationsOf } from '../unbooked.js';
 
 /**
- * Checks of one booking on its own: lead time, availability, hire.
+ * Checks of one booking on its own: lead time, availability, one working day, hire.
  *
  * @example
  * checkBooking(index, booking)
@@ -18,6 +20,7 @@ export function checkBooking(
 ): Violation[] {
   const r = index.resourceInfo.get(booking.resourceId);
   checkAvailability(index, booking, stage, out, r?.cal);
+  checkSplit(index, booking, stage, out, r?.cal);
   if (booking.state === 'pencilled') for (const v of checkLeadTime(index, booking)) out.push(v);
   if (r?.resource.hired === true) for (const v of checkHire(index, booking)) out.push(v);
   return out;
@@ -39,8 +42,9 @@ export function dependenciesOf(index: BoardIndex, stageId: string): Dependency[]
 
 /**
  * Checks that concern one stage alone or its links: order, lag and cure on its dependencies,
- * its bookings' lead time, availability and hire, and its capacity. (Clashes are pairwise and
- * live in clash.ts.)
+ * unbooked predecessors (its own, and downstream where its times decide a booked successor's
+ * limit), its bookings' lead time, availability, one working day and hire, and its capacity.
+ * (Clashes are pairwise and live in clash.ts.)
  *
  * @example
  * checkStageOwn(index, 'lift-1', bookingsOf)
@@ -48,6 +52,7 @@ export function dependenciesOf(index: BoardIndex, stageId: string): Dependency[]
 export function checkStageOwn(index: BoardIndex, stageId: string, bookingsOf: BookingsOf): Violation[] {
   const out: Violation[] = [];
   for (const d of dependenciesOf(index, stageId)) out.push(...checkDependency(index, d, bookingsOf));
+  unbookedViolationsOf(unbookedPlan(index, bookingsOf), stageId, out);
   const own = bookingsOf(stageId);
   for (const b of own) out.push(...checkBooking(index, b));
   out.push(...checkCapacity(index, stageId, own));

@@ -26,7 +26,11 @@ export interface EventInput {
   title: string;
   classNames: string[];
   editable: boolean;
-  extendedProps: { bookingId: string; stageId: string; jobId: string; state: BookingState; elsewhere: boolean; problems: string[] };
+  extendedProps: {
+    bookingId: string; stageId: string; jobId: string; state: BookingState; elsewhere: boolean; problems: string[];
+    /** What a booking's label shows: job reference, stage (name and kind), town, and its markers. */
+    reference: string; stageName: string; stageKind: string; town: string; markers: BookingMarker[];
+  };
 }
 
 export interface BackgroundInput {
@@ -48,6 +52,21 @@ export const STATE_LABELS: Record<BookingState, { label: string; symbol: string;
   on_site: { label: 'On site', symbol: '▶', description: 'work under way' },
   done: { label: 'Done', symbol: '■', description: 'finished' },
 };
+
+/** Marks a booking can carry besides its state; the symbol leads the title, the class draws the edge. */
+export const BOOKING_MARKERS = {
+  problem: { symbol: '⚠', label: 'Problem', description: 'breaks a rule: open the job to see which', className: 'wl-has-problem' },
+  overdue: { symbol: '⏰', label: 'Answer overdue', description: 'the partner has not answered by the reminder time', className: 'wl-overdue' },
+  proposed: { symbol: '⇄', label: 'Other time proposed', description: 'the partner proposed another time: open the job to accept or refuse it', className: 'wl-proposed' },
+} as const;
+export type BookingMarker = keyof typeof BOOKING_MARKERS;
+
+/** Blocks that are not this board's bookings: another installer's work, closures and absences, public holidays. */
+export const BOARD_BLOCKS = {
+  elsewhere: { label: 'Busy elsewhere', description: "booked by another installer (no details are shared)", className: 'wl-elsewhere' },
+  closed: { label: 'Not working', description: 'closure or absence', className: 'wl-closed' },
+  holiday: { label: 'Public holiday', description: "a holiday in the resource's region", className: 'wl-holiday' },
+} as const;
 
 const KIND_LABELS: Record<string, string> = {
   install_crew: 'install crew', groundworks_crew: 'groundworks crew', electrician: 'electrician', crane: 'crane',
@@ -104,13 +123,13 @@ export function problemsByBooking(violations: readonly Violation[]): Map<string,
 }
 
 /** One event per booking; another installer's booking of a shared resource shows only as busy. */
-export function eventsOf(data: BoardData, options: { canEdit: boolean; problems?: Map<string, Violation[]>; filter?: EventFilter }): EventInput[] {
+export function eventsOf(data: BoardData, options: { canEdit: boolean; problems?: Map<string, Violation[]>; filter?: EventFilter; /** Keep declined bookings (the board shows them, to rebook). */ declined?: boolean }): EventInput[] {
   const stages = new Map<string, BoardStage>(data.stages.map((s) => [s.id, s]));
   const jobs = new Map<string, BoardJob>(data.jobs.map((j) => [j.id, j]));
   const search = options.filter?.search?.trim().toLowerCase();
   const out: EventInput[] = [];
   for (const b of data.bookings) {
-    if (b.state === 'declined' && !b.elsewhere) continue;
+    if (b.state === 'declined' && !b.elsewhere && !options.declined) continue;
     const stage = stages.get(b.stageId);
     const job = stage ? jobs.get(stage.jobId) : undefined;
     if (!stage || !job) continue;
@@ -128,16 +147,19 @@ export function eventsOf(data: BoardData, options: { canEdit: boolean; problems?
 
 function toEvent(b: BoardBooking, title: string, stage: BoardStage, job: BoardJob, canEdit: boolean, problems: string[]): EventInput {
   const state = STATE_LABELS[b.state];
+  const markers = b.elsewhere ? [] : ([problems.length && 'problem', b.overdue && 'overdue', b.proposal && 'proposed'].filter(Boolean) as BookingMarker[]);
   return {
     id: b.id,
     resourceId: b.resourceId,
     start: b.start,
     end: b.end,
-    title: b.elsewhere ? title : `${problems.length ? '⚠ ' : ''}${b.overdue ? '⏰ ' : ''}${b.proposal ? '⇄ ' : ''}${state.symbol} ${title}`,
-    classNames: ['wl-booking', b.elsewhere ? 'wl-elsewhere' : `wl-state-${b.state}`, ...(problems.length ? ['wl-has-problem'] : []),
-      ...(b.overdue ? ['wl-overdue'] : []), ...(b.proposal ? ['wl-proposed'] : [])],
+    title: b.elsewhere ? title : `${markers.map((m) => `${BOOKING_MARKERS[m].symbol} `).join('')}${state.symbol} ${title}`,
+    classNames: ['wl-booking', b.elsewhere ? BOARD_BLOCKS.elsewhere.className : `wl-state-${b.state}`, ...markers.map((m) => BOOKING_MARKERS[m].className)],
     editable: canEdit && !b.elsewhere && b.state !== 'done' && b.state !== 'on_site',
-    extendedProps: { bookingId: b.id, stageId: stage.id, jobId: job.id, state: b.state, elsewhere: Boolean(b.elsewhere), problems },
+    extendedProps: {
+      bookingId: b.id, stageId: stage.id, jobId: job.id, state: b.state, elsewhere: Boolean(b.elsewhere), problems,
+      reference: job.reference, stageName: b.elsewhere ? title : stage.name, stageKind: stage.kind, town: job.siteTown, markers,
+    },
   };
 }
 
@@ -151,13 +173,13 @@ export function closuresOf(data: BoardData, holidays: { calendarId: string; star
     if (!rows) continue;
     (c.closures ?? []).forEach((span, i) => {
       if (span.end > data.from && span.start < data.to) {
-        out.push({ id: `closure-${c.id}-${i}`, resourceIds: rows, start: span.start, end: span.end, display: 'background', classNames: ['wl-closed'], title: 'Not working' });
+        out.push({ id: `closure-${c.id}-${i}`, resourceIds: rows, start: span.start, end: span.end, display: 'background', classNames: [BOARD_BLOCKS.closed.className], title: BOARD_BLOCKS.closed.label });
       }
     });
   }
   for (const h of holidays) {
     const rows = rowsByCalendar.get(h.calendarId);
-    if (rows) out.push({ id: `holiday-${h.calendarId}-${h.start}`, resourceIds: rows, start: h.start, end: h.end, display: 'background', classNames: ['wl-holiday'], title: h.name });
+    if (rows) out.push({ id: `holiday-${h.calendarId}-${h.start}`, resourceIds: rows, start: h.start, end: h.end, display: 'background', classNames: [BOARD_BLOCKS.holiday.className], title: h.name });
   }
   return out;
 }

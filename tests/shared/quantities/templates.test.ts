@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_TEMPLATES, IN_GROUND_TEMPLATE, SLAB_TEMPLATE, planFromTemplate, templateProblems } from '../../../shared/templates/index.ts';
 import { CAUTION_NOTE, cautionsFor } from '../../../shared/cautions.ts';
+import { StageTemplateSchema } from '../../../shared/schemas/templates.ts';
 
 describe('planning an in-ground job from its template', () => {
   const withCrane = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: 300, makerLeadDays: 20 });
@@ -76,5 +77,24 @@ describe('cautions', () => {
     expect(cautionsFor('placement').join(' ')).toMatch(/[Ff]ingers/);
     expect(cautionsFor('something_new')).toEqual([CAUTION_NOTE]);
     expect(CAUTION_NOTE).toBe('Follow local codes and licensed practice.');
+  });
+});
+
+describe('whether a stage may run over into the next working day', () => {
+  it('is carried from the template to the plan: digging and block laying may, a pour, a lift or a visit may not', () => {
+    const plan = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: 300 });
+    const may = Object.fromEntries(plan.stages.map((s) => [s.kind, s.mayContinueNextDay]));
+    expect(may).toEqual({
+      survey: false, excavation: true, base_pour: false, walls: true, electrical_first_fix: false, delivery: false,
+      lift: false, fill: false, electrical_connect: false, commission: false, handover: false,
+    });
+  });
+
+  it('is a yes or no in a firm\'s edited template, and may be left out (no)', () => {
+    const stage = { kind: 'fill', name: 'Fill', duration: { kind: 'fixed', minutes: 180 }, requirements: [] };
+    expect(StageTemplateSchema.parse({ ...stage, mayContinueNextDay: true }).mayContinueNextDay).toBe(true);
+    expect(StageTemplateSchema.safeParse({ ...stage, mayContinueNextDay: 'yes' }).success).toBe(false);
+    const planned = planFromTemplate({ ...SLAB_TEMPLATE, stages: [StageTemplateSchema.parse(stage)], links: [] }, { craneNeeded: false, excavationMinutes: null });
+    expect(planned.stages[0]?.mayContinueNextDay).toBe(false);
   });
 });

@@ -45,6 +45,21 @@ describe('finding a slot for the lift crane', () => {
   });
 });
 
+describe("the stage's other bookings move with a slot", () => {
+  it('keeping their working time: a crew booked 15:00 to 10:00 next morning (4 working hours) comes along as 08:00–12:00', () => {
+    const board = emptyBoard();
+    board.bookings = [
+      booking('b-crane', 'lift', 'crane-1', at(2026, 6, 2, 15), at(2026, 6, 3, 10)),
+      booking('b-crew', 'lift', 'crew-a', at(2026, 6, 2, 15), at(2026, 6, 3, 10)),
+    ];
+    const [slot] = findSlots(createBoardIndex(board, { now: NOW }), { stageId: 'lift', resourceId: 'crane-1', earliest: at(2026, 6, 4, 8) }, { alternatives: 0 });
+    expect(slot?.bookings.map((b) => [b.resourceId, b.start, b.end])).toEqual([
+      ['crane-1', at(2026, 6, 4, 8), at(2026, 6, 4, 12)],
+      ['crew-a', at(2026, 6, 4, 8), at(2026, 6, 4, 12)],
+    ]);
+  });
+});
+
 describe('auto-placing a whole install', () => {
   it('books every stage in order, on the earliest working slots, with nothing wrong', () => {
     const board = emptyBoard();
@@ -54,8 +69,13 @@ describe('auto-placing a whole install', () => {
     // dig: 12 working hours from Fri 1 May 09:00: Fri 09–17 (8 h), Mon 4 May bank holiday, Tue 08–12.
     expect(result.placed[0]).toEqual({ stageId: 'dig', start: at(2026, 5, 1, 9), end: at(2026, 5, 5, 12), resourceIds: ['ground-1', 'digger-1'] });
     expect(result.placed[1]).toMatchObject({ stageId: 'base', start: at(2026, 5, 5, 12), end: at(2026, 5, 5, 16) });
-    // Poured until Tue 5 May 16:00; 70% at Tue 12 May 13:56; the crane's 5 working days' notice ends Mon 11 May 09:00.
-    expect(result.placed[2]).toMatchObject({ stageId: 'lift', start: at(2026, 5, 12, 13, 56), resourceIds: ['crane-1', 'crew-a', 'pt-1', 'pt-2'] });
+    // Poured until Tue 5 May 16:00; 70% at Tue 12 May 13:56 (ACI 209R-92, 6.9136 days), on the
+    // 15-minute step 14:00; the crane's 5 working days' notice ends Mon 11 May 09:00. The lift's
+    // 4 h would run from 14:00 into Wednesday (the calendar ends at 17:00), and a lift is done in
+    // one working day: Wed 13 May 08:00.
+    expect(result.placed[2]).toMatchObject({ stageId: 'lift', start: at(2026, 5, 13, 8), end: at(2026, 5, 13, 12), resourceIds: ['crane-1', 'crew-a', 'pt-1', 'pt-2'] });
+    // 1 working hour after the lift: Wed 13 May 13:00, 3 h to 16:00.
+    expect(result.placed[3]).toMatchObject({ stageId: 'connect', start: at(2026, 5, 13, 13), end: at(2026, 5, 13, 16) });
     const after = analyseBoard({ ...board, bookings: result.bookings }, { now: NOW });
     expect(after.errorCount).toBe(0);
     expect(result.bookings.every((b) => b.state === 'pencilled' && b.installerFirmId === 'installer-1')).toBe(true);

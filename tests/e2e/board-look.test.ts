@@ -1,0 +1,177 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { account } from '../helpers/server.ts';
+
+/**
+ * The board as a scheduler reads it on the demo data (the test scenario's "today" is Monday
+ * 1 June 2026): each zoom level at 1280 × 800 and the day list at 390 × 844. Every run leaves a
+ * screenshot of each in tests/e2e/artifacts/ (docs/board-*.png are copies of them).
+ */
+let app: RunningApp;
+let browser: Browser;
+let desk: BrowserContext;
+let page: Page;
+
+beforeAll(async () => {
+  app = await startServer();
+  browser = await launchBrowser();
+  desk = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
+  page = await desk.newPage();
+  await signInThroughPage(page, app.url, account('scheduler').email);
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+async function openBoard(p: Page, query: string): Promise<void> {
+  await p.goto(`${app.url}/board?${query}`);
+  await p.waitForSelector('.fc-timeline-lane[data-resource-id]');
+  await p.waitForSelector('.fc-event.wl-booking [class="wl-chip"], .fc-event.wl-booking .wl-chip');
+  await p.evaluate(() => document.fonts.ready);
+  // Labels and tooltips are written on the frame after the events mount.
+  await p.waitForFunction(() => [...document.querySelectorAll('.fc-event.wl-booking')].every((el) => el.getAttribute('title')));
+}
+
+/** What the reader sees of every booking: its visible text and its tooltip. */
+const bookings = (p: Page) => p.$$eval('.fc-event.wl-booking', (els) => els.map((el) => ({ text: (el as HTMLElement).innerText.replace(/\s+/g, ' ').trim(), title: el.getAttribute('title') ?? '' })));
+const headerRows = (p: Page) => p.$$eval('.fc-timeline-header-row', (rows) => rows.map((r) => [...r.querySelectorAll('.fc-timeline-slot-cushion')].map((c) => (c as HTMLElement).innerText.trim())));
+
+describe('the board at 1280 × 800', () => {
+  it('shows a week of mornings and afternoons without sideways scrolling, every name whole and every booking readable', async () => {
+    await openBoard(page, 'view=week&date=2026-06-03');
+    await page.screenshot({ path: 'tests/e2e/artifacts/board-week.png' });
+
+    expect(await page.locator('.board-toolbar__title').innerText()).toBe('Mon 1 – Sun 7 Jun 2026');
+    const [days, halves] = await headerRows(page);
+    expect(days).toEqual(['Mon 1 Jun', 'Tue 2 Jun', 'Wed 3 Jun', 'Thu 4 Jun', 'Fri 5 Jun', 'Sat 6 Jun', 'Sun 7 Jun']);
+    expect(halves).toEqual(Array.from({ length: 7 }, () => ['am', 'pm']).flat());
+
+    // Nothing scrolls sideways: not the page, not the timeline's own scrollers.
+    const overflow = await page.evaluate(() => ({
+      page: document.documentElement.scrollWidth - document.documentElement.clientWidth,
+      timeline: Math.max(...[...document.querySelectorAll('.board-timeline .fc-scroller')].map((s) => s.scrollWidth - s.clientWidth)),
+    }));
+    expect(overflow).toEqual({ page: 0, timeline: 0 });
+
+    // Resource names wrap rather than being cut.
+    const cut = await page.$$eval('.wl-resource__name', (els) => els.filter((el) => el.scrollWidth > el.clientWidth + 1 || (el.closest('.fc-datagrid-cell-cushion')!.scrollWidth > el.closest('.fc-datagrid-cell-cushion')!.clientWidth + 1)).map((el) => el.textContent));
+    expect(cut).toEqual([]);
+    expect(await page.locator('.wl-resource__name', { hasText: '18 t lorry with loader crane' }).count()).toBe(1);
+
+    // Every booking shows its job reference (or says it is busy elsewhere); the tooltip has it all.
+    const seen = await bookings(page);
+    expect(seen.length).toBeGreaterThan(10);
+    for (const b of seen) {
+      expect(b.text, b.title).toMatch(/[A-Z]{2}-\d{3,4}|Busy elsewhere/);
+      if (!b.text.startsWith('Busy')) expect(b.title).toMatch(/^[A-Z]{2}-\d{3,4} · .+ · .+\n. .+: .+\n(Mon|Tue|Wed|Thu|Fri|Sat|Sun) \d+ [A-Z][a-z]{2} \d\d:\d\d/);
+    }
+  }, 60_000);
+
+  it('has a day of hours, a fortnight and a month with unambiguous day headers', async () => {
+    await openBoard(page, 'view=day&date=2026-06-02');
+    await page.screenshot({ path: 'tests/e2e/artifacts/board-day.png' });
+    expect(await page.locator('.board-toolbar__title').innerText()).toBe('Tuesday 2 June 2026');
+    expect((await headerRows(page))[0]?.slice(0, 3)).toEqual(['07:00', '08:00', '09:00']);
+    // A day is wide enough for the whole label where a booking is a few hours long.
+    const day = await bookings(page);
+    expect(day.some((b) => /^.+ [A-Z]{2}-\d{4} · .+ · .+$/.test(b.text))).toBe(true);
+
+    await openBoard(page, 'view=fortnight&date=2026-06-03');
+    await page.screenshot({ path: 'tests/e2e/artifacts/board-fortnight.png' });
+    expect(await page.locator('.board-toolbar__title').innerText()).toBe('Mon 1 – Sun 14 Jun 2026');
+    const [weeks, fortnightDays] = await headerRows(page);
+    expect(weeks).toEqual(['Week 23 · 1–7 Jun', 'Week 24 · 8–14 Jun']);
+    expect(fortnightDays?.slice(0, 3)).toEqual(['Mon 1', 'Tue 2', 'Wed 3']);
+
+    await openBoard(page, 'view=month&date=2026-06-03');
+    await page.screenshot({ path: 'tests/e2e/artifacts/board-month.png' });
+    expect(await page.locator('.board-toolbar__title').innerText()).toBe('June 2026');
+    const [monthWeeks, monthDays] = await headerRows(page);
+    expect(monthWeeks?.[0]).toBe('Week 23 · 1–7 Jun');
+    expect(monthDays).toHaveLength(30);
+    for (const label of monthDays ?? []) expect(label).toMatch(/^(Mon|Tue|Wed|Thu|Fri|Sat|Sun)\n\d{1,2}$/);
+    // A day's column shows the job's number beside its state symbol, then the stage (a longer booking its
+    // whole reference); the tooltip has the rest.
+    for (const b of await bookings(page)) {
+      expect(b.text, b.title).toMatch(/^(. )+([A-Z]{2}-)?\d{3,4} \S|Busy/);
+      if (!b.text.startsWith('Busy')) expect(b.title).toMatch(/^[A-Z]{2}-\d{3,4} · .+ · .+\n/);
+    }
+  }, 60_000);
+
+  it('moves through dates and zoom levels from its own toolbar, and the timeline follows', async () => {
+    await openBoard(page, 'view=week&date=2026-06-03');
+    expect(await page.locator('.fc-header-toolbar').count()).toBe(0);
+    await page.getByRole('button', { name: 'Next week' }).click();
+    await page.waitForURL(/date=2026-06-10/);
+    await expect.poll(async () => (await headerRows(page))[0]?.[0]).toBe('Mon 8 Jun');
+    expect(await page.locator('.board-toolbar__title').innerText()).toBe('Mon 8 – Sun 14 Jun 2026');
+
+    await page.getByRole('radiogroup', { name: 'Zoom' }).getByText('Fortnight').click();
+    await page.waitForURL(/view=fortnight/);
+    await expect.poll(async () => (await headerRows(page))[0]).toEqual(['Week 24 · 8–14 Jun', 'Week 25 · 15–21 Jun']);
+
+    // Go to a date by typing it into the picker.
+    const picker = page.getByLabel('Go to');
+    await picker.fill('Fri 3 Jul 2026');
+    await picker.press('Enter');
+    await page.waitForURL(/date=2026-07-03/);
+    await expect.poll(async () => (await headerRows(page))[0]).toEqual(['Week 27 · 29 Jun – 5 Jul', 'Week 28 · 6–12 Jul']);
+    expect(await page.locator('.board-toolbar__title').innerText()).toBe('Mon 29 Jun – Sun 12 Jul 2026');
+  }, 60_000);
+
+  it('names every state and marker in the key', async () => {
+    await openBoard(page, 'view=week&date=2026-06-03');
+    const key = await page.locator('.board-key').innerText();
+    for (const word of ['Pencilled', 'Asked', 'Confirmed', 'Declined', 'On site', 'Done', 'Problem', 'Answer overdue', 'Other time proposed', 'Busy elsewhere', 'Not working', 'Public holiday', 'Outside working hours', 'Now']) {
+      expect(key).toContain(word);
+    }
+  }, 60_000);
+
+  it('folds and opens a group with its own button, and keeps keyboard moves', async () => {
+    await openBoard(page, 'view=week&date=2026-06-03');
+    const toggle = page.getByRole('button', { name: /Our machines/ });
+    await expect.poll(() => toggle.getAttribute('aria-expanded')).toBe('true');
+    const rowsBefore = await page.locator('.fc-datagrid-cell.fc-resource').count();
+    await toggle.focus();
+    await page.keyboard.press('Enter');
+    await expect.poll(() => page.locator('.fc-datagrid-cell.fc-resource').count()).toBeLessThan(rowsBefore);
+    expect(await toggle.getAttribute('aria-expanded')).toBe('false');
+    await page.screenshot({ path: 'tests/e2e/artifacts/board-folded.png' });
+    await toggle.click();
+    await expect.poll(() => page.locator('.fc-datagrid-cell.fc-resource').count()).toBe(rowsBefore);
+    expect(await toggle.getAttribute('aria-expanded')).toBe('true');
+
+    // M on a focused booking opens "move to…", as before.
+    const movable = page.locator('.fc-event.wl-booking.fc-event-draggable').first();
+    await movable.focus();
+    await page.keyboard.press('m');
+    await page.getByRole('dialog').getByText(/^Move .+ to…$/).waitFor({ timeout: 5_000 });
+    await page.keyboard.press('Escape');
+  }, 60_000);
+});
+
+describe('the board on a phone (390 × 844)', () => {
+  it('lists the day resource by resource, with date navigation and no timeline', async () => {
+    const phone = await browser.newContext({ viewport: { width: 390, height: 844 }, timezoneId: 'Europe/London', isMobile: true, hasTouch: true });
+    const p = await phone.newPage();
+    await signInThroughPage(p, app.url, account('scheduler').email);
+    await p.goto(`${app.url}/board?view=week&date=2026-06-02`);
+    await p.waitForSelector('.day-list__resource');
+    await p.evaluate(() => document.fonts.ready);
+    await p.screenshot({ path: 'tests/e2e/artifacts/board-phone.png', fullPage: true });
+
+    expect(await p.locator('.fc').count()).toBe(0);
+    expect(await p.locator('.board-toolbar__title').innerText()).toBe('Tuesday 2 June 2026');
+    expect(await p.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+    const first = p.locator('.day-list__booking').first();
+    expect(await first.innerText()).toMatch(/^\d\d:\d\d–\d\d:\d\d|^(Mon|Tue|Wed|Thu|Fri|Sat|Sun) \d+ \d\d:\d\d – /);
+    expect(await first.innerText()).toMatch(/[A-Z]{2}-\d{4} · /);
+
+    await p.getByRole('button', { name: 'Next day' }).click();
+    await p.waitForURL(/date=2026-06-03/);
+    expect(await p.locator('.board-toolbar__title').innerText()).toBe('Wednesday 3 June 2026');
+    await phone.close();
+  }, 60_000);
+});

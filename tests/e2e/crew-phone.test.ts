@@ -1,0 +1,70 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { account, idOf } from '../helpers/server.ts';
+
+/*
+ * My work on a phone (390 × 844 CSS pixels, a common handset size: common practice, no source).
+ * The demo's today is Mon 1 Jun 2026; Connor Reid (the demo crew member) is booked here on his own
+ * row today 08:00–12:00 BST for TW-8811's dig, and on Thu 4 Jun for its fill.
+ */
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+let today: string;
+
+beforeAll(async () => {
+  app = await startServer();
+  const knex = app.ctx.knex;
+  const tideway = await idOf(knex, 'firms', { name: 'Tideway Hot Tubs' });
+  const [job] = await knex('jobs').insert({
+    firm_id: tideway, reference: 'TW-8811', customer_name: 'Mina Holt', customer_phone: '07700 900811', customer_email: 'mina@home.example',
+    site_address: '9 Weir Street', site_town: 'Headingley', site_postcode: 'LS6 2AB', access_notes: 'Side gate 900 mm wide; park on the drive',
+    installation_type: 'in_ground', status: 'planned', unit_id: await idOf(knex, 'units', { model: 'Brook 4' }),
+  }).returning('id');
+  const stage = async (kind: string, name: string, sequence: number) => String((await knex('stages').insert({ job_id: job.id, kind, name, sequence,
+    duration_minutes: 240, requirements: JSON.stringify([{ kind: 'installer', count: 1 }]) }).returning('id'))[0].id);
+  const connor = await idOf(knex, 'resources', { name: 'Connor Reid' });
+  const [b] = await knex('bookings').insert({ stage_id: await stage('excavation', 'Excavate pit', 1), resource_id: connor,
+    starts_at: '2026-06-01T07:00:00Z', ends_at: '2026-06-01T11:00:00Z', state: 'confirmed' }).returning('id');
+  today = String(b.id);
+  await knex('bookings').insert({ stage_id: await stage('fill', 'Fill', 2), resource_id: connor,
+    starts_at: '2026-06-04T07:00:00Z', ends_at: '2026-06-04T09:00:00Z', state: 'confirmed' });
+  browser = await launchBrowser();
+  page = await (await browser.newContext({ viewport: { width: 390, height: 844 }, deviceScaleFactor: 2, isMobile: true, hasTouch: true, timezoneId: 'Europe/London' })).newPage();
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+describe('a crew member on a phone', () => {
+  it("sees today's work first, with the site, whom to call and the cautions, and marks it on site with an Undo", async () => {
+    await signInThroughPage(page, app.url, account('crew').email);
+    await page.waitForURL(/\/my-work/);
+    const card = page.locator('article.visit', { hasText: 'TW-8811' }).filter({ hasText: 'Excavate pit' });
+    await card.waitFor({ timeout: 15_000 });
+    expect(await page.locator('h2').first().textContent()).toBe('Today');
+    await expect.poll(() => card.textContent()).toContain('LS6 2AB');
+    const text = (await card.textContent()) ?? '';
+    expect(text).toContain('9 Weir Street');
+    expect(text).toContain('Site contact: Mina Holt');
+    expect(text).toContain('0113 496 0001'); // the office's phone
+    expect(text).toContain('Cautions');
+    // Thursday's fill can't be marked yet: no "On site" on it.
+    const thursday = page.locator('article.visit', { hasText: 'TW-8811' }).filter({ hasText: 'Fill' });
+    expect(await thursday.getByRole('button', { name: 'On site' }).count()).toBe(0);
+    await page.screenshot({ path: 'docs/crew-phone.png' });
+
+    await card.getByRole('button', { name: 'On site' }).click();
+    await page.getByRole('button', { name: 'Yes, on site' }).click();
+    await page.getByText('Excavate pit: marked on site').waitFor();
+    await expect.poll(async () => (await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('on_site');
+    await card.getByRole('button', { name: 'Done' }).waitFor();
+    await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-on-site.png' });
+
+    await page.getByRole('button', { name: 'Undo' }).click();
+    await expect.poll(async () => (await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('confirmed');
+    await card.getByRole('button', { name: 'On site' }).waitFor();
+  }, 90_000);
+});

@@ -1,0 +1,116 @@
+import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
+import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { BookingWriter } from '../../server/services/booking-writes.ts';
+import type { MyWorkList } from '../../shared/schemas/my-work.ts';
+
+/*
+ * My work on a crew member's phone. The demo's today is Mon 1 Jun 2026 (BST, UTC+1); the demo crew
+ * member Connor Reid works as Crew Heron and as himself. These tests book his own row (the demo
+ * books crews, not him): TW-8801's dig today 08:00–12:00 BST and its fill on Thu 4 Jun 08:00–10:00.
+ */
+let ctx: TestContext;
+let crew: Agent;
+let today: string; // booking id
+let thursday: string; // TW-8801's fill, Thu 4 Jun 08:00 BST
+const run = vi.spyOn(BookingWriter.prototype, 'run');
+
+const post = (id: string, body: object) => crew.post(`/api/bookings/${id}/progress`).set('X-CSRF-Token', crew.csrf).send(body);
+const versionOf = async (id: string) => (await ctx.knex('bookings').where('id', id).first('version')).version as number;
+const myWork = async () => (await crew.get('/api/my-work').expect(200)).body as MyWorkList;
+
+beforeAll(async () => {
+  ctx = await startTestApp();
+  crew = await signIn(ctx, account('crew').email);
+  const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
+  const [job] = await ctx.knex('jobs').insert({
+    firm_id: tideway, reference: 'TW-8801', customer_name: 'Mina Holt', customer_phone: '07700 900801', customer_email: 'mina@home.example',
+    site_address: '9 Weir Street', site_town: 'Headingley', site_postcode: 'LS6 2AB', installation_type: 'in_ground', status: 'planned',
+  }).returning('id');
+  const [stage] = await ctx.knex('stages').insert({ job_id: job.id, kind: 'excavation', name: 'Excavate pit', sequence: 1, duration_minutes: 240,
+    requirements: JSON.stringify([{ kind: 'install_crew', count: 1 }]) }).returning('id');
+  const [fill] = await ctx.knex('stages').insert({ job_id: job.id, kind: 'fill', name: 'Fill', sequence: 2, duration_minutes: 120,
+    requirements: JSON.stringify([{ kind: 'installer', count: 1 }]) }).returning('id');
+  const connor = await idOf(ctx.knex, 'resources', { name: 'Connor Reid' });
+  const [b] = await ctx.knex('bookings').insert({ stage_id: stage.id, resource_id: connor,
+    starts_at: '2026-06-01T07:00:00Z', ends_at: '2026-06-01T11:00:00Z', state: 'confirmed' }).returning('id');
+  today = String(b.id);
+  const [t] = await ctx.knex('bookings').insert({ stage_id: fill.id, resource_id: connor,
+    starts_at: '2026-06-04T07:00:00Z', ends_at: '2026-06-04T09:00:00Z', state: 'confirmed' }).returning('id');
+  thursday = String(t.id);
+});
+afterAll(async () => { await ctx.close(); });
+afterEach(() => { run.mockClear(); });
+
+describe('My work, as the crew sees it on a phone', () => {
+  it("starts today by the server's clock, today's work first", async () => {
+    const list = await myWork();
+    expect(list.today).toBe('2026-06-01');
+    expect(list.timeZone).toBe('Europe/London');
+    expect(list.items[0]!.day).toBe('2026-06-01');
+    expect(list.items.find((i) => i.bookingId === today)!.day).toBe('2026-06-01');
+    expect(list.items.map((i) => i.day)).toEqual([...list.items.map((i) => i.day)].sort());
+    // A fortnight from Mon 1 Jun 00:00 BST: nothing after Mon 15 Jun.
+    expect(list.items.every((i) => i.day >= '2026-06-01' && i.day < '2026-06-15')).toBe(true);
+  });
+
+  it('puts the street, postcode, site contact, office phone and cautions on each card', async () => {
+    const card = (await myWork()).items.find((i) => i.bookingId === today)!;
+    expect(card.site).toEqual({ address: '9 Weir Street', town: 'Headingley', postcode: 'LS6 2AB', accessNotes: null });
+    // Own-firm crew on their own booking: the householder's name and phone, and the office's phone.
+    expect(card.contacts).toEqual([
+      { role: 'Customer', name: 'Mina Holt', phone: '07700 900801' },
+      { role: 'Installer office', name: 'Tideway Hot Tubs', phone: '0113 496 0001' },
+    ]);
+    expect(JSON.stringify(card)).not.toContain('mina@home.example');
+    expect(card.cautions.at(-1)).toBe('Follow local codes and licensed practice.');
+    expect(card.cautions.length).toBeGreaterThan(1); // digging has its own cautions before the closing note
+  });
+
+  it('offers "On site" only on the booking\'s day, and "Done" only once on site', async () => {
+    const items = (await myWork()).items;
+    expect(items.find((i) => i.bookingId === today)!.actions).toEqual(['arrive']);
+    expect(items.find((i) => i.bookingId === thursday)!.actions).toEqual([]);
+  });
+});
+
+describe('marking progress, and taking it back, through the guarded writer', () => {
+  it('marks on site, takes it back, then done and takes that back', async () => {
+    const arrived = await post(today, { action: 'arrive', version: await versionOf(today) }).expect(200);
+    expect(arrived.body.state).toBe('on_site');
+    expect((await myWork()).items.find((i) => i.bookingId === today)!.actions).toEqual(['finish', 'undo-arrive']);
+
+    const back = await post(today, { action: 'undo-arrive', version: arrived.body.version }).expect(200);
+    expect(back.body).toMatchObject({ state: 'confirmed', version: arrived.body.version + 1 });
+
+    const again = await post(today, { action: 'arrive', version: back.body.version }).expect(200);
+    const done = await post(today, { action: 'finish', version: again.body.version }).expect(200);
+    expect(done.body.state).toBe('done');
+    expect((await myWork()).items.find((i) => i.bookingId === today)!.actions).toEqual(['undo-finish']);
+
+    const undone = await post(today, { action: 'undo-finish', version: done.body.version }).expect(200);
+    expect(undone.body.state).toBe('on_site');
+    // Five writes, each through the one door, each audited.
+    expect(run).toHaveBeenCalledTimes(5);
+    const audit = await ctx.knex('audit_log').where({ entity: 'booking', entity_id: today }).orderBy('id').select('after');
+    expect(audit.map((a) => (a.after as { action: string }).action)).toEqual(['arrive', 'undo-arrive', 'arrive', 'finish', 'undo-finish']);
+  });
+
+  it('refuses "On site" days ahead and "Done" before "On site" (409, in plain words)', async () => {
+    const early = await post(thursday, { action: 'arrive', version: await versionOf(thursday) }).expect(409);
+    expect(early.body.detail).toBe('This booking is on Thu 4 Jun 08:00: it can be marked on site on that day.');
+    const notYet = await post(thursday, { action: 'finish', version: await versionOf(thursday) }).expect(409);
+    expect(notYet.body.detail).toBe("A confirmed booking can't be marked done.");
+  });
+
+  it('still takes the older { state } form', async () => {
+    const res = await post(today, { state: 'done', version: await versionOf(today) }).expect(200);
+    expect(res.body.state).toBe('done');
+  });
+
+  it('refuses an unknown action, or both forms at once, naming the field (400)', async () => {
+    const unknown = await post(today, { action: 'teleport', version: 1 }).expect(400);
+    expect(unknown.body.errors.map((e: { field: string }) => e.field)).toEqual(['action']);
+    const both = await post(today, { action: 'arrive', state: 'on_site', version: 1 }).expect(400);
+    expect(both.body.errors).toEqual([{ field: 'action', message: 'give either action or state, not both' }]);
+  });
+});
