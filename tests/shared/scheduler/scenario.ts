@@ -4,7 +4,7 @@ import { localToInstant, dayNumber, weeklyHours } from '../../../shared/schedule
 
 export const LONDON = 'Europe/London';
 
-/** Monday–Friday 08:00–17:00 (a common crew pattern, see DOMAIN.md). */
+/** Monday–Friday 08:00–17:00 (a common crew pattern: common practice, no source). */
 export const MON_FRI_8_TO_5 = weeklyHours([1, 2, 3, 4, 5], [[8 * 60, 17 * 60]]);
 
 /** Local wall-clock time in London as an instant. */
