@@ -35,7 +35,7 @@ export function placeJob(board: Board, jobId: string, now: number, stageIds?: Re
     stages: board.stages.filter((s) => keep(s.id)),
     dependencies: board.dependencies.filter((d) => keep(d.fromStageId) && keep(d.toStageId)),
   };
-  const result = autoPlace(view, { now, jobIds: [jobId] });
+  const result = autoPlace(view, { now, jobIds: [jobId], budgetMs: 0 });
   return { bookings: result.bookings, unplaced: result.unplaced.map((u) => `${u.stageId}: ${u.reason}`) };
 }
 

@@ -2,6 +2,7 @@ import type { ErrorRequestHandler, Request, RequestHandler } from 'express';
 import { ZodError } from 'zod';
 import { SchedulerError } from '../shared/scheduler/errors.ts';
 import { DBError } from 'objection';
+import { problemTypeUri } from './problem-types.ts';
 
 export interface FieldError { field: string; message: string }
 
@@ -197,14 +198,20 @@ function toHttpError(err: unknown, req?: Request): HttpError | null {
   const e = err as { type?: string; status?: number; statusCode?: number; expose?: boolean; message?: string };
   // body-parser errors (malformed JSON, too large) carry their own status.
   if (e?.expose && typeof (e.status ?? e.statusCode) === 'number') {
-    return new HttpError(e.status ?? e.statusCode ?? 400, e.type ?? 'bad-request', 'The request is not valid', e.message);
+    const status = e.status ?? e.statusCode ?? 400;
+    const code = e.type === 'entity.too.large' ? 'body-too-large' : e.type === 'entity.parse.failed' ? 'malformed-body' : 'bad-request';
+    return new HttpError(status, code, 'The request is not valid', e.message);
   }
   return null;
 }
 
-export function problemBody(err: HttpError, instance?: string): Record<string, unknown> {
+/**
+ * The problem+json body of an error. `publicUrl` makes the type absolute (the web app always
+ * passes it; a bare router in a unit test may not).
+ */
+export function problemBody(err: HttpError, instance?: string, publicUrl?: string): Record<string, unknown> {
   return {
-    type: `/problems/${err.code}`,
+    type: problemTypeUri(publicUrl, err.code),
     title: err.title,
     status: err.status,
     ...(err.detail ? { detail: err.detail } : {}),
@@ -213,16 +220,22 @@ export function problemBody(err: HttpError, instance?: string): Record<string, u
   };
 }
 
+/** The installation's public address, which the web app keeps in app.locals for problem types. */
+function publicUrlOf(req: Request): string | undefined {
+  const url = (req.app?.locals as { publicUrl?: unknown } | undefined)?.publicUrl;
+  return typeof url === 'string' ? url : undefined;
+}
+
 /** The one error handler: problem+json, never a stack trace or SQL. */
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   const http = toHttpError(err, req);
   if (!http) {
     req.log?.error({ err }, 'unhandled error');
-    res.status(500).type('application/problem+json').json({ type: '/problems/internal', title: 'Something went wrong on our side', status: 500 });
+    res.status(500).type('application/problem+json').json({ type: problemTypeUri(publicUrlOf(req), 'internal'), title: 'Something went wrong on our side', status: 500 });
     return;
   }
   if (http.status >= 500) req.log?.error({ err }, http.title);
-  res.status(http.status).type('application/problem+json').json(problemBody(http, req.originalUrl));
+  res.status(http.status).type('application/problem+json').json(problemBody(http, req.originalUrl, publicUrlOf(req)));
 };
 
 export const notFoundHandler: RequestHandler = (req, _res, next) => {

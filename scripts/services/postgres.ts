@@ -1,7 +1,7 @@
 import { chmodSync, chownSync, existsSync, mkdirSync, readdirSync, appendFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
-import { hasCommand, isRoot, run } from './shell.ts';
+import { claimRunning, claimStarted, hasCommand, isRoot, portInUse, portTakenError, releaseClaim, run } from './shell.ts';
 
 export interface PostgresHandle {
   port: number;
@@ -67,24 +67,32 @@ export async function startPostgres(dataDir: string, port: number): Promise<Post
     prepareOwnership(dataDir);
   }
 
+  // A cluster of this checkout left running (after a crash or a forced stop) is reused as it is.
   const running = (() => {
     try { run(tool('pg_ctl'), ['-D', pgData, 'status'], { asUser }); return true; } catch { return false; }
   })();
+  const claim = running ? claimRunning(dataDir, 'postgres') : null;
+  if (claim === 'adopted') console.log(`Found this checkout's PostgreSQL left running on port ${port}: using it, and stopping it at the end.`);
   if (!running) {
+    // pg_ctl only says "could not start server" when the port is taken: name the holder instead.
+    if (portInUse(port)) throw portTakenError('PostgreSQL', port, 'WATERLINE_PG_PORT');
     if (isRoot) {
       run('touch', [logFile]);
       chownSync(logFile, Number(run('id', ['-u', 'postgres']).trim()), Number(run('id', ['-g', 'postgres']).trim()));
     }
     run(tool('pg_ctl'), ['-D', pgData, '-l', logFile, '-w', '-t', '30', '-o', `-p ${port}`, 'start'], { asUser });
+    claimStarted(dataDir, 'postgres');
   }
+  const ours = !running || claim === 'adopted';
   return {
     port,
-    startedHere: !running,
+    startedHere: ours,
     stop() {
-      if (running) return;
+      if (!ours) return;
       try { run(tool('pg_ctl'), ['-D', pgData, '-m', 'fast', '-w', 'stop'], { asUser }); } catch (error) {
         console.error(String(error));
       }
+      releaseClaim(dataDir, 'postgres');
     },
   };
 }

@@ -16,10 +16,11 @@ export const csrfProtection: RequestHandler = (req, _res, next) => {
   // Answer and invitation links from e-mails post a form with no session token (the partner or
   // invitee may have no session, or another person's): their signed, single-use token is the proof.
   if (LINK_FORMS.test(req.path)) return next();
-  const expected = req.session.csrfToken ?? '';
-  const given = req.get('x-csrf-token') ?? '';
-  const ok = expected.length > 0 && given.length === expected.length
-    && timingSafeEqual(Buffer.from(given), Buffer.from(expected));
+  // Compare bytes, not characters: a header with non-ASCII text has more bytes than characters,
+  // and timingSafeEqual throws on buffers of different lengths.
+  const expected = Buffer.from(req.session.csrfToken ?? '', 'utf8');
+  const given = Buffer.from(req.get('x-csrf-token') ?? '', 'utf8');
+  const ok = expected.length > 0 && given.length === expected.length && timingSafeEqual(given, expected);
   if (!ok) return next(new HttpError(403, 'csrf', 'Missing or wrong CSRF token', 'Reload the page and try again.'));
   next();
 };

@@ -62,7 +62,7 @@ describe('signing out', () => {
     const agent = await signIn(ctx, account('viewer').email);
     const refused = await agent.post('/auth/sign-out').expect(403);
     expect(refused.headers['content-type']).toMatch(/application\/problem\+json/);
-    expect(refused.body.type).toBe('/problems/csrf');
+    expect(refused.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/csrf`);
     await agent.post('/auth/sign-out').set('X-CSRF-Token', agent.csrf).expect(204);
     await agent.get('/api/session').expect(401);
   });

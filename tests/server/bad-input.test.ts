@@ -153,7 +153,7 @@ describe('file names', () => {
     ]) {
       const res = await multipart(disposition, photo);
       expect(res.status, disposition).toBe(400);
-      expect(res.body, disposition).toMatchObject({ type: '/problems/bad-file-name', errors: [{ field: 'file', message }] });
+      expect(res.body, disposition).toMatchObject({ type: `${ctx.config.PUBLIC_URL}/problems/bad-file-name`, errors: [{ field: 'file', message }] });
     }
     expect(put).not.toHaveBeenCalled();
     expect(await count('job_files')).toBe(before);

@@ -37,3 +37,25 @@ describe('rate-limit settings', () => {
     expect(() => loadConfig({ ...BASE, RATE_LIMIT_PREFIX: 'two words' })).toThrow(/RATE_LIMIT_PREFIX/);
   });
 });
+
+describe('production settings', () => {
+  const PROD = { ...BASE, NODE_ENV: 'production', PUBLIC_URL: 'https://plan.tideway.example', LINK_SECRET: 'l'.repeat(40), SESSION_SECRET: 's'.repeat(40) };
+
+  it('load when every required setting is given', () => {
+    expect(loadConfig(PROD).PUBLIC_URL).toBe('https://plan.tideway.example');
+  });
+
+  it('refuse a missing PUBLIC_URL or LINK_SECRET, naming each', () => {
+    const { PUBLIC_URL: _url, LINK_SECRET: _link, ...rest } = PROD;
+    expect(() => loadConfig(rest)).toThrow(/PUBLIC_URL: is required in production[\s\S]*LINK_SECRET: is required in production/);
+  });
+
+  it('refuse the example and local session secrets', () => {
+    expect(() => loadConfig({ ...PROD, SESSION_SECRET: 'change-me-to-a-long-random-string' })).toThrow(/cannot be used in production/);
+    expect(() => loadConfig({ ...PROD, SESSION_SECRET: 'local-only-session-secret-not-for-production' })).toThrow(/cannot be used in production/);
+  });
+
+  it('outside production keep the local defaults', () => {
+    expect(loadConfig(BASE).PUBLIC_URL).toBe('http://127.0.0.1:3000');
+  });
+});

@@ -49,7 +49,7 @@ describe('the sign-in budget', () => {
     // The sign-in above used one of two: one more start is allowed, the next is not.
     await request(waterline.app).get('/auth/google').expect(302);
     const refused = await request(waterline.app).get('/auth/google').expect(429);
-    expect(refused.body).toMatchObject({ type: '/problems/rate-limited', status: 429, title: 'Too many sign-in attempts' });
+    expect(refused.body).toMatchObject({ type: `${ctx.config.PUBLIC_URL}/problems/rate-limited`, status: 429, title: 'Too many sign-in attempts' });
   });
 
   it('charges a callback with a forged state, and refuses them past the budget', async () => {
@@ -102,7 +102,7 @@ describe('public links', () => {
 
     const refused = burst.find((r) => r.status === 429)!;
     expect(refused.headers['content-type']).toMatch(/^application\/problem\+json/);
-    expect(refused.body).toMatchObject({ type: '/problems/rate-limited', title: 'Too many refused links', status: 429 });
+    expect(refused.body).toMatchObject({ type: `${ctx.config.PUBLIC_URL}/problems/rate-limited`, title: 'Too many refused links', status: 429 });
     expect(refused.body.detail).toMatch(/^Too many answer links from your address were not valid\. Try again in \d+ minutes\.$/);
     expect(Number(refused.headers['retry-after'])).toBeGreaterThan(0);
 

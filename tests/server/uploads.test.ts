@@ -27,7 +27,7 @@ const upload = (buffer: Buffer, filename: string, as: Agent = scheduler) =>
 function expectProblem(res: { status: number; headers: Record<string, string>; body: Record<string, unknown> }, status: number, code: string) {
   expect(res.status).toBe(status);
   expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
-  expect(res.body).toMatchObject({ status, type: `/problems/${code}` });
+  expect(res.body).toMatchObject({ status, type: `${ctx.config.PUBLIC_URL}/problems/${code}` });
 }
 
 describe('uploading a photo', () => {

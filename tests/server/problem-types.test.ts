@@ -1,0 +1,50 @@
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import request from 'supertest';
+import { PROBLEM_TYPES } from '../../server/problem-types.ts';
+import { account, signIn, startTestApp, type TestContext } from '../helpers/server.ts';
+
+let ctx: TestContext;
+beforeAll(async () => { ctx = await startTestApp(); });
+afterAll(async () => { await ctx.close(); });
+
+function sourcesUnder(dir: string): string[] {
+  return readdirSync(dir).flatMap((name) => {
+    const full = path.join(dir, name);
+    return statSync(full).isDirectory() ? sourcesUnder(full) : full.endsWith('.ts') ? [full] : [];
+  });
+}
+
+describe('problem types', () => {
+  it('every code the server can answer with has an explanation', () => {
+    const codes = new Set<string>();
+    for (const file of sourcesUnder(path.resolve('server'))) {
+      for (const m of readFileSync(file, 'utf8').matchAll(/(?:new HttpError|super)\(\s*\d{3},\s*'([a-z-]+)'/g)) codes.add(m[1]);
+    }
+    // The scan must see the error classes themselves, or it proves nothing.
+    expect(codes).toContain('bad-request');
+    expect(codes).toContain('rule-violation');
+    expect([...codes].filter((c) => !Object.hasOwn(PROBLEM_TYPES, c))).toEqual([]);
+  });
+
+  it('answers with an absolute type under PUBLIC_URL that resolves to a page explaining it', async () => {
+    const scheduler = await signIn(ctx, account('scheduler').email);
+    const refused = await scheduler.post('/api/jobs').set('X-CSRF-Token', scheduler.csrf).send({ reference: '' }).expect(400);
+    expect(refused.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/bad-request`);
+    const page = await request(ctx.waterline.app).get(new URL(refused.body.type).pathname).expect(200);
+    expect(page.headers['content-type']).toMatch(/text\/html/);
+    expect(page.text).toContain(PROBLEM_TYPES['bad-request'].title);
+  });
+
+  it('a malformed JSON body gets its own documented type', async () => {
+    const scheduler = await signIn(ctx, account('scheduler').email);
+    const res = await scheduler.post('/api/jobs').set('X-CSRF-Token', scheduler.csrf).set('Content-Type', 'application/json').send('{"reference":').expect(400);
+    expect(res.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/malformed-body`);
+  });
+
+  it('an unknown problem type is a 404, not an empty page', async () => {
+    await request(ctx.waterline.app).get('/problems/no-such-problem').expect(404);
+    await request(ctx.waterline.app).get('/problems/constructor').expect(404);
+  });
+});
