@@ -24,8 +24,9 @@ if (stale) {
   if (result.status !== 0) process.exit(result.status ?? 1);
 }
 
-const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
-const child = spawn(tsx, [path.join(root, 'scripts', 'stack.ts'), mode, ...process.argv.slice(3)], {
+// Node with tsx's loader, not the tsx command: that command's signal relay kills its child outright
+// when a second signal arrives quickly, which would skip stopping PostgreSQL and Redis.
+const child = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'scripts', 'stack.ts'), mode, ...process.argv.slice(3)], {
   cwd: root,
   stdio: 'inherit',
 });

@@ -14,41 +14,73 @@ import { runInherit } from './services/shell.ts';
 import { startFakeOAuthProvider } from './fakes/oauth-provider.ts';
 import { startFakeObjectStore } from './fakes/object-store.ts';
 import { startFakeSmtpInbox } from './fakes/smtp-inbox.ts';
+import { startFakeWeather } from './fakes/weather.ts';
 import { DEMO_ACCOUNTS } from '../seeds/demo-accounts.ts';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
-const dataDir = path.join(root, '.data');
+/** Where PostgreSQL, Redis and the fakes keep their files (WATERLINE_DATA_DIR moves it, e.g. for the stack's own tests). */
+const dataDir = path.resolve(process.env.WATERLINE_DATA_DIR ?? path.join(root, '.data'));
 const mode = process.argv[2] === 'test' || process.argv[2] === 'bench' ? process.argv[2] : 'start';
 /** Tests and benchmarks run beside a running `npm start`: fakes on free ports, their own database. */
 const isolated = mode !== 'start';
+/** WATERLINE_FAKE_PORTS=free puts the fakes on free ports in `npm start` too (a second stack beside the first). */
+const freeFakePorts = isolated || process.env.WATERLINE_FAKE_PORTS === 'free';
 const PORTS = {
   postgres: Number(process.env.WATERLINE_PG_PORT ?? 54329),
   redis: Number(process.env.WATERLINE_REDIS_PORT ?? 63799),
   // Tests take any free port for the fakes (their URLs are passed on), so runs never collide.
-  oauth: isolated ? 0 : 4011,
-  objectStore: isolated ? 0 : 4569,
-  smtp: isolated ? 0 : 2525,
-  inbox: isolated ? 0 : 1080,
+  oauth: freeFakePorts ? 0 : 4011,
+  objectStore: freeFakePorts ? 0 : 4569,
+  smtp: freeFakePorts ? 0 : 2525,
+  inbox: freeFakePorts ? 0 : 1080,
+  weather: freeFakePorts ? 0 : 4015,
   app: Number(process.env.PORT ?? 3000),
 };
 
 const cleanups: (() => void | Promise<void>)[] = [];
 let children: ChildProcess[] = [];
 let stopping = false;
+let stopped: Promise<void> | null = null;
 
+/**
+ * Stops the children, then runs the clean-ups (services this run started) once, and exits. Called
+ * again while stopping (a second signal, a child's exit) it waits for the same clean-up rather
+ * than exiting early and leaving PostgreSQL or Redis behind.
+ */
 async function stopAll(code: number): Promise<never> {
-  if (!stopping) {
-    stopping = true;
+  stopping = true;
+  stopped ??= (async () => {
     for (const child of children) child.kill('SIGTERM');
-    await Promise.all(children.map((c) => new Promise((r) => (c.exitCode !== null ? r(null) : c.once('exit', r)))));
+    await Promise.all(children.map((c) => new Promise((r) => (c.exitCode !== null || c.signalCode !== null ? r(null) : c.once('exit', r)))));
     for (const cleanup of cleanups.reverse()) {
       try { await cleanup(); } catch (error) { console.error(String(error)); }
     }
-  }
+  })();
+  await stopped;
   process.exit(code);
 }
-process.on('SIGINT', () => void stopAll(130));
-process.on('SIGTERM', () => void stopAll(143));
+
+/**
+ * One Ctrl-C reaches this process several times (the terminal signals the whole process group, and
+ * npm and the bootstrap script pass it on), and service managers send TERM after INT. Signals
+ * inside a short burst count as one; a later one says what is happening; only a third separate
+ * request forces an exit without the clean-up.
+ */
+let signalRequests = 0;
+let lastSignalAt = 0;
+function onSignal(code: number): void {
+  const now = Date.now();
+  if (now - lastSignalAt > 500) signalRequests += 1;
+  lastSignalAt = now;
+  if (signalRequests === 2) console.error('\nStill stopping PostgreSQL and Redis… press Ctrl-C once more to quit without waiting.');
+  if (signalRequests >= 3) {
+    console.error('\nQuit without waiting: PostgreSQL or Redis may still be running; the next start reuses them.');
+    process.exit(code);
+  }
+  void stopAll(code);
+}
+process.on('SIGINT', () => onSignal(130));
+process.on('SIGTERM', () => onSignal(143));
 
 function newestMtime(paths: string[]): number {
   let newest = 0;
@@ -96,6 +128,9 @@ async function main(): Promise<void> {
   // E-mail goes to a local inbox page instead of anyone's mailbox.
   const inbox = await startFakeSmtpInbox({ smtp: PORTS.smtp, web: PORTS.inbox });
   cleanups.push(() => inbox.stop());
+  // Site weather forecasts (the cure) from a local stand-in for the forecast API.
+  const weather = await startFakeWeather(PORTS.weather);
+  cleanups.push(() => weather.stop());
 
   const publicUrl = `http://127.0.0.1:${PORTS.app}`;
   const env: NodeJS.ProcessEnv = {
@@ -119,16 +154,19 @@ async function main(): Promise<void> {
     S3_SECRET_ACCESS_KEY: s3.secretAccessKey,
     SMTP_URL: inbox.smtpUrl,
     FAKE_INBOX_URL: inbox.url,
+    WEATHER_API_URL: weather.url,
     LOG_LEVEL: process.env.LOG_LEVEL ?? (isolated ? 'silent' : 'info'),
   };
-  const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
+  // TypeScript children run as node with tsx's loader (not the tsx command, whose signal relay may
+  // kill a child before it has shut down cleanly).
+  const runTs = (script: string, args: string[] = []): [string, string[]] => [process.execPath, ['--import', 'tsx', script, ...args]];
 
   if (mode === 'bench') {
     // `npm run bench:… ` → the named benchmark script, with the services it needs.
     await buildClientIfStale();
     const [script, ...rest] = process.argv.slice(3);
     if (!script) throw new Error('bench mode needs a script, e.g. bench/board.ts');
-    const code = await new Promise<number>((resolve) => spawnChild(tsx, [path.join(root, script), ...rest], env).on('exit', (c) => resolve(c ?? 1)));
+    const code = await new Promise<number>((resolve) => spawnChild(...runTs(path.join(root, script), rest), env).on('exit', (c) => resolve(c ?? 1)));
     return stopAll(code);
   }
 
@@ -149,10 +187,10 @@ async function main(): Promise<void> {
     return stopAll(0);
   }
 
-  const migrate = await runInherit(tsx, [path.join(root, 'scripts', 'migrate.ts'), 'latest', '--seed'], { cwd: root, env });
+  const migrate = await runInherit(...runTs(path.join(root, 'scripts', 'migrate.ts'), ['latest', '--seed']), { cwd: root, env });
   if (migrate !== 0) return stopAll(migrate);
   await buildClientIfStale();
-  const server = spawnChild(tsx, [path.join(root, 'server', 'index.ts')], { ...env, RUN_WORKER: '1' });
+  const server = spawnChild(...runTs(path.join(root, 'server', 'index.ts')), { ...env, RUN_WORKER: '1' });
   server.on('exit', (code) => { if (!stopping) void stopAll(code ?? 1); });
   console.log([
     '',

@@ -46,6 +46,8 @@ export const RESOURCES: Res[] = [
   { firm: 'Tideway Hot Tubs', name: 'Roller set', category: 'machine', kind: 'rollers' },
   { firm: 'Fellside Crane Hire', name: '25 t city crane', category: 'machine', kind: 'crane' },
   { firm: 'Fellside Crane Hire', name: '60 t mobile crane', category: 'machine', kind: 'crane' },
+  // The appointed person who visits the site and writes the lift plan before each lift.
+  { firm: 'Fellside Crane Hire', name: 'Fellside lift planner', category: 'person', kind: 'lift_planner' },
   { firm: 'Brightspark Electrical', name: 'Priya Nair', category: 'person', kind: 'electrician', calendar: 'Electricians', email: 'priya.nair@brightspark.example' },
   { firm: 'Brightspark Electrical', name: 'Tom Ashworth', category: 'person', kind: 'electrician', calendar: 'Electricians' },
   { firm: 'Northgate Electrical', name: 'Gareth Pryce', category: 'person', kind: 'electrician', calendar: 'Electricians' },

@@ -57,8 +57,8 @@ export function stateBy(today: number, b: Pick<Booking, 'start' | 'end'>, side: 
 }
 
 /**
- * Pencilled bookings inside their notice period on `today` (a crane wants five working days, the
- * unit's delivery fifteen from the order): a partner who needs that notice has already been asked,
+ * Pencilled bookings inside their notice period on `today` (the crane firm wants ten working days, the
+ * unit's delivery its maker's lead time from the order): a partner who needs that notice has already been asked,
  * so these are sent rather than pencilled.
  */
 export function pencilledInsideNotice(board: Board, today: number): Set<string> {

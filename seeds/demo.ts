@@ -6,7 +6,8 @@ import { DEFAULT_TEMPLATES } from '../shared/templates/defaults.ts';
 import { planFromTemplate } from '../shared/templates/plan.ts';
 import { jobQuantities, type InstallationType, type SurveyFigures } from '../shared/quantities/job-quantities.ts';
 import { DEFAULT_QUANTITY_SETTINGS } from '../shared/quantities/settings.ts';
-import { isWorkingInstant, type Booking, type BookingState, type WorkingCalendar } from '../shared/scheduler/index.ts';
+import { dayOfDate, todayIn } from '../shared/local-dates.ts';
+import { isoDateOfDay, isWorkingInstant, localToInstant, type Booking, type BookingState, type WorkingCalendar } from '../shared/scheduler/index.ts';
 
 /**
  * The demo scenario (all names invented, seeds/demo-data.ts): one installer with three crews and
@@ -22,19 +23,15 @@ import { isWorkingInstant, type Booking, type BookingState, type WorkingCalendar
 
 const DAY = 86_400_000;
 
-/** Offset of Europe/London from UTC at an instant, in minutes. */
-function londonOffset(utcMs: number): number {
-  const parts = new Intl.DateTimeFormat('en-GB', { timeZone: 'Europe/London', timeZoneName: 'shortOffset' }).formatToParts(new Date(utcMs));
-  const name = parts.find((p) => p.type === 'timeZoneName')?.value ?? 'GMT';
-  const m = /GMT([+-]\d+)?/.exec(name);
-  return m?.[1] ? Number(m[1]) * 60 : 0;
-}
-/** The instant of `minutes` past local midnight on the London calendar day that starts near `dayUtc`. */
+// Days are counted as `DAY` multiples from 1970-01-01 on London's calendar (the engine's day numbers,
+// times DAY); the one zone rule is shared/local-dates.ts over the engine's zone functions.
+const DEMO_ZONE = 'Europe/London';
+/** The instant of `minutes` past local midnight on the London calendar day `dayUtc` stands for. */
 function londonAt(dayUtc: number, minutes: number): Date {
-  const guess = dayUtc + minutes * 60_000;
-  return new Date(guess - londonOffset(guess) * 60_000);
+  return new Date(localToInstant(DEMO_ZONE, Math.round(dayUtc / DAY), minutes));
 }
-const isoDate = (ms: number) => new Date(ms).toISOString().slice(0, 10);
+/** The calendar date a day stands for. */
+const isoDate = (dayUtc: number) => isoDateOfDay(Math.round(dayUtc / DAY));
 /** The firms' standard week in England, with its bank holidays: the days work can be booked on. */
 const STANDARD_WEEK: WorkingCalendar = {
   id: 'standard', timeZone: 'Europe/London', holidayRegion: { country: 'GB', state: 'ENG' },
@@ -61,7 +58,7 @@ export const DEMO_PROBLEMS = {
   hireClash: { job: 'TW-2410', machine: '3 t excavator (hired)' },
   /** The 3 t excavator is on hire while the 1.5 t is serviced, and stands idle on some paid days. */
   idleHire: { machine: '3 t excavator (hired)' },
-  /** The swim spa was ordered late: the maker's 15 working days put delivery after the promised date. */
+  /** The swim spa was ordered late: the maker's 35 working days put delivery after the promised date. */
   lateJob: { job: 'TW-2404' },
   /** Millstone Groundworks has not answered the request for the excavation: flagged overdue. */
   unansweredRequest: { job: 'TW-2416', firm: 'Millstone Groundworks' },
@@ -102,7 +99,8 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
   const existing = await knex('firms').where('name', FIRMS[0]!.name).first();
   if (existing) return { skipped: true, jobs: 0, bookings: 0 };
   const today = (options.today ?? new Date()).getTime();
-  const day0 = Date.UTC(new Date(today).getUTCFullYear(), new Date(today).getUTCMonth(), new Date(today).getUTCDate());
+  // Today on London's calendar (just after midnight BST it is still yesterday in UTC).
+  const day0 = dayOfDate(todayIn(DEMO_ZONE, today)) * DAY;
 
   return knex.transaction(async (trx) => {
     const firmId = await insertAll(trx, 'firms', FIRMS.map((f) => ({ name: f.name, kind: f.kind, time_zone: 'Europe/London', holiday_region: f.region ?? 'GB-ENG', phone: f.phone, email: f.email ?? null })), 'name');
@@ -166,8 +164,10 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
       // Promised five weeks out; the late job was promised a tight fortnight before its unit was ordered.
       const promisedFrom = start + (i === LATE ? 12 : 28) * DAY;
       const promisedTo = workingDayFrom(promisedFrom + (i === LATE ? 4 : 7) * DAY);
-      // The unit is ordered about three weeks before the work; not yet for the newest jobs.
-      const ordered = i === LATE ? day0 - DAY : TRAY[i] || start - 20 * DAY > day0 ? null : start - 20 * DAY;
+      // The unit is ordered the maker's lead time before the work (working days as calendar days, and
+      // a week to spare), so its delivery is in time; not yet where that day is still to come.
+      const orderAhead = (Math.ceil((unit.makerLeadDays * 7) / 5) + 7) * DAY;
+      const ordered = i === LATE ? day0 - DAY : TRAY[i] || start - orderAhead > day0 ? null : start - orderAhead;
       const row = {
         firm_id: tideway, reference: `TW-${String(2401 + i)}`, customer_name: customer, customer_phone: `07700 900${String(100 + i)}`,
         customer_email: `${customer.split(' ')[0]!.toLowerCase()}@home.example`, site_address: address, site_town: town, site_postcode: postcode,
@@ -246,13 +246,14 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
     const stageRows = planned.flatMap(({ job, plan, craneReason }) => plan.stages.filter((s) => s.kind !== 'survey').map((s) => ({
       job_id: job.id, kind: s.kind, name: s.name, sequence: s.sequence, duration_minutes: s.durationMinutes,
       requirements: JSON.stringify(s.requirements), cure: s.cure ? JSON.stringify(s.cure) : null,
+      notice: s.leadTime ? JSON.stringify(s.leadTime) : null,
       notes: s.kind === 'lift' || s.kind === 'placement' ? craneReason : null,
     })));
     const inserted = await trx('stages').insert(stageRows).returning(['id', 'job_id', 'kind']) as { id: string; jobId: string; kind: string }[];
     const stageOf = new Map(inserted.map((s) => [`${s.jobId}/${s.kind}`, String(s.id)]));
     for (const job of jobs) stageOf.set(`${job.id}/survey`, job.surveyStageId);
     await trx('dependencies').insert(planned.flatMap(({ job, links }) => links.map((l) => ({
-      from_stage_id: stageOf.get(`${job.id}/${l.fromKind}`), to_stage_id: stageOf.get(`${job.id}/${l.toKind}`), type: l.type, lag_amount: l.lagAmount, lag_unit: l.lagUnit,
+      from_stage_id: stageOf.get(`${job.id}/${l.fromKind}`), to_stage_id: stageOf.get(`${job.id}/${l.toKind}`), type: l.type, lag_amount: l.lagAmount, lag_unit: l.lagUnit, waits_for_cure: l.waitsForCure,
     }))));
 
     // Then the work itself, job by job in promised-date order, each from the day it may start.

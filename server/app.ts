@@ -23,6 +23,7 @@ import { csrfProtection } from './middleware/csrf.ts';
 import { createRateLimits } from './middleware/rate-limit.ts';
 import { actorFor } from './services/session.ts';
 import { Health } from './health.ts';
+import { problemRoutes } from './routes/problems.ts';
 import { BoardStream } from './services/board-stream.ts';
 
 export interface AppDeps {
@@ -50,11 +51,13 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
   const PgStore = connectPgSimple(session);
 
   app.disable('x-powered-by');
+  // Problem types are absolute URIs under the installation's public address (see problem-types.ts).
+  app.locals.publicUrl = config.PUBLIC_URL;
   // Only configured proxies may name the client (X-Forwarded-For); by default it is the socket's address.
   app.set('trust proxy', config.TRUST_PROXY);
   app.use(pinoHttp({
     logger,
-    autoLogging: { ignore: (req) => req.url === '/api/health' || !req.url?.startsWith('/api') && !req.url?.startsWith('/auth') },
+    autoLogging: { ignore: (req) => req.url?.startsWith('/api/health') || !req.url?.startsWith('/api') && !req.url?.startsWith('/auth') },
     // Logs carry what a request was, never its cookies or tokens.
     serializers: {
       req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url.replace(/([?&](code|state|access_token)=)[^&]*/g, '$1…') }),
@@ -109,6 +112,7 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
   const jobWork = jobWorkRoutes(routes, { knex, config, now });
   partnerRoutes(routes, { knex, config, now });
   answerRoutes(routes, { knex, config, now });
+  problemRoutes(routes);
   reportRoutes(routes, { knex, now, publicUrl: config.PUBLIC_URL, extraWorkingMinutes: bookingLimitsOf(config).extraWorkingMinutes });
   routes.mount(app.router);
 

@@ -68,8 +68,15 @@ const Env = z.object({
   BOOKING_WINDOW_FUTURE_DAYS: z.coerce.number().int().min(1).max(3650).default(1095),
   // Working minutes a booking may run past what its stage needs (one working day by default).
   BOOKING_EXTRA_WORKING_MINUTES: z.coerce.number().int().min(0).max(10 * 480).default(480),
+  // The weather forecast service (Open-Meteo's forecast API; the local fake in npm start and tests).
+  WEATHER_API_URL: z.url().default('https://api.open-meteo.com'),
+  // How often the worker refreshes the forecasts of sites with a base poured or about to be.
+  WEATHER_REFRESH_HOURS: z.coerce.number().min(1).max(168).default(24),
 });
 export type Config = z.infer<typeof Env> & { LINK_SECRET: string };
+
+/** Secrets from .env.example and the local stack, never acceptable in production. */
+const PLACEHOLDER_SECRETS = new Set(['change-me-to-a-long-random-string', 'local-only-session-secret-not-for-production']);
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const parsed = Env.safeParse(env);
@@ -78,8 +85,16 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     throw new Error(`Waterline's settings are incomplete:\n${lines.join('\n')}`);
   }
   const { LINK_SECRET, ...rest } = parsed.data;
-  if (!LINK_SECRET && rest.NODE_ENV === 'production') {
-    throw new Error("Waterline's settings are incomplete:\n  LINK_SECRET: is required in production");
+  if (rest.NODE_ENV === 'production') {
+    const missing: string[] = [];
+    // Links in e-mails, problem types and calendar UIDs are built on PUBLIC_URL: a default would
+    // send partners to 127.0.0.1.
+    if (!env.PUBLIC_URL) missing.push('PUBLIC_URL: is required in production (the address people open, e.g. https://plan.example.com)');
+    if (!LINK_SECRET) missing.push('LINK_SECRET: is required in production');
+    if (PLACEHOLDER_SECRETS.has(rest.SESSION_SECRET) || (LINK_SECRET && PLACEHOLDER_SECRETS.has(LINK_SECRET))) {
+      missing.push('SESSION_SECRET / LINK_SECRET: the example or local value cannot be used in production; generate a random one');
+    }
+    if (missing.length > 0) throw new Error(`Waterline's settings are incomplete:\n${missing.map((m) => `  ${m}`).join('\n')}`);
   }
   // Outside production a link secret derived from the session secret keeps local set-up to one setting.
   return { ...rest, LINK_SECRET: LINK_SECRET ?? createHash('sha256').update(`waterline-links:${rest.SESSION_SECRET}`).digest('base64url') };

@@ -3,14 +3,18 @@ import { createKnex } from './db.ts';
 import { createApp } from './app.ts';
 import pino from 'pino';
 import { startMailPipeline, type MailPipeline } from '../workers/pipeline.ts';
+import { startWeatherRefresh, type WeatherRefresh } from '../workers/weather.ts';
 
 const config = loadConfig();
 const knex = createKnex(config.DATABASE_URL);
 const { app, close } = createApp({ config, knex });
 // `npm start` runs the outbox relay and mail worker in this process (RUN_WORKER=1); production runs `npm run worker` apart.
 let mail: MailPipeline | null = null;
+let weather: WeatherRefresh | null = null;
 if (process.env.RUN_WORKER === '1') {
-  mail = startMailPipeline({ knex, config, logger: pino({ level: config.LOG_LEVEL }).child({ process: 'worker' }) });
+  const logger = pino({ level: config.LOG_LEVEL }).child({ process: 'worker' });
+  mail = startMailPipeline({ knex, config, logger });
+  weather = startWeatherRefresh({ knex, config, logger });
 }
 
 const server = app.listen(config.PORT, config.HOST, () => {
@@ -28,6 +32,7 @@ async function shutdown(signal: string) {
   const force = setTimeout(() => process.exit(1), 10_000);
   force.unref();
   await mail?.close();
+  await weather?.close();
   await close();
   await knex.destroy();
   process.exit(0);

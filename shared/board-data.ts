@@ -35,8 +35,11 @@ export interface BoardBooking extends Booking {
   overdue?: boolean;
   /** The partner proposed another time, waiting for the scheduler to accept or refuse it. */
   proposal?: { start: number; end: number } | null;
-  /** A declined booking: when the partner said no, and whether from the e-mailed link or their pages. */
-  declined?: { at: number; via: 'link' | 'app' } | null;
+  /**
+   * A declined booking: when the partner said no, whether from the e-mailed link or their pages, and
+   * why in their own words (null when they gave no reason; only the installer whose booking it is reads it).
+   */
+  declined?: { at: number; via: 'link' | 'app'; reason?: string | null } | null;
 }
 
 /**

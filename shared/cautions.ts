@@ -76,6 +76,8 @@ export const STAGE_CAUTION_TOPICS: Record<string, readonly CautionTopic[]> = {
   electrical_first_fix: ['electrical', 'excavation'],
   delivery: ['lifting', 'manual_handling'],
   lift: ['lifting', 'manual_handling'],
+  // The appointed person's site visit: where the crane stands, what is overhead, the ground under the outriggers.
+  lift_plan: ['site', 'lifting'],
   placement: ['manual_handling'],
   fill: ['fill'],
   electrical_connect: ['electrical'],

@@ -1,14 +1,16 @@
-/** The worker process (`npm run worker`): the outbox relay and the mail worker, until SIGTERM. */
+/** The worker process (`npm run worker`): the outbox relay, the mail worker and the daily site forecast refresh, until SIGTERM. */
 import pino from 'pino';
 import { loadConfig } from '../server/config.ts';
 import { createKnex } from '../server/db.ts';
 import { startMailPipeline } from './pipeline.ts';
+import { startWeatherRefresh } from './weather.ts';
 
 const config = loadConfig();
 const logger = pino({ level: config.LOG_LEVEL }).child({ process: 'worker' });
 const knex = createKnex(config.DATABASE_URL, { min: 0, max: 5 });
 const pipeline = startMailPipeline({ knex, config, logger });
 logger.info({ queue: config.MAIL_QUEUE }, 'mail worker started');
+const weather = startWeatherRefresh({ knex, config, logger });
 
 let stopping = false;
 async function shutdown(signal: string): Promise<void> {
@@ -18,6 +20,7 @@ async function shutdown(signal: string): Promise<void> {
   const force = setTimeout(() => process.exit(1), 15_000);
   force.unref();
   await pipeline.close();
+  await weather.close();
   await knex.destroy();
   process.exit(0);
 }

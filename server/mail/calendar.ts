@@ -23,10 +23,15 @@ export interface InviteOptions {
 /**
  * An iTIP invite for one booking (RFC 5546 over RFC 5545): METHOD:REQUEST for a new or moved slot,
  * METHOD:CANCEL when it is withdrawn; SEQUENCE is the booking's version so each revision supersedes
- * the last (§3.8.7.4). Times are written in UTC, so no VTIMEZONE is needed.
+ * the last (§3.8.7.4). A request still waiting for the partner's answer is STATUS:TENTATIVE; once
+ * the partner confirmed, the update sent then (same UID, higher SEQUENCE) is STATUS:CONFIRMED with
+ * the partner's attendance ACCEPTED (RFC 5545 §3.8.1.11, §3.2.12). Times are written in UTC, so no
+ * VTIMEZONE is needed.
  */
 export function bookingInvite(f: BookingFacts, version: number, options: InviteOptions): string {
   const cal = ical({ prodId: PRODUCT, method: options.method === 'cancel' ? ICalCalendarMethod.CANCEL : ICalCalendarMethod.REQUEST });
+  // Only the partner's answer settles a slot: on site counts as settled too.
+  const confirmed = f.booking.state === 'confirmed' || f.booking.state === 'on_site';
   cal.createEvent({
     id: bookingUid(f.booking.id),
     sequence: version,
@@ -36,9 +41,12 @@ export function bookingInvite(f: BookingFacts, version: number, options: InviteO
     summary: summaryOf(f),
     location: locationOf(f),
     description: options.description,
-    status: options.method === 'cancel' ? ICalEventStatus.CANCELLED : ICalEventStatus.CONFIRMED,
+    status: options.method === 'cancel' ? ICalEventStatus.CANCELLED : confirmed ? ICalEventStatus.CONFIRMED : ICalEventStatus.TENTATIVE,
     organizer: { name: f.installer.name, email: options.organizerEmail },
-    attendees: f.recipients.map((email) => ({ email, name: f.partner.name, role: ICalAttendeeRole.REQ, status: ICalAttendeeStatus.NEEDSACTION, rsvp: true })),
+    attendees: f.recipients.map((email) => ({
+      email, name: f.partner.name, role: ICalAttendeeRole.REQ,
+      status: confirmed ? ICalAttendeeStatus.ACCEPTED : ICalAttendeeStatus.NEEDSACTION, rsvp: !confirmed,
+    })),
   });
   return cal.toString();
 }

@@ -1,4 +1,7 @@
 import type { Knex } from 'knex';
+import type { SlotSupply } from '../../shared/slot-supply.ts';
+import { jobSupplies, siteContacts } from '../services/answer-views.ts';
+import { partnerSlotFacts, type VisitContact } from '../services/read-policy.ts';
 
 /**
  * Everything an e-mail about one booking says, read fresh when it is sent (the outbox row holds ids
@@ -6,7 +9,8 @@ import type { Knex } from 'knex';
  */
 export interface BookingFacts {
   booking: { id: string; version: number; state: string; startsAt: Date; endsAt: Date };
-  stage: { id: string; kind: string; name: string; notes: string | null };
+  /** No notes: a stage's notes are the office's planning notes, never sent to a partner. */
+  stage: { id: string; kind: string; name: string };
   job: {
     id: string; reference: string; siteAddress: string; siteTown: string; sitePostcode: string; accessNotes: string | null;
     customerName: string; customerEmail: string | null;
@@ -17,6 +21,12 @@ export interface BookingFacts {
   partner: { id: string; name: string; email: string | null };
   /** The partner firm's booking address and its coordinators (members with the partner role). */
   recipients: string[];
+  /**
+   * What the partner may read beyond the site and times, as the read policy gives it
+   * (services/read-policy.ts `partnerSlotFacts`): whom to call on the day, and the house's
+   * supply for electrical work only. Partner-facing outputs read contacts and supply from here.
+   */
+  forPartner: { contacts: VisitContact[]; supply: SlotSupply | null };
 }
 
 /** The booking as the audit log kept it when it was deleted. */
@@ -38,9 +48,10 @@ export async function loadBookingFacts(knex: Knex, bookingId: string, resourceId
     .join('firms as i', 'i.id', 'j.firm_id')
     .leftJoin('units as u', 'u.id', 'j.unit_id')
     .first(
-      's.id as stage_id', 's.kind as stage_kind', 's.name as stage_name', 's.notes as stage_notes',
+      's.id as stage_id', 's.kind as stage_kind', 's.name as stage_name',
       'j.id as job_id', 'j.reference', 'j.site_address', 'j.site_town', 'j.site_postcode', 'j.access_notes',
-      'j.customer_name', 'j.customer_email',
+      'j.customer_name', 'j.customer_email', 'j.customer_phone',
+      knex.raw('(SELECT fs.share_customer_contact_with_partners FROM firm_settings fs WHERE fs.firm_id = j.firm_id) AS shares_customer_contact'),
       'u.model as unit_model', 'u.length_mm', 'u.width_mm', 'u.height_mm', 'u.dry_weight_kg',
       'i.id as installer_id', 'i.name as installer_name', 'i.phone as installer_phone', 'i.email as installer_email', 'i.time_zone',
     );
@@ -53,9 +64,17 @@ export async function loadBookingFacts(knex: Knex, bookingId: string, resourceId
   const coordinators: string[] = await knex('memberships as m').join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.firm_id': resource.firmId, 'm.role': 'partner' }).orderBy('u.email').pluck('u.email');
   const recipients = [...new Set([resource.firmEmail, ...coordinators].filter((e): e is string => Boolean(e)).map((e) => e.toLowerCase()))];
+  const jobId = String(row.jobId);
+  const slot = { bookingId: String(row.id), jobId, startsAt: row.startsAt, endsAt: row.endsAt, timeZone: row.timeZone };
+  const [contacts, supplies] = await Promise.all([siteContacts(knex, [slot]), jobSupplies(knex, [jobId])]);
+  const forPartner = partnerSlotFacts({
+    resourceKind: resource.kind, customerName: row.customerName, customerPhone: row.customerPhone,
+    officeName: row.installerName, officePhone: row.installerPhone, sharesCustomerContact: row.sharesCustomerContact === true,
+    siteContact: contacts.get(slot.bookingId) ?? null, supply: supplies.get(jobId)!,
+  });
   return {
     booking: { id: String(row.id), version: row.version, state: row.state, startsAt: row.startsAt, endsAt: row.endsAt },
-    stage: { id: String(row.stageId), kind: row.stageKind, name: row.stageName, notes: row.stageNotes },
+    stage: { id: String(row.stageId), kind: row.stageKind, name: row.stageName },
     job: {
       id: String(row.jobId), reference: row.reference, siteAddress: row.siteAddress, siteTown: row.siteTown, sitePostcode: row.sitePostcode,
       accessNotes: row.accessNotes, customerName: row.customerName, customerEmail: row.customerEmail,
@@ -65,7 +84,13 @@ export async function loadBookingFacts(knex: Knex, bookingId: string, resourceId
     resource: { id: String(resource.id), name: resource.name, kind: resource.kind, firmId: String(resource.firmId) },
     partner: { id: String(resource.firmId), name: resource.firmName, email: resource.firmEmail },
     recipients,
+    forPartner,
   };
+}
+
+/** "Role, name: phone" for each contact the read policy gives the partner. */
+export function contactLines(contacts: BookingFacts['forPartner']['contacts']): string[] {
+  return contacts.map((c) => `${c.role}, ${c.name}: ${c.phone ?? 'no phone recorded'}`);
 }
 
 /** "Tuesday 6 October 2026", "08:00–12:00" in the installer firm's time zone. */

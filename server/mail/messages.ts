@@ -4,11 +4,13 @@ import { LinkSigner, type AnswerAction } from '../services/links.ts';
 import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
 import { whatToBring } from './what-to-bring.ts';
 import { bookingInvite } from './calendar.ts';
-import { describeWindow, loadBookingFacts, type BookingFacts } from './facts.ts';
+import { contactLines, describeWindow, loadBookingFacts, type BookingFacts } from './facts.ts';
 import { renderMail, type MailContent } from './layout.ts';
+import { localDateOf } from '../../shared/local-dates.ts';
+import { supplyLines } from '../../shared/slot-supply.ts';
 
 /** What the outbox can send; each row's payload carries ids only. */
-export const OUTBOX_KINDS = ['booking_request', 'booking_update', 'booking_reminder', 'booking_cancel', 'proposal_refused', 'customer_notice', 'invitation', 'booking_declined'] as const;
+export const OUTBOX_KINDS = ['booking_request', 'booking_update', 'booking_reminder', 'booking_cancel', 'proposal_refused', 'customer_notice', 'invitation', 'booking_declined', 'booking_confirmed'] as const;
 export type OutboxKind = (typeof OUTBOX_KINDS)[number];
 
 export interface OutboxPayload {
@@ -48,6 +50,7 @@ export async function composeMessage(deps: ComposeDeps, kind: OutboxKind, payloa
   if (kind === 'customer_notice') return composeCustomerNotice(deps, facts, payload);
   if (kind === 'booking_cancel') return composeCancel(deps, facts, payload.version ?? facts.booking.version);
   if (kind === 'booking_declined') return composeDeclined(deps, facts, payload);
+  if (kind === 'booking_confirmed') return composeConfirmed(deps, facts, payload);
   // A request, update or reminder for a version that has since changed would carry dead links.
   if (payload.version !== facts.booking.version) return { skip: `superseded by version ${facts.booking.version}` };
   if (kind === 'booking_reminder' && facts.booking.state !== 'sent') return { skip: `already answered (${facts.booking.state})` };
@@ -55,14 +58,20 @@ export async function composeMessage(deps: ComposeDeps, kind: OutboxKind, payloa
   return composeRequest(deps, facts, kind);
 }
 
+/**
+ * The slot as a partner needs it: when, what, the unit, the house's supply (electrical work only),
+ * the site and whom to call. Only structured facts: no stage notes or other office text.
+ */
 function slotLines(f: BookingFacts): MailContent['sections'] {
   const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
   const unit = f.unit ? [`Unit: ${f.unit.model}, ${f.unit.lengthMm} × ${f.unit.widthMm} × ${f.unit.heightMm} mm, ${f.unit.dryWeightKg} kg dry`] : [];
+  const supply = f.forPartner.supply;
   return [
     { heading: 'When', lines: [when.date, `${when.window} (${when.zone})`] },
-    { heading: 'Work', lines: [`${f.stage.name} for job ${f.job.reference}`, `Booked: ${f.resource.name}`, ...unit, ...(f.stage.notes ? [f.stage.notes] : [])] },
+    { heading: 'Work', lines: [`${f.stage.name} for job ${f.job.reference}`, `Booked: ${f.resource.name}`, ...unit] },
+    ...(supply ? [{ heading: 'Electrical supply', lines: supplyLines(supply) }] : []),
     { heading: 'Site', lines: [f.job.siteAddress, `${f.job.siteTown} ${f.job.sitePostcode}`, `Access and parking: ${f.job.accessNotes ?? 'ask the installer before you travel'}`] },
-    { heading: 'On the day, call', lines: [`${f.installer.name}: ${f.installer.phone ?? 'see the installer\'s booking details'}`] },
+    { heading: 'On the day, call', lines: contactLines(f.forPartner.contacts) },
   ];
 }
 
@@ -102,6 +111,30 @@ async function composeRequest(deps: ComposeDeps, f: BookingFacts, kind: OutboxKi
   return { to: f.recipients, subject: head.subject, html, text, ics: { method: 'REQUEST', content: ics } };
 }
 
+/**
+ * The partner confirmed: they get the slot once more as it now stands, with an updated invite (the
+ * same UID, the confirmed version as SEQUENCE, STATUS:CONFIRMED) that replaces the tentative entry
+ * in their calendar. Skipped once the booking has changed again (that change sends its own).
+ */
+async function composeConfirmed(deps: ComposeDeps, f: BookingFacts, payload: OutboxPayload): Promise<OutgoingMail | SkippedMail> {
+  if (f.booking.state !== 'confirmed' || payload.version !== f.booking.version) {
+    return { skip: `superseded (the booking is ${f.booking.state}, version ${f.booking.version})` };
+  }
+  if (f.recipients.length === 0) return { skip: `${f.partner.name} has no booking address or coordinator` };
+  const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
+  const content: MailContent = {
+    preview: `Confirmed: ${f.stage.name}, ${when.date}, ${when.window}`,
+    title: `Confirmed: ${f.resource.name} for ${f.installer.name}`,
+    intro: [`Thank you: ${f.installer.name} has your confirmation of the slot below. The attached invite marks it confirmed in your calendar.`],
+    sections: [...slotLines(f), { heading: 'What to bring', lines: whatToBring(f.resource.kind) }],
+    cautions: cautionBlock(f.stage.kind),
+    footer: [`Sent by Waterline for ${f.installer.name} to ${f.partner.name}. To change anything now, call ${f.installer.name}${f.installer.phone ? ` on ${f.installer.phone}` : ''}.`],
+  };
+  const { html, text } = renderMail(content);
+  const ics = bookingInvite(f, f.booking.version, { method: 'request', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), description: text, now: deps.now ?? new Date() });
+  return { to: f.recipients, subject: `Confirmed: ${f.stage.name}, ${f.job.siteTown}, ${shortDate(f.booking.startsAt, f.installer.timeZone)}`, html, text, ics: { method: 'REQUEST', content: ics } };
+}
+
 async function composeCancel(deps: ComposeDeps, f: BookingFacts, version: number): Promise<OutgoingMail | SkippedMail> {
   if (f.recipients.length === 0) return { skip: `${f.partner.name} has no booking address or coordinator` };
   const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
@@ -135,9 +168,9 @@ async function composeDeclined(deps: ComposeDeps, f: BookingFacts, payload: Outb
   const to = [...new Set((schedulers.length ? schedulers : await people('owner')).map((e) => e.toLowerCase()))];
   if (to.length === 0) return { skip: `${f.installer.name} has no scheduler or owner to tell` };
   const answer = await deps.knex('booking_answers').where({ booking_id: f.booking.id, action: 'decline' })
-    .orderBy('created_at', 'desc').orderBy('id', 'desc').first('via', 'created_at');
+    .orderBy('created_at', 'desc').orderBy('id', 'desc').first('via', 'created_at', 'reason');
   const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
-  const day = new Intl.DateTimeFormat('en-CA', { timeZone: f.installer.timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(f.booking.startsAt);
+  const day = localDateOf(f.booking.startsAt, f.installer.timeZone);
   const board = `${deps.config.PUBLIC_URL}/board?date=${day}&job=${encodeURIComponent(f.job.id)}`;
   const answered = answer ? [`Declined ${answer.via === 'link' ? 'from the e-mailed request' : 'on their Waterline page'} on ${describeWindow(answer.createdAt, answer.createdAt, f.installer.timeZone).date}.`] : [];
   const content: MailContent = {
@@ -146,6 +179,8 @@ async function composeDeclined(deps: ComposeDeps, f: BookingFacts, payload: Outb
     intro: [`${f.partner.name} can't do the slot below with ${f.resource.name}.`, 'The booking stays on the board marked declined until the stage is booked again.'],
     sections: [
       { heading: 'Declined slot', lines: [when.date, `${when.window} (${when.zone})`, ...answered] },
+      // The partner's own words, as typed: renderMail escapes them for the HTML part.
+      ...(answer?.reason ? [{ heading: `${f.partner.name} said why`, lines: [`“${answer.reason}”`] }] : []),
       { heading: 'Work', lines: [`${f.stage.name} for job ${f.job.reference}`, `${f.job.siteAddress}, ${f.job.siteTown}`, `Asked of: ${f.resource.name} (${f.partner.name})`] },
       { heading: 'What now', lines: [
         'Drop the stage again on the board: at another time, or on another resource of the same kind.',

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import { reachOf, type Actor } from '../services/actor.ts';
 import { ScopedModel, visibleFirmIds, ownResourceIds, firmResourceIds, visibleJobIds, type AnyQuery } from './base.ts';
+import type { StageNotice } from '../../shared/templates/types.ts';
 
 const knexOf = (q: AnyQuery): Knex => q.modelClass().knex();
 
@@ -174,6 +175,8 @@ export class Stage extends ScopedModel {
   requirements!: { kind: string; count: number }[];
   cure!: { targetFraction: number; dailyMeanTempsC?: number[] } | null;
   mayContinueNextDay!: boolean;
+  /** The notice the stage needs (from its template: a partner's notice, the maker's lead time); checked by the engine. */
+  notice!: StageNotice | null;
   notes!: string | null;
   static override scope(q: AnyQuery, actor: Actor) {
     q.whereIn('stages.job_id', visibleJobIds(knexOf(q), actor));
@@ -188,6 +191,8 @@ export class Dependency extends ScopedModel {
   type!: 'FS' | 'SS' | 'FF' | 'SF';
   lagAmount!: number;
   lagUnit!: 'working_hours' | 'working_days' | 'elapsed_hours' | 'elapsed_days';
+  /** The successor waits for the predecessor's cure, not only the lag. */
+  waitsForCure!: boolean;
   static override scope(q: AnyQuery, actor: Actor) {
     const knex = knexOf(q);
     q.whereIn('dependencies.from_stage_id', knex.select('id').from('stages').whereIn('job_id', visibleJobIds(knex, actor)));

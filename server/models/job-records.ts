@@ -23,6 +23,8 @@ export class Survey extends ScopedModel {
   craneStandingPosition!: string | null;
   craneDistanceToSetDownM!: number | null;
   consumerUnitDistanceM!: number | null;
+  /** Where the consumer unit is, in the surveyor's words; null when not recorded. */
+  consumerUnitLocation!: string | null;
   mainFuseAmps!: number | null;
   drainage!: string | null;
   craneRequired!: boolean | null;
@@ -34,6 +36,9 @@ export class Survey extends ScopedModel {
   otherLargeLoadNotes!: string | null;
   earthingArrangement!: EarthingArrangement | null;
   hoseFlowLitresPerMinute!: number | null;
+  /** Where the site is (WGS84 degrees), for its weather forecast; null when not recorded. */
+  siteLatitude!: number | null;
+  siteLongitude!: number | null;
   notes!: string | null;
   surveyedBy!: string | null;
   surveyedAt!: Date;
@@ -74,6 +79,8 @@ export class FirmSettings extends ScopedModel {
   keepPhotoLocation!: boolean;
   /** Partners booked on a job see the householder's name and phone (read-policy.ts); off by default. */
   shareCustomerContactWithPartners!: boolean;
+  /** The firm's concrete's Nurse–Saul datum, °C (ASTM C1074's working default 0 °C unless changed). */
+  cureDatumC!: number;
   version!: number;
   updatedAt!: Date;
   static override scope(q: AnyQuery, actor: Actor) {

@@ -1,8 +1,10 @@
 import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
-import { describeWindow, type BookingFacts } from '../mail/facts.ts';
+import { contactLines, describeWindow, type BookingFacts } from '../mail/facts.ts';
+import { supplyLines } from '../../shared/slot-supply.ts';
 import type { AnswerAction } from '../services/links.ts';
 import type { LinkRefusal } from '../services/links.ts';
 import { escapeHtml as e, page } from './page.ts';
+import { ANSWER_REASON_MAX, DECLINE_REASON_CHOICES, REASON_LABEL } from '../../shared/schemas/answers.ts';
 
 const ACTION_LABEL: Record<AnswerAction, { title: string; button: string }> = {
   confirm: { title: 'Confirm this slot', button: 'Confirm' },
@@ -10,17 +12,20 @@ const ACTION_LABEL: Record<AnswerAction, { title: string; button: string }> = {
   propose: { title: 'Propose another time', button: 'Send my proposal' },
 };
 
-/** The slot as the partner needs it on the day. */
+/** The slot as the partner needs it on the day: the same facts as the e-mail, through the same read policy. */
 export function slotDetails(f: BookingFacts): string {
   const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
   const cautions = cautionLines(f.stage.kind);
+  const lines = (xs: string[]) => xs.map((x) => e(x)).join('<br>');
+  const unit = f.unit ? `<dt>Unit</dt><dd>${e(`${f.unit.model}, ${f.unit.lengthMm} × ${f.unit.widthMm} × ${f.unit.heightMm} mm, ${f.unit.dryWeightKg} kg dry`)}</dd>` : '';
+  const supply = f.forPartner.supply ? `<dt>Electrical supply</dt><dd>${lines(supplyLines(f.forPartner.supply))}</dd>` : '';
   return `<dl>
 <dt>Work</dt><dd>${e(f.stage.name)} for ${e(f.installer.name)} (job ${e(f.job.reference)})</dd>
-<dt>Booked</dt><dd>${e(f.resource.name)}</dd>
+<dt>Booked</dt><dd>${e(f.resource.name)}</dd>${unit}${supply}
 <dt>When</dt><dd>${e(when.date)}<br>${e(when.window)} (${e(when.zone)})</dd>
 <dt>Site</dt><dd>${e(f.job.siteAddress)}, ${e(f.job.siteTown)} ${e(f.job.sitePostcode)}</dd>
 <dt>Access and parking</dt><dd>${e(f.job.accessNotes ?? 'Ask the installer before you travel.')}</dd>
-<dt>On the day, call</dt><dd>${e(f.installer.name)}: ${e(f.installer.phone ?? '')}</dd>
+<dt>On the day, call</dt><dd>${lines(contactLines(f.forPartner.contacts))}</dd>
 </dl>${cautions.length ? `<div class="caution"><strong>Safety on this job</strong><ul>${cautions.map((c) => `<li>${e(c)}</li>`).join('')}</ul><strong>${e(CAUTION_NOTE)}</strong></div>` : ''}`;
 }
 
@@ -29,6 +34,20 @@ function localParts(d: Date, timeZone: string): { date: string; time: string } {
   const parts = Object.fromEntries(new Intl.DateTimeFormat('en-GB', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' })
     .formatToParts(d).map((p) => [p.type, p.value]));
   return { date: `${parts.year}-${parts.month}-${parts.day}`, time: `${parts.hour}:${parts.minute}` };
+}
+
+/**
+ * Why the partner declines or proposes another time: quick choices (decline only) and their own
+ * words, both optional. The label says who reads it.
+ */
+function reasonFields(action: AnswerAction): string {
+  const own = (label: string) => `<label for="reason">${e(label)}</label><input id="reason" name="reason" type="text" maxlength="${ANSWER_REASON_MAX}" autocomplete="off">`;
+  if (action !== 'decline') return own(REASON_LABEL);
+  const choices = DECLINE_REASON_CHOICES.map((c, i) => `<label for="choice-${i}" style="font-weight:normal"><input type="radio" name="choice" id="choice-${i}" value="${e(c)}" style="width:auto;margin-right:.5rem">${e(c)}</label>`);
+  return `<fieldset style="border:1px solid #c8d3dc;border-radius:6px;margin-top:1rem"><legend style="font-weight:bold">${e(REASON_LABEL)}</legend>
+${choices.join('\n')}
+${own('In your own words')}
+</fieldset>`;
 }
 
 /** GET /answer/:token: shows the slot and one button. Nothing changes until the form is sent. */
@@ -41,7 +60,7 @@ export function answerForm(f: BookingFacts, action: AnswerAction, formAction: st
 <label for="date">Date</label><input id="date" name="date" type="date" required value="${e(start.date)}">
 <label for="start">From</label><input id="start" name="start" type="time" required value="${e(start.time)}">
 <label for="endDate">Until (date)</label><input id="endDate" name="endDate" type="date" value="${e(end.date)}">
-<label for="end">Until (time)</label><input id="end" name="end" type="time" required value="${e(end.time)}">` : '';
+<label for="end">Until (time)</label><input id="end" name="end" type="time" required value="${e(end.time)}">${reasonFields(action)}` : action === 'decline' ? reasonFields(action) : '';
   return page(label.title, `${error ? `<p role="alert"><strong>${e(error)}</strong></p>` : ''}${slotDetails(f)}
 <form method="post" action="${e(formAction)}">${fields}<button type="submit">${e(label.button)}</button></form>`);
 }

@@ -9,6 +9,10 @@ import { FeedsService } from '../services/feeds.ts';
 import { loadBookingFacts } from '../mail/facts.ts';
 import { answerForm, answeredPage, closedPage, refusalPage, stalePage, takenPage } from '../pages/answers.ts';
 import { escapeHtml as e, page } from '../pages/page.ts';
+import { z } from 'zod';
+import { AnswerReason, DECLINE_REASON_CHOICES, reasonText } from '../../shared/schemas/answers.ts';
+import { parse } from '../middleware/validate.ts';
+import { BadRequestError } from '../errors.ts';
 import { dayNumber, isoDateOfDay, localDayOf, localToInstant, timeZoneOffset } from '../../shared/scheduler/time-zone.ts';
 
 export interface AnswerRouteDeps { knex: Knex; config: Config; now?: () => number }
@@ -17,6 +21,23 @@ const formParser = express.urlencoded({ extended: false, limit: '4kb' });
 const parseForm = (req: Request, res: Response) => new Promise<void>((resolve, reject) => formParser(req, res, (err?: unknown) => (err ? reject(err) : resolve())));
 
 const STATUS: Record<LinkRefusal | 'used' | 'gone', number> = { tampered: 400, 'wrong-purpose': 400, expired: 410, used: 409, gone: 410 };
+
+const ReasonForm = z.object({ reason: AnswerReason.optional() });
+
+/**
+ * The reason a decline or proposal form sent: a quick choice (decline only) and the partner's own
+ * words, joined, then checked like the app's (≤ 500 characters, one line, no control characters).
+ * Bad input → 400 problem+json naming `reason` or `choice`.
+ */
+export function reasonOf(body: Record<string, unknown>): string | undefined {
+  const choice = body.choice ?? '';
+  if (choice !== '' && !(DECLINE_REASON_CHOICES as readonly unknown[]).includes(choice)) {
+    throw new BadRequestError('The form has fields that are not valid.', [{ field: 'choice', message: `must be one of: ${DECLINE_REASON_CHOICES.join(', ')}` }]);
+  }
+  const text = body.reason ?? '';
+  if (typeof text !== 'string') throw new BadRequestError('The form has fields that are not valid.', [{ field: 'reason', message: 'must be one piece of text' }]);
+  return parse(ReasonForm, { reason: reasonText(choice as string, text) }).reason;
+}
 
 /**
  * 2026-10-06 + 08:30 in a zone → the instant, or null when the form's values are not a real date
@@ -85,8 +106,12 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     const c = await claims(req, res, 'answer');
     if (!c) return;
     let proposal: { start: Date; end: Date } | undefined;
-    if (c.action === 'propose') {
+    let reason: string | undefined;
+    if (c.action !== 'confirm') {
       await parseForm(req, res);
+      reason = reasonOf((req.body ?? {}) as Record<string, unknown>);
+    }
+    if (c.action === 'propose') {
       const facts = await loadBookingFacts(knex, c.bookingId);
       if (!facts) return refuse(req, res, 'gone', c.jti);
       const body = (req.body ?? {}) as Record<string, unknown>;
@@ -98,7 +123,7 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
       }
       proposal = { start, end };
     }
-    const outcome = await confirmations.answerByLink(c, proposal);
+    const outcome = await confirmations.answerByLink(c, proposal, reason);
     if (outcome.result === 'used' || outcome.result === 'gone') return refuse(req, res, outcome.result, c.jti);
     const facts = (await loadBookingFacts(knex, c.bookingId))!;
     switch (outcome.result) {

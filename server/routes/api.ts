@@ -10,6 +10,8 @@ import { DirectoryService } from '../services/directory.ts';
 import { BookingsService } from '../services/bookings.ts';
 import type { BookingLimits } from '../services/booking-writes.ts';
 import { CompletionService } from '../services/completion.ts';
+import { PlacementService } from '../services/placement.ts';
+import { AutoPlaceRequest, SlotSearch, type PlanProgress } from '../../shared/schemas/placement.ts';
 import { UndoService, type UndoContext, type UndoVerb } from '../services/undo.ts';
 import { actorFor, sessionInfo } from '../services/session.ts';
 import { loadBoard } from '../services/board.ts';
@@ -25,14 +27,24 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
   const directory = new DirectoryService();
   const bookings = new BookingsService(knex, now, limits);
   const completion = new CompletionService(knex, now);
+  const placement = new PlacementService(knex, now, limits);
   const undo = new UndoService(knex, now, limits);
   // A board change goes on the undo stack of the session it was made in.
   const undoable = (req: { sessionID: string }, verb: UndoVerb): UndoContext => ({ sessionId: req.sessionID, verb });
 
   table
+    // Liveness: the process answers. Restart it only when this fails.
+    .get('/api/health/live', 'public', (_req, res) => {
+      res.json({ status: 'ok' });
+    })
+    // Readiness: send traffic here unless the database is away (Redis down only degrades).
+    .get('/api/health/ready', 'public', async (_req, res) => {
+      const report = await health.check();
+      res.status(report.ready ? 200 : 503).json(report);
+    })
     .get('/api/health', 'public', async (_req, res) => {
       const report = await health.check();
-      res.status(report.status === 'ok' ? 200 : 503).json(report);
+      res.status(report.ready ? 200 : 503).json(report);
     })
     .get('/api/client-config', 'public', (_req, res) => {
       res.json({ fullcalendarLicenseKey });
@@ -108,6 +120,17 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     .get('/api/stages/:id/completion', 'bookings:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
       res.json(await completion.complete(req.actor!, id, parse(CompletionQuery, req.query, 'query')));
+    })
+    // Slots and auto-place on complete data (every booking the search can reach), proposed only:
+    // the board books what is chosen through the batch route. The board's own write permission.
+    .post('/api/plan/slots', 'bookings:write', async (req, res) => {
+      res.json(await placement.slots(req.actor!, parse(SlotSearch, req.body)));
+    })
+    .post('/api/plan/auto-place', 'bookings:write', async (req, res) => {
+      const input = parse(AutoPlaceRequest, req.body);
+      // Progress goes to the caller's own board stream (the streams of this session), named by planId.
+      const progress = input.planId ? (p: Omit<PlanProgress, 'planId'>) => stream.tellSession(req.sessionID, 'plan-progress', { planId: input.planId, ...p }) : undefined;
+      res.json(await placement.autoPlace(req.actor!, input, progress));
     })
     .get('/api/undo', 'bookings:write', async (req, res) => {
       res.json({ items: await undo.list(req.actor!, req.sessionID) });

@@ -114,6 +114,16 @@ export class BoardStream {
     req.on('close', () => this.subscribers.delete(subscriber));
   }
 
+  /**
+   * Tells the open streams of one session how a long request of that session is getting on
+   * (auto-place's progress). Written at once, not queued: the request is still running, and the
+   * session is live (it was checked for the request itself). Carries no booking, only the figures.
+   */
+  tellSession(sessionId: string, event: string, data: Record<string, unknown>): void {
+    const text = `event: ${event}\ndata: ${JSON.stringify(data)}\n\n`;
+    for (const s of this.subscribers) if (s.sessionId === sessionId) s.res.write(text);
+  }
+
   async close(): Promise<void> {
     this.closed = true;
     if (this.heartbeat) clearInterval(this.heartbeat);

@@ -6,7 +6,9 @@ import { Booking, Calendar, CalendarException, Dependency as DependencyModel, Hi
 import { reachOf, type Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { withAnswers } from './answer-views.ts';
-import { boardCustomerName, busyElsewhere, ELSEWHERE_BLOCKING_STATES, ELSEWHERE_STATE } from './read-policy.ts';
+import { answerReasonFor, boardCustomerName, busyElsewhere, ELSEWHERE_BLOCKING_STATES, ELSEWHERE_STATE } from './read-policy.ts';
+import { cureRulesFromWeather } from './cure-temperatures.ts';
+import { orderedFrom, promisedDeadline } from '../../shared/local-dates.ts';
 
 const OPEN_JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress'];
 
@@ -61,7 +63,9 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     }
   });
   // The jobs in play are found once; the rest is fetched by those ids as one array parameter.
-  const jobsPromise = rows<Job>(jobIdQuery.select('jobs.id', 'jobs.firm_id', 'jobs.reference', 'jobs.customer_name', 'jobs.site_town', 'jobs.site_postcode', 'jobs.status', 'jobs.installation_type', 'jobs.promised_to', 'jobs.ordered_on'));
+  // Promised and order dates are days on the job's own firm's clock (shared/local-dates.ts).
+  const jobsPromise = rows<Job & { timeZone: string }>(jobIdQuery.select('jobs.id', 'jobs.firm_id', 'jobs.reference', 'jobs.customer_name', 'jobs.site_town', 'jobs.site_postcode', 'jobs.status', 'jobs.installation_type', 'jobs.promised_to', 'jobs.ordered_on',
+    knex.raw('(SELECT f.time_zone FROM firms f WHERE f.id = jobs.firm_id) AS time_zone')));
   const byJobs = async <T>(build: (jobIds: string[]) => { toKnexQuery(): Knex.QueryBuilder }) => rows<T>(build((await jobsPromise).map((j) => j.id)));
   const stagesOf = (jobIds: string[]) => knex.raw('SELECT id FROM stages WHERE job_id = ANY(?::bigint[])', [jobIds]);
 
@@ -74,9 +78,9 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     rows<CalendarException>(scoped(CalendarException, actor, trx).where('ends_at', '>', new Date(query.from - 30 * 86_400_000)).where('starts_at', '<', new Date(query.to + 60 * 86_400_000))),
     jobsPromise,
     byJobs<Stage>((ids) => scoped(Stage, actor, trx).whereRaw('stages.job_id = ANY(?::bigint[])', [ids])
-      .select('stages.id', 'stages.job_id', 'stages.kind', 'stages.name', 'stages.sequence', 'stages.duration_minutes', 'stages.requirements', 'stages.cure', 'stages.may_continue_next_day').orderBy(['stages.job_id', 'stages.sequence'])),
+      .select('stages.id', 'stages.job_id', 'stages.kind', 'stages.name', 'stages.sequence', 'stages.duration_minutes', 'stages.requirements', 'stages.cure', 'stages.may_continue_next_day', 'stages.notice').orderBy(['stages.job_id', 'stages.sequence'])),
     byJobs<DependencyModel>((ids) => scoped(DependencyModel, actor, trx).whereIn('dependencies.to_stage_id', stagesOf(ids) as never)
-      .select('dependencies.id', 'dependencies.from_stage_id', 'dependencies.to_stage_id', 'dependencies.type', 'dependencies.lag_amount', 'dependencies.lag_unit')),
+      .select('dependencies.id', 'dependencies.from_stage_id', 'dependencies.to_stage_id', 'dependencies.type', 'dependencies.lag_amount', 'dependencies.lag_unit', 'dependencies.waits_for_cure')),
     byJobs<Booking & { startMs: number; endMs: number }>((ids) => scoped(Booking, actor, trx).where((w) => w.whereIn('bookings.stage_id', stagesOf(ids) as never)
       .orWhere((o) => o.where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from)))
       .select('bookings.id', 'bookings.stage_id', 'bookings.resource_id', 'bookings.state', 'bookings.version',
@@ -143,18 +147,23 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
       b.overdue = a?.overdue ?? false;
       b.proposal = a?.answer?.action === 'propose' && a.answer.proposalStatus === 'open' && a.answer.proposedStart && a.answer.proposedEnd
         ? { start: Date.parse(a.answer.proposedStart), end: Date.parse(a.answer.proposedEnd) } : null;
-      if (b.state === 'declined') b.declined = a?.answer?.action === 'decline' ? { at: Date.parse(a.answer.at), via: a.answer.via } : null;
+      if (b.state === 'declined') {
+        b.declined = a?.answer?.action === 'decline'
+          ? { at: Date.parse(a.answer.at), via: a.answer.via, reason: answerReasonFor(actor, b.installerFirmId, a.answer.reason) } : null;
+      }
     }
   }
+  // A cure counts from the site's weather: its forecast, else the seasonal assumption (cure-temperatures.ts).
+  const cureOf = await cureRulesFromWeather(knex, { stages, jobs, bookings: [...visibleBookings.values()], now: query.now });
   const boardStages: BoardStage[] = stages.map((s) => ({
     id: s.id, jobId: s.jobId, kind: s.kind, name: s.name, durationMinutes: s.durationMinutes,
-    requirements: s.requirements, cure: s.cure, sequence: s.sequence, mayContinueNextDay: s.mayContinueNextDay,
+    requirements: s.requirements, cure: cureOf.get(s.id) ?? s.cure, sequence: s.sequence, mayContinueNextDay: s.mayContinueNextDay,
   }));
   const boardJobs: BoardJob[] = jobs.map((j) => ({
     id: j.id, firmId: j.firmId, reference: j.reference, customerName: boardCustomerName(actor, j.customerName),
     siteTown: j.siteTown, sitePostcode: j.sitePostcode, status: j.status, installationType: j.installationType,
-    promisedBy: j.promisedTo ? Date.parse(`${j.promisedTo}T17:00:00Z`) : null,
-    orderedAt: j.orderedOn ? Date.parse(`${j.orderedOn}T09:00:00Z`) : null,
+    promisedBy: j.promisedTo ? promisedDeadline(j.promisedTo, j.timeZone) : null,
+    orderedAt: j.orderedOn ? orderedFrom(j.orderedOn, j.timeZone) : null,
   }));
   if (elsewhere.length) {
     boardJobs.push({ id: ELSEWHERE_JOB_ID, firmId: ELSEWHERE_JOB_ID, reference: '', customerName: '', siteTown: '', status: 'planned', installationType: 'slab', promisedBy: null, orderedAt: null });
@@ -167,12 +176,23 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
   }
   const dependencies: Dependency[] = deps.filter((d) => stageById.has(d.toStageId)).map((d) => ({
     id: d.id, fromStageId: d.fromStageId, toStageId: d.toStageId, type: d.type, lag: { amount: Number(d.lagAmount), unit: d.lagUnit },
+    ...(d.waitsForCure ? { waitsForCure: true } : {}),
   }));
   const hirePeriods: HirePeriod[] = hires.map((h) => ({ id: h.id, resourceId: h.resourceId, onHire: h.onHireAt.getTime(), offHire: h.offHireAt.getTime(), dayRatePence: h.dayRatePence }));
   const leadTimeRules: LeadTimeRule[] = rules.map((r) => ({
     appliesTo: { ...(r.resourceKind ? { resourceKind: r.resourceKind } : {}), ...(r.stageKind ? { stageKind: r.stageKind } : {}) },
     workingDays: r.workingDays, from: r.countedFrom,
   }));
+  // Each stage's own notice from its template (the crane firm's, the maker's lead time), checked the same way.
+  if (reach === 'installer-office') {
+    for (const s of stages) {
+      if (!s.notice) continue;
+      leadTimeRules.push({
+        appliesTo: { stageId: s.id, ...(s.notice.resourceKind ? { resourceKind: s.notice.resourceKind } : {}) },
+        workingDays: s.notice.workingDays, from: s.notice.countedFrom, ...(s.notice.reason ? { reason: s.notice.reason } : {}),
+      });
+    }
+  }
 
   return { from: query.from, to: query.to, now: query.now, firmId: actor.firmId, resources: boardResources, calendars, jobs: boardJobs, stages: boardStages, dependencies, bookings, hirePeriods, leadTimeRules };
 }

@@ -62,7 +62,11 @@ export type BookingChange =
   | ({ action: 'book' | 'book-confirmed'; stageId: string; resourceId: string } & TimedChange)
   | ({ action: 'move' | 'take-proposal'; bookingId: string; version?: number | undefined; resourceId?: string | undefined } & TimedChange)
   | { action: 'assign'; bookingId: string; version?: number | undefined; resourceId: string }
-  | { action: Exclude<BookingAction, 'book' | 'book-confirmed' | 'move' | 'take-proposal' | 'assign'>; bookingId: string; version?: number | undefined };
+  | {
+    action: Exclude<BookingAction, 'book' | 'book-confirmed' | 'move' | 'take-proposal' | 'assign'>; bookingId: string; version?: number | undefined;
+    /** A partner's own words with a decline or proposal: kept in the audit row beside the change. */
+    reason?: string | undefined;
+  };
 
 /** A change to a booking that exists (a declined booking dropped again is rebooked). */
 type StoredChange = Exclude<BookingChange, { action: 'book' | 'book-confirmed' }>
@@ -287,7 +291,7 @@ export class BookingWork {
       ? await this.writer.guard(this.trx, stageId, resourceId, (sp) => Booking.query(sp).patchAndFetchById(before.id, patch))
       : before;
     await this.messages(action, before, after, side, newResource?.side ?? side);
-    await this.record(action, before, after, installerFirmId);
+    await this.record(action, before, after, installerFirmId, 'reason' in change ? change.reason : undefined);
     const moved = before.startsAt.getTime() !== after.startsAt.getTime() || before.endsAt.getTime() !== after.endsAt.getTime();
     if (moved || newResource || action === 'send') this.checkStages.add(stageId);
     return after;
@@ -314,6 +318,10 @@ export class BookingWork {
       case 'assign':
         if (after.state === 'sent') await queueBookingMessage(this.trx, { bookingId: id, kind: 'update', version: after.version });
         break;
+      case 'accept':
+        // The partner's calendar entry turns from tentative to confirmed (same UID, the new version as SEQUENCE).
+        await enqueueMessage(this.trx, `booking.${id}.v${after.version}.confirmed`, 'booking_confirmed', { bookingId: id, version: after.version });
+        break;
       case 'decline':
         // The installer's schedulers hear of it at once: a declined slot is work for them (book it again).
         await enqueueMessage(this.trx, `booking.${id}.v${after.version}.declined`, 'booking_declined', { bookingId: id, version: after.version });
@@ -337,11 +345,11 @@ export class BookingWork {
     }
   }
 
-  private async record(action: BookingAction, before: Booking | null, after: Booking | null, installerFirmId?: string): Promise<void> {
+  private async record(action: BookingAction, before: Booking | null, after: Booking | null, installerFirmId?: string, reason?: string): Promise<void> {
     this.written.push({ action, before, after });
     const row = (after ?? before)!;
     const firmId = installerFirmId ?? (await this.sideOf(String(row.stageId), String(row.resourceId))).installerFirmId;
-    const snapshot = after ? { ...after.toJSON(), action } : null;
+    const snapshot = after ? { ...after.toJSON(), action, ...(reason ? { reason } : {}) } : null;
     await recordChange(this.trx, this.ctx.actor, 'booking', String(row.id), before === null ? 'create' : after === null ? 'delete' : 'update', before, snapshot, firmId);
   }
 

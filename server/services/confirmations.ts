@@ -119,11 +119,14 @@ export class ConfirmationsService {
       const booking = await w.booking(id);
       if (booking.state === 'pencilled') throw new NotFoundError('booking');
       return booking;
-    }, input.action, proposal, 'app');
+    }, input.action, proposal, 'app', input.reason);
   }
 
-  /** An answer through a signed link: the token is the authority, and its request can be answered once. */
-  async answerByLink(claims: AnswerClaims, proposal?: { start: Date; end: Date }): Promise<AnswerOutcome> {
+  /**
+   * An answer through a signed link: the token is the authority, and its request can be answered once.
+   * A decline or proposal may carry the partner's reason (already checked by the AnswerReason schema).
+   */
+  async answerByLink(claims: AnswerClaims, proposal?: { start: Date; end: Date }, reason?: string): Promise<AnswerOutcome> {
     return this.answer({ actor: null, party: 'partner' }, claims.bookingId, async (w) => {
       // Taking the request's key first makes a second answer to the same request wait here, then find it taken.
       const taken = await w.trx('link_uses').insert({ jti: requestKeyOf(claims), purpose: 'answer', subject_id: claims.bookingId })
@@ -136,18 +139,20 @@ export class ConfirmationsService {
         if (error instanceof StaleVersionError) throw new Outcome({ result: 'stale', booking: (await Booking.query(w.trx).findById(claims.bookingId))! });
         throw error;
       }
-    }, claims.action, proposal, 'link');
+    }, claims.action, proposal, 'link', reason);
   }
 
   private async answer(ctx: WriteContext, bookingId: string, lock: (w: BookingWork) => Promise<Booking>, action: AnswerAction,
-    proposal: { start: Date; end: Date } | undefined, via: 'link' | 'app'): Promise<AnswerOutcome> {
+    proposal: { start: Date; end: Date } | undefined, via: 'link' | 'app', reason?: string): Promise<AnswerOutcome> {
+    // Only a decline or a proposal says why; a confirmation needs no reason and keeps none.
+    const why = action === 'confirm' ? undefined : reason || undefined;
     try {
       const outcome = await this.writer.run(ctx, { bookingIds: [bookingId] }, async (w) => {
         const before = await lock(w);
         if (proposal) w.checkProposal(proposal.start.getTime(), proposal.end.getTime());
         let after: Booking | null;
         try {
-          after = await w.apply({ action: ANSWER_ACTION[action], bookingId: String(before.id) });
+          after = await w.apply({ action: ANSWER_ACTION[action], bookingId: String(before.id), reason: why });
         } catch (error) {
           if (error instanceof TransitionRefusedError) throw new Outcome({ result: 'closed', booking: before });
           throw error;
@@ -155,6 +160,7 @@ export class ConfirmationsService {
         await w.trx('booking_answers').insert({
           booking_id: before.id, booking_version: before.version, action, via, answered_by: ctx.actor?.userId ?? null,
           proposed_starts_at: proposal?.start ?? null, proposed_ends_at: proposal?.end ?? null, proposal_status: action === 'propose' ? 'open' : null,
+          reason: why ?? null,
         });
         return { result: action === 'confirm' ? 'confirmed' : action === 'decline' ? 'declined' : 'proposed', booking: after! } as AnswerOutcome;
       });

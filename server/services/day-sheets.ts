@@ -4,30 +4,12 @@ import type { DaySheet, DaySheetList } from '../../shared/schemas/day-sheets.ts'
 import type { MyWorkItem, MyWorkList, MyWorkQuery } from '../../shared/schemas/my-work.ts';
 import { PROGRESS_ACTIONS, type BookingState, type ProgressAction } from '../../shared/schemas/bookings.ts';
 import { actionsFor } from '../../shared/booking-states.ts';
-import { isoDateOfDay, localDayOf } from '../../shared/scheduler/index.ts';
+import { addDays, endOfLocalDay, localDateOf, startOfLocalDay, todayIn } from '../../shared/local-dates.ts';
 import { Booking, Firm } from '../models/index.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { alongsideFor, contactsFor, visitStatesFor, type AlongsideRow } from './read-policy.ts';
 
-/** Offset of `timeZone` from UTC at an instant, in minutes. */
-function offsetMinutes(timeZone: string, at: number): number {
-  const name = new Intl.DateTimeFormat('en-GB', { timeZone, timeZoneName: 'longOffset' }).formatToParts(new Date(at))
-    .find((p) => p.type === 'timeZoneName')?.value ?? 'GMT';
-  const m = /GMT([+-])(\d{2}):?(\d{2})?/.exec(name);
-  return m ? (m[1] === '-' ? -1 : 1) * (Number(m[2]) * 60 + Number(m[3] ?? 0)) : 0;
-}
-
-/** The instant a calendar day starts in a time zone (midnight local), correct across clock changes. */
-export function startOfZonedDay(date: string, timeZone: string): Date {
-  const [y, mo, d] = date.split('-').map(Number) as [number, number, number];
-  const utcMidnight = Date.UTC(y, mo - 1, d);
-  let guess = utcMidnight - offsetMinutes(timeZone, utcMidnight) * 60_000;
-  guess = utcMidnight - offsetMinutes(timeZone, guess) * 60_000;
-  return new Date(guess);
-}
-
-const nextDate = (date: string) => new Date(Date.parse(`${date}T00:00:00Z`) + 86_400_000).toISOString().slice(0, 10);
 
 type Row = Booking & {
   resourceName: string; resourceKind: string; resourceCategory: string; resourcePhone: string | null; resourceFirmName: string;
@@ -103,7 +85,7 @@ export class DaySheetsService {
   async forDate(actor: Actor, date: string): Promise<DaySheetList> {
     const firm = await Firm.query(this.knex).findById(actor.firmId);
     const timeZone = firm?.timeZone ?? 'Europe/London';
-    const visits = await this.visits(actor, startOfZonedDay(date, timeZone), startOfZonedDay(nextDate(date), timeZone));
+    const visits = await this.visits(actor, new Date(startOfLocalDay(date, timeZone)), new Date(endOfLocalDay(date, timeZone)));
     const sheets = new Map<string, DaySheet>();
     for (const { resource, version: _version, ownResource: _own, ...visit } of visits) {
       if (resource.category === 'machine') continue;
@@ -122,11 +104,13 @@ export class DaySheetsService {
   async myWork(actor: Actor, query: MyWorkQuery): Promise<MyWorkList> {
     const firm = await Firm.query(this.knex).findById(actor.firmId);
     const timeZone = firm?.timeZone ?? 'Europe/London';
-    const today = isoDateOfDay(localDayOf(timeZone, this.now()));
-    const from = query.from ? new Date(query.from) : startOfZonedDay(today, timeZone);
-    const to = query.to ? new Date(query.to) : new Date(from.getTime() + query.days * DAY_MS);
+    const today = todayIn(timeZone, this.now());
+    const from = query.from ? new Date(query.from) : new Date(startOfLocalDay(today, timeZone));
+    // `days` local days, which are not all 24 hours long: a week over a clock change ends at local midnight.
+    const to = query.to ? new Date(query.to)
+      : query.from ? new Date(from.getTime() + query.days * DAY_MS) : new Date(startOfLocalDay(addDays(today, query.days), timeZone));
     const visits = await this.visits(actor, from, to);
-    const dayOf = (iso: string) => isoDateOfDay(localDayOf(timeZone, Date.parse(iso)));
+    const dayOf = (iso: string) => localDateOf(Date.parse(iso), timeZone);
     return {
       today, timeZone,
       items: visits.map(({ ownResource, ...v }) => {

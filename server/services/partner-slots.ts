@@ -5,7 +5,9 @@ import { NotFoundError, UnprocessableError } from '../errors.ts';
 import { cautionsFor } from '../../shared/cautions.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
-import { latestAnswers } from './answer-views.ts';
+import { jobSupplies, latestAnswers, siteContacts } from './answer-views.ts';
+import { partnerSlotFacts } from './read-policy.ts';
+import { supplyLines } from '../../shared/slot-supply.ts';
 import { BookingWriter, type BookingLimits } from './booking-writes.ts';
 
 /** States a partner sees: a pencilled booking is the installer's private plan until it is sent. */
@@ -14,12 +16,16 @@ const SHOWN = ['sent', 'confirmed', 'on_site'];
 type SlotRow = Booking & {
   stageName: string; stageKind: string; resourceName: string; resourceKind: string; siteAddress: string; siteTown: string;
   sitePostcode: string; accessNotes: string | null; installerName: string; installerPhone: string | null; timeZone: string;
+  jobId: string; customerName: string; customerPhone: string | null; sharesCustomerContact: boolean | null;
+  unitModel: string | null; lengthMm: number | null; widthMm: number | null; heightMm: number | null; dryWeightKg: number | null;
 };
 
 /**
  * A partner firm's own view: upcoming slots of its resources for every installer it works with.
- * Only what the day needs: the site, access notes, the stage, the times and who to call. The
- * householder's name, phone and e-mail and every price stay with the installer.
+ * Only what the day needs: the site, access notes, the stage, the unit, the times and who to call,
+ * and for electrical work the house's supply. Contacts and supply are the read policy's call
+ * (`partnerSlotFacts`): the householder's name and phone only where the installer shares them;
+ * their e-mail and every price stay with the installer.
  */
 export class PartnerSlotsService {
   private readonly writer: BookingWriter;
@@ -32,22 +38,38 @@ export class PartnerSlotsService {
     const rows = await scoped(Booking, actor)
       .join('stages as s', 's.id', 'bookings.stage_id').join('jobs as j', 'j.id', 's.job_id')
       .join('firms as i', 'i.id', 'j.firm_id').join('resources as r', 'r.id', 'bookings.resource_id')
+      .leftJoin('units as u', 'u.id', 'j.unit_id').leftJoin('firm_settings as fs', 'fs.firm_id', 'j.firm_id')
       .whereIn('bookings.state', SHOWN).where('bookings.ends_at', '>', from)
       .orderBy('bookings.starts_at').limit(500)
       .select('bookings.id', 'bookings.version', 'bookings.state', 'bookings.starts_at', 'bookings.ends_at', 'bookings.resource_id',
         's.name as stage_name', 's.kind as stage_kind', 'r.name as resource_name', 'r.kind as resource_kind',
         'j.site_address', 'j.site_town', 'j.site_postcode', 'j.access_notes',
-        'i.name as installer_name', 'i.phone as installer_phone', 'i.time_zone') as SlotRow[];
-    const answers = await latestAnswers(this.knex, rows.map((r) => String(r.id)));
-    return rows.map((r) => ({
-      id: String(r.id), version: r.version, state: r.state, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), timeZone: r.timeZone,
-      stage: { name: r.stageName, kind: r.stageKind },
-      resource: { id: String(r.resourceId), name: r.resourceName, kind: r.resourceKind },
-      site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
-      installer: { name: r.installerName, phone: r.installerPhone },
-      cautions: cautionsFor(r.stageKind),
-      answer: answers.get(String(r.id)) ?? null,
-    }));
+        'i.name as installer_name', 'i.phone as installer_phone', 'i.time_zone',
+        'j.id as job_id', 'j.customer_name', 'j.customer_phone', 'fs.share_customer_contact_with_partners as shares_customer_contact',
+        'u.model as unit_model', 'u.length_mm', 'u.width_mm', 'u.height_mm', 'u.dry_weight_kg') as SlotRow[];
+    const keys = rows.map((r) => ({ bookingId: String(r.id), jobId: String(r.jobId), startsAt: r.startsAt, endsAt: r.endsAt, timeZone: r.timeZone }));
+    const [answers, onSite, supplies] = await Promise.all([
+      latestAnswers(this.knex, keys.map((k) => k.bookingId)), siteContacts(this.knex, keys), jobSupplies(this.knex, keys.map((k) => k.jobId)),
+    ]);
+    return rows.map((r) => {
+      const policy = partnerSlotFacts({
+        resourceKind: r.resourceKind, customerName: r.customerName, customerPhone: r.customerPhone, officeName: r.installerName,
+        officePhone: r.installerPhone, sharesCustomerContact: r.sharesCustomerContact === true,
+        siteContact: onSite.get(String(r.id)) ?? null, supply: supplies.get(String(r.jobId))!,
+      });
+      return {
+        id: String(r.id), version: r.version, state: r.state, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), timeZone: r.timeZone,
+        stage: { name: r.stageName, kind: r.stageKind },
+        resource: { id: String(r.resourceId), name: r.resourceName, kind: r.resourceKind },
+        site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
+        installer: { name: r.installerName, phone: r.installerPhone },
+        unit: r.unitModel ? `${r.unitModel}, ${r.lengthMm} × ${r.widthMm} × ${r.heightMm} mm, ${r.dryWeightKg} kg dry` : null,
+        supply: policy.supply ? supplyLines(policy.supply) : null,
+        contacts: policy.contacts,
+        cautions: cautionsFor(r.stageKind),
+        answer: answers.get(String(r.id)) ?? null,
+      };
+    });
   }
 
   /**

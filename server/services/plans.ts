@@ -8,6 +8,8 @@ import { ConflictError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
+import { latestAnswers } from './answer-views.ts';
+import { answerReasonFor } from './read-policy.ts';
 import type { TemplatesService } from './templates.ts';
 import { plural } from '../../shared/plural.ts';
 
@@ -51,20 +53,20 @@ export class PlansService {
       if (old.length) await Stage.query(trx).delete().where('job_id', job.id);
       const ids = new Map<string, string>();
       for (const s of plan.stages) {
+        // The notice is a rule the engine checks (stages.notice), not words in the notes.
         const notes = [
-          s.leadTime ? `Needs ${plural(s.leadTime.workingDays, 'working day')}' notice${s.leadTime.countedFrom === 'order' ? ' from the order' : ''}.` : null,
           s.kind === 'lift' || s.kind === 'placement' ? crane.reason : null,
           s.kind === 'excavation' ? `Duration ${s.durationSource}.` : null,
         ].filter(Boolean).join(' ');
         const row = await Stage.query(trx).insert({
           jobId: job.id, kind: s.kind, name: s.name, sequence: s.sequence, durationMinutes: s.durationMinutes,
           requirements: JSON.stringify(s.requirements) as never, cure: (s.cure ? JSON.stringify(s.cure) : null) as never,
-          mayContinueNextDay: s.mayContinueNextDay, notes: notes || null,
+          mayContinueNextDay: s.mayContinueNextDay, notice: (s.leadTime ? JSON.stringify(s.leadTime) : null) as never, notes: notes || null,
         } as Partial<Stage>);
         ids.set(s.kind, row.id);
       }
       for (const l of plan.links) {
-        await Dependency.query(trx).insert({ fromStageId: ids.get(l.fromKind)!, toStageId: ids.get(l.toKind)!, type: l.type, lagAmount: l.lagAmount, lagUnit: l.lagUnit } as Partial<Dependency>);
+        await Dependency.query(trx).insert({ fromStageId: ids.get(l.fromKind)!, toStageId: ids.get(l.toKind)!, type: l.type, lagAmount: l.lagAmount, lagUnit: l.lagUnit, waitsForCure: l.waitsForCure } as Partial<Dependency>);
       }
       const status = job.status === 'enquiry' || job.status === 'surveyed' ? 'planned' : job.status;
       await Job.query(trx).patch({ status, version: job.version + 1 } as Partial<Job>).where('id', job.id);
@@ -75,23 +77,30 @@ export class PlansService {
 
   /** The job's stages in order with their dependencies, bookings and cautions, for the job page. */
   async stages(actor: Actor, jobId: string) {
-    await findVisible(Job, actor, jobId, undefined, 'job');
+    const job = await findVisible(Job, actor, jobId, undefined, 'job');
     const stages = await scoped(Stage, actor).where('job_id', jobId).orderBy('sequence');
     const ids = stages.map((s) => s.id);
     const deps = await scoped(Dependency, actor).whereIn('to_stage_id', ids);
     const bookings = await scoped(Booking, actor).whereIn('stage_id', ids).join('resources', 'resources.id', 'bookings.resource_id')
       .select('bookings.*', 'resources.name as resourceName', 'resources.kind as resourceKind').orderBy('bookings.starts_at') as (Booking & { resourceName: string; resourceKind: string })[];
+    // A declined booking says why, in the partner's words, where the read policy lets this reader see it.
+    const answers = await latestAnswers(this.knex, bookings.filter((b) => b.state === 'declined').map((b) => String(b.id)));
+    const declineReason = (id: string) => {
+      const a = answers.get(String(id));
+      return a?.action === 'decline' ? answerReasonFor(actor, String(job.firmId), a.reason) : null;
+    };
     const kindOf = new Map(stages.map((s) => [s.id, s.kind]));
     // Predecessors by the name their stage actually has (a kind's words can differ from it).
     const nameOf = new Map(stages.map((s) => [s.id, s.name]));
     return {
       items: stages.map((s) => ({
         id: s.id, kind: s.kind, name: s.name, sequence: s.sequence, durationMinutes: s.durationMinutes,
-        requirements: s.requirements, cure: s.cure, notes: s.notes, cautions: cautionsFor(s.kind),
-        after: deps.filter((d) => d.toStageId === s.id).map((d) => ({ stageId: d.fromStageId, kind: kindOf.get(d.fromStageId) ?? null, name: nameOf.get(d.fromStageId) ?? null, type: d.type, lagAmount: d.lagAmount, lagUnit: d.lagUnit })),
+        requirements: s.requirements, cure: s.cure, notice: s.notice, notes: s.notes, cautions: cautionsFor(s.kind),
+        after: deps.filter((d) => d.toStageId === s.id).map((d) => ({ stageId: d.fromStageId, kind: kindOf.get(d.fromStageId) ?? null, name: nameOf.get(d.fromStageId) ?? null, type: d.type, lagAmount: d.lagAmount, lagUnit: d.lagUnit, waitsForCure: d.waitsForCure })),
         bookings: bookings.filter((b) => b.stageId === s.id).map((b) => ({
           id: b.id, resourceId: b.resourceId, resourceName: b.resourceName, resourceKind: b.resourceKind,
           startsAt: b.startsAt.toISOString(), endsAt: b.endsAt.toISOString(), state: b.state,
+          ...(b.state === 'declined' ? { declineReason: declineReason(b.id) } : {}),
         })),
       })),
     };

@@ -1,4 +1,5 @@
 import { reachOf, type Actor, type Reach } from './actor.ts';
+import type { SlotSupply } from '../../shared/slot-supply.ts';
 
 /**
  * The read policy: what each reach (installer office, crew, partner firm) may read, and which
@@ -68,11 +69,41 @@ export interface VisitContact { name: string; phone: string | null; role: string
  * office; the crew on their own booking (they knock on the door); a partner only where the
  * installer shares it.
  */
-export function contactsFor(actor: Actor, v: VisitFacts): VisitContact[] {
+export function contactsFor(actor: Actor | { reach: Reach }, v: VisitFacts): VisitContact[] {
   const office = { name: v.officeName, phone: v.officePhone, role: 'Installer office' };
   const customer = { name: v.customerName, phone: v.customerPhone, role: 'Customer' };
-  if (reachOf(actor) === 'partner' && !v.sharesCustomerContact) return [office];
+  const reach = 'reach' in actor ? actor.reach : reachOf(actor);
+  if (reach === 'partner' && !v.sharesCustomerContact) return [office];
   return [customer, office];
+}
+
+/** The trades that get the house's electrical supply details with their slot. */
+export const SUPPLY_READING_KINDS = ['electrician'] as const;
+
+/** Booking states of the installer's own crew that name them as the day's site contact (a plan, never a decline). */
+export const SITE_CONTACT_STATES = ['pencilled', 'confirmed', 'on_site'] as const;
+
+/** Everything a partner's slot (e-mail, answer page, slot list) could tell beyond the site and times. */
+export interface SlotFacts extends VisitFacts {
+  /** The kind of the partner's resource booked (electrician, crane, …). */
+  resourceKind: string;
+  /** The installer's own crew on the job that day, if any (its name and phone). */
+  siteContact: { name: string; phone: string | null } | null;
+  supply: SlotSupply;
+}
+
+/**
+ * What a partner firm reads about one of its slots, with no signed-in actor (the e-mail and the
+ * answer page) or as the partner coordinator (the slot list): whom to call — the installer's crew
+ * on site that day, the office, and the householder only where the installer shares it — and the
+ * house's supply only for electrical work (nobody else prepares for it).
+ */
+export function partnerSlotFacts(f: SlotFacts): { contacts: VisitContact[]; supply: SlotSupply | null } {
+  const contacts: VisitContact[] = [
+    ...(f.siteContact ? [{ name: f.siteContact.name, phone: f.siteContact.phone, role: 'On site that day' }] : []),
+    ...contactsFor({ reach: 'partner' }, f),
+  ];
+  return { contacts, supply: (SUPPLY_READING_KINDS as readonly string[]).includes(f.resourceKind) ? f.supply : null };
 }
 
 /** Another booking on the same stage, as the day sheet's "with" line may show it. */
@@ -134,4 +165,13 @@ export function busyElsewhere(spans: readonly BusySpan[]): BusySpan[] {
     else out.push({ ...s });
   }
   return out;
+}
+
+/**
+ * A partner's reason for declining (or proposing another time), as a reader may see it: only the
+ * installer firm whose booking it is. Any other firm gets null (a third firm never reads it; the
+ * partner that wrote it has its own words already).
+ */
+export function answerReasonFor(actor: Actor, installerFirmId: string, reason: string | null | undefined): string | null {
+  return String(actor.firmId) === String(installerFirmId) && reason ? reason : null;
 }

@@ -141,7 +141,7 @@ export class ReportsService {
       { header: 'Job', value: (r) => r.reference },
       { header: 'Customer', value: (r) => r.customerName },
       { header: 'Town', value: (r) => r.siteTown },
-      { header: 'Promised by', value: (r) => (r.promisedBy === null ? '' : new Date(r.promisedBy).toISOString().slice(0, 10)) },
+      { header: 'Promised by', value: (r) => r.promisedDate ?? '' },
       { header: 'Days late', value: (r) => Math.ceil(r.lateByMs / 86_400_000) },
       { header: 'Status', value: (r) => r.statusLabel },
       { header: 'Float (working hours)', value: (r) => hours(r.floatMinutes) },

@@ -14,11 +14,12 @@ function toView(s: Survey, surveyor: User | undefined): SurveyView {
     jobId: s.jobId, accessWidthMm: s.accessWidthMm, accessHeightMm: s.accessHeightMm, steps: s.steps, gates: s.gates,
     overheadObstructions: s.overheadObstructions, overheadNotes: s.overheadNotes, groundType: s.groundType as SurveyView['groundType'],
     buriedServicesNotes: s.buriedServicesNotes, craneStandingPosition: s.craneStandingPosition,
-    craneDistanceToSetDownM: s.craneDistanceToSetDownM, consumerUnitDistanceM: s.consumerUnitDistanceM, mainFuseAmps: s.mainFuseAmps,
+    craneDistanceToSetDownM: s.craneDistanceToSetDownM, consumerUnitDistanceM: s.consumerUnitDistanceM,
+    consumerUnitLocation: s.consumerUnitLocation ?? null, mainFuseAmps: s.mainFuseAmps,
     drainage: s.drainage, craneRequired: s.craneRequired, excavatorSize: s.excavatorSize,
     evChargerAmps: s.evChargerAmps, electricShowerAmps: s.electricShowerAmps, heatPumpAmps: s.heatPumpAmps,
     otherLargeLoadAmps: s.otherLargeLoadAmps, otherLargeLoadNotes: s.otherLargeLoadNotes, earthingArrangement: s.earthingArrangement,
-    hoseFlowLitresPerMinute: s.hoseFlowLitresPerMinute, notes: s.notes,
+    hoseFlowLitresPerMinute: s.hoseFlowLitresPerMinute, siteLatitude: s.siteLatitude ?? null, siteLongitude: s.siteLongitude ?? null, notes: s.notes,
     surveyedAt: s.surveyedAt.toISOString(), surveyedBy: surveyor ? { id: surveyor.id, name: surveyor.name } : null, version: s.version,
   };
 }

@@ -7,6 +7,7 @@ import type { PutTemplate } from '../../shared/schemas/templates.ts';
 import type { PutFirmSettings } from '../../shared/schemas/firm-settings.ts';
 import { INSTALLATION_TYPES } from '../../shared/schemas/jobs.ts';
 import { FirmSettings, StageTemplateRow } from '../models/job-records.ts';
+import { DATUM_C } from '../../shared/scheduler/index.ts';
 import { BadRequestError, ConflictError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
@@ -25,6 +26,8 @@ export interface SettingsView {
   keepPhotoLocation: boolean;
   /** Whether partner firms booked on a job see the householder's name and phone (read-policy.ts). */
   shareCustomerContactWithPartners: boolean;
+  /** The Nurse–Saul datum (°C) the cure from the site's weather counts above (cure.ts; 0 °C by default). */
+  cureDatumC: number;
 }
 
 /** A firm's stage templates (its own edits over the built-in defaults) and its quantity settings. */
@@ -67,6 +70,7 @@ export class TemplatesService {
       quantities: settingsWith(overrides), overrides, defaults: DEFAULT_QUANTITY_SETTINGS, sources: SETTING_SOURCES, version: row?.version ?? 0,
       keepPhotoLocation: row?.keepPhotoLocation ?? false,
       shareCustomerContactWithPartners: row?.shareCustomerContactWithPartners ?? false,
+      cureDatumC: row?.cureDatumC ?? DATUM_C,
     };
   }
 
@@ -82,11 +86,12 @@ export class TemplatesService {
         throw new ConflictError('Someone else changed these settings since you loaded them.', { code: 'stale-version', current: await this.settings(actor, trx) });
       }
       const was = { quantities: before?.quantities ?? {}, keepPhotoLocation: before?.keepPhotoLocation ?? false,
-        shareCustomerContactWithPartners: before?.shareCustomerContactWithPartners ?? false };
+        shareCustomerContactWithPartners: before?.shareCustomerContactWithPartners ?? false, cureDatumC: before?.cureDatumC ?? DATUM_C };
       const now = {
         quantities: input.quantities ?? was.quantities,
         keepPhotoLocation: input.keepPhotoLocation ?? was.keepPhotoLocation,
         shareCustomerContactWithPartners: input.shareCustomerContactWithPartners ?? was.shareCustomerContactWithPartners,
+        cureDatumC: input.cureDatumC ?? was.cureDatumC,
         version: input.quantities ? current + 1 : current,
       };
       if (before) {
@@ -95,7 +100,7 @@ export class TemplatesService {
         await FirmSettings.query(trx).insert({ firmId: actor.firmId, ...now } as Partial<FirmSettings>);
       }
       await recordChange(trx, actor, 'firm_settings', actor.firmId, before ? 'update' : 'create', before ? was : null,
-        { quantities: now.quantities, keepPhotoLocation: now.keepPhotoLocation, shareCustomerContactWithPartners: now.shareCustomerContactWithPartners });
+        { quantities: now.quantities, keepPhotoLocation: now.keepPhotoLocation, shareCustomerContactWithPartners: now.shareCustomerContactWithPartners, cureDatumC: now.cureDatumC });
       return this.settings(actor, trx);
     });
   }

@@ -108,7 +108,7 @@ export function moveIn(inputs: MoveInInputs): Computation<MoveInInputs, MoveIn> 
     name: 'Moving the unit in',
     inputs: { ...inputs },
     formula: onSteps
-      ? `${base} min + ${steps} steps × ${perStep} min = ${minutes} min; ${crew} + ${extra} people on steps = ${people}; boards over the steps`
+      ? `${base} min + ${steps} step${steps === 1 ? '' : 's'} × ${perStep} min = ${minutes} min; ${crew} + ${extra} people on steps = ${people}; boards over the steps`
       : `${base} min on a level route; ${crew} people`,
     result: { people, minutes, boards: onSteps },
     unit: 'min',

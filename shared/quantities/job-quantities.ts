@@ -172,3 +172,27 @@ export function jobQuantities(args: { installationType: InstallationType; unit: 
     }),
   };
 }
+
+/**
+ * Minutes to fill the job's unit through a hose (the unit's litres ÷ the survey's measured flow, else the firm's
+ * default), rounded up to a quarter of an hour: crew time for the plan's fill stage. null when the unit's
+ * water volume is not known.
+ * @example
+ * fillMinutes(jobQuantities({ installationType: 'slab', unit: { ...brook4, waterLitres: 1250 }, survey: { hoseFlowLitresPerMinute: 12.5 }, settings }))
+ * // 105  (1250 ÷ 12.5 = 100 min → 105)
+ */
+export function fillMinutes(q: Pick<JobQuantities, 'fill'>): number | null {
+  return q.fill?.result.minutes ?? null;
+}
+
+/**
+ * Minutes for the unit's heater to bring the fresh fill to temperature (litres × 4.186 kJ/(kg·K) × ΔT ÷ heater
+ * power), rounded up to a quarter of an hour: elapsed time between filling and commissioning, not crew time
+ * (the heater works overnight). 0 when no heating is needed; null when the unit's water volume is not known.
+ * @example
+ * heatUpMinutes(jobQuantities({ installationType: 'in_ground', unit: { ...aurora6, waterLitres: 1500 }, survey: null, settings: DEFAULT_QUANTITY_SETTINGS }))
+ * // 990  (1500 × 4.186 × 28 = 175 812 kJ ÷ 3 kW = 58 604 s = 976.7 min → 990)
+ */
+export function heatUpMinutes(q: Pick<JobQuantities, 'heatUp'>): number | null {
+  return q.heatUp?.result.minutes ?? null;
+}

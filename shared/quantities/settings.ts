@@ -179,8 +179,14 @@ export const SETTING_SOURCES: Record<keyof QuantitySettings, string> = {
   heaterKw: 'from memory: many units have a 3 kW heater; the maker\'s figure overrides it',
 };
 
+/** A firm's own figures: any setting, and any entry of the per-excavator and per-ground tables. */
+export type QuantityOverrides = Partial<Omit<QuantitySettings, 'excavatorRatesM3PerHour' | 'groundRateFactors'>> & {
+  excavatorRatesM3PerHour?: Partial<Record<ExcavatorSize, number>>;
+  groundRateFactors?: Partial<Record<GroundType, number>>;
+};
+
 /** A firm's settings over the defaults; unknown keys are ignored. */
-export function settingsWith(overrides: Partial<QuantitySettings> | null | undefined): QuantitySettings {
+export function settingsWith(overrides: QuantityOverrides | null | undefined): QuantitySettings {
   const o = overrides ?? {};
   return {
     ...DEFAULT_QUANTITY_SETTINGS,

@@ -48,15 +48,24 @@ export interface HeatUpInputs {
   /** Where the heater power came from: the unit's own figure, or the firm's default. */
   heaterFrom: 'unit' | 'default';
 }
-export interface HeatUp { temperatureRiseK: number; energyKJ: number; energyKWh: number; seconds: number; hours: number }
+export interface HeatUp {
+  temperatureRiseK: number;
+  energyKJ: number;
+  energyKWh: number;
+  seconds: number;
+  hours: number;
+  /** The time to plan for: the seconds rounded up to a quarter of an hour (0 when no heating is needed). */
+  minutes: number;
+}
 
 /**
  * Time for the unit's heater to bring the fresh fill up to temperature before commissioning:
- * energy = litres × 1 kg/L × 4.186 kJ/(kg·K) × ΔT; time = energy ÷ heater power. Heat lost through the
- * cover, shell and pipes is left out, so the real time is longer: this is the least it can take.
+ * energy = litres × 1 kg/L × 4.186 kJ/(kg·K) × ΔT; time = energy ÷ heater power, planned in quarter hours.
+ * Heat lost through the cover, shell and pipes is left out, so the real time is longer: this is the least it can take.
  * @example
  * heatUpTime({ litres: 1500, startTempC: 10, targetTempC: 38, heaterKw: 3, heaterFrom: 'default' }).result
- * // { temperatureRiseK: 28, energyKJ: 175812, energyKWh: 48.837, seconds: 58604, hours: 16.28 }
+ * // { temperatureRiseK: 28, energyKJ: 175812, energyKWh: 48.837, seconds: 58604, hours: 16.28, minutes: 990 }
+ * // (58 604 s = 976.7 min → 990 min, rounded up to a quarter of an hour)
  */
 export function heatUpTime(inputs: HeatUpInputs): Computation<HeatUpInputs, HeatUp> {
   const { litres, startTempC: from, targetTempC: to, heaterKw: kw, heaterFrom } = inputs;
@@ -66,12 +75,13 @@ export function heatUpTime(inputs: HeatUpInputs): Computation<HeatUpInputs, Heat
   const rise = Math.max(0, to - from);
   const energyKJ = litres * WATER_KG_PER_LITRE * WATER_SPECIFIC_HEAT_KJ_PER_KG_K * rise;
   const seconds = energyKJ / kw; // kJ ÷ kW = s
+  const minutes = Math.ceil(round(seconds / 60 / 15, 9)) * 15;
   return {
     name: 'Heat-up time',
     inputs: { ...inputs },
     formula: `${litres} L × ${WATER_KG_PER_LITRE} kg/L × ${WATER_SPECIFIC_HEAT_KJ_PER_KG_K} kJ/(kg·K) × (${to} − ${from}) K = ${round(energyKJ, 1)} kJ; `
-      + `÷ ${kw} kW = ${round(seconds, 0)} s = ${round(seconds / 3600, 2)} h`,
-    result: { temperatureRiseK: round(rise), energyKJ: round(energyKJ, 1), energyKWh: round(energyKJ / 3600), seconds: round(seconds, 0), hours: round(seconds / 3600, 2) },
+      + `÷ ${kw} kW = ${round(seconds, 0)} s = ${round(seconds / 3600, 2)} h → ${minutes} min (rounded up to a quarter of an hour)`,
+    result: { temperatureRiseK: round(rise), energyKJ: round(energyKJ, 1), energyKWh: round(energyKJ / 3600), seconds: round(seconds, 0), hours: round(seconds / 3600, 2), minutes },
     unit: 'h',
     notes: [
       'Specific heat of water 4.186 kJ/(kg·K) and 1 kg a litre: physics.',

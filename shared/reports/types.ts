@@ -177,6 +177,8 @@ export interface RiskRow {
   customerName: string;
   siteTown: string;
   promisedBy: number | null;
+  /** The promised date itself (YYYY-MM-DD, the firm's day): `promisedBy` is the instant that day ends. */
+  promisedDate: string | null;
   /** Elapsed ms past the promised date by the critical path (0 = on time). */
   lateByMs: number;
   /** Least total float, working minutes (negative = that much work too late). */

@@ -3,6 +3,7 @@ import { ELSEWHERE_JOB_ID } from '../board-data.ts';
 import { boardLink, dateIn, jobOfStage, namedMessage, type ReportContext } from './context.ts';
 import type { RiskItem, RiskReason, RiskRow, RiskStatus, UtilisationGroup, UtilisationReport, UtilisationRow } from './types.ts';
 import { weeksOf } from './weeks.ts';
+import { deadlineDate } from '../local-dates.ts';
 
 /**
  * Merges bookings into disjoint intervals clipped to [from, to): two bookings of one resource at
@@ -119,7 +120,8 @@ export function riskRows(ctx: ReportContext, overdueBookingIds: ReadonlySet<stri
     const job = ctx.jobs.get(cp.jobId);
     if (!job || job.id === ELSEWHERE_JOB_ID || cp.lateByMs <= 0 || cp.promisedBy === null) continue;
     const days = Math.ceil(cp.lateByMs / DAY_MS);
-    add(job.id, { reason: 'late', label: `Finishes ${days} day${days === 1 ? '' : 's'} after the promised date (${formatInstant(cp.promisedBy, tz).slice(0, -6)})` });
+    // The deadline is the instant the promised day ends; its last millisecond still shows that day.
+    add(job.id, { reason: 'late', label: `Finishes ${days} day${days === 1 ? '' : 's'} after the promised date (${formatInstant(cp.promisedBy - 1, tz).slice(0, -6)})` });
   }
   const inRange = (b: { start: number; end: number }) => b.end > ctx.range.from && b.start < ctx.range.to;
   // One line per job and partner firm: the stages still waiting for that firm's answer.
@@ -155,6 +157,8 @@ export function riskRows(ctx: ReportContext, overdueBookingIds: ReadonlySet<stri
       .reduce<number | null>((m, b) => (m === null || b.start < m ? b.start : m), null);
     return {
       jobId, reference: job.reference, customerName: job.customerName, siteTown: job.siteTown, promisedBy: job.promisedBy ?? null,
+      // The deadline is the instant the promised day ends (shared/local-dates.ts): its date is the day before it.
+      promisedDate: job.promisedBy == null ? null : deadlineDate(job.promisedBy, ctx.range.timeZone),
       lateByMs: cp?.lateByMs ?? 0, floatMinutes: cp?.floatMinutes ?? 0, reasons, ...riskStatus(cp?.lateByMs ?? 0, reasons),
       link: boardLink(dateIn(ctx, firstBooking ?? ctx.range.now), { jobId }),
     };

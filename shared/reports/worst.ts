@@ -28,7 +28,7 @@ export function worstProblems(clashes: ClashReport, hire: HireReport, utilisatio
     source: r.status === 'late' ? 'late_job' : 'blocked_job',
     title: `${r.status === 'late' ? 'Late' : "Can't go ahead as booked"}: ${r.reference}${r.siteTown ? `, ${r.siteTown}` : ''}`,
     detail: r.reasons.map((x) => x.label).join('; '),
-    costPence: 0, date: r.promisedBy === null ? '' : new Date(r.promisedBy).toISOString().slice(0, 10), link: r.link,
+    costPence: 0, date: r.promisedDate ?? '', link: r.link,
     fixes: [r.status === 'late'
       ? `${Math.ceil(r.lateByMs / DAY_MS)} day(s) to win back: open the job on the board and let the slot finder offer earlier places`
       : 'Open the job on the board: book what the stage is short of, or put its stages back in order'],

@@ -1,17 +1,14 @@
-import { bookingsOfStage, compareBookings, createBoardIndex, resourceCalendarOf, stageCalendarOf, type BoardIndex } from './board-index.js';
+import { bookingsOfStage, createBoardIndex } from './board-index.js';
 import { boardCriticalPath } from './board-critical-path.js';
-import { bookableStart, mustFitInOneDay } from './booking-step.js';
-import { addWorkingMinutes, isWorkingInstant } from './calendar.js';
-import { overlappingOnResource } from './checks/clash.js';
-import { capitalise, makeViolation, resourceLabel } from './checks/violation.js';
-import { formatInstant } from './format.js';
-import { checkStageBookings } from './check-move.js';
-import { leadTimeEarliest } from './checks/lead-time.js';
-import { earliestStartFromPredecessors } from './checks/order.js';
-import type { BookingsOf } from './checks/violation.js';
-import { laterCannotHelp, nextCandidate } from './slot-finder.js';
-import { DAY_MS } from './time-zone.js';
-import type { Board, BoardOptions, Booking, Instant, Resource, Stage, Violation } from './types.js';
+import { buildPlanModel } from './planner/model.js';
+import { comparePlanCosts, firstPossibleStart, placeStages, planCosts, type Before } from './planner/place.js';
+import { searchPlans, WORK_PER_MS, type SearchProgress } from './planner/search.js';
+import type { Board, BoardOptions, Booking, Instant, Stage } from './types.js';
+
+/** What the planner reports while it works (see {@link AutoPlaceOptions.onProgress}). */
+export interface AutoPlaceProgress extends SearchProgress {
+  phase: 'single-pass' | 'search' | 'placing';
+}
 
 /** Options for {@link autoPlace}. */
 export interface AutoPlaceOptions extends BoardOptions {
@@ -19,6 +16,17 @@ export interface AutoPlaceOptions extends BoardOptions {
   jobIds?: string[];
   /** How far ahead of each stage's first possible start to look, in days (default 180). */
   horizonDays?: number;
+  /**
+   * How long the planner may search, in milliseconds of the reference machine (default 300 for
+   * one job, 2000 for several or the whole board; 0 = the single pass alone). The budget is
+   * counted in work, not read from a clock, so the same board, seed and budget give the same plan
+   * everywhere; on a slower machine it takes longer.
+   */
+  budgetMs?: number;
+  /** Seed of the search's random choices (default 1). */
+  seed?: number;
+  /** Called now and then with how far the search has got. */
+  onProgress?: (info: AutoPlaceProgress) => void;
 }
 
 /** A stage the engine placed. */
@@ -35,6 +43,21 @@ export interface UnplacedStage {
   reason: string;
 }
 
+/**
+ * What a plan costs, in the order plans are compared: stages it couldn't place, jobs past their
+ * promised date and the total minutes they are late, the sum of the planned jobs' finishes (minutes
+ * from now), idle paid hire on the machines of the kinds placed (pence), and changes of crew
+ * within a job.
+ */
+export interface PlanCosts {
+  unplacedStages: number;
+  lateJobs: number;
+  latenessMinutes: number;
+  finishMinutes: number;
+  idleHirePence: number;
+  crewChanges: number;
+}
+
 export interface AutoPlaceResult {
   /** New pencilled bookings, in the order they were made. */
   bookings: Booking[];
@@ -42,6 +65,10 @@ export interface AutoPlaceResult {
   unplaced: UnplacedStage[];
   /** Stage ids in the order the scheme took them. */
   order: string[];
+  /** What this plan costs. */
+  costs: PlanCosts;
+  /** Which plan won: the single pass, or the planner's search (never worse than the single pass). */
+  source: 'single-pass' | 'search';
 }
 
 interface Priority { float: number; promised: number; id: string }
@@ -52,154 +79,76 @@ function better(a: Priority, b: Priority): boolean {
   return a.id < b.id;
 }
 
-function insertBooking(index: BoardIndex, b: Booking): void {
-  const info = index.stages.get(b.stageId);
-  if (info !== undefined) info.bookings = [...info.bookings, b].sort((x, y) => (x.id < y.id ? -1 : 1));
-  let rb = index.bookingsByResource.get(b.resourceId);
-  if (rb === undefined) { rb = { list: [], maxLength: 0 }; index.bookingsByResource.set(b.resourceId, rb); }
-  const list = rb.list;
-  let lo = 0, hi = list.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (compareBookings(list[mid] as Booking, b) < 0) lo = mid + 1; else hi = mid;
-  }
-  list.splice(lo, 0, b);
-  rb.maxLength = Math.max(rb.maxLength, b.end - b.start);
-}
-
-function candidatesFor(index: BoardIndex, kind: string, firmId: string | undefined): Resource[] {
-  // The job's own firm first, owned before hired, then by id: cheapest and closest first.
-  return (index.resourcesByKind.get(kind) ?? []).slice().sort((a, b) =>
-    Number(a.firmId !== firmId) - Number(b.firmId !== firmId) || Number(a.hired === true) - Number(b.hired === true) || (a.id < b.id ? -1 : 1));
-}
-
-/** Tries every requirement at one start; returns the bookings or the refusals met. */
-function tryAt(index: BoardIndex, stage: Stage, t: Instant, firmId: string, seq: { n: number }): { bookings: Booking[] | null; refusals: Violation[] } {
-  const chosen: Booking[] = [];
-  const refusals: Violation[] = [];
-  for (const req of stage.requirements) {
-    let got = 0;
-    for (const r of candidatesFor(index, req.kind, index.jobs.get(stage.jobId)?.firmId)) {
-      if (got >= req.count) break;
-      if (chosen.some((b) => b.resourceId === r.id)) continue;
-      const cal = resourceCalendarOf(index, r.id);
-      // Cheap refusals first (not working, not on hire, already booked); the full check follows.
-      if (!isWorkingInstant(cal, t)) continue;
-      const end = addWorkingMinutes(cal, t, stage.durationMinutes);
-      if (r.hired === true && !(index.hireByResource.get(r.id) ?? []).some((p) => p.onHire <= t && end <= p.offHire)) continue;
-      const busy = overlappingOnResource(index, r.id, t, end, stage.id);
-      if (busy.length > 0) {
-        const until = Math.max(...busy.map((o) => o.end));
-        refusals.push(makeViolation('clash', 'error', [stage.id], [r.id], [],
-          `${capitalise(resourceLabel(index, r.id))} is busy until ${formatInstant(until, cal.timeZone)}`, { to: until }));
-        continue;
-      }
-      const b: Booking = {
-        id: `auto:${stage.id}:${seq.n + chosen.length}`, stageId: stage.id, resourceId: r.id, start: t,
-        end: end > t ? end : t + 60_000, state: 'pencilled', installerFirmId: firmId,
-      };
-      const trial = [...chosen, b];
-      const errs = checkStageBookings(index, stage.id, trial, { errorsOnly: true }).filter((v) => v.kind !== 'capacity');
-      if (errs.length === 0) { chosen.push(b); got++; } else refusals.push(...errs);
-    }
-    if (got < req.count) return { bookings: null, refusals };
-  }
-  const final = checkStageBookings(index, stage.id, chosen, { errorsOnly: true });
-  return final.length === 0 ? { bookings: chosen, refusals: [] } : { bookings: null, refusals: final };
-}
-
 /**
- * Places the unscheduled stages (no active booking) of one or more jobs with a serial
- * schedule-generation scheme: repeatedly take, among stages whose predecessors all have bookings,
- * the one with the least total float, then the earliest promised date, then the smallest id;
- * book it at the earliest start where every requirement gets enough resources and no error check
- * fails. Starts land on the booking step (`bookingStepMinutes`, local time) and, for a stage that
- * must be done within one working day, where it fits in one. Existing bookings never move.
- * Deterministic: same board, same answer.
+ * Places the unscheduled stages (no active booking) of one or more jobs. First the single pass
+ * (serial schedule-generation: repeatedly, among stages whose predecessors all have bookings, the
+ * one with the least total float, then the earliest promised date, then the smallest id, at the
+ * earliest start where every requirement gets enough resources and no error check fails). Then,
+ * within `budgetMs`, the planner searches a quick model of the same stages (priority rules,
+ * regret-biased sampling, forward–backward improvement, a genetic search over stage orders; see
+ * planner/) and places its best orders for real with the same engine checks. The plan kept is
+ * the best by {@link PlanCosts}, so never worse than the single pass. Starts land on the booking
+ * step (`bookingStepMinutes`, local time) and, for a stage that must be done within one working
+ * day, where it fits in one. Existing bookings never move. Deterministic: same board, seed and
+ * budget, same answer.
  *
  * @example
- * const { bookings, unplaced } = autoPlace(board, { now, jobIds: ['job-7'] })
- * // bookings: new pencilled bookings to save; unplaced: [{ stageId, reason }]
+ * const { bookings, unplaced, costs } = autoPlace(board, { now, jobIds: ['job-7'] })
+ * // bookings: new pencilled bookings to save; unplaced: [{ stageId, reason }]; costs.lateJobs: 0
  */
 export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceResult {
   const index = createBoardIndex(board, options);
   const jobIds = new Set(options.jobIds ?? board.jobs.map((j) => j.id));
-  const horizon = (options.horizonDays ?? 180) * DAY_MS;
+  const horizonDays = options.horizonDays ?? 180;
   const inCycle = new Set(index.cycles.flat());
   const floats = new Map<string, number>();
   for (const jp of boardCriticalPath(index)) for (const s of jp.stages) floats.set(s.stageId, s.totalFloatMinutes);
-  const pending = new Map<string, Stage>();
-  const result: AutoPlaceResult = { bookings: [], placed: [], unplaced: [], order: [] };
+  const early: AutoPlaceResult['unplaced'] = [];
+  const pending: Stage[] = [];
   for (const s of board.stages) {
     if (!jobIds.has(s.jobId)) continue;
     if (bookingsOfStage(index, s.id).length > 0) continue;
-    if (inCycle.has(s.id)) { result.unplaced.push({ stageId: s.id, reason: 'It waits for itself through a circle of dependencies' }); continue; }
-    if (s.requirements.length === 0) { result.unplaced.push({ stageId: s.id, reason: 'It needs no crew or machine, so there is nothing to book' }); continue; }
-    pending.set(s.id, s);
+    if (inCycle.has(s.id)) { early.push({ stageId: s.id, reason: 'It waits for itself through a circle of dependencies' }); continue; }
+    if (s.requirements.length === 0) { early.push({ stageId: s.id, reason: 'It needs no crew or machine, so there is nothing to book' }); continue; }
+    pending.push(s);
   }
-  const failed = new Set<string>();
-  const booked = (id: string): boolean => bookingsOfStage(index, id).length > 0;
-  const bookingsOf: BookingsOf = (id) => bookingsOfStage(index, id);
-  const seq = { n: 0 };
-  while (pending.size > 0) {
-    let best: Stage | undefined, bestP: Priority | undefined;
-    let blocked: { stage: Stage; reason: string } | undefined;
-    for (const s of pending.values()) {
-      const preds = index.stages.get(s.id)?.depsIn ?? [];
-      const waiting = preds.find((l) => !booked(l.from.stage.id));
-      if (waiting !== undefined) {
-        const p = waiting.from.stage.id;
-        if (!pending.has(p) && blocked === undefined) {
-          const name = index.stages.get(p)?.stage.name ?? p;
-          blocked = { stage: s, reason: failed.has(p) ? `It waits for '${name}', which couldn't be placed` : `It waits for '${name}', which has no booking` };
-        }
-        continue;
-      }
-      const job = index.jobs.get(s.jobId);
-      const prio: Priority = { float: floats.get(s.id) ?? 0, promised: job?.promisedBy ?? Number.POSITIVE_INFINITY, id: s.id };
-      if (bestP === undefined || better(prio, bestP)) { best = s; bestP = prio; }
+  const priority = (s: Stage): Priority => ({ float: floats.get(s.id) ?? 0, promised: index.jobs.get(s.jobId)?.promisedBy ?? Number.POSITIVE_INFINITY, id: s.id });
+  const single = placeStages(index, pending, horizonDays, (a, b) => better(priority(a), priority(b)));
+  let best: AutoPlaceResult = {
+    bookings: single.bookings, placed: single.placed, unplaced: [...early, ...single.unplaced], order: single.order,
+    costs: planCosts(index, pending, early.length + single.unplaced.length), source: 'single-pass',
+  };
+  single.undo();
+  const budget = options.budgetMs ?? ((options.jobIds?.length ?? 2) > 1 ? 2000 : 300);
+  options.onProgress?.({ phase: 'single-pass', schedules: 1, used: 0, best: [] });
+  if (budget <= 0 || pending.length < 2) return best;
+
+  const starts = new Map(pending.map((s) => [s.id, firstPossibleStart(index, s)]));
+  const model = buildPlanModel(index, pending, (s) => starts.get(s.id) ?? index.now);
+  const pos = new Map(pending.map((s, i) => [s.id, i]));
+  const singleList = single.order.map((id) => pos.get(id) as number);
+  const candidates = searchPlans(model, {
+    seed: options.seed ?? 1, workLimit: budget * WORK_PER_MS, seedLists: [singleList],
+    onProgress: (p) => options.onProgress?.({ phase: 'search', ...p }),
+  });
+  // Each of the best orders placed for real; stop once the engine agrees with the quick model.
+  for (const c of candidates) {
+    options.onProgress?.({ phase: 'placing', schedules: 0, used: 1, best: c.cost });
+    const rank = new Map(c.list.map((j, i) => [(pending[j] as Stage).id, i]));
+    const before: Before = (a, b) => (rank.get(a.id) ?? 0) < (rank.get(b.id) ?? 0);
+    const tried = placeStages(index, pending, horizonDays, before, { keepCrew: true });
+    const costs = planCosts(index, pending, early.length + tried.unplaced.length);
+    tried.undo();
+    if (comparePlanCosts(costs, best.costs) < 0) {
+      best = { bookings: tried.bookings, placed: tried.placed, unplaced: [...early, ...tried.unplaced], order: tried.order, costs, source: 'search' };
     }
-    if (best === undefined) {
-      if (blocked === undefined) break;
-      pending.delete(blocked.stage.id);
-      failed.add(blocked.stage.id);
-      result.unplaced.push({ stageId: blocked.stage.id, reason: blocked.reason });
-      continue;
-    }
-    const stage = best;
-    pending.delete(stage.id);
-    result.order.push(stage.id);
-    const firmId = index.jobs.get(stage.jobId)?.firmId ?? '';
-    const cal = stageCalendarOf(index, stage.id, []);
-    const first = candidatesFor(index, stage.requirements[0]?.kind ?? '', firmId)[0];
-    let t0 = options.now;
-    if (first !== undefined) {
-      const probe: Booking = { id: 'probe', stageId: stage.id, resourceId: first.id, start: t0, end: t0 + 1, state: 'pencilled', installerFirmId: firmId };
-      t0 = Math.max(t0, earliestStartFromPredecessors(index, stage.id, first.id, bookingsOf), leadTimeEarliest(index, probe));
-    }
-    // Starts a person would book: on the step, and within one working day when the stage must be.
-    const fit = mustFitInOneDay(stage, cal) ? { fitMinutes: stage.durationMinutes } : {};
-    const at = (x: Instant): Instant => bookableStart(cal, x, { stepMinutes: index.stepMinutes, ...fit });
-    let t = at(t0);
-    const limit = t + horizon;
-    let placed: Booking[] | null = null;
-    let lastRefusals: Violation[] = [];
-    while (t < limit) {
-      const tried = tryAt(index, stage, t, firmId, seq);
-      if (tried.bookings !== null) { placed = tried.bookings; break; }
-      lastRefusals = tried.refusals;
-      if (laterCannotHelp(stage.id, tried.refusals)) break;
-      t = at(nextCandidate(cal, t, tried.refusals));
-    }
-    if (placed === null) {
-      failed.add(stage.id);
-      const why = lastRefusals[0]?.message ?? `no ${stage.requirements.map((r) => r.kind.replace(/_/g, ' ')).join(' and ')} on the board`;
-      result.unplaced.push({ stageId: stage.id, reason: `No slot within ${options.horizonDays ?? 180} days; the last refusal: ${why}` });
-      continue;
-    }
-    seq.n += placed.length;
-    for (const b of placed) { insertBooking(index, b); result.bookings.push(b); }
-    result.placed.push({ stageId: stage.id, start: t, end: Math.max(...placed.map((b) => b.end)), resourceIds: placed.map((b) => b.resourceId) });
+    if (tried.unplaced.length === 0 && c === candidates[0] && matchesModel(model.unitMinutes, c.start, tried.placed, pending, index.now)) break;
   }
-  return result;
+  return best;
+}
+
+/** True when every stage was placed where the quick model put it (the model was exact here). */
+function matchesModel(unitMinutes: number, start: Int32Array, placed: readonly { stageId: string; start: Instant }[], pending: readonly Stage[], now: Instant): boolean {
+  const at = new Map(placed.map((p) => [p.stageId, p.start]));
+  return pending.every((s, j) => at.get(s.id) === now + (start[j] as number) * unitMinutes * 60_000);
 }

@@ -53,7 +53,7 @@ const TOLERANCE_MINUTES = 0.5;
 interface Work {
   es: Float64Array; ef: Float64Array; ls: Float64Array; lf: Float64Array;
   d: Float64Array;
-  /** Elapsed days of cure after the stage (0 without a cure rule). */
+  /** Elapsed days of cure after the stage (0 without a cure rule); counted only on links that wait for it. */
   cure: Float64Array;
   booked: Uint8Array;
   /** 1 + position of the stage's job in `jobs`, 0 when the stage is not in this run. */
@@ -88,7 +88,7 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
         const b = dep.type === 'FS' || dep.type === 'SS' ? bound : addWorkingMinutes(c, bound, -di);
         if (b > t) t = b;
         const cp = cure[p] as number;
-        if (cp > 0) t = Math.max(t, releaseInstant(ef[p] as number, cp));
+        if (cp > 0 && dep.waitsForCure === true) t = Math.max(t, releaseInstant(ef[p] as number, cp));
       }
       const start = di > 0 ? nextWorkingInstant(c, t) : t;
       es[i] = start;
@@ -116,7 +116,7 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
         const b = dep.type === 'FS' || dep.type === 'FF' ? back : addWorkingMinutes(c, back, di);
         if (b < latest) latest = b;
         const ci = cure[i] as number;
-        if (ci > 0) latest = Math.min(latest, (ls[s] as number) - ci * DAY_MS);
+        if (ci > 0 && dep.waitsForCure === true) latest = Math.min(latest, (ls[s] as number) - ci * DAY_MS);
       }
       lf[i] = latest;
       ls[i] = di > 0 ? addWorkingMinutes(c, latest, -di) : latest;
@@ -136,7 +136,7 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
         const own = (dep.type === 'FS' || dep.type === 'FF' ? ef[i] : es[i]) as number;
         free = Math.min(free, workingMinutesBetween(c, own, reverseLag(cal[s] as CompiledCalendar, subject, dep.lag)));
         const ci = cure[i] as number;
-        if (ci > 0) free = Math.min(free, workingMinutesBetween(c, ef[i] as number, (es[s] as number) - ci * DAY_MS));
+        if (ci > 0 && dep.waitsForCure === true) free = Math.min(free, workingMinutesBetween(c, ef[i] as number, (es[s] as number) - ci * DAY_MS));
       }
       const total = workingMinutesBetween(c, es[i] as number, ls[i] as number);
       if (total < minFloat) minFloat = total;

@@ -16,19 +16,22 @@ export const ACI_A_DAYS = 4;
  */
 export const ACI_B = 0.85;
 /**
- * ASTM C1074 Nurse–Saul datum temperature, °C.
+ * Nurse–Saul datum temperature, °C: ASTM C1074 asks for it to be found for the mix and recommends
+ * 0 °C as the working default when it is not (−10 °C is Saul's older value). A firm may set its
+ * own (firm settings), and a stage's cure rule may carry its mix's own (`CureRule.datumC`).
  *
  * @example
- * DATUM_C // -10
+ * DATUM_C // 0
  */
-export const DATUM_C = -10;
+export const DATUM_C = 0;
 /**
- * Reference temperature for equivalent age, °C (the ACI curve is read at this temperature).
+ * Reference temperature for equivalent age, °C: the ACI 209R-92 curve is for standard moist curing
+ * at about 23 °C, so an equivalent age is counted at 23 °C.
  *
  * @example
- * REFERENCE_C // 20
+ * REFERENCE_C // 23
  */
-export const REFERENCE_C = 20;
+export const REFERENCE_C = 23;
 
 /**
  * Fraction of 28-day strength at an age in days, ACI 209R-92: t / (4 + 0.85 t).
@@ -62,6 +65,7 @@ export interface MaturityOptions {
 
 function dayFactor(tempC: number, o: MaturityOptions): number {
   const t0 = o.datumC ?? DATUM_C, tr = o.referenceC ?? REFERENCE_C;
+  if (!(tr > t0)) throw new RangeError(`The reference temperature (${tr} °C) must be above the datum (${t0} °C)`);
   return Math.max(0, tempC - t0) / (tr - t0);
 }
 
@@ -71,7 +75,7 @@ function dayFactor(tempC: number, o: MaturityOptions): number {
  * counts in proportion; temperatures below the datum add nothing).
  *
  * @example
- * equivalentAge([5, 5, 10], 3) // (15 + 15 + 20) / 30 = 1.667 days
+ * equivalentAge([5, 5, 10], 3) // (5 + 5 + 10) / 23 = 0.870 days (datum 0 °C, reference 23 °C)
  */
 export function equivalentAge(dailyMeanTempsC: readonly number[], elapsedDays: number, options: MaturityOptions = {}): number {
   if (dailyMeanTempsC.length === 0) throw new RangeError('At least one daily temperature is needed');
@@ -88,7 +92,7 @@ export function equivalentAge(dailyMeanTempsC: readonly number[], elapsedDays: n
  * Elapsed days until the equivalent age reaches `targetDays`.
  *
  * @example
- * elapsedDaysForEquivalentAge([5], 1) // 2 (each 5 °C day counts 15/30 = half a day)
+ * elapsedDaysForEquivalentAge([5], 1) // 4.6 (each 5 °C day counts 5/23 of a day)
  */
 export function elapsedDaysForEquivalentAge(dailyMeanTempsC: readonly number[], targetDays: number, options: MaturityOptions = {}): number {
   if (dailyMeanTempsC.length === 0) throw new RangeError('At least one daily temperature is needed');
@@ -125,14 +129,78 @@ export interface CureExplanation {
   elapsedDays: number;
   /** Equivalent age at release (equals elapsedDays without temperatures). */
   equivalentAgeDays: number;
+  /** The Nurse–Saul datum and the reference temperature used, °C. */
+  datumC: number;
+  referenceC: number;
+  /**
+   * `forecast` or `seasonal` as the rule says; `stated`: temperatures on the rule with no source
+   * named; `reference`: no temperatures, the curve's own 23 °C.
+   */
+  temperatureSource: 'forecast' | 'seasonal' | 'stated' | 'reference';
+  /** Of the days up to the release, how many came from the forecast (0 unless the source is `forecast`). */
+  forecastDays: number;
+  temperaturePlace: string | null;
+  /** Day 0 of the temperatures (ISO date), when known. */
+  temperaturesFrom: string | null;
+  /** The whole reasoning in words: target, curve, datum, reference, temperatures used and their source. */
+  summary: string;
   pouredAt: Instant;
   releaseAt: Instant;
 }
 
+const oneDecimal = (n: number) => (Math.round(n * 10) / 10).toFixed(1);
+/** "12.0, 11.0, 13.7 (× 10)": equal days in a row are counted, not repeated. */
+function listOf(temps: readonly number[]): string {
+  const out: [string, number][] = [];
+  for (const t of temps) {
+    const v = oneDecimal(t), last = out[out.length - 1];
+    if (last?.[0] === v) last[1]++;
+    else out.push([v, 1]);
+  }
+  return out.map(([v, n]) => (n > 1 ? `${v} (× ${n})` : v)).join(', ');
+}
+
+/** The explanation's sentence: which temperatures, from where, and what they made of the cure. */
+function cureSummary(rule: CureRule, ex: Omit<CureExplanation, 'summary'>): string {
+  const pct = Math.round(rule.targetFraction * 100);
+  const curve = `${pct}% of 28-day strength needs ${oneDecimal(ex.requiredAgeDays)} days at ${ex.referenceC} °C (ACI 209R-92, standard moist curing)`;
+  const temps = ex.assumedTempsC;
+  if (!temps) return `${curve}; no site temperatures, so the base is taken to cure as at ${ex.referenceC} °C: released after ${oneDecimal(ex.elapsedDays)} days.`;
+  const place = ex.temperaturePlace ? ` for ${ex.temperaturePlace}` : '';
+  const seasonal = `the seasonal assumption${rule.seasonalBasis ? ` (${rule.seasonalBasis}, an assumption)` : ''}`;
+  // The days that counted, day 0 up to the release (the last temperature repeats past the list's end),
+  // in runs of one source each.
+  const runs: { kind: 'forecast' | 'seasonal' | 'stated'; temps: number[] }[] = [];
+  for (let d = 0; d < Math.max(1, Math.ceil(ex.elapsedDays)); d++) {
+    const i = Math.min(d, temps.length - 1);
+    const forecast = rule.fromForecast?.[i] ?? ex.temperatureSource === 'forecast';
+    const kind = ex.temperatureSource === 'stated' ? 'stated' : forecast ? 'forecast' : 'seasonal';
+    const last = runs[runs.length - 1];
+    if (last?.kind === kind) last.temps.push(temps[i] as number);
+    else runs.push({ kind, temps: [temps[i] as number] });
+  }
+  const words = runs.map((r, n) => {
+    const then = n > 0 ? 'then ' : '';
+    if (r.kind === 'forecast') return `${then}the weather forecast${place} ${listOf(r.temps)} °C`;
+    if (r.kind === 'seasonal') return `${then}${n === 0 && ex.temperatureSource === 'seasonal' ? `no forecast${place} on file, so ` : ''}${seasonal} ${listOf(r.temps)} °C`;
+    return `${listOf(r.temps)} °C${place}`;
+  }).join(', ');
+  const from = ex.temperaturesFrom ? ` from ${ex.temperaturesFrom}` : '';
+  return `${curve}; Nurse–Saul equivalent age (ASTM C1074, datum ${ex.datumC} °C, reference ${ex.referenceC} °C) with daily mean air temperatures${from}: ${words}: released after ${oneDecimal(ex.elapsedDays)} days.`;
+}
+
+/** Of the days up to the release, those the forecast gave (all of them when the rule marks none). */
+function forecastDaysUsed(length: number, elapsedDays: number, fromForecast: readonly boolean[] | undefined): number {
+  let n = 0;
+  for (let d = 0; d < Math.max(1, Math.ceil(elapsedDays)); d++) if (fromForecast?.[Math.min(d, length - 1)] ?? true) n++;
+  return n;
+}
+
 /**
  * When concrete poured (finished) at `pouredAt` reaches the rule's target fraction of 28-day
- * strength. Without temperatures: ACI 209R-92 age. With temperatures: the ACI age is taken as the
- * required Nurse–Saul equivalent age at 20 °C.
+ * strength. Without temperatures: the ACI 209R-92 age (the curve's own 23 °C). With temperatures:
+ * the ACI age is taken as the required Nurse–Saul equivalent age at the reference temperature
+ * (23 °C unless the rule says), counted above the datum (0 °C unless the rule says).
  *
  * @example
  * cureRelease(pourEnd, { targetFraction: 0.7 }).elapsedDays // 6.91…
@@ -140,17 +208,25 @@ export interface CureExplanation {
 export function cureRelease(pouredAt: Instant, rule: CureRule): CureExplanation {
   const requiredAgeDays = ageForStrengthRatio(rule.targetFraction);
   const temps = rule.dailyMeanTempsC && rule.dailyMeanTempsC.length > 0 ? rule.dailyMeanTempsC.slice() : null;
-  const elapsedDays = temps ? elapsedDaysForEquivalentAge(temps, requiredAgeDays) : requiredAgeDays;
-  return {
+  const options: MaturityOptions = { datumC: rule.datumC ?? DATUM_C, referenceC: rule.referenceC ?? REFERENCE_C };
+  const elapsedDays = temps ? elapsedDaysForEquivalentAge(temps, requiredAgeDays, options) : requiredAgeDays;
+  const ex: Omit<CureExplanation, 'summary'> = {
     model: temps ? 'nurse_saul_maturity' : 'aci209_age',
     targetFraction: rule.targetFraction,
     requiredAgeDays,
     assumedTempsC: temps,
     elapsedDays,
-    equivalentAgeDays: temps ? equivalentAge(temps, elapsedDays) : elapsedDays,
+    equivalentAgeDays: temps ? equivalentAge(temps, elapsedDays, options) : elapsedDays,
+    datumC: options.datumC as number,
+    referenceC: options.referenceC as number,
+    temperatureSource: temps ? (rule.temperatureSource ?? 'stated') : 'reference',
+    forecastDays: temps && rule.temperatureSource === 'forecast' ? forecastDaysUsed(temps.length, elapsedDays, rule.fromForecast) : 0,
+    temperaturePlace: rule.temperaturePlace ?? null,
+    temperaturesFrom: rule.temperaturesFrom ?? null,
     pouredAt,
     releaseAt: releaseInstant(pouredAt, elapsedDays),
   };
+  return { ...ex, summary: cureSummary(rule, ex) };
 }
 
 const elapsedCache = new WeakMap<CureRule, number>();

@@ -50,8 +50,29 @@ export interface Resource {
 export interface CureRule {
   /** Fraction of 28-day strength needed before successors may start, e.g. 0.7. */
   targetFraction: number;
-  /** Daily mean air temperatures in °C for day 0, 1, …; the last one repeats. */
+  /**
+   * Daily mean air temperatures in °C for day 0 (the day the pour ends, site time), 1, …; the last
+   * one repeats. Without them the cure is the ACI 209 age at the reference temperature.
+   */
   dailyMeanTempsC?: number[];
+  /** Nurse–Saul datum temperature, °C: the mix's own, else the firm's; default 0 °C (ASTM C1074). */
+  datumC?: number;
+  /** Temperature the strength curve holds at, °C; default 23 °C (ACI 209R-92 standard moist curing). */
+  referenceC?: number;
+  /**
+   * Where the temperatures come from: `forecast` — the site's weather forecast for the days marked
+   * in `fromForecast` (days gone by: as last forecast), the seasonal assumption for the rest;
+   * `seasonal` — all of them are the seasonal assumption (no forecast on file).
+   */
+  temperatureSource?: 'forecast' | 'seasonal';
+  /** Per day of `dailyMeanTempsC`: true when it is the forecast, false when the seasonal assumption. */
+  fromForecast?: boolean[];
+  /** The place the temperatures are for, in words (the site's town). */
+  temperaturePlace?: string;
+  /** The seasonal assumption in words, e.g. "UK monthly mean air temperature". */
+  seasonalBasis?: string;
+  /** Day 0 of `dailyMeanTempsC` as an ISO date (site time). */
+  temperaturesFrom?: string;
 }
 
 export interface StageRequirement {
@@ -91,6 +112,12 @@ export interface Dependency {
   toStageId: string;
   type: DependencyType;
   lag: Lag;
+  /**
+   * True when the successor loads the predecessor's base and so waits for its cure (the
+   * predecessor's CureRule) as well as the lag: a lift onto a slab. False or absent: only the lag
+   * counts (block walls go up on a base that has set overnight). Default false.
+   */
+  waitsForCure?: boolean;
 }
 
 export type BookingState = 'pencilled' | 'sent' | 'confirmed' | 'declined' | 'on_site' | 'done';
@@ -122,10 +149,17 @@ export interface HirePeriod {
   dayRatePence: number;
 }
 
+/**
+ * Notice a booking needs. Each of `appliesTo`'s fields, when given, must match: the firm's rules
+ * name a resource kind or a stage kind; a job's own stage rules (from its template: the crane
+ * firm's notice, the maker's lead time) name the stage by id, and may narrow it to a resource kind.
+ */
 export interface LeadTimeRule {
-  appliesTo: { resourceKind?: string; stageKind?: string };
+  appliesTo: { resourceKind?: string; stageKind?: string; stageId?: string };
   workingDays: number;
   from: 'now' | 'order';
+  /** Whose notice it is, in words for messages, e.g. "the maker's lead time". */
+  reason?: string;
 }
 
 /** Everything the engine looks at. Arrays are never mutated. */

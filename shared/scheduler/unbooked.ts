@@ -6,12 +6,13 @@ import { SchedulerError } from './errors.js';
 import { formatInstant } from './format.js';
 import { applyLag, describeLag } from './lag.js';
 import { makeViolation, stageLabel, type BookingsOf } from './checks/violation.js';
+import { leadTimeRulesOfStage, noticeWords } from './checks/lead-time.js';
 import type { Booking, Instant, LeadTimeRule, Stage, Violation } from './types.js';
 
 /** What holds an unbooked stage's earliest start back. */
 export type HeldBy =
   | { kind: 'now' }
-  | { kind: 'lead_time'; workingDays: number; from: 'now' | 'order'; ordered: boolean }
+  | { kind: 'lead_time'; workingDays: number; from: 'now' | 'order'; ordered: boolean; reason?: string }
   | { kind: 'predecessor'; stageId: string; dependencyId: string; booked: boolean };
 
 /** The earliest times a stage with no booking could have, as a person would book it. */
@@ -51,18 +52,17 @@ export function unbookedPlan(index: BoardIndex, bookingsOf: BookingsOf = (id) =>
 
 /**
  * The notice rule that holds an unbooked stage back the longest: a rule applies when its stage
- * kind is the stage's and its resource kind is one the stage needs (each when given). N working
+ * kind is the stage's, its stage id is the stage's and its resource kind is one the stage needs
+ * (each when given). N working
  * days on the calendar of a resource of that kind (else the stage's), from now or from the job's
  * order date (now when it isn't ordered yet).
  */
 function noticeFor(index: BoardIndex, stage: Stage, cal: CompiledCalendar): { at: number; rule: LeadTimeRule; ordered: boolean } | null {
-  const rules = index.board.leadTimeRules;
-  if (rules.length === 0) return null;
+  if (index.board.leadTimeRules.length === 0) return null;
   const job = index.jobs.get(stage.jobId);
   let best: { at: number; rule: LeadTimeRule; ordered: boolean } | null = null;
-  for (const rule of rules) {
+  for (const rule of leadTimeRulesOfStage(index, stage.id)) {
     const { resourceKind, stageKind } = rule.appliesTo;
-    if (resourceKind === undefined && stageKind === undefined) continue;
     if (stageKind !== undefined && stageKind !== stage.kind) continue;
     if (resourceKind !== undefined && !stage.requirements.some((r) => r.kind === resourceKind)) continue;
     const c = resourceKind === undefined ? cal : (kindCalendarOf(index, resourceKind, job?.firmId) ?? cal);
@@ -86,7 +86,7 @@ function compute(plan: UnbookedPlan, stageId: string): UnbookedTimes {
   const notice = noticeFor(index, stage, cal);
   if (notice !== null && notice.at > t) {
     t = notice.at;
-    heldBy = { kind: 'lead_time', workingDays: notice.rule.workingDays, from: notice.rule.from, ordered: notice.ordered };
+    heldBy = { kind: 'lead_time', workingDays: notice.rule.workingDays, from: notice.rule.from, ordered: notice.ordered, ...(notice.rule.reason ? { reason: notice.rule.reason } : {}) };
   }
   for (const l of info.depsIn) {
     const p = l.from;
@@ -101,7 +101,7 @@ function compute(plan: UnbookedPlan, stageId: string): UnbookedTimes {
     const dep = l.dep;
     let b = applyLag(cal, dep.type === 'FS' || dep.type === 'FF' ? pEnd : pStart, dep.lag);
     if ((dep.type === 'FF' || dep.type === 'SF') && dur > 0) b = addWorkingMinutes(cal, b, -dur);
-    if (p.stage.cure) b = Math.max(b, releaseInstant(pEnd, cureElapsedDays(p.stage.cure)));
+    if (p.stage.cure && dep.waitsForCure === true) b = Math.max(b, releaseInstant(pEnd, cureElapsedDays(p.stage.cure)));
     if (b > t) {
       t = b;
       heldBy = { kind: 'predecessor', stageId: p.stage.id, dependencyId: dep.id, booked: pb.length > 0 };
@@ -195,7 +195,7 @@ function heldWords(plan: UnbookedPlan, times: UnbookedTimes, tz: string): string
     case 'now': return '';
     case 'lead_time': {
       const from = h.from === 'order' ? (h.ordered ? 'the order date' : 'today (not ordered yet)') : 'today';
-      return `; it can't start itself before about ${at} (${h.workingDays} working days' notice from ${from})`;
+      return `; it can't start itself before about ${at} (${noticeWords(h.workingDays)} notice from ${from}${h.reason ? `, ${h.reason}` : ''})`;
     }
     case 'predecessor':
       return `; it can't start itself before about ${at} (after ${stageLabel(plan.index, h.stageId)}${h.booked ? '' : ', not booked yet'})`;
@@ -205,7 +205,7 @@ function heldWords(plan: UnbookedPlan, times: UnbookedTimes, tz: string): string
 /**
  * The check of one dependency from a predecessor with no booking to a booked successor: the
  * successor may not start (FS, SS) or finish (FF, SF) before the predecessor's earliest times
- * allow, with the lag and, out of a cured stage, the cure. Returns the violation (severity error)
+ * allow, with the lag and, out of a cured stage on a link that waits for it, the cure. Returns the violation (severity error)
  * or undefined. Skipped when the reader sees only part of the bookings, and once any booking of
  * the successor is on site or done (the work is under way: whatever came first evidently did, and
  * marking progress must not be refused for it).
@@ -228,8 +228,10 @@ export function checkUnbookedLink(plan: UnbookedPlan, link: DepLink, successorBo
   const sCal = stageCalendarOf(index, sId, successorBookings);
   const sStart = spanStart(successorBookings), sEnd = spanEnd(successorBookings);
   const lagBound = applyLag(sCal, dep.type === 'FS' || dep.type === 'FF' ? pt.finish : pt.start, dep.lag);
-  const cureDays = p.cure ? cureElapsedDays(p.cure) : 0;
-  const cureBound = p.cure ? releaseInstant(pt.finish, cureDays) : Number.NEGATIVE_INFINITY;
+  // Only a link that loads the base waits for its cure (walls may go up once it has set).
+  const cure = dep.waitsForCure === true ? p.cure : null;
+  const cureDays = cure ? cureElapsedDays(cure) : 0;
+  const cureBound = cure ? releaseInstant(pt.finish, cureDays) : Number.NEGATIVE_INFINITY;
   const startBound = dep.type === 'FS' || dep.type === 'SS' ? Math.max(lagBound, cureBound) : cureBound;
   const finishBound = dep.type === 'FF' || dep.type === 'SF' ? lagBound : Number.NEGATIVE_INFINITY;
   let which: 'start' | 'finish';
@@ -244,7 +246,7 @@ export function checkUnbookedLink(plan: UnbookedPlan, link: DepLink, successorBo
   }
   const P = stageLabel(index, p.id), S = stageLabel(index, sId);
   let what: string;
-  if (which === 'start' && p.cure && cureBound >= lagBound) {
+  if (which === 'start' && cure && cureBound >= lagBound) {
     what = `needs ${p.durationMinutes > 0 ? `${workWords(p.durationMinutes)} and ` : ''}${(Math.round(cureDays * 10) / 10).toFixed(1)} days to cure first`;
   } else if (dep.type === 'FS') {
     what = p.durationMinutes > 0 ? `needs ${workWords(p.durationMinutes)}${lagWords(dep.lag)} first` : `has to be done first${lagWords(dep.lag)}`;

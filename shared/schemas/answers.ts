@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { ROLES } from '../permissions.ts';
-import { EmailAddress, Id, WorkInstant } from './common.ts';
+import { EmailAddress, Id, WorkInstant, oneLineText } from './common.ts';
 
 export const ANSWER_ACTIONS = ['confirm', 'decline', 'propose'] as const;
 export type AnswerActionName = (typeof ANSWER_ACTIONS)[number];
@@ -9,11 +9,35 @@ export type AnswerActionName = (typeof ANSWER_ACTIONS)[number];
 export const VersionBody = z.object({ version: z.number().int().min(1) });
 export type VersionBody = z.infer<typeof VersionBody>;
 
-/** A partner's answer to a booking request. A proposal names the time that would suit. */
+/** The longest reason a partner may give with a decline or a proposal, in characters. */
+export const ANSWER_REASON_MAX = 500;
+
+/** Quick choices the decline forms offer (the page behind the e-mailed link and the partner's own page). */
+export const DECLINE_REASON_CHOICES = ['Not free that day', 'Too short notice', 'Job not for us'] as const;
+
+/** The label of the reason field, the same on every form: the partner should know who reads it. */
+export const REASON_LABEL = 'Why? (optional — the installer sees this)';
+
+/**
+ * Why a partner declines or proposes another time, in their own words: one line, trimmed, no
+ * control characters, at most ANSWER_REASON_MAX characters; empty is no reason.
+ */
+export const AnswerReason = oneLineText(ANSWER_REASON_MAX).transform((s) => s || undefined);
+
+/**
+ * The reason a form sends: a quick choice, the partner's own words, or both joined.
+ * @example reasonText('Not free that day', 'we are at a wedding') // 'Not free that day — we are at a wedding'
+ */
+export function reasonText(choice: string | null | undefined, text: string | null | undefined): string {
+  return [choice?.trim(), text?.trim()].filter(Boolean).join(' — ');
+}
+
+/** A partner's answer to a booking request. A proposal names the time that would suit; a decline or proposal may say why. */
 export const PartnerAnswer = z.object({
   action: z.enum(ANSWER_ACTIONS),
   proposedStart: WorkInstant.optional(),
   proposedEnd: WorkInstant.optional(),
+  reason: AnswerReason.optional(),
 }).refine((a) => a.action !== 'propose' || (a.proposedStart && a.proposedEnd), { path: ['proposedStart'], message: 'a proposal needs a start and an end' })
   .refine((a) => !a.proposedStart || !a.proposedEnd || Date.parse(a.proposedEnd) > Date.parse(a.proposedStart), { path: ['proposedEnd'], message: 'must be after the start' });
 export type PartnerAnswer = z.infer<typeof PartnerAnswer>;
@@ -39,6 +63,8 @@ export const BookingAnswerView = z.object({
   proposedStart: z.string().nullable(),
   proposedEnd: z.string().nullable(),
   proposalStatus: z.enum(['open', 'accepted', 'refused']).nullable(),
+  /** The partner's own words with a decline or proposal; null when none was given. */
+  reason: z.string().nullable(),
 });
 export type BookingAnswerView = z.infer<typeof BookingAnswerView>;
 
@@ -61,6 +87,11 @@ export const PartnerSlot = z.object({
   resource: z.object({ id: Id, name: z.string(), kind: z.string() }),
   site: z.object({ address: z.string(), town: z.string(), postcode: z.string(), accessNotes: z.string().nullable() }),
   installer: z.object({ name: z.string(), phone: z.string().nullable() }),
+  /** The unit and, for electrical work, the house's supply and the unit's load as lines (shared/slot-supply.ts). */
+  unit: z.string().nullable(),
+  supply: z.array(z.string()).nullable(),
+  /** Whom to call on the day, as the read policy gives it (the householder only where the installer shares it). */
+  contacts: z.array(z.object({ name: z.string(), phone: z.string().nullable(), role: z.string() })),
   cautions: z.array(z.string()),
   answer: BookingAnswerView.nullable(),
 });

@@ -57,8 +57,14 @@ export const PutFirmSettings = z.object({
   keepPhotoLocation: z.boolean().optional(),
   /** Show the householder's name and phone to the partner firms booked on the job (their day sheet); off by default. */
   shareCustomerContactWithPartners: z.boolean().optional(),
+  /**
+   * The firm's concrete's Nurse–Saul datum temperature, °C, for the cure from the site's weather.
+   * ASTM C1074 asks for it to be found for the mix and recommends 0 °C as the working default.
+   * One value whose request states the whole outcome, so no version (as the switches).
+   */
+  cureDatumC: z.number({ message: 'must be a temperature in °C' }).min(-15, 'must be between −15 and 15 °C').max(15, 'must be between −15 and 15 °C').optional(),
 })
   .refine((s) => s.quantities === undefined || s.version !== undefined, { path: ['version'], message: 'is required when changing the quantities' })
-  .refine((s) => s.quantities !== undefined || s.keepPhotoLocation !== undefined || s.shareCustomerContactWithPartners !== undefined,
-    { path: ['quantities'], message: 'send the quantities, the photo setting or the sharing setting' });
+  .refine((s) => s.quantities !== undefined || s.keepPhotoLocation !== undefined || s.shareCustomerContactWithPartners !== undefined || s.cureDatumC !== undefined,
+    { path: ['quantities'], message: 'send the quantities, the photo setting, the sharing setting or the cure datum' });
 export type PutFirmSettings = z.infer<typeof PutFirmSettings>;

@@ -30,6 +30,8 @@ export const SurveyFields = z.object({
   craneStandingPosition: oneLineText(500).nullable().default(null),
   craneDistanceToSetDownM: metres.nullable().default(null),
   consumerUnitDistanceM: metres.nullable().default(null),
+  /** Where the consumer unit is, in a few words ("Garage, left of the door"): the electrician plans the run from it. */
+  consumerUnitLocation: oneLineText(120).nullable().default(null),
   mainFuseAmps: z.number({ message: 'must be a number of amps' }).int('must be whole amps').min(1, 'must be more than 0').max(400, 'must be at most 400 A').nullable().default(null),
   drainage: oneLineText(1000).nullable().default(null),
   /** The surveyor's own call on a crane; null leaves it to the access check. */
@@ -45,10 +47,15 @@ export const SurveyFields = z.object({
   earthingArrangement: z.enum(EARTHING_ARRANGEMENTS, { message: 'pick an earthing arrangement' }).nullable().default(null),
   /** Hose flow at the tap the unit will be filled from (time a bucket); null leaves the firm's default. */
   hoseFlowLitresPerMinute: z.number({ message: 'must be a number of litres a minute' }).gt(0, 'must be more than 0').max(200, 'must be at most 200 L/min').nullable().default(null),
+  /** Where the site is, WGS84 degrees (the phone's position or typed): its weather forecast sets the cure. */
+  siteLatitude: z.number({ message: 'must be a latitude in degrees' }).min(-90, 'must be between −90 and 90 degrees').max(90, 'must be between −90 and 90 degrees').nullable().default(null),
+  siteLongitude: z.number({ message: 'must be a longitude in degrees' }).min(-180, 'must be between −180 and 180 degrees').max(180, 'must be between −180 and 180 degrees').nullable().default(null),
   notes: multiLineText(4000).nullable().default(null),
   surveyedAt: IsoInstant.optional(),
 }).refine((s) => !s.overheadObstructions || Boolean(s.overheadNotes?.trim()), {
   path: ['overheadNotes'], message: 'say what is overhead (lines, trees, eaves)',
+}).refine((s) => (s.siteLatitude === null) === (s.siteLongitude === null), {
+  path: ['siteLongitude'], message: 'give both the latitude and the longitude, or neither',
 });
 export type SurveyFields = z.infer<typeof SurveyFields>;
 export type SurveyInput = z.input<typeof SurveyFields>;

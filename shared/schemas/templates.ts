@@ -13,7 +13,13 @@ export const StageTemplateSchema = z.object({
   ]),
   requirements: z.array(z.object({ kind: Kind, count: z.number().int().min(1).max(10) })).max(10),
   cure: z.object({ targetFraction: z.number().gt(0).max(1) }).nullable().optional(),
-  leadTime: z.object({ workingDays: z.number().int().min(0).max(250), countedFrom: z.enum(['now', 'order']) }).nullable().optional(),
+  /** Notice the stage needs (checked on each job's stage); with resourceKind, that party's booking only. */
+  leadTime: z.object({
+    workingDays: z.number().int().min(0).max(250),
+    countedFrom: z.enum(['now', 'order']),
+    resourceKind: Kind.nullable().optional(),
+    reason: oneLineText(120).nullable().optional(),
+  }).nullable().optional(),
   when: z.enum(['always', 'crane', 'no_crane']).optional(),
   mayContinueNextDay: z.boolean().optional(),
 });
@@ -24,6 +30,8 @@ export const LinkTemplateSchema = z.object({
   type: z.enum(['FS', 'SS', 'FF', 'SF']).default('FS'),
   lagAmount: z.number().min(0).max(1000).default(0),
   lagUnit: z.enum(['working_hours', 'working_days', 'elapsed_hours', 'elapsed_days']).default('working_hours'),
+  /** The successor loads the base and waits for its cure, not only the lag. */
+  waitsForCure: z.boolean().default(false),
 });
 
 export const InstallationTypeParams = z.object({ installationType: z.enum(INSTALLATION_TYPES) });

@@ -1,5 +1,5 @@
 import { cautionsFor } from '../cautions.ts';
-import type { DependencyType, InstallTemplate, LagUnit, Requirement } from './types.ts';
+import type { DependencyType, InstallTemplate, LagUnit, Requirement, StageNotice } from './types.ts';
 
 export interface PlanOptions {
   craneNeeded: boolean;
@@ -18,13 +18,14 @@ export interface PlannedStage {
   durationSource: string;
   requirements: Requirement[];
   cure: { targetFraction: number } | null;
-  leadTime: { workingDays: number; countedFrom: 'now' | 'order' } | null;
+  /** The notice the job's stage needs (the engine checks it); the maker's lead time on the delivery. */
+  leadTime: StageNotice | null;
   /** May a booking of it run over into the next working day (see StageTemplate.mayContinueNextDay). */
   mayContinueNextDay: boolean;
   cautions: string[];
 }
 
-export interface PlannedLink { fromKind: string; toKind: string; type: DependencyType; lagAmount: number; lagUnit: LagUnit }
+export interface PlannedLink { fromKind: string; toKind: string; type: DependencyType; lagAmount: number; lagUnit: LagUnit; waitsForCure: boolean }
 
 export interface Plan { stages: PlannedStage[]; links: PlannedLink[] }
 
@@ -54,8 +55,8 @@ export function planFromTemplate(template: InstallTemplate, options: PlanOptions
       durationMinutes = s.duration.fallbackMinutes;
       durationSource = 'template fallback (no quantities yet)';
     }
-    const leadTime = s.kind === 'delivery' && options.makerLeadDays
-      ? { workingDays: options.makerLeadDays, countedFrom: 'order' as const }
+    const leadTime: StageNotice | null = s.kind === 'delivery' && options.makerLeadDays
+      ? { workingDays: options.makerLeadDays, countedFrom: 'order', reason: "the maker's lead time" }
       : s.leadTime ? { ...s.leadTime } : null;
     return {
       kind: s.kind, name: s.name, sequence: n + 1, durationMinutes, durationSource,
@@ -68,13 +69,14 @@ export function planFromTemplate(template: InstallTemplate, options: PlanOptions
   });
   const kinds = new Set(stages.map((s) => s.kind));
   const links = template.links.filter((l) => kinds.has(l.from) && kinds.has(l.to))
-    .map((l): PlannedLink => ({ fromKind: l.from, toKind: l.to, type: l.type, lagAmount: l.lagAmount, lagUnit: l.lagUnit }));
+    .map((l): PlannedLink => ({ fromKind: l.from, toKind: l.to, type: l.type, lagAmount: l.lagAmount, lagUnit: l.lagUnit, waitsForCure: l.waitsForCure === true }));
   return { stages, links };
 }
 
 /**
  * Problems with a template as a firm edited it: repeated kinds, links to unknown stages, a stage
- * linked to itself, or a loop. Empty when it is sound.
+ * linked to itself, a link waiting for the cure of a stage that has none, notice for a kind of
+ * resource the stage does not need, or a loop. Empty when it is sound.
  * @example
  * templateProblems({ ...SLAB_TEMPLATE, links: [{ from: 'fill', to: 'fill', type: 'FS', lagAmount: 0, lagUnit: 'working_hours' }] })
  * // ['links[0]: a stage cannot depend on itself']
@@ -86,10 +88,16 @@ export function templateProblems(template: InstallTemplate): string[] {
     if (kinds.has(s.kind)) problems.push(`stages[${n}]: kind ${s.kind} appears twice`);
     kinds.add(s.kind);
   });
+  template.stages.forEach((s, n) => {
+    const kind = s.leadTime?.resourceKind;
+    if (kind && !s.requirements.some((r) => r.kind === kind)) problems.push(`stages[${n}].leadTime.resourceKind: ${s.name} needs no ${kind.replace(/_/g, ' ')}`);
+  });
   template.links.forEach((l, n) => {
     if (!kinds.has(l.from)) problems.push(`links[${n}]: no stage ${l.from}`);
     if (!kinds.has(l.to)) problems.push(`links[${n}]: no stage ${l.to}`);
     if (l.from === l.to) problems.push(`links[${n}]: a stage cannot depend on itself`);
+    const from = template.stages.find((s) => s.kind === l.from);
+    if (l.waitsForCure === true && from && !from.cure) problems.push(`links[${n}].waitsForCure: ${from.name} has no cure to wait for`);
   });
   if (problems.length) return problems;
   // A loop in either planned variant (crane or not) would leave the job unschedulable.

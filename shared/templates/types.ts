@@ -10,6 +10,20 @@ export type DurationRule =
 
 export interface Requirement { kind: string; count: number }
 
+/**
+ * Notice a stage needs before it may be booked, in working days from now or from the order date:
+ * the crane firm's (time for a site visit and a lift plan), the electrician's, the maker's lead
+ * time. With `resourceKind` it is that party's notice and holds only its booking (the crane, not
+ * the installer's own crew); without, the whole stage. The engine checks it on the job's stage.
+ */
+export interface StageNotice {
+  workingDays: number;
+  countedFrom: 'now' | 'order';
+  resourceKind?: string | null;
+  /** Whose notice it is, for messages ("the maker's lead time"). */
+  reason?: string | null;
+}
+
 export interface StageTemplate {
   kind: string;
   name: string;
@@ -17,8 +31,8 @@ export interface StageTemplate {
   requirements: Requirement[];
   /** Successors wait until the base reaches this share of its 28-day strength. */
   cure?: { targetFraction: number } | null;
-  /** Notice the stage needs, in working days, counted from now or from the order date. */
-  leadTime?: { workingDays: number; countedFrom: 'now' | 'order' } | null;
+  /** Notice the stage needs, in working days, counted from now or from the order date (see StageNotice). */
+  leadTime?: StageNotice | null;
   /** 'crane' stages are planned only when a crane is needed; 'no_crane' only when it is not. */
   when?: 'always' | 'crane' | 'no_crane';
   /**
@@ -34,6 +48,11 @@ export interface LinkTemplate {
   type: DependencyType;
   lagAmount: number;
   lagUnit: LagUnit;
+  /**
+   * The successor loads the base and waits for its cure as well as the lag (a lift onto a slab);
+   * false or absent: the lag alone (block walls on a base that has set overnight).
+   */
+  waitsForCure?: boolean;
 }
 
 export interface InstallTemplate {

@@ -34,7 +34,11 @@ export interface JobDetail {
   surveyedAt: string | null;
 }
 
-export interface StageBooking { id: string; resourceId: string; resourceName: string; resourceKind: string; startsAt: string; endsAt: string; state: string }
+export interface StageBooking {
+  id: string; resourceId: string; resourceName: string; resourceKind: string; startsAt: string; endsAt: string; state: string;
+  /** A declined booking: why, in the partner's own words (null when they gave none). */
+  declineReason?: string | null;
+}
 export interface JobStage {
   id: string;
   kind: string;

@@ -1,9 +1,9 @@
 import { computed, ref, shallowRef, onScopeDispose } from 'vue';
 import { api, ApiError, request } from '@/api/client';
 import type { BoardBooking, BoardData } from '@shared/board-data';
-import { ownViolations, toEngineBoard } from '@shared/board-data';
 import type { UndoEntryView } from '@shared/schemas/bookings';
-import { analyseBoard, createBoardIndex, type BoardIndex, type BoardAnalysis } from '@shared/scheduler/index';
+import type { BoardIndex, BoardAnalysis } from '@shared/scheduler/index';
+import { boardAnalysisOf, boardIndexOf } from '@/components/board/engine-view';
 import { callFor, fromView, resultOf, type Intent, type WriteResult } from '@/components/board/drop-actions';
 
 export interface BoardRange { from: number; to: number }
@@ -13,9 +13,11 @@ export interface BoardRange { from: number; to: number }
  * and its full analysis (for the violations shown on events and in the job panel). Writes go
  * through `send`, which merges the server's answer. The undo stack is the server's, per session
  * (GET/POST /api/undo), so it survives a reload; an undo is applied there through the guarded
- * write path, and the board reloads.
+ * write path, and the board reloads. `seesAllBookings` is false for a board that holds only part
+ * of the bookings (a crew member's own rows): the engine then raises no warnings that need the rest.
  */
-export function useBoard() {
+export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
+  const seesAll = () => options.seesAllBookings?.() ?? true;
   const data = shallowRef<BoardData | null>(null);
   const loading = ref(false);
   const error = shallowRef<ApiError | null>(null);
@@ -25,15 +27,9 @@ export function useBoard() {
   let controller: AbortController | null = null;
   let range: BoardRange | null = null;
 
-  const index = computed<BoardIndex | null>(() => (data.value ? createBoardIndex(toEngineBoard(data.value), { now: data.value.now }) : null));
+  const index = computed<BoardIndex | null>(() => (data.value ? boardIndexOf(data.value, seesAll()) : null));
   // Problems that involve only busy-elsewhere blocks are another installer's business: dropped.
-  const analysis = computed<BoardAnalysis | null>(() => {
-    if (!data.value) return null;
-    const full = analyseBoard(toEngineBoard(data.value), { now: data.value.now });
-    const violations = ownViolations(data.value, full.violations);
-    const errorCount = violations.filter((v) => v.severity === 'error').length;
-    return { ...full, violations, errorCount, warningCount: violations.length - errorCount };
-  });
+  const analysis = computed<BoardAnalysis | null>(() => (data.value ? boardAnalysisOf(data.value, seesAll()) : null));
 
   /** The session's changes that can be taken back (the server keeps them). */
   async function loadUndo(): Promise<void> {

@@ -4,6 +4,7 @@ import type { BoardIndex, BookingState, Violation } from '@shared/scheduler/inde
 import { eventsOf, rowsOf } from '@/components/board/board-events';
 import { boardVisibility, hiddenCited, hiddenNote, type BoardFilterInput, type BoardVisibility } from '@/components/board/board-search';
 import { trayGroups } from '@/components/board/tray';
+import { POINTER_CLASSES } from '@/components/board/board-pointer';
 
 /** The toolbar's filters as the URL keeps them. */
 export interface BoardFilterValues { firm: string; kind: string; job: string; state: BookingState | ''; q: string }
@@ -18,6 +19,8 @@ interface Deps {
   revealed: () => ReadonlySet<string>;
   /** The stage whose bookings show as one linked group. */
   selectedStage: () => string | null;
+  /** Bookings a report's link outlines (both sides of a clash): shown whatever the filters, outlined. */
+  highlighted?: () => ReadonlySet<string>;
 }
 
 /**
@@ -32,7 +35,8 @@ export function useBoardFilter(deps: Deps) {
   });
   const visibility = computed<BoardVisibility | null>(() => {
     const data = deps.data();
-    return data ? boardVisibility(data, input.value, deps.revealed()) : null;
+    const highlighted = deps.highlighted?.() ?? new Set<string>();
+    return data ? boardVisibility(data, input.value, highlighted.size ? new Set([...deps.revealed(), ...highlighted]) : deps.revealed()) : null;
   });
 
   const rows = computed(() => {
@@ -46,6 +50,7 @@ export function useBoardFilter(deps: Deps) {
     const shown = visibility.value;
     if (!data || !shown) return [];
     const selected = deps.selectedStage();
+    const highlighted = deps.highlighted?.() ?? new Set<string>();
     const perStage = new Map<string, number>();
     for (const b of data.bookings) if (b.state !== 'declined' && !b.elsewhere) perStage.set(b.stageId, (perStage.get(b.stageId) ?? 0) + 1);
     return eventsOf(data, { canEdit: deps.canEdit(), problems: deps.problems(), declined: true })
@@ -56,6 +61,7 @@ export function useBoardFilter(deps: Deps) {
           ...(linked ? ['wl-linked'] : []),
           ...(selected && e.extendedProps.stageId === selected ? ['wl-linked--selected'] : []),
           ...(deps.revealed().has(e.id) ? ['wl-revealed'] : []),
+          ...(highlighted.has(e.id) ? [POINTER_CLASSES.highlight] : []),
         ];
         return extra.length ? { ...e, classNames: [...e.classNames, ...extra] } : e;
       });

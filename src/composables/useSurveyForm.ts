@@ -8,10 +8,13 @@ export type SurveyDraft = Required<Omit<SurveyInput, 'surveyedAt' | 'accessWidth
 const blank = (): SurveyDraft => ({
   accessWidthMm: null, accessHeightMm: null, steps: 0, gates: 0, overheadObstructions: false, overheadNotes: null,
   groundType: null, buriedServicesNotes: null, craneStandingPosition: null, craneDistanceToSetDownM: null,
-  consumerUnitDistanceM: null, mainFuseAmps: null, drainage: null, craneRequired: null, excavatorSize: null,
+  consumerUnitDistanceM: null, consumerUnitLocation: null, mainFuseAmps: null, drainage: null, craneRequired: null, excavatorSize: null,
   evChargerAmps: null, electricShowerAmps: null, heatPumpAmps: null, otherLargeLoadAmps: null, otherLargeLoadNotes: null,
-  earthingArrangement: null, hoseFlowLitresPerMinute: null, notes: null,
+  earthingArrangement: null, hoseFlowLitresPerMinute: null, siteLatitude: null, siteLongitude: null, notes: null,
 });
+
+/** Degrees to five places (about a metre): more than a forecast needs, and no false precision. */
+const fivePlaces = (deg: number) => Math.round(deg * 1e5) / 1e5;
 
 /**
  * The survey form's state: loads the saved survey (or starts a blank one), checks the draft with the
@@ -67,5 +70,27 @@ export function useSurveyForm(jobId: Ref<string>) {
     }
   }
 
-  return { draft, version, errors, loading, saving, loadError, load, check, save };
+  const locating = ref(false);
+  /**
+   * Fills the site position from the phone's location (the browser asks the person first). Resolves
+   * to null when done, or to the reason in words when the position could not be had.
+   */
+  async function useHerePosition(): Promise<string | null> {
+    if (typeof navigator === 'undefined' || !navigator.geolocation) return 'This browser cannot tell where it is; type the position instead.';
+    locating.value = true;
+    try {
+      const pos = await new Promise<GeolocationPosition>((resolve, reject) =>
+        navigator.geolocation.getCurrentPosition(resolve, reject, { enableHighAccuracy: false, timeout: 15_000, maximumAge: 60_000 }));
+      draft.siteLatitude = fivePlaces(pos.coords.latitude);
+      draft.siteLongitude = fivePlaces(pos.coords.longitude);
+      return null;
+    } catch (error) {
+      const code = (error as GeolocationPositionError | undefined)?.code;
+      return code === 1 ? 'Location was not allowed on this phone; type the position instead.' : 'The position could not be found; try again outside, or type it.';
+    } finally {
+      locating.value = false;
+    }
+  }
+
+  return { draft, version, errors, loading, saving, loadError, locating, load, check, save, useHerePosition };
 }

@@ -14,12 +14,8 @@ function calendarToUtc(date: string): Date | null {
   return Number.isNaN(value.getTime()) || value.getUTCDate() !== Number(d) ? null : value;
 }
 
-/** Today's calendar date in a time zone. @example todayIn('Europe/London', new Date('2026-03-29T23:30:00Z')) // '2026-03-30' */
-export function todayIn(timeZone: string, now: Date): string {
-  const parts = new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).formatToParts(now);
-  const get = (type: string) => parts.find((part) => part.type === type)?.value ?? '';
-  return `${get('year')}-${get('month')}-${get('day')}`;
-}
+/** Today's calendar date in a time zone (the one rule, in shared/local-dates.ts). @example todayIn('Europe/London', new Date('2026-03-29T23:30:00Z')) // '2026-03-30' */
+export { todayIn } from '@shared/local-dates';
 
 export interface CalendarDateOptions {
   /** Year to leave out (usually the firm's current year); other years are shown. */

@@ -95,7 +95,7 @@ describe('BoardDayList', () => {
     const html = await render(true);
     expect(text(html)).toContain('Our crews Crew Heron install crew 08:00–12:00 TW-2417 · Crane lift into pit Otley ✔ Confirmed');
     expect(text(html)).toContain('13:00–16:00 TW-2417 · Fill Otley ✎ Pencilled · ⚠ Problem Crew Heron is booked twice');
-    expect(text(html)).toContain('Priya electrician 09:00–13:00 TW-2420 · Connect and certify Pool-in-Wharfedale ✉ Asked · ⏰ Answer overdue');
+    expect(text(html)).toContain('Priya electrician 09:00–13:00 TW-2420 · Connect and certify Pool-in-Wharfedale ✉ Asked · ◷ Answer overdue');
     expect(text(html)).toContain('Nothing booked on 1 row Crew Otter');
     // Each booking draws with its state's edge and its markers' classes.
     const classes = /<li class="([^"]+)"[^>]*data-booking-id="b-fill"/.exec(html)?.[1]?.split(' ').sort();

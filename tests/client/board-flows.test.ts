@@ -138,12 +138,12 @@ describe('declines', () => {
   it('are listed for the scheduler with who declined and how, and told once when they arrive', () => {
     const before = board();
     const after = board();
-    after.bookings[2] = { ...after.bookings[2]!, state: 'declined', version: 3, declined: { at: MON - DAY, via: 'link' } };
+    after.bookings[2] = { ...after.bookings[2]!, state: 'declined', version: 3, declined: { at: MON - DAY, via: 'link', reason: 'Not free that day' } };
     expect(newlyDeclined(before, after)).toEqual(['b-con']);
     expect(newlyDeclined(after, after)).toEqual([]);
     expect(declinedItems(after)).toEqual([{
       bookingId: 'b-con', stageId: 's-con', jobId: 'j1', stageName: 'Connect and certify', jobReference: 'TW-2420', resourceName: 'Priya Nair',
-      firmName: 'Brightspark Electrical', start: MON + 14 * DAY, declinedAt: MON - DAY, via: 'link', canSendAgain: true,
+      firmName: 'Brightspark Electrical', start: MON + 14 * DAY, declinedAt: MON - DAY, via: 'link', reason: 'Not free that day', canSendAgain: true,
     }]);
   });
 });

@@ -24,7 +24,7 @@ describe('a booking in words', () => {
   it('reads as reference, stage and town, led by its markers and state', () => {
     expect(bookingLine(props())).toBe('TW-2417 · Pour reinforced base · Otley');
     expect(chipMarks(props({ markers: ['problem', 'proposed'] }))).toBe('⚠ ⇄ ✔');
-    expect(chipMarks(props({ state: 'sent', markers: ['overdue'] }))).toBe('⏰ ✉');
+    expect(chipMarks(props({ state: 'sent', markers: ['overdue'] }))).toBe('◷ ✉');
   });
 
   it('says when it runs, in the firm’s zone, naming both days when it crosses midnight', () => {
@@ -39,7 +39,7 @@ describe('a booking in words', () => {
       '✔ Confirmed: the firm said yes',
       'Mon 14 Sep 08:00–13:00',
       '⚠ Problem: Millstone gang is booked twice.',
-      '⏰ Answer overdue: the partner has not answered by the reminder time',
+      '◷ Answer overdue: the partner has not answered by the reminder time',
     ]);
   });
 

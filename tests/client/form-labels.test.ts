@@ -11,7 +11,7 @@ import { controlsOf, renderHtml, unlabelled } from './render';
 vi.mock('@/composables/useSurveyForm', () => ({
   useSurveyForm: () => ({
     draft: reactive({ accessWidthMm: 900, accessHeightMm: null, steps: 1, gates: 1, overheadObstructions: true, overheadNotes: 'Phone line at 5 m',
-      groundType: 'clay', buriedServicesNotes: null, craneStandingPosition: null, craneDistanceToSetDownM: 8, consumerUnitDistanceM: 12,
+      groundType: 'clay', buriedServicesNotes: null, craneStandingPosition: null, craneDistanceToSetDownM: 8, consumerUnitDistanceM: 12, consumerUnitLocation: 'Garage, left of the door',
       mainFuseAmps: 80, drainage: null, craneRequired: null, excavatorSize: null, evChargerAmps: 32, electricShowerAmps: null, heatPumpAmps: null,
       otherLargeLoadAmps: 16, otherLargeLoadNotes: 'Sauna', earthingArrangement: null, hoseFlowLitresPerMinute: null, notes: null }),
     version: ref(1), errors: ref({}), loading: ref(false), saving: ref(false), loadError: ref(null), load: vi.fn(), check: vi.fn(), save: vi.fn(),
@@ -29,8 +29,10 @@ vi.mock('@/composables/useJobForm', () => ({
 describe('the site survey on a phone', () => {
   it('gives every control a label a screen reader finds', async () => {
     const html = await renderHtml(SurveyView, {}, { path: '/jobs/12/survey' });
-    expect(controlsOf(html).length).toBeGreaterThanOrEqual(21);
+    expect(controlsOf(html).length).toBeGreaterThanOrEqual(22);
     expect(unlabelled(html)).toEqual([]);
+    expect(controlsOf(html).find((c) => c.attrs.id === 'survey-consumerUnitLocation')!.attrs.value).toBe('Garage, left of the door');
+    expect(html).toContain('Where the consumer unit is');
   });
 
   it('brings up the number pad for numbers: whole numbers numeric, metres decimal', async () => {

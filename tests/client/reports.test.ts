@@ -24,7 +24,7 @@ const fix: SuggestedFix = {
   label: 'Move to Fix crew B on Mon 8 Jun 09:00 — no extra cost', link: '/board?view=day&date=2026-06-08&q=Fix+crew+B&highlight=31',
 };
 const risk = (over: Partial<RiskRow>): RiskRow => ({
-  jobId: '5', reference: 'TW-9102', customerName: 'Test Householder', siteTown: 'Testbury', promisedBy: null, lateByMs: 0, floatMinutes: 0,
+  jobId: '5', reference: 'TW-9102', customerName: 'Test Householder', siteTown: 'Testbury', promisedBy: null, promisedDate: null, lateByMs: 0, floatMinutes: 0,
   reasons: [{ reason: 'short_resourced', label: "'Heavy lift' needs 2 fix crews; 1 is booked" }], status: 'blocked', statusLabel: "Can't go ahead as booked",
   link: '/board?view=day&date=2026-06-18&job=5', ...over,
 });

@@ -1,7 +1,8 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, onTestFinished } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
-import { account } from '../helpers/server.ts';
+import { account, idOf } from '../helpers/server.ts';
+import { makeJob } from '../helpers/flows.ts';
 
 /**
  * The board as a scheduler reads it on the demo data (the test scenario's "today" is Monday
@@ -149,6 +150,133 @@ describe('the board at 1280 × 800', () => {
     await page.keyboard.press('m');
     await page.getByRole('dialog').getByText(/^Move .+ to…$/).waitFor({ timeout: 5_000 });
     await page.keyboard.press('Escape');
+  }, 60_000);
+});
+
+/**
+ * Which characters of the given texts the browser draws as the missing-glyph box: each is drawn on
+ * a canvas in the font of its element and compared, pixel for pixel, with a private-use character
+ * no font has (U+10FFFD).
+ */
+async function missingGlyphs(p: Page, selector: string): Promise<string[]> {
+  return p.$$eval(selector, (els) => {
+    const canvas = document.createElement('canvas');
+    canvas.width = 48;
+    canvas.height = 48;
+    const context = canvas.getContext('2d', { willReadFrequently: true })!;
+    const draw = (font: string, text: string) => {
+      context.clearRect(0, 0, 48, 48);
+      context.font = font;
+      context.fillText(text, 4, 36);
+      return context.getImageData(0, 0, 48, 48).data.join(',');
+    };
+    const missing = new Set<string>();
+    for (const el of els) {
+      const style = getComputedStyle(el);
+      const font = `${style.fontWeight} 28px ${style.fontFamily}`;
+      const box = draw(font, '\u{10FFFD}');
+      for (const ch of (el.textContent ?? '').replace(/[\s\w.,:;·()'’–-]/g, '')) if (draw(font, ch) === box) missing.add(ch);
+    }
+    return [...missing];
+  });
+}
+
+describe("a report's link on the board", () => {
+  let manager: BrowserContext;
+  let reports: Page;
+  beforeAll(async () => {
+    manager = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
+    // The reports page spans the weeks from the browser's today: the scenario's Monday 1 June 2026.
+    await manager.clock.setFixedTime(new Date('2026-06-01T08:00:00+01:00'));
+    reports = await manager.newPage();
+    await signInThroughPage(reports, app.url, account('manager').email);
+  }, 60_000);
+  afterAll(async () => { await manager?.close(); });
+
+  /** The reports page's "Show on the board" links, as it writes them. */
+  async function reportLinks(): Promise<string[]> {
+    await reports.goto(`${app.url}/reports`);
+    // Both tables loaded: the clashes' links (with bookings) and the hire table's (a hire alone).
+    await reports.waitForFunction(() => {
+      const hrefs = [...document.querySelectorAll('a[href^="/board?"]')].map((a) => a.getAttribute('href')!);
+      return hrefs.some((h) => h.includes('highlight=')) && hrefs.some((h) => h.includes('hire=') && !h.includes('highlight='));
+    }, undefined, { timeout: 30_000 });
+    return reports.$$eval('a', (as) => as.map((a) => a.getAttribute('href') ?? '').filter((h) => h.startsWith('/board?')));
+  }
+  const outlined = (p: Page) => p.$$eval('.fc-event.wl-pointed', (els) => els.map((el) => (el as HTMLElement).dataset.bookingId ?? ''));
+
+  it('outlines both sides of a clash, whatever the job filter, scrolled into view, until dismissed', async () => {
+    // The demo's plan has no double booking: the test makes one, Crew Heron twice on Thu 25 Jun, 08:00–12:00 and
+    // 10:00–14:00 BST (pencilled, as the database refuses confirmed overlaps; set up directly, as a fixture).
+    const knex = app.ctx.knex;
+    const job = await makeJob(knex, { reference: 'TW-9901', stages: [
+      { kind: 'fill', name: 'Fill', minutes: 240, needs: { install_crew: 1 } }, { kind: 'handover', name: 'Handover', minutes: 240, needs: { install_crew: 1 } },
+    ], links: [] });
+    const heron = await idOf(knex, 'resources', { name: 'Crew Heron' });
+    const ids: string[] = [];
+    onTestFinished(async () => {
+      await knex('bookings').whereIn('id', ids).delete();
+      await knex('jobs').where('id', job.jobId).delete();
+    });
+    for (const [kind, start, end] of [['fill', '07:00', '11:00'], ['handover', '09:00', '13:00']] as const) {
+      const [row] = await knex('bookings').insert({ stage_id: job.stage[kind], resource_id: heron, starts_at: `2026-06-25T${start}:00Z`, ends_at: `2026-06-25T${end}:00Z`, state: 'pencilled' }).returning('id');
+      ids.push(String(row.id));
+    }
+    const sameIds = (h: string) => (new URLSearchParams(h.split('?')[1]).get('highlight') ?? '').split(',').sort().join() === [...ids].sort().join();
+    const link = (await reportLinks()).find(sameIds);
+    expect(link).toMatch(/^\/board\?view=day&date=2026-06-25&q=Crew\+Heron&highlight=\d+%2C\d+$/);
+    await reports.getByRole('link', { name: 'Show on the board' }).and(reports.locator(`a[href="${link}"]`)).first().click();
+    await reports.waitForURL(/\/board\?/);
+    await expect.poll(async () => (await outlined(reports)).sort(), { timeout: 15_000 }).toEqual([...ids].sort());
+    await reports.waitForFunction(() => [...document.querySelectorAll('.fc-event.wl-pointed')].every((el) => el.getAttribute('title')));
+    await reports.screenshot({ path: 'tests/e2e/artifacts/board-report-clash.png' });
+    const notice = reports.getByRole('status', { name: 'Picked out by the link' });
+    expect(await notice.innerText()).toMatch(/^Outlined: [A-Z]{2}-\d{4} · .+ on .+, (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \d+ [A-Z][a-z]{2} \d\d:\d\d; [A-Z]{2}-\d{4} · .+\./);
+    // The first of them is inside the timeline's visible area (scrolled to).
+    const seen = await reports.$eval('.fc-event.wl-pointed', (el) => {
+      const r = el.getBoundingClientRect();
+      const area = el.closest('.fc-scroller')!.getBoundingClientRect();
+      return r.top >= area.top - 1 && r.bottom <= area.bottom + 1 && r.left < area.right && r.right > area.left;
+    });
+    expect(seen).toBe(true);
+
+    // A job filter hides every other booking but not the clash's two sides.
+    await reports.goto(`${app.url}${link}&job=999999`);
+    await expect.poll(async () => (await outlined(reports)).sort(), { timeout: 15_000 }).toEqual([...ids].sort());
+    expect(await reports.locator('.fc-event.wl-booking:not(.wl-pointed):not(.wl-elsewhere)').count()).toBe(0);
+
+    await notice.getByRole('button', { name: 'Dismiss' }).click();
+    await reports.waitForURL((u) => !u.search.includes('highlight='));
+    await expect.poll(() => reports.locator('.fc-event.wl-pointed').count()).toBe(0);
+    expect(await notice.count()).toBe(0);
+  }, 90_000);
+
+  it("draws a hire period as a band on the machine's row, and says so", async () => {
+    const link = (await reportLinks()).find((h) => h.includes('hire=') && !h.includes('highlight='));
+    expect(link, 'an idle hire in the demo').toBeDefined();
+    const machine = new URLSearchParams(link!.split('?')[1]).get('q')!;
+    await reports.goto(`${app.url}${link}`);
+    const band = reports.locator('.fc-bg-event.wl-hire-band');
+    await band.first().waitFor({ timeout: 15_000 });
+    await reports.evaluate(() => document.fonts.ready);
+    await reports.screenshot({ path: 'tests/e2e/artifacts/board-report-hire.png' });
+    expect(await band.count()).toBe(1);
+    // On the machine's own row.
+    const rowId = await band.evaluate((el) => el.closest('[data-resource-id]')?.getAttribute('data-resource-id'));
+    expect(await reports.$eval(`.fc-datagrid-cell[data-resource-id="${rowId}"]`, (el) => (el as HTMLElement).innerText)).toContain(machine);
+    expect(await reports.getByRole('status', { name: 'Picked out by the link' }).innerText())
+      .toMatch(new RegExp(`^Hire period drawn on its row: ${machine.replace(/[()]/g, '\\$&')}, on hire (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \\d+ [A-Z][a-z]{2} – (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \\d+ [A-Z][a-z]{2}\\.`));
+  }, 90_000);
+});
+
+describe('symbols on the board', () => {
+  it('draws every state and marker symbol of the key and of the bookings with a real glyph, not an empty box', async () => {
+    await openBoard(page, 'view=week&date=2026-06-03');
+    const keySymbols = await page.$$eval('.board-key__swatch', (els) => els.map((el) => el.textContent?.trim() ?? '').filter(Boolean));
+    // Six states and three markers, each with its own symbol.
+    expect(new Set(keySymbols).size).toBe(9);
+    expect(await missingGlyphs(page, '.board-key__swatch')).toEqual([]);
+    expect(await missingGlyphs(page, '.wl-chip__marks')).toEqual([]);
   }, 60_000);
 });
 

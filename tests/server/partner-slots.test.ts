@@ -103,7 +103,14 @@ describe('a private calendar feed per person', () => {
     expect(mine!.startDate.toJSDate().toISOString()).toBe('2027-08-03T08:00:00.000Z');
     expect(mine!.description).toContain('Follow local codes and licensed practice');
     expect(feed.text).not.toContain('@home.example');
-    expect(await ctx.knex('calendar_feeds').where('token_hash', path1)).toHaveLength(0); // only a hash is stored
+    // Only a hash of the link's secret is stored: the secret itself appears in no row.
+    const secret = path1.split('/').pop()!.replace(/\.ics$/, '');
+    const stored = await ctx.knex('calendar_feeds').where('resource_id', tom);
+    expect(stored.length).toBeGreaterThan(0);
+    for (const row of stored) {
+      expect(row.tokenHash).toMatch(/^[0-9a-f]{64}$/);
+      expect(JSON.stringify(row)).not.toContain(secret);
+    }
 
     const second = await partner.post(`/api/partner/people/${tom}/feed`).set('X-CSRF-Token', partner.csrf).expect(201);
     await request(ctx.waterline.app).get(path1).expect(404);

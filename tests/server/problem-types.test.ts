@@ -20,7 +20,7 @@ describe('problem types', () => {
   it('every code the server can answer with has an explanation', () => {
     const codes = new Set<string>();
     for (const file of sourcesUnder(path.resolve('server'))) {
-      for (const m of readFileSync(file, 'utf8').matchAll(/(?:new HttpError|super)\(\s*\d{3},\s*'([a-z-]+)'/g)) codes.add(m[1]);
+      for (const m of readFileSync(file, 'utf8').matchAll(/(?:new HttpError|super)\(\s*\d{3},\s*'([a-z-]+)'/g)) codes.add(m[1]!);
     }
     // The scan must see the error classes themselves, or it proves nothing.
     expect(codes).toContain('bad-request');
@@ -34,7 +34,7 @@ describe('problem types', () => {
     expect(refused.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/bad-request`);
     const page = await request(ctx.waterline.app).get(new URL(refused.body.type).pathname).expect(200);
     expect(page.headers['content-type']).toMatch(/text\/html/);
-    expect(page.text).toContain(PROBLEM_TYPES['bad-request'].title);
+    expect(page.text).toContain(PROBLEM_TYPES['bad-request']!.title);
   });
 
   it('a malformed JSON body gets its own documented type', async () => {

@@ -46,7 +46,7 @@ const DELIBERATE = {
     // Paid hire days with the excavator standing.
     { kind: 'idle_hire', severity: 'warning', jobs: [], resources: ['3 t excavator (hired)'] },
   ],
-  // The swim spa ordered late: its delivery waits for the maker's 15 working days.
+  // The swim spa ordered late: its delivery waits for the maker's 35 working days.
   late: ['TW-2404'],
   overdue: ['TW-2416: Millstone Groundworks'],
   tray: ['TW-2422', 'TW-2423', 'TW-2424'],

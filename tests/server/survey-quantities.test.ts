@@ -52,8 +52,9 @@ describe('the survey fields behind the quantities', () => {
     // Fill at the measured 12.5 L/min: 1250 ÷ 12.5 = 100 min → 105 min.
     expect(q.fill.inputs).toEqual({ litres: 1250, flowLitresPerMinute: 12.5, flowFrom: 'survey' });
     expect(q.fill.result.minutes).toBe(105);
-    // Heat-up (physics): 1250 × 4.186 × (38 − 10) = 146 510 kJ; ÷ 3 kW (the default heater) = 48 837 s = 13.57 h.
-    expect(q.heatUp.result).toMatchObject({ energyKJ: 146510, seconds: 48837, hours: 13.57 });
+    // Heat-up (physics; source: specific heat of water 4.186 kJ/(kg·K)): 1250 × 4.186 × (38 − 10) = 146 510 kJ;
+    // ÷ 3 kW (the default heater) = 48 837 s = 13.57 h = 813.9 min → 825 min planned (quarter hours).
+    expect(q.heatUp.result).toMatchObject({ energyKJ: 146510, seconds: 48837, hours: 13.57, minutes: 825 });
     // Slab dig (2000 + 300)² = 5.29 m² × 0.25 m = 1.323 m³. Clay digs at 1.5 × 0.75 = 1.125 m³/h:
     // 1.323 ÷ 1.125 = 1.176 h → 90 min (loam would be 0.882 h → 60 min).
     expect(q.excavationTime.inputs).toMatchObject({ groundType: 'clay', groundRateFactor: 0.75 });

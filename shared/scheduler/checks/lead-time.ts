@@ -6,7 +6,47 @@ import type { Booking, LeadTimeRule, Violation } from '../types.js';
 import { capitalise, makeViolation, resourceLabel, stageLabel } from './violation.js';
 
 /**
- * Rules that apply to a booking: a rule's resourceKind and stageKind must both match when given.
+ * "5 working days'", "1 working day's": the possessive before "notice".
+ *
+ * @example
+ * noticeWords(35) // "35 working days'"
+ */
+export function noticeWords(workingDays: number): string {
+  return workingDays === 1 ? "1 working day's" : `${workingDays} working days'`;
+}
+
+interface RulesByStage { general: LeadTimeRule[]; byStage: Map<string, LeadTimeRule[]> }
+
+const rulesCache = new WeakMap<readonly LeadTimeRule[], RulesByStage>();
+
+/**
+ * The rules that may apply to a stage: the firm's (by resource or stage kind) and the stage's own
+ * (by its id), found once per board so a board with a rule on every stage stays linear. A rule
+ * that names nothing applies to nothing.
+ *
+ * @example
+ * leadTimeRulesOfStage(index, 'delivery-7') // [{ appliesTo: { stageId: 'delivery-7' }, workingDays: 35, from: 'order' }, …]
+ */
+export function leadTimeRulesOfStage(index: BoardIndex, stageId: string): LeadTimeRule[] {
+  const rules = index.board.leadTimeRules;
+  let split = rulesCache.get(rules);
+  if (split === undefined) {
+    split = { general: [], byStage: new Map() };
+    for (const rule of rules) {
+      const { resourceKind, stageKind, stageId: id } = rule.appliesTo;
+      if (id !== undefined) {
+        const l = split.byStage.get(id);
+        if (l === undefined) split.byStage.set(id, [rule]); else l.push(rule);
+      } else if (resourceKind !== undefined || stageKind !== undefined) split.general.push(rule);
+    }
+    rulesCache.set(rules, split);
+  }
+  const own = split.byStage.get(stageId);
+  return own === undefined ? split.general : [...split.general, ...own];
+}
+
+/**
+ * Rules that apply to a booking: a rule's resourceKind, stageKind and stageId must each match when given.
  *
  * @example
  * matchingLeadTimeRules(index, booking) // [{ appliesTo: { resourceKind: 'crane' }, workingDays: 10, from: 'now' }]
@@ -14,9 +54,8 @@ import { capitalise, makeViolation, resourceLabel, stageLabel } from './violatio
 export function matchingLeadTimeRules(index: BoardIndex, booking: Booking): LeadTimeRule[] {
   const r = index.resources.get(booking.resourceId);
   const s = index.stages.get(booking.stageId)?.stage;
-  return index.board.leadTimeRules.filter((rule) => {
+  return leadTimeRulesOfStage(index, booking.stageId).filter((rule) => {
     const { resourceKind, stageKind } = rule.appliesTo;
-    if (resourceKind === undefined && stageKind === undefined) return false;
     return (resourceKind === undefined || resourceKind === r?.kind) && (stageKind === undefined || stageKind === s?.kind);
   });
 }
@@ -40,7 +79,8 @@ export function leadTimeEarliest(index: BoardIndex, booking: Booking): number {
 }
 
 /**
- * Lead-time check of one booking. Only pencilled bookings are checked: once a booking is sent
+ * Lead-time check of one booking: at most one violation, for the rule whose notice ends last.
+ * Only pencilled bookings are checked: once a booking is sent
  * the other party has had notice, and a confirmed one was accepted. Severity error.
  *
  * @example
@@ -48,23 +88,26 @@ export function leadTimeEarliest(index: BoardIndex, booking: Booking): number {
  */
 export function checkLeadTime(index: BoardIndex, booking: Booking): Violation[] {
   if (booking.state !== 'pencilled') return [];
-  const out: Violation[] = [];
   const cal = resourceCalendarOf(index, booking.resourceId);
   const job = index.jobs.get(index.stages.get(booking.stageId)?.stage.jobId ?? '');
+  // The firm's rule and the stage's own may both apply (15 days for any delivery, 35 for this
+  // maker's): only the one that holds the booking back longest is told.
+  let worst: { rule: LeadTimeRule; earliest: number } | null = null;
   for (const rule of matchingLeadTimeRules(index, booking)) {
     const from = rule.from === 'order' ? (job?.orderedAt ?? index.now) : index.now;
     const earliest = addWorkingDays(cal, from, rule.workingDays);
-    if (booking.start < earliest) {
-      const what = rule.appliesTo.resourceKind !== undefined
-        ? capitalise(resourceLabel(index, booking.resourceId))
-        : stageLabel(index, booking.stageId);
-      const fromWords = rule.from === 'order' ? (job?.orderedAt != null ? 'the order date' : 'today (the unit is not ordered yet)') : 'today';
-      // Counted from now the notice ends at an odd minute: say (and offer) the next booking step.
-      const shown = roundUpToStep(earliest, cal.timeZone, index.stepMinutes);
-      out.push(makeViolation('lead_time', 'error', [booking.stageId], [booking.resourceId], [booking.id],
-        `${what} needs ${rule.workingDays} working days' notice from ${fromWords}: the earliest start is ${formatInstant(shown, cal.timeZone)}`,
-        { earliest, earliestStart: shown, workingDays: rule.workingDays, from: rule.from }));
-    }
+    if (booking.start < earliest && (worst === null || earliest > worst.earliest)) worst = { rule, earliest };
   }
-  return out;
+  if (worst === null) return [];
+  const { rule, earliest } = worst;
+  const what = rule.appliesTo.resourceKind !== undefined
+    ? capitalise(resourceLabel(index, booking.resourceId))
+    : stageLabel(index, booking.stageId);
+  const fromWords = rule.from === 'order' ? (job?.orderedAt != null ? 'the order date' : 'today (the unit is not ordered yet)') : 'today';
+  // Counted from now the notice ends at an odd minute: say (and offer) the next booking step.
+  const shown = roundUpToStep(earliest, cal.timeZone, index.stepMinutes);
+  const why = rule.reason ? ` (${rule.reason})` : '';
+  return [makeViolation('lead_time', 'error', [booking.stageId], [booking.resourceId], [booking.id],
+    `${what} needs ${noticeWords(rule.workingDays)} notice from ${fromWords}${why}: the earliest start is ${formatInstant(shown, cal.timeZone)}`,
+    { earliest, earliestStart: shown, workingDays: rule.workingDays, from: rule.from })];
 }

@@ -17,7 +17,8 @@ const WORDS = {
 /**
  * Order, lag and cure checks of one dependency between two booked stages (severity error).
  * Working lags count on the successor's calendar; the cure of a base stage counts from the end
- * of the pour in elapsed time.
+ * of the pour in elapsed time, and only on a link that waits for it (`waitsForCure`): block walls
+ * may go up on a base that has set overnight, the lift waits for the strength.
  *
  * @example
  * checkDependency(index, { id: 'd1', fromStageId: 'base', toStageId: 'lift', type: 'FS', lag: { amount: 0, unit: 'working_hours' } }, bookingsOf)
@@ -61,7 +62,7 @@ export function checkDependencyBetween(
         `${S} can't ${verb} before ${formatInstant(shown, tz)}: it must wait ${describeLag(dep.lag)} ${rel} ${P} ${does}`, details));
     }
   }
-  const cure = from?.cure;
+  const cure = dep.waitsForCure === true ? from?.cure : undefined;
   if (cure && sStart < releaseInstant(pEnd, cureDays(cure))) {
     const ex = cureRelease(pEnd, cure);
     if (sStart < ex.releaseAt) {
@@ -77,7 +78,7 @@ export function checkDependencyBetween(
 
 /**
  * The earliest start the dependencies into a stage allow, given its duration would be counted on
- * `resourceId`'s calendar: FS/SS bounds and cures of booked predecessors, and of unbooked ones
+ * `resourceId`'s calendar: FS/SS bounds and cures (on links that wait for them) of booked predecessors, and of unbooked ones
  * from their earliest times (see unbooked.ts); FF/SF are left to the full check. Exact (not
  * rounded to the booking step).
  *
@@ -98,7 +99,7 @@ export function earliestStartFromPredecessors(
     }
     if (p === null) continue;
     if (dep.type === 'FS' || dep.type === 'SS') t = Math.max(t, applyLag(cal, dep.type === 'FS' ? p.end : p.start, dep.lag));
-    const cure = index.stages.get(dep.fromStageId)?.stage.cure;
+    const cure = dep.waitsForCure === true ? index.stages.get(dep.fromStageId)?.stage.cure : undefined;
     if (cure) t = Math.max(t, releaseInstant(p.end, cureDays(cure)));
   }
   return t;

@@ -53,10 +53,15 @@ export const STATE_LABELS: Record<BookingState, { label: string; symbol: string;
   done: { label: 'Done', symbol: '■', description: 'finished' },
 };
 
-/** Marks a booking can carry besides its state; the symbol leads the title, the class draws the edge. */
+/**
+ * Marks a booking can carry besides its state; the symbol leads the title, the class draws the edge.
+ * Symbols are text characters of the system sans (DejaVu Sans on Debian, the usual fallback behind
+ * Work Sans), never emoji-presentation characters, which draw as empty boxes where no emoji font is
+ * installed: the overdue clock is ◷ (U+25F7), not ⏰ (U+23F0).
+ */
 export const BOOKING_MARKERS = {
   problem: { symbol: '⚠', label: 'Problem', description: 'breaks a rule: open the job to see which', className: 'wl-has-problem' },
-  overdue: { symbol: '⏰', label: 'Answer overdue', description: 'the partner has not answered by the reminder time', className: 'wl-overdue' },
+  overdue: { symbol: '◷', label: 'Answer overdue', description: 'the partner has not answered by the reminder time', className: 'wl-overdue' },
   proposed: { symbol: '⇄', label: 'Other time proposed', description: 'the partner proposed another time: open the job to accept or refuse it', className: 'wl-proposed' },
 } as const;
 export type BookingMarker = keyof typeof BOOKING_MARKERS;

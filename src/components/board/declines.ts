@@ -17,6 +17,8 @@ export interface DeclinedItem {
   /** When the partner said no, and how (their page or the e-mailed link), when known. */
   declinedAt: number | null;
   via: 'link' | 'app' | null;
+  /** Why, in the partner's own words (shown as text, never as markup); null when they gave none. */
+  reason: string | null;
   /** The state machine lets the office send the request again (a partner's resource). */
   canSendAgain: boolean;
 }
@@ -38,7 +40,7 @@ export function declinedItems(data: BoardData): DeclinedItem[] {
     const side = resource.ownership === 'partner' ? 'partner' : 'own';
     out.push({
       bookingId: b.id, stageId: stage.id, jobId: job.id, stageName: stage.name, jobReference: job.reference, resourceName: resource.name,
-      firmName: resource.firmName, start: b.start, declinedAt: b.declined?.at ?? null, via: b.declined?.via ?? null,
+      firmName: resource.firmName, start: b.start, declinedAt: b.declined?.at ?? null, via: b.declined?.via ?? null, reason: b.declined?.reason ?? null,
       canSendAgain: actionsFor('declined', { party: 'office', side }).includes('send'),
     });
   }

@@ -1,6 +1,6 @@
 /** What the job panel lists: the job's stages in order with dates, float and the critical path. */
 import type { BoardBooking, BoardData, BoardStage } from '@shared/board-data';
-import { describeLag, formatInstant, type BoardIndex, type JobCriticalPath, type Violation } from '@shared/scheduler/index';
+import { describeLag, formatInstant, unbookedPlan, unbookedTimesOf, type BoardIndex, type JobCriticalPath, type Violation } from '@shared/scheduler/index';
 import { bookingsOfStage, dependentStageIds } from '@shared/board-actions';
 import { plural } from '@shared/plural';
 
@@ -9,7 +9,11 @@ export interface StageLine {
   booked: boolean;
   start: number | null;
   end: number | null;
-  /** Earliest start the network allows (for unbooked stages). */
+  /**
+   * Earliest start. For an unbooked stage, as a person would book it (the engine's unbooked-stage
+   * times: after its unbooked predecessors could be done, in working time, on the booking step);
+   * for a booked one (or one in a cycle), the critical path's.
+   */
   earliestStart: number | null;
   floatMinutes: number | null;
   /** On the critical path with no time to spare (zero float, or late): never beside spare time. */
@@ -20,21 +24,27 @@ export interface StageLine {
   problems: Violation[];
 }
 
-export function stageLines(data: BoardData, jobId: string, path: JobCriticalPath | undefined, violations: readonly Violation[]): StageLine[] {
+/**
+ * The job's stages for the panel, in the order they happen (booked ones by their start, unbooked by
+ * their earliest). `index` is the board's engine index, over the same data.
+ */
+export function stageLines(data: BoardData, index: BoardIndex, jobId: string, path: JobCriticalPath | undefined, violations: readonly Violation[]): StageLine[] {
   const stages = data.stages.filter((s) => s.jobId === jobId);
+  // One plan for the panel: each unbooked predecessor is worked out once.
+  const plan = unbookedPlan(index);
   const names = new Map(data.stages.map((s) => [s.id, s.name]));
   const timing = new Map((path?.stages ?? []).map((t) => [t.stageId, t]));
   return stages
     .map((stage) => {
       const own = data.bookings.filter((b) => b.stageId === stage.id && b.state !== 'declined');
       const t = timing.get(stage.id);
-      const cure = data.dependencies.some((d) => d.toStageId === stage.id && data.stages.find((s) => s.id === d.fromStageId)?.cure);
+      const cure = data.dependencies.some((d) => d.toStageId === stage.id && d.waitsForCure === true && data.stages.find((s) => s.id === d.fromStageId)?.cure);
       return {
         stage,
         booked: own.length > 0,
         start: own.length ? Math.min(...own.map((b) => b.start)) : null,
         end: own.length ? Math.max(...own.map((b) => b.end)) : null,
-        earliestStart: t?.es ?? null,
+        earliestStart: own.length ? (t?.es ?? null) : (unbookedTimesOf(plan, stage.id)?.start ?? t?.es ?? null),
         floatMinutes: t?.totalFloatMinutes ?? null,
         critical: isCritical(path, stage.id, t?.totalFloatMinutes ?? null),
         bookings: data.bookings.filter((b) => b.stageId === stage.id && !b.elsewhere),

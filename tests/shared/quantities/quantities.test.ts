@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import {
   accessCheck, baseConcrete, baseLoading, craneDecision, digSize, excavationTime, excavationVolume, fillTime, heatUpTime, moveIn,
   retainingWallBlocks, roundUpToStep, spoil, subBase, supplyCheck,
-  CUBIC_YARD_M3, DEFAULT_QUANTITY_SETTINGS, STANDARD_GRAVITY, WATER_SPECIFIC_HEAT_KJ_PER_KG_K, jobQuantities, settingsWith,
+  CUBIC_YARD_M3, DEFAULT_QUANTITY_SETTINGS, fillMinutes, heatUpMinutes, STANDARD_GRAVITY, WATER_SPECIFIC_HEAT_KJ_PER_KG_K, jobQuantities, settingsWith,
 } from '../../../shared/quantities/index.ts';
 
 // The invented catalogue unit "Aurora 6": 2200 × 2200 × 900 mm, 380 kg dry, 2300 kg filled, 1500 L, one 32 A supply.
@@ -189,6 +189,7 @@ describe('moving the unit in', () => {
     // 30 + 4 × 5 = 50 min; 2 + 2 = 4 people (common practice, no source).
     expect(moveIn({ byCrane: false, steps: 4, ...team }).result).toEqual({ people: 4, minutes: 50, boards: true });
     expect(moveIn({ byCrane: false, steps: 0, ...team }).result).toEqual({ people: 2, minutes: 30, boards: false });
+    expect(moveIn({ byCrane: false, steps: 1, ...team }).formula).toBe('30 min + 1 step × 5 min = 35 min; 2 + 2 people on steps = 4; boards over the steps');
   });
 
   it('is not slowed by steps the crane lifts it over', () => {
@@ -208,11 +209,14 @@ describe('fill and heat-up', () => {
   });
 
   it('heats 1500 L from 10 °C to 38 °C on 3 kW in about 16.3 h', () => {
-    // Physics: 1500 L × 1 kg/L × 4.186 kJ/(kg·K) × 28 K = 175 812 kJ (48.837 kWh); ÷ 3 kW = 58 604 s = 16.28 h.
+    // Source: specific heat of water 4.186 kJ/(kg·K) (physics; it varies 4.18–4.19 between 10 and 40 °C) and 1 kg a litre.
+    // 1500 L × 1 kg/L × 4.186 kJ/(kg·K) × (38 − 10) K = 175 812 kJ (÷ 3600 = 48.837 kWh);
+    // ÷ 3 kW (1 kW = 1 kJ/s) = 58 604 s = 16.28 h ≈ 16.3 h; planned as 976.7 min → 990 min (a quarter-hour step).
     expect(WATER_SPECIFIC_HEAT_KJ_PER_KG_K).toBe(4.186);
     const c = heatUpTime({ litres: 1500, startTempC: 10, targetTempC: 38, heaterKw: 3, heaterFrom: 'default' });
-    expect(c.result).toEqual({ temperatureRiseK: 28, energyKJ: 175812, energyKWh: 48.837, seconds: 58604, hours: 16.28 });
-    expect(c.notes[0]).toMatch(/physics/);
+    expect(c.result).toEqual({ temperatureRiseK: 28, energyKJ: 175812, energyKWh: 48.837, seconds: 58604, hours: 16.28, minutes: 990 });
+    expect(c.formula).toBe('1500 L × 1 kg/L × 4.186 kJ/(kg·K) × (38 − 10) K = 175812 kJ; ÷ 3 kW = 58604 s = 16.28 h → 990 min (rounded up to a quarter of an hour)');
+    expect(c.notes[0]).toBe('Specific heat of water 4.186 kJ/(kg·K) and 1 kg a litre: physics.');
   });
 
   it('takes days for a swim spa, and less on a bigger heater', () => {
@@ -222,7 +226,7 @@ describe('fill and heat-up', () => {
   });
 
   it('needs no heating when the water is already warm enough', () => {
-    expect(heatUpTime({ litres: 1500, startTempC: 39, targetTempC: 38, heaterKw: 3, heaterFrom: 'default' }).result.hours).toBe(0);
+    expect(heatUpTime({ litres: 1500, startTempC: 39, targetTempC: 38, heaterKw: 3, heaterFrom: 'default' }).result).toMatchObject({ hours: 0, minutes: 0 });
   });
 });
 
@@ -393,6 +397,18 @@ describe("a job's quantities", () => {
     expect(q.supply.result).toMatchObject({ newAmps: 64, existingAmps: 88, totalAmps: 152, verdict: 'exceeds', earthing: 'TN-C-S', electricianToLook: true });
     // The surveyor called a crane: it lifts the unit over the six steps.
     expect(q.move?.result).toEqual({ people: 2, minutes: 30, boards: false });
+  });
+
+  it('gives the plan its fill and heat-up minutes', () => {
+    // Aurora 6, 1500 L: fill 1500 ÷ 15 = 100 → 105 min; heat 58 604 s = 976.7 min → 990 min (physics, as above).
+    const q = jobQuantities({ installationType: 'in_ground', unit: AURORA_6, survey: null, settings: DEFAULT_QUANTITY_SETTINGS });
+    expect([fillMinutes(q), heatUpMinutes(q)]).toEqual([105, 990]);
+    // Tarn Swim 45 on a measured 25 L/min and a 6 kW heater: 8900 ÷ 25 = 356 → 360 min; 173 858.5 s = 2897.6 min → 2910 min.
+    const swim = jobQuantities({ installationType: 'slab', unit: { ...TARN_SWIM_45, heaterKw: 6 }, survey: { hoseFlowLitresPerMinute: 25 }, settings: DEFAULT_QUANTITY_SETTINGS });
+    expect([fillMinutes(swim), heatUpMinutes(swim)]).toEqual([360, 2910]);
+    // Without the unit's litres there is nothing to time.
+    const dry = jobQuantities({ installationType: 'slab', unit: { ...AURORA_6, waterLitres: null }, survey: null, settings: DEFAULT_QUANTITY_SETTINGS });
+    expect([fillMinutes(dry), heatUpMinutes(dry)]).toEqual([null, null]);
   });
 
   it('counts a ground type it does not know as unknown', () => {

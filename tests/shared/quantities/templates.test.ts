@@ -7,15 +7,16 @@ describe('planning an in-ground job from its template', () => {
   const withCrane = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: 300, makerLeadDays: 20 });
 
   it('has the stages in order, with a crane lift and no placement', () => {
-    expect(withCrane.stages.map((s) => s.kind)).toEqual(['survey', 'excavation', 'base_pour', 'walls', 'electrical_first_fix', 'delivery', 'lift', 'fill', 'electrical_connect', 'commission', 'handover']);
-    expect(withCrane.stages.map((s) => s.sequence)).toEqual([1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11]);
+    expect(withCrane.stages.map((s) => s.kind)).toEqual(['survey', 'excavation', 'base_pour', 'walls', 'electrical_first_fix', 'delivery', 'lift_plan', 'lift', 'fill', 'electrical_connect', 'commission', 'handover']);
+    expect(withCrane.stages.map((s) => s.sequence)).toEqual([1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12]);
   });
 
   it('takes the excavation time from the quantities and the delivery notice from the maker', () => {
     const dig = withCrane.stages.find((s) => s.kind === 'excavation')!;
     expect(dig.durationMinutes).toBe(300);
-    expect(withCrane.stages.find((s) => s.kind === 'delivery')!.leadTime).toEqual({ workingDays: 20, countedFrom: 'order' });
-    expect(withCrane.stages.find((s) => s.kind === 'lift')!.leadTime).toEqual({ workingDays: 5, countedFrom: 'now' });
+    expect(withCrane.stages.find((s) => s.kind === 'delivery')!.leadTime).toEqual({ workingDays: 20, countedFrom: 'order', reason: "the maker's lead time" });
+    // The crane firm's notice leaves room for its site visit and lift plan, and holds the crane's booking only.
+    expect(withCrane.stages.find((s) => s.kind === 'lift')!.leadTime).toEqual({ workingDays: 10, countedFrom: 'now', resourceKind: 'crane' });
   });
 
   it('falls back to the template time without quantities', () => {
@@ -23,10 +24,12 @@ describe('planning an in-ground job from its template', () => {
     expect(plan.stages.find((s) => s.kind === 'excavation')!.durationMinutes).toBe(720);
   });
 
-  it('puts the cure rule on the base and links the lift after it', () => {
+  it('puts the cure rule on the base, the lift after the cure and the walls after an overnight set', () => {
     expect(withCrane.stages.find((s) => s.kind === 'base_pour')!.cure).toEqual({ targetFraction: 0.7 });
-    expect(withCrane.links).toContainEqual({ fromKind: 'base_pour', toKind: 'lift', type: 'FS', lagAmount: 0, lagUnit: 'working_hours' });
-    expect(withCrane.links).toContainEqual({ fromKind: 'base_pour', toKind: 'walls', type: 'FS', lagAmount: 1, lagUnit: 'elapsed_days' });
+    expect(withCrane.links).toContainEqual({ fromKind: 'base_pour', toKind: 'lift', type: 'FS', lagAmount: 0, lagUnit: 'working_hours', waitsForCure: true });
+    expect(withCrane.links).toContainEqual({ fromKind: 'base_pour', toKind: 'walls', type: 'FS', lagAmount: 16, lagUnit: 'elapsed_hours', waitsForCure: false });
+    // The crane firm's lift plan is in hand a working day before the lift.
+    expect(withCrane.links).toContainEqual({ fromKind: 'lift_plan', toKind: 'lift', type: 'FS', lagAmount: 1, lagUnit: 'working_days', waitsForCure: false });
     expect(withCrane.links.some((l) => l.fromKind === 'placement' || l.toKind === 'placement')).toBe(false);
   });
 
@@ -66,6 +69,14 @@ describe('the default templates', () => {
     expect(templateProblems({ ...SLAB_TEMPLATE, links: [{ from: 'fill', to: 'fill', ...fs }] })).toEqual(['links[0]: a stage cannot depend on itself']);
     expect(templateProblems({ ...SLAB_TEMPLATE, links: [{ from: 'fill', to: 'sauna', ...fs }] })).toEqual(['links[0]: no stage sauna']);
   });
+
+  it('refuse a link waiting for the cure of a stage with none, and notice for someone the stage does not need', () => {
+    const fs = { type: 'FS' as const, lagAmount: 0, lagUnit: 'working_hours' as const };
+    expect(templateProblems({ ...SLAB_TEMPLATE, links: [{ from: 'fill', to: 'commission', ...fs, waitsForCure: true }] }))
+      .toEqual(['links[0].waitsForCure: Fill has no cure to wait for']);
+    const stages = SLAB_TEMPLATE.stages.map((s) => (s.kind === 'fill' ? { ...s, leadTime: { workingDays: 2, countedFrom: 'now' as const, resourceKind: 'crane' } } : s));
+    expect(templateProblems({ ...SLAB_TEMPLATE, stages })).toEqual([`stages[${stages.findIndex((s) => s.kind === 'fill')}].leadTime.resourceKind: Fill needs no crane`]);
+  });
 });
 
 describe('cautions', () => {
@@ -86,7 +97,7 @@ describe('whether a stage may run over into the next working day', () => {
     const may = Object.fromEntries(plan.stages.map((s) => [s.kind, s.mayContinueNextDay]));
     expect(may).toEqual({
       survey: false, excavation: true, base_pour: false, walls: true, electrical_first_fix: false, delivery: false,
-      lift: false, fill: false, electrical_connect: false, commission: false, handover: false,
+      lift_plan: false, lift: false, fill: false, electrical_connect: false, commission: false, handover: false,
     });
   });
 

@@ -46,6 +46,25 @@ describe('Reliable Construction Co. project, Hillier & Lieberman, Introduction t
     expect(result.activities.find((a) => a.id === 'M')?.freeFloat).toBe(4);
   });
 
+  it("the board's own critical path gives the same table (one week = one hour on a round-the-clock calendar)", () => {
+    const always = { id: 'always', timeZone: 'UTC', weekly: weeklyHours([0, 1, 2, 3, 4, 5, 6], [[0, 1440]]) };
+    const board: Board = {
+      calendars: [always], resources: [], jobs: [{ id: 'job-1', firmId: 'f' }],
+      stages: acts.map(([id, weeks]) => stage(id, 'survey', weeks * 60, [])),
+      dependencies: acts.flatMap(([id, , preds]) => preds.map((p) => dep(p, id))),
+      bookings: [], hirePeriods: [], leadTimeRules: [],
+    };
+    const now = Date.UTC(2026, 0, 5);
+    const cp = jobCriticalPath(createBoardIndex(board, { now }), 'job-1');
+    const hours = (t: number) => (t - now) / 3_600_000;
+    expect(hours(cp.finish)).toBe(44);
+    for (const [id, [es, ef, ls, lf]] of Object.entries(expected)) {
+      const t = cp.stages.find((x) => x.stageId === id);
+      expect([hours(t!.es), hours(t!.ef), hours(t!.ls), hours(t!.lf)], id).toEqual([es, ef, ls, lf]);
+    }
+    expect(cp.criticalStageIds).toEqual(['A', 'B', 'C', 'E', 'F', 'J', 'L', 'N']);
+  });
+
   it('a 40-week deadline gives the critical path −4 weeks of float', () => {
     const late = computeCriticalPath(activities, links, { deadline: 40 });
     expect(late.activities.find((a) => a.id === 'A')?.totalFloat).toBe(-4);

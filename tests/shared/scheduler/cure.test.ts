@@ -18,31 +18,43 @@ describe('ACI 209R-92 strength with age, moist-cured normal Portland cement: f(t
   });
 });
 
-describe('Nurse–Saul maturity (ASTM C1074, datum −10 °C, reference 20 °C), worked by hand', () => {
+describe('Nurse–Saul maturity (ASTM C1074, datum 0 °C, reference 23 °C), worked by hand', () => {
+  // ASTM C1074 recommends a datum of 0 °C where the mix's own is not known; the ACI 209R-92 curve is
+  // for standard moist curing at about 23 °C, so equivalent ages are counted at 23 °C.
   // Temperatures 5, 5, 10 °C, then 10 °C repeated:
-  // day factors (5 − (−10)) / (20 − (−10)) = 15/30 = 0.5, 0.5, and 20/30 = 0.6667.
-  // After 3 days te = 0.5 + 0.5 + 0.6667 = 1.6667 days.
-  // 70% needs an equivalent age of 6.91358 days: remaining 6.91358 − 1.66667 = 5.24691,
-  // at 0.6667 per day = 7.87037 days more, so 3 + 7.87037 = 10.87037 elapsed days.
+  // day factors (5 − 0) / (23 − 0) = 5/23 = 0.21739, 0.21739, and 10/23 = 0.43478.
+  // After 3 days te = 20/23 = 0.86957 days.
+  // 70% needs an equivalent age of 6.91358 days, i.e. 6.91358 × 23 = 159.01235 °C·days above the datum;
+  // 20 of them come in the first 3 days, the other 139.01235 at 10 °C·days a day take 13.90123 days
+  // more, so 3 + 13.90123 = 16.90123 elapsed days. (With the older −10 °C datum and 20 °C reference the
+  // same temperatures gave 10.87 days: the old constants made a cold base cure too soon.)
   const temps = [5, 5, 10];
-  it('equivalent age after 3 days is 1.667 days', () => expect(equivalentAge(temps, 3)).toBeCloseTo(5 / 3, 10));
-  it('part days count in proportion: after 1.5 days, 0.5 + 0.25 = 0.75', () => expect(equivalentAge(temps, 1.5)).toBeCloseTo(0.75, 10));
-  it('70% is reached after 10.870 elapsed days', () => expect(elapsedDaysForEquivalentAge(temps, ageForStrengthRatio(0.7))).toBeCloseTo(10.87037, 5));
+  it('equivalent age after 3 days is 20/23 = 0.870 days', () => expect(equivalentAge(temps, 3)).toBeCloseTo(20 / 23, 10));
+  it('part days count in proportion: after 1.5 days, (5 + 2.5)/23 = 0.326', () => expect(equivalentAge(temps, 1.5)).toBeCloseTo(7.5 / 23, 10));
+  it('70% is reached after 16.901 elapsed days', () => expect(elapsedDaysForEquivalentAge(temps, ageForStrengthRatio(0.7))).toBeCloseTo(16.90123, 5));
   it('cold below the datum adds nothing, and a frozen forecast never releases', () => {
-    expect(equivalentAge([-15, 20], 2)).toBeCloseTo(1, 10);
-    expect(() => elapsedDaysForEquivalentAge([-12], 1)).toThrow(RangeError);
+    // −15 °C counts 0; 20 °C counts 20/23.
+    expect(equivalentAge([-15, 20], 2)).toBeCloseTo(20 / 23, 10);
+    // −1 °C is below the 0 °C datum (it would still have counted 9/30 a day at the older −10 °C datum).
+    expect(() => elapsedDaysForEquivalentAge([-1], 1)).toThrow(RangeError);
+  });
+  it('a datum and reference of the caller\'s own are honoured: datum −10, reference 20 gives (5 + 10)/30 = 0.5 a day at 5 °C', () => {
+    expect(equivalentAge([5], 2, { datumC: -10, referenceC: 20 })).toBeCloseTo(1, 10);
   });
 
-  it('explains itself: target, temperatures, ages and the release instant', () => {
+  it('explains itself: target, temperatures, datum, reference, ages and the release instant', () => {
     const poured = Date.UTC(2026, 2, 2, 16, 0);
     const ex = cureRelease(poured, { targetFraction: 0.7, dailyMeanTempsC: temps });
     expect(ex.model).toBe('nurse_saul_maturity');
     expect(ex.assumedTempsC).toEqual([5, 5, 10]);
+    expect(ex.datumC).toBe(0);
+    expect(ex.referenceC).toBe(23);
     expect(ex.requiredAgeDays).toBeCloseTo(6.91358, 5);
-    expect(ex.elapsedDays).toBeCloseTo(10.87037, 5);
+    expect(ex.elapsedDays).toBeCloseTo(16.90123, 5);
     expect(ex.equivalentAgeDays).toBeCloseTo(6.91358, 5);
-    // 10.87037 days = 10 d 20 h 53 min 20 s after 2 Mar 16:00 → 13 Mar 12:53:20, rounded up to 12:54.
-    expect(ex.releaseAt).toBe(Date.UTC(2026, 2, 13, 12, 54));
+    // 16.90123 days = 16 d 21 h 37 min 47 s after 2 Mar 16:00 → 19 Mar 13:37:47, rounded up to 13:38.
+    expect(ex.releaseAt).toBe(Date.UTC(2026, 2, 19, 13, 38));
+    expect(ex.summary).toContain('datum 0 °C, reference 23 °C');
   });
 });
 

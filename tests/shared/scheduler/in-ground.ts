@@ -28,10 +28,21 @@ export const installResources: Resource[] = [
   res('priya', 'electrician', 'brightspark', electriciansWeek.id, 'Priya Nair'),
   res('lorry', 'lorry', 'carrow'),
   res('crane', 'crane', 'fellside', standardWeek.id, '60 t mobile crane'),
+  res('planner', 'lift_planner', 'fellside', standardWeek.id, 'Fellside lift planner'),
   res('pt-1', 'pallet_truck', 'tideway'),
   res('pt-2', 'pallet_truck', 'tideway'),
   res('rollers', 'rollers', 'tideway'),
 ];
+
+/**
+ * The in-ground template as a firm might edit it: block walls only on a cured base (the link waits
+ * for the cure, after the day's set the default template asks). The walls then decide the lift's
+ * earliest time, which the tests of unbooked chains rely on.
+ */
+export const WALLS_AFTER_CURE: InstallTemplate = {
+  ...IN_GROUND_TEMPLATE,
+  links: IN_GROUND_TEMPLATE.links.map((l) => (l.from === 'base_pour' && l.to === 'walls' ? { ...l, lagAmount: 1, lagUnit: 'elapsed_days', waitsForCure: true } : l)),
+};
 
 /** Mon 1 Jun 2026 08:00 BST. */
 export const JUNE_1 = at(2026, 6, 1, 8);
@@ -39,7 +50,7 @@ export const JUNE_1 = at(2026, 6, 1, 8);
 /**
  * One job planned from a template with nothing booked: stage ids are the template's kinds. The unit
  * was ordered on Fri 15 May 09:00 unless `orderedAt` says otherwise. Notice: crane 5 working days,
- * electrician 3, delivery 15 from the order (the default templates' figures).
+ * electrician 3, delivery 15 from the order (the firm-wide rules; the stages' own notice is not loaded here).
  */
 export function plannedBoard(template: InstallTemplate = IN_GROUND_TEMPLATE, orderedAt: number | null = at(2026, 5, 15, 9)): Board {
   const plan = planFromTemplate(template, { craneNeeded: true, excavationMinutes: null });
@@ -51,7 +62,7 @@ export function plannedBoard(template: InstallTemplate = IN_GROUND_TEMPLATE, ord
       id: s.kind, jobId: 'job', kind: s.kind, name: s.name, durationMinutes: s.durationMinutes, requirements: s.requirements,
       cure: s.cure, mayContinueNextDay: s.mayContinueNextDay,
     })),
-    dependencies: plan.links.map((l) => ({ id: `${l.fromKind}>${l.toKind}`, fromStageId: l.fromKind, toStageId: l.toKind, type: l.type, lag: { amount: l.lagAmount, unit: l.lagUnit } })),
+    dependencies: plan.links.map((l) => ({ id: `${l.fromKind}>${l.toKind}`, fromStageId: l.fromKind, toStageId: l.toKind, type: l.type, lag: { amount: l.lagAmount, unit: l.lagUnit }, waitsForCure: l.waitsForCure })),
     bookings: [],
     hirePeriods: [],
     leadTimeRules: [

@@ -53,6 +53,8 @@ export function randomBoard(seed: number, o: RandomBoardOptions = {}): Board {
         dependencies.push({
           id: `d${id}`, fromStageId: `j${j}s${s - 1}`, toStageId: id, type: pick(['FS', 'FS', 'SS', 'FF', 'SF'] as const),
           lag: { amount: Math.floor(rnd() * 5) - 1, unit: pick(['working_hours', 'working_days', 'elapsed_hours', 'elapsed_days'] as const) },
+          // Every link out of a cured stage waits for its cure (no extra draw: the boards stay the same).
+          waitsForCure: true,
         });
       }
       if (rnd() < (o.bookedFraction ?? 0.7)) {

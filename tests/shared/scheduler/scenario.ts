@@ -51,7 +51,7 @@ export function emptyBoard(): Board {
       stage('lift', 'lift', 4 * 60, [['crane', 1], ['install_crew', 1], ['pallet_truck', 2]]),
       stage('connect', 'electrical_connect', 3 * 60, [['electrician', 1]]),
     ],
-    dependencies: [dep('dig', 'base'), dep('base', 'lift'), dep('lift', 'connect', 'FS', 1, 'working_hours')],
+    dependencies: [dep('dig', 'base'), { ...dep('base', 'lift'), waitsForCure: true }, dep('lift', 'connect', 'FS', 1, 'working_hours')],
     bookings: [],
     hirePeriods: [{ id: 'hire-1', resourceId: 'digger-1', onHire: at(2026, 5, 1, 0), offHire: at(2026, 5, 9, 0), dayRatePence: 15_000 }],
     leadTimeRules: [{ appliesTo: { resourceKind: 'crane' }, workingDays: 5, from: 'now' }],

@@ -4,7 +4,7 @@ import {
 } from '../../../shared/scheduler/index.js';
 import { isBlocking } from '../../../shared/board-actions.js';
 import { at, booking, LONDON } from './scenario.js';
-import { JUNE_1, plannedBoard } from './in-ground.js';
+import { JUNE_1, plannedBoard, WALLS_AFTER_CURE } from './in-ground.js';
 
 const splits = (vs: Violation[]) => vs.filter((v) => v.kind === 'split');
 const when = (t: number | undefined) => (t === undefined ? '' : formatInstant(t, LONDON));
@@ -12,7 +12,7 @@ const NOW = at(2026, 9, 1, 8); // Tue 1 Sep 2026 08:00 BST: every notice period 
 
 /** The in-ground job with the given bookings (made by Tideway); today Tue 1 Sep 2026. */
 function boardWith(...bookings: Board['bookings']): Board {
-  return { ...plannedBoard(), bookings: bookings.map((b) => ({ ...b, installerFirmId: 'tideway' })) };
+  return { ...plannedBoard(WALLS_AFTER_CURE), bookings: bookings.map((b) => ({ ...b, installerFirmId: 'tideway' })) };
 }
 
 describe("a 4-hour electrician's visit (electricians work Mon–Fri 07:30–16:30 and Sat 08:00–12:00)", () => {
@@ -73,7 +73,7 @@ describe('the slot finder and auto-place keep such stages to one working day', (
   });
 
   it('auto-placing the whole job puts the connection on Saturday morning after the Friday lift, and every short stage within a day', () => {
-    const board = plannedBoard();
+    const board = plannedBoard(WALLS_AFTER_CURE);
     const result = autoPlace(board, { now: JUNE_1 });
     expect(result.unplaced).toEqual([]);
     const placed = new Map(result.placed.map((p) => [p.stageId, p]));

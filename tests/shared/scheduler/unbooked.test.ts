@@ -6,7 +6,7 @@ import {
 } from '../../../shared/scheduler/index.js';
 import { isBlocking } from '../../../shared/board-actions.js';
 import { at, booking, dep, emptyBoard, LONDON } from './scenario.js';
-import { DECK_TEMPLATE, JUNE_1, plannedBoard } from './in-ground.js';
+import { DECK_TEMPLATE, JUNE_1, plannedBoard, WALLS_AFTER_CURE } from './in-ground.js';
 import { randomBoard, randomMove, prng, T0 } from './random-board.js';
 
 const unbookedOf = (vs: Violation[]) => vs.filter((v) => v.kind === 'unbooked_predecessor');
@@ -25,7 +25,7 @@ const when = (t: number | undefined) => (t === undefined ? '' : formatInstant(t,
 //   delivery 2 h: 15 working days from the order (Fri 15 May 09:00; Mon 25 May is a bank holiday) = Mon 8 Jun 09:00–11:00
 //   lift 4 h: after the walls, Fri 12 Jun 09:00–13:00
 describe('earliest times of the stages in the tray', () => {
-  const index = createBoardIndex(plannedBoard(), { now: JUNE_1 });
+  const index = createBoardIndex(plannedBoard(WALLS_AFTER_CURE), { now: JUNE_1 });
   const times = (id: string) => { const t = unbookedStageTimes(index, id); return [when(t?.start), when(t?.finish)]; };
 
   it('are worked back through every unbooked stage to now, with durations, lags, cure and notice', () => {
@@ -47,7 +47,7 @@ describe('earliest times of the stages in the tray', () => {
 });
 
 describe('a crane lift dropped while everything before it is unbooked', () => {
-  const board = plannedBoard();
+  const board = plannedBoard(WALLS_AFTER_CURE);
   const index = createBoardIndex(board, { now: JUNE_1 });
   const drop = (start: number): StageMove => ({ stageId: 'lift', start, resourceId: 'crane' });
 
@@ -88,7 +88,7 @@ describe('a crane lift dropped while everything before it is unbooked', () => {
 
 describe('moving a booked stage that unbooked stages after it wait for', () => {
   const board: Board = {
-    ...plannedBoard(),
+    ...plannedBoard(WALLS_AFTER_CURE),
     bookings: [
       booking('b-base', 'base_pour', 'gang', at(2026, 6, 3, 8), at(2026, 6, 3, 13), { installerFirmId: 'tideway' }),
       booking('b-lift', 'lift', 'crane', at(2026, 6, 12, 9), at(2026, 6, 12, 13), { installerFirmId: 'tideway' }),
@@ -158,12 +158,13 @@ describe('other links from an unbooked stage', () => {
 
 describe('when the check stands aside', () => {
   it('work already on site (or done) is not second-guessed; the same booking merely confirmed is', () => {
-    const b = plannedBoard();
+    const b = plannedBoard(WALLS_AFTER_CURE);
     const lift = (state: Booking['state'], id = 'b-lift', resourceId = 'crane') => booking(id, 'lift', resourceId, at(2026, 6, 1, 9), at(2026, 6, 1, 13), { state, installerFirmId: 'tideway' });
     expect(unbookedOf(analyseBoard({ ...b, bookings: [lift('on_site')] }, { now: JUNE_1 }).violations)).toEqual([]);
     // The crew has arrived though the crane's booking still says confirmed: under way all the same.
     expect(unbookedOf(analyseBoard({ ...b, bookings: [lift('confirmed'), lift('on_site', 'b-crew', 'crew-heron')] }, { now: JUNE_1 }).violations)).toEqual([]);
-    expect(unbookedOf(analyseBoard({ ...b, bookings: [lift('confirmed')] }, { now: JUNE_1 }).violations)).toHaveLength(4);
+    // The walls, the delivery, the first fix and the crane firm's lift plan, and the base through its cure.
+    expect(unbookedOf(analyseBoard({ ...b, bookings: [lift('confirmed')] }, { now: JUNE_1 }).violations)).toHaveLength(5);
   });
 
   it('a predecessor whose only resource never works (no hours on its calendar) sets no bound instead of failing the board', () => {
@@ -177,7 +178,7 @@ describe('when the check stands aside', () => {
   });
 
   it('a board holding only part of the bookings (a crew member\'s own rows) does not guess', () => {
-    const b = { ...plannedBoard(), bookings: [booking('b-lift', 'lift', 'crane', at(2026, 6, 9, 8), at(2026, 6, 9, 12), { installerFirmId: 'tideway' })] };
+    const b = { ...plannedBoard(WALLS_AFTER_CURE), bookings: [booking('b-lift', 'lift', 'crane', at(2026, 6, 9, 8), at(2026, 6, 9, 12), { installerFirmId: 'tideway' })] };
     expect(unbookedOf(analyseBoard(b, { now: JUNE_1, seesAllBookings: false }).violations)).toEqual([]);
     expect(unbookedOf(analyseBoard(b, { now: JUNE_1 }).violations)).toHaveLength(2);
   });
@@ -185,7 +186,7 @@ describe('when the check stands aside', () => {
 
 describe('the slot finder', () => {
   it('offers the lift no earlier than its unbooked predecessors allow', () => {
-    const index = createBoardIndex(plannedBoard(), { now: JUNE_1 });
+    const index = createBoardIndex(plannedBoard(WALLS_AFTER_CURE), { now: JUNE_1 });
     const slots = findSlots(index, { stageId: 'lift', resourceKind: 'crane', earliest: JUNE_1 }, { alternatives: 1 });
     expect(slots.map((s) => when(s.start))).toEqual(['Fri 12 Jun 09:00', 'Mon 15 Jun 08:00']);
   });

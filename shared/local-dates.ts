@@ -1,0 +1,124 @@
+import { dayNumber, isoDateOfDay, localDayOf, localToInstant } from './scheduler/time-zone.ts';
+
+/**
+ * Calendar dates (`YYYY-MM-DD`) as a firm means them: a day on the firm's own clock, never a fixed
+ * UTC hour. Every conversion between a firm's dates and instants goes through here, over the
+ * engine's zone functions (shared/scheduler/time-zone.ts), so clock changes and firms outside the
+ * UK are handled in one place.
+ *
+ * Where a date stands for a moment:
+ * - a promised date is kept if the work is done by the END of that local day (`promisedDeadline`):
+ *   the householder was promised a day, not an hour, so finishing at 08:00, 16:00 or 19:00 on the
+ *   promised day is on time and only the next day is late;
+ * - an order date counts from the START of that local day (`orderedFrom`): a lead time of N working
+ *   days from an order placed on Monday ends at the start of work N working days later.
+ */
+
+const ISO_DATE = /^(\d{4})-(\d{2})-(\d{2})$/;
+
+/** An instant as epoch milliseconds, or a Date. */
+export type InstantLike = number | Date;
+
+const msOf = (instant: InstantLike): number => (typeof instant === 'number' ? instant : instant.getTime());
+
+/**
+ * The local day number (days since 1970-01-01 on the zone's calendar) of a `YYYY-MM-DD` date.
+ * Throws a RangeError for anything that is not a real calendar date.
+ *
+ * @example
+ * dayOfDate('2026-03-29') // 20541
+ */
+export function dayOfDate(date: string): number {
+  const m = ISO_DATE.exec(date);
+  if (!m) throw new RangeError(`"${date}" is not a date like 2026-05-12`);
+  const [y, mo, d] = [Number(m[1]), Number(m[2]), Number(m[3])];
+  const day = dayNumber(y, mo, d);
+  if (isoDateOfDay(day) !== date) throw new RangeError(`"${date}" is not a date on the calendar`);
+  return day;
+}
+
+/**
+ * The calendar date an instant falls on in a zone.
+ *
+ * @example
+ * localDateOf(Date.UTC(2026, 2, 29, 23, 30), 'Europe/London') // '2026-03-30' (BST began that morning)
+ */
+export function localDateOf(instant: InstantLike, zone: string): string {
+  const ms = msOf(instant);
+  if (!Number.isFinite(ms)) throw new RangeError('An instant must be finite');
+  return isoDateOfDay(localDayOf(zone, ms));
+}
+
+/**
+ * The date `days` calendar days after (or before, when negative) a date; zones play no part.
+ *
+ * @example
+ * addDays('2026-10-24', 1) // '2026-10-25'
+ */
+export function addDays(date: string, days: number): string {
+  if (!Number.isInteger(days)) throw new RangeError('days must be a whole number');
+  return isoDateOfDay(dayOfDate(date) + days);
+}
+
+/**
+ * The instant a local day starts (local midnight, or the first moment after it where a clock change
+ * skips midnight).
+ *
+ * @example
+ * startOfLocalDay('2026-07-01', 'Europe/London') // Date.UTC(2026, 5, 30, 23) (00:00 BST)
+ */
+export function startOfLocalDay(date: string, zone: string): number {
+  return localToInstant(zone, dayOfDate(date), 0);
+}
+
+/**
+ * The instant a local day ends: the start of the next local day, an exclusive bound, so
+ * `[startOfLocalDay(d), endOfLocalDay(d))` holds exactly the instants on `d` (23, 24 or 25 hours).
+ *
+ * @example
+ * endOfLocalDay('2026-10-25', 'Europe/London') - startOfLocalDay('2026-10-25', 'Europe/London') // 25 hours
+ */
+export function endOfLocalDay(date: string, zone: string): number {
+  return localToInstant(zone, dayOfDate(date) + 1, 0);
+}
+
+/**
+ * The instant a promise "by `date`" runs out: the end of that local day (see the module's note).
+ * Work finishing at or before it is on time.
+ *
+ * @example
+ * promisedDeadline('2026-07-01', 'Europe/London') // Date.UTC(2026, 6, 1, 23) (midnight BST)
+ */
+export function promisedDeadline(date: string, zone: string): number {
+  return endOfLocalDay(date, zone);
+}
+
+/**
+ * The instant lead times count from for a unit ordered on `date`: the start of that local day.
+ *
+ * @example
+ * orderedFrom('2026-01-12', 'Europe/London') // Date.UTC(2026, 0, 12)
+ */
+export function orderedFrom(date: string, zone: string): number {
+  return startOfLocalDay(date, zone);
+}
+
+/**
+ * The instant a promise ran out back as its calendar date (the last instant before the deadline).
+ *
+ * @example
+ * deadlineDate(promisedDeadline('2026-07-01', 'America/New_York'), 'America/New_York') // '2026-07-01'
+ */
+export function deadlineDate(deadline: InstantLike, zone: string): string {
+  return localDateOf(msOf(deadline) - 1, zone);
+}
+
+/**
+ * Today's date in a zone.
+ *
+ * @example
+ * todayIn('Europe/London', new Date('2026-03-29T23:30:00Z')) // '2026-03-30'
+ */
+export function todayIn(zone: string, now: InstantLike): string {
+  return localDateOf(now, zone);
+}
