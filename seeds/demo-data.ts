@@ -54,6 +54,8 @@ export const RESOURCES: Res[] = [
   { firm: 'Millstone Groundworks', name: 'Millstone gang', category: 'crew', kind: 'groundworks_crew' },
   { firm: 'Millstone Groundworks', name: 'Millstone second gang', category: 'crew', kind: 'groundworks_crew' },
   { firm: 'Carrow Haulage', name: '18 t lorry with loader crane', category: 'machine', kind: 'lorry' },
+  // Takes the dig's spoil away (the skips or grab-lorry loads the job's quantities count).
+  { firm: 'Carrow Haulage', name: 'Grab lorry', category: 'machine', kind: 'spoil_removal' },
   { firm: 'Moorview Spas', name: 'Moorview crew', category: 'crew', kind: 'install_crew' },
 ];
 

@@ -3,7 +3,7 @@ import { DEMO_ACCOUNTS } from './demo-accounts.ts';
 import { CUSTOMERS, ELECTRICIAN_HOURS, FIRMS, GROUND_TYPES, RESOURCES, UNITS, WEEKDAYS_8_TO_5 } from './demo-data.ts';
 import { officeBoard, pencilledInsideNotice, placeJob, stateBy, versionOf, withBookings, type Side } from './demo-plan.ts';
 import { DEFAULT_TEMPLATES } from '../shared/templates/defaults.ts';
-import { planFromTemplate } from '../shared/templates/plan.ts';
+import { planFromTemplate, spoilAwayNote } from '../shared/templates/plan.ts';
 import { jobQuantities, type InstallationType, type SurveyFigures } from '../shared/quantities/job-quantities.ts';
 import { DEFAULT_QUANTITY_SETTINGS } from '../shared/quantities/settings.ts';
 import { dayOfDate, todayIn } from '../shared/local-dates.ts';
@@ -240,14 +240,14 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
       const template = DEFAULT_TEMPLATES[job.installationType];
       const plan = planFromTemplate(template, { craneNeeded: q.crane.result.needed, excavationMinutes: q.excavationTime?.result.minutes ?? null, makerLeadDays: job.unit.makerLeadDays });
       const links = planFromTemplate(template, { craneNeeded: q.crane.result.needed, excavationMinutes: null }).links;
-      return { job, plan, links, craneReason: q.crane.result.reason };
+      return { job, plan, links, craneReason: q.crane.result.reason, spoilNote: q.spoil ? spoilAwayNote(q.spoil) : null };
     });
     if (surveys.length) await trx('surveys').insert(surveys);
-    const stageRows = planned.flatMap(({ job, plan, craneReason }) => plan.stages.filter((s) => s.kind !== 'survey').map((s) => ({
+    const stageRows = planned.flatMap(({ job, plan, craneReason, spoilNote }) => plan.stages.filter((s) => s.kind !== 'survey').map((s) => ({
       job_id: job.id, kind: s.kind, name: s.name, sequence: s.sequence, duration_minutes: s.durationMinutes,
       requirements: JSON.stringify(s.requirements), cure: s.cure ? JSON.stringify(s.cure) : null,
       notice: s.leadTime ? JSON.stringify(s.leadTime) : null,
-      notes: s.kind === 'lift' || s.kind === 'placement' ? craneReason : null,
+      notes: s.kind === 'lift' || s.kind === 'placement' ? craneReason : s.kind === 'spoil_away' ? spoilNote : null,
     })));
     const inserted = await trx('stages').insert(stageRows).returning(['id', 'job_id', 'kind']) as { id: string; jobId: string; kind: string }[];
     const stageOf = new Map(inserted.map((s) => [`${s.jobId}/${s.kind}`, String(s.id)]));

@@ -7,7 +7,7 @@ export const CAUTION_NOTE = 'Follow local codes and licensed practice.';
 
 export type CautionTopic =
   | 'site' | 'excavation' | 'plant' | 'lifting' | 'electrical' | 'fill' | 'water_hygiene' | 'chemicals'
-  | 'manual_handling' | 'concrete' | 'structure';
+  | 'manual_handling' | 'concrete' | 'structure' | 'spoil';
 
 export const CAUTIONS: Record<CautionTopic, readonly string[]> = {
   site: [
@@ -64,12 +64,20 @@ export const CAUTIONS: Record<CautionTopic, readonly string[]> = {
   structure: [
     'A structural engineer confirms the deck or floor carries the filled weight before the unit goes on it.',
   ],
+  spoil: [
+    'Loading a lorry: keep people clear of the grab and the excavator bucket; nobody stands on the lorry or beside it while it is loaded.',
+    "Don't overload a skip: wet soil reaches the skip's weight limit long before it is full; load it level with the sides, never above them.",
+    'A skip or a lorry on the highway needs the highway authority\'s permit, with lights and cones as the permit says.',
+    'A banksman sees the lorry in and out; keep the public and the household away from it and off the path it takes.',
+  ],
 };
 
 /** Which topics apply to each stage kind. */
 export const STAGE_CAUTION_TOPICS: Record<string, readonly CautionTopic[]> = {
   survey: ['site'],
   excavation: ['excavation', 'plant'],
+  // Skips swapped or a grab lorry loaded: heavy loads, lorries reversing, a skip on the road.
+  spoil_away: ['spoil', 'plant'],
   base_pour: ['concrete', 'excavation'],
   walls: ['excavation', 'manual_handling'],
   deck_check: ['structure'],

@@ -1,6 +1,6 @@
 import type { Knex } from 'knex';
 import { jobQuantities } from '../../shared/quantities/job-quantities.ts';
-import { planFromTemplate, type Plan } from '../../shared/templates/plan.ts';
+import { planFromTemplate, spoilAwayNote, type Plan } from '../../shared/templates/plan.ts';
 import { cautionsFor } from '../../shared/cautions.ts';
 import { Booking, Dependency, Job, Stage, Unit } from '../models/index.ts';
 import { Survey } from '../models/job-records.ts';
@@ -57,6 +57,8 @@ export class PlansService {
         const notes = [
           s.kind === 'lift' || s.kind === 'placement' ? crane.reason : null,
           s.kind === 'excavation' ? `Duration ${s.durationSource}.` : null,
+          // How many skips or grab-lorry loads to book with the haulier, from the dig's quantities.
+          s.kind === 'spoil_away' && q?.spoil ? spoilAwayNote(q.spoil) : null,
         ].filter(Boolean).join(' ');
         const row = await Stage.query(trx).insert({
           jobId: job.id, kind: s.kind, name: s.name, sequence: s.sequence, durationMinutes: s.durationMinutes,

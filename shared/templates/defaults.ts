@@ -11,6 +11,8 @@ import type { InstallTemplate, LinkTemplate, StageTemplate } from './types.ts';
  * Digging and block laying may stop at the end of the day and carry on the next
  * (`mayContinueNextDay`); a pour, a lift, a delivery or an electrician's visit is done within one
  * working day (common practice, no source).
+ * The dig's spoil goes on skips or a grab lorry, booked with the haulier after the dig (the same
+ * working day allowed) with 2 working days' notice (common practice, no source).
  */
 
 const fixed = (minutes: number) => ({ kind: 'fixed', minutes }) as const;
@@ -27,6 +29,14 @@ const DELIVERY: StageTemplate = { kind: 'delivery', name: 'Delivery', duration: 
 const LIFT_PLAN: StageTemplate = {
   kind: 'lift_plan', name: 'Lift plan received', duration: fixed(60), when: 'crane',
   requirements: [{ kind: 'lift_planner', count: 1 }], leadTime: { workingDays: 5, countedFrom: 'now', resourceKind: 'lift_planner' },
+};
+/**
+ * The dig's spoil taken away by the hired haulier (skips swapped or a grab lorry loaded); the plan's
+ * note counts the skips or grab-lorry loads from the job's quantities.
+ */
+const SPOIL_AWAY: StageTemplate = {
+  kind: 'spoil_away', name: 'Spoil away (skips or grab lorry)', duration: fixed(120),
+  requirements: [{ kind: 'spoil_removal', count: 1 }], leadTime: { workingDays: 2, countedFrom: 'now', resourceKind: 'spoil_removal' },
 };
 const LIFT = (name: string): StageTemplate => ({
   kind: 'lift', name, duration: fixed(240), when: 'crane', leadTime: { workingDays: 10, countedFrom: 'now', resourceKind: 'crane' },
@@ -62,6 +72,8 @@ const FINISH_LINKS: LinkTemplate[] = [
 const PIT_LINKS: LinkTemplate[] = [
   fs('survey', 'excavation', 0, 'working_days'), fs('survey', 'electrical_first_fix', 0, 'working_days'),
   fs('excavation', 'base_pour'),
+  // The spoil goes once the dig is done: a grab lorry collects at its end (the same day allowed).
+  fs('excavation', 'spoil_away'),
   // Walls go up on the base once it has set overnight; the lift and the placement wait for the cure.
   fs('base_pour', 'walls', 16, 'elapsed_hours'),
   onCuredBase('base_pour', 'lift'), onCuredBase('base_pour', 'placement'),
@@ -75,6 +87,7 @@ export const IN_GROUND_TEMPLATE: InstallTemplate = {
   stages: [
     SURVEY,
     { kind: 'excavation', name: 'Excavate pit', duration: { kind: 'excavation', fallbackMinutes: 720 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }], mayContinueNextDay: true },
+    SPOIL_AWAY,
     { kind: 'base_pour', name: 'Pour reinforced base', duration: fixed(300), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
     { kind: 'walls', name: 'Block retaining walls', duration: fixed(960), requirements: [{ kind: 'groundworks_crew', count: 1 }], mayContinueNextDay: true },
     FIRST_FIX,
@@ -93,6 +106,7 @@ export const SEMI_RECESSED_TEMPLATE: InstallTemplate = {
   stages: [
     SURVEY,
     { kind: 'excavation', name: 'Excavate part-depth pit', duration: { kind: 'excavation', fallbackMinutes: 480 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }], mayContinueNextDay: true },
+    SPOIL_AWAY,
     { kind: 'base_pour', name: 'Pour reinforced base', duration: fixed(300), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
     { kind: 'walls', name: 'Block walls to part height', duration: fixed(540), requirements: [{ kind: 'groundworks_crew', count: 1 }], mayContinueNextDay: true },
     FIRST_FIX,

@@ -1,4 +1,6 @@
 import { cautionsFor } from '../cautions.ts';
+import { plural } from '../plural.ts';
+import type { Spoil, SpoilInputs } from '../quantities/pit.ts';
 import type { DependencyType, InstallTemplate, LagUnit, Requirement, StageNotice } from './types.ts';
 
 export interface PlanOptions {
@@ -117,4 +119,17 @@ export function templateProblems(template: InstallTemplate): string[] {
     if (plan.stages.some((s) => visit(s.kind))) { problems.push('links form a loop'); break; }
   }
   return problems;
+}
+
+/**
+ * The spoil stage's note: how many skips or grab-lorry loads the job's quantities give, and which
+ * limit (volume or weight) decides each count, so the office books the haulier for the right number.
+ * @example
+ * spoilAwayNote({ inputs: { densityTPerM3: 1.8, … }, result: { looseVolumeM3: 8.985, weightT: 16.173, skips: 3, grabLorryLoads: 2, skip: { limit: 'weight', … }, grabLorry: { limit: 'weight', … } } })
+ * // '3 skips by weight or 2 grab-lorry loads by weight (8.985 m³ loose, 16.173 t of wet soil at 1.8 t/m³: common practice, no source).'
+ */
+export function spoilAwayNote(spoil: { inputs: Pick<SpoilInputs, 'densityTPerM3'>; result: Spoil }): string {
+  const r = spoil.result;
+  return `${plural(r.skips, 'skip')} by ${r.skip.limit} or ${plural(r.grabLorryLoads, 'grab-lorry load')} by ${r.grabLorry.limit}`
+    + ` (${r.looseVolumeM3} m³ loose, ${r.weightT} t of wet soil at ${spoil.inputs.densityTPerM3} t/m³: common practice, no source).`;
 }

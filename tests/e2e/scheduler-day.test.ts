@@ -185,9 +185,10 @@ describe("the scheduler's day on the board", () => {
     const event = page.locator(`.fc-event[data-booking-id="${asked.id}"]`);
     await poll(() => event.getAttribute('class')).toContain('wl-state-sent');
 
-    // Priya, for Brightspark, says no on her own page while the board is open.
+    // Priya, for Brightspark, says no on her own page while the board is open, and why (markup stays text).
     const partner = await signIn(app.ctx, 'priya.nair@brightspark.example');
-    const answer = await partner.post(`/api/partner/slots/${asked.id}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'decline' }).expect(200);
+    const reason = 'Not free that day — <b>wedding</b>';
+    const answer = await partner.post(`/api/partner/slots/${asked.id}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'decline', reason }).expect(200);
     expect(answer.body.result).toBe('declined');
 
     // The board hears of it: a notice, the booking marked declined (still on the board), the list of declines to book again.
@@ -198,6 +199,8 @@ describe("the scheduler's day on the board", () => {
     const notice = page.locator('section.declined');
     expect((await notice.innerText()).replace(/\s+/g, ' ')).toContain(
       "✖ 1 declined booking to book again Brightspark Electrical declined Priya Nair for 'Connect and certify' on SD-501, Mon 30 Nov 09:00 (said no on their page,");
+    expect(await notice.locator('.declined__reason').innerText()).toBe(reason);
+    expect(await notice.locator('b').count()).toBe(0);
     await poll(() => page.locator(`.tray-stage[data-stage-id="${connect}"] .tray-stage__declined`).innerText()).toBe('✖ Declined by Brightspark Electrical');
     await event.scrollIntoViewIfNeeded();
     if (shots) await page.screenshot({ path: 'docs/board-declined.png' });
@@ -205,7 +208,7 @@ describe("the scheduler's day on the board", () => {
     // The job page says so too.
     await page.goto(`${app.url}/jobs/${job.jobId}`);
     await page.getByText('1. Connect and certify').click();
-    await page.getByText(/^Priya Nair · Mon 30 Nov 2026, 09:00 · Declined$/).waitFor({ timeout: 10_000 });
+    await page.getByText(/^Priya Nair · Mon 30 Nov 2026, 09:00 · Declined · Not free that day — <b>wedding<\/b>$/).waitFor({ timeout: 10_000 });
 
     // Booked again: the declined booking dragged onto Tom's row.
     await openBoard(page, app.url, 'view=week&date=2026-11-30', tom);

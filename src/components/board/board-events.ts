@@ -76,6 +76,7 @@ export const BOARD_BLOCKS = {
 const KIND_LABELS: Record<string, string> = {
   install_crew: 'install crew', groundworks_crew: 'groundworks crew', electrician: 'electrician', crane: 'crane',
   excavator: 'excavator', dumper: 'dumper', pallet_truck: 'pallet truck', rollers: 'rollers', lorry: 'lorry', installer: 'installer',
+  lift_planner: 'lift planner', spoil_removal: 'skips / grab lorry',
 };
 
 /** The heading shown for a row group. */

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { DEFAULT_TEMPLATES, IN_GROUND_TEMPLATE, SLAB_TEMPLATE, planFromTemplate, templateProblems } from '../../../shared/templates/index.ts';
+import { DECK_TEMPLATE, DEFAULT_TEMPLATES, IN_GROUND_TEMPLATE, SEMI_RECESSED_TEMPLATE, SLAB_TEMPLATE, planFromTemplate, spoilAwayNote, templateProblems } from '../../../shared/templates/index.ts';
+import { spoil } from '../../../shared/quantities/pit.ts';
 import { CAUTION_NOTE, cautionsFor } from '../../../shared/cautions.ts';
 import { StageTemplateSchema } from '../../../shared/schemas/templates.ts';
 
@@ -7,8 +8,8 @@ describe('planning an in-ground job from its template', () => {
   const withCrane = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: 300, makerLeadDays: 20 });
 
   it('has the stages in order, with a crane lift and no placement', () => {
-    expect(withCrane.stages.map((s) => s.kind)).toEqual(['survey', 'excavation', 'base_pour', 'walls', 'electrical_first_fix', 'delivery', 'lift_plan', 'lift', 'fill', 'electrical_connect', 'commission', 'handover']);
-    expect(withCrane.stages.map((s) => s.sequence)).toEqual([1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12]);
+    expect(withCrane.stages.map((s) => s.kind)).toEqual(['survey', 'excavation', 'spoil_away', 'base_pour', 'walls', 'electrical_first_fix', 'delivery', 'lift_plan', 'lift', 'fill', 'electrical_connect', 'commission', 'handover']);
+    expect(withCrane.stages.map((s) => s.sequence)).toEqual([1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13]);
   });
 
   it('takes the excavation time from the quantities and the delivery notice from the maker', () => {
@@ -31,6 +32,37 @@ describe('planning an in-ground job from its template', () => {
     // The crane firm's lift plan is in hand a working day before the lift.
     expect(withCrane.links).toContainEqual({ fromKind: 'lift_plan', toKind: 'lift', type: 'FS', lagAmount: 1, lagUnit: 'working_days', waitsForCure: false });
     expect(withCrane.links.some((l) => l.fromKind === 'placement' || l.toKind === 'placement')).toBe(false);
+  });
+
+  it("books the haulier's skips or grab lorry once the dig is done, with the haulier's notice and the spoil cautions", () => {
+    const away = withCrane.stages.find((s) => s.kind === 'spoil_away')!;
+    expect(away.name).toBe('Spoil away (skips or grab lorry)');
+    expect(away.requirements).toEqual([{ kind: 'spoil_removal', count: 1 }]);
+    // Only the haulier's booking waits for its notice.
+    expect(away.leadTime).toEqual({ workingDays: 2, countedFrom: 'now', resourceKind: 'spoil_removal' });
+    expect(away.mayContinueNextDay).toBe(false);
+    // After the dig, the same working day allowed; nothing else waits for it.
+    expect(withCrane.links.filter((l) => l.fromKind === 'spoil_away' || l.toKind === 'spoil_away'))
+      .toEqual([{ fromKind: 'excavation', toKind: 'spoil_away', type: 'FS', lagAmount: 0, lagUnit: 'working_hours', waitsForCure: false }]);
+    const cautions = away.cautions.join(' ');
+    expect(cautions).toMatch(/overload a skip/);
+    expect(cautions).toMatch(/highway authority's permit/);
+    expect(cautions).toMatch(/Loading a lorry/);
+    expect(away.cautions.at(-1)).toBe(CAUTION_NOTE);
+    // A semi-recessed pit is dug too; a slab or a deck has no spoil stage.
+    expect(planFromTemplate(SEMI_RECESSED_TEMPLATE, { craneNeeded: false, excavationMinutes: null }).stages.map((s) => s.kind)).toContain('spoil_away');
+    expect(planFromTemplate(SLAB_TEMPLATE, { craneNeeded: true, excavationMinutes: null }).stages.some((s) => s.kind === 'spoil_away')).toBe(false);
+    expect(planFromTemplate(DECK_TEMPLATE, { craneNeeded: true, excavationMinutes: null }).stages.some((s) => s.kind === 'spoil_away')).toBe(false);
+  });
+
+  it("counts the skips or grab-lorry loads in the spoil stage's note, saying which limit decides", () => {
+    // 7.188 m³ dug × 1.25 = 8.985 m³ loose × 1.8 t/m³ = 16.173 t: skips ⌈8.985 ÷ 4.587⌉ = 2 by volume but ⌈16.173 ÷ 6⌉ = 3 by weight;
+    // grab lorry ⌈8.985 ÷ 10⌉ = 1 by volume but ⌈16.173 ÷ 16⌉ = 2 by weight.
+    const dug = spoil({ bankVolumeM3: 7.188, bulkingFactor: 1.25, densityTPerM3: 1.8, skipVolumeM3: 4.587, skipPayloadT: 6, grabLorryVolumeM3: 10, grabLorryPayloadT: 16 });
+    expect(spoilAwayNote(dug)).toBe('3 skips by weight or 2 grab-lorry loads by weight (8.985 m³ loose, 16.173 t of wet soil at 1.8 t/m³: common practice, no source).');
+    // Light dry sand (1.2 t/m³): 2.5 m³ loose, 3 t; a skip is full by volume first, and one skip is one skip.
+    const sand = spoil({ bankVolumeM3: 2, bulkingFactor: 1.25, densityTPerM3: 1.2, skipVolumeM3: 4.587, skipPayloadT: 6, grabLorryVolumeM3: 10, grabLorryPayloadT: 16 });
+    expect(spoilAwayNote(sand)).toBe('1 skip by volume or 1 grab-lorry load by volume (2.5 m³ loose, 3 t of wet soil at 1.2 t/m³: common practice, no source).');
   });
 
   it('asks for the crane and the lifting cautions on the lift', () => {
@@ -96,7 +128,7 @@ describe('whether a stage may run over into the next working day', () => {
     const plan = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: 300 });
     const may = Object.fromEntries(plan.stages.map((s) => [s.kind, s.mayContinueNextDay]));
     expect(may).toEqual({
-      survey: false, excavation: true, base_pour: false, walls: true, electrical_first_fix: false, delivery: false,
+      survey: false, excavation: true, spoil_away: false, base_pour: false, walls: true, electrical_first_fix: false, delivery: false,
       lift_plan: false, lift: false, fill: false, electrical_connect: false, commission: false, handover: false,
     });
   });

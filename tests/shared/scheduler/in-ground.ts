@@ -29,6 +29,7 @@ export const installResources: Resource[] = [
   res('lorry', 'lorry', 'carrow'),
   res('crane', 'crane', 'fellside', standardWeek.id, '60 t mobile crane'),
   res('planner', 'lift_planner', 'fellside', standardWeek.id, 'Fellside lift planner'),
+  res('grab', 'spoil_removal', 'carrow', standardWeek.id, 'Grab lorry'),
   res('pt-1', 'pallet_truck', 'tideway'),
   res('pt-2', 'pallet_truck', 'tideway'),
   res('rollers', 'rollers', 'tideway'),
