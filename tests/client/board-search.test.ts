@@ -133,3 +133,14 @@ describe('the tray', () => {
     expect(con).toMatchObject({ short: [{ kind: 'electrician', count: 1 }], bookedCount: 0, declinedBy: ['Brightspark Electrical'] });
   });
 });
+
+describe('counting what a stage still needs', () => {
+  it('counts kinds whose label is a plural or a pair in words that read right', async () => {
+    const { countOfKind } = await import('@/components/board/tray');
+    expect(countOfKind(1, 'dumper')).toBe('1 dumper');
+    expect(countOfKind(2, 'pallet_truck')).toBe('2 pallet trucks');
+    expect(countOfKind(1, 'rollers')).toBe('1 set of rollers');
+    expect(countOfKind(1, 'spoil_removal')).toBe('1 skip or grab lorry');
+    expect(countOfKind(2, 'spoil_removal')).toBe('2 skips or grab lorries');
+  });
+});

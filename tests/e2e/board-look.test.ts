@@ -61,6 +61,12 @@ describe('the board at 1280 × 800', () => {
     expect(cut).toEqual([]);
     expect(await page.locator('.wl-resource__name', { hasText: '18 t lorry with loader crane' }).count()).toBe(1);
 
+    // The stage's short name and the town are shown whole (wrapped, never cut with an ellipsis).
+    const cutLines = await page.$$eval('.fc-event.wl-booking .wl-chip__stage, .fc-event.wl-booking .wl-chip__town',
+      (els) => els.filter((el) => (el as HTMLElement).offsetParent !== null && (el.scrollWidth > el.clientWidth + 1 || el.scrollHeight > el.clientHeight + 1)).map((el) => el.textContent));
+    expect(cutLines).toEqual([]);
+    expect(await page.locator('.fc-event.wl-booking .wl-chip__town:visible').count()).toBeGreaterThan(10);
+
     // Every booking shows its job reference (or says it is busy elsewhere); the tooltip has it all.
     const seen = await bookings(page);
     expect(seen.length).toBeGreaterThan(10);

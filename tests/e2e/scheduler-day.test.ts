@@ -231,13 +231,14 @@ describe("the scheduler's day on the board", () => {
     await page.getByRole('button', { name: 'Plan stages', exact: true }).click();
     await page.getByText('1. Site survey').waitFor({ timeout: 10_000 });
     const stages = await app.ctx.knex('stages').where('job_id', jobId).orderBy('sequence').select('id', 'name', 'requirements');
-    expect(stages.map((x: { name: string }) => x.name)).toEqual(['Site survey', 'Excavate pit', 'Pour reinforced base', 'Block retaining walls', 'Supply cable first fix',
+    expect(stages.map((x: { name: string }) => x.name)).toEqual(['Site survey', 'Excavate pit', 'Spoil away (skips or grab lorry)', 'Pour reinforced base', 'Block retaining walls', 'Supply cable first fix',
       'Delivery', 'Lift plan received', 'Crane lift into pit', 'Fill', 'Connect and certify', 'Commission', 'Handover']);
 
     // Rows the earlier tests leave free on these days.
     const rows = {
       crew: await resource('Crew Kestrel'), gang: await resource('Millstone second gang'), sparks: await resource('Gareth Pryce'),
       lorry: await resource('18 t lorry with loader crane'), planner: await resource('Fellside lift planner'), crane: await resource('60 t mobile crane'),
+      grab: await resource('Grab lorry'),
     };
     await openBoard(page, app.url, 'view=week&date=2026-11-02', rows.crew);
     const said: string[] = [];
@@ -269,6 +270,8 @@ describe("the scheduler's day on the board", () => {
     // November and December are GMT: local times are UTC.
     await place('Site survey', rows.crew, '2026-11-03T06:00:00', 0);
     await place('Excavate pit', rows.gang, '2026-11-04T06:00:00', 2);
+    // The dig (12 h without quantities) ends on Thursday morning; the grab lorry takes the spoil that afternoon, 14:00.
+    await place('Spoil away (skips or grab lorry)', rows.grab, '2026-11-05T12:00:00', 0);
     await place('Supply cable first fix', rows.sparks, '2026-11-05T06:00:00', 0);
     await place('Lift plan received', rows.planner, '2026-11-05T06:00:00', 0);
     await place('Pour reinforced base', rows.gang, '2026-11-06T06:00:00', 0);
@@ -294,11 +297,11 @@ describe("the scheduler's day on the board", () => {
     }
     // Nothing of the job is left in the tray, and the job panel lists no problem or warning on any stage.
     expect(await page.locator('.tray').innerText()).not.toContain('SD-601');
-    const handover = String((await app.ctx.knex('bookings').where('stage_id', String(stages[11].id)).first('id')).id);
+    const handover = String((await app.ctx.knex('bookings').where('stage_id', String(stages[12].id)).first('id')).id);
     await page.locator(`.fc-event[data-booking-id="${handover}"]`).click();
     const drawer = page.locator('.n-drawer');
     await drawer.getByText('SD-601 · Kirkby Fleetham').waitFor();
-    await poll(() => drawer.locator('.chain > li').count()).toBe(12);
+    await poll(() => drawer.locator('.chain > li').count()).toBe(13);
     expect(await drawer.locator('.chain .problems li').allInnerTexts()).toEqual([]);
     expect(await drawer.locator('.chain').innerText()).not.toContain('not booked');
   }, 180_000);

@@ -36,7 +36,7 @@ describe('planning a job', () => {
   it("copies each stage's 'may continue next day' from the template: digging and walls may, the rest may not", async () => {
     const rows = await ctx.knex('stages').whereIn('id', Object.values(stage)).select('kind', 'may_continue_next_day');
     expect(Object.fromEntries(rows.map((r) => [r.kind, r.mayContinueNextDay]))).toEqual({
-      survey: false, excavation: true, base_pour: false, walls: true, electrical_first_fix: false, delivery: false,
+      survey: false, excavation: true, spoil_away: false, base_pour: false, walls: true, electrical_first_fix: false, delivery: false,
       lift_plan: false, lift: false, fill: false, electrical_connect: false, commission: false, handover: false,
     });
   });

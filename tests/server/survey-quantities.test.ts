@@ -92,3 +92,34 @@ describe('the survey fields behind the quantities', () => {
     });
   });
 });
+
+describe("planning a dug job: the spoil stage", () => {
+  it('books the skips or grab lorry after the excavation, with the count the quantities give in its note', async () => {
+    const units = (await scheduler.get('/api/units').expect(200)).body.items as { id: string; model: string }[];
+    const created = await write(scheduler, 'post', '/api/jobs', {
+      reference: 'TW-3201', customerName: 'Ansel Whitby', siteAddress: '9 Mill Fold', siteTown: 'Otley', sitePostcode: 'LS21 3AD',
+      installationType: 'in_ground', unitId: units.find((u) => u.model === 'Brook 4')!.id,
+    }).expect(201);
+    const dug = String(created.body.id);
+    await write(scheduler, 'put', `/api/jobs/${dug}/survey`, { version: 0, survey: SURVEY }).expect(200);
+    // In-ground dig 12.5874 m² × (850 + 150 + 100) mm = 13.846 m³; × 1.25 = 17.308 m³ loose; × 1.8 t/m³ = 31.154 t.
+    // Skips: ⌈17.308 ÷ 4.587⌉ = 4 by volume, ⌈31.154 ÷ 6⌉ = 6 by weight; grab lorry: ⌈17.308 ÷ 10⌉ = 2, ⌈31.154 ÷ 16⌉ = 2.
+    await write(scheduler, 'post', `/api/jobs/${dug}/plan`, {}).expect(201);
+    const stages = await ctx.knex('stages').where('job_id', dug).orderBy('sequence');
+    expect(stages.map((s) => s.kind).slice(0, 4)).toEqual(['survey', 'excavation', 'spoil_away', 'base_pour']);
+    const away = stages.find((s) => s.kind === 'spoil_away');
+    expect(away).toMatchObject({
+      name: 'Spoil away (skips or grab lorry)', requirements: [{ kind: 'spoil_removal', count: 1 }],
+      notice: { workingDays: 2, countedFrom: 'now', resourceKind: 'spoil_removal' },
+      notes: '6 skips by weight or 2 grab-lorry loads by weight (17.308 m³ loose, 31.154 t of wet soil at 1.8 t/m³: common practice, no source).',
+    });
+    // After the dig is done, the same working day allowed.
+    const dig = stages.find((s) => s.kind === 'excavation');
+    const into = await ctx.knex('dependencies').where('to_stage_id', away.id).select('from_stage_id', 'type', 'lag_amount', 'lag_unit', 'waits_for_cure');
+    expect(into).toEqual([{ fromStageId: dig.id, type: 'FS', lagAmount: 0, lagUnit: 'working_hours', waitsForCure: false }]);
+    // The job page shows the note and the spoil cautions.
+    const page = (await scheduler.get(`/api/jobs/${dug}/stages`).expect(200)).body.items.find((s: { kind: string }) => s.kind === 'spoil_away');
+    expect(page.notes).toBe(away.notes);
+    expect(page.cautions.join(' ')).toMatch(/overload a skip/);
+  });
+});

@@ -41,7 +41,10 @@ export function shortfallOf(data: BoardData, stageId: string): TrayShort[] {
 }
 
 /** Kinds whose label is already a plural: counted in sets. */
-const SETS: Record<string, [string, string]> = { rollers: ['set of rollers', 'sets of rollers'] };
+const SETS: Record<string, [string, string]> = {
+  rollers: ['set of rollers', 'sets of rollers'],
+  spoil_removal: ['skip or grab lorry', 'skips or grab lorries'],
+};
 
 /** "1 dumper", "2 pallet trucks", "1 set of rollers". */
 export function countOfKind(count: number, kind: string): string {
