@@ -3,11 +3,13 @@
 // generated instances (bench/psplib/generate.ts). Each instance becomes a board (bench/psplib/
 // psplib.ts), autoPlace plans it, and an independent check (precedence, durations, capacity per
 // hour; not the engine) confirms the plan before it is scored.
-//   npm run bench:plan [-- --limit N] [--budget MS] [--large-budget MS]
+//   npm run bench:plan [-- --limit N] [--budget MS] [--large-budget MS] [--no-replan]
+// Then the demo board re-planned at once (bench/replan.ts; needs PostgreSQL, else says it skipped).
 import { readFileSync } from 'node:fs';
 import { autoPlace } from '../shared/scheduler/index.js';
 import { checkPsplibPlan, criticalPathBound, parseSm, psplibBoard, PSPLIB_NOW, type PsplibInstance } from './psplib/psplib.js';
 import { generateSm } from './psplib/generate.js';
+import { replanDemo } from './replan.js';
 
 function arg(name: string, fallback: number): number {
   const i = process.argv.indexOf(`--${name}`);
@@ -71,3 +73,5 @@ for (const n of [60, 120]) {
   console.log(`Generated, ${n} activities, ${count} instances, budget ${largeBudget} ms: ${f(mean(g))} % above the critical-path bound `
     + `(single pass ${f(mean(b))} %); wall mean ${f(mean(w), 0)} ms, CPU mean ${f(mean(c), 0)} ms`);
 }
+
+if (!process.argv.includes('--no-replan')) await replanDemo(2000);

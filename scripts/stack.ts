@@ -70,7 +70,7 @@ let signalRequests = 0;
 let lastSignalAt = 0;
 function onSignal(code: number): void {
   const now = Date.now();
-  if (now - lastSignalAt > 500) signalRequests += 1;
+  if (now - lastSignalAt > 250) signalRequests += 1;
   lastSignalAt = now;
   if (signalRequests === 2) console.error('\nStill stopping PostgreSQL and Redis… press Ctrl-C once more to quit without waiting.');
   if (signalRequests >= 3) {

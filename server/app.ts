@@ -107,7 +107,7 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
   const auth = createPassport(config, knex);
   app.use(auth.initialize());
   const routes = new RouteTable();
-  authRoutes(routes, auth, limits.signIn);
+  authRoutes(routes, auth, limits.signIn, (sessionId) => stream.endSession(sessionId));
   apiRoutes(routes, { knex, health, stream, now, limits: bookingLimitsOf(config), fullcalendarLicenseKey: config.FULLCALENDAR_LICENSE_KEY });
   const jobWork = jobWorkRoutes(routes, { knex, config, now });
   partnerRoutes(routes, { knex, config, now });
@@ -130,6 +130,8 @@ export function createApp({ config, knex, now = Date.now }: AppDeps): WaterlineA
     app,
     routes,
     async close() {
+      // Open board streams first: they hold HTTP responses open and a LISTEN connection.
+      await stream.close();
       jobWork.close();
       await health.close();
       await limits.close();

@@ -4,6 +4,7 @@ import nodemailer, { type Transporter } from 'nodemailer';
 import { UnrecoverableError, Worker, type ConnectionOptions, type Job } from 'bullmq';
 import type { Config } from '../server/config.ts';
 import { composeMessage, type OutboxKind, type OutboxPayload } from '../server/mail/messages.ts';
+import { outboxMessageId } from '../server/mail/ids.ts';
 import type { MailJobData } from './relay.ts';
 import { QUEUE_PREFIX } from './connection.ts';
 
@@ -44,8 +45,9 @@ export async function processMailJob(job: Pick<Job<MailJobData>, 'data'>, deps: 
     subject: mail.subject,
     text: mail.text,
     html: mail.html,
-    // A stable Message-ID per outbox row lets a receiving server drop a resend after a crash.
-    messageId: `<${row.idempotencyKey}@waterline>`,
+    // A stable Message-ID per outbox row lets a receiving server drop a resend after a crash; its
+    // domain is this installation's host, so another installation's keys never collide with it.
+    messageId: outboxMessageId(row.idempotencyKey, config.PUBLIC_URL),
     headers: { 'X-Waterline-Message': row.idempotencyKey },
     ...(mail.ics ? { icalEvent: { method: mail.ics.method, filename: mail.ics.method === 'CANCEL' ? 'cancel.ics' : 'invite.ics', content: mail.ics.content } } : {}),
   });

@@ -85,5 +85,11 @@ export function releaseClaim(dataDir: string, name: string): void {
 }
 
 function processAlive(pid: number): boolean {
+  // A killed run whose parent died too stays a zombie until something reaps it: it answers
+  // kill(pid, 0) but is gone. Linux says so in /proc/<pid>/stat (state Z).
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    if (stat.slice(stat.lastIndexOf(')') + 2, stat.lastIndexOf(')') + 3) === 'Z') return false;
+  } catch { /* no /proc, or no such process: ask kill below */ }
   try { process.kill(pid, 0); return true; } catch (error) { return (error as NodeJS.ErrnoException).code === 'EPERM'; }
 }

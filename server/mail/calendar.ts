@@ -1,8 +1,6 @@
 import ical, { ICalCalendarMethod, ICalEventStatus, ICalAttendeeRole, ICalAttendeeStatus } from 'ical-generator';
 import type { BookingFacts } from './facts.ts';
-
-/** The one UID a booking keeps in every invite, update, cancellation and feed (RFC 5545 §3.8.4.7). */
-export const bookingUid = (bookingId: string) => `booking-${bookingId}@waterline`;
+import { bookingUid } from './ids.ts';
 
 const PRODUCT = { company: 'Waterline', product: 'Waterline', language: 'EN' } as const;
 
@@ -18,6 +16,8 @@ export interface InviteOptions {
   organizerEmail: string;
   description: string;
   now: Date;
+  /** The installation's PUBLIC_URL: its host is the UID's domain. */
+  publicUrl: string;
 }
 
 /**
@@ -33,7 +33,7 @@ export function bookingInvite(f: BookingFacts, version: number, options: InviteO
   // Only the partner's answer settles a slot: on site counts as settled too.
   const confirmed = f.booking.state === 'confirmed' || f.booking.state === 'on_site';
   cal.createEvent({
-    id: bookingUid(f.booking.id),
+    id: bookingUid(f.booking.id, options.publicUrl),
     sequence: version,
     stamp: options.now,
     start: f.booking.startsAt,
@@ -53,12 +53,12 @@ export function bookingInvite(f: BookingFacts, version: number, options: InviteO
 
 export interface FeedEvent { facts: BookingFacts; description: string }
 
-/** A subscription feed (METHOD:PUBLISH) of one person's slots; the same UIDs as the invites. */
-export function personFeed(name: string, events: FeedEvent[], now: Date): string {
+/** A subscription feed (METHOD:PUBLISH) of one person's slots; the same UIDs as the invites (same `publicUrl`). */
+export function personFeed(name: string, events: FeedEvent[], now: Date, publicUrl: string): string {
   const cal = ical({ prodId: PRODUCT, name, method: ICalCalendarMethod.PUBLISH, ttl: 60 * 60 });
   for (const { facts: f, description } of events) {
     cal.createEvent({
-      id: bookingUid(f.booking.id), sequence: f.booking.version, stamp: now,
+      id: bookingUid(f.booking.id, publicUrl), sequence: f.booking.version, stamp: now,
       start: f.booking.startsAt, end: f.booking.endsAt, summary: summaryOf(f), location: locationOf(f), description,
       status: f.booking.state === 'sent' ? ICalEventStatus.TENTATIVE : ICalEventStatus.CONFIRMED,
     });

@@ -107,7 +107,7 @@ async function composeRequest(deps: ComposeDeps, f: BookingFacts, kind: OutboxKi
   const { html, text } = renderMail(content);
   // The calendar entry carries the facts, not the single-use answer links (calendars get shared).
   const description = renderMail({ ...content, buttons: [] }).text;
-  const ics = bookingInvite(f, f.booking.version, { method: 'request', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), description, now });
+  const ics = bookingInvite(f, f.booking.version, { method: 'request', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), publicUrl: deps.config.PUBLIC_URL, description, now });
   return { to: f.recipients, subject: head.subject, html, text, ics: { method: 'REQUEST', content: ics } };
 }
 
@@ -131,7 +131,7 @@ async function composeConfirmed(deps: ComposeDeps, f: BookingFacts, payload: Out
     footer: [`Sent by Waterline for ${f.installer.name} to ${f.partner.name}. To change anything now, call ${f.installer.name}${f.installer.phone ? ` on ${f.installer.phone}` : ''}.`],
   };
   const { html, text } = renderMail(content);
-  const ics = bookingInvite(f, f.booking.version, { method: 'request', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), description: text, now: deps.now ?? new Date() });
+  const ics = bookingInvite(f, f.booking.version, { method: 'request', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), publicUrl: deps.config.PUBLIC_URL, description: text, now: deps.now ?? new Date() });
   return { to: f.recipients, subject: `Confirmed: ${f.stage.name}, ${f.job.siteTown}, ${shortDate(f.booking.startsAt, f.installer.timeZone)}`, html, text, ics: { method: 'REQUEST', content: ics } };
 }
 
@@ -149,7 +149,7 @@ async function composeCancel(deps: ComposeDeps, f: BookingFacts, version: number
     footer: [`Sent by Waterline for ${f.installer.name} to ${f.partner.name}.`],
   };
   const { html, text } = renderMail(content);
-  const ics = bookingInvite(f, version, { method: 'cancel', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), description: text, now: deps.now ?? new Date() });
+  const ics = bookingInvite(f, version, { method: 'cancel', organizerEmail: f.installer.email ?? fromAddress(deps.config.MAIL_FROM), publicUrl: deps.config.PUBLIC_URL, description: text, now: deps.now ?? new Date() });
   return { to: f.recipients, subject: `Booking cancelled: ${f.stage.name}, ${f.job.siteTown}, ${shortDate(f.booking.startsAt, f.installer.timeZone)}`, html, text, ics: { method: 'CANCEL', content: ics } };
 }
 

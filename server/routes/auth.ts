@@ -13,9 +13,10 @@ export function safeNext(value: unknown): string {
  * Sign-in with Google and sign-out. A sign-in costs one point of the address's sign-in budget, taken
  * when the flow starts (`/auth/google`). A callback that completes a flow this session started is
  * free; one that fails (a forged, stale or replayed state, or a code the provider refuses) costs a
- * point too, so the callback cannot be hammered for free either.
+ * point too, so the callback cannot be hammered for free either. `onSignOut` hears of each session
+ * signed out (the board streams end theirs).
  */
-export function authRoutes(table: RouteTable, auth: passport.PassportStatic, signInLimit: RateBudget): void {
+export function authRoutes(table: RouteTable, auth: passport.PassportStatic, signInLimit: RateBudget, onSignOut: (sessionId: string) => void = () => undefined): void {
   const chain = (...handlers: RequestHandler[]): RequestHandler => (req, res, next) => {
     const step = (i: number) => (err?: unknown) => {
       if (err) return next(err);
@@ -54,8 +55,11 @@ export function authRoutes(table: RouteTable, auth: passport.PassportStatic, sig
   });
 
   table.post('/auth/sign-out', 'signed-in', (req, res, next) => {
+    const sessionId = req.sessionID;
     req.session.destroy((err) => {
       if (err) return next(err);
+      // This process's open streams of the session end now; other processes' at their next check.
+      onSignOut(sessionId);
       res.clearCookie('waterline.sid');
       res.status(204).end();
     });

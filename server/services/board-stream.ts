@@ -19,6 +19,14 @@ export async function notifyBookingChange(trx: Knex.Transaction, bookingId: stri
       'resourceFirmId', (SELECT r.firm_id::text FROM resources r WHERE r.id = ?))::text)`, [CHANNEL, bookingId, resourceId, stageId, resourceId]);
 }
 
+/** The LISTEN connection's `application_name` in pg_stat_activity. */
+export const LISTENER_APPLICATION_NAME = 'waterline-board-stream';
+/** How often open streams get a comment line, so proxies keep them open (common practice, no source). */
+export const KEEP_ALIVE_MS = 25_000;
+// A lost listener is reconnected after 0.5 s, then 1, 2, 4, 8 and at most 10 s between attempts.
+const RECONNECT_MIN_MS = 500;
+const RECONNECT_MAX_MS = 10_000;
+
 interface Subscriber { reader: StreamReader; userId: string; sessionId: string; res: Response }
 
 /** The stored session as express-session keeps it (connect-pg-simple's `sess` column). */
@@ -30,12 +38,16 @@ interface StoredSession { userId?: string; firmId?: string }
  * `mayHearOf`), so boards served by different processes stay in step without sharing memory.
  * A stream lives only as long as its session: before each delivery, and at each keep-alive, the
  * session is looked up, and a stream whose session signed out, expired or switched firm is ended
- * (the browser's reconnection then meets 401 and stops).
+ * (the browser's reconnection then meets 401 and stops); signing out here ends its streams at once.
+ * A lost LISTEN connection is reconnected with a growing pause, and the streams open meanwhile get
+ * `event: resync` (reload the board), since changes made while nobody listened were never heard.
  */
 export class BoardStream {
   private readonly subscribers = new Set<Subscriber>();
   private client: pg.Client | null = null;
-  private starting: Promise<void> | null = null;
+  private connecting: Promise<void> | null = null;
+  private retry: ReturnType<typeof setTimeout> | null = null;
+  private backoff = RECONNECT_MIN_MS;
   private closed = false;
   private heartbeat: ReturnType<typeof setInterval> | null = null;
   // Deliveries run one after another, so events keep the order PostgreSQL sent them in.
@@ -43,18 +55,69 @@ export class BoardStream {
 
   constructor(private readonly databaseUrl: string, private readonly knex: Knex) {}
 
-  private start(): Promise<void> {
-    this.starting ??= (async () => {
-      const client = new pg.Client({ connectionString: this.databaseUrl });
-      client.on('notification', (msg) => this.enqueue(() => this.deliver(msg.payload ?? '')));
-      client.on('error', () => { this.client = null; this.starting = null; });
+  /**
+   * Makes sure this process LISTENs: the first stream waits for the first connection; while a
+   * lost listener is being reconnected, new streams open at once and catch up with the others.
+   * The one keep-alive interval is made here, once, and only `close()` clears it.
+   */
+  private async listen(): Promise<void> {
+    if (this.closed) return;
+    this.heartbeat ??= setInterval(() => this.enqueue(() => this.keepAlive()), KEEP_ALIVE_MS);
+    this.heartbeat.unref();
+    if (this.client || this.retry) return;
+    this.connecting ??= this.connect().finally(() => { this.connecting = null; });
+    await this.connecting;
+  }
+
+  /** One attempt to connect and LISTEN; a failure schedules the next attempt. */
+  private async connect(): Promise<void> {
+    // Named, so operators (and the tests) can tell the listener from the pool's connections.
+    const client = new pg.Client({ connectionString: this.databaseUrl, application_name: LISTENER_APPLICATION_NAME });
+    let lost = false;
+    const drop = (): void => {
+      if (lost) return;
+      lost = true;
+      void client.end().catch(() => undefined);
+      if (this.client === client) {
+        this.client = null;
+        this.reconnectLater();
+      }
+    };
+    // A terminated backend, a network cut or a server restart: error and/or end, handled once.
+    client.on('error', drop);
+    client.on('end', drop);
+    client.on('notification', (msg) => this.enqueue(() => this.deliver(msg.payload ?? '')));
+    try {
       await client.connect();
       await client.query(`LISTEN ${CHANNEL}`);
-      this.client = client;
-      this.heartbeat = setInterval(() => this.enqueue(() => this.keepAlive()), 25_000);
-      this.heartbeat.unref();
-    })();
-    return this.starting;
+    } catch {
+      drop();
+      this.reconnectLater();
+      return;
+    }
+    if (lost || this.closed) {
+      drop();
+      this.reconnectLater();
+      return;
+    }
+    this.client = client;
+    this.backoff = RECONNECT_MIN_MS;
+    // Changes made while nobody listened were never heard: the streams open by now reload their boards.
+    const behind = [...this.subscribers];
+    if (behind.length > 0) this.enqueue(() => this.resync(behind));
+  }
+
+  /** The next attempt after a growing pause (doubling, capped), unless one is already waiting. */
+  private reconnectLater(): void {
+    if (this.closed || this.retry || this.client) return;
+    const wait = this.backoff;
+    this.backoff = Math.min(this.backoff * 2, RECONNECT_MAX_MS);
+    this.retry = setTimeout(() => {
+      this.retry = null;
+      if (this.closed || this.client) return;
+      this.connecting ??= this.connect().finally(() => { this.connecting = null; });
+    }, wait);
+    this.retry.unref();
   }
 
   private enqueue(task: () => Promise<void>): void {
@@ -90,6 +153,16 @@ export class BoardStream {
     }
   }
 
+  /** Tells `list` to reload their boards: changes may have been missed while nobody listened. */
+  private async resync(list: Subscriber[]): Promise<void> {
+    const open = list.filter((s) => this.subscribers.has(s));
+    const live = await this.live(open);
+    for (const s of open) {
+      if (live.has(s)) s.res.write('event: resync\ndata: {}\n\n');
+      else this.end(s);
+    }
+  }
+
   private async keepAlive(): Promise<void> {
     const all = [...this.subscribers];
     const live = await this.live(all);
@@ -102,10 +175,12 @@ export class BoardStream {
   /** Opens a stream for one signed-in person; it ends when they leave or their session ends. */
   async open(req: Request, res: Response, actor: Actor): Promise<void> {
     if (this.closed) { res.status(503).end(); return; }
-    await this.start();
+    await this.listen();
     const reach = reachOf(actor);
     const own = reach === 'crew' ? (await ownResourceIds(this.knex, actor)) as { id: string }[] : [];
     const reader: StreamReader = { reach, firmId: actor.firmId, ownResourceIds: new Set(own.map((r) => String(r.id))) };
+    // Closed while this stream was being set up: nobody would end it.
+    if (this.closed) { res.status(503).end(); return; }
     res.status(200).set({ 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-cache, no-transform', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
     res.flushHeaders();
     res.write('retry: 3000\n\n');
@@ -124,11 +199,22 @@ export class BoardStream {
     for (const s of this.subscribers) if (s.sessionId === sessionId) s.res.write(text);
   }
 
+  /** Ends the open streams of one session at once (its person signed out). */
+  endSession(sessionId: string): void {
+    for (const s of [...this.subscribers]) if (s.sessionId === sessionId) this.end(s);
+  }
+
+  /** Ends every open stream and the LISTEN connection; no reconnection follows. */
   async close(): Promise<void> {
     this.closed = true;
     if (this.heartbeat) clearInterval(this.heartbeat);
-    for (const s of this.subscribers) s.res.end();
-    this.subscribers.clear();
-    await this.client?.end().catch(() => undefined);
+    this.heartbeat = null;
+    if (this.retry) clearTimeout(this.retry);
+    this.retry = null;
+    for (const s of [...this.subscribers]) this.end(s);
+    await this.connecting;
+    const client = this.client;
+    this.client = null;
+    await client?.end().catch(() => undefined);
   }
 }

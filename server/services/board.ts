@@ -40,6 +40,18 @@ type ResourceRow = Resource & { firmName: string; firmKind: string; timeZone: st
  * booking of a shared partner resource comes only as an anonymous "busy elsewhere" block, and only
  * once it was sent (read-policy.ts decides which states block and what the block tells).
  */
+/**
+ * Runs the loader's queries: together on the pool, one after another inside a transaction (its one
+ * connection would otherwise get overlapping queries, which pg refuses from version 9 and warns
+ * about now).
+ */
+async function runQueries<T extends readonly (() => PromiseLike<unknown>)[]>(inOrder: boolean, tasks: T): Promise<{ -readonly [K in keyof T]: Awaited<ReturnType<T[K]>> }> {
+  if (!inOrder) return Promise.all(tasks.map((task) => task())) as never;
+  const results: unknown[] = [];
+  for (const task of tasks) results.push(await task());
+  return results as never;
+}
+
 export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, query: BoardQuery): Promise<BoardData> {
   const trx = knex.isTransaction ? (knex as Knex.Transaction) : undefined;
   const from = new Date(query.from);
@@ -64,39 +76,40 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
   });
   // The jobs in play are found once; the rest is fetched by those ids as one array parameter.
   // Promised and order dates are days on the job's own firm's clock (shared/local-dates.ts).
-  const jobsPromise = rows<Job & { timeZone: string }>(jobIdQuery.select('jobs.id', 'jobs.firm_id', 'jobs.reference', 'jobs.customer_name', 'jobs.site_town', 'jobs.site_postcode', 'jobs.status', 'jobs.installation_type', 'jobs.promised_to', 'jobs.ordered_on',
-    knex.raw('(SELECT f.time_zone FROM firms f WHERE f.id = jobs.firm_id) AS time_zone')));
-  const byJobs = async <T>(build: (jobIds: string[]) => { toKnexQuery(): Knex.QueryBuilder }) => rows<T>(build((await jobsPromise).map((j) => j.id)));
+  let jobsOnce: Promise<(Job & { timeZone: string })[]> | undefined;
+  const jobsList = () => (jobsOnce ??= rows<Job & { timeZone: string }>(jobIdQuery.select('jobs.id', 'jobs.firm_id', 'jobs.reference', 'jobs.customer_name', 'jobs.site_town', 'jobs.site_postcode', 'jobs.status', 'jobs.installation_type', 'jobs.promised_to', 'jobs.ordered_on',
+    knex.raw('(SELECT f.time_zone FROM firms f WHERE f.id = jobs.firm_id) AS time_zone'))));
+  const byJobs = async <T>(build: (jobIds: string[]) => { toKnexQuery(): Knex.QueryBuilder }) => rows<T>(build((await jobsList()).map((j) => j.id)));
   const stagesOf = (jobIds: string[]) => knex.raw('SELECT id FROM stages WHERE job_id = ANY(?::bigint[])', [jobIds]);
 
-  const [resources, members, calendarRows, exceptions, jobs, stages, deps, bookingRows, hires, rules, elsewhere] = await Promise.all([
-    rows<ResourceRow>(scoped(Resource, actor, trx).where('resources.active', true).join('firms', 'firms.id', 'resources.firm_id')
+  const [resources, members, calendarRows, exceptions, jobs, stages, deps, bookingRows, hires, rules, elsewhere] = await runQueries(trx !== undefined, [
+    () => rows<ResourceRow>(scoped(Resource, actor, trx).where('resources.active', true).join('firms', 'firms.id', 'resources.firm_id')
       .select('resources.*', 'firms.name as firmName', 'firms.kind as firmKind', 'firms.time_zone as timeZone', 'firms.holiday_region as holidayRegion')
       .orderBy('resources.id')),
-    knex('crew_members').whereIn('crew_id', visibleResourceIds).select('crew_id', 'person_id') as Promise<{ crewId: string; personId: string }[]>,
-    rows<Calendar>(Calendar.query(trx).whereIn('firm_id', knex('resources').select('firm_id').whereIn('id', visibleResourceIds) as never).orderBy('id')),
-    rows<CalendarException>(scoped(CalendarException, actor, trx).where('ends_at', '>', new Date(query.from - 30 * 86_400_000)).where('starts_at', '<', new Date(query.to + 60 * 86_400_000))),
-    jobsPromise,
-    byJobs<Stage>((ids) => scoped(Stage, actor, trx).whereRaw('stages.job_id = ANY(?::bigint[])', [ids])
+    () => knex('crew_members').whereIn('crew_id', visibleResourceIds).select('crew_id', 'person_id') as Promise<{ crewId: string; personId: string }[]>,
+    () => rows<Calendar>(Calendar.query(trx).whereIn('firm_id', knex('resources').select('firm_id').whereIn('id', visibleResourceIds) as never).orderBy('id')),
+    () => rows<CalendarException>(scoped(CalendarException, actor, trx).where('ends_at', '>', new Date(query.from - 30 * 86_400_000)).where('starts_at', '<', new Date(query.to + 60 * 86_400_000))),
+    jobsList,
+    () => byJobs<Stage>((ids) => scoped(Stage, actor, trx).whereRaw('stages.job_id = ANY(?::bigint[])', [ids])
       .select('stages.id', 'stages.job_id', 'stages.kind', 'stages.name', 'stages.sequence', 'stages.duration_minutes', 'stages.requirements', 'stages.cure', 'stages.may_continue_next_day', 'stages.notice').orderBy(['stages.job_id', 'stages.sequence'])),
-    byJobs<DependencyModel>((ids) => scoped(DependencyModel, actor, trx).whereIn('dependencies.to_stage_id', stagesOf(ids) as never)
+    () => byJobs<DependencyModel>((ids) => scoped(DependencyModel, actor, trx).whereIn('dependencies.to_stage_id', stagesOf(ids) as never)
       .select('dependencies.id', 'dependencies.from_stage_id', 'dependencies.to_stage_id', 'dependencies.type', 'dependencies.lag_amount', 'dependencies.lag_unit', 'dependencies.waits_for_cure')),
-    byJobs<Booking & { startMs: number; endMs: number }>((ids) => scoped(Booking, actor, trx).where((w) => w.whereIn('bookings.stage_id', stagesOf(ids) as never)
+    () => byJobs<Booking & { startMs: number; endMs: number }>((ids) => scoped(Booking, actor, trx).where((w) => w.whereIn('bookings.stage_id', stagesOf(ids) as never)
       .orWhere((o) => o.where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from)))
       .select('bookings.id', 'bookings.stage_id', 'bookings.resource_id', 'bookings.state', 'bookings.version',
         // Instants as epoch milliseconds straight from PostgreSQL: no Date per row.
         knex.raw('(extract(epoch from bookings.starts_at) * 1000)::float8 AS start_ms'), knex.raw('(extract(epoch from bookings.ends_at) * 1000)::float8 AS end_ms'))),
-    rows<HireModel>(scoped(HireModel, actor, trx).whereIn('hire_periods.resource_id', visibleResourceIds as never)),
-    reach === 'installer-office' ? rows<LeadModel>(scoped(LeadModel, actor, trx)) : Promise.resolve([] as LeadModel[]),
+    () => rows<HireModel>(scoped(HireModel, actor, trx).whereIn('hire_periods.resource_id', visibleResourceIds as never)),
+    () => reach === 'installer-office' ? rows<LeadModel>(scoped(LeadModel, actor, trx)) : Promise.resolve([] as LeadModel[]),
     // Bookings on visible partner resources by stages we may not see (another installer's on a
     // shared partner), once sent: they block the slot, nothing more is told (not even their ids).
-    reach === 'installer-office'
+    () => reach === 'installer-office'
       ? knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').join('jobs as j', 'j.id', 's.job_id')
         .whereIn('b.resource_id', knex('resources').select('id').whereIn('id', visibleResourceIds).whereNot('firm_id', actor.firmId))
         .whereNot('j.firm_id', actor.firmId).whereIn('b.state', ELSEWHERE_BLOCKING_STATES).where('b.starts_at', '<', to).where('b.ends_at', '>', from)
         .select('b.resource_id as resourceId', 'b.starts_at as startsAt', 'b.ends_at as endsAt') as Promise<{ resourceId: string; startsAt: Date; endsAt: Date }[]>
       : Promise.resolve([]),
-  ]);
+  ] as const);
 
   const visibleBookings = new Map(bookingRows.map((b) => [b.id, b]));
   const jobById = new Map(jobs.map((j) => [j.id, j]));

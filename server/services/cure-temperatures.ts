@@ -54,12 +54,12 @@ export async function cureRulesFromWeather(knex: Knex | Knex.Transaction, input:
   const jobById = new Map(input.jobs.map((j) => [j.id, j]));
   const firmIds = [...new Set(jobIds.map((id) => jobById.get(id)?.firmId).filter((f): f is string => Boolean(f)))];
   const since = dateIn(input.now - 120 * DAY_MS, 'UTC');
-  const [firms, positions, forecasts] = await Promise.all([
-    knex('firms').leftJoin('firm_settings', 'firm_settings.firm_id', 'firms.id').whereIn('firms.id', firmIds)
-      .select('firms.id', 'firms.time_zone', 'firms.holiday_region', 'firm_settings.cure_datum_c') as Promise<{ id: string; timeZone: string; holidayRegion: string | null; cureDatumC: number | null }[]>,
-    knex('surveys').whereIn('job_id', jobIds).whereNotNull('site_latitude').select('job_id') as Promise<{ jobId: string }[]>,
-    knex('site_forecasts').whereIn('job_id', jobIds).where('date', '>=', since).select('job_id', 'date', 'mean_c') as Promise<{ jobId: string; date: string; meanC: number }[]>,
-  ]);
+  // One after another: the board loader may call this inside a transaction, whose one connection
+  // must not get overlapping queries (pg warns now and refuses from version 9).
+  const firms = await (knex('firms').leftJoin('firm_settings', 'firm_settings.firm_id', 'firms.id').whereIn('firms.id', firmIds)
+    .select('firms.id', 'firms.time_zone', 'firms.holiday_region', 'firm_settings.cure_datum_c') as Promise<{ id: string; timeZone: string; holidayRegion: string | null; cureDatumC: number | null }[]>);
+  const positions = await (knex('surveys').whereIn('job_id', jobIds).whereNotNull('site_latitude').select('job_id') as Promise<{ jobId: string }[]>);
+  const forecasts = await (knex('site_forecasts').whereIn('job_id', jobIds).where('date', '>=', since).select('job_id', 'date', 'mean_c') as Promise<{ jobId: string; date: string; meanC: number }[]>);
   const firmById = new Map(firms.map((f) => [String(f.id), f]));
   const positioned = new Set(positions.map((p) => String(p.jobId)));
   const forecastOf = new Map<string, Map<string, number>>();

@@ -73,6 +73,6 @@ export class FeedsService {
         ].join('\n'),
       });
     }
-    return personFeed(`${feed.name} · Waterline`, events, now);
+    return personFeed(`${feed.name} · Waterline`, events, now, this.publicUrl);
   }
 }

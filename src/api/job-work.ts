@@ -47,6 +47,8 @@ export interface JobStage {
   durationMinutes: number;
   requirements: { kind: string; count: number }[];
   cure: { targetFraction: number } | null;
+  /** Notice the engine checks before the stage (or one party's booking of it) may start. */
+  notice?: { workingDays: number; countedFrom: 'now' | 'order'; resourceKind?: string | null; reason?: string | null } | null;
   notes: string | null;
   cautions: string[];
   /** The stages this one waits for, by the names they have on this job. */

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { stageBookingStatus } from '@/components/job-detail/stage-status';
+import { noticeText, stageBookingStatus } from '@/components/job-detail/stage-status';
 import { cancelWords, refuseWords } from '@/components/board/request-confirm';
 import StageList from '@/components/job-detail/StageList.vue';
 import type { JobStage } from '@/api/job-work';
@@ -66,5 +66,15 @@ describe('the confirmations before refusing a proposal or cancelling a request',
     expect(cancel.title).toBe('Cancel the request to Fellside Crane Hire?');
     expect(cancel.content).toBe("Fellside Crane Hire has confirmed 60 t mobile crane on Tue 9 Jun 08:00. Cancelling tells them by e-mail, with a calendar cancellation; the booking stays on the board as pencilled. This can't be undone: to ask them again, send the request again (they will have to confirm again).");
     expect(cancelWords({ start, state: 'sent' }, resource, 'Europe/London').content).toMatch(/^Fellside Crane Hire has been asked for 60 t mobile crane on Tue 9 Jun 08:00\. .* send the request again\.$/);
+  });
+});
+
+describe('the notice a stage needs, in words', () => {
+  it('says how many working days, whose notice and why, and where it counts from', () => {
+    expect(noticeText({ workingDays: 10, countedFrom: 'now', resourceKind: 'crane', reason: 'time for a site visit and a lift plan' }))
+      .toBe("10 working days' notice for the crane (time for a site visit and a lift plan), counted from booking");
+    expect(noticeText({ workingDays: 35, countedFrom: 'order', reason: "the maker's lead time" }))
+      .toBe("35 working days' notice (the maker's lead time), counted from the order date");
+    expect(noticeText({ workingDays: 1, countedFrom: 'now' })).toBe("1 working day's notice, counted from booking");
   });
 });

@@ -34,10 +34,30 @@ export async function waitUntil(check: () => boolean | Promise<boolean>, timeout
   throw new Error(`timed out waiting for ${what}`);
 }
 
+/** A pipeline under test, with what its relay and worker logged (pino records, newest last). */
+export interface TestPipeline extends MailPipeline {
+  logs: { level: number; msg: string; [key: string]: unknown }[];
+}
+
 export interface MailTestContext extends TestContext {
   inbox: Inbox;
   /** Starts the relay and mail worker against this test's queue (and optionally another Redis). */
-  startPipeline(redisUrl?: string): MailPipeline;
+  startPipeline(redisUrl?: string): TestPipeline;
+}
+
+/**
+ * Waits until the mail pipeline has nothing left to do: no outbox row is pending or queued and the
+ * BullMQ queue holds no waiting, active, delayed or prioritized job. After this no further e-mail
+ * can arrive from what was queued before (the relay's stale-row scan runs hourly in tests), so an
+ * inbox count taken then is final.
+ */
+export async function waitForMailSettled(ctx: Pick<TestContext, 'knex'>, pipeline: MailPipeline, timeoutMs = 15_000): Promise<void> {
+  await waitUntil(async () => {
+    const open = await ctx.knex('outbox').whereIn('status', ['pending', 'queued']).count<{ count: string }[]>('* as count');
+    if (Number(open[0]!.count) > 0) return false;
+    const counts = await pipeline.queue.getJobCounts('waiting', 'active', 'delayed', 'prioritized', 'waiting-children');
+    return Object.values(counts).every((n) => n === 0);
+  }, timeoutMs, 'the outbox and the mail queue to be idle');
 }
 
 /**
@@ -54,13 +74,15 @@ export async function startMailTestApp(overrides: Record<string, string> = {}): 
   await ctx.knex('booking_requests').whereNull('overdue_at').update({ requested_at: ctx.knex.fn.now() });
   const inbox = new Inbox();
   await inbox.clear();
-  const pipelines: MailPipeline[] = [];
+  const pipelines: TestPipeline[] = [];
   return {
     ...ctx,
     inbox,
     startPipeline(redisUrl?: string) {
       const config = redisUrl ? { ...ctx.config, REDIS_URL: redisUrl } : ctx.config;
-      const pipeline = startMailPipeline({ knex: ctx.knex, config, logger: pino({ level: 'silent' }), relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 } });
+      const logs: TestPipeline['logs'] = [];
+      const logger = pino({ level: 'info' }, { write: (line: string) => { logs.push(JSON.parse(line) as TestPipeline['logs'][number]); } });
+      const pipeline = { ...startMailPipeline({ knex: ctx.knex, config, logger, relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 } }), logs };
       pipelines.push(pipeline);
       return pipeline;
     },

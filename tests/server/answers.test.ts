@@ -23,7 +23,7 @@ afterAll(async () => { await ctx.close(); });
 async function requested(input: Parameters<typeof pencilIn>[1]): Promise<{ id: string; mail: InboxMessage }> {
   const b = await pencilIn(ctx.knex, input);
   await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: b.version }).expect(200);
-  const [mail] = await ctx.inbox.waitFor((m) => m.text.includes(`booking-${b.id}@waterline`) || (m.attachments[0]?.content ?? '').includes(`booking-${b.id}@waterline`));
+  const [mail] = await ctx.inbox.waitFor((m) => m.text.includes(`booking-${b.id}@127.0.0.1`) || (m.attachments[0]?.content ?? '').includes(`booking-${b.id}@127.0.0.1`));
   return { id: b.id, mail: mail! };
 }
 const stateOf = async (id: string) => (await ctx.knex('bookings').where('id', id).first()).state as string;
@@ -156,7 +156,7 @@ describe('proposing another time', () => {
     const accepted = await scheduler.post(`/api/bookings/${id}/proposal/accept`).set('X-CSRF-Token', scheduler.csrf).send({ version: 2 }).expect(200);
     expect(accepted.body).toMatchObject({ version: 3, state: 'sent', startsAt: '2027-05-13T11:00:00.000Z', endsAt: '2027-05-13T15:00:00.000Z', answer: { proposalStatus: 'accepted' } });
     const [update] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking changed: Connect and certify'));
-    expect(calendarOf(update!)).toMatchObject({ method: 'REQUEST', uid: `booking-${id}@waterline`, sequence: 3 });
+    expect(calendarOf(update!)).toMatchObject({ method: 'REQUEST', uid: `booking-${id}@127.0.0.1`, sequence: 3 });
     expect(calendarOf(update!).start.toISOString()).toBe('2027-05-13T11:00:00.000Z');
     await scheduler.post(`/api/bookings/${id}/proposal/accept`).set('X-CSRF-Token', scheduler.csrf).send({ version: 3 }).expect(409);
   });

@@ -113,7 +113,7 @@ describe("the electrician's request", () => {
 
   it('invites as TENTATIVE while the request waits for an answer (RFC 5545 §3.8.1.11)', async () => {
     const ics = invite(await compose('booking_request', slot));
-    expect(ics).toEqual({ method: 'REQUEST', uid: `booking-${slot}@waterline`, sequence: 2, status: 'TENTATIVE', partstat: 'NEEDS-ACTION', start: '2027-08-03T08:00:00.000Z' });
+    expect(ics).toEqual({ method: 'REQUEST', uid: `booking-${slot}@127.0.0.1`, sequence: 2, status: 'TENTATIVE', partstat: 'NEEDS-ACTION', start: '2027-08-03T08:00:00.000Z' });
   });
 
   it('shows the same facts on the answer page behind the e-mailed link', async () => {
@@ -159,7 +159,7 @@ describe('once the electrician confirms', () => {
     const mail = await compose('booking_confirmed', slot);
     expect(mail.subject).toBe('Confirmed: Connect and certify, Bingley, Tue 3 Aug 2027');
     for (const line of EXPECTED_SUPPLY) expect(mail.text).toContain(line);
-    expect(invite(mail)).toEqual({ method: 'REQUEST', uid: `booking-${slot}@waterline`, sequence: 3, status: 'CONFIRMED', partstat: 'ACCEPTED', start: '2027-08-03T08:00:00.000Z' });
+    expect(invite(mail)).toEqual({ method: 'REQUEST', uid: `booking-${slot}@127.0.0.1`, sequence: 3, status: 'CONFIRMED', partstat: 'ACCEPTED', start: '2027-08-03T08:00:00.000Z' });
     // The request of the version before is superseded, so no tentative invite goes out after this one.
     const stale = await composeMessage({ knex: ctx.knex, config: ctx.config }, 'booking_request', { bookingId: slot, version: 2 });
     expect(stale).toEqual({ skip: 'superseded by version 3' });

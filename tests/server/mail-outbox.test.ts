@@ -3,12 +3,11 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, signIn, type Agent } from '../helpers/server.ts';
-import { pencilIn, startMailTestApp, waitUntil, type MailTestContext } from '../helpers/mail.ts';
+import { pencilIn, startMailTestApp, waitForMailSettled, waitUntil, type MailTestContext, type TestPipeline } from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import { startRedis, type RedisHandle } from '../../scripts/services/redis.ts';
 import { run } from '../../scripts/services/shell.ts';
 import { queueBookingMessage } from '../../server/services/outbox.ts';
-import type { MailPipeline } from '../../workers/pipeline.ts';
 
 // A private Redis for this file only, so stopping it leaves the shared test Redis alone.
 const PORT = 63_905;
@@ -16,14 +15,15 @@ const dir = mkdtempSync(path.join(os.tmpdir(), 'waterline-redis-'));
 let redis: RedisHandle;
 let ctx: MailTestContext;
 let scheduler: Agent;
-let pipeline: MailPipeline;
+let pipeline: TestPipeline;
 
 const up = () => { try { return run('redis-cli', ['-p', String(PORT), 'ping']).trim() === 'PONG'; } catch { return false; } };
-const about = (bookingId: string) => (m: { attachments: { content: string }[] }) => m.attachments.some((a) => a.content.includes(`booking-${bookingId}@waterline`));
+// The UID's domain is the host of this app's PUBLIC_URL (RFC 5545 §3.8.4.7).
+const about = (bookingId: string) => (m: { attachments: { content: string }[] }) => m.attachments.some((a) => a.content.includes(`booking-${bookingId}@plan.tideway.example`));
 
 beforeAll(async () => {
   redis = await startRedis(dir, PORT);
-  ctx = await startMailTestApp();
+  ctx = await startMailTestApp({ PUBLIC_URL: 'http://plan.tideway.example' });
   await unbookJobs(ctx.knex, 'TW-2417');
   pipeline = ctx.startPipeline(`redis://127.0.0.1:${PORT}/0`);
   scheduler = await signIn(ctx, account('scheduler').email);
@@ -48,9 +48,13 @@ describe('the outbox while Redis is down', () => {
 
     redis.stop();
     await waitUntil(() => !up(), 10_000, 'Redis to stop');
+    const refusals = () => pipeline.logs.filter((l) => l.msg.startsWith('outbox relay could not hand mail to the queue')).length;
+    const refusedBefore = refusals();
     // Publishing needs only PostgreSQL: the request is written to the outbox in the same transaction.
     const during = await publish('TW-2422', '2027-07-06T08:00:00Z', '2027-07-06T12:00:00Z');
-    await new Promise((r) => setTimeout(r, 2500));
+    // The relay has tried to hand this row to Redis and failed (it logs its first failure)…
+    await waitUntil(() => refusals() > refusedBefore, 15_000, 'the relay to try and fail');
+    // …and afterwards the row is still pending, to be handed over again.
     const row = await ctx.knex('outbox').whereRaw("payload->>'bookingId' = ?", [during]).first();
     expect(row.status).toBe('pending');
     expect((await ctx.inbox.list()).filter(about(during))).toHaveLength(0);
@@ -59,7 +63,7 @@ describe('the outbox while Redis is down', () => {
     const mails = await ctx.inbox.waitFor(about(during), 1, 30_000);
     expect(mails).toHaveLength(1);
     await waitUntil(async () => (await ctx.knex('outbox').where('id', row.id).first()).status === 'sent', 10_000, 'row sent');
-    await new Promise((r) => setTimeout(r, 1500));
+    await waitForMailSettled(ctx, pipeline);
     expect((await ctx.inbox.list()).filter(about(during))).toHaveLength(1);
     expect((await ctx.inbox.list()).filter(about(before))).toHaveLength(1);
   }, 90_000);
@@ -72,7 +76,7 @@ describe('the outbox while Redis is down', () => {
     await ctx.knex('outbox').where('id', row.id).update({ status: 'queued', next_attempt_at: new Date(Date.now() - 3_600_000) });
     expect(await pipeline.relay.requeueStale()).toBe(1);
     await waitUntil(async () => (await ctx.knex('outbox').where('id', row.id).first()).status === 'sent', 10_000, 'row sent');
-    await new Promise((r) => setTimeout(r, 500));
+    await waitForMailSettled(ctx, pipeline);
     expect((await ctx.inbox.list()).filter(about(b.id))).toHaveLength(1);
     // Nothing is stale any more.
     expect(await pipeline.relay.requeueStale()).toBe(0);

@@ -97,7 +97,7 @@ describe('a private calendar feed per person', () => {
     const cal = new ICAL.Component(ICAL.parse(feed.text));
     expect(cal.getFirstPropertyValue('method')).toBe('PUBLISH'); // RFC 5546 §3.2.1
     const events = cal.getAllSubcomponents('vevent').map((v) => new ICAL.Event(v));
-    const mine = events.find((e) => e.uid === `booking-${slot}@waterline`); // RFC 5545 §3.8.4.7: same UID as the invites
+    const mine = events.find((e) => e.uid === `booking-${slot}@127.0.0.1`); // RFC 5545 §3.8.4.7: same UID as the invites
     expect(mine).toBeDefined();
     expect(mine!.sequence).toBe(4); // request (2), another person (3), confirmed (4)
     expect(mine!.startDate.toJSDate().toISOString()).toBe('2027-08-03T08:00:00.000Z');

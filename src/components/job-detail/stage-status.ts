@@ -3,8 +3,10 @@
  * count), a decline to book again (by whom, and where on the board), or not booked. Pure, so it is
  * tested without a browser.
  */
-import type { StageBooking } from '@/api/job-work';
+import type { JobStage, StageBooking } from '@/api/job-work';
+import { humanise } from '@/utils/labels';
 import { localDateOf } from '@shared/local-dates';
+import { plural } from '@shared/plural';
 
 export interface StageBookingStatus {
   /** Bookings that stand (every state but declined). */
@@ -31,4 +33,15 @@ export function stageBookingStatus(jobId: string, bookings: readonly Pick<StageB
       ? `/board?${new URLSearchParams({ view: 'day', date: localDateOf(Date.parse(first.startsAt), timeZone), job: jobId, highlight: declined.map((b) => b.id).join(',') }).toString()}`
       : null,
   };
+}
+
+/**
+ * The notice the engine checks before a stage (or one party's booking of it) may start, in words:
+ * "10 working days' notice for the crane (time for a site visit and a lift plan), counted from booking".
+ */
+export function noticeText(n: NonNullable<JobStage['notice']>): string {
+  const who = n.resourceKind ? ` for the ${humanise(n.resourceKind).toLowerCase()}` : '';
+  const why = n.reason ? ` (${n.reason})` : '';
+  const from = n.countedFrom === 'order' ? 'counted from the order date' : 'counted from booking';
+  return `${plural(n.workingDays, "working day's", "working days'")} notice${who}${why}, ${from}`;
 }
