@@ -24,8 +24,11 @@ export const WEEKDAYS_8_TO_5 = { 1: [[480, 1020]], 2: [[480, 1020]], 3: [[480, 1
 export const ELECTRICIAN_HOURS = { 1: [[450, 990]], 2: [[450, 990]], 3: [[450, 990]], 4: [[450, 990]], 5: [[450, 990]], 6: [[480, 720]] };
 
 /** A crew, person or machine of a firm; crews name their people, a person who signs in names their e-mail. */
-export type Res = { firm: string; name: string; category: 'crew' | 'person' | 'machine'; kind: string; ownership?: 'owned' | 'hired'; calendar?: string; email?: string; members?: string[] };
-/** Tideway's three crews and its owned and hired plant; the partners' cranes, electricians, gangs and lorry. */
+export type Res = { firm: string; name: string; category: 'crew' | 'person' | 'machine'; kind: string; ownership?: 'owned' | 'hired'; calendar?: string; email?: string; members?: string[]; phone?: string };
+/**
+ * Tideway's three crews and its owned and hired plant; the partners' cranes, electricians, gangs and lorry.
+ * The crews' day phones are in the 07700 900xxx range the UK regulator keeps for fiction: never anyone's.
+ */
 export const RESOURCES: Res[] = [
   { firm: 'Tideway Hot Tubs', name: 'Connor Reid', category: 'person', kind: 'installer', email: 'connor.reid@tideway.example' },
   { firm: 'Tideway Hot Tubs', name: 'Aisha Bello', category: 'person', kind: 'installer' },
@@ -33,9 +36,9 @@ export const RESOURCES: Res[] = [
   { firm: 'Tideway Hot Tubs', name: 'Rhys Pennock', category: 'person', kind: 'installer' },
   { firm: 'Tideway Hot Tubs', name: 'Lena Marsh', category: 'person', kind: 'installer' },
   { firm: 'Tideway Hot Tubs', name: 'Dev Chauhan', category: 'person', kind: 'installer' },
-  { firm: 'Tideway Hot Tubs', name: 'Crew Heron', category: 'crew', kind: 'install_crew', members: ['Connor Reid', 'Aisha Bello'] },
-  { firm: 'Tideway Hot Tubs', name: 'Crew Kestrel', category: 'crew', kind: 'install_crew', members: ['Jamie Whitlow', 'Rhys Pennock'] },
-  { firm: 'Tideway Hot Tubs', name: 'Crew Otter', category: 'crew', kind: 'install_crew', members: ['Lena Marsh', 'Dev Chauhan'] },
+  { firm: 'Tideway Hot Tubs', name: 'Crew Heron', category: 'crew', kind: 'install_crew', phone: '07700 900501', members: ['Connor Reid', 'Aisha Bello'] },
+  { firm: 'Tideway Hot Tubs', name: 'Crew Kestrel', category: 'crew', kind: 'install_crew', phone: '07700 900502', members: ['Jamie Whitlow', 'Rhys Pennock'] },
+  { firm: 'Tideway Hot Tubs', name: 'Crew Otter', category: 'crew', kind: 'install_crew', phone: '07700 900503', members: ['Lena Marsh', 'Dev Chauhan'] },
   { firm: 'Tideway Hot Tubs', name: '1.5 t excavator', category: 'machine', kind: 'excavator' },
   { firm: 'Tideway Hot Tubs', name: '3 t excavator (hired)', category: 'machine', kind: 'excavator', ownership: 'hired' },
   { firm: 'Tideway Hot Tubs', name: 'Tracked dumper', category: 'machine', kind: 'dumper' },

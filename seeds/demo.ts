@@ -124,6 +124,7 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
     const resourceId = await insertAll(trx, 'resources', RESOURCES.map((r) => ({
       firm_id: F(r.firm), name: r.name, category: r.category, kind: r.kind, ownership: r.ownership ?? 'owned',
       calendar_id: (r.calendar ? electricians : standard).get(F(r.firm)), user_id: r.email ? userId.get(r.email) ?? null : null,
+      phone: r.phone ?? null,
     })), 'name');
     const R = (name: string) => resourceId.get(name)!;
     const firmOfResource = new Map(RESOURCES.map((r) => [R(r.name), r.firm]));
@@ -229,6 +230,8 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
         groundType: GROUND_TYPES[i % GROUND_TYPES.length]!, buriedServicesNotes: 'Water supply pipe runs under the drive (deeds plan); scan before digging',
         craneStandingPosition: 'On the drive, outriggers on spreader mats', craneDistanceToSetDownM: 8 + (i % 5), consumerUnitDistanceM: 12 + i,
         mainFuseAmps: [60, 80, 100][i % 3]!, drainage: 'Soakaway at the foot of the garden', excavatorSize: null,
+        earthingArrangement: (['TN-C-S', 'TN-S', 'TT'] as const)[i % 3]!,
+        consumerUnitLocation: ['Garage, left of the door', 'Under the stairs', 'Utility room, above the washer'][i % 3]!,
         // The job waiting to be planned sits above the road: the surveyor calls for a crane over the house.
         craneRequired: TRAY[i] === 'surveyed' ? true : null, notes: TRAY[i] === 'surveyed' ? 'Garden is two metres above the road behind the house: crane over the roof' : null,
       };
