@@ -1,17 +1,10 @@
 // Generated boards for the engine benchmark: an invented scenario, deterministic from a seed.
 import type { Board, Booking, Dependency, Resource, Stage, WorkingCalendar } from '../shared/scheduler/index.js';
 import { addWorkingMinutes, nextWorkingInstant, weeklyHours, type HirePeriod } from '../shared/scheduler/index.js';
+import { seededRandom } from '../shared/scheduler/planner/search.js';
 
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The planner's seeded generator (mulberry32), so generated boards and plans share one. */
+export const prng = seededRandom;
 
 const HOUR = 3_600_000;
 const DAY = 24 * HOUR;

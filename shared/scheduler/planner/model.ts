@@ -8,8 +8,8 @@ import type { Dependency, Stage } from '../types.js';
  * The planner's quick model of the stages to place: a resource-constrained project on one time
  * axis (working minutes of one reference calendar from `now`, in grid units), with counts of
  * interchangeable resources per kind whose availability drops where existing bookings and gaps
- * between hire periods are. It is a model for ranking plans quickly; every plan it ranks well is
- * then placed for real by the engine, which checks every rule.
+ * between hire periods are. It is a model for ranking plans quickly; the engine then places the
+ * best-ranked plans for real, checking every rule.
  */
 export interface PlanModel {
   n: number;
