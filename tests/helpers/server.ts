@@ -81,3 +81,41 @@ export async function idOf(knex: Knex, table: string, where: Record<string, unkn
   if (!row) throw new Error(`no ${table} row matching ${JSON.stringify(where)}`);
   return String(row.id);
 }
+
+/** The session cookie of a signed-in agent, to send with plain fetch (e.g. for the live stream). */
+export function sessionCookieOf(agent: Agent): string {
+  return (agent as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }).jar
+    .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString();
+}
+
+/** An open live board stream, read as text as it arrives. */
+export interface StreamReader {
+  text: () => string;
+  /** Reads until the text so far satisfies `pred` (or the stream ends); returns the text. */
+  until: (pred: (t: string) => boolean) => Promise<string>;
+  /** Resolves once the server has ended the stream. */
+  ended: () => Promise<boolean>;
+  close: () => void;
+}
+
+/** Opens GET /api/board/stream as a signed-in agent on a listening server at 127.0.0.1:`port`. */
+export async function openBoardStream(agent: Agent, port: number): Promise<StreamReader> {
+  const controller = new AbortController();
+  const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, { headers: { cookie: sessionCookieOf(agent) }, signal: controller.signal });
+  if (res.status !== 200) throw new Error(`the stream answered ${res.status}`);
+  const reader = res.body!.getReader();
+  let text = '';
+  let done = false;
+  let pending: Promise<void> | null = null;
+  const pump = () => (pending ??= reader.read().then((r) => {
+    pending = null;
+    if (r.done) done = true; else text += new TextDecoder().decode(r.value);
+  }));
+  await pump(); // the retry line: the stream is open
+  return {
+    text: () => text,
+    async until(pred) { while (!pred(text) && !done) await pump(); return text; },
+    async ended() { while (!done) await pump(); return true; },
+    close: () => controller.abort(),
+  };
+}

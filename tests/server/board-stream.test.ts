@@ -1,7 +1,7 @@
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
-import { account, idOf, signIn, startTestApp, TEST_TODAY, type Agent, type TestContext } from '../helpers/server.ts';
+import { openBoardStream, account, idOf, signIn, startTestApp, TEST_TODAY, type Agent, type TestContext } from '../helpers/server.ts';
 import { makeJob } from '../helpers/flows.ts';
 import { createApp } from '../../server/app.ts';
 import { KEEP_ALIVE_MS, LISTENER_APPLICATION_NAME } from '../../server/services/board-stream.ts';
@@ -36,32 +36,8 @@ afterAll(async () => {
 
 afterEach(() => { vi.restoreAllMocks(); });
 
-function cookieOf(agent: Agent): string {
-  return (agent as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }).jar
-    .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString();
-}
-
-/** The live stream of one signed-in agent on the server at `at`, read as text as it arrives. */
-async function openStream(agent: Agent, at = port) {
-  const controller = new AbortController();
-  const res = await fetch(`http://127.0.0.1:${at}/api/board/stream`, { headers: { cookie: cookieOf(agent) }, signal: controller.signal });
-  expect(res.status).toBe(200);
-  const reader = res.body!.getReader();
-  let text = '';
-  let done = false;
-  let pending: Promise<void> | null = null;
-  const pump = () => (pending ??= reader.read().then((r) => {
-    pending = null;
-    if (r.done) done = true; else text += new TextDecoder().decode(r.value);
-  }));
-  await pump(); // the retry line: the stream is open
-  return {
-    text: () => text,
-    async until(pred: (t: string) => boolean) { while (!pred(text) && !done) await pump(); return text; },
-    async ended() { while (!done) await pump(); return true; },
-    close: () => controller.abort(),
-  };
-}
+/** The live stream of one signed-in agent on the server at `at` (this file's by default). */
+const openStream = (agent: Agent, at = port) => openBoardStream(agent, at);
 
 /** Polls `check` until it holds (each try a few milliseconds apart), up to `ms`. */
 async function eventually<T>(check: () => Promise<T | undefined | false>, ms = 15_000): Promise<T> {

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
-import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { openBoardStream, account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
 import { makeJob, type FixtureStage } from '../helpers/flows.ts';
 import type { AutoPlaceAnswer, PlanProgress, SlotAnswer } from '../../shared/schemas/placement.ts';
 
@@ -172,24 +172,7 @@ describe('POST /api/plan/auto-place', () => {
   });
 });
 
-/** The live board stream of one signed-in agent, read as text as it arrives. */
-async function openStream(agent: Agent, port: number): Promise<{ text: () => string; until: (pred: (t: string) => boolean) => Promise<string>; close: () => void }> {
-  const cookie = (agent as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }).jar
-    .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString();
-  const controller = new AbortController();
-  const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, { headers: { cookie }, signal: controller.signal });
-  expect(res.status).toBe(200);
-  const reader = res.body!.getReader();
-  let text = '';
-  let done = false;
-  const pump = async () => { const r = await reader.read(); if (r.done) done = true; else text += new TextDecoder().decode(r.value); };
-  await pump(); // the retry line: the stream is open
-  return {
-    text: () => text,
-    async until(pred) { while (!pred(text) && !done) await pump(); return text; },
-    close: () => controller.abort(),
-  };
-}
+const openStream = openBoardStream;
 
 const progressOf = (text: string) => [...text.matchAll(/event: plan-progress\ndata: (.*)\n/g)].map((m) => JSON.parse(m[1]!) as PlanProgress);
 

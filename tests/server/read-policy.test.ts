@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
-import { account, idOf, signIn, startTestApp, TEST_TODAY, type Agent, type TestContext } from '../helpers/server.ts';
+import { openBoardStream, account, idOf, signIn, startTestApp, TEST_TODAY, type Agent, type TestContext } from '../helpers/server.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import { analyseBoard } from '../../shared/scheduler/index.ts';
 import { toEngineBoard, type BoardData } from '../../shared/board-data.ts';
@@ -243,29 +243,8 @@ describe('a shared electrician booked by two installers', () => {
   });
 });
 
-/** The live stream of one signed-in agent, read as text as it arrives. */
-async function openStream(agent: Agent): Promise<{ text: () => string; until: (pred: (t: string) => boolean) => Promise<string>; ended: () => Promise<boolean>; close: () => void }> {
-  const cookie = (agent as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }).jar
-    .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString();
-  const controller = new AbortController();
-  const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, { headers: { cookie }, signal: controller.signal });
-  expect(res.status).toBe(200);
-  const reader = res.body!.getReader();
-  let text = '';
-  let done = false;
-  let pending: Promise<void> | null = null;
-  const pump = () => (pending ??= reader.read().then((r) => {
-    pending = null;
-    if (r.done) done = true; else text += new TextDecoder().decode(r.value);
-  }));
-  await pump(); // the retry line: the stream is open
-  return {
-    text: () => text,
-    async until(pred) { while (!pred(text) && !done) await pump(); return text; },
-    async ended() { while (!done) await pump(); return true; },
-    close: () => controller.abort(),
-  };
-}
+/** The live stream of one signed-in agent on this file's server. */
+const openStream = (agent: Agent) => openBoardStream(agent, port);
 
 const events = (text: string) => [...text.matchAll(/event: bookings\ndata: (.*)\n/g)].map((m) => JSON.parse(m[1]!) as Record<string, unknown>);
 
