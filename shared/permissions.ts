@@ -23,7 +23,8 @@ export const PERMISSIONS = {
   'firms:read': [...OFFICE, 'partner'],
   /** The bookings API (lists and single bookings of the firm's jobs). Crew read theirs through My work. */
   'bookings:read': OFFICE,
-  'bookings:write': ['owner', 'scheduler'],
+  /** The manager fixes what the reports find (a hire clash, idle hire) on the board. */
+  'bookings:write': ['owner', 'scheduler', 'manager'],
   /** A partner firm's coordinator answers the requests for its own resources. */
   'bookings:answer': ['partner'],
   /** Crew mark their own bookings on site and done. */
@@ -35,6 +36,9 @@ export const PERMISSIONS = {
   'surveys:read': [...OFFICE, 'crew'],
   'surveys:write': ['owner', 'scheduler', 'crew'],
   'hire:approve': ['owner', 'manager'],
+  /** Money from the householder (deposit, balance, the job's price): the office only; crew and partners never see it. */
+  'payments:read': OFFICE,
+  'payments:write': ['owner', 'scheduler', 'manager'],
   'reports:read': ['owner', 'manager'],
   'firm:manage': ['owner'],
   /** A crew member's own assignments, with what each visit needs. */

@@ -24,6 +24,7 @@ const CRANE_EARLIEST = Date.parse('2026-06-08T07:00:00Z'); // 5 working days aft
 let ctx: TestContext;
 let manager: Agent;
 let owner: Agent;
+let viewer: Agent;
 let crewA: string;
 let liftStage: string;
 let liftCrewBooking: string;
@@ -41,6 +42,7 @@ beforeAll(async () => {
   ctx = await startTestApp({ PUBLIC_URL });
   manager = await signIn(ctx, account('manager').email);
   owner = await signIn(ctx, account('owner').email);
+  viewer = await signIn(ctx, account('viewer').email);
   const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
   const fellside = await idOf(ctx.knex, 'firms', { name: 'Fellside Crane Hire' });
   const calendar = await idOf(ctx.knex, 'calendars', { firm_id: tideway, name: 'Standard week' });
@@ -164,10 +166,10 @@ describe('suggested fixes', () => {
     // A fix that moves the stage in time (the crane with it), not only the crew to another row.
     const fix = (await liftClash())!.fixes.find((f) => f.moves.every((m) => m.start !== m.fromStart))!;
     expect(fix.moves.map((m) => m.start)).toEqual([fix.start, fix.start]);
-    // The manager reads reports but may not change bookings: the write path refuses them.
+    // A viewer may not change bookings: the write path refuses them. The manager applies the fix.
     const { path, body } = fixRequest(fix);
-    await manager.post(path).set('X-CSRF-Token', manager.csrf).send(body).expect(403);
-    const applied = await owner.post(path).set('X-CSRF-Token', owner.csrf).send(body);
+    await viewer.post(path).set('X-CSRF-Token', viewer.csrf).send(body).expect(403);
+    const applied = await manager.post(path).set('X-CSRF-Token', manager.csrf).send(body);
     expect(applied.status, JSON.stringify(applied.body)).toBe(200);
     const saved = await ctx.knex('bookings').where('stage_id', liftStage).orderBy('id').select('id', 'resource_id', 'starts_at', 'ends_at', 'state');
     expect(saved.map((b) => ({ bookingId: String(b.id), resourceId: String(b.resourceId), start: b.startsAt.getTime(), end: b.endsAt.getTime() })))
