@@ -51,10 +51,12 @@ function board(): BoardData {
   };
 }
 
-function inputs() {
+function inputs(outlined: string[] = []) {
   const data = board();
   const problems = problemsByBooking([{ kind: 'clash', severity: 'error', stageIds: ['fill'], resourceIds: ['heron'], bookingIds: ['b-fill'], message: 'Crew Heron is booked twice' }]);
-  return { rows: rowsOf(data), events: eventsOf(data, { canEdit: true, problems }) };
+  // What the board's filter adds for a report's `highlight=` link (useBoardFilter).
+  const events = eventsOf(data, { canEdit: true, problems }).map((e) => (outlined.includes(e.id) ? { ...e, classNames: [...e.classNames, 'wl-pointed'] } : e));
+  return { rows: rowsOf(data), events };
 }
 
 describe('the day list', () => {
@@ -85,8 +87,8 @@ describe('the day list', () => {
 });
 
 describe('BoardDayList', () => {
-  async function render(canEdit: boolean): Promise<string> {
-    const { rows, events } = inputs();
+  async function render(canEdit: boolean, outlined: string[] = []): Promise<string> {
+    const { rows, events } = inputs(outlined);
     return renderToString(createSSRApp({ render: () => h(BoardDayList, { rows, events, date: '2026-09-15', timeZone: 'Europe/London', canEdit }) }));
   }
   const text = (html: string) => html.replace(/<!--[\s\S]*?-->/g, '').replace(/<[^>]+>/g, ' ').replace(/\s+/g, ' ').trim();
@@ -109,5 +111,14 @@ describe('BoardDayList', () => {
     expect(html.match(/>Move…</g)).toHaveLength(3);
     expect(html).not.toMatch(/<button[^>]*>\s*<span class="day-list__time"[^>]*>14:00–16:00/);
     expect((await render(false)).match(/>Move…</g)).toBeNull();
+  });
+
+  it("outlines the bookings a report's link points at, and says so in words", async () => {
+    const html = await render(true, ['b-fill', 'b-connect']);
+    const outlined = [...html.matchAll(/<li class="([^"]+)"[^>]*data-booking-id="([^"]+)"/g)].filter((m) => m[1]!.split(' ').includes('wl-pointed')).map((m) => m[2]);
+    expect(outlined).toEqual(['b-fill', 'b-connect']);
+    expect(text(html)).toContain('13:00–16:00 TW-2417 · Fill Otley ✎ Pencilled · ⚠ Problem Crew Heron is booked twice Outlined by the link');
+    expect(html).toContain('aria-label="13:00–16:00. TW-2417 · Fill · Otley. Pencilled. Problem. Crew Heron is booked twice. Outlined by the link. Open the job."');
+    expect(text(await render(true))).not.toContain('Outlined by the link');
   });
 });

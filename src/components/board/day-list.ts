@@ -6,6 +6,7 @@
 import { dayNumber, localToInstant } from '@shared/scheduler/index';
 import { BOARD_BLOCKS, BOOKING_MARKERS, STATE_LABELS, groupHeading, type EventInput, type RowInput } from './board-events';
 import { bookingLine, localParts, stageShortName } from './booking-chip';
+import { POINTER_CLASSES } from './board-pointer';
 
 export interface DayListBooking {
   bookingId: string;
@@ -22,6 +23,8 @@ export interface DayListBooking {
   problems: string[];
   elsewhere: boolean;
   editable: boolean;
+  /** Outlined by a report's link (`highlight=`), as on the timeline. */
+  outlined: boolean;
   /** Everything in one line, for the accessible name. */
   summary: string;
 }
@@ -80,7 +83,8 @@ function entryOf(e: EventInput, day: { start: number; end: number }, timeZone: s
   return {
     bookingId: e.id, time, reference: p.reference, stage: p.stageName, stageShort: stageShortName(p.stageKind, p.stageName), town: p.town,
     state: stateText, stateClass: p.elsewhere ? BOARD_BLOCKS.elsewhere.className : `wl-state-${p.state}`, markers, problems: p.problems,
-    elsewhere: p.elsewhere, editable: e.editable,
-    summary: [time, bookingLine(p), p.elsewhere ? '' : state.label, ...markers.map((m) => m.label), ...p.problems].filter(Boolean).join('. '),
+    elsewhere: p.elsewhere, editable: e.editable, outlined: e.classNames.includes(POINTER_CLASSES.highlight),
+    summary: [time, bookingLine(p), p.elsewhere ? '' : state.label, ...markers.map((m) => m.label), ...p.problems, e.classNames.includes(POINTER_CLASSES.highlight) ? 'Outlined by the link' : '']
+      .filter(Boolean).join('. '),
   };
 }
