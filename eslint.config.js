@@ -3,7 +3,7 @@ import pluginVue from 'eslint-plugin-vue';
 import { defineConfigWithVueTs, vueTsConfigs } from '@vue/eslint-config-typescript';
 
 export default defineConfigWithVueTs(
-  { ignores: ['dist/**', 'node_modules/**', '.data/**', 'coverage/**', 'tests/e2e/artifacts/**', 'scripts/.*.ts'] },
+  { ignores: ['dist/**', 'dist-server*/**', 'node_modules/**', '.data/**', 'coverage/**', 'tests/e2e/artifacts/**', 'scripts/.*.ts'] },
   js.configs.recommended,
   pluginVue.configs['flat/recommended'],
   vueTsConfigs.recommended,
@@ -21,6 +21,14 @@ export default defineConfigWithVueTs(
       'vue/max-attributes-per-line': 'off',
       'vue/singleline-html-element-content-newline': 'off',
       'vue/html-self-closing': 'off',
+    },
+  },
+  {
+    // The browser's code (and the shared code it bundles) never loads the world's holiday tables:
+    // the server lists a calendar's holidays (server/services/holiday-days.ts).
+    files: ['src/**/*.{ts,vue}', 'shared/**/*.ts'],
+    rules: {
+      'no-restricted-imports': ['error', { paths: [{ name: 'date-holidays', message: 'Holidays come with the calendars (server/services/holiday-days.ts).' }], patterns: [{ group: ['date-holidays/*', 'date-holidays-parser', 'date-holidays-parser/*'], message: 'Holidays come with the calendars (server/services/holiday-days.ts).' }] }],
     },
   },
 );

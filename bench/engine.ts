@@ -1,4 +1,4 @@
-// Engine benchmark: `npx tsx bench/engine.ts` (not a test). Prints a compact table.
+// Engine benchmark: `npm run bench:engine` (not a test). Prints a compact table.
 // Wall-clock times from performance.now(); the machine's load average is printed beside them,
 // because other work on the same 2 cores moves the medians a lot.
 import { loadavg } from 'node:os';
@@ -8,6 +8,7 @@ import {
   analyseBoard, autoPlace, checkMove, createBoardIndex, findSlots, overlappingPairs, type Board, type Booking, type StageMove,
 } from '../shared/scheduler/index.js';
 import { BENCH_NOW, generateBoard, prng } from './generate.js';
+import { floorInput, floorPass } from './floor.js';
 
 interface Stats { median: number; p95: number; cpuMedian: number }
 
@@ -63,6 +64,12 @@ for (const [jobs, resources, runs] of [[200, 200, 30], [2000, 2000, 21]] as cons
   analyseBoard(board, { now: BENCH_NOW });
   analyseBoard(board, { now: BENCH_NOW });
   const full = time(runs, () => analyseBoard(board, { now: BENCH_NOW }));
+  // The floor, over exactly this board's stages, dependencies and bookings.
+  const input = floorInput(board);
+  let floorOverlaps = 0;
+  for (let i = 0; i < 5; i++) floorPass(input);
+  const floor = time(runs * 3, () => { floorOverlaps = floorPass(input).overlaps; });
+  const floorRead = time(runs * 3, () => floorPass(floorInput(board)));
   const checksOnly = time(runs, () => analyseBoard(board, { now: BENCH_NOW, skipCriticalPath: true }));
   // The generator books stages back to back whatever the hour, so many short stages run over a
   // night and are now reported as split. The same board with every stage allowed to continue next
@@ -100,6 +107,7 @@ for (const [jobs, resources, runs] of [[200, 200, 30], [2000, 2000, 21]] as cons
   const pairwise = time(pairRuns, () => { pairCount = pairwiseClashes(board.bookings); });
   const sweepCount = overlappingPairs(board.bookings).length;
   if (sweepCount !== pairCount) throw new Error(`sweep found ${sweepCount} overlaps, pairwise ${pairCount}`);
+  if (floorOverlaps !== sweepCount) throw new Error(`the floor found ${floorOverlaps} overlaps, the sweep ${sweepCount}`);
   const heapAtEnd = process.memoryUsage().heapUsed / 1024 / 1024;
   const kept = analyseBoard(board, { now: BENCH_NOW });
   gc();
@@ -107,6 +115,10 @@ for (const [jobs, resources, runs] of [[200, 200, 30], [2000, 2000, 21]] as cons
   void kept;
   const row = (what: string, st: Stats, note: string) => rows.push([label, what, ms(st.median), ms(st.p95), ms(st.cpuMedian), note]);
   row('full analysis (checks + CPM)', full, `${first.violations.length} violations (${splitCount} split, ${unbookedCount} unbooked pred.)`);
+  row('floor: typed-array CPM + sweep', floor, `${n.toLocaleString('en-GB')} stages, ${board.dependencies.length.toLocaleString('en-GB')} links, ${input.res.length.toLocaleString('en-GB')} bookings`);
+  row('floor, reading the board in too', floorRead, 'ids → numbers, then the same pass');
+  rows.push([label, 'full analysis ÷ floor (cpu)', `${(full.cpuMedian / Math.max(floor.cpuMedian, 0.001)).toFixed(1)}×`, '', '',
+    `÷ floor reading the board in: ${(full.cpuMedian / Math.max(floorRead.cpuMedian, 0.001)).toFixed(1)}×`]);
   row('full analysis, stages may run over a night', fullNoSplit, `${withoutSplits} violations (the same board, no split)`);
   row('full checks only', checksOnly, '');
   row('full checks only, stages may run over', checksNoSplit, '');

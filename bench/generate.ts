@@ -2,6 +2,7 @@
 import type { Board, Booking, Dependency, Resource, Stage, WorkingCalendar } from '../shared/scheduler/index.js';
 import { addWorkingMinutes, nextWorkingInstant, weeklyHours, type HirePeriod } from '../shared/scheduler/index.js';
 import { seededRandom } from '../shared/scheduler/planner/search.js';
+import { holidaysFor } from '../server/services/holiday-days.ts';
 
 /** The planner's seeded generator (mulberry32), so generated boards and plans share one. */
 export const prng = seededRandom;
@@ -9,6 +10,12 @@ export const prng = seededRandom;
 const HOUR = 3_600_000;
 const DAY = 24 * HOUR;
 export const BENCH_NOW = Date.UTC(2026, 0, 5, 8); // Mon 5 Jan 2026 08:00 UK
+
+/** A UK region's calendar fields: its bank holidays across the generated year (as the server lists them). */
+const region = (state: string) => ({
+  holidayRegion: { country: 'GB', state },
+  holidays: holidaysFor({ country: 'GB', state }, { from: BENCH_NOW, to: BENCH_NOW + 400 * DAY }),
+});
 
 /** The stages of one install, with the kind each needs and working minutes. */
 const TEMPLATE: [string, string, number][] = [
@@ -31,9 +38,9 @@ export interface GeneratedBoard {
 export function generateBoard(jobs: number, resources: number, seed = 1, unbookedJobs = 20): GeneratedBoard {
   const rnd = prng(seed);
   const calendars: WorkingCalendar[] = [
-    { id: 'eng', timeZone: 'Europe/London', weekly: weeklyHours([1, 2, 3, 4, 5], [[480, 1020]]), holidayRegion: { country: 'GB', state: 'ENG' } },
-    { id: 'sct', timeZone: 'Europe/London', weekly: weeklyHours([1, 2, 3, 4, 5, 6], [[450, 720], [780, 1050]]), holidayRegion: { country: 'GB', state: 'SCT' } },
-    { id: 'nir', timeZone: 'Europe/London', weekly: weeklyHours([1, 2, 3, 4, 5], [[480, 990]]), holidayRegion: { country: 'GB', state: 'NIR' } },
+    { id: 'eng', timeZone: 'Europe/London', weekly: weeklyHours([1, 2, 3, 4, 5], [[480, 1020]]), ...region('ENG') },
+    { id: 'sct', timeZone: 'Europe/London', weekly: weeklyHours([1, 2, 3, 4, 5, 6], [[450, 720], [780, 1050]]), ...region('SCT') },
+    { id: 'nir', timeZone: 'Europe/London', weekly: weeklyHours([1, 2, 3, 4, 5], [[480, 990]]), ...region('NIR') },
   ];
   const res: Resource[] = [];
   const byKind = new Map<string, Resource[]>();

@@ -15,6 +15,7 @@ import { startFakeOAuthProvider } from './fakes/oauth-provider.ts';
 import { startFakeObjectStore } from './fakes/object-store.ts';
 import { startFakeSmtpInbox } from './fakes/smtp-inbox.ts';
 import { startFakeWeather } from './fakes/weather.ts';
+import { startFakePayments } from './fakes/payments.ts';
 import { DEMO_ACCOUNTS } from '../seeds/demo-accounts.ts';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
@@ -34,6 +35,7 @@ const PORTS = {
   smtp: freeFakePorts ? 0 : 2525,
   inbox: freeFakePorts ? 0 : 1080,
   weather: freeFakePorts ? 0 : 4015,
+  payments: freeFakePorts ? 0 : 4017,
   app: Number(process.env.PORT ?? 3000),
 };
 
@@ -104,6 +106,21 @@ async function buildClientIfStale(): Promise<void> {
   if (code !== 0) throw new Error('vite build failed');
 }
 
+/**
+ * The production build of the server side (dist-server/, plain JavaScript: `npm run build:server`),
+ * rebuilt only when its sources are newer; the tests in tests/ops run it with plain node.
+ */
+async function buildServerIfStale(): Promise<void> {
+  const built = path.join(root, 'dist-server', 'server', 'index.js');
+  const sources = newestMtime(['server', 'shared', 'workers', 'migrations', 'seeds', 'scripts/migrate.ts', 'scripts/build-server.mjs',
+    'tsconfig.base.json', 'tsconfig.server.json', 'tsconfig.server.build.json', 'package-lock.json']);
+  if (existsSync(built) && statSync(built).mtimeMs >= sources) return;
+  console.log('Building the server (dist-server/)…');
+  // Type errors are the type check's to report (a step of its own in a full run), not a reason to test nothing.
+  const code = await runInherit(process.execPath, [path.join(root, 'scripts', 'build-server.mjs'), '--allow-type-errors'], { cwd: root });
+  if (code !== 0) throw new Error('the server build failed');
+}
+
 function spawnChild(cmd: string, args: string[], env: NodeJS.ProcessEnv): ChildProcess {
   const child = spawn(cmd, args, { cwd: root, stdio: 'inherit', env });
   children.push(child);
@@ -131,6 +148,9 @@ async function main(): Promise<void> {
   // Site weather forecasts (the cure) from a local stand-in for the forecast API.
   const weather = await startFakeWeather(PORTS.weather);
   cleanups.push(() => weather.stop());
+  // Deposits and balances: a local stand-in for the payment provider (unless real keys are set).
+  const payments = await startFakePayments(PORTS.payments);
+  cleanups.push(() => payments.stop());
 
   const publicUrl = `http://127.0.0.1:${PORTS.app}`;
   const env: NodeJS.ProcessEnv = {
@@ -155,6 +175,9 @@ async function main(): Promise<void> {
     SMTP_URL: inbox.smtpUrl,
     FAKE_INBOX_URL: inbox.url,
     WEATHER_API_URL: weather.url,
+    FAKE_PAYMENTS_URL: payments.url,
+    FAKE_PAYMENTS_SECRET_KEY: payments.secretKey,
+    FAKE_PAYMENTS_WEBHOOK_SECRET: payments.webhookSecret,
     LOG_LEVEL: process.env.LOG_LEVEL ?? (isolated ? 'silent' : 'info'),
   };
   // TypeScript children run as node with tsx's loader (not the tsx command, whose signal relay may
@@ -163,7 +186,10 @@ async function main(): Promise<void> {
 
   if (mode === 'bench') {
     // `npm run bench:… ` → the named benchmark script, with the services it needs.
-    await buildClientIfStale();
+    // A failed client build is only a warning here: the API benchmarks never open the page (the board one will say so).
+    await buildClientIfStale().catch((error: unknown) => {
+      console.warn(`The web app did not build (${error instanceof Error ? error.message : String(error)}); the benchmark runs without it.`);
+    });
     const [script, ...rest] = process.argv.slice(3);
     if (!script) throw new Error('bench mode needs a script, e.g. bench/board.ts');
     const code = await new Promise<number>((resolve) => spawnChild(...runTs(path.join(root, script), rest), env).on('exit', (c) => resolve(c ?? 1)));
@@ -177,8 +203,14 @@ async function main(): Promise<void> {
       ...(filters.length ? [] : [['npm', ['run', '--silent', 'lint']], ['npm', ['run', '--silent', 'typecheck']]] as [string, string[]][]),
       [path.join(root, 'node_modules', '.bin', 'vitest'), ['run', ...filters]],
     ];
-    // The end-to-end tests drive the built app in a real browser (a run of other files alone needs no build).
-    if (!filters.length || filters.some((f) => f.includes('e2e'))) await buildClientIfStale();
+    // The end-to-end tests drive the built app in a real browser, and tests/ops/build.test.ts serves it
+    // (a run of other files alone needs no build).
+    if (!filters.length || filters.some((f) => f.includes('e2e') || f.includes('ops/build'))) await buildClientIfStale();
+    // The production-build and scale-out tests run the compiled server and workers.
+    if (!filters.length || filters.some((f) => f.includes('ops'))) {
+      await buildServerIfStale();
+      env.WATERLINE_SERVER_BUILD = 'fresh';
+    }
     for (const [cmd, args] of steps) {
       console.log(`\n▶ ${path.basename(cmd)} ${args.join(' ')}`);
       const code = await new Promise<number>((resolve) => spawnChild(cmd, args, env).on('exit', (c) => resolve(c ?? 1)));

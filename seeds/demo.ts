@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
 import { DEMO_ACCOUNTS } from './demo-accounts.ts';
+import { seedDemoPayments } from './demo-payments.ts';
 import { CUSTOMERS, ELECTRICIAN_HOURS, FIRMS, GROUND_TYPES, RESOURCES, UNITS, WEEKDAYS_8_TO_5 } from './demo-data.ts';
 import { officeBoard, pencilledInsideNotice, placeJob, stateBy, versionOf, withBookings, type Side } from './demo-plan.ts';
 import { DEFAULT_TEMPLATES } from '../shared/templates/defaults.ts';
@@ -8,6 +9,7 @@ import { jobQuantities, type InstallationType, type SurveyFigures } from '../sha
 import { DEFAULT_QUANTITY_SETTINGS } from '../shared/quantities/settings.ts';
 import { dayOfDate, todayIn } from '../shared/local-dates.ts';
 import { isoDateOfDay, isWorkingInstant, localToInstant, type Booking, type BookingState, type WorkingCalendar } from '../shared/scheduler/index.ts';
+import { holidaysFor } from '../server/services/holiday-days.ts';
 
 /**
  * The demo scenario (all names invented, seeds/demo-data.ts): one installer with three crews and
@@ -35,6 +37,8 @@ const isoDate = (dayUtc: number) => isoDateOfDay(Math.round(dayUtc / DAY));
 /** The firms' standard week in England, with its bank holidays: the days work can be booked on. */
 const STANDARD_WEEK: WorkingCalendar = {
   id: 'standard', timeZone: 'Europe/London', holidayRegion: { country: 'GB', state: 'ENG' },
+  // The bank holidays of three years either side of the clock: the demo's dates are near `today`.
+  holidays: holidaysFor({ country: 'GB', state: 'ENG' }, { from: Date.now(), to: Date.now() }, 3 * 366),
   weekly: Array.from({ length: 7 }, (_, d) => ((WEEKDAYS_8_TO_5 as Record<number, number[][]>)[d] ?? []).map(([a, b]) => [a!, b!] as const)),
 };
 /** The first working day (Monday to Friday, not a bank holiday) on or after `dayUtc`, or on or before it going back. */
@@ -317,6 +321,8 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
       const ids = jobs.filter((j) => (TRAY[j.i] ?? (started.has(j.id) ? 'in_progress' : 'planned')) === status).map((j) => j.id);
       if (ids.length) await trx('jobs').whereIn('id', ids).update({ status });
     }
+    // Deposits: two paid (their order dates), one asked for (the job just surveyed).
+    await seedDemoPayments(trx, { firmId: String(tideway), requestedBy: String(sam), today, requestedReference: `TW-${2401 + Number(Object.keys(TRAY).find((k) => TRAY[Number(k)] === 'surveyed'))}` });
     return { skipped: false, jobs: jobs.length + 1, bookings: final.length + 1 };
   });
 }

@@ -72,6 +72,21 @@ const Env = z.object({
   WEATHER_API_URL: z.url().default('https://api.open-meteo.com'),
   // How often the worker refreshes the forecasts of sites with a base poured or about to be.
   WEATHER_REFRESH_HOURS: z.coerce.number().min(1).max(168).default(24),
+  // Pruning (workers/prune.ts, every PRUNE_EVERY_HOURS): e-mails sent or given up on (outbox rows
+  // created this many days ago; pending and queued rows are never pruned), refused link attempts, and
+  // the board's change marks behind its ETags. Our own judgement of how long each stays useful, no source.
+  PRUNE_EVERY_HOURS: z.coerce.number().min(1).max(168).default(24),
+  OUTBOX_KEEP_DAYS: z.coerce.number().int().min(1).max(3650).default(30),
+  LINK_ATTEMPTS_KEEP_DAYS: z.coerce.number().int().min(1).max(3650).default(90),
+  BOARD_CHANGES_KEEP_DAYS: z.coerce.number().int().min(1).max(365).default(2),
+  // The payment provider's API key and webhook signing secret (deposits and balances from the
+  // householder). Both or neither; with neither, npm start and the tests use the local fake
+  // (scripts/fakes/payments.ts, FAKE_PAYMENTS_*), and production has no payments.
+  PAYMENT_SECRET_KEY: z.string().trim().min(1).optional(),
+  PAYMENT_WEBHOOK_SECRET: z.string().trim().min(1).optional(),
+  FAKE_PAYMENTS_URL: z.url().optional(),
+  FAKE_PAYMENTS_SECRET_KEY: z.string().optional(),
+  FAKE_PAYMENTS_WEBHOOK_SECRET: z.string().optional(),
 });
 export type Config = z.infer<typeof Env> & { LINK_SECRET: string };
 
@@ -95,6 +110,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       missing.push('SESSION_SECRET / LINK_SECRET: the example or local value cannot be used in production; generate a random one');
     }
     if (missing.length > 0) throw new Error(`Waterline's settings are incomplete:\n${missing.map((m) => `  ${m}`).join('\n')}`);
+  }
+  if (Boolean(rest.PAYMENT_SECRET_KEY) !== Boolean(rest.PAYMENT_WEBHOOK_SECRET)) {
+    throw new Error("Waterline's settings are incomplete:\n  PAYMENT_SECRET_KEY / PAYMENT_WEBHOOK_SECRET: give both (the provider's API key and its webhook signing secret) or neither");
   }
   // Outside production a link secret derived from the session secret keeps local set-up to one setting.
   return { ...rest, LINK_SECRET: LINK_SECRET ?? createHash('sha256').update(`waterline-links:${rest.SESSION_SECRET}`).digest('base64url') };

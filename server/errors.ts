@@ -39,6 +39,13 @@ export class UnprocessableError extends HttpError {
   constructor(detail: string, extra: Record<string, unknown> = {}) { super(422, 'rule-violation', 'The change breaks a scheduling rule', detail, extra); }
 }
 
+/** The database cannot be reached (stopped, restarting, or every connection busy): nothing was saved. */
+export class DatabaseUnavailableError extends HttpError {
+  constructor() {
+    super(503, 'database-unavailable', 'The database is not answering', 'Nothing was saved from this request. The database is away for a moment; try again shortly.');
+  }
+}
+
 export function fieldErrorsOf(error: ZodError, prefix?: string): FieldError[] {
   return error.issues.map((i) => ({
     field: [prefix, ...i.path.map(String)].filter(Boolean).join('.') || '(body)',
@@ -78,6 +85,15 @@ export const CONSTRAINT_REFUSALS: Record<string, PlainRefusal> = {
   booking_requests_booking_id_booking_version_unique: { detail: 'This booking request has already been sent.' },
   outbox_idempotency_key_unique: { detail: 'This message is already on its way.' },
   job_files_object_key_unique: { detail: 'The file could not be saved; try again.' },
+  job_payments_one_open: { detail: 'A request of this kind is already open for this job.' },
+  job_payments_one_paid: { detail: 'This job has already paid this.' },
+  job_payments_checkout_session_id_unique: { detail: `The payment page could not be opened; ${TRY_AGAIN}.` },
+  job_payments_payment_intent_id_unique: { detail: 'This payment is already recorded.' },
+  webhook_events_provider_event_id_unique: { detail: 'This event was received before.' },
+  commissioning_records_job_id_unique: { detail: `Someone else saved this job's commissioning record at the same moment; ${TRY_AGAIN}.` },
+  electrical_certificates_job_id_unique: { detail: `Another certificate for this job was saved at the same moment; ${TRY_AGAIN}.` },
+  handovers_job_id_unique: { detail: 'This job has already been handed over.' },
+  jobs_service_visit_unique: { detail: `This service visit is already planned; ${TRY_AGAIN}.` },
   // exclusion (→ 409, code double-booked)
   bookings_no_confirmed_overlap: { detail: 'That resource already has a confirmed booking at that time.' },
   bookings_no_held_overlap: { detail: 'That resource already has a confirmed booking at that time.' },
@@ -183,6 +199,29 @@ function malformedParam(req: Request | undefined): string | null {
   return null;
 }
 
+/** SQLSTATEs of a lost or refused connection: class 08, a server shutting down or starting up, too many connections. */
+const CONNECTION_SQLSTATES = /^(08[0-9A-Z]{3}|57P0[123]|53300)$/;
+/** Node's words for a socket that could not be made or was cut. */
+const SOCKET_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', 'EHOSTUNREACH', 'ENETUNREACH', 'EAI_AGAIN', 'ENOTFOUND']);
+/** node-postgres's and knex's own messages for a connection that was lost, timed out or never came. */
+const CONNECTION_MESSAGES = /^(Connection terminated|Client has encountered a connection error|timeout exceeded when trying to connect|Knex: Timeout acquiring a connection)/;
+
+/**
+ * True when the database could not be reached: the error itself or the one Objection wrapped.
+ * Other dependencies map their own outages (file storage → storage-unavailable; Redis never fails
+ * a request), so a socket error that reaches the handler is the database's.
+ */
+export function isDatabaseUnreachable(err: unknown): boolean {
+  for (const e of [err, (err as { nativeError?: unknown } | null)?.nativeError]) {
+    if (!e || typeof e !== 'object') continue;
+    const { code, name, message } = e as { code?: unknown; name?: unknown; message?: unknown };
+    if (typeof code === 'string' && (CONNECTION_SQLSTATES.test(code) || SOCKET_CODES.has(code))) return true;
+    if (name === 'KnexTimeoutError') return true;
+    if (typeof message === 'string' && CONNECTION_MESSAGES.test(message)) return true;
+  }
+  return false;
+}
+
 function toHttpError(err: unknown, req?: Request): HttpError | null {
   if (err instanceof HttpError) return err;
   if (err instanceof ZodError) return new BadRequestError('Some fields are not valid.', fieldErrorsOf(err));
@@ -191,6 +230,7 @@ function toHttpError(err: unknown, req?: Request): HttpError | null {
     const name = malformedParam(req);
     return new BadRequestError('The address has a broken %-escape.', [{ field: name ? `params.${name}` : 'path', message: 'is not valid in an address (a % must be followed by two hexadecimal digits)' }]);
   }
+  if (isDatabaseUnreachable(err)) return new DatabaseUnavailableError();
   const database = databaseError(err);
   if (database) return database;
   // The engine refuses input it cannot plan with (a calendar with no working time, a span of decades).
@@ -235,6 +275,8 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     return;
   }
   if (http.status >= 500) req.log?.error({ err }, http.title);
+  // RFC 9110 §10.2.3: tell clients when a retry makes sense (a database restart takes seconds).
+  if (http instanceof DatabaseUnavailableError) res.set('Retry-After', '5');
   res.status(http.status).type('application/problem+json').json(problemBody(http, req.originalUrl, publicUrlOf(req)));
 };
 

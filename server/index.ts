@@ -4,6 +4,7 @@ import { createApp } from './app.ts';
 import pino from 'pino';
 import { startMailPipeline, type MailPipeline } from '../workers/pipeline.ts';
 import { startWeatherRefresh, type WeatherRefresh } from '../workers/weather.ts';
+import { startPruning, type Pruning } from '../workers/prune.ts';
 
 const config = loadConfig();
 const knex = createKnex(config.DATABASE_URL);
@@ -11,10 +12,12 @@ const { app, close } = createApp({ config, knex });
 // `npm start` runs the outbox relay and mail worker in this process (RUN_WORKER=1); production runs `npm run worker` apart.
 let mail: MailPipeline | null = null;
 let weather: WeatherRefresh | null = null;
+let pruning: Pruning | null = null;
 if (process.env.RUN_WORKER === '1') {
   const logger = pino({ level: config.LOG_LEVEL }).child({ process: 'worker' });
   mail = startMailPipeline({ knex, config, logger });
   weather = startWeatherRefresh({ knex, config, logger });
+  pruning = startPruning({ knex, config, logger });
 }
 
 const server = app.listen(config.PORT, config.HOST, () => {
@@ -33,6 +36,7 @@ async function shutdown(signal: string) {
   force.unref();
   await mail?.close();
   await weather?.close();
+  await pruning?.close();
   await close();
   await knex.destroy();
   process.exit(0);

@@ -91,6 +91,8 @@ export const STAGE_CAUTION_TOPICS: Record<string, readonly CautionTopic[]> = {
   electrical_connect: ['electrical'],
   commission: ['fill', 'chemicals', 'water_hygiene', 'electrical'],
   handover: ['chemicals', 'water_hygiene'],
+  // A service visit: the water, its chemicals and the spa's electrics are looked at.
+  service_visit: ['chemicals', 'water_hygiene', 'electrical'],
 };
 
 /** The stage kinds the product plans (each has its cautions: a test holds every template to it). */

@@ -40,6 +40,9 @@ export const PERMISSIONS = {
   'payments:read': OFFICE,
   'payments:write': ['owner', 'scheduler', 'manager'],
   'reports:read': ['owner', 'manager'],
+  /** E-mails that did not go (job page, Reports), and sending one again: the office roles that plan. */
+  'mail:read': ['owner', 'scheduler', 'manager'],
+  'mail:resend': ['owner', 'scheduler', 'manager'],
   'firm:manage': ['owner'],
   /** A crew member's own assignments, with what each visit needs. */
   'my-work:read': ['crew'],

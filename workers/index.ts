@@ -1,9 +1,10 @@
-/** The worker process (`npm run worker`): the outbox relay, the mail worker and the daily site forecast refresh, until SIGTERM. */
+/** The worker process (`npm run worker`): the outbox relay, the mail worker and the daily site forecast refresh and the pruning of old rows, until SIGTERM. */
 import pino from 'pino';
 import { loadConfig } from '../server/config.ts';
 import { createKnex } from '../server/db.ts';
 import { startMailPipeline } from './pipeline.ts';
 import { startWeatherRefresh } from './weather.ts';
+import { startPruning } from './prune.ts';
 
 const config = loadConfig();
 const logger = pino({ level: config.LOG_LEVEL }).child({ process: 'worker' });
@@ -11,6 +12,7 @@ const knex = createKnex(config.DATABASE_URL, { min: 0, max: 5 });
 const pipeline = startMailPipeline({ knex, config, logger });
 logger.info({ queue: config.MAIL_QUEUE }, 'mail worker started');
 const weather = startWeatherRefresh({ knex, config, logger });
+const pruning = startPruning({ knex, config, logger });
 
 let stopping = false;
 async function shutdown(signal: string): Promise<void> {
@@ -21,6 +23,7 @@ async function shutdown(signal: string): Promise<void> {
   force.unref();
   await pipeline.close();
   await weather.close();
+  await pruning.close();
   await knex.destroy();
   process.exit(0);
 }

@@ -8,9 +8,12 @@ import { contactLines, describeWindow, loadBookingFacts, type BookingFacts } fro
 import { renderMail, type MailContent } from './layout.ts';
 import { localDateOf } from '../../shared/local-dates.ts';
 import { supplyLines } from '../../shared/slot-supply.ts';
+import { composePaymentRequest } from './payment-request.ts';
+import type { ObjectStore } from '../storage/object-store.ts';
+import { composeHandoverPack, composeServicePlanNotice } from './handover.ts';
 
 /** What the outbox can send; each row's payload carries ids only. */
-export const OUTBOX_KINDS = ['booking_request', 'booking_update', 'booking_reminder', 'booking_cancel', 'proposal_refused', 'customer_notice', 'invitation', 'booking_declined', 'booking_confirmed'] as const;
+export const OUTBOX_KINDS = ['booking_request', 'booking_update', 'booking_reminder', 'booking_cancel', 'proposal_refused', 'customer_notice', 'invitation', 'booking_declined', 'booking_confirmed', 'handover_pack', 'service_plan_notice', 'payment_request'] as const;
 export type OutboxKind = (typeof OUTBOX_KINDS)[number];
 
 export interface OutboxPayload {
@@ -22,6 +25,10 @@ export interface OutboxPayload {
   /** For a booking that was deleted: the audit row holding its last state. */
   auditId?: string;
   invitationId?: string;
+  /** A deposit or balance asked of the householder (server/mail/payment-request.ts). */
+  paymentId?: string;
+  /** The job a handover pack or service-plan notice is about. */
+  jobId?: string;
 }
 
 export interface OutgoingMail {
@@ -30,12 +37,14 @@ export interface OutgoingMail {
   html: string;
   text: string;
   ics?: { method: 'REQUEST' | 'CANCEL'; content: string };
+  /** Files sent with it (the handover pack's PDF). */
+  attachments?: { filename: string; content: Buffer; contentType: string }[];
 }
 
 /** A message that should not go (superseded, nobody to send to): recorded, not retried. */
 export interface SkippedMail { skip: string }
 
-export interface ComposeDeps { knex: Knex; config: Pick<Config, 'PUBLIC_URL' | 'MAIL_FROM' | 'LINK_SECRET'>; now?: Date }
+export interface ComposeDeps { knex: Knex; config: Pick<Config, 'PUBLIC_URL' | 'MAIL_FROM' | 'LINK_SECRET'>; now?: Date; /** Where attached files are read from. */ store?: ObjectStore }
 
 const HOUR = 3_600_000;
 const shortDate = (d: Date, timeZone: string) => new Intl.DateTimeFormat('en-GB', { timeZone, weekday: 'short', day: 'numeric', month: 'short', year: 'numeric' }).format(d).replace(',', '');
@@ -44,6 +53,9 @@ const fromAddress = (mailFrom: string) => /<([^>]+)>/.exec(mailFrom)?.[1] ?? mai
 /** Builds the e-mail an outbox row stands for, from the rows as they are now. */
 export async function composeMessage(deps: ComposeDeps, kind: OutboxKind, payload: OutboxPayload): Promise<OutgoingMail | SkippedMail> {
   if (kind === 'invitation') return composeInvitation(deps, payload);
+  if (kind === 'payment_request') return composePaymentRequest(deps, payload);
+  if (kind === 'handover_pack') return composeHandoverPack(deps, payload);
+  if (kind === 'service_plan_notice') return composeServicePlanNotice(deps, payload);
   const snapshot = payload.auditId ? (await deps.knex('audit_log').where('id', payload.auditId).first('before'))?.before : undefined;
   const facts = payload.bookingId ? await loadBookingFacts(deps.knex, payload.bookingId, kind === 'booking_cancel' ? payload.resourceId : undefined, snapshot) : null;
   if (!facts) return { skip: 'the booking no longer exists' };

@@ -5,7 +5,8 @@ import { HttpError } from '../errors.ts';
 export const newCsrfToken = () => randomBytes(24).toString('base64url');
 
 const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
-const LINK_FORMS = /^\/(answer|invite)\/[^/]+$/;
+// The certificate link's upload form (/answer/certificate/<token>) is one of them.
+const LINK_FORMS = /^\/(answer|invite)\/[^/]+$|^\/answer\/certificate\/[^/]+$/;
 
 /**
  * Synchroniser-token CSRF protection: a state-changing request from a signed-in session must carry

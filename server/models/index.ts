@@ -158,6 +158,10 @@ export class Job extends ScopedModel {
   promisedFrom!: string | null;
   promisedTo!: string | null;
   orderedOn!: string | null;
+  /** An install, or a service visit set up at an install's handover (parentJobId, due on serviceDueOn). */
+  kind!: 'install' | 'service';
+  parentJobId!: string | null;
+  serviceDueOn!: string | null;
   version!: number;
   static override scope(q: AnyQuery, actor: Actor) {
     q.whereIn('jobs.id', visibleJobIds(knexOf(q), actor));

@@ -65,13 +65,14 @@ export function answerForm(f: BookingFacts, action: AnswerAction, formAction: st
 <form method="post" action="${e(formAction)}">${fields}<button type="submit">${e(label.button)}</button></form>`);
 }
 
-export function answeredPage(f: BookingFacts, result: 'confirmed' | 'declined' | 'proposed'): string {
+/** `after`: a section below the slot (the certificate link, once an electrical connection is confirmed). */
+export function answeredPage(f: BookingFacts, result: 'confirmed' | 'declined' | 'proposed', after = ''): string {
   const text = {
     confirmed: ['Thank you: the slot is confirmed', `${f.installer.name} can see your confirmation now.`],
     declined: ['Thank you: the slot is declined', `${f.installer.name} can see your answer now and will find another slot.`],
     proposed: ['Thank you: your proposal is sent', `${f.installer.name} will accept it or keep the original time; you will get an e-mail either way.`],
   }[result];
-  return page(text[0]!, `<p>${e(text[1])}</p>${slotDetails(f)}`, 'ok');
+  return page(text[0]!, `<p>${e(text[1])}</p>${slotDetails(f)}${after}`, 'ok');
 }
 
 export function stalePage(f: BookingFacts): string {
@@ -79,9 +80,9 @@ export function stalePage(f: BookingFacts): string {
 A newer e-mail has been sent to you; here is the slot as it is now:</p>${slotDetails(f)}`, 'warn');
 }
 
-export function closedPage(f: BookingFacts): string {
+export function closedPage(f: BookingFacts, after = ''): string {
   const state = { confirmed: 'confirmed', declined: 'declined', pencilled: 'withdrawn by the installer', on_site: 'under way', done: 'done', sent: 'waiting for an answer' }[f.booking.state] ?? f.booking.state;
-  return page('Already answered', `<p>This booking is ${e(state)}, so there is nothing to answer. Call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')} to change anything.</p>${slotDetails(f)}`, 'warn');
+  return page('Already answered', `<p>This booking is ${e(state)}, so there is nothing to answer. Call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')} to change anything.</p>${slotDetails(f)}${after}`, 'warn');
 }
 
 export function takenPage(f: BookingFacts): string {

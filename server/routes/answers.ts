@@ -6,7 +6,9 @@ import { LinkError, LinkSigner, type AnswerClaims, type InviteClaims, type LinkR
 import { ConfirmationsService, requestKeyOf } from '../services/confirmations.ts';
 import { InvitationsService, type InvitationView } from '../services/invitations.ts';
 import { FeedsService } from '../services/feeds.ts';
-import { loadBookingFacts } from '../mail/facts.ts';
+import { loadBookingFacts, type BookingFacts } from '../mail/facts.ts';
+import { CertificateLinks, certificateLinkFor } from '../services/certificates.ts';
+import { certificateSection } from '../pages/certificates.ts';
 import { answerForm, answeredPage, closedPage, refusalPage, stalePage, takenPage } from '../pages/answers.ts';
 import { escapeHtml as e, page } from '../pages/page.ts';
 import { z } from 'zod';
@@ -67,6 +69,15 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
   const confirmations = new ConfirmationsService(knex, now, bookingLimitsOf(config));
   const invitations = new InvitationsService(knex);
   const feeds = new FeedsService(knex, config.PUBLIC_URL);
+  const certificateLinks = new CertificateLinks(config.LINK_SECRET);
+
+  /** Below a confirmed electrical connection: where the electrician uploads the certificate later. */
+  async function certificateAfter(f: BookingFacts): Promise<string> {
+    const link = await certificateLinkFor(certificateLinks, config.PUBLIC_URL, {
+      bookingId: f.booking.id, stageKind: f.stage.kind, state: f.booking.state, endsAt: f.booking.endsAt, partnerFirmId: f.resource.firmId,
+    }, new Date(now()));
+    return link ? certificateSection(link) : '';
+  }
 
   async function refuse(req: Request, res: Response, reason: LinkRefusal | 'used' | 'gone', jti?: string): Promise<void> {
     const path = req.path.replace(/\/[^/]+$/, '/…');
@@ -98,7 +109,7 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     if (await knex('link_uses').where('jti', requestKeyOf(c)).first()) return refuse(req, res, 'used', c.jti);
     if (facts.booking.version !== c.version) { res.type('html').send(stalePage(facts)); return; }
     const open = c.action === 'confirm' ? facts.booking.state === 'sent' : ['sent', 'confirmed'].includes(facts.booking.state);
-    res.type('html').send(open ? answerForm(facts, c.action, req.originalUrl) : closedPage(facts));
+    res.type('html').send(open ? answerForm(facts, c.action, req.originalUrl) : closedPage(facts, await certificateAfter(facts)));
   });
 
   table.post('/answer/:token', 'public', async (req, res) => {
@@ -128,11 +139,11 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     const facts = (await loadBookingFacts(knex, c.bookingId))!;
     switch (outcome.result) {
       case 'stale': res.status(409).type('html').send(stalePage(facts)); return;
-      case 'closed': res.status(409).type('html').send(closedPage(facts)); return;
+      case 'closed': res.status(409).type('html').send(closedPage(facts, await certificateAfter(facts))); return;
       case 'taken': res.status(409).type('html').send(takenPage(facts)); return;
       default:
         req.log?.info({ bookingId: c.bookingId, version: c.version, result: outcome.result }, 'partner answered by link');
-        res.type('html').send(answeredPage(facts, outcome.result));
+        res.type('html').send(answeredPage(facts, outcome.result, await certificateAfter(facts)));
     }
   });
 

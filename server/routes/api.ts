@@ -15,6 +15,7 @@ import { AutoPlaceRequest, SlotSearch, type PlanProgress } from '../../shared/sc
 import { UndoService, type UndoContext, type UndoVerb } from '../services/undo.ts';
 import { actorFor, sessionInfo } from '../services/session.ts';
 import { loadBoard } from '../services/board.ts';
+import { boardEtag, etagMatches } from '../services/board-version.ts';
 import type { BoardStream } from '../services/board-stream.ts';
 import { NotFoundError } from '../errors.ts';
 import type { Health } from '../health.ts';
@@ -51,7 +52,17 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     })
     .get('/api/board', 'board:read', async (req, res) => {
       const { from, to } = parse(BookingRange, req.query, 'query');
-      res.json(await loadBoard(knex, req.actor!, { from: Date.parse(from), to: Date.parse(to), now: now() }));
+      const window = { from: Date.parse(from), to: Date.parse(to), now: now() };
+      // Unchanged since the reader's copy → 304 without loading (the browser revalidates by itself).
+      const etag = await boardEtag(knex, req.actor!, window);
+      res.set({ ETag: etag, 'Cache-Control': 'private, no-cache' });
+      if (etagMatches(req.get('If-None-Match'), etag)) {
+        res.status(304).end();
+        return;
+      }
+      // One connection, one snapshot: the loader's queries run one after another in a read-only
+      // transaction, so a busy server serves boards in turn instead of interleaving them all.
+      res.json(await knex.transaction((trx) => loadBoard(trx, req.actor!, window), { readOnly: true, isolationLevel: 'repeatable read' }));
     })
     .get('/api/board/stream', 'board:read', async (req, res) => {
       await stream.open(req, res, req.actor!);

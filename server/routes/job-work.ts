@@ -30,7 +30,8 @@ const receiveOne = multer({ storage: multer.memoryStorage(), limits: { fileSize:
   // Keep the name as sent, so a name with a path in it is refused rather than silently cut.
   preservePath: true, defParamCharset: 'utf8' }).single('file');
 
-function receiveFile(req: Request, res: Response): Promise<void> {
+/** Receives the one file of a multipart upload (field `file`), after the route's access rule and scope checks. */
+export function receiveFile(req: Request, res: Response): Promise<void> {
   return new Promise((resolve, reject) => receiveOne(req, res, (err: unknown) => {
     if (!err) return resolve();
     if (err instanceof multer.MulterError) {
@@ -45,7 +46,7 @@ function receiveFile(req: Request, res: Response): Promise<void> {
  * Surveys, quantities, templates, planning, job edits, files and day sheets. Returns a handle that
  * releases the storage client when the app closes.
  */
-export function jobWorkRoutes(table: RouteTable, { knex, config, store: given, now = Date.now }: JobWorkDeps): { close(): void } {
+export function jobWorkRoutes(table: RouteTable, { knex, config, store: given, now = Date.now }: JobWorkDeps): { close(): void; files: FilesService } {
   const store = given ?? new S3ObjectStore(config);
   const templates = new TemplatesService(knex);
   const surveys = new SurveysService(knex, templates);
@@ -119,5 +120,5 @@ export function jobWorkRoutes(table: RouteTable, { knex, config, store: given, n
       res.json(await daySheets.myWork(req.actor!, parse(MyWorkQuery, req.query, 'query')));
     });
 
-  return { close: () => store.close() };
+  return { close: () => store.close(), files };
 }

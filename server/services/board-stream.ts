@@ -19,6 +19,15 @@ export async function notifyBookingChange(trx: Knex.Transaction, bookingId: stri
       'resourceFirmId', (SELECT r.firm_id::text FROM resources r WHERE r.id = ?))::text)`, [CHANNEL, bookingId, resourceId, stageId, resourceId]);
 }
 
+/**
+ * Tells the installer's office boards that a job changed without any booking changing (its order
+ * date, which starts the maker's lead time): they reload. The event names no booking.
+ */
+export async function notifyJobChange(trx: Knex.Transaction, jobId: string): Promise<void> {
+  await trx.raw(`SELECT pg_notify(?, json_build_object('bookingId', '', 'resourceId', '',
+      'installerFirmId', (SELECT firm_id::text FROM jobs WHERE id = ?), 'resourceFirmId', (SELECT firm_id::text FROM jobs WHERE id = ?))::text)`, [CHANNEL, jobId, jobId]);
+}
+
 /** The LISTEN connection's `application_name` in pg_stat_activity. */
 export const LISTENER_APPLICATION_NAME = 'waterline-board-stream';
 /** How often open streams get a comment line, so proxies keep them open (common practice, no source). */

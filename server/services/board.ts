@@ -5,10 +5,13 @@ import type { Dependency, HirePeriod, LeadTimeRule, WorkingCalendar } from '../.
 import { Booking, Calendar, CalendarException, Dependency as DependencyModel, HirePeriod as HireModel, Job, LeadTimeRule as LeadModel, Resource, Stage } from '../models/index.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { scoped } from './scope.ts';
+import { bookingDuring } from './ranges.ts';
 import { withAnswers } from './answer-views.ts';
 import { answerReasonFor, boardCustomerName, busyElsewhere, ELSEWHERE_BLOCKING_STATES, ELSEWHERE_STATE } from './read-policy.ts';
 import { cureRulesFromWeather } from './cure-temperatures.ts';
+import { holidaysFor } from './holiday-days.ts';
 import { orderedFrom, promisedDeadline } from '../../shared/local-dates.ts';
+import { SERVICE_TRAY_LEAD_DAYS } from '../../shared/service-plan.ts';
 
 const OPEN_JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress'];
 
@@ -68,10 +71,13 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
   const jobIdQuery = scoped(Job, actor, trx).where((w) => {
     w.whereIn('jobs.id', knex('stages').select('job_id').whereIn('id', windowStageIds) as never);
     if (query.jobIds?.length) w.orWhereIn('jobs.id', query.jobIds);
-    // The office also sees every open job that still has stages waiting in the tray.
+    // The office also sees every open job that still has stages waiting in the tray; a service
+    // visit only once its promised window opens within SERVICE_TRAY_LEAD_DAYS of the board's range.
     if (reach === 'installer-office') {
+      const serviceFrom = new Date(query.to + SERVICE_TRAY_LEAD_DAYS * 86_400_000).toISOString().slice(0, 10);
       w.orWhereRaw(`jobs.status = ANY(?) AND EXISTS (SELECT 1 FROM stages s WHERE s.job_id = jobs.id
-        AND NOT EXISTS (SELECT 1 FROM bookings b WHERE b.stage_id = s.id AND b.state <> 'declined'))`, [OPEN_JOB_STATUSES]);
+        AND NOT EXISTS (SELECT 1 FROM bookings b WHERE b.stage_id = s.id AND b.state <> 'declined'))
+        AND (jobs.kind <> 'service' OR jobs.promised_from IS NULL OR jobs.promised_from <= ?::date)`, [OPEN_JOB_STATUSES, serviceFrom]);
     }
   });
   // The jobs in play are found once; the rest is fetched by those ids as one array parameter.
@@ -95,7 +101,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     () => byJobs<DependencyModel>((ids) => scoped(DependencyModel, actor, trx).whereIn('dependencies.to_stage_id', stagesOf(ids) as never)
       .select('dependencies.id', 'dependencies.from_stage_id', 'dependencies.to_stage_id', 'dependencies.type', 'dependencies.lag_amount', 'dependencies.lag_unit', 'dependencies.waits_for_cure')),
     () => byJobs<Booking & { startMs: number; endMs: number }>((ids) => scoped(Booking, actor, trx).where((w) => w.whereIn('bookings.stage_id', stagesOf(ids) as never)
-      .orWhere((o) => o.where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from)))
+      .orWhere(bookingDuring(knex, 'bookings', from, to)))
       .select('bookings.id', 'bookings.stage_id', 'bookings.resource_id', 'bookings.state', 'bookings.version',
         // Instants as epoch milliseconds straight from PostgreSQL: no Date per row.
         knex.raw('(extract(epoch from bookings.starts_at) * 1000)::float8 AS start_ms'), knex.raw('(extract(epoch from bookings.ends_at) * 1000)::float8 AS end_ms'))),
@@ -106,7 +112,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     () => reach === 'installer-office'
       ? knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').join('jobs as j', 'j.id', 's.job_id')
         .whereIn('b.resource_id', knex('resources').select('id').whereIn('id', visibleResourceIds).whereNot('firm_id', actor.firmId))
-        .whereNot('j.firm_id', actor.firmId).whereIn('b.state', ELSEWHERE_BLOCKING_STATES).where('b.starts_at', '<', to).where('b.ends_at', '>', from)
+        .whereNot('j.firm_id', actor.firmId).whereIn('b.state', ELSEWHERE_BLOCKING_STATES).where(bookingDuring(knex, 'b', from, to))
         .select('b.resource_id as resourceId', 'b.starts_at as startsAt', 'b.ends_at as endsAt') as Promise<{ resourceId: string; startsAt: Date; endsAt: Date }[]>
       : Promise.resolve([]),
   ] as const);
@@ -124,7 +130,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     const firm = firmOf.get(c.firmId);
     if (!firm) continue;
     if (!defaultCalendarOfFirm.has(c.firmId)) defaultCalendarOfFirm.set(c.firmId, c.id);
-    calendars.push({ id: c.id, timeZone: firm.timeZone, weekly: weeklyFromJson(c.weeklyHours), holidayRegion: holidayRegionOf(firm.holidayRegion), closures: closuresOf(c.id) });
+    calendars.push({ id: c.id, timeZone: firm.timeZone, weekly: weeklyFromJson(c.weeklyHours), holidayRegion: holidayRegionOf(firm.holidayRegion), holidays: holidaysFor(holidayRegionOf(firm.holidayRegion), query), closures: closuresOf(c.id) });
   }
   const calendarById = new Map(calendars.map((c) => [c.id, c]));
   const personIdsOf = new Map<string, string[]>();

@@ -12,6 +12,7 @@ import { findVisible, scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
 import { loadBoard } from './board.ts';
 import { verifyStages } from './schedule-check.ts';
+import { checkStageFinish } from './stage-gates.ts';
 import { bookingRemoved, enqueueMessage, queueBookingMessage, queueCustomerNotice } from './outbox.ts';
 
 const DAY = 86_400_000;
@@ -99,13 +100,52 @@ export class BookingWork {
   readonly checkStages = new Set<string>();
   private readonly timed: { bookingId: string; stageId: string; resourceId: string; start: number; end: number }[] = [];
   private index: BoardIndex | null = null;
+  /** Bookings locked ahead by {@link lockBookings}, each handed out once. */
+  private readonly locked = new Map<string, Booking>();
+  /** Rows that do not change within a write (a stage, a resource, a stage's installer), read once. */
+  private readonly stages = new Map<string, Stage>();
+  private readonly resources = new Map<string, Resource>();
+  private readonly installerOfStage = new Map<string, string>();
 
   constructor(readonly trx: Knex.Transaction, readonly ctx: WriteContext, private readonly writer: BookingWriter) {}
+
+  /**
+   * Locks and reads many bookings the work is about to change in one query (in id order), with their
+   * stages and resources in one query each, so a change of many bookings (a stage moved with its
+   * dependents) reads them once rather than one by one. Reads only: each change still goes through
+   * {@link apply}, which takes its booking from here and checks the version the caller saw.
+   */
+  async lockBookings(ids: readonly string[]): Promise<void> {
+    const wanted = [...new Set(ids.map(String))].filter((id) => /^\d+$/.test(id) && !this.locked.has(id));
+    if (wanted.length === 0) return;
+    const query = this.ctx.actor ? scoped(Booking, this.ctx.actor, this.trx) : Booking.query(this.trx);
+    const rows = await query.whereIn('bookings.id', wanted).orderBy('bookings.id').forUpdate();
+    for (const row of rows) this.locked.set(String(row.id), row);
+    await this.readStages(rows.map((r) => String(r.stageId)));
+    const resourceIds = [...new Set(rows.map((r) => String(r.resourceId)))].filter((id) => !this.resources.has(id));
+    if (resourceIds.length) for (const r of await Resource.query(this.trx).whereIn('id', resourceIds)) this.resources.set(String(r.id), r);
+  }
+
+  private async readStages(stageIds: string[]): Promise<void> {
+    const wanted = [...new Set(stageIds)].filter((id) => !this.stages.has(id));
+    if (wanted.length === 0) return;
+    const rows = await Stage.query(this.trx).join('jobs', 'jobs.id', 'stages.job_id').whereIn('stages.id', wanted).select('stages.*', 'jobs.firm_id as installerFirmId');
+    for (const row of rows) {
+      this.installerOfStage.set(String(row.id), String((row as Stage & { installerFirmId: string }).installerFirmId));
+      this.stages.set(String(row.id), row);
+    }
+  }
+
+  private async stage(id: string): Promise<Stage | undefined> {
+    await this.readStages([String(id)]);
+    return this.stages.get(String(id));
+  }
 
   /** A booking the writer may see, locked for this transaction, at the version the caller saw. */
   async booking(id: string, version?: number): Promise<Booking> {
     const query = this.ctx.actor ? scoped(Booking, this.ctx.actor, this.trx) : Booking.query(this.trx);
-    const row = await query.findById(id).forUpdate();
+    const row = this.locked.get(String(id)) ?? await query.findById(id).forUpdate();
+    this.locked.delete(String(id));
     if (!row) throw new NotFoundError('booking');
     if (version !== undefined && row.version !== version) {
       throw new StaleVersionError('Someone else changed this booking since you loaded it.', this.writer.viewOf(row));
@@ -115,10 +155,12 @@ export class BookingWork {
 
   /** Whose resource a booking holds, seen from the installer whose job it is. */
   private async sideOf(stageId: string, resourceId: string): Promise<{ side: ResourceSide; installerFirmId: string; resource: Resource }> {
-    const row = await this.trx('stages as s').join('jobs as j', 'j.id', 's.job_id').where('s.id', stageId).first('j.firm_id');
-    const resource = await Resource.query(this.trx).findById(resourceId);
-    if (!row || !resource) throw new NotFoundError(row ? 'resource' : 'stage');
-    const installerFirmId = String(row.firmId);
+    await this.readStages([String(stageId)]);
+    const firmId = this.installerOfStage.get(String(stageId));
+    const resource = this.resources.get(String(resourceId)) ?? await Resource.query(this.trx).findById(resourceId);
+    if (!firmId || !resource) throw new NotFoundError(firmId ? 'resource' : 'stage');
+    this.resources.set(String(resourceId), resource);
+    const installerFirmId = firmId;
     return { side: String(resource.firmId) === installerFirmId ? 'own' : 'partner', installerFirmId, resource };
   }
 
@@ -166,6 +208,26 @@ export class BookingWork {
     });
     this.index = createBoardIndex(toEngineBoard(data), { now });
     return this.index;
+  }
+
+  /**
+   * Loads the engine's index once for every stage a batch books (their jobs, across the span of
+   * their starts), so each item's calendar and length checks find it loaded instead of loading the
+   * board again. Reads only; stages of more than one installer are left to load one by one.
+   */
+  async prepareIndex(stageIds: readonly string[], starts: readonly number[]): Promise<void> {
+    const finite = starts.filter(Number.isFinite);
+    // A batch spread wider than a board window (or out of bounds, refused item by item) loads as before.
+    if (stageIds.length === 0 || finite.length === 0 || Math.max(...finite) - Math.min(...finite) > 100 * DAY) return;
+    const rows = await this.trx('stages as s').join('jobs as j', 'j.id', 's.job_id').whereIn('s.id', [...new Set(stageIds.map(String))])
+      .distinct('s.job_id', 'j.firm_id') as { jobId: string; firmId: string }[];
+    const firms = new Set(rows.map((r) => String(r.firmId)));
+    if (firms.size !== 1) return;
+    const now = this.writer.now();
+    const data = await loadBoard(this.trx, this.writer.installerOffice([...firms][0]!, this.ctx.actor), {
+      from: Math.min(...finite) - DAY, to: Math.max(...finite) + DAY, jobIds: rows.map((r) => String(r.jobId)), now,
+    });
+    this.index = createBoardIndex(toEngineBoard(data), { now });
   }
 
   /** The stage's working duration on the resource's calendar, from the start. */
@@ -245,6 +307,8 @@ export class BookingWork {
     if (timed && action === 'move' && before.state === 'declined') action = 'rebook';
     const to = this.stateAfter(action, before.state, side);
     if (action === 'arrive') await this.checkOnTheDay(before, installerFirmId);
+    // What the stage needs before it is done (a complete commissioning record, the certificate at handover).
+    if (action === 'finish') await checkStageFinish(this.trx, stageId);
 
     if (to === 'removed') {
       await Booking.query(this.trx).deleteById(before.id);
@@ -259,7 +323,7 @@ export class BookingWork {
     if (resourceId !== String(before.resourceId)) {
       const resource = this.ctx.actor ? await findVisible(Resource, this.ctx.actor, resourceId, this.trx, 'resource') : null;
       if (!resource) throw new NotFoundError('resource');
-      const stage = (await Stage.query(this.trx).findById(stageId))!;
+      const stage = (await this.stage(stageId))!;
       this.checkKind(stage, resource);
       const taken = await Booking.query(this.trx).where({ stageId, resourceId }).whereNot('id', before.id).first();
       if (taken) {
@@ -275,7 +339,7 @@ export class BookingWork {
       }
     }
     if (timed) {
-      const stage = (await Stage.query(this.trx).findById(stageId))!;
+      const stage = (await this.stage(stageId))!;
       this.checkTimes(change.startsAt, change.endsAt);
       const start = change.startsAt;
       const end = change.endsAt ?? await this.naturalEnd(stage, resourceId, start);

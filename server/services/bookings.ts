@@ -12,6 +12,7 @@ import { Booking, Stage } from '../models/index.ts';
 import { BadRequestError, ConflictError, HttpError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
+import { bookingDuring } from './ranges.ts';
 import { loadBoard } from './board.ts';
 import { withAnswers, type BookingWithAnswer } from './answer-views.ts';
 import { BookingWriter, TransitionRefusedError, partyOf, type BookingChange, type BookingLimits, type WriteOutcome } from './booking-writes.ts';
@@ -67,7 +68,7 @@ export class BookingsService {
 
   /** Bookings overlapping [from, to) that the actor may see. */
   async list(actor: Actor, from: string, to: string): Promise<BookingWithAnswer[]> {
-    const rows = await this.view(actor).where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from)
+    const rows = await this.view(actor).where(bookingDuring(this.knex, 'bookings', from, to))
       .orderBy('bookings.starts_at') as BookingRow[];
     return withAnswers(this.knex, rows.map(toView));
   }
@@ -98,6 +99,8 @@ export class BookingsService {
   async createMany(actor: Actor, inputs: CreateBooking[], undo?: UndoContext): Promise<WriteResult> {
     const outcome = await this.writer.run({ actor, party: partyOf(actor) },
       { stageIds: inputs.map((i) => i.stageId), resourceIds: inputs.map((i) => i.resourceId) }, async (w) => {
+        // The engine's view of every item's job is read once for the batch, not once per item.
+        await w.prepareIndex(inputs.map((i) => i.stageId), inputs.map((i) => Date.parse(i.startsAt)));
         for (const [n, input] of inputs.entries()) {
           try {
             await w.apply(bookChange(input));
@@ -167,6 +170,8 @@ export class BookingsService {
         throw new ConflictError(`Moving the stages after it would ask ${plural(unasked.length, 'partner booking')} again: ${names}. Choose to ask again, or move fewer stages.`,
           { code: 'asks-partners-again', bookings: unasked });
       }
+      // Every booking the move changes is locked and read in one query, not one by one.
+      await w.lockBookings(shifts.flatMap((s) => s.bookings.map((b) => String(b.id))));
       for (const shift of shifts) {
         const own = shift.stageId === stageId;
         for (const planned of shift.bookings) {

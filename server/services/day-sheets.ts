@@ -8,6 +8,7 @@ import { addDays, endOfLocalDay, localDateOf, startOfLocalDay, todayIn } from '.
 import { Booking, Firm } from '../models/index.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
+import { bookingDuring } from './ranges.ts';
 import { alongsideFor, contactsFor, visitStatesFor, type AlongsideRow } from './read-policy.ts';
 
 
@@ -54,7 +55,7 @@ export class DaySheetsService {
       .join('firms as jf', 'jf.id', 'j.firm_id')
       .leftJoin('units as u', 'u.id', 'j.unit_id')
       .leftJoin('firm_settings as fs', 'fs.firm_id', 'j.firm_id')
-      .where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from)
+      .where(bookingDuring(this.knex, 'bookings', from, to))
       .whereIn('bookings.state', visitStatesFor(actor))
       .select('bookings.*', 'r.name as resourceName', 'r.kind as resourceKind', 'r.category as resourceCategory', 'r.phone as resourcePhone',
         'rf.name as resourceFirmName', 's.kind as stageKind', 's.name as stageName', 'j.id as jobId', 'j.reference as jobReference',

@@ -4,9 +4,10 @@ import { Resource } from '../models/index.ts';
 import { UnprocessableError } from '../errors.ts';
 import { personFeed } from '../mail/calendar.ts';
 import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
-import { describeWindow, loadBookingFacts } from '../mail/facts.ts';
+import { describeWindow, loadBookingFactsMany } from '../mail/facts.ts';
 import type { Actor } from './actor.ts';
 import { findVisible } from './scope.ts';
+import { bookingDuring } from './ranges.ts';
 
 const hashOf = (token: string) => createHash('sha256').update(token).digest('hex');
 const DAY = 86_400_000;
@@ -55,11 +56,13 @@ export class FeedsService {
       .where((w) => w.where('b.resource_id', feed.id)
         .orWhereIn('b.resource_id', this.knex('crew_members').select('crew_id').where('person_id', feed.id)))
       .whereIn('b.state', ['sent', 'confirmed', 'on_site', 'done'])
-      .where('b.ends_at', '>', new Date(now.getTime() - 60 * DAY)).where('b.starts_at', '<', new Date(now.getTime() + 400 * DAY))
+      .where(bookingDuring(this.knex, 'b', now.getTime() - 60 * DAY, now.getTime() + 400 * DAY))
       .orderBy('b.starts_at').limit(1000).pluck('b.id');
+    // Every booking's facts in a fixed number of queries, however many bookings the feed holds.
+    const factsOf = await loadBookingFactsMany(this.knex, ids.map(String));
     const events = [];
     for (const id of ids) {
-      const facts = await loadBookingFacts(this.knex, String(id));
+      const facts = factsOf.get(String(id));
       if (!facts) continue;
       const when = describeWindow(facts.booking.startsAt, facts.booking.endsAt, facts.installer.timeZone);
       const cautions = cautionLines(facts.stage.kind);

@@ -20,6 +20,22 @@ export class StorageUnavailableError extends HttpError {
 
 export interface Upload { buffer: Buffer; originalName: string }
 
+/** What {@link FilesService.keep} stores, for whom, and what else it writes with the row. */
+export interface KeepFile {
+  jobId: string;
+  upload: Upload;
+  /** The person who sent it (null from a link with no signed-in person). */
+  uploadedBy: string | null;
+  actor: Actor | null;
+  /** Whose audit log the upload goes in, when not the actor's firm (a partner adding to an installer's job). */
+  auditFirmId?: string;
+  keepLocation: boolean;
+  /** Only these types (checked from the content), with the sentence a refusal says. */
+  accept?: readonly FileContentType[];
+  acceptText?: string;
+  also?: (trx: Knex.Transaction, file: JobFile) => Promise<void>;
+}
+
 /**
  * A job's photos and documents. The bytes go to object storage and a row to the database, both or
  * neither: if the row cannot be written the objects are removed again, and if storage fails no row
@@ -50,12 +66,26 @@ export class FilesService {
 
   async upload(actor: Actor, jobId: string, upload: Upload): Promise<FileView> {
     const job = await findVisible(Job, actor, jobId, undefined, 'job');
-    const info = await inspectFile(upload.buffer, upload.originalName);
-    const thumbnail = info.isPhoto ? await thumbnailOf(upload.buffer, info.contentType) : null;
     // The firm's own photos are the firm's call: by default a stored original carries no location.
     const keepLocation = (await scoped(FirmSettings, actor).first())?.keepPhotoLocation ?? false;
-    const original = storedOriginal(upload.buffer, info, keepLocation);
-    const base = `jobs/${job.id}/${randomUUID()}`;
+    return this.view(await this.keep({ jobId: String(job.id), upload, uploadedBy: actor.userId, actor, keepLocation }));
+  }
+
+  /**
+   * The one upload path: inspects the content (type from its bytes, `accept` narrowing it), keeps
+   * the object(s) and the row, both or neither; `also` runs in the row's transaction (a row that
+   * points at the new file). Callers decide first who may add a file to the job.
+   */
+  async keep(input: KeepFile): Promise<JobFile> {
+    const { upload } = input;
+    const info = await inspectFile(upload.buffer, upload.originalName);
+    if (input.accept && !input.accept.includes(info.contentType)) {
+      throw new HttpError(415, 'unsupported-file-type', 'This kind of file is not accepted', input.acceptText ?? 'This file type is not accepted here.',
+        { errors: [{ field: 'file', message: `is ${info.contentType}, not ${input.accept.join(' or ')}` }] });
+    }
+    const thumbnail = info.isPhoto ? await thumbnailOf(upload.buffer, info.contentType) : null;
+    const original = storedOriginal(upload.buffer, info, input.keepLocation);
+    const base = `jobs/${input.jobId}/${randomUUID()}`;
     const objectKey = `${base}.${info.ext}`;
     const thumbnailKey = thumbnail ? `${base}-thumb.jpg` : null;
     const stored: string[] = [];
@@ -72,14 +102,14 @@ export class FilesService {
       throw new StorageUnavailableError();
     }
     try {
-      const row = await this.knex.transaction(async (trx) => {
+      return await this.knex.transaction(async (trx) => {
         const created = await JobFile.query(trx).insertAndFetch({
-          jobId: job.id, objectKey, thumbnailKey, name: info.name, contentType: info.contentType, sizeBytes: original.length, uploadedBy: actor.userId,
+          jobId: input.jobId, objectKey, thumbnailKey, name: info.name, contentType: info.contentType, sizeBytes: original.length, uploadedBy: input.uploadedBy,
         } as Partial<JobFile>);
-        await recordChange(trx, actor, 'job_file', created.id, 'create', null, { ...created });
+        await recordChange(trx, input.actor, 'job_file', created.id, 'create', null, { ...created }, input.auditFirmId ?? input.actor?.firmId ?? null);
+        await input.also?.(trx, created);
         return created;
       });
-      return await this.view(row);
     } catch (err) {
       await this.removeQuietly(stored);
       throw err;

@@ -9,6 +9,7 @@ import { jobSupplies, latestAnswers, siteContacts } from './answer-views.ts';
 import { partnerSlotFacts } from './read-policy.ts';
 import { supplyLines } from '../../shared/slot-supply.ts';
 import { BookingWriter, type BookingLimits } from './booking-writes.ts';
+import { CERTIFIED_STAGE_KIND, partnerCertificates } from './certificates.ts';
 
 /** States a partner sees: a pencilled booking is the installer's private plan until it is sent. */
 const SHOWN = ['sent', 'confirmed', 'on_site'];
@@ -48,8 +49,9 @@ export class PartnerSlotsService {
         'j.id as job_id', 'j.customer_name', 'j.customer_phone', 'fs.share_customer_contact_with_partners as shares_customer_contact',
         'u.model as unit_model', 'u.length_mm', 'u.width_mm', 'u.height_mm', 'u.dry_weight_kg') as SlotRow[];
     const keys = rows.map((r) => ({ bookingId: String(r.id), jobId: String(r.jobId), startsAt: r.startsAt, endsAt: r.endsAt, timeZone: r.timeZone }));
-    const [answers, onSite, supplies] = await Promise.all([
+    const [answers, onSite, supplies, certificates] = await Promise.all([
       latestAnswers(this.knex, keys.map((k) => k.bookingId)), siteContacts(this.knex, keys), jobSupplies(this.knex, keys.map((k) => k.jobId)),
+      partnerCertificates(this.knex, actor.firmId, keys.map((k) => k.bookingId)),
     ]);
     return rows.map((r) => {
       const policy = partnerSlotFacts({
@@ -68,6 +70,7 @@ export class PartnerSlotsService {
         contacts: policy.contacts,
         cautions: cautionsFor(r.stageKind),
         answer: answers.get(String(r.id)) ?? null,
+        certificate: { wanted: r.stageKind === CERTIFIED_STAGE_KIND && r.state !== 'sent', uploaded: certificates.get(String(r.id)) ?? null },
       };
     });
   }

@@ -175,3 +175,33 @@ export function busyElsewhere(spans: readonly BusySpan[]): BusySpan[] {
 export function answerReasonFor(actor: Actor, installerFirmId: string, reason: string | null | undefined): string | null {
   return String(actor.firmId) === String(installerFirmId) && reason ? reason : null;
 }
+
+/**
+ * Who reads a job's handover records (the commissioning record, the electrical certificate and its
+ * waiver): the installer's office, and crew on a job they are booked on (the model scopes decide
+ * which jobs). A partner firm never reads them through the job; what it reads of its own upload is
+ * {@link certificateForPartner}.
+ */
+export function readsHandoverRecords(actor: Actor): boolean {
+  return reachOf(actor) !== 'partner';
+}
+
+/**
+ * A job's electrical certificate as a partner firm sees it on its slot: the name and date of the
+ * certificate only where this firm uploaded it (never another firm's file, never the office's waiver).
+ */
+export function certificateForPartner(actor: Actor | { firmId: string }, row: { uploadedByFirmId: string; name: string; uploadedAt: Date } | null): { name: string; uploadedAt: string } | null {
+  if (!row || String(row.uploadedByFirmId) !== String(actor.firmId)) return null;
+  return { name: row.name, uploadedAt: row.uploadedAt.toISOString() };
+}
+
+/**
+ * The householder's e-mail at handover: the office reads it whole; the crew, who stand with the
+ * householder, get only a hint to check it by ("m…@home.example"), never the address itself.
+ */
+export function handoverEmailFor(actor: Actor, email: string | null): { email: string | null; hint: string | null } {
+  if (!email) return { email: null, hint: null };
+  if (isOffice(actor)) return { email, hint: null };
+  const at = email.lastIndexOf('@');
+  return { email: null, hint: at > 0 ? `${email.slice(0, 1)}…${email.slice(at)}` : null };
+}

@@ -13,6 +13,8 @@ export interface PresignOptions { expiresInSeconds: number; downloadName?: strin
 export interface ObjectStore {
   put(key: string, body: Buffer, contentType: string): Promise<void>;
   delete(key: string): Promise<void>;
+  /** An object's bytes (the handover pack the mail worker attaches). */
+  get(key: string): Promise<Buffer>;
   /** A private link to one object that stops working after `expiresInSeconds`. */
   presignGet(key: string, options: PresignOptions): Promise<string>;
   close(): void;
@@ -50,6 +52,12 @@ export class S3ObjectStore implements ObjectStore {
 
   async delete(key: string): Promise<void> {
     await this.client.send(new DeleteObjectCommand({ Bucket: this.bucket, Key: key }));
+  }
+
+  async get(key: string): Promise<Buffer> {
+    const out = await this.client.send(new GetObjectCommand({ Bucket: this.bucket, Key: key }));
+    if (!out.Body) throw new Error(`object ${key} has no body`);
+    return Buffer.from(await out.Body.transformToByteArray());
   }
 
   async presignGet(key: string, options: PresignOptions): Promise<string> {

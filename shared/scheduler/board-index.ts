@@ -168,14 +168,16 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
   }
   const stages = new Map<string, StageInfo>();
   const stageList: StageInfo[] = new Array<StageInfo>(board.stages.length);
-  board.stages.forEach((s, idx) => {
+  // A plain loop (no closure per stage): this runs for every stage of every analysis.
+  for (let idx = 0; idx < board.stages.length; idx++) {
+    const s = board.stages[idx] as Stage;
     if (!(Number.isFinite(s.durationMinutes) && s.durationMinutes >= 0)) {
       throw new SchedulerError('invalid_duration', `Stage ${s.id} needs a duration of zero or more working minutes`);
     }
     const info: StageInfo = { idx, stage: s, bookings: EMPTY_BOOKINGS, depsIn: EMPTY_LINKS, depsOut: EMPTY_LINKS };
     stages.set(s.id, info);
     stageList[idx] = info;
-  });
+  }
   const jobs = new Map<string, Job>();
   for (const j of board.jobs) jobs.set(j.id, j);
   const byResource = new Map<string, Booking[]>();

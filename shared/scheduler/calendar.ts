@@ -1,5 +1,5 @@
 import { SchedulerError } from './errors.js';
-import { holidayDaySet } from './holidays.js';
+import { holidayDaysOf } from './holidays.js';
 import { DAY_MS, MINUTE_MS, assertTimeZone, localToInstant, timeZoneOffset, weekdayOfDay } from './time-zone.js';
 import type { Instant, Interval, WorkingCalendar } from './types.js';
 
@@ -125,10 +125,7 @@ class CalendarImpl implements CompiledCalendar {
     const cal = this.source;
     const ranges = cal.weekly[weekdayOfDay(day)] ?? [];
     if (ranges.length === 0) return EMPTY;
-    if (cal.holidayRegion) {
-      const year = new Date(day * DAY_MS).getUTCFullYear();
-      if (holidayDaySet(cal.holidayRegion, year).has(day)) return EMPTY;
-    }
+    if (holidayDaysOf(cal).has(day)) return EMPTY;
     const out: number[] = [];
     const sortedRanges = ranges.slice().sort((a, b) => a[0] - b[0]);
     for (const [sm, em] of sortedRanges) {

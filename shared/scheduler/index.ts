@@ -5,7 +5,7 @@
 export type * from './types.js';
 export { SchedulerError, type SchedulerErrorCode } from './errors.js';
 export { timeZoneOffset, localDayOf, localToInstant, dayNumber, isoDateOfDay, weekdayOfDay, DAY_MS, HOUR_MS, MINUTE_MS } from './time-zone.js';
-export { publicHolidays, holidayDaySet, type PublicHoliday, type PublicHolidaysOptions } from './holidays.js';
+export { holidayDaysOf } from './holidays.js';
 export {
   compileCalendar, addWorkingMinutes, addWorkingDays, nextWorkingInstant, isWorkingInstant, isWorkingEnd,
   workingMinutesBetween, workingIntervals, countWorkingDays, type CompiledCalendar,
@@ -42,5 +42,5 @@ export { findSlots, nextCandidate, laterCannotHelp, type SlotRequest, type FindS
 export { autoPlace, type AutoPlaceOptions, type AutoPlaceResult, type PlacedStage, type UnplacedStage } from './auto-place.js';
 export { idleHireDays, type IdleHire } from './checks/hire.js';
 export { overlappingPairs } from './checks/clash.js';
-export { normaliseViolations, violationKey } from './checks/violation.js';
+export { compareViolations, normaliseViolations, violationKey } from './checks/violation.js';
 export { formatInstant, formatPence } from './format.js';

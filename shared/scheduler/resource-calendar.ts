@@ -23,6 +23,7 @@ export function resourceCalendar(firm: WorkingCalendar, options: ResourceCalenda
     timeZone: firm.timeZone,
     weekly: (options.weekly ?? firm.weekly).map((day) => day.map((r) => [r[0], r[1]] as const)),
     holidayRegion: firm.holidayRegion ? { ...firm.holidayRegion } : null,
+    ...(firm.holidays ? { holidays: firm.holidays } : {}),
     closures: [...(firm.closures ?? []), ...(options.absences ?? [])].map((c) => ({ start: c.start, end: c.end })),
   };
 }

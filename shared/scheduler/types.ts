@@ -19,13 +19,26 @@ export interface HolidayRegion {
   state?: string;
 }
 
+/** A public holiday a calendar keeps free: its local date (YYYY-MM-DD) and name. */
+export interface PublicHoliday {
+  date: string;
+  name: string;
+}
+
 /** A firm's (or a resource's) working time: weekly hours, public holidays and closures. */
 export interface WorkingCalendar {
   id: string;
   /** IANA time zone, e.g. Europe/London. */
   timeZone: string;
   weekly: WeeklyHours;
+  /** Where the holidays come from (the server fills `holidays` from it); the engine never reads it. */
   holidayRegion?: HolidayRegion | null;
+  /**
+   * The public holidays (observed days) the engine keeps free, for the span the data covers: the
+   * server lists the region's days for the loaded range and a margin (server/services/holiday-days.ts).
+   * The engine holds no holiday tables of its own; a day not listed is an ordinary day.
+   */
+  holidays?: readonly PublicHoliday[];
   /** Spans with no work (firm closures, a resource's absences). */
   closures?: Interval[];
 }

@@ -94,5 +94,7 @@ export const PartnerSlot = z.object({
   contacts: z.array(z.object({ name: z.string(), phone: z.string().nullable(), role: z.string() })),
   cautions: z.array(z.string()),
   answer: BookingAnswerView.nullable(),
+  /** An electrical connection: whether it takes a certificate, and the one this firm uploaded (null: none yet). */
+  certificate: z.object({ wanted: z.boolean(), uploaded: z.object({ name: z.string(), uploadedAt: z.string() }).nullable() }).optional(),
 });
 export type PartnerSlot = z.infer<typeof PartnerSlot>;

@@ -165,3 +165,11 @@ export const DEFAULT_TEMPLATES: Record<InstallTemplate['installationType'], Inst
   slab: SLAB_TEMPLATE,
   deck: DECK_TEMPLATE,
 };
+
+/**
+ * A service visit after the handover: one install crew for two working hours (common practice, no
+ * source). The firm's service plan sets these up as jobs of their own (server/services/handover.ts).
+ */
+export const SERVICE_VISIT_TEMPLATE: StageTemplate = {
+  kind: 'service_visit', name: 'Service visit', duration: fixed(120), requirements: [{ kind: 'install_crew', count: 1 }],
+};

@@ -85,9 +85,17 @@ export const jobWork = {
  * @example await uploadJobFile('12', file, csrfToken, (p) => (progress.value = p))
  */
 export function uploadJobFile(jobId: string, file: File, csrfToken: string | null, onProgress: (fraction: number) => void): Promise<FileView> {
+  return uploadTo<FileView>(`/api/jobs/${jobId}/files`, file, csrfToken, onProgress);
+}
+
+/**
+ * Sends one file (field `file`) to an upload route, reporting progress from 0 to 1.
+ * @example await uploadTo('/api/partner/slots/7/certificate', file, csrfToken, (p) => (progress.value = p))
+ */
+export function uploadTo<T>(url: string, file: File, csrfToken: string | null, onProgress: (fraction: number) => void): Promise<T> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
-    xhr.open('POST', `/api/jobs/${jobId}/files`);
+    xhr.open('POST', url);
     xhr.setRequestHeader('Accept', 'application/json, application/problem+json');
     if (csrfToken) xhr.setRequestHeader('X-CSRF-Token', csrfToken);
     xhr.upload.onprogress = (e) => { if (e.lengthComputable) onProgress(e.loaded / e.total); };
@@ -95,7 +103,7 @@ export function uploadJobFile(jobId: string, file: File, csrfToken: string | nul
     xhr.onload = () => {
       let body: unknown;
       try { body = JSON.parse(xhr.responseText); } catch { body = undefined; }
-      if (xhr.status >= 200 && xhr.status < 300) resolve(body as FileView);
+      if (xhr.status >= 200 && xhr.status < 300) resolve(body as T);
       else reject(problemToError(xhr.status, body));
     };
     const form = new FormData();

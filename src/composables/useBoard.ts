@@ -27,9 +27,10 @@ export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
   let controller: AbortController | null = null;
   let range: BoardRange | null = null;
 
+  // The engine's index is built once per load (or merged write) and serves the analysis and every drag check.
   const index = computed<BoardIndex | null>(() => (data.value ? boardIndexOf(data.value, seesAll()) : null));
   // Problems that involve only busy-elsewhere blocks are another installer's business: dropped.
-  const analysis = computed<BoardAnalysis | null>(() => (data.value ? boardAnalysisOf(data.value, seesAll()) : null));
+  const analysis = computed<BoardAnalysis | null>(() => (data.value && index.value ? boardAnalysisOf(data.value, index.value) : null));
 
   /** The session's changes that can be taken back (the server keeps them). */
   async function loadUndo(): Promise<void> {

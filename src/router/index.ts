@@ -27,6 +27,10 @@ export const routes: RouteRecordRaw[] = [
   { path: '/jobs/:id(\\d+)', name: 'job', component: () => import('@/views/JobDetailView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Job' } },
   { path: '/jobs/:id(\\d+)/edit', name: 'job-edit', component: () => import('@/views/JobFormView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'Edit job' } },
   { path: '/jobs/:id(\\d+)/survey', name: 'job-survey', component: () => import('@/views/SurveyView.vue'), meta: { roles: rolesWith('surveys:write'), title: 'Site survey' } },
+  // The crew's commissioning record (the office reads and may fill it in too); the server decides who may change it.
+  { path: '/jobs/:id(\\d+)/commission', name: 'job-commission', component: () => import('@/views/CommissioningView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Commissioning' } },
+  // The handover with the householder on the crew's phone; signing takes the progress permission (the server checks it too).
+  { path: '/jobs/:id(\\d+)/handover', name: 'job-handover', component: () => import('@/views/HandoverView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Handover' } },
   { path: '/templates', name: 'templates', component: () => import('@/views/TemplatesView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'Stage templates' } },
   { path: '/day-sheets', name: 'day-sheets', component: () => import('@/views/DaySheetView.vue'), meta: { roles: rolesWith('day-sheets:read'), title: 'Day sheets' } },
   { path: '/slots/day-sheets', name: 'partner-day-sheets', component: () => import('@/views/DaySheetView.vue'), meta: { roles: rolesWith('slots:read'), title: 'Day sheets' } },

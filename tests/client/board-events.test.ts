@@ -107,11 +107,14 @@ describe('shading and the tray', () => {
 
 describe('bank holidays on the board', () => {
   it('shade the whole local day on the rows of that calendar (Christmas Day 2026, England and Wales)', async () => {
-    const { publicHolidays, localToInstant, dayNumber } = await import('@shared/scheduler/index');
-    const data = { ...board(), from: Date.UTC(2026, 11, 21), to: Date.UTC(2026, 11, 31) };
-    const days = holidaysOf(data, (r, y) => publicHolidays(r, y), localToInstant, dayNumber);
-    // gov.uk bank holidays for England and Wales (from memory): Fri 25 Dec 2026, Mon 28 Dec 2026 (Boxing Day substitute).
-    expect(days.map((d) => new Date(d.start).toISOString())).toEqual(['2026-12-25T00:00:00.000Z', '2026-12-28T00:00:00.000Z']);
+    const { localToInstant, dayNumber } = await import('@shared/scheduler/index');
+    // gov.uk bank holidays for England and Wales (from memory): Fri 25 Dec 2026, Mon 28 Dec 2026 (Boxing Day
+    // substitute), as the server lists them on the calendar; New Year's Day falls outside the range.
+    const holidays = [{ date: '2026-12-25', name: 'Christmas Day' }, { date: '2026-12-28', name: 'Boxing Day' }, { date: '2027-01-01', name: "New Year's Day" }];
+    const base = board();
+    const data = { ...base, from: Date.UTC(2026, 11, 21), to: Date.UTC(2026, 11, 31), calendars: base.calendars.map((c) => ({ ...c, holidays })) };
+    const days = holidaysOf(data, localToInstant, dayNumber);
+    expect(days.map((d) => [new Date(d.start).toISOString(), d.name])).toEqual([['2026-12-25T00:00:00.000Z', 'Christmas Day'], ['2026-12-28T00:00:00.000Z', 'Boxing Day']]);
     expect(days.every((d) => d.end - d.start === 86_400_000)).toBe(true);
   });
 });

@@ -32,6 +32,8 @@ function board(): BoardData {
   };
 }
 
+const analysed = (data: BoardData, seesAll: boolean) => boardAnalysisOf(data, boardIndexOf(data, seesAll));
+
 describe("the engine over a crew member's part of the board", () => {
   it('is told the board is partial for crew only', () => {
     expect(seesAllBookingsAs('crew')).toBe(false);
@@ -41,9 +43,9 @@ describe("the engine over a crew member's part of the board", () => {
   });
 
   it("warns of the unbooked stages before the lift on the office's board, and not on a crew member's", () => {
-    const office = boardAnalysisOf(board(), seesAllBookingsAs('scheduler')).violations.filter((v) => v.kind === 'unbooked_predecessor');
+    const office = analysed(board(), seesAllBookingsAs('scheduler')).violations.filter((v) => v.kind === 'unbooked_predecessor');
     expect(office.map((v) => v.stageIds)).toEqual([['base', 'dig', 'lift']]);
-    expect(boardAnalysisOf(board(), seesAllBookingsAs('crew')).violations).toEqual([]);
+    expect(analysed(board(), seesAllBookingsAs('crew')).violations).toEqual([]);
   });
 });
 
@@ -51,7 +53,7 @@ describe("the job panel's earliest times", () => {
   it("count an unbooked stage's unbooked predecessors, in working time", () => {
     // Now is Monday 09:07.
     const data = { ...board(), bookings: [], now: MON + 67 * 60_000 };
-    const analysis = boardAnalysisOf(data, true);
+    const analysis = analysed(data, true);
     const lines = stageLines(data, boardIndexOf(data, true), 'j1', analysis.criticalPaths.find((p) => p.jobId === 'j1'), analysis.violations);
     // A dig of one whole working day must be done within one (it may not run on overnight), so not
     // from 09:15 Monday: Tuesday 08:00–17:00; the base then Wednesday 08:00–12:00, the lift from 12:00 (BST).

@@ -6,7 +6,7 @@ import { account, idOf, signIn, type Agent } from '../helpers/server.ts';
 import { makeJob, type FixtureStage } from '../helpers/flows.ts';
 import { Inbox, answerLinks } from '../helpers/mail.ts';
 import { startMailPipeline, type MailPipeline } from '../../workers/pipeline.ts';
-import { openBoard } from './helpers-board.ts';
+import { dragBooking, openBoard } from './helpers-board.ts';
 
 /*
  * Two stories end to end, in chromium at 1280 × 800: a partner answering from the e-mail while the
@@ -95,6 +95,59 @@ describe('stories across firms', () => {
     // Stored as confirmed, and the board never reloaded to show it (the same document, still on the week).
     expect((await app.ctx.knex('bookings').where('id', id).first('state')).state).toBe('confirmed');
     expect(new URL(board.url()).search).toBe('?view=week&date=2026-12-14');
+  }, 120_000);
+
+  it('the manager finds a machine hire clash in reports, follows it to the board and moves the dig onto a free machine', async () => {
+    const knex = app.ctx.knex;
+    // The demo's TW-2410 digs on the hired 3 t excavator after that hire has ended (seeds/demo.ts, DEMO_PROBLEMS.hireClash).
+    const hired = await idOf(knex, 'resources', { name: '3 t excavator (hired)' });
+    const owned = await idOf(knex, 'resources', { name: '1.5 t excavator' });
+    const dig = await knex('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
+      .where({ 'jobs.reference': 'TW-2410', 'stages.kind': 'excavation', 'bookings.resource_id': hired }).first('bookings.id', 'bookings.starts_at');
+    expect(dig).toBeDefined();
+    const digId = String(dig.id);
+
+    const context = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
+    // The reports page spans the weeks from the browser's today: the scenario's Monday 1 June 2026.
+    await context.clock.setFixedTime(new Date('2026-06-01T08:00:00+01:00'));
+    const page = await context.newPage();
+    open.push({ name: 'manager', page });
+    await signInThroughPage(page, app.url, account('manager').email);
+    await page.goto(`${app.url}/reports`);
+
+    // The clash table names the machine, the job and what the hire costs as booked.
+    const row = page.locator('tr', { hasText: 'TW-2410' }).filter({ hasText: '3 t excavator' }).first();
+    await row.waitFor({ timeout: 30_000 });
+    expect(await row.innerText()).toMatch(/£\d/);
+    await page.screenshot({ path: 'tests/e2e/artifacts/story-manager-reports.png' });
+    await row.getByRole('link', { name: 'Show on the board' }).click();
+    await page.waitForURL(/\/board\?/);
+    expect(new URL(page.url()).searchParams.get('highlight')?.split(',')).toContain(digId);
+    await expect.poll(() => page.locator(`.fc-event.wl-pointed[data-booking-id="${digId}"]`).count(), { timeout: 15_000 }).toBe(1);
+
+    // She widens the search to every excavator, and drags the dig onto the firm's own 1.5 t machine, back from its service by then.
+    const search = page.getByRole('searchbox');
+    await search.fill('excavator');
+    await page.waitForSelector(`td.fc-timeline-lane[data-resource-id="${owned}"]`);
+    const { slotDate, fraction } = await page.locator(`.fc-event[data-booking-id="${digId}"]`).evaluate((el) => {
+      // The slot the dig starts in (the timeline's slot lane under the chip's left edge), and how far into it.
+      const x = el.getBoundingClientRect().left;
+      const lanes = [...document.querySelectorAll('td.fc-timeline-slot-lane[data-date]')] as HTMLElement[];
+      const lane = lanes.find((l) => { const r = l.getBoundingClientRect(); return r.left <= x + 1 && x + 1 < r.right; });
+      const r = lane?.getBoundingClientRect();
+      return { slotDate: lane?.dataset.date ?? '', fraction: r ? (x - r.left) / r.width : 0 };
+    });
+    expect(slotDate).not.toBe('');
+    await dragBooking(page, digId, owned, slotDate, fraction);
+    await expect.poll(async () => String((await knex('bookings').where('id', digId).first('resource_id')).resourceId), { timeout: 15_000 }).toBe(owned);
+    const moved = await knex('bookings').where('id', digId).first('starts_at');
+    expect(moved.startsAt.getTime()).toBe(dig.startsAt.getTime());
+    await page.screenshot({ path: 'tests/e2e/artifacts/story-manager-fixed.png' });
+
+    // Back in the reports the clash is gone.
+    await page.goto(`${app.url}/reports`);
+    await page.getByRole('heading', { name: /clash/i }).first().waitFor({ timeout: 30_000 });
+    await expect.poll(() => page.locator('tr', { hasText: 'TW-2410' }).filter({ hasText: '3 t excavator' }).count(), { timeout: 15_000 }).toBe(0);
   }, 120_000);
 
   it("the second installer finds none of the first installer's names anywhere", async () => {

@@ -49,9 +49,10 @@ export type Agent = ReturnType<typeof request.agent> & { csrf: string };
 
 /**
  * Signs in through the real redirect flow: the app sends the browser to the provider, the provider
- * sends it back with a code, the app exchanges the code and fetches the profile.
+ * sends it back with a code, the app exchanges the code and fetches the profile. `ctx.waterline.app`
+ * may also be the address of a running server (http://127.0.0.1:<port>).
  */
-export async function signIn(ctx: TestContext, email: string): Promise<Agent> {
+export async function signIn(ctx: { waterline: { app: WaterlineApp['app'] | string } }, email: string): Promise<Agent> {
   const agent = request.agent(ctx.waterline.app) as Agent;
   const start = await agent.get('/auth/google?next=/jobs').expect(302);
   const pick = new URL(start.headers.location as string);

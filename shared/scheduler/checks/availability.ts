@@ -1,7 +1,7 @@
 import { resourceCalendarOf, type BoardIndex } from '../board-index.js';
 import { isWorkingEnd, isWorkingInstant, workingMinutesBetween, type CompiledCalendar } from '../calendar.js';
 import { formatInstant } from '../format.js';
-import { holidayDaySet } from '../holidays.js';
+import { holidayDaysOf } from '../holidays.js';
 import { DAY_MS, MINUTE_MS, timeZoneOffset, weekdayOfDay } from '../time-zone.js';
 import type { Booking, Stage, Violation } from '../types.js';
 import { capitalise, makeViolation, resourceLabel, stageLabel } from './violation.js';
@@ -14,8 +14,7 @@ import { capitalise, makeViolation, resourceLabel, stageLabel } from './violatio
  */
 export function whyNotWorking(cal: CompiledCalendar, instant: number): string {
   const day = cal.dayOf(instant);
-  const region = cal.source.holidayRegion;
-  if (region && holidayDaySet(region, new Date(day * DAY_MS).getUTCFullYear()).has(day)) return 'public holiday';
+  if (holidayDaysOf(cal.source).has(day)) return 'public holiday';
   const minute = (instant + timeZoneOffset(cal.timeZone, instant) - day * DAY_MS) / MINUTE_MS;
   const ranges = cal.source.weekly[weekdayOfDay(day)] ?? [];
   if (ranges.some(([s, e]) => s <= minute && minute < e)) return 'closed or absent';

@@ -44,8 +44,9 @@ export function checkDependencyBetween(
   const anchor = dep.type === 'FS' || dep.type === 'FF' ? pEnd : pStart;
   const subject = dep.type === 'FS' || dep.type === 'SS' ? sStart : sEnd;
   const bound = applyLag(succCal, anchor, dep.lag);
-  const [verb, done, does] = WORDS[dep.type];
   if (subject < bound) {
+    // Words only when there is something to say (no destructuring on the path every link takes).
+    const [verb, done, does] = WORDS[dep.type];
     const P = stageLabel(index, dep.fromStageId), S = stageLabel(index, dep.toStageId);
     const ids = [dep.fromStageId, dep.toStageId];
     const details: Record<string, unknown> = {

@@ -11,6 +11,19 @@ function hours(minutes: number): string {
   return minutes < 60 ? `${minutes} min` : `${Math.round((minutes / 60) * 100) / 100} h`;
 }
 
+/** The last booking checked on an index: its calendar, stage, times and the words it got (null: none). */
+interface LastSplit {
+  cal: CompiledCalendar;
+  stage: Stage;
+  stageId: string;
+  start: number;
+  end: number;
+  message: string | null;
+  details: Record<string, unknown>;
+}
+
+const lastSplit = new WeakMap<BoardIndex, LastSplit>();
+
 /**
  * A stage no longer than a working day (and not allowed to continue next day) must be done within
  * one working day: a booking of it whose working time falls on two or more local days is an error
@@ -33,7 +46,18 @@ export function checkSplit(
   if (stage === undefined || booking.state === 'on_site' || booking.state === 'done' || !mustFitInOneDay(stage, cal)) return out;
   // Most bookings start and end on one local day: two offset look-ups settle them.
   if (cal.dayOf(booking.start) === cal.dayOf(booking.end - 1)) return out;
+  // A stage's bookings usually share their times (a lift's crane and pallet trucks): the words
+  // worked out for one serve the next.
+  const last = lastSplit.get(index);
+  if (last !== undefined && last.cal === cal && last.stage === stage && last.stageId === booking.stageId && last.start === booking.start && last.end === booking.end) {
+    if (last.message !== null) {
+      out.push(makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id], last.message, { ...last.details }));
+    }
+    return out;
+  }
   const days = workingDaysWithin(cal, booking.start, booking.end, 3);
+  const seen: LastSplit = { cal, stage, stageId: booking.stageId, start: booking.start, end: booking.end, message: null, details: {} };
+  lastSplit.set(index, seen);
   if (days.length < 2) return out;
   if (workingMinutesBetween(cal, booking.start, booking.end) * MINUTE_MS === booking.end - booking.start) return out;
   const tz = cal.timeZone;
@@ -59,8 +83,9 @@ export function checkSplit(
     if (next !== null) details.earliestStart = next;
     if (fits) details.latestStartThatDay = latest;
   }
-  out.push(makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id],
-    `${stageLabel(index, booking.stageId)} would be split over ${days.length === 2 ? 'two' : 'several'} working days (${formatInstant(booking.start, tz)} to ${formatInstant(booking.end, tz)}): its ${hours(need)} must be done within one working day — ${advice}`,
-    details));
+  const message = `${stageLabel(index, booking.stageId)} would be split over ${days.length === 2 ? 'two' : 'several'} working days (${formatInstant(booking.start, tz)} to ${formatInstant(booking.end, tz)}): its ${hours(need)} must be done within one working day — ${advice}`;
+  seen.message = message;
+  seen.details = details;
+  out.push(makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id], message, { ...details }));
   return out;
 }

@@ -40,19 +40,97 @@ export function violationKey(v: Violation): string {
   return `${v.kind}|${v.severity}|${v.stageIds.join(',')}|${v.resourceIds.join(',')}|${v.bookingIds.join(',')}|${v.message}`;
 }
 
+const BAR = 124; // '|'
+const COMMA = 44; // ','
+
+/**
+ * Compares one list of ids as it stands in two keys (`a,b,c`), and what follows it (`|`).
+ * Returns the order, or NaN when the lists' texts tie in a way only the full keys can settle (an
+ * id holding ',' or '|').
+ */
+function compareIdLists(x: readonly string[], y: readonly string[]): number {
+  const n = Math.min(x.length, y.length);
+  for (let i = 0; i < n; i++) {
+    const a = x[i] as string, b = y[i] as string;
+    if (a === b) continue;
+    // The texts differ inside these ids unless one is a prefix of the other; then the shorter
+    // one's separator meets the longer one's next character.
+    const m = Math.min(a.length, b.length);
+    for (let k = 0; k < m; k++) {
+      const d = a.charCodeAt(k) - b.charCodeAt(k);
+      if (d !== 0) return d;
+    }
+    const sepA = i + 1 < x.length ? COMMA : BAR, sepB = i + 1 < y.length ? COMMA : BAR;
+    const d = a.length < b.length ? sepA - b.charCodeAt(m) : a.charCodeAt(m) - sepB;
+    return d === 0 ? Number.NaN : d;
+  }
+  if (x.length === y.length) return 0;
+  if (n > 0) return x.length > y.length ? COMMA - BAR : BAR - COMMA; // one goes on (',') where the other ends ('|')
+  // An empty list ends at once ('|') where the other's first id begins.
+  const d = x.length === 0 ? BAR - firstChar(y) : firstChar(x) - BAR;
+  return d === 0 ? Number.NaN : d;
+}
+
+/** The first character of a non-empty list's text (NaN, settled by the full keys, for an empty first id). */
+function firstChar(list: readonly string[]): number {
+  const first = list[0] as string;
+  return first.length > 0 ? first.charCodeAt(0) : Number.NaN;
+}
+
+/**
+ * The order of two violations' keys ({@link violationKey}) without building them: field by
+ * field, which gives the same order as comparing the joined text (the full keys settle the rare
+ * tie field by field can't).
+ *
+ * @example
+ * violations.slice().sort(compareViolations)
+ */
+export function compareViolations(a: Violation, b: Violation): number {
+  let d: number;
+  if (a.kind !== b.kind) d = compareText(a.kind, b.kind);
+  else if (a.severity !== b.severity) d = compareText(a.severity, b.severity);
+  else {
+    d = compareIdLists(a.stageIds, b.stageIds);
+    if (d === 0) d = compareIdLists(a.resourceIds, b.resourceIds);
+    if (d === 0) d = compareIdLists(a.bookingIds, b.bookingIds);
+    if (d === 0) return a.message < b.message ? -1 : a.message > b.message ? 1 : 0;
+  }
+  if (Number.isNaN(d)) {
+    const ka = violationKey(a), kb = violationKey(b);
+    return ka < kb ? -1 : ka > kb ? 1 : 0;
+  }
+  return d;
+}
+
+/** Two words that are followed by '|' in the key (a kind or a severity). */
+function compareText(a: string, b: string): number {
+  const m = Math.min(a.length, b.length);
+  for (let k = 0; k < m; k++) {
+    const d = a.charCodeAt(k) - b.charCodeAt(k);
+    if (d !== 0) return d;
+  }
+  const d = a.length < b.length ? BAR - b.charCodeAt(m) : a.charCodeAt(m) - BAR;
+  return d === 0 ? Number.NaN : d;
+}
+
 /**
  * Removes duplicates and sorts violations by key (errors and warnings mixed, stable order).
+ * Of equal violations the first is kept.
  *
  * @example
  * normaliseViolations([v, v]).length // 1
  */
 export function normaliseViolations(list: readonly Violation[]): Violation[] {
-  const seen = new Map<string, Violation>();
-  for (const v of list) {
-    const k = violationKey(v);
-    if (!seen.has(k)) seen.set(k, v);
+  // A stable sort keeps equal keys in list order, so the first of each run is the one kept.
+  const sorted = list.slice().sort(compareViolations);
+  const out: Violation[] = [];
+  let last: Violation | undefined;
+  for (const v of sorted) {
+    if (last !== undefined && compareViolations(last, v) === 0) continue;
+    out.push(v);
+    last = v;
   }
-  return [...seen.entries()].sort((a, b) => (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0)).map((e) => e[1]);
+  return out;
 }
 
 /**

@@ -206,23 +206,19 @@ export function trayOf(data: BoardData, order: (jobId: string) => string[]): { j
 }
 
 /**
- * Public holidays of each calendar's region within the board's range, as whole local days — the
- * holidays the engine also treats as non-working.
+ * The public holidays each calendar carries (the server lists them for the loaded range) that fall
+ * within the board's range, as whole local days — the days the engine also treats as non-working.
  */
-export function holidaysOf(data: BoardData, list: (region: { country: string; state?: string }, year: number) => { date: string; name: string }[],
-  toInstant: (timeZone: string, day: number, minute: number) => number, dayOf: (y: number, m: number, d: number) => number): { calendarId: string; start: number; end: number; name: string }[] {
+export function holidaysOf(data: BoardData, toInstant: (timeZone: string, day: number, minute: number) => number,
+  dayOf: (y: number, m: number, d: number) => number): { calendarId: string; start: number; end: number; name: string }[] {
   const out: { calendarId: string; start: number; end: number; name: string }[] = [];
-  const years = [...new Set([new Date(data.from).getUTCFullYear(), new Date(data.to).getUTCFullYear()])];
   for (const c of data.calendars) {
-    if (!c.holidayRegion) continue;
-    for (const year of years) {
-      for (const h of list(c.holidayRegion, year)) {
-        const [y, m, d] = h.date.split('-').map(Number) as [number, number, number];
-        const day = dayOf(y, m, d);
-        const start = toInstant(c.timeZone, day, 0);
-        const end = toInstant(c.timeZone, day + 1, 0);
-        if (end > data.from && start < data.to) out.push({ calendarId: c.id, start, end, name: h.name });
-      }
+    for (const h of c.holidays ?? []) {
+      const [y, m, d] = h.date.split('-').map(Number) as [number, number, number];
+      const day = dayOf(y, m, d);
+      const start = toInstant(c.timeZone, day, 0);
+      const end = toInstant(c.timeZone, day + 1, 0);
+      if (end > data.from && start < data.to) out.push({ calendarId: c.id, start, end, name: h.name });
     }
   }
   return out;

@@ -7,7 +7,7 @@
  */
 import type { Role } from '@shared/permissions';
 import { ownViolations, toEngineBoard, type BoardData } from '@shared/board-data';
-import { analyseBoard, createBoardIndex, type BoardAnalysis, type BoardIndex, type BoardIndexOptions } from '@shared/scheduler/index';
+import { boardCriticalPath, boardViolations, createBoardIndex, type BoardAnalysis, type BoardIndex, type BoardIndexOptions } from '@shared/scheduler/index';
 
 /**
  * Whether a role's board holds every booking of its firm (crew see their own rows only).
@@ -23,18 +23,20 @@ export function engineOptions(data: Pick<BoardData, 'now'>, seesAllBookings: boo
   return { now: data.now, seesAllBookings };
 }
 
-/** The engine's index over the loaded board. */
+/** The engine's index over the loaded board: built once per load, for the analysis and every drag check. */
 export function boardIndexOf(data: BoardData, seesAllBookings: boolean): BoardIndex {
   return createBoardIndex(toEngineBoard(data), engineOptions(data, seesAllBookings));
 }
 
 /**
- * The engine's full analysis of the loaded board, without the problems that involve only
+ * The engine's full analysis of the loaded board (what `analyseBoard` gives), read from the index
+ * the board already built rather than a second one, without the problems that involve only
  * busy-elsewhere blocks (another installer's business), its counts to match.
+ *
+ * @example boardAnalysisOf(data, boardIndexOf(data, true))
  */
-export function boardAnalysisOf(data: BoardData, seesAllBookings: boolean): BoardAnalysis {
-  const full = analyseBoard(toEngineBoard(data), engineOptions(data, seesAllBookings));
-  const violations = ownViolations(data, full.violations);
+export function boardAnalysisOf(data: BoardData, index: BoardIndex): BoardAnalysis {
+  const violations = ownViolations(data, boardViolations(index));
   const errorCount = violations.filter((v) => v.severity === 'error').length;
-  return { ...full, violations, errorCount, warningCount: violations.length - errorCount };
+  return { violations, errorCount, warningCount: violations.length - errorCount, criticalPaths: boardCriticalPath(index) };
 }

@@ -3,7 +3,7 @@
  * stage with some of its resources booked stays until the rest are ("needs 1 dumper"), and a
  * partner's decline shows beside it. Pure, so it is tested without a browser.
  */
-import type { BoardData, BoardJob, BoardStage } from '@shared/board-data';
+import type { BoardBooking, BoardData, BoardJob, BoardStage } from '@shared/board-data';
 import { plural } from '@shared/plural';
 import { kindLabel } from './board-events';
 
@@ -23,6 +23,25 @@ export interface TrayStage {
 
 export interface TrayGroup { job: BoardJob; stages: TrayStage[] }
 
+interface Lookups { stages: Map<string, BoardStage>; kinds: Map<string, string>; bookingsOf: Map<string, BoardBooking[]> }
+// Per loaded board (a change makes a new data object): stages, resource kinds and own bookings by stage,
+// so the tray of a board of thousands of stages is worked out in one pass, not one scan per stage.
+const lookups = new WeakMap<BoardData, Lookups>();
+function lookupsOf(data: BoardData): Lookups {
+  let found = lookups.get(data);
+  if (!found) {
+    const bookingsOf = new Map<string, BoardBooking[]>();
+    for (const b of data.bookings) {
+      if (b.elsewhere) continue;
+      const list = bookingsOf.get(b.stageId);
+      if (list) list.push(b); else bookingsOf.set(b.stageId, [b]);
+    }
+    found = { stages: new Map(data.stages.map((s) => [s.id, s])), kinds: new Map(data.resources.map((r) => [r.id, r.kind])), bookingsOf };
+    lookups.set(data, found);
+  }
+  return found;
+}
+
 /**
  * What a stage still lacks: for each requirement, the required count less the distinct resources
  * of that kind among its active (not declined) bookings.
@@ -31,10 +50,10 @@ export interface TrayGroup { job: BoardJob; stages: TrayStage[] }
  * shortfallOf(data, 'excavate-7') // [{ kind: 'dumper', count: 1 }]
  */
 export function shortfallOf(data: BoardData, stageId: string): TrayShort[] {
-  const stage = data.stages.find((s) => s.id === stageId);
+  const { stages, kinds, bookingsOf } = lookupsOf(data);
+  const stage = stages.get(stageId);
   if (!stage) return [];
-  const kinds = new Map(data.resources.map((r) => [r.id, r.kind]));
-  const own = data.bookings.filter((b) => b.stageId === stageId && b.state !== 'declined' && !b.elsewhere);
+  const own = (bookingsOf.get(stageId) ?? []).filter((b) => b.state !== 'declined');
   return stage.requirements
     .map((req) => ({ kind: req.kind, count: req.count - new Set(own.filter((b) => kinds.get(b.resourceId) === req.kind).map((b) => b.resourceId)).size }))
     .filter((s) => s.count > 0);
@@ -72,7 +91,7 @@ export function trayGroups(data: BoardData, order: (jobId: string) => string[], 
     if (stage.kind === 'elsewhere' || !jobs.has(stage.jobId) || !show(stage)) continue;
     const short = shortfallOf(data, stage.id);
     if (short.length === 0) continue;
-    const own = data.bookings.filter((b) => b.stageId === stage.id && !b.elsewhere);
+    const own = lookupsOf(data).bookingsOf.get(stage.id) ?? [];
     const active = own.filter((b) => b.state !== 'declined');
     const item: TrayStage = {
       stage, short, bookedCount: active.length, startsAt: active.length ? Math.min(...active.map((b) => b.start)) : null,
@@ -80,9 +99,13 @@ export function trayGroups(data: BoardData, order: (jobId: string) => string[], 
     };
     byJob.set(stage.jobId, [...(byJob.get(stage.jobId) ?? []), item]);
   }
+  const ranks = new Map<string[], Map<string, number>>();
   return [...byJob.entries()]
     .map(([jobId, stages]) => {
-      const rank = new Map(order(jobId).map((id, i) => [id, i]));
+      // One rank table per order list (the board hands every job the same one).
+      const list = order(jobId);
+      let rank = ranks.get(list);
+      if (!rank) { rank = new Map(list.map((id, i) => [id, i])); ranks.set(list, rank); }
       return { job: jobs.get(jobId)!, stages: stages.sort((a, b) => (rank.get(a.stage.id) ?? a.stage.sequence) - (rank.get(b.stage.id) ?? b.stage.sequence)) };
     })
     .sort((a, b) => (a.job.promisedBy ?? Infinity) - (b.job.promisedBy ?? Infinity) || a.job.reference.localeCompare(b.job.reference));

@@ -2,68 +2,33 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import {
   addWorkingDays, addWorkingMinutes, compileCalendar, countWorkingDays, dayNumber, isWorkingInstant, localToInstant,
-  nextWorkingInstant, publicHolidays, resourceCalendar, SchedulerError, timeZoneOffset, weeklyHours,
+  nextWorkingInstant, resourceCalendar, SchedulerError, timeZoneOffset, weeklyHours,
   workingIntervals, workingMinutesBetween, type WorkingCalendar,
 } from '../../../shared/scheduler/index.js';
 import { at, firmCal, LONDON, MON_FRI_8_TO_5 } from './scenario.js';
 
-const dates = (country: string, state: string, year: number): string[] =>
-  publicHolidays({ country, state }, year).map((h) => h.date);
-
-describe('UK public holidays from date-holidays (observed days, as gov.uk lists them)', () => {
-  // Source: gov.uk/bank-holidays, England and Wales 2026 and 2027 — from memory (not read in this session).
-  it('England and Wales 2026, Boxing Day moved to Monday 28 December', () => {
-    expect(dates('GB', 'ENG', 2026)).toEqual([
-      '2026-01-01', '2026-04-03', '2026-04-06', '2026-05-04', '2026-05-25', '2026-08-31', '2026-12-25', '2026-12-28',
-    ]);
-    const boxing = publicHolidays({ country: 'GB', state: 'ENG' }, 2026).find((h) => h.date === '2026-12-28');
-    expect(boxing?.substitute).toBe(true);
+describe('public holidays come from the calendar (the server lists them; the engine holds no tables)', () => {
+  it('keeps the listed days free and treats other days as ordinary', () => {
+    // St Andrew's Day, Monday 30 November 2026, is a bank holiday in Scotland only (gov.uk, from memory).
+    const scotland: WorkingCalendar = { id: 'sct', timeZone: LONDON, weekly: MON_FRI_8_TO_5, holidays: [{ date: '2026-11-30', name: "St Andrew's Day" }] };
+    const england: WorkingCalendar = { id: 'eng', timeZone: LONDON, weekly: MON_FRI_8_TO_5 };
+    expect(isWorkingInstant(scotland, at(2026, 11, 30, 10))).toBe(false);
+    expect(isWorkingInstant(england, at(2026, 11, 30, 10))).toBe(true);
+    expect(nextWorkingInstant(scotland, at(2026, 11, 30, 10))).toBe(at(2026, 12, 1, 8));
+    expect(countWorkingDays(scotland, at(2026, 11, 30), at(2026, 12, 7))).toBe(4);
   });
 
-  it('England and Wales 2027, both Christmas days moved to 27 and 28 December', () => {
-    // Source: gov.uk/bank-holidays — from memory.
-    expect(dates('GB', 'ENG', 2027)).toEqual([
-      '2027-01-01', '2027-03-26', '2027-03-29', '2027-05-03', '2027-05-31', '2027-08-30', '2027-12-27', '2027-12-28',
-    ]);
+  it('refuses a holiday that is not a date', () => {
+    for (const date of ['2026-02-30', '30/11/2026', '']) {
+      const cal: WorkingCalendar = { id: `bad ${date}`, timeZone: LONDON, weekly: MON_FRI_8_TO_5, holidays: [{ date, name: 'x' }] };
+      expect(() => nextWorkingInstant(cal, at(2026, 11, 30, 10))).toThrow(SchedulerError);
+    }
   });
 
-  it('Wales (GB/WLS) has the same list as England (GB/ENG), as gov.uk publishes one England and Wales list', () => {
-    for (const y of [2026, 2027]) expect(dates('GB', 'WLS', y)).toEqual(dates('GB', 'ENG', y));
-  });
-
-  it('Scotland 2026: 2 January, first Monday of August, St Andrew\'s Day, no Easter Monday', () => {
-    // Source: gov.uk/bank-holidays, Scotland 2026 — from memory.
-    expect(dates('GB', 'SCT', 2026)).toEqual([
-      '2026-01-01', '2026-01-02', '2026-04-03', '2026-05-04', '2026-05-25', '2026-08-03', '2026-11-30', '2026-12-25', '2026-12-28',
-    ]);
-  });
-
-  it('Scotland 2027: 2 January (a Saturday) moved to Monday 4 January', () => {
-    // Source: gov.uk/bank-holidays, Scotland 2027 — from memory.
-    expect(dates('GB', 'SCT', 2027)).toEqual([
-      '2027-01-01', '2027-01-04', '2027-03-26', '2027-05-03', '2027-05-31', '2027-08-02', '2027-11-30', '2027-12-27', '2027-12-28',
-    ]);
-  });
-
-  it('Northern Ireland 2026: St Patrick\'s Day, and the Battle of the Boyne (12 July, a Sunday) on Monday 13 July', () => {
-    // Source: gov.uk/bank-holidays, Northern Ireland 2026 — from memory; 13 July as the substitute
-    // is what date-holidays gives and what we recall gov.uk publishing (check against gov.uk before relying on it).
-    expect(dates('GB', 'NIR', 2026)).toEqual([
-      '2026-01-01', '2026-03-17', '2026-04-03', '2026-04-06', '2026-05-04', '2026-05-25', '2026-07-13', '2026-08-31', '2026-12-25', '2026-12-28',
-    ]);
-  });
-
-  it('Northern Ireland 2027: 17 March and 12 July fall on weekdays', () => {
-    // Source: gov.uk/bank-holidays, Northern Ireland 2027 — from memory.
-    expect(dates('GB', 'NIR', 2027)).toEqual([
-      '2027-01-01', '2027-03-17', '2027-03-26', '2027-03-29', '2027-05-03', '2027-05-31', '2027-07-12', '2027-08-30', '2027-12-27', '2027-12-28',
-    ]);
-  });
-
-  it('keeps weekend originals when asked (date-holidays lists them beside the substitutes)', () => {
-    const all = publicHolidays({ country: 'GB', state: 'ENG' }, 2026, { observedOnly: false }).map((h) => h.date);
-    expect(all).toContain('2026-12-26');
-    expect(all).toContain('2026-12-28');
+  it('a resource calendar keeps its firm\'s holidays', () => {
+    const own = resourceCalendar(firmCal, { id: 'dave' });
+    expect(own.holidays).toBe(firmCal.holidays);
+    expect(isWorkingInstant(own, at(2026, 12, 28, 10))).toBe(false);
   });
 });
 
@@ -99,7 +64,7 @@ describe('Europe/London clock changes (last Sunday of March and October at 01:00
 
 describe('working time on a Monday–Friday 08:00–17:00 calendar in England', () => {
   it('adds working time across a bank-holiday weekend: Fri 1 May 16:00 + 2 h is Tue 5 May 09:00', () => {
-    // 4 May 2026 is the early May bank holiday (gov.uk, from memory; date-holidays agrees above).
+    // 4 May 2026 is the early May bank holiday (gov.uk, from memory; tests/server/holiday-days.test.ts: date-holidays agrees).
     expect(addWorkingMinutes(firmCal, at(2026, 5, 1, 16), 120)).toBe(at(2026, 5, 5, 9));
   });
 
@@ -199,7 +164,11 @@ describe('properties of working time', () => {
   });
 
   it('the same holds in New York, across US clock changes and federal holidays', () => {
-    const ny: WorkingCalendar = { id: 'ny', timeZone: 'America/New_York', weekly: MON_FRI_8_TO_5, holidayRegion: { country: 'US' } };
+    // US federal holidays 2026 (observed; from memory): New Year, MLK Day, Presidents' Day, Memorial Day,
+    // Juneteenth, Independence Day (Saturday 4 July, observed Friday 3 July), Labor Day, Columbus Day,
+    // Veterans Day, Thanksgiving, Christmas.
+    const federal = ['2026-01-01', '2026-01-19', '2026-02-16', '2026-05-25', '2026-06-19', '2026-07-03', '2026-09-07', '2026-10-12', '2026-11-11', '2026-11-26', '2026-12-25'];
+    const ny: WorkingCalendar = { id: 'ny', timeZone: 'America/New_York', weekly: MON_FRI_8_TO_5, holidays: federal.map((date) => ({ date, name: 'federal holiday' })) };
     fc.assert(fc.property(fc.integer({ min: 0, max: 365 * 24 * 60 }), fc.integer({ min: 1, max: 5000 }), (m, minutes) => {
       const s = nextWorkingInstant(ny, start2026 + m * 60_000);
       expect(addWorkingMinutes(ny, addWorkingMinutes(ny, s, minutes), -minutes)).toBe(s);

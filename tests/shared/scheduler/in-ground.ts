@@ -4,17 +4,18 @@ import type { Board, Resource, WorkingCalendar } from '../../../shared/scheduler
 import { weeklyHours } from '../../../shared/scheduler/index.js';
 import { DECK_TEMPLATE, IN_GROUND_TEMPLATE, planFromTemplate, type InstallTemplate } from '../../../shared/templates/index.js';
 import { at, LONDON } from './scenario.js';
+import { ENGLAND_AND_WALES } from './uk-holidays.js';
 
 /** Mon–Fri 08:00–17:00 in England (the installer, the groundworkers, the crane and lorry firms). */
 export const standardWeek: WorkingCalendar = {
-  id: 'cal-standard', timeZone: LONDON, weekly: weeklyHours([1, 2, 3, 4, 5], [[8 * 60, 17 * 60]]), holidayRegion: { country: 'GB', state: 'ENG' },
+  id: 'cal-standard', timeZone: LONDON, weekly: weeklyHours([1, 2, 3, 4, 5], [[8 * 60, 17 * 60]]), holidayRegion: { country: 'GB', state: 'ENG' }, holidays: ENGLAND_AND_WALES,
 };
 
 /** The electricians' week: Mon–Fri 07:30–16:30 and Saturday 08:00–12:00. */
 export const electriciansWeek: WorkingCalendar = {
   id: 'cal-electricians', timeZone: LONDON,
   weekly: [[], [[450, 990]], [[450, 990]], [[450, 990]], [[450, 990]], [[450, 990]], [[480, 720]]],
-  holidayRegion: { country: 'GB', state: 'ENG' },
+  holidayRegion: { country: 'GB', state: 'ENG' }, holidays: ENGLAND_AND_WALES,
 };
 
 const res = (id: string, kind: string, firmId: string, calendarId = standardWeek.id, name?: string): Resource =>

@@ -4,8 +4,9 @@ import type { StageMove } from '../../../shared/scheduler/index.js';
 import { firmCal, MON_FRI_8_TO_5 } from './scenario.js';
 import { weeklyHours } from '../../../shared/scheduler/index.js';
 
-// The benchmark's seeded generator (mulberry32), so tests and benchmark draw boards the same way.
-import { prng } from '../../../bench/generate.js';
+// The planner's seeded generator (mulberry32, bench/generate.ts's prng), so tests and benchmark draw boards the same way.
+import { seededRandom as prng } from '../../../shared/scheduler/planner/search.js';
+import { SCOTLAND } from './uk-holidays.js';
 
 export { prng };
 
@@ -27,7 +28,7 @@ export function randomBoard(seed: number, o: RandomBoardOptions = {}): Board {
   const rnd = prng(seed);
   const pick = <T,>(xs: readonly T[]): T => xs[Math.floor(rnd() * xs.length)] as T;
   const nJobs = o.jobs ?? 3, per = o.stagesPerJob ?? 4, nRes = o.resources ?? 8;
-  const cal2 = { id: 'cal-partner', timeZone: 'Europe/London', weekly: weeklyHours([1, 2, 3, 4, 5, 6], [[7 * 60, 12 * 60], [13 * 60, 18 * 60]]), holidayRegion: { country: 'GB', state: 'SCT' } };
+  const cal2 = { id: 'cal-partner', timeZone: 'Europe/London', weekly: weeklyHours([1, 2, 3, 4, 5, 6], [[7 * 60, 12 * 60], [13 * 60, 18 * 60]]), holidayRegion: { country: 'GB', state: 'SCT' }, holidays: SCOTLAND };
   const resources: Resource[] = [];
   for (let i = 0; i < nRes; i++) {
     const kind = KINDS[i % KINDS.length] as string;

@@ -1,6 +1,7 @@
 // An invented install: firm, people, machines and job are all our own scenario.
 import type { Board, Booking, Dependency, Resource, Stage, WorkingCalendar } from '../../../shared/scheduler/index.js';
 import { localToInstant, dayNumber, weeklyHours } from '../../../shared/scheduler/index.js';
+import { ENGLAND_AND_WALES } from './uk-holidays.js';
 
 export const LONDON = 'Europe/London';
 
@@ -13,7 +14,7 @@ export function at(y: number, m: number, d: number, hh = 0, mm = 0, tz = LONDON)
 }
 
 export const firmCal: WorkingCalendar = {
-  id: 'cal-installer', timeZone: LONDON, weekly: MON_FRI_8_TO_5, holidayRegion: { country: 'GB', state: 'ENG' },
+  id: 'cal-installer', timeZone: LONDON, weekly: MON_FRI_8_TO_5, holidayRegion: { country: 'GB', state: 'ENG' }, holidays: ENGLAND_AND_WALES,
 };
 
 export function dep(from: string, to: string, type: Dependency['type'] = 'FS', amount = 0, unit: Dependency['lag']['unit'] = 'working_hours'): Dependency {
