@@ -6,7 +6,7 @@ import { account, idOf, signIn, type Agent } from '../helpers/server.ts';
 import { makeJob, type FixtureStage } from '../helpers/flows.ts';
 import { Inbox, answerLinks } from '../helpers/mail.ts';
 import { startMailPipeline, type MailPipeline } from '../../workers/pipeline.ts';
-import { dragBooking, openBoard } from './helpers-board.ts';
+import { openBoard } from './helpers-board.ts';
 
 /*
  * Two stories end to end, in chromium at 1280 × 800: a partner answering from the e-mail while the
@@ -125,23 +125,28 @@ describe('stories across firms', () => {
     expect(new URL(page.url()).searchParams.get('highlight')?.split(',')).toContain(digId);
     await expect.poll(() => page.locator(`.fc-event.wl-pointed[data-booking-id="${digId}"]`).count(), { timeout: 15_000 }).toBe(1);
 
-    // She widens the search to every excavator, and drags the dig onto the firm's own 1.5 t machine, back from its service by then.
+    // The report's first suggestion reads "Move to 1.5 t excavator on Tue 16 Jun 10:00 — no extra cost". She widens the
+    // search to every excavator and drags the dig, held near its start, onto the firm's own machine at the same hour.
     const search = page.getByRole('searchbox');
     await search.fill('excavator');
     await page.waitForSelector(`td.fc-timeline-lane[data-resource-id="${owned}"]`);
-    const { slotDate, fraction } = await page.locator(`.fc-event[data-booking-id="${digId}"]`).evaluate((el) => {
-      // The slot the dig starts in (the timeline's slot lane under the chip's left edge), and how far into it.
-      const x = el.getBoundingClientRect().left;
-      const lanes = [...document.querySelectorAll('td.fc-timeline-slot-lane[data-date]')] as HTMLElement[];
-      const lane = lanes.find((l) => { const r = l.getBoundingClientRect(); return r.left <= x + 1 && x + 1 < r.right; });
-      const r = lane?.getBoundingClientRect();
-      return { slotDate: lane?.dataset.date ?? '', fraction: r ? (x - r.left) / r.width : 0 };
-    });
-    expect(slotDate).not.toBe('');
-    await dragBooking(page, digId, owned, slotDate, fraction);
+    const chip = page.locator(`.fc-event[data-booking-id="${digId}"]`);
+    const box = (await chip.boundingBox())!;
+    const ten = (await page.locator('td.fc-timeline-slot-lane[data-date="2026-06-16T10:00:00"]').first().boundingBox())!;
+    const lane = (await page.locator(`td.fc-timeline-lane[data-resource-id="${owned}"]`).first().boundingBox())!;
+    const grip = 40; // pixels in from the chip's start (its very end is a resize handle)
+    const from = { x: box.x + grip, y: box.y + box.height / 2 };
+    const to = { x: from.x + (ten.x - box.x), y: lane.y + lane.height / 2 };
+    await page.mouse.move(from.x, from.y);
+    await page.mouse.down();
+    for (let i = 1; i <= 20; i += 1) await page.mouse.move(from.x + ((to.x - from.x) * i) / 20, from.y + ((to.y - from.y) * i) / 20);
+    await page.locator('.drag-reason').waitFor({ timeout: 5_000 });
+    await page.mouse.up();
+    // The dig's gang is Millstone Groundworks', already asked: the board says a move asks them again, and she agrees.
+    await page.getByRole('button', { name: 'Move and ask again' }).click();
     await expect.poll(async () => String((await knex('bookings').where('id', digId).first('resource_id')).resourceId), { timeout: 15_000 }).toBe(owned);
     const moved = await knex('bookings').where('id', digId).first('starts_at');
-    expect(moved.startsAt.getTime()).toBe(dig.startsAt.getTime());
+    expect(moved.startsAt.toISOString()).toBe('2026-06-16T09:00:00.000Z');
     await page.screenshot({ path: 'tests/e2e/artifacts/story-manager-fixed.png' });
 
     // Back in the reports the clash is gone.
