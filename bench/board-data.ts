@@ -48,7 +48,8 @@ export async function generate(knex: Knex): Promise<{ email: string }> {
     requirements: JSON.stringify([{ kind, count: 1 }]), _j: j,
   })).map(({ _j, ...s }) => s))).returning(['id', 'job_id']);
   const deps = [];
-  for (let i = 1; i < stageRows.length; i += 1) if (stageRows[i]!.job_id === stageRows[i - 1]!.job_id) deps.push({ from_stage_id: stageRows[i - 1]!.id, to_stage_id: stageRows[i]!.id, type: 'FS' });
+  // Rows come back camel-cased (knexSnakeCaseMappers): stages follow each other within their own job only.
+  for (let i = 1; i < stageRows.length; i += 1) if (stageRows[i]!.jobId === stageRows[i - 1]!.jobId) deps.push({ from_stage_id: stageRows[i - 1]!.id, to_stage_id: stageRows[i]!.id, type: 'FS' });
   for (let i = 0; i < deps.length; i += 500) await knex('dependencies').insert(deps.slice(i, i + 500));
   // Each resource gets ten 4-hour bookings on its own working days across the four weeks.
   const byKind = new Map<string, string[]>();

@@ -47,11 +47,20 @@ export function floorPass(x: FloorInput): { overlaps: number; minFloat: number; 
   const { n, dur, from, to, type, lag } = x;
   const m = from.length;
   const outStart = new Int32Array(n + 1), inStart = new Int32Array(n + 1);
-  for (let k = 0; k < m; k++) { outStart[(from[k] as number) + 1]++; inStart[(to[k] as number) + 1]++; }
-  for (let i = 0; i < n; i++) { outStart[i + 1] += outStart[i] as number; inStart[i + 1] += inStart[i] as number; }
+  for (let k = 0; k < m; k++) {
+    const f = (from[k] as number) + 1, t = (to[k] as number) + 1;
+    outStart[f] = (outStart[f] as number) + 1; inStart[t] = (inStart[t] as number) + 1;
+  }
+  for (let i = 0; i < n; i++) {
+    outStart[i + 1] = (outStart[i + 1] as number) + (outStart[i] as number); inStart[i + 1] = (inStart[i + 1] as number) + (inStart[i] as number);
+  }
   const outEdge = new Int32Array(m), inEdge = new Int32Array(m);
   const oFill = outStart.slice(0, n), iFill = inStart.slice(0, n);
-  for (let k = 0; k < m; k++) { outEdge[oFill[from[k] as number]++] = k; inEdge[iFill[to[k] as number]++] = k; }
+  for (let k = 0; k < m; k++) {
+    const f = from[k] as number, t = to[k] as number;
+    const o = oFill[f] as number, i = iFill[t] as number;
+    outEdge[o] = k; inEdge[i] = k; oFill[f] = o + 1; iFill[t] = i + 1;
+  }
   const indeg = new Int32Array(n);
   for (let i = 0; i < n; i++) indeg[i] = (inStart[i + 1] as number) - (inStart[i] as number);
   const order = new Int32Array(n);
@@ -61,7 +70,9 @@ export function floorPass(x: FloorInput): { overlaps: number; minFloat: number; 
     const i = order[head++] as number;
     for (let e = outStart[i] as number; e < (outStart[i + 1] as number); e++) {
       const s = to[outEdge[e] as number] as number;
-      if (--indeg[s] === 0) order[tail++] = s;
+      const left = (indeg[s] as number) - 1;
+      indeg[s] = left;
+      if (left === 0) order[tail++] = s;
     }
   }
   const es = new Float64Array(n), ef = new Float64Array(n), ls = new Float64Array(n), lf = new Float64Array(n);
@@ -100,11 +111,14 @@ export function floorPass(x: FloorInput): { overlaps: number; minFloat: number; 
   const { res, start, end, resources } = x;
   const b = res.length;
   const bStart = new Int32Array(resources + 1);
-  for (let k = 0; k < b; k++) bStart[(res[k] as number) + 1]++;
-  for (let r = 0; r < resources; r++) bStart[r + 1] += bStart[r] as number;
+  for (let k = 0; k < b; k++) { const r = (res[k] as number) + 1; bStart[r] = (bStart[r] as number) + 1; }
+  for (let r = 0; r < resources; r++) bStart[r + 1] = (bStart[r + 1] as number) + (bStart[r] as number);
   const fill = bStart.slice(0, resources);
   const s0 = new Float64Array(b), e0 = new Float64Array(b);
-  for (let k = 0; k < b; k++) { const at = fill[res[k] as number]++; s0[at] = start[k] as number; e0[at] = end[k] as number; }
+  for (let k = 0; k < b; k++) {
+    const r = res[k] as number, at = fill[r] as number;
+    fill[r] = at + 1; s0[at] = start[k] as number; e0[at] = end[k] as number;
+  }
   const activeEnd = new Float64Array(b);
   let overlaps = 0;
   for (let r = 0; r < resources; r++) {

@@ -198,8 +198,8 @@ describe('the indexes of migration 20261224090000', () => {
   });
 
   it("answer the board's range query from the GiST index", async () => {
-    const captured: { sql: string; bindings: unknown[] }[] = [];
-    const listen = (q: { sql: string; bindings?: unknown[] }) => { captured.push({ sql: q.sql, bindings: [...(q.bindings ?? [])] }); };
+    const captured: { sql: string; bindings: Knex.RawBinding[] }[] = [];
+    const listen = (q: { sql: string; bindings?: Knex.RawBinding[] }) => { captured.push({ sql: q.sql, bindings: [...(q.bindings ?? [])] }); };
     ctx.knex.on('query', listen);
     await scheduler.get('/api/board').query(range).expect(200);
     ctx.knex.off('query', listen);
