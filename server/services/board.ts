@@ -67,7 +67,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
   // A knex builder runs again on every await: take its result once, as a plain promise.
   const rows = <T>(q: { toKnexQuery(): Knex.QueryBuilder }): Promise<T[]> => q.toKnexQuery().then((r: unknown) => r as T[]);
   const visibleResourceIds = scoped(Resource, actor, trx).where('resources.active', true).select('resources.id').toKnexQuery();
-  const windowStageIds = scoped(Booking, actor, trx).where('bookings.starts_at', '<', to).where('bookings.ends_at', '>', from).select('bookings.stage_id').toKnexQuery();
+  const windowStageIds = scoped(Booking, actor, trx).where(bookingDuring(knex, 'bookings', from, to)).select('bookings.stage_id').toKnexQuery();
   const jobIdQuery = scoped(Job, actor, trx).where((w) => {
     w.whereIn('jobs.id', knex('stages').select('job_id').whereIn('id', windowStageIds) as never);
     if (query.jobIds?.length) w.orWhereIn('jobs.id', query.jobIds);
