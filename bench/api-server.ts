@@ -12,10 +12,17 @@ const knex = createKnex(config.DATABASE_URL);
 const server = (await import('node:http')).createServer();
 await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
 const base = `http://127.0.0.1:${(server.address() as { port: number }).port}`;
-const waterline = createApp({ config: { ...config, PUBLIC_URL: base }, knex, now: () => Number(process.env.BENCH_NOW) });
+const waterline = createApp({
+  config: { ...config, PUBLIC_URL: base },
+  knex,
+  now: () => Number(process.env.BENCH_NOW),
+});
 server.on('request', waterline.app);
 process.send?.({ base });
 process.on('SIGTERM', () => {
   server.close();
-  void waterline.close().then(() => knex.destroy()).then(() => process.exit(0));
+  void waterline
+    .close()
+    .then(() => knex.destroy())
+    .then(() => process.exit(0));
 });

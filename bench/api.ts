@@ -33,7 +33,12 @@ const CONNECTIONS = [1, 20];
 const dbUrl = new URL(process.env.DATABASE_URL ?? '');
 dbUrl.pathname = '/waterline_bench_api';
 await ensureDatabase(Number(dbUrl.port), 'waterline_bench_api');
-const config = loadConfig({ ...process.env, DATABASE_URL: dbUrl.toString(), LOG_LEVEL: 'silent', SIGN_IN_RATE_LIMIT: '100000' });
+const config = loadConfig({
+  ...process.env,
+  DATABASE_URL: dbUrl.toString(),
+  LOG_LEVEL: 'silent',
+  SIGN_IN_RATE_LIMIT: '100000',
+});
 const knex = createKnex(config.DATABASE_URL, { min: 0, max: 20 });
 await knex.migrate.latest(migrationConfig);
 const t0 = performance.now();
@@ -44,7 +49,8 @@ console.log(`Generated ${RESOURCES} resources and ${BOOKINGS} bookings in ${Math
 const now = () => START - 7 * DAY;
 // The app under load runs in a child process (bench/api-server.ts); this process generates the load.
 const child = fork(path.join(import.meta.dirname, 'api-server.ts'), [], {
-  execArgv: ['--import', 'tsx'], env: { ...process.env, DATABASE_URL: config.DATABASE_URL, BENCH_NOW: String(now()), SIGN_IN_RATE_LIMIT: '100000' },
+  execArgv: ['--import', 'tsx'],
+  env: { ...process.env, DATABASE_URL: config.DATABASE_URL, BENCH_NOW: String(now()), SIGN_IN_RATE_LIMIT: '100000' },
 });
 const base = await new Promise<string>((resolve, reject) => {
   child.once('message', (m) => resolve((m as { base: string }).base));
@@ -55,8 +61,19 @@ const base = await new Promise<string>((resolve, reject) => {
 const local = createApp({ config: { ...config, PUBLIC_URL: base }, knex, now });
 const { cookie, csrf } = await signInCookie(local.app, email);
 
-interface Figures { p50: number; p95: number; p99: number; rps: number; requests: number; non2xx: number; codes?: Record<string, number> }
-const fmt = (f: Figures) => f.requests === 0 ? 'no request finished within the run' : `p50 ${f.p50.toFixed(1)} ms, p95 ${f.p95.toFixed(1)} ms, p99 ${f.p99.toFixed(1)} ms, ${f.rps.toFixed(1)} req/s (${f.requests} requests${f.non2xx ? `, ${f.non2xx} not 2xx/304: ${JSON.stringify(f.codes)}` : ''})`;
+interface Figures {
+  p50: number;
+  p95: number;
+  p99: number;
+  rps: number;
+  requests: number;
+  non2xx: number;
+  codes?: Record<string, number>;
+}
+const fmt = (f: Figures) =>
+  f.requests === 0
+    ? 'no request finished within the run'
+    : `p50 ${f.p50.toFixed(1)} ms, p95 ${f.p95.toFixed(1)} ms, p99 ${f.p99.toFixed(1)} ms, ${f.rps.toFixed(1)} req/s (${f.requests} requests${f.non2xx ? `, ${f.non2xx} not 2xx/304: ${JSON.stringify(f.codes)}` : ''})`;
 
 /**
  * Requests still in hand when a run ends keep the server busy: wait until one unchanged board (304)
@@ -66,25 +83,50 @@ async function settle(etag: string | null): Promise<void> {
   const until = performance.now() + 30_000;
   while (performance.now() < until) {
     const t = performance.now();
-    await fetch(base + boardPath, { headers: { cookie, ...(etag ? { 'if-none-match': etag } : {}) } }).then((r) => r.arrayBuffer());
+    await fetch(base + boardPath, { headers: { cookie, ...(etag ? { 'if-none-match': etag } : {}) } }).then((r) =>
+      r.arrayBuffer(),
+    );
     if (performance.now() - t < 1000) return;
   }
 }
 
 /** Runs autocannon and takes p50/p95/p99 from every response's own time (autocannon reports no p95). */
-async function load(connections: number, opts: Omit<autocannon.Options, 'url' | 'connections' | 'duration'> & { path: string }): Promise<Figures> {
+async function load(
+  connections: number,
+  opts: Omit<autocannon.Options, 'url' | 'connections' | 'duration'> & { path: string },
+): Promise<Figures> {
   const times: number[] = [];
   let bad = 0;
   const codes: Record<string, number> = {};
   await settle(etagForSettle);
   const { path: target, ...rest } = opts;
-  const instance = autocannon({ url: base + target, connections, duration: SECONDS, ...rest, headers: { cookie, ...rest.headers } });
-  (instance as unknown as import('node:events').EventEmitter).on('response', (_client: unknown, status: number, _bytes: number, ms: number) => {
-    times.push(ms);
-    if (status >= 400 || (status >= 300 && status !== 304)) { bad += 1; codes[status] = (codes[status] ?? 0) + 1; }
+  const instance = autocannon({
+    url: base + target,
+    connections,
+    duration: SECONDS,
+    ...rest,
+    headers: { cookie, ...rest.headers },
   });
+  (instance as unknown as import('node:events').EventEmitter).on(
+    'response',
+    (_client: unknown, status: number, _bytes: number, ms: number) => {
+      times.push(ms);
+      if (status >= 400 || (status >= 300 && status !== 304)) {
+        bad += 1;
+        codes[status] = (codes[status] ?? 0) + 1;
+      }
+    },
+  );
   const result = await instance;
-  return { p50: quantile(times, 0.5), p95: quantile(times, 0.95), p99: quantile(times, 0.99), rps: times.length / (result.duration || SECONDS), requests: times.length, non2xx: bad, codes };
+  return {
+    p50: quantile(times, 0.5),
+    p95: quantile(times, 0.95),
+    p99: quantile(times, 0.99),
+    rps: times.length / (result.duration || SECONDS),
+    requests: times.length,
+    non2xx: bad,
+    codes,
+  };
 }
 
 /** The same work without HTTP: `run` once per request, `connections` at a time, for the same duration. */
@@ -92,14 +134,23 @@ async function bare(connections: number, run: () => Promise<unknown>): Promise<F
   const times: number[] = [];
   const until = performance.now() + SECONDS * 1000;
   const t = performance.now();
-  await Promise.all(Array.from({ length: connections }, async () => {
-    while (performance.now() < until) {
-      const s = performance.now();
-      await run();
-      times.push(performance.now() - s);
-    }
-  }));
-  return { p50: quantile(times, 0.5), p95: quantile(times, 0.95), p99: quantile(times, 0.99), rps: times.length / ((performance.now() - t) / 1000), requests: times.length, non2xx: 0 };
+  await Promise.all(
+    Array.from({ length: connections }, async () => {
+      while (performance.now() < until) {
+        const s = performance.now();
+        await run();
+        times.push(performance.now() - s);
+      }
+    }),
+  );
+  return {
+    p50: quantile(times, 0.5),
+    p95: quantile(times, 0.95),
+    p99: quantile(times, 0.99),
+    rps: times.length / ((performance.now() - t) / 1000),
+    requests: times.length,
+    non2xx: 0,
+  };
 }
 
 // 1. The board window.
@@ -109,7 +160,9 @@ const boardPath = `/api/board?from=${range.from}&to=${range.to}`;
 // The SQL one board GET sends through knex (the membership look-up, the window's version, the board's
 // queries), captured from knex's own query events, to run again through pg.
 const captured: { sql: string; bindings: unknown[] }[] = [];
-const capture = (q: { sql: string; bindings?: unknown[] }) => { captured.push({ sql: q.sql, bindings: q.bindings ?? [] }); };
+const capture = (q: { sql: string; bindings?: unknown[] }) => {
+  captured.push({ sql: q.sql, bindings: q.bindings ?? [] });
+};
 knex.on('query', capture);
 const tFirst = performance.now();
 const first = await request(local.app).get(boardPath).set('cookie', cookie).expect(200);
@@ -118,11 +171,26 @@ knex.off('query', capture);
 const etag = first.headers.etag as string | undefined;
 etagForSettle = etag ?? null;
 const data = JSON.parse(firstBody);
-console.log(`Board answer: ${data.resources.length} resources, ${data.bookings.length} bookings, ${(firstBody.length / 1024).toFixed(0)} KiB; ${captured.length} queries through knex; the first took ${Math.round(performance.now() - tFirst)} ms`);
-const positional = (sql: string) => { let n = 0; return sql.replace(/\?/g, () => `$${++n}`); };
-const queries = captured.map((q) => ({ text: /\$\d/.test(q.sql) ? q.sql : positional(q.sql), values: q.bindings.map((b) => (b instanceof Date ? b.toISOString() : b)) }));
+console.log(
+  `Board answer: ${data.resources.length} resources, ${data.bookings.length} bookings, ${(firstBody.length / 1024).toFixed(0)} KiB; ${captured.length} queries through knex; the first took ${Math.round(performance.now() - tFirst)} ms`,
+);
+const positional = (sql: string) => {
+  let n = 0;
+  return sql.replace(/\?/g, () => `$${++n}`);
+};
+const queries = captured.map((q) => ({
+  text: /\$\d/.test(q.sql) ? q.sql : positional(q.sql),
+  values: q.bindings.map((b) => (b instanceof Date ? b.toISOString() : b)),
+}));
 const pool = new pg.Pool({ connectionString: config.DATABASE_URL, max: 20 });
-const sqlOnce = async () => { const client = await pool.connect(); try { for (const q of queries) await client.query(q); } finally { client.release(); } };
+const sqlOnce = async () => {
+  const client = await pool.connect();
+  try {
+    for (const q of queries) await client.query(q);
+  } finally {
+    client.release();
+  }
+};
 await sqlOnce();
 
 const load1 = os.loadavg()[0]!.toFixed(2);
@@ -135,58 +203,128 @@ for (const c of CONNECTIONS) {
   const unchanged = etag ? await load(c, { path: boardPath, headers: { 'if-none-match': etag } }) : null;
   console.log(`  ${String(c).padStart(2)} connection${c > 1 ? 's' : ' '} API      ${fmt(api)}`);
   console.log(`                SQL      ${fmt(sql)}`);
-  console.log(`                API/SQL at p95: ${(api.p95 / sql.p95).toFixed(2)}×  (p50 ${(api.p50 / sql.p50).toFixed(2)}×)`);
+  console.log(
+    `                API/SQL at p95: ${(api.p95 / sql.p95).toFixed(2)}×  (p50 ${(api.p50 / sql.p50).toFixed(2)}×)`,
+  );
   console.log(`                gzip     ${fmt(gzip)}`);
   if (unchanged) console.log(`                304      ${fmt(unchanged)}`);
 }
 
 // 2. Moves: each request moves the next stage a week later, or back, with the versions it last saw.
-const stageRows = await knex('stages as s').join('jobs as j', 'j.id', 's.job_id').join('bookings as b', 'b.stage_id', 's.id')
-  .where('s.sequence', 5).select('s.id', 'b.id as bookingId', 'b.version', 'b.starts_at') as { id: string; bookingId: string; version: number; startsAt: Date }[];
-const moves = stageRows.map((s) => ({ stageId: String(s.id), bookingId: String(s.bookingId), version: s.version, start: s.startsAt.getTime(), later: false }));
+const stageRows = (await knex('stages as s')
+  .join('jobs as j', 'j.id', 's.job_id')
+  .join('bookings as b', 'b.stage_id', 's.id')
+  .where('s.sequence', 5)
+  .select('s.id', 'b.id as bookingId', 'b.version', 'b.starts_at')) as {
+  id: string;
+  bookingId: string;
+  version: number;
+  startsAt: Date;
+}[];
+const moves = stageRows.map((s) => ({
+  stageId: String(s.id),
+  bookingId: String(s.bookingId),
+  version: s.version,
+  start: s.startsAt.getTime(),
+  later: false,
+}));
 let nextMove = 0;
 async function moveLoad(c: number): Promise<Figures> {
   return load(c, {
     path: '/api/stages/0/move',
-    requests: [{
-      method: 'POST',
-      setupRequest: (req, ctx) => {
-        const context = ctx as Record<string, unknown>;
-        const m = moves[nextMove++ % moves.length]!;
-        context.move = m;
-        m.later = !m.later;
-        const startsAt = new Date(m.start + (m.later ? 7 * DAY : 0)).toISOString();
-        return { ...req, path: `/api/stages/${m.stageId}/move`, headers: { ...req.headers, 'content-type': 'application/json', 'x-csrf-token': csrf }, body: JSON.stringify({ startsAt, versions: { [m.bookingId]: m.version }, dependents: 'none', askAgain: [] }) };
+    requests: [
+      {
+        method: 'POST',
+        setupRequest: (req, ctx) => {
+          const context = ctx as Record<string, unknown>;
+          const m = moves[nextMove++ % moves.length]!;
+          context.move = m;
+          m.later = !m.later;
+          const startsAt = new Date(m.start + (m.later ? 7 * DAY : 0)).toISOString();
+          return {
+            ...req,
+            path: `/api/stages/${m.stageId}/move`,
+            headers: { ...req.headers, 'content-type': 'application/json', 'x-csrf-token': csrf },
+            body: JSON.stringify({
+              startsAt,
+              versions: { [m.bookingId]: m.version },
+              dependents: 'none',
+              askAgain: [],
+            }),
+          };
+        },
+        onResponse: (status, body, ctx) => {
+          const context = ctx as Record<string, unknown>;
+          const m = context.move as (typeof moves)[number];
+          if (status === 200)
+            m.version =
+              (JSON.parse(body) as { bookings: { id: string; version: number }[] }).bookings.find(
+                (b) => b.id === m.bookingId,
+              )?.version ?? m.version;
+          else m.later = !m.later;
+        },
       },
-      onResponse: (status, body, ctx) => {
-        const context = ctx as Record<string, unknown>;
-        const m = context.move as (typeof moves)[number];
-        if (status === 200) m.version = (JSON.parse(body) as { bookings: { id: string; version: number }[] }).bookings.find((b) => b.id === m.bookingId)?.version ?? m.version;
-        else m.later = !m.later;
-      },
-    }],
+    ],
   });
 }
 /** One request as the load sends it, to say why a refusal was refused. */
 async function tryOnce(pathname: string, body: unknown): Promise<void> {
-  const res = await fetch(base + pathname, { method: 'POST', headers: { cookie, 'content-type': 'application/json', 'x-csrf-token': csrf }, body: JSON.stringify(body) });
-  if (!res.ok) console.log(`  (a single ${pathname.split('/').slice(0, 3).join('/')}… answered ${res.status}: ${(await res.text()).slice(0, 300)})`);
+  const res = await fetch(base + pathname, {
+    method: 'POST',
+    headers: { cookie, 'content-type': 'application/json', 'x-csrf-token': csrf },
+    body: JSON.stringify(body),
+  });
+  if (!res.ok)
+    console.log(
+      `  (a single ${pathname.split('/').slice(0, 3).join('/')}… answered ${res.status}: ${(await res.text()).slice(0, 300)})`,
+    );
 }
 {
   const m = moves[moves.length - 1]!;
-  await tryOnce(`/api/stages/${m.stageId}/move`, { startsAt: new Date(m.start + 7 * DAY).toISOString(), versions: { [m.bookingId]: m.version }, dependents: 'none', askAgain: [] });
+  await tryOnce(`/api/stages/${m.stageId}/move`, {
+    startsAt: new Date(m.start + 7 * DAY).toISOString(),
+    versions: { [m.bookingId]: m.version },
+    dependents: 'none',
+    askAgain: [],
+  });
 }
 console.log('\nPOST /api/stages/:id/move (one stage, its own booking):');
-for (const c of CONNECTIONS) console.log(`  ${String(c).padStart(2)} connection${c > 1 ? 's' : ' '} ${fmt(await moveLoad(c))}`);
+for (const c of CONNECTIONS)
+  console.log(`  ${String(c).padStart(2)} connection${c > 1 ? 's' : ' '} ${fmt(await moveLoad(c))}`);
 
 // 3. Batch create: the first stage of five new jobs each request, on the installer's own crews.
 async function unbookedStages(knexx: Knex, count: number): Promise<{ stageId: string; resourceId: string }[]> {
   const [installer] = await knexx('firms').where('name', 'Bench Installer').select('id');
-  const jobRows = await knexx('jobs').insert(Array.from({ length: count }, (_, j) => ({
-    firm_id: installer.id, reference: `N-${j}`, customer_name: `New customer ${j}`, site_address: `${j} New Road`, site_town: 'Benchley', site_postcode: 'LS1 4AP', installation_type: 'in_ground', status: 'planned',
-  }))).returning('id');
-  const stages = await knexx('stages').insert(jobRows.map((job) => ({ job_id: job.id, kind: 'excavation', name: 'Stage 1', sequence: 1, duration_minutes: 240, requirements: JSON.stringify([{ kind: 'install_crew', count: 1 }]) }))).returning('id');
-  const crews = await knexx('resources').where({ firm_id: installer.id, kind: 'install_crew' }).orderBy('id').pluck('id');
+  const jobRows = await knexx('jobs')
+    .insert(
+      Array.from({ length: count }, (_, j) => ({
+        firm_id: installer.id,
+        reference: `N-${j}`,
+        customer_name: `New customer ${j}`,
+        site_address: `${j} New Road`,
+        site_town: 'Benchley',
+        site_postcode: 'LS1 4AP',
+        installation_type: 'in_ground',
+        status: 'planned',
+      })),
+    )
+    .returning('id');
+  const stages = await knexx('stages')
+    .insert(
+      jobRows.map((job) => ({
+        job_id: job.id,
+        kind: 'excavation',
+        name: 'Stage 1',
+        sequence: 1,
+        duration_minutes: 240,
+        requirements: JSON.stringify([{ kind: 'install_crew', count: 1 }]),
+      })),
+    )
+    .returning('id');
+  const crews = await knexx('resources')
+    .where({ firm_id: installer.id, kind: 'install_crew' })
+    .orderBy('id')
+    .pluck('id');
   return stages.map((s, i) => ({ stageId: String(s.id), resourceId: String(crews[i % crews.length]) }));
 }
 const fresh = await unbookedStages(knex, 6000);
@@ -195,27 +333,40 @@ const BATCH = 5;
 async function batchLoad(c: number): Promise<Figures> {
   return load(c, {
     path: '/api/bookings/batch',
-    requests: [{
-      method: 'POST',
-      setupRequest: (req) => {
-        const items = Array.from({ length: BATCH }, () => {
-          const n = nextStage++;
-          const s = fresh[n % fresh.length]!;
-          // Weekdays in weeks 6–9, mornings or afternoons, so the bookings spread out.
-          const day = 35 + (Math.floor(n / 2) % 4) * 7 + (n % 5);
-          return { stageId: s.stageId, resourceId: s.resourceId, startsAt: new Date(START + day * DAY + (n % 2) * 4 * 3_600_000).toISOString() };
-        });
-        return { ...req, headers: { ...req.headers, 'content-type': 'application/json', 'x-csrf-token': csrf }, body: JSON.stringify({ bookings: items }) };
+    requests: [
+      {
+        method: 'POST',
+        setupRequest: (req) => {
+          const items = Array.from({ length: BATCH }, () => {
+            const n = nextStage++;
+            const s = fresh[n % fresh.length]!;
+            // Weekdays in weeks 6–9, mornings or afternoons, so the bookings spread out.
+            const day = 35 + (Math.floor(n / 2) % 4) * 7 + (n % 5);
+            return {
+              stageId: s.stageId,
+              resourceId: s.resourceId,
+              startsAt: new Date(START + day * DAY + (n % 2) * 4 * 3_600_000).toISOString(),
+            };
+          });
+          return {
+            ...req,
+            headers: { ...req.headers, 'content-type': 'application/json', 'x-csrf-token': csrf },
+            body: JSON.stringify({ bookings: items }),
+          };
+        },
       },
-    }],
+    ],
   });
 }
 {
   const s = fresh[fresh.length - 1]!;
-  await tryOnce('/api/bookings/batch', { bookings: [{ stageId: s.stageId, resourceId: s.resourceId, startsAt: new Date(START + 36 * DAY).toISOString() }] });
+  await tryOnce('/api/bookings/batch', {
+    bookings: [{ stageId: s.stageId, resourceId: s.resourceId, startsAt: new Date(START + 36 * DAY).toISOString() }],
+  });
 }
 console.log(`\nPOST /api/bookings/batch (${BATCH} stages of ${BATCH} jobs a request):`);
-for (const c of CONNECTIONS) console.log(`  ${String(c).padStart(2)} connection${c > 1 ? 's' : ' '} ${fmt(await batchLoad(c))}`);
+for (const c of CONNECTIONS)
+  console.log(`  ${String(c).padStart(2)} connection${c > 1 ? 's' : ' '} ${fmt(await batchLoad(c))}`);
 console.log(`\nLoad average at the end: ${os.loadavg()[0]!.toFixed(2)}`);
 
 child.kill('SIGTERM');

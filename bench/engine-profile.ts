@@ -20,7 +20,8 @@ function cpu(fn: () => void): number[] {
   return out.sort((a, b) => a - b);
 }
 const median = (t: number[]) => t[t.length >> 1] as number;
-const show = (what: string, t: number[]) => console.log(`${what.padEnd(20)} cpu median ${median(t).toFixed(1)} ms, min ${(t[0] as number).toFixed(1)} ms`);
+const show = (what: string, t: number[]) =>
+  console.log(`${what.padEnd(20)} cpu median ${median(t).toFixed(1)} ms, min ${(t[0] as number).toFixed(1)} ms`);
 
 for (let i = 0; i < 3; i++) analyseBoard(board, { now: BENCH_NOW });
 const index = createBoardIndex(board, { now: BENCH_NOW });
@@ -28,10 +29,22 @@ const input = floorInput(board);
 for (let i = 0; i < 5; i++) floorPass(input);
 const floor = cpu(() => floorPass(input));
 show('floor', floor);
-show('createBoardIndex', cpu(() => createBoardIndex(board, { now: BENCH_NOW })));
-show('boardViolations', cpu(() => boardViolations(index)));
-show('boardCriticalPath', cpu(() => boardCriticalPath(index)));
+show(
+  'createBoardIndex',
+  cpu(() => createBoardIndex(board, { now: BENCH_NOW })),
+);
+show(
+  'boardViolations',
+  cpu(() => boardViolations(index)),
+);
+show(
+  'boardCriticalPath',
+  cpu(() => boardCriticalPath(index)),
+);
 const full = cpu(() => analyseBoard(board, { now: BENCH_NOW }));
 show('analyseBoard', full);
 console.log(`ratio (cpu medians) ${(median(full) / median(floor)).toFixed(1)}×`);
-show('floor + reading in', cpu(() => floorPass(floorInput(board))));
+show(
+  'floor + reading in',
+  cpu(() => floorPass(floorInput(board))),
+);

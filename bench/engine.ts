@@ -5,12 +5,24 @@ import { loadavg } from 'node:os';
 import { runInNewContext } from 'node:vm';
 import { setFlagsFromString } from 'node:v8';
 import {
-  analyseBoard, autoPlace, checkMove, createBoardIndex, findSlots, overlappingPairs, type Board, type Booking, type StageMove,
+  analyseBoard,
+  autoPlace,
+  checkMove,
+  createBoardIndex,
+  findSlots,
+  overlappingPairs,
+  type Board,
+  type Booking,
+  type StageMove,
 } from '../shared/scheduler/index.js';
 import { BENCH_NOW, generateBoard, prng } from './generate.js';
 import { floorInput, floorPass } from './floor.js';
 
-interface Stats { median: number; p95: number; cpuMedian: number }
+interface Stats {
+  median: number;
+  p95: number;
+  cpuMedian: number;
+}
 
 function quantile(samples: number[], q: number): number {
   const s = samples.slice().sort((a, b) => a - b);
@@ -19,7 +31,8 @@ function quantile(samples: number[], q: number): number {
 
 /** Wall-clock median and p95, and the median process CPU time (user + system) of each run. */
 function time(runs: number, fn: (i: number) => void): Stats {
-  const wall: number[] = [], cpu: number[] = [];
+  const wall: number[] = [],
+    cpu: number[] = [];
   for (let i = 0; i < runs; i++) {
     const c = process.cpuUsage();
     const t = performance.now();
@@ -54,7 +67,10 @@ const rows: string[][] = [];
 const loadAtStart = loadavg()[0] ?? 0;
 const ms = (x: number) => x.toFixed(x < 1 ? 3 : 1);
 
-for (const [jobs, resources, runs] of [[200, 200, 30], [2000, 2000, 21]] as const) {
+for (const [jobs, resources, runs] of [
+  [200, 200, 30],
+  [2000, 2000, 21],
+] as const) {
   const { board, unbookedJobIds } = generateBoard(jobs, resources);
   const n = board.stages.length;
   const label = `${n.toLocaleString('en-GB')} stages / ${resources.toLocaleString('en-GB')} res`;
@@ -68,7 +84,9 @@ for (const [jobs, resources, runs] of [[200, 200, 30], [2000, 2000, 21]] as cons
   const input = floorInput(board);
   let floorOverlaps = 0;
   for (let i = 0; i < 5; i++) floorPass(input);
-  const floor = time(runs * 3, () => { floorOverlaps = floorPass(input).overlaps; });
+  const floor = time(runs * 3, () => {
+    floorOverlaps = floorPass(input).overlaps;
+  });
   const floorRead = time(runs * 3, () => floorPass(floorInput(board)));
   const checksOnly = time(runs, () => analyseBoard(board, { now: BENCH_NOW, skipCriticalPath: true }));
   // The generator books stages back to back whatever the hour, so many short stages run over a
@@ -85,48 +103,84 @@ for (const [jobs, resources, runs] of [[200, 200, 30], [2000, 2000, 21]] as cons
   const booked = board.bookings.filter((b) => b.state !== 'declined');
   const moves: StageMove[] = Array.from({ length: 5000 }, () => {
     const b = booked[Math.floor(rnd() * booked.length)] as Booking;
-    return { stageId: b.stageId, start: b.start + (Math.floor(rnd() * 21) - 10) * 86_400_000 + Math.floor(rnd() * 8) * 3_600_000 };
+    return {
+      stageId: b.stageId,
+      start: b.start + (Math.floor(rnd() * 21) - 10) * 86_400_000 + Math.floor(rnd() * 8) * 3_600_000,
+    };
   });
   for (const m of moves.slice(0, 500)) checkMove(index, m);
   const move = time(moves.length, (i) => checkMove(index, moves[i] as StageMove));
   const slotStages = board.stages.filter((s) => s.kind === 'lift').slice(0, 50);
   const slot = time(slotStages.length, (i) => {
     const s = slotStages[i % slotStages.length];
-    if (s) findSlots(index, { stageId: s.id, resourceKind: 'crane', earliest: BENCH_NOW }, { alternatives: 3, horizonDays: 60 });
+    if (s)
+      findSlots(
+        index,
+        { stageId: s.id, resourceKind: 'crane', earliest: BENCH_NOW },
+        { alternatives: 3, horizonDays: 60 },
+      );
   });
   const placeRuns = jobs >= 2000 ? 3 : 5;
-  let placed = 0, unplaced = 0;
+  let placed = 0,
+    unplaced = 0;
   const place = time(placeRuns, () => {
     // The single pass (budget 0): the search's budget is its own figure, measured by bench:plan.
     const r = autoPlace(board, { now: BENCH_NOW, jobIds: unbookedJobIds, horizonDays: 120, budgetMs: 0 });
-    placed = r.placed.length; unplaced = r.unplaced.length;
+    placed = r.placed.length;
+    unplaced = r.unplaced.length;
   });
   const sweep = time(runs, () => overlappingPairs(board.bookings));
   const pairRuns = jobs >= 2000 ? 3 : 10;
   let pairCount = 0;
-  const pairwise = time(pairRuns, () => { pairCount = pairwiseClashes(board.bookings); });
+  const pairwise = time(pairRuns, () => {
+    pairCount = pairwiseClashes(board.bookings);
+  });
   const sweepCount = overlappingPairs(board.bookings).length;
   if (sweepCount !== pairCount) throw new Error(`sweep found ${sweepCount} overlaps, pairwise ${pairCount}`);
-  if (floorOverlaps !== sweepCount) throw new Error(`the floor found ${floorOverlaps} overlaps, the sweep ${sweepCount}`);
+  if (floorOverlaps !== sweepCount)
+    throw new Error(`the floor found ${floorOverlaps} overlaps, the sweep ${sweepCount}`);
   const heapAtEnd = process.memoryUsage().heapUsed / 1024 / 1024;
   const kept = analyseBoard(board, { now: BENCH_NOW });
   gc();
   const heap = process.memoryUsage().heapUsed / 1024 / 1024;
   void kept;
-  const row = (what: string, st: Stats, note: string) => rows.push([label, what, ms(st.median), ms(st.p95), ms(st.cpuMedian), note]);
-  row('full analysis (checks + CPM)', full, `${first.violations.length} violations (${splitCount} split, ${unbookedCount} unbooked pred.)`);
-  row('floor: typed-array CPM + sweep', floor, `${n.toLocaleString('en-GB')} stages, ${board.dependencies.length.toLocaleString('en-GB')} links, ${input.res.length.toLocaleString('en-GB')} bookings`);
+  const row = (what: string, st: Stats, note: string) =>
+    rows.push([label, what, ms(st.median), ms(st.p95), ms(st.cpuMedian), note]);
+  row(
+    'full analysis (checks + CPM)',
+    full,
+    `${first.violations.length} violations (${splitCount} split, ${unbookedCount} unbooked pred.)`,
+  );
+  row(
+    'floor: typed-array CPM + sweep',
+    floor,
+    `${n.toLocaleString('en-GB')} stages, ${board.dependencies.length.toLocaleString('en-GB')} links, ${input.res.length.toLocaleString('en-GB')} bookings`,
+  );
   row('floor, reading the board in too', floorRead, 'ids → numbers, then the same pass');
-  rows.push([label, 'full analysis ÷ floor (cpu)', `${(full.cpuMedian / Math.max(floor.cpuMedian, 0.001)).toFixed(1)}×`, '', '',
-    `÷ floor reading the board in: ${(full.cpuMedian / Math.max(floorRead.cpuMedian, 0.001)).toFixed(1)}×`]);
-  row('full analysis, stages may run over a night', fullNoSplit, `${withoutSplits} violations (the same board, no split)`);
+  rows.push([
+    label,
+    'full analysis ÷ floor (cpu)',
+    `${(full.cpuMedian / Math.max(floor.cpuMedian, 0.001)).toFixed(1)}×`,
+    '',
+    '',
+    `÷ floor reading the board in: ${(full.cpuMedian / Math.max(floorRead.cpuMedian, 0.001)).toFixed(1)}×`,
+  ]);
+  row(
+    'full analysis, stages may run over a night',
+    fullNoSplit,
+    `${withoutSplits} violations (the same board, no split)`,
+  );
   row('full checks only', checksOnly, '');
   row('full checks only, stages may run over', checksNoSplit, '');
   row('move check (checkMove)', move, `${moves.length} moves`);
   row('slot finder (crane, 1+3)', slot, `${slotStages.length} stages`);
   row(`auto-place ${unbookedJobIds.length} jobs`, place, `${placed} placed, ${unplaced} not`);
   row('clash sweep', sweep, `${sweepCount} overlaps`);
-  row('clash pairwise (baseline)', pairwise, `sweep ${(pairwise.median / sweep.median).toFixed(0)}× faster (wall), ${(pairwise.cpuMedian / Math.max(sweep.cpuMedian, 0.001)).toFixed(0)}× (cpu)`);
+  row(
+    'clash pairwise (baseline)',
+    pairwise,
+    `sweep ${(pairwise.median / sweep.median).toFixed(0)}× faster (wall), ${(pairwise.cpuMedian / Math.max(sweep.cpuMedian, 0.001)).toFixed(0)}× (cpu)`,
+  );
   rows.push([label, 'heap used, live (after gc)', `${heap.toFixed(0)} MB`, '', '', 'board + index + one analysis']);
   rows.push([label, 'heap used, at end (no gc)', `${heapAtEnd.toFixed(0)} MB`, '', '', 'includes uncollected garbage']);
   void (board satisfies Board);
@@ -138,4 +192,6 @@ const line = (r: string[]) => r.map((c, i) => c.padEnd(widths[i] as number)).joi
 console.log(line(head));
 console.log(widths.map((w) => '-'.repeat(w)).join('-|-'));
 for (const r of rows) console.log(line(r));
-console.log(`load average (1 min) at start ${loadAtStart.toFixed(2)}, at end ${(loadavg()[0] ?? 0).toFixed(2)}; Node ${process.version}`);
+console.log(
+  `load average (1 min) at start ${loadAtStart.toFixed(2)}, at end ${(loadavg()[0] ?? 0).toFixed(2)}; Node ${process.version}`,
+);

@@ -7,9 +7,15 @@ export interface FloorInput {
   /** Duration in minutes of each stage (booked: its booked span, unbooked: durationMinutes). */
   dur: Float64Array;
   /** Dependencies as from/to stage numbers, type (0 FS, 1 SS, 2 FF, 3 SF) and lag in minutes. */
-  from: Int32Array; to: Int32Array; type: Uint8Array; lag: Float64Array;
+  from: Int32Array;
+  to: Int32Array;
+  type: Uint8Array;
+  lag: Float64Array;
   /** Active bookings: resource number, start and end in minutes. */
-  res: Int32Array; start: Float64Array; end: Float64Array; resources: number;
+  res: Int32Array;
+  start: Float64Array;
+  end: Float64Array;
+  resources: number;
 }
 
 const LAG_MINUTES = { working_hours: 60, working_days: 480, elapsed_hours: 60, elapsed_days: 1440 } as const;
@@ -20,18 +26,31 @@ export function floorInput(board: Board): FloorInput {
   board.stages.forEach((s, i) => stageNo.set(s.id, i));
   const n = board.stages.length;
   const dur = new Float64Array(n);
-  board.stages.forEach((s, i) => { dur[i] = s.durationMinutes; });
+  board.stages.forEach((s, i) => {
+    dur[i] = s.durationMinutes;
+  });
   const m = board.dependencies.length;
-  const from = new Int32Array(m), to = new Int32Array(m), type = new Uint8Array(m), lag = new Float64Array(m);
+  const from = new Int32Array(m),
+    to = new Int32Array(m),
+    type = new Uint8Array(m),
+    lag = new Float64Array(m);
   board.dependencies.forEach((d, k) => {
-    from[k] = stageNo.get(d.fromStageId) as number; to[k] = stageNo.get(d.toStageId) as number;
-    type[k] = TYPE[d.type]; lag[k] = d.lag.amount * LAG_MINUTES[d.lag.unit];
+    from[k] = stageNo.get(d.fromStageId) as number;
+    to[k] = stageNo.get(d.toStageId) as number;
+    type[k] = TYPE[d.type];
+    lag[k] = d.lag.amount * LAG_MINUTES[d.lag.unit];
   });
   const resNo = new Map<string, number>();
   board.resources.forEach((r, i) => resNo.set(r.id, i));
   const active = board.bookings.filter((b) => b.state !== 'declined');
-  const res = new Int32Array(active.length), start = new Float64Array(active.length), end = new Float64Array(active.length);
-  active.forEach((b, k) => { res[k] = resNo.get(b.resourceId) as number; start[k] = b.start / 60_000; end[k] = b.end / 60_000; });
+  const res = new Int32Array(active.length),
+    start = new Float64Array(active.length),
+    end = new Float64Array(active.length);
+  active.forEach((b, k) => {
+    res[k] = resNo.get(b.resourceId) as number;
+    start[k] = b.start / 60_000;
+    end[k] = b.end / 60_000;
+  });
   return { n, dur, from, to, type, lag, res, start, end, resources: board.resources.length };
 }
 
@@ -46,25 +65,37 @@ export function floorInput(board: Board): FloorInput {
 export function floorPass(x: FloorInput): { overlaps: number; minFloat: number; freeSum: number } {
   const { n, dur, from, to, type, lag } = x;
   const m = from.length;
-  const outStart = new Int32Array(n + 1), inStart = new Int32Array(n + 1);
+  const outStart = new Int32Array(n + 1),
+    inStart = new Int32Array(n + 1);
   for (let k = 0; k < m; k++) {
-    const f = (from[k] as number) + 1, t = (to[k] as number) + 1;
-    outStart[f] = (outStart[f] as number) + 1; inStart[t] = (inStart[t] as number) + 1;
+    const f = (from[k] as number) + 1,
+      t = (to[k] as number) + 1;
+    outStart[f] = (outStart[f] as number) + 1;
+    inStart[t] = (inStart[t] as number) + 1;
   }
   for (let i = 0; i < n; i++) {
-    outStart[i + 1] = (outStart[i + 1] as number) + (outStart[i] as number); inStart[i + 1] = (inStart[i + 1] as number) + (inStart[i] as number);
+    outStart[i + 1] = (outStart[i + 1] as number) + (outStart[i] as number);
+    inStart[i + 1] = (inStart[i + 1] as number) + (inStart[i] as number);
   }
-  const outEdge = new Int32Array(m), inEdge = new Int32Array(m);
-  const oFill = outStart.slice(0, n), iFill = inStart.slice(0, n);
+  const outEdge = new Int32Array(m),
+    inEdge = new Int32Array(m);
+  const oFill = outStart.slice(0, n),
+    iFill = inStart.slice(0, n);
   for (let k = 0; k < m; k++) {
-    const f = from[k] as number, t = to[k] as number;
-    const o = oFill[f] as number, i = iFill[t] as number;
-    outEdge[o] = k; inEdge[i] = k; oFill[f] = o + 1; iFill[t] = i + 1;
+    const f = from[k] as number,
+      t = to[k] as number;
+    const o = oFill[f] as number,
+      i = iFill[t] as number;
+    outEdge[o] = k;
+    inEdge[i] = k;
+    oFill[f] = o + 1;
+    iFill[t] = i + 1;
   }
   const indeg = new Int32Array(n);
   for (let i = 0; i < n; i++) indeg[i] = (inStart[i + 1] as number) - (inStart[i] as number);
   const order = new Int32Array(n);
-  let head = 0, tail = 0;
+  let head = 0,
+    tail = 0;
   for (let i = 0; i < n; i++) if (indeg[i] === 0) order[tail++] = i;
   while (head < tail) {
     const i = order[head++] as number;
@@ -75,34 +106,61 @@ export function floorPass(x: FloorInput): { overlaps: number; minFloat: number; 
       if (left === 0) order[tail++] = s;
     }
   }
-  const es = new Float64Array(n), ef = new Float64Array(n), ls = new Float64Array(n), lf = new Float64Array(n);
+  const es = new Float64Array(n),
+    ef = new Float64Array(n),
+    ls = new Float64Array(n),
+    lf = new Float64Array(n);
   let finish = 0;
   for (let o = 0; o < tail; o++) {
-    const i = order[o] as number, d = dur[i] as number;
+    const i = order[o] as number,
+      d = dur[i] as number;
     let t = 0;
     for (let e = inStart[i] as number; e < (inStart[i + 1] as number); e++) {
-      const k = inEdge[e] as number, p = from[k] as number, l = lag[k] as number;
-      const b = type[k] === 0 ? (ef[p] as number) + l : type[k] === 1 ? (es[p] as number) + l : type[k] === 2 ? (ef[p] as number) + l - d : (es[p] as number) + l - d;
+      const k = inEdge[e] as number,
+        p = from[k] as number,
+        l = lag[k] as number;
+      const b =
+        type[k] === 0
+          ? (ef[p] as number) + l
+          : type[k] === 1
+            ? (es[p] as number) + l
+            : type[k] === 2
+              ? (ef[p] as number) + l - d
+              : (es[p] as number) + l - d;
       if (b > t) t = b;
     }
-    es[i] = t; ef[i] = t + d;
+    es[i] = t;
+    ef[i] = t + d;
     if (t + d > finish) finish = t + d;
   }
-  let minFloat = Number.POSITIVE_INFINITY, freeSum = 0;
+  let minFloat = Number.POSITIVE_INFINITY,
+    freeSum = 0;
   for (let o = tail - 1; o >= 0; o--) {
-    const i = order[o] as number, d = dur[i] as number;
-    let t = finish, free = finish - (ef[i] as number);
+    const i = order[o] as number,
+      d = dur[i] as number;
+    let t = finish,
+      free = finish - (ef[i] as number);
     for (let e = outStart[i] as number; e < (outStart[i + 1] as number); e++) {
-      const k = outEdge[e] as number, s = to[k] as number, l = lag[k] as number;
-      const b = type[k] === 0 ? (ls[s] as number) - l : type[k] === 1 ? (ls[s] as number) - l + d : type[k] === 2 ? (lf[s] as number) - l : (lf[s] as number) - l + d;
+      const k = outEdge[e] as number,
+        s = to[k] as number,
+        l = lag[k] as number;
+      const b =
+        type[k] === 0
+          ? (ls[s] as number) - l
+          : type[k] === 1
+            ? (ls[s] as number) - l + d
+            : type[k] === 2
+              ? (lf[s] as number) - l
+              : (lf[s] as number) - l + d;
       if (b < t) t = b;
       // Free float: the successor's early start (FS, SS) or finish (FF, SF) less the lag, less this
       // stage's early finish (FS, FF) or start (SS, SF).
-      const subject = type[k] === 0 || type[k] === 1 ? es[s] as number : ef[s] as number;
-      const own = type[k] === 0 || type[k] === 2 ? ef[i] as number : es[i] as number;
+      const subject = type[k] === 0 || type[k] === 1 ? (es[s] as number) : (ef[s] as number);
+      const own = type[k] === 0 || type[k] === 2 ? (ef[i] as number) : (es[i] as number);
       if (subject - l - own < free) free = subject - l - own;
     }
-    lf[i] = t; ls[i] = t - d;
+    lf[i] = t;
+    ls[i] = t - d;
     const total = t - d - (es[i] as number);
     if (total < minFloat) minFloat = total;
     freeSum += free;
@@ -111,23 +169,37 @@ export function floorPass(x: FloorInput): { overlaps: number; minFloat: number; 
   const { res, start, end, resources } = x;
   const b = res.length;
   const bStart = new Int32Array(resources + 1);
-  for (let k = 0; k < b; k++) { const r = (res[k] as number) + 1; bStart[r] = (bStart[r] as number) + 1; }
+  for (let k = 0; k < b; k++) {
+    const r = (res[k] as number) + 1;
+    bStart[r] = (bStart[r] as number) + 1;
+  }
   for (let r = 0; r < resources; r++) bStart[r + 1] = (bStart[r + 1] as number) + (bStart[r] as number);
   const fill = bStart.slice(0, resources);
-  const s0 = new Float64Array(b), e0 = new Float64Array(b);
+  const s0 = new Float64Array(b),
+    e0 = new Float64Array(b);
   for (let k = 0; k < b; k++) {
-    const r = res[k] as number, at = fill[r] as number;
-    fill[r] = at + 1; s0[at] = start[k] as number; e0[at] = end[k] as number;
+    const r = res[k] as number,
+      at = fill[r] as number;
+    fill[r] = at + 1;
+    s0[at] = start[k] as number;
+    e0[at] = end[k] as number;
   }
   const activeEnd = new Float64Array(b);
   let overlaps = 0;
   for (let r = 0; r < resources; r++) {
-    const lo = bStart[r] as number, hi = bStart[r + 1] as number;
+    const lo = bStart[r] as number,
+      hi = bStart[r + 1] as number;
     for (let i = lo + 1; i < hi; i++) {
-      const sv = s0[i] as number, ev = e0[i] as number;
+      const sv = s0[i] as number,
+        ev = e0[i] as number;
       let j = i - 1;
-      while (j >= lo && (s0[j] as number) > sv) { s0[j + 1] = s0[j] as number; e0[j + 1] = e0[j] as number; j--; }
-      s0[j + 1] = sv; e0[j + 1] = ev;
+      while (j >= lo && (s0[j] as number) > sv) {
+        s0[j + 1] = s0[j] as number;
+        e0[j + 1] = e0[j] as number;
+        j--;
+      }
+      s0[j + 1] = sv;
+      e0[j + 1] = ev;
     }
     let live = 0;
     for (let i = lo; i < hi; i++) {
@@ -135,7 +207,10 @@ export function floorPass(x: FloorInput): { overlaps: number; minFloat: number; 
       let keep = 0;
       for (let a = 0; a < live; a++) {
         const ea = activeEnd[a] as number;
-        if (ea > sv) { activeEnd[keep++] = ea; overlaps++; }
+        if (ea > sv) {
+          activeEnd[keep++] = ea;
+          overlaps++;
+        }
       }
       activeEnd[keep] = e0[i] as number;
       live = keep + 1;

@@ -15,17 +15,50 @@ import { ensureDatabase } from '../scripts/services/postgres.ts';
 import { loadBoard } from '../server/services/board.ts';
 import { seedDemo } from '../seeds/demo.ts';
 import { toEngineBoard } from '../shared/board-data.ts';
-import { analyseBoard, autoPlace, createBoardIndex, formatPence, type Board, type Booking } from '../shared/scheduler/index.ts';
+import {
+  analyseBoard,
+  autoPlace,
+  createBoardIndex,
+  formatPence,
+  type Board,
+  type Booking,
+} from '../shared/scheduler/index.ts';
 import { planCosts } from '../shared/scheduler/planner/place.ts';
 
 /** The day the demo is seeded as of (the tests' clock, so the figures repeat). */
 const TODAY = new Date('2026-06-01T07:00:00Z');
 const DAY = 86_400_000;
 /** The tables the demo fills, emptied inside the rolled-back transaction so the seed runs afresh. */
-const SEEDED_TABLES = ['audit_log', 'bookings', 'dependencies', 'stages', 'jobs', 'units', 'lead_time_rules', 'hire_periods',
-  'calendar_exceptions', 'crew_members', 'resources', 'calendars', 'partnerships', 'memberships', 'users', 'firms', 'session'];
-const cpuMs = (): number => { const u = process.cpuUsage(); return (u.user + u.system) / 1000; };
-const localDay = (t: number): string => new Date(t).toLocaleDateString('en-GB', { timeZone: 'Europe/London', weekday: 'short', day: 'numeric', month: 'short' });
+const SEEDED_TABLES = [
+  'audit_log',
+  'bookings',
+  'dependencies',
+  'stages',
+  'jobs',
+  'units',
+  'lead_time_rules',
+  'hire_periods',
+  'calendar_exceptions',
+  'crew_members',
+  'resources',
+  'calendars',
+  'partnerships',
+  'memberships',
+  'users',
+  'firms',
+  'session',
+];
+const cpuMs = (): number => {
+  const u = process.cpuUsage();
+  return (u.user + u.system) / 1000;
+};
+const localDay = (t: number): string =>
+  new Date(t).toLocaleDateString('en-GB', {
+    timeZone: 'Europe/London',
+    weekday: 'short',
+    day: 'numeric',
+    month: 'short',
+  });
 
 class Rollback extends Error {}
 
@@ -33,16 +66,25 @@ class Rollback extends Error {}
 async function demoBoard(knex: Knex): Promise<Board> {
   await knex.migrate.latest(migrationConfig);
   let board: Board | undefined;
-  await knex.transaction(async (trx) => {
-    await trx.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
-    await seedDemo(trx, { today: TODAY });
-    const user = await trx('users').where('email', 'sam.okafor@tideway.example').first('id') as { id: string };
-    const firm = await trx('firms').where('name', 'Tideway Hot Tubs').first('id') as { id: string };
-    const actor = { userId: String(user.id), firmId: String(firm.id), firmKind: 'installer' as const, role: 'scheduler' as const };
-    const now = TODAY.getTime();
-    board = toEngineBoard(await loadBoard(trx, actor, { from: now - 60 * DAY, to: now + 240 * DAY, now }));
-    throw new Rollback();
-  }).catch((e: unknown) => { if (!(e instanceof Rollback)) throw e; });
+  await knex
+    .transaction(async (trx) => {
+      await trx.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+      await seedDemo(trx, { today: TODAY });
+      const user = (await trx('users').where('email', 'sam.okafor@tideway.example').first('id')) as { id: string };
+      const firm = (await trx('firms').where('name', 'Tideway Hot Tubs').first('id')) as { id: string };
+      const actor = {
+        userId: String(user.id),
+        firmId: String(firm.id),
+        firmKind: 'installer' as const,
+        role: 'scheduler' as const,
+      };
+      const now = TODAY.getTime();
+      board = toEngineBoard(await loadBoard(trx, actor, { from: now - 60 * DAY, to: now + 240 * DAY, now }));
+      throw new Rollback();
+    })
+    .catch((e: unknown) => {
+      if (!(e instanceof Rollback)) throw e;
+    });
   if (!board) throw new Error('The demo board was not read');
   return board;
 }
@@ -68,7 +110,9 @@ export async function replanDemo(budgetMs = 2000): Promise<void> {
   try {
     board = await demoBoard(knex);
   } catch (e) {
-    console.log(`Demo re-plan: skipped, PostgreSQL not usable at ${url.replace(/\/\/[^@]*@/, '//')} (${e instanceof Error ? e.message.split('\n')[0] : String(e)})`);
+    console.log(
+      `Demo re-plan: skipped, PostgreSQL not usable at ${url.replace(/\/\/[^@]*@/, '//')} (${e instanceof Error ? e.message.split('\n')[0] : String(e)})`,
+    );
     return;
   } finally {
     await knex.destroy();
@@ -82,17 +126,31 @@ export async function replanDemo(budgetMs = 2000): Promise<void> {
   // installer's busy blocks stay).
   const byStage = new Map<string, Booking[]>();
   for (const b of board.bookings) byStage.set(b.stageId, [...(byStage.get(b.stageId) ?? []), b]);
-  const open = new Set(board.stages.filter((s) => ownJobIds.has(s.jobId) && (byStage.get(s.id)?.length ?? 0) > 0
-    && byStage.get(s.id)!.every((b) => b.state === 'pencilled')).map((s) => s.id));
+  const open = new Set(
+    board.stages
+      .filter(
+        (s) =>
+          ownJobIds.has(s.jobId) &&
+          (byStage.get(s.id)?.length ?? 0) > 0 &&
+          byStage.get(s.id)!.every((b) => b.state === 'pencilled'),
+      )
+      .map((s) => s.id),
+  );
   const fixed: Board = { ...board, bookings: board.bookings.filter((b) => !open.has(b.stageId)) };
   const jobIds = ownJobs.filter((j) => board.stages.some((s) => s.jobId === j.id && open.has(s.id))).map((j) => j.id);
   // Stages still in the tray stay there: this re-plans what is on the board, not the new enquiries.
   const trayStages = new Set(board.stages.filter((s) => ownJobIds.has(s.jobId) && !byStage.has(s.id)).map((s) => s.id));
-  const view: Board = { ...fixed, stages: fixed.stages.filter((s) => !trayStages.has(s.id)), dependencies: fixed.dependencies.filter((d) => !trayStages.has(d.fromStageId) && !trayStages.has(d.toStageId)) };
+  const view: Board = {
+    ...fixed,
+    stages: fixed.stages.filter((s) => !trayStages.has(s.id)),
+    dependencies: fixed.dependencies.filter((d) => !trayStages.has(d.fromStageId) && !trayStages.has(d.toStageId)),
+  };
 
-  const w0 = performance.now(), c0 = cpuMs();
+  const w0 = performance.now(),
+    c0 = cpuMs();
   const result = autoPlace(view, { now, jobIds, budgetMs, seed: 1 });
-  const wallMs = performance.now() - w0, cpu = cpuMs() - c0;
+  const wallMs = performance.now() - w0,
+    cpu = cpuMs() - c0;
   const s0 = performance.now();
   autoPlace(view, { now, jobIds, budgetMs: 0 });
   const singleMs = performance.now() - s0;
@@ -101,27 +159,46 @@ export async function replanDemo(budgetMs = 2000): Promise<void> {
   // Today's plan costed the same way as the planner costs its own (the same stages, the same rules).
   const pending = view.stages.filter((s) => open.has(s.id));
   const before = planCosts(createBoardIndex(board, { now }), pending, 0);
-  const errors = (b: Board) => analyseBoard(b, { now, skipCriticalPath: true }).violations.filter((v) => v.severity === 'error').length;
-  const fBefore = finishes(board), fAfter = finishes(after);
+  const errors = (b: Board) =>
+    analyseBoard(b, { now, skipCriticalPath: true }).violations.filter((v) => v.severity === 'error').length;
+  const fBefore = finishes(board),
+    fAfter = finishes(after);
   const refOf = new Map(board.jobs.map((j) => [j.id, (j as { reference?: string }).reference ?? j.id]));
   const later = jobIds.filter((id) => (fAfter.get(id) ?? 0) > (fBefore.get(id) ?? 0));
   const earlier = jobIds.filter((id) => (fAfter.get(id) ?? 0) < (fBefore.get(id) ?? 0));
-  const lateCount = (f: Map<string, number>) => ownJobs.filter((j) => j.promisedBy != null && (f.get(j.id) ?? 0) > j.promisedBy).length;
+  const lateCount = (f: Map<string, number>) =>
+    ownJobs.filter((j) => j.promisedBy != null && (f.get(j.id) ?? 0) > j.promisedBy).length;
 
-  console.log(`Demo board re-planned at once (${jobIds.length} jobs, ${pending.length} unstarted stages, ${fixed.bookings.length} bookings kept; budget ${budgetMs} ms, seed 1)`);
-  console.log(`  time: wall ${wallMs.toFixed(0)} ms, CPU ${cpu.toFixed(0)} ms (${wallMs <= 2000 ? 'within' : 'OVER'} the 2 s target; the single pass alone: wall ${singleMs.toFixed(0)} ms); `
-    + `plan from ${result.source}; ${result.unplaced.length} stages left unplaced`);
-  console.log(`  jobs late (all of the office's jobs): before ${lateCount(fBefore)}, after ${lateCount(fAfter)}; of the re-planned ones: before ${before.lateJobs}, after ${result.costs.lateJobs}`);
-  console.log(`  finishes: ${earlier.length} earlier, ${jobIds.length - earlier.length - later.length} the same, ${later.length} later than today's plan`);
+  console.log(
+    `Demo board re-planned at once (${jobIds.length} jobs, ${pending.length} unstarted stages, ${fixed.bookings.length} bookings kept; budget ${budgetMs} ms, seed 1)`,
+  );
+  console.log(
+    `  time: wall ${wallMs.toFixed(0)} ms, CPU ${cpu.toFixed(0)} ms (${wallMs <= 2000 ? 'within' : 'OVER'} the 2 s target; the single pass alone: wall ${singleMs.toFixed(0)} ms); ` +
+      `plan from ${result.source}; ${result.unplaced.length} stages left unplaced`,
+  );
+  console.log(
+    `  jobs late (all of the office's jobs): before ${lateCount(fBefore)}, after ${lateCount(fAfter)}; of the re-planned ones: before ${before.lateJobs}, after ${result.costs.lateJobs}`,
+  );
+  console.log(
+    `  finishes: ${earlier.length} earlier, ${jobIds.length - earlier.length - later.length} the same, ${later.length} later than today's plan`,
+  );
   for (const id of jobIds) {
-    const b = fBefore.get(id) ?? 0, a = fAfter.get(id) ?? 0;
+    const b = fBefore.get(id) ?? 0,
+      a = fAfter.get(id) ?? 0;
     const d = Math.round((a - b) / 3_600_000);
-    console.log(`    ${refOf.get(id)}: ${localDay(b)} → ${localDay(a)}${d === 0 ? '' : ` (${d > 0 ? '+' : ''}${d} h)`}${a > b ? '  LATER THAN TODAY\'S PLAN' : ''}`);
+    console.log(
+      `    ${refOf.get(id)}: ${localDay(b)} → ${localDay(a)}${d === 0 ? '' : ` (${d > 0 ? '+' : ''}${d} h)`}${a > b ? "  LATER THAN TODAY'S PLAN" : ''}`,
+    );
   }
-  if (later.length > 0) console.log(`  NOT MET: ${later.length} job(s) would finish later than today's plan: ${later.map((id) => refOf.get(id)).join(', ')}`);
-  else console.log('  met: no job finishes later than today\'s plan');
-  console.log(`  idle paid hire: before ${formatPence(before.idleHirePence)}, after ${formatPence(result.costs.idleHirePence)}; crew changes: before ${before.crewChanges}, after ${result.costs.crewChanges}; `
-    + `sum of finishes: before ${Math.round(before.finishMinutes / 60)} h, after ${Math.round(result.costs.finishMinutes / 60)} h from now`);
+  if (later.length > 0)
+    console.log(
+      `  NOT MET: ${later.length} job(s) would finish later than today's plan: ${later.map((id) => refOf.get(id)).join(', ')}`,
+    );
+  else console.log("  met: no job finishes later than today's plan");
+  console.log(
+    `  idle paid hire: before ${formatPence(before.idleHirePence)}, after ${formatPence(result.costs.idleHirePence)}; crew changes: before ${before.crewChanges}, after ${result.costs.crewChanges}; ` +
+      `sum of finishes: before ${Math.round(before.finishMinutes / 60)} h, after ${Math.round(result.costs.finishMinutes / 60)} h from now`,
+  );
   console.log(`  engine errors on the whole board: before ${errors(board)}, after ${errors(after)}`);
 }
 

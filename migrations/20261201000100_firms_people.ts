@@ -7,7 +7,8 @@ export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('firms', (t) => {
     t.bigIncrements('id');
     t.text('name').notNullable();
-    t.text('kind').notNullable()
+    t.text('kind')
+      .notNullable()
       .checkIn(['installer', 'groundworks', 'plant_hire', 'crane_hire', 'haulage', 'electrical'], 'firms_kind_check');
     t.text('time_zone').notNullable().defaultTo('Europe/London');
     // date-holidays country and region, e.g. GB-ENG, GB-SCT, GB-NIR.
@@ -32,7 +33,8 @@ export async function up(knex: Knex): Promise<void> {
     t.bigIncrements('id');
     t.bigInteger('user_id').notNullable().references('users.id').onDelete('CASCADE');
     t.bigInteger('firm_id').notNullable().references('firms.id').onDelete('CASCADE');
-    t.text('role').notNullable()
+    t.text('role')
+      .notNullable()
       .checkIn(['owner', 'scheduler', 'manager', 'crew', 'partner', 'viewer'], 'memberships_role_check');
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
     t.unique(['user_id', 'firm_id']);
@@ -45,7 +47,9 @@ export async function up(knex: Knex): Promise<void> {
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
     t.unique(['installer_firm_id', 'partner_firm_id']);
   });
-  await knex.raw('ALTER TABLE partnerships ADD CONSTRAINT partnerships_distinct CHECK (installer_firm_id <> partner_firm_id)');
+  await knex.raw(
+    'ALTER TABLE partnerships ADD CONSTRAINT partnerships_distinct CHECK (installer_firm_id <> partner_firm_id)',
+  );
 
   // Sessions for express-session through connect-pg-simple (its documented table).
   await knex.schema.createTable('session', (t) => {

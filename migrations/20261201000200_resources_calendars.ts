@@ -61,7 +61,10 @@ export async function up(knex: Knex): Promise<void> {
     t.integer('day_rate_pence').notNullable();
     t.integer('delivery_pence').notNullable().defaultTo(0);
     t.integer('collection_pence').notNullable().defaultTo(0);
-    t.text('status').notNullable().defaultTo('requested').checkIn(['requested', 'approved', 'ended'], 'hire_periods_status_check');
+    t.text('status')
+      .notNullable()
+      .defaultTo('requested')
+      .checkIn(['requested', 'approved', 'ended'], 'hire_periods_status_check');
     t.bigInteger('approved_by').references('users.id');
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
   });

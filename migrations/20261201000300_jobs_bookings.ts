@@ -31,9 +31,12 @@ export async function up(knex: Knex): Promise<void> {
     t.text('site_postcode').notNullable();
     t.text('access_notes');
     t.bigInteger('unit_id').references('units.id');
-    t.text('installation_type').notNullable()
+    t.text('installation_type')
+      .notNullable()
       .checkIn(['in_ground', 'semi_recessed', 'slab', 'deck'], 'jobs_installation_type_check');
-    t.text('status').notNullable().defaultTo('enquiry')
+    t.text('status')
+      .notNullable()
+      .defaultTo('enquiry')
       .checkIn(['enquiry', 'surveyed', 'planned', 'in_progress', 'handed_over', 'cancelled'], 'jobs_status_check');
     t.date('promised_from');
     t.date('promised_to');
@@ -67,7 +70,9 @@ export async function up(knex: Knex): Promise<void> {
     t.bigInteger('to_stage_id').notNullable().references('stages.id').onDelete('CASCADE');
     t.text('type').notNullable().defaultTo('FS').checkIn(['FS', 'SS', 'FF', 'SF'], 'dependencies_type_check');
     t.decimal('lag_amount', 10, 2).notNullable().defaultTo(0);
-    t.text('lag_unit').notNullable().defaultTo('working_hours')
+    t.text('lag_unit')
+      .notNullable()
+      .defaultTo('working_hours')
       .checkIn(['working_hours', 'working_days', 'elapsed_hours', 'elapsed_days'], 'dependencies_lag_unit_check');
     t.unique(['from_stage_id', 'to_stage_id']);
   });
@@ -79,7 +84,9 @@ export async function up(knex: Knex): Promise<void> {
     t.bigInteger('resource_id').notNullable().references('resources.id');
     t.timestamp('starts_at', { useTz: true }).notNullable();
     t.timestamp('ends_at', { useTz: true }).notNullable();
-    t.text('state').notNullable().defaultTo('pencilled')
+    t.text('state')
+      .notNullable()
+      .defaultTo('pencilled')
       .checkIn(['pencilled', 'sent', 'confirmed', 'declined', 'on_site', 'done'], 'bookings_state_check');
     t.integer('version').notNullable().defaultTo(1);
     t.bigInteger('created_by').references('users.id');

@@ -13,7 +13,10 @@ export async function up(knex: Knex): Promise<void> {
     t.text('kind').notNullable();
     // Ids only, never addresses, names or secrets: the worker reads the current rows when it renders.
     t.jsonb('payload').notNullable();
-    t.text('status').notNullable().defaultTo('pending').checkIn(['pending', 'queued', 'sent', 'failed'], 'outbox_status_check');
+    t.text('status')
+      .notNullable()
+      .defaultTo('pending')
+      .checkIn(['pending', 'queued', 'sent', 'failed'], 'outbox_status_check');
     t.integer('attempts').notNullable().defaultTo(0);
     t.timestamp('next_attempt_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
     t.text('last_error');
@@ -81,13 +84,16 @@ export async function up(knex: Knex): Promise<void> {
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());
     t.timestamp('revoked_at', { useTz: true });
   });
-  await knex.raw('CREATE UNIQUE INDEX calendar_feeds_one_live ON calendar_feeds (resource_id) WHERE revoked_at IS NULL');
+  await knex.raw(
+    'CREATE UNIQUE INDEX calendar_feeds_one_live ON calendar_feeds (resource_id) WHERE revoked_at IS NULL',
+  );
 
   await knex.schema.createTable('invitations', (t) => {
     t.bigIncrements('id');
     t.bigInteger('firm_id').notNullable().references('firms.id').onDelete('CASCADE');
     t.text('email').notNullable();
-    t.text('role').notNullable()
+    t.text('role')
+      .notNullable()
       .checkIn(['owner', 'scheduler', 'manager', 'crew', 'partner', 'viewer'], 'invitations_role_check');
     t.bigInteger('invited_by').references('users.id').onDelete('SET NULL');
     t.timestamp('created_at', { useTz: true }).notNullable().defaultTo(knex.fn.now());

@@ -12,7 +12,8 @@ export async function up(knex: Knex): Promise<void> {
     t.integer('gates').notNullable().defaultTo(0);
     t.boolean('overhead_obstructions').notNullable().defaultTo(false);
     t.text('overhead_notes');
-    t.text('ground_type').notNullable()
+    t.text('ground_type')
+      .notNullable()
       .checkIn(['clay', 'loam', 'sand_gravel', 'chalk', 'rock', 'made_ground', 'unknown'], 'surveys_ground_type_check');
     t.text('buried_services_notes');
     t.text('crane_standing_position');
@@ -38,7 +39,8 @@ export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('stage_templates', (t) => {
     t.bigIncrements('id');
     t.bigInteger('firm_id').notNullable().references('firms.id').onDelete('CASCADE');
-    t.text('installation_type').notNullable()
+    t.text('installation_type')
+      .notNullable()
       .checkIn(['in_ground', 'semi_recessed', 'slab', 'deck'], 'stage_templates_installation_type_check');
     t.text('name').notNullable();
     t.jsonb('stages').notNullable();

@@ -23,7 +23,9 @@ export async function up(knex: Knex): Promise<void> {
 }
 
 export async function down(knex: Knex): Promise<void> {
-  await knex.raw('ALTER TABLE surveys DROP CONSTRAINT surveys_hose_flow_positive, DROP CONSTRAINT surveys_large_loads_positive');
+  await knex.raw(
+    'ALTER TABLE surveys DROP CONSTRAINT surveys_hose_flow_positive, DROP CONSTRAINT surveys_large_loads_positive',
+  );
   await knex.schema.alterTable('surveys', (t) => {
     t.dropColumn('hose_flow_litres_per_minute');
     t.dropColumn('earthing_arrangement');

@@ -26,12 +26,21 @@ export async function up(knex: Knex): Promise<void> {
     FROM jobs j JOIN units u ON u.id = j.unit_id
     WHERE s.job_id = j.id AND s.kind = 'delivery' AND u.maker_lead_days IS NOT NULL AND u.maker_lead_days > 0`);
 
-  type Row = { id: string; stages: { kind: string; cure?: unknown }[]; links: { from: string; to: string; waitsForCure?: boolean }[] };
-  const rows = await knex('stage_templates').select('id', 'stages', 'links') as Row[];
+  type Row = {
+    id: string;
+    stages: { kind: string; cure?: unknown }[];
+    links: { from: string; to: string; waitsForCure?: boolean }[];
+  };
+  const rows = (await knex('stage_templates').select('id', 'stages', 'links')) as Row[];
   for (const row of rows) {
     const cured = new Set(row.stages.filter((s) => s.cure).map((s) => s.kind));
-    const links = row.links.map((l) => ({ ...l, waitsForCure: l.waitsForCure ?? (cured.has(l.from) && l.to !== 'walls') }));
-    await knex('stage_templates').where('id', row.id).update({ links: JSON.stringify(links) });
+    const links = row.links.map((l) => ({
+      ...l,
+      waitsForCure: l.waitsForCure ?? (cured.has(l.from) && l.to !== 'walls'),
+    }));
+    await knex('stage_templates')
+      .where('id', row.id)
+      .update({ links: JSON.stringify(links) });
   }
 }
 

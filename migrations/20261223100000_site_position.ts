@@ -19,7 +19,9 @@ export async function up(knex: Knex): Promise<void> {
   await knex.schema.alterTable('firm_settings', (t) => {
     t.decimal('cure_datum_c', 4, 1).notNullable().defaultTo(0);
   });
-  await knex.raw('ALTER TABLE firm_settings ADD CONSTRAINT firm_settings_cure_datum_check CHECK (cure_datum_c BETWEEN -15 AND 15)');
+  await knex.raw(
+    'ALTER TABLE firm_settings ADD CONSTRAINT firm_settings_cure_datum_check CHECK (cure_datum_c BETWEEN -15 AND 15)',
+  );
   await knex.schema.createTable('site_forecasts', (t) => {
     t.bigInteger('job_id').notNullable().references('jobs.id').onDelete('CASCADE');
     t.date('date').notNullable();
@@ -32,7 +34,9 @@ export async function up(knex: Knex): Promise<void> {
 export async function down(knex: Knex): Promise<void> {
   await knex.schema.dropTable('site_forecasts');
   await knex.raw('ALTER TABLE firm_settings DROP CONSTRAINT firm_settings_cure_datum_check');
-  await knex.schema.alterTable('firm_settings', (t) => { t.dropColumn('cure_datum_c'); });
+  await knex.schema.alterTable('firm_settings', (t) => {
+    t.dropColumn('cure_datum_c');
+  });
   await knex.raw(`ALTER TABLE surveys DROP CONSTRAINT surveys_site_position_pair_check,
     DROP CONSTRAINT surveys_site_longitude_check, DROP CONSTRAINT surveys_site_latitude_check`);
   await knex.schema.alterTable('surveys', (t) => {

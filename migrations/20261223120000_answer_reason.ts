@@ -16,6 +16,10 @@ export async function up(knex: Knex): Promise<void> {
 }
 
 export async function down(knex: Knex): Promise<void> {
-  await knex.schema.alterTable('surveys', (t) => { t.dropColumn('consumer_unit_location'); });
-  await knex.schema.alterTable('booking_answers', (t) => { t.dropColumn('reason'); });
+  await knex.schema.alterTable('surveys', (t) => {
+    t.dropColumn('consumer_unit_location');
+  });
+  await knex.schema.alterTable('booking_answers', (t) => {
+    t.dropColumn('reason');
+  });
 }

@@ -15,7 +15,9 @@ import type { Knex } from 'knex';
 export async function up(knex: Knex): Promise<void> {
   await knex.raw('CREATE EXTENSION IF NOT EXISTS btree_gist');
   await knex.raw('CREATE INDEX bookings_during_idx ON bookings USING gist (tstzrange(starts_at, ends_at))');
-  await knex.raw('CREATE INDEX booking_requests_waiting_idx ON booking_requests (requested_at) WHERE overdue_at IS NULL');
+  await knex.raw(
+    'CREATE INDEX booking_requests_waiting_idx ON booking_requests (requested_at) WHERE overdue_at IS NULL',
+  );
   await knex.raw("CREATE INDEX outbox_queued_idx ON outbox (next_attempt_at) WHERE status = 'queued'");
   await knex.raw("CREATE INDEX outbox_settled_idx ON outbox (created_at) WHERE status IN ('sent', 'failed')");
   await knex.raw('CREATE INDEX link_attempts_at_idx ON link_attempts (at)');
@@ -63,19 +65,43 @@ BEGIN
   RETURN NULL;
 END $$`);
   for (const table of BOARD_TABLES) {
-    await knex.raw(`CREATE TRIGGER ${table}_board_change AFTER INSERT OR UPDATE OR DELETE ON ${table} FOR EACH ROW EXECUTE FUNCTION note_board_change()`);
+    await knex.raw(
+      `CREATE TRIGGER ${table}_board_change AFTER INSERT OR UPDATE OR DELETE ON ${table} FOR EACH ROW EXECUTE FUNCTION note_board_change()`,
+    );
   }
 }
 
 /** Every table the board reads (server/services/board.ts and what it calls). */
-const BOARD_TABLES = ['firms', 'firm_settings', 'partnerships', 'jobs', 'stages', 'dependencies', 'bookings', 'booking_requests', 'booking_answers',
-  'resources', 'crew_members', 'calendars', 'calendar_exceptions', 'hire_periods', 'lead_time_rules', 'site_forecasts'];
+const BOARD_TABLES = [
+  'firms',
+  'firm_settings',
+  'partnerships',
+  'jobs',
+  'stages',
+  'dependencies',
+  'bookings',
+  'booking_requests',
+  'booking_answers',
+  'resources',
+  'crew_members',
+  'calendars',
+  'calendar_exceptions',
+  'hire_periods',
+  'lead_time_rules',
+  'site_forecasts',
+];
 
 export async function down(knex: Knex): Promise<void> {
   for (const table of BOARD_TABLES) await knex.raw(`DROP TRIGGER IF EXISTS ${table}_board_change ON ${table}`);
   await knex.raw('DROP FUNCTION IF EXISTS note_board_change()');
   await knex.schema.dropTableIfExists('board_changes');
-  for (const index of ['link_attempts_at_idx', 'outbox_settled_idx', 'outbox_queued_idx', 'booking_requests_waiting_idx', 'bookings_during_idx']) {
+  for (const index of [
+    'link_attempts_at_idx',
+    'outbox_settled_idx',
+    'outbox_queued_idx',
+    'booking_requests_waiting_idx',
+    'bookings_during_idx',
+  ]) {
     await knex.raw(`DROP INDEX IF EXISTS ${index}`);
   }
 }

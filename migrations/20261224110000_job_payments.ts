@@ -14,11 +14,15 @@ export async function up(knex: Knex): Promise<void> {
   await knex.schema.alterTable('jobs', (t) => {
     t.integer('price_pence');
   });
-  await knex.raw('ALTER TABLE jobs ADD CONSTRAINT jobs_price_pence_check CHECK (price_pence IS NULL OR price_pence > 0)');
+  await knex.raw(
+    'ALTER TABLE jobs ADD CONSTRAINT jobs_price_pence_check CHECK (price_pence IS NULL OR price_pence > 0)',
+  );
   await knex.schema.alterTable('firm_settings', (t) => {
     t.integer('deposit_percent').notNullable().defaultTo(25);
   });
-  await knex.raw('ALTER TABLE firm_settings ADD CONSTRAINT firm_settings_deposit_percent_check CHECK (deposit_percent BETWEEN 1 AND 100)');
+  await knex.raw(
+    'ALTER TABLE firm_settings ADD CONSTRAINT firm_settings_deposit_percent_check CHECK (deposit_percent BETWEEN 1 AND 100)',
+  );
 
   await knex.schema.createTable('job_payments', (t) => {
     t.bigIncrements('id');
@@ -26,7 +30,10 @@ export async function up(knex: Knex): Promise<void> {
     t.text('kind').notNullable().checkIn(['deposit', 'balance'], 'job_payments_kind_check');
     t.integer('amount_pence').notNullable();
     t.text('currency').notNullable().defaultTo('gbp').checkIn(['gbp'], 'job_payments_currency_check');
-    t.text('status').notNullable().defaultTo('requested').checkIn(['requested', 'paid', 'cancelled', 'failed'], 'job_payments_status_check');
+    t.text('status')
+      .notNullable()
+      .defaultTo('requested')
+      .checkIn(['requested', 'paid', 'cancelled', 'failed'], 'job_payments_status_check');
     // The provider's checkout session (made when the householder first opens the link) and its payment.
     t.text('checkout_session_id').unique();
     t.text('payment_intent_id').unique();
@@ -60,7 +67,11 @@ export async function down(knex: Knex): Promise<void> {
   await knex.schema.dropTable('webhook_events');
   await knex.schema.dropTable('job_payments');
   await knex.raw('ALTER TABLE firm_settings DROP CONSTRAINT firm_settings_deposit_percent_check');
-  await knex.schema.alterTable('firm_settings', (t) => { t.dropColumn('deposit_percent'); });
+  await knex.schema.alterTable('firm_settings', (t) => {
+    t.dropColumn('deposit_percent');
+  });
   await knex.raw('ALTER TABLE jobs DROP CONSTRAINT jobs_price_pence_check');
-  await knex.schema.alterTable('jobs', (t) => { t.dropColumn('price_pence'); });
+  await knex.schema.alterTable('jobs', (t) => {
+    t.dropColumn('price_pence');
+  });
 }

@@ -71,7 +71,9 @@ export async function down(knex: Knex): Promise<void> {
     t.dropColumn('certificate_waiver_reason');
   });
   await knex.schema.dropTable('electrical_certificates');
-  await knex.schema.alterTable('firm_settings', (t) => { t.dropColumn('water_targets'); });
+  await knex.schema.alterTable('firm_settings', (t) => {
+    t.dropColumn('water_targets');
+  });
   await knex.schema.dropTable('commissioning_photos');
   await knex.schema.dropTable('commissioning_records');
 }

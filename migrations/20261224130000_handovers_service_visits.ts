@@ -25,7 +25,9 @@ export async function up(knex: Knex): Promise<void> {
 
   // First visit 3 months after the handover, then every 12, two planned ahead (common practice, no source).
   await knex.schema.alterTable('firm_settings', (t) => {
-    t.jsonb('service_plan').notNullable().defaultTo(JSON.stringify({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 }));
+    t.jsonb('service_plan')
+      .notNullable()
+      .defaultTo(JSON.stringify({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 }));
   });
 
   await knex.schema.alterTable('jobs', (t) => {
@@ -36,7 +38,9 @@ export async function up(knex: Knex): Promise<void> {
     t.index(['parent_job_id']);
   });
   // One service job per install and due date: a handover run twice never plans a visit twice.
-  await knex.raw(`CREATE UNIQUE INDEX jobs_service_visit_unique ON jobs (parent_job_id, service_due_on) WHERE kind = 'service'`);
+  await knex.raw(
+    `CREATE UNIQUE INDEX jobs_service_visit_unique ON jobs (parent_job_id, service_due_on) WHERE kind = 'service'`,
+  );
 }
 
 export async function down(knex: Knex): Promise<void> {
@@ -47,6 +51,8 @@ export async function down(knex: Knex): Promise<void> {
     t.dropColumn('parent_job_id');
     t.dropColumn('kind');
   });
-  await knex.schema.alterTable('firm_settings', (t) => { t.dropColumn('service_plan'); });
+  await knex.schema.alterTable('firm_settings', (t) => {
+    t.dropColumn('service_plan');
+  });
   await knex.schema.dropTable('handovers');
 }

@@ -20,16 +20,23 @@ const installed = path.join(root, 'node_modules', '.package-lock.json');
 const stale = !existsSync(installed) || (existsSync(lock) && statSync(lock).mtimeMs > statSync(installed).mtimeMs);
 if (stale) {
   console.log('Installing npm dependencies (first run)…');
-  const result = spawnSync('npm', [existsSync(lock) ? 'ci' : 'install', '--no-audit', '--no-fund'], { cwd: root, stdio: 'inherit' });
+  const result = spawnSync('npm', [existsSync(lock) ? 'ci' : 'install', '--no-audit', '--no-fund'], {
+    cwd: root,
+    stdio: 'inherit',
+  });
   if (result.status !== 0) process.exit(result.status ?? 1);
 }
 
 // Node with tsx's loader, not the tsx command: that command's signal relay kills its child outright
 // when a second signal arrives quickly, which would skip stopping PostgreSQL and Redis.
-const child = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'scripts', 'stack.ts'), mode, ...process.argv.slice(3)], {
-  cwd: root,
-  stdio: 'inherit',
-});
+const child = spawn(
+  process.execPath,
+  ['--import', 'tsx', path.join(root, 'scripts', 'stack.ts'), mode, ...process.argv.slice(3)],
+  {
+    cwd: root,
+    stdio: 'inherit',
+  },
+);
 // The stack runner stops its services on SIGINT/SIGTERM itself; pass the signal on and wait for it.
 for (const signal of ['SIGINT', 'SIGTERM']) process.on(signal, () => child.kill(signal));
 child.on('exit', (code, signal) => process.exit(code ?? (signal ? 1 : 0)));

@@ -15,7 +15,11 @@ const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const target = path.join(root, 'dist-server');
 const fresh = `${target}.building-${process.pid}`;
 const tsc = path.join(root, 'node_modules', 'typescript', 'bin', 'tsc');
-const result = spawnSync(process.execPath, [tsc, '-p', path.join(root, 'tsconfig.server.build.json'), '--outDir', fresh], { cwd: root, stdio: 'inherit' });
+const result = spawnSync(
+  process.execPath,
+  [tsc, '-p', path.join(root, 'tsconfig.server.build.json'), '--outDir', fresh],
+  { cwd: root, stdio: 'inherit' },
+);
 if (result.status === 0 || (result.status === 2 && process.argv.includes('--allow-type-errors'))) {
   const old = `${target}.old-${process.pid}`;
   if (existsSync(target)) renameSync(target, old);
@@ -29,5 +33,6 @@ if (result.status === 2 && process.argv.includes('--allow-type-errors')) {
   console.error('The server build has type errors (above); it was put in place anyway (--allow-type-errors).');
   process.exit(0);
 }
-if (result.status !== 0) console.error('The server build failed (tsc -p tsconfig.server.build.json); dist-server/ is unchanged.');
+if (result.status !== 0)
+  console.error('The server build failed (tsc -p tsconfig.server.build.json); dist-server/ is unchanged.');
 process.exit(result.status ?? 1);

@@ -11,7 +11,7 @@ if (!url) {
 const knex = createKnex(url, { min: 0, max: 2 });
 try {
   if (command === 'latest') {
-    const [, applied] = await knex.migrate.latest(migrationConfig) as [number, string[]];
+    const [, applied] = (await knex.migrate.latest(migrationConfig)) as [number, string[]];
     if (applied.length) console.log(`Applied ${applied.length} migration(s).`);
   } else if (command === 'rollback') {
     await knex.migrate.rollback(migrationConfig);
@@ -22,7 +22,11 @@ try {
   }
   if (process.argv.includes('--seed')) {
     const result = await seedDemo(knex);
-    console.log(result.skipped ? 'Demo data already present.' : `Seeded the demo scenario: ${result.jobs} jobs, ${result.bookings} bookings.`);
+    console.log(
+      result.skipped
+        ? 'Demo data already present.'
+        : `Seeded the demo scenario: ${result.jobs} jobs, ${result.bookings} bookings.`,
+    );
   }
 } finally {
   await knex.destroy();

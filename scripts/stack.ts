@@ -53,9 +53,17 @@ async function stopAll(code: number): Promise<never> {
   stopping = true;
   stopped ??= (async () => {
     for (const child of children) child.kill('SIGTERM');
-    await Promise.all(children.map((c) => new Promise((r) => (c.exitCode !== null || c.signalCode !== null ? r(null) : c.once('exit', r)))));
+    await Promise.all(
+      children.map(
+        (c) => new Promise((r) => (c.exitCode !== null || c.signalCode !== null ? r(null) : c.once('exit', r))),
+      ),
+    );
     for (const cleanup of cleanups.reverse()) {
-      try { await cleanup(); } catch (error) { console.error(String(error)); }
+      try {
+        await cleanup();
+      } catch (error) {
+        console.error(String(error));
+      }
     }
   })();
   await stopped;
@@ -74,7 +82,8 @@ function onSignal(code: number): void {
   const now = Date.now();
   if (now - lastSignalAt > 250) signalRequests += 1;
   lastSignalAt = now;
-  if (signalRequests === 2) console.error('\nStill stopping PostgreSQL and Redis… press Ctrl-C once more to quit without waiting.');
+  if (signalRequests === 2)
+    console.error('\nStill stopping PostgreSQL and Redis… press Ctrl-C once more to quit without waiting.');
   if (signalRequests >= 3) {
     console.error('\nQuit without waiting: PostgreSQL or Redis may still be running; the next start reuses them.');
     process.exit(code);
@@ -102,7 +111,9 @@ async function buildClientIfStale(): Promise<void> {
   const sources = newestMtime(['src', 'shared', 'index.html', 'vite.config.ts', 'public', 'package-lock.json']);
   if (existsSync(built) && statSync(built).mtimeMs >= sources) return;
   console.log('Building the web app…');
-  const code = await runInherit(path.join(root, 'node_modules', '.bin', 'vite'), ['build', '--logLevel', 'warn'], { cwd: root });
+  const code = await runInherit(path.join(root, 'node_modules', '.bin', 'vite'), ['build', '--logLevel', 'warn'], {
+    cwd: root,
+  });
   if (code !== 0) throw new Error('vite build failed');
 }
 
@@ -112,19 +123,36 @@ async function buildClientIfStale(): Promise<void> {
  */
 async function buildServerIfStale(): Promise<void> {
   const built = path.join(root, 'dist-server', 'server', 'index.js');
-  const sources = newestMtime(['server', 'shared', 'workers', 'migrations', 'seeds', 'scripts/migrate.ts', 'scripts/build-server.mjs',
-    'tsconfig.base.json', 'tsconfig.server.json', 'tsconfig.server.build.json', 'package-lock.json']);
+  const sources = newestMtime([
+    'server',
+    'shared',
+    'workers',
+    'migrations',
+    'seeds',
+    'scripts/migrate.ts',
+    'scripts/build-server.mjs',
+    'tsconfig.base.json',
+    'tsconfig.server.json',
+    'tsconfig.server.build.json',
+    'package-lock.json',
+  ]);
   if (existsSync(built) && statSync(built).mtimeMs >= sources) return;
   console.log('Building the server (dist-server/)…');
   // Type errors are the type check's to report (a step of its own in a full run), not a reason to test nothing.
-  const code = await runInherit(process.execPath, [path.join(root, 'scripts', 'build-server.mjs'), '--allow-type-errors'], { cwd: root });
+  const code = await runInherit(
+    process.execPath,
+    [path.join(root, 'scripts', 'build-server.mjs'), '--allow-type-errors'],
+    { cwd: root },
+  );
   if (code !== 0) throw new Error('the server build failed');
 }
 
 function spawnChild(cmd: string, args: string[], env: NodeJS.ProcessEnv): ChildProcess {
   const child = spawn(cmd, args, { cwd: root, stdio: 'inherit', env });
   children.push(child);
-  child.on('exit', () => { children = children.filter((c) => c !== child); });
+  child.on('exit', () => {
+    children = children.filter((c) => c !== child);
+  });
   return child;
 }
 
@@ -133,11 +161,19 @@ async function main(): Promise<void> {
 
   const pg = await startPostgres(dataDir, PORTS.postgres);
   cleanups.push(() => pg.stop());
-  const database = mode === 'test' ? (process.env.WATERLINE_TEST_DB ?? 'waterline_test') : mode === 'bench' ? 'waterline_bench' : 'waterline';
+  const database =
+    mode === 'test'
+      ? (process.env.WATERLINE_TEST_DB ?? 'waterline_test')
+      : mode === 'bench'
+        ? 'waterline_bench'
+        : 'waterline';
   await ensureDatabase(PORTS.postgres, database);
   const redis = await startRedis(dataDir, PORTS.redis);
   cleanups.push(() => redis.stop());
-  const oauth = await startFakeOAuthProvider(PORTS.oauth, DEMO_ACCOUNTS.map((a) => ({ email: a.email, name: a.name, hint: `${a.role} · ${a.firm}` })));
+  const oauth = await startFakeOAuthProvider(
+    PORTS.oauth,
+    DEMO_ACCOUNTS.map((a) => ({ email: a.email, name: a.name, hint: `${a.role} · ${a.firm}` })),
+  );
   cleanups.push(() => oauth.stop());
   // Job photos and documents: a fake S3 on loopback (emptied for each test run).
   const s3 = await startFakeObjectStore(dataDir, PORTS.objectStore, 'waterline', isolated);
@@ -182,17 +218,24 @@ async function main(): Promise<void> {
   };
   // TypeScript children run as node with tsx's loader (not the tsx command, whose signal relay may
   // kill a child before it has shut down cleanly).
-  const runTs = (script: string, args: string[] = []): [string, string[]] => [process.execPath, ['--import', 'tsx', script, ...args]];
+  const runTs = (script: string, args: string[] = []): [string, string[]] => [
+    process.execPath,
+    ['--import', 'tsx', script, ...args],
+  ];
 
   if (mode === 'bench') {
     // `npm run bench:… ` → the named benchmark script, with the services it needs.
     // A failed client build is only a warning here: the API benchmarks never open the page (the board one will say so).
     await buildClientIfStale().catch((error: unknown) => {
-      console.warn(`The web app did not build (${error instanceof Error ? error.message : String(error)}); the benchmark runs without it.`);
+      console.warn(
+        `The web app did not build (${error instanceof Error ? error.message : String(error)}); the benchmark runs without it.`,
+      );
     });
     const [script, ...rest] = process.argv.slice(3);
     if (!script) throw new Error('bench mode needs a script, e.g. bench/board.ts');
-    const code = await new Promise<number>((resolve) => spawnChild(...runTs(path.join(root, script), rest), env).on('exit', (c) => resolve(c ?? 1)));
+    const code = await new Promise<number>((resolve) =>
+      spawnChild(...runTs(path.join(root, script), rest), env).on('exit', (c) => resolve(c ?? 1)),
+    );
     return stopAll(code);
   }
 
@@ -200,12 +243,18 @@ async function main(): Promise<void> {
     // `npm test -- <filter>` runs just those test files (for work in progress); plain `npm test` runs everything.
     const filters = process.argv.slice(3);
     const steps: [string, string[]][] = [
-      ...(filters.length ? [] : [['npm', ['run', '--silent', 'lint']], ['npm', ['run', '--silent', 'typecheck']]] as [string, string[]][]),
+      ...(filters.length
+        ? []
+        : ([
+            ['npm', ['run', '--silent', 'lint']],
+            ['npm', ['run', '--silent', 'typecheck']],
+          ] as [string, string[]][])),
       [path.join(root, 'node_modules', '.bin', 'vitest'), ['run', ...filters]],
     ];
     // The end-to-end tests drive the built app in a real browser, and tests/ops/build.test.ts serves it
     // (a run of other files alone needs no build).
-    if (!filters.length || filters.some((f) => f.includes('e2e') || f.includes('ops/build'))) await buildClientIfStale();
+    if (!filters.length || filters.some((f) => f.includes('e2e') || f.includes('ops/build')))
+      await buildClientIfStale();
     // The production-build and scale-out tests run the compiled server and workers.
     if (!filters.length || filters.some((f) => f.includes('ops'))) {
       await buildServerIfStale();
@@ -213,26 +262,38 @@ async function main(): Promise<void> {
     }
     for (const [cmd, args] of steps) {
       console.log(`\n▶ ${path.basename(cmd)} ${args.join(' ')}`);
-      const code = await new Promise<number>((resolve) => spawnChild(cmd, args, env).on('exit', (c) => resolve(c ?? 1)));
-      if (code !== 0) { console.error(`✖ ${path.basename(cmd)} ${args.join(' ')} failed`); return stopAll(code); }
+      const code = await new Promise<number>((resolve) =>
+        spawnChild(cmd, args, env).on('exit', (c) => resolve(c ?? 1)),
+      );
+      if (code !== 0) {
+        console.error(`✖ ${path.basename(cmd)} ${args.join(' ')} failed`);
+        return stopAll(code);
+      }
     }
     return stopAll(0);
   }
 
-  const migrate = await runInherit(...runTs(path.join(root, 'scripts', 'migrate.ts'), ['latest', '--seed']), { cwd: root, env });
+  const migrate = await runInherit(...runTs(path.join(root, 'scripts', 'migrate.ts'), ['latest', '--seed']), {
+    cwd: root,
+    env,
+  });
   if (migrate !== 0) return stopAll(migrate);
   await buildClientIfStale();
   const server = spawnChild(...runTs(path.join(root, 'server', 'index.ts')), { ...env, RUN_WORKER: '1' });
-  server.on('exit', (code) => { if (!stopping) void stopAll(code ?? 1); });
-  console.log([
-    '',
-    `Waterline is starting at ${publicUrl}`,
-    'Sign in with the local provider as any of the demo accounts:',
-    ...DEMO_ACCOUNTS.map((a) => `  ${a.role.padEnd(9)} ${a.name.padEnd(16)} ${a.email}  (${a.firm})`),
-    `E-mail it sends (requests to partners, invitations) lands in the local inbox: ${inbox.url}`,
-    'Press Ctrl-C to stop; PostgreSQL and Redis stop with it.',
-    '',
-  ].join('\n'));
+  server.on('exit', (code) => {
+    if (!stopping) void stopAll(code ?? 1);
+  });
+  console.log(
+    [
+      '',
+      `Waterline is starting at ${publicUrl}`,
+      'Sign in with the local provider as any of the demo accounts:',
+      ...DEMO_ACCOUNTS.map((a) => `  ${a.role.padEnd(9)} ${a.name.padEnd(16)} ${a.email}  (${a.firm})`),
+      `E-mail it sends (requests to partners, invitations) lands in the local inbox: ${inbox.url}`,
+      'Press Ctrl-C to stop; PostgreSQL and Redis stop with it.',
+      '',
+    ].join('\n'),
+  );
 }
 
 main().catch((error: unknown) => {

@@ -1,7 +1,12 @@
 import type { Role } from '../shared/permissions.ts';
 
 /** The demo scenario's people who sign in (all invented; .example is a reserved domain). */
-export interface DemoAccount { email: string; name: string; firm: string; role: Role }
+export interface DemoAccount {
+  email: string;
+  name: string;
+  firm: string;
+  role: Role;
+}
 
 export const DEMO_ACCOUNTS: DemoAccount[] = [
   { email: 'olivia.hart@tideway.example', name: 'Olivia Hart', firm: 'Tideway Hot Tubs', role: 'owner' },

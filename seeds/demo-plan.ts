@@ -14,7 +14,12 @@ import { analyseBoard, autoPlace, type Board, type Booking, type BookingState } 
 const DAY = 86_400_000;
 
 /** The office's board as the engine reads it (loadBoard scoped to the office, inside the seed's transaction). */
-export async function officeBoard(trx: Knex.Transaction, actor: Actor, range: { from: number; to: number; now: number }, jobIds: string[]): Promise<Board> {
+export async function officeBoard(
+  trx: Knex.Transaction,
+  actor: Actor,
+  range: { from: number; to: number; now: number },
+  jobIds: string[],
+): Promise<Board> {
   return toEngineBoard(await loadBoard(trx, actor, { ...range, jobIds }));
 }
 
@@ -28,13 +33,22 @@ export function withBookings(board: Board, bookings: readonly Booking[]): Board 
  * off the board for this pass). Returns the new bookings; a stage the engine could not place
  * stays in the tray, named in `unplaced`.
  */
-export function placeJob(board: Board, jobId: string, now: number, stageIds?: ReadonlySet<string>): { bookings: Booking[]; unplaced: string[] } {
-  const keep = (id: string) => stageIds === undefined || stageIds.has(id) || board.stages.find((s) => s.id === id)?.jobId !== jobId;
-  const view: Board = stageIds === undefined ? board : {
-    ...board,
-    stages: board.stages.filter((s) => keep(s.id)),
-    dependencies: board.dependencies.filter((d) => keep(d.fromStageId) && keep(d.toStageId)),
-  };
+export function placeJob(
+  board: Board,
+  jobId: string,
+  now: number,
+  stageIds?: ReadonlySet<string>,
+): { bookings: Booking[]; unplaced: string[] } {
+  const keep = (id: string) =>
+    stageIds === undefined || stageIds.has(id) || board.stages.find((s) => s.id === id)?.jobId !== jobId;
+  const view: Board =
+    stageIds === undefined
+      ? board
+      : {
+          ...board,
+          stages: board.stages.filter((s) => keep(s.id)),
+          dependencies: board.dependencies.filter((d) => keep(d.fromStageId) && keep(d.toStageId)),
+        };
   const result = autoPlace(view, { now, jobIds: [jobId], budgetMs: 0 });
   return { bookings: result.bookings, unplaced: result.unplaced.map((u) => `${u.stageId}: ${u.reason}`) };
 }

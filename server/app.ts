@@ -55,10 +55,16 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
   const logger = pino({ level: config.LOG_LEVEL });
   const health = new Health(knex, config.REDIS_URL);
   const stream = new BoardStream(config.DATABASE_URL, knex);
-  const sessionPool = new pg.Pool({ connectionString: config.DATABASE_URL, max: 5, connectionTimeoutMillis: CONNECT_TIMEOUT_MS });
+  const sessionPool = new pg.Pool({
+    connectionString: config.DATABASE_URL,
+    max: 5,
+    connectionTimeoutMillis: CONNECT_TIMEOUT_MS,
+  });
   // An idle session connection cut by a database restart is dropped by the pool; unheard, the
   // pool's 'error' would end the process. Requests meanwhile answer 503 (errors.ts).
-  sessionPool.on('error', (err) => logger.warn({ err }, 'a session store connection was lost; it reconnects on the next request'));
+  sessionPool.on('error', (err) =>
+    logger.warn({ err }, 'a session store connection was lost; it reconnects on the next request'),
+  );
   const PgStore = connectPgSimple(session);
 
   app.disable('x-powered-by');
@@ -66,40 +72,67 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
   app.locals.publicUrl = config.PUBLIC_URL;
   // Only configured proxies may name the client (X-Forwarded-For); by default it is the socket's address.
   app.set('trust proxy', config.TRUST_PROXY);
-  app.use(pinoHttp({
-    logger,
-    autoLogging: { ignore: (req) => req.url?.startsWith('/api/health') || !req.url?.startsWith('/api') && !req.url?.startsWith('/auth') },
-    // Logs carry what a request was, never its cookies or tokens.
-    serializers: {
-      req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url.replace(/([?&](code|state|access_token)=)[^&]*/g, '$1…') }),
-      res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
-    },
-  }));
-  app.use(helmet({
-    contentSecurityPolicy: {
-      directives: {
-        'default-src': ["'self'"],
-        // Job photos come from object storage through short-lived private links.
-        'img-src': ["'self'", 'data:', 'blob:', ...(config.S3_ENDPOINT ? [new URL(config.S3_ENDPOINT).origin] : [])],
-        'style-src': ["'self'", "'unsafe-inline'"],
-        'script-src': ["'self'"],
-        'connect-src': ["'self'"],
-        'form-action': ["'self'", ...(config.OAUTH_AUTHORIZATION_URL ? [new URL(config.OAUTH_AUTHORIZATION_URL).origin] : ['https://accounts.google.com'])],
-        'upgrade-insecure-requests': config.NODE_ENV === 'production' ? [] : null,
+  app.use(
+    pinoHttp({
+      logger,
+      autoLogging: {
+        ignore: (req) =>
+          req.url?.startsWith('/api/health') || (!req.url?.startsWith('/api') && !req.url?.startsWith('/auth')),
       },
-    },
-  }));
+      // Logs carry what a request was, never its cookies or tokens.
+      serializers: {
+        req: (req: { method: string; url: string }) => ({
+          method: req.method,
+          url: req.url.replace(/([?&](code|state|access_token)=)[^&]*/g, '$1…'),
+        }),
+        res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
+      },
+    }),
+  );
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          'default-src': ["'self'"],
+          // Job photos come from object storage through short-lived private links.
+          'img-src': ["'self'", 'data:', 'blob:', ...(config.S3_ENDPOINT ? [new URL(config.S3_ENDPOINT).origin] : [])],
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'script-src': ["'self'"],
+          'connect-src': ["'self'"],
+          'form-action': [
+            "'self'",
+            ...(config.OAUTH_AUTHORIZATION_URL
+              ? [new URL(config.OAUTH_AUTHORIZATION_URL).origin]
+              : ['https://accounts.google.com']),
+          ],
+          'upgrade-insecure-requests': config.NODE_ENV === 'production' ? [] : null,
+        },
+      },
+    }),
+  );
   // Compressed answers (the board's JSON, the client's files, pages), but never the live board stream:
   // its events would wait in the compressor's buffer.
-  app.use(compression({ filter: (req, res) => !String(res.getHeader('Content-Type') ?? '').startsWith('text/event-stream') && !req.path.endsWith('/stream') && compression.filter(req, res) }));
+  app.use(
+    compression({
+      filter: (req, res) =>
+        !String(res.getHeader('Content-Type') ?? '').startsWith('text/event-stream') &&
+        !req.path.endsWith('/stream') &&
+        compression.filter(req, res),
+    }),
+  );
   // The built client is the same for everyone, so it is served before sessions: a file or the app's
   // page costs no session read, no membership look-up and sets no cookie. Paths the route table owns
   // (the API, sign-in, links, feeds, problem pages) go on to their routes; the Vue app owns the rest.
   if (existsSync(distDir)) {
     app.use(express.static(distDir, { index: false, maxAge: '1h' }));
     let serverPaths: Set<string> | undefined;
-    const ownedByServer = (p: string) => (serverPaths ??= new Set(['api', 'auth', ...routes.routes.map((r) => r.path.split('/')[1] ?? '')])).has(p.split('/')[1] ?? '');
-    app.use((req, res, next) => (req.method === 'GET' && !ownedByServer(req.path) ? res.sendFile(path.join(distDir, 'index.html')) : next()));
+    const ownedByServer = (p: string) =>
+      (serverPaths ??= new Set(['api', 'auth', ...routes.routes.map((r) => r.path.split('/')[1] ?? '')])).has(
+        p.split('/')[1] ?? '',
+      );
+    app.use((req, res, next) =>
+      req.method === 'GET' && !ownedByServer(req.path) ? res.sendFile(path.join(distDir, 'index.html')) : next(),
+    );
   }
   // Public links are limited per address before anything else runs (sessions, token checks, the
   // link_attempts row a refused token writes). The budgets live in Redis, shared by every process.
@@ -110,15 +143,22 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
   // The payment provider signs the exact bytes it sends: its webhook gets them raw (before the JSON parser).
   app.use('/api/payments/webhook', express.raw({ type: () => true, limit: '256kb' }));
   app.use(express.json({ limit: '1mb' }));
-  app.use(session({
-    name: 'waterline.sid',
-    store: new PgStore({ pool: sessionPool, tableName: 'session', pruneSessionInterval: 60 * 15 }),
-    secret: config.SESSION_SECRET,
-    resave: false,
-    saveUninitialized: false,
-    rolling: true,
-    cookie: { httpOnly: true, sameSite: 'lax', secure: config.PUBLIC_URL.startsWith('https://'), maxAge: 1000 * 60 * 60 * 12 },
-  }));
+  app.use(
+    session({
+      name: 'waterline.sid',
+      store: new PgStore({ pool: sessionPool, tableName: 'session', pruneSessionInterval: 60 * 15 }),
+      secret: config.SESSION_SECRET,
+      resave: false,
+      saveUninitialized: false,
+      rolling: true,
+      cookie: {
+        httpOnly: true,
+        sameSite: 'lax',
+        secure: config.PUBLIC_URL.startsWith('https://'),
+        maxAge: 1000 * 60 * 60 * 12,
+      },
+    }),
+  );
   // The actor: who is signed in, acting for which firm in which role.
   app.use(async (req, _res, next) => {
     if (req.session.userId) {
@@ -133,7 +173,14 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
   app.use(auth.initialize());
   const routes = new RouteTable();
   authRoutes(routes, auth, limits.signIn, (sessionId) => stream.endSession(sessionId));
-  apiRoutes(routes, { knex, health, stream, now, limits: bookingLimitsOf(config), fullcalendarLicenseKey: config.FULLCALENDAR_LICENSE_KEY });
+  apiRoutes(routes, {
+    knex,
+    health,
+    stream,
+    now,
+    limits: bookingLimitsOf(config),
+    fullcalendarLicenseKey: config.FULLCALENDAR_LICENSE_KEY,
+  });
   const jobWork = jobWorkRoutes(routes, { knex, config, now });
   const handover = handoverRoutes(routes, { knex, config, now, limits: bookingLimitsOf(config) });
   partnerRoutes(routes, { knex, config, now });
@@ -141,7 +188,12 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
   handoverRecordRoutes(routes, { knex, config, now, files: jobWork.files });
   paymentRoutes(routes, { knex, config, now, log: logger });
   problemRoutes(routes);
-  reportRoutes(routes, { knex, now, publicUrl: config.PUBLIC_URL, extraWorkingMinutes: bookingLimitsOf(config).extraWorkingMinutes });
+  reportRoutes(routes, {
+    knex,
+    now,
+    publicUrl: config.PUBLIC_URL,
+    extraWorkingMinutes: bookingLimitsOf(config).extraWorkingMinutes,
+  });
   mailStatusRoutes(routes, { knex, config });
   routes.mount(app.router);
 

@@ -4,7 +4,10 @@ import { SchedulerError } from '../shared/scheduler/errors.ts';
 import { DBError } from 'objection';
 import { problemTypeUri } from './problem-types.ts';
 
-export interface FieldError { field: string; message: string }
+export interface FieldError {
+  field: string;
+  message: string;
+}
 
 /** An error with a stable code and HTTP status, sent as RFC 9457 problem+json. */
 export class HttpError extends Error {
@@ -19,30 +22,48 @@ export class HttpError extends Error {
   }
 }
 export class BadRequestError extends HttpError {
-  constructor(detail: string, readonly errors: FieldError[] = []) {
+  constructor(
+    detail: string,
+    readonly errors: FieldError[] = [],
+  ) {
     super(400, 'bad-request', 'The request is not valid', detail, { errors });
   }
 }
 export class UnauthorizedError extends HttpError {
-  constructor() { super(401, 'unauthorized', 'Sign in to continue'); }
+  constructor() {
+    super(401, 'unauthorized', 'Sign in to continue');
+  }
 }
 export class ForbiddenError extends HttpError {
-  constructor(detail = 'Your role does not allow this.') { super(403, 'forbidden', 'Not allowed', detail); }
+  constructor(detail = 'Your role does not allow this.') {
+    super(403, 'forbidden', 'Not allowed', detail);
+  }
 }
 export class NotFoundError extends HttpError {
-  constructor(what = 'resource') { super(404, 'not-found', 'Not found', `No such ${what}.`); }
+  constructor(what = 'resource') {
+    super(404, 'not-found', 'Not found', `No such ${what}.`);
+  }
 }
 export class ConflictError extends HttpError {
-  constructor(detail: string, extra: Record<string, unknown> = {}) { super(409, 'conflict', 'Conflict', detail, extra); }
+  constructor(detail: string, extra: Record<string, unknown> = {}) {
+    super(409, 'conflict', 'Conflict', detail, extra);
+  }
 }
 export class UnprocessableError extends HttpError {
-  constructor(detail: string, extra: Record<string, unknown> = {}) { super(422, 'rule-violation', 'The change breaks a scheduling rule', detail, extra); }
+  constructor(detail: string, extra: Record<string, unknown> = {}) {
+    super(422, 'rule-violation', 'The change breaks a scheduling rule', detail, extra);
+  }
 }
 
 /** The database cannot be reached (stopped, restarting, or every connection busy): nothing was saved. */
 export class DatabaseUnavailableError extends HttpError {
   constructor() {
-    super(503, 'database-unavailable', 'The database is not answering', 'Nothing was saved from this request. The database is away for a moment; try again shortly.');
+    super(
+      503,
+      'database-unavailable',
+      'The database is not answering',
+      'Nothing was saved from this request. The database is away for a moment; try again shortly.',
+    );
   }
 }
 
@@ -54,7 +75,11 @@ export function fieldErrorsOf(error: ZodError, prefix?: string): FieldError[] {
 }
 
 /** What a database refusal means, in the words of the person whose change it refused. */
-interface PlainRefusal { detail: string; field?: string; message?: string }
+interface PlainRefusal {
+  detail: string;
+  field?: string;
+  message?: string;
+}
 
 const TRY_AGAIN = 'reload and try again';
 
@@ -65,19 +90,49 @@ const TRY_AGAIN = 'reload and try again';
  */
 export const CONSTRAINT_REFUSALS: Record<string, PlainRefusal> = {
   // unique (→ 409)
-  jobs_firm_id_reference_unique: { detail: 'Another job already has this reference.', field: 'reference', message: 'is already used by another job' },
-  bookings_stage_id_resource_id_unique: { detail: 'This stage is already booked on that resource.', field: 'resourceId', message: 'already has this stage' },
-  resources_firm_id_name_unique: { detail: 'Another resource of your firm already has this name.', field: 'name', message: 'is already used by another resource' },
-  calendars_firm_id_name_unique: { detail: 'Another calendar of your firm already has this name.', field: 'name', message: 'is already used by another calendar' },
-  units_firm_id_model_unique: { detail: 'Your firm already lists this model.', field: 'model', message: 'is already listed' },
-  firms_name_unique: { detail: 'Another firm already has this name.', field: 'name', message: 'is already used by another firm' },
-  users_email_lower_unique: { detail: 'Someone already uses this e-mail address.', field: 'email', message: 'is already in use' },
+  jobs_firm_id_reference_unique: {
+    detail: 'Another job already has this reference.',
+    field: 'reference',
+    message: 'is already used by another job',
+  },
+  bookings_stage_id_resource_id_unique: {
+    detail: 'This stage is already booked on that resource.',
+    field: 'resourceId',
+    message: 'already has this stage',
+  },
+  resources_firm_id_name_unique: {
+    detail: 'Another resource of your firm already has this name.',
+    field: 'name',
+    message: 'is already used by another resource',
+  },
+  calendars_firm_id_name_unique: {
+    detail: 'Another calendar of your firm already has this name.',
+    field: 'name',
+    message: 'is already used by another calendar',
+  },
+  units_firm_id_model_unique: {
+    detail: 'Your firm already lists this model.',
+    field: 'model',
+    message: 'is already listed',
+  },
+  firms_name_unique: {
+    detail: 'Another firm already has this name.',
+    field: 'name',
+    message: 'is already used by another firm',
+  },
+  users_email_lower_unique: {
+    detail: 'Someone already uses this e-mail address.',
+    field: 'email',
+    message: 'is already in use',
+  },
   users_google_sub_unique: { detail: 'This sign-in account is already linked to someone.' },
   memberships_user_id_firm_id_unique: { detail: 'This person is already a member of the firm.' },
   partnerships_installer_firm_id_partner_firm_id_unique: { detail: 'These firms already work together.' },
   dependencies_from_stage_id_to_stage_id_unique: { detail: 'These two stages are already linked.' },
   stages_job_id_sequence_unique: { detail: `Someone else changed this job's stages at the same moment; ${TRY_AGAIN}.` },
-  stage_templates_firm_id_installation_type_unique: { detail: `Someone else saved this template at the same moment; ${TRY_AGAIN}.` },
+  stage_templates_firm_id_installation_type_unique: {
+    detail: `Someone else saved this template at the same moment; ${TRY_AGAIN}.`,
+  },
   surveys_job_id_unique: { detail: `Someone else saved a survey of this job at the same moment; ${TRY_AGAIN}.` },
   firm_settings_pkey: { detail: `Someone else saved the firm's settings at the same moment; ${TRY_AGAIN}.` },
   calendar_feeds_one_live: { detail: 'This resource already has a live calendar feed.' },
@@ -90,32 +145,74 @@ export const CONSTRAINT_REFUSALS: Record<string, PlainRefusal> = {
   job_payments_checkout_session_id_unique: { detail: `The payment page could not be opened; ${TRY_AGAIN}.` },
   job_payments_payment_intent_id_unique: { detail: 'This payment is already recorded.' },
   webhook_events_provider_event_id_unique: { detail: 'This event was received before.' },
-  commissioning_records_job_id_unique: { detail: `Someone else saved this job's commissioning record at the same moment; ${TRY_AGAIN}.` },
-  electrical_certificates_job_id_unique: { detail: `Another certificate for this job was saved at the same moment; ${TRY_AGAIN}.` },
+  commissioning_records_job_id_unique: {
+    detail: `Someone else saved this job's commissioning record at the same moment; ${TRY_AGAIN}.`,
+  },
+  electrical_certificates_job_id_unique: {
+    detail: `Another certificate for this job was saved at the same moment; ${TRY_AGAIN}.`,
+  },
   handovers_job_id_unique: { detail: 'This job has already been handed over.' },
   jobs_service_visit_unique: { detail: `This service visit is already planned; ${TRY_AGAIN}.` },
   // exclusion (→ 409, code double-booked)
   bookings_no_confirmed_overlap: { detail: 'That resource already has a confirmed booking at that time.' },
   bookings_no_held_overlap: { detail: 'That resource already has a confirmed booking at that time.' },
   // check (→ 400)
-  jobs_promised_order: { detail: 'The promised window ends before it starts.', field: 'promisedTo', message: 'must be on or after the start of the promised window' },
-  bookings_time_order: { detail: 'A booking must end after it starts.', field: 'endsAt', message: 'must be after the start' },
-  hire_periods_order: { detail: 'A hire period must end after it starts.', field: 'offHireAt', message: 'must be after the on-hire' },
-  hire_periods_rate: { detail: 'The day rate cannot be negative.', field: 'dayRatePence', message: "can't be negative" },
+  jobs_promised_order: {
+    detail: 'The promised window ends before it starts.',
+    field: 'promisedTo',
+    message: 'must be on or after the start of the promised window',
+  },
+  bookings_time_order: {
+    detail: 'A booking must end after it starts.',
+    field: 'endsAt',
+    message: 'must be after the start',
+  },
+  hire_periods_order: {
+    detail: 'A hire period must end after it starts.',
+    field: 'offHireAt',
+    message: 'must be after the on-hire',
+  },
+  hire_periods_rate: {
+    detail: 'The day rate cannot be negative.',
+    field: 'dayRatePence',
+    message: "can't be negative",
+  },
   calendar_exceptions_order: { detail: 'A closure must end after it starts.' },
   calendar_exceptions_owner: { detail: 'A closure belongs to one calendar or to one resource.' },
-  surveys_access_positive: { detail: 'The access width and height must be more than 0.', field: 'survey.accessWidthMm', message: 'must be more than 0' },
-  surveys_counts: { detail: 'Steps and gates cannot be negative.', field: 'survey.steps', message: 'cannot be negative' },
-  surveys_fuse_positive: { detail: 'The main fuse must be more than 0 A.', field: 'survey.mainFuseAmps', message: 'must be more than 0' },
-  surveys_large_loads_positive: { detail: 'A large load on the supply must be more than 0 A; leave it empty when there is none.' },
-  surveys_hose_flow_positive: { detail: 'The hose flow must be more than 0 litres a minute.', field: 'survey.hoseFlowLitresPerMinute', message: 'must be more than 0' },
+  surveys_access_positive: {
+    detail: 'The access width and height must be more than 0.',
+    field: 'survey.accessWidthMm',
+    message: 'must be more than 0',
+  },
+  surveys_counts: {
+    detail: 'Steps and gates cannot be negative.',
+    field: 'survey.steps',
+    message: 'cannot be negative',
+  },
+  surveys_fuse_positive: {
+    detail: 'The main fuse must be more than 0 A.',
+    field: 'survey.mainFuseAmps',
+    message: 'must be more than 0',
+  },
+  surveys_large_loads_positive: {
+    detail: 'A large load on the supply must be more than 0 A; leave it empty when there is none.',
+  },
+  surveys_hose_flow_positive: {
+    detail: 'The hose flow must be more than 0 litres a minute.',
+    field: 'survey.hoseFlowLitresPerMinute',
+    message: 'must be more than 0',
+  },
   stages_duration_positive: { detail: 'A stage must take some time.' },
   job_files_size_positive: { detail: 'The file has no content.', field: 'file', message: 'is empty' },
   partnerships_distinct: { detail: 'A firm cannot be its own partner.' },
   dependencies_distinct: { detail: 'A stage cannot wait for itself.' },
   resources_user_only_for_people: { detail: 'Only a person can be linked to a sign-in account.' },
   lead_time_rules_target: { detail: 'A lead time applies to a kind of resource or a kind of stage, not both.' },
-  booking_answers_proposal_times: { detail: 'A proposal needs a start and an end.', field: 'proposedStart', message: 'a proposal needs a start and an end' },
+  booking_answers_proposal_times: {
+    detail: 'A proposal needs a start and an end.',
+    field: 'proposedStart',
+    message: 'a proposal needs a start and an end',
+  },
 };
 
 /** Foreign keys a request names directly: the field whose id points at nothing. */
@@ -136,14 +233,23 @@ const DATA_REFUSALS: Record<string, string> = {
   '22P05': 'A value contains a character that cannot be stored.',
 };
 
-interface PgLike { code?: unknown; constraint?: unknown; message?: unknown; severity?: unknown }
+interface PgLike {
+  code?: unknown;
+  constraint?: unknown;
+  message?: unknown;
+  severity?: unknown;
+}
 
 /** The PostgreSQL error under an Objection wrapper, or a raw one from a knex query. */
 function postgresError(err: unknown): { code: string; constraint: string; message: string } | null {
   const native = ((err as { nativeError?: PgLike })?.nativeError ?? err) as PgLike | null;
   if (!native || typeof native.code !== 'string' || !/^[0-9A-Z]{5}$/.test(native.code)) return null;
   if (!(err instanceof DBError) && typeof native.severity !== 'string') return null;
-  return { code: native.code, constraint: typeof native.constraint === 'string' ? native.constraint : '', message: typeof native.message === 'string' ? native.message : '' };
+  return {
+    code: native.code,
+    constraint: typeof native.constraint === 'string' ? native.constraint : '',
+    message: typeof native.message === 'string' ? native.message : '',
+  };
 }
 
 const withField = (r: PlainRefusal) => (r.field && r.message ? [{ field: r.field, message: r.message }] : []);
@@ -158,23 +264,35 @@ function databaseError(err: unknown): HttpError | null {
   const known = CONSTRAINT_REFUSALS[pg.constraint];
   switch (pg.code) {
     case '23505':
-      return new ConflictError(known?.detail ?? 'This would repeat something that is already recorded; reload to see it.', { code: 'duplicate', errors: known ? withField(known) : [] });
+      return new ConflictError(
+        known?.detail ?? 'This would repeat something that is already recorded; reload to see it.',
+        { code: 'duplicate', errors: known ? withField(known) : [] },
+      );
     case '23P01':
-      return new ConflictError(known?.detail ?? 'That clashes with a booking already made for that time.', { code: 'double-booked' });
+      return new ConflictError(known?.detail ?? 'That clashes with a booking already made for that time.', {
+        code: 'double-booked',
+      });
     case '23503': {
       // PostgreSQL words the two directions differently: a row pointing at nothing, or a row still pointed at.
       if (/\bupdate or delete on table\b/.test(pg.message)) {
         return new ConflictError('This is still in use elsewhere, so it cannot be removed.', { code: 'still-in-use' });
       }
       const field = MISSING_REFERENCES[pg.constraint];
-      return new HttpError(422, 'reference', 'A referenced record does not exist', 'Something this refers to does not exist (it may just have been removed).', { errors: field ? [field] : [] });
+      return new HttpError(
+        422,
+        'reference',
+        'A referenced record does not exist',
+        'Something this refers to does not exist (it may just have been removed).',
+        { errors: field ? [field] : [] },
+      );
     }
     case '23502':
       return new BadRequestError('A required value is missing.');
     case '23514':
       return new BadRequestError(known?.detail ?? 'A value is outside what is allowed.', known ? withField(known) : []);
   }
-  if (pg.code.startsWith('23')) return new ConflictError('The change conflicts with what is already recorded; reload and try again.');
+  if (pg.code.startsWith('23'))
+    return new ConflictError('The change conflicts with what is already recorded; reload and try again.');
   if (pg.code.startsWith('22')) return new BadRequestError(DATA_REFUSALS[pg.code] ?? 'A value has the wrong form.');
   return null;
 }
@@ -184,9 +302,17 @@ function databaseError(err: unknown): HttpError | null {
  * route's pattern in the order Express tries them; null if no route's pattern fits.
  */
 function malformedParam(req: Request | undefined): string | null {
-  const stack = (req?.app as { router?: { stack?: { route?: { path?: unknown } }[] } } | undefined)?.router?.stack ?? [];
+  const stack =
+    (req?.app as { router?: { stack?: { route?: { path?: unknown } }[] } } | undefined)?.router?.stack ?? [];
   const segments = (req?.originalUrl ?? '').split('?')[0]!.split('/');
-  const undecodable = (s: string) => { try { decodeURIComponent(s); return false; } catch { return true; } };
+  const undecodable = (s: string) => {
+    try {
+      decodeURIComponent(s);
+      return false;
+    } catch {
+      return true;
+    }
+  };
   for (const layer of stack) {
     const pattern = layer.route?.path;
     if (typeof pattern !== 'string') continue;
@@ -202,9 +328,19 @@ function malformedParam(req: Request | undefined): string | null {
 /** SQLSTATEs of a lost or refused connection: class 08, a server shutting down or starting up, too many connections. */
 const CONNECTION_SQLSTATES = /^(08[0-9A-Z]{3}|57P0[123]|53300)$/;
 /** Node's words for a socket that could not be made or was cut. */
-const SOCKET_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', 'EHOSTUNREACH', 'ENETUNREACH', 'EAI_AGAIN', 'ENOTFOUND']);
+const SOCKET_CODES = new Set([
+  'ECONNREFUSED',
+  'ECONNRESET',
+  'EPIPE',
+  'ETIMEDOUT',
+  'EHOSTUNREACH',
+  'ENETUNREACH',
+  'EAI_AGAIN',
+  'ENOTFOUND',
+]);
 /** node-postgres's and knex's own messages for a connection that was lost, timed out or never came. */
-const CONNECTION_MESSAGES = /^(Connection terminated|Client has encountered a connection error|timeout exceeded when trying to connect|Knex: Timeout acquiring a connection)/;
+const CONNECTION_MESSAGES =
+  /^(Connection terminated|Client has encountered a connection error|timeout exceeded when trying to connect|Knex: Timeout acquiring a connection)/;
 
 /**
  * True when the database could not be reached: the error itself or the one Objection wrapped.
@@ -228,18 +364,29 @@ function toHttpError(err: unknown, req?: Request): HttpError | null {
   // The router could not decode a %-escape in the path (e.g. /api/jobs/%zz); it marks the error 400.
   if (err instanceof URIError && (err as { status?: number }).status === 400) {
     const name = malformedParam(req);
-    return new BadRequestError('The address has a broken %-escape.', [{ field: name ? `params.${name}` : 'path', message: 'is not valid in an address (a % must be followed by two hexadecimal digits)' }]);
+    return new BadRequestError('The address has a broken %-escape.', [
+      {
+        field: name ? `params.${name}` : 'path',
+        message: 'is not valid in an address (a % must be followed by two hexadecimal digits)',
+      },
+    ]);
   }
   if (isDatabaseUnreachable(err)) return new DatabaseUnavailableError();
   const database = databaseError(err);
   if (database) return database;
   // The engine refuses input it cannot plan with (a calendar with no working time, a span of decades).
-  if (err instanceof SchedulerError) return new UnprocessableError(err.message, { code: `engine-${err.code.replace(/_/g, '-')}` });
+  if (err instanceof SchedulerError)
+    return new UnprocessableError(err.message, { code: `engine-${err.code.replace(/_/g, '-')}` });
   const e = err as { type?: string; status?: number; statusCode?: number; expose?: boolean; message?: string };
   // body-parser errors (malformed JSON, too large) carry their own status.
   if (e?.expose && typeof (e.status ?? e.statusCode) === 'number') {
     const status = e.status ?? e.statusCode ?? 400;
-    const code = e.type === 'entity.too.large' ? 'body-too-large' : e.type === 'entity.parse.failed' ? 'malformed-body' : 'bad-request';
+    const code =
+      e.type === 'entity.too.large'
+        ? 'body-too-large'
+        : e.type === 'entity.parse.failed'
+          ? 'malformed-body'
+          : 'bad-request';
     return new HttpError(status, code, 'The request is not valid', e.message);
   }
   return null;
@@ -271,13 +418,23 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   const http = toHttpError(err, req);
   if (!http) {
     req.log?.error({ err }, 'unhandled error');
-    res.status(500).type('application/problem+json').json({ type: problemTypeUri(publicUrlOf(req), 'internal'), title: 'Something went wrong on our side', status: 500 });
+    res
+      .status(500)
+      .type('application/problem+json')
+      .json({
+        type: problemTypeUri(publicUrlOf(req), 'internal'),
+        title: 'Something went wrong on our side',
+        status: 500,
+      });
     return;
   }
   if (http.status >= 500) req.log?.error({ err }, http.title);
   // RFC 9110 §10.2.3: tell clients when a retry makes sense (a database restart takes seconds).
   if (http instanceof DatabaseUnavailableError) res.set('Retry-After', '5');
-  res.status(http.status).type('application/problem+json').json(problemBody(http, req.originalUrl, publicUrlOf(req)));
+  res
+    .status(http.status)
+    .type('application/problem+json')
+    .json(problemBody(http, req.originalUrl, publicUrlOf(req)));
 };
 
 export const notFoundHandler: RequestHandler = (req, _res, next) => {

@@ -39,7 +39,11 @@ async function timed(work: () => Promise<unknown>, timeoutMs: number): Promise<D
     await withTimeout(work(), timeoutMs);
     return { status: 'ok', ms: Math.round(performance.now() - started) };
   } catch (err) {
-    return { status: 'down', ms: Math.round(performance.now() - started), reason: err instanceof Error ? err.message : String(err) };
+    return {
+      status: 'down',
+      ms: Math.round(performance.now() - started),
+      reason: err instanceof Error ? err.message : String(err),
+    };
   }
 }
 
@@ -47,13 +51,23 @@ async function timed(work: () => Promise<unknown>, timeoutMs: number): Promise<D
 export class Health {
   private readonly redis: Redis;
 
-  constructor(private readonly knex: Knex, redisUrl: string, private readonly timeoutMs = HEALTH_TIMEOUT_MS) {
+  constructor(
+    private readonly knex: Knex,
+    redisUrl: string,
+    private readonly timeoutMs = HEALTH_TIMEOUT_MS,
+  ) {
     // Fail fast instead of queueing commands while Redis is away: health must answer promptly.
     this.redis = new Redis(redisUrl, {
-      lazyConnect: true, enableOfflineQueue: false, maxRetriesPerRequest: 0, retryStrategy: () => 2000,
-      connectTimeout: timeoutMs, commandTimeout: timeoutMs,
+      lazyConnect: true,
+      enableOfflineQueue: false,
+      maxRetriesPerRequest: 0,
+      retryStrategy: () => 2000,
+      connectTimeout: timeoutMs,
+      commandTimeout: timeoutMs,
     });
-    this.redis.on('error', () => { /* reported through check() */ });
+    this.redis.on('error', () => {
+      /* reported through check() */
+    });
   }
 
   /** Checks both dependencies at once; never takes much longer than the timeout. */

@@ -1,6 +1,16 @@
 import {
-  addWorkingMinutes, bookableStart, earliestStartFromPredecessors, longestWorkingDayMinutes, mustFitInOneDay, resourceCalendarOf, spanOf, workingMinutesBetween,
-  type BoardIndex, type Booking, type Instant, type Violation,
+  addWorkingMinutes,
+  bookableStart,
+  earliestStartFromPredecessors,
+  longestWorkingDayMinutes,
+  mustFitInOneDay,
+  resourceCalendarOf,
+  spanOf,
+  workingMinutesBetween,
+  type BoardIndex,
+  type Booking,
+  type Instant,
+  type Violation,
 } from './scheduler/index.ts';
 
 /**
@@ -26,7 +36,10 @@ export function dependentStageIds(index: BoardIndex, stageId: string): string[] 
     const id = queue.shift() as string;
     for (const link of index.stages.get(id)?.depsOut ?? []) {
       const to = link.dep.toStageId;
-      if (!seen.has(to)) { seen.add(to); queue.push(to); }
+      if (!seen.has(to)) {
+        seen.add(to);
+        queue.push(to);
+      }
     }
   }
   seen.delete(stageId);
@@ -34,7 +47,10 @@ export function dependentStageIds(index: BoardIndex, stageId: string): string[] 
 }
 
 /** A dependent stage's bookings after a move. */
-export interface StageShift { stageId: string; bookings: Booking[] }
+export interface StageShift {
+  stageId: string;
+  bookings: Booking[];
+}
 
 /** Options for {@link shiftDependents}. */
 export interface ShiftOptions {
@@ -54,19 +70,28 @@ export interface ShiftOptions {
  * @example
  * shiftDependents(index, 'base-1', thu0800) // [{ stageId: 'lift-1', bookings: [...] }, …]
  */
-export function shiftDependents(index: BoardIndex, stageId: string, newStart: Instant, options: ShiftOptions = {}): StageShift[] {
+export function shiftDependents(
+  index: BoardIndex,
+  stageId: string,
+  newStart: Instant,
+  options: ShiftOptions = {},
+): StageShift[] {
   const own = bookingsOfStage(index, stageId);
   const span = spanOf(own);
   const first = own[0];
   if (!span || !first) return [];
   const cal = resourceCalendarOf(index, first.resourceId);
   const forward = newStart >= span.start;
-  const delta = forward ? workingMinutesBetween(cal, span.start, newStart) : -workingMinutesBetween(cal, newStart, span.start);
+  const delta = forward
+    ? workingMinutesBetween(cal, span.start, newStart)
+    : -workingMinutesBetween(cal, newStart, span.start);
   if (delta === 0) return [];
   const step = options.stepMinutes ?? index.stepMinutes;
   const dependents = new Set(dependentStageIds(index, stageId));
   const elapsed = newStart - span.start;
-  const moved = new Map<string, Booking[]>([[stageId, own.map((b) => ({ ...b, start: b.start + elapsed, end: b.end + elapsed }))]]);
+  const moved = new Map<string, Booking[]>([
+    [stageId, own.map((b) => ({ ...b, start: b.start + elapsed, end: b.end + elapsed }))],
+  ]);
   const bookingsOf = (id: string): readonly Booking[] => moved.get(id) ?? bookingsOfStage(index, id);
   // Dependency order, so each stage sees its predecessors' new times; stages in a cycle come last.
   const order = index.order.filter((i) => dependents.has(i.stage.id)).map((i) => i.stage.id);
@@ -75,19 +100,29 @@ export function shiftDependents(index: BoardIndex, stageId: string, newStart: In
     const list = bookingsOfStage(index, id);
     const stage = index.stages.get(id)?.stage;
     if (!list.length || !stage) continue;
-    moved.set(id, list.map((b) => {
-      const bc = resourceCalendarOf(index, b.resourceId);
-      const length = workingMinutesBetween(bc, b.start, b.end);
-      const shifted = addWorkingMinutes(bc, b.start, delta);
-      const floor = index.blocked.has(id) ? shifted : earliestStartFromPredecessors(index, id, b.resourceId, bookingsOf);
-      // A stage kept to one working day keeps its whole booked length within the day it lands on.
-      const fit = mustFitInOneDay(stage, bc) ? { fitMinutes: Math.min(Math.max(stage.durationMinutes, length), longestWorkingDayMinutes(bc)) } : {};
-      // Landing on the end of a working day means starting at the next working instant (bookableStart does).
-      const start = bookableStart(bc, Math.max(shifted, floor), { stepMinutes: step, ...fit });
-      return { ...b, start, end: length > 0 ? addWorkingMinutes(bc, start, length) : start + (b.end - b.start) };
-    }));
+    moved.set(
+      id,
+      list.map((b) => {
+        const bc = resourceCalendarOf(index, b.resourceId);
+        const length = workingMinutesBetween(bc, b.start, b.end);
+        const shifted = addWorkingMinutes(bc, b.start, delta);
+        const floor = index.blocked.has(id)
+          ? shifted
+          : earliestStartFromPredecessors(index, id, b.resourceId, bookingsOf);
+        // A stage kept to one working day keeps its whole booked length within the day it lands on.
+        const fit = mustFitInOneDay(stage, bc)
+          ? { fitMinutes: Math.min(Math.max(stage.durationMinutes, length), longestWorkingDayMinutes(bc)) }
+          : {};
+        // Landing on the end of a working day means starting at the next working instant (bookableStart does).
+        const start = bookableStart(bc, Math.max(shifted, floor), { stepMinutes: step, ...fit });
+        return { ...b, start, end: length > 0 ? addWorkingMinutes(bc, start, length) : start + (b.end - b.start) };
+      }),
+    );
   }
-  return [...dependents].sort().filter((id) => moved.has(id)).map((id) => ({ stageId: id, bookings: moved.get(id) as Booking[] }));
+  return [...dependents]
+    .sort()
+    .filter((id) => moved.has(id))
+    .map((id) => ({ stageId: id, bookings: moved.get(id) as Booking[] }));
 }
 
 /**
@@ -110,6 +145,8 @@ export function isBlocking(v: Violation): boolean {
  */
 export function asWriteVerdict(violations: readonly Violation[]): { errors: Violation[]; warnings: Violation[] } {
   const errors = violations.filter(isBlocking);
-  const warnings = violations.filter((v) => !isBlocking(v)).map((v) => (v.severity === 'error' ? { ...v, severity: 'warning' as const } : v));
+  const warnings = violations
+    .filter((v) => !isBlocking(v))
+    .map((v) => (v.severity === 'error' ? { ...v, severity: 'warning' as const } : v));
   return { errors, warnings };
 }

@@ -1,4 +1,14 @@
-import type { Board, Booking, Dependency, HirePeriod, Job, LeadTimeRule, Resource, Stage, WorkingCalendar } from './scheduler/index.ts';
+import type {
+  Board,
+  Booking,
+  Dependency,
+  HirePeriod,
+  Job,
+  LeadTimeRule,
+  Resource,
+  Stage,
+  WorkingCalendar,
+} from './scheduler/index.ts';
 
 /** A resource row on the board, with what the timeline shows beside the engine's fields. */
 export interface BoardResource extends Resource {
@@ -64,8 +74,14 @@ export interface BoardData {
 /** The engine's view of board data (the display fields ride along unread). */
 export function toEngineBoard(data: BoardData): Board {
   return {
-    stages: data.stages, dependencies: data.dependencies, bookings: data.bookings, resources: data.resources,
-    calendars: data.calendars, hirePeriods: data.hirePeriods, jobs: data.jobs, leadTimeRules: data.leadTimeRules,
+    stages: data.stages,
+    dependencies: data.dependencies,
+    bookings: data.bookings,
+    resources: data.resources,
+    calendars: data.calendars,
+    hirePeriods: data.hirePeriods,
+    jobs: data.jobs,
+    leadTimeRules: data.leadTimeRules,
   };
 }
 
@@ -84,12 +100,18 @@ export const elsewhereBookingId = (n: number) => `elsewhere-${n}`;
  * @example
  * ownViolations(data, analyseBoard(toEngineBoard(data), { now }).violations)
  */
-export function ownViolations<V extends { bookingIds: readonly string[]; stageIds: readonly string[] }>(data: Pick<BoardData, 'bookings' | 'stages'>, violations: readonly V[]): V[] {
+export function ownViolations<V extends { bookingIds: readonly string[]; stageIds: readonly string[] }>(
+  data: Pick<BoardData, 'bookings' | 'stages'>,
+  violations: readonly V[],
+): V[] {
   const elsewhereBookings = new Set(data.bookings.filter((b) => b.elsewhere).map((b) => b.id));
   if (elsewhereBookings.size === 0) return [...violations];
   const elsewhereStages = new Set(data.stages.filter((s) => s.jobId === ELSEWHERE_JOB_ID).map((s) => s.id));
   return violations.filter((v) => {
-    const ids = [...v.bookingIds.map((id) => elsewhereBookings.has(id)), ...v.stageIds.map((id) => elsewhereStages.has(id))];
+    const ids = [
+      ...v.bookingIds.map((id) => elsewhereBookings.has(id)),
+      ...v.stageIds.map((id) => elsewhereStages.has(id)),
+    ];
     return ids.length === 0 || ids.some((isElsewhere) => !isElsewhere);
   });
 }

@@ -19,11 +19,24 @@ export type BookingParty = 'office' | 'crew' | 'partner';
 export type ResourceSide = 'own' | 'partner';
 
 export type BookingAction =
-  | 'book' | 'book-confirmed' | 'rebook' | 'move'
-  | 'confirm' | 'unconfirm'
-  | 'send' | 'withdraw' | 'take-proposal' | 'refuse-proposal'
-  | 'accept' | 'decline' | 'propose' | 'assign'
-  | 'arrive' | 'finish' | 'undo-arrive' | 'undo-finish'
+  | 'book'
+  | 'book-confirmed'
+  | 'rebook'
+  | 'move'
+  | 'confirm'
+  | 'unconfirm'
+  | 'send'
+  | 'withdraw'
+  | 'take-proposal'
+  | 'refuse-proposal'
+  | 'accept'
+  | 'decline'
+  | 'propose'
+  | 'assign'
+  | 'arrive'
+  | 'finish'
+  | 'undo-arrive'
+  | 'undo-finish'
   | 'unbook';
 
 /** `null` as a from-state: the booking does not exist yet. `same`: the state stays. `removed`: the row goes. */
@@ -69,20 +82,40 @@ export const BOOKING_TRANSITIONS: readonly BookingTransition[] = [
 
 /** What an action does, in the words a refusal uses ("can't be <verb>"). */
 const VERBS: Record<BookingAction, string> = {
-  book: 'booked', 'book-confirmed': 'booked as confirmed', rebook: 'rebooked', move: 'moved',
-  confirm: 'confirmed by the office', unconfirm: 'put back to pencilled', send: 'sent as a request',
-  withdraw: 'withdrawn', 'take-proposal': 'moved to the proposed time', 'refuse-proposal': 'kept against a proposal', accept: 'confirmed',
-  decline: 'declined', propose: 'given another time', assign: 'given to another person',
-  arrive: 'marked on site', finish: 'marked done', 'undo-arrive': 'taken back from on site',
-  'undo-finish': 'taken back from done', unbook: 'taken off the board',
+  book: 'booked',
+  'book-confirmed': 'booked as confirmed',
+  rebook: 'rebooked',
+  move: 'moved',
+  confirm: 'confirmed by the office',
+  unconfirm: 'put back to pencilled',
+  send: 'sent as a request',
+  withdraw: 'withdrawn',
+  'take-proposal': 'moved to the proposed time',
+  'refuse-proposal': 'kept against a proposal',
+  accept: 'confirmed',
+  decline: 'declined',
+  propose: 'given another time',
+  assign: 'given to another person',
+  arrive: 'marked on site',
+  finish: 'marked done',
+  'undo-arrive': 'taken back from on site',
+  'undo-finish': 'taken back from done',
+  unbook: 'taken off the board',
 };
 
 export const STATE_WORDS: Record<BookingState, string> = {
-  pencilled: 'pencilled', sent: 'sent and awaiting an answer', confirmed: 'confirmed', declined: 'declined',
-  on_site: 'on site', done: 'done',
+  pencilled: 'pencilled',
+  sent: 'sent and awaiting an answer',
+  confirmed: 'confirmed',
+  declined: 'declined',
+  on_site: 'on site',
+  done: 'done',
 };
 
-export interface TransitionContext { party: BookingParty; side: ResourceSide }
+export interface TransitionContext {
+  party: BookingParty;
+  side: ResourceSide;
+}
 
 /**
  * The transition that lets `party` take `action` on a booking in state `from`, or undefined.
@@ -90,15 +123,26 @@ export interface TransitionContext { party: BookingParty; side: ResourceSide }
  * @example
  * findTransition('confirm', 'pencilled', { party: 'office', side: 'partner' }) // undefined: only the partner's answer confirms
  */
-export function findTransition(action: BookingAction, from: BookingState | null, ctx: TransitionContext): BookingTransition | undefined {
-  return BOOKING_TRANSITIONS.find((t) => t.action === action && t.from.includes(from)
-    && t.by.includes(ctx.party) && (t.side === 'any' || t.side === ctx.side));
+export function findTransition(
+  action: BookingAction,
+  from: BookingState | null,
+  ctx: TransitionContext,
+): BookingTransition | undefined {
+  return BOOKING_TRANSITIONS.find(
+    (t) =>
+      t.action === action &&
+      t.from.includes(from) &&
+      t.by.includes(ctx.party) &&
+      (t.side === 'any' || t.side === ctx.side),
+  );
 }
 
 /** Why a transition is refused, in plain words (the 409's detail). */
 export function refusalOf(action: BookingAction, from: BookingState | null, ctx: TransitionContext): string {
   const verb = VERBS[action];
-  const anyParty = BOOKING_TRANSITIONS.some((t) => t.action === action && t.from.includes(from) && (t.side === 'any' || t.side === ctx.side));
+  const anyParty = BOOKING_TRANSITIONS.some(
+    (t) => t.action === action && t.from.includes(from) && (t.side === 'any' || t.side === ctx.side),
+  );
   if ((action === 'confirm' || action === 'book-confirmed') && ctx.side === 'partner') {
     return 'Only the partner firm can confirm its own people and machines: send them a request instead.';
   }
@@ -119,8 +163,11 @@ export function refusalOf(action: BookingAction, from: BookingState | null, ctx:
  * nextState('send', 'pencilled', { party: 'office', side: 'partner' }) // { ok: true, to: 'sent' }
  * nextState('finish', 'pencilled', { party: 'crew', side: 'own' })   // { ok: false, reason: "A pencilled booking can't be marked done." }
  */
-export function nextState(action: BookingAction, from: BookingState | null, ctx: TransitionContext):
-  { ok: true; to: BookingState | 'removed' } | { ok: false; reason: string } {
+export function nextState(
+  action: BookingAction,
+  from: BookingState | null,
+  ctx: TransitionContext,
+): { ok: true; to: BookingState | 'removed' } | { ok: false; reason: string } {
   const t = findTransition(action, from, ctx);
   if (!t) return { ok: false, reason: refusalOf(action, from, ctx) };
   if (t.to === 'same') {
@@ -139,7 +186,13 @@ export function nextState(action: BookingAction, from: BookingState | null, ctx:
 export function actionsFor(state: BookingState, ctx: TransitionContext): BookingAction[] {
   const out: BookingAction[] = [];
   for (const t of BOOKING_TRANSITIONS) {
-    if (t.from.includes(state) && t.by.includes(ctx.party) && (t.side === 'any' || t.side === ctx.side) && !out.includes(t.action)) out.push(t.action);
+    if (
+      t.from.includes(state) &&
+      t.by.includes(ctx.party) &&
+      (t.side === 'any' || t.side === ctx.side) &&
+      !out.includes(t.action)
+    )
+      out.push(t.action);
   }
   return out;
 }

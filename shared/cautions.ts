@@ -6,8 +6,18 @@
 export const CAUTION_NOTE = 'Follow local codes and licensed practice.';
 
 export type CautionTopic =
-  | 'site' | 'excavation' | 'plant' | 'lifting' | 'electrical' | 'fill' | 'water_hygiene' | 'chemicals'
-  | 'manual_handling' | 'concrete' | 'structure' | 'spoil';
+  | 'site'
+  | 'excavation'
+  | 'plant'
+  | 'lifting'
+  | 'electrical'
+  | 'fill'
+  | 'water_hygiene'
+  | 'chemicals'
+  | 'manual_handling'
+  | 'concrete'
+  | 'structure'
+  | 'spoil';
 
 export const CAUTIONS: Record<CautionTopic, readonly string[]> = {
   site: [
@@ -58,16 +68,12 @@ export const CAUTIONS: Record<CautionTopic, readonly string[]> = {
     "Manual handling: plan the route and clear it; enough people for the unit's weight, with pallet trucks, skates and rollers.",
     'Keep fingers and feet clear of rollers, boards and pallet truck forks when the unit moves.',
   ],
-  concrete: [
-    'Wet concrete burns skin: wear gloves, boots and eye protection, and wash splashes off at once.',
-  ],
-  structure: [
-    'A structural engineer confirms the deck or floor carries the filled weight before the unit goes on it.',
-  ],
+  concrete: ['Wet concrete burns skin: wear gloves, boots and eye protection, and wash splashes off at once.'],
+  structure: ['A structural engineer confirms the deck or floor carries the filled weight before the unit goes on it.'],
   spoil: [
     'Loading a lorry: keep people clear of the grab and the excavator bucket; nobody stands on the lorry or beside it while it is loaded.',
     "Don't overload a skip: wet soil reaches the skip's weight limit long before it is full; load it level with the sides, never above them.",
-    'A skip or a lorry on the highway needs the highway authority\'s permit, with lights and cones as the permit says.',
+    "A skip or a lorry on the highway needs the highway authority's permit, with lights and cones as the permit says.",
     'A banksman sees the lorry in and out; keep the public and the household away from it and off the path it takes.',
   ],
 };

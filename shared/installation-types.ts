@@ -25,5 +25,6 @@ export function installationTypeLabel(code: string): string {
 }
 
 /** The types in their usual order, each with its words, for pickers. */
-export const INSTALLATION_TYPE_OPTIONS: { value: InstallationType; label: string }[] =
-  INSTALLATION_TYPES.map((value) => ({ value, label: INSTALLATION_TYPE_LABELS[value] }));
+export const INSTALLATION_TYPE_OPTIONS: { value: InstallationType; label: string }[] = INSTALLATION_TYPES.map(
+  (value) => ({ value, label: INSTALLATION_TYPE_LABELS[value] }),
+);

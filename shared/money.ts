@@ -10,7 +10,9 @@ export function formatPence(pence: number): string {
   if (!Number.isInteger(pence)) throw new RangeError('an amount in pence must be a whole number');
   const sign = pence < 0 ? '-' : '';
   const abs = Math.abs(pence);
-  const pounds = Math.floor(abs / 100).toString().replace(/\B(?=(\d{3})+(?!\d))/g, ',');
+  const pounds = Math.floor(abs / 100)
+    .toString()
+    .replace(/\B(?=(\d{3})+(?!\d))/g, ',');
   return `${sign}£${pounds}.${String(abs % 100).padStart(2, '0')}`;
 }
 

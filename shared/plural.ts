@@ -16,7 +16,7 @@
  * plural(2, 'day', undefined, false) // 'days' (the noun alone, for "2 of 3 days")
  */
 export function plural(count: number, singular: string, pluralForm?: string, withCount = true): string {
-  const word = count === 1 ? singular : pluralForm ?? regularPlural(singular);
+  const word = count === 1 ? singular : (pluralForm ?? regularPlural(singular));
   return withCount ? `${count} ${word}` : word;
 }
 

@@ -5,7 +5,11 @@ import { addDays } from './local-dates.ts';
  * then one every `everyMonths`; `visitsAhead` visits are planned at a time. Three months, then
  * yearly, two ahead is the default (common practice, no source); each firm edits its own.
  */
-export interface ServicePlan { firstAfterMonths: number; everyMonths: number; visitsAhead: number }
+export interface ServicePlan {
+  firstAfterMonths: number;
+  everyMonths: number;
+  visitsAhead: number;
+}
 
 export const DEFAULT_SERVICE_PLAN: ServicePlan = { firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 };
 
@@ -34,7 +38,12 @@ export function addMonths(date: string, months: number): string {
   return `${String(year).padStart(4, '0')}-${String(month).padStart(2, '0')}-${String(Math.min(d, last)).padStart(2, '0')}`;
 }
 
-export interface ServiceVisitDate { number: number; dueOn: string; promisedFrom: string; promisedTo: string }
+export interface ServiceVisitDate {
+  number: number;
+  dueOn: string;
+  promisedFrom: string;
+  promisedTo: string;
+}
 
 /**
  * The visits a plan sets up from a handover day (the firm's local date).
@@ -45,11 +54,18 @@ export interface ServiceVisitDate { number: number; dueOn: string; promisedFrom:
 export function serviceVisitDates(handedOverOn: string, plan: ServicePlan): ServiceVisitDate[] {
   return Array.from({ length: plan.visitsAhead }, (_, i) => {
     const dueOn = addMonths(handedOverOn, plan.firstAfterMonths + i * plan.everyMonths);
-    return { number: i + 1, dueOn, promisedFrom: addDays(dueOn, -SERVICE_WINDOW_DAYS), promisedTo: addDays(dueOn, SERVICE_WINDOW_DAYS) };
+    return {
+      number: i + 1,
+      dueOn,
+      promisedFrom: addDays(dueOn, -SERVICE_WINDOW_DAYS),
+      promisedTo: addDays(dueOn, SERVICE_WINDOW_DAYS),
+    };
   });
 }
 
 /** "September 2026", the way the householder's notice names a visit. */
 export function monthName(date: string): string {
-  return new Intl.DateTimeFormat('en-GB', { timeZone: 'UTC', month: 'long', year: 'numeric' }).format(new Date(`${date}T12:00:00Z`));
+  return new Intl.DateTimeFormat('en-GB', { timeZone: 'UTC', month: 'long', year: 'numeric' }).format(
+    new Date(`${date}T12:00:00Z`),
+  );
 }

@@ -32,7 +32,9 @@ export interface SlotSupply {
 
 /** The survey's supply fields as the database row holds them (decimals may arrive as strings). */
 export interface SurveySupplyRow {
-  mainFuseAmps: number | null; earthingArrangement: string | null; consumerUnitDistanceM: number | string | null;
+  mainFuseAmps: number | null;
+  earthingArrangement: string | null;
+  consumerUnitDistanceM: number | string | null;
   consumerUnitLocation?: string | null;
 }
 
@@ -48,12 +50,18 @@ const numberOrNull = (v: number | string | null | undefined): number | null => {
  * slotSupply([{ amps: 32 }, { amps: 16 }], { mainFuseAmps: 100, earthingArrangement: 'TN-C-S', consumerUnitDistanceM: '14.50' })
  * // { circuitAmps: [32, 16], totalAmps: 48, loadKw: 11, mainFuseAmps: 100, earthing: 'TN-C-S', cableRunM: 14.5, consumerUnitLocation: null, surveyed: true }
  */
-export function slotSupply(unitSupplies: readonly { amps: number }[] | null, survey: SurveySupplyRow | null): SlotSupply {
+export function slotSupply(
+  unitSupplies: readonly { amps: number }[] | null,
+  survey: SurveySupplyRow | null,
+): SlotSupply {
   const circuitAmps = (unitSupplies ?? []).map((s) => Number(s.amps)).filter((a) => Number.isFinite(a) && a > 0);
   const totalAmps = circuitAmps.reduce((sum, a) => sum + a, 0);
-  const earthing = (EARTHING_ARRANGEMENTS as readonly string[]).includes(survey?.earthingArrangement ?? '') ? survey!.earthingArrangement as EarthingArrangement : null;
+  const earthing = (EARTHING_ARRANGEMENTS as readonly string[]).includes(survey?.earthingArrangement ?? '')
+    ? (survey!.earthingArrangement as EarthingArrangement)
+    : null;
   return {
-    circuitAmps, totalAmps,
+    circuitAmps,
+    totalAmps,
     loadKw: totalAmps > 0 ? Math.round((totalAmps * NOMINAL_VOLTS) / 100) / 10 : null,
     mainFuseAmps: numberOrNull(survey?.mainFuseAmps),
     earthing,
@@ -70,7 +78,8 @@ const EARTHING_WORDS: Record<EarthingArrangement, string> = {
   unknown: 'the surveyor could not tell: please establish it on site',
 };
 
-const notRecorded = (s: SlotSupply) => (s.surveyed ? 'not recorded at the survey' : 'the site has not been surveyed yet');
+const notRecorded = (s: SlotSupply) =>
+  s.surveyed ? 'not recorded at the survey' : 'the site has not been surveyed yet';
 
 /**
  * The supply facts as lines of plain text, the same in every output.
@@ -78,9 +87,10 @@ const notRecorded = (s: SlotSupply) => (s.surveyed ? 'not recorded at the survey
  * supplyLines(slotSupply([{ amps: 32 }], null))[0] // 'Unit load: 32 A (one dedicated supply), about 7.4 kW at 230 V'
  */
 export function supplyLines(s: SlotSupply): string[] {
-  const load = s.circuitAmps.length === 0
-    ? 'Unit load: not in the unit\'s data; ask the installer'
-    : `Unit load: ${s.circuitAmps.map((a) => `${a} A`).join(' + ')}${s.circuitAmps.length > 1 ? ` = ${s.totalAmps} A` : ''} (${s.circuitAmps.length === 1 ? 'one dedicated supply' : `${s.circuitAmps.length} dedicated supplies`}), about ${s.loadKw!.toFixed(1)} kW at ${NOMINAL_VOLTS} V`;
+  const load =
+    s.circuitAmps.length === 0
+      ? "Unit load: not in the unit's data; ask the installer"
+      : `Unit load: ${s.circuitAmps.map((a) => `${a} A`).join(' + ')}${s.circuitAmps.length > 1 ? ` = ${s.totalAmps} A` : ''} (${s.circuitAmps.length === 1 ? 'one dedicated supply' : `${s.circuitAmps.length} dedicated supplies`}), about ${s.loadKw!.toFixed(1)} kW at ${NOMINAL_VOLTS} V`;
   return [
     load,
     `Main fuse: ${s.mainFuseAmps === null ? notRecorded(s) : `${s.mainFuseAmps} A`}`,

@@ -1,6 +1,12 @@
 import {
-  addWorkingMinutes, checkStageBookings, resourceCalendarOf, violationKey,
-  type BoardIndex, type Booking, type Resource, type Violation,
+  addWorkingMinutes,
+  checkStageBookings,
+  resourceCalendarOf,
+  violationKey,
+  type BoardIndex,
+  type Booking,
+  type Resource,
+  type Violation,
 } from './scheduler/index.ts';
 import { bookingsOfStage } from './board-actions.ts';
 import type { BoardData, BoardResource } from './board-data.ts';
@@ -10,7 +16,11 @@ import type { CompletionCandidate, CompletionRequirement, StageCompletion } from
 export const COMPLETION_ALTERNATIVES = 8;
 
 /** A resource whose kind the stage does not ask for: the words both the board and the server use. */
-export function wrongKindMessage(stageName: string, resource: { name?: string; kind: string }, kinds: readonly string[]): string {
+export function wrongKindMessage(
+  stageName: string,
+  resource: { name?: string; kind: string },
+  kinds: readonly string[],
+): string {
   const words = (k: string) => k.replace(/_/g, ' ');
   const a = /^[aeiou]/.test(resource.kind) ? 'an' : 'a';
   return `${resource.name ?? words(resource.kind)} is ${a} ${words(resource.kind)}; '${stageName}' needs ${kinds.map(words).join(', ')}.`;
@@ -21,8 +31,14 @@ export function wrongKindMessage(stageName: string, resource: { name?: string; k
  * first, owned before hired, then by id — cheapest and closest first; partners' come after.
  */
 export function candidateOrder(index: BoardIndex, kind: string, firmId: string | undefined): Resource[] {
-  return (index.resourcesByKind.get(kind) ?? []).slice().sort((a, b) =>
-    Number(a.firmId !== firmId) - Number(b.firmId !== firmId) || Number(a.hired === true) - Number(b.hired === true) || (a.id < b.id ? -1 : 1));
+  return (index.resourcesByKind.get(kind) ?? [])
+    .slice()
+    .sort(
+      (a, b) =>
+        Number(a.firmId !== firmId) - Number(b.firmId !== firmId) ||
+        Number(a.hired === true) - Number(b.hired === true) ||
+        (a.id < b.id ? -1 : 1),
+    );
 }
 
 const errorsOf = (index: BoardIndex, stageId: string, own: readonly Booking[]): Violation[] =>
@@ -40,7 +56,11 @@ const errorsOf = (index: BoardIndex, stageId: string, own: readonly Booking[]): 
  * completeStage(data, index, { stageId: 'excavate-7', start: mon0800, resourceId: 'excavator-1' })
  * // { requirements: [{ kind: 'groundworks_crew', proposed: [{ name: 'Millstone gang', … }], short: 0 }, …], complete: true }
  */
-export function completeStage(data: BoardData, index: BoardIndex, request: { stageId: string; start: number; resourceId?: string }): StageCompletion {
+export function completeStage(
+  data: BoardData,
+  index: BoardIndex,
+  request: { stageId: string; start: number; resourceId?: string },
+): StageCompletion {
   const stage = index.stages.get(request.stageId)?.stage;
   if (!stage) throw new RangeError(`Stage ${request.stageId} is not on the board`);
   const job = data.jobs.find((j) => j.id === stage.jobId);
@@ -48,23 +68,40 @@ export function completeStage(data: BoardData, index: BoardIndex, request: { sta
   const iso = (t: number) => new Date(t).toISOString();
   const bookingAt = (resourceId: string, n: number): Booking => {
     const end = addWorkingMinutes(resourceCalendarOf(index, resourceId), request.start, stage.durationMinutes);
-    return { id: `completion:${n}`, stageId: stage.id, resourceId, start: request.start, end: end > request.start ? end : request.start + 60_000, state: 'pencilled', installerFirmId: job?.firmId ?? '' };
+    return {
+      id: `completion:${n}`,
+      stageId: stage.id,
+      resourceId,
+      start: request.start,
+      end: end > request.start ? end : request.start + 60_000,
+      state: 'pencilled',
+      installerFirmId: job?.firmId ?? '',
+    };
   };
   const chosen: Booking[] = [...bookingsOfStage(index, stage.id)];
-  if (request.resourceId && !chosen.some((b) => b.resourceId === request.resourceId)) chosen.push(bookingAt(request.resourceId, 0));
+  if (request.resourceId && !chosen.some((b) => b.resourceId === request.resourceId))
+    chosen.push(bookingAt(request.resourceId, 0));
   const baseline = new Set(errorsOf(index, stage.id, chosen).map(violationKey));
   let n = 1;
 
   const candidate = (r: Resource, booking: Booking, reason?: string): CompletionCandidate => {
     const shown = byId.get(r.id);
     return {
-      resourceId: r.id, name: shown?.name ?? r.name ?? r.id, firmName: shown?.firmName ?? '', ownership: shown?.ownership ?? (r.hired ? 'hired' : 'owned'),
-      startsAt: iso(booking.start), endsAt: iso(booking.end), free: reason === undefined, ...(reason !== undefined ? { reason } : {}),
+      resourceId: r.id,
+      name: shown?.name ?? r.name ?? r.id,
+      firmName: shown?.firmName ?? '',
+      ownership: shown?.ownership ?? (r.hired ? 'hired' : 'owned'),
+      startsAt: iso(booking.start),
+      endsAt: iso(booking.end),
+      free: reason === undefined,
+      ...(reason !== undefined ? { reason } : {}),
     };
   };
 
   const requirements: CompletionRequirement[] = stage.requirements.map((req) => {
-    const booked = [...new Set(chosen.filter((b) => index.resources.get(b.resourceId)?.kind === req.kind).map((b) => b.resourceId))];
+    const booked = [
+      ...new Set(chosen.filter((b) => index.resources.get(b.resourceId)?.kind === req.kind).map((b) => b.resourceId)),
+    ];
     const proposed: CompletionCandidate[] = [];
     const free: CompletionCandidate[] = [];
     const busy: CompletionCandidate[] = [];
@@ -79,11 +116,23 @@ export function completeStage(data: BoardData, index: BoardIndex, request: { sta
       else busy.push(candidate(r, booking, fresh[0]!.message));
     }
     const short = Math.max(0, req.count - booked.length - proposed.length);
-    return { kind: req.kind, count: req.count, booked, proposed, alternatives: [...free, ...busy].slice(0, COMPLETION_ALTERNATIVES), short };
+    return {
+      kind: req.kind,
+      count: req.count,
+      booked,
+      proposed,
+      alternatives: [...free, ...busy].slice(0, COMPLETION_ALTERNATIVES),
+      short,
+    };
   });
 
   return {
-    stageId: stage.id, jobId: stage.jobId, stageName: stage.name, jobReference: job?.reference ?? '', startsAt: iso(request.start),
-    requirements, complete: requirements.every((r) => r.short === 0),
+    stageId: stage.id,
+    jobId: stage.jobId,
+    stageName: stage.name,
+    jobReference: job?.reference ?? '',
+    startsAt: iso(request.start),
+    requirements,
+    complete: requirements.every((r) => r.short === 0),
   };
 }

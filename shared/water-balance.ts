@@ -54,8 +54,20 @@ export function waterTargetsOf(stored: unknown): WaterTargets {
   if (!stored || typeof stored !== 'object') return out;
   for (const key of Object.keys(DEFAULT_WATER_TARGETS) as (keyof WaterTargets)[]) {
     const r = (stored as Record<string, unknown>)[key] as Partial<TargetRange> | undefined;
-    if (r && typeof r.min === 'number' && typeof r.max === 'number' && Number.isFinite(r.min) && Number.isFinite(r.max) && r.min <= r.max) {
-      out[key] = { min: r.min, max: r.max, unit: DEFAULT_WATER_TARGETS[key].unit, source: typeof r.source === 'string' && r.source.trim() ? r.source.trim() : COMMON_PRACTICE };
+    if (
+      r &&
+      typeof r.min === 'number' &&
+      typeof r.max === 'number' &&
+      Number.isFinite(r.min) &&
+      Number.isFinite(r.max) &&
+      r.min <= r.max
+    ) {
+      out[key] = {
+        min: r.min,
+        max: r.max,
+        unit: DEFAULT_WATER_TARGETS[key].unit,
+        source: typeof r.source === 'string' && r.source.trim() ? r.source.trim() : COMMON_PRACTICE,
+      };
     }
   }
   return out;
@@ -110,15 +122,36 @@ export interface CommissioningFacts {
 }
 
 /** One reading of a record with its range and verdict, for the page and the gate. */
-export interface ReadingCheck { key: 'ph' | 'totalAlkalinityPpm' | 'sanitiserPpm'; label: string; value: number | null; range: TargetRange; verdict: ReadingVerdict }
+export interface ReadingCheck {
+  key: 'ph' | 'totalAlkalinityPpm' | 'sanitiserPpm';
+  label: string;
+  value: number | null;
+  range: TargetRange;
+  verdict: ReadingVerdict;
+}
 
 /** The three readings of a record, each against the firm's range. */
-export function readingChecks(r: Pick<CommissioningFacts, 'ph' | 'totalAlkalinityPpm' | 'sanitiserPpm' | 'sanitiserKind'>, targets: WaterTargets): ReadingCheck[] {
+export function readingChecks(
+  r: Pick<CommissioningFacts, 'ph' | 'totalAlkalinityPpm' | 'sanitiserPpm' | 'sanitiserKind'>,
+  targets: WaterTargets,
+): ReadingCheck[] {
   const sanitiser = sanitiserRange(targets, r.sanitiserKind ?? 'chlorine');
   return [
     { key: 'ph', label: 'pH', value: r.ph, range: targets.ph, verdict: readingVerdict(r.ph, targets.ph) },
-    { key: 'totalAlkalinityPpm', label: 'Total alkalinity', value: r.totalAlkalinityPpm, range: targets.totalAlkalinityPpm, verdict: readingVerdict(r.totalAlkalinityPpm, targets.totalAlkalinityPpm) },
-    { key: 'sanitiserPpm', label: r.sanitiserKind === 'bromine' ? 'Bromine' : 'Free chlorine', value: r.sanitiserPpm, range: sanitiser, verdict: readingVerdict(r.sanitiserPpm, sanitiser) },
+    {
+      key: 'totalAlkalinityPpm',
+      label: 'Total alkalinity',
+      value: r.totalAlkalinityPpm,
+      range: targets.totalAlkalinityPpm,
+      verdict: readingVerdict(r.totalAlkalinityPpm, targets.totalAlkalinityPpm),
+    },
+    {
+      key: 'sanitiserPpm',
+      label: r.sanitiserKind === 'bromine' ? 'Bromine' : 'Free chlorine',
+      value: r.sanitiserPpm,
+      range: sanitiser,
+      verdict: readingVerdict(r.sanitiserPpm, sanitiser),
+    },
   ];
 }
 
@@ -133,13 +166,16 @@ export function readingChecks(r: Pick<CommissioningFacts, 'ph' | 'totalAlkalinit
 export function commissioningGaps(r: CommissioningFacts | null, targets: WaterTargets): string[] {
   if (!r) return ['Nothing is recorded yet: fill in the commissioning record.'];
   const gaps: string[] = [];
-  for (const c of COMMISSIONING_CHECKS) if (!r.checks[c.key]) gaps.push(`Not ticked: ${c.label.replace(/ \(.*\)$/, '').toLowerCase()}.`);
+  for (const c of COMMISSIONING_CHECKS)
+    if (!r.checks[c.key]) gaps.push(`Not ticked: ${c.label.replace(/ \(.*\)$/, '').toLowerCase()}.`);
   if (!r.sanitiserKind) gaps.push('Say which sanitiser is used (chlorine or bromine).');
   const explained = Boolean(r.notes && r.notes.trim());
   for (const reading of readingChecks(r, targets)) {
     if (reading.verdict === 'missing') gaps.push(`No ${reading.label.toLowerCase()} reading.`);
     else if (reading.verdict !== 'in-range' && !explained) {
-      gaps.push(`${reading.label} ${reading.value} is ${reading.verdict === 'low' ? 'below' : 'above'} the firm's range (${rangeText(reading.range)}): bring it into range, or say in the notes what was done about it.`);
+      gaps.push(
+        `${reading.label} ${reading.value} is ${reading.verdict === 'low' ? 'below' : 'above'} the firm's range (${rangeText(reading.range)}): bring it into range, or say in the notes what was done about it.`,
+      );
     }
   }
   if (r.photoCount < 1) gaps.push('No photo: add at least one photo of the running unit.');

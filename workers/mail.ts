@@ -11,13 +11,20 @@ import { S3ObjectStore, type ObjectStore } from '../server/storage/object-store.
 
 export interface MailWorkerOptions {
   knex: Knex;
-  config: Pick<Config, 'SMTP_URL' | 'MAIL_FROM' | 'PUBLIC_URL' | 'LINK_SECRET' | 'MAIL_QUEUE'> & Partial<Pick<Config, 'S3_ENDPOINT' | 'S3_BUCKET' | 'S3_ACCESS_KEY_ID' | 'S3_SECRET_ACCESS_KEY'>>;
+  config: Pick<Config, 'SMTP_URL' | 'MAIL_FROM' | 'PUBLIC_URL' | 'LINK_SECRET' | 'MAIL_QUEUE'> &
+    Partial<Pick<Config, 'S3_ENDPOINT' | 'S3_BUCKET' | 'S3_ACCESS_KEY_ID' | 'S3_SECRET_ACCESS_KEY'>>;
   connection: ConnectionOptions;
   logger: Logger;
   concurrency?: number;
 }
 
-interface OutboxRow { id: string; idempotencyKey: string; kind: OutboxKind; payload: OutboxPayload; status: string }
+interface OutboxRow {
+  id: string;
+  idempotencyKey: string;
+  kind: OutboxKind;
+  payload: OutboxPayload;
+  status: string;
+}
 
 export function createTransport(smtpUrl: string): Transporter {
   return nodemailer.createTransport({ url: smtpUrl, pool: true, maxConnections: 10, maxMessages: 500 } as never);
@@ -28,16 +35,21 @@ export function createTransport(smtpUrl: string): Transporter {
  * message whose version has moved on is settled without sending (its links would be dead).
  * An SMTP failure throws, and BullMQ retries with exponential back-off.
  */
-export async function processMailJob(job: Pick<Job<MailJobData>, 'data'>, deps: { knex: Knex; config: MailWorkerOptions['config']; transport: Transporter; store?: ObjectStore }): Promise<string> {
+export async function processMailJob(
+  job: Pick<Job<MailJobData>, 'data'>,
+  deps: { knex: Knex; config: MailWorkerOptions['config']; transport: Transporter; store?: ObjectStore },
+): Promise<string> {
   const { knex, config, transport, store } = deps;
-  const row = await knex('outbox').where('id', job.data.outboxId).first() as OutboxRow | undefined;
+  const row = (await knex('outbox').where('id', job.data.outboxId).first()) as OutboxRow | undefined;
   if (!row) throw new UnrecoverableError(`no outbox row ${job.data.outboxId}`);
   if (row.status === 'sent') return 'already sent';
   const mail = await composeMessage({ knex, config, store }, row.kind, row.payload);
   if ('skip' in mail) {
     // Nobody to send to is the office's problem to see (failed); a superseded message is simply settled.
     const nobody = /no booking address|no customer e-mail|no longer exists/.test(mail.skip);
-    await knex('outbox').where('id', row.id).update({ status: nobody ? 'failed' : 'sent', last_error: `not sent: ${mail.skip}` });
+    await knex('outbox')
+      .where('id', row.id)
+      .update({ status: nobody ? 'failed' : 'sent', last_error: `not sent: ${mail.skip}` });
     return `skipped: ${mail.skip}`;
   }
   await sendOrExplain(transport, {
@@ -51,9 +63,19 @@ export async function processMailJob(job: Pick<Job<MailJobData>, 'data'>, deps: 
     messageId: outboxMessageId(row.idempotencyKey, config.PUBLIC_URL),
     headers: { 'X-Waterline-Message': row.idempotencyKey },
     ...(mail.attachments?.length ? { attachments: mail.attachments } : {}),
-    ...(mail.ics ? { icalEvent: { method: mail.ics.method, filename: mail.ics.method === 'CANCEL' ? 'cancel.ics' : 'invite.ics', content: mail.ics.content } } : {}),
+    ...(mail.ics
+      ? {
+          icalEvent: {
+            method: mail.ics.method,
+            filename: mail.ics.method === 'CANCEL' ? 'cancel.ics' : 'invite.ics',
+            content: mail.ics.content,
+          },
+        }
+      : {}),
   });
-  await knex('outbox').where('id', row.id).update({ status: 'sent', sent_at: new Date(), last_error: null, attempts: knex.raw('attempts + 1') });
+  await knex('outbox')
+    .where('id', row.id)
+    .update({ status: 'sent', sent_at: new Date(), last_error: null, attempts: knex.raw('attempts + 1') });
   return 'sent';
 }
 
@@ -77,17 +99,40 @@ export function createMailWorker(options: MailWorkerOptions): { worker: Worker<M
   const { knex, config, logger } = options;
   const transport = createTransport(config.SMTP_URL);
   // Attachments (the handover pack) are read from the job files' storage.
-  const store = config.S3_BUCKET ? new S3ObjectStore({ S3_BUCKET: config.S3_BUCKET, S3_ENDPOINT: config.S3_ENDPOINT, S3_ACCESS_KEY_ID: config.S3_ACCESS_KEY_ID, S3_SECRET_ACCESS_KEY: config.S3_SECRET_ACCESS_KEY }) : undefined;
-  const worker = new Worker<MailJobData>(config.MAIL_QUEUE, (job) => processMailJob(job, { knex, config, transport, store }), {
-    connection: options.connection, prefix: QUEUE_PREFIX, concurrency: options.concurrency ?? 10,
-  });
+  const store = config.S3_BUCKET
+    ? new S3ObjectStore({
+        S3_BUCKET: config.S3_BUCKET,
+        S3_ENDPOINT: config.S3_ENDPOINT,
+        S3_ACCESS_KEY_ID: config.S3_ACCESS_KEY_ID,
+        S3_SECRET_ACCESS_KEY: config.S3_SECRET_ACCESS_KEY,
+      })
+    : undefined;
+  const worker = new Worker<MailJobData>(
+    config.MAIL_QUEUE,
+    (job) => processMailJob(job, { knex, config, transport, store }),
+    {
+      connection: options.connection,
+      prefix: QUEUE_PREFIX,
+      concurrency: options.concurrency ?? 10,
+    },
+  );
   worker.on('error', (err) => logger.warn({ err }, 'mail worker lost Redis; it reconnects by itself'));
   worker.on('failed', (job, err) => {
     if (!job) return;
     const final = job.attemptsMade >= (job.opts.attempts ?? 1) || err instanceof UnrecoverableError;
-    logger.warn({ err, outboxId: job.data.outboxId, attempt: job.attemptsMade, final }, final ? 'e-mail failed for good' : 'e-mail failed; will retry');
-    void knex('outbox').where('id', job.data.outboxId).whereNot('status', 'sent')
-      .update({ status: final ? 'failed' : 'queued', attempts: job.attemptsMade, next_attempt_at: new Date(), last_error: String(err?.message ?? err).slice(0, 500) })
+    logger.warn(
+      { err, outboxId: job.data.outboxId, attempt: job.attemptsMade, final },
+      final ? 'e-mail failed for good' : 'e-mail failed; will retry',
+    );
+    void knex('outbox')
+      .where('id', job.data.outboxId)
+      .whereNot('status', 'sent')
+      .update({
+        status: final ? 'failed' : 'queued',
+        attempts: job.attemptsMade,
+        next_attempt_at: new Date(),
+        last_error: String(err?.message ?? err).slice(0, 500),
+      })
       .catch((e: unknown) => logger.error({ err: e }, 'could not record a mail failure'));
   });
   return {

@@ -20,7 +20,10 @@ export const MAIL_JOB_OPTIONS = {
 } as const;
 
 /** How many times and how far apart a mail job is tried (tests shorten it). */
-export interface MailRetry { attempts: number; backoff: { type: 'exponential' | 'fixed'; delay: number } }
+export interface MailRetry {
+  attempts: number;
+  backoff: { type: 'exponential' | 'fixed'; delay: number };
+}
 
 export interface MailPipeline {
   queue: Queue<MailJobData>;
@@ -33,24 +36,40 @@ export interface PipelineOptions {
   config: Config;
   logger: Logger;
   concurrency?: number;
-  relay?: Partial<Pick<ConstructorParameters<typeof OutboxRelay>[0], 'idleMs' | 'batchSize' | 'maxBackoffMs' | 'scanEveryMs' | 'staleAfterMs'>>;
+  relay?: Partial<
+    Pick<
+      ConstructorParameters<typeof OutboxRelay>[0],
+      'idleMs' | 'batchSize' | 'maxBackoffMs' | 'scanEveryMs' | 'staleAfterMs'
+    >
+  >;
   /** Overrides MAIL_JOB_OPTIONS' attempts and back-off. */
   retry?: MailRetry;
 }
 
 function closeWithin(closing: Promise<void>, ms: number): Promise<void> {
-  return Promise.race([closing.catch(() => undefined), new Promise<void>((resolve) => setTimeout(resolve, ms).unref())]);
+  return Promise.race([
+    closing.catch(() => undefined),
+    new Promise<void>((resolve) => setTimeout(resolve, ms).unref()),
+  ]);
 }
 
 /** Starts the outbox relay and the mail worker in this process (`npm run worker`, or RUN_WORKER=1). */
 export function startMailPipeline(options: PipelineOptions): MailPipeline {
   const { knex, config, logger } = options;
   const queue = new Queue<MailJobData>(config.MAIL_QUEUE, {
-    connection: redisConnection(config.REDIS_URL, { failFast: true }), prefix: QUEUE_PREFIX, defaultJobOptions: { ...MAIL_JOB_OPTIONS, ...options.retry },
+    connection: redisConnection(config.REDIS_URL, { failFast: true }),
+    prefix: QUEUE_PREFIX,
+    defaultJobOptions: { ...MAIL_JOB_OPTIONS, ...options.retry },
   });
   queue.on('error', (err) => logger.warn({ err }, 'mail queue lost Redis; the outbox keeps the mail'));
   const relay = new OutboxRelay({ knex, queue, logger, reminderHours: config.REMINDER_HOURS, ...options.relay });
-  const mail = createMailWorker({ knex, config, logger, connection: redisConnection(config.REDIS_URL), concurrency: options.concurrency });
+  const mail = createMailWorker({
+    knex,
+    config,
+    logger,
+    connection: redisConnection(config.REDIS_URL),
+    concurrency: options.concurrency,
+  });
   relay.start();
   return {
     queue,

@@ -4,7 +4,9 @@ import type { EventEmitter } from 'node:events';
 import type { Queue } from 'bullmq';
 import { scanOverdueRequests } from '../server/services/reminders.ts';
 
-export interface MailJobData { outboxId: string }
+export interface MailJobData {
+  outboxId: string;
+}
 
 export interface RelayOptions {
   knex: Knex;
@@ -30,7 +32,9 @@ function withTimeout<T>(promise: Promise<T>, ms: number, what: string): Promise<
   let timer: NodeJS.Timeout | undefined;
   return Promise.race([
     promise.finally(() => clearTimeout(timer)),
-    new Promise<never>((_, reject) => { timer = setTimeout(() => reject(new Error(`${what} took longer than ${ms} ms`)), ms); }),
+    new Promise<never>((_, reject) => {
+      timer = setTimeout(() => reject(new Error(`${what} took longer than ${ms} ms`)), ms);
+    }),
   ]);
 }
 
@@ -58,7 +62,10 @@ export class OutboxRelay {
     this.running ??= this.loop();
     // Redis back after an outage: move the waiting mail at once (not after the back-off), and look
     // for jobs a restarted Redis lost. The queue's backend says 'ready' on every (re)connection.
-    const backend = typeof this.options.queue.getBackend === 'function' ? this.options.queue.getBackend() as unknown as EventEmitter : null;
+    const backend =
+      typeof this.options.queue.getBackend === 'function'
+        ? (this.options.queue.getBackend() as unknown as EventEmitter)
+        : null;
     backend?.on('ready', () => {
       this.failures = 0;
       this.nextScan = 0;
@@ -70,19 +77,44 @@ export class OutboxRelay {
   async relayOnce(): Promise<number> {
     const { knex, queue } = this.options;
     return knex.transaction(async (trx) => {
-      const rows = await trx('outbox').where('status', 'pending').where('next_attempt_at', '<=', new Date())
-        .orderBy('id').limit(this.batchSize).forUpdate().skipLocked().select('id', 'idempotency_key', 'kind', 'last_error') as { id: string; idempotencyKey: string; kind: string; lastError: string | null }[];
+      const rows = (await trx('outbox')
+        .where('status', 'pending')
+        .where('next_attempt_at', '<=', new Date())
+        .orderBy('id')
+        .limit(this.batchSize)
+        .forUpdate()
+        .skipLocked()
+        .select('id', 'idempotency_key', 'kind', 'last_error')) as {
+        id: string;
+        idempotencyKey: string;
+        kind: string;
+        lastError: string | null;
+      }[];
       if (rows.length === 0) return 0;
       // A row handed back (sent again from the office, or found stale or lost) may still have an old
       // job under its id, which would swallow the add: remove it unless it is running (a running
       // job is locked, stays, and the add is absorbed by it; the worker never sends a sent row twice).
       for (const row of rows.filter((r) => r.lastError !== null)) {
-        await withTimeout(this.options.queue.remove(row.idempotencyKey), this.options.addTimeoutMs ?? 5000, 'removing an old mail job');
+        await withTimeout(
+          this.options.queue.remove(row.idempotencyKey),
+          this.options.addTimeoutMs ?? 5000,
+          'removing an old mail job',
+        );
       }
-      await withTimeout(queue.addBulk(rows.map((r) => ({ name: r.kind, data: { outboxId: String(r.id) }, opts: { jobId: r.idempotencyKey } }))),
-        this.options.addTimeoutMs ?? 5000, 'adding mail jobs to Redis');
+      await withTimeout(
+        queue.addBulk(
+          rows.map((r) => ({ name: r.kind, data: { outboxId: String(r.id) }, opts: { jobId: r.idempotencyKey } })),
+        ),
+        this.options.addTimeoutMs ?? 5000,
+        'adding mail jobs to Redis',
+      );
       // For a queued row, next_attempt_at is when it was last handed over (or last failed).
-      await trx('outbox').whereIn('id', rows.map((r) => r.id)).update({ status: 'queued', next_attempt_at: new Date() });
+      await trx('outbox')
+        .whereIn(
+          'id',
+          rows.map((r) => r.id),
+        )
+        .update({ status: 'queued', next_attempt_at: new Date() });
       return rows.length;
     });
   }
@@ -95,13 +127,24 @@ export class OutboxRelay {
    */
   async requeueStale(now = new Date()): Promise<number> {
     const before = new Date(now.getTime() - (this.options.staleAfterMs ?? 15 * 60_000));
-    const stale = await this.options.knex('outbox').where('status', 'queued').where('next_attempt_at', '<', before)
-      .limit(this.batchSize).select('id', 'idempotency_key') as { id: string; idempotencyKey: string }[];
+    const stale = (await this.options
+      .knex('outbox')
+      .where('status', 'queued')
+      .where('next_attempt_at', '<', before)
+      .limit(this.batchSize)
+      .select('id', 'idempotency_key')) as { id: string; idempotencyKey: string }[];
     let requeued = 0;
     for (const row of stale) {
       // A finished job under the same id would swallow the re-add; an active one (locked) is left alone.
-      if (await this.options.queue.remove(row.idempotencyKey) === 0 && await this.options.queue.getJobState(row.idempotencyKey) === 'active') continue;
-      requeued += await this.options.knex('outbox').where({ id: row.id, status: 'queued' }).update({ status: 'pending', next_attempt_at: now });
+      if (
+        (await this.options.queue.remove(row.idempotencyKey)) === 0 &&
+        (await this.options.queue.getJobState(row.idempotencyKey)) === 'active'
+      )
+        continue;
+      requeued += await this.options
+        .knex('outbox')
+        .where({ id: row.id, status: 'queued' })
+        .update({ status: 'pending', next_attempt_at: now });
     }
     return requeued;
   }
@@ -113,19 +156,26 @@ export class OutboxRelay {
    * failed, so an unknown job of a queued row was never sent by it.
    */
   async requeueLost(now = new Date()): Promise<number> {
-    const queued = await this.options.knex('outbox').where('status', 'queued').orderBy('id')
-      .limit(this.batchSize).select('id', 'idempotency_key') as { id: string; idempotencyKey: string }[];
+    const queued = (await this.options
+      .knex('outbox')
+      .where('status', 'queued')
+      .orderBy('id')
+      .limit(this.batchSize)
+      .select('id', 'idempotency_key')) as { id: string; idempotencyKey: string }[];
     let requeued = 0;
     const seen = new Map<string, number>();
     for (const row of queued) {
-      if (await this.options.queue.getJobState(row.idempotencyKey) !== 'unknown') continue;
+      if ((await this.options.queue.getJobState(row.idempotencyKey)) !== 'unknown') continue;
       // Seen missing twice, a few seconds apart: a job that just failed for good is removed a moment
       // before its row says failed, and must not be taken for a lost one.
       const since = this.missing.get(row.id) ?? now.getTime();
       seen.set(row.id, since);
       if (now.getTime() - since < LOST_CONFIRM_MS) continue;
       seen.delete(row.id);
-      requeued += await this.options.knex('outbox').where({ id: row.id, status: 'queued' }).update({ status: 'pending', next_attempt_at: now });
+      requeued += await this.options
+        .knex('outbox')
+        .where({ id: row.id, status: 'queued' })
+        .update({ status: 'pending', next_attempt_at: now });
     }
     this.missing = seen;
     return requeued;
@@ -137,7 +187,10 @@ export class OutboxRelay {
       let moved = 0;
       try {
         if (Date.now() >= this.nextScan) {
-          const flagged = await scanOverdueRequests(this.options.knex, { now: new Date(), reminderHours: this.options.reminderHours });
+          const flagged = await scanOverdueRequests(this.options.knex, {
+            now: new Date(),
+            reminderHours: this.options.reminderHours,
+          });
           if (flagged) logger.info({ flagged }, 'overdue requests flagged; reminders queued');
           const requeued = await this.requeueStale();
           if (requeued) logger.warn({ requeued }, 'mail queued long ago but never sent was handed over again');
@@ -152,12 +205,25 @@ export class OutboxRelay {
         this.failures = 0;
       } catch (err) {
         this.failures += 1;
-        if (this.failures === 1 || this.failures % 20 === 0) logger.warn({ err, failures: this.failures }, 'outbox relay could not hand mail to the queue; rows stay pending');
+        if (this.failures === 1 || this.failures % 20 === 0)
+          logger.warn(
+            { err, failures: this.failures },
+            'outbox relay could not hand mail to the queue; rows stay pending',
+          );
       }
       const wait = this.failures
         ? Math.min(this.options.maxBackoffMs ?? 30_000, 500 * 2 ** (this.failures - 1))
-        : moved === this.batchSize ? 0 : this.options.idleMs ?? 250;
-      if (wait > 0) await new Promise<void>((resolve) => { const t = setTimeout(resolve, wait); this.wake = () => { clearTimeout(t); resolve(); }; });
+        : moved === this.batchSize
+          ? 0
+          : (this.options.idleMs ?? 250);
+      if (wait > 0)
+        await new Promise<void>((resolve) => {
+          const t = setTimeout(resolve, wait);
+          this.wake = () => {
+            clearTimeout(t);
+            resolve();
+          };
+        });
       this.wake = null;
     }
   }

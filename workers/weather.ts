@@ -15,7 +15,10 @@ export interface WeatherRefresh {
 }
 
 function closeWithin(closing: Promise<void>, ms: number): Promise<void> {
-  return Promise.race([closing.catch(() => undefined), new Promise<void>((resolve) => setTimeout(resolve, ms).unref())]);
+  return Promise.race([
+    closing.catch(() => undefined),
+    new Promise<void>((resolve) => setTimeout(resolve, ms).unref()),
+  ]);
 }
 
 /**
@@ -26,20 +29,43 @@ function closeWithin(closing: Promise<void>, ms: number): Promise<void> {
  * colder forecast made too early (server/services/weather.ts). A failed refresh is only logged:
  * the board falls back to the stored days and the seasonal assumption, and the next run tries again.
  */
-export function startWeatherRefresh(options: { knex: Knex; config: Pick<Config, 'REDIS_URL' | 'WEATHER_API_URL' | 'WEATHER_REFRESH_HOURS'>; logger: Logger; now?: () => number }): WeatherRefresh {
+export function startWeatherRefresh(options: {
+  knex: Knex;
+  config: Pick<Config, 'REDIS_URL' | 'WEATHER_API_URL' | 'WEATHER_REFRESH_HOURS'>;
+  logger: Logger;
+  now?: () => number;
+}): WeatherRefresh {
   const { knex, config, logger } = options;
   const now = options.now ?? Date.now;
-  const queue = new Queue(WEATHER_QUEUE, { connection: redisConnection(config.REDIS_URL, { failFast: true }), prefix: QUEUE_PREFIX });
+  const queue = new Queue(WEATHER_QUEUE, {
+    connection: redisConnection(config.REDIS_URL, { failFast: true }),
+    prefix: QUEUE_PREFIX,
+  });
   queue.on('error', (err) => logger.warn({ err }, 'weather queue lost Redis; forecasts refresh when it is back'));
-  void queue.upsertJobScheduler(WEATHER_SCHEDULER_ID, { every: config.WEATHER_REFRESH_HOURS * 3600_000, immediately: true }, {
-    name: 'refresh', opts: { removeOnComplete: { count: 50 }, removeOnFail: { count: 50 } },
-  }).catch((err: unknown) => logger.warn({ err }, 'the forecast refresh could not be scheduled'));
-  const worker = new Worker(WEATHER_QUEUE, async () => {
-    const result = await refreshForecasts(knex, { baseUrl: config.WEATHER_API_URL, now: now() });
-    for (const f of result.failed) logger.warn({ jobId: f.jobId, reason: f.reason }, 'site forecast not refreshed; the seasonal assumption stands in');
-    for (const l of result.lateLifts) logger.info({ jobId: l.jobId, stageId: l.stageId }, l.message);
-    return { refreshed: result.refreshed.length, failed: result.failed.length, lateLifts: result.lateLifts.length };
-  }, { connection: redisConnection(config.REDIS_URL), prefix: QUEUE_PREFIX, concurrency: 1 });
+  void queue
+    .upsertJobScheduler(
+      WEATHER_SCHEDULER_ID,
+      { every: config.WEATHER_REFRESH_HOURS * 3600_000, immediately: true },
+      {
+        name: 'refresh',
+        opts: { removeOnComplete: { count: 50 }, removeOnFail: { count: 50 } },
+      },
+    )
+    .catch((err: unknown) => logger.warn({ err }, 'the forecast refresh could not be scheduled'));
+  const worker = new Worker(
+    WEATHER_QUEUE,
+    async () => {
+      const result = await refreshForecasts(knex, { baseUrl: config.WEATHER_API_URL, now: now() });
+      for (const f of result.failed)
+        logger.warn(
+          { jobId: f.jobId, reason: f.reason },
+          'site forecast not refreshed; the seasonal assumption stands in',
+        );
+      for (const l of result.lateLifts) logger.info({ jobId: l.jobId, stageId: l.stageId }, l.message);
+      return { refreshed: result.refreshed.length, failed: result.failed.length, lateLifts: result.lateLifts.length };
+    },
+    { connection: redisConnection(config.REDIS_URL), prefix: QUEUE_PREFIX, concurrency: 1 },
+  );
   worker.on('error', (err) => logger.warn({ err }, 'weather worker lost Redis'));
   return {
     queue,

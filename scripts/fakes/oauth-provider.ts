@@ -3,7 +3,11 @@ import { createHash } from 'node:crypto';
 import express from 'express';
 import { OAuth2Server } from 'oauth2-mock-server';
 
-export interface FakeAccount { email: string; name: string; hint?: string }
+export interface FakeAccount {
+  email: string;
+  name: string;
+  hint?: string;
+}
 
 export interface FakeOAuthProvider {
   url: string;
@@ -46,24 +50,34 @@ export async function startFakeOAuthProvider(port: number, accounts: FakeAccount
       redirect.url.searchParams.set('error', 'access_denied');
     }
   });
-  oauth.service.on('beforeTokenSigning', (token: { payload: Record<string, unknown> }, req: { body?: Record<string, unknown> }) => {
-    const email = typeof req.body?.code === 'string' ? emailByCode.get(req.body.code) : undefined;
-    if (email) Object.assign(token.payload, { sub: fakeSubject(email), email });
-  });
-  oauth.service.on('beforeUserinfo', (response: { body: Record<string, unknown>; statusCode: number }, req: http.IncomingMessage) => {
-    // passport-google-oauth20 sends the token as ?access_token=, other clients as a Bearer header.
-    const fromQuery = new URL(req.url ?? '/', 'http://fake').searchParams.get('access_token');
-    const bearer = fromQuery ?? (req.headers.authorization ?? '').replace(/^Bearer\s+/i, '');
-    const email = bearer ? String(decodeJwtPayload(bearer).email ?? '') : '';
-    if (!email) { response.statusCode = 401; response.body = { error: 'invalid_token' }; return; }
-    const account = accounts.find((a) => a.email.toLowerCase() === email.toLowerCase());
-    response.body = {
-      sub: fakeSubject(email),
-      email,
-      email_verified: true,
-      name: account?.name ?? email.split('@')[0],
-    };
-  });
+  oauth.service.on(
+    'beforeTokenSigning',
+    (token: { payload: Record<string, unknown> }, req: { body?: Record<string, unknown> }) => {
+      const email = typeof req.body?.code === 'string' ? emailByCode.get(req.body.code) : undefined;
+      if (email) Object.assign(token.payload, { sub: fakeSubject(email), email });
+    },
+  );
+  oauth.service.on(
+    'beforeUserinfo',
+    (response: { body: Record<string, unknown>; statusCode: number }, req: http.IncomingMessage) => {
+      // passport-google-oauth20 sends the token as ?access_token=, other clients as a Bearer header.
+      const fromQuery = new URL(req.url ?? '/', 'http://fake').searchParams.get('access_token');
+      const bearer = fromQuery ?? (req.headers.authorization ?? '').replace(/^Bearer\s+/i, '');
+      const email = bearer ? String(decodeJwtPayload(bearer).email ?? '') : '';
+      if (!email) {
+        response.statusCode = 401;
+        response.body = { error: 'invalid_token' };
+        return;
+      }
+      const account = accounts.find((a) => a.email.toLowerCase() === email.toLowerCase());
+      response.body = {
+        sub: fakeSubject(email),
+        email,
+        email_verified: true,
+        name: account?.name ?? email.split('@')[0],
+      };
+    },
+  );
 
   const app = express();
   app.get('/pick', (req, res) => {
@@ -73,9 +87,15 @@ export async function startFakeOAuthProvider(port: number, accounts: FakeAccount
       p.set('login_hint', email);
       return `/authorize?${p.toString()}`;
     };
-    const items = accounts.map((a) => `<li><a href="${escapeHtml(link(a.email))}"><strong>${escapeHtml(a.name)}</strong>
-      <span>${escapeHtml(a.email)}</span>${a.hint ? `<em>${escapeHtml(a.hint)}</em>` : ''}</a></li>`).join('');
-    const hidden = [...params.entries()].map(([k, v]) => `<input type="hidden" name="${escapeHtml(k)}" value="${escapeHtml(v)}">`).join('');
+    const items = accounts
+      .map(
+        (a) => `<li><a href="${escapeHtml(link(a.email))}"><strong>${escapeHtml(a.name)}</strong>
+      <span>${escapeHtml(a.email)}</span>${a.hint ? `<em>${escapeHtml(a.hint)}</em>` : ''}</a></li>`,
+      )
+      .join('');
+    const hidden = [...params.entries()]
+      .map(([k, v]) => `<input type="hidden" name="${escapeHtml(k)}" value="${escapeHtml(v)}">`)
+      .join('');
     res.type('html').send(`<!doctype html><html lang="en"><head><meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1"><title>Local sign-in provider</title>
 <style>body{font-family:system-ui,sans-serif;max-width:34rem;margin:2rem auto;padding:0 1rem;color:#1d2730}

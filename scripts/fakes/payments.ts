@@ -57,7 +57,15 @@ export interface FakeSession {
   line_items_name: string;
 }
 
-export interface FakeDelivery { eventId: string; type: string; url: string; payload: string; signature: string; status: number; body: string }
+export interface FakeDelivery {
+  eventId: string;
+  type: string;
+  url: string;
+  payload: string;
+  signature: string;
+  status: number;
+  body: string;
+}
 
 const id = (prefix: string) => `${prefix}_${randomBytes(12).toString('hex')}`;
 const esc = (s: unknown) => String(s ?? '').replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
@@ -65,7 +73,13 @@ const pounds = (pence: number) => `£${(pence / 100).toFixed(2)}`;
 
 /** The provider's error shape, as the SDK reads it. */
 function fail(res: express.Response, status: number, message: string, param?: string) {
-  res.status(status).json({ error: { type: status === 401 ? 'authentication_error' : 'invalid_request_error', message, ...(param ? { param } : {}) } });
+  res.status(status).json({
+    error: {
+      type: status === 401 ? 'authentication_error' : 'invalid_request_error',
+      message,
+      ...(param ? { param } : {}),
+    },
+  });
 }
 
 export async function startFakePayments(port: number, options: { now?: () => number } = {}): Promise<FakePayments> {
@@ -81,7 +95,10 @@ export async function startFakePayments(port: number, options: { now?: () => num
   const app = express();
   app.use('/v1', express.urlencoded({ extended: true, limit: '64kb' }));
   app.use('/v1', (req, res, next) => {
-    if (req.get('authorization') !== `Bearer ${secretKey}`) { fail(res, 401, 'Invalid API Key provided.'); return; }
+    if (req.get('authorization') !== `Bearer ${secretKey}`) {
+      fail(res, 401, 'Invalid API Key provided.');
+      return;
+    }
     next();
   });
 
@@ -92,7 +109,11 @@ export async function startFakePayments(port: number, options: { now?: () => num
     let status = 0;
     let body = '';
     try {
-      const res = await fetch(event.url, { method: 'POST', headers: { 'content-type': 'application/json; charset=utf-8', 'stripe-signature': signature }, body: event.payload });
+      const res = await fetch(event.url, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json; charset=utf-8', 'stripe-signature': signature },
+        body: event.payload,
+      });
       status = res.status;
       body = await res.text();
     } catch (error) {
@@ -110,38 +131,93 @@ export async function startFakePayments(port: number, options: { now?: () => num
     session.payment_intent = id('pi');
     session.url = null;
     const eventId = id('evt');
-    const payload = JSON.stringify({
-      id: eventId, object: 'event', api_version: null, created: Math.floor(now() / 1000), livemode: false, pending_webhooks: 1,
-      request: { id: null, idempotency_key: null }, type: 'checkout.session.completed', data: { object: { ...session } },
-    }, null, 2);
-    events.set(eventId, { type: 'checkout.session.completed', payload, url: new URL('/api/payments/webhook', session.success_url).href });
+    const payload = JSON.stringify(
+      {
+        id: eventId,
+        object: 'event',
+        api_version: null,
+        created: Math.floor(now() / 1000),
+        livemode: false,
+        pending_webhooks: 1,
+        request: { id: null, idempotency_key: null },
+        type: 'checkout.session.completed',
+        data: { object: { ...session } },
+      },
+      null,
+      2,
+    );
+    events.set(eventId, {
+      type: 'checkout.session.completed',
+      payload,
+      url: new URL('/api/payments/webhook', session.success_url).href,
+    });
     return send(eventId);
   };
 
   app.post('/v1/checkout/sessions', (req, res) => {
     const key = req.get('idempotency-key');
     const earlier = key ? sessions.get(byIdempotencyKey.get(key) ?? '') : undefined;
-    if (earlier) { res.json(earlier); return; }
+    if (earlier) {
+      res.json(earlier);
+      return;
+    }
     const body = req.body as Record<string, unknown>;
-    const items = Array.isArray(body.line_items) ? body.line_items as { price_data?: { currency?: string; unit_amount?: string; product_data?: { name?: string } }; quantity?: string }[] : [];
+    const items = Array.isArray(body.line_items)
+      ? (body.line_items as {
+          price_data?: { currency?: string; unit_amount?: string; product_data?: { name?: string } };
+          quantity?: string;
+        }[])
+      : [];
     const item = items[0];
     const amount = Number(item?.price_data?.unit_amount);
-    if (body.mode !== 'payment') { fail(res, 400, 'This fake takes mode=payment only.', 'mode'); return; }
-    if (items.length !== 1 || Number(item?.quantity) !== 1) { fail(res, 400, 'This fake takes one line item of quantity 1.', 'line_items'); return; }
-    if (!Number.isInteger(amount) || amount < 30) { fail(res, 400, 'unit_amount must be a whole number of the smallest unit, at least 30.', 'line_items[0][price_data][unit_amount]'); return; }
-    if (typeof item?.price_data?.currency !== 'string') { fail(res, 400, 'Missing currency.', 'line_items[0][price_data][currency]'); return; }
+    if (body.mode !== 'payment') {
+      fail(res, 400, 'This fake takes mode=payment only.', 'mode');
+      return;
+    }
+    if (items.length !== 1 || Number(item?.quantity) !== 1) {
+      fail(res, 400, 'This fake takes one line item of quantity 1.', 'line_items');
+      return;
+    }
+    if (!Number.isInteger(amount) || amount < 30) {
+      fail(
+        res,
+        400,
+        'unit_amount must be a whole number of the smallest unit, at least 30.',
+        'line_items[0][price_data][unit_amount]',
+      );
+      return;
+    }
+    if (typeof item?.price_data?.currency !== 'string') {
+      fail(res, 400, 'Missing currency.', 'line_items[0][price_data][currency]');
+      return;
+    }
     let successUrl: URL;
-    try { successUrl = new URL(String(body.success_url)); } catch { fail(res, 400, 'Not a valid URL.', 'success_url'); return; }
+    try {
+      successUrl = new URL(String(body.success_url));
+    } catch {
+      fail(res, 400, 'Not a valid URL.', 'success_url');
+      return;
+    }
     const created = Math.floor(now() / 1000);
     const sessionId = id('cs_test');
     const session: FakeSession = {
-      id: sessionId, object: 'checkout.session', amount_total: amount, currency: item.price_data.currency,
+      id: sessionId,
+      object: 'checkout.session',
+      amount_total: amount,
+      currency: item.price_data.currency,
       client_reference_id: typeof body.client_reference_id === 'string' ? body.client_reference_id : null,
       customer_email: typeof body.customer_email === 'string' ? body.customer_email : null,
       metadata: (body.metadata && typeof body.metadata === 'object' ? body.metadata : {}) as Record<string, string>,
-      mode: 'payment', payment_status: 'unpaid', status: 'open', payment_intent: null,
-      success_url: successUrl.href, cancel_url: typeof body.cancel_url === 'string' ? body.cancel_url : null,
-      url: `${base}/pay/${sessionId}`, created, expires_at: Number(body.expires_at) || created + 24 * 3600, livemode: false,
+      mode: 'payment',
+      payment_status: 'unpaid',
+      status: 'open',
+      payment_intent: null,
+      success_url: successUrl.href,
+      cancel_url: typeof body.cancel_url === 'string' ? body.cancel_url : null,
+      url: `${base}/pay/${sessionId}`,
+      created,
+      expires_at: Number(body.expires_at) || created + 24 * 3600,
+      livemode: false,
       line_items_name: String(item.price_data.product_data?.name ?? 'Payment'),
     };
     sessions.set(sessionId, session);
@@ -150,13 +226,22 @@ export async function startFakePayments(port: number, options: { now?: () => num
   });
   app.get('/v1/checkout/sessions/:id', (req, res) => {
     const session = sessions.get(req.params.id);
-    if (!session) { fail(res, 404, `No such checkout.session: '${req.params.id}'`, 'session'); return; }
+    if (!session) {
+      fail(res, 404, `No such checkout.session: '${req.params.id}'`, 'session');
+      return;
+    }
     res.json(session);
   });
   app.post('/v1/checkout/sessions/:id/expire', (req, res) => {
     const session = sessions.get(req.params.id);
-    if (!session) { fail(res, 404, `No such checkout.session: '${req.params.id}'`, 'session'); return; }
-    if (session.status !== 'open') { fail(res, 400, `Only open sessions can be expired; this one is ${session.status}.`); return; }
+    if (!session) {
+      fail(res, 404, `No such checkout.session: '${req.params.id}'`, 'session');
+      return;
+    }
+    if (session.status !== 'open') {
+      fail(res, 400, `Only open sessions can be expired; this one is ${session.status}.`);
+      return;
+    }
     session.status = 'expired';
     session.url = null;
     res.json(session);
@@ -165,19 +250,29 @@ export async function startFakePayments(port: number, options: { now?: () => num
   // The hosted page: what the householder sees, with a Pay button (no card details: it is a fake).
   app.get('/pay/:id', (req, res) => {
     const session = sessions.get(req.params.id);
-    if (!session) { res.status(404).type('text/plain').send('No such payment page.'); return; }
+    if (!session) {
+      res.status(404).type('text/plain').send('No such payment page.');
+      return;
+    }
     const open = session.status === 'open';
-    res.type('html').send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+    res.type('html')
+      .send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
 <title>Local payment page</title></head><body style="font-family:system-ui,sans-serif;max-width:30rem;margin:2rem auto;padding:0 1rem">
 <p style="background:#fff6e0;padding:.5rem">Local stand-in for the payment provider: no money moves.</p>
 <h1>${esc(session.line_items_name)}</h1><p style="font-size:1.4rem">${esc(pounds(session.amount_total))}</p>
-${open ? `<form method="post" action="/pay/${esc(session.id)}"><button type="submit" style="font-size:1.2rem;padding:.8rem 2rem">Pay</button></form>`
-    : `<p>This payment is ${esc(session.status === 'complete' ? 'already paid' : 'no longer open')}.</p>`}
+${
+  open
+    ? `<form method="post" action="/pay/${esc(session.id)}"><button type="submit" style="font-size:1.2rem;padding:.8rem 2rem">Pay</button></form>`
+    : `<p>This payment is ${esc(session.status === 'complete' ? 'already paid' : 'no longer open')}.</p>`
+}
 </body></html>`);
   });
   app.post('/pay/:id', async (req, res) => {
     const session = sessions.get(req.params.id);
-    if (!session) { res.status(404).type('text/plain').send('No such payment page.'); return; }
+    if (!session) {
+      res.status(404).type('text/plain').send('No such payment page.');
+      return;
+    }
     if (session.status === 'open') await complete(session);
     res.redirect(303, session.success_url);
   });
@@ -186,13 +281,21 @@ ${open ? `<form method="post" action="/pay/${esc(session.id)}"><button type="sub
   await new Promise<void>((resolve) => server.listen(port, '127.0.0.1', resolve));
   base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
   return {
-    url: base, secretKey, webhookSecret, sessions, deliveries,
+    url: base,
+    secretKey,
+    webhookSecret,
+    sessions,
+    deliveries,
     async pay(sessionId) {
       const session = sessions.get(sessionId);
       if (!session) throw new Error(`no session ${sessionId}`);
       return complete(session);
     },
     redeliver: send,
-    stop: () => new Promise((resolve) => { server.closeAllConnections(); server.close(() => resolve()); }),
+    stop: () =>
+      new Promise((resolve) => {
+        server.closeAllConnections();
+        server.close(() => resolve());
+      }),
   };
 }

@@ -52,45 +52,74 @@ export async function startFakeSmtpInbox(ports: { smtp: number; web: number }): 
           const err = Object.assign(new Error('Try again later (fake inbox told to fail)'), { responseCode: 451 });
           return callback(err);
         }
-        simpleParser(Buffer.concat(chunks)).then((mail) => {
-          seq += 1;
-          const addresses = (v: typeof mail.to) => (Array.isArray(v) ? v : v ? [v] : []).flatMap((a) => a.value.map((x) => x.address ?? ''));
-          const headers: Record<string, string> = {};
-          for (const [k, v] of mail.headers) headers[k] = typeof v === 'string' ? v : JSON.stringify(v);
-          messages.push({
-            id: String(seq),
-            receivedAt: new Date().toISOString(),
-            envelope: { from: session.envelope.mailFrom ? session.envelope.mailFrom.address : '', to: session.envelope.rcptTo.map((r) => r.address) },
-            messageId: mail.messageId ?? null,
-            from: mail.from?.text ?? '',
-            to: addresses(mail.to),
-            subject: mail.subject ?? '',
-            text: mail.text ?? '',
-            html: typeof mail.html === 'string' ? mail.html : '',
-            attachments: mail.attachments.map((a) => ({
-              filename: a.filename ?? null, contentType: a.contentType,
-              method: (a.headers.get('content-type') as { params?: Record<string, string> } | undefined)?.params?.method ?? null,
-              content: a.content.toString('utf8'),
-            })),
-            headers,
-          });
-          callback();
-        }, (err: Error) => callback(err));
+        simpleParser(Buffer.concat(chunks)).then(
+          (mail) => {
+            seq += 1;
+            const addresses = (v: typeof mail.to) =>
+              (Array.isArray(v) ? v : v ? [v] : []).flatMap((a) => a.value.map((x) => x.address ?? ''));
+            const headers: Record<string, string> = {};
+            for (const [k, v] of mail.headers) headers[k] = typeof v === 'string' ? v : JSON.stringify(v);
+            messages.push({
+              id: String(seq),
+              receivedAt: new Date().toISOString(),
+              envelope: {
+                from: session.envelope.mailFrom ? session.envelope.mailFrom.address : '',
+                to: session.envelope.rcptTo.map((r) => r.address),
+              },
+              messageId: mail.messageId ?? null,
+              from: mail.from?.text ?? '',
+              to: addresses(mail.to),
+              subject: mail.subject ?? '',
+              text: mail.text ?? '',
+              html: typeof mail.html === 'string' ? mail.html : '',
+              attachments: mail.attachments.map((a) => ({
+                filename: a.filename ?? null,
+                contentType: a.contentType,
+                method:
+                  (a.headers.get('content-type') as { params?: Record<string, string> } | undefined)?.params?.method ??
+                  null,
+                content: a.content.toString('utf8'),
+              })),
+              headers,
+            });
+            callback();
+          },
+          (err: Error) => callback(err),
+        );
       });
     },
   });
-  await new Promise<void>((resolve, reject) => { smtp.once('error', reject); smtp.listen(ports.smtp, '127.0.0.1', () => resolve()); });
-  smtp.on('error', () => { /* a dropped client connection is not the inbox's problem */ });
+  await new Promise<void>((resolve, reject) => {
+    smtp.once('error', reject);
+    smtp.listen(ports.smtp, '127.0.0.1', () => resolve());
+  });
+  smtp.on('error', () => {
+    /* a dropped client connection is not the inbox's problem */
+  });
 
   const app = express();
   app.use(express.json());
-  app.get('/api/messages', (_req, res) => { res.json({ items: messages }); });
-  app.delete('/api/messages', (_req, res) => { messages.length = 0; res.status(204).end(); });
-  app.post('/api/fail-next', (req, res) => { failNext = Number(req.body?.count ?? 1); res.json({ failNext }); });
+  app.get('/api/messages', (_req, res) => {
+    res.json({ items: messages });
+  });
+  app.delete('/api/messages', (_req, res) => {
+    messages.length = 0;
+    res.status(204).end();
+  });
+  app.post('/api/fail-next', (req, res) => {
+    failNext = Number(req.body?.count ?? 1);
+    res.json({ failNext });
+  });
   app.get('/', (_req, res) => {
-    const rows = [...messages].reverse().map((m) => `<tr><td>${esc(m.receivedAt.slice(0, 19).replace('T', ' '))}</td><td>${esc(m.to.join(', '))}</td>
-      <td><a href="/messages/${esc(m.id)}">${esc(m.subject || '(no subject)')}</a></td><td>${m.attachments.map((a) => esc(a.filename ?? a.contentType)).join(', ')}</td></tr>`).join('');
-    res.type('html').send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+    const rows = [...messages]
+      .reverse()
+      .map(
+        (m) => `<tr><td>${esc(m.receivedAt.slice(0, 19).replace('T', ' '))}</td><td>${esc(m.to.join(', '))}</td>
+      <td><a href="/messages/${esc(m.id)}">${esc(m.subject || '(no subject)')}</a></td><td>${m.attachments.map((a) => esc(a.filename ?? a.contentType)).join(', ')}</td></tr>`,
+      )
+      .join('');
+    res.type('html')
+      .send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
 <title>Local inbox</title><style>body{font-family:system-ui,sans-serif;margin:1.5rem;color:#1d2730}table{border-collapse:collapse;width:100%}
 td,th{border-bottom:1px solid #dde3e8;padding:.45rem;text-align:left;font-size:.95rem}a{color:#0b5c7a}</style></head><body>
 <h1>Local inbox</h1><p>Every e-mail Waterline sends on this machine lands here; nothing leaves it. ${messages.length} message(s).</p>
@@ -98,8 +127,12 @@ td,th{border-bottom:1px solid #dde3e8;padding:.45rem;text-align:left;font-size:.
   });
   app.get('/messages/:id', (req, res) => {
     const m = messages.find((x) => x.id === req.params.id);
-    if (!m) { res.status(404).type('text').send('No such message'); return; }
-    res.type('html').send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+    if (!m) {
+      res.status(404).type('text').send('No such message');
+      return;
+    }
+    res.type('html')
+      .send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
 <title>${esc(m.subject)}</title><style>body{font-family:system-ui,sans-serif;margin:1rem;color:#1d2730}iframe{width:100%;height:70vh;border:1px solid #c9d2da}
 pre{white-space:pre-wrap;background:#f4f6f8;padding:.8rem}</style></head><body><p><a href="/">← Inbox</a></p>
 <h1>${esc(m.subject)}</h1><p>From ${esc(m.from)}<br>To ${esc(m.to.join(', '))}<br>Received ${esc(m.receivedAt)}</p>
@@ -116,7 +149,9 @@ ${m.attachments.map((a) => `<h2>${esc(a.filename ?? a.contentType)}</h2><pre>${e
     smtpUrl: `smtp://127.0.0.1:${smtpPort}`,
     url: `http://127.0.0.1:${webPort}`,
     messages,
-    clear: () => { messages.length = 0; },
+    clear: () => {
+      messages.length = 0;
+    },
     stop: async () => {
       await new Promise<void>((resolve) => web.close(() => resolve()));
       await new Promise<void>((resolve) => smtp.close(() => resolve()));

@@ -32,7 +32,9 @@ export const defaultFakeTemperature: FakeTemperature = (date, latitude) => {
 
 /** YYYY-MM-DD of an instant in a time zone. */
 function dateIn(ms: number, timeZone: string): string {
-  return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date(ms));
+  return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(
+    new Date(ms),
+  );
 }
 
 const bad = (res: express.Response, reason: string) => res.status(400).json({ error: true, reason });
@@ -45,7 +47,10 @@ const bad = (res: express.Response, reason: string) => res.status(400).json({ er
  * `{ "error": true, "reason": … }` with 400. `POST /control/outage {"on": true}` (or `setOutage`)
  * makes every forecast fail with 503 until switched off. `now` sets the fake's "today" (tests).
  */
-export async function startFakeWeather(port: number, options: { now?: () => number; temperature?: FakeTemperature } = {}): Promise<FakeWeather> {
+export async function startFakeWeather(
+  port: number,
+  options: { now?: () => number; temperature?: FakeTemperature } = {},
+): Promise<FakeWeather> {
   const now = options.now ?? Date.now;
   let temperature = options.temperature ?? defaultFakeTemperature;
   let outage = false;
@@ -56,24 +61,55 @@ export async function startFakeWeather(port: number, options: { now?: () => numb
   app.get('/v1/forecast', (req, res) => {
     const q = new URL(req.originalUrl, 'http://fake').searchParams;
     requests.push(q);
-    if (outage) { res.status(503).type('text/plain').send('Service unavailable (simulated outage)'); return; }
-    const latitude = Number(q.get('latitude')), longitude = Number(q.get('longitude'));
-    if (!q.has('latitude') || !(latitude >= -90 && latitude <= 90)) { bad(res, 'Latitude must be in range of -90 to 90°.'); return; }
-    if (!q.has('longitude') || !(longitude >= -180 && longitude <= 180)) { bad(res, 'Longitude must be in range of -180 to 180°.'); return; }
+    if (outage) {
+      res.status(503).type('text/plain').send('Service unavailable (simulated outage)');
+      return;
+    }
+    const latitude = Number(q.get('latitude')),
+      longitude = Number(q.get('longitude'));
+    if (!q.has('latitude') || !(latitude >= -90 && latitude <= 90)) {
+      bad(res, 'Latitude must be in range of -90 to 90°.');
+      return;
+    }
+    if (!q.has('longitude') || !(longitude >= -180 && longitude <= 180)) {
+      bad(res, 'Longitude must be in range of -180 to 180°.');
+      return;
+    }
     const daily = (q.get('daily') ?? '').split(',').filter(Boolean);
-    if (daily.some((d) => d !== 'temperature_2m_mean')) { bad(res, `This fake only knows temperature_2m_mean, not ${daily.join(',')}.`); return; }
+    if (daily.some((d) => d !== 'temperature_2m_mean')) {
+      bad(res, `This fake only knows temperature_2m_mean, not ${daily.join(',')}.`);
+      return;
+    }
     const timeZone = q.get('timezone') ?? 'GMT';
-    try { dateIn(0, timeZone); } catch { bad(res, `Invalid timezone ${timeZone}`); return; }
+    try {
+      dateIn(0, timeZone);
+    } catch {
+      bad(res, `Invalid timezone ${timeZone}`);
+      return;
+    }
     const days = q.has('forecast_days') ? Number(q.get('forecast_days')) : 7;
-    if (!Number.isInteger(days) || days < 0 || days > 16) { bad(res, 'Forecast days is invalid. Allowed range 0 to 16.'); return; }
+    if (!Number.isInteger(days) || days < 0 || days > 16) {
+      bad(res, 'Forecast days is invalid. Allowed range 0 to 16.');
+      return;
+    }
     const today = dateIn(now(), timeZone);
-    const time = Array.from({ length: days }, (_, d) => new Date(Date.parse(`${today}T00:00:00Z`) + d * DAY_MS).toISOString().slice(0, 10));
+    const time = Array.from({ length: days }, (_, d) =>
+      new Date(Date.parse(`${today}T00:00:00Z`) + d * DAY_MS).toISOString().slice(0, 10),
+    );
     res.json({
-      latitude, longitude, generationtime_ms: 0.1, utc_offset_seconds: 0, timezone: timeZone, timezone_abbreviation: timeZone, elevation: 0,
-      ...(daily.length ? {
-        daily_units: { time: 'iso8601', temperature_2m_mean: '°C' },
-        daily: { time, temperature_2m_mean: time.map((t) => temperature(t, latitude, longitude)) },
-      } : {}),
+      latitude,
+      longitude,
+      generationtime_ms: 0.1,
+      utc_offset_seconds: 0,
+      timezone: timeZone,
+      timezone_abbreviation: timeZone,
+      elevation: 0,
+      ...(daily.length
+        ? {
+            daily_units: { time: 'iso8601', temperature_2m_mean: '°C' },
+            daily: { time, temperature_2m_mean: time.map((t) => temperature(t, latitude, longitude)) },
+          }
+        : {}),
     });
   });
   app.post('/control/outage', (req, res) => {
@@ -87,8 +123,16 @@ export async function startFakeWeather(port: number, options: { now?: () => numb
   return {
     url: `http://127.0.0.1:${bound}`,
     requests,
-    setOutage(on) { outage = on; },
-    setTemperature(fn) { temperature = fn ?? defaultFakeTemperature; },
-    stop: () => new Promise((resolve) => { server.closeAllConnections(); server.close(() => resolve()); }),
+    setOutage(on) {
+      outage = on;
+    },
+    setTemperature(fn) {
+      temperature = fn ?? defaultFakeTemperature;
+    },
+    stop: () =>
+      new Promise((resolve) => {
+        server.closeAllConnections();
+        server.close(() => resolve());
+      }),
   };
 }

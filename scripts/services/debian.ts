@@ -14,7 +14,9 @@ export function ensureDebianPackages(commands: string[]): void {
   const missing = commands.filter((c) => !hasCommand(c)).map((c) => PACKAGES[c] ?? c);
   if (missing.length === 0) return;
   if (!isRoot) {
-    throw new Error(`Missing Debian packages: ${missing.join(', ')}. Install them with:\n  sudo apt-get install -y ${missing.join(' ')}`);
+    throw new Error(
+      `Missing Debian packages: ${missing.join(', ')}. Install them with:\n  sudo apt-get install -y ${missing.join(' ')}`,
+    );
   }
   console.log(`Installing Debian packages: ${missing.join(', ')}…`);
   run('apt-get', ['update', '-qq']);

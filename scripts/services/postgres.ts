@@ -1,7 +1,16 @@
 import { chmodSync, chownSync, existsSync, mkdirSync, readdirSync, appendFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
-import { claimRunning, claimStarted, hasCommand, isRoot, portInUse, portTakenError, releaseClaim, run } from './shell.ts';
+import {
+  claimRunning,
+  claimStarted,
+  hasCommand,
+  isRoot,
+  portInUse,
+  portTakenError,
+  releaseClaim,
+  run,
+} from './shell.ts';
 
 export interface PostgresHandle {
   port: number;
@@ -14,12 +23,15 @@ export interface PostgresHandle {
 function binDir(): string {
   const base = '/usr/lib/postgresql';
   if (existsSync(base)) {
-    const versions = readdirSync(base).filter((v) => existsSync(path.join(base, v, 'bin', 'initdb')))
+    const versions = readdirSync(base)
+      .filter((v) => existsSync(path.join(base, v, 'bin', 'initdb')))
       .sort((a, b) => Number(b) - Number(a));
     if (versions[0]) return path.join(base, versions[0], 'bin');
   }
   if (hasCommand('initdb')) return '';
-  throw new Error('PostgreSQL is not installed. Install it with:\n  sudo apt-get install -y postgresql postgresql-contrib');
+  throw new Error(
+    'PostgreSQL is not installed. Install it with:\n  sudo apt-get install -y postgresql postgresql-contrib',
+  );
 }
 
 /** PostgreSQL refuses to run as root: as root, the cluster belongs to the postgres user. */
@@ -53,26 +65,35 @@ export async function startPostgres(dataDir: string, port: number): Promise<Post
     prepareOwnership(dataDir);
     prepareOwnership(pgData);
     run(tool('initdb'), ['-D', pgData, '-U', 'postgres', '--auth=trust', '-E', 'UTF8', '--locale=C.UTF-8'], { asUser });
-    appendFileSync(path.join(pgData, 'postgresql.conf'), [
-      '',
-      '# Waterline: a private cluster on loopback only',
-      "listen_addresses = '127.0.0.1'",
-      `port = ${port}`,
-      `unix_socket_directories = '${pgData}'`,
-      'fsync = off',
-      'synchronous_commit = off',
-      '',
-    ].join('\n'));
+    appendFileSync(
+      path.join(pgData, 'postgresql.conf'),
+      [
+        '',
+        '# Waterline: a private cluster on loopback only',
+        "listen_addresses = '127.0.0.1'",
+        `port = ${port}`,
+        `unix_socket_directories = '${pgData}'`,
+        'fsync = off',
+        'synchronous_commit = off',
+        '',
+      ].join('\n'),
+    );
   } else {
     prepareOwnership(dataDir);
   }
 
   // A cluster of this checkout left running (after a crash or a forced stop) is reused as it is.
   const running = (() => {
-    try { run(tool('pg_ctl'), ['-D', pgData, 'status'], { asUser }); return true; } catch { return false; }
+    try {
+      run(tool('pg_ctl'), ['-D', pgData, 'status'], { asUser });
+      return true;
+    } catch {
+      return false;
+    }
   })();
   const claim = running ? claimRunning(dataDir, 'postgres') : null;
-  if (claim === 'adopted') console.log(`Found this checkout's PostgreSQL left running on port ${port}: using it, and stopping it at the end.`);
+  if (claim === 'adopted')
+    console.log(`Found this checkout's PostgreSQL left running on port ${port}: using it, and stopping it at the end.`);
   if (!running) {
     // pg_ctl only says "could not start server" when the port is taken: name the holder instead.
     if (portInUse(port)) throw portTakenError('PostgreSQL', port, 'WATERLINE_PG_PORT');
@@ -89,7 +110,9 @@ export async function startPostgres(dataDir: string, port: number): Promise<Post
     startedHere: ours,
     stop() {
       if (!ours) return;
-      try { run(tool('pg_ctl'), ['-D', pgData, '-m', 'fast', '-w', 'stop'], { asUser }); } catch (error) {
+      try {
+        run(tool('pg_ctl'), ['-D', pgData, '-m', 'fast', '-w', 'stop'], { asUser });
+      } catch (error) {
         console.error(String(error));
       }
       releaseClaim(dataDir, 'postgres');

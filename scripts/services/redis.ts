@@ -1,19 +1,40 @@
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';
-import { claimRunning, claimStarted, hasCommand, portInUse, portTakenError, releaseClaim, run, waitFor } from './shell.ts';
+import {
+  claimRunning,
+  claimStarted,
+  hasCommand,
+  portInUse,
+  portTakenError,
+  releaseClaim,
+  run,
+  waitFor,
+} from './shell.ts';
 
-export interface RedisHandle { port: number; startedHere: boolean; stop(): void }
+export interface RedisHandle {
+  port: number;
+  startedHere: boolean;
+  stop(): void;
+}
 
 function ping(port: number): boolean {
-  try { return run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'ping']).trim() === 'PONG'; } catch { return false; }
+  try {
+    return run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'ping']).trim() === 'PONG';
+  } catch {
+    return false;
+  }
 }
 
 /** The working folder of the Redis on `port`, or null when it does not say. */
 function redisDir(port: number): string | null {
   try {
-    const lines = run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'config', 'get', 'dir']).trim().split('\n');
+    const lines = run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'config', 'get', 'dir'])
+      .trim()
+      .split('\n');
     return lines[1]?.trim() ?? null;
-  } catch { return null; }
+  } catch {
+    return null;
+  }
 }
 
 /** Starts a private Redis on 127.0.0.1:`port` (no persistence), or reuses one already there. */
@@ -30,10 +51,25 @@ export async function startRedis(dataDir: string, port: number): Promise<RedisHa
   if (portInUse(port)) throw portTakenError('Redis', port, 'WATERLINE_REDIS_PORT');
   mkdirSync(dir, { recursive: true });
   run('redis-server', [
-    '--bind', '127.0.0.1', '--port', String(port), '--save', '', '--appendonly', 'no',
+    '--bind',
+    '127.0.0.1',
+    '--port',
+    String(port),
+    '--save',
+    '',
+    '--appendonly',
+    'no',
     // BullMQ needs keys never to be evicted.
-    '--maxmemory-policy', 'noeviction', '--daemonize', 'yes', '--dir', dir,
-    '--pidfile', path.join(dir, 'redis.pid'), '--logfile', path.join(dir, 'redis.log'),
+    '--maxmemory-policy',
+    'noeviction',
+    '--daemonize',
+    'yes',
+    '--dir',
+    dir,
+    '--pidfile',
+    path.join(dir, 'redis.pid'),
+    '--logfile',
+    path.join(dir, 'redis.log'),
   ]);
   await waitFor('Redis', () => ping(port));
   claimStarted(dataDir, 'redis');
@@ -41,6 +77,10 @@ export async function startRedis(dataDir: string, port: number): Promise<RedisHa
 }
 
 function shutdown(dataDir: string, port: number): void {
-  try { run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'shutdown', 'nosave']); } catch { /* already gone */ }
+  try {
+    run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'shutdown', 'nosave']);
+  } catch {
+    /* already gone */
+  }
   releaseClaim(dataDir, 'redis');
 }

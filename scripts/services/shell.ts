@@ -5,11 +5,17 @@ import path from 'node:path';
 export const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
 
 /** Runs a command to completion and returns its output; throws with the output when it fails. */
-export function run(cmd: string, args: string[], options: { asUser?: string; quiet?: boolean; env?: NodeJS.ProcessEnv } = {}): string {
+export function run(
+  cmd: string,
+  args: string[],
+  options: { asUser?: string; quiet?: boolean; env?: NodeJS.ProcessEnv } = {},
+): string {
   const [file, argv] = options.asUser && isRoot ? ['runuser', ['-u', options.asUser, '--', cmd, ...args]] : [cmd, args];
   const result = spawnSync(file, argv, { encoding: 'utf8', env: options.env ?? process.env });
   if (result.status !== 0) {
-    throw new Error(`${cmd} ${args.join(' ')} failed (${result.status ?? result.signal}):\n${result.stdout ?? ''}${result.stderr ?? ''}`);
+    throw new Error(
+      `${cmd} ${args.join(' ')} failed (${result.status ?? result.signal}):\n${result.stdout ?? ''}${result.stderr ?? ''}`,
+    );
   }
   return result.stdout;
 }
@@ -27,7 +33,11 @@ export function runInherit(cmd: string, args: string[], options: SpawnOptions = 
   });
 }
 
-export async function waitFor(what: string, check: () => boolean | Promise<boolean>, timeoutMs = 30_000): Promise<void> {
+export async function waitFor(
+  what: string,
+  check: () => boolean | Promise<boolean>,
+  timeoutMs = 30_000,
+): Promise<void> {
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
     if (await check()) return;
@@ -39,7 +49,10 @@ export async function waitFor(what: string, check: () => boolean | Promise<boole
 /** True when something accepts TCP connections on 127.0.0.1:`port`. */
 export function portInUse(port: number): boolean {
   // A child process keeps this synchronous, like the other service checks.
-  const probe = spawnSync(process.execPath, ['-e', `const s=require('net').connect(${Number(port)},'127.0.0.1');s.on('connect',()=>process.exit(0));s.on('error',()=>process.exit(1));setTimeout(()=>process.exit(1),1000)`]);
+  const probe = spawnSync(process.execPath, [
+    '-e',
+    `const s=require('net').connect(${Number(port)},'127.0.0.1');s.on('connect',()=>process.exit(0));s.on('error',()=>process.exit(1));setTimeout(()=>process.exit(1),1000)`,
+  ]);
   return probe.status === 0;
 }
 
@@ -56,8 +69,10 @@ export function portHolder(port: number): string | null {
  */
 export function portTakenError(service: string, port: number, setting: string): Error {
   const holder = portHolder(port) ?? 'another program';
-  return new Error(`${service} cannot start: port ${port} on 127.0.0.1 is already used by ${holder}, which is not this checkout's ${service}.\n`
-    + `Stop that program, or give ${service} another port: ${setting}=<free port> npm start (or npm test).`);
+  return new Error(
+    `${service} cannot start: port ${port} on 127.0.0.1 is already used by ${holder}, which is not this checkout's ${service}.\n` +
+      `Stop that program, or give ${service} another port: ${setting}=<free port> npm start (or npm test).`,
+  );
 }
 
 /**
@@ -90,6 +105,13 @@ function processAlive(pid: number): boolean {
   try {
     const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
     if (stat.slice(stat.lastIndexOf(')') + 2, stat.lastIndexOf(')') + 3) === 'Z') return false;
-  } catch { /* no /proc, or no such process: ask kill below */ }
-  try { process.kill(pid, 0); return true; } catch (error) { return (error as NodeJS.ErrnoException).code === 'EPERM'; }
+  } catch {
+    /* no /proc, or no such process: ask kill below */
+  }
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (error) {
+    return (error as NodeJS.ErrnoException).code === 'EPERM';
+  }
 }

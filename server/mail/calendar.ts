@@ -29,7 +29,10 @@ export interface InviteOptions {
  * VTIMEZONE is needed.
  */
 export function bookingInvite(f: BookingFacts, version: number, options: InviteOptions): string {
-  const cal = ical({ prodId: PRODUCT, method: options.method === 'cancel' ? ICalCalendarMethod.CANCEL : ICalCalendarMethod.REQUEST });
+  const cal = ical({
+    prodId: PRODUCT,
+    method: options.method === 'cancel' ? ICalCalendarMethod.CANCEL : ICalCalendarMethod.REQUEST,
+  });
   // Only the partner's answer settles a slot: on site counts as settled too.
   const confirmed = f.booking.state === 'confirmed' || f.booking.state === 'on_site';
   cal.createEvent({
@@ -41,25 +44,42 @@ export function bookingInvite(f: BookingFacts, version: number, options: InviteO
     summary: summaryOf(f),
     location: locationOf(f),
     description: options.description,
-    status: options.method === 'cancel' ? ICalEventStatus.CANCELLED : confirmed ? ICalEventStatus.CONFIRMED : ICalEventStatus.TENTATIVE,
+    status:
+      options.method === 'cancel'
+        ? ICalEventStatus.CANCELLED
+        : confirmed
+          ? ICalEventStatus.CONFIRMED
+          : ICalEventStatus.TENTATIVE,
     organizer: { name: f.installer.name, email: options.organizerEmail },
     attendees: f.recipients.map((email) => ({
-      email, name: f.partner.name, role: ICalAttendeeRole.REQ,
-      status: confirmed ? ICalAttendeeStatus.ACCEPTED : ICalAttendeeStatus.NEEDSACTION, rsvp: !confirmed,
+      email,
+      name: f.partner.name,
+      role: ICalAttendeeRole.REQ,
+      status: confirmed ? ICalAttendeeStatus.ACCEPTED : ICalAttendeeStatus.NEEDSACTION,
+      rsvp: !confirmed,
     })),
   });
   return cal.toString();
 }
 
-export interface FeedEvent { facts: BookingFacts; description: string }
+export interface FeedEvent {
+  facts: BookingFacts;
+  description: string;
+}
 
 /** A subscription feed (METHOD:PUBLISH) of one person's slots; the same UIDs as the invites (same `publicUrl`). */
 export function personFeed(name: string, events: FeedEvent[], now: Date, publicUrl: string): string {
   const cal = ical({ prodId: PRODUCT, name, method: ICalCalendarMethod.PUBLISH, ttl: 60 * 60 });
   for (const { facts: f, description } of events) {
     cal.createEvent({
-      id: bookingUid(f.booking.id, publicUrl), sequence: f.booking.version, stamp: now,
-      start: f.booking.startsAt, end: f.booking.endsAt, summary: summaryOf(f), location: locationOf(f), description,
+      id: bookingUid(f.booking.id, publicUrl),
+      sequence: f.booking.version,
+      stamp: now,
+      start: f.booking.startsAt,
+      end: f.booking.endsAt,
+      summary: summaryOf(f),
+      location: locationOf(f),
+      description,
       status: f.booking.state === 'sent' ? ICalEventStatus.TENTATIVE : ICalEventStatus.CONFIRMED,
     });
   }

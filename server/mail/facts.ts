@@ -12,8 +12,14 @@ export interface BookingFacts {
   /** No notes: a stage's notes are the office's planning notes, never sent to a partner. */
   stage: { id: string; kind: string; name: string };
   job: {
-    id: string; reference: string; siteAddress: string; siteTown: string; sitePostcode: string; accessNotes: string | null;
-    customerName: string; customerEmail: string | null;
+    id: string;
+    reference: string;
+    siteAddress: string;
+    siteTown: string;
+    sitePostcode: string;
+    accessNotes: string | null;
+    customerName: string;
+    customerEmail: string | null;
   };
   unit: { model: string; lengthMm: number; widthMm: number; heightMm: number; dryWeightKg: number } | null;
   installer: { id: string; name: string; phone: string | null; email: string | null; timeZone: string };
@@ -30,15 +36,40 @@ export interface BookingFacts {
 }
 
 /** The booking as the audit log kept it when it was deleted. */
-export interface BookingSnapshot { id: string; version: number; state: string; startsAt: string; endsAt: string; resourceId: string; stageId: string }
+export interface BookingSnapshot {
+  id: string;
+  version: number;
+  state: string;
+  startsAt: string;
+  endsAt: string;
+  resourceId: string;
+  stageId: string;
+}
 
 /** The joined columns every fact set starts from (a booking, or a deleted one's snapshot, with its stage). */
 const FACT_COLUMNS = [
-  's.id as stage_id', 's.kind as stage_kind', 's.name as stage_name',
-  'j.id as job_id', 'j.reference', 'j.site_address', 'j.site_town', 'j.site_postcode', 'j.access_notes',
-  'j.customer_name', 'j.customer_email', 'j.customer_phone',
-  'u.model as unit_model', 'u.length_mm', 'u.width_mm', 'u.height_mm', 'u.dry_weight_kg',
-  'i.id as installer_id', 'i.name as installer_name', 'i.phone as installer_phone', 'i.email as installer_email', 'i.time_zone',
+  's.id as stage_id',
+  's.kind as stage_kind',
+  's.name as stage_name',
+  'j.id as job_id',
+  'j.reference',
+  'j.site_address',
+  'j.site_town',
+  'j.site_postcode',
+  'j.access_notes',
+  'j.customer_name',
+  'j.customer_email',
+  'j.customer_phone',
+  'u.model as unit_model',
+  'u.length_mm',
+  'u.width_mm',
+  'u.height_mm',
+  'u.dry_weight_kg',
+  'i.id as installer_id',
+  'i.name as installer_name',
+  'i.phone as installer_phone',
+  'i.email as installer_email',
+  'i.time_zone',
 ];
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- rows straight from the joined query
@@ -49,16 +80,34 @@ function withJobAndInstaller(knex: Knex, base: Knex.QueryBuilder): Knex.QueryBui
     .join('jobs as j', 'j.id', 's.job_id')
     .join('firms as i', 'i.id', 'j.firm_id')
     .leftJoin('units as u', 'u.id', 'j.unit_id')
-    .select(...FACT_COLUMNS, knex.raw('(SELECT fs.share_customer_contact_with_partners FROM firm_settings fs WHERE fs.firm_id = j.firm_id) AS shares_customer_contact'));
+    .select(
+      ...FACT_COLUMNS,
+      knex.raw(
+        '(SELECT fs.share_customer_contact_with_partners FROM firm_settings fs WHERE fs.firm_id = j.firm_id) AS shares_customer_contact',
+      ),
+    );
 }
 
-export async function loadBookingFacts(knex: Knex, bookingId: string, resourceId?: string, snapshot?: BookingSnapshot): Promise<BookingFacts | null> {
+export async function loadBookingFacts(
+  knex: Knex,
+  bookingId: string,
+  resourceId?: string,
+  snapshot?: BookingSnapshot,
+): Promise<BookingFacts | null> {
   const live = await knex('bookings').where('id', bookingId).first('id');
   if (live) return (await loadBookingFactsMany(knex, [bookingId], resourceId)).get(String(bookingId)) ?? null;
   if (!snapshot) return null;
-  const rows = await withJobAndInstaller(knex, knex('stages as s').where('s.id', snapshot.stageId)
-    .select(knex.raw('?::bigint as id, ?::int as version, ?::text as state, ?::timestamptz as starts_at, ?::timestamptz as ends_at, ?::bigint as resource_id',
-      [snapshot.id, snapshot.version, snapshot.state, snapshot.startsAt, snapshot.endsAt, snapshot.resourceId])));
+  const rows = await withJobAndInstaller(
+    knex,
+    knex('stages as s')
+      .where('s.id', snapshot.stageId)
+      .select(
+        knex.raw(
+          '?::bigint as id, ?::int as version, ?::text as state, ?::timestamptz as starts_at, ?::timestamptz as ends_at, ?::bigint as resource_id',
+          [snapshot.id, snapshot.version, snapshot.state, snapshot.startsAt, snapshot.endsAt, snapshot.resourceId],
+        ),
+      ),
+  );
   return (await factsOf(knex, rows.slice(0, 1), resourceId)).get(String(snapshot.id)) ?? null;
 }
 
@@ -66,11 +115,19 @@ export async function loadBookingFacts(knex: Knex, bookingId: string, resourceId
  * The facts of many live bookings in a fixed number of queries, whatever their number (the calendar
  * feed reads up to a thousand); the same facts loadBookingFacts gives one by one. Bookings gone are left out.
  */
-export async function loadBookingFactsMany(knex: Knex, bookingIds: readonly string[], resourceId?: string): Promise<Map<string, BookingFacts>> {
+export async function loadBookingFactsMany(
+  knex: Knex,
+  bookingIds: readonly string[],
+  resourceId?: string,
+): Promise<Map<string, BookingFacts>> {
   if (bookingIds.length === 0) return new Map();
-  const rows = await withJobAndInstaller(knex, knex('bookings as b').join('stages as s', 's.id', 'b.stage_id')
-    .whereIn('b.id', [...new Set(bookingIds.map(String))])
-    .select('b.id', 'b.version', 'b.state', 'b.starts_at', 'b.ends_at', 'b.resource_id'));
+  const rows = await withJobAndInstaller(
+    knex,
+    knex('bookings as b')
+      .join('stages as s', 's.id', 'b.stage_id')
+      .whereIn('b.id', [...new Set(bookingIds.map(String))])
+      .select('b.id', 'b.version', 'b.state', 'b.starts_at', 'b.ends_at', 'b.resource_id'),
+  );
   return factsOf(knex, rows, resourceId);
 }
 
@@ -80,34 +137,94 @@ async function factsOf(knex: Knex, rows: FactRow[], resourceId?: string): Promis
   if (rows.length === 0) return out;
   // A cancellation goes to the resource the booking was on, which may no longer be its resource.
   const resourceOf = (row: FactRow) => String(resourceId ?? row.resourceId);
-  const resources = new Map((await knex('resources as r').join('firms as f', 'f.id', 'r.firm_id')
-    .whereIn('r.id', [...new Set(rows.map(resourceOf))])
-    .select('r.id', 'r.name', 'r.kind', 'r.firm_id', 'f.name as firm_name', 'f.email as firm_email') as FactRow[]).map((r) => [String(r.id), r]));
+  const resources = new Map(
+    (
+      (await knex('resources as r')
+        .join('firms as f', 'f.id', 'r.firm_id')
+        .whereIn('r.id', [...new Set(rows.map(resourceOf))])
+        .select('r.id', 'r.name', 'r.kind', 'r.firm_id', 'f.name as firm_name', 'f.email as firm_email')) as FactRow[]
+    ).map((r) => [String(r.id), r]),
+  );
   const firmIds = [...new Set([...resources.values()].map((r) => String(r.firmId)))];
-  const coordinatorRows: { firmId: string; email: string }[] = firmIds.length ? await knex('memberships as m').join('users as u', 'u.id', 'm.user_id')
-    .whereIn('m.firm_id', firmIds).where('m.role', 'partner').orderBy('u.email').select('m.firm_id', 'u.email') : [];
-  const slots = rows.map((row) => ({ bookingId: String(row.id), jobId: String(row.jobId), startsAt: row.startsAt as Date, endsAt: row.endsAt as Date, timeZone: String(row.timeZone) }));
-  const [contacts, supplies] = await Promise.all([siteContacts(knex, slots), jobSupplies(knex, slots.map((s) => s.jobId))]);
+  const coordinatorRows: { firmId: string; email: string }[] = firmIds.length
+    ? await knex('memberships as m')
+        .join('users as u', 'u.id', 'm.user_id')
+        .whereIn('m.firm_id', firmIds)
+        .where('m.role', 'partner')
+        .orderBy('u.email')
+        .select('m.firm_id', 'u.email')
+    : [];
+  const slots = rows.map((row) => ({
+    bookingId: String(row.id),
+    jobId: String(row.jobId),
+    startsAt: row.startsAt as Date,
+    endsAt: row.endsAt as Date,
+    timeZone: String(row.timeZone),
+  }));
+  const [contacts, supplies] = await Promise.all([
+    siteContacts(knex, slots),
+    jobSupplies(
+      knex,
+      slots.map((s) => s.jobId),
+    ),
+  ]);
   for (const [n, row] of rows.entries()) {
     const resource = resources.get(resourceOf(row));
     if (!resource) continue;
-    const coordinators = coordinatorRows.filter((c) => String(c.firmId) === String(resource.firmId)).map((c) => c.email);
-    const recipients = [...new Set([resource.firmEmail, ...coordinators].filter((e): e is string => Boolean(e)).map((e) => e.toLowerCase()))];
+    const coordinators = coordinatorRows
+      .filter((c) => String(c.firmId) === String(resource.firmId))
+      .map((c) => c.email);
+    const recipients = [
+      ...new Set(
+        [resource.firmEmail, ...coordinators].filter((e): e is string => Boolean(e)).map((e) => e.toLowerCase()),
+      ),
+    ];
     const slot = slots[n]!;
     const forPartner = partnerSlotFacts({
-      resourceKind: resource.kind, customerName: row.customerName, customerPhone: row.customerPhone,
-      officeName: row.installerName, officePhone: row.installerPhone, sharesCustomerContact: row.sharesCustomerContact === true,
-      siteContact: contacts.get(slot.bookingId) ?? null, supply: supplies.get(slot.jobId)!,
+      resourceKind: resource.kind,
+      customerName: row.customerName,
+      customerPhone: row.customerPhone,
+      officeName: row.installerName,
+      officePhone: row.installerPhone,
+      sharesCustomerContact: row.sharesCustomerContact === true,
+      siteContact: contacts.get(slot.bookingId) ?? null,
+      supply: supplies.get(slot.jobId)!,
     });
     out.set(slot.bookingId, {
-      booking: { id: String(row.id), version: row.version, state: row.state, startsAt: row.startsAt, endsAt: row.endsAt },
+      booking: {
+        id: String(row.id),
+        version: row.version,
+        state: row.state,
+        startsAt: row.startsAt,
+        endsAt: row.endsAt,
+      },
       stage: { id: String(row.stageId), kind: row.stageKind, name: row.stageName },
       job: {
-        id: String(row.jobId), reference: row.reference, siteAddress: row.siteAddress, siteTown: row.siteTown, sitePostcode: row.sitePostcode,
-        accessNotes: row.accessNotes, customerName: row.customerName, customerEmail: row.customerEmail,
+        id: String(row.jobId),
+        reference: row.reference,
+        siteAddress: row.siteAddress,
+        siteTown: row.siteTown,
+        sitePostcode: row.sitePostcode,
+        accessNotes: row.accessNotes,
+        customerName: row.customerName,
+        customerEmail: row.customerEmail,
       },
-      unit: row.unitModel ? { model: row.unitModel, lengthMm: row.lengthMm, widthMm: row.widthMm, heightMm: row.heightMm, dryWeightKg: row.dryWeightKg } : null,
-      installer: { id: String(row.installerId), name: row.installerName, phone: row.installerPhone, email: row.installerEmail, timeZone: row.timeZone },
+      unit: row.unitModel
+        ? {
+            model: row.unitModel,
+            lengthMm: row.lengthMm,
+            widthMm: row.widthMm,
+            heightMm: row.heightMm,
+            dryWeightKg: row.dryWeightKg,
+          }
+        : null,
+      installer: {
+        id: String(row.installerId),
+        name: row.installerName,
+        phone: row.installerPhone,
+        email: row.installerEmail,
+        timeZone: row.timeZone,
+      },
       resource: { id: String(resource.id), name: resource.name, kind: resource.kind, firmId: String(resource.firmId) },
       partner: { id: String(resource.firmId), name: resource.firmName, email: resource.firmEmail },
       recipients,
@@ -123,16 +240,30 @@ export function contactLines(contacts: BookingFacts['forPartner']['contacts']): 
 }
 
 /** "Tuesday 6 October 2026", "08:00–12:00" in the installer firm's time zone. */
-export function describeWindow(startsAt: Date, endsAt: Date, timeZone: string): { date: string; window: string; zone: string } {
-  const day = new Intl.DateTimeFormat('en-GB', { timeZone, weekday: 'long', day: 'numeric', month: 'long', year: 'numeric' });
+export function describeWindow(
+  startsAt: Date,
+  endsAt: Date,
+  timeZone: string,
+): { date: string; window: string; zone: string } {
+  const day = new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    weekday: 'long',
+    day: 'numeric',
+    month: 'long',
+    year: 'numeric',
+  });
   const time = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
-  const zoneName = new Intl.DateTimeFormat('en-GB', { timeZone, timeZoneName: 'short' }).formatToParts(startsAt)
-    .find((p) => p.type === 'timeZoneName')?.value ?? timeZone;
+  const zoneName =
+    new Intl.DateTimeFormat('en-GB', { timeZone, timeZoneName: 'short' })
+      .formatToParts(startsAt)
+      .find((p) => p.type === 'timeZoneName')?.value ?? timeZone;
   const dayOf = (d: Date) => day.format(d).replace(',', '');
   const sameDay = dayOf(startsAt) === dayOf(endsAt);
   return {
     date: sameDay ? dayOf(startsAt) : `${dayOf(startsAt)} to ${dayOf(endsAt)}`,
-    window: sameDay ? `${time.format(startsAt)}–${time.format(endsAt)}` : `${time.format(startsAt)} on the first day to ${time.format(endsAt)} on the last`,
+    window: sameDay
+      ? `${time.format(startsAt)}–${time.format(endsAt)}`
+      : `${time.format(startsAt)} on the first day to ${time.format(endsAt)} on the last`,
     zone: `${timeZone}, ${zoneName}`,
   };
 }

@@ -8,12 +8,22 @@ import { HttpError } from '../errors.ts';
 import { escapeHtml, page } from '../pages/page.ts';
 
 /** The settings the rate limits read (a whole Config will do). */
-export type RateLimitSettings = Pick<Config, 'REDIS_URL' | 'RATE_LIMIT_PREFIX' | 'RATE_LIMIT_WINDOW_SECONDS'
-  | 'SIGN_IN_RATE_LIMIT' | 'ANSWER_LINK_RATE_LIMIT' | 'INVITE_LINK_RATE_LIMIT' | 'FEED_RATE_LIMIT'>;
+export type RateLimitSettings = Pick<
+  Config,
+  | 'REDIS_URL'
+  | 'RATE_LIMIT_PREFIX'
+  | 'RATE_LIMIT_WINDOW_SECONDS'
+  | 'SIGN_IN_RATE_LIMIT'
+  | 'ANSWER_LINK_RATE_LIMIT'
+  | 'INVITE_LINK_RATE_LIMIT'
+  | 'FEED_RATE_LIMIT'
+>;
 
 /** 429 as RFC 9457 problem+json, through the one error handler. */
 export class TooManyRequestsError extends HttpError {
-  constructor(title: string, detail: string) { super(429, 'rate-limited', title, detail); }
+  constructor(title: string, detail: string) {
+    super(429, 'rate-limited', title, detail);
+  }
 }
 
 /**
@@ -30,7 +40,9 @@ export function addressKey(ip: string | undefined): string {
   const groups = (part: string) => (part ? part.split(':').flatMap((g) => (g.includes('.') ? ['0', '0'] : [g])) : []);
   const front = groups(head);
   const back = tail === undefined ? [] : groups(tail);
-  const full = [...front, ...Array<string>(8 - front.length - back.length).fill('0'), ...back].map((g) => g.padStart(4, '0').toLowerCase());
+  const full = [...front, ...Array<string>(8 - front.length - back.length).fill('0'), ...back].map((g) =>
+    g.padStart(4, '0').toLowerCase(),
+  );
   return `${full.slice(0, 3).join(':')}:${full[3]!.slice(0, 2)}00::/56`;
 }
 
@@ -112,7 +124,11 @@ export class RateBudget {
       allowed: true,
       result,
       refund: async () => {
-        try { await taken.reward(key, 1); } catch (error) { this.warnUnshared(error); }
+        try {
+          await taken.reward(key, 1);
+        } catch (error) {
+          this.warnUnshared(error);
+        }
       },
     };
   }
@@ -128,7 +144,10 @@ export class RateBudget {
     const { allowed, result, refund } = taken;
     setRateHeaders(res, this.options.points, this.options.windowSeconds, result);
     if (!allowed) return this.refuse(req, res, next, result);
-    if (this.options.refundSuccess) res.once('finish', () => { if (res.statusCode < 400) void refund(); });
+    if (this.options.refundSuccess)
+      res.once('finish', () => {
+        if (res.statusCode < 400) void refund();
+      });
     next();
   };
 
@@ -140,7 +159,10 @@ export class RateBudget {
     req.log?.warn({ limit: this.options.name, key: addressKey(req.ip) }, 'rate limit reached');
     // A person following a link in a browser gets a page; everything else gets problem+json.
     if (req.accepts(['application/problem+json', 'application/json', 'html']) === 'html') {
-      res.status(429).type('html').send(page(this.options.title, `<p>${escapeHtml(detail)}</p>`, 'warn'));
+      res
+        .status(429)
+        .type('html')
+        .send(page(this.options.title, `<p>${escapeHtml(detail)}</p>`, 'warn'));
       return;
     }
     next(new TooManyRequestsError(this.options.title, detail));
@@ -150,7 +172,10 @@ export class RateBudget {
   private warnUnshared(error: unknown): void {
     if (Date.now() - this.warnedAt < 60_000) return;
     this.warnedAt = Date.now();
-    this.logger?.warn({ limit: this.options.name, err: error, redis: this.redis.status }, 'rate limits are counted in this process only: Redis is not answering');
+    this.logger?.warn(
+      { limit: this.options.name, err: error, redis: this.redis.status },
+      'rate limits are counted in this process only: Redis is not answering',
+    );
   }
 }
 
@@ -188,25 +213,62 @@ function firstConnection(client: Redis, ms: number): Promise<void> {
  * first connection is awaited for at most a second) a request never waits on Redis for more than
  * half a second.
  */
-export function createRateLimits(settings: RateLimitSettings, { redis, logger }: { redis?: Redis; logger?: Logger } = {}): RateLimits {
-  const client = redis ?? new Redis(settings.REDIS_URL, {
-    // Named after the keys it keeps, so CLIENT LIST tells this connection apart.
-    connectionName: `${settings.RATE_LIMIT_PREFIX}:limits`,
-    enableOfflineQueue: false,
-    maxRetriesPerRequest: 0,
-    commandTimeout: 500,
-    connectTimeout: 2_000,
-    retryStrategy: () => 2_000,
-  });
-  if (!redis) client.on('error', () => { /* reported by warnUnshared when a count falls back */ });
+export function createRateLimits(
+  settings: RateLimitSettings,
+  { redis, logger }: { redis?: Redis; logger?: Logger } = {},
+): RateLimits {
+  const client =
+    redis ??
+    new Redis(settings.REDIS_URL, {
+      // Named after the keys it keeps, so CLIENT LIST tells this connection apart.
+      connectionName: `${settings.RATE_LIMIT_PREFIX}:limits`,
+      enableOfflineQueue: false,
+      maxRetriesPerRequest: 0,
+      commandTimeout: 500,
+      connectTimeout: 2_000,
+      retryStrategy: () => 2_000,
+    });
+  if (!redis)
+    client.on('error', () => {
+      /* reported by warnUnshared when a count falls back */
+    });
   const connected = firstConnection(client, 1_000);
   const budget = (options: Omit<BudgetOptions, 'windowSeconds'>) =>
-    new RateBudget(client, settings.RATE_LIMIT_PREFIX, { ...options, windowSeconds: settings.RATE_LIMIT_WINDOW_SECONDS }, logger, connected);
+    new RateBudget(
+      client,
+      settings.RATE_LIMIT_PREFIX,
+      { ...options, windowSeconds: settings.RATE_LIMIT_WINDOW_SECONDS },
+      logger,
+      connected,
+    );
   return {
-    signIn: budget({ name: 'sign-in', points: settings.SIGN_IN_RATE_LIMIT, title: 'Too many sign-in attempts', detail: 'Too many sign-in attempts came from your address.' }),
-    answerLinks: budget({ name: 'answer-link', points: settings.ANSWER_LINK_RATE_LIMIT, refundSuccess: true, title: 'Too many refused links', detail: 'Too many answer links from your address were not valid.' }),
-    inviteLinks: budget({ name: 'invite-link', points: settings.INVITE_LINK_RATE_LIMIT, refundSuccess: true, title: 'Too many refused links', detail: 'Too many invitation links from your address were not valid.' }),
-    feeds: budget({ name: 'feed', points: settings.FEED_RATE_LIMIT, refundSuccess: true, title: 'Too many unknown feeds', detail: 'Too many calendar feed addresses asked for from your address were not valid.' }),
+    signIn: budget({
+      name: 'sign-in',
+      points: settings.SIGN_IN_RATE_LIMIT,
+      title: 'Too many sign-in attempts',
+      detail: 'Too many sign-in attempts came from your address.',
+    }),
+    answerLinks: budget({
+      name: 'answer-link',
+      points: settings.ANSWER_LINK_RATE_LIMIT,
+      refundSuccess: true,
+      title: 'Too many refused links',
+      detail: 'Too many answer links from your address were not valid.',
+    }),
+    inviteLinks: budget({
+      name: 'invite-link',
+      points: settings.INVITE_LINK_RATE_LIMIT,
+      refundSuccess: true,
+      title: 'Too many refused links',
+      detail: 'Too many invitation links from your address were not valid.',
+    }),
+    feeds: budget({
+      name: 'feed',
+      points: settings.FEED_RATE_LIMIT,
+      refundSuccess: true,
+      title: 'Too many unknown feeds',
+      detail: 'Too many calendar feed addresses asked for from your address were not valid.',
+    }),
     async close() {
       // Only a connection made here is ours to end.
       if (!redis) client.disconnect();

@@ -15,7 +15,11 @@ const UNSTORABLE = /\u0000|[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF
 function unstorable(value: unknown, path: string[], found: FieldError[], depth = 0): void {
   if (found.length || depth > 20) return;
   if (typeof value === 'string') {
-    if (UNSTORABLE.test(value)) found.push({ field: path.join('.'), message: 'contains a character that cannot be stored (a NUL or a broken character)' });
+    if (UNSTORABLE.test(value))
+      found.push({
+        field: path.join('.'),
+        message: 'contains a character that cannot be stored (a NUL or a broken character)',
+      });
     return;
   }
   if (Array.isArray(value)) {
@@ -24,7 +28,11 @@ function unstorable(value: unknown, path: string[], found: FieldError[], depth =
   }
   if (value && typeof value === 'object') {
     for (const [k, v] of Object.entries(value)) {
-      if (UNSTORABLE.test(k)) found.push({ field: [...path, '(key)'].join('.'), message: 'has a name with a character that cannot be stored' });
+      if (UNSTORABLE.test(k))
+        found.push({
+          field: [...path, '(key)'].join('.'),
+          message: 'has a name with a character that cannot be stored',
+        });
       unstorable(v, [...path, k], found, depth + 1);
     }
   }
@@ -39,12 +47,18 @@ export function parse<S extends z.ZodType>(schema: S, value: unknown, part: Part
   const whole = part === 'body' ? '(body)' : part;
   const result = schema.safeParse(value ?? {});
   if (!result.success) {
-    throw new BadRequestError(`The ${part === 'body' ? 'request body' : part} has fields that are not valid.`, fieldErrorsOf(result.error, prefix));
+    throw new BadRequestError(
+      `The ${part === 'body' ? 'request body' : part} has fields that are not valid.`,
+      fieldErrorsOf(result.error, prefix),
+    );
   }
   const found: FieldError[] = [];
   unstorable(result.data, prefix ? [prefix] : [], found);
   if (found.length) {
-    throw new BadRequestError(`The ${part === 'body' ? 'request body' : part} has fields that are not valid.`, found.map((f) => ({ ...f, field: f.field || whole })));
+    throw new BadRequestError(
+      `The ${part === 'body' ? 'request body' : part} has fields that are not valid.`,
+      found.map((f) => ({ ...f, field: f.field || whole })),
+    );
   }
   return result.data;
 }

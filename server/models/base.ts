@@ -19,18 +19,32 @@ export class ScopedModel extends Model {
 /** Firms an actor may see: their own, plus the other side of each partnership. */
 export function visibleFirmIds(knex: Knex, actor: Actor): Knex.QueryBuilder {
   if (reachOf(actor) === 'installer-office' || reachOf(actor) === 'crew') {
-    return knex.select('partner_firm_id').from('partnerships').where('installer_firm_id', actor.firmId)
+    return knex
+      .select('partner_firm_id')
+      .from('partnerships')
+      .where('installer_firm_id', actor.firmId)
       .union((q) => q.select(knex.raw('?::bigint', [actor.firmId])));
   }
-  return knex.select('installer_firm_id').from('partnerships').where('partner_firm_id', actor.firmId)
+  return knex
+    .select('installer_firm_id')
+    .from('partnerships')
+    .where('partner_firm_id', actor.firmId)
     .union((q) => q.select(knex.raw('?::bigint', [actor.firmId])));
 }
 
 /** Resources an actor acts on: a crew member's own person row and the crews they belong to. */
 export function ownResourceIds(knex: Knex, actor: Actor): Knex.QueryBuilder {
-  return knex.select('id').from('resources').where('user_id', actor.userId)
-    .union((q) => q.select('cm.crew_id').from('crew_members as cm')
-      .join('resources as p', 'p.id', 'cm.person_id').where('p.user_id', actor.userId));
+  return knex
+    .select('id')
+    .from('resources')
+    .where('user_id', actor.userId)
+    .union((q) =>
+      q
+        .select('cm.crew_id')
+        .from('crew_members as cm')
+        .join('resources as p', 'p.id', 'cm.person_id')
+        .where('p.user_id', actor.userId),
+    );
 }
 
 /** Resources a partner firm owns. */
@@ -44,11 +58,18 @@ export function visibleJobIds(knex: Knex, actor: Actor): Knex.QueryBuilder {
     case 'installer-office':
       return knex.select('id').from('jobs').where('firm_id', actor.firmId);
     case 'crew':
-      return knex.select('s.job_id').from('stages as s').join('bookings as b', 'b.stage_id', 's.id')
-        .join('jobs as j', 'j.id', 's.job_id').where('j.firm_id', actor.firmId)
+      return knex
+        .select('s.job_id')
+        .from('stages as s')
+        .join('bookings as b', 'b.stage_id', 's.id')
+        .join('jobs as j', 'j.id', 's.job_id')
+        .where('j.firm_id', actor.firmId)
         .whereIn('b.resource_id', ownResourceIds(knex, actor));
     case 'partner':
-      return knex.select('s.job_id').from('stages as s').join('bookings as b', 'b.stage_id', 's.id')
+      return knex
+        .select('s.job_id')
+        .from('stages as s')
+        .join('bookings as b', 'b.stage_id', 's.id')
         .whereIn('b.resource_id', firmResourceIds(knex, actor.firmId));
   }
 }

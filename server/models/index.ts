@@ -79,9 +79,15 @@ export class Resource extends ScopedModel {
   static override scope(q: AnyQuery, actor: Actor) {
     const knex = knexOf(q);
     switch (reachOf(actor)) {
-      case 'installer-office': q.whereIn('resources.firm_id', visibleFirmIds(knex, actor)); break;
-      case 'crew': q.whereIn('resources.id', ownResourceIds(knex, actor)); break;
-      case 'partner': q.where('resources.firm_id', actor.firmId); break;
+      case 'installer-office':
+        q.whereIn('resources.firm_id', visibleFirmIds(knex, actor));
+        break;
+      case 'crew':
+        q.whereIn('resources.id', ownResourceIds(knex, actor));
+        break;
+      case 'partner':
+        q.where('resources.firm_id', actor.firmId);
+        break;
     }
   }
 }
@@ -96,9 +102,17 @@ export class CalendarException extends ScopedModel {
   reason!: string;
   static override scope(q: AnyQuery, actor: Actor) {
     const knex = knexOf(q);
-    q.where((w) => w
-      .whereIn('calendar_exceptions.calendar_id', knex.select('id').from('calendars').whereIn('firm_id', visibleFirmIds(knex, actor)))
-      .orWhereIn('calendar_exceptions.resource_id', knex.select('id').from('resources').whereIn('firm_id', visibleFirmIds(knex, actor))));
+    q.where((w) =>
+      w
+        .whereIn(
+          'calendar_exceptions.calendar_id',
+          knex.select('id').from('calendars').whereIn('firm_id', visibleFirmIds(knex, actor)),
+        )
+        .orWhereIn(
+          'calendar_exceptions.resource_id',
+          knex.select('id').from('resources').whereIn('firm_id', visibleFirmIds(knex, actor)),
+        ),
+    );
   }
 }
 
@@ -116,7 +130,9 @@ export class HirePeriod extends ScopedModel {
   status!: 'requested' | 'approved' | 'ended';
   approvedBy!: string | null;
   static override scope(q: AnyQuery, actor: Actor) {
-    q.where((w) => w.where('hire_periods.hirer_firm_id', actor.firmId).orWhere('hire_periods.supplier_firm_id', actor.firmId));
+    q.where((w) =>
+      w.where('hire_periods.hirer_firm_id', actor.firmId).orWhere('hire_periods.supplier_firm_id', actor.firmId),
+    );
   }
 }
 
@@ -199,7 +215,10 @@ export class Dependency extends ScopedModel {
   waitsForCure!: boolean;
   static override scope(q: AnyQuery, actor: Actor) {
     const knex = knexOf(q);
-    q.whereIn('dependencies.from_stage_id', knex.select('id').from('stages').whereIn('job_id', visibleJobIds(knex, actor)));
+    q.whereIn(
+      'dependencies.from_stage_id',
+      knex.select('id').from('stages').whereIn('job_id', visibleJobIds(knex, actor)),
+    );
   }
 }
 
@@ -219,11 +238,24 @@ export class Booking extends ScopedModel {
     const knex = knexOf(q);
     switch (reachOf(actor)) {
       case 'installer-office':
-        q.whereIn('bookings.stage_id', knex.select('s.id').from('stages as s').join('jobs as j', 'j.id', 's.job_id').where('j.firm_id', actor.firmId));
+        q.whereIn(
+          'bookings.stage_id',
+          knex
+            .select('s.id')
+            .from('stages as s')
+            .join('jobs as j', 'j.id', 's.job_id')
+            .where('j.firm_id', actor.firmId),
+        );
         break;
       case 'crew':
-        q.whereIn('bookings.resource_id', ownResourceIds(knex, actor))
-          .whereIn('bookings.stage_id', knex.select('s.id').from('stages as s').join('jobs as j', 'j.id', 's.job_id').where('j.firm_id', actor.firmId));
+        q.whereIn('bookings.resource_id', ownResourceIds(knex, actor)).whereIn(
+          'bookings.stage_id',
+          knex
+            .select('s.id')
+            .from('stages as s')
+            .join('jobs as j', 'j.id', 's.job_id')
+            .where('j.firm_id', actor.firmId),
+        );
         break;
       case 'partner':
         q.whereIn('bookings.resource_id', firmResourceIds(knex, actor.firmId));
@@ -262,5 +294,20 @@ export class AuditEntry extends ScopedModel {
 }
 
 /** Every scoped model, so a test can check each one declares its scope. */
-export const SCOPED_MODELS = [Firm, User, Membership, Partnership, Calendar, Resource, CalendarException,
-  HirePeriod, Unit, Job, Stage, Dependency, Booking, LeadTimeRule, AuditEntry] as const;
+export const SCOPED_MODELS = [
+  Firm,
+  User,
+  Membership,
+  Partnership,
+  Calendar,
+  Resource,
+  CalendarException,
+  HirePeriod,
+  Unit,
+  Job,
+  Stage,
+  Dependency,
+  Booking,
+  LeadTimeRule,
+  AuditEntry,
+] as const;

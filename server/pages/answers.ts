@@ -17,8 +17,12 @@ export function slotDetails(f: BookingFacts): string {
   const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
   const cautions = cautionLines(f.stage.kind);
   const lines = (xs: string[]) => xs.map((x) => e(x)).join('<br>');
-  const unit = f.unit ? `<dt>Unit</dt><dd>${e(`${f.unit.model}, ${f.unit.lengthMm} × ${f.unit.widthMm} × ${f.unit.heightMm} mm, ${f.unit.dryWeightKg} kg dry`)}</dd>` : '';
-  const supply = f.forPartner.supply ? `<dt>Electrical supply</dt><dd>${lines(supplyLines(f.forPartner.supply))}</dd>` : '';
+  const unit = f.unit
+    ? `<dt>Unit</dt><dd>${e(`${f.unit.model}, ${f.unit.lengthMm} × ${f.unit.widthMm} × ${f.unit.heightMm} mm, ${f.unit.dryWeightKg} kg dry`)}</dd>`
+    : '';
+  const supply = f.forPartner.supply
+    ? `<dt>Electrical supply</dt><dd>${lines(supplyLines(f.forPartner.supply))}</dd>`
+    : '';
   return `<dl>
 <dt>Work</dt><dd>${e(f.stage.name)} for ${e(f.installer.name)} (job ${e(f.job.reference)})</dd>
 <dt>Booked</dt><dd>${e(f.resource.name)}</dd>${unit}${supply}
@@ -31,8 +35,19 @@ export function slotDetails(f: BookingFacts): string {
 
 /** Local date and times of the slot, to pre-fill the proposal form. */
 function localParts(d: Date, timeZone: string): { date: string; time: string } {
-  const parts = Object.fromEntries(new Intl.DateTimeFormat('en-GB', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' })
-    .formatToParts(d).map((p) => [p.type, p.value]));
+  const parts = Object.fromEntries(
+    new Intl.DateTimeFormat('en-GB', {
+      timeZone,
+      year: 'numeric',
+      month: '2-digit',
+      day: '2-digit',
+      hour: '2-digit',
+      minute: '2-digit',
+      hourCycle: 'h23',
+    })
+      .formatToParts(d)
+      .map((p) => [p.type, p.value]),
+  );
   return { date: `${parts.year}-${parts.month}-${parts.day}`, time: `${parts.hour}:${parts.minute}` };
 }
 
@@ -41,9 +56,13 @@ function localParts(d: Date, timeZone: string): { date: string; time: string } {
  * words, both optional. The label says who reads it.
  */
 function reasonFields(action: AnswerAction): string {
-  const own = (label: string) => `<label for="reason">${e(label)}</label><input id="reason" name="reason" type="text" maxlength="${ANSWER_REASON_MAX}" autocomplete="off">`;
+  const own = (label: string) =>
+    `<label for="reason">${e(label)}</label><input id="reason" name="reason" type="text" maxlength="${ANSWER_REASON_MAX}" autocomplete="off">`;
   if (action !== 'decline') return own(REASON_LABEL);
-  const choices = DECLINE_REASON_CHOICES.map((c, i) => `<label for="choice-${i}" style="font-weight:normal"><input type="radio" name="choice" id="choice-${i}" value="${e(c)}" style="width:auto;margin-right:.5rem">${e(c)}</label>`);
+  const choices = DECLINE_REASON_CHOICES.map(
+    (c, i) =>
+      `<label for="choice-${i}" style="font-weight:normal"><input type="radio" name="choice" id="choice-${i}" value="${e(c)}" style="width:auto;margin-right:.5rem">${e(c)}</label>`,
+  );
   return `<fieldset style="border:1px solid #c8d3dc;border-radius:6px;margin-top:1rem"><legend style="font-weight:bold">${e(REASON_LABEL)}</legend>
 ${choices.join('\n')}
 ${own('In your own words')}
@@ -55,47 +74,93 @@ export function answerForm(f: BookingFacts, action: AnswerAction, formAction: st
   const label = ACTION_LABEL[action];
   const start = localParts(f.booking.startsAt, f.installer.timeZone);
   const end = localParts(f.booking.endsAt, f.installer.timeZone);
-  const fields = action === 'propose' ? `
+  const fields =
+    action === 'propose'
+      ? `
 <p>Times are in ${e(f.installer.timeZone)}, the installer's time zone.</p>
 <label for="date">Date</label><input id="date" name="date" type="date" required value="${e(start.date)}">
 <label for="start">From</label><input id="start" name="start" type="time" required value="${e(start.time)}">
 <label for="endDate">Until (date)</label><input id="endDate" name="endDate" type="date" value="${e(end.date)}">
-<label for="end">Until (time)</label><input id="end" name="end" type="time" required value="${e(end.time)}">${reasonFields(action)}` : action === 'decline' ? reasonFields(action) : '';
-  return page(label.title, `${error ? `<p role="alert"><strong>${e(error)}</strong></p>` : ''}${slotDetails(f)}
-<form method="post" action="${e(formAction)}">${fields}<button type="submit">${e(label.button)}</button></form>`);
+<label for="end">Until (time)</label><input id="end" name="end" type="time" required value="${e(end.time)}">${reasonFields(action)}`
+      : action === 'decline'
+        ? reasonFields(action)
+        : '';
+  return page(
+    label.title,
+    `${error ? `<p role="alert"><strong>${e(error)}</strong></p>` : ''}${slotDetails(f)}
+<form method="post" action="${e(formAction)}">${fields}<button type="submit">${e(label.button)}</button></form>`,
+  );
 }
 
 /** `after`: a section below the slot (the certificate link, once an electrical connection is confirmed). */
 export function answeredPage(f: BookingFacts, result: 'confirmed' | 'declined' | 'proposed', after = ''): string {
   const text = {
     confirmed: ['Thank you: the slot is confirmed', `${f.installer.name} can see your confirmation now.`],
-    declined: ['Thank you: the slot is declined', `${f.installer.name} can see your answer now and will find another slot.`],
-    proposed: ['Thank you: your proposal is sent', `${f.installer.name} will accept it or keep the original time; you will get an e-mail either way.`],
+    declined: [
+      'Thank you: the slot is declined',
+      `${f.installer.name} can see your answer now and will find another slot.`,
+    ],
+    proposed: [
+      'Thank you: your proposal is sent',
+      `${f.installer.name} will accept it or keep the original time; you will get an e-mail either way.`,
+    ],
   }[result];
   return page(text[0]!, `<p>${e(text[1])}</p>${slotDetails(f)}${after}`, 'ok');
 }
 
 export function stalePage(f: BookingFacts): string {
-  return page('This slot has changed', `<p>${e(f.installer.name)} changed this booking after the e-mail you used was sent, so its links no longer work.
-A newer e-mail has been sent to you; here is the slot as it is now:</p>${slotDetails(f)}`, 'warn');
+  return page(
+    'This slot has changed',
+    `<p>${e(f.installer.name)} changed this booking after the e-mail you used was sent, so its links no longer work.
+A newer e-mail has been sent to you; here is the slot as it is now:</p>${slotDetails(f)}`,
+    'warn',
+  );
 }
 
 export function closedPage(f: BookingFacts, after = ''): string {
-  const state = { confirmed: 'confirmed', declined: 'declined', pencilled: 'withdrawn by the installer', on_site: 'under way', done: 'done', sent: 'waiting for an answer' }[f.booking.state] ?? f.booking.state;
-  return page('Already answered', `<p>This booking is ${e(state)}, so there is nothing to answer. Call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')} to change anything.</p>${slotDetails(f)}${after}`, 'warn');
+  const state =
+    {
+      confirmed: 'confirmed',
+      declined: 'declined',
+      pencilled: 'withdrawn by the installer',
+      on_site: 'under way',
+      done: 'done',
+      sent: 'waiting for an answer',
+    }[f.booking.state] ?? f.booking.state;
+  return page(
+    'Already answered',
+    `<p>This booking is ${e(state)}, so there is nothing to answer. Call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')} to change anything.</p>${slotDetails(f)}${after}`,
+    'warn',
+  );
 }
 
 export function takenPage(f: BookingFacts): string {
-  return page('That time was taken meanwhile', `<p>${e(f.resource.name)} was confirmed for another job that overlaps this slot, so this one cannot be confirmed.
-Please decline it or propose another time from the e-mail, or call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')}.</p>${slotDetails(f)}`, 'refused');
+  return page(
+    'That time was taken meanwhile',
+    `<p>${e(f.resource.name)} was confirmed for another job that overlaps this slot, so this one cannot be confirmed.
+Please decline it or propose another time from the e-mail, or call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')}.</p>${slotDetails(f)}`,
+    'refused',
+  );
 }
 
 export function refusalPage(reason: LinkRefusal | 'used' | 'gone'): string {
   const text: Record<typeof reason, [string, string]> = {
-    tampered: ['This link is not valid', 'The link is incomplete or has been altered. Open it again from the e-mail, or copy the whole address.'],
-    expired: ['This link has expired', 'The slot this link was for is over or the link is too old. Ask the installer for a new request.'],
-    'wrong-purpose': ['This link is not valid here', 'The link was made for something else. Open it again from the e-mail.'],
-    used: ['This link has already been used', 'Each link in an e-mail works once. Your earlier answer stands; call the installer to change it.'],
+    tampered: [
+      'This link is not valid',
+      'The link is incomplete or has been altered. Open it again from the e-mail, or copy the whole address.',
+    ],
+    expired: [
+      'This link has expired',
+      'The slot this link was for is over or the link is too old. Ask the installer for a new request.',
+    ],
+    'wrong-purpose': [
+      'This link is not valid here',
+      'The link was made for something else. Open it again from the e-mail.',
+    ],
+    used: [
+      'This link has already been used',
+      'Each link in an e-mail works once. Your earlier answer stands; call the installer to change it.',
+    ],
     gone: ['This booking no longer exists', 'The installer has removed this booking. Nothing more is needed from you.'],
   };
   return page(text[reason][0], `<p>${e(text[reason][1])}</p>`, 'refused');

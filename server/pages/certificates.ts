@@ -3,9 +3,21 @@ import { escapeHtml as e, page } from './page.ts';
 import { slotDetails } from './answers.ts';
 
 /** What the electrician has uploaded for this slot already (their own upload only). */
-export interface UploadedCertificate { name: string; uploadedAt: string }
+export interface UploadedCertificate {
+  name: string;
+  uploadedAt: string;
+}
 
-const when = (iso: string, timeZone: string) => new Intl.DateTimeFormat('en-GB', { timeZone, day: 'numeric', month: 'long', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(new Date(iso));
+const when = (iso: string, timeZone: string) =>
+  new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    day: 'numeric',
+    month: 'long',
+    year: 'numeric',
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+  }).format(new Date(iso));
 
 /** The upload form: one PDF, posted to the certificate link (no script; the browser's own file picker). */
 function uploadForm(formAction: string, current: UploadedCertificate | null): string {
@@ -31,12 +43,25 @@ export function certificateSection(link: string): string {
 }
 
 /** GET /answer/certificate/:token: the slot, what is uploaded, and the form. */
-export function certificateForm(f: BookingFacts, formAction: string, current: UploadedCertificate | null, error?: string): string {
-  return page('Electrical certificate', `${error ? `<p role="alert"><strong>${e(error)}</strong></p>` : ''}${status(f, current)}
-${uploadForm(formAction, current)}${slotDetails(f)}`, error ? 'warn' : 'plain');
+export function certificateForm(
+  f: BookingFacts,
+  formAction: string,
+  current: UploadedCertificate | null,
+  error?: string,
+): string {
+  return page(
+    'Electrical certificate',
+    `${error ? `<p role="alert"><strong>${e(error)}</strong></p>` : ''}${status(f, current)}
+${uploadForm(formAction, current)}${slotDetails(f)}`,
+    error ? 'warn' : 'plain',
+  );
 }
 
 /** After a good upload. */
 export function certificateUploadedPage(f: BookingFacts, formAction: string, current: UploadedCertificate): string {
-  return page('Thank you: the certificate is uploaded', `${status(f, current)}${uploadForm(formAction, current)}`, 'ok');
+  return page(
+    'Thank you: the certificate is uploaded',
+    `${status(f, current)}${uploadForm(formAction, current)}`,
+    'ok',
+  );
 }

@@ -15,14 +15,31 @@ import { z } from 'zod';
 import { AnswerReason, DECLINE_REASON_CHOICES, reasonText } from '../../shared/schemas/answers.ts';
 import { parse } from '../middleware/validate.ts';
 import { BadRequestError } from '../errors.ts';
-import { dayNumber, isoDateOfDay, localDayOf, localToInstant, timeZoneOffset } from '../../shared/scheduler/time-zone.ts';
+import {
+  dayNumber,
+  isoDateOfDay,
+  localDayOf,
+  localToInstant,
+  timeZoneOffset,
+} from '../../shared/scheduler/time-zone.ts';
 
-export interface AnswerRouteDeps { knex: Knex; config: Config; now?: () => number }
+export interface AnswerRouteDeps {
+  knex: Knex;
+  config: Config;
+  now?: () => number;
+}
 
 const formParser = express.urlencoded({ extended: false, limit: '4kb' });
-const parseForm = (req: Request, res: Response) => new Promise<void>((resolve, reject) => formParser(req, res, (err?: unknown) => (err ? reject(err) : resolve())));
+const parseForm = (req: Request, res: Response) =>
+  new Promise<void>((resolve, reject) => formParser(req, res, (err?: unknown) => (err ? reject(err) : resolve())));
 
-const STATUS: Record<LinkRefusal | 'used' | 'gone', number> = { tampered: 400, 'wrong-purpose': 400, expired: 410, used: 409, gone: 410 };
+const STATUS: Record<LinkRefusal | 'used' | 'gone', number> = {
+  tampered: 400,
+  'wrong-purpose': 400,
+  expired: 410,
+  used: 409,
+  gone: 410,
+};
 
 const ReasonForm = z.object({ reason: AnswerReason.optional() });
 
@@ -34,10 +51,15 @@ const ReasonForm = z.object({ reason: AnswerReason.optional() });
 export function reasonOf(body: Record<string, unknown>): string | undefined {
   const choice = body.choice ?? '';
   if (choice !== '' && !(DECLINE_REASON_CHOICES as readonly unknown[]).includes(choice)) {
-    throw new BadRequestError('The form has fields that are not valid.', [{ field: 'choice', message: `must be one of: ${DECLINE_REASON_CHOICES.join(', ')}` }]);
+    throw new BadRequestError('The form has fields that are not valid.', [
+      { field: 'choice', message: `must be one of: ${DECLINE_REASON_CHOICES.join(', ')}` },
+    ]);
   }
   const text = body.reason ?? '';
-  if (typeof text !== 'string') throw new BadRequestError('The form has fields that are not valid.', [{ field: 'reason', message: 'must be one piece of text' }]);
+  if (typeof text !== 'string')
+    throw new BadRequestError('The form has fields that are not valid.', [
+      { field: 'reason', message: 'must be one piece of text' },
+    ]);
   return parse(ReasonForm, { reason: reasonText(choice as string, text) }).reason;
 }
 
@@ -54,7 +76,11 @@ export function instantOf(date: unknown, time: unknown, timeZone: string): Date 
   const minute = Number(t[1]) * 60 + Number(t[2]);
   const instant = localToInstant(timeZone, day, minute);
   // A local time that does not exist is moved by the conversion: going back must give the same day and minute.
-  if (localDayOf(timeZone, instant) !== day || Math.round((instant + timeZoneOffset(timeZone, instant)) / 60_000) - day * 1440 !== minute) return null;
+  if (
+    localDayOf(timeZone, instant) !== day ||
+    Math.round((instant + timeZoneOffset(timeZone, instant)) / 60_000) - day * 1440 !== minute
+  )
+    return null;
   return new Date(instant);
 }
 
@@ -73,13 +99,27 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
 
   /** Below a confirmed electrical connection: where the electrician uploads the certificate later. */
   async function certificateAfter(f: BookingFacts): Promise<string> {
-    const link = await certificateLinkFor(certificateLinks, config.PUBLIC_URL, {
-      bookingId: f.booking.id, stageKind: f.stage.kind, state: f.booking.state, endsAt: f.booking.endsAt, partnerFirmId: f.resource.firmId,
-    }, new Date(now()));
+    const link = await certificateLinkFor(
+      certificateLinks,
+      config.PUBLIC_URL,
+      {
+        bookingId: f.booking.id,
+        stageKind: f.stage.kind,
+        state: f.booking.state,
+        endsAt: f.booking.endsAt,
+        partnerFirmId: f.resource.firmId,
+      },
+      new Date(now()),
+    );
     return link ? certificateSection(link) : '';
   }
 
-  async function refuse(req: Request, res: Response, reason: LinkRefusal | 'used' | 'gone', jti?: string): Promise<void> {
+  async function refuse(
+    req: Request,
+    res: Response,
+    reason: LinkRefusal | 'used' | 'gone',
+    jti?: string,
+  ): Promise<void> {
     const path = req.path.replace(/\/[^/]+$/, '/…');
     req.log?.warn({ reason, jti, path }, 'link refused');
     await knex('link_attempts').insert({ reason, path, jti: jti ?? null, ip: req.ip ?? null });
@@ -88,7 +128,11 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
 
   async function claims(req: Request, res: Response, purpose: 'answer'): Promise<AnswerClaims | null>;
   async function claims(req: Request, res: Response, purpose: 'invite'): Promise<InviteClaims | null>;
-  async function claims(req: Request, res: Response, purpose: 'answer' | 'invite'): Promise<AnswerClaims | InviteClaims | null> {
+  async function claims(
+    req: Request,
+    res: Response,
+    purpose: 'answer' | 'invite',
+  ): Promise<AnswerClaims | InviteClaims | null> {
     try {
       return await signer.verify(String(req.params.token), purpose);
     } catch (error) {
@@ -107,9 +151,15 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     const facts = await loadBookingFacts(knex, c.bookingId);
     if (!facts) return refuse(req, res, 'gone', c.jti);
     if (await knex('link_uses').where('jti', requestKeyOf(c)).first()) return refuse(req, res, 'used', c.jti);
-    if (facts.booking.version !== c.version) { res.type('html').send(stalePage(facts)); return; }
-    const open = c.action === 'confirm' ? facts.booking.state === 'sent' : ['sent', 'confirmed'].includes(facts.booking.state);
-    res.type('html').send(open ? answerForm(facts, c.action, req.originalUrl) : closedPage(facts, await certificateAfter(facts)));
+    if (facts.booking.version !== c.version) {
+      res.type('html').send(stalePage(facts));
+      return;
+    }
+    const open =
+      c.action === 'confirm' ? facts.booking.state === 'sent' : ['sent', 'confirmed'].includes(facts.booking.state);
+    res
+      .type('html')
+      .send(open ? answerForm(facts, c.action, req.originalUrl) : closedPage(facts, await certificateAfter(facts)));
   });
 
   table.post('/answer/:token', 'public', async (req, res) => {
@@ -129,7 +179,10 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
       const start = instantOf(body.date, body.start, facts.installer.timeZone);
       const end = instantOf(body.endDate || body.date, body.end, facts.installer.timeZone);
       if (!start || !end || end <= start) {
-        res.status(400).type('html').send(answerForm(facts, 'propose', req.originalUrl, 'Give a date and a finishing time after the start.'));
+        res
+          .status(400)
+          .type('html')
+          .send(answerForm(facts, 'propose', req.originalUrl, 'Give a date and a finishing time after the start.'));
         return;
       }
       proposal = { start, end };
@@ -138,16 +191,30 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     if (outcome.result === 'used' || outcome.result === 'gone') return refuse(req, res, outcome.result, c.jti);
     const facts = (await loadBookingFacts(knex, c.bookingId))!;
     switch (outcome.result) {
-      case 'stale': res.status(409).type('html').send(stalePage(facts)); return;
-      case 'closed': res.status(409).type('html').send(closedPage(facts, await certificateAfter(facts))); return;
-      case 'taken': res.status(409).type('html').send(takenPage(facts)); return;
+      case 'stale':
+        res.status(409).type('html').send(stalePage(facts));
+        return;
+      case 'closed':
+        res
+          .status(409)
+          .type('html')
+          .send(closedPage(facts, await certificateAfter(facts)));
+        return;
+      case 'taken':
+        res.status(409).type('html').send(takenPage(facts));
+        return;
       default:
-        req.log?.info({ bookingId: c.bookingId, version: c.version, result: outcome.result }, 'partner answered by link');
+        req.log?.info(
+          { bookingId: c.bookingId, version: c.version, result: outcome.result },
+          'partner answered by link',
+        );
         res.type('html').send(answeredPage(facts, outcome.result, await certificateAfter(facts)));
     }
   });
 
-  const invitationBody = (inv: InvitationView) => `<dl><dt>Firm</dt><dd>${e(inv.firmName)}</dd><dt>Role</dt><dd>${e(inv.role)}</dd>
+  const invitationBody = (
+    inv: InvitationView,
+  ) => `<dl><dt>Firm</dt><dd>${e(inv.firmName)}</dd><dt>Role</dt><dd>${e(inv.role)}</dd>
 <dt>For</dt><dd>${e(inv.email)}</dd></dl>`;
 
   table.get('/invite/:token', 'public', async (req, res) => {
@@ -156,9 +223,14 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     if (!c) return;
     const inv = await invitations.peek(c);
     if (!inv) return refuse(req, res, 'gone', c.jti);
-    if (inv.acceptedAt || await knex('link_uses').where('jti', c.jti).first()) return refuse(req, res, 'used', c.jti);
-    res.type('html').send(page(`Join ${inv.firmName} on Waterline`, `${invitationBody(inv)}
-<form method="post" action="${e(req.originalUrl)}"><button type="submit">Accept the invitation</button></form>`));
+    if (inv.acceptedAt || (await knex('link_uses').where('jti', c.jti).first())) return refuse(req, res, 'used', c.jti);
+    res.type('html').send(
+      page(
+        `Join ${inv.firmName} on Waterline`,
+        `${invitationBody(inv)}
+<form method="post" action="${e(req.originalUrl)}"><button type="submit">Accept the invitation</button></form>`,
+      ),
+    );
   });
 
   table.post('/invite/:token', 'public', async (req, res) => {
@@ -166,16 +238,26 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     const c = await claims(req, res, 'invite');
     if (!c) return;
     const outcome = await invitations.accept(c);
-    if (outcome.result === 'used' || outcome.result === 'gone' || outcome.result === 'expired') return refuse(req, res, outcome.result, c.jti);
-    res.type('html').send(page(outcome.result === 'accepted' ? 'Invitation accepted' : 'You are already a member', `${invitationBody(outcome.invitation)}
+    if (outcome.result === 'used' || outcome.result === 'gone' || outcome.result === 'expired')
+      return refuse(req, res, outcome.result, c.jti);
+    res.type('html').send(
+      page(
+        outcome.result === 'accepted' ? 'Invitation accepted' : 'You are already a member',
+        `${invitationBody(outcome.invitation)}
 <p>Now sign in with Google using <strong>${e(outcome.invitation.email)}</strong>.</p>
-<form method="get" action="/auth/google"><button type="submit">Sign in with Google</button></form>`, 'ok'));
+<form method="get" action="/auth/google"><button type="submit">Sign in with Google</button></form>`,
+        'ok',
+      ),
+    );
   });
 
   // A calendar app polls this; the token in the path is the whole credential (see FeedsService).
   table.get('/feeds/:token.ics', 'public', async (req, res) => {
     const body = await feeds.render(String(req.params.token));
-    if (!body) { res.status(404).type('text').send('No such feed'); return; }
+    if (!body) {
+      res.status(404).type('text').send('No such feed');
+      return;
+    }
     res.set('Cache-Control', 'private, max-age=300').type('text/calendar; charset=utf-8').send(body);
   });
 }

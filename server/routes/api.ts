@@ -3,7 +3,16 @@ import type { RouteTable } from './table.ts';
 import { parse } from '../middleware/validate.ts';
 import { IdParams } from '../../shared/schemas/common.ts';
 import { CreateJob, JobQuery } from '../../shared/schemas/jobs.ts';
-import { BookingRange, CompletionQuery, CreateBooking, CreateBookings, MarkProgress, MoveStage, RemoveBooking, UpdateBooking } from '../../shared/schemas/bookings.ts';
+import {
+  BookingRange,
+  CompletionQuery,
+  CreateBooking,
+  CreateBookings,
+  MarkProgress,
+  MoveStage,
+  RemoveBooking,
+  UpdateBooking,
+} from '../../shared/schemas/bookings.ts';
 import { SwitchFirm } from '../../shared/schemas/session.ts';
 import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
@@ -20,10 +29,20 @@ import type { BoardStream } from '../services/board-stream.ts';
 import { NotFoundError } from '../errors.ts';
 import type { Health } from '../health.ts';
 
-export interface ApiDeps { knex: Knex; health: Health; stream: BoardStream; fullcalendarLicenseKey: string; now?: () => number; limits?: BookingLimits }
+export interface ApiDeps {
+  knex: Knex;
+  health: Health;
+  stream: BoardStream;
+  fullcalendarLicenseKey: string;
+  now?: () => number;
+  limits?: BookingLimits;
+}
 
 /** The JSON API: one line a route, each naming who may call it. */
-export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalendarLicenseKey, now = Date.now, limits }: ApiDeps): void {
+export function apiRoutes(
+  table: RouteTable,
+  { knex, health, stream, fullcalendarLicenseKey, now = Date.now, limits }: ApiDeps,
+): void {
   const jobs = new JobsService(knex);
   const directory = new DirectoryService();
   const bookings = new BookingsService(knex, now, limits);
@@ -62,7 +81,12 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
       }
       // One connection, one snapshot: the loader's queries run one after another in a read-only
       // transaction, so a busy server serves boards in turn instead of interleaving them all.
-      res.json(await knex.transaction((trx) => loadBoard(trx, req.actor!, window), { readOnly: true, isolationLevel: 'repeatable read' }));
+      res.json(
+        await knex.transaction((trx) => loadBoard(trx, req.actor!, window), {
+          readOnly: true,
+          isolationLevel: 'repeatable read',
+        }),
+      );
     })
     .get('/api/board/stream', 'board:read', async (req, res) => {
       await stream.open(req, res, req.actor!);
@@ -109,7 +133,9 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
       res.json(await bookings.get(req.actor!, parse(IdParams, req.params, 'params').id));
     })
     .post('/api/bookings/batch', 'bookings:write', async (req, res) => {
-      res.status(201).json(await bookings.createMany(req.actor!, parse(CreateBookings, req.body).bookings, undoable(req, 'book')));
+      res
+        .status(201)
+        .json(await bookings.createMany(req.actor!, parse(CreateBookings, req.body).bookings, undoable(req, 'book')));
     })
     .patch('/api/bookings/:id', 'bookings:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
@@ -117,7 +143,12 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     })
     .delete('/api/bookings/:id', 'bookings:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
-      await bookings.remove(req.actor!, id, parse(RemoveBooking, req.query, 'query').version, undoable(req, 'take off'));
+      await bookings.remove(
+        req.actor!,
+        id,
+        parse(RemoveBooking, req.query, 'query').version,
+        undoable(req, 'take off'),
+      );
       res.status(204).end();
     })
     .post('/api/bookings/:id/progress', 'bookings:progress', async (req, res) => {
@@ -140,7 +171,10 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     .post('/api/plan/auto-place', 'bookings:write', async (req, res) => {
       const input = parse(AutoPlaceRequest, req.body);
       // Progress goes to the caller's own board stream (the streams of this session), named by planId.
-      const progress = input.planId ? (p: Omit<PlanProgress, 'planId'>) => stream.tellSession(req.sessionID, 'plan-progress', { planId: input.planId, ...p }) : undefined;
+      const progress = input.planId
+        ? (p: Omit<PlanProgress, 'planId'>) =>
+            stream.tellSession(req.sessionID, 'plan-progress', { planId: input.planId, ...p })
+        : undefined;
       res.json(await placement.autoPlace(req.actor!, input, progress));
     })
     .get('/api/undo', 'bookings:write', async (req, res) => {
@@ -148,6 +182,10 @@ export function apiRoutes(table: RouteTable, { knex, health, stream, fullcalenda
     })
     .post('/api/undo', 'bookings:write', async (req, res) => {
       const { undone, outcome } = await undo.undo(req.actor!, req.sessionID);
-      res.json({ undone, ...await bookings.saved(req.actor!, outcome), remaining: await undo.list(req.actor!, req.sessionID) });
+      res.json({
+        undone,
+        ...(await bookings.saved(req.actor!, outcome)),
+        remaining: await undo.list(req.actor!, req.sessionID),
+      });
     });
 }

@@ -17,7 +17,12 @@ import { loadBookingFacts } from '../mail/facts.ts';
 import { refusalPage } from '../pages/answers.ts';
 import { certificateForm, certificateUploadedPage } from '../pages/certificates.ts';
 
-export interface HandoverRecordDeps { knex: Knex; config: Config; files: FilesService; now?: () => number }
+export interface HandoverRecordDeps {
+  knex: Knex;
+  config: Config;
+  files: FilesService;
+  now?: () => number;
+}
 
 function uploadOf(req: Request): Upload {
   if (!req.file) throw new BadRequestError('Choose a file to upload.', [{ field: 'file', message: 'is required' }]);
@@ -32,7 +37,10 @@ const STATUS = { tampered: 400, 'wrong-purpose': 400, expired: 410 } as const;
  * Each id is looked up in the reader's scope before a body or file is read, so another firm's id is
  * 404 whatever is sent.
  */
-export function handoverRecordRoutes(table: RouteTable, { knex, config, files, now = Date.now }: HandoverRecordDeps): void {
+export function handoverRecordRoutes(
+  table: RouteTable,
+  { knex, config, files, now = Date.now }: HandoverRecordDeps,
+): void {
   const commissioning = new CommissioningService(knex, files);
   const certificates = new CertificatesService(knex, files, now);
   const links = new CertificateLinks(config.LINK_SECRET);
@@ -67,7 +75,12 @@ export function handoverRecordRoutes(table: RouteTable, { knex, config, files, n
       return await links.verify(String(req.params.token), new Date(now()));
     } catch (error) {
       if (!(error instanceof LinkError)) throw error;
-      await knex('link_attempts').insert({ reason: error.reason, path: '/answer/certificate/…', jti: null, ip: req.ip ?? null });
+      await knex('link_attempts').insert({
+        reason: error.reason,
+        path: '/answer/certificate/…',
+        jti: null,
+        ip: req.ip ?? null,
+      });
       res.status(STATUS[error.reason]).type('html').send(refusalPage(error.reason));
       return null;
     }
@@ -78,7 +91,10 @@ export function handoverRecordRoutes(table: RouteTable, { knex, config, files, n
     const claims = await claimsOf(req, res);
     if (!claims) return;
     const facts = await loadBookingFacts(knex, claims.bookingId);
-    if (!facts || facts.resource.firmId !== claims.firmId) { res.status(410).type('html').send(refusalPage('gone')); return; }
+    if (!facts || facts.resource.firmId !== claims.firmId) {
+      res.status(410).type('html').send(refusalPage('gone'));
+      return;
+    }
     const current = (await certificates.forPartner(claims.firmId, [claims.bookingId])).get(claims.bookingId) ?? null;
     res.type('html').send(certificateForm(facts, req.originalUrl, current));
   });
@@ -88,20 +104,32 @@ export function handoverRecordRoutes(table: RouteTable, { knex, config, files, n
     const claims = await claimsOf(req, res);
     if (!claims) return;
     const facts = await loadBookingFacts(knex, claims.bookingId);
-    if (!facts) { res.status(410).type('html').send(refusalPage('gone')); return; }
+    if (!facts) {
+      res.status(410).type('html').send(refusalPage('gone'));
+      return;
+    }
     try {
       // Whose slot it is now is the service's check (NotFoundError below), made again under the booking's lock.
       await receiveFile(req, res);
       const saved = await certificates.uploadByLink(claims, uploadOf(req));
       req.log?.info({ bookingId: claims.bookingId }, 'certificate uploaded by link');
-      res.status(201).type('html').send(certificateUploadedPage(facts, req.originalUrl, saved));
+      res
+        .status(201)
+        .type('html')
+        .send(certificateUploadedPage(facts, req.originalUrl, saved));
     } catch (error) {
       // A slot given to another firm or taken off meanwhile: the link is spent.
-      if (error instanceof NotFoundError) { res.status(410).type('html').send(refusalPage('gone')); return; }
+      if (error instanceof NotFoundError) {
+        res.status(410).type('html').send(refusalPage('gone'));
+        return;
+      }
       // A person with a browser reads the refusal on the page, with the form to try again.
       if (!(error instanceof HttpError)) throw error;
       const current = (await certificates.forPartner(claims.firmId, [claims.bookingId])).get(claims.bookingId) ?? null;
-      res.status(error.status).type('html').send(certificateForm(facts, req.originalUrl, current, error.detail ?? error.title));
+      res
+        .status(error.status)
+        .type('html')
+        .send(certificateForm(facts, req.originalUrl, current, error.detail ?? error.title));
     }
   });
 }

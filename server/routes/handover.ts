@@ -9,13 +9,22 @@ import { PutServicePlan, SignHandover } from '../../shared/schemas/handover.ts';
 import { HandoverService } from '../services/handover.ts';
 import { S3ObjectStore, type ObjectStore } from '../storage/object-store.ts';
 
-export interface HandoverDeps { knex: Knex; config: Config; store?: ObjectStore; now?: () => number; limits?: BookingLimits }
+export interface HandoverDeps {
+  knex: Knex;
+  config: Config;
+  store?: ObjectStore;
+  now?: () => number;
+  limits?: BookingLimits;
+}
 
 /**
  * The handover with the householder and the firm's service plan. Signing marks the handover stage
  * done, so it takes the progress permission (crew on the job, owner, scheduler); the plan is the owner's.
  */
-export function handoverRoutes(table: RouteTable, { knex, config, store: given, now = Date.now, limits }: HandoverDeps): { close(): void } {
+export function handoverRoutes(
+  table: RouteTable,
+  { knex, config, store: given, now = Date.now, limits }: HandoverDeps,
+): { close(): void } {
   const store = given ?? new S3ObjectStore(config);
   const handovers = new HandoverService(knex, store, now, limits);
   const id = (req: Request) => parse(IdParams, req.params, 'params').id;

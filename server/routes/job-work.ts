@@ -23,30 +23,53 @@ import { DaySheetsService } from '../services/day-sheets.ts';
 import { JobsService } from '../services/jobs.ts';
 import { S3ObjectStore, type ObjectStore } from '../storage/object-store.ts';
 
-export interface JobWorkDeps { knex: Knex; config: Config; store?: ObjectStore; now?: () => number }
+export interface JobWorkDeps {
+  knex: Knex;
+  config: Config;
+  store?: ObjectStore;
+  now?: () => number;
+}
 
 // One file, in memory (10 MB at most), parsed only after the route's access rule has let the caller in.
-const receiveOne = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_FILE_BYTES, files: 1, fields: 5, parts: 6 },
+const receiveOne = multer({
+  storage: multer.memoryStorage(),
+  limits: { fileSize: MAX_FILE_BYTES, files: 1, fields: 5, parts: 6 },
   // Keep the name as sent, so a name with a path in it is refused rather than silently cut.
-  preservePath: true, defParamCharset: 'utf8' }).single('file');
+  preservePath: true,
+  defParamCharset: 'utf8',
+}).single('file');
 
 /** Receives the one file of a multipart upload (field `file`), after the route's access rule and scope checks. */
 export function receiveFile(req: Request, res: Response): Promise<void> {
-  return new Promise((resolve, reject) => receiveOne(req, res, (err: unknown) => {
-    if (!err) return resolve();
-    if (err instanceof multer.MulterError) {
-      if (err.code === 'LIMIT_FILE_SIZE') return reject(new HttpError(413, 'file-too-large', 'The file is too large', 'A file may be at most 10 MB.', { errors: [{ field: 'file', message: 'is larger than 10 MB' }] }));
-      return reject(new BadRequestError('Send one file, in the field "file".', [{ field: err.field ?? 'file', message: err.message }]));
-    }
-    reject(new BadRequestError('The upload could not be read.'));
-  }));
+  return new Promise((resolve, reject) =>
+    receiveOne(req, res, (err: unknown) => {
+      if (!err) return resolve();
+      if (err instanceof multer.MulterError) {
+        if (err.code === 'LIMIT_FILE_SIZE')
+          return reject(
+            new HttpError(413, 'file-too-large', 'The file is too large', 'A file may be at most 10 MB.', {
+              errors: [{ field: 'file', message: 'is larger than 10 MB' }],
+            }),
+          );
+        return reject(
+          new BadRequestError('Send one file, in the field "file".', [
+            { field: err.field ?? 'file', message: err.message },
+          ]),
+        );
+      }
+      reject(new BadRequestError('The upload could not be read.'));
+    }),
+  );
 }
 
 /**
  * Surveys, quantities, templates, planning, job edits, files and day sheets. Returns a handle that
  * releases the storage client when the app closes.
  */
-export function jobWorkRoutes(table: RouteTable, { knex, config, store: given, now = Date.now }: JobWorkDeps): { close(): void; files: FilesService } {
+export function jobWorkRoutes(
+  table: RouteTable,
+  { knex, config, store: given, now = Date.now }: JobWorkDeps,
+): { close(): void; files: FilesService } {
   const store = given ?? new S3ObjectStore(config);
   const templates = new TemplatesService(knex);
   const surveys = new SurveysService(knex, templates);
@@ -88,7 +111,9 @@ export function jobWorkRoutes(table: RouteTable, { knex, config, store: given, n
       const jobId = id(req);
       await receiveFile(req, res);
       if (!req.file) throw new BadRequestError('Choose a file to upload.', [{ field: 'file', message: 'is required' }]);
-      res.status(201).json(await files.upload(req.actor!, jobId, { buffer: req.file.buffer, originalName: req.file.originalname }));
+      res
+        .status(201)
+        .json(await files.upload(req.actor!, jobId, { buffer: req.file.buffer, originalName: req.file.originalname }));
     })
     .delete('/api/files/:id', 'jobs:write', async (req, res) => {
       await files.remove(req.actor!, id(req));

@@ -6,7 +6,10 @@ import { SendMailAgain, UndeliveredMailQuery } from '../../shared/schemas/mail-s
 import { MailStatusService } from '../services/mail-status.ts';
 
 /** The office's undelivered e-mails (job page, Reports) and "Send again". */
-export function mailStatusRoutes(table: RouteTable, { knex, config }: { knex: Knex; config: Pick<Config, 'PUBLIC_URL' | 'MAIL_FROM' | 'LINK_SECRET'> }): void {
+export function mailStatusRoutes(
+  table: RouteTable,
+  { knex, config }: { knex: Knex; config: Pick<Config, 'PUBLIC_URL' | 'MAIL_FROM' | 'LINK_SECRET'> },
+): void {
   const mail = new MailStatusService(knex, config);
   table
     .get('/api/mail/undelivered', 'mail:read', async (req, res) => {

@@ -10,7 +10,11 @@ import { FeedsService } from '../services/feeds.ts';
 import { InvitationsService } from '../services/invitations.ts';
 import { ConflictError } from '../errors.ts';
 
-export interface PartnerRouteDeps { knex: Knex; config: Config; now?: () => number }
+export interface PartnerRouteDeps {
+  knex: Knex;
+  config: Config;
+  now?: () => number;
+}
 
 /**
  * Requests to partner firms and their answers (the scheduler's side and the partner's own pages),
@@ -43,8 +47,14 @@ export function partnerRoutes(table: RouteTable, { knex, config, now = Date.now 
     .post('/api/partner/slots/:id/answer', 'bookings:answer', async (req, res) => {
       const slotId = id(req.params);
       const outcome = await confirmations.answerAsPartner(req.actor!, slotId, parse(PartnerAnswer, req.body));
-      if (outcome.result === 'closed') throw new ConflictError(`This slot is ${outcome.booking.state}; there is nothing to answer.`, { code: 'not-awaiting-answer' });
-      if (outcome.result === 'taken') throw new ConflictError('That time was taken meanwhile: the resource is confirmed elsewhere then.', { code: 'double-booked' });
+      if (outcome.result === 'closed')
+        throw new ConflictError(`This slot is ${outcome.booking.state}; there is nothing to answer.`, {
+          code: 'not-awaiting-answer',
+        });
+      if (outcome.result === 'taken')
+        throw new ConflictError('That time was taken meanwhile: the resource is confirmed elsewhere then.', {
+          code: 'double-booked',
+        });
       const slot = (await slots.list(req.actor!, new Date(0))).find((s) => s.id === slotId);
       res.json({ result: outcome.result, slot: slot ?? null });
     })

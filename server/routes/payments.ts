@@ -11,7 +11,12 @@ import { findVisible } from '../services/scope.ts';
 import { Job } from '../models/index.ts';
 import { paymentPage } from '../pages/payments.ts';
 
-export interface PaymentRouteDeps { knex: Knex; config: Config; now?: () => number; log?: Logger }
+export interface PaymentRouteDeps {
+  knex: Knex;
+  config: Config;
+  now?: () => number;
+  log?: Logger;
+}
 
 /**
  * Deposits and balances. The office's routes check the job is theirs before reading the body, so
@@ -19,7 +24,10 @@ export interface PaymentRouteDeps { knex: Knex; config: Config; now?: () => numb
  * provider's signature (its body arrives raw: app.ts parses it before the JSON parser); the
  * householder's link is public and proves itself with its HMAC.
  */
-export function paymentRoutes(table: RouteTable, { knex, config, now = Date.now, log }: PaymentRouteDeps): PaymentsService {
+export function paymentRoutes(
+  table: RouteTable,
+  { knex, config, now = Date.now, log }: PaymentRouteDeps,
+): PaymentsService {
   const payments = new PaymentsService(knex, config, now, log);
   const job = async (req: Request) => {
     const { id } = parse(IdParams, req.params, 'params');
@@ -41,7 +49,9 @@ export function paymentRoutes(table: RouteTable, { knex, config, now = Date.now,
     })
     .post('/api/jobs/:id/payments/balance', 'payments:write', async (req, res) => {
       const id = await job(req);
-      res.status(201).json(await payments.requestBalanceAsOffice(req.actor!, id, parse(RequestPayment, req.body).amountPence));
+      res
+        .status(201)
+        .json(await payments.requestBalanceAsOffice(req.actor!, id, parse(RequestPayment, req.body).amountPence));
     })
     .post('/api/jobs/:id/payments/deposit/cancel', 'payments:write', async (req, res) => {
       res.json(await payments.cancel(req.actor!, await job(req), 'deposit'));
@@ -59,7 +69,10 @@ export function paymentRoutes(table: RouteTable, { knex, config, now = Date.now,
       res.set('Cache-Control', 'no-store').set('Referrer-Policy', 'no-referrer');
       try {
         const result = await payments.openLink(String(req.params.token ?? ''));
-        if ('redirect' in result) { res.redirect(303, result.redirect); return; }
+        if ('redirect' in result) {
+          res.redirect(303, result.redirect);
+          return;
+        }
         const shown = paymentPage(result.state, result.payment);
         res.status(shown.status).type('html').send(shown.html);
       } catch (error) {

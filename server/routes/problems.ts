@@ -12,6 +12,13 @@ export function problemRoutes(table: RouteTable): void {
     const code = String(req.params.code);
     const known = Object.hasOwn(PROBLEM_TYPES, code) ? PROBLEM_TYPES[code] : undefined;
     if (!known) throw new NotFoundError('problem type');
-    res.type('html').send(page(known.title, `<p>${escapeHtml(known.explanation)}</p><p><small>Problem type <code>${escapeHtml(code)}</code> (RFC 9457).</small></p>`));
+    res
+      .type('html')
+      .send(
+        page(
+          known.title,
+          `<p>${escapeHtml(known.explanation)}</p><p><small>Problem type <code>${escapeHtml(code)}</code> (RFC 9457).</small></p>`,
+        ),
+      );
   });
 }

@@ -9,7 +9,12 @@ import { ReportsService, type ReportSpan } from '../services/reports.ts';
 import { HirePeriodsService } from '../services/hire-periods.ts';
 import { UTF8_BOM } from '../../shared/reports/csv.ts';
 
-export interface ReportRouteDeps { knex: Knex; now?: () => number; publicUrl?: string; extraWorkingMinutes?: number }
+export interface ReportRouteDeps {
+  knex: Knex;
+  now?: () => number;
+  publicUrl?: string;
+  extraWorkingMinutes?: number;
+}
 
 const spanOf = (query: unknown): ReportSpan => {
   const { from, to } = parse(ReportQuery, query, 'query');
@@ -19,13 +24,17 @@ const spanOf = (query: unknown): ReportSpan => {
 /** A CSV download: UTF-8 with its byte order mark, so spreadsheets read "£" and names right. */
 function sendCsv(res: Response, name: string, span: ReportSpan, body: string): void {
   const day = (t: number) => new Date(t).toISOString().slice(0, 10);
-  res.type('text/csv; charset=utf-8')
+  res
+    .type('text/csv; charset=utf-8')
     .set('Content-Disposition', `attachment; filename="waterline-${name}-${day(span.from)}-to-${day(span.to)}.csv"`)
     .send(Buffer.from(UTF8_BOM + body, 'utf8'));
 }
 
 /** The manager's reports (and their CSV) and the hire periods the manager records and approves. */
-export function reportRoutes(table: RouteTable, { knex, now = Date.now, publicUrl, extraWorkingMinutes }: ReportRouteDeps): void {
+export function reportRoutes(
+  table: RouteTable,
+  { knex, now = Date.now, publicUrl, extraWorkingMinutes }: ReportRouteDeps,
+): void {
   const reports = new ReportsService(knex, now, publicUrl, extraWorkingMinutes);
   const hires = new HirePeriodsService(knex);
 

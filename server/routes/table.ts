@@ -35,11 +35,21 @@ export class RouteTable {
     this.routes.push({ method, path, access, handler });
     return this;
   }
-  get(path: string, access: Access, handler: RequestHandler) { return this.add('get', path, access, handler); }
-  post(path: string, access: Access, handler: RequestHandler) { return this.add('post', path, access, handler); }
-  put(path: string, access: Access, handler: RequestHandler) { return this.add('put', path, access, handler); }
-  patch(path: string, access: Access, handler: RequestHandler) { return this.add('patch', path, access, handler); }
-  delete(path: string, access: Access, handler: RequestHandler) { return this.add('delete', path, access, handler); }
+  get(path: string, access: Access, handler: RequestHandler) {
+    return this.add('get', path, access, handler);
+  }
+  post(path: string, access: Access, handler: RequestHandler) {
+    return this.add('post', path, access, handler);
+  }
+  put(path: string, access: Access, handler: RequestHandler) {
+    return this.add('put', path, access, handler);
+  }
+  patch(path: string, access: Access, handler: RequestHandler) {
+    return this.add('patch', path, access, handler);
+  }
+  delete(path: string, access: Access, handler: RequestHandler) {
+    return this.add('delete', path, access, handler);
+  }
 
   mount(router: Router): void {
     for (const r of this.routes) router[r.method](r.path, authorize(r.access), r.handler);

@@ -13,10 +13,18 @@ const CHANNEL = 'board_changes';
  * The notification (server side only) names the installer whose job it is and the resource's
  * firm, so each process can hand it only to the streams allowed to hear of it.
  */
-export async function notifyBookingChange(trx: Knex.Transaction, bookingId: string, stageId: string, resourceId: string): Promise<void> {
-  await trx.raw(`SELECT pg_notify(?, json_build_object('bookingId', ?::text, 'resourceId', ?::text,
+export async function notifyBookingChange(
+  trx: Knex.Transaction,
+  bookingId: string,
+  stageId: string,
+  resourceId: string,
+): Promise<void> {
+  await trx.raw(
+    `SELECT pg_notify(?, json_build_object('bookingId', ?::text, 'resourceId', ?::text,
       'installerFirmId', (SELECT j.firm_id::text FROM stages s JOIN jobs j ON j.id = s.job_id WHERE s.id = ?),
-      'resourceFirmId', (SELECT r.firm_id::text FROM resources r WHERE r.id = ?))::text)`, [CHANNEL, bookingId, resourceId, stageId, resourceId]);
+      'resourceFirmId', (SELECT r.firm_id::text FROM resources r WHERE r.id = ?))::text)`,
+    [CHANNEL, bookingId, resourceId, stageId, resourceId],
+  );
 }
 
 /**
@@ -24,8 +32,11 @@ export async function notifyBookingChange(trx: Knex.Transaction, bookingId: stri
  * date, which starts the maker's lead time): they reload. The event names no booking.
  */
 export async function notifyJobChange(trx: Knex.Transaction, jobId: string): Promise<void> {
-  await trx.raw(`SELECT pg_notify(?, json_build_object('bookingId', '', 'resourceId', '',
-      'installerFirmId', (SELECT firm_id::text FROM jobs WHERE id = ?), 'resourceFirmId', (SELECT firm_id::text FROM jobs WHERE id = ?))::text)`, [CHANNEL, jobId, jobId]);
+  await trx.raw(
+    `SELECT pg_notify(?, json_build_object('bookingId', '', 'resourceId', '',
+      'installerFirmId', (SELECT firm_id::text FROM jobs WHERE id = ?), 'resourceFirmId', (SELECT firm_id::text FROM jobs WHERE id = ?))::text)`,
+    [CHANNEL, jobId, jobId],
+  );
 }
 
 /** The LISTEN connection's `application_name` in pg_stat_activity. */
@@ -36,10 +47,18 @@ export const KEEP_ALIVE_MS = 25_000;
 const RECONNECT_MIN_MS = 500;
 const RECONNECT_MAX_MS = 10_000;
 
-interface Subscriber { reader: StreamReader; userId: string; sessionId: string; res: Response }
+interface Subscriber {
+  reader: StreamReader;
+  userId: string;
+  sessionId: string;
+  res: Response;
+}
 
 /** The stored session as express-session keeps it (connect-pg-simple's `sess` column). */
-interface StoredSession { userId?: string; firmId?: string }
+interface StoredSession {
+  userId?: string;
+  firmId?: string;
+}
 
 /**
  * Server-sent events for the board. Each server process LISTENs on one PostgreSQL connection and
@@ -62,7 +81,10 @@ export class BoardStream {
   // Deliveries run one after another, so events keep the order PostgreSQL sent them in.
   private queue: Promise<void> = Promise.resolve();
 
-  constructor(private readonly databaseUrl: string, private readonly knex: Knex) {}
+  constructor(
+    private readonly databaseUrl: string,
+    private readonly knex: Knex,
+  ) {}
 
   /**
    * Makes sure this process LISTENs: the first stream waits for the first connection; while a
@@ -74,7 +96,9 @@ export class BoardStream {
     this.heartbeat ??= setInterval(() => this.enqueue(() => this.keepAlive()), KEEP_ALIVE_MS);
     this.heartbeat.unref();
     if (this.client || this.retry) return;
-    this.connecting ??= this.connect().finally(() => { this.connecting = null; });
+    this.connecting ??= this.connect().finally(() => {
+      this.connecting = null;
+    });
     await this.connecting;
   }
 
@@ -124,7 +148,9 @@ export class BoardStream {
     this.retry = setTimeout(() => {
       this.retry = null;
       if (this.closed || this.client) return;
-      this.connecting ??= this.connect().finally(() => { this.connecting = null; });
+      this.connecting ??= this.connect().finally(() => {
+        this.connecting = null;
+      });
     }, wait);
     this.retry.unref();
   }
@@ -136,13 +162,23 @@ export class BoardStream {
   /** The subscribers among `list` whose session is still the one their stream was opened for. */
   private async live(list: Subscriber[]): Promise<Set<Subscriber>> {
     if (this.closed || list.length === 0) return new Set();
-    const rows = await this.knex('session').whereIn('sid', [...new Set(list.map((s) => s.sessionId))])
-      .where('expire', '>', new Date()).select('sid', 'sess') as { sid: string; sess: StoredSession | string }[];
-    const bySid = new Map(rows.map((r) => [r.sid, (typeof r.sess === 'string' ? JSON.parse(r.sess) : r.sess) as StoredSession]));
-    return new Set(list.filter((s) => {
-      const sess = bySid.get(s.sessionId);
-      return sess !== undefined && String(sess.userId) === s.userId && (sess.firmId === undefined || String(sess.firmId) === s.reader.firmId);
-    }));
+    const rows = (await this.knex('session')
+      .whereIn('sid', [...new Set(list.map((s) => s.sessionId))])
+      .where('expire', '>', new Date())
+      .select('sid', 'sess')) as { sid: string; sess: StoredSession | string }[];
+    const bySid = new Map(
+      rows.map((r) => [r.sid, (typeof r.sess === 'string' ? JSON.parse(r.sess) : r.sess) as StoredSession]),
+    );
+    return new Set(
+      list.filter((s) => {
+        const sess = bySid.get(s.sessionId);
+        return (
+          sess !== undefined &&
+          String(sess.userId) === s.userId &&
+          (sess.firmId === undefined || String(sess.firmId) === s.reader.firmId)
+        );
+      }),
+    );
   }
 
   private end(s: Subscriber): void {
@@ -152,7 +188,11 @@ export class BoardStream {
 
   private async deliver(payload: string): Promise<void> {
     let change: BookingChange;
-    try { change = JSON.parse(payload) as BookingChange; } catch { return; }
+    try {
+      change = JSON.parse(payload) as BookingChange;
+    } catch {
+      return;
+    }
     const listeners = [...this.subscribers].filter((s) => mayHearOf(s.reader, change));
     const live = await this.live(listeners);
     const data = JSON.stringify(streamEvent(change));
@@ -183,14 +223,25 @@ export class BoardStream {
 
   /** Opens a stream for one signed-in person; it ends when they leave or their session ends. */
   async open(req: Request, res: Response, actor: Actor): Promise<void> {
-    if (this.closed) { res.status(503).end(); return; }
+    if (this.closed) {
+      res.status(503).end();
+      return;
+    }
     await this.listen();
     const reach = reachOf(actor);
-    const own = reach === 'crew' ? (await ownResourceIds(this.knex, actor)) as { id: string }[] : [];
+    const own = reach === 'crew' ? ((await ownResourceIds(this.knex, actor)) as { id: string }[]) : [];
     const reader: StreamReader = { reach, firmId: actor.firmId, ownResourceIds: new Set(own.map((r) => String(r.id))) };
     // Closed while this stream was being set up: nobody would end it.
-    if (this.closed) { res.status(503).end(); return; }
-    res.status(200).set({ 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-cache, no-transform', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
+    if (this.closed) {
+      res.status(503).end();
+      return;
+    }
+    res.status(200).set({
+      'Content-Type': 'text/event-stream',
+      'Cache-Control': 'no-cache, no-transform',
+      Connection: 'keep-alive',
+      'X-Accel-Buffering': 'no',
+    });
     res.flushHeaders();
     res.write('retry: 3000\n\n');
     const subscriber: Subscriber = { reader, userId: actor.userId, sessionId: req.sessionID, res };

@@ -14,7 +14,11 @@ export const BOARD_NOW_STEP_MS = 60_000;
 /** Rows a change may commit behind (a transaction that took its id earlier but committed later). */
 const LATE_COMMIT_WINDOW = 1000;
 
-export interface BoardWindow { from: number; to: number; now: number }
+export interface BoardWindow {
+  from: number;
+  to: number;
+  now: number;
+}
 
 /**
  * The weak ETag of a board window as this actor reads it, from one indexed query: the latest
@@ -27,12 +31,24 @@ export interface BoardWindow { from: number; to: number; now: number }
  */
 export async function boardEtag(knex: Knex, actor: Actor, window: BoardWindow): Promise<string> {
   // Per firm, the newest row from the end of its index; then the recent rows of all of them.
-  const { rows } = await knex.raw(`WITH f(firm_id) AS (?),
+  const { rows } = await knex.raw(
+    `WITH f(firm_id) AS (?),
     t AS (SELECT max(m.id) AS top FROM f CROSS JOIN LATERAL (SELECT max(c.id) AS id FROM board_changes c WHERE c.firm_id = f.firm_id) m)
     SELECT t.top, (SELECT count(*) FROM board_changes c WHERE c.firm_id IN (SELECT firm_id FROM f) AND c.id > t.top - ?) AS recent FROM t`,
-  [visibleFirmIds(knex, actor), LATE_COMMIT_WINDOW]);
+    [visibleFirmIds(knex, actor), LATE_COMMIT_WINDOW],
+  );
   const version = rows[0] as { top: string | null; recent: string };
-  const key = [PROCESS_ID, actor.userId, actor.firmId, actor.role, window.from, window.to, Math.floor(window.now / BOARD_NOW_STEP_MS), version.top ?? 0, version.recent].join('|');
+  const key = [
+    PROCESS_ID,
+    actor.userId,
+    actor.firmId,
+    actor.role,
+    window.from,
+    window.to,
+    Math.floor(window.now / BOARD_NOW_STEP_MS),
+    version.top ?? 0,
+    version.recent,
+  ].join('|');
   return `W/"b-${createHash('sha256').update(key).digest('base64url').slice(0, 27)}"`;
 }
 

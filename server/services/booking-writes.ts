@@ -1,6 +1,12 @@
 import type { Knex } from 'knex';
 import {
-  addWorkingMinutes, createBoardIndex, formatInstant, localDayOf, resourceCalendarOf, type BoardIndex, type Violation,
+  addWorkingMinutes,
+  createBoardIndex,
+  formatInstant,
+  localDayOf,
+  resourceCalendarOf,
+  type BoardIndex,
+  type Violation,
 } from '../../shared/scheduler/index.ts';
 import { toEngineBoard } from '../../shared/board-data.ts';
 import { nextState, type BookingAction, type BookingParty, type ResourceSide } from '../../shared/booking-states.ts';
@@ -30,19 +36,27 @@ export const DEFAULT_BOOKING_LIMITS: BookingLimits = { pastDays: 730, futureDays
 
 /** A change based on a booking version someone else has replaced. */
 export class StaleVersionError extends ConflictError {
-  constructor(detail: string, current: unknown) { super(detail, { code: 'stale-version', current }); }
+  constructor(detail: string, current: unknown) {
+    super(detail, { code: 'stale-version', current });
+  }
 }
 
 /** The state machine said no: 409 naming the transition in plain words. */
 export class TransitionRefusedError extends ConflictError {
-  constructor(readonly action: BookingAction, readonly from: BookingState | null, detail: string) {
+  constructor(
+    readonly action: BookingAction,
+    readonly from: BookingState | null,
+    detail: string,
+  ) {
     super(detail, { code: 'transition-refused', action, from });
   }
 }
 
 /** The resource is already held (confirmed or on site) then: PostgreSQL's exclusion constraint. */
 export class ResourceHeldError extends ConflictError {
-  constructor(detail: string) { super(detail, { code: 'double-booked' }); }
+  constructor(detail: string) {
+    super(detail, { code: 'double-booked' });
+  }
 }
 
 /** Who is writing: a signed-in person, or the holder of an e-mailed link acting for a partner firm. */
@@ -57,29 +71,57 @@ export function partyOf(actor: Actor): BookingParty {
   return reach === 'installer-office' ? 'office' : reach;
 }
 
-interface TimedChange { startsAt: number; endsAt?: number | undefined }
+interface TimedChange {
+  startsAt: number;
+  endsAt?: number | undefined;
+}
 
 export type BookingChange =
   | ({ action: 'book' | 'book-confirmed'; stageId: string; resourceId: string } & TimedChange)
-  | ({ action: 'move' | 'take-proposal'; bookingId: string; version?: number | undefined; resourceId?: string | undefined } & TimedChange)
+  | ({
+      action: 'move' | 'take-proposal';
+      bookingId: string;
+      version?: number | undefined;
+      resourceId?: string | undefined;
+    } & TimedChange)
   | { action: 'assign'; bookingId: string; version?: number | undefined; resourceId: string }
   | {
-    action: Exclude<BookingAction, 'book' | 'book-confirmed' | 'move' | 'take-proposal' | 'assign'>; bookingId: string; version?: number | undefined;
-    /** A partner's own words with a decline or proposal: kept in the audit row beside the change. */
-    reason?: string | undefined;
-  };
+      action: Exclude<BookingAction, 'book' | 'book-confirmed' | 'move' | 'take-proposal' | 'assign'>;
+      bookingId: string;
+      version?: number | undefined;
+      /** A partner's own words with a decline or proposal: kept in the audit row beside the change. */
+      reason?: string | undefined;
+    };
 
 /** A change to a booking that exists (a declined booking dropped again is rebooked). */
-type StoredChange = Exclude<BookingChange, { action: 'book' | 'book-confirmed' }>
-  | ({ action: 'rebook'; bookingId: string; version?: number | undefined; resourceId?: string | undefined } & TimedChange);
+type StoredChange =
+  | Exclude<BookingChange, { action: 'book' | 'book-confirmed' }>
+  | ({
+      action: 'rebook';
+      bookingId: string;
+      version?: number | undefined;
+      resourceId?: string | undefined;
+    } & TimedChange);
 
 /** One booking before and after a change (`after` null when it was taken off). */
-export interface WrittenBooking { action: BookingAction; before: Booking | null; after: Booking | null }
+export interface WrittenBooking {
+  action: BookingAction;
+  before: Booking | null;
+  after: Booking | null;
+}
 
 /** Names for the sentences a refusal speaks (people, machines, stages, jobs). */
-async function namesOf(trx: Knex.Transaction, stageId: string, resourceId: string): Promise<{ stage: string; resource: string; job: string }> {
-  const row = await trx('stages as s').join('jobs as j', 'j.id', 's.job_id').crossJoin(trx.raw('resources as r'))
-    .where('s.id', stageId).where('r.id', resourceId).first('s.name as stage', 'r.name as resource', 'j.reference as job');
+async function namesOf(
+  trx: Knex.Transaction,
+  stageId: string,
+  resourceId: string,
+): Promise<{ stage: string; resource: string; job: string }> {
+  const row = await trx('stages as s')
+    .join('jobs as j', 'j.id', 's.job_id')
+    .crossJoin(trx.raw('resources as r'))
+    .where('s.id', stageId)
+    .where('r.id', resourceId)
+    .first('s.name as stage', 'r.name as resource', 'j.reference as job');
   return row ?? { stage: 'this stage', resource: 'this resource', job: 'this job' };
 }
 
@@ -107,7 +149,11 @@ export class BookingWork {
   private readonly resources = new Map<string, Resource>();
   private readonly installerOfStage = new Map<string, string>();
 
-  constructor(readonly trx: Knex.Transaction, readonly ctx: WriteContext, private readonly writer: BookingWriter) {}
+  constructor(
+    readonly trx: Knex.Transaction,
+    readonly ctx: WriteContext,
+    private readonly writer: BookingWriter,
+  ) {}
 
   /**
    * Locks and reads many bookings the work is about to change in one query (in id order), with their
@@ -123,13 +169,17 @@ export class BookingWork {
     for (const row of rows) this.locked.set(String(row.id), row);
     await this.readStages(rows.map((r) => String(r.stageId)));
     const resourceIds = [...new Set(rows.map((r) => String(r.resourceId)))].filter((id) => !this.resources.has(id));
-    if (resourceIds.length) for (const r of await Resource.query(this.trx).whereIn('id', resourceIds)) this.resources.set(String(r.id), r);
+    if (resourceIds.length)
+      for (const r of await Resource.query(this.trx).whereIn('id', resourceIds)) this.resources.set(String(r.id), r);
   }
 
   private async readStages(stageIds: string[]): Promise<void> {
     const wanted = [...new Set(stageIds)].filter((id) => !this.stages.has(id));
     if (wanted.length === 0) return;
-    const rows = await Stage.query(this.trx).join('jobs', 'jobs.id', 'stages.job_id').whereIn('stages.id', wanted).select('stages.*', 'jobs.firm_id as installerFirmId');
+    const rows = await Stage.query(this.trx)
+      .join('jobs', 'jobs.id', 'stages.job_id')
+      .whereIn('stages.id', wanted)
+      .select('stages.*', 'jobs.firm_id as installerFirmId');
     for (const row of rows) {
       this.installerOfStage.set(String(row.id), String((row as Stage & { installerFirmId: string }).installerFirmId));
       this.stages.set(String(row.id), row);
@@ -144,7 +194,7 @@ export class BookingWork {
   /** A booking the writer may see, locked for this transaction, at the version the caller saw. */
   async booking(id: string, version?: number): Promise<Booking> {
     const query = this.ctx.actor ? scoped(Booking, this.ctx.actor, this.trx) : Booking.query(this.trx);
-    const row = this.locked.get(String(id)) ?? await query.findById(id).forUpdate();
+    const row = this.locked.get(String(id)) ?? (await query.findById(id).forUpdate());
     this.locked.delete(String(id));
     if (!row) throw new NotFoundError('booking');
     if (version !== undefined && row.version !== version) {
@@ -154,10 +204,13 @@ export class BookingWork {
   }
 
   /** Whose resource a booking holds, seen from the installer whose job it is. */
-  private async sideOf(stageId: string, resourceId: string): Promise<{ side: ResourceSide; installerFirmId: string; resource: Resource }> {
+  private async sideOf(
+    stageId: string,
+    resourceId: string,
+  ): Promise<{ side: ResourceSide; installerFirmId: string; resource: Resource }> {
     await this.readStages([String(stageId)]);
     const firmId = this.installerOfStage.get(String(stageId));
-    const resource = this.resources.get(String(resourceId)) ?? await Resource.query(this.trx).findById(resourceId);
+    const resource = this.resources.get(String(resourceId)) ?? (await Resource.query(this.trx).findById(resourceId));
     if (!firmId || !resource) throw new NotFoundError(firmId ? 'resource' : 'stage');
     this.resources.set(String(resourceId), resource);
     const installerFirmId = firmId;
@@ -184,8 +237,10 @@ export class BookingWork {
     const { pastDays, futureDays } = this.writer.limits;
     const now = this.writer.now();
     if (!Number.isFinite(instant) || instant < now - pastDays * DAY || instant > now + futureDays * DAY) {
-      throw new BadRequestError(`Bookings must lie between ${Math.round(pastDays / 365)} years ago and ${Math.round(futureDays / 365)} years ahead.`,
-        [{ field, message: `must be within ${pastDays} days before and ${futureDays} days after today` }]);
+      throw new BadRequestError(
+        `Bookings must lie between ${Math.round(pastDays / 365)} years ago and ${Math.round(futureDays / 365)} years ahead.`,
+        [{ field, message: `must be within ${pastDays} days before and ${futureDays} days after today` }],
+      );
     }
   }
 
@@ -194,17 +249,26 @@ export class BookingWork {
     this.checkWindow(fields.start, startsAt);
     if (endsAt === undefined) return;
     this.checkWindow(fields.end, endsAt);
-    if (endsAt <= startsAt) throw new BadRequestError('A booking must end after it starts.', [{ field: fields.end, message: 'must be after the start' }]);
+    if (endsAt <= startsAt)
+      throw new BadRequestError('A booking must end after it starts.', [
+        { field: fields.end, message: 'must be after the start' },
+      ]);
   }
 
   /** The engine's index of the job in play, loaded once per unit of work for calendars and durations. */
   private async engineIndex(stageId: string, around: number): Promise<BoardIndex> {
     if (this.index?.stages.has(stageId)) return this.index;
-    const row = await this.trx('stages as s').join('jobs as j', 'j.id', 's.job_id').where('s.id', stageId).first('s.job_id', 'j.firm_id');
+    const row = await this.trx('stages as s')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .where('s.id', stageId)
+      .first('s.job_id', 'j.firm_id');
     if (!row) throw new NotFoundError('stage');
     const now = this.writer.now();
     const data = await loadBoard(this.trx, this.writer.installerOffice(String(row.firmId), this.ctx.actor), {
-      from: around - DAY, to: around + DAY, jobIds: [String(row.jobId)], now,
+      from: around - DAY,
+      to: around + DAY,
+      jobIds: [String(row.jobId)],
+      now,
     });
     this.index = createBoardIndex(toEngineBoard(data), { now });
     return this.index;
@@ -219,13 +283,18 @@ export class BookingWork {
     const finite = starts.filter(Number.isFinite);
     // A batch spread wider than a board window (or out of bounds, refused item by item) loads as before.
     if (stageIds.length === 0 || finite.length === 0 || Math.max(...finite) - Math.min(...finite) > 100 * DAY) return;
-    const rows = await this.trx('stages as s').join('jobs as j', 'j.id', 's.job_id').whereIn('s.id', [...new Set(stageIds.map(String))])
-      .distinct('s.job_id', 'j.firm_id') as { jobId: string; firmId: string }[];
+    const rows = (await this.trx('stages as s')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .whereIn('s.id', [...new Set(stageIds.map(String))])
+      .distinct('s.job_id', 'j.firm_id')) as { jobId: string; firmId: string }[];
     const firms = new Set(rows.map((r) => String(r.firmId)));
     if (firms.size !== 1) return;
     const now = this.writer.now();
     const data = await loadBoard(this.trx, this.writer.installerOffice([...firms][0]!, this.ctx.actor), {
-      from: Math.min(...finite) - DAY, to: Math.max(...finite) + DAY, jobIds: rows.map((r) => String(r.jobId)), now,
+      from: Math.min(...finite) - DAY,
+      to: Math.max(...finite) + DAY,
+      jobIds: rows.map((r) => String(r.jobId)),
+      now,
     });
     this.index = createBoardIndex(toEngineBoard(data), { now });
   }
@@ -245,8 +314,15 @@ export class BookingWork {
     const longest = addWorkingMinutes(cal, start, stage.durationMinutes + this.writer.limits.extraWorkingMinutes);
     if (end > longest) {
       const hours = Math.round(stage.durationMinutes / 6) / 10;
-      throw new BadRequestError(`'${stage.name}' needs ${hours} working hours; this booking would run until ${formatInstant(end, cal.timeZone)}.`,
-        [{ field: 'endsAt', message: `must be no later than ${formatInstant(longest, cal.timeZone)} (the stage's working time plus ${this.writer.limits.extraWorkingMinutes / 60} working hours)` }]);
+      throw new BadRequestError(
+        `'${stage.name}' needs ${hours} working hours; this booking would run until ${formatInstant(end, cal.timeZone)}.`,
+        [
+          {
+            field: 'endsAt',
+            message: `must be no later than ${formatInstant(longest, cal.timeZone)} (the stage's working time plus ${this.writer.limits.extraWorkingMinutes / 60} working hours)`,
+          },
+        ],
+      );
     }
   }
 
@@ -254,16 +330,26 @@ export class BookingWork {
   private checkKind(stage: Stage, resource: Resource): void {
     const kinds = (stage.requirements ?? []).map((r) => r.kind);
     if (kinds.length && !kinds.includes(resource.kind)) {
-      throw new UnprocessableError(`${resource.name} is a ${resource.kind.replace(/_/g, ' ')}; '${stage.name}' needs ${kinds.map((k) => k.replace(/_/g, ' ')).join(', ')}.`,
-        { code: 'wrong-kind', violations: [{ kind: 'wrong-kind', severity: 'error', message: `'${stage.name}' can't be done by ${resource.name}` }] });
+      throw new UnprocessableError(
+        `${resource.name} is a ${resource.kind.replace(/_/g, ' ')}; '${stage.name}' needs ${kinds.map((k) => k.replace(/_/g, ' ')).join(', ')}.`,
+        {
+          code: 'wrong-kind',
+          violations: [
+            { kind: 'wrong-kind', severity: 'error', message: `'${stage.name}' can't be done by ${resource.name}` },
+          ],
+        },
+      );
     }
   }
 
   /** Applies one change; the engine's verdict on all of them comes when the work is done. */
   async apply(change: BookingChange): Promise<Booking | null> {
     switch (change.action) {
-      case 'book': case 'book-confirmed': return this.book(change);
-      default: return this.change(change);
+      case 'book':
+      case 'book-confirmed':
+        return this.book(change);
+      default:
+        return this.change(change);
     }
   }
 
@@ -274,25 +360,43 @@ export class BookingWork {
     const stage = await findVisible(Stage, actor, change.stageId, this.trx, 'stage');
     const resource = await findVisible(Resource, actor, change.resourceId, this.trx, 'resource');
     this.checkKind(stage, resource);
-    const existing = await Booking.query(this.trx).where({ stageId: change.stageId, resourceId: change.resourceId }).forUpdate().first();
+    const existing = await Booking.query(this.trx)
+      .where({ stageId: change.stageId, resourceId: change.resourceId })
+      .forUpdate()
+      .first();
     if (existing?.state === 'declined') {
       // Dropping the stage on the same person again after they declined: the declined booking is rebooked.
-      return (await this.change({ action: 'rebook', bookingId: String(existing.id), startsAt: change.startsAt, endsAt: change.endsAt }))!;
+      return (await this.change({
+        action: 'rebook',
+        bookingId: String(existing.id),
+        startsAt: change.startsAt,
+        endsAt: change.endsAt,
+      }))!;
     }
     if (existing) {
       const names = await namesOf(this.trx, change.stageId, change.resourceId);
-      throw new ConflictError(`${names.resource} already has '${names.stage}' on ${names.job}.`, { code: 'already-booked', bookingId: String(existing.id) });
+      throw new ConflictError(`${names.resource} already has '${names.stage}' on ${names.job}.`, {
+        code: 'already-booked',
+        bookingId: String(existing.id),
+      });
     }
     const { side } = await this.sideOf(change.stageId, change.resourceId);
     const state = this.stateAfter(change.action, null, side) as BookingState;
-    const endsAt = change.endsAt ?? await this.naturalEnd(stage, change.resourceId, change.startsAt);
+    const endsAt = change.endsAt ?? (await this.naturalEnd(stage, change.resourceId, change.startsAt));
     await this.checkLength(stage, change.resourceId, change.startsAt, endsAt);
-    const created = await this.writer.guard(this.trx, change.stageId, change.resourceId, (sp) => Booking.query(sp).insert({
-      stageId: change.stageId, resourceId: change.resourceId, startsAt: new Date(change.startsAt), endsAt: new Date(endsAt),
-      state, createdBy: actor.userId,
-    } as Partial<Booking>));
+    const created = await this.writer.guard(this.trx, change.stageId, change.resourceId, (sp) =>
+      Booking.query(sp).insert({
+        stageId: change.stageId,
+        resourceId: change.resourceId,
+        startsAt: new Date(change.startsAt),
+        endsAt: new Date(endsAt),
+        state,
+        createdBy: actor.userId,
+      } as Partial<Booking>),
+    );
     await this.record(change.action, null, created);
-    if (state === 'confirmed') await queueCustomerNotice(this.trx, { bookingId: String(created.id), event: 'confirmed' });
+    if (state === 'confirmed')
+      await queueCustomerNotice(this.trx, { bookingId: String(created.id), event: 'confirmed' });
     this.checkStages.add(String(created.stageId));
     return created;
   }
@@ -319,81 +423,131 @@ export class BookingWork {
 
     const patch: Partial<Booking> = { state: to, version: before.version + 1, updatedAt: new Date() };
     let newResource: { side: ResourceSide; resource: Resource } | null = null;
-    const resourceId = 'resourceId' in change && change.resourceId ? String(change.resourceId) : String(before.resourceId);
+    const resourceId =
+      'resourceId' in change && change.resourceId ? String(change.resourceId) : String(before.resourceId);
     if (resourceId !== String(before.resourceId)) {
-      const resource = this.ctx.actor ? await findVisible(Resource, this.ctx.actor, resourceId, this.trx, 'resource') : null;
+      const resource = this.ctx.actor
+        ? await findVisible(Resource, this.ctx.actor, resourceId, this.trx, 'resource')
+        : null;
       if (!resource) throw new NotFoundError('resource');
       const stage = (await this.stage(stageId))!;
       this.checkKind(stage, resource);
       const taken = await Booking.query(this.trx).where({ stageId, resourceId }).whereNot('id', before.id).first();
       if (taken) {
         const names = await namesOf(this.trx, stageId, resourceId);
-        throw new ConflictError(`${names.resource} already has '${names.stage}' on ${names.job}.`, { code: 'already-booked', bookingId: String(taken.id) });
+        throw new ConflictError(`${names.resource} already has '${names.stage}' on ${names.job}.`, {
+          code: 'already-booked',
+          bookingId: String(taken.id),
+        });
       }
       newResource = { side: String(resource.firmId) === installerFirmId ? 'own' : 'partner', resource };
       patch.resourceId = resourceId;
       // On another resource the booking starts over there: asked again of a partner it had been sent to, pencilled otherwise.
       if (action === 'move' || action === 'rebook') {
-        patch.state = newResource.side === 'partner' ? (['sent', 'confirmed'].includes(before.state) ? 'sent' : 'pencilled')
-          : side === 'own' ? to : 'pencilled';
+        patch.state =
+          newResource.side === 'partner'
+            ? ['sent', 'confirmed'].includes(before.state)
+              ? 'sent'
+              : 'pencilled'
+            : side === 'own'
+              ? to
+              : 'pencilled';
       }
     }
     if (timed) {
       const stage = (await this.stage(stageId))!;
       this.checkTimes(change.startsAt, change.endsAt);
       const start = change.startsAt;
-      const end = change.endsAt ?? await this.naturalEnd(stage, resourceId, start);
+      const end = change.endsAt ?? (await this.naturalEnd(stage, resourceId, start));
       await this.checkLength(stage, resourceId, start, end);
       patch.startsAt = new Date(start);
       patch.endsAt = new Date(end);
     }
-    const changes = patch.state !== before.state || patch.resourceId !== undefined
-      || (patch.startsAt !== undefined && patch.startsAt.getTime() !== before.startsAt.getTime())
-      || (patch.endsAt !== undefined && patch.endsAt.getTime() !== before.endsAt.getTime());
+    const changes =
+      patch.state !== before.state ||
+      patch.resourceId !== undefined ||
+      (patch.startsAt !== undefined && patch.startsAt.getTime() !== before.startsAt.getTime()) ||
+      (patch.endsAt !== undefined && patch.endsAt.getTime() !== before.endsAt.getTime());
     // The version counts changes to the booking (and a fresh request about it); a proposal changes neither.
-    const after = changes || action === 'refuse-proposal'
-      ? await this.writer.guard(this.trx, stageId, resourceId, (sp) => Booking.query(sp).patchAndFetchById(before.id, patch))
-      : before;
+    const after =
+      changes || action === 'refuse-proposal'
+        ? await this.writer.guard(this.trx, stageId, resourceId, (sp) =>
+            Booking.query(sp).patchAndFetchById(before.id, patch),
+          )
+        : before;
     await this.messages(action, before, after, side, newResource?.side ?? side);
     await this.record(action, before, after, installerFirmId, 'reason' in change ? change.reason : undefined);
-    const moved = before.startsAt.getTime() !== after.startsAt.getTime() || before.endsAt.getTime() !== after.endsAt.getTime();
+    const moved =
+      before.startsAt.getTime() !== after.startsAt.getTime() || before.endsAt.getTime() !== after.endsAt.getTime();
     if (moved || newResource || action === 'send') this.checkStages.add(stageId);
     return after;
   }
 
   /** What a change means for the partner and the householder, in this transaction. */
-  private async messages(action: BookingAction, before: Booking, after: Booking, side: ResourceSide, newSide: ResourceSide): Promise<void> {
+  private async messages(
+    action: BookingAction,
+    before: Booking,
+    after: Booking,
+    side: ResourceSide,
+    newSide: ResourceSide,
+  ): Promise<void> {
     const id = String(after.id);
     const wasOut = side === 'partner' && ['sent', 'confirmed'].includes(before.state);
-    const moved = before.startsAt.getTime() !== after.startsAt.getTime() || before.endsAt.getTime() !== after.endsAt.getTime();
+    const moved =
+      before.startsAt.getTime() !== after.startsAt.getTime() || before.endsAt.getTime() !== after.endsAt.getTime();
     const newResource = String(before.resourceId) !== String(after.resourceId);
     switch (action) {
       case 'send':
         await queueBookingMessage(this.trx, { bookingId: id, kind: 'request', version: after.version });
         break;
       case 'withdraw':
-        await queueBookingMessage(this.trx, { bookingId: id, kind: 'cancel', version: after.version, resourceId: String(before.resourceId) });
+        await queueBookingMessage(this.trx, {
+          bookingId: id,
+          kind: 'cancel',
+          version: after.version,
+          resourceId: String(before.resourceId),
+        });
         break;
       case 'refuse-proposal':
-        await enqueueMessage(this.trx, `booking.${id}.v${after.version}.refused`, 'proposal_refused', { bookingId: id, version: after.version });
-        await this.trx('booking_requests').insert({ booking_id: id, booking_version: after.version, resource_id: after.resourceId })
-          .onConflict(['booking_id', 'booking_version']).ignore();
+        await enqueueMessage(this.trx, `booking.${id}.v${after.version}.refused`, 'proposal_refused', {
+          bookingId: id,
+          version: after.version,
+        });
+        await this.trx('booking_requests')
+          .insert({ booking_id: id, booking_version: after.version, resource_id: after.resourceId })
+          .onConflict(['booking_id', 'booking_version'])
+          .ignore();
         break;
       case 'assign':
-        if (after.state === 'sent') await queueBookingMessage(this.trx, { bookingId: id, kind: 'update', version: after.version });
+        if (after.state === 'sent')
+          await queueBookingMessage(this.trx, { bookingId: id, kind: 'update', version: after.version });
         break;
       case 'accept':
         // The partner's calendar entry turns from tentative to confirmed (same UID, the new version as SEQUENCE).
-        await enqueueMessage(this.trx, `booking.${id}.v${after.version}.confirmed`, 'booking_confirmed', { bookingId: id, version: after.version });
+        await enqueueMessage(this.trx, `booking.${id}.v${after.version}.confirmed`, 'booking_confirmed', {
+          bookingId: id,
+          version: after.version,
+        });
         break;
       case 'decline':
         // The installer's schedulers hear of it at once: a declined slot is work for them (book it again).
-        await enqueueMessage(this.trx, `booking.${id}.v${after.version}.declined`, 'booking_declined', { bookingId: id, version: after.version });
+        await enqueueMessage(this.trx, `booking.${id}.v${after.version}.declined`, 'booking_declined', {
+          bookingId: id,
+          version: after.version,
+        });
         break;
-      case 'move': case 'take-proposal': case 'rebook':
+      case 'move':
+      case 'take-proposal':
+      case 'rebook':
         if (wasOut && newResource) {
-          await queueBookingMessage(this.trx, { bookingId: id, kind: 'cancel', version: after.version, resourceId: String(before.resourceId) });
-          if (newSide === 'partner' && after.state === 'sent') await queueBookingMessage(this.trx, { bookingId: id, kind: 'request', version: after.version });
+          await queueBookingMessage(this.trx, {
+            bookingId: id,
+            kind: 'cancel',
+            version: after.version,
+            resourceId: String(before.resourceId),
+          });
+          if (newSide === 'partner' && after.state === 'sent')
+            await queueBookingMessage(this.trx, { bookingId: id, kind: 'request', version: after.version });
         } else if (wasOut && (moved || action === 'take-proposal')) {
           await queueBookingMessage(this.trx, { bookingId: id, kind: 'update', version: after.version });
         }
@@ -409,12 +563,27 @@ export class BookingWork {
     }
   }
 
-  private async record(action: BookingAction, before: Booking | null, after: Booking | null, installerFirmId?: string, reason?: string): Promise<void> {
+  private async record(
+    action: BookingAction,
+    before: Booking | null,
+    after: Booking | null,
+    installerFirmId?: string,
+    reason?: string,
+  ): Promise<void> {
     this.written.push({ action, before, after });
     const row = (after ?? before)!;
     const firmId = installerFirmId ?? (await this.sideOf(String(row.stageId), String(row.resourceId))).installerFirmId;
     const snapshot = after ? { ...after.toJSON(), action, ...(reason ? { reason } : {}) } : null;
-    await recordChange(this.trx, this.ctx.actor, 'booking', String(row.id), before === null ? 'create' : after === null ? 'delete' : 'update', before, snapshot, firmId);
+    await recordChange(
+      this.trx,
+      this.ctx.actor,
+      'booking',
+      String(row.id),
+      before === null ? 'create' : after === null ? 'delete' : 'update',
+      before,
+      snapshot,
+      firmId,
+    );
   }
 
   /** People are on site on the day of the booking, not a week ahead: today, in the firm's zone, must fall within it. */
@@ -425,7 +594,11 @@ export class BookingWork {
     const first = localDayOf(zone, booking.startsAt.getTime());
     const last = localDayOf(zone, booking.endsAt.getTime() - 1);
     if (today < first || today > last) {
-      throw new TransitionRefusedError('arrive', booking.state, `This booking is on ${formatInstant(booking.startsAt.getTime(), zone)}: it can be marked on site on that day.`);
+      throw new TransitionRefusedError(
+        'arrive',
+        booking.state,
+        `This booking is on ${formatInstant(booking.startsAt.getTime(), zone)}: it can be marked on site on that day.`,
+      );
     }
   }
 
@@ -436,10 +609,18 @@ export class BookingWork {
 }
 
 /** What a write returns: the bookings as saved and the engine's warnings about them. */
-export interface WriteOutcome<T> { result: T; written: WrittenBooking[]; warnings: Violation[] }
+export interface WriteOutcome<T> {
+  result: T;
+  written: WrittenBooking[];
+  warnings: Violation[];
+}
 
 /** Which rows a write will touch, known before it starts: their jobs and resources are locked. */
-export interface LockScope { bookingIds?: string[]; stageIds?: string[]; resourceIds?: string[] }
+export interface LockScope {
+  bookingIds?: string[];
+  stageIds?: string[];
+  resourceIds?: string[];
+}
 
 /**
  * The guarded write path for bookings. In one transaction it
@@ -452,7 +633,11 @@ export interface LockScope { bookingIds?: string[]; stageIds?: string[]; resourc
  *    and everything else on those resources; an error rolls everything back (422).
  */
 export class BookingWriter {
-  constructor(readonly knex: Knex, readonly now: () => number = Date.now, readonly limits: BookingLimits = DEFAULT_BOOKING_LIMITS) {}
+  constructor(
+    readonly knex: Knex,
+    readonly now: () => number = Date.now,
+    readonly limits: BookingLimits = DEFAULT_BOOKING_LIMITS,
+  ) {}
 
   /** The installer's office as the engine's reader: the checks always see the whole job. */
   installerOffice(firmId: string, actor: Actor | null): Actor {
@@ -460,11 +645,24 @@ export class BookingWriter {
   }
 
   viewOf(row: Booking): Record<string, unknown> {
-    return { id: String(row.id), stageId: String(row.stageId), resourceId: String(row.resourceId), startsAt: row.startsAt.toISOString(), endsAt: row.endsAt.toISOString(), state: row.state, version: row.version };
+    return {
+      id: String(row.id),
+      stageId: String(row.stageId),
+      resourceId: String(row.resourceId),
+      startsAt: row.startsAt.toISOString(),
+      endsAt: row.endsAt.toISOString(),
+      state: row.state,
+      version: row.version,
+    };
   }
 
   /** Runs a write that PostgreSQL may refuse for an overlap of held bookings, in the user's words. */
-  async guard<T>(trx: Knex.Transaction, stageId: string, resourceId: string, write: (savepoint: Knex.Transaction) => PromiseLike<T>): Promise<T> {
+  async guard<T>(
+    trx: Knex.Transaction,
+    stageId: string,
+    resourceId: string,
+    write: (savepoint: Knex.Transaction) => PromiseLike<T>,
+  ): Promise<T> {
     try {
       // A savepoint, so the refusal can be explained with a query in the same transaction.
       return await trx.transaction(async (savepoint) => await write(savepoint));
@@ -478,20 +676,38 @@ export class BookingWriter {
   private async lock(trx: Knex.Transaction, scope: LockScope): Promise<void> {
     const bookingIds = scope.bookingIds ?? [];
     const stageIds = scope.stageIds ?? [];
-    const jobRows = await trx.raw(`SELECT DISTINCT s.job_id FROM stages s WHERE s.id = ANY(?::bigint[])
-      UNION SELECT s.job_id FROM bookings b JOIN stages s ON s.id = b.stage_id WHERE b.id = ANY(?::bigint[])`, [stageIds, bookingIds]);
+    const jobRows = await trx.raw(
+      `SELECT DISTINCT s.job_id FROM stages s WHERE s.id = ANY(?::bigint[])
+      UNION SELECT s.job_id FROM bookings b JOIN stages s ON s.id = b.stage_id WHERE b.id = ANY(?::bigint[])`,
+      [stageIds, bookingIds],
+    );
     const jobIds = (jobRows.rows as { job_id: string }[]).map((r) => String(r.job_id)).sort();
-    await this.take(trx, jobIds.map((id) => `job.${id}`));
+    await this.take(
+      trx,
+      jobIds.map((id) => `job.${id}`),
+    );
     // With the jobs held no booking of theirs can change, so their resources are now known for certain.
-    const resourceRows = await trx.raw(`SELECT DISTINCT b.resource_id FROM bookings b JOIN stages s ON s.id = b.stage_id
-      WHERE s.job_id = ANY(?::bigint[]) OR b.id = ANY(?::bigint[])`, [jobIds, bookingIds]);
-    const resourceIds = new Set([...(resourceRows.rows as { resource_id: string }[]).map((r) => String(r.resource_id)), ...(scope.resourceIds ?? []).map(String)]);
-    await this.take(trx, [...resourceIds].sort().map((id) => `resource.${id}`));
+    const resourceRows = await trx.raw(
+      `SELECT DISTINCT b.resource_id FROM bookings b JOIN stages s ON s.id = b.stage_id
+      WHERE s.job_id = ANY(?::bigint[]) OR b.id = ANY(?::bigint[])`,
+      [jobIds, bookingIds],
+    );
+    const resourceIds = new Set([
+      ...(resourceRows.rows as { resource_id: string }[]).map((r) => String(r.resource_id)),
+      ...(scope.resourceIds ?? []).map(String),
+    ]);
+    await this.take(
+      trx,
+      [...resourceIds].sort().map((id) => `resource.${id}`),
+    );
   }
 
   private async take(trx: Knex.Transaction, keys: string[]): Promise<void> {
     if (keys.length === 0) return;
-    await trx.raw(`SELECT pg_advisory_xact_lock(hashtextextended(k, 0)) FROM (SELECT unnest(?::text[]) AS k ORDER BY 1) AS keys`, [keys.sort()]);
+    await trx.raw(
+      `SELECT pg_advisory_xact_lock(hashtextextended(k, 0)) FROM (SELECT unnest(?::text[]) AS k ORDER BY 1) AS keys`,
+      [keys.sort()],
+    );
   }
 
   /**
@@ -510,7 +726,10 @@ export class BookingWriter {
     } catch (error) {
       // Two writers that PostgreSQL had to pick between: the loser is told to try again, not a 500.
       if (isPgError(error, '40P01') || isPgError(error, '40001')) {
-        throw new ConflictError('Another change to the same bookings was saved at the same moment: reload and try again.', { code: 'write-conflict' });
+        throw new ConflictError(
+          'Another change to the same bookings was saved at the same moment: reload and try again.',
+          { code: 'write-conflict' },
+        );
       }
       throw error;
     }
@@ -519,12 +738,15 @@ export class BookingWriter {
   /** The engine's verdict per installer whose stages changed, reading as that installer's office. */
   private async verify(trx: Knex.Transaction, ctx: WriteContext, stageIds: string[]): Promise<Violation[]> {
     if (stageIds.length === 0) return [];
-    const rows = await trx('stages as s').join('jobs as j', 'j.id', 's.job_id').whereIn('s.id', stageIds).select('s.id', 'j.firm_id') as { id: string; firmId: string }[];
+    const rows = (await trx('stages as s')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .whereIn('s.id', stageIds)
+      .select('s.id', 'j.firm_id')) as { id: string; firmId: string }[];
     const byFirm = new Map<string, string[]>();
     for (const r of rows) byFirm.set(String(r.firmId), [...(byFirm.get(String(r.firmId)) ?? []), String(r.id)]);
     const warnings: Violation[] = [];
-    for (const [firmId, ids] of byFirm) warnings.push(...await verifyStages(trx, this.installerOffice(firmId, ctx.actor), ids, this.now()));
+    for (const [firmId, ids] of byFirm)
+      warnings.push(...(await verifyStages(trx, this.installerOffice(firmId, ctx.actor), ids, this.now())));
     return warnings;
   }
 }
-

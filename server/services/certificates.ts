@@ -32,13 +32,29 @@ export interface StoredCertificate {
  * and the office's waiver or null. No reader's scope: callers have already decided the job is theirs.
  */
 export async function loadCertificate(trx: Db, jobId: string): Promise<StoredCertificate> {
-  const row = await trx('electrical_certificates as c').join('job_files as f', 'f.id', 'c.file_id').where('c.job_id', jobId)
+  const row = await trx('electrical_certificates as c')
+    .join('job_files as f', 'f.id', 'c.file_id')
+    .where('c.job_id', jobId)
     .first('c.file_id', 'f.name', 'f.object_key', 'c.uploaded_by_firm_id', 'c.uploaded_at');
-  const job = await trx('jobs').where('id', jobId).first('certificate_waiver_reason', 'certificate_waived_by', 'certificate_waived_at');
+  const job = await trx('jobs')
+    .where('id', jobId)
+    .first('certificate_waiver_reason', 'certificate_waived_by', 'certificate_waived_at');
   return {
-    certificate: row ? { fileId: String(row.fileId), name: row.name, storageKey: row.objectKey, uploadedByFirmId: String(row.uploadedByFirmId), uploadedAt: row.uploadedAt } : null,
+    certificate: row
+      ? {
+          fileId: String(row.fileId),
+          name: row.name,
+          storageKey: row.objectKey,
+          uploadedByFirmId: String(row.uploadedByFirmId),
+          uploadedAt: row.uploadedAt,
+        }
+      : null,
     waiver: job?.certificateWaiverReason
-      ? { reason: job.certificateWaiverReason, by: job.certificateWaivedBy === null ? null : String(job.certificateWaivedBy), at: job.certificateWaivedAt }
+      ? {
+          reason: job.certificateWaiverReason,
+          by: job.certificateWaivedBy === null ? null : String(job.certificateWaivedBy),
+          at: job.certificateWaivedAt,
+        }
       : null,
   };
 }
@@ -52,11 +68,16 @@ export async function certificateGapsOf(trx: Db, jobId: string): Promise<string[
   if (!connects) return [];
   const { certificate, waiver } = await loadCertificate(trx, jobId);
   if (certificate || waiver) return [];
-  return ["No electrical certificate: the electrician uploads it from their slot or the link in their e-mail, or the office records why the job may be handed over without it."];
+  return [
+    'No electrical certificate: the electrician uploads it from their slot or the link in their e-mail, or the office records why the job may be handed over without it.',
+  ];
 }
 
 /** Claims of a certificate link: the booking and the partner firm whose booking it was when the link was made. */
-export interface CertificateClaims { bookingId: string; firmId: string }
+export interface CertificateClaims {
+  bookingId: string;
+  firmId: string;
+}
 
 const ISSUER = 'waterline';
 const AUDIENCE = 'certificate';
@@ -69,23 +90,38 @@ const AUDIENCE = 'certificate';
  */
 export class CertificateLinks {
   private readonly key: Uint8Array;
-  constructor(secret: string) { this.key = new TextEncoder().encode(secret); }
+  constructor(secret: string) {
+    this.key = new TextEncoder().encode(secret);
+  }
 
   sign(claims: CertificateClaims, expiresAt: Date): Promise<string> {
-    return new SignJWT({ bid: claims.bookingId, fid: claims.firmId }).setProtectedHeader({ alg: 'HS256' }).setIssuer(ISSUER)
-      .setAudience(AUDIENCE).setJti(randomUUID()).setIssuedAt().setExpirationTime(Math.floor(expiresAt.getTime() / 1000)).sign(this.key);
+    return new SignJWT({ bid: claims.bookingId, fid: claims.firmId })
+      .setProtectedHeader({ alg: 'HS256' })
+      .setIssuer(ISSUER)
+      .setAudience(AUDIENCE)
+      .setJti(randomUUID())
+      .setIssuedAt()
+      .setExpirationTime(Math.floor(expiresAt.getTime() / 1000))
+      .sign(this.key);
   }
 
   async verify(token: string, now: Date): Promise<CertificateClaims> {
     try {
-      const { payload } = await jwtVerify(token, this.key, { issuer: ISSUER, audience: AUDIENCE, algorithms: ['HS256'], currentDate: now });
+      const { payload } = await jwtVerify(token, this.key, {
+        issuer: ISSUER,
+        audience: AUDIENCE,
+        algorithms: ['HS256'],
+        currentDate: now,
+      });
       const { bid, fid } = payload as { bid?: unknown; fid?: unknown };
-      if (typeof bid !== 'string' || typeof fid !== 'string' || !/^\d{1,18}$/.test(bid) || !/^\d{1,18}$/.test(fid)) throw new LinkError('tampered');
+      if (typeof bid !== 'string' || typeof fid !== 'string' || !/^\d{1,18}$/.test(bid) || !/^\d{1,18}$/.test(fid))
+        throw new LinkError('tampered');
       return { bookingId: bid, firmId: fid };
     } catch (error) {
       if (error instanceof LinkError) throw error;
       if (error instanceof joseErrors.JWTExpired) throw new LinkError('expired');
-      if (error instanceof joseErrors.JWTClaimValidationFailed && error.claim === 'aud') throw new LinkError('wrong-purpose');
+      if (error instanceof joseErrors.JWTClaimValidationFailed && error.claim === 'aud')
+        throw new LinkError('wrong-purpose');
       throw new LinkError('tampered');
     }
   }
@@ -104,21 +140,36 @@ const PDF_ONLY = { accept: ['application/pdf'] as const, acceptText: 'The certif
  * the job page; the office may record why a job is handed over without one.
  */
 export class CertificatesService {
-  constructor(private readonly knex: Knex, private readonly files: FilesService, private readonly now: () => number = Date.now) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly files: FilesService,
+    private readonly now: () => number = Date.now,
+  ) {}
 
   /** The certificate and waiver as the installer's office or crew read them. */
   async get(actor: Actor, jobId: string): Promise<CertificateView> {
     if (!readsHandoverRecords(actor)) throw new NotFoundError('job');
     await findVisible(Job, actor, jobId, undefined, 'job');
-    const row = await scoped(ElectricalCertificate, actor).where('electrical_certificates.job_id', jobId)
+    const row = (await scoped(ElectricalCertificate, actor)
+      .where('electrical_certificates.job_id', jobId)
       .join('firms as f', 'f.id', 'electrical_certificates.uploaded_by_firm_id')
-      .select('electrical_certificates.file_id', 'electrical_certificates.uploaded_at', 'f.name as firm_name').first() as unknown as { fileId: string; uploadedAt: Date; firmName: string } | undefined;
+      .select('electrical_certificates.file_id', 'electrical_certificates.uploaded_at', 'f.name as firm_name')
+      .first()) as unknown as { fileId: string; uploadedAt: Date; firmName: string } | undefined;
     const file = row ? (await this.files.list(actor, jobId)).find((f) => f.id === String(row.fileId)) : undefined;
     const { waiver } = await loadCertificate(this.knex, jobId);
     const by = waiver?.by ? await this.knex('users').where('id', waiver.by).first('name') : null;
     return {
       jobId,
-      certificate: row && file ? { fileId: file.id, name: file.name, uploadedAt: row.uploadedAt.toISOString(), uploadedByFirm: row.firmName, url: file.url } : null,
+      certificate:
+        row && file
+          ? {
+              fileId: file.id,
+              name: file.name,
+              uploadedAt: row.uploadedAt.toISOString(),
+              uploadedByFirm: row.firmName,
+              url: file.url,
+            }
+          : null,
       waiver: waiver ? { reason: waiver.reason, by: by?.name ?? null, at: waiver.at.toISOString() } : null,
     };
   }
@@ -130,10 +181,22 @@ export class CertificatesService {
       if (!job || !isOffice(actor)) throw new NotFoundError('job');
       const before = await loadCertificate(trx, jobId);
       const patch = input.reason
-        ? { certificate_waiver_reason: input.reason, certificate_waived_by: actor.userId, certificate_waived_at: new Date(this.now()) }
+        ? {
+            certificate_waiver_reason: input.reason,
+            certificate_waived_by: actor.userId,
+            certificate_waived_at: new Date(this.now()),
+          }
         : { certificate_waiver_reason: null, certificate_waived_by: null, certificate_waived_at: null };
       await trx('jobs').where('id', jobId).update(patch);
-      await recordChange(trx, actor, 'certificate_waiver', jobId, input.reason ? (before.waiver ? 'update' : 'create') : 'delete', before.waiver, input.reason ? { reason: input.reason } : null);
+      await recordChange(
+        trx,
+        actor,
+        'certificate_waiver',
+        jobId,
+        input.reason ? (before.waiver ? 'update' : 'create') : 'delete',
+        before.waiver,
+        input.reason ? { reason: input.reason } : null,
+      );
     });
     return this.get(actor, jobId);
   }
@@ -143,31 +206,73 @@ export class CertificatesService {
    * holds the electrical connection booking now, confirmed, under way or done. Anything else is
    * "no such slot" (404) or, for a slot that is not an electrical connection or not yet agreed, 422.
    */
-  private async certifiable(trx: Db, bookingId: string, firmId: string): Promise<{ jobId: string; installerFirmId: string }> {
-    const row = await trx('bookings as b').join('resources as r', 'r.id', 'b.resource_id').join('stages as s', 's.id', 'b.stage_id')
-      .join('jobs as j', 'j.id', 's.job_id').where('b.id', bookingId).first('b.state', 'r.firm_id', 's.kind', 's.job_id', 'j.firm_id as installer_firm_id');
+  private async certifiable(
+    trx: Db,
+    bookingId: string,
+    firmId: string,
+  ): Promise<{ jobId: string; installerFirmId: string }> {
+    const row = await trx('bookings as b')
+      .join('resources as r', 'r.id', 'b.resource_id')
+      .join('stages as s', 's.id', 'b.stage_id')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .where('b.id', bookingId)
+      .first('b.state', 'r.firm_id', 's.kind', 's.job_id', 'j.firm_id as installer_firm_id');
     // A pencilled or declined booking is not the partner's to know of: the same 404 as another firm's.
-    if (!row || String(row.firmId) !== String(firmId) || ['pencilled', 'declined'].includes(row.state)) throw new NotFoundError('slot');
-    if (row.kind !== CERTIFIED_STAGE_KIND) throw new UnprocessableError('Only an electrical connection slot takes an electrical certificate.', { code: 'not-a-connection' });
+    if (!row || String(row.firmId) !== String(firmId) || ['pencilled', 'declined'].includes(row.state))
+      throw new NotFoundError('slot');
+    if (row.kind !== CERTIFIED_STAGE_KIND)
+      throw new UnprocessableError('Only an electrical connection slot takes an electrical certificate.', {
+        code: 'not-a-connection',
+      });
     if (!(CERTIFYING_STATES as readonly string[]).includes(row.state)) {
-      throw new UnprocessableError('The certificate can be uploaded once the slot is confirmed.', { code: 'not-confirmed' });
+      throw new UnprocessableError('The certificate can be uploaded once the slot is confirmed.', {
+        code: 'not-confirmed',
+      });
     }
     return { jobId: String(row.jobId), installerFirmId: String(row.installerFirmId) };
   }
 
   /** Keeps the PDF as a job file and makes it the job's certificate (a new one replaces the old). */
-  private async keep(actor: Actor | null, firmId: string, bookingId: string, upload: Upload): Promise<{ name: string; uploadedAt: string }> {
+  private async keep(
+    actor: Actor | null,
+    firmId: string,
+    bookingId: string,
+    upload: Upload,
+  ): Promise<{ name: string; uploadedAt: string }> {
     const { jobId, installerFirmId } = await this.certifiable(this.knex, bookingId, firmId);
     const file = await this.files.keep({
-      jobId, upload, uploadedBy: actor?.userId ?? null, actor, auditFirmId: installerFirmId, keepLocation: false, ...PDF_ONLY,
+      jobId,
+      upload,
+      uploadedBy: actor?.userId ?? null,
+      actor,
+      auditFirmId: installerFirmId,
+      keepLocation: false,
+      ...PDF_ONLY,
       also: async (trx, created) => {
         // Checked again under the booking's lock: a slot reassigned or taken back meanwhile takes no certificate.
         await trx('bookings').where('id', bookingId).forUpdate().first('id');
         await this.certifiable(trx, bookingId, firmId);
         const before = await trx('electrical_certificates').where('job_id', jobId).first();
-        const values = { file_id: created.id, uploaded_by_firm_id: firmId, uploaded_by: actor?.userId ?? null, uploaded_at: new Date(this.now()) };
-        await trx('electrical_certificates').insert({ job_id: jobId, ...values }).onConflict('job_id').merge();
-        await recordChange(trx, actor, 'electrical_certificate', jobId, before ? 'update' : 'create', before ?? null, { ...values, bookingId }, installerFirmId);
+        const values = {
+          file_id: created.id,
+          uploaded_by_firm_id: firmId,
+          uploaded_by: actor?.userId ?? null,
+          uploaded_at: new Date(this.now()),
+        };
+        await trx('electrical_certificates')
+          .insert({ job_id: jobId, ...values })
+          .onConflict('job_id')
+          .merge();
+        await recordChange(
+          trx,
+          actor,
+          'electrical_certificate',
+          jobId,
+          before ? 'update' : 'create',
+          before ?? null,
+          { ...values, bookingId },
+          installerFirmId,
+        );
       },
     });
     return { name: file.name, uploadedAt: new Date(this.now()).toISOString() };
@@ -201,13 +306,29 @@ export class CertificatesService {
  * electrical connection booking, the certificate where this firm uploaded it (read-policy.ts
  * `certificateForPartner`); bookings without one are absent.
  */
-export async function partnerCertificates(db: Db, firmId: string, bookingIds: string[]): Promise<Map<string, { name: string; uploadedAt: string } | null>> {
-  const rows = bookingIds.length ? await db('bookings as b').join('stages as s', 's.id', 'b.stage_id')
-    .join('electrical_certificates as c', 'c.job_id', 's.job_id').join('job_files as f', 'f.id', 'c.file_id')
-    .whereIn('b.id', bookingIds).where('s.kind', CERTIFIED_STAGE_KIND)
-    .select('b.id as booking_id', 'c.uploaded_by_firm_id', 'f.name', 'c.uploaded_at') : [];
+export async function partnerCertificates(
+  db: Db,
+  firmId: string,
+  bookingIds: string[],
+): Promise<Map<string, { name: string; uploadedAt: string } | null>> {
+  const rows = bookingIds.length
+    ? await db('bookings as b')
+        .join('stages as s', 's.id', 'b.stage_id')
+        .join('electrical_certificates as c', 'c.job_id', 's.job_id')
+        .join('job_files as f', 'f.id', 'c.file_id')
+        .whereIn('b.id', bookingIds)
+        .where('s.kind', CERTIFIED_STAGE_KIND)
+        .select('b.id as booking_id', 'c.uploaded_by_firm_id', 'f.name', 'c.uploaded_at')
+    : [];
   const out = new Map<string, { name: string; uploadedAt: string } | null>();
-  for (const r of rows) out.set(String(r.bookingId), certificateForPartner({ firmId }, { uploadedByFirmId: String(r.uploadedByFirmId), name: r.name, uploadedAt: r.uploadedAt }));
+  for (const r of rows)
+    out.set(
+      String(r.bookingId),
+      certificateForPartner(
+        { firmId },
+        { uploadedByFirmId: String(r.uploadedByFirmId), name: r.name, uploadedAt: r.uploadedAt },
+      ),
+    );
   return out;
 }
 
@@ -215,10 +336,23 @@ export async function partnerCertificates(db: Db, firmId: string, bookingIds: st
  * The certificate link for an answer page's slot, or null when the slot takes none: an electrical
  * connection, confirmed, under way or done, for the partner firm that holds it.
  */
-export async function certificateLinkFor(links: CertificateLinks, publicUrl: string, slot: {
-  bookingId: string; stageKind: string; state: string; endsAt: Date; partnerFirmId: string;
-}, now: Date): Promise<string | null> {
-  if (slot.stageKind !== CERTIFIED_STAGE_KIND || !(CERTIFYING_STATES as readonly string[]).includes(slot.state)) return null;
-  const token = await links.sign({ bookingId: slot.bookingId, firmId: slot.partnerFirmId }, certificateLinkExpiry(slot.endsAt, now));
+export async function certificateLinkFor(
+  links: CertificateLinks,
+  publicUrl: string,
+  slot: {
+    bookingId: string;
+    stageKind: string;
+    state: string;
+    endsAt: Date;
+    partnerFirmId: string;
+  },
+  now: Date,
+): Promise<string | null> {
+  if (slot.stageKind !== CERTIFIED_STAGE_KIND || !(CERTIFYING_STATES as readonly string[]).includes(slot.state))
+    return null;
+  const token = await links.sign(
+    { bookingId: slot.bookingId, firmId: slot.partnerFirmId },
+    certificateLinkExpiry(slot.endsAt, now),
+  );
   return `${publicUrl}/answer/certificate/${token}`;
 }

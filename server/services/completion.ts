@@ -19,7 +19,10 @@ const DAY = 86_400_000;
  * through the batch route (the guarded write path).
  */
 export class CompletionService {
-  constructor(private readonly knex: Knex, private readonly now: () => number = Date.now) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly now: () => number = Date.now,
+  ) {}
 
   async complete(actor: Actor, stageId: string, query: CompletionQuery): Promise<StageCompletion> {
     const stage = await findVisible(Stage, actor, stageId, undefined, 'stage');
@@ -27,23 +30,43 @@ export class CompletionService {
       const resource = await findVisible(Resource, actor, query.resourceId, undefined, 'resource');
       const kinds = (stage.requirements ?? []).map((r) => r.kind);
       if (kinds.length && !kinds.includes(resource.kind)) {
-        throw new UnprocessableError(wrongKindMessage(stage.name, resource, kinds),
-          { code: 'wrong-kind', violations: [{ kind: 'wrong-kind', severity: 'error', message: `'${stage.name}' can't be done by ${resource.name}` }] });
+        throw new UnprocessableError(wrongKindMessage(stage.name, resource, kinds), {
+          code: 'wrong-kind',
+          violations: [
+            { kind: 'wrong-kind', severity: 'error', message: `'${stage.name}' can't be done by ${resource.name}` },
+          ],
+        });
       }
     }
     let start = query.startsAt ? Date.parse(query.startsAt) : undefined;
     if (start === undefined) {
-      const first = await scoped(Booking, actor).where('stage_id', stageId).whereNot('state', 'declined').orderBy('starts_at').first();
+      const first = await scoped(Booking, actor)
+        .where('stage_id', stageId)
+        .whereNot('state', 'declined')
+        .orderBy('starts_at')
+        .first();
       start = first?.startsAt.getTime();
     }
     if (start === undefined) {
-      throw new BadRequestError('Say when: this stage has no booking yet.', [{ field: 'query.startsAt', message: 'is required for a stage with no booking' }]);
+      throw new BadRequestError('Say when: this stage has no booking yet.', [
+        { field: 'query.startsAt', message: 'is required for a stage with no booking' },
+      ]);
     }
     // Wide enough for the stage's working time on the shortest working days, weekends and holidays between.
     const spanDays = Math.ceil(stage.durationMinutes / 240) * 2 + 14;
-    const data = await loadBoard(this.knex, actor, { from: start - DAY, to: start + spanDays * DAY, jobIds: [String(stage.jobId)], now: this.now() });
-    if (query.resourceId && !data.resources.some((r) => r.id === String(query.resourceId))) throw new NotFoundError('resource');
+    const data = await loadBoard(this.knex, actor, {
+      from: start - DAY,
+      to: start + spanDays * DAY,
+      jobIds: [String(stage.jobId)],
+      now: this.now(),
+    });
+    if (query.resourceId && !data.resources.some((r) => r.id === String(query.resourceId)))
+      throw new NotFoundError('resource');
     const index = createBoardIndex(toEngineBoard(data), { now: data.now });
-    return completeStage(data, index, { stageId: String(stage.id), start, ...(query.resourceId ? { resourceId: query.resourceId } : {}) });
+    return completeStage(data, index, {
+      stageId: String(stage.id),
+      start,
+      ...(query.resourceId ? { resourceId: query.resourceId } : {}),
+    });
   }
 }

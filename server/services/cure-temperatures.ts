@@ -14,20 +14,28 @@ const MAX_DAYS = 366;
  * mean stands for each of its days.
  */
 export const SEASONAL_MONTHLY_MEANS_C: Record<string, { basis: string; means: readonly number[] }> = {
-  GB: { basis: 'UK monthly mean air temperature, Met Office 1991–2020 averages', means: [4.1, 4.2, 5.7, 7.9, 10.9, 13.7, 15.6, 15.4, 13.2, 10.0, 6.7, 4.4] },
+  GB: {
+    basis: 'UK monthly mean air temperature, Met Office 1991–2020 averages',
+    means: [4.1, 4.2, 5.7, 7.9, 10.9, 13.7, 15.6, 15.4, 13.2, 10.0, 6.7, 4.4],
+  },
 };
 
 /** The seasonal table of a firm's holiday region (e.g. GB-ENG → GB), or null when there is none. */
-export function seasonalTableOf(holidayRegion: string | null | undefined): { basis: string; means: readonly number[] } | null {
+export function seasonalTableOf(
+  holidayRegion: string | null | undefined,
+): { basis: string; means: readonly number[] } | null {
   const country = (holidayRegion ?? '').split('-')[0] ?? '';
   return SEASONAL_MONTHLY_MEANS_C[country] ?? null;
 }
 
 /** YYYY-MM-DD of an instant in a time zone. */
 function dateIn(ms: number, timeZone: string): string {
-  return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date(ms));
+  return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(
+    new Date(ms),
+  );
 }
-const addDays = (isoDate: string, days: number) => new Date(Date.parse(`${isoDate}T00:00:00Z`) + days * DAY_MS).toISOString().slice(0, 10);
+const addDays = (isoDate: string, days: number) =>
+  new Date(Date.parse(`${isoDate}T00:00:00Z`) + days * DAY_MS).toISOString().slice(0, 10);
 
 /** What the board loader hands over: the stages, their jobs and the bookings it read. */
 export interface CureWeatherInput {
@@ -46,7 +54,10 @@ export interface CureWeatherInput {
  * the reference temperature. The jobs come from the caller's scoped query, so their rows are read
  * by id here.
  */
-export async function cureRulesFromWeather(knex: Knex | Knex.Transaction, input: CureWeatherInput): Promise<Map<string, CureRule>> {
+export async function cureRulesFromWeather(
+  knex: Knex | Knex.Transaction,
+  input: CureWeatherInput,
+): Promise<Map<string, CureRule>> {
   const out = new Map<string, CureRule>();
   const cured = input.stages.filter((s): s is typeof s & { cure: CureRule } => Boolean(s.cure));
   if (cured.length === 0) return out;
@@ -56,10 +67,20 @@ export async function cureRulesFromWeather(knex: Knex | Knex.Transaction, input:
   const since = dateIn(input.now - 120 * DAY_MS, 'UTC');
   // One after another: the board loader may call this inside a transaction, whose one connection
   // must not get overlapping queries (pg warns now and refuses from version 9).
-  const firms = await (knex('firms').leftJoin('firm_settings', 'firm_settings.firm_id', 'firms.id').whereIn('firms.id', firmIds)
-    .select('firms.id', 'firms.time_zone', 'firms.holiday_region', 'firm_settings.cure_datum_c') as Promise<{ id: string; timeZone: string; holidayRegion: string | null; cureDatumC: number | null }[]>);
-  const positions = await (knex('surveys').whereIn('job_id', jobIds).whereNotNull('site_latitude').select('job_id') as Promise<{ jobId: string }[]>);
-  const forecasts = await (knex('site_forecasts').whereIn('job_id', jobIds).where('date', '>=', since).select('job_id', 'date', 'mean_c') as Promise<{ jobId: string; date: string; meanC: number }[]>);
+  const firms = await (knex('firms')
+    .leftJoin('firm_settings', 'firm_settings.firm_id', 'firms.id')
+    .whereIn('firms.id', firmIds)
+    .select('firms.id', 'firms.time_zone', 'firms.holiday_region', 'firm_settings.cure_datum_c') as Promise<
+    { id: string; timeZone: string; holidayRegion: string | null; cureDatumC: number | null }[]
+  >);
+  const positions = await (knex('surveys')
+    .whereIn('job_id', jobIds)
+    .whereNotNull('site_latitude')
+    .select('job_id') as Promise<{ jobId: string }[]>);
+  const forecasts = await (knex('site_forecasts')
+    .whereIn('job_id', jobIds)
+    .where('date', '>=', since)
+    .select('job_id', 'date', 'mean_c') as Promise<{ jobId: string; date: string; meanC: number }[]>);
   const firmById = new Map(firms.map((f) => [String(f.id), f]));
   const positioned = new Set(positions.map((p) => String(p.jobId)));
   const forecastOf = new Map<string, Map<string, number>>();
@@ -69,7 +90,8 @@ export async function cureRulesFromWeather(knex: Knex | Knex.Transaction, input:
     forecastOf.set(String(f.jobId), m);
   }
   const pourEnd = new Map<string, number>();
-  for (const b of input.bookings) if (b.state !== 'declined') pourEnd.set(b.stageId, Math.max(pourEnd.get(b.stageId) ?? 0, b.endMs));
+  for (const b of input.bookings)
+    if (b.state !== 'declined') pourEnd.set(b.stageId, Math.max(pourEnd.get(b.stageId) ?? 0, b.endMs));
 
   for (const s of cured) {
     const job = jobById.get(s.jobId);
@@ -78,12 +100,17 @@ export async function cureRulesFromWeather(knex: Knex | Knex.Transaction, input:
     const rule: CureRule = { ...s.cure, datumC, referenceC: s.cure.referenceC ?? REFERENCE_C };
     const table = seasonalTableOf(firm?.holidayRegion);
     // Temperatures stated on the stage itself stay as they are; without a position there is no forecast to use.
-    if (!job || !firm || !positioned.has(s.jobId) || s.cure.dailyMeanTempsC?.length) { out.set(s.id, rule); continue; }
+    if (!job || !firm || !positioned.has(s.jobId) || s.cure.dailyMeanTempsC?.length) {
+      out.set(s.id, rule);
+      continue;
+    }
     const day0 = dateIn(pourEnd.get(s.id) ?? input.now, firm.timeZone);
     const stored = forecastOf.get(s.jobId);
-    const temps: number[] = [], fromForecast: boolean[] = [];
+    const temps: number[] = [],
+      fromForecast: boolean[] = [];
     // Days until the release (counted as the engine will) and a margin, at most a year.
-    let te = 0, releasedOn: number | null = null;
+    let te = 0,
+      releasedOn: number | null = null;
     const needed = ageForStrengthRatio(rule.targetFraction);
     for (let d = 0; d < MAX_DAYS && (releasedOn === null || d <= releasedOn + MARGIN_DAYS); d++) {
       const date = addDays(day0, d);
@@ -96,9 +123,14 @@ export async function cureRulesFromWeather(knex: Knex | Knex.Transaction, input:
       if (releasedOn === null && te >= needed) releasedOn = d;
     }
     // No forecast and no seasonal table for the region: the plain age at the reference temperature.
-    if (temps.length === 0 || (releasedOn === null && (temps.at(-1) ?? datumC) <= datumC)) { out.set(s.id, rule); continue; }
+    if (temps.length === 0 || (releasedOn === null && (temps.at(-1) ?? datumC) <= datumC)) {
+      out.set(s.id, rule);
+      continue;
+    }
     out.set(s.id, {
-      ...rule, dailyMeanTempsC: temps, fromForecast,
+      ...rule,
+      dailyMeanTempsC: temps,
+      fromForecast,
       temperatureSource: fromForecast.some(Boolean) ? 'forecast' : 'seasonal',
       temperaturesFrom: day0,
       ...(job.siteTown ? { temperaturePlace: job.siteTown } : {}),
@@ -107,4 +139,3 @@ export async function cureRulesFromWeather(knex: Knex | Knex.Transaction, input:
   }
   return out;
 }
-

@@ -11,13 +11,29 @@ import { scoped } from './scope.ts';
 import { bookingDuring } from './ranges.ts';
 import { alongsideFor, contactsFor, visitStatesFor, type AlongsideRow } from './read-policy.ts';
 
-
 type Row = Booking & {
-  resourceName: string; resourceKind: string; resourceCategory: string; resourcePhone: string | null; resourceFirmName: string;
-  stageKind: string; stageName: string; jobId: string; jobReference: string; installationType: string;
-  siteAddress: string; siteTown: string; sitePostcode: string; accessNotes: string | null;
-  customerName: string; customerPhone: string | null; officeName: string; officePhone: string | null; unitName: string | null;
-  sharesCustomerContact: boolean | null; resourceFirmId: string; jobFirmId: string;
+  resourceName: string;
+  resourceKind: string;
+  resourceCategory: string;
+  resourcePhone: string | null;
+  resourceFirmName: string;
+  stageKind: string;
+  stageName: string;
+  jobId: string;
+  jobReference: string;
+  installationType: string;
+  siteAddress: string;
+  siteTown: string;
+  sitePostcode: string;
+  accessNotes: string | null;
+  customerName: string;
+  customerPhone: string | null;
+  officeName: string;
+  officePhone: string | null;
+  unitName: string | null;
+  sharesCustomerContact: boolean | null;
+  resourceFirmId: string;
+  jobFirmId: string;
 };
 
 /** A visit with the booking's own facts a page needs beside the day sheet's. */
@@ -32,9 +48,16 @@ const DAY_MS = 86_400_000;
  * @example
  * progressActions('confirmed', true, { first: '2026-06-01', last: '2026-06-01' }, '2026-06-01') // ['arrive']
  */
-export function progressActions(state: string, ownResource: boolean, days: { first: string; last: string }, today: string): ProgressAction[] {
+export function progressActions(
+  state: string,
+  ownResource: boolean,
+  days: { first: string; last: string },
+  today: string,
+): ProgressAction[] {
   const allowed = actionsFor(state as BookingState, { party: 'crew', side: ownResource ? 'own' : 'partner' });
-  return PROGRESS_ACTIONS.filter((a) => allowed.includes(a) && (a !== 'arrive' || (days.first <= today && today <= days.last)));
+  return PROGRESS_ACTIONS.filter(
+    (a) => allowed.includes(a) && (a !== 'arrive' || (days.first <= today && today <= days.last)),
+  );
 }
 
 /**
@@ -43,11 +66,14 @@ export function progressActions(state: string, ownResource: boolean, days: { fir
  * confirmed and on-site slots; which contacts and neighbours each sees is read-policy.ts's call.
  */
 export class DaySheetsService {
-  constructor(private readonly knex: Knex, private readonly now: () => number = Date.now) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly now: () => number = Date.now,
+  ) {}
 
   /** The reader's visits overlapping [from, to), in time order (read-policy.ts decides the fields). */
   async visits(actor: Actor, from: Date, to: Date): Promise<Visit[]> {
-    const rows = await scoped(Booking, actor)
+    const rows = (await scoped(Booking, actor)
       .join('resources as r', 'r.id', 'bookings.resource_id')
       .join('firms as rf', 'rf.id', 'r.firm_id')
       .join('stages as s', 's.id', 'bookings.stage_id')
@@ -57,28 +83,84 @@ export class DaySheetsService {
       .leftJoin('firm_settings as fs', 'fs.firm_id', 'j.firm_id')
       .where(bookingDuring(this.knex, 'bookings', from, to))
       .whereIn('bookings.state', visitStatesFor(actor))
-      .select('bookings.*', 'r.name as resourceName', 'r.kind as resourceKind', 'r.category as resourceCategory', 'r.phone as resourcePhone',
-        'rf.name as resourceFirmName', 's.kind as stageKind', 's.name as stageName', 'j.id as jobId', 'j.reference as jobReference',
-        'j.installation_type', 'j.site_address', 'j.site_town', 'j.site_postcode', 'j.access_notes', 'j.customer_name', 'j.customer_phone',
-        'jf.name as officeName', 'jf.phone as officePhone', 'u.model as unitName', 'fs.share_customer_contact_with_partners as sharesCustomerContact',
-        'r.firm_id as resourceFirmId', 'j.firm_id as jobFirmId')
-      .orderBy('bookings.starts_at').orderBy('bookings.id') as Row[];
+      .select(
+        'bookings.*',
+        'r.name as resourceName',
+        'r.kind as resourceKind',
+        'r.category as resourceCategory',
+        'r.phone as resourcePhone',
+        'rf.name as resourceFirmName',
+        's.kind as stageKind',
+        's.name as stageName',
+        'j.id as jobId',
+        'j.reference as jobReference',
+        'j.installation_type',
+        'j.site_address',
+        'j.site_town',
+        'j.site_postcode',
+        'j.access_notes',
+        'j.customer_name',
+        'j.customer_phone',
+        'jf.name as officeName',
+        'jf.phone as officePhone',
+        'u.model as unitName',
+        'fs.share_customer_contact_with_partners as sharesCustomerContact',
+        'r.firm_id as resourceFirmId',
+        'j.firm_id as jobFirmId',
+      )
+      .orderBy('bookings.starts_at')
+      .orderBy('bookings.id')) as Row[];
 
     // Who else is on each stage: the crane, the plant, the partner firms (filtered per reader below).
     const stageIds = [...new Set(rows.map((r) => r.stageId))];
-    const others = stageIds.length ? await this.knex('bookings as b').join('resources as r', 'r.id', 'b.resource_id')
-      .join('firms as f', 'f.id', 'r.firm_id').whereIn('b.stage_id', stageIds).whereNot('b.state', 'declined')
-      .select('b.stage_id', 'b.resource_id', 'b.state', 'r.name', 'r.kind', 'r.category', 'r.firm_id', 'f.name as firmName') as (AlongsideRow & { stageId: string })[] : [];
+    const others = stageIds.length
+      ? ((await this.knex('bookings as b')
+          .join('resources as r', 'r.id', 'b.resource_id')
+          .join('firms as f', 'f.id', 'r.firm_id')
+          .whereIn('b.stage_id', stageIds)
+          .whereNot('b.state', 'declined')
+          .select(
+            'b.stage_id',
+            'b.resource_id',
+            'b.state',
+            'r.name',
+            'r.kind',
+            'r.category',
+            'r.firm_id',
+            'f.name as firmName',
+          )) as (AlongsideRow & { stageId: string })[])
+      : [];
 
     return rows.map((r) => ({
-      bookingId: r.id, version: r.version, ownResource: String(r.resourceFirmId) === String(r.jobFirmId), startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), state: r.state,
-      resource: { id: r.resourceId, name: r.resourceName, kind: r.resourceKind, category: r.resourceCategory, firmName: r.resourceFirmName },
+      bookingId: r.id,
+      version: r.version,
+      ownResource: String(r.resourceFirmId) === String(r.jobFirmId),
+      startsAt: r.startsAt.toISOString(),
+      endsAt: r.endsAt.toISOString(),
+      state: r.state,
+      resource: {
+        id: r.resourceId,
+        name: r.resourceName,
+        kind: r.resourceKind,
+        category: r.resourceCategory,
+        firmName: r.resourceFirmName,
+      },
       stage: { id: r.stageId, kind: r.stageKind, name: r.stageName },
       job: { id: r.jobId, reference: r.jobReference, unitName: r.unitName, installationType: r.installationType },
       site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
-      contacts: contactsFor(actor, { customerName: r.customerName, customerPhone: r.customerPhone, officeName: r.officeName, officePhone: r.officePhone, sharesCustomerContact: r.sharesCustomerContact === true }),
-      alongside: alongsideFor(actor, others.filter((o) => String(o.stageId) === String(r.stageId) && String(o.resourceId) !== String(r.resourceId))
-        .map((o) => ({ ...o, resourceId: String(o.resourceId), firmId: String(o.firmId) }))),
+      contacts: contactsFor(actor, {
+        customerName: r.customerName,
+        customerPhone: r.customerPhone,
+        officeName: r.officeName,
+        officePhone: r.officePhone,
+        sharesCustomerContact: r.sharesCustomerContact === true,
+      }),
+      alongside: alongsideFor(
+        actor,
+        others
+          .filter((o) => String(o.stageId) === String(r.stageId) && String(o.resourceId) !== String(r.resourceId))
+          .map((o) => ({ ...o, resourceId: String(o.resourceId), firmId: String(o.firmId) })),
+      ),
       cautions: cautionsFor(r.stageKind),
     }));
   }
@@ -86,7 +168,11 @@ export class DaySheetsService {
   async forDate(actor: Actor, date: string): Promise<DaySheetList> {
     const firm = await Firm.query(this.knex).findById(actor.firmId);
     const timeZone = firm?.timeZone ?? 'Europe/London';
-    const visits = await this.visits(actor, new Date(startOfLocalDay(date, timeZone)), new Date(endOfLocalDay(date, timeZone)));
+    const visits = await this.visits(
+      actor,
+      new Date(startOfLocalDay(date, timeZone)),
+      new Date(endOfLocalDay(date, timeZone)),
+    );
     const sheets = new Map<string, DaySheet>();
     for (const { resource, version: _version, ownResource: _own, ...visit } of visits) {
       if (resource.category === 'machine') continue;
@@ -94,7 +180,11 @@ export class DaySheetsService {
       sheet.visits.push(visit);
       sheets.set(resource.id, sheet);
     }
-    return { date, timeZone, sheets: [...sheets.values()].sort((a, b) => a.resource.name.localeCompare(b.resource.name)) };
+    return {
+      date,
+      timeZone,
+      sheets: [...sheets.values()].sort((a, b) => a.resource.name.localeCompare(b.resource.name)),
+    };
   }
 
   /**
@@ -108,12 +198,16 @@ export class DaySheetsService {
     const today = todayIn(timeZone, this.now());
     const from = query.from ? new Date(query.from) : new Date(startOfLocalDay(today, timeZone));
     // `days` local days, which are not all 24 hours long: a week over a clock change ends at local midnight.
-    const to = query.to ? new Date(query.to)
-      : query.from ? new Date(from.getTime() + query.days * DAY_MS) : new Date(startOfLocalDay(addDays(today, query.days), timeZone));
+    const to = query.to
+      ? new Date(query.to)
+      : query.from
+        ? new Date(from.getTime() + query.days * DAY_MS)
+        : new Date(startOfLocalDay(addDays(today, query.days), timeZone));
     const visits = await this.visits(actor, from, to);
     const dayOf = (iso: string) => localDateOf(Date.parse(iso), timeZone);
     return {
-      today, timeZone,
+      today,
+      timeZone,
       items: visits.map(({ ownResource, ...v }) => {
         const days = { first: dayOf(v.startsAt), last: dayOf(new Date(Date.parse(v.endsAt) - 1).toISOString()) };
         return { ...v, day: days.first, actions: progressActions(v.state, ownResource, days, today) };

@@ -6,24 +6,41 @@ import { scoped } from './scope.ts';
 export class DirectoryService {
   async firms(actor: Actor) {
     const firms = await scoped(Firm, actor).orderBy('name');
-    return firms.map((f) => ({ id: f.id, name: f.name, kind: f.kind, timeZone: f.timeZone, holidayRegion: f.holidayRegion }));
+    return firms.map((f) => ({
+      id: f.id,
+      name: f.name,
+      kind: f.kind,
+      timeZone: f.timeZone,
+      holidayRegion: f.holidayRegion,
+    }));
   }
 
   async members(actor: Actor) {
-    const rows = await scoped(Membership, actor).join('users', 'users.id', 'memberships.user_id')
-      .select('memberships.user_id', 'memberships.role', 'users.name', 'users.email').orderBy('users.name') as unknown as
-      { userId: string; role: string; name: string; email: string }[];
+    const rows = (await scoped(Membership, actor)
+      .join('users', 'users.id', 'memberships.user_id')
+      .select('memberships.user_id', 'memberships.role', 'users.name', 'users.email')
+      .orderBy('users.name')) as unknown as { userId: string; role: string; name: string; email: string }[];
     return rows.map((r) => ({ userId: r.userId, name: r.name, email: r.email, role: r.role }));
   }
 
   async resources(actor: Actor) {
-    const rows = await scoped(Resource, actor).where('resources.active', true)
+    const rows = (await scoped(Resource, actor)
+      .where('resources.active', true)
       .join('firms', 'firms.id', 'resources.firm_id')
       .select('resources.*', 'firms.name as firmName', 'firms.kind as firmKind')
-      .orderBy(['firms.name', 'resources.kind', 'resources.name']) as (Resource & { firmName: string; firmKind: string })[];
+      .orderBy(['firms.name', 'resources.kind', 'resources.name'])) as (Resource & {
+      firmName: string;
+      firmKind: string;
+    })[];
     return rows.map((r) => ({
-      id: r.id, name: r.name, category: r.category, kind: r.kind, firmId: r.firmId, firmName: r.firmName,
-      firmKind: r.firmKind, ownership: r.firmId === actor.firmId ? r.ownership : 'partner' as const,
+      id: r.id,
+      name: r.name,
+      category: r.category,
+      kind: r.kind,
+      firmId: r.firmId,
+      firmName: r.firmName,
+      firmKind: r.firmKind,
+      ownership: r.firmId === actor.firmId ? r.ownership : ('partner' as const),
     }));
   }
 

@@ -18,7 +18,10 @@ const DAY = 86_400_000;
  * revoking kills it outright.
  */
 export class FeedsService {
-  constructor(private readonly knex: Knex, private readonly publicUrl: string) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly publicUrl: string,
+  ) {}
 
   private async person(actor: Actor, resourceId: string, trx: Knex.Transaction): Promise<Resource> {
     const person = await findVisible(Resource, actor, resourceId, trx, 'person');
@@ -31,9 +34,14 @@ export class FeedsService {
   async rotate(actor: Actor, resourceId: string): Promise<{ url: string; createdAt: string }> {
     return this.knex.transaction(async (trx) => {
       const person = await this.person(actor, resourceId, trx);
-      await trx('calendar_feeds').where({ resource_id: person.id }).whereNull('revoked_at').update({ revoked_at: new Date() });
+      await trx('calendar_feeds')
+        .where({ resource_id: person.id })
+        .whereNull('revoked_at')
+        .update({ revoked_at: new Date() });
       const token = randomBytes(24).toString('base64url');
-      const [row] = await trx('calendar_feeds').insert({ resource_id: person.id, token_hash: hashOf(token), created_by: actor.userId }).returning('created_at');
+      const [row] = await trx('calendar_feeds')
+        .insert({ resource_id: person.id, token_hash: hashOf(token), created_by: actor.userId })
+        .returning('created_at');
       return { url: `${this.publicUrl}/feeds/${token}.ics`, createdAt: row.createdAt.toISOString() };
     });
   }
@@ -41,23 +49,34 @@ export class FeedsService {
   async revoke(actor: Actor, resourceId: string): Promise<void> {
     await this.knex.transaction(async (trx) => {
       const person = await this.person(actor, resourceId, trx);
-      await trx('calendar_feeds').where({ resource_id: person.id }).whereNull('revoked_at').update({ revoked_at: new Date() });
+      await trx('calendar_feeds')
+        .where({ resource_id: person.id })
+        .whereNull('revoked_at')
+        .update({ revoked_at: new Date() });
     });
   }
 
   /** The feed for a live token, or null (unknown and revoked tokens look the same). */
   async render(token: string, now = new Date()): Promise<string | null> {
     if (!/^[\w-]{20,64}$/.test(token)) return null;
-    const feed = await this.knex('calendar_feeds as f').join('resources as r', 'r.id', 'f.resource_id')
-      .where('f.token_hash', hashOf(token)).whereNull('f.revoked_at').first('r.id', 'r.name');
+    const feed = await this.knex('calendar_feeds as f')
+      .join('resources as r', 'r.id', 'f.resource_id')
+      .where('f.token_hash', hashOf(token))
+      .whereNull('f.revoked_at')
+      .first('r.id', 'r.name');
     if (!feed) return null;
     // The person's own bookings and their crews'; shown once sent to the firm.
     const ids: string[] = await this.knex('bookings as b')
-      .where((w) => w.where('b.resource_id', feed.id)
-        .orWhereIn('b.resource_id', this.knex('crew_members').select('crew_id').where('person_id', feed.id)))
+      .where((w) =>
+        w
+          .where('b.resource_id', feed.id)
+          .orWhereIn('b.resource_id', this.knex('crew_members').select('crew_id').where('person_id', feed.id)),
+      )
       .whereIn('b.state', ['sent', 'confirmed', 'on_site', 'done'])
       .where(bookingDuring(this.knex, 'b', now.getTime() - 60 * DAY, now.getTime() + 400 * DAY))
-      .orderBy('b.starts_at').limit(1000).pluck('b.id');
+      .orderBy('b.starts_at')
+      .limit(1000)
+      .pluck('b.id');
     // Every booking's facts in a fixed number of queries, however many bookings the feed holds.
     const factsOf = await loadBookingFactsMany(this.knex, ids.map(String));
     const events = [];
@@ -69,9 +88,11 @@ export class FeedsService {
       events.push({
         facts,
         description: [
-          `${facts.stage.name} for ${facts.installer.name} (job ${facts.job.reference})`, `${when.date}, ${when.window}`,
+          `${facts.stage.name} for ${facts.installer.name} (job ${facts.job.reference})`,
+          `${when.date}, ${when.window}`,
           facts.booking.state === 'sent' ? 'Not yet confirmed.' : `State: ${facts.booking.state}.`,
-          `Access and parking: ${facts.job.accessNotes ?? 'ask the installer'}`, `On the day call ${facts.installer.name}: ${facts.installer.phone ?? ''}`,
+          `Access and parking: ${facts.job.accessNotes ?? 'ask the installer'}`,
+          `On the day call ${facts.installer.name}: ${facts.installer.phone ?? ''}`,
           ...(cautions.length ? ['', ...cautions.map((c) => `- ${c}`), CAUTION_NOTE] : []),
         ].join('\n'),
       });

@@ -15,10 +15,20 @@ import { recordChange } from './audit.ts';
 export const LINK_SECONDS = 10 * 60;
 
 export class StorageUnavailableError extends HttpError {
-  constructor() { super(503, 'storage-unavailable', 'File storage is not available', 'The file was not saved. Try again in a moment.'); }
+  constructor() {
+    super(
+      503,
+      'storage-unavailable',
+      'File storage is not available',
+      'The file was not saved. Try again in a moment.',
+    );
+  }
 }
 
-export interface Upload { buffer: Buffer; originalName: string }
+export interface Upload {
+  buffer: Buffer;
+  originalName: string;
+}
 
 /** What {@link FilesService.keep} stores, for whom, and what else it writes with the row. */
 export interface KeepFile {
@@ -43,24 +53,45 @@ export interface KeepFile {
  * firm's settings keep them (see storedOriginal).
  */
 export class FilesService {
-  constructor(private readonly knex: Knex, private readonly store: ObjectStore, private readonly log: { error: (o: object, m: string) => void } = console) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly store: ObjectStore,
+    private readonly log: { error: (o: object, m: string) => void } = console,
+  ) {}
 
   private async view(f: JobFile, now = new Date()): Promise<FileView> {
     const isPhoto = FILE_TYPES[f.contentType as FileContentType]?.photo ?? false;
     const [url, thumbnailUrl] = await Promise.all([
-      this.store.presignGet(f.objectKey, { expiresInSeconds: LINK_SECONDS, downloadName: f.name, contentType: f.contentType }),
-      f.thumbnailKey ? this.store.presignGet(f.thumbnailKey, { expiresInSeconds: LINK_SECONDS, contentType: 'image/jpeg' }) : Promise.resolve(null),
+      this.store.presignGet(f.objectKey, {
+        expiresInSeconds: LINK_SECONDS,
+        downloadName: f.name,
+        contentType: f.contentType,
+      }),
+      f.thumbnailKey
+        ? this.store.presignGet(f.thumbnailKey, { expiresInSeconds: LINK_SECONDS, contentType: 'image/jpeg' })
+        : Promise.resolve(null),
     ]);
     return {
-      id: f.id, jobId: f.jobId, name: f.name, contentType: f.contentType, sizeBytes: f.sizeBytes, isPhoto,
-      createdAt: f.createdAt.toISOString(), uploadedBy: f.uploadedBy, url, thumbnailUrl,
+      id: f.id,
+      jobId: f.jobId,
+      name: f.name,
+      contentType: f.contentType,
+      sizeBytes: f.sizeBytes,
+      isPhoto,
+      createdAt: f.createdAt.toISOString(),
+      uploadedBy: f.uploadedBy,
+      url,
+      thumbnailUrl,
       linksExpireAt: new Date(now.getTime() + LINK_SECONDS * 1000).toISOString(),
     };
   }
 
   async list(actor: Actor, jobId: string): Promise<FileView[]> {
     await findVisible(Job, actor, jobId, undefined, 'job');
-    const files = await scoped(JobFile, actor).where('job_files.job_id', jobId).orderBy('created_at', 'desc').orderBy('id', 'desc');
+    const files = await scoped(JobFile, actor)
+      .where('job_files.job_id', jobId)
+      .orderBy('created_at', 'desc')
+      .orderBy('id', 'desc');
     return Promise.all(files.map((f) => this.view(f)));
   }
 
@@ -80,8 +111,13 @@ export class FilesService {
     const { upload } = input;
     const info = await inspectFile(upload.buffer, upload.originalName);
     if (input.accept && !input.accept.includes(info.contentType)) {
-      throw new HttpError(415, 'unsupported-file-type', 'This kind of file is not accepted', input.acceptText ?? 'This file type is not accepted here.',
-        { errors: [{ field: 'file', message: `is ${info.contentType}, not ${input.accept.join(' or ')}` }] });
+      throw new HttpError(
+        415,
+        'unsupported-file-type',
+        'This kind of file is not accepted',
+        input.acceptText ?? 'This file type is not accepted here.',
+        { errors: [{ field: 'file', message: `is ${info.contentType}, not ${input.accept.join(' or ')}` }] },
+      );
     }
     const thumbnail = info.isPhoto ? await thumbnailOf(upload.buffer, info.contentType) : null;
     const original = storedOriginal(upload.buffer, info, input.keepLocation);
@@ -104,9 +140,24 @@ export class FilesService {
     try {
       return await this.knex.transaction(async (trx) => {
         const created = await JobFile.query(trx).insertAndFetch({
-          jobId: input.jobId, objectKey, thumbnailKey, name: info.name, contentType: info.contentType, sizeBytes: original.length, uploadedBy: input.uploadedBy,
+          jobId: input.jobId,
+          objectKey,
+          thumbnailKey,
+          name: info.name,
+          contentType: info.contentType,
+          sizeBytes: original.length,
+          uploadedBy: input.uploadedBy,
         } as Partial<JobFile>);
-        await recordChange(trx, input.actor, 'job_file', created.id, 'create', null, { ...created }, input.auditFirmId ?? input.actor?.firmId ?? null);
+        await recordChange(
+          trx,
+          input.actor,
+          'job_file',
+          created.id,
+          'create',
+          null,
+          { ...created },
+          input.auditFirmId ?? input.actor?.firmId ?? null,
+        );
         await input.also?.(trx, created);
         return created;
       });
@@ -134,7 +185,11 @@ export class FilesService {
 
   private async removeQuietly(keys: string[]): Promise<void> {
     for (const key of keys) {
-      try { await this.store.delete(key); } catch (err) { this.log.error({ err, key }, 'could not remove an object after a failed upload'); }
+      try {
+        await this.store.delete(key);
+      } catch (err) {
+        this.log.error({ err, key }, 'could not remove an object after a failed upload');
+      }
     }
   }
 }

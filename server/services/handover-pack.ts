@@ -8,11 +8,16 @@ import { HANDOVER_CHECKLIST, HANDOVER_NOTE, WARRANTY_REMINDER } from '../../shar
  * (SIL Open Font License, the package @fontsource/work-sans), embedded, so £, °, – and × print as
  * themselves; pdfkit's built-in fonts only know Windows-1252.
  */
-const fontDir = path.join(path.dirname(createRequire(import.meta.url).resolve('@fontsource/work-sans/LICENSE')), 'files');
+const fontDir = path.join(
+  path.dirname(createRequire(import.meta.url).resolve('@fontsource/work-sans/LICENSE')),
+  'files',
+);
 const FONTS = {
-  body: path.join(fontDir, 'work-sans-latin-400-normal.woff'), bold: path.join(fontDir, 'work-sans-latin-600-normal.woff'),
+  body: path.join(fontDir, 'work-sans-latin-400-normal.woff'),
+  bold: path.join(fontDir, 'work-sans-latin-600-normal.woff'),
   // The package splits the font by script: names like Łukasiewicz or Dvořák take their letters from the Latin Extended files.
-  'body-ext': path.join(fontDir, 'work-sans-latin-ext-400-normal.woff'), 'bold-ext': path.join(fontDir, 'work-sans-latin-ext-600-normal.woff'),
+  'body-ext': path.join(fontDir, 'work-sans-latin-ext-400-normal.woff'),
+  'bold-ext': path.join(fontDir, 'work-sans-latin-ext-600-normal.woff'),
 };
 type Weight = 'body' | 'bold';
 
@@ -28,7 +33,8 @@ export function runsOf(text: string): { ext: boolean; text: string }[] {
   for (const ch of text) {
     const ext = EXTENDED.test(ch);
     const last = runs.at(-1);
-    if (last && last.ext === ext) last.text += ch; else runs.push({ ext, text: ch });
+    if (last && last.ext === ext) last.text += ch;
+    else runs.push({ ext, text: ch });
   }
   return runs;
 }
@@ -39,7 +45,12 @@ const MUTED = '#4a5560';
 const ACCENT = '#0b5c7a';
 const CAUTION_EDGE = '#b7791f';
 
-export interface PackReading { label: string; value: string; range: string; verdict: string }
+export interface PackReading {
+  label: string;
+  value: string;
+  range: string;
+  verdict: string;
+}
 
 export interface PackFacts {
   firm: { name: string; phone: string | null; email: string | null };
@@ -72,7 +83,11 @@ export const WATER_CARE_ROUTINE = [
 
 /** Builds the pack; resolves with the PDF's bytes. */
 export function buildHandoverPack(f: PackFacts): Promise<Buffer> {
-  const doc = new PDFDocument({ size: 'A4', margin: 50, info: { Title: `Handover pack, ${f.job.reference}`, Author: f.firm.name, Subject: 'Hot tub handover' } });
+  const doc = new PDFDocument({
+    size: 'A4',
+    margin: 50,
+    info: { Title: `Handover pack, ${f.job.reference}`, Author: f.firm.name, Subject: 'Hot tub handover' },
+  });
   const chunks: Buffer[] = [];
   doc.on('data', (c: Buffer) => chunks.push(c));
   const done = new Promise<Buffer>((resolve, reject) => {
@@ -86,23 +101,59 @@ export function buildHandoverPack(f: PackFacts): Promise<Buffer> {
     runs.forEach((r, i) => {
       doc.font(r.ext ? `${weight}-ext` : weight);
       const opts = { ...options, continued: i < runs.length - 1 };
-      if (i === 0 && at) doc.text(r.text, at.x, at.y, opts); else doc.text(r.text, opts);
+      if (i === 0 && at) doc.text(r.text, at.x, at.y, opts);
+      else doc.text(r.text, opts);
     });
   };
 
   const width = doc.page.width - 100;
   const heading = (text: string) => {
     if (doc.y > doc.page.height - 140) doc.addPage();
-    doc.moveDown(0.8).font('bold').fontSize(14).fillColor(ACCENT).text(text).moveDown(0.3).font('body').fontSize(10.5).fillColor(INK);
+    doc
+      .moveDown(0.8)
+      .font('bold')
+      .fontSize(14)
+      .fillColor(ACCENT)
+      .text(text)
+      .moveDown(0.3)
+      .font('body')
+      .fontSize(10.5)
+      .fillColor(INK);
   };
-  const line = (text: string) => { doc.fontSize(10.5).fillColor(INK); mixed(text, 'body', { width }); };
-  const bullets = (items: readonly string[]) => doc.font('body').fontSize(10.5).fillColor(INK).list([...items], { width: width - 15, bulletRadius: 2, textIndent: 12, paragraphGap: 3 });
+  const line = (text: string) => {
+    doc.fontSize(10.5).fillColor(INK);
+    mixed(text, 'body', { width });
+  };
+  const bullets = (items: readonly string[]) =>
+    doc
+      .font('body')
+      .fontSize(10.5)
+      .fillColor(INK)
+      .list([...items], { width: width - 15, bulletRadius: 2, textIndent: 12, paragraphGap: 3 });
   const cautionBox = (title: string, items: readonly string[]) => {
     const top = doc.y;
-    doc.font('bold').fontSize(11).fillColor(INK).text(title, 62, top, { width: width - 12 }).moveDown(0.2);
-    doc.font('body').fontSize(10).list([...items], 62, doc.y, { width: width - 27, bulletRadius: 2, textIndent: 12, paragraphGap: 2 });
-    doc.font('bold').fontSize(10).text(HANDOVER_NOTE, 62, doc.y + 2, { width: width - 12 });
-    doc.save().moveTo(52, top - 2).lineTo(52, doc.y + 2).lineWidth(3).strokeColor(CAUTION_EDGE).stroke().restore();
+    doc
+      .font('bold')
+      .fontSize(11)
+      .fillColor(INK)
+      .text(title, 62, top, { width: width - 12 })
+      .moveDown(0.2);
+    doc
+      .font('body')
+      .fontSize(10)
+      .list([...items], 62, doc.y, { width: width - 27, bulletRadius: 2, textIndent: 12, paragraphGap: 2 });
+    doc
+      .font('bold')
+      .fontSize(10)
+      .text(HANDOVER_NOTE, 62, doc.y + 2, { width: width - 12 });
+    doc
+      .save()
+      .moveTo(52, top - 2)
+      .lineTo(52, doc.y + 2)
+      .lineWidth(3)
+      .strokeColor(CAUTION_EDGE)
+      .stroke()
+      .restore();
     doc.x = 50;
     doc.moveDown(0.5);
   };
@@ -125,7 +176,13 @@ export function buildHandoverPack(f: PackFacts): Promise<Buffer> {
     const cols = [0, 170, 280, 400];
     const row = (cells: string[], font: 'body' | 'bold') => {
       const y = doc.y;
-      cells.forEach((cell, i) => doc.font(font).fontSize(10.5).fillColor(INK).text(cell, 50 + cols[i]!, y, { width: (cols[i + 1] ?? width) - cols[i]! - 8 }));
+      cells.forEach((cell, i) =>
+        doc
+          .font(font)
+          .fontSize(10.5)
+          .fillColor(INK)
+          .text(cell, 50 + cols[i]!, y, { width: (cols[i + 1] ?? width) - cols[i]! - 8 }),
+      );
       doc.x = 50;
       doc.y = y + 16;
     };
@@ -158,7 +215,9 @@ export function buildHandoverPack(f: PackFacts): Promise<Buffer> {
 
   heading('Who to call');
   line(`${f.firm.name}${f.firm.phone ? `: ${f.firm.phone}` : ''}${f.firm.email ? `, ${f.firm.email}` : ''}`);
-  line('For a fault, a question about the water, or to move a service visit. In an emergency switch the spa off at the isolator, then call.');
+  line(
+    'For a fault, a question about the water, or to move a service visit. In an emergency switch the spa off at the isolator, then call.',
+  );
 
   if (f.serviceVisits.length) {
     heading('Your service visits');

@@ -1,8 +1,20 @@
 import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
 import sharp from 'sharp';
-import type { HandoverView, PutServicePlan, ServicePlanView, SignHandover, SignHandoverResult } from '../../shared/schemas/handover.ts';
-import { DEFAULT_SERVICE_PLAN, monthName, serviceVisitDates, type ServicePlan, type ServiceVisitDate } from '../../shared/service-plan.ts';
+import type {
+  HandoverView,
+  PutServicePlan,
+  ServicePlanView,
+  SignHandover,
+  SignHandoverResult,
+} from '../../shared/schemas/handover.ts';
+import {
+  DEFAULT_SERVICE_PLAN,
+  monthName,
+  serviceVisitDates,
+  type ServicePlan,
+  type ServiceVisitDate,
+} from '../../shared/service-plan.ts';
 import { SERVICE_VISIT_TEMPLATE } from '../../shared/templates/defaults.ts';
 import { localDateOf } from '../../shared/local-dates.ts';
 import { COMMISSIONING_CHECKS, rangeText, readingChecks } from '../../shared/water-balance.ts';
@@ -25,10 +37,16 @@ import { requestBalance } from './payments.ts';
 import { buildHandoverPack, WATER_CARE_ROUTINE, type PackFacts } from './handover-pack.ts';
 
 const PLAN_SOURCE = 'common practice, no source';
-const VERDICT_WORDS: Record<string, string> = { 'in-range': 'In range', low: 'Low', high: 'High', missing: 'Not taken' };
+const VERDICT_WORDS: Record<string, string> = {
+  'in-range': 'In range',
+  low: 'Low',
+  high: 'High',
+  missing: 'Not taken',
+};
 
 /** A signature that is not a picture of a signature: 400 naming the field. */
-const badSignature = (message: string) => new BadRequestError(`The signature ${message}.`, [{ field: 'signature', message }]);
+const badSignature = (message: string) =>
+  new BadRequestError(`The signature ${message}.`, [{ field: 'signature', message }]);
 
 /**
  * The signature pad's PNG, checked for what it is (its bytes, not its label), its size, and that
@@ -41,7 +59,8 @@ export async function signatureImage(dataUrl: string): Promise<Buffer> {
   try {
     const image = sharp(buffer, { failOn: 'error' });
     const meta = await image.metadata();
-    if (!meta.width || !meta.height || meta.width > 4000 || meta.height > 4000) throw badSignature('image must be at most 4000 × 4000 pixels');
+    if (!meta.width || !meta.height || meta.width > 4000 || meta.height > 4000)
+      throw badSignature('image must be at most 4000 × 4000 pixels');
     const stats = await image.stats();
     const drawn = meta.hasAlpha ? (stats.channels[3]?.max ?? 0) > 0 : stats.channels.some((c) => c.min !== c.max);
     if (!drawn) throw badSignature('is blank: ask the householder to sign');
@@ -53,11 +72,16 @@ export async function signatureImage(dataUrl: string): Promise<Buffer> {
 }
 
 /** The firm's service plan: its own, or the default. */
-export async function servicePlanOf(knex: Knex | Knex.Transaction, firmId: string): Promise<ServicePlan & { isDefault: boolean }> {
+export async function servicePlanOf(
+  knex: Knex | Knex.Transaction,
+  firmId: string,
+): Promise<ServicePlan & { isDefault: boolean }> {
   const row = await knex('firm_settings').where('firm_id', firmId).first('service_plan');
   const stored = row?.servicePlan as Partial<ServicePlan> | undefined;
   const plan = { ...DEFAULT_SERVICE_PLAN, ...(stored ?? {}) };
-  const isDefault = (Object.keys(DEFAULT_SERVICE_PLAN) as (keyof ServicePlan)[]).every((k) => plan[k] === DEFAULT_SERVICE_PLAN[k]);
+  const isDefault = (Object.keys(DEFAULT_SERVICE_PLAN) as (keyof ServicePlan)[]).every(
+    (k) => plan[k] === DEFAULT_SERVICE_PLAN[k],
+  );
   return { ...plan, isDefault };
 }
 
@@ -67,32 +91,63 @@ export async function servicePlanOf(knex: Knex | Knex.Transaction, firmId: strin
  * and promised two weeks either side, each with one unbooked service-visit stage. The board's tray
  * shows them as their window comes near (server/services/board.ts), and they are booked like any job.
  */
-export async function createServiceVisits(trx: Knex.Transaction, actor: Actor, install: Job, visits: ServiceVisitDate[]): Promise<{ jobId: string; reference: string; dueOn: string }[]> {
+export async function createServiceVisits(
+  trx: Knex.Transaction,
+  actor: Actor,
+  install: Job,
+  visits: ServiceVisitDate[],
+): Promise<{ jobId: string; reference: string; dueOn: string }[]> {
   const out: { jobId: string; reference: string; dueOn: string }[] = [];
   const minutes = SERVICE_VISIT_TEMPLATE.duration.kind === 'fixed' ? SERVICE_VISIT_TEMPLATE.duration.minutes : 120;
   for (const v of visits) {
     const reference = `${install.reference}-S${v.number}`;
-    const [row] = await trx('jobs').insert({
-      firm_id: install.firmId, reference, kind: 'service', parent_job_id: install.id, service_due_on: v.dueOn,
-      customer_name: install.customerName, customer_phone: install.customerPhone, customer_email: install.customerEmail,
-      site_address: install.siteAddress, site_town: install.siteTown, site_postcode: install.sitePostcode, access_notes: install.accessNotes,
-      unit_id: install.unitId, installation_type: install.installationType, status: 'planned',
-      promised_from: v.promisedFrom, promised_to: v.promisedTo,
-    }).returning('id');
+    const [row] = await trx('jobs')
+      .insert({
+        firm_id: install.firmId,
+        reference,
+        kind: 'service',
+        parent_job_id: install.id,
+        service_due_on: v.dueOn,
+        customer_name: install.customerName,
+        customer_phone: install.customerPhone,
+        customer_email: install.customerEmail,
+        site_address: install.siteAddress,
+        site_town: install.siteTown,
+        site_postcode: install.sitePostcode,
+        access_notes: install.accessNotes,
+        unit_id: install.unitId,
+        installation_type: install.installationType,
+        status: 'planned',
+        promised_from: v.promisedFrom,
+        promised_to: v.promisedTo,
+      })
+      .returning('id');
     const jobId = String(row.id);
     await trx('stages').insert({
-      job_id: jobId, kind: SERVICE_VISIT_TEMPLATE.kind, name: SERVICE_VISIT_TEMPLATE.name, sequence: 1, duration_minutes: minutes,
+      job_id: jobId,
+      kind: SERVICE_VISIT_TEMPLATE.kind,
+      name: SERVICE_VISIT_TEMPLATE.name,
+      sequence: 1,
+      duration_minutes: minutes,
       requirements: JSON.stringify(SERVICE_VISIT_TEMPLATE.requirements),
       notes: `Service visit ${v.number} after the handover of ${install.reference}, due ${v.dueOn}.`,
     });
-    await recordChange(trx, actor, 'job', jobId, 'create', null, { reference, kind: 'service', parentJobId: install.id, serviceDueOn: v.dueOn });
+    await recordChange(trx, actor, 'job', jobId, 'create', null, {
+      reference,
+      kind: 'service',
+      parentJobId: install.id,
+      serviceDueOn: v.dueOn,
+    });
     out.push({ jobId, reference, dueOn: v.dueOn });
   }
   return out;
 }
 
 /** What the pack says about commissioning and the certificate, from the job's records. */
-async function recordsFor(trx: Knex.Transaction, job: Job): Promise<Pick<PackFacts, 'commissioning' | 'certificateLine'>> {
+async function recordsFor(
+  trx: Knex.Transaction,
+  job: Job,
+): Promise<Pick<PackFacts, 'commissioning' | 'certificateLine'>> {
   const record = await loadCommissioningRecord(trx, String(job.id));
   let commissioning: PackFacts['commissioning'] = null;
   if (record) {
@@ -103,7 +158,8 @@ async function recordsFor(trx: Knex.Transaction, job: Job): Promise<Pick<PackFac
       readings: readings.map((r) => ({
         label: r.key === 'sanitiserPpm' ? sanitiserName : r.label,
         value: r.value === null ? '–' : `${r.value}${r.range.unit ? ` ${r.range.unit}` : ''}`,
-        range: rangeText(r.range), verdict: VERDICT_WORDS[r.verdict] ?? r.verdict,
+        range: rangeText(r.range),
+        verdict: VERDICT_WORDS[r.verdict] ?? r.verdict,
       })),
       notes: record.notes,
     };
@@ -118,7 +174,10 @@ async function recordsFor(trx: Knex.Transaction, job: Job): Promise<Pick<PackFac
   return { commissioning, certificateLine };
 }
 
-const longDate = (date: string) => new Intl.DateTimeFormat('en-GB', { timeZone: 'UTC', weekday: 'long', day: 'numeric', month: 'long', year: 'numeric' }).format(new Date(`${date}T12:00:00Z`)).replace(',', '');
+const longDate = (date: string) =>
+  new Intl.DateTimeFormat('en-GB', { timeZone: 'UTC', weekday: 'long', day: 'numeric', month: 'long', year: 'numeric' })
+    .format(new Date(`${date}T12:00:00Z`))
+    .replace(',', '');
 
 /**
  * The handover with the householder: the checklist they went through, their signature, the pack
@@ -128,8 +187,13 @@ const longDate = (date: string) => new Intl.DateTimeFormat('en-GB', { timeZone: 
 export class HandoverService {
   private readonly writer: BookingWriter;
 
-  constructor(private readonly knex: Knex, private readonly store: ObjectStore, private readonly now: () => number = Date.now, limits?: BookingLimits,
-    private readonly log: { error: (o: object, m: string) => void } = console) {
+  constructor(
+    private readonly knex: Knex,
+    private readonly store: ObjectStore,
+    private readonly now: () => number = Date.now,
+    limits?: BookingLimits,
+    private readonly log: { error: (o: object, m: string) => void } = console,
+  ) {
     this.writer = new BookingWriter(knex, now, limits);
   }
 
@@ -137,26 +201,53 @@ export class HandoverService {
     const job = await findVisible(Job, actor, jobId, undefined, 'job');
     const unit = job.unitId ? await this.knex('units').where('id', job.unitId).first('model') : null;
     const stage = await scoped(Stage, actor).where({ 'stages.job_id': jobId, 'stages.kind': 'handover' }).first();
-    const booked = stage ? await scoped(Booking, actor).where('bookings.stage_id', stage.id).whereNot('bookings.state', 'declined').resultSize() : 0;
+    const booked = stage
+      ? await scoped(Booking, actor)
+          .where('bookings.stage_id', stage.id)
+          .whereNot('bookings.state', 'declined')
+          .resultSize()
+      : 0;
     const handover = await scoped(Handover, actor).where('handovers.job_id', jobId).first();
     let signed: HandoverView['signed'] = null;
     if (handover) {
-      const by = handover.signedByUser ? await this.knex('users').where('id', handover.signedByUser).first('name') : null;
+      const by = handover.signedByUser
+        ? await this.knex('users').where('id', handover.signedByUser).first('name')
+        : null;
       // The visits this handover planned, read through the install the reader may see: crew are not
       // booked on them (yet), but may tell the householder the months.
-      const visits = await this.knex('jobs').where({ parent_job_id: jobId, kind: 'service' }).orderBy('service_due_on')
-        .select('id', 'reference', 'service_due_on') as { id: string; reference: string; serviceDueOn: string }[];
-      const outbox = handover.packOutboxId ? await this.knex('outbox').where('id', handover.packOutboxId).first('status') : null;
+      const visits = (await this.knex('jobs')
+        .where({ parent_job_id: jobId, kind: 'service' })
+        .orderBy('service_due_on')
+        .select('id', 'reference', 'service_due_on')) as { id: string; reference: string; serviceDueOn: string }[];
+      const outbox = handover.packOutboxId
+        ? await this.knex('outbox').where('id', handover.packOutboxId).first('status')
+        : null;
       signed = {
-        signedAt: handover.signedAt.toISOString(), householderName: handover.householderName, signedBy: by?.name ?? null,
-        serviceVisits: visits.map((v) => ({ jobId: String(v.id), reference: v.reference, dueOn: String(v.serviceDueOn) })),
+        signedAt: handover.signedAt.toISOString(),
+        householderName: handover.householderName,
+        signedBy: by?.name ?? null,
+        serviceVisits: visits.map((v) => ({
+          jobId: String(v.id),
+          reference: v.reference,
+          dueOn: String(v.serviceDueOn),
+        })),
         packEmailed: outbox?.status === 'sent',
       };
     }
     const email = handoverEmailFor(actor, job.customerEmail);
     return {
-      job: { id: String(job.id), reference: job.reference, customerName: job.customerName, siteTown: job.siteTown, unitName: unit?.model ?? null, kind: job.kind },
-      householderEmail: email.email, householderEmailHint: email.hint, stageBooked: booked > 0, signed,
+      job: {
+        id: String(job.id),
+        reference: job.reference,
+        customerName: job.customerName,
+        siteTown: job.siteTown,
+        unitName: unit?.model ?? null,
+        kind: job.kind,
+      },
+      householderEmail: email.email,
+      householderEmailHint: email.hint,
+      stageBooked: booked > 0,
+      signed,
     };
   }
 
@@ -167,63 +258,122 @@ export class HandoverService {
 
   async sign(actor: Actor, jobId: string, input: SignHandover): Promise<SignHandoverResult> {
     const job = await findVisible(Job, actor, jobId, undefined, 'job');
-    if (job.kind === 'service') throw new ConflictError('A service visit has no handover: it is marked done on My work.', { code: 'not-an-install' });
+    if (job.kind === 'service')
+      throw new ConflictError('A service visit has no handover: it is marked done on My work.', {
+        code: 'not-an-install',
+      });
     const stage = await scoped(Stage, actor).where({ 'stages.job_id': jobId, 'stages.kind': 'handover' }).first();
-    if (!stage) throw new ConflictError(`Job ${job.reference} has no handover stage: plan the job first.`, { code: 'no-handover-stage' });
+    if (!stage)
+      throw new ConflictError(`Job ${job.reference} has no handover stage: plan the job first.`, {
+        code: 'no-handover-stage',
+      });
     const signature = await signatureImage(input.signature);
     const to = input.householderEmail ?? job.customerEmail;
-    if (!to) throw new BadRequestError('The job has no e-mail for the householder: type the address the pack should go to.', [{ field: 'householderEmail', message: 'is required: the job has no e-mail' }]);
+    if (!to)
+      throw new BadRequestError('The job has no e-mail for the householder: type the address the pack should go to.', [
+        { field: 'householderEmail', message: 'is required: the job has no e-mail' },
+      ]);
     const stored: string[] = [];
     try {
-      const outcome = await this.writer.run({ actor, party: partyOf(actor) }, { stageIds: [String(stage.id)] }, async (w) => {
-        const trx = w.trx;
-        const earlier = await Handover.query(trx).where('job_id', jobId).first();
-        if (earlier) throw new ConflictError(`Job ${job.reference} was already handed over on ${earlier.signedAt.toISOString().slice(0, 10)}.`, { code: 'already-handed-over' });
-        const bookings = await scoped(Booking, actor, trx).where('bookings.stage_id', stage.id).whereNot('bookings.state', 'declined').orderBy('bookings.id');
-        if (!bookings.length) throw new ConflictError(`The handover of ${job.reference} is not booked: book it on the board first.`, { code: 'handover-not-booked' });
+      const outcome = await this.writer.run(
+        { actor, party: partyOf(actor) },
+        { stageIds: [String(stage.id)] },
+        async (w) => {
+          const trx = w.trx;
+          const earlier = await Handover.query(trx).where('job_id', jobId).first();
+          if (earlier)
+            throw new ConflictError(
+              `Job ${job.reference} was already handed over on ${earlier.signedAt.toISOString().slice(0, 10)}.`,
+              { code: 'already-handed-over' },
+            );
+          const bookings = await scoped(Booking, actor, trx)
+            .where('bookings.stage_id', stage.id)
+            .whereNot('bookings.state', 'declined')
+            .orderBy('bookings.id');
+          if (!bookings.length)
+            throw new ConflictError(`The handover of ${job.reference} is not booked: book it on the board first.`, {
+              code: 'handover-not-booked',
+            });
 
-        const signedAt = new Date(this.now());
-        const firm = await trx('firms').where('id', job.firmId).first('name', 'phone', 'email', 'time_zone');
-        const handedOverOn = localDateOf(signedAt.getTime(), firm.timeZone);
-        const plan = await servicePlanOf(trx, String(job.firmId));
-        const dates = serviceVisitDates(handedOverOn, plan);
-        const unit = job.unitId ? await trx('units').where('id', job.unitId).first('model', 'maker') : null;
-        const signer = await trx('users').where('id', actor.userId).first('name');
-        const pdf = await buildHandoverPack({
-          firm: { name: firm.name, phone: firm.phone, email: firm.email },
-          job, unit: unit ?? null, handedOverOn: longDate(handedOverOn), householderName: input.householderName, handedOverBy: signer?.name ?? null,
-          ...await recordsFor(trx, job), waterCare: WATER_CARE_ROUTINE,
-          serviceVisits: dates.map((d) => ({ reference: `${job.reference}-S${d.number}`, month: monthName(d.dueOn) })),
-          signaturePng: signature,
-        });
-        const signatureFile = await this.keep(trx, actor, job, { name: `Handover signature ${job.reference}.png`, body: signature, contentType: 'image/png', ext: 'png' }, stored);
-        const packFile = await this.keep(trx, actor, job, { name: `Handover pack ${job.reference}.pdf`, body: pdf, contentType: 'application/pdf', ext: 'pdf' }, stored);
-        const handover = await Handover.query(trx).insertAndFetch({
-          jobId, checklist: input.checklist, householderName: input.householderName, householderEmail: input.householderEmail ?? null,
-          signatureFileId: signatureFile, packFileId: packFile, signedAt, signedByUser: actor.userId,
-        } as Partial<Handover>);
-        const key = `handover.${jobId}.pack`;
-        await enqueueMessage(trx, key, 'handover_pack', { jobId });
-        const outbox = await trx('outbox').where('idempotency_key', key).first('id');
-        await Handover.query(trx).patch({ packOutboxId: outbox?.id ?? null } as Partial<Handover>).where('id', handover.id);
-        await recordChange(trx, actor, 'handover', String(handover.id), 'create', null, { jobId, householderName: input.householderName, checklist: input.checklist, signedAt });
+          const signedAt = new Date(this.now());
+          const firm = await trx('firms').where('id', job.firmId).first('name', 'phone', 'email', 'time_zone');
+          const handedOverOn = localDateOf(signedAt.getTime(), firm.timeZone);
+          const plan = await servicePlanOf(trx, String(job.firmId));
+          const dates = serviceVisitDates(handedOverOn, plan);
+          const unit = job.unitId ? await trx('units').where('id', job.unitId).first('model', 'maker') : null;
+          const signer = await trx('users').where('id', actor.userId).first('name');
+          const pdf = await buildHandoverPack({
+            firm: { name: firm.name, phone: firm.phone, email: firm.email },
+            job,
+            unit: unit ?? null,
+            handedOverOn: longDate(handedOverOn),
+            householderName: input.householderName,
+            handedOverBy: signer?.name ?? null,
+            ...(await recordsFor(trx, job)),
+            waterCare: WATER_CARE_ROUTINE,
+            serviceVisits: dates.map((d) => ({
+              reference: `${job.reference}-S${d.number}`,
+              month: monthName(d.dueOn),
+            })),
+            signaturePng: signature,
+          });
+          const signatureFile = await this.keep(
+            trx,
+            actor,
+            job,
+            { name: `Handover signature ${job.reference}.png`, body: signature, contentType: 'image/png', ext: 'png' },
+            stored,
+          );
+          const packFile = await this.keep(
+            trx,
+            actor,
+            job,
+            { name: `Handover pack ${job.reference}.pdf`, body: pdf, contentType: 'application/pdf', ext: 'pdf' },
+            stored,
+          );
+          const handover = await Handover.query(trx).insertAndFetch({
+            jobId,
+            checklist: input.checklist,
+            householderName: input.householderName,
+            householderEmail: input.householderEmail ?? null,
+            signatureFileId: signatureFile,
+            packFileId: packFile,
+            signedAt,
+            signedByUser: actor.userId,
+          } as Partial<Handover>);
+          const key = `handover.${jobId}.pack`;
+          await enqueueMessage(trx, key, 'handover_pack', { jobId });
+          const outbox = await trx('outbox').where('idempotency_key', key).first('id');
+          await Handover.query(trx)
+            .patch({ packOutboxId: outbox?.id ?? null } as Partial<Handover>)
+            .where('id', handover.id);
+          await recordChange(trx, actor, 'handover', String(handover.id), 'create', null, {
+            jobId,
+            householderName: input.householderName,
+            checklist: input.checklist,
+            signedAt,
+          });
 
-        // The handover stage is done: through the write path, whose gates on Done apply.
-        for (const b of bookings) {
-          if (b.state === 'done') continue;
-          if (b.state !== 'on_site') await w.apply({ action: 'arrive', bookingId: String(b.id) });
-          await w.apply({ action: 'finish', bookingId: String(b.id) });
-        }
-        await Job.query(trx).patch({ status: 'handed_over', version: trx.raw('version + 1') } as never).where('id', jobId);
-        await recordChange(trx, actor, 'job', jobId, 'update', { status: job.status }, { status: 'handed_over' });
+          // The handover stage is done: through the write path, whose gates on Done apply.
+          for (const b of bookings) {
+            if (b.state === 'done') continue;
+            if (b.state !== 'on_site') await w.apply({ action: 'arrive', bookingId: String(b.id) });
+            await w.apply({ action: 'finish', bookingId: String(b.id) });
+          }
+          await Job.query(trx)
+            .patch({ status: 'handed_over', version: trx.raw('version + 1') } as never)
+            .where('id', jobId);
+          await recordChange(trx, actor, 'job', jobId, 'update', { status: job.status }, { status: 'handed_over' });
 
-        const serviceVisits = await createServiceVisits(trx, actor, job, dates);
-        if (serviceVisits.length) await enqueueMessage(trx, `handover.${jobId}.service-plan`, 'service_plan_notice', { jobId });
-        // The balance is asked for once the job is handed over (null: no price recorded, or nothing left to pay).
-        const balance = await requestBalance({ actor, trx, jobId });
-        const balanceRequested = balance !== null;
-        return { signedAt: signedAt.toISOString(), packFileId: packFile, serviceVisits, balanceRequested };
-      });
+          const serviceVisits = await createServiceVisits(trx, actor, job, dates);
+          if (serviceVisits.length)
+            await enqueueMessage(trx, `handover.${jobId}.service-plan`, 'service_plan_notice', { jobId });
+          // The balance is asked for once the job is handed over (null: no price recorded, or nothing left to pay).
+          const balance = await requestBalance({ actor, trx, jobId });
+          const balanceRequested = balance !== null;
+          return { signedAt: signedAt.toISOString(), packFileId: packFile, serviceVisits, balanceRequested };
+        },
+      );
       return outcome.result;
     } catch (error) {
       await this.removeQuietly(stored);
@@ -232,7 +382,13 @@ export class HandoverService {
   }
 
   /** One file of the handover: bytes to storage, its row in the transaction (removed again if that rolls back). */
-  private async keep(trx: Knex.Transaction, actor: Actor, job: Job, file: { name: string; body: Buffer; contentType: string; ext: string }, stored: string[]): Promise<string> {
+  private async keep(
+    trx: Knex.Transaction,
+    actor: Actor,
+    job: Job,
+    file: { name: string; body: Buffer; contentType: string; ext: string },
+    stored: string[],
+  ): Promise<string> {
     const objectKey = `jobs/${job.id}/${randomUUID()}.${file.ext}`;
     try {
       await this.store.put(objectKey, file.body, file.contentType);
@@ -242,7 +398,13 @@ export class HandoverService {
     }
     stored.push(objectKey);
     const row = await JobFile.query(trx).insertAndFetch({
-      jobId: job.id, objectKey, thumbnailKey: null, name: file.name, contentType: file.contentType, sizeBytes: file.body.length, uploadedBy: actor.userId,
+      jobId: job.id,
+      objectKey,
+      thumbnailKey: null,
+      name: file.name,
+      contentType: file.contentType,
+      sizeBytes: file.body.length,
+      uploadedBy: actor.userId,
     } as Partial<JobFile>);
     await recordChange(trx, actor, 'job_file', String(row.id), 'create', null, { ...row });
     return String(row.id);
@@ -250,7 +412,11 @@ export class HandoverService {
 
   private async removeQuietly(keys: string[]): Promise<void> {
     for (const key of keys) {
-      try { await this.store.delete(key); } catch (err) { this.log.error({ err, key }, 'could not remove a handover file after a failed handover'); }
+      try {
+        await this.store.delete(key);
+      } catch (err) {
+        this.log.error({ err, key }, 'could not remove a handover file after a failed handover');
+      }
     }
   }
 
@@ -263,10 +429,22 @@ export class HandoverService {
     await this.knex.transaction(async (trx) => {
       const before = await scoped(FirmSettings, actor, trx).first().forUpdate();
       const was = before ? await servicePlanOf(trx, actor.firmId) : null;
-      if (before) await trx('firm_settings').where('firm_id', actor.firmId).update({ service_plan: JSON.stringify(input), updated_at: new Date() });
+      if (before)
+        await trx('firm_settings')
+          .where('firm_id', actor.firmId)
+          .update({ service_plan: JSON.stringify(input), updated_at: new Date() });
       // A firm without settings yet gets its row; version 0 keeps the quantity form's own count untouched.
-      else await trx('firm_settings').insert({ firm_id: actor.firmId, service_plan: JSON.stringify(input), version: 0 });
-      await recordChange(trx, actor, 'firm_settings', actor.firmId, before ? 'update' : 'create', was ? { servicePlan: was } : null, { servicePlan: input });
+      else
+        await trx('firm_settings').insert({ firm_id: actor.firmId, service_plan: JSON.stringify(input), version: 0 });
+      await recordChange(
+        trx,
+        actor,
+        'firm_settings',
+        actor.firmId,
+        before ? 'update' : 'create',
+        was ? { servicePlan: was } : null,
+        { servicePlan: input },
+      );
     });
     return this.servicePlan(actor);
   }

@@ -11,10 +11,19 @@ type VersionedHire = HirePeriod & { version: number; updatedAt: Date };
 
 function viewOf(h: VersionedHire): HirePeriodView {
   return {
-    id: String(h.id), resourceId: String(h.resourceId), hirerFirmId: String(h.hirerFirmId), supplierFirmId: String(h.supplierFirmId),
-    onHireAt: h.onHireAt.toISOString(), offHireAt: h.offHireAt.toISOString(), dayRatePence: h.dayRatePence,
-    deliveryPence: h.deliveryPence, collectionPence: h.collectionPence, status: h.status,
-    approvedBy: h.approvedBy === null ? null : String(h.approvedBy), version: h.version, updatedAt: h.updatedAt.toISOString(),
+    id: String(h.id),
+    resourceId: String(h.resourceId),
+    hirerFirmId: String(h.hirerFirmId),
+    supplierFirmId: String(h.supplierFirmId),
+    onHireAt: h.onHireAt.toISOString(),
+    offHireAt: h.offHireAt.toISOString(),
+    dayRatePence: h.dayRatePence,
+    deliveryPence: h.deliveryPence,
+    collectionPence: h.collectionPence,
+    status: h.status,
+    approvedBy: h.approvedBy === null ? null : String(h.approvedBy),
+    version: h.version,
+    updatedAt: h.updatedAt.toISOString(),
   };
 }
 
@@ -29,18 +38,30 @@ export class HirePeriodsService {
     return this.knex.transaction(async (trx) => {
       const resource = await findVisible(Resource, actor, input.resourceId, trx, 'resource');
       if (resource.firmId !== actor.firmId || resource.ownership !== 'hired') {
-        throw new UnprocessableError('Only your own firm\'s hired machines have hire periods.', { errors: [{ field: 'resourceId', message: 'is not a machine your firm hires in' }] });
+        throw new UnprocessableError("Only your own firm's hired machines have hire periods.", {
+          errors: [{ field: 'resourceId', message: 'is not a machine your firm hires in' }],
+        });
       }
       const supplier = await scoped(Firm, actor, trx).findById(input.supplierFirmId);
       if (!supplier || supplier.id === actor.firmId) {
-        throw new BadRequestError('The supplier must be a firm you work with.', [{ field: 'supplierFirmId', message: 'is not a firm you work with' }]);
+        throw new BadRequestError('The supplier must be a firm you work with.', [
+          { field: 'supplierFirmId', message: 'is not a firm you work with' },
+        ]);
       }
-      const inserted = await HirePeriod.query(trx).insert({
-        resourceId: input.resourceId, hirerFirmId: actor.firmId, supplierFirmId: input.supplierFirmId,
-        onHireAt: new Date(input.onHireAt), offHireAt: new Date(input.offHireAt), dayRatePence: input.dayRatePence,
-        deliveryPence: input.deliveryPence, collectionPence: input.collectionPence,
-        status: input.approve ? 'approved' : 'requested', approvedBy: input.approve ? actor.userId : null,
-      } as Partial<HirePeriod>).returning('*') as unknown as VersionedHire;
+      const inserted = (await HirePeriod.query(trx)
+        .insert({
+          resourceId: input.resourceId,
+          hirerFirmId: actor.firmId,
+          supplierFirmId: input.supplierFirmId,
+          onHireAt: new Date(input.onHireAt),
+          offHireAt: new Date(input.offHireAt),
+          dayRatePence: input.dayRatePence,
+          deliveryPence: input.deliveryPence,
+          collectionPence: input.collectionPence,
+          status: input.approve ? 'approved' : 'requested',
+          approvedBy: input.approve ? actor.userId : null,
+        } as Partial<HirePeriod>)
+        .returning('*')) as unknown as VersionedHire;
       const view = viewOf(inserted);
       await recordChange(trx, actor, 'hire_period', view.id, 'create', null, view);
       return view;
@@ -50,25 +71,39 @@ export class HirePeriodsService {
   /** Approve, end, or change dates and prices of one of the firm's hire periods. */
   async update(actor: Actor, id: string, input: UpdateHirePeriod): Promise<HirePeriodView> {
     return this.knex.transaction(async (trx) => {
-      const before = await scoped(HirePeriod, actor, trx).where('hire_periods.hirer_firm_id', actor.firmId).findById(id).forUpdate() as VersionedHire | undefined;
+      const before = (await scoped(HirePeriod, actor, trx)
+        .where('hire_periods.hirer_firm_id', actor.firmId)
+        .findById(id)
+        .forUpdate()) as VersionedHire | undefined;
       if (!before) throw new NotFoundError('hire period');
       if (before.version !== input.version) {
-        throw new ConflictError('Someone else changed this hire since you loaded it.', { code: 'stale-version', current: viewOf(before) });
+        throw new ConflictError('Someone else changed this hire since you loaded it.', {
+          code: 'stale-version',
+          current: viewOf(before),
+        });
       }
       const onHireAt = input.onHireAt ? new Date(input.onHireAt) : before.onHireAt;
       const offHireAt = input.offHireAt ? new Date(input.offHireAt) : before.offHireAt;
       if (offHireAt.getTime() <= onHireAt.getTime()) {
-        throw new BadRequestError('The off-hire must be after the on-hire.', [{ field: input.offHireAt ? 'offHireAt' : 'onHireAt', message: input.offHireAt ? 'must be after the on-hire' : 'must be before the off-hire' }]);
+        throw new BadRequestError('The off-hire must be after the on-hire.', [
+          {
+            field: input.offHireAt ? 'offHireAt' : 'onHireAt',
+            message: input.offHireAt ? 'must be after the on-hire' : 'must be before the off-hire',
+          },
+        ]);
       }
       const status = input.status ?? before.status;
-      const after = await HirePeriod.query(trx).patchAndFetchById(id, {
-        onHireAt, offHireAt, status,
+      const after = (await HirePeriod.query(trx).patchAndFetchById(id, {
+        onHireAt,
+        offHireAt,
+        status,
         dayRatePence: input.dayRatePence ?? before.dayRatePence,
         deliveryPence: input.deliveryPence ?? before.deliveryPence,
         collectionPence: input.collectionPence ?? before.collectionPence,
         approvedBy: input.status === 'approved' ? actor.userId : before.approvedBy,
-        version: before.version + 1, updatedAt: new Date(),
-      } as Partial<HirePeriod>) as VersionedHire;
+        version: before.version + 1,
+        updatedAt: new Date(),
+      } as Partial<HirePeriod>)) as VersionedHire;
       const view = viewOf(after);
       await recordChange(trx, actor, 'hire_period', id, 'update', viewOf(before), view);
       return view;

@@ -63,7 +63,11 @@ function instance(region: HolidayRegion): Holidays {
  * // ['2026-01-01', '2026-04-03', '2026-04-06', '2026-05-04', '2026-05-25', '2026-08-31',
  * //  '2026-12-25', '2026-12-28']
  */
-export function publicHolidays(region: HolidayRegion, year: number, options: PublicHolidaysOptions = {}): PublicHoliday[] {
+export function publicHolidays(
+  region: HolidayRegion,
+  year: number,
+  options: PublicHolidaysOptions = {},
+): PublicHoliday[] {
   const observedOnly = options.observedOnly ?? true;
   const key = `${regionKey(region)}:${year}:${observedOnly ? 1 : 0}`;
   const cached = years.get(key);
@@ -95,7 +99,11 @@ export function publicHolidays(region: HolidayRegion, year: number, options: Pub
  * holidaysFor({ country: 'GB', state: 'SCT' }, { from: Date.UTC(2026, 10, 23), to: Date.UTC(2026, 11, 7) }, 0)
  * // [{ date: '2026-11-30', name: 'St Andrew’s Day' }]
  */
-export function holidaysFor(region: HolidayRegion | null | undefined, range: { from: number; to: number }, marginDays = HOLIDAY_MARGIN_DAYS): CalendarHoliday[] {
+export function holidaysFor(
+  region: HolidayRegion | null | undefined,
+  range: { from: number; to: number },
+  marginDays = HOLIDAY_MARGIN_DAYS,
+): CalendarHoliday[] {
   if (!region || !Number.isFinite(range.from) || !Number.isFinite(range.to)) return [];
   const first = isoDateOfDay(Math.floor(range.from / DAY_MS) - marginDays);
   const last = isoDateOfDay(Math.floor(range.to / DAY_MS) + marginDays);
@@ -105,7 +113,8 @@ export function holidaysFor(region: HolidayRegion | null | undefined, range: { f
   if (!(toYear - fromYear <= 20)) return [];
   const out: CalendarHoliday[] = [];
   for (let year = fromYear; year <= toYear; year++) {
-    for (const h of publicHolidays(region, year)) if (h.date >= first && h.date <= last) out.push({ date: h.date, name: h.name });
+    for (const h of publicHolidays(region, year))
+      if (h.date >= first && h.date <= last) out.push({ date: h.date, name: h.name });
   }
   return out;
 }

@@ -8,16 +8,38 @@ import type { InviteClaims } from './links.ts';
 
 const INVITATION_DAYS = 14;
 
-export interface InvitationView { id: string; email: string; role: Role; expiresAt: string; acceptedAt: string | null; firmName: string }
+export interface InvitationView {
+  id: string;
+  email: string;
+  role: Role;
+  expiresAt: string;
+  acceptedAt: string | null;
+  firmName: string;
+}
 
 export type InvitationOutcome =
   | { result: 'accepted' | 'already-member'; invitation: InvitationView }
-  | { result: 'used' } | { result: 'expired' } | { result: 'gone' };
+  | { result: 'used' }
+  | { result: 'expired' }
+  | { result: 'gone' };
 
-interface InvitationRow { id: string; email: string; role: Role; expiresAt: Date; acceptedAt: Date | null; firmName: string; firmId: string }
+interface InvitationRow {
+  id: string;
+  email: string;
+  role: Role;
+  expiresAt: Date;
+  acceptedAt: Date | null;
+  firmName: string;
+  firmId: string;
+}
 
 const toView = (r: InvitationRow): InvitationView => ({
-  id: String(r.id), email: r.email, role: r.role, expiresAt: r.expiresAt.toISOString(), acceptedAt: r.acceptedAt?.toISOString() ?? null, firmName: r.firmName,
+  id: String(r.id),
+  email: r.email,
+  role: r.role,
+  expiresAt: r.expiresAt.toISOString(),
+  acceptedAt: r.acceptedAt?.toISOString() ?? null,
+  firmName: r.firmName,
 });
 
 /**
@@ -29,45 +51,79 @@ export class InvitationsService {
   constructor(private readonly knex: Knex) {}
 
   private rows(q: Knex | Knex.Transaction) {
-    return q('invitations as i').join('firms as f', 'f.id', 'i.firm_id')
+    return q('invitations as i')
+      .join('firms as f', 'f.id', 'i.firm_id')
       .select('i.id', 'i.email', 'i.role', 'i.expires_at', 'i.accepted_at', 'i.firm_id', 'f.name as firm_name');
   }
 
   async create(actor: Actor, input: CreateInvitation): Promise<InvitationView> {
     return this.knex.transaction(async (trx) => {
-      const [row] = await trx('invitations').insert({
-        firm_id: actor.firmId, email: input.email, role: input.role, invited_by: actor.userId,
-        expires_at: new Date(Date.now() + INVITATION_DAYS * 86_400_000),
-      }).returning('id');
+      const [row] = await trx('invitations')
+        .insert({
+          firm_id: actor.firmId,
+          email: input.email,
+          role: input.role,
+          invited_by: actor.userId,
+          expires_at: new Date(Date.now() + INVITATION_DAYS * 86_400_000),
+        })
+        .returning('id');
       await enqueueMessage(trx, `invitation.${row.id}`, 'invitation', { invitationId: String(row.id) });
-      await recordChange(trx, actor, 'invitation', String(row.id), 'create', null, { email: input.email, role: input.role });
-      return toView(await this.rows(trx).where('i.id', row.id).first() as InvitationRow);
+      await recordChange(trx, actor, 'invitation', String(row.id), 'create', null, {
+        email: input.email,
+        role: input.role,
+      });
+      return toView((await this.rows(trx).where('i.id', row.id).first()) as InvitationRow);
     });
   }
 
   /** The firm's invitations, newest first (the actor's firm only). */
   async list(actor: Actor): Promise<InvitationView[]> {
-    return (await this.rows(this.knex).where('i.firm_id', actor.firmId).orderBy('i.created_at', 'desc').limit(200) as InvitationRow[]).map(toView);
+    return (
+      (await this.rows(this.knex)
+        .where('i.firm_id', actor.firmId)
+        .orderBy('i.created_at', 'desc')
+        .limit(200)) as InvitationRow[]
+    ).map(toView);
   }
 
   async peek(claims: InviteClaims): Promise<InvitationView | null> {
-    const row = await this.rows(this.knex).where('i.id', claims.invitationId).first() as InvitationRow | undefined;
+    const row = (await this.rows(this.knex).where('i.id', claims.invitationId).first()) as InvitationRow | undefined;
     return row ? toView(row) : null;
   }
 
   async accept(claims: InviteClaims, now = new Date()): Promise<InvitationOutcome> {
     return this.knex.transaction(async (trx) => {
-      const taken = await trx('link_uses').insert({ jti: claims.jti, purpose: 'invite', subject_id: claims.invitationId }).onConflict('jti').ignore().returning('jti');
-      const row = await this.rows(trx).where('i.id', claims.invitationId).forUpdate('i').first() as InvitationRow | undefined;
+      const taken = await trx('link_uses')
+        .insert({ jti: claims.jti, purpose: 'invite', subject_id: claims.invitationId })
+        .onConflict('jti')
+        .ignore()
+        .returning('jti');
+      const row = (await this.rows(trx).where('i.id', claims.invitationId).forUpdate('i').first()) as
+        InvitationRow | undefined;
       if (!row) return { result: 'gone' };
       if (taken.length === 0 || row.acceptedAt) return { result: 'used' };
       if (row.expiresAt.getTime() < now.getTime()) return { result: 'expired' };
       let user = await trx('users').whereRaw('lower(email) = lower(?)', [row.email]).first('id');
-      if (!user) [user] = await trx('users').insert({ email: row.email, name: row.email.split('@')[0] }).returning('id');
-      const added = await trx('memberships').insert({ user_id: user.id, firm_id: row.firmId, role: row.role })
-        .onConflict(['user_id', 'firm_id']).ignore().returning('id');
+      if (!user)
+        [user] = await trx('users')
+          .insert({ email: row.email, name: row.email.split('@')[0] })
+          .returning('id');
+      const added = await trx('memberships')
+        .insert({ user_id: user.id, firm_id: row.firmId, role: row.role })
+        .onConflict(['user_id', 'firm_id'])
+        .ignore()
+        .returning('id');
       await trx('invitations').where('id', row.id).update({ accepted_at: now, accepted_user_id: user.id });
-      await recordChange(trx, null, 'invitation', String(row.id), 'update', { acceptedAt: null }, { acceptedAt: now, userId: String(user.id) }, String(row.firmId));
+      await recordChange(
+        trx,
+        null,
+        'invitation',
+        String(row.id),
+        'update',
+        { acceptedAt: null },
+        { acceptedAt: now, userId: String(user.id) },
+        String(row.firmId),
+      );
       return { result: added.length ? 'accepted' : 'already-member', invitation: toView({ ...row, acceptedAt: now }) };
     });
   }

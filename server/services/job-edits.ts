@@ -16,19 +16,30 @@ export class JobEditsService {
       const before = await scoped(Job, actor, trx).findById(id).forUpdate();
       if (!before) throw new NotFoundError('job');
       if (before.version !== input.version) {
-        throw new ConflictError('Someone else changed this job since you loaded it.', { code: 'stale-version', current: before });
+        throw new ConflictError('Someone else changed this job since you loaded it.', {
+          code: 'stale-version',
+          current: before,
+        });
       }
       const { version: _version, ...changes } = input;
-      if (changes.reference !== undefined && changes.reference !== before.reference) await new JobsService(this.knex).checkReferenceFree(actor, changes.reference, trx, id);
+      if (changes.reference !== undefined && changes.reference !== before.reference)
+        await new JobsService(this.knex).checkReferenceFree(actor, changes.reference, trx, id);
       if (changes.unitId && !(await scoped(Unit, actor, trx).findById(changes.unitId))) {
-        throw new BadRequestError('The unit is not in your catalogue.', [{ field: 'unitId', message: 'is not a unit in your catalogue' }]);
+        throw new BadRequestError('The unit is not in your catalogue.', [
+          { field: 'unitId', message: 'is not a unit in your catalogue' },
+        ]);
       }
       const from = changes.promisedFrom ?? before.promisedFrom;
       const to = changes.promisedTo ?? before.promisedTo;
       if (from && to && to < from) {
-        throw new BadRequestError('The promised window ends before it starts.', [{ field: 'promisedTo', message: 'must be on or after the start of the promised window' }]);
+        throw new BadRequestError('The promised window ends before it starts.', [
+          { field: 'promisedTo', message: 'must be on or after the start of the promised window' },
+        ]);
       }
-      const after = await Job.query(trx).patchAndFetchById(id, { ...changes, version: before.version + 1 } as Partial<Job>);
+      const after = await Job.query(trx).patchAndFetchById(id, {
+        ...changes,
+        version: before.version + 1,
+      } as Partial<Job>);
       await recordChange(trx, actor, 'job', id, 'update', before, after);
       return after;
     });

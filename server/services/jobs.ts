@@ -9,7 +9,11 @@ import { recordChange } from './audit.ts';
 import { jobForReader } from './read-policy.ts';
 
 /** A job as its page reads it: the job's fields, its unit's name and when it was surveyed. */
-export type JobView = ModelObject<Job> & { unitName: string | null; unitMaker: string | null; surveyedAt: string | null };
+export type JobView = ModelObject<Job> & {
+  unitName: string | null;
+  unitMaker: string | null;
+  surveyedAt: string | null;
+};
 
 /** The prefix and digit width a firm's first job reference gets (our own starting point). */
 const FIRST_PREFIX = 'J-';
@@ -22,8 +26,11 @@ export function splitReference(reference: string): { prefix: string; digits: str
 }
 
 const SORT_COLUMNS: Record<JobQuery['sort'], string> = {
-  promisedFrom: 'jobs.promised_from', reference: 'jobs.reference', customerName: 'jobs.customer_name',
-  status: 'jobs.status', orderedOn: 'jobs.ordered_on',
+  promisedFrom: 'jobs.promised_from',
+  reference: 'jobs.reference',
+  customerName: 'jobs.customer_name',
+  status: 'jobs.status',
+  orderedOn: 'jobs.ordered_on',
 };
 
 export class JobsService {
@@ -34,22 +41,35 @@ export class JobsService {
     const base = scoped(Job, actor, undefined).leftJoin('units', 'units.id', 'jobs.unit_id');
     if (query.search) {
       const like = `%${query.search.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
-      base.where((w) => w.whereILike('jobs.reference', like).orWhereILike('jobs.customer_name', like)
-        .orWhereILike('jobs.site_town', like).orWhereILike('jobs.site_postcode', like));
+      base.where((w) =>
+        w
+          .whereILike('jobs.reference', like)
+          .orWhereILike('jobs.customer_name', like)
+          .orWhereILike('jobs.site_town', like)
+          .orWhereILike('jobs.site_postcode', like),
+      );
     }
     if (query.status) base.where('jobs.status', query.status);
     if (query.installationType) base.where('jobs.installation_type', query.installationType);
     const total = await base.clone().resultSize();
-    const rows = await base
+    const rows = (await base
       .select('jobs.*', 'units.model as unitName')
       .orderByRaw(`${SORT_COLUMNS[query.sort]} ${query.order} NULLS LAST, jobs.id`)
-      .limit(query.pageSize).offset((query.page - 1) * query.pageSize) as (Job & { unitName: string | null })[];
+      .limit(query.pageSize)
+      .offset((query.page - 1) * query.pageSize)) as (Job & { unitName: string | null })[];
     return {
       total,
       items: rows.map((j) => ({
-        id: j.id, reference: j.reference, customerName: j.customerName, siteTown: j.siteTown,
-        unitName: j.unitName, installationType: j.installationType, status: j.status,
-        promisedFrom: j.promisedFrom, promisedTo: j.promisedTo, orderedOn: j.orderedOn,
+        id: j.id,
+        reference: j.reference,
+        customerName: j.customerName,
+        siteTown: j.siteTown,
+        unitName: j.unitName,
+        installationType: j.installationType,
+        status: j.status,
+        promisedFrom: j.promisedFrom,
+        promisedTo: j.promisedTo,
+        orderedOn: j.orderedOn,
       })),
     };
   }
@@ -61,11 +81,17 @@ export class JobsService {
    */
   async get(actor: Actor, id: string): Promise<JobView> {
     const job = await findVisible(Job, actor, id, undefined, 'job');
-    const extra = await scoped(Job, actor).where('jobs.id', id).leftJoin('units', 'units.id', 'jobs.unit_id')
+    const extra = (await scoped(Job, actor)
+      .where('jobs.id', id)
+      .leftJoin('units', 'units.id', 'jobs.unit_id')
       .leftJoin('surveys', 'surveys.job_id', 'jobs.id')
-      .select('units.model as unitName', 'units.maker as unitMaker', 'surveys.surveyed_at as surveyedAt').first() as unknown as { unitName: string | null; unitMaker: string | null; surveyedAt: Date | null } | undefined;
+      .select('units.model as unitName', 'units.maker as unitMaker', 'surveys.surveyed_at as surveyedAt')
+      .first()) as unknown as
+      { unitName: string | null; unitMaker: string | null; surveyedAt: Date | null } | undefined;
     return jobForReader(actor, {
-      ...(job.toJSON() as ModelObject<Job>), unitName: extra?.unitName ?? null, unitMaker: extra?.unitMaker ?? null,
+      ...(job.toJSON() as ModelObject<Job>),
+      unitName: extra?.unitName ?? null,
+      unitMaker: extra?.unitMaker ?? null,
       surveyedAt: extra?.surveyedAt ? new Date(extra.surveyedAt).toISOString() : null,
     });
   }
@@ -78,10 +104,18 @@ export class JobsService {
    * await jobs.nextReference(actor) // { prefix: 'TW-', nextReference: 'TW-2425' } when TW-2424 is the highest
    */
   async nextReference(actor: Actor, prefix?: string, trx?: Knex.Transaction): Promise<NextReference> {
-    const chosen = prefix ?? splitReference((await scoped(Job, actor, trx).whereRaw(`jobs.reference ~ '[0-9]$'`).orderBy('jobs.id', 'desc').first())?.reference ?? '')?.prefix ?? FIRST_PREFIX;
+    const chosen =
+      prefix ??
+      splitReference(
+        (await scoped(Job, actor, trx).whereRaw(`jobs.reference ~ '[0-9]$'`).orderBy('jobs.id', 'desc').first())
+          ?.reference ?? '',
+      )?.prefix ??
+      FIRST_PREFIX;
     // Only references that are the prefix then digits count: "TW-2401" for "TW-", not "TW-X1".
-    const rows = await scoped(Job, actor, trx).whereRaw('left(jobs.reference, ?) = ?', [chosen.length, chosen])
-      .whereRaw(`substr(jobs.reference, ?) ~ '^[0-9]+$'`, [chosen.length + 1]).select('jobs.reference');
+    const rows = await scoped(Job, actor, trx)
+      .whereRaw('left(jobs.reference, ?) = ?', [chosen.length, chosen])
+      .whereRaw(`substr(jobs.reference, ?) ~ '^[0-9]+$'`, [chosen.length + 1])
+      .select('jobs.reference');
     let best: { n: bigint; width: number } | null = null;
     for (const { reference } of rows) {
       const digits = reference.slice(chosen.length);
@@ -93,21 +127,37 @@ export class JobsService {
   }
 
   /** Refuses a reference another of the firm's jobs has, naming the next free one (409). */
-  async checkReferenceFree(actor: Actor, reference: string, trx: Knex.Transaction, exceptJobId?: string): Promise<void> {
-    const taken = await scoped(Job, actor, trx).where('jobs.reference', reference).modify((q) => { if (exceptJobId) q.whereNot('jobs.id', exceptJobId); }).first();
+  async checkReferenceFree(
+    actor: Actor,
+    reference: string,
+    trx: Knex.Transaction,
+    exceptJobId?: string,
+  ): Promise<void> {
+    const taken = await scoped(Job, actor, trx)
+      .where('jobs.reference', reference)
+      .modify((q) => {
+        if (exceptJobId) q.whereNot('jobs.id', exceptJobId);
+      })
+      .first();
     if (!taken) return;
     const split = splitReference(reference);
     const { nextReference } = await this.nextReference(actor, split?.prefix, trx);
-    throw new ConflictError(`${reference} is already the reference of another job (${taken.customerName}, ${taken.siteTown}). ${nextReference} is the next free one.`, {
-      code: 'duplicate-reference', nextReference,
-      errors: [{ field: 'reference', message: `is already used by another job; ${nextReference} is free` }],
-    });
+    throw new ConflictError(
+      `${reference} is already the reference of another job (${taken.customerName}, ${taken.siteTown}). ${nextReference} is the next free one.`,
+      {
+        code: 'duplicate-reference',
+        nextReference,
+        errors: [{ field: 'reference', message: `is already used by another job; ${nextReference} is free` }],
+      },
+    );
   }
 
   async create(actor: Actor, input: CreateJob): Promise<Job> {
     return this.knex.transaction(async (trx) => {
       if (input.unitId && !(await scoped(Unit, actor, trx).findById(input.unitId))) {
-        throw new BadRequestError('The unit is not in your catalogue.', [{ field: 'unitId', message: 'is not a unit in your catalogue' }]);
+        throw new BadRequestError('The unit is not in your catalogue.', [
+          { field: 'unitId', message: 'is not a unit in your catalogue' },
+        ]);
       }
       await this.checkReferenceFree(actor, input.reference, trx);
       const job = await Job.query(trx).insert({ ...input, firmId: actor.firmId, status: 'enquiry' } as Partial<Job>);

@@ -14,10 +14,18 @@ export const WAITING_TOO_LONG_MINUTES = 30;
 const LIST_LIMIT = 100;
 
 const KIND_WORDS: Record<string, string> = {
-  booking_request: 'Booking request', booking_update: 'Booking change', booking_reminder: 'Reminder of a booking request',
-  booking_cancel: 'Booking cancellation', proposal_refused: 'Answer to a proposed time', customer_notice: 'Date notice to the householder',
-  invitation: 'Invitation to join the firm', booking_declined: 'Notice of a declined booking', booking_confirmed: 'Notice of a confirmed booking',
-  handover_pack: 'Handover pack', service_plan_notice: 'Service plan notice', payment_request: 'Payment request',
+  booking_request: 'Booking request',
+  booking_update: 'Booking change',
+  booking_reminder: 'Reminder of a booking request',
+  booking_cancel: 'Booking cancellation',
+  proposal_refused: 'Answer to a proposed time',
+  customer_notice: 'Date notice to the householder',
+  invitation: 'Invitation to join the firm',
+  booking_declined: 'Notice of a declined booking',
+  booking_confirmed: 'Notice of a confirmed booking',
+  handover_pack: 'Handover pack',
+  service_plan_notice: 'Service plan notice',
+  payment_request: 'Payment request',
 };
 
 /**
@@ -26,24 +34,46 @@ const KIND_WORDS: Record<string, string> = {
  */
 export function plainReason(state: 'failed' | 'waiting', lastError: string | null): string {
   const e = lastError ?? '';
-  if (!e) return state === 'waiting' ? 'It has not been sent yet: the mail queue may be down. It goes out by itself once the queue is back.' : 'It could not be sent.';
-  if (/no booking address|no e-mail address/i.test(e)) return 'There is no e-mail address to send it to: add the firm\'s booking address (or the person\'s e-mail) and send it again.';
-  if (/no customer e-mail/i.test(e)) return 'The job has no e-mail address for the householder: add one on the job and send it again.';
+  if (!e)
+    return state === 'waiting'
+      ? 'It has not been sent yet: the mail queue may be down. It goes out by itself once the queue is back.'
+      : 'It could not be sent.';
+  if (/no booking address|no e-mail address/i.test(e))
+    return "There is no e-mail address to send it to: add the firm's booking address (or the person's e-mail) and send it again.";
+  if (/no customer e-mail/i.test(e))
+    return 'The job has no e-mail address for the householder: add one on the job and send it again.';
   if (/no longer exists/i.test(e)) return 'What it was about has since been removed, so there is nothing to send.';
-  if (/ECONNREFUSED|ECONNRESET|ETIMEDOUT|EHOSTUNREACH|ENOTFOUND|EAI_AGAIN|Greeting never received|Connection closed|connection timeout/i.test(e)) {
+  if (
+    /ECONNREFUSED|ECONNRESET|ETIMEDOUT|EHOSTUNREACH|ENOTFOUND|EAI_AGAIN|Greeting never received|Connection closed|connection timeout/i.test(
+      e,
+    )
+  ) {
     return 'Our mail server could not be reached. Nothing is wrong with the address; send it again once mail is working.';
   }
-  if (/\b552\b|mailbox full|quota/i.test(e)) return 'The recipient\'s mailbox is full. Send it again later, or call them.';
-  if (/\b55[0134]\b|user unknown|no such user|mailbox unavailable|address rejected/i.test(e)) return 'The receiving mail server refused the address: it may be misspelt or no longer in use. Check it and send again.';
+  if (/\b552\b|mailbox full|quota/i.test(e))
+    return "The recipient's mailbox is full. Send it again later, or call them.";
+  if (/\b55[0134]\b|user unknown|no such user|mailbox unavailable|address rejected/i.test(e))
+    return 'The receiving mail server refused the address: it may be misspelt or no longer in use. Check it and send again.';
   if (/\b5\d\d\b/.test(e)) return 'The receiving mail server refused the message.';
-  if (/\b4\d\d\b/.test(e)) return 'The receiving mail server kept asking us to try again later, and we ran out of tries.';
+  if (/\b4\d\d\b/.test(e))
+    return 'The receiving mail server kept asking us to try again later, and we ran out of tries.';
   return 'It could not be sent.';
 }
 
 interface Row {
-  id: string; kind: OutboxKind; payload: OutboxPayload; status: string; attempts: number; lastError: string | null;
-  createdAt: Date; nextAttemptAt: Date; jobId: string | null; jobReference: string | null; invitationEmail: string | null;
-  resourceFirmName: string | null; customerName: string | null;
+  id: string;
+  kind: OutboxKind;
+  payload: OutboxPayload;
+  status: string;
+  attempts: number;
+  lastError: string | null;
+  createdAt: Date;
+  nextAttemptAt: Date;
+  jobId: string | null;
+  jobReference: string | null;
+  invitationEmail: string | null;
+  resourceFirmName: string | null;
+  customerName: string | null;
 }
 
 /**
@@ -53,7 +83,10 @@ interface Row {
  * sees them (jobs through scoped(Job), invitations by firm; crew and partners see none).
  */
 export class MailStatusService {
-  constructor(private readonly knex: Knex, private readonly config: Pick<Config, 'PUBLIC_URL' | 'MAIL_FROM' | 'LINK_SECRET'>) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly config: Pick<Config, 'PUBLIC_URL' | 'MAIL_FROM' | 'LINK_SECRET'>,
+  ) {}
 
   /** The cut-off for "waiting too long", on the database's clock (the outbox's times are its). */
   private waitingSince(): Knex.Raw {
@@ -67,7 +100,11 @@ export class MailStatusService {
     return k('outbox as o')
       .leftJoin('bookings as b', 'b.id', k.raw("nullif(o.payload->>'bookingId', '')::bigint"))
       .leftJoin('stages as s', 's.id', 'b.stage_id')
-      .leftJoin('resources as r', 'r.id', k.raw("coalesce(nullif(o.payload->>'resourceId', '')::bigint, b.resource_id)"))
+      .leftJoin(
+        'resources as r',
+        'r.id',
+        k.raw("coalesce(nullif(o.payload->>'resourceId', '')::bigint, b.resource_id)"),
+      )
       .leftJoin('firms as rf', 'rf.id', 'r.firm_id')
       .leftJoin('audit_log as a', 'a.id', k.raw("nullif(o.payload->>'auditId', '')::bigint"))
       .leftJoin('stages as gone', 'gone.id', k.raw("nullif(a.before->>'stageId', '')::bigint"))
@@ -82,7 +119,12 @@ export class MailStatusService {
   private undelivered(actor: Actor): Knex.QueryBuilder {
     const before = this.waitingSince();
     return this.inScope(actor).where((q) => {
-      q.where('o.status', 'failed').orWhere((w) => w.whereIn('o.status', ['pending', 'queued']).where('o.created_at', '<', before).where('o.next_attempt_at', '<', before));
+      q.where('o.status', 'failed').orWhere((w) =>
+        w
+          .whereIn('o.status', ['pending', 'queued'])
+          .where('o.created_at', '<', before)
+          .where('o.next_attempt_at', '<', before),
+      );
     });
   }
 
@@ -96,9 +138,25 @@ export class MailStatusService {
       return q;
     };
     const [count] = await base().count<{ count: string }[]>('o.id as count');
-    const rows = await base().orderBy('o.next_attempt_at', 'desc').orderBy('o.id', 'desc').limit(LIST_LIMIT)
-      .select('o.id', 'o.kind', 'o.payload', 'o.status', 'o.attempts', 'o.last_error', 'o.created_at', 'o.next_attempt_at',
-        'j.id as job_id', 'j.reference as job_reference', 'j.customer_name', 'i.email as invitation_email', 'rf.name as resource_firm_name') as Row[];
+    const rows = (await base()
+      .orderBy('o.next_attempt_at', 'desc')
+      .orderBy('o.id', 'desc')
+      .limit(LIST_LIMIT)
+      .select(
+        'o.id',
+        'o.kind',
+        'o.payload',
+        'o.status',
+        'o.attempts',
+        'o.last_error',
+        'o.created_at',
+        'o.next_attempt_at',
+        'j.id as job_id',
+        'j.reference as job_reference',
+        'j.customer_name',
+        'i.email as invitation_email',
+        'rf.name as resource_firm_name',
+      )) as Row[];
     const items: UndeliveredMail[] = [];
     for (const row of rows) items.push(await this.describe(row));
     return { items, total: Number(count?.count ?? 0), waitingAfterMinutes: WAITING_TOO_LONG_MINUTES };
@@ -112,11 +170,24 @@ export class MailStatusService {
     let subject: string | null = null;
     try {
       const mail = await composeMessage({ knex: this.knex, config: this.config }, row.kind, row.payload);
-      if (!('skip' in mail)) { to = mail.to.join(', '); subject = mail.subject; }
-    } catch { /* described from the rows below */ }
-    const who = row.invitationEmail ?? (row.kind === 'customer_notice' || row.kind === 'payment_request' || row.kind === 'handover_pack' || row.kind === 'service_plan_notice'
-      ? row.customerName : ['booking_declined', 'booking_confirmed'].includes(row.kind) ? 'your schedulers' : row.resourceFirmName);
-    const toText = who && to && who !== to ? `${who} (${to})` : to ?? who ?? 'nobody yet';
+      if (!('skip' in mail)) {
+        to = mail.to.join(', ');
+        subject = mail.subject;
+      }
+    } catch {
+      /* described from the rows below */
+    }
+    const who =
+      row.invitationEmail ??
+      (row.kind === 'customer_notice' ||
+      row.kind === 'payment_request' ||
+      row.kind === 'handover_pack' ||
+      row.kind === 'service_plan_notice'
+        ? row.customerName
+        : ['booking_declined', 'booking_confirmed'].includes(row.kind)
+          ? 'your schedulers'
+          : row.resourceFirmName);
+    const toText = who && to && who !== to ? `${who} (${to})` : (to ?? who ?? 'nobody yet');
     return {
       id: String(row.id),
       state,
@@ -144,11 +215,19 @@ export class MailStatusService {
     if (!(await this.inScope(actor).where('o.id', id).first('o.id'))) throw new NotFoundError('e-mail');
     const before = this.waitingSince();
     // One UPDATE decides: a concurrent click waits for this row's lock, then no longer matches.
-    const updated = await this.knex('outbox').where('id', id)
-      .where((q) => { q.where('status', 'failed').orWhere((w) => w.whereIn('status', ['pending', 'queued']).where('next_attempt_at', '<', before)); })
-      .update({ status: 'pending', attempts: 0, next_attempt_at: this.knex.fn.now() }).returning('status');
+    const updated = await this.knex('outbox')
+      .where('id', id)
+      .where((q) => {
+        q.where('status', 'failed').orWhere((w) =>
+          w.whereIn('status', ['pending', 'queued']).where('next_attempt_at', '<', before),
+        );
+      })
+      .update({ status: 'pending', attempts: 0, next_attempt_at: this.knex.fn.now() })
+      .returning('status');
     if (updated.length) return { id, status: 'pending', requeued: true };
-    const current = await this.knex('outbox').where('id', id).first('status') as { status: 'pending' | 'queued' | 'sent' };
+    const current = (await this.knex('outbox').where('id', id).first('status')) as {
+      status: 'pending' | 'queued' | 'sent';
+    };
     return { id, status: current.status, requeued: false };
   }
 }

@@ -15,10 +15,26 @@ import { CERTIFIED_STAGE_KIND, partnerCertificates } from './certificates.ts';
 const SHOWN = ['sent', 'confirmed', 'on_site'];
 
 type SlotRow = Booking & {
-  stageName: string; stageKind: string; resourceName: string; resourceKind: string; siteAddress: string; siteTown: string;
-  sitePostcode: string; accessNotes: string | null; installerName: string; installerPhone: string | null; timeZone: string;
-  jobId: string; customerName: string; customerPhone: string | null; sharesCustomerContact: boolean | null;
-  unitModel: string | null; lengthMm: number | null; widthMm: number | null; heightMm: number | null; dryWeightKg: number | null;
+  stageName: string;
+  stageKind: string;
+  resourceName: string;
+  resourceKind: string;
+  siteAddress: string;
+  siteTown: string;
+  sitePostcode: string;
+  accessNotes: string | null;
+  installerName: string;
+  installerPhone: string | null;
+  timeZone: string;
+  jobId: string;
+  customerName: string;
+  customerPhone: string | null;
+  sharesCustomerContact: boolean | null;
+  unitModel: string | null;
+  lengthMm: number | null;
+  widthMm: number | null;
+  heightMm: number | null;
+  dryWeightKg: number | null;
 };
 
 /**
@@ -31,46 +47,110 @@ type SlotRow = Booking & {
 export class PartnerSlotsService {
   private readonly writer: BookingWriter;
 
-  constructor(private readonly knex: Knex, now: () => number = Date.now, limits?: BookingLimits) {
+  constructor(
+    private readonly knex: Knex,
+    now: () => number = Date.now,
+    limits?: BookingLimits,
+  ) {
     this.writer = new BookingWriter(knex, now, limits);
   }
 
   async list(actor: Actor, from: Date): Promise<PartnerSlot[]> {
-    const rows = await scoped(Booking, actor)
-      .join('stages as s', 's.id', 'bookings.stage_id').join('jobs as j', 'j.id', 's.job_id')
-      .join('firms as i', 'i.id', 'j.firm_id').join('resources as r', 'r.id', 'bookings.resource_id')
-      .leftJoin('units as u', 'u.id', 'j.unit_id').leftJoin('firm_settings as fs', 'fs.firm_id', 'j.firm_id')
-      .whereIn('bookings.state', SHOWN).where('bookings.ends_at', '>', from)
-      .orderBy('bookings.starts_at').limit(500)
-      .select('bookings.id', 'bookings.version', 'bookings.state', 'bookings.starts_at', 'bookings.ends_at', 'bookings.resource_id',
-        's.name as stage_name', 's.kind as stage_kind', 'r.name as resource_name', 'r.kind as resource_kind',
-        'j.site_address', 'j.site_town', 'j.site_postcode', 'j.access_notes',
-        'i.name as installer_name', 'i.phone as installer_phone', 'i.time_zone',
-        'j.id as job_id', 'j.customer_name', 'j.customer_phone', 'fs.share_customer_contact_with_partners as shares_customer_contact',
-        'u.model as unit_model', 'u.length_mm', 'u.width_mm', 'u.height_mm', 'u.dry_weight_kg') as SlotRow[];
-    const keys = rows.map((r) => ({ bookingId: String(r.id), jobId: String(r.jobId), startsAt: r.startsAt, endsAt: r.endsAt, timeZone: r.timeZone }));
+    const rows = (await scoped(Booking, actor)
+      .join('stages as s', 's.id', 'bookings.stage_id')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .join('firms as i', 'i.id', 'j.firm_id')
+      .join('resources as r', 'r.id', 'bookings.resource_id')
+      .leftJoin('units as u', 'u.id', 'j.unit_id')
+      .leftJoin('firm_settings as fs', 'fs.firm_id', 'j.firm_id')
+      .whereIn('bookings.state', SHOWN)
+      .where('bookings.ends_at', '>', from)
+      .orderBy('bookings.starts_at')
+      .limit(500)
+      .select(
+        'bookings.id',
+        'bookings.version',
+        'bookings.state',
+        'bookings.starts_at',
+        'bookings.ends_at',
+        'bookings.resource_id',
+        's.name as stage_name',
+        's.kind as stage_kind',
+        'r.name as resource_name',
+        'r.kind as resource_kind',
+        'j.site_address',
+        'j.site_town',
+        'j.site_postcode',
+        'j.access_notes',
+        'i.name as installer_name',
+        'i.phone as installer_phone',
+        'i.time_zone',
+        'j.id as job_id',
+        'j.customer_name',
+        'j.customer_phone',
+        'fs.share_customer_contact_with_partners as shares_customer_contact',
+        'u.model as unit_model',
+        'u.length_mm',
+        'u.width_mm',
+        'u.height_mm',
+        'u.dry_weight_kg',
+      )) as SlotRow[];
+    const keys = rows.map((r) => ({
+      bookingId: String(r.id),
+      jobId: String(r.jobId),
+      startsAt: r.startsAt,
+      endsAt: r.endsAt,
+      timeZone: r.timeZone,
+    }));
     const [answers, onSite, supplies, certificates] = await Promise.all([
-      latestAnswers(this.knex, keys.map((k) => k.bookingId)), siteContacts(this.knex, keys), jobSupplies(this.knex, keys.map((k) => k.jobId)),
-      partnerCertificates(this.knex, actor.firmId, keys.map((k) => k.bookingId)),
+      latestAnswers(
+        this.knex,
+        keys.map((k) => k.bookingId),
+      ),
+      siteContacts(this.knex, keys),
+      jobSupplies(
+        this.knex,
+        keys.map((k) => k.jobId),
+      ),
+      partnerCertificates(
+        this.knex,
+        actor.firmId,
+        keys.map((k) => k.bookingId),
+      ),
     ]);
     return rows.map((r) => {
       const policy = partnerSlotFacts({
-        resourceKind: r.resourceKind, customerName: r.customerName, customerPhone: r.customerPhone, officeName: r.installerName,
-        officePhone: r.installerPhone, sharesCustomerContact: r.sharesCustomerContact === true,
-        siteContact: onSite.get(String(r.id)) ?? null, supply: supplies.get(String(r.jobId))!,
+        resourceKind: r.resourceKind,
+        customerName: r.customerName,
+        customerPhone: r.customerPhone,
+        officeName: r.installerName,
+        officePhone: r.installerPhone,
+        sharesCustomerContact: r.sharesCustomerContact === true,
+        siteContact: onSite.get(String(r.id)) ?? null,
+        supply: supplies.get(String(r.jobId))!,
       });
       return {
-        id: String(r.id), version: r.version, state: r.state, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), timeZone: r.timeZone,
+        id: String(r.id),
+        version: r.version,
+        state: r.state,
+        startsAt: r.startsAt.toISOString(),
+        endsAt: r.endsAt.toISOString(),
+        timeZone: r.timeZone,
         stage: { name: r.stageName, kind: r.stageKind },
         resource: { id: String(r.resourceId), name: r.resourceName, kind: r.resourceKind },
         site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
         installer: { name: r.installerName, phone: r.installerPhone },
-        unit: r.unitModel ? `${r.unitModel}, ${r.lengthMm} × ${r.widthMm} × ${r.heightMm} mm, ${r.dryWeightKg} kg dry` : null,
+        unit: r.unitModel
+          ? `${r.unitModel}, ${r.lengthMm} × ${r.widthMm} × ${r.heightMm} mm, ${r.dryWeightKg} kg dry`
+          : null,
         supply: policy.supply ? supplyLines(policy.supply) : null,
         contacts: policy.contacts,
         cautions: cautionsFor(r.stageKind),
         answer: answers.get(String(r.id)) ?? null,
-        certificate: { wanted: r.stageKind === CERTIFIED_STAGE_KIND && r.state !== 'sent', uploaded: certificates.get(String(r.id)) ?? null },
+        certificate: {
+          wanted: r.stageKind === CERTIFIED_STAGE_KIND && r.state !== 'sent',
+          uploaded: certificates.get(String(r.id)) ?? null,
+        },
       };
     });
   }
@@ -86,7 +166,9 @@ export class PartnerSlotsService {
       const current = await Resource.query(w.trx).findById(before.resourceId);
       const person = await findVisible(Resource, actor, resourceId, w.trx, 'person');
       if (person.category !== 'person' || String(person.firmId) !== actor.firmId || person.kind !== current?.kind) {
-        throw new UnprocessableError(`Choose one of your own people who does ${current?.kind ?? 'this'} work.`, { code: 'wrong-person' });
+        throw new UnprocessableError(`Choose one of your own people who does ${current?.kind ?? 'this'} work.`, {
+          code: 'wrong-person',
+        });
       }
       if (String(person.id) === String(before.resourceId)) return;
       // The engine checks the person like any booking: free then, working then, not in two places.

@@ -36,7 +36,9 @@ export const DEFAULT_DEPOSIT_PERCENT = 25;
 const KIND_WORDS: Record<PaymentKind, string> = { deposit: 'Deposit', balance: 'Balance' };
 
 export class PaymentsUnavailableError extends HttpError {
-  constructor(detail = 'Payments are not set up on this installation.') { super(503, 'payments-unavailable', 'Payments are not set up or not answering', detail); }
+  constructor(detail = 'Payments are not set up on this installation.') {
+    super(503, 'payments-unavailable', 'Payments are not set up or not answering', detail);
+  }
 }
 
 /** The householder's link to a payment: the payment's id and an HMAC of it under the link secret. */
@@ -53,28 +55,64 @@ export function paymentIdOfToken(secret: string, token: string): string | null {
   return expected.length === given.length && timingSafeEqual(expected, given) ? m[1]! : null;
 }
 
-export const paymentLink = (config: Pick<Config, 'PUBLIC_URL' | 'LINK_SECRET'>, paymentId: string) => `${config.PUBLIC_URL}/pay/${paymentToken(config.LINK_SECRET, paymentId)}`;
+export const paymentLink = (config: Pick<Config, 'PUBLIC_URL' | 'LINK_SECRET'>, paymentId: string) =>
+  `${config.PUBLIC_URL}/pay/${paymentToken(config.LINK_SECRET, paymentId)}`;
 
-async function lockJob(trx: Knex.Transaction, jobId: string): Promise<{ id: string; firmId: string; reference: string; pricePence: number | null; orderedOn: string | null; customerEmail: string | null }> {
-  return trx('jobs').where('id', jobId).forUpdate().first('id', 'firm_id', 'reference', 'price_pence', 'ordered_on', 'customer_email');
+async function lockJob(
+  trx: Knex.Transaction,
+  jobId: string,
+): Promise<{
+  id: string;
+  firmId: string;
+  reference: string;
+  pricePence: number | null;
+  orderedOn: string | null;
+  customerEmail: string | null;
+}> {
+  return trx('jobs')
+    .where('id', jobId)
+    .forUpdate()
+    .first('id', 'firm_id', 'reference', 'price_pence', 'ordered_on', 'customer_email');
 }
 
-const snapshot = (p: PaymentRow) => ({ kind: p.kind, amountPence: p.amountPence, status: p.status, checkoutSessionId: p.checkoutSessionId, paidAt: p.paidAt });
+const snapshot = (p: PaymentRow) => ({
+  kind: p.kind,
+  amountPence: p.amountPence,
+  status: p.status,
+  checkoutSessionId: p.checkoutSessionId,
+  paidAt: p.paidAt,
+});
 
 /**
  * Writes a request for money inside the caller's transaction (job row locked, so two requests at
  * once queue behind each other), queues the householder's e-mail and audits it. A second open or
  * paid request of the same kind is refused by the caller; the partial unique indexes refuse it anyway.
  */
-async function insertRequest(trx: Knex.Transaction, actor: Actor, jobId: string, kind: PaymentKind, amountPence: number): Promise<PaymentRow> {
-  const [row] = await trx('job_payments').insert({ job_id: jobId, kind, amount_pence: amountPence, requested_by: actor.userId }).returning('*') as PaymentRow[];
+async function insertRequest(
+  trx: Knex.Transaction,
+  actor: Actor,
+  jobId: string,
+  kind: PaymentKind,
+  amountPence: number,
+): Promise<PaymentRow> {
+  const [row] = (await trx('job_payments')
+    .insert({ job_id: jobId, kind, amount_pence: amountPence, requested_by: actor.userId })
+    .returning('*')) as PaymentRow[];
   await enqueueMessage(trx, `payment.${row!.id}.request`, 'payment_request', { paymentId: String(row!.id) });
   await recordChange(trx, actor, 'payment', String(row!.id), 'create', null, snapshot(row!));
   return row!;
 }
 
-async function livePayment(trx: Knex.Transaction | Knex, jobId: string, kind: PaymentKind): Promise<PaymentRow | undefined> {
-  return trx('job_payments').where({ job_id: jobId, kind }).whereIn('status', ['requested', 'paid']).orderBy('id', 'desc').first() as Promise<PaymentRow | undefined>;
+async function livePayment(
+  trx: Knex.Transaction | Knex,
+  jobId: string,
+  kind: PaymentKind,
+): Promise<PaymentRow | undefined> {
+  return trx('job_payments')
+    .where({ job_id: jobId, kind })
+    .whereIn('status', ['requested', 'paid'])
+    .orderBy('id', 'desc')
+    .first() as Promise<PaymentRow | undefined>;
 }
 
 /**
@@ -83,7 +121,17 @@ async function livePayment(trx: Knex.Transaction | Knex, jobId: string, kind: Pa
  * requested or paid returns that one (`created: false`), so nothing is ever asked for twice.
  * Null when there is nothing to ask for (no price recorded, or nothing left to pay).
  */
-export async function requestBalance({ actor, trx, jobId, amountPence }: { actor: Actor; trx: Knex.Transaction; jobId: string; amountPence?: number }): Promise<{ payment: PaymentRow; created: boolean } | null> {
+export async function requestBalance({
+  actor,
+  trx,
+  jobId,
+  amountPence,
+}: {
+  actor: Actor;
+  trx: Knex.Transaction;
+  jobId: string;
+  amountPence?: number;
+}): Promise<{ payment: PaymentRow; created: boolean } | null> {
   await findVisible(Job, actor, jobId, trx, 'job');
   const job = await lockJob(trx, jobId);
   const live = await livePayment(trx, jobId, 'balance');
@@ -91,7 +139,9 @@ export async function requestBalance({ actor, trx, jobId, amountPence }: { actor
   let amount = amountPence;
   if (amount === undefined) {
     if (!job.pricePence) return null;
-    const paid = await trx('job_payments').where({ job_id: jobId, kind: 'deposit', status: 'paid' }).sum<{ sum: string | null }[]>('amount_pence as sum');
+    const paid = await trx('job_payments')
+      .where({ job_id: jobId, kind: 'deposit', status: 'paid' })
+      .sum<{ sum: string | null }[]>('amount_pence as sum');
     amount = job.pricePence - Number(paid[0]?.sum ?? 0);
     if (amount <= 0) return null;
   }
@@ -99,7 +149,10 @@ export async function requestBalance({ actor, trx, jobId, amountPence }: { actor
 }
 
 /** What a webhook did; each delivery is logged in webhook_events with it. */
-export interface WebhookResult { outcome: 'applied' | 'ignored' | 'replayed'; detail: string }
+export interface WebhookResult {
+  outcome: 'applied' | 'ignored' | 'replayed';
+  detail: string;
+}
 
 /**
  * Deposits and balances: the office asks, the householder pays on the provider's hosted page, and
@@ -110,27 +163,46 @@ export interface WebhookResult { outcome: 'applied' | 'ignored' | 'replayed'; de
 export class PaymentsService {
   readonly provider: PaymentProvider | null;
 
-  constructor(private readonly knex: Knex, private readonly config: Config, private readonly now: () => number = Date.now, private readonly log?: Logger) {
+  constructor(
+    private readonly knex: Knex,
+    private readonly config: Config,
+    private readonly now: () => number = Date.now,
+    private readonly log?: Logger,
+  ) {
     this.provider = PaymentProvider.fromConfig(config);
   }
 
   async summary(actor: Actor, jobId: string): Promise<JobPayments> {
     await findVisible(Job, actor, jobId, undefined, 'job');
-    const job = await this.knex('jobs as j').join('firms as f', 'f.id', 'j.firm_id').leftJoin('firm_settings as s', 's.firm_id', 'j.firm_id')
-      .where('j.id', jobId).first('j.price_pence', 'j.ordered_on', 'j.customer_email', 'f.time_zone', 's.deposit_percent');
-    const rows = await this.knex('job_payments').where('job_id', jobId).orderBy('id') as PaymentRow[];
+    const job = await this.knex('jobs as j')
+      .join('firms as f', 'f.id', 'j.firm_id')
+      .leftJoin('firm_settings as s', 's.firm_id', 'j.firm_id')
+      .where('j.id', jobId)
+      .first('j.price_pence', 'j.ordered_on', 'j.customer_email', 'f.time_zone', 's.deposit_percent');
+    const rows = (await this.knex('job_payments').where('job_id', jobId).orderBy('id')) as PaymentRow[];
     const percent = job.depositPercent ?? DEFAULT_DEPOSIT_PERCENT;
     const paidPence = rows.filter((r) => r.status === 'paid').reduce((sum, r) => sum + r.amountPence, 0);
     const payments: PaymentView[] = rows.map((r) => ({
-      id: String(r.id), kind: r.kind, amountPence: r.amountPence, status: r.status, requestedAt: r.requestedAt.toISOString(),
-      paidAt: r.paidAt?.toISOString() ?? null, paidOn: r.paidAt ? localDateOf(r.paidAt, job.timeZone) : null,
+      id: String(r.id),
+      kind: r.kind,
+      amountPence: r.amountPence,
+      status: r.status,
+      requestedAt: r.requestedAt.toISOString(),
+      paidAt: r.paidAt?.toISOString() ?? null,
+      paidOn: r.paidAt ? localDateOf(r.paidAt, job.timeZone) : null,
       link: r.status === 'requested' ? paymentLink(this.config, String(r.id)) : null,
     }));
     return {
-      jobId, pricePence: job.pricePence ?? null, depositPercent: percent,
+      jobId,
+      pricePence: job.pricePence ?? null,
+      depositPercent: percent,
       suggestedDepositPence: job.pricePence ? depositOf(job.pricePence, percent) : null,
-      payments, paidPence, duePence: job.pricePence ? job.pricePence - paidPence : null,
-      orderedOn: job.orderedOn ?? null, hasCustomerEmail: Boolean(job.customerEmail), providerReady: this.provider !== null,
+      payments,
+      paidPence,
+      duePence: job.pricePence ? job.pricePence - paidPence : null,
+      orderedOn: job.orderedOn ?? null,
+      hasCustomerEmail: Boolean(job.customerEmail),
+      providerReady: this.provider !== null,
     };
   }
 
@@ -150,14 +222,26 @@ export class PaymentsService {
       await findVisible(Job, actor, jobId, trx, 'job');
       const job = await lockJob(trx, jobId);
       const live = await livePayment(trx, jobId, 'deposit');
-      if (live) throw new ConflictError(live.status === 'paid' ? 'The deposit for this job is already paid.' : 'A deposit request for this job is already open; cancel it first to ask for a different amount.', { code: 'payment-open' });
+      if (live)
+        throw new ConflictError(
+          live.status === 'paid'
+            ? 'The deposit for this job is already paid.'
+            : 'A deposit request for this job is already open; cancel it first to ask for a different amount.',
+          { code: 'payment-open' },
+        );
       let amount = amountPence;
       if (amount === undefined) {
-        if (!job.pricePence) throw new BadRequestError('Give the deposit amount, or record the job\'s price first.', [{ field: 'amountPence', message: 'is needed while the job has no price' }]);
+        if (!job.pricePence)
+          throw new BadRequestError("Give the deposit amount, or record the job's price first.", [
+            { field: 'amountPence', message: 'is needed while the job has no price' },
+          ]);
         const settings = await trx('firm_settings').where('firm_id', job.firmId).first('deposit_percent');
         amount = depositOf(job.pricePence, settings?.depositPercent ?? DEFAULT_DEPOSIT_PERCENT);
       }
-      if (job.pricePence && amount > job.pricePence) throw new BadRequestError('The deposit is more than the job\'s price.', [{ field: 'amountPence', message: 'must not be more than the job\'s price' }]);
+      if (job.pricePence && amount > job.pricePence)
+        throw new BadRequestError("The deposit is more than the job's price.", [
+          { field: 'amountPence', message: "must not be more than the job's price" },
+        ]);
       await insertRequest(trx, actor, jobId, 'deposit', amount);
     });
     return this.summary(actor, jobId);
@@ -167,8 +251,17 @@ export class PaymentsService {
     if (!this.provider) throw new PaymentsUnavailableError();
     await this.knex.transaction(async (trx) => {
       const result = await requestBalance({ actor, trx, jobId, amountPence });
-      if (!result) throw new BadRequestError('Nothing is left to ask for: record the job\'s price, or give the amount.', [{ field: 'amountPence', message: 'is needed while the job has no price or nothing is due' }]);
-      if (!result.created) throw new ConflictError(result.payment.status === 'paid' ? 'The balance for this job is already paid.' : 'A balance request for this job is already open.', { code: 'payment-open' });
+      if (!result)
+        throw new BadRequestError("Nothing is left to ask for: record the job's price, or give the amount.", [
+          { field: 'amountPence', message: 'is needed while the job has no price or nothing is due' },
+        ]);
+      if (!result.created)
+        throw new ConflictError(
+          result.payment.status === 'paid'
+            ? 'The balance for this job is already paid.'
+            : 'A balance request for this job is already open.',
+          { code: 'payment-open' },
+        );
     });
     return this.summary(actor, jobId);
   }
@@ -178,7 +271,10 @@ export class PaymentsService {
     await this.knex.transaction(async (trx) => {
       await findVisible(Job, actor, jobId, trx, 'job');
       await lockJob(trx, jobId);
-      const open = await trx('job_payments').where({ job_id: jobId, kind, status: 'requested' }).forUpdate().first() as PaymentRow | undefined;
+      const open = (await trx('job_payments')
+        .where({ job_id: jobId, kind, status: 'requested' })
+        .forUpdate()
+        .first()) as PaymentRow | undefined;
       if (!open) throw new ConflictError(`No ${kind} request of this job is open.`);
       if (open.checkoutSessionId) {
         if (!this.provider) throw new PaymentsUnavailableError();
@@ -188,7 +284,10 @@ export class PaymentsService {
           if (session.paid) throw new ConflictError('The householder has just paid this request; reload to see it.');
         }
       }
-      const [after] = await trx('job_payments').where('id', open.id).update({ status: 'cancelled', closed_at: new Date(this.now()) }).returning('*') as PaymentRow[];
+      const [after] = (await trx('job_payments')
+        .where('id', open.id)
+        .update({ status: 'cancelled', closed_at: new Date(this.now()) })
+        .returning('*')) as PaymentRow[];
       await recordChange(trx, actor, 'payment', String(open.id), 'update', snapshot(open), snapshot(after!));
     });
     return this.summary(actor, jobId);
@@ -199,7 +298,9 @@ export class PaymentsService {
       return await call();
     } catch (error) {
       this.log?.warn({ err: error instanceof Error ? error.message : String(error) }, 'payment provider call failed');
-      throw new PaymentsUnavailableError('The payment provider is not answering. Nothing was charged; try again in a few minutes.');
+      throw new PaymentsUnavailableError(
+        'The payment provider is not answering. Nothing was charged; try again in a few minutes.',
+      );
     }
   }
 
@@ -208,27 +309,59 @@ export class PaymentsService {
    * session (made now, or the one made before while it is still open; the row is locked meanwhile,
    * so two opens at once share one session); a paid one, withdrawn one or unknown link gets a page.
    */
-  async openLink(token: string): Promise<{ redirect: string } | { state: 'paid' | 'closed' | 'unknown' | 'confirming'; payment?: { amountPence: number; kind: PaymentKind; firmName: string; reference: string; paidOn: string | null } }> {
+  async openLink(token: string): Promise<
+    | { redirect: string }
+    | {
+        state: 'paid' | 'closed' | 'unknown' | 'confirming';
+        payment?: {
+          amountPence: number;
+          kind: PaymentKind;
+          firmName: string;
+          reference: string;
+          paidOn: string | null;
+        };
+      }
+  > {
     const paymentId = paymentIdOfToken(this.config.LINK_SECRET, token);
     if (!paymentId) return { state: 'unknown' };
     return this.knex.transaction(async (trx) => {
-      const row = await trx('job_payments as p').join('jobs as j', 'j.id', 'p.job_id').join('firms as f', 'f.id', 'j.firm_id')
-        .where('p.id', paymentId).forUpdate('p').first('p.*', 'j.reference', 'j.customer_email', 'f.name as firm_name', 'f.time_zone') as
-        (PaymentRow & { reference: string; customerEmail: string | null; firmName: string; timeZone: string }) | undefined;
+      const row = (await trx('job_payments as p')
+        .join('jobs as j', 'j.id', 'p.job_id')
+        .join('firms as f', 'f.id', 'j.firm_id')
+        .where('p.id', paymentId)
+        .forUpdate('p')
+        .first('p.*', 'j.reference', 'j.customer_email', 'f.name as firm_name', 'f.time_zone')) as
+        | (PaymentRow & { reference: string; customerEmail: string | null; firmName: string; timeZone: string })
+        | undefined;
       if (!row) return { state: 'unknown' as const };
-      const payment = { amountPence: row.amountPence, kind: row.kind, firmName: row.firmName, reference: row.reference, paidOn: row.paidAt ? localDateOf(row.paidAt, row.timeZone) : null };
+      const payment = {
+        amountPence: row.amountPence,
+        kind: row.kind,
+        firmName: row.firmName,
+        reference: row.reference,
+        paidOn: row.paidAt ? localDateOf(row.paidAt, row.timeZone) : null,
+      };
       if (row.status === 'paid') return { state: 'paid' as const, payment };
       if (row.status !== 'requested') return { state: 'closed' as const, payment };
       if (!this.provider) throw new PaymentsUnavailableError();
-      let session: CheckoutSession | null = row.checkoutSessionId ? await this.callProvider(() => this.provider!.retrieveSession(row.checkoutSessionId!)) : null;
+      let session: CheckoutSession | null = row.checkoutSessionId
+        ? await this.callProvider(() => this.provider!.retrieveSession(row.checkoutSessionId!))
+        : null;
       // Paid, or finished with the money still on its way (a bank payment): never a second page to pay on.
       if (session?.paid || session?.status === 'complete') return { state: 'confirming' as const, payment };
       if (!session || session.status !== 'open' || !session.url) {
         const previous = row.checkoutSessionId ?? 'none';
-        session = await this.callProvider(() => this.provider!.createSession({
-          amountPence: row.amountPence, description: `${KIND_WORDS[row.kind]} for job ${row.reference}, ${row.firmName}`, reference: row.reference,
-          paymentId, email: row.customerEmail, returnUrl: paymentLink(this.config, paymentId), idempotencyKey: `waterline-payment-${paymentId}-after-${previous}`,
-        }));
+        session = await this.callProvider(() =>
+          this.provider!.createSession({
+            amountPence: row.amountPence,
+            description: `${KIND_WORDS[row.kind]} for job ${row.reference}, ${row.firmName}`,
+            reference: row.reference,
+            paymentId,
+            email: row.customerEmail,
+            returnUrl: paymentLink(this.config, paymentId),
+            idempotencyKey: `waterline-payment-${paymentId}-after-${previous}`,
+          }),
+        );
         await trx('job_payments').where('id', paymentId).update({ checkout_session_id: session.id });
       }
       return { redirect: session.url! };
@@ -246,29 +379,53 @@ export class PaymentsService {
       event = this.provider.verifyEvent(rawBody, signature);
     } catch (error) {
       if (!(error instanceof SignatureError)) throw error;
-      await this.knex('webhook_events').insert({ outcome: 'refused', detail: `signature: ${error.message}`.slice(0, 300), received_at: new Date(this.now()) });
+      await this.knex('webhook_events').insert({
+        outcome: 'refused',
+        detail: `signature: ${error.message}`.slice(0, 300),
+        received_at: new Date(this.now()),
+      });
       this.log?.warn({ reason: error.message }, 'payment webhook refused: bad signature');
-      throw new HttpError(400, 'bad-signature', 'The webhook signature is not valid', 'Refused and logged; nothing changed.');
+      throw new HttpError(
+        400,
+        'bad-signature',
+        'The webhook signature is not valid',
+        'Refused and logged; nothing changed.',
+      );
     }
     return this.knex.transaction(async (trx) => {
-      const [logged] = await trx('webhook_events').insert({ provider_event_id: event.id, type: event.type, outcome: 'ignored', received_at: new Date(this.now()) })
-        .onConflict('provider_event_id').ignore().returning('id');
+      const [logged] = await trx('webhook_events')
+        .insert({
+          provider_event_id: event.id,
+          type: event.type,
+          outcome: 'ignored',
+          received_at: new Date(this.now()),
+        })
+        .onConflict('provider_event_id')
+        .ignore()
+        .returning('id');
       if (!logged) return { outcome: 'replayed' as const, detail: 'this event was received before' };
       const result = await this.apply(trx, event);
-      await trx('webhook_events').where('id', logged.id).update({ outcome: result.outcome, detail: result.detail, payment_id: result.paymentId ?? null });
-      if (result.outcome !== 'applied') this.log?.info({ eventId: event.id, type: event.type, detail: result.detail }, 'payment webhook ignored');
+      await trx('webhook_events')
+        .where('id', logged.id)
+        .update({ outcome: result.outcome, detail: result.detail, payment_id: result.paymentId ?? null });
+      if (result.outcome !== 'applied')
+        this.log?.info({ eventId: event.id, type: event.type, detail: result.detail }, 'payment webhook ignored');
       return { outcome: result.outcome, detail: result.detail };
     });
   }
 
-  private async apply(trx: Knex.Transaction, event: ProviderEvent): Promise<{ outcome: 'applied' | 'ignored'; detail: string; paymentId?: string }> {
+  private async apply(
+    trx: Knex.Transaction,
+    event: ProviderEvent,
+  ): Promise<{ outcome: 'applied' | 'ignored'; detail: string; paymentId?: string }> {
     const session = event.session;
     if (!session) return { outcome: 'ignored', detail: `not about a checkout session (${event.type})` };
-    const found = await trx('job_payments').where('checkout_session_id', session.id).first('id', 'job_id') as { id: string; jobId: string } | undefined;
+    const found = (await trx('job_payments').where('checkout_session_id', session.id).first('id', 'job_id')) as
+      { id: string; jobId: string } | undefined;
     if (!found) return { outcome: 'ignored', detail: 'no payment of ours has this session' };
     // The job first, then the payment: the same order as the office's requests, so they never wait on each other in a circle.
     const job = await lockJob(trx, String(found.jobId));
-    const payment = await trx('job_payments').where('id', found.id).forUpdate().first() as PaymentRow;
+    const payment = (await trx('job_payments').where('id', found.id).forUpdate().first()) as PaymentRow;
     const paymentId = String(payment.id);
     if (event.type === 'checkout.session.expired') {
       if (payment.status === 'requested' && payment.checkoutSessionId === session.id) {
@@ -278,27 +435,52 @@ export class PaymentsService {
       }
       return { outcome: 'ignored', detail: 'session expired after the payment was closed', paymentId };
     }
-    if (event.type !== 'checkout.session.completed' && event.type !== 'checkout.session.async_payment_succeeded') return { outcome: 'ignored', detail: `not handled (${event.type})`, paymentId };
+    if (event.type !== 'checkout.session.completed' && event.type !== 'checkout.session.async_payment_succeeded')
+      return { outcome: 'ignored', detail: `not handled (${event.type})`, paymentId };
     if (!session.paid) return { outcome: 'ignored', detail: 'completed but not paid yet', paymentId };
     if (payment.status === 'paid') return { outcome: 'ignored', detail: 'already recorded as paid', paymentId };
     if (session.amountPence !== payment.amountPence || session.currency !== 'gbp') {
       this.log?.error({ paymentId, session: session.id }, 'payment webhook amount differs from the request');
-      return { outcome: 'ignored', detail: `amount ${session.amountPence} ${session.currency} differs from the request (${payment.amountPence} gbp)`, paymentId };
+      return {
+        outcome: 'ignored',
+        detail: `amount ${session.amountPence} ${session.currency} differs from the request (${payment.amountPence} gbp)`,
+        paymentId,
+      };
     }
     if (payment.status !== 'requested') {
       this.log?.error({ paymentId, session: session.id }, 'money arrived for a withdrawn request: refund it');
       return { outcome: 'ignored', detail: `paid after the request was ${payment.status}: refund due`, paymentId };
     }
     const paidAt = new Date(event.createdAt);
-    const [after] = await trx('job_payments').where('id', paymentId)
-      .update({ status: 'paid', paid_at: paidAt, payment_intent_id: session.paymentIntentId, closed_at: paidAt }).returning('*') as PaymentRow[];
-    await recordChange(trx, null, 'payment', paymentId, 'update', snapshot(payment), snapshot(after!), String(job.firmId));
+    const [after] = (await trx('job_payments')
+      .where('id', paymentId)
+      .update({ status: 'paid', paid_at: paidAt, payment_intent_id: session.paymentIntentId, closed_at: paidAt })
+      .returning('*')) as PaymentRow[];
+    await recordChange(
+      trx,
+      null,
+      'payment',
+      paymentId,
+      'update',
+      snapshot(payment),
+      snapshot(after!),
+      String(job.firmId),
+    );
     if (payment.kind === 'deposit') {
       const firm = await trx('firms').where('id', job.firmId).first('time_zone');
       const paidOn = localDateOf(paidAt, firm.timeZone);
       if (!job.orderedOn || job.orderedOn > paidOn) {
         await trx('jobs').where('id', job.id).update({ ordered_on: paidOn });
-        await recordChange(trx, null, 'job', String(job.id), 'update', { orderedOn: job.orderedOn }, { orderedOn: paidOn, because: `deposit ${paymentId} paid` }, String(job.firmId));
+        await recordChange(
+          trx,
+          null,
+          'job',
+          String(job.id),
+          'update',
+          { orderedOn: job.orderedOn },
+          { orderedOn: paidOn, because: `deposit ${paymentId} paid` },
+          String(job.firmId),
+        );
         await notifyJobChange(trx, String(job.id));
       }
     }

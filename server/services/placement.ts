@@ -2,7 +2,14 @@ import type { Knex } from 'knex';
 import type { BoardData } from '../../shared/board-data.ts';
 import { toEngineBoard } from '../../shared/board-data.ts';
 import { autoPlace, createBoardIndex, findSlots, type AutoPlaceOptions } from '../../shared/scheduler/index.ts';
-import type { AutoPlaceAnswer, AutoPlaceRequest, KindSlots, PlanProgress, SlotAnswer, SlotSearch } from '../../shared/schemas/placement.ts';
+import type {
+  AutoPlaceAnswer,
+  AutoPlaceRequest,
+  KindSlots,
+  PlanProgress,
+  SlotAnswer,
+  SlotSearch,
+} from '../../shared/schemas/placement.ts';
 import { Job, Resource, Stage } from '../models/index.ts';
 import { BadRequestError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
@@ -26,7 +33,10 @@ const FIRST_READ_MARGIN_DAYS = 30;
 export const PROGRESS_EVERY_MS = 250;
 
 /** A run of the engine over loaded data: its answer and the latest instant the answer relies on. */
-interface Run<T> { result: T; reach: number }
+interface Run<T> {
+  result: T;
+  reach: number;
+}
 
 /**
  * Where a stage could go and where a job's unbooked stages would go, worked out on the server on
@@ -52,7 +62,8 @@ export class PlacementService {
     let resourceId: string | undefined;
     if (input.resourceId !== undefined) {
       const resource = await findVisible(Resource, actor, input.resourceId, undefined, 'resource');
-      if (!needs.includes(resource.kind)) throw wrongKind('resourceId', `${resource.name} is not of a kind`, stage.name, needs);
+      if (!needs.includes(resource.kind))
+        throw wrongKind('resourceId', `${resource.name} is not of a kind`, stage.name, needs);
       kinds = [resource.kind];
       resourceId = String(resource.id);
     } else if (input.resourceKind !== undefined) {
@@ -62,17 +73,27 @@ export class PlacementService {
     const stageId = String(stage.id);
     const kindSlots = await this.onCompleteData(actor, [String(stage.jobId)], SLOT_HORIZON_DAYS, (data) => {
       // A resource the board does not show (inactive) has no slots, as one that does not exist.
-      if (resourceId !== undefined && !data.resources.some((r) => r.id === resourceId)) throw new NotFoundError('resource');
+      if (resourceId !== undefined && !data.resources.some((r) => r.id === resourceId))
+        throw new NotFoundError('resource');
       const index = createBoardIndex(toEngineBoard(data), { now: data.now });
       const found = kinds.map((kind) => ({
         kind,
-        slots: findSlots(index, { stageId, earliest: data.now, ...(resourceId !== undefined ? { resourceId } : { resourceKind: kind }) },
-          { alternatives: input.alternatives, horizonDays: SLOT_HORIZON_DAYS }),
+        slots: findSlots(
+          index,
+          { stageId, earliest: data.now, ...(resourceId !== undefined ? { resourceId } : { resourceKind: kind }) },
+          { alternatives: input.alternatives, horizonDays: SLOT_HORIZON_DAYS },
+        ),
       }));
       // The stage's other bookings move with a slot: they too must lie in what was read.
-      const reach = Math.max(data.now, ...found.flatMap((k) => k.slots.flatMap((s) => [s.end, ...s.bookings.map((b) => b.end)])));
+      const reach = Math.max(
+        data.now,
+        ...found.flatMap((k) => k.slots.flatMap((s) => [s.end, ...s.bookings.map((b) => b.end)])),
+      );
       // Only where and what it costs leaves: the stage's bookings stay the board's business.
-      const result: KindSlots[] = found.map(({ kind, slots }) => ({ kind, slots: slots.map(({ resourceId: r, start, end, cost }) => ({ resourceId: r, start, end, cost })) }));
+      const result: KindSlots[] = found.map(({ kind, slots }) => ({
+        kind,
+        slots: slots.map(({ resourceId: r, start, end, cost }) => ({ resourceId: r, start, end, cost })),
+      }));
       return { result, reach };
     });
     return { stageId, horizonDays: SLOT_HORIZON_DAYS, kinds: kindSlots };
@@ -83,21 +104,32 @@ export class PlacementService {
    * `budgetMs`). `progress` hears how far it has got, at most every {@link PROGRESS_EVERY_MS}.
    * A job of another firm → 404.
    */
-  async autoPlace(actor: Actor, input: AutoPlaceRequest, progress?: (info: Omit<PlanProgress, 'planId'>) => void): Promise<AutoPlaceAnswer> {
-    const found = new Set((await scoped(Job, actor).whereIn('jobs.id', input.jobIds).select('jobs.id')).map((j) => String(j.id)));
+  async autoPlace(
+    actor: Actor,
+    input: AutoPlaceRequest,
+    progress?: (info: Omit<PlanProgress, 'planId'>) => void,
+  ): Promise<AutoPlaceAnswer> {
+    const found = new Set(
+      (await scoped(Job, actor).whereIn('jobs.id', input.jobIds).select('jobs.id')).map((j) => String(j.id)),
+    );
     if (input.jobIds.some((id) => !found.has(id))) throw new NotFoundError('job');
     let last = 0;
     // Wall-clock throttling of the reports only: the plan itself never depends on time.
-    const onProgress = progress && ((p: EngineProgress) => {
-      const t = Date.now();
-      if (t - last < PROGRESS_EVERY_MS && p.phase === 'search') return;
-      last = t;
-      progress({ phase: p.phase, schedules: p.schedules, used: p.used });
-    });
+    const onProgress =
+      progress &&
+      ((p: EngineProgress) => {
+        const t = Date.now();
+        if (t - last < PROGRESS_EVERY_MS && p.phase === 'search') return;
+        last = t;
+        progress({ phase: p.phase, schedules: p.schedules, used: p.used });
+      });
     const result = await this.onCompleteData(actor, input.jobIds, AUTO_PLACE_HORIZON_DAYS, (data) => {
       const placed = autoPlace(toEngineBoard(data), {
-        now: data.now, jobIds: input.jobIds, horizonDays: AUTO_PLACE_HORIZON_DAYS,
-        ...(input.budgetMs !== undefined ? { budgetMs: input.budgetMs } : {}), ...(onProgress ? { onProgress } : {}),
+        now: data.now,
+        jobIds: input.jobIds,
+        horizonDays: AUTO_PLACE_HORIZON_DAYS,
+        ...(input.budgetMs !== undefined ? { budgetMs: input.budgetMs } : {}),
+        ...(onProgress ? { onProgress } : {}),
       });
       return { result: placed, reach: Math.max(data.now, ...placed.bookings.map((b) => b.end)) };
     });
@@ -111,7 +143,12 @@ export class PlacementService {
    * the search went further (a first possible start far ahead), so the span grows and the search
    * runs again. Ends at the last day the write path accepts a booking, beyond which nothing exists.
    */
-  private async onCompleteData<T>(actor: Actor, jobIds: string[], horizonDays: number, run: (data: BoardData) => Run<T>): Promise<T> {
+  private async onCompleteData<T>(
+    actor: Actor,
+    jobIds: string[],
+    horizonDays: number,
+    run: (data: BoardData) => Run<T>,
+  ): Promise<T> {
     const now = this.now();
     const last = now + this.limits.futureDays * DAY;
     // From a day back: a booking running now still takes its resource.
@@ -126,7 +163,14 @@ export class PlacementService {
   }
 }
 
-function wrongKind(field: 'resourceId' | 'resourceKind', what: string, stageName: string, needs: string[]): BadRequestError {
+function wrongKind(
+  field: 'resourceId' | 'resourceKind',
+  what: string,
+  stageName: string,
+  needs: string[],
+): BadRequestError {
   const wanted = needs.length ? needs.map((k) => k.replace(/_/g, ' ')).join(', ') : 'nothing';
-  return new BadRequestError(`'${stageName}' needs ${wanted}.`, [{ field, message: `${what} '${stageName}' needs (it needs ${wanted})` }]);
+  return new BadRequestError(`'${stageName}' needs ${wanted}.`, [
+    { field, message: `${what} '${stageName}' needs (it needs ${wanted})` },
+  ]);
 }

@@ -20,7 +20,10 @@ export interface PlanResult extends Plan {
 
 /** Turns a job into stages and dependencies from the firm's template for its installation type. */
 export class PlansService {
-  constructor(private readonly knex: Knex, private readonly templates: TemplatesService) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly templates: TemplatesService,
+  ) {}
 
   /**
    * Creates the job's stages and dependencies (unscheduled), replacing any earlier plan that has no
@@ -30,19 +33,28 @@ export class PlansService {
     return this.knex.transaction(async (trx) => {
       const job = await scoped(Job, actor, trx).findById(jobId).forUpdate();
       if (!job) throw new NotFoundError('job');
-      const booked = await scoped(Booking, actor, trx).whereIn('bookings.stage_id', Stage.query(trx).select('id').where('job_id', job.id)).resultSize();
+      const booked = await scoped(Booking, actor, trx)
+        .whereIn('bookings.stage_id', Stage.query(trx).select('id').where('job_id', job.id))
+        .resultSize();
       if (booked > 0) {
-        throw new ConflictError(`This job already has ${plural(booked, 'booking')}; cancel them before planning it again.`, { code: 'already-booked', bookings: booked });
+        throw new ConflictError(
+          `This job already has ${plural(booked, 'booking')}; cancel them before planning it again.`,
+          { code: 'already-booked', bookings: booked },
+        );
       }
       const template = await this.templates.get(actor, job.installationType, trx);
       const unit = job.unitId ? await scoped(Unit, actor, trx).findById(job.unitId) : undefined;
       const survey = await scoped(Survey, actor, trx).findOne({ jobId: job.id });
       const { quantities: settings } = await this.templates.settings(actor, trx);
-      const q = unit ? jobQuantities({ installationType: job.installationType, unit, survey: survey ?? null, settings }) : null;
+      const q = unit
+        ? jobQuantities({ installationType: job.installationType, unit, survey: survey ?? null, settings })
+        : null;
       // Without a unit there is nothing to measure against: plan for a crane until the survey says otherwise.
-      const crane = q?.crane.result ?? (survey?.craneRequired === false
-        ? { needed: false, reason: 'The surveyor ruled out a crane.' }
-        : { needed: true, reason: 'No unit chosen yet: planned with a crane until the access check can be made.' });
+      const crane =
+        q?.crane.result ??
+        (survey?.craneRequired === false
+          ? { needed: false, reason: 'The surveyor ruled out a crane.' }
+          : { needed: true, reason: 'No unit chosen yet: planned with a crane until the access check can be made.' });
       const plan = planFromTemplate(template, {
         craneNeeded: crane.needed,
         excavationMinutes: q?.excavationTime?.result.minutes ?? null,
@@ -59,21 +71,51 @@ export class PlansService {
           s.kind === 'excavation' ? `Duration ${s.durationSource}.` : null,
           // How many skips or grab-lorry loads to book with the haulier, from the dig's quantities.
           s.kind === 'spoil_away' && q?.spoil ? spoilAwayNote(q.spoil) : null,
-        ].filter(Boolean).join(' ');
+        ]
+          .filter(Boolean)
+          .join(' ');
         const row = await Stage.query(trx).insert({
-          jobId: job.id, kind: s.kind, name: s.name, sequence: s.sequence, durationMinutes: s.durationMinutes,
-          requirements: JSON.stringify(s.requirements) as never, cure: (s.cure ? JSON.stringify(s.cure) : null) as never,
-          mayContinueNextDay: s.mayContinueNextDay, notice: (s.leadTime ? JSON.stringify(s.leadTime) : null) as never, notes: notes || null,
+          jobId: job.id,
+          kind: s.kind,
+          name: s.name,
+          sequence: s.sequence,
+          durationMinutes: s.durationMinutes,
+          requirements: JSON.stringify(s.requirements) as never,
+          cure: (s.cure ? JSON.stringify(s.cure) : null) as never,
+          mayContinueNextDay: s.mayContinueNextDay,
+          notice: (s.leadTime ? JSON.stringify(s.leadTime) : null) as never,
+          notes: notes || null,
         } as Partial<Stage>);
         ids.set(s.kind, row.id);
       }
       for (const l of plan.links) {
-        await Dependency.query(trx).insert({ fromStageId: ids.get(l.fromKind)!, toStageId: ids.get(l.toKind)!, type: l.type, lagAmount: l.lagAmount, lagUnit: l.lagUnit, waitsForCure: l.waitsForCure } as Partial<Dependency>);
+        await Dependency.query(trx).insert({
+          fromStageId: ids.get(l.fromKind)!,
+          toStageId: ids.get(l.toKind)!,
+          type: l.type,
+          lagAmount: l.lagAmount,
+          lagUnit: l.lagUnit,
+          waitsForCure: l.waitsForCure,
+        } as Partial<Dependency>);
       }
       const status = job.status === 'enquiry' || job.status === 'surveyed' ? 'planned' : job.status;
-      await Job.query(trx).patch({ status, version: job.version + 1 } as Partial<Job>).where('id', job.id);
-      await recordChange(trx, actor, 'job', job.id, 'update', { stages: old.map((s) => s.kind) }, { stages: plan.stages.map((s) => s.kind), crane });
-      return { ...plan, crane, template: { name: template.name, isDefault: template.isDefault, version: template.version } };
+      await Job.query(trx)
+        .patch({ status, version: job.version + 1 } as Partial<Job>)
+        .where('id', job.id);
+      await recordChange(
+        trx,
+        actor,
+        'job',
+        job.id,
+        'update',
+        { stages: old.map((s) => s.kind) },
+        { stages: plan.stages.map((s) => s.kind), crane },
+      );
+      return {
+        ...plan,
+        crane,
+        template: { name: template.name, isDefault: template.isDefault, version: template.version },
+      };
     });
   }
 
@@ -83,10 +125,16 @@ export class PlansService {
     const stages = await scoped(Stage, actor).where('job_id', jobId).orderBy('sequence');
     const ids = stages.map((s) => s.id);
     const deps = await scoped(Dependency, actor).whereIn('to_stage_id', ids);
-    const bookings = await scoped(Booking, actor).whereIn('stage_id', ids).join('resources', 'resources.id', 'bookings.resource_id')
-      .select('bookings.*', 'resources.name as resourceName', 'resources.kind as resourceKind').orderBy('bookings.starts_at') as (Booking & { resourceName: string; resourceKind: string })[];
+    const bookings = (await scoped(Booking, actor)
+      .whereIn('stage_id', ids)
+      .join('resources', 'resources.id', 'bookings.resource_id')
+      .select('bookings.*', 'resources.name as resourceName', 'resources.kind as resourceKind')
+      .orderBy('bookings.starts_at')) as (Booking & { resourceName: string; resourceKind: string })[];
     // A declined booking says why, in the partner's words, where the read policy lets this reader see it.
-    const answers = await latestAnswers(this.knex, bookings.filter((b) => b.state === 'declined').map((b) => String(b.id)));
+    const answers = await latestAnswers(
+      this.knex,
+      bookings.filter((b) => b.state === 'declined').map((b) => String(b.id)),
+    );
     const declineReason = (id: string) => {
       const a = answers.get(String(id));
       return a?.action === 'decline' ? answerReasonFor(actor, String(job.firmId), a.reason) : null;
@@ -96,14 +144,39 @@ export class PlansService {
     const nameOf = new Map(stages.map((s) => [s.id, s.name]));
     return {
       items: stages.map((s) => ({
-        id: s.id, kind: s.kind, name: s.name, sequence: s.sequence, durationMinutes: s.durationMinutes,
-        requirements: s.requirements, cure: s.cure, notice: s.notice, notes: s.notes, cautions: cautionsFor(s.kind),
-        after: deps.filter((d) => d.toStageId === s.id).map((d) => ({ stageId: d.fromStageId, kind: kindOf.get(d.fromStageId) ?? null, name: nameOf.get(d.fromStageId) ?? null, type: d.type, lagAmount: d.lagAmount, lagUnit: d.lagUnit, waitsForCure: d.waitsForCure })),
-        bookings: bookings.filter((b) => b.stageId === s.id).map((b) => ({
-          id: b.id, resourceId: b.resourceId, resourceName: b.resourceName, resourceKind: b.resourceKind,
-          startsAt: b.startsAt.toISOString(), endsAt: b.endsAt.toISOString(), state: b.state,
-          ...(b.state === 'declined' ? { declineReason: declineReason(b.id) } : {}),
-        })),
+        id: s.id,
+        kind: s.kind,
+        name: s.name,
+        sequence: s.sequence,
+        durationMinutes: s.durationMinutes,
+        requirements: s.requirements,
+        cure: s.cure,
+        notice: s.notice,
+        notes: s.notes,
+        cautions: cautionsFor(s.kind),
+        after: deps
+          .filter((d) => d.toStageId === s.id)
+          .map((d) => ({
+            stageId: d.fromStageId,
+            kind: kindOf.get(d.fromStageId) ?? null,
+            name: nameOf.get(d.fromStageId) ?? null,
+            type: d.type,
+            lagAmount: d.lagAmount,
+            lagUnit: d.lagUnit,
+            waitsForCure: d.waitsForCure,
+          })),
+        bookings: bookings
+          .filter((b) => b.stageId === s.id)
+          .map((b) => ({
+            id: b.id,
+            resourceId: b.resourceId,
+            resourceName: b.resourceName,
+            resourceKind: b.resourceKind,
+            startsAt: b.startsAt.toISOString(),
+            endsAt: b.endsAt.toISOString(),
+            state: b.state,
+            ...(b.state === 'declined' ? { declineReason: declineReason(b.id) } : {}),
+          })),
       })),
     };
   }

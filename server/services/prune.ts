@@ -14,13 +14,24 @@ export interface PruneSettings {
   batch?: number;
 }
 
-export interface PruneResult { outbox: number; linkAttempts: number; boardChanges: number }
+export interface PruneResult {
+  outbox: number;
+  linkAttempts: number;
+  boardChanges: number;
+}
 
 /** Deletes the rows `pick` names, `batch` at a time, until none are left; returns how many went. */
-async function deleteInBatches(knex: Knex, table: string, pick: (q: Knex.QueryBuilder) => Knex.QueryBuilder, batch: number): Promise<number> {
+async function deleteInBatches(
+  knex: Knex,
+  table: string,
+  pick: (q: Knex.QueryBuilder) => Knex.QueryBuilder,
+  batch: number,
+): Promise<number> {
   let total = 0;
   for (;;) {
-    const deleted = await knex(table).whereIn('id', pick(knex(table).select('id')).limit(batch)).delete();
+    const deleted = await knex(table)
+      .whereIn('id', pick(knex(table).select('id')).limit(batch))
+      .delete();
     total += deleted;
     if (deleted < batch) return total;
   }
@@ -34,8 +45,23 @@ async function deleteInBatches(knex: Knex, table: string, pick: (q: Knex.QueryBu
 export async function pruneOldRows(knex: Knex, settings: PruneSettings): Promise<PruneResult> {
   const batch = settings.batch ?? 5000;
   const before = (days: number) => new Date(settings.now.getTime() - days * DAY);
-  const outbox = await deleteInBatches(knex, 'outbox', (q) => q.whereIn('status', ['sent', 'failed']).where('created_at', '<', before(settings.outboxKeepDays)), batch);
-  const linkAttempts = await deleteInBatches(knex, 'link_attempts', (q) => q.where('at', '<', before(settings.linkAttemptsKeepDays)), batch);
-  const boardChanges = await deleteInBatches(knex, 'board_changes', (q) => q.where('at', '<', before(settings.boardChangesKeepDays)), batch);
+  const outbox = await deleteInBatches(
+    knex,
+    'outbox',
+    (q) => q.whereIn('status', ['sent', 'failed']).where('created_at', '<', before(settings.outboxKeepDays)),
+    batch,
+  );
+  const linkAttempts = await deleteInBatches(
+    knex,
+    'link_attempts',
+    (q) => q.where('at', '<', before(settings.linkAttemptsKeepDays)),
+    batch,
+  );
+  const boardChanges = await deleteInBatches(
+    knex,
+    'board_changes',
+    (q) => q.where('at', '<', before(settings.boardChangesKeepDays)),
+    batch,
+  );
   return { outbox, linkAttempts, boardChanges };
 }

@@ -42,7 +42,10 @@ export function visitStatesFor(actor: Actor): readonly string[] {
 }
 
 /** A job as a reader may see it: crew get the site and the householder's name, not their e-mail or phone. */
-export function jobForReader<J extends { customerPhone: string | null; customerEmail: string | null }>(actor: Actor, job: J): J {
+export function jobForReader<J extends { customerPhone: string | null; customerEmail: string | null }>(
+  actor: Actor,
+  job: J,
+): J {
   if (isOffice(actor)) return job;
   return { ...job, customerPhone: null, customerEmail: null };
 }
@@ -62,7 +65,11 @@ export interface VisitFacts {
   sharesCustomerContact: boolean;
 }
 
-export interface VisitContact { name: string; phone: string | null; role: string }
+export interface VisitContact {
+  name: string;
+  phone: string | null;
+  role: string;
+}
 
 /**
  * Whom a reader may call about a visit. The installer's office always. The householder: the
@@ -107,28 +114,51 @@ export function partnerSlotFacts(f: SlotFacts): { contacts: VisitContact[]; supp
 }
 
 /** Another booking on the same stage, as the day sheet's "with" line may show it. */
-export interface AlongsideRow { resourceId: string; name: string; kind: string; category: string; firmId: string; firmName: string; state: string }
+export interface AlongsideRow {
+  resourceId: string;
+  name: string;
+  kind: string;
+  category: string;
+  firmId: string;
+  firmName: string;
+  state: string;
+}
 
 /**
  * Who else is on the stage. The installer's office and crew see every active booking on it. A
  * partner sees only bookings already sent (another firm's pencilled booking is the installer's
  * plan), and other firms' people by their trade, not their name.
  */
-export function alongsideFor(actor: Actor, rows: readonly AlongsideRow[]): { name: string; kind: string; firmName: string }[] {
+export function alongsideFor(
+  actor: Actor,
+  rows: readonly AlongsideRow[],
+): { name: string; kind: string; firmName: string }[] {
   const partner = reachOf(actor) === 'partner';
   return rows
-    .filter((o) => o.state !== 'declined' && (!partner || (PARTNER_VISIBLE_STATES as readonly string[]).includes(o.state)))
+    .filter(
+      (o) => o.state !== 'declined' && (!partner || (PARTNER_VISIBLE_STATES as readonly string[]).includes(o.state)),
+    )
     .map((o) => ({
       name: partner && o.firmId !== actor.firmId && o.category === 'person' ? o.kind.replace(/_/g, ' ') : o.name,
-      kind: o.kind, firmName: o.firmName,
+      kind: o.kind,
+      firmName: o.firmName,
     }));
 }
 
 /** A booking change as the live stream hears of it (from PostgreSQL NOTIFY, server side only). */
-export interface BookingChange { bookingId: string; installerFirmId: string | null; resourceId: string; resourceFirmId: string | null }
+export interface BookingChange {
+  bookingId: string;
+  installerFirmId: string | null;
+  resourceId: string;
+  resourceFirmId: string | null;
+}
 
 /** An open board stream's reader: who they act for, and (crew) the resources they work as. */
-export interface StreamReader { reach: Reach; firmId: string; ownResourceIds: ReadonlySet<string> }
+export interface StreamReader {
+  reach: Reach;
+  firmId: string;
+  ownResourceIds: ReadonlySet<string>;
+}
 
 /**
  * Whether a change reaches a stream: only when it is to a booking the reader may read. The office
@@ -137,9 +167,12 @@ export interface StreamReader { reach: Reach; firmId: string; ownResourceIds: Re
  */
 export function mayHearOf(reader: StreamReader, change: BookingChange): boolean {
   switch (reader.reach) {
-    case 'installer-office': return change.installerFirmId === reader.firmId;
-    case 'crew': return change.installerFirmId === reader.firmId && reader.ownResourceIds.has(change.resourceId);
-    case 'partner': return false;
+    case 'installer-office':
+      return change.installerFirmId === reader.firmId;
+    case 'crew':
+      return change.installerFirmId === reader.firmId && reader.ownResourceIds.has(change.resourceId);
+    case 'partner':
+      return false;
   }
 }
 
@@ -149,7 +182,11 @@ export function streamEvent(change: BookingChange): { bookingId: string } {
 }
 
 /** A busy interval of a shared resource, from another installer's booking. */
-export interface BusySpan { resourceId: string; start: number; end: number }
+export interface BusySpan {
+  resourceId: string;
+  start: number;
+  end: number;
+}
 
 /**
  * Another installer's bookings of shared resources as busy blocks: overlapping or touching spans
@@ -157,7 +194,9 @@ export interface BusySpan { resourceId: string; start: number; end: number }
  * clashes can be read from the board. Sorted by resource and start.
  */
 export function busyElsewhere(spans: readonly BusySpan[]): BusySpan[] {
-  const sorted = [...spans].sort((a, b) => (a.resourceId < b.resourceId ? -1 : a.resourceId > b.resourceId ? 1 : a.start - b.start));
+  const sorted = [...spans].sort((a, b) =>
+    a.resourceId < b.resourceId ? -1 : a.resourceId > b.resourceId ? 1 : a.start - b.start,
+  );
   const out: BusySpan[] = [];
   for (const s of sorted) {
     const last = out[out.length - 1];
@@ -172,7 +211,11 @@ export function busyElsewhere(spans: readonly BusySpan[]): BusySpan[] {
  * installer firm whose booking it is. Any other firm gets null (a third firm never reads it; the
  * partner that wrote it has its own words already).
  */
-export function answerReasonFor(actor: Actor, installerFirmId: string, reason: string | null | undefined): string | null {
+export function answerReasonFor(
+  actor: Actor,
+  installerFirmId: string,
+  reason: string | null | undefined,
+): string | null {
   return String(actor.firmId) === String(installerFirmId) && reason ? reason : null;
 }
 
@@ -190,7 +233,10 @@ export function readsHandoverRecords(actor: Actor): boolean {
  * A job's electrical certificate as a partner firm sees it on its slot: the name and date of the
  * certificate only where this firm uploaded it (never another firm's file, never the office's waiver).
  */
-export function certificateForPartner(actor: Actor | { firmId: string }, row: { uploadedByFirmId: string; name: string; uploadedAt: Date } | null): { name: string; uploadedAt: string } | null {
+export function certificateForPartner(
+  actor: Actor | { firmId: string },
+  row: { uploadedByFirmId: string; name: string; uploadedAt: Date } | null,
+): { name: string; uploadedAt: string } | null {
   if (!row || String(row.uploadedByFirmId) !== String(actor.firmId)) return null;
   return { name: row.name, uploadedAt: row.uploadedAt.toISOString() };
 }

@@ -11,7 +11,10 @@ import { utilisationReport } from '../../shared/reports/utilisation.ts';
 import { absoluteLink, poundsCell, toCsv } from '../../shared/reports/csv.ts';
 import type { ClashReport, HireReport, UtilisationReport } from '../../shared/reports/types.ts';
 
-export interface ReportSpan { from: number; to: number }
+export interface ReportSpan {
+  from: number;
+  to: number;
+}
 
 const hours = (minutes: number) => (minutes / 60).toFixed(2);
 const percent = (ratio: number) => (ratio * 100).toFixed(1);
@@ -22,19 +25,32 @@ const percent = (ratio: number) => (ratio * 100).toFixed(1);
  */
 export class ReportsService {
   /** `publicUrl`: the site's own address (PUBLIC_URL), so CSV links open from a spreadsheet. */
-  constructor(private readonly knex: Knex, private readonly now: () => number, private readonly publicUrl = 'http://127.0.0.1:3000',
-    private readonly extraWorkingMinutes?: number) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly now: () => number,
+    private readonly publicUrl = 'http://127.0.0.1:3000',
+    private readonly extraWorkingMinutes?: number,
+  ) {}
 
   private link(relative: string): string {
     return absoluteLink(relative, this.publicUrl);
   }
 
-  private async context(actor: Actor, span: ReportSpan, load: ReportSpan = span, criticalPath = true): Promise<ReportContext> {
+  private async context(
+    actor: Actor,
+    span: ReportSpan,
+    load: ReportSpan = span,
+    criticalPath = true,
+  ): Promise<ReportContext> {
     const [firm, data] = await Promise.all([
       scoped(Firm, actor).findById(actor.firmId),
       loadBoard(this.knex, actor, { from: load.from, to: load.to, now: this.now() }),
     ]);
-    return reportContext(data, { ...span, now: this.now(), timeZone: firm?.timeZone ?? 'Europe/London' }, { criticalPath });
+    return reportContext(
+      data,
+      { ...span, now: this.now(), timeZone: firm?.timeZone ?? 'Europe/London' },
+      { criticalPath },
+    );
   }
 
   async clashes(actor: Actor, span: ReportSpan): Promise<ClashReport> {
@@ -42,13 +58,28 @@ export class ReportsService {
   }
 
   async hire(actor: Actor, span: ReportSpan): Promise<HireReport> {
-    const rows = await scoped(HirePeriod, actor).join('firms', 'firms.id', 'hire_periods.supplier_firm_id')
-      .where('hire_periods.off_hire_at', '>', new Date(span.from)).where('hire_periods.on_hire_at', '<', new Date(span.to))
-      .select('hire_periods.*', 'firms.name as supplierName') as unknown as (HirePeriod & { version: number; supplierName: string })[];
-    const facts = new Map<string, HirePeriodFacts>(rows.map((h) => [String(h.id), {
-      id: String(h.id), supplierFirmId: String(h.supplierFirmId), supplierName: h.supplierName, status: h.status,
-      version: h.version, deliveryPence: h.deliveryPence, collectionPence: h.collectionPence,
-    }]));
+    const rows = (await scoped(HirePeriod, actor)
+      .join('firms', 'firms.id', 'hire_periods.supplier_firm_id')
+      .where('hire_periods.off_hire_at', '>', new Date(span.from))
+      .where('hire_periods.on_hire_at', '<', new Date(span.to))
+      .select('hire_periods.*', 'firms.name as supplierName')) as unknown as (HirePeriod & {
+      version: number;
+      supplierName: string;
+    })[];
+    const facts = new Map<string, HirePeriodFacts>(
+      rows.map((h) => [
+        String(h.id),
+        {
+          id: String(h.id),
+          supplierFirmId: String(h.supplierFirmId),
+          supplierName: h.supplierName,
+          status: h.status,
+          version: h.version,
+          deliveryPence: h.deliveryPence,
+          collectionPence: h.collectionPence,
+        },
+      ]),
+    );
     // Idle days count over the whole hire, so the board is loaded over every hire touching the range.
     const load = {
       from: Math.min(span.from, ...rows.map((h) => h.onHireAt.getTime())),
@@ -59,7 +90,9 @@ export class ReportsService {
 
   async utilisation(actor: Actor, span: ReportSpan): Promise<UtilisationReport> {
     const ctx = await this.context(actor, span);
-    const sent = ctx.data.bookings.filter((b) => !b.elsewhere && b.state === 'sent').map((b) => ({ id: b.id, version: b.version ?? 1, state: b.state }));
+    const sent = ctx.data.bookings
+      .filter((b) => !b.elsewhere && b.state === 'sent')
+      .map((b) => ({ id: b.id, version: b.version ?? 1, state: b.state }));
     const answered = await withAnswers(this.knex, sent);
     return utilisationReport(ctx, new Set(answered.filter((b) => b.overdue).map((b) => b.id)));
   }

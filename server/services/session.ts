@@ -4,11 +4,18 @@ import type { FirmKind, Role } from '../../shared/permissions.ts';
 import { User } from '../models/index.ts';
 import type { Actor } from './actor.ts';
 
-interface MembershipRow { firmId: string; firmName: string; firmKind: FirmKind; role: Role; timeZone: string }
+interface MembershipRow {
+  firmId: string;
+  firmName: string;
+  firmKind: FirmKind;
+  role: Role;
+  timeZone: string;
+}
 
 // Sign-in and session look-ups run before there is an actor: they read only the person's own rows.
 async function membershipsOf(knex: Knex, userId: string): Promise<MembershipRow[]> {
-  return knex('memberships as m').join('firms as f', 'f.id', 'm.firm_id')
+  return knex('memberships as m')
+    .join('firms as f', 'f.id', 'm.firm_id')
     .where('m.user_id', userId)
     .select('f.id as firmId', 'f.name as firmName', 'f.kind as firmKind', 'm.role', 'f.time_zone as timeZone')
     .orderBy('f.name');
@@ -21,7 +28,12 @@ export async function actorFor(knex: Knex, userId: string, firmId: string | unde
   return m ? { userId, firmId: m.firmId, firmKind: m.firmKind, role: m.role } : null;
 }
 
-export interface GoogleProfile { sub: string; email: string | undefined; emailVerified: boolean; name: string }
+export interface GoogleProfile {
+  sub: string;
+  email: string | undefined;
+  emailVerified: boolean;
+  name: string;
+}
 
 /**
  * Finds the Waterline user for a Google account: by its subject, or on first sign-in by the verified

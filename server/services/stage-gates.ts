@@ -5,7 +5,12 @@ import { certificateGapsOf } from './certificates.ts';
 
 /** A stage that may not be marked done yet: 409 listing, in plain words, what is missing. */
 export class StageNotReadyError extends HttpError {
-  constructor(code: 'commissioning-incomplete' | 'certificate-missing' | 'handover-unsigned', title: string, stageName: string, readonly missing: string[]) {
+  constructor(
+    code: 'commissioning-incomplete' | 'certificate-missing' | 'handover-unsigned',
+    title: string,
+    stageName: string,
+    readonly missing: string[],
+  ) {
     super(409, code, title, `'${stageName}' can't be marked done yet. ${missing.join(' ')}`, { missing });
   }
 }
@@ -25,15 +30,18 @@ export async function checkStageFinish(trx: Knex.Transaction, stageId: string): 
   const jobId = String(stage.jobId);
   if (stage.kind === 'commission') {
     const missing = await commissioningGapsOf(trx, jobId);
-    if (missing.length) throw new StageNotReadyError('commissioning-incomplete', 'Commissioning is not complete', stage.name, missing);
+    if (missing.length)
+      throw new StageNotReadyError('commissioning-incomplete', 'Commissioning is not complete', stage.name, missing);
   }
   if (stage.kind === 'handover') {
     const missing = await certificateGapsOf(trx, jobId);
-    if (missing.length) throw new StageNotReadyError('certificate-missing', 'The electrical certificate is missing', stage.name, missing);
+    if (missing.length)
+      throw new StageNotReadyError('certificate-missing', 'The electrical certificate is missing', stage.name, missing);
     const signed = await trx('handovers').where('job_id', jobId).first('id');
     if (!signed) {
-      throw new StageNotReadyError('handover-unsigned', 'The householder has not signed the handover', stage.name,
-        ['The householder has not signed the handover: open Hand over on the phone, go through the checklist with them and ask them to sign.']);
+      throw new StageNotReadyError('handover-unsigned', 'The householder has not signed the handover', stage.name, [
+        'The householder has not signed the handover: open Hand over on the phone, go through the checklist with them and ask them to sign.',
+      ]);
     }
   }
 }

@@ -2,7 +2,12 @@ import type { Knex } from 'knex';
 import { DEFAULT_TEMPLATES } from '../../shared/templates/defaults.ts';
 import { templateProblems } from '../../shared/templates/plan.ts';
 import type { InstallTemplate, InstallationType } from '../../shared/templates/types.ts';
-import { DEFAULT_QUANTITY_SETTINGS, SETTING_SOURCES, settingsWith, type QuantitySettings } from '../../shared/quantities/settings.ts';
+import {
+  DEFAULT_QUANTITY_SETTINGS,
+  SETTING_SOURCES,
+  settingsWith,
+  type QuantitySettings,
+} from '../../shared/quantities/settings.ts';
 import type { PutTemplate } from '../../shared/schemas/templates.ts';
 import type { PutFirmSettings } from '../../shared/schemas/firm-settings.ts';
 import { INSTALLATION_TYPES } from '../../shared/schemas/jobs.ts';
@@ -13,15 +18,31 @@ import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
 
-export interface TemplateView extends InstallTemplate { version: number; isDefault: boolean; updatedAt: string | null }
+export interface TemplateView extends InstallTemplate {
+  version: number;
+  isDefault: boolean;
+  updatedAt: string | null;
+}
 
 function toView(row: StageTemplateRow | undefined, type: InstallationType): TemplateView {
   if (!row) return { ...structuredClone(DEFAULT_TEMPLATES[type]), version: 0, isDefault: true, updatedAt: null };
-  return { installationType: type, name: row.name, stages: row.stages, links: row.links, version: row.version, isDefault: false, updatedAt: row.updatedAt.toISOString() };
+  return {
+    installationType: type,
+    name: row.name,
+    stages: row.stages,
+    links: row.links,
+    version: row.version,
+    isDefault: false,
+    updatedAt: row.updatedAt.toISOString(),
+  };
 }
 
 export interface SettingsView {
-  quantities: QuantitySettings; overrides: Partial<QuantitySettings>; defaults: QuantitySettings; sources: typeof SETTING_SOURCES; version: number;
+  quantities: QuantitySettings;
+  overrides: Partial<QuantitySettings>;
+  defaults: QuantitySettings;
+  sources: typeof SETTING_SOURCES;
+  version: number;
   /** Whether stored photo originals keep where they were taken (EXIF GPS). */
   keepPhotoLocation: boolean;
   /** Whether partner firms booked on a job see the householder's name and phone (read-policy.ts). */
@@ -36,7 +57,12 @@ export class TemplatesService {
 
   async list(actor: Actor): Promise<TemplateView[]> {
     const rows = await scoped(StageTemplateRow, actor);
-    return INSTALLATION_TYPES.map((t) => toView(rows.find((r) => r.installationType === t), t));
+    return INSTALLATION_TYPES.map((t) =>
+      toView(
+        rows.find((r) => r.installationType === t),
+        t,
+      ),
+    );
   }
 
   async get(actor: Actor, type: InstallationType, trx?: Knex.Transaction): Promise<TemplateView> {
@@ -45,19 +71,45 @@ export class TemplatesService {
 
   /** Saves the firm's template; a change based on an old version is refused (409). */
   async put(actor: Actor, type: InstallationType, input: PutTemplate): Promise<TemplateView> {
-    const template: InstallTemplate = { installationType: type, name: input.name, stages: input.stages, links: input.links };
+    const template: InstallTemplate = {
+      installationType: type,
+      name: input.name,
+      stages: input.stages,
+      links: input.links,
+    };
     const problems = templateProblems(template);
-    if (problems.length) throw new BadRequestError('The template does not hold together.', problems.map((p) => ({ field: p.split(':')[0] ?? '(body)', message: p })));
+    if (problems.length)
+      throw new BadRequestError(
+        'The template does not hold together.',
+        problems.map((p) => ({ field: p.split(':')[0] ?? '(body)', message: p })),
+      );
     return this.knex.transaction(async (trx) => {
       const before = await scoped(StageTemplateRow, actor, trx).findOne({ installationType: type }).forUpdate();
       const current = before?.version ?? 0;
       if (current !== input.version) {
-        throw new ConflictError('Someone else changed this template since you loaded it.', { code: 'stale-version', current: toView(before, type) });
+        throw new ConflictError('Someone else changed this template since you loaded it.', {
+          code: 'stale-version',
+          current: toView(before, type),
+        });
       }
-      const values = { name: input.name, stages: input.stages, links: input.links, updatedBy: actor.userId, updatedAt: new Date() };
+      const values = {
+        name: input.name,
+        stages: input.stages,
+        links: input.links,
+        updatedBy: actor.userId,
+        updatedAt: new Date(),
+      };
       const after = before
-        ? await StageTemplateRow.query(trx).patchAndFetchById(before.id, { ...values, version: current + 1 } as Partial<StageTemplateRow>)
-        : await StageTemplateRow.query(trx).insertAndFetch({ ...values, firmId: actor.firmId, installationType: type, version: 1 } as Partial<StageTemplateRow>);
+        ? await StageTemplateRow.query(trx).patchAndFetchById(before.id, {
+            ...values,
+            version: current + 1,
+          } as Partial<StageTemplateRow>)
+        : await StageTemplateRow.query(trx).insertAndFetch({
+            ...values,
+            firmId: actor.firmId,
+            installationType: type,
+            version: 1,
+          } as Partial<StageTemplateRow>);
       await recordChange(trx, actor, 'stage_template', after.id, before ? 'update' : 'create', before ?? null, after);
       return toView(after, type);
     });
@@ -67,7 +119,11 @@ export class TemplatesService {
     const row = await scoped(FirmSettings, actor, trx).first();
     const overrides = (row?.quantities ?? {}) as Partial<QuantitySettings>;
     return {
-      quantities: settingsWith(overrides), overrides, defaults: DEFAULT_QUANTITY_SETTINGS, sources: SETTING_SOURCES, version: row?.version ?? 0,
+      quantities: settingsWith(overrides),
+      overrides,
+      defaults: DEFAULT_QUANTITY_SETTINGS,
+      sources: SETTING_SOURCES,
+      version: row?.version ?? 0,
       keepPhotoLocation: row?.keepPhotoLocation ?? false,
       shareCustomerContactWithPartners: row?.shareCustomerContactWithPartners ?? false,
       cureDatumC: row?.cureDatumC ?? DATUM_C,
@@ -83,24 +139,38 @@ export class TemplatesService {
       const before = await scoped(FirmSettings, actor, trx).first().forUpdate();
       const current = before?.version ?? 0;
       if (input.version !== undefined && current !== input.version) {
-        throw new ConflictError('Someone else changed these settings since you loaded them.', { code: 'stale-version', current: await this.settings(actor, trx) });
+        throw new ConflictError('Someone else changed these settings since you loaded them.', {
+          code: 'stale-version',
+          current: await this.settings(actor, trx),
+        });
       }
-      const was = { quantities: before?.quantities ?? {}, keepPhotoLocation: before?.keepPhotoLocation ?? false,
-        shareCustomerContactWithPartners: before?.shareCustomerContactWithPartners ?? false, cureDatumC: before?.cureDatumC ?? DATUM_C };
+      const was = {
+        quantities: before?.quantities ?? {},
+        keepPhotoLocation: before?.keepPhotoLocation ?? false,
+        shareCustomerContactWithPartners: before?.shareCustomerContactWithPartners ?? false,
+        cureDatumC: before?.cureDatumC ?? DATUM_C,
+      };
       const now = {
         quantities: input.quantities ?? was.quantities,
         keepPhotoLocation: input.keepPhotoLocation ?? was.keepPhotoLocation,
-        shareCustomerContactWithPartners: input.shareCustomerContactWithPartners ?? was.shareCustomerContactWithPartners,
+        shareCustomerContactWithPartners:
+          input.shareCustomerContactWithPartners ?? was.shareCustomerContactWithPartners,
         cureDatumC: input.cureDatumC ?? was.cureDatumC,
         version: input.quantities ? current + 1 : current,
       };
       if (before) {
-        await FirmSettings.query(trx).patch({ ...now, updatedAt: new Date() } as Partial<FirmSettings>).where('firm_id', actor.firmId);
+        await FirmSettings.query(trx)
+          .patch({ ...now, updatedAt: new Date() } as Partial<FirmSettings>)
+          .where('firm_id', actor.firmId);
       } else {
         await FirmSettings.query(trx).insert({ firmId: actor.firmId, ...now } as Partial<FirmSettings>);
       }
-      await recordChange(trx, actor, 'firm_settings', actor.firmId, before ? 'update' : 'create', before ? was : null,
-        { quantities: now.quantities, keepPhotoLocation: now.keepPhotoLocation, shareCustomerContactWithPartners: now.shareCustomerContactWithPartners, cureDatumC: now.cureDatumC });
+      await recordChange(trx, actor, 'firm_settings', actor.firmId, before ? 'update' : 'create', before ? was : null, {
+        quantities: now.quantities,
+        keepPhotoLocation: now.keepPhotoLocation,
+        shareCustomerContactWithPartners: now.shareCustomerContactWithPartners,
+        cureDatumC: now.cureDatumC,
+      });
       return this.settings(actor, trx);
     });
   }

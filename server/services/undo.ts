@@ -5,7 +5,14 @@ import { plural } from '../../shared/plural.ts';
 import { ConflictError, HttpError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import {
-  BookingWriter, StaleVersionError, partyOf, type BookingLimits, type BookingWork, type LockScope, type WriteOutcome, type WrittenBooking,
+  BookingWriter,
+  StaleVersionError,
+  partyOf,
+  type BookingLimits,
+  type BookingWork,
+  type LockScope,
+  type WriteOutcome,
+  type WrittenBooking,
 } from './booking-writes.ts';
 
 /** How many changes a session can take back, newest first (common practice, no source). */
@@ -24,13 +31,24 @@ export const UNDO_DEPTH = 20;
 export type UndoStep =
   | { op: 'unbook'; bookingId: string; version: number }
   | { op: 'book'; stageId: string; resourceId: string; startsAt: number; endsAt: number }
-  | { op: 'restore'; bookingId: string; version: number; resourceId: string; startsAt: number; endsAt: number; state: BookingState };
+  | {
+      op: 'restore';
+      bookingId: string;
+      version: number;
+      resourceId: string;
+      startsAt: number;
+      endsAt: number;
+      state: BookingState;
+    };
 
 /** What the board was doing, for the undo button's label ("Undo: move 'Excavate pit' on TW-2422"). */
 export type UndoVerb = 'book' | 'move' | 'change' | 'take off';
 
 /** The signed-in session a change was made in: its undo stack gets the change. */
-export interface UndoContext { sessionId: string; verb: UndoVerb }
+export interface UndoContext {
+  sessionId: string;
+  verb: UndoVerb;
+}
 
 /**
  * The steps that take back what one unit of work wrote, latest change first. A booking changed
@@ -51,14 +69,28 @@ export function inverseSteps(written: readonly WrittenBooking[]): UndoStep[] {
   for (const { before, after } of [...byId.values()].reverse()) {
     if (!before && after) steps.push({ op: 'unbook', bookingId: String(after.id), version: after.version });
     else if (before && !after) {
-      steps.push({ op: 'book', stageId: String(before.stageId), resourceId: String(before.resourceId), startsAt: before.startsAt.getTime(), endsAt: before.endsAt.getTime() });
+      steps.push({
+        op: 'book',
+        stageId: String(before.stageId),
+        resourceId: String(before.resourceId),
+        startsAt: before.startsAt.getTime(),
+        endsAt: before.endsAt.getTime(),
+      });
     } else if (before && after) {
-      const same = before.startsAt.getTime() === after.startsAt.getTime() && before.endsAt.getTime() === after.endsAt.getTime()
-        && String(before.resourceId) === String(after.resourceId) && before.state === after.state;
+      const same =
+        before.startsAt.getTime() === after.startsAt.getTime() &&
+        before.endsAt.getTime() === after.endsAt.getTime() &&
+        String(before.resourceId) === String(after.resourceId) &&
+        before.state === after.state;
       if (!same) {
         steps.push({
-          op: 'restore', bookingId: String(after.id), version: after.version, resourceId: String(before.resourceId),
-          startsAt: before.startsAt.getTime(), endsAt: before.endsAt.getTime(), state: before.state,
+          op: 'restore',
+          bookingId: String(after.id),
+          version: after.version,
+          resourceId: String(before.resourceId),
+          startsAt: before.startsAt.getTime(),
+          endsAt: before.endsAt.getTime(),
+          state: before.state,
         });
       }
     }
@@ -69,7 +101,10 @@ export function inverseSteps(written: readonly WrittenBooking[]): UndoStep[] {
 /** "move 'Excavate pit' on TW-2422 and 2 other stages": what the change was, in the scheduler's words. */
 async function labelOf(trx: Knex.Transaction, verb: UndoVerb, written: readonly WrittenBooking[]): Promise<string> {
   const stageIds = [...new Set(written.map((w) => String((w.after ?? w.before)!.stageId)))];
-  const first = await trx('stages as s').join('jobs as j', 'j.id', 's.job_id').where('s.id', stageIds[0]).first('s.name', 'j.reference');
+  const first = await trx('stages as s')
+    .join('jobs as j', 'j.id', 's.job_id')
+    .where('s.id', stageIds[0])
+    .first('s.name', 'j.reference');
   const what = first ? `'${first.name}' on ${first.reference}` : 'a stage';
   return stageIds.length > 1 ? `${verb} ${what} and ${plural(stageIds.length - 1, 'other stage')}` : `${verb} ${what}`;
 }
@@ -79,14 +114,27 @@ async function labelOf(trx: Knex.Transaction, verb: UndoVerb, written: readonly 
  * exists exactly when the change does). Only the newest {@link UNDO_DEPTH} are kept. A session
  * that no longer exists (signed out meanwhile) gets nothing, and the change still stands.
  */
-export async function recordUndo(trx: Knex.Transaction, actor: Actor, undo: UndoContext, written: readonly WrittenBooking[]): Promise<void> {
+export async function recordUndo(
+  trx: Knex.Transaction,
+  actor: Actor,
+  undo: UndoContext,
+  written: readonly WrittenBooking[],
+): Promise<void> {
   const steps = inverseSteps(written);
   if (steps.length === 0) return;
   const label = await labelOf(trx, undo.verb, written);
-  await trx.raw(`INSERT INTO booking_undo (session_id, user_id, firm_id, label, steps)
-    SELECT sid, ?, ?, ?, ?::jsonb FROM session WHERE sid = ?`, [actor.userId, actor.firmId, label, JSON.stringify(steps), undo.sessionId]);
-  await trx('booking_undo').where('session_id', undo.sessionId)
-    .whereNotIn('id', trx('booking_undo').select('id').where('session_id', undo.sessionId).orderBy('id', 'desc').limit(UNDO_DEPTH)).del();
+  await trx.raw(
+    `INSERT INTO booking_undo (session_id, user_id, firm_id, label, steps)
+    SELECT sid, ?, ?, ?, ?::jsonb FROM session WHERE sid = ?`,
+    [actor.userId, actor.firmId, label, JSON.stringify(steps), undo.sessionId],
+  );
+  await trx('booking_undo')
+    .where('session_id', undo.sessionId)
+    .whereNotIn(
+      'id',
+      trx('booking_undo').select('id').where('session_id', undo.sessionId).orderBy('id', 'desc').limit(UNDO_DEPTH),
+    )
+    .del();
 }
 
 /** The rows whose locks an undo takes, known before it starts. */
@@ -105,28 +153,47 @@ async function applyStep(w: BookingWork, step: UndoStep): Promise<void> {
       await w.apply({ action: 'unbook', bookingId: step.bookingId, version: step.version });
       return;
     case 'book':
-      await w.apply({ action: 'book', stageId: step.stageId, resourceId: step.resourceId, startsAt: step.startsAt, endsAt: step.endsAt });
+      await w.apply({
+        action: 'book',
+        stageId: step.stageId,
+        resourceId: step.resourceId,
+        startsAt: step.startsAt,
+        endsAt: step.endsAt,
+      });
       return;
     case 'restore': {
       let current = await w.booking(step.bookingId, step.version);
-      const moved = current.startsAt.getTime() !== step.startsAt || current.endsAt.getTime() !== step.endsAt || String(current.resourceId) !== step.resourceId;
+      const moved =
+        current.startsAt.getTime() !== step.startsAt ||
+        current.endsAt.getTime() !== step.endsAt ||
+        String(current.resourceId) !== step.resourceId;
       if (moved) {
         current = (await w.apply({
-          action: 'move', bookingId: step.bookingId, startsAt: step.startsAt, endsAt: step.endsAt,
+          action: 'move',
+          bookingId: step.bookingId,
+          startsAt: step.startsAt,
+          endsAt: step.endsAt,
           ...(String(current.resourceId) !== step.resourceId ? { resourceId: step.resourceId } : {}),
         }))!;
       }
       // Back to pencilled or confirmed where the office may set it; a partner's answer is never faked.
       if (current.state !== step.state) {
         const side = await w.sideOfBooking(current);
-        const action = step.state === 'confirmed' ? 'confirm' : step.state === 'pencilled' && side === 'own' ? 'unconfirm' : null;
-        if (action && nextState(action, current.state, { party: 'office', side }).ok) await w.apply({ action, bookingId: step.bookingId });
+        const action =
+          step.state === 'confirmed' ? 'confirm' : step.state === 'pencilled' && side === 'own' ? 'unconfirm' : null;
+        if (action && nextState(action, current.state, { party: 'office', side }).ok)
+          await w.apply({ action, bookingId: step.bookingId });
       }
     }
   }
 }
 
-interface UndoRow { id: string; label: string; steps: UndoStep[]; createdAt: Date }
+interface UndoRow {
+  id: string;
+  label: string;
+  steps: UndoStep[];
+  createdAt: Date;
+}
 
 /**
  * The board's undo stack for a signed-in session, kept in the database so it survives a reload.
@@ -136,7 +203,11 @@ interface UndoRow { id: string; label: string; steps: UndoStep[]; createdAt: Dat
 export class UndoService {
   private readonly writer: BookingWriter;
 
-  constructor(private readonly knex: Knex, now: () => number = Date.now, limits?: BookingLimits) {
+  constructor(
+    private readonly knex: Knex,
+    now: () => number = Date.now,
+    limits?: BookingLimits,
+  ) {
     this.writer = new BookingWriter(knex, now, limits);
   }
 
@@ -146,7 +217,10 @@ export class UndoService {
 
   /** The session's changes that can be taken back, newest first. */
   async list(actor: Actor, sessionId: string): Promise<UndoEntryView[]> {
-    const rows = await this.stack(actor, sessionId).orderBy('id', 'desc').limit(UNDO_DEPTH).select('id', 'label', 'created_at') as UndoRow[];
+    const rows = (await this.stack(actor, sessionId)
+      .orderBy('id', 'desc')
+      .limit(UNDO_DEPTH)
+      .select('id', 'label', 'created_at')) as UndoRow[];
     return rows.map((r) => ({ id: String(r.id), label: r.label, at: r.createdAt.toISOString() }));
   }
 
@@ -156,8 +230,11 @@ export class UndoService {
    * refuses (422) keeps the step, so it can be tried again once the way is clear.
    */
   async undo(actor: Actor, sessionId: string): Promise<{ undone: UndoEntryView; outcome: WriteOutcome<unknown> }> {
-    const entry = await this.stack(actor, sessionId).orderBy('id', 'desc').first('id', 'label', 'steps', 'created_at') as UndoRow | undefined;
-    if (!entry) throw new HttpError(404, 'not-found', 'Not found', 'There is nothing to undo.', { code: 'nothing-to-undo' });
+    const entry = (await this.stack(actor, sessionId)
+      .orderBy('id', 'desc')
+      .first('id', 'label', 'steps', 'created_at')) as UndoRow | undefined;
+    if (!entry)
+      throw new HttpError(404, 'not-found', 'Not found', 'There is nothing to undo.', { code: 'nothing-to-undo' });
     const undone = { id: String(entry.id), label: entry.label, at: entry.createdAt.toISOString() };
     try {
       const outcome = await this.writer.run({ actor, party: partyOf(actor) }, lockScopeOf(entry.steps), async (w) => {
@@ -170,7 +247,10 @@ export class UndoService {
     } catch (error) {
       if (error instanceof StaleVersionError || error instanceof NotFoundError) {
         await this.knex('booking_undo').where('id', entry.id).del();
-        throw new ConflictError(`"${capitalised(entry.label)}" can't be undone any more: those bookings were changed or taken off since.`, { code: 'undo-stale' });
+        throw new ConflictError(
+          `"${capitalised(entry.label)}" can't be undone any more: those bookings were changed or taken off since.`,
+          { code: 'undo-stale' },
+        );
       }
       throw error;
     }

@@ -18,7 +18,10 @@ export class WeatherUnavailableError extends Error {
 }
 
 /** One day's mean air temperature at 2 m, °C. */
-export interface DailyMean { date: string; meanC: number }
+export interface DailyMean {
+  date: string;
+  meanC: number;
+}
 
 const ForecastAnswer = z.object({
   daily: z.object({
@@ -35,19 +38,37 @@ const ForecastAnswer = z.object({
  * @example
  * await fetchDailyMeans('https://api.open-meteo.com', 53.9, -1.8, 'Europe/London') // [{ date: '2026-06-01', meanC: 12.4 }, …]
  */
-export async function fetchDailyMeans(baseUrl: string, latitude: number, longitude: number, timeZone: string, fetchFn: typeof fetch = fetch): Promise<DailyMean[]> {
+export async function fetchDailyMeans(
+  baseUrl: string,
+  latitude: number,
+  longitude: number,
+  timeZone: string,
+  fetchFn: typeof fetch = fetch,
+): Promise<DailyMean[]> {
   const url = new URL('/v1/forecast', baseUrl);
   url.search = new URLSearchParams({
-    latitude: String(latitude), longitude: String(longitude), daily: 'temperature_2m_mean', timezone: timeZone, forecast_days: String(FORECAST_DAYS),
+    latitude: String(latitude),
+    longitude: String(longitude),
+    daily: 'temperature_2m_mean',
+    timezone: timeZone,
+    forecast_days: String(FORECAST_DAYS),
   }).toString();
   let res: Response;
   try {
     res = await fetchFn(url, { signal: AbortSignal.timeout(10_000), headers: { accept: 'application/json' } });
   } catch (error) {
-    throw new WeatherUnavailableError(`The weather service could not be reached (${error instanceof Error ? error.message : String(error)})`);
+    throw new WeatherUnavailableError(
+      `The weather service could not be reached (${error instanceof Error ? error.message : String(error)})`,
+    );
   }
   if (!res.ok) {
-    const reason = await res.json().then((b: unknown) => { const r = (b as { reason?: unknown } | null)?.reason; return typeof r === 'string' ? `: ${r}` : ''; }, () => '');
+    const reason = await res.json().then(
+      (b: unknown) => {
+        const r = (b as { reason?: unknown } | null)?.reason;
+        return typeof r === 'string' ? `: ${r}` : '';
+      },
+      () => '',
+    );
     throw new WeatherUnavailableError(`The weather service answered ${res.status}${reason}`);
   }
   const parsed = ForecastAnswer.safeParse(await res.json().catch(() => null));
@@ -62,10 +83,16 @@ export async function fetchDailyMeans(baseUrl: string, latitude: number, longitu
 const officeOf = (firmId: string): Actor => ({ userId: '0', firmId, firmKind: 'installer', role: 'scheduler' });
 
 async function cureViolationsOf(knex: Knex, firmId: string, jobId: string, now: number): Promise<Violation[]> {
-  const data = await loadBoard(knex, officeOf(firmId), { from: now - 30 * DAY_MS, to: now + 90 * DAY_MS, jobIds: [jobId], now });
+  const data = await loadBoard(knex, officeOf(firmId), {
+    from: now - 30 * DAY_MS,
+    to: now + 90 * DAY_MS,
+    jobIds: [jobId],
+    now,
+  });
   const stagesOfJob = new Set(data.stages.filter((s) => s.jobId === jobId).map((s) => s.id));
-  return analyseBoard(toEngineBoard(data), { now }).violations
-    .filter((v) => v.kind === 'cure' && stagesOfJob.has(String(v.details?.predecessorId)));
+  return analyseBoard(toEngineBoard(data), { now }).violations.filter(
+    (v) => v.kind === 'cure' && stagesOfJob.has(String(v.details?.predecessorId)),
+  );
 }
 
 export interface RefreshResult {
@@ -84,21 +111,42 @@ export interface RefreshResult {
  * is told to the office: an audit row (`cure_forecast`) and a board-stream event on that
  * stage's bookings, so open boards reload and show the cure warning.
  */
-export async function refreshForecasts(knex: Knex, options: { baseUrl: string; now: number; fetchFn?: typeof fetch }): Promise<RefreshResult> {
+export async function refreshForecasts(
+  knex: Knex,
+  options: { baseUrl: string; now: number; fetchFn?: typeof fetch },
+): Promise<RefreshResult> {
   const { now } = options;
-  const sites = await knex('stages as st')
-    .join('bookings as b', 'b.stage_id', 'st.id').join('jobs as j', 'j.id', 'st.job_id')
-    .join('firms as f', 'f.id', 'j.firm_id').join('surveys as s', 's.job_id', 'j.id')
-    .whereNotNull('st.cure').whereNot('b.state', 'declined').whereNotNull('s.site_latitude')
-    .where('b.ends_at', '>=', new Date(now - REFRESH_PAST_DAYS * DAY_MS)).where('b.starts_at', '<=', new Date(now + FORECAST_DAYS * DAY_MS))
-    .distinct('j.id as jobId', 'j.firm_id as firmId', 'f.time_zone as timeZone', 's.site_latitude as latitude', 's.site_longitude as longitude')
-    .orderBy('j.id') as { jobId: string; firmId: string; timeZone: string; latitude: number; longitude: number }[];
+  const sites = (await knex('stages as st')
+    .join('bookings as b', 'b.stage_id', 'st.id')
+    .join('jobs as j', 'j.id', 'st.job_id')
+    .join('firms as f', 'f.id', 'j.firm_id')
+    .join('surveys as s', 's.job_id', 'j.id')
+    .whereNotNull('st.cure')
+    .whereNot('b.state', 'declined')
+    .whereNotNull('s.site_latitude')
+    .where('b.ends_at', '>=', new Date(now - REFRESH_PAST_DAYS * DAY_MS))
+    .where('b.starts_at', '<=', new Date(now + FORECAST_DAYS * DAY_MS))
+    .distinct(
+      'j.id as jobId',
+      'j.firm_id as firmId',
+      'f.time_zone as timeZone',
+      's.site_latitude as latitude',
+      's.site_longitude as longitude',
+    )
+    .orderBy('j.id')) as { jobId: string; firmId: string; timeZone: string; latitude: number; longitude: number }[];
   const result: RefreshResult = { refreshed: [], failed: [], lateLifts: [] };
   for (const site of sites) {
-    const jobId = String(site.jobId), firmId = String(site.firmId);
+    const jobId = String(site.jobId),
+      firmId = String(site.firmId);
     let days: DailyMean[];
     try {
-      days = await fetchDailyMeans(options.baseUrl, Number(site.latitude), Number(site.longitude), site.timeZone, options.fetchFn);
+      days = await fetchDailyMeans(
+        options.baseUrl,
+        Number(site.latitude),
+        Number(site.longitude),
+        site.timeZone,
+        options.fetchFn,
+      );
     } catch (error) {
       result.failed.push({ jobId, reason: error instanceof Error ? error.message : String(error) });
       continue;
@@ -106,20 +154,41 @@ export async function refreshForecasts(knex: Knex, options: { baseUrl: string; n
     const before = await cureViolationsOf(knex, firmId, jobId, now);
     await knex.transaction(async (trx) => {
       if (days.length) {
-        await trx('site_forecasts').insert(days.map((d) => ({ job_id: jobId, date: d.date, mean_c: d.meanC, fetched_at: new Date(now) })))
-          .onConflict(['job_id', 'date']).merge(['mean_c', 'fetched_at']);
+        await trx('site_forecasts')
+          .insert(days.map((d) => ({ job_id: jobId, date: d.date, mean_c: d.meanC, fetched_at: new Date(now) })))
+          .onConflict(['job_id', 'date'])
+          .merge(['mean_c', 'fetched_at']);
       }
     });
     result.refreshed.push(jobId);
     const was = new Map(before.map((v) => [String(v.details?.dependencyId), v]));
-    const late = (await cureViolationsOf(knex, firmId, jobId, now)).filter((v) => !was.has(String(v.details?.dependencyId)));
+    const late = (await cureViolationsOf(knex, firmId, jobId, now)).filter(
+      (v) => !was.has(String(v.details?.dependencyId)),
+    );
     if (late.length === 0) continue;
     await knex.transaction(async (trx) => {
       for (const v of late) {
         const stageId = String(v.details?.successorId);
-        const bookings = await trx('bookings').where('stage_id', stageId).whereNot('state', 'declined').select('id', 'resource_id') as { id: string; resourceId: string }[];
-        await recordChange(trx, null, 'cure_forecast', stageId, 'update', null,
-          { jobId, stageId, releaseAt: new Date(Number(v.details?.releaseAt)).toISOString(), message: v.message, summary: v.details?.summary ?? null }, firmId);
+        const bookings = (await trx('bookings')
+          .where('stage_id', stageId)
+          .whereNot('state', 'declined')
+          .select('id', 'resource_id')) as { id: string; resourceId: string }[];
+        await recordChange(
+          trx,
+          null,
+          'cure_forecast',
+          stageId,
+          'update',
+          null,
+          {
+            jobId,
+            stageId,
+            releaseAt: new Date(Number(v.details?.releaseAt)).toISOString(),
+            message: v.message,
+            summary: v.details?.summary ?? null,
+          },
+          firmId,
+        );
         for (const b of bookings) await notifyBookingChange(trx, String(b.id), stageId, String(b.resourceId));
         result.lateLifts.push({ jobId, stageId, bookingIds: bookings.map((b) => String(b.id)), message: v.message });
       }

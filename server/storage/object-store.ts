@@ -7,7 +7,11 @@ import type { Config } from '../config.ts';
 // fault of a running installation. The SDK's own switch keeps the notice out of server and test logs.
 process.env.AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED ??= 'true';
 
-export interface PresignOptions { expiresInSeconds: number; downloadName?: string; contentType?: string }
+export interface PresignOptions {
+  expiresInSeconds: number;
+  downloadName?: string;
+  contentType?: string;
+}
 
 /** Where job files' bytes live. The database holds only their keys. */
 export interface ObjectStore {
@@ -47,7 +51,15 @@ export class S3ObjectStore implements ObjectStore {
   }
 
   async put(key: string, body: Buffer, contentType: string): Promise<void> {
-    await this.client.send(new PutObjectCommand({ Bucket: this.bucket, Key: key, Body: body, ContentType: contentType, ContentLength: body.length }));
+    await this.client.send(
+      new PutObjectCommand({
+        Bucket: this.bucket,
+        Key: key,
+        Body: body,
+        ContentType: contentType,
+        ContentLength: body.length,
+      }),
+    );
   }
 
   async delete(key: string): Promise<void> {
@@ -61,11 +73,16 @@ export class S3ObjectStore implements ObjectStore {
   }
 
   async presignGet(key: string, options: PresignOptions): Promise<string> {
-    return getSignedUrl(this.client, new GetObjectCommand({
-      Bucket: this.bucket, Key: key,
-      ...(options.downloadName ? { ResponseContentDisposition: contentDisposition(options.downloadName, true) } : {}),
-      ...(options.contentType ? { ResponseContentType: options.contentType } : {}),
-    }), { expiresIn: options.expiresInSeconds });
+    return getSignedUrl(
+      this.client,
+      new GetObjectCommand({
+        Bucket: this.bucket,
+        Key: key,
+        ...(options.downloadName ? { ResponseContentDisposition: contentDisposition(options.downloadName, true) } : {}),
+        ...(options.contentType ? { ResponseContentType: options.contentType } : {}),
+      }),
+      { expiresIn: options.expiresInSeconds },
+    );
   }
 
   close(): void {

@@ -83,8 +83,14 @@ function cleanJpeg(buf: Buffer): Buffer | null {
     const marker = buf[pos];
     if (marker === undefined) return null;
     pos++;
-    if (marker === 0xd9) { sawEnd = true; break; }
-    if ((marker >= 0xd0 && marker <= 0xd7) || marker === 0x01) { kept.push(buf.subarray(start, pos)); continue; }
+    if (marker === 0xd9) {
+      sawEnd = true;
+      break;
+    }
+    if ((marker >= 0xd0 && marker <= 0xd7) || marker === 0x01) {
+      kept.push(buf.subarray(start, pos));
+      continue;
+    }
     if (pos + 2 > buf.length) return null;
     const end = pos + buf.readUInt16BE(pos);
     if (end > buf.length || end < pos + 2) return null;
@@ -106,7 +112,8 @@ function cleanJpeg(buf: Buffer): Buffer | null {
     }
     const isApp = marker >= 0xe0 && marker <= 0xef;
     if (marker === 0xfe || (isApp && !keepJpegApp(marker, payload))) {
-      if (marker === 0xe1 && payload.subarray(0, 6).equals(EXIF_HEADER)) orientation ??= tiffOrientation(payload.subarray(6));
+      if (marker === 0xe1 && payload.subarray(0, 6).equals(EXIF_HEADER))
+        orientation ??= tiffOrientation(payload.subarray(6));
       removed = true;
     } else {
       kept.push(buf.subarray(start, end));
@@ -166,13 +173,17 @@ function cleanPng(buf: Buffer): Buffer | null {
       kept.push(buf.subarray(pos, end));
     }
     pos = end;
-    if (type === 'IEND') { sawEnd = true; break; }
+    if (type === 'IEND') {
+      sawEnd = true;
+      break;
+    }
   }
   if (!sawEnd) return null;
   if (pos < buf.length) removed = true;
   if (!removed) return buf;
   // eXIf goes before the image data (PNG third edition, 4.4.3).
-  if (orientation !== null) kept.splice(exifAt < 0 ? kept.length - 1 : exifAt, 0, pngChunk('eXIf', orientationTiff(orientation)));
+  if (orientation !== null)
+    kept.splice(exifAt < 0 ? kept.length - 1 : exifAt, 0, pngChunk('eXIf', orientationTiff(orientation)));
   return Buffer.concat([PNG_SIGNATURE, ...kept]);
 }
 
@@ -189,7 +200,8 @@ function riffChunk(fourcc: string, data: Buffer): Buffer {
 }
 
 function cleanWebp(buf: Buffer): Buffer | null {
-  if (buf.length < 12 || buf.toString('latin1', 0, 4) !== 'RIFF' || buf.toString('latin1', 8, 12) !== 'WEBP') return null;
+  if (buf.length < 12 || buf.toString('latin1', 0, 4) !== 'RIFF' || buf.toString('latin1', 8, 12) !== 'WEBP')
+    return null;
   const riffEnd = Math.min(buf.length, 8 + buf.readUInt32LE(4));
   const kept: Buffer[] = [];
   let orientation: number | null = null;
@@ -224,7 +236,12 @@ function cleanWebp(buf: Buffer): Buffer | null {
 
 // ---------------------------------------------------------------- HEIC / HEIF
 
-interface Box { type: string; start: number; body: number; end: number }
+interface Box {
+  type: string;
+  start: number;
+  body: number;
+  end: number;
+}
 
 function boxes(buf: Buffer, from: number, to: number): Box[] | null {
   const out: Box[] = [];
@@ -255,7 +272,10 @@ function readSized(buf: Buffer, at: number, bytes: number): number {
   throw new RangeError(`unsupported field size ${bytes}`);
 }
 
-interface Extent { offset: number; length: number }
+interface Extent {
+  offset: number;
+  length: number;
+}
 
 /** Item id → type (and MIME type for 'mime' items), from iinf. */
 function itemTypes(buf: Buffer, iinf: Box): Map<number, string> {
@@ -274,7 +294,8 @@ function itemTypes(buf: Buffer, iinf: Box): Map<number, string> {
     if (type === 'mime') {
       const nameEnd = buf.indexOf(0, p);
       const typeEnd = nameEnd < 0 ? -1 : buf.indexOf(0, nameEnd + 1);
-      const contentType = nameEnd < 0 ? '' : buf.toString('latin1', nameEnd + 1, typeEnd < 0 || typeEnd > infe.end ? infe.end : typeEnd);
+      const contentType =
+        nameEnd < 0 ? '' : buf.toString('latin1', nameEnd + 1, typeEnd < 0 || typeEnd > infe.end ? infe.end : typeEnd);
       types.set(id, `mime:${contentType}`);
     } else {
       types.set(id, type);
@@ -300,7 +321,10 @@ function itemExtents(buf: Buffer, iloc: Box, idat: Box | null): Map<number, Exte
     const id = version < 2 ? buf.readUInt16BE(p) : buf.readUInt32BE(p);
     p += version < 2 ? 2 : 4;
     let method = 0;
-    if (version >= 1) { method = buf.readUInt16BE(p) & 0xf; p += 2; }
+    if (version >= 1) {
+      method = buf.readUInt16BE(p) & 0xf;
+      p += 2;
+    }
     p += 2; // data reference index
     const base = readSized(buf, p, baseOffsetSize);
     p += baseOffsetSize;
@@ -315,15 +339,21 @@ function itemExtents(buf: Buffer, iloc: Box, idat: Box | null): Map<number, Exte
       p += lengthSize;
       extents.push({ offset, length });
     }
-    if (method === 2) { out.set(id, []); continue; } // built from other items: holds no bytes of its own
+    if (method === 2) {
+      out.set(id, []);
+      continue;
+    } // built from other items: holds no bytes of its own
     if (method === 1 && idat === null) return null;
     const origin = method === 1 ? idat!.body : 0;
     // A length of 0 means "to the end" of the file or of idat (ISO/IEC 14496-12, 8.11.3).
     const limit = method === 1 ? idat!.end : buf.length;
-    out.set(id, extents.map((x) => {
-      const offset = origin + base + x.offset;
-      return { offset, length: x.length === 0 ? limit - offset : x.length };
-    }));
+    out.set(
+      id,
+      extents.map((x) => {
+        const offset = origin + base + x.offset;
+        return { offset, length: x.length === 0 ? limit - offset : x.length };
+      }),
+    );
   }
   if (p > iloc.end) return null;
   return out;
@@ -366,7 +396,10 @@ function cleanHeif(original: Buffer): Buffer | null {
       }
       // Same length, same place: every other offset in the file stays right.
       let at = 0;
-      for (const x of parts) { blank.copy(buf, x.offset, at, at + x.length); at += x.length; }
+      for (const x of parts) {
+        blank.copy(buf, x.offset, at, at + x.length);
+        at += x.length;
+      }
       removed = true;
     }
     return removed ? buf : original;
@@ -383,11 +416,16 @@ function cleanHeif(original: Buffer): Buffer | null {
  */
 export function stripPhotoMetadata(buffer: Buffer, contentType: FileContentType): Buffer | null {
   switch (contentType) {
-    case 'image/jpeg': return cleanJpeg(buffer);
-    case 'image/png': return cleanPng(buffer);
-    case 'image/webp': return cleanWebp(buffer);
+    case 'image/jpeg':
+      return cleanJpeg(buffer);
+    case 'image/png':
+      return cleanPng(buffer);
+    case 'image/webp':
+      return cleanWebp(buffer);
     case 'image/heic':
-    case 'image/heif': return cleanHeif(buffer);
-    default: return buffer;
+    case 'image/heif':
+      return cleanHeif(buffer);
+    default:
+      return buffer;
   }
 }

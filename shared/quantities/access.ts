@@ -44,24 +44,33 @@ export function accessCheck(inputs: AccessInputs): Computation<AccessInputs, Acc
   const sw = i.unitHeightMm + i.widthAllowanceMm;
   const sh = i.unitWidthMm + i.dollyHeightMm;
   const tooHeavy = i.unitDryWeightKg > i.maxDollyDryWeightKg;
-  const onSide = { widthNeededMm: sw, heightNeededMm: sh, fits: sw <= i.routeWidthMm && heightOk(sh) && !tooHeavy, tooHeavy };
+  const onSide = {
+    widthNeededMm: sw,
+    heightNeededMm: sh,
+    fits: sw <= i.routeWidthMm && heightOk(sh) && !tooHeavy,
+    tooHeavy,
+  };
   const way: AccessWay = upright.fits ? 'upright' : onSide.fits ? 'on_side' : 'crane';
   const h = i.routeHeightMm === null ? 'no height limit' : `${i.routeHeightMm} mm high`;
-  const reason = way === 'upright'
-    ? `Upright it needs ${uw} × ${uh} mm; the route is ${i.routeWidthMm} mm wide, ${h}.`
-    : way === 'on_side'
-      ? `Upright needs ${uw} mm of width; on its side on a dolly it needs ${sw} mm wide × ${sh} mm high, and the route is ${i.routeWidthMm} mm wide, ${h}.`
-      : tooHeavy && sw <= i.routeWidthMm && heightOk(sh)
-        ? `At ${i.unitDryWeightKg} kg dry it is over the ${i.maxDollyDryWeightKg} kg limit for a dolly; upright it needs ${uw} mm of width.`
-        : `Upright needs ${uw} × ${uh} mm and on its side ${sw} × ${sh} mm; the route is ${i.routeWidthMm} mm wide, ${h}.`;
+  const reason =
+    way === 'upright'
+      ? `Upright it needs ${uw} × ${uh} mm; the route is ${i.routeWidthMm} mm wide, ${h}.`
+      : way === 'on_side'
+        ? `Upright needs ${uw} mm of width; on its side on a dolly it needs ${sw} mm wide × ${sh} mm high, and the route is ${i.routeWidthMm} mm wide, ${h}.`
+        : tooHeavy && sw <= i.routeWidthMm && heightOk(sh)
+          ? `At ${i.unitDryWeightKg} kg dry it is over the ${i.maxDollyDryWeightKg} kg limit for a dolly; upright it needs ${uw} mm of width.`
+          : `Upright needs ${uw} × ${uh} mm and on its side ${sw} × ${sh} mm; the route is ${i.routeWidthMm} mm wide, ${h}.`;
   return {
     name: 'Access check',
     inputs: { ...inputs },
-    formula: `upright: ${i.unitWidthMm} + ${i.widthAllowanceMm} = ${uw} mm wide, ${i.unitHeightMm} + ${i.uprightRaiseMm} = ${uh} mm high; `
-      + `on its side: ${i.unitHeightMm} + ${i.widthAllowanceMm} = ${sw} mm wide, ${i.unitWidthMm} + ${i.dollyHeightMm} = ${sh} mm high; route ${i.routeWidthMm} mm wide, ${h}`,
+    formula:
+      `upright: ${i.unitWidthMm} + ${i.widthAllowanceMm} = ${uw} mm wide, ${i.unitHeightMm} + ${i.uprightRaiseMm} = ${uh} mm high; ` +
+      `on its side: ${i.unitHeightMm} + ${i.widthAllowanceMm} = ${sw} mm wide, ${i.unitWidthMm} + ${i.dollyHeightMm} = ${sh} mm high; route ${i.routeWidthMm} mm wide, ${h}`,
     result: { way, upright, onSide, reason },
     unit: '',
-    notes: ['Width allowance, dolly height, raise and the dolly weight limit: common practice, no source. Steps and slopes need a team lift plan.'],
+    notes: [
+      'Width allowance, dolly height, raise and the dolly weight limit: common practice, no source. Steps and slopes need a team lift plan.',
+    ],
   };
 }
 
@@ -75,7 +84,11 @@ export interface MoveInInputs {
   minutes: number;
   minutesPerStep: number;
 }
-export interface MoveIn { people: number; minutes: number; boards: boolean }
+export interface MoveIn {
+  people: number;
+  minutes: number;
+  boards: boolean;
+}
 
 /**
  * Moving the unit from the road to its position along the surveyed route. Steps slow it (minutes per step)
@@ -114,7 +127,11 @@ export function moveIn(inputs: MoveInInputs): Computation<MoveInInputs, MoveIn> 
     unit: 'min',
     notes: [
       'People, minutes and the extra hands on steps: common practice, no source.',
-      ...(onSteps ? ['Steps need boards or a ramp laid over them and a plan for each lift of the unit: a team lift, never one person.'] : []),
+      ...(onSteps
+        ? [
+            'Steps need boards or a ramp laid over them and a plan for each lift of the unit: a team lift, never one person.',
+          ]
+        : []),
     ],
   };
 }

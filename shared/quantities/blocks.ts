@@ -29,7 +29,10 @@ export interface WallBlocks extends WallBlocksLaid {
 }
 
 /** A wall's thickness for a way of laying: on edge the block's thickness, flat its height. */
-export function wallThicknessFor(laying: BlockLaying, block: { blockHeightMm: number; blockThicknessMm: number }): number {
+export function wallThicknessFor(
+  laying: BlockLaying,
+  block: { blockHeightMm: number; blockThicknessMm: number },
+): number {
   return laying === 'flat' ? block.blockHeightMm : block.blockThicknessMm;
 }
 
@@ -62,9 +65,9 @@ export function retainingWallBlocks(inputs: WallBlocksInputs): Computation<WallB
   const flat = laid(i, 'flat');
   const chosen = i.laying === 'flat' ? flat : onEdge;
   const line = (name: string, l: WallBlocksLaid, faceMm: number) =>
-    `${name}: (2 × (${i.insideLengthMm} + ${i.insideWidthMm}) + 4 × ${l.wallThicknessMm}) mm × ${i.wallHeightMm} mm = ${l.wallAreaM2} m²; `
-    + `1 ÷ (${(i.blockLengthMm + i.jointMm) / 1000} × ${(faceMm + i.jointMm) / 1000}) = ${l.blocksPerM2Exact} → ${l.blocksPerM2} blocks/m²; `
-    + `⌈${l.wallAreaM2} × ${l.blocksPerM2}⌉ = ${l.blocks} blocks`;
+    `${name}: (2 × (${i.insideLengthMm} + ${i.insideWidthMm}) + 4 × ${l.wallThicknessMm}) mm × ${i.wallHeightMm} mm = ${l.wallAreaM2} m²; ` +
+    `1 ÷ (${(i.blockLengthMm + i.jointMm) / 1000} × ${(faceMm + i.jointMm) / 1000}) = ${l.blocksPerM2Exact} → ${l.blocksPerM2} blocks/m²; ` +
+    `⌈${l.wallAreaM2} × ${l.blocksPerM2}⌉ = ${l.blocks} blocks`;
   return {
     name: 'Retaining-wall blocks',
     inputs: { ...inputs },
@@ -73,7 +76,7 @@ export function retainingWallBlocks(inputs: WallBlocksInputs): Computation<WallB
     unit: 'blocks',
     notes: [
       `${i.blockLengthMm} × ${i.blockHeightMm} × ${i.blockThicknessMm} mm dense block with ${i.jointMm} mm joints, rounded up to whole blocks a m² for cuts: common practice, no source.`,
-      'Laid flat the wall is the block\'s height thick and takes about twice the blocks; retaining walls are often laid flat (common practice, no source). Retaining-wall design is for a competent person.',
+      "Laid flat the wall is the block's height thick and takes about twice the blocks; retaining walls are often laid flat (common practice, no source). Retaining-wall design is for a competent person.",
       'Mortar is not counted here.',
     ],
   };

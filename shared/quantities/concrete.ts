@@ -1,6 +1,11 @@
 import { round, requireNumber, roundUpToStep, type Computation } from './types.ts';
 
-export interface BaseConcreteInputs { areaM2: number; thicknessMm: number; wasteFraction: number; orderStepM3: number }
+export interface BaseConcreteInputs {
+  areaM2: number;
+  thicknessMm: number;
+  wasteFraction: number;
+  orderStepM3: number;
+}
 export interface BaseConcrete {
   netVolumeM3: number;
   /** The net volume plus the waste allowance: what is needed, before rounding to the supplier's step. */
@@ -35,7 +40,7 @@ export function baseConcrete(inputs: BaseConcreteInputs): Computation<BaseConcre
     unit: 'm³',
     notes: [
       'Base thickness default 150 mm and waste 5 %: common practice, no source. The base design for a large unit is for a competent person to confirm.',
-      'The order step is the supplier\'s (often 0.25 or 0.5 m³); many have a minimum load too: ask them.',
+      "The order step is the supplier's (often 0.25 or 0.5 m³); many have a minimum load too: ask them.",
     ],
   };
 }

@@ -4,12 +4,28 @@ import { baseConcrete, type BaseConcrete, type BaseConcreteInputs } from './conc
 import { craneDecision, type CraneDecision, type CraneInputs } from './crane.ts';
 import { baseLoading, type BaseLoading, type BaseLoadingInputs } from './loading.ts';
 import {
-  digSize, excavationTime, excavationVolume, spoil,
-  type DigSize, type DigSizeInputs, type Excavation, type ExcavationInputs, type ExcavationTime, type ExcavationTimeInputs, type Spoil, type SpoilInputs,
+  digSize,
+  excavationTime,
+  excavationVolume,
+  spoil,
+  type DigSize,
+  type DigSizeInputs,
+  type Excavation,
+  type ExcavationInputs,
+  type ExcavationTime,
+  type ExcavationTimeInputs,
+  type Spoil,
+  type SpoilInputs,
 } from './pit.ts';
 import { GROUND_TYPES, type ExcavatorSize, type GroundType, type QuantitySettings } from './settings.ts';
 import { subBase, type SubBase, type SubBaseInputs } from './sub-base.ts';
-import { supplyCheck, type EarthingArrangement, type ExistingLoad, type SupplyCheck, type SupplyInputs } from './supply.ts';
+import {
+  supplyCheck,
+  type EarthingArrangement,
+  type ExistingLoad,
+  type SupplyCheck,
+  type SupplyInputs,
+} from './supply.ts';
 import type { Computation } from './types.ts';
 import { fillTime, heatUpTime, type FillTime, type FillTimeInputs, type HeatUp, type HeatUpInputs } from './water.ts';
 
@@ -75,17 +91,21 @@ export interface JobQuantities {
 
 /** The survey's ground type, or unknown for none or one this version does not know. */
 export function groundTypeOf(value: string | null | undefined): GroundType {
-  return (GROUND_TYPES as readonly string[]).includes(value ?? '') ? value as GroundType : 'unknown';
+  return (GROUND_TYPES as readonly string[]).includes(value ?? '') ? (value as GroundType) : 'unknown';
 }
 
 /** The survey's large loads already on the supply, named for the electrician. */
 export function existingLoadsOf(survey: SurveyFigures): ExistingLoad[] {
   const other = survey.otherLargeLoadNotes?.trim();
   const loads: [string, number | null | undefined][] = [
-    ['EV charger', survey.evChargerAmps], ['electric shower', survey.electricShowerAmps], ['heat pump', survey.heatPumpAmps],
+    ['EV charger', survey.evChargerAmps],
+    ['electric shower', survey.electricShowerAmps],
+    ['heat pump', survey.heatPumpAmps],
     [other ? `other (${other})` : 'other large load', survey.otherLargeLoadAmps],
   ];
-  return loads.filter((l): l is [string, number] => typeof l[1] === 'number' && l[1] > 0).map(([name, amps]) => ({ name, amps }));
+  return loads
+    .filter((l): l is [string, number] => typeof l[1] === 'number' && l[1] > 0)
+    .map(([name, amps]) => ({ name, amps }));
 }
 
 const positive = (n: number | null | undefined): n is number => typeof n === 'number' && Number.isFinite(n) && n > 0;
@@ -97,78 +117,171 @@ const positive = (n: number | null | undefined): n is number => typeof n === 'nu
  * @example
  * jobQuantities({ installationType: 'slab', unit: aurora6, survey: null, settings: DEFAULT_QUANTITY_SETTINGS }).concrete?.result.orderVolumeM3
  */
-export function jobQuantities(args: { installationType: InstallationType; unit: UnitFigures; survey: SurveyFigures | null; settings: QuantitySettings }): JobQuantities {
+export function jobQuantities(args: {
+  installationType: InstallationType;
+  unit: UnitFigures;
+  survey: SurveyFigures | null;
+  settings: QuantitySettings;
+}): JobQuantities {
   const { installationType: type, unit, settings: s } = args;
   const survey = args.survey ?? {};
   const groundworks = type !== 'deck';
   const walled = type === 'in_ground' || type === 'semi_recessed';
-  const depthBelowGroundMm = type === 'in_ground' ? unit.heightMm
-    : type === 'semi_recessed' ? Math.round(unit.heightMm * s.semiRecessedDepthFraction) : 0;
+  const depthBelowGroundMm =
+    type === 'in_ground'
+      ? unit.heightMm
+      : type === 'semi_recessed'
+        ? Math.round(unit.heightMm * s.semiRecessedDepthFraction)
+        : 0;
 
   const wallThicknessMm = walled ? wallThicknessFor(s.blockLaying, s) : 0;
   const pit = groundworks
     ? digSize({
-      unitLengthMm: unit.lengthMm, unitWidthMm: unit.widthMm, serviceGapMm: s.perimeterGapMm,
-      // A slab has no pit walls to kneel between: the equipment end gets the ordinary margin.
-      serviceSideGapMm: walled ? s.serviceSideGapMm : s.perimeterGapMm,
-      wallThicknessMm, workingRoomMm: walled ? s.workingRoomMm : 0,
-    })
+        unitLengthMm: unit.lengthMm,
+        unitWidthMm: unit.widthMm,
+        serviceGapMm: s.perimeterGapMm,
+        // A slab has no pit walls to kneel between: the equipment end gets the ordinary margin.
+        serviceSideGapMm: walled ? s.serviceSideGapMm : s.perimeterGapMm,
+        wallThicknessMm,
+        workingRoomMm: walled ? s.workingRoomMm : 0,
+      })
     : null;
-  const excavation = pit ? excavationVolume({ digAreaM2: pit.result.areaM2, unitDepthBelowGroundMm: depthBelowGroundMm, baseThicknessMm: s.baseThicknessMm, subBaseMm: s.subBaseMm }) : null;
+  const excavation = pit
+    ? excavationVolume({
+        digAreaM2: pit.result.areaM2,
+        unitDepthBelowGroundMm: depthBelowGroundMm,
+        baseThicknessMm: s.baseThicknessMm,
+        subBaseMm: s.subBaseMm,
+      })
+    : null;
   const spoilOut = excavation
     ? spoil({
-      bankVolumeM3: excavation.result.volumeM3, bulkingFactor: s.bulkingFactor, densityTPerM3: s.spoilDensityTPerM3,
-      skipVolumeM3: s.skipVolumeM3, skipPayloadT: s.skipPayloadT, grabLorryVolumeM3: s.grabLorryVolumeM3, grabLorryPayloadT: s.grabLorryPayloadT,
-    })
+        bankVolumeM3: excavation.result.volumeM3,
+        bulkingFactor: s.bulkingFactor,
+        densityTPerM3: s.spoilDensityTPerM3,
+        skipVolumeM3: s.skipVolumeM3,
+        skipPayloadT: s.skipPayloadT,
+        grabLorryVolumeM3: s.grabLorryVolumeM3,
+        grabLorryPayloadT: s.grabLorryPayloadT,
+      })
     : null;
   const excavator = survey.excavatorSize ?? s.defaultExcavator;
   const ground = groundTypeOf(survey.groundType);
   const time = excavation
-    ? excavationTime({ volumeM3: excavation.result.volumeM3, excavator, rateM3PerHour: s.excavatorRatesM3PerHour[excavator], groundType: ground, groundRateFactor: s.groundRateFactors[ground] })
+    ? excavationTime({
+        volumeM3: excavation.result.volumeM3,
+        excavator,
+        rateM3PerHour: s.excavatorRatesM3PerHour[excavator],
+        groundType: ground,
+        groundRateFactor: s.groundRateFactors[ground],
+      })
     : null;
-  const subBaseOut = pit && s.subBaseMm > 0
-    ? subBase({ areaM2: pit.result.baseAreaM2, thicknessMm: s.subBaseMm, densityTPerM3: s.subBaseDensityTPerM3, orderStepT: s.subBaseOrderStepT })
+  const subBaseOut =
+    pit && s.subBaseMm > 0
+      ? subBase({
+          areaM2: pit.result.baseAreaM2,
+          thicknessMm: s.subBaseMm,
+          densityTPerM3: s.subBaseDensityTPerM3,
+          orderStepT: s.subBaseOrderStepT,
+        })
+      : null;
+  const concrete = pit
+    ? baseConcrete({
+        areaM2: pit.result.baseAreaM2,
+        thicknessMm: s.baseThicknessMm,
+        wasteFraction: s.concreteWasteFraction,
+        orderStepM3: s.concreteOrderStepM3,
+      })
     : null;
-  const concrete = pit ? baseConcrete({ areaM2: pit.result.baseAreaM2, thicknessMm: s.baseThicknessMm, wasteFraction: s.concreteWasteFraction, orderStepM3: s.concreteOrderStepM3 }) : null;
-  const blocks = pit && walled && depthBelowGroundMm > 0
-    ? retainingWallBlocks({
-      insideLengthMm: pit.result.insideLengthMm, insideWidthMm: pit.result.insideWidthMm, wallHeightMm: depthBelowGroundMm,
-      blockLengthMm: s.blockLengthMm, blockHeightMm: s.blockHeightMm, blockThicknessMm: s.blockThicknessMm, jointMm: s.jointMm, laying: s.blockLaying,
-    })
-    : null;
-  const access = survey.accessWidthMm != null
-    ? accessCheck({
-      unitWidthMm: unit.widthMm, unitHeightMm: unit.heightMm, unitDryWeightKg: unit.dryWeightKg,
-      routeWidthMm: survey.accessWidthMm, routeHeightMm: survey.accessHeightMm ?? null,
-      widthAllowanceMm: s.accessWidthAllowanceMm, dollyHeightMm: s.dollyHeightMm, uprightRaiseMm: s.uprightRaiseMm, maxDollyDryWeightKg: s.maxDollyDryWeightKg,
-    })
-    : null;
-  const crane = craneDecision({ accessWay: access?.result.way ?? null, surveyorSaysCrane: survey.craneRequired ?? null, overheadObstructions: Boolean(survey.overheadObstructions) });
+  const blocks =
+    pit && walled && depthBelowGroundMm > 0
+      ? retainingWallBlocks({
+          insideLengthMm: pit.result.insideLengthMm,
+          insideWidthMm: pit.result.insideWidthMm,
+          wallHeightMm: depthBelowGroundMm,
+          blockLengthMm: s.blockLengthMm,
+          blockHeightMm: s.blockHeightMm,
+          blockThicknessMm: s.blockThicknessMm,
+          jointMm: s.jointMm,
+          laying: s.blockLaying,
+        })
+      : null;
+  const access =
+    survey.accessWidthMm != null
+      ? accessCheck({
+          unitWidthMm: unit.widthMm,
+          unitHeightMm: unit.heightMm,
+          unitDryWeightKg: unit.dryWeightKg,
+          routeWidthMm: survey.accessWidthMm,
+          routeHeightMm: survey.accessHeightMm ?? null,
+          widthAllowanceMm: s.accessWidthAllowanceMm,
+          dollyHeightMm: s.dollyHeightMm,
+          uprightRaiseMm: s.uprightRaiseMm,
+          maxDollyDryWeightKg: s.maxDollyDryWeightKg,
+        })
+      : null;
+  const crane = craneDecision({
+    accessWay: access?.result.way ?? null,
+    surveyorSaysCrane: survey.craneRequired ?? null,
+    overheadObstructions: Boolean(survey.overheadObstructions),
+  });
   // The crane decision (the surveyor's call first) says how it goes in: a crane lifts the unit over the steps.
   const move = access
     ? moveIn({
-      byCrane: crane.result.needed,
-      steps: survey.steps ?? 0, crew: s.moveCrew, extraCrewOnSteps: s.moveExtraCrewOnSteps, minutes: s.moveMinutes, minutesPerStep: s.moveMinutesPerStep,
-    })
+        byCrane: crane.result.needed,
+        steps: survey.steps ?? 0,
+        crew: s.moveCrew,
+        extraCrewOnSteps: s.moveExtraCrewOnSteps,
+        minutes: s.moveMinutes,
+        minutesPerStep: s.moveMinutesPerStep,
+      })
     : null;
   const litres = positive(unit.waterLitres) ? unit.waterLitres : null;
   const measuredFlow = positive(survey.hoseFlowLitresPerMinute) ? survey.hoseFlowLitresPerMinute : null;
-  const fill = litres !== null
-    ? fillTime({ litres, flowLitresPerMinute: measuredFlow ?? s.hoseFlowLitresPerMinute, flowFrom: measuredFlow !== null ? 'survey' : 'default' })
-    : null;
-  const heatUp = litres !== null
-    ? heatUpTime({
-      litres, startTempC: s.fillWaterTempC, targetTempC: s.targetWaterTempC,
-      heaterKw: positive(unit.heaterKw) ? unit.heaterKw : s.heaterKw, heaterFrom: positive(unit.heaterKw) ? 'unit' : 'default',
-    })
-    : null;
+  const fill =
+    litres !== null
+      ? fillTime({
+          litres,
+          flowLitresPerMinute: measuredFlow ?? s.hoseFlowLitresPerMinute,
+          flowFrom: measuredFlow !== null ? 'survey' : 'default',
+        })
+      : null;
+  const heatUp =
+    litres !== null
+      ? heatUpTime({
+          litres,
+          startTempC: s.fillWaterTempC,
+          targetTempC: s.targetWaterTempC,
+          heaterKw: positive(unit.heaterKw) ? unit.heaterKw : s.heaterKw,
+          heaterFrom: positive(unit.heaterKw) ? 'unit' : 'default',
+        })
+      : null;
   return {
-    installationType: type, depthBelowGroundMm, pit, excavation, spoil: spoilOut, excavationTime: time, subBase: subBaseOut, concrete, blocks, access, move, crane,
-    loading: baseLoading({ filledWeightKg: unit.filledWeightKg, unitLengthMm: unit.lengthMm, unitWidthMm: unit.widthMm }),
-    fill, heatUp,
+    installationType: type,
+    depthBelowGroundMm,
+    pit,
+    excavation,
+    spoil: spoilOut,
+    excavationTime: time,
+    subBase: subBaseOut,
+    concrete,
+    blocks,
+    access,
+    move,
+    crane,
+    loading: baseLoading({
+      filledWeightKg: unit.filledWeightKg,
+      unitLengthMm: unit.lengthMm,
+      unitWidthMm: unit.widthMm,
+    }),
+    fill,
+    heatUp,
     supply: supplyCheck({
-      circuitAmps: unit.supplies.map((x) => x.amps), existingLoads: existingLoadsOf(survey), mainFuseAmps: survey.mainFuseAmps ?? null,
-      checkFraction: s.supplyCheckFraction, earthing: survey.earthingArrangement ?? null,
+      circuitAmps: unit.supplies.map((x) => x.amps),
+      existingLoads: existingLoadsOf(survey),
+      mainFuseAmps: survey.mainFuseAmps ?? null,
+      checkFraction: s.supplyCheckFraction,
+      earthing: survey.earthingArrangement ?? null,
     }),
   };
 }

@@ -3,8 +3,16 @@ import { round, requireNumber, type Computation } from './types.ts';
 /** Standard gravity, m/s² (3rd CGPM, 1901; BIPM). */
 export const STANDARD_GRAVITY = 9.80665;
 
-export interface BaseLoadingInputs { filledWeightKg: number; unitLengthMm: number; unitWidthMm: number }
-export interface BaseLoading { forceKN: number; footprintM2: number; pressureKNPerM2: number }
+export interface BaseLoadingInputs {
+  filledWeightKg: number;
+  unitLengthMm: number;
+  unitWidthMm: number;
+}
+export interface BaseLoading {
+  forceKN: number;
+  footprintM2: number;
+  pressureKNPerM2: number;
+}
 
 /**
  * The filled unit's weight spread over its footprint on the base: m × g ÷ (L × W).
@@ -26,6 +34,8 @@ export function baseLoading(inputs: BaseLoadingInputs): Computation<BaseLoadingI
     formula: `${m} kg × ${STANDARD_GRAVITY} m/s² = ${round(force)} kN; ÷ (${l / 1000} × ${w / 1000}) m² = ${pressureKNPerM2} kN/m²`,
     result: { forceKN: round(force), footprintM2: round(area, 4), pressureKNPerM2 },
     unit: 'kN/m²',
-    notes: ['g = 9.80665 m/s², standard gravity (CGPM 1901). Filled weight as the maker states it; bathers add to it. A deck or roof needs a structural engineer\'s check.'],
+    notes: [
+      "g = 9.80665 m/s², standard gravity (CGPM 1901). Filled weight as the maker states it; bathers add to it. A deck or roof needs a structural engineer's check.",
+    ],
   };
 }

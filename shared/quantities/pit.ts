@@ -36,7 +36,14 @@ export interface DigSize {
  * // inside 2950 × 2500, base 3380 × 2930 (9.9034 m²), dig 3980 × 3530 mm (14.0494 m²)
  */
 export function digSize(inputs: DigSizeInputs): Computation<DigSizeInputs, DigSize> {
-  const { unitLengthMm: l, unitWidthMm: w, serviceGapMm: g, serviceSideGapMm: s, wallThicknessMm: t, workingRoomMm: r } = inputs;
+  const {
+    unitLengthMm: l,
+    unitWidthMm: w,
+    serviceGapMm: g,
+    serviceSideGapMm: s,
+    wallThicknessMm: t,
+    workingRoomMm: r,
+  } = inputs;
   requireNumber('unitLengthMm', l, 0, true);
   requireNumber('unitWidthMm', w, 0, true);
   requireNumber('serviceGapMm', g);
@@ -53,18 +60,20 @@ export function digSize(inputs: DigSizeInputs): Computation<DigSizeInputs, DigSi
   const baseAreaM2 = round((baseLengthMm / 1000) * (baseWidthMm / 1000), 4);
   const walled = t > 0 || r > 0;
   // Zero terms (a slab's walls and working room) are left out, so the formula reads as the groundworker would say it.
-  const terms = (inside: string, insideMm: number, total: number) => [
-    `${inside} = ${insideMm}`,
-    t > 0 ? ` + 2 × ${t} walls = ${insideMm + 2 * t}` : '',
-    r > 0 ? ` + 2 × ${r} working room = ${total}` : '',
-  ].join('');
+  const terms = (inside: string, insideMm: number, total: number) =>
+    [
+      `${inside} = ${insideMm}`,
+      t > 0 ? ` + 2 × ${t} walls = ${insideMm + 2 * t}` : '',
+      r > 0 ? ` + 2 × ${r} working room = ${total}` : '',
+    ].join('');
   return {
     name: 'Dig size',
     inputs: { ...inputs },
-    formula: `length ${terms(`${l} + ${g} + ${s}${walled ? ' at the equipment end' : ''}`, insideLengthMm, lengthMm)} mm; `
-      + `width ${terms(`${w} + 2 × ${g}`, insideWidthMm, widthMm)} mm; `
-      + `dig ${lengthMm / 1000} × ${widthMm / 1000} = ${areaM2} m²`
-      + (walled ? `; base ${baseLengthMm / 1000} × ${baseWidthMm / 1000} = ${baseAreaM2} m²` : ''),
+    formula:
+      `length ${terms(`${l} + ${g} + ${s}${walled ? ' at the equipment end' : ''}`, insideLengthMm, lengthMm)} mm; ` +
+      `width ${terms(`${w} + 2 × ${g}`, insideWidthMm, widthMm)} mm; ` +
+      `dig ${lengthMm / 1000} × ${widthMm / 1000} = ${areaM2} m²` +
+      (walled ? `; base ${baseLengthMm / 1000} × ${baseWidthMm / 1000} = ${baseAreaM2} m²` : ''),
     result: { insideLengthMm, insideWidthMm, baseLengthMm, baseWidthMm, baseAreaM2, lengthMm, widthMm, areaM2 },
     unit: 'mm',
     notes: [
@@ -74,8 +83,16 @@ export function digSize(inputs: DigSizeInputs): Computation<DigSizeInputs, DigSi
   };
 }
 
-export interface ExcavationInputs { digAreaM2: number; unitDepthBelowGroundMm: number; baseThicknessMm: number; subBaseMm: number }
-export interface Excavation { depthMm: number; volumeM3: number }
+export interface ExcavationInputs {
+  digAreaM2: number;
+  unitDepthBelowGroundMm: number;
+  baseThicknessMm: number;
+  subBaseMm: number;
+}
+export interface Excavation {
+  depthMm: number;
+  volumeM3: number;
+}
 
 /**
  * Volume dug out: dig plan area × depth, where depth = the part of the unit below ground + base + sub-base
@@ -137,7 +154,13 @@ function loadsOf(looseM3: number, weightT: number, volumeM3: number, payloadT: n
   const byVolume = Math.ceil(round(looseM3 / volumeM3, 9));
   const byWeight = Math.ceil(round(weightT / payloadT, 9));
   const weightLimited = payloadT / density < volumeM3;
-  return { byVolume, byWeight, m3PerLoad: round(weightLimited ? payloadT / density : volumeM3), limit: weightLimited ? 'weight' : 'volume', loads: Math.max(byVolume, byWeight) };
+  return {
+    byVolume,
+    byWeight,
+    m3PerLoad: round(weightLimited ? payloadT / density : volumeM3),
+    limit: weightLimited ? 'weight' : 'volume',
+    loads: Math.max(byVolume, byWeight),
+  };
 }
 
 /**
@@ -148,7 +171,15 @@ function loadsOf(looseM3: number, weightT: number, volumeM3: number, payloadT: n
  * // 8.985 m³ loose, 16.173 t: skips 2 by volume, 3 by weight → 3 (weight decides); grab lorry 1 by volume, 2 by weight → 2
  */
 export function spoil(inputs: SpoilInputs): Computation<SpoilInputs, Spoil> {
-  const { bankVolumeM3: v, bulkingFactor: k, densityTPerM3: d, skipVolumeM3: skipV, skipPayloadT: skipT, grabLorryVolumeM3: grabV, grabLorryPayloadT: grabT } = inputs;
+  const {
+    bankVolumeM3: v,
+    bulkingFactor: k,
+    densityTPerM3: d,
+    skipVolumeM3: skipV,
+    skipPayloadT: skipT,
+    grabLorryVolumeM3: grabV,
+    grabLorryPayloadT: grabT,
+  } = inputs;
   requireNumber('bankVolumeM3', v);
   requireNumber('bulkingFactor', k, 1);
   requireNumber('densityTPerM3', d, 0, true);
@@ -165,8 +196,9 @@ export function spoil(inputs: SpoilInputs): Computation<SpoilInputs, Spoil> {
   return {
     name: 'Spoil',
     inputs: { ...inputs },
-    formula: `${v} m³ × ${k} = ${looseVolumeM3} m³ loose; × ${d} t/m³ = ${weightT} t; `
-      + `${line('skips', skip, skipV, skipT)}; or ${line('grab-lorry loads', grabLorry, grabV, grabT)}`,
+    formula:
+      `${v} m³ × ${k} = ${looseVolumeM3} m³ loose; × ${d} t/m³ = ${weightT} t; ` +
+      `${line('skips', skip, skipV, skipT)}; or ${line('grab-lorry loads', grabLorry, grabV, grabT)}`,
     result: { looseVolumeM3, weightT, skips: skip.loads, grabLorryLoads: grabLorry.loads, skip, grabLorry },
     unit: 'm³',
     notes: [
@@ -179,8 +211,18 @@ export function spoil(inputs: SpoilInputs): Computation<SpoilInputs, Spoil> {
   };
 }
 
-export interface ExcavationTimeInputs { volumeM3: number; excavator: string; rateM3PerHour: number; groundType: string; groundRateFactor: number }
-export interface ExcavationTime { rateM3PerHour: number; hours: number; minutes: number }
+export interface ExcavationTimeInputs {
+  volumeM3: number;
+  excavator: string;
+  rateM3PerHour: number;
+  groundType: string;
+  groundRateFactor: number;
+}
+export interface ExcavationTime {
+  rateM3PerHour: number;
+  hours: number;
+  minutes: number;
+}
 
 /**
  * Working time to dig and load the pit: volume ÷ (the excavator's rate × the ground's factor), rounded up to

@@ -145,8 +145,9 @@ export const SETTING_SOURCES: Record<keyof QuantitySettings, string> = {
   workingRoomMm: 'common practice, no source',
   baseThicknessMm: 'common practice, no source',
   subBaseMm: 'common practice, no source',
-  subBaseDensityTPerM3: 'from memory: suppliers quote about 2.0–2.2 t/m³ for compacted Type 1-like crushed stone; common practice, no source',
-  subBaseOrderStepT: 'firm choice (the supplier\'s bag or part load)',
+  subBaseDensityTPerM3:
+    'from memory: suppliers quote about 2.0–2.2 t/m³ for compacted Type 1-like crushed stone; common practice, no source',
+  subBaseOrderStepT: "firm choice (the supplier's bag or part load)",
   bulkingFactor: 'common practice, no source (from memory: soils bulk by roughly 10–50 % depending on type)',
   skipVolumeM3: '6 yd³ × 0.764555 m³/yd³ (international yard, 1959)',
   grabLorryVolumeM3: 'common practice, no source',
@@ -154,7 +155,7 @@ export const SETTING_SOURCES: Record<keyof QuantitySettings, string> = {
   skipPayloadT: 'from memory: skip firms allow about 1 t a cubic yard for heavy waste; ask your skip firm',
   spoilDensityTPerM3: 'common practice, no source (wet soil about 1.6–1.8 t/m³ loose; the heavy end taken)',
   concreteWasteFraction: 'common practice, no source',
-  concreteOrderStepM3: 'firm choice (the ready-mix supplier\'s step, often 0.25 or 0.5 m³)',
+  concreteOrderStepM3: "firm choice (the ready-mix supplier's step, often 0.25 or 0.5 m³)",
   blockLengthMm: 'common practice, no source (the usual dense block face)',
   blockHeightMm: 'common practice, no source (the usual dense block face)',
   blockThicknessMm: 'common practice, no source (the usual dense block)',
@@ -176,7 +177,7 @@ export const SETTING_SOURCES: Record<keyof QuantitySettings, string> = {
   hoseFlowLitresPerMinute: 'from memory: a garden tap on mains gives about 10–20 L/min; time a bucket at the survey',
   fillWaterTempC: 'from memory: mains water is about 5–15 °C through the year',
   targetWaterTempC: 'common practice, no source',
-  heaterKw: 'from memory: many units have a 3 kW heater; the maker\'s figure overrides it',
+  heaterKw: "from memory: many units have a 3 kW heater; the maker's figure overrides it",
 };
 
 /** A firm's own figures: any setting, and any entry of the per-excavator and per-ground tables. */
@@ -191,7 +192,10 @@ export function settingsWith(overrides: QuantityOverrides | null | undefined): Q
   return {
     ...DEFAULT_QUANTITY_SETTINGS,
     ...o,
-    excavatorRatesM3PerHour: { ...DEFAULT_QUANTITY_SETTINGS.excavatorRatesM3PerHour, ...(o.excavatorRatesM3PerHour ?? {}) },
+    excavatorRatesM3PerHour: {
+      ...DEFAULT_QUANTITY_SETTINGS.excavatorRatesM3PerHour,
+      ...(o.excavatorRatesM3PerHour ?? {}),
+    },
     groundRateFactors: { ...DEFAULT_QUANTITY_SETTINGS.groundRateFactors, ...(o.groundRateFactors ?? {}) },
   };
 }

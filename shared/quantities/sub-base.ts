@@ -1,7 +1,16 @@
 import { round, requireNumber, roundUpToStep, type Computation } from './types.ts';
 
-export interface SubBaseInputs { areaM2: number; thicknessMm: number; densityTPerM3: number; orderStepT: number }
-export interface SubBase { volumeM3: number; tonnes: number; orderTonnes: number }
+export interface SubBaseInputs {
+  areaM2: number;
+  thicknessMm: number;
+  densityTPerM3: number;
+  orderStepT: number;
+}
+export interface SubBase {
+  volumeM3: number;
+  tonnes: number;
+  orderTonnes: number;
+}
 
 /**
  * Crushed-stone sub-base under the base, by weight as it is sold: area × compacted thickness × compacted
@@ -27,7 +36,7 @@ export function subBase(inputs: SubBaseInputs): Computation<SubBaseInputs, SubBa
     unit: 't',
     notes: [
       `Compacted density ${d} t/m³ for a Type 1-like crushed stone: from memory, suppliers quote about 2.0–2.2 t/m³; common practice, no source.`,
-      'Laid under the base (to the outside faces of the walls) and compacted in layers; the supplier\'s figure for its own stone wins.',
+      "Laid under the base (to the outside faces of the walls) and compacted in layers; the supplier's figure for its own stone wins.",
     ],
   };
 }

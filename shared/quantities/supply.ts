@@ -8,7 +8,10 @@ export const EARTHING_ARRANGEMENTS = ['TN-C-S', 'TN-S', 'TT', 'unknown'] as cons
 export type EarthingArrangement = (typeof EARTHING_ARRANGEMENTS)[number];
 
 /** A large load already on the house's supply (an EV charger, an electric shower, a heat pump…). */
-export interface ExistingLoad { name: string; amps: number }
+export interface ExistingLoad {
+  name: string;
+  amps: number;
+}
 
 export interface SupplyInputs {
   /** The unit's new circuits. */
@@ -38,8 +41,9 @@ export interface SupplyCheck {
 const EARTHING_NOTES: Record<EarthingArrangement | 'none', string> = {
   none: 'Earthing arrangement not recorded: note it at the survey (it is usually marked at the meter or the consumer unit).',
   unknown: 'The surveyor could not tell the earthing arrangement: the electrician establishes it.',
-  'TN-C-S': 'TN-C-S (PME): the wiring rules put conditions on outdoor equipment fed from a PME earth (from memory); the electrician decides how the unit\'s circuit is earthed.',
-  'TN-S': 'TN-S: an earth provided by the supplier\'s cable; the electrician confirms it.',
+  'TN-C-S':
+    "TN-C-S (PME): the wiring rules put conditions on outdoor equipment fed from a PME earth (from memory); the electrician decides how the unit's circuit is earthed.",
+  'TN-S': "TN-S: an earth provided by the supplier's cable; the electrician confirms it.",
   TT: 'TT: the house relies on its own earth electrode and RCDs; the electrician tests the electrode.',
 };
 
@@ -79,23 +83,32 @@ export function supplyCheck(inputs: SupplyInputs): Computation<SupplyInputs, Sup
   } else {
     share = totalAmps / fuse;
     verdict = totalAmps >= fuse ? 'exceeds' : share > f ? 'check' : 'ok';
-    message = verdict === 'ok'
-      ? 'The new circuits and the large loads already in the house are a modest share of the main fuse.'
-      : verdict === 'check'
-        ? `The new circuits and the large loads already in the house come to over ${Math.round(f * 100)} % of the main fuse: the electrician checks the supply before the unit is ordered.`
-        : 'The new circuits and the large loads already in the house reach or exceed the main fuse, before any allowance for diversity: the electrician and the network operator must check the supply.';
+    message =
+      verdict === 'ok'
+        ? 'The new circuits and the large loads already in the house are a modest share of the main fuse.'
+        : verdict === 'check'
+          ? `The new circuits and the large loads already in the house come to over ${Math.round(f * 100)} % of the main fuse: the electrician checks the supply before the unit is ordered.`
+          : 'The new circuits and the large loads already in the house reach or exceed the main fuse, before any allowance for diversity: the electrician and the network operator must check the supply.';
     loadFormula = `; ${totalAmps} ÷ ${fuse} A = ${round(share * 100, 1)} % of the main fuse (check above ${Math.round(f * 100)} %)`;
   }
-  const reasons = [
-    ...(verdict === 'ok' ? [] : [message]),
-    ...(earthing === 'TN-S' ? [] : [earthingNote]),
-  ];
+  const reasons = [...(verdict === 'ok' ? [] : [message]), ...(earthing === 'TN-S' ? [] : [earthingNote])];
   const electricianToLook = reasons.length > 0;
   return {
     name: 'Supply check',
     inputs: { ...inputs, circuitAmps: [...circuitAmps], existingLoads: existingLoads.map((l) => ({ ...l })) },
     formula: `${newSum}${existingSum}${loadFormula}${earthingText}${electricianToLook ? ' → the electrician to look before ordering' : ''}`,
-    result: { newAmps, existingAmps, totalAmps, shareOfFuse: share === null ? null : round(share), verdict, message, earthing, earthingNote, electricianToLook, reasons },
+    result: {
+      newAmps,
+      existingAmps,
+      totalAmps,
+      shareOfFuse: share === null ? null : round(share),
+      verdict,
+      message,
+      earthing,
+      earthingNote,
+      electricianToLook,
+      reasons,
+    },
     unit: 'A',
     notes: [
       'Not an electrical design: a plain sum of rated currents with no allowance for diversity. The registered electrician assesses the maximum demand, the earthing and the circuit under the wiring rules in force, and alone decides.',

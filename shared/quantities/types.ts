@@ -19,7 +19,7 @@ export interface Computation<I extends object, R> {
 export function round(value: number, dp = 3): number {
   const f = 10 ** dp;
   // toPrecision(12) first, so a product like 6.25 × 1.15 = 7.18749999… rounds as the 7.1875 it is.
-  return Math.sign(value) * Math.round(Number((Math.abs(value) * f).toPrecision(12))) / f;
+  return (Math.sign(value) * Math.round(Number((Math.abs(value) * f).toPrecision(12)))) / f;
 }
 
 /** Throws a RangeError unless `value` is a finite number ≥ `min` (or > `min` when `strict`). */

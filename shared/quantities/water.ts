@@ -11,7 +11,11 @@ export interface FillTimeInputs {
   /** Where the flow came from: measured at the survey, or the firm's default. */
   flowFrom: 'survey' | 'default';
 }
-export interface FillTime { minutesExact: number; minutes: number; hours: number }
+export interface FillTime {
+  minutesExact: number;
+  minutes: number;
+  hours: number;
+}
 
 /**
  * Time to fill the unit through a hose: litres ÷ flow, rounded up to a quarter of an hour.
@@ -71,7 +75,8 @@ export function heatUpTime(inputs: HeatUpInputs): Computation<HeatUpInputs, Heat
   const { litres, startTempC: from, targetTempC: to, heaterKw: kw, heaterFrom } = inputs;
   requireNumber('litres', litres);
   requireNumber('heaterKw', kw, 0, true);
-  if (!Number.isFinite(from) || !Number.isFinite(to)) throw new RangeError(`temperatures must be numbers; got ${from} and ${to}`);
+  if (!Number.isFinite(from) || !Number.isFinite(to))
+    throw new RangeError(`temperatures must be numbers; got ${from} and ${to}`);
   const rise = Math.max(0, to - from);
   const energyKJ = litres * WATER_KG_PER_LITRE * WATER_SPECIFIC_HEAT_KJ_PER_KG_K * rise;
   const seconds = energyKJ / kw; // kJ ÷ kW = s
@@ -79,18 +84,26 @@ export function heatUpTime(inputs: HeatUpInputs): Computation<HeatUpInputs, Heat
   return {
     name: 'Heat-up time',
     inputs: { ...inputs },
-    formula: `${litres} L × ${WATER_KG_PER_LITRE} kg/L × ${WATER_SPECIFIC_HEAT_KJ_PER_KG_K} kJ/(kg·K) × (${to} − ${from}) K = ${round(energyKJ, 1)} kJ; `
-      + `÷ ${kw} kW = ${round(seconds, 0)} s = ${round(seconds / 3600, 2)} h → ${minutes} min (rounded up to a quarter of an hour)`,
-    result: { temperatureRiseK: round(rise), energyKJ: round(energyKJ, 1), energyKWh: round(energyKJ / 3600), seconds: round(seconds, 0), hours: round(seconds / 3600, 2), minutes },
+    formula:
+      `${litres} L × ${WATER_KG_PER_LITRE} kg/L × ${WATER_SPECIFIC_HEAT_KJ_PER_KG_K} kJ/(kg·K) × (${to} − ${from}) K = ${round(energyKJ, 1)} kJ; ` +
+      `÷ ${kw} kW = ${round(seconds, 0)} s = ${round(seconds / 3600, 2)} h → ${minutes} min (rounded up to a quarter of an hour)`,
+    result: {
+      temperatureRiseK: round(rise),
+      energyKJ: round(energyKJ, 1),
+      energyKWh: round(energyKJ / 3600),
+      seconds: round(seconds, 0),
+      hours: round(seconds / 3600, 2),
+      minutes,
+    },
     unit: 'h',
     notes: [
       'Specific heat of water 4.186 kJ/(kg·K) and 1 kg a litre: physics.',
       'Heat lost through the cover, shell and pipes is left out: with the cover on, expect longer, and longer still in cold weather.',
-      'Fill and target temperatures are the firm\'s (fill from memory: mains water is about 5–15 °C through the year).',
+      "Fill and target temperatures are the firm's (fill from memory: mains water is about 5–15 °C through the year).",
       heaterFrom === 'unit'
-        ? 'Heater power from the unit\'s catalogue figures.'
+        ? "Heater power from the unit's catalogue figures."
         : `Heater ${kw} kW is the firm's default (from memory: many units have a 3 kW heater): the maker's figure wins.`,
-      'Some units cannot heat while the jets run, and some heat more slowly on a smaller supply: the maker\'s manual says.',
+      "Some units cannot heat while the jets run, and some heat more slowly on a smaller supply: the maker's manual says.",
     ],
   };
 }

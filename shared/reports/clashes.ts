@@ -1,5 +1,13 @@
 import { resourceCalendarOf, violationKey, type Booking, type Violation } from '../scheduler/index.ts';
-import { boardLink, dateIn, isElsewhere, jobOfStage, namedMessage, resourceName, type ReportContext } from './context.ts';
+import {
+  boardLink,
+  dateIn,
+  isElsewhere,
+  jobOfStage,
+  namedMessage,
+  resourceName,
+  type ReportContext,
+} from './context.ts';
 import { suggestedFixes } from './fixes.ts';
 import type { ClashKind, ClashReport, ClashRow } from './types.ts';
 import { weekOf } from './weeks.ts';
@@ -39,7 +47,8 @@ export function extraHire(ctx: ReportContext, booking: Booking): { days: number;
   for (let d = cal.dayOf(booking.start); d <= cal.dayOf(booking.end - 1); d++) {
     const ivs = cal.dayIntervals(d);
     if (ivs.length === 0) continue;
-    const s = Math.max(ivs[0] as number, booking.start), e = Math.min(ivs[ivs.length - 1] as number, booking.end);
+    const s = Math.max(ivs[0] as number, booking.start),
+      e = Math.min(ivs[ivs.length - 1] as number, booking.end);
     if (e <= s) continue;
     if (!periods.some((p) => p.onHire <= s && e <= p.offHire)) days++;
   }
@@ -48,39 +57,59 @@ export function extraHire(ctx: ReportContext, booking: Booking): { days: number;
 
 /** The hire period of a booking's machine nearest to the booking in time, if it has any. */
 function nearestHire(ctx: ReportContext, booking: Booking): { id: string } | undefined {
-  const gap = (p: { onHire: number; offHire: number }) => Math.max(0, p.onHire - booking.end, booking.start - p.offHire);
+  const gap = (p: { onHire: number; offHire: number }) =>
+    Math.max(0, p.onHire - booking.end, booking.start - p.offHire);
   return [...(ctx.index.hireByResource.get(booking.resourceId) ?? [])].sort((a, b) => gap(a) - gap(b))[0];
 }
 
 function rowOf(ctx: ReportContext, v: Violation): (ClashRow & { offending?: Booking }) | null {
   const ownStages = v.stageIds.filter((id) => !isElsewhere(ctx, { stageId: id }));
   if (ownStages.length === 0) return null;
-  const ownBookings = v.bookingIds.map((id) => ctx.bookings.get(id)).filter((b): b is Booking => b !== undefined && !isElsewhere(ctx, { bookingId: b.id }));
+  const ownBookings = v.bookingIds
+    .map((id) => ctx.bookings.get(id))
+    .filter((b): b is Booking => b !== undefined && !isElsewhere(ctx, { bookingId: b.id }));
   if (ownBookings.length === 0) return null;
   // The later-booked of a pair is the one to move (ties: the larger id, as the engine orders them).
   const offending = ownBookings.reduce((a, b) => (b.start > a.start || (b.start === a.start && b.id > a.id) ? b : a));
   const from = typeof v.details?.from === 'number' ? v.details.from : Math.min(...ownBookings.map((b) => b.start));
   const to = typeof v.details?.to === 'number' ? v.details.to : Math.max(...ownBookings.map((b) => b.end));
-  const jobs = [...new Map(ownStages.map((id) => jobOfStage(ctx, id)).filter((j) => j !== undefined).map((j) => [j.id, j])).values()];
+  const jobs = [
+    ...new Map(
+      ownStages
+        .map((id) => jobOfStage(ctx, id))
+        .filter((j) => j !== undefined)
+        .map((j) => [j.id, j]),
+    ).values(),
+  ];
   const date = dateIn(ctx, from);
   const kind = v.kind as ClashKind;
   const resourceIds = kind === 'person_double' ? v.resourceIds : [offending.resourceId];
   const bookingIds = ownBookings.map((b) => b.id);
   return {
-    id: violationKey(v), kind, kindLabel: KIND_LABELS[kind], bookingIds, date, from, to,
+    id: violationKey(v),
+    kind,
+    kindLabel: KIND_LABELS[kind],
+    bookingIds,
+    date,
+    from,
+    to,
     message: namedMessage(ctx, v),
-    jobIds: jobs.map((j) => j.id), jobReferences: jobs.map((j) => j.reference),
-    stageId: offending.stageId, stageName: ctx.index.stages.get(offending.stageId)?.stage.name ?? '',
+    jobIds: jobs.map((j) => j.id),
+    jobReferences: jobs.map((j) => j.reference),
+    stageId: offending.stageId,
+    stageName: ctx.index.stages.get(offending.stageId)?.stage.name ?? '',
     resourceNames: resourceIds.map((id) => resourceName(ctx, id)),
     costPence: kind === 'hire' ? extraHire(ctx, offending).pence : 0,
     // Both sides on the board: the resource's row (a person in two places is on two rows: no row
     // search), no job filter, the reader's own bookings of the problem outlined.
     link: boardLink(date, {
-      resourceName: kind === 'person_double' ? undefined : resourceName(ctx, offending.resourceId), highlight: bookingIds,
+      resourceName: kind === 'person_double' ? undefined : resourceName(ctx, offending.resourceId),
+      highlight: bookingIds,
       // A machine outside its hire: the hire it falls outside of is drawn beside it.
       hireId: kind === 'hire' ? nearestHire(ctx, offending)?.id : undefined,
     }),
-    fixes: [], offending,
+    fixes: [],
+    offending,
   };
 }
 
@@ -100,17 +129,32 @@ export function clashReport(ctx: ReportContext, options: ClashReportOptions = {}
     const row = rowOf(ctx, v);
     if (row && row.to > ctx.range.from && row.from < ctx.range.to) rows.push(row);
   }
-  rows.sort((a, b) => (a.date < b.date ? -1 : a.date > b.date ? 1 : 0) || b.costPence - a.costPence || a.from - b.from || (a.id < b.id ? -1 : 1));
+  rows.sort(
+    (a, b) =>
+      (a.date < b.date ? -1 : a.date > b.date ? 1 : 0) ||
+      b.costPence - a.costPence ||
+      a.from - b.from ||
+      (a.id < b.id ? -1 : 1),
+  );
   const fixesFor = options.fixesFor ?? 60;
   const out: ClashRow[] = rows.map((row, i) => {
     const { offending, ...rest } = row;
     const kind = offending ? ctx.index.resources.get(offending.resourceId)?.kind : undefined;
-    const fixes = i < fixesFor && offending && kind
-      ? suggestedFixes(ctx, offending.stageId, offending.id, kind, { alternatives: options.alternatives ?? 2, extraWorkingMinutes: options.extraWorkingMinutes })
-      : [];
+    const fixes =
+      i < fixesFor && offending && kind
+        ? suggestedFixes(ctx, offending.stageId, offending.id, kind, {
+            alternatives: options.alternatives ?? 2,
+            extraWorkingMinutes: options.extraWorkingMinutes,
+          })
+        : [];
     return { ...rest, fixes };
   });
   const perWeek = new Map<string, number>();
-  for (const r of out) perWeek.set(weekOf(r.from, ctx.range.timeZone), (perWeek.get(weekOf(r.from, ctx.range.timeZone)) ?? 0) + 1);
-  return { range: ctx.range, rows: out, perWeek: [...perWeek.entries()].sort().map(([week, count]) => ({ week, count })) };
+  for (const r of out)
+    perWeek.set(weekOf(r.from, ctx.range.timeZone), (perWeek.get(weekOf(r.from, ctx.range.timeZone)) ?? 0) + 1);
+  return {
+    range: ctx.range,
+    rows: out,
+    perWeek: [...perWeek.entries()].sort().map(([week, count]) => ({ week, count })),
+  };
 }

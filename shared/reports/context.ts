@@ -1,5 +1,19 @@
-import { ELSEWHERE_JOB_ID, toEngineBoard, type BoardBooking, type BoardData, type BoardJob, type BoardResource } from '../board-data.ts';
-import { boardCriticalPath, boardViolations, createBoardIndex, type BoardIndex, type JobCriticalPath, type Violation } from '../scheduler/index.ts';
+import {
+  ELSEWHERE_JOB_ID,
+  toEngineBoard,
+  type BoardBooking,
+  type BoardData,
+  type BoardJob,
+  type BoardResource,
+} from '../board-data.ts';
+import {
+  boardCriticalPath,
+  boardViolations,
+  createBoardIndex,
+  type BoardIndex,
+  type JobCriticalPath,
+  type Violation,
+} from '../scheduler/index.ts';
 import type { ReportRange } from './types.ts';
 import { localDate } from './weeks.ts';
 
@@ -21,7 +35,11 @@ export interface ReportContext {
  * @example
  * const ctx = reportContext(await loadBoard(knex, actor, q), { from, to, now, timeZone: 'Europe/London' })
  */
-export function reportContext(data: BoardData, range: ReportRange, options: { criticalPath?: boolean } = {}): ReportContext {
+export function reportContext(
+  data: BoardData,
+  range: ReportRange,
+  options: { criticalPath?: boolean } = {},
+): ReportContext {
   const index = createBoardIndex(toEngineBoard(data), { now: range.now });
   let criticalPaths: JobCriticalPath[] = [];
   if (options.criticalPath !== false) {
@@ -32,7 +50,11 @@ export function reportContext(data: BoardData, range: ReportRange, options: { cr
     }
   }
   return {
-    data, range, index, violations: boardViolations(index), criticalPaths,
+    data,
+    range,
+    index,
+    violations: boardViolations(index),
+    criticalPaths,
     resources: new Map(data.resources.map((r) => [r.id, r])),
     jobs: new Map(data.jobs.map((j) => [j.id, j])),
     bookings: new Map(data.bookings.map((b) => [b.id, b])),
@@ -74,7 +96,11 @@ export function namedMessage(ctx: ReportContext, v: Violation): string {
     const r = ctx.resources.get(id);
     if (r === undefined) continue;
     const label = `the ${r.kind.replace(/_/g, ' ')} (${r.id})`;
-    text = text.split(label.charAt(0).toUpperCase() + label.slice(1)).join(r.name).split(label).join(r.name);
+    text = text
+      .split(label.charAt(0).toUpperCase() + label.slice(1))
+      .join(r.name)
+      .split(label)
+      .join(r.name);
     if (id === v.details?.personId) text = text.replace(new RegExp(`^${id} `), `${r.name} `);
   }
   return text;

@@ -1,6 +1,13 @@
 import {
-  addWorkingMinutes, findSlots, formatInstant, formatPence, resourceCalendarOf, spanOf, checkStageBookings,
-  type Booking, type Slot,
+  addWorkingMinutes,
+  findSlots,
+  formatInstant,
+  formatPence,
+  resourceCalendarOf,
+  spanOf,
+  checkStageBookings,
+  type Booking,
+  type Slot,
 } from '../scheduler/index.ts';
 import { leadTimeEarliest } from '../scheduler/checks/lead-time.ts';
 import { bookingsOfStage, isBlocking } from '../board-actions.ts';
@@ -30,18 +37,33 @@ export interface FixOptions {
  * @example
  * movesFor(ctx, 'lift-1', '31', 'crane-2', tue0800) // [{ bookingId: '31', resourceId: 'crane-2', start: tue0800, … }, …]
  */
-export function movesFor(ctx: ReportContext, stageId: string, bookingId: string, resourceId: string, start: number): FixMove[] {
+export function movesFor(
+  ctx: ReportContext,
+  stageId: string,
+  bookingId: string,
+  resourceId: string,
+  start: number,
+): FixMove[] {
   const current = bookingsOfStage(ctx.index, stageId);
   const span = spanOf(current);
   if (span === null) return [];
   const delta = start - span.start;
   return current.map((b) => {
     const to = b.id === bookingId ? resourceId : b.resourceId;
-    const partner = ctx.resources.get(b.resourceId)?.ownership === 'partner' || ctx.resources.get(to)?.ownership === 'partner';
+    const partner =
+      ctx.resources.get(b.resourceId)?.ownership === 'partner' || ctx.resources.get(to)?.ownership === 'partner';
     return {
-      bookingId: b.id, fromResourceId: b.resourceId, fromResourceName: resourceName(ctx, b.resourceId), fromStart: b.start, fromEnd: b.end,
-      resourceId: to, resourceName: resourceName(ctx, to), start: b.start + delta, end: b.end + delta,
-      asksPartnerAgain: partner && (b.state === 'sent' || b.state === 'confirmed') && (delta !== 0 || to !== b.resourceId),
+      bookingId: b.id,
+      fromResourceId: b.resourceId,
+      fromResourceName: resourceName(ctx, b.resourceId),
+      fromStart: b.start,
+      fromEnd: b.end,
+      resourceId: to,
+      resourceName: resourceName(ctx, to),
+      start: b.start + delta,
+      end: b.end + delta,
+      asksPartnerAgain:
+        partner && (b.state === 'sent' || b.state === 'confirmed') && (delta !== 0 || to !== b.resourceId),
     };
   });
 }
@@ -53,12 +75,22 @@ export function movesFor(ctx: ReportContext, stageId: string, bookingId: string,
  * state: a new time needs notice again), a booking longer than its stage plus the slack, or the new
  * resource already on the stage.
  */
-export function refusalOf(ctx: ReportContext, stageId: string, moves: readonly FixMove[], extraWorkingMinutes = DEFAULT_EXTRA_WORKING_MINUTES): string | null {
+export function refusalOf(
+  ctx: ReportContext,
+  stageId: string,
+  moves: readonly FixMove[],
+  extraWorkingMinutes = DEFAULT_EXTRA_WORKING_MINUTES,
+): string | null {
   const current = new Map(bookingsOfStage(ctx.index, stageId).map((b) => [b.id, b]));
   const stage = ctx.index.stages.get(stageId)?.stage;
   if (!stage) return 'The stage is not on the board.';
   if ([...current.values()].some((b) => UNMOVABLE.has(b.state))) return 'Work on this stage is under way or done.';
-  const after: Booking[] = moves.map((m) => ({ ...(current.get(m.bookingId) as Booking), resourceId: m.resourceId, start: m.start, end: m.end }));
+  const after: Booking[] = moves.map((m) => ({
+    ...(current.get(m.bookingId) as Booking),
+    resourceId: m.resourceId,
+    start: m.start,
+    end: m.end,
+  }));
   const resources = after.map((b) => b.resourceId);
   if (new Set(resources).size !== resources.length) return 'The new resource is already on this stage.';
   for (const b of after) {
@@ -67,17 +99,27 @@ export function refusalOf(ctx: ReportContext, stageId: string, moves: readonly F
     if (moved && b.start < leadTimeEarliest(ctx.index, b)) {
       return `${resourceName(ctx, b.resourceId)} needs more notice: the earliest start is ${formatInstant(leadTimeEarliest(ctx.index, b), resourceCalendarOf(ctx.index, b.resourceId).timeZone)}.`;
     }
-    const longest = addWorkingMinutes(resourceCalendarOf(ctx.index, b.resourceId), b.start, stage.durationMinutes + extraWorkingMinutes);
+    const longest = addWorkingMinutes(
+      resourceCalendarOf(ctx.index, b.resourceId),
+      b.start,
+      stage.durationMinutes + extraWorkingMinutes,
+    );
     if (b.end > longest) return `${resourceName(ctx, b.resourceId)} would be booked longer than the stage needs.`;
   }
   const blocking = checkStageBookings(ctx.index, stageId, after).filter(isBlocking);
   return blocking[0]?.message ?? null;
 }
 
-function fixLabel(name: string, start: number, tz: string, cost: { extraHireDays: number; extraHirePence: number; delaysJob: boolean }): string {
-  const money = cost.extraHireDays > 0
-    ? `${formatPence(cost.extraHirePence)} extra hire (${cost.extraHireDays} day${cost.extraHireDays === 1 ? '' : 's'})`
-    : 'no extra cost';
+function fixLabel(
+  name: string,
+  start: number,
+  tz: string,
+  cost: { extraHireDays: number; extraHirePence: number; delaysJob: boolean },
+): string {
+  const money =
+    cost.extraHireDays > 0
+      ? `${formatPence(cost.extraHirePence)} extra hire (${cost.extraHireDays} day${cost.extraHireDays === 1 ? '' : 's'})`
+      : 'no extra cost';
   return `Move to ${name} on ${formatInstant(start, tz)} — ${money}${cost.delaysJob ? '; the job finishes later' : ''}`;
 }
 
@@ -89,21 +131,33 @@ function fixLabel(name: string, start: number, tz: string, cost: { extraHireDays
  * @example
  * suggestedFixes(ctx, 'lift-1', '31', 'crane')[0].label // 'Move to 60 t mobile crane on Wed 10 Jun 08:00 — no extra cost'
  */
-export function suggestedFixes(ctx: ReportContext, stageId: string, bookingId: string, kind: string, options: FixOptions = {}): SuggestedFix[] {
+export function suggestedFixes(
+  ctx: ReportContext,
+  stageId: string,
+  bookingId: string,
+  kind: string,
+  options: FixOptions = {},
+): SuggestedFix[] {
   const wanted = 1 + (options.alternatives ?? 2);
   const current = bookingsOfStage(ctx.index, stageId);
   if (current.length === 0 || current.some((b) => UNMOVABLE.has(b.state))) return [];
   // The slot finder minds the notice of the booking it places; the stage's other bookings move by
   // the same time and need theirs too: from this start on, every one of them has had its notice.
   const span = spanOf(current) as { start: number; end: number };
-  const noticed = Math.max(ctx.range.now, ...current.map((b) => leadTimeEarliest(ctx.index, b) - (b.start - span.start)));
+  const noticed = Math.max(
+    ctx.range.now,
+    ...current.map((b) => leadTimeEarliest(ctx.index, b) - (b.start - span.start)),
+  );
   let slots: Slot[];
   try {
     // From now (a swap at the same time needs no new notice) and from when all have had notice;
     // more than wanted: some are dropped below as ones the write path would refuse.
-    const search = (earliest: number) => findSlots(ctx.index, { stageId, resourceKind: kind, earliest }, { alternatives: wanted + 2 });
+    const search = (earliest: number) =>
+      findSlots(ctx.index, { stageId, resourceKind: kind, earliest }, { alternatives: wanted + 2 });
     const found = [...search(ctx.range.now), ...(noticed > ctx.range.now ? search(noticed) : [])];
-    slots = [...new Map(found.map((s) => [`${s.resourceId}@${s.start}`, s])).values()].sort((a, b) => a.start - b.start || (a.resourceId < b.resourceId ? -1 : 1));
+    slots = [...new Map(found.map((s) => [`${s.resourceId}@${s.start}`, s])).values()].sort(
+      (a, b) => a.start - b.start || (a.resourceId < b.resourceId ? -1 : 1),
+    );
   } catch {
     return []; // unknown stage or kind: nothing to suggest
   }
@@ -118,9 +172,19 @@ export function suggestedFixes(ctx: ReportContext, stageId: string, bookingId: s
     const tz = resourceCalendarOf(ctx.index, s.resourceId).timeZone;
     const date = dateIn(ctx, target.start);
     out.push({
-      stageId, bookingId, versions, moves,
-      resourceId: s.resourceId, resourceName: name, start: target.start, end: target.end, date,
-      extraHireDays: s.cost.extraHireDays, extraHirePence: s.cost.extraHirePence, floatUsedMinutes: s.cost.floatUsedMinutes, delaysJob: s.cost.delaysJob,
+      stageId,
+      bookingId,
+      versions,
+      moves,
+      resourceId: s.resourceId,
+      resourceName: name,
+      start: target.start,
+      end: target.end,
+      date,
+      extraHireDays: s.cost.extraHireDays,
+      extraHirePence: s.cost.extraHirePence,
+      floatUsedMinutes: s.cost.floatUsedMinutes,
+      delaysJob: s.cost.delaysJob,
       label: fixLabel(name, target.start, tz, s.cost),
       link: boardLink(date, { resourceName: name, highlight: [bookingId] }),
     });
@@ -135,11 +199,20 @@ export function suggestedFixes(ctx: ReportContext, stageId: string, bookingId: s
  * @example
  * fixRequest(fix) // { path: '/api/stages/41/move', body: { startsAt: '2026-06-05T09:00:00.000Z', bookingId: '31', resourceId: '12', versions: { 31: 2 }, moveDependents: false } }
  */
-export function fixRequest(fix: Pick<SuggestedFix, 'stageId' | 'bookingId' | 'resourceId' | 'moves' | 'versions'>): { path: string; body: Pick<MoveStage, 'startsAt' | 'bookingId' | 'resourceId' | 'versions' | 'moveDependents'> } {
+export function fixRequest(fix: Pick<SuggestedFix, 'stageId' | 'bookingId' | 'resourceId' | 'moves' | 'versions'>): {
+  path: string;
+  body: Pick<MoveStage, 'startsAt' | 'bookingId' | 'resourceId' | 'versions' | 'moveDependents'>;
+} {
   // The stage's new start is its earliest moved booking's: the server shifts every booking by the same time.
   const start = Math.min(...fix.moves.map((m) => m.start));
   return {
     path: `/api/stages/${fix.stageId}/move`,
-    body: { startsAt: new Date(start).toISOString(), bookingId: fix.bookingId, resourceId: fix.resourceId, versions: fix.versions, moveDependents: false },
+    body: {
+      startsAt: new Date(start).toISOString(),
+      bookingId: fix.bookingId,
+      resourceId: fix.resourceId,
+      versions: fix.versions,
+      moveDependents: false,
+    },
   };
 }

@@ -1,4 +1,11 @@
-import { formatInstant, formatPence, idleHireDays, isoDateOfDay, resourceCalendarOf, type HirePeriod } from '../scheduler/index.ts';
+import {
+  formatInstant,
+  formatPence,
+  idleHireDays,
+  isoDateOfDay,
+  resourceCalendarOf,
+  type HirePeriod,
+} from '../scheduler/index.ts';
 import { boardLink, dateIn, resourceName, type ReportContext } from './context.ts';
 import type { HirePeriodRow, HireReport, HireSuggestion } from './types.ts';
 import { weekOf, weekOfDate } from './weeks.ts';
@@ -41,7 +48,10 @@ export function paidDaysOf(ctx: ReportContext, period: HirePeriod): string[] {
   for (let d = cal.dayOf(period.onHire); d <= last && out.length < 3660; d++) {
     const ivs = cal.dayIntervals(d);
     for (let i = 0; i < ivs.length; i += 2) {
-      if ((ivs[i + 1] as number) > period.onHire && (ivs[i] as number) < period.offHire) { out.push(isoDateOfDay(d)); break; }
+      if ((ivs[i + 1] as number) > period.onHire && (ivs[i] as number) < period.offHire) {
+        out.push(isoDateOfDay(d));
+        break;
+      }
     }
   }
   return out;
@@ -59,41 +69,70 @@ const plural = (n: number, word: string) => `${n} ${word}${n === 1 ? '' : 's'}`;
  * hireSuggestions(['2026-06-01', …], new Set(['2026-06-04', '2026-06-05']), 14500, facts, '2026-05-29')
  * // [{ kind: 'shorten_end', label: 'Off-hire 2 days earlier (last paid day Wed 3 Jun): saves £290.00', savesPence: 29000 }]
  */
-export function hireSuggestions(paid: readonly string[], idle: ReadonlySet<string>, dayRatePence: number,
-  charges: { deliveryPence: number; collectionPence: number }, today: string): HireSuggestion[] {
+export function hireSuggestions(
+  paid: readonly string[],
+  idle: ReadonlySet<string>,
+  dayRatePence: number,
+  charges: { deliveryPence: number; collectionPence: number },
+  today: string,
+): HireSuggestion[] {
   const future = paid.filter((d) => d >= today);
   const out: HireSuggestion[] = [];
   if (paid.length > 0 && paid.every((d) => idle.has(d))) {
     if (future.length === 0) return [];
     const notStarted = (paid[0] as string) >= today;
     const saves = future.length * dayRatePence + (notStarted ? charges.deliveryPence + charges.collectionPence : 0);
-    return [{ kind: 'end', savesPence: saves, label: notStarted
-      ? `Nothing is booked on this hire: cancel it: saves ${formatPence(saves)}`
-      : `Nothing is booked on this hire: off-hire it now: saves ${formatPence(saves)}` }];
+    return [
+      {
+        kind: 'end',
+        savesPence: saves,
+        label: notStarted
+          ? `Nothing is booked on this hire: cancel it: saves ${formatPence(saves)}`
+          : `Nothing is booked on this hire: off-hire it now: saves ${formatPence(saves)}`,
+      },
+    ];
   }
   let lead = 0;
   while (lead < paid.length && idle.has(paid[lead] as string) && (paid[lead] as string) >= today) lead++;
   if (lead > 0 && (paid[0] as string) >= today) {
-    out.push({ kind: 'shorten_start', savesPence: lead * dayRatePence,
-      label: `On-hire ${plural(lead, 'day')} later (first paid day ${dayWords(paid[lead] as string)}): saves ${formatPence(lead * dayRatePence)}` });
+    out.push({
+      kind: 'shorten_start',
+      savesPence: lead * dayRatePence,
+      label: `On-hire ${plural(lead, 'day')} later (first paid day ${dayWords(paid[lead] as string)}): saves ${formatPence(lead * dayRatePence)}`,
+    });
   }
   let tail = 0;
-  while (tail < paid.length - lead && idle.has(paid[paid.length - 1 - tail] as string) && (paid[paid.length - 1 - tail] as string) >= today) tail++;
+  while (
+    tail < paid.length - lead &&
+    idle.has(paid[paid.length - 1 - tail] as string) &&
+    (paid[paid.length - 1 - tail] as string) >= today
+  )
+    tail++;
   if (tail > 0) {
-    out.push({ kind: 'shorten_end', savesPence: tail * dayRatePence,
-      label: `Off-hire ${plural(tail, 'day')} earlier (last paid day ${dayWords(paid[paid.length - 1 - tail] as string)}): saves ${formatPence(tail * dayRatePence)}` });
+    out.push({
+      kind: 'shorten_end',
+      savesPence: tail * dayRatePence,
+      label: `Off-hire ${plural(tail, 'day')} earlier (last paid day ${dayWords(paid[paid.length - 1 - tail] as string)}): saves ${formatPence(tail * dayRatePence)}`,
+    });
   }
   // Idle runs in the middle: worth a collection and a fresh delivery only when they cost more.
   const refetch = charges.deliveryPence + charges.collectionPence;
   let i = lead;
   while (i < paid.length - tail) {
-    if (!idle.has(paid[i] as string) || (paid[i] as string) < today) { i++; continue; }
+    if (!idle.has(paid[i] as string) || (paid[i] as string) < today) {
+      i++;
+      continue;
+    }
     let j = i;
     while (j + 1 < paid.length - tail && idle.has(paid[j + 1] as string)) j++;
-    const run = j - i + 1, saves = run * dayRatePence - refetch;
+    const run = j - i + 1,
+      saves = run * dayRatePence - refetch;
     if (saves > 0) {
-      out.push({ kind: 'split', savesPence: saves,
-        label: `Off-hire over the ${plural(run, 'idle day')} ${dayWords(paid[i] as string)} to ${dayWords(paid[j] as string)} and hire again: saves ${formatPence(saves)} after ${formatPence(refetch)} collection and delivery` });
+      out.push({
+        kind: 'split',
+        savesPence: saves,
+        label: `Off-hire over the ${plural(run, 'idle day')} ${dayWords(paid[i] as string)} to ${dayWords(paid[j] as string)} and hire again: saves ${formatPence(saves)} after ${formatPence(refetch)} collection and delivery`,
+      });
     }
     i = j + 1;
   }
@@ -110,7 +149,8 @@ export function hireSuggestions(paid: readonly string[], idle: ReadonlySet<strin
  */
 export function hireReport(ctx: ReportContext, facts: ReadonlyMap<string, HirePeriodFacts>): HireReport {
   const today = dateIn(ctx, ctx.range.now);
-  const firstDay = dateIn(ctx, ctx.range.from), lastDay = dateIn(ctx, ctx.range.to - 1);
+  const firstDay = dateIn(ctx, ctx.range.from),
+    lastDay = dateIn(ctx, ctx.range.to - 1);
   const periods = ctx.data.hirePeriods
     .filter((p) => p.offHire > ctx.range.from && p.onHire < ctx.range.to && ctx.index.resources.has(p.resourceId))
     .sort((a, b) => a.onHire - b.onHire || (a.id < b.id ? -1 : 1));
@@ -122,11 +162,23 @@ export function hireReport(ctx: ReportContext, facts: ReadonlyMap<string, HirePe
     const name = resourceName(ctx, p.resourceId);
     const outside = ctx.violations.filter((v) => v.kind === 'hire' && v.resourceIds.includes(p.resourceId)).length;
     return {
-      id: p.id, resourceId: p.resourceId, resourceName: name,
-      supplierFirmId: f?.supplierFirmId ?? '', supplierName: f?.supplierName ?? '', status: f?.status ?? 'approved', version: f?.version ?? 1,
-      onHire: p.onHire, offHire: p.offHire, onHireDate: dateIn(ctx, p.onHire), offHireDate: dateIn(ctx, p.offHire - 1),
-      dayRatePence: p.dayRatePence, ...charges,
-      paidDays: idle.paidDays, bookedDays: idle.paidDays - idle.idleDays.length, idleDays: idle.idleDays, idleCostPence: idle.costPence,
+      id: p.id,
+      resourceId: p.resourceId,
+      resourceName: name,
+      supplierFirmId: f?.supplierFirmId ?? '',
+      supplierName: f?.supplierName ?? '',
+      status: f?.status ?? 'approved',
+      version: f?.version ?? 1,
+      onHire: p.onHire,
+      offHire: p.offHire,
+      onHireDate: dateIn(ctx, p.onHire),
+      offHireDate: dateIn(ctx, p.offHire - 1),
+      dayRatePence: p.dayRatePence,
+      ...charges,
+      paidDays: idle.paidDays,
+      bookedDays: idle.paidDays - idle.idleDays.length,
+      idleDays: idle.idleDays,
+      idleCostPence: idle.costPence,
       totalCostPence: idle.paidDays * p.dayRatePence + charges.deliveryPence + charges.collectionPence,
       bookingsOutsideHire: outside,
       suggestions: hireSuggestions(paid, new Set(idle.idleDays), p.dayRatePence, charges, today),
@@ -146,10 +198,13 @@ export function hireReport(ctx: ReportContext, facts: ReadonlyMap<string, HirePe
     }
   }
   return {
-    range: ctx.range, periods: rows,
+    range: ctx.range,
+    periods: rows,
     totals: {
-      paidDays: rows.reduce((n, r) => n + r.paidDays, 0), idleDays: rows.reduce((n, r) => n + r.idleDays.length, 0),
-      idleCostPence: rows.reduce((n, r) => n + r.idleCostPence, 0), totalCostPence: rows.reduce((n, r) => n + r.totalCostPence, 0),
+      paidDays: rows.reduce((n, r) => n + r.paidDays, 0),
+      idleDays: rows.reduce((n, r) => n + r.idleDays.length, 0),
+      idleCostPence: rows.reduce((n, r) => n + r.idleCostPence, 0),
+      totalCostPence: rows.reduce((n, r) => n + r.totalCostPence, 0),
     },
     idlePerWeek: [...perWeek.entries()].sort().map(([week, w]) => ({ week, ...w })),
   };
@@ -163,23 +218,46 @@ export function hireReport(ctx: ReportContext, facts: ReadonlyMap<string, HirePe
 function addMergeSuggestions(ctx: ReportContext, rows: HirePeriodRow[]): void {
   for (let i = 0; i < rows.length; i++) {
     for (let j = i + 1; j < rows.length; j++) {
-      const a = rows[i] as HirePeriodRow, b = rows[j] as HirePeriodRow;
+      const a = rows[i] as HirePeriodRow,
+        b = rows[j] as HirePeriodRow;
       if (a.resourceId !== b.resourceId) continue;
-      const pa = paidDaysOf(ctx, { id: a.id, resourceId: a.resourceId, onHire: a.onHire, offHire: a.offHire, dayRatePence: a.dayRatePence });
-      const pb = paidDaysOf(ctx, { id: b.id, resourceId: b.resourceId, onHire: b.onHire, offHire: b.offHire, dayRatePence: b.dayRatePence });
+      const pa = paidDaysOf(ctx, {
+        id: a.id,
+        resourceId: a.resourceId,
+        onHire: a.onHire,
+        offHire: a.offHire,
+        dayRatePence: a.dayRatePence,
+      });
+      const pb = paidDaysOf(ctx, {
+        id: b.id,
+        resourceId: b.resourceId,
+        onHire: b.onHire,
+        offHire: b.offHire,
+        dayRatePence: b.dayRatePence,
+      });
       const shared = pb.filter((d) => pa.includes(d)).length;
       if (shared > 0) {
-        const saves = shared * Math.min(a.dayRatePence, b.dayRatePence) + Math.min(a.collectionPence + b.deliveryPence, b.collectionPence + a.deliveryPence);
-        b.suggestions.push({ kind: 'merge', savesPence: saves, label: `Overlaps the hire from ${a.onHireDate} on ${plural(shared, 'day')}: merge them: saves ${formatPence(saves)}` });
+        const saves =
+          shared * Math.min(a.dayRatePence, b.dayRatePence) +
+          Math.min(a.collectionPence + b.deliveryPence, b.collectionPence + a.deliveryPence);
+        b.suggestions.push({
+          kind: 'merge',
+          savesPence: saves,
+          label: `Overlaps the hire from ${a.onHireDate} on ${plural(shared, 'day')}: merge them: saves ${formatPence(saves)}`,
+        });
         continue;
       }
       const cal = resourceCalendarOf(ctx.index, a.resourceId);
       let gap = 0;
-      for (let d = cal.dayOf(a.offHire - 1) + 1; d < cal.dayOf(b.onHire); d++) if (cal.dayIntervals(d).length > 0) gap++;
+      for (let d = cal.dayOf(a.offHire - 1) + 1; d < cal.dayOf(b.onHire); d++)
+        if (cal.dayIntervals(d).length > 0) gap++;
       const saves = a.collectionPence + b.deliveryPence - gap * a.dayRatePence;
       if (saves > 0) {
-        b.suggestions.push({ kind: 'merge', savesPence: saves,
-          label: `Keep it on hire through the ${plural(gap, 'working day')} since the hire ending ${a.offHireDate} instead of collecting and delivering again: saves ${formatPence(saves)}` });
+        b.suggestions.push({
+          kind: 'merge',
+          savesPence: saves,
+          label: `Keep it on hire through the ${plural(gap, 'working day')} since the hire ending ${a.offHireDate} instead of collecting and delivering again: saves ${formatPence(saves)}`,
+        });
       }
     }
   }

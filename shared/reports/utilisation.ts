@@ -1,7 +1,23 @@
-import { DAY_MS, formatInstant, resourceCalendarOf, workingMinutesBetween, type Booking, type CompiledCalendar, type Interval } from '../scheduler/index.ts';
+import {
+  DAY_MS,
+  formatInstant,
+  resourceCalendarOf,
+  workingMinutesBetween,
+  type Booking,
+  type CompiledCalendar,
+  type Interval,
+} from '../scheduler/index.ts';
 import { ELSEWHERE_JOB_ID } from '../board-data.ts';
 import { boardLink, dateIn, jobOfStage, namedMessage, type ReportContext } from './context.ts';
-import type { RiskItem, RiskReason, RiskRow, RiskStatus, UtilisationGroup, UtilisationReport, UtilisationRow } from './types.ts';
+import type {
+  RiskItem,
+  RiskReason,
+  RiskRow,
+  RiskStatus,
+  UtilisationGroup,
+  UtilisationReport,
+  UtilisationRow,
+} from './types.ts';
 import { weeksOf } from './weeks.ts';
 import { deadlineDate } from '../local-dates.ts';
 
@@ -13,7 +29,9 @@ import { deadlineDate } from '../local-dates.ts';
  * unionWithin([{ start: 0, end: 10 }, { start: 5, end: 20 }], 0, 15) // [{ start: 0, end: 15 }]
  */
 export function unionWithin(spans: readonly Interval[], from: number, to: number): Interval[] {
-  const clipped = spans.map((s) => ({ start: Math.max(s.start, from), end: Math.min(s.end, to) })).filter((s) => s.end > s.start)
+  const clipped = spans
+    .map((s) => ({ start: Math.max(s.start, from), end: Math.min(s.end, to) }))
+    .filter((s) => s.end > s.start)
     .sort((a, b) => a.start - b.start);
   const out: Interval[] = [];
   for (const s of clipped) {
@@ -30,7 +48,12 @@ export function unionWithin(spans: readonly Interval[], from: number, to: number
  * @example
  * bookedWorkingMinutes(crewCal, [tue0800to1700, wed0800to1700], mon0000, sat0000) // 1080 (2 × 9 h)
  */
-export function bookedWorkingMinutes(cal: CompiledCalendar, bookings: readonly Interval[], from: number, to: number): number {
+export function bookedWorkingMinutes(
+  cal: CompiledCalendar,
+  bookings: readonly Interval[],
+  from: number,
+  to: number,
+): number {
   let n = 0;
   for (const s of unionWithin(bookings, from, to)) n += workingMinutesBetween(cal, s.start, s.end);
   return n;
@@ -43,7 +66,8 @@ function groupOf(r: { category: string; ownership: string }): UtilisationGroup |
   return null; // the firm's own people are counted through their crews
 }
 
-const ratio = (booked: number, available: number) => (available > 0 ? Math.round((booked / available) * 10_000) / 10_000 : 0);
+const ratio = (booked: number, available: number) =>
+  available > 0 ? Math.round((booked / available) * 10_000) / 10_000 : 0;
 
 /**
  * Booked against available working time per crew, machine and partner resource over the range
@@ -62,16 +86,25 @@ export function utilisationRows(ctx: ReportContext): { weeks: string[]; rows: Ut
     if (group === null) continue;
     const cal = resourceCalendarOf(ctx.index, r.id);
     const list = ctx.index.bookingsByResource.get(r.id)?.list ?? [];
-    const own: Booking[] = [], elsewhere: Booking[] = [];
+    const own: Booking[] = [],
+      elsewhere: Booking[] = [];
     for (const b of list) (b.installerFirmId === ELSEWHERE_JOB_ID ? elsewhere : own).push(b);
     const { from, to } = ctx.range;
     const available = workingMinutesBetween(cal, from, to);
     const booked = bookedWorkingMinutes(cal, own, from, to);
     rows.push({
-      resourceId: r.id, resourceName: r.name, firmName: r.firmName, group, kind: r.kind,
-      availableMinutes: available, bookedMinutes: booked, elsewhereMinutes: bookedWorkingMinutes(cal, elsewhere, from, to), ratio: ratio(booked, available),
+      resourceId: r.id,
+      resourceName: r.name,
+      firmName: r.firmName,
+      group,
+      kind: r.kind,
+      availableMinutes: available,
+      bookedMinutes: booked,
+      elsewhereMinutes: bookedWorkingMinutes(cal, elsewhere, from, to),
+      ratio: ratio(booked, available),
       weeks: weeks.map((w) => {
-        const a = workingMinutesBetween(cal, w.start, w.end), b = bookedWorkingMinutes(cal, own, w.start, w.end);
+        const a = workingMinutesBetween(cal, w.start, w.end),
+          b = bookedWorkingMinutes(cal, own, w.start, w.end);
         return { week: w.week, availableMinutes: a, bookedMinutes: b, ratio: ratio(b, a) };
       }),
       link: boardLink(dateIn(ctx, Math.max(from, Math.min(ctx.range.now, to - 1))), { resourceName: r.name }),
@@ -84,7 +117,12 @@ export function utilisationRows(ctx: ReportContext): { weeks: string[]; rows: Ut
 
 /** The engine's checks that make a job's booked plan unworkable, as the risk they are. */
 const PLAN_PROBLEMS: Record<string, RiskReason> = {
-  lead_time: 'lead_time', capacity: 'short_resourced', order: 'order', lag: 'order', cure: 'order', cycle: 'order',
+  lead_time: 'lead_time',
+  capacity: 'short_resourced',
+  order: 'order',
+  lag: 'order',
+  cure: 'order',
+  cycle: 'order',
 };
 /** Reasons that mean the job can't go ahead as booked, whatever its dates. */
 const BLOCKING_REASONS: ReadonlySet<RiskReason> = new Set(['lead_time', 'short_resourced', 'order']);
@@ -96,10 +134,17 @@ const BLOCKING_REASONS: ReadonlySet<RiskReason> = new Set(['lead_time', 'short_r
  * @example
  * riskStatus(0, [{ reason: 'short_resourced', label: '…' }]) // { status: 'blocked', statusLabel: "Can't go ahead as booked" }
  */
-export function riskStatus(lateByMs: number, reasons: readonly RiskItem[]): { status: RiskStatus; statusLabel: string } {
+export function riskStatus(
+  lateByMs: number,
+  reasons: readonly RiskItem[],
+): { status: RiskStatus; statusLabel: string } {
   if (lateByMs > 0) return { status: 'late', statusLabel: `${Math.ceil(lateByMs / DAY_MS)} d late` };
-  if (reasons.some((r) => BLOCKING_REASONS.has(r.reason))) return { status: 'blocked', statusLabel: "Can't go ahead as booked" };
-  return { status: 'waiting', statusLabel: reasons.some((r) => r.reason === 'overdue') ? 'Answer overdue' : 'Waiting for an answer' };
+  if (reasons.some((r) => BLOCKING_REASONS.has(r.reason)))
+    return { status: 'blocked', statusLabel: "Can't go ahead as booked" };
+  return {
+    status: 'waiting',
+    statusLabel: reasons.some((r) => r.reason === 'overdue') ? 'Answer overdue' : 'Waiting for an answer',
+  };
 }
 
 /**
@@ -121,7 +166,10 @@ export function riskRows(ctx: ReportContext, overdueBookingIds: ReadonlySet<stri
     if (!job || job.id === ELSEWHERE_JOB_ID || cp.lateByMs <= 0 || cp.promisedBy === null) continue;
     const days = Math.ceil(cp.lateByMs / DAY_MS);
     // The deadline is the instant the promised day ends; its last millisecond still shows that day.
-    add(job.id, { reason: 'late', label: `Finishes ${days} day${days === 1 ? '' : 's'} after the promised date (${formatInstant(cp.promisedBy - 1, tz).slice(0, -6)})` });
+    add(job.id, {
+      reason: 'late',
+      label: `Finishes ${days} day${days === 1 ? '' : 's'} after the promised date (${formatInstant(cp.promisedBy - 1, tz).slice(0, -6)})`,
+    });
   }
   const inRange = (b: { start: number; end: number }) => b.end > ctx.range.from && b.start < ctx.range.to;
   // One line per job and partner firm: the stages still waiting for that firm's answer.
@@ -138,12 +186,17 @@ export function riskRows(ctx: ReportContext, overdueBookingIds: ReadonlySet<stri
     waiting.set(key, w);
   }
   for (const w of waiting.values()) {
-    add(w.jobId, { reason: w.overdue ? 'overdue' : 'waiting', label: `${w.overdue ? 'Answer overdue' : 'Waiting for an answer'} from ${w.firm}: ${w.what.join(', ')}` });
+    add(w.jobId, {
+      reason: w.overdue ? 'overdue' : 'waiting',
+      label: `${w.overdue ? 'Answer overdue' : 'Waiting for an answer'} from ${w.firm}: ${w.what.join(', ')}`,
+    });
   }
   for (const v of ctx.violations) {
     const reason = PLAN_PROBLEMS[v.kind];
     if (reason === undefined || v.severity !== 'error') continue;
-    const own = v.bookingIds.map((id) => ctx.bookings.get(id)).filter((b): b is NonNullable<typeof b> => b !== undefined && !b.elsewhere);
+    const own = v.bookingIds
+      .map((id) => ctx.bookings.get(id))
+      .filter((b): b is NonNullable<typeof b> => b !== undefined && !b.elsewhere);
     const job = v.stageIds.map((id) => jobOfStage(ctx, id)).find((j) => j !== undefined);
     // A problem counts in the span when one of its bookings does (a cycle names stages only).
     if (!job || (own.length > 0 ? !own.some(inRange) : v.bookingIds.length > 0)) continue;
@@ -153,18 +206,33 @@ export function riskRows(ctx: ReportContext, overdueBookingIds: ReadonlySet<stri
   const rows: RiskRow[] = [...byJob.entries()].map(([jobId, reasons]) => {
     const job = ctx.jobs.get(jobId)!;
     const cp = cps.get(jobId);
-    const firstBooking = ctx.data.bookings.filter((b) => !b.elsewhere && jobOfStage(ctx, b.stageId)?.id === jobId && b.end > ctx.range.now)
+    const firstBooking = ctx.data.bookings
+      .filter((b) => !b.elsewhere && jobOfStage(ctx, b.stageId)?.id === jobId && b.end > ctx.range.now)
       .reduce<number | null>((m, b) => (m === null || b.start < m ? b.start : m), null);
     return {
-      jobId, reference: job.reference, customerName: job.customerName, siteTown: job.siteTown, promisedBy: job.promisedBy ?? null,
+      jobId,
+      reference: job.reference,
+      customerName: job.customerName,
+      siteTown: job.siteTown,
+      promisedBy: job.promisedBy ?? null,
       // The deadline is the instant the promised day ends (shared/local-dates.ts): its date is the day before it.
       promisedDate: job.promisedBy == null ? null : deadlineDate(job.promisedBy, ctx.range.timeZone),
-      lateByMs: cp?.lateByMs ?? 0, floatMinutes: cp?.floatMinutes ?? 0, reasons, ...riskStatus(cp?.lateByMs ?? 0, reasons),
+      lateByMs: cp?.lateByMs ?? 0,
+      floatMinutes: cp?.floatMinutes ?? 0,
+      reasons,
+      ...riskStatus(cp?.lateByMs ?? 0, reasons),
       link: boardLink(dateIn(ctx, firstBooking ?? ctx.range.now), { jobId }),
     };
   });
   const rank: Record<RiskStatus, number> = { late: 0, blocked: 1, waiting: 2 };
-  rows.sort((a, b) => b.lateByMs - a.lateByMs || rank[a.status] - rank[b.status] || b.reasons.length - a.reasons.length || (a.promisedBy ?? Infinity) - (b.promisedBy ?? Infinity) || a.reference.localeCompare(b.reference));
+  rows.sort(
+    (a, b) =>
+      b.lateByMs - a.lateByMs ||
+      rank[a.status] - rank[b.status] ||
+      b.reasons.length - a.reasons.length ||
+      (a.promisedBy ?? Infinity) - (b.promisedBy ?? Infinity) ||
+      a.reference.localeCompare(b.reference),
+  );
   return rows;
 }
 

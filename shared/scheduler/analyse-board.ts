@@ -71,7 +71,9 @@ export function analyseBoard(board: Board, options: AnalyseBoardOptions): BoardA
   let errorCount = 0;
   for (const v of violations) if (v.severity === 'error') errorCount++;
   return {
-    violations, errorCount, warningCount: violations.length - errorCount,
+    violations,
+    errorCount,
+    warningCount: violations.length - errorCount,
     criticalPaths: options.skipCriticalPath ? [] : boardCriticalPath(index),
   };
 }

@@ -71,7 +71,11 @@ export interface AutoPlaceResult {
   source: 'single-pass' | 'search';
 }
 
-interface Priority { float: number; promised: number; id: string }
+interface Priority {
+  float: number;
+  promised: number;
+  id: string;
+}
 
 function better(a: Priority, b: Priority): boolean {
   if (a.float !== b.float) return a.float < b.float;
@@ -108,15 +112,29 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
   for (const s of board.stages) {
     if (!jobIds.has(s.jobId)) continue;
     if (bookingsOfStage(index, s.id).length > 0) continue;
-    if (inCycle.has(s.id)) { early.push({ stageId: s.id, reason: 'It waits for itself through a circle of dependencies' }); continue; }
-    if (s.requirements.length === 0) { early.push({ stageId: s.id, reason: 'It needs no crew or machine, so there is nothing to book' }); continue; }
+    if (inCycle.has(s.id)) {
+      early.push({ stageId: s.id, reason: 'It waits for itself through a circle of dependencies' });
+      continue;
+    }
+    if (s.requirements.length === 0) {
+      early.push({ stageId: s.id, reason: 'It needs no crew or machine, so there is nothing to book' });
+      continue;
+    }
     pending.push(s);
   }
-  const priority = (s: Stage): Priority => ({ float: floats.get(s.id) ?? 0, promised: index.jobs.get(s.jobId)?.promisedBy ?? Number.POSITIVE_INFINITY, id: s.id });
+  const priority = (s: Stage): Priority => ({
+    float: floats.get(s.id) ?? 0,
+    promised: index.jobs.get(s.jobId)?.promisedBy ?? Number.POSITIVE_INFINITY,
+    id: s.id,
+  });
   const single = placeStages(index, pending, horizonDays, (a, b) => better(priority(a), priority(b)));
   let best: AutoPlaceResult = {
-    bookings: single.bookings, placed: single.placed, unplaced: [...early, ...single.unplaced], order: single.order,
-    costs: planCosts(index, pending, early.length + single.unplaced.length), source: 'single-pass',
+    bookings: single.bookings,
+    placed: single.placed,
+    unplaced: [...early, ...single.unplaced],
+    order: single.order,
+    costs: planCosts(index, pending, early.length + single.unplaced.length),
+    source: 'single-pass',
   };
   single.undo();
   const budget = options.budgetMs ?? ((options.jobIds?.length ?? 2) > 1 ? 2000 : 300);
@@ -128,7 +146,9 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
   const pos = new Map(pending.map((s, i) => [s.id, i]));
   const singleList = single.order.map((id) => pos.get(id) as number);
   const candidates = searchPlans(model, {
-    seed: options.seed ?? 1, workLimit: budget * WORK_PER_MS, seedLists: [singleList],
+    seed: options.seed ?? 1,
+    workLimit: budget * WORK_PER_MS,
+    seedLists: [singleList],
     onProgress: (p) => options.onProgress?.({ phase: 'search', ...p }),
   });
   // Each of the best orders placed for real; stop once the engine agrees with the quick model.
@@ -140,15 +160,33 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
     const costs = planCosts(index, pending, early.length + tried.unplaced.length);
     tried.undo();
     if (comparePlanCosts(costs, best.costs) < 0) {
-      best = { bookings: tried.bookings, placed: tried.placed, unplaced: [...early, ...tried.unplaced], order: tried.order, costs, source: 'search' };
+      best = {
+        bookings: tried.bookings,
+        placed: tried.placed,
+        unplaced: [...early, ...tried.unplaced],
+        order: tried.order,
+        costs,
+        source: 'search',
+      };
     }
-    if (tried.unplaced.length === 0 && c === candidates[0] && matchesModel(model.unitMinutes, c.start, tried.placed, pending, index.now)) break;
+    if (
+      tried.unplaced.length === 0 &&
+      c === candidates[0] &&
+      matchesModel(model.unitMinutes, c.start, tried.placed, pending, index.now)
+    )
+      break;
   }
   return best;
 }
 
 /** True when every stage was placed where the quick model put it (the model was exact here). */
-function matchesModel(unitMinutes: number, start: Int32Array, placed: readonly { stageId: string; start: Instant }[], pending: readonly Stage[], now: Instant): boolean {
+function matchesModel(
+  unitMinutes: number,
+  start: Int32Array,
+  placed: readonly { stageId: string; start: Instant }[],
+  pending: readonly Stage[],
+  now: Instant,
+): boolean {
   const at = new Map(placed.map((p) => [p.stageId, p.start]));
   return pending.every((s, j) => at.get(s.id) === now + (start[j] as number) * unitMinutes * 60_000);
 }

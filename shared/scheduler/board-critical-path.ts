@@ -51,7 +51,10 @@ const TOLERANCE_MINUTES = 0.5;
 
 /** Per-stage numbers of one run, in typed arrays indexed by StageInfo.idx (no per-stage objects). */
 interface Work {
-  es: Float64Array; ef: Float64Array; ls: Float64Array; lf: Float64Array;
+  es: Float64Array;
+  ef: Float64Array;
+  ls: Float64Array;
+  lf: Float64Array;
   d: Float64Array;
   /** Elapsed days of cure after the stage (0 without a cure rule); counted only on links that wait for it. */
   cure: Float64Array;
@@ -94,7 +97,8 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
       es[i] = start;
       ef[i] = addWorkingMinutes(c, start, di);
     }
-    let start = Number.POSITIVE_INFINITY, finish = Number.NEGATIVE_INFINITY;
+    let start = Number.POSITIVE_INFINITY,
+      finish = Number.NEGATIVE_INFINITY;
     for (const x of job.stages) {
       if ((es[x.idx] as number) < start) start = es[x.idx] as number;
       if ((ef[x.idx] as number) > finish) finish = ef[x.idx] as number;
@@ -136,14 +140,23 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
         const own = (dep.type === 'FS' || dep.type === 'FF' ? ef[i] : es[i]) as number;
         free = Math.min(free, workingMinutesBetween(c, own, reverseLag(cal[s] as CompiledCalendar, subject, dep.lag)));
         const ci = cure[i] as number;
-        if (ci > 0 && dep.waitsForCure === true) free = Math.min(free, workingMinutesBetween(c, ef[i] as number, (es[s] as number) - ci * DAY_MS));
+        if (ci > 0 && dep.waitsForCure === true)
+          free = Math.min(free, workingMinutesBetween(c, ef[i] as number, (es[s] as number) - ci * DAY_MS));
       }
       const total = workingMinutesBetween(c, es[i] as number, ls[i] as number);
       if (total < minFloat) minFloat = total;
       timings[k] = {
-        stageId: x.stage.id, booked: booked[i] === 1, calendarId: c.source.id, durationMinutes: d[i] as number,
-        es: es[i] as number, ef: ef[i] as number, ls: ls[i] as number, lf: lf[i] as number,
-        totalFloatMinutes: total, freeFloatMinutes: free, critical: false,
+        stageId: x.stage.id,
+        booked: booked[i] === 1,
+        calendarId: c.source.id,
+        durationMinutes: d[i] as number,
+        es: es[i] as number,
+        ef: ef[i] as number,
+        ls: ls[i] as number,
+        lf: lf[i] as number,
+        totalFloatMinutes: total,
+        freeFloatMinutes: free,
+        critical: false,
       };
     }
     const critical: string[] = [];
@@ -152,9 +165,14 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
       if (t.critical) critical.push(t.stageId);
     }
     out[j] = {
-      jobId: job.jobId, start, finish, promisedBy: job.promisedBy,
+      jobId: job.jobId,
+      start,
+      finish,
+      promisedBy: job.promisedBy,
       lateByMs: job.promisedBy === null ? 0 : Math.max(0, finish - job.promisedBy),
-      floatMinutes: timings.length === 0 ? 0 : minFloat, criticalStageIds: critical, stages: timings,
+      floatMinutes: timings.length === 0 ? 0 : minFloat,
+      criticalStageIds: critical,
+      stages: timings,
     };
   });
   return out;
@@ -171,25 +189,40 @@ function stagesByJob(index: BoardIndex): Map<string, StageInfo[]> {
     m = new Map();
     for (const info of index.order) {
       const l = m.get(info.stage.jobId);
-      if (l === undefined) m.set(info.stage.jobId, [info]); else l.push(info);
+      if (l === undefined) m.set(info.stage.jobId, [info]);
+      else l.push(info);
     }
     byJobCache.set(index, m);
   }
   return m;
 }
 
-function prepare(index: BoardIndex, wanted: ((jobId: string) => boolean) | string, bookingsOfOpt?: BookingsOf): { jobs: JobWork[]; work: Work } {
+function prepare(
+  index: BoardIndex,
+  wanted: ((jobId: string) => boolean) | string,
+  bookingsOfOpt?: BookingsOf,
+): { jobs: JobWork[]; work: Work } {
   const skip = new Set<string>();
-  for (const id of index.blocked) { const j = index.stages.get(id)?.stage.jobId; if (j !== undefined) skip.add(j); }
+  for (const id of index.blocked) {
+    const j = index.stages.get(id)?.stage.jobId;
+    if (j !== undefined) skip.add(j);
+  }
   const n = index.stageList.length;
   const w: Work = {
-    es: new Float64Array(n), ef: new Float64Array(n), ls: new Float64Array(n), lf: new Float64Array(n),
-    d: new Float64Array(n), cure: new Float64Array(n), booked: new Uint8Array(n), job: new Int32Array(n),
+    es: new Float64Array(n),
+    ef: new Float64Array(n),
+    ls: new Float64Array(n),
+    lf: new Float64Array(n),
+    d: new Float64Array(n),
+    cure: new Float64Array(n),
+    booked: new Uint8Array(n),
+    job: new Int32Array(n),
     cal: new Array<CompiledCalendar>(n),
   };
   const jobPos = new Map<string, number>();
   const jobs: JobWork[] = [];
-  let lastId = '', lastPos = -1;
+  let lastId = '',
+    lastPos = -1;
   const source = typeof wanted === 'string' ? (stagesByJob(index).get(wanted) ?? []) : index.order;
   for (const info of source) {
     const stage = info.stage;
@@ -201,7 +234,8 @@ function prepare(index: BoardIndex, wanted: ((jobId: string) => boolean) | strin
       jobs.push({ jobId: stage.jobId, promisedBy: index.jobs.get(stage.jobId)?.promisedBy ?? null, stages: [] });
       jobPos.set(stage.jobId, pos);
     }
-    lastId = stage.jobId; lastPos = pos;
+    lastId = stage.jobId;
+    lastPos = pos;
     const i = info.idx;
     const own = bookingsOfOpt === undefined ? info.bookings : bookingsOfOpt(stage.id);
     const c = stageCalendarOf(index, stage.id, own);
@@ -209,12 +243,19 @@ function prepare(index: BoardIndex, wanted: ((jobId: string) => boolean) | strin
     w.job[i] = pos + 1;
     if (stage.cure) {
       let days = cureDaysCache.get(stage.cure);
-      if (days === undefined) { days = cureRelease(0, stage.cure).elapsedDays; cureDaysCache.set(stage.cure, days); }
+      if (days === undefined) {
+        days = cureRelease(0, stage.cure).elapsedDays;
+        cureDaysCache.set(stage.cure, days);
+      }
       w.cure[i] = days;
     }
     if (own.length > 0) {
-      const a = spanStart(own), b = spanEnd(own);
-      w.booked[i] = 1; w.es[i] = a; w.ef[i] = b; w.d[i] = workingMinutesBetween(c, a, b);
+      const a = spanStart(own),
+        b = spanEnd(own);
+      w.booked[i] = 1;
+      w.es[i] = a;
+      w.ef[i] = b;
+      w.d[i] = workingMinutesBetween(c, a, b);
     } else {
       w.d[i] = stage.durationMinutes;
     }
@@ -234,17 +275,32 @@ function prepare(index: BoardIndex, wanted: ((jobId: string) => boolean) | strin
  * const cp = jobCriticalPath(createBoardIndex(board, { now }), 'job-1')
  * cp.criticalStageIds // ['survey-1', 'excavation-1', 'base-1', 'lift-1', …]
  */
-export function jobCriticalPath(index: BoardIndex, jobId: string, options: JobCriticalPathOptions = {}): JobCriticalPath {
+export function jobCriticalPath(
+  index: BoardIndex,
+  jobId: string,
+  options: JobCriticalPathOptions = {},
+): JobCriticalPath {
   for (const id of index.blocked) {
     if (index.stages.get(id)?.stage.jobId === jobId) {
-      throw new SchedulerError('cycle', `The stages of job ${jobId} wait for each other in a circle`, { cycles: index.cycles });
+      throw new SchedulerError('cycle', `The stages of job ${jobId} wait for each other in a circle`, {
+        cycles: index.cycles,
+      });
     }
   }
   const { jobs, work } = prepare(index, jobId, options.bookingsOf);
   const result = run(index, jobs, work)[0];
   if (result !== undefined) return result;
   const promisedBy = index.jobs.get(jobId)?.promisedBy ?? null;
-  return { jobId, start: index.now, finish: index.now, promisedBy, lateByMs: 0, floatMinutes: 0, criticalStageIds: [], stages: [] };
+  return {
+    jobId,
+    start: index.now,
+    finish: index.now,
+    promisedBy,
+    lateByMs: 0,
+    floatMinutes: 0,
+    criticalStageIds: [],
+    stages: [],
+  };
 }
 
 /**

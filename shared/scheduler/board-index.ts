@@ -153,7 +153,10 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
   const resourcesOfPerson = new Map<string, string[]>();
   for (const r of board.resources) {
     if (!calendars.has(r.calendarId)) {
-      throw new SchedulerError('unknown_calendar', `Resource ${r.id} works to calendar ${r.calendarId}, which is not on the board`);
+      throw new SchedulerError(
+        'unknown_calendar',
+        `Resource ${r.id} works to calendar ${r.calendarId}, which is not on the board`,
+      );
     }
     resources.set(r.id, r);
     resourceInfo.set(r.id, { resource: r, cal: calendars.get(r.calendarId) as CompiledCalendar });
@@ -186,10 +189,16 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
       throw new RangeError(`Booking ${b.id} must end after it starts`);
     }
     const info = stages.get(b.stageId);
-    if (info === undefined) throw new SchedulerError('unknown_stage', `Booking ${b.id} is for stage ${b.stageId}, which is not on the board`);
-    if (!resourceInfo.has(b.resourceId)) throw new SchedulerError('unknown_resource', `Booking ${b.id} is for resource ${b.resourceId}, which is not on the board`);
+    if (info === undefined)
+      throw new SchedulerError('unknown_stage', `Booking ${b.id} is for stage ${b.stageId}, which is not on the board`);
+    if (!resourceInfo.has(b.resourceId))
+      throw new SchedulerError(
+        'unknown_resource',
+        `Booking ${b.id} is for resource ${b.resourceId}, which is not on the board`,
+      );
     if (b.state === 'declined') continue;
-    if (info.bookings.length === 0) info.bookings = [b]; else info.bookings.push(b);
+    if (info.bookings.length === 0) info.bookings = [b];
+    else info.bookings.push(b);
     push(byResource, b.resourceId, b);
   }
   for (const info of stageList) if (info.bookings.length > 1) info.bookings.sort(byId);
@@ -201,13 +210,16 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
     bookingsByResource.set(rid, { list, maxLength });
   }
   for (const d of board.dependencies) {
-    const from = stages.get(d.fromStageId), to = stages.get(d.toStageId);
+    const from = stages.get(d.fromStageId),
+      to = stages.get(d.toStageId);
     if (from === undefined || to === undefined) {
       throw new SchedulerError('unknown_stage', `Dependency ${d.id} links a stage that is not on the board`);
     }
     const link: DepLink = { dep: d, from, to };
-    if (from.depsOut.length === 0) from.depsOut = [link]; else from.depsOut.push(link);
-    if (to.depsIn.length === 0) to.depsIn = [link]; else to.depsIn.push(link);
+    if (from.depsOut.length === 0) from.depsOut = [link];
+    else from.depsOut.push(link);
+    if (to.depsIn.length === 0) to.depsIn = [link];
+    else to.depsIn.push(link);
   }
   const hireByResource = new Map<string, HirePeriod[]>();
   for (const h of board.hirePeriods) {
@@ -217,8 +229,24 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
   for (const l of hireByResource.values()) l.sort((a, b) => a.onHire - b.onHire);
   const { order, blocked, cycles } = orderStages(stageList);
   return {
-    board, now: options.now, stepMinutes, seesAllBookings: options.seesAllBookings !== false, stages, stageList, jobs, resources,
-    resourceInfo, calendars, bookingsByResource, personsOfResource, resourcesOfPerson, hireByResource, resourcesByKind, cycles, order, blocked,
+    board,
+    now: options.now,
+    stepMinutes,
+    seesAllBookings: options.seesAllBookings !== false,
+    stages,
+    stageList,
+    jobs,
+    resources,
+    resourceInfo,
+    calendars,
+    bookingsByResource,
+    personsOfResource,
+    resourcesOfPerson,
+    hireByResource,
+    resourcesByKind,
+    cycles,
+    order,
+    blocked,
   };
 }
 
@@ -270,7 +298,11 @@ export function stageCalendarOf(index: BoardIndex, stageId: string, bookings: re
  * @example
  * kindCalendarOf(index, 'electrician', 'installer-1')?.source.id // 'cal-electricians'
  */
-export function kindCalendarOf(index: BoardIndex, kind: string, firmId: string | undefined): CompiledCalendar | undefined {
+export function kindCalendarOf(
+  index: BoardIndex,
+  kind: string,
+  firmId: string | undefined,
+): CompiledCalendar | undefined {
   const candidates = index.resourcesByKind.get(kind);
   if (candidates === undefined || candidates.length === 0) return undefined;
   const own = candidates.find((r) => r.firmId === firmId) ?? (candidates[0] as Resource);
@@ -297,7 +329,10 @@ export function bookingsOfStage(index: BoardIndex, stageId: string): readonly Bo
  */
 export function spanStart(bookings: readonly Booking[]): number {
   let t = (bookings[0] as Booking).start;
-  for (let i = 1; i < bookings.length; i++) { const s = (bookings[i] as Booking).start; if (s < t) t = s; }
+  for (let i = 1; i < bookings.length; i++) {
+    const s = (bookings[i] as Booking).start;
+    if (s < t) t = s;
+  }
   return t;
 }
 
@@ -309,7 +344,10 @@ export function spanStart(bookings: readonly Booking[]): number {
  */
 export function spanEnd(bookings: readonly Booking[]): number {
   let t = (bookings[0] as Booking).end;
-  for (let i = 1; i < bookings.length; i++) { const e = (bookings[i] as Booking).end; if (e > t) t = e; }
+  for (let i = 1; i < bookings.length; i++) {
+    const e = (bookings[i] as Booking).end;
+    if (e > t) t = e;
+  }
   return t;
 }
 
@@ -321,7 +359,8 @@ export function spanEnd(bookings: readonly Booking[]): number {
  */
 export function spanOf(bookings: readonly Booking[]): { start: number; end: number } | null {
   if (bookings.length === 0) return null;
-  let start = Number.POSITIVE_INFINITY, end = Number.NEGATIVE_INFINITY;
+  let start = Number.POSITIVE_INFINITY,
+    end = Number.NEGATIVE_INFINITY;
   for (const b of bookings) {
     if (b.start < start) start = b.start;
     if (b.end > end) end = b.end;

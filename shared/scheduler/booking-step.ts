@@ -54,7 +54,11 @@ function round(instant: Instant, timeZone: string, stepMinutes: number, up: bool
  * roundUpToStep(Date.UTC(2026, 4, 12, 12, 56), 'Europe/London', 15) // Date.UTC(2026, 4, 12, 13, 0) (14:00 BST)
  * roundUpToStep(Date.UTC(2026, 0, 5, 4, 50), 'Asia/Kolkata', 60)   // Date.UTC(2026, 0, 5, 5, 30) (11:00 IST)
  */
-export function roundUpToStep(instant: Instant, timeZone: string, stepMinutes: number = DEFAULT_BOOKING_STEP_MINUTES): Instant {
+export function roundUpToStep(
+  instant: Instant,
+  timeZone: string,
+  stepMinutes: number = DEFAULT_BOOKING_STEP_MINUTES,
+): Instant {
   return round(instant, timeZone, stepMinutes, true);
 }
 
@@ -64,7 +68,11 @@ export function roundUpToStep(instant: Instant, timeZone: string, stepMinutes: n
  * @example
  * roundDownToStep(Date.UTC(2026, 4, 12, 11, 37), 'Europe/London', 15) // Date.UTC(2026, 4, 12, 11, 30) (12:30 BST)
  */
-export function roundDownToStep(instant: Instant, timeZone: string, stepMinutes: number = DEFAULT_BOOKING_STEP_MINUTES): Instant {
+export function roundDownToStep(
+  instant: Instant,
+  timeZone: string,
+  stepMinutes: number = DEFAULT_BOOKING_STEP_MINUTES,
+): Instant {
   return round(instant, timeZone, stepMinutes, false);
 }
 
@@ -86,7 +94,8 @@ export function longestWorkingDayMinutes(cal: Cal): number {
     n = 0;
     for (const day of source.weekly) {
       const ranges = day.slice().sort((a, b) => a[0] - b[0]);
-      let total = 0, reach = 0;
+      let total = 0,
+        reach = 0;
       for (const [s, e] of ranges) {
         const from = Math.max(s, reach);
         if (e > from) total += e - from;
@@ -108,14 +117,19 @@ export function longestWorkingDayMinutes(cal: Cal): number {
  * mustFitInOneDay({ ...wallsStage, durationMinutes: 960 }, groundworks)    // false: longer than a day
  */
 export function mustFitInOneDay(stage: Pick<Stage, 'durationMinutes' | 'mayContinueNextDay'>, cal: Cal): boolean {
-  return stage.mayContinueNextDay !== true && stage.durationMinutes > 0 && stage.durationMinutes <= longestWorkingDayMinutes(cal);
+  return (
+    stage.mayContinueNextDay !== true &&
+    stage.durationMinutes > 0 &&
+    stage.durationMinutes <= longestWorkingDayMinutes(cal)
+  );
 }
 
 /** Working milliseconds of a day's intervals from `t` on. */
 function workLeft(ivs: readonly number[], t: number): number {
   let w = 0;
   for (let i = 0; i < ivs.length; i += 2) {
-    const s = Math.max(ivs[i] as number, t), e = ivs[i + 1] as number;
+    const s = Math.max(ivs[i] as number, t),
+      e = ivs[i + 1] as number;
     if (e > s) w += e - s;
   }
   return w;
@@ -149,14 +163,20 @@ export function bookableStart(cal: Cal, instant: Instant, options: BookableStart
   for (let n = 0; n < 4 * 3660; n++) {
     t = nextWorkingInstant(c, t);
     const stepped = roundUpToStep(t, c.timeZone, step);
-    if (stepped !== t && !isWorkingInstant(c, stepped)) { t = stepped; continue; }
+    if (stepped !== t && !isWorkingInstant(c, stepped)) {
+      t = stepped;
+      continue;
+    }
     t = stepped;
     if (fit <= 0) return t;
     const day = c.dayOf(t);
     if (workLeft(c.dayIntervals(day), t) >= fit) return t;
     t = localToInstant(c.timeZone, day + 1, 0);
   }
-  throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working day long enough within ten years`);
+  throw new SchedulerError(
+    'no_working_time',
+    `Calendar ${c.source.id} has no working day long enough within ten years`,
+  );
 }
 
 /**
@@ -169,11 +189,15 @@ export function bookableStart(cal: Cal, instant: Instant, options: BookableStart
 export function workingDaysWithin(cal: Cal, start: Instant, end: Instant, limit = 2): number[] {
   const c = compileCalendar(cal);
   const out: number[] = [];
-  const first = c.dayOf(start), last = Math.min(c.dayOf(end - 1), first + 3660);
+  const first = c.dayOf(start),
+    last = Math.min(c.dayOf(end - 1), first + 3660);
   for (let d = first; d <= last && out.length < limit; d++) {
     const ivs = c.dayIntervals(d);
     for (let i = 0; i < ivs.length; i += 2) {
-      if ((ivs[i + 1] as number) > start && (ivs[i] as number) < end) { out.push(d); break; }
+      if ((ivs[i + 1] as number) > start && (ivs[i] as number) < end) {
+        out.push(d);
+        break;
+      }
     }
   }
   return out;

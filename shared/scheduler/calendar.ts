@@ -80,7 +80,10 @@ class CalendarImpl implements CompiledCalendar {
       return this.dayIntervals(day);
     }
     let far = this.farDays.get(day);
-    if (far === undefined) { far = this.build(day); this.farDays.set(day, far); }
+    if (far === undefined) {
+      far = this.build(day);
+      this.farDays.set(day, far);
+    }
     return far;
   }
 
@@ -99,7 +102,10 @@ class CalendarImpl implements CompiledCalendar {
     // Working time is counted day by day from the first day asked about: a span of more than about
     // ten years is refused rather than counted (year 9999 would take minutes and block everyone).
     if (i < -SEARCH_DAYS || i > cum.length + SEARCH_DAYS) {
-      throw new SchedulerError('out_of_range', `Calendar ${this.source.id} can't count working time across more than ten years`);
+      throw new SchedulerError(
+        'out_of_range',
+        `Calendar ${this.source.id} can't count working time across more than ten years`,
+      );
     }
     if (i < 0) {
       // Prepend earlier days with negative totals so the origin (and every value handed out) stays put.
@@ -146,13 +152,16 @@ function subtractClosures(ivs: number[], closures: number[]): number[] {
     let s = ivs[i] as number;
     const e = ivs[i + 1] as number;
     // first closure that might overlap: binary search on closure ends
-    let lo = 0, hi = closures.length / 2;
+    let lo = 0,
+      hi = closures.length / 2;
     while (lo < hi) {
       const mid = (lo + hi) >> 1;
-      if ((closures[mid * 2 + 1] as number) <= s) lo = mid + 1; else hi = mid;
+      if ((closures[mid * 2 + 1] as number) <= s) lo = mid + 1;
+      else hi = mid;
     }
     for (let c = lo; c < closures.length / 2 && s < e; c++) {
-      const cs = closures[c * 2] as number, ce = closures[c * 2 + 1] as number;
+      const cs = closures[c * 2] as number,
+        ce = closures[c * 2 + 1] as number;
       if (cs >= e) break;
       if (cs > s) out.push(s, cs);
       s = Math.max(s, ce);
@@ -171,12 +180,16 @@ function validateCalendar(cal: WorkingCalendar): void {
     for (const r of day) {
       const [s, e] = r;
       if (!(Number.isFinite(s) && Number.isFinite(e) && s >= 0 && e <= 1440 && s < e)) {
-        throw new SchedulerError('invalid_calendar', `Calendar ${cal.id} has working hours ${s}–${e}, which are not minutes of a day`);
+        throw new SchedulerError(
+          'invalid_calendar',
+          `Calendar ${cal.id} has working hours ${s}–${e}, which are not minutes of a day`,
+        );
       }
     }
   }
   for (const c of cal.closures ?? []) {
-    if (!(c.end >= c.start)) throw new SchedulerError('invalid_interval', `Calendar ${cal.id} has a closure that ends before it starts`);
+    if (!(c.end >= c.start))
+      throw new SchedulerError('invalid_interval', `Calendar ${cal.id} has a closure that ends before it starts`);
   }
 }
 
@@ -311,7 +324,10 @@ export function workingMinutesBetween(cal: Cal, start: Instant, end: Instant): n
   const c = compileCalendar(cal);
   // Refused before any counting, so the calendar's running totals are never started from a far-off day.
   if (Math.abs(end - start) > SEARCH_DAYS * DAY_MS) {
-    throw new SchedulerError('out_of_range', `Calendar ${c.source.id} can't count working time across more than ten years`);
+    throw new SchedulerError(
+      'out_of_range',
+      `Calendar ${c.source.id} can't count working time across more than ten years`,
+    );
   }
   return (c.workedUntil(end) - c.workedUntil(start)) / MINUTE_MS;
 }
@@ -365,7 +381,8 @@ export function countWorkingDays(cal: Cal, start: Instant, end: Instant): number
 function workedBefore(ivs: readonly number[], t: number): number {
   let w = 0;
   for (let i = 0; i < ivs.length; i += 2) {
-    const s = ivs[i] as number, e = ivs[i + 1] as number;
+    const s = ivs[i] as number,
+      e = ivs[i + 1] as number;
     if (t > s) w += Math.min(e, t) - s;
   }
   return w;
@@ -380,7 +397,8 @@ function dayLength(ivs: readonly number[]): number {
 function atOffset(ivs: readonly number[], offset: number): number {
   let left = offset;
   for (let i = 0; i < ivs.length; i += 2) {
-    const s = ivs[i] as number, len = (ivs[i + 1] as number) - s;
+    const s = ivs[i] as number,
+      len = (ivs[i + 1] as number) - s;
     if (left <= len) return s + left;
     left -= len;
   }
@@ -404,7 +422,8 @@ export function addWorkingDays(cal: Cal, instant: Instant, days: number): Instan
   let day = c.dayOf(instant);
   let ivs = c.dayIntervals(day);
   let offset: number;
-  const first = ivs[0], last = ivs[ivs.length - 1];
+  const first = ivs[0],
+    last = ivs[ivs.length - 1];
   const step = days > 0 ? 1 : -1;
   if (first !== undefined && last !== undefined && instant >= first && instant <= last) {
     offset = workedBefore(ivs, instant);
@@ -414,13 +433,19 @@ export function addWorkingDays(cal: Cal, instant: Instant, days: number): Instan
     offset = dayLength(ivs);
   } else {
     let n = 0;
-    do { day += step; ivs = c.dayIntervals(day); n++; } while (ivs.length === 0 && n < SEARCH_DAYS);
-    if (ivs.length === 0) throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working time within ten years`);
+    do {
+      day += step;
+      ivs = c.dayIntervals(day);
+      n++;
+    } while (ivs.length === 0 && n < SEARCH_DAYS);
+    if (ivs.length === 0)
+      throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working time within ten years`);
     offset = days > 0 ? 0 : dayLength(ivs);
   }
   let left = Math.abs(days);
   for (let n = 0; left > 0; n++) {
-    if (n > SEARCH_DAYS) throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working time within ten years`);
+    if (n > SEARCH_DAYS)
+      throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working time within ten years`);
     day += step;
     ivs = c.dayIntervals(day);
     if (ivs.length > 0) left--;

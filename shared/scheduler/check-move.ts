@@ -12,14 +12,16 @@ import type { Booking, Violation } from './types.js';
 function pairViolations(index: BoardIndex, stageId: string, own: readonly Booking[]): Violation[] {
   const out: Violation[] = [];
   own.forEach((b, i) => {
-    for (const o of overlappingOnResource(index, b.resourceId, b.start, b.end, stageId)) out.push(...resourcePairViolations(index, b, o));
+    for (const o of overlappingOnResource(index, b.resourceId, b.start, b.end, stageId))
+      out.push(...resourcePairViolations(index, b, o));
     for (let j = i + 1; j < own.length; j++) {
       const c = own[j] as Booking;
       if (c.start < b.end && b.start < c.end) {
         if (c.resourceId === b.resourceId) out.push(...resourcePairViolations(index, b, c));
         else {
           for (const p of index.personsOfResource.get(b.resourceId) ?? []) {
-            if ((index.personsOfResource.get(c.resourceId) ?? []).includes(p)) out.push(personPairViolation(index, p, b, c));
+            if ((index.personsOfResource.get(c.resourceId) ?? []).includes(p))
+              out.push(personPairViolation(index, p, b, c));
           }
         }
       }
@@ -27,7 +29,8 @@ function pairViolations(index: BoardIndex, stageId: string, own: readonly Bookin
     for (const p of index.personsOfResource.get(b.resourceId) ?? []) {
       for (const rid of index.resourcesOfPerson.get(p) ?? []) {
         if (rid === b.resourceId) continue;
-        for (const o of overlappingOnResource(index, rid, b.start, b.end, stageId)) out.push(personPairViolation(index, p, b, o));
+        for (const o of overlappingOnResource(index, rid, b.start, b.end, stageId))
+          out.push(personPairViolation(index, p, b, o));
       }
     }
   });
@@ -61,7 +64,12 @@ export function checkMove(index: BoardIndex, move: StageMove, options: CheckMove
  * @example
  * checkStageBookings(index, 'lift-1', [craneBooking, crewBooking])
  */
-export function checkStageBookings(index: BoardIndex, stageId: string, own: readonly Booking[], options: CheckMoveOptions = {}): Violation[] {
+export function checkStageBookings(
+  index: BoardIndex,
+  stageId: string,
+  own: readonly Booking[],
+  options: CheckMoveOptions = {},
+): Violation[] {
   const bookingsOf: BookingsOf = (id) => (id === stageId ? own : bookingsOfStage(index, id));
   const all = [
     ...checkStageOwn(index, stageId, bookingsOf),

@@ -52,7 +52,9 @@ export function strengthRatioAtAge(ageDays: number): number {
  */
 export function ageForStrengthRatio(ratio: number): number {
   if (!(ratio > 0 && ratio < 1 / ACI_B)) {
-    throw new RangeError(`A target of ${ratio} of 28-day strength is outside what the ACI 209 curve reaches (0 to ${(1 / ACI_B).toFixed(3)})`);
+    throw new RangeError(
+      `A target of ${ratio} of 28-day strength is outside what the ACI 209 curve reaches (0 to ${(1 / ACI_B).toFixed(3)})`,
+    );
   }
   return (ACI_A_DAYS * ratio) / (1 - ACI_B * ratio);
 }
@@ -64,7 +66,8 @@ export interface MaturityOptions {
 }
 
 function dayFactor(tempC: number, o: MaturityOptions): number {
-  const t0 = o.datumC ?? DATUM_C, tr = o.referenceC ?? REFERENCE_C;
+  const t0 = o.datumC ?? DATUM_C,
+    tr = o.referenceC ?? REFERENCE_C;
   if (!(tr > t0)) throw new RangeError(`The reference temperature (${tr} °C) must be above the datum (${t0} °C)`);
   return Math.max(0, tempC - t0) / (tr - t0);
 }
@@ -77,7 +80,11 @@ function dayFactor(tempC: number, o: MaturityOptions): number {
  * @example
  * equivalentAge([5, 5, 10], 3) // (5 + 5 + 10) / 23 = 0.870 days (datum 0 °C, reference 23 °C)
  */
-export function equivalentAge(dailyMeanTempsC: readonly number[], elapsedDays: number, options: MaturityOptions = {}): number {
+export function equivalentAge(
+  dailyMeanTempsC: readonly number[],
+  elapsedDays: number,
+  options: MaturityOptions = {},
+): number {
   if (dailyMeanTempsC.length === 0) throw new RangeError('At least one daily temperature is needed');
   if (!(elapsedDays >= 0)) throw new RangeError('Elapsed days must be zero or more');
   let te = 0;
@@ -94,7 +101,11 @@ export function equivalentAge(dailyMeanTempsC: readonly number[], elapsedDays: n
  * @example
  * elapsedDaysForEquivalentAge([5], 1) // 4.6 (each 5 °C day counts 5/23 of a day)
  */
-export function elapsedDaysForEquivalentAge(dailyMeanTempsC: readonly number[], targetDays: number, options: MaturityOptions = {}): number {
+export function elapsedDaysForEquivalentAge(
+  dailyMeanTempsC: readonly number[],
+  targetDays: number,
+  options: MaturityOptions = {},
+): number {
   if (dailyMeanTempsC.length === 0) throw new RangeError('At least one daily temperature is needed');
   let te = 0;
   for (let d = 0; ; d++) {
@@ -153,7 +164,8 @@ const oneDecimal = (n: number) => (Math.round(n * 10) / 10).toFixed(1);
 function listOf(temps: readonly number[]): string {
   const out: [string, number][] = [];
   for (const t of temps) {
-    const v = oneDecimal(t), last = out[out.length - 1];
+    const v = oneDecimal(t),
+      last = out[out.length - 1];
     if (last?.[0] === v) last[1]++;
     else out.push([v, 1]);
   }
@@ -165,7 +177,8 @@ function cureSummary(rule: CureRule, ex: Omit<CureExplanation, 'summary'>): stri
   const pct = Math.round(rule.targetFraction * 100);
   const curve = `${pct}% of 28-day strength needs ${oneDecimal(ex.requiredAgeDays)} days at ${ex.referenceC} °C (ACI 209R-92, standard moist curing)`;
   const temps = ex.assumedTempsC;
-  if (!temps) return `${curve}; no site temperatures, so the base is taken to cure as at ${ex.referenceC} °C: released after ${oneDecimal(ex.elapsedDays)} days.`;
+  if (!temps)
+    return `${curve}; no site temperatures, so the base is taken to cure as at ${ex.referenceC} °C: released after ${oneDecimal(ex.elapsedDays)} days.`;
   const place = ex.temperaturePlace ? ` for ${ex.temperaturePlace}` : '';
   const seasonal = `the seasonal assumption${rule.seasonalBasis ? ` (${rule.seasonalBasis}, an assumption)` : ''}`;
   // The days that counted, day 0 up to the release (the last temperature repeats past the list's end),
@@ -179,12 +192,15 @@ function cureSummary(rule: CureRule, ex: Omit<CureExplanation, 'summary'>): stri
     if (last?.kind === kind) last.temps.push(temps[i] as number);
     else runs.push({ kind, temps: [temps[i] as number] });
   }
-  const words = runs.map((r, n) => {
-    const then = n > 0 ? 'then ' : '';
-    if (r.kind === 'forecast') return `${then}the weather forecast${place} ${listOf(r.temps)} °C`;
-    if (r.kind === 'seasonal') return `${then}${n === 0 && ex.temperatureSource === 'seasonal' ? `no forecast${place} on file, so ` : ''}${seasonal} ${listOf(r.temps)} °C`;
-    return `${listOf(r.temps)} °C${place}`;
-  }).join(', ');
+  const words = runs
+    .map((r, n) => {
+      const then = n > 0 ? 'then ' : '';
+      if (r.kind === 'forecast') return `${then}the weather forecast${place} ${listOf(r.temps)} °C`;
+      if (r.kind === 'seasonal')
+        return `${then}${n === 0 && ex.temperatureSource === 'seasonal' ? `no forecast${place} on file, so ` : ''}${seasonal} ${listOf(r.temps)} °C`;
+      return `${listOf(r.temps)} °C${place}`;
+    })
+    .join(', ');
   const from = ex.temperaturesFrom ? ` from ${ex.temperaturesFrom}` : '';
   return `${curve}; Nurse–Saul equivalent age (ASTM C1074, datum ${ex.datumC} °C, reference ${ex.referenceC} °C) with daily mean air temperatures${from}: ${words}: released after ${oneDecimal(ex.elapsedDays)} days.`;
 }
@@ -192,7 +208,8 @@ function cureSummary(rule: CureRule, ex: Omit<CureExplanation, 'summary'>): stri
 /** Of the days up to the release, those the forecast gave (all of them when the rule marks none). */
 function forecastDaysUsed(length: number, elapsedDays: number, fromForecast: readonly boolean[] | undefined): number {
   let n = 0;
-  for (let d = 0; d < Math.max(1, Math.ceil(elapsedDays)); d++) if (fromForecast?.[Math.min(d, length - 1)] ?? true) n++;
+  for (let d = 0; d < Math.max(1, Math.ceil(elapsedDays)); d++)
+    if (fromForecast?.[Math.min(d, length - 1)] ?? true) n++;
   return n;
 }
 
@@ -220,7 +237,10 @@ export function cureRelease(pouredAt: Instant, rule: CureRule): CureExplanation 
     datumC: options.datumC as number,
     referenceC: options.referenceC as number,
     temperatureSource: temps ? (rule.temperatureSource ?? 'stated') : 'reference',
-    forecastDays: temps && rule.temperatureSource === 'forecast' ? forecastDaysUsed(temps.length, elapsedDays, rule.fromForecast) : 0,
+    forecastDays:
+      temps && rule.temperatureSource === 'forecast'
+        ? forecastDaysUsed(temps.length, elapsedDays, rule.fromForecast)
+        : 0,
     temperaturePlace: rule.temperaturePlace ?? null,
     temperaturesFrom: rule.temperaturesFrom ?? null,
     pouredAt,
@@ -240,6 +260,9 @@ const elapsedCache = new WeakMap<CureRule, number>();
  */
 export function cureElapsedDays(rule: CureRule): number {
   let d = elapsedCache.get(rule);
-  if (d === undefined) { d = cureRelease(0, rule).elapsedDays; elapsedCache.set(rule, d); }
+  if (d === undefined) {
+    d = cureRelease(0, rule).elapsedDays;
+    elapsedCache.set(rule, d);
+  }
   return d;
 }

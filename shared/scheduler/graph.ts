@@ -15,7 +15,8 @@ export function findCycles(stageIds: readonly string[], dependencies: readonly D
   const adj: number[][] = Array.from({ length: n }, () => []);
   const selfLoop = new Set<number>();
   for (const d of dependencies) {
-    const a = idx.get(d.fromStageId), b = idx.get(d.toStageId);
+    const a = idx.get(d.fromStageId),
+      b = idx.get(d.toStageId);
     if (a === undefined || b === undefined) continue;
     if (a === b) selfLoop.add(a);
     (adj[a] as number[]).push(b);
@@ -52,7 +53,11 @@ export function findCycles(stageIds: readonly string[], dependencies: readonly D
       if (low[v] === index[v]) {
         const comp: number[] = [];
         let w: number;
-        do { w = stack.pop() as number; onStack[w] = 0; comp.push(w); } while (w !== v);
+        do {
+          w = stack.pop() as number;
+          onStack[w] = 0;
+          comp.push(w);
+        } while (w !== v);
         if (comp.length > 1 || selfLoop.has(v)) out.push(comp.map((c) => stageIds[c] as string).sort());
       }
     }
@@ -74,7 +79,8 @@ export function topologicalOrder(stageIds: readonly string[], dependencies: read
   const indeg = new Int32Array(n);
   const adj: number[][] = Array.from({ length: n }, () => []);
   for (const d of dependencies) {
-    const a = idx.get(d.fromStageId), b = idx.get(d.toStageId);
+    const a = idx.get(d.fromStageId),
+      b = idx.get(d.toStageId);
     if (a === undefined || b === undefined) continue;
     (adj[a] as number[]).push(b);
     indeg[b] = (indeg[b] as number) + 1;
@@ -123,9 +129,13 @@ export function orderAndCycles(stageIds: readonly string[], dependencies: readon
   const to = new Int32Array(dependencies.length);
   let e = 0;
   for (const d of dependencies) {
-    const a = idx.get(d.fromStageId), b = idx.get(d.toStageId);
+    const a = idx.get(d.fromStageId),
+      b = idx.get(d.toStageId);
     if (a === undefined || b === undefined) continue;
-    to[e] = b; next[e] = head[a] as number; head[a] = e; e++;
+    to[e] = b;
+    next[e] = head[a] as number;
+    head[a] = e;
+    e++;
     indeg[b] = (indeg[b] as number) + 1;
   }
   const queue = new Int32Array(n);
@@ -145,6 +155,9 @@ export function orderAndCycles(stageIds: readonly string[], dependencies: readon
   const blocked: string[] = [];
   for (let i = 0; i < n; i++) if ((indeg[i] as number) > 0) blocked.push(stageIds[i] as string);
   const inBlocked = new Set(blocked);
-  const cycles = findCycles(blocked, dependencies.filter((d) => inBlocked.has(d.fromStageId) && inBlocked.has(d.toStageId)));
+  const cycles = findCycles(
+    blocked,
+    dependencies.filter((d) => inBlocked.has(d.fromStageId) && inBlocked.has(d.toStageId)),
+  );
   return { order, blocked, cycles };
 }

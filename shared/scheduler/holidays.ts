@@ -24,7 +24,11 @@ export function holidayDaysOf(cal: WorkingCalendar): ReadonlySet<number> {
       const m = ISO_DATE.exec(h.date);
       const day = m ? dayNumber(Number(m[1]), Number(m[2]), Number(m[3])) : NaN;
       // A date that rolls over (2026-02-30) is refused as well as one that is not a date at all.
-      if (!Number.isFinite(day) || isoDateOfDay(day) !== h.date) throw new SchedulerError('invalid_calendar', `Calendar ${cal.id} has a public holiday on "${String(h.date)}", which is not a date (YYYY-MM-DD)`);
+      if (!Number.isFinite(day) || isoDateOfDay(day) !== h.date)
+        throw new SchedulerError(
+          'invalid_calendar',
+          `Calendar ${cal.id} has a public holiday on "${String(h.date)}", which is not a date (YYYY-MM-DD)`,
+        );
       days.add(day);
     }
     set = days;

@@ -19,11 +19,16 @@ function shift(cal: WorkingCalendar | CompiledCalendar, instant: Instant, lag: L
   if (lag.amount === 0) return instant;
   const amount = sign * lag.amount;
   switch (lag.unit) {
-    case 'working_hours': return addWorkingMinutes(cal, instant, amount * 60);
-    case 'working_days': return addWorkingDays(cal, instant, Math.round(amount));
-    case 'elapsed_hours': return instant + amount * HOUR_MS;
-    case 'elapsed_days': return instant + amount * DAY_MS;
-    default: throw new RangeError(`Unknown lag unit ${String((lag as Lag).unit)}`);
+    case 'working_hours':
+      return addWorkingMinutes(cal, instant, amount * 60);
+    case 'working_days':
+      return addWorkingDays(cal, instant, Math.round(amount));
+    case 'elapsed_hours':
+      return instant + amount * HOUR_MS;
+    case 'elapsed_days':
+      return instant + amount * DAY_MS;
+    default:
+      throw new RangeError(`Unknown lag unit ${String((lag as Lag).unit)}`);
   }
 }
 

@@ -43,19 +43,31 @@ export function movedBookings(index: BoardIndex, move: StageMove): Booking[] {
   }
   const current = bookingsOfStage(index, move.stageId);
   if (current.length === 0) {
-    if (move.resourceId === undefined) throw new SchedulerError('unknown_resource', `Stage ${stage.name} has no booking yet: say which resource`);
+    if (move.resourceId === undefined)
+      throw new SchedulerError('unknown_resource', `Stage ${stage.name} has no booking yet: say which resource`);
     const job = index.jobs.get(stage.jobId);
-    const end = move.end ?? addWorkingMinutes(resourceCalendarOf(index, move.resourceId), move.start, stage.durationMinutes);
-    return [{
-      id: newBookingId(stage.id), stageId: stage.id, resourceId: move.resourceId, start: move.start,
-      end: end > move.start ? end : move.start + 60_000, state: 'pencilled', installerFirmId: job?.firmId ?? '',
-    }];
+    const end =
+      move.end ?? addWorkingMinutes(resourceCalendarOf(index, move.resourceId), move.start, stage.durationMinutes);
+    return [
+      {
+        id: newBookingId(stage.id),
+        stageId: stage.id,
+        resourceId: move.resourceId,
+        start: move.start,
+        end: end > move.start ? end : move.start + 60_000,
+        state: 'pencilled',
+        installerFirmId: job?.firmId ?? '',
+      },
+    ];
   }
   const span = spanOf(current) as { start: number; end: number };
   const delta = move.start - span.start;
   const target = move.bookingId ?? (current[0] as Booking).id;
   if (move.bookingId !== undefined && !current.some((b) => b.id === move.bookingId)) {
-    throw new SchedulerError('unknown_booking', `Booking ${move.bookingId} is not an active booking of stage ${stage.name}`);
+    throw new SchedulerError(
+      'unknown_booking',
+      `Booking ${move.bookingId} is not an active booking of stage ${stage.name}`,
+    );
   }
   return current.map((b) => ({
     ...b,

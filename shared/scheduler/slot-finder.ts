@@ -61,7 +61,13 @@ const NOT_BLOCKING = new Set<Violation['kind']>(['capacity', 'hire']);
  * nineteen); the first one of the resource's kind moves to the resource (or a new pencilled booking
  * is added).
  */
-function candidateBookings(index: BoardIndex, stageId: string, resource: Resource, start: Instant, cal: CompiledCalendar): Booking[] {
+function candidateBookings(
+  index: BoardIndex,
+  stageId: string,
+  resource: Resource,
+  start: Instant,
+  cal: CompiledCalendar,
+): Booking[] {
   const stage = index.stages.get(stageId)?.stage;
   if (stage === undefined) throw new SchedulerError('unknown_stage', `Stage ${stageId} is not on the board`);
   const current = bookingsOfStage(index, stageId);
@@ -76,18 +82,32 @@ function candidateBookings(index: BoardIndex, stageId: string, resource: Resourc
     const to = length > 0 ? addWorkingMinutes(bc, from, length) : from + (b.end - b.start);
     return { ...b, start: from, end: to };
   });
-  const same = out.findIndex((b) => b.resourceId === resource.id || index.resources.get(b.resourceId)?.kind === resource.kind);
-  if (same >= 0) out[same] = { ...(out[same] as Booking), resourceId: resource.id, start, end: end > start ? end : start + 60_000 };
+  const same = out.findIndex(
+    (b) => b.resourceId === resource.id || index.resources.get(b.resourceId)?.kind === resource.kind,
+  );
+  if (same >= 0)
+    out[same] = { ...(out[same] as Booking), resourceId: resource.id, start, end: end > start ? end : start + 60_000 };
   else {
     out.push({
-      id: `new:${stageId}:${resource.id}`, stageId, resourceId: resource.id, start, end: end > start ? end : start + 60_000,
-      state: 'pencilled', installerFirmId: index.jobs.get(stage.jobId)?.firmId ?? '',
+      id: `new:${stageId}:${resource.id}`,
+      stageId,
+      resourceId: resource.id,
+      start,
+      end: end > start ? end : start + 60_000,
+      state: 'pencilled',
+      installerFirmId: index.jobs.get(stage.jobId)?.firmId ?? '',
     });
   }
   return out;
 }
 
-function hireCost(index: BoardIndex, resource: Resource, start: Instant, end: Instant, cal: CompiledCalendar): { days: number; pence: number } {
+function hireCost(
+  index: BoardIndex,
+  resource: Resource,
+  start: Instant,
+  end: Instant,
+  cal: CompiledCalendar,
+): { days: number; pence: number } {
   if (resource.hired !== true) return { days: 0, pence: 0 };
   const periods = index.hireByResource.get(resource.id) ?? [];
   const rate = periods[0]?.dayRatePence ?? 0;
@@ -95,7 +115,8 @@ function hireCost(index: BoardIndex, resource: Resource, start: Instant, end: In
   for (let d = cal.dayOf(start); d <= cal.dayOf(end - 1); d++) {
     const ivs = cal.dayIntervals(d);
     if (ivs.length === 0) continue;
-    const s = ivs[0] as number, e = ivs[ivs.length - 1] as number;
+    const s = ivs[0] as number,
+      e = ivs[ivs.length - 1] as number;
     if (e <= start || s >= end) continue;
     if (!periods.some((p) => p.onHire <= Math.max(s, start) && Math.min(e, end) <= p.offHire)) days++;
   }
@@ -135,7 +156,9 @@ const FOLLOWERS = new Set<Violation['kind']>(['order', 'lag', 'cure', 'unbooked_
  * laterCannotHelp('excavation-1', refusals) // true: the lift is booked before the walls could be done
  */
 export function laterCannotHelp(stageId: string, refusals: readonly Violation[]): boolean {
-  return refusals.some((v) => FOLLOWERS.has(v.kind) && typeof v.details?.successorId === 'string' && v.details.successorId !== stageId);
+  return refusals.some(
+    (v) => FOLLOWERS.has(v.kind) && typeof v.details?.successorId === 'string' && v.details.successorId !== stageId,
+  );
 }
 
 function lastEnd(cal: CompiledCalendar, day: number): number {
@@ -161,7 +184,8 @@ export function findSlots(index: BoardIndex, request: SlotRequest, options: Find
   let resources: Resource[];
   if (request.resourceId !== undefined) {
     const r = index.resources.get(request.resourceId);
-    if (r === undefined) throw new SchedulerError('unknown_resource', `Resource ${request.resourceId} is not on the board`);
+    if (r === undefined)
+      throw new SchedulerError('unknown_resource', `Resource ${request.resourceId} is not on the board`);
     resources = [r];
   } else if (request.resourceKind !== undefined) {
     resources = (index.resourcesByKind.get(request.resourceKind) ?? []).slice().sort((a, b) => (a.id < b.id ? -1 : 1));
@@ -186,21 +210,43 @@ export function findSlots(index: BoardIndex, request: SlotRequest, options: Find
     // Starts a person would book: on the step, and within one working day when the stage must be.
     const fit = mustFitInOneDay(stage, cal) ? { fitMinutes: stage.durationMinutes } : {};
     const at = (x: Instant): Instant => bookableStart(cal, x, { stepMinutes: step, ...fit });
-    const probe: Booking = { id: 'probe', stageId: stage.id, resourceId: r.id, start: request.earliest, end: request.earliest + 1, state: 'pencilled', installerFirmId: '' };
-    const t0 = Math.max(request.earliest, earliestStartFromPredecessors(index, stage.id, r.id, bookingsOf, plan), leadTimeEarliest(index, probe));
+    const probe: Booking = {
+      id: 'probe',
+      stageId: stage.id,
+      resourceId: r.id,
+      start: request.earliest,
+      end: request.earliest + 1,
+      state: 'pencilled',
+      installerFirmId: '',
+    };
+    const t0 = Math.max(
+      request.earliest,
+      earliestStartFromPredecessors(index, stage.id, r.id, bookingsOf, plan),
+      leadTimeEarliest(index, probe),
+    );
     let t = at(t0);
     const limit = t + horizon;
     let found = 0;
     while (t < limit && found < wanted && t <= enoughBy) {
       const own = candidateBookings(index, stage.id, r, t, cal);
-      const refusals = checkStageBookings(index, stage.id, own, { errorsOnly: true }).filter((v) => !NOT_BLOCKING.has(v.kind));
+      const refusals = checkStageBookings(index, stage.id, own, { errorsOnly: true }).filter(
+        (v) => !NOT_BLOCKING.has(v.kind),
+      );
       if (refusals.length === 0) {
         const mine = own.find((b) => b.resourceId === r.id) as Booking;
         const hire = hireCost(index, r, mine.start, mine.end, cal);
         const used = timing === undefined ? 0 : Math.max(0, workingMinutesBetween(cal, timing.es, t));
         all.push({
-          resourceId: r.id, start: t, end: mine.end, bookings: own,
-          cost: { extraHireDays: hire.days, extraHirePence: hire.pence, floatUsedMinutes: used, delaysJob: timing !== undefined && used > timing.totalFloatMinutes + 0.5 },
+          resourceId: r.id,
+          start: t,
+          end: mine.end,
+          bookings: own,
+          cost: {
+            extraHireDays: hire.days,
+            extraHirePence: hire.pence,
+            floatUsedMinutes: used,
+            delaysJob: timing !== undefined && used > timing.totalFloatMinutes + 0.5,
+          },
         });
         found++;
         t = at(nextCandidate(cal, t, []));

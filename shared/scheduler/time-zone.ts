@@ -47,8 +47,14 @@ function zone(timeZone: string): ZoneCache {
     let format: Intl.DateTimeFormat;
     try {
       format = new Intl.DateTimeFormat('en-US', {
-        timeZone, hourCycle: 'h23', year: 'numeric', month: 'numeric', day: 'numeric',
-        hour: 'numeric', minute: 'numeric', second: 'numeric',
+        timeZone,
+        hourCycle: 'h23',
+        year: 'numeric',
+        month: 'numeric',
+        day: 'numeric',
+        hour: 'numeric',
+        minute: 'numeric',
+        second: 'numeric',
       });
     } catch {
       throw new SchedulerError('invalid_time_zone', `"${timeZone}" is not a time zone this engine knows`);
@@ -62,16 +68,34 @@ function zone(timeZone: string): ZoneCache {
 }
 
 function exactOffset(z: ZoneCache, instant: Instant): number {
-  let y = 0, mo = 0, d = 0, h = 0, mi = 0, s = 0;
+  let y = 0,
+    mo = 0,
+    d = 0,
+    h = 0,
+    mi = 0,
+    s = 0;
   for (const p of z.format.formatToParts(instant)) {
     switch (p.type) {
-      case 'year': y = Number(p.value); break;
-      case 'month': mo = Number(p.value); break;
-      case 'day': d = Number(p.value); break;
-      case 'hour': h = Number(p.value); break;
-      case 'minute': mi = Number(p.value); break;
-      case 'second': s = Number(p.value); break;
-      default: break;
+      case 'year':
+        y = Number(p.value);
+        break;
+      case 'month':
+        mo = Number(p.value);
+        break;
+      case 'day':
+        d = Number(p.value);
+        break;
+      case 'hour':
+        h = Number(p.value);
+        break;
+      case 'minute':
+        mi = Number(p.value);
+        break;
+      case 'second':
+        s = Number(p.value);
+        break;
+      default:
+        break;
     }
   }
   const wholeSecond = Math.floor(instant / 1000) * 1000;
@@ -85,16 +109,19 @@ const CHUNK_MS = 366 * DAY_MS;
 function segments(z: ZoneCache, from: number, to: number): { starts: number[]; offsets: number[] } {
   const starts = [from];
   const offsets = [exactOffset(z, from)];
-  let prevT = from, prev = offsets[0] as number;
+  let prevT = from,
+    prev = offsets[0] as number;
   for (let t = from + SAMPLE_MS; t < to + SAMPLE_MS; t += SAMPLE_MS) {
     const probe = Math.min(t, to);
     const o = exactOffset(z, probe);
     if (o !== prev) {
-      let lo = prevT, hi = probe; // offset(lo) = prev, offset(hi) = o
+      let lo = prevT,
+        hi = probe; // offset(lo) = prev, offset(hi) = o
       while (hi - lo > 1000) {
         const mid = lo + Math.floor((hi - lo) / 2000) * 1000;
         if (mid <= lo) break;
-        if (exactOffset(z, mid) === prev) lo = mid; else hi = mid;
+        if (exactOffset(z, mid) === prev) lo = mid;
+        else hi = mid;
       }
       starts.push(hi);
       offsets.push(o);
@@ -125,7 +152,10 @@ function cover(z: ZoneCache, instant: number): void {
   if (z.starts.length === 0) {
     const from = Math.floor(instant / CHUNK_MS) * CHUNK_MS;
     const seg = segments(z, from, from + CHUNK_MS);
-    z.lo = from; z.hi = from + CHUNK_MS; z.starts = seg.starts; z.offsets = seg.offsets;
+    z.lo = from;
+    z.hi = from + CHUNK_MS;
+    z.starts = seg.starts;
+    z.offsets = seg.offsets;
   }
   while (instant >= z.hi) {
     const seg = segments(z, z.hi, z.hi + CHUNK_MS);
@@ -133,13 +163,17 @@ function cover(z: ZoneCache, instant: number): void {
     seg.starts.forEach((st, i) => {
       const o = seg.offsets[i] as number;
       if (i === 0 && o === lastOffset) return;
-      z.starts.push(st); z.offsets.push(o);
+      z.starts.push(st);
+      z.offsets.push(o);
     });
     z.hi += CHUNK_MS;
   }
   while (instant < z.lo) {
     const seg = segments(z, z.lo - CHUNK_MS, z.lo);
-    if (seg.offsets[seg.offsets.length - 1] === z.offsets[0]) { z.starts.shift(); z.offsets.shift(); }
+    if (seg.offsets[seg.offsets.length - 1] === z.offsets[0]) {
+      z.starts.shift();
+      z.offsets.shift();
+    }
     z.starts = seg.starts.concat(z.starts);
     z.offsets = seg.offsets.concat(z.offsets);
     z.lo -= CHUNK_MS;
@@ -173,11 +207,14 @@ export function timeZoneOffset(timeZone: string, instant: Instant): number {
   }
   const starts = z.starts;
   const h = z.hint;
-  if ((starts[h] as number) <= instant && (h + 1 >= starts.length || instant < (starts[h + 1] as number))) return z.offsets[h] as number;
-  let lo = 0, hi = starts.length - 1;
+  if ((starts[h] as number) <= instant && (h + 1 >= starts.length || instant < (starts[h + 1] as number)))
+    return z.offsets[h] as number;
+  let lo = 0,
+    hi = starts.length - 1;
   while (lo < hi) {
     const mid = (lo + hi + 1) >> 1;
-    if ((starts[mid] as number) <= instant) lo = mid; else hi = mid - 1;
+    if ((starts[mid] as number) <= instant) lo = mid;
+    else hi = mid - 1;
   }
   z.hint = lo;
   return z.offsets[lo] as number;

@@ -1,4 +1,13 @@
-import { bookingsOfStage, kindCalendarOf, spanEnd, spanStart, stageCalendarOf, type BoardIndex, type DepLink, type StageInfo } from './board-index.js';
+import {
+  bookingsOfStage,
+  kindCalendarOf,
+  spanEnd,
+  spanStart,
+  stageCalendarOf,
+  type BoardIndex,
+  type DepLink,
+  type StageInfo,
+} from './board-index.js';
 import { bookableStart, mustFitInOneDay, roundUpToStep } from './booking-step.js';
 import { addWorkingDays, addWorkingMinutes, type CompiledCalendar } from './calendar.js';
 import { cureElapsedDays, releaseInstant } from './cure.js';
@@ -46,7 +55,10 @@ export interface UnbookedPlan {
  * const plan = unbookedPlan(index)
  * unbookedTimesOf(plan, 'base-1')?.start
  */
-export function unbookedPlan(index: BoardIndex, bookingsOf: BookingsOf = (id) => bookingsOfStage(index, id)): UnbookedPlan {
+export function unbookedPlan(
+  index: BoardIndex,
+  bookingsOf: BookingsOf = (id) => bookingsOfStage(index, id),
+): UnbookedPlan {
   return { index, bookingsOf, memo: new Map() };
 }
 
@@ -57,7 +69,11 @@ export function unbookedPlan(index: BoardIndex, bookingsOf: BookingsOf = (id) =>
  * days on the calendar of a resource of that kind (else the stage's), from now or from the job's
  * order date (now when it isn't ordered yet).
  */
-function noticeFor(index: BoardIndex, stage: Stage, cal: CompiledCalendar): { at: number; rule: LeadTimeRule; ordered: boolean } | null {
+function noticeFor(
+  index: BoardIndex,
+  stage: Stage,
+  cal: CompiledCalendar,
+): { at: number; rule: LeadTimeRule; ordered: boolean } | null {
   if (index.board.leadTimeRules.length === 0) return null;
   const job = index.jobs.get(stage.jobId);
   let best: { at: number; rule: LeadTimeRule; ordered: boolean } | null = null;
@@ -86,17 +102,27 @@ function compute(plan: UnbookedPlan, stageId: string): UnbookedTimes {
   const notice = noticeFor(index, stage, cal);
   if (notice !== null && notice.at > t) {
     t = notice.at;
-    heldBy = { kind: 'lead_time', workingDays: notice.rule.workingDays, from: notice.rule.from, ordered: notice.ordered, ...(notice.rule.reason ? { reason: notice.rule.reason } : {}) };
+    heldBy = {
+      kind: 'lead_time',
+      workingDays: notice.rule.workingDays,
+      from: notice.rule.from,
+      ordered: notice.ordered,
+      ...(notice.rule.reason ? { reason: notice.rule.reason } : {}),
+    };
   }
   for (const l of info.depsIn) {
     const p = l.from;
     if (p === info) continue;
     const pb = bookingsOf(p.stage.id);
     let pStart: number, pEnd: number;
-    if (pb.length > 0) { pStart = spanStart(pb); pEnd = spanEnd(pb); } else {
+    if (pb.length > 0) {
+      pStart = spanStart(pb);
+      pEnd = spanEnd(pb);
+    } else {
       const pt = memo.get(p.stage.id);
       if (pt == null) continue;
-      pStart = pt.start; pEnd = pt.finish;
+      pStart = pt.start;
+      pEnd = pt.finish;
     }
     const dep = l.dep;
     let b = applyLag(cal, dep.type === 'FS' || dep.type === 'FF' ? pEnd : pStart, dep.lag);
@@ -107,8 +133,17 @@ function compute(plan: UnbookedPlan, stageId: string): UnbookedTimes {
       heldBy = { kind: 'predecessor', stageId: p.stage.id, dependencyId: dep.id, booked: pb.length > 0 };
     }
   }
-  const start = bookableStart(cal, t, { stepMinutes: index.stepMinutes, ...(mustFitInOneDay(stage, cal) ? { fitMinutes: dur } : {}) });
-  return { stageId, start, finish: dur > 0 ? addWorkingMinutes(cal, start, dur) : start, calendarId: cal.source.id, heldBy };
+  const start = bookableStart(cal, t, {
+    stepMinutes: index.stepMinutes,
+    ...(mustFitInOneDay(stage, cal) ? { fitMinutes: dur } : {}),
+  });
+  return {
+    stageId,
+    start,
+    finish: dur > 0 ? addWorkingMinutes(cal, start, dur) : start,
+    calendarId: cal.source.id,
+    heldBy,
+  };
 }
 
 /** A calendar with no working time for ten years gives no times (the stage is then not a bound). */
@@ -137,13 +172,23 @@ export function unbookedTimesOf(plan: UnbookedPlan, stageId: string): UnbookedTi
   const stack = [stageId];
   while (stack.length > 0) {
     const id = stack[stack.length - 1] as string;
-    if (memo.has(id)) { stack.pop(); continue; }
-    if (index.blocked.has(id)) { memo.set(id, null); stack.pop(); continue; }
+    if (memo.has(id)) {
+      stack.pop();
+      continue;
+    }
+    if (index.blocked.has(id)) {
+      memo.set(id, null);
+      stack.pop();
+      continue;
+    }
     const info = index.stages.get(id);
     let waiting = false;
     for (const l of info?.depsIn ?? []) {
       const p = l.from.stage.id;
-      if (p !== id && !memo.has(p) && bookingsOf(p).length === 0) { stack.push(p); waiting = true; }
+      if (p !== id && !memo.has(p) && bookingsOf(p).length === 0) {
+        stack.push(p);
+        waiting = true;
+      }
     }
     if (waiting) continue;
     memo.set(id, computeOrNull(plan, id));
@@ -192,7 +237,8 @@ function heldWords(plan: UnbookedPlan, times: UnbookedTimes, tz: string): string
   const h = times.heldBy;
   const at = formatInstant(times.start, tz);
   switch (h.kind) {
-    case 'now': return '';
+    case 'now':
+      return '';
     case 'lead_time': {
       const from = h.from === 'order' ? (h.ordered ? 'the order date' : 'today (not ordered yet)') : 'today';
       return `; it can't start itself before about ${at} (${noticeWords(h.workingDays)} notice from ${from}${h.reason ? `, ${h.reason}` : ''})`;
@@ -216,7 +262,11 @@ function heldWords(plan: UnbookedPlan, times: UnbookedTimes, tz: string): string
  * checkUnbookedLink(unbookedPlan(index), liftInfo.depsIn[0], liftBookings)
  * // "'Crane lift into pit' can't start before about Tue 22 Sep 11:00: 'Pour reinforced base' (not booked yet) needs 5 h and 6.9 days to cure first"
  */
-export function checkUnbookedLink(plan: UnbookedPlan, link: DepLink, successorBookings: readonly Booking[]): Violation | undefined {
+export function checkUnbookedLink(
+  plan: UnbookedPlan,
+  link: DepLink,
+  successorBookings: readonly Booking[],
+): Violation | undefined {
   const { index } = plan;
   if (!index.seesAllBookings || successorBookings.length === 0 || link.from === link.to) return undefined;
   for (const b of successorBookings) if (b.state === 'done' || b.state === 'on_site') return undefined;
@@ -226,7 +276,8 @@ export function checkUnbookedLink(plan: UnbookedPlan, link: DepLink, successorBo
   const p = link.from.stage;
   const sId = link.to.stage.id;
   const sCal = stageCalendarOf(index, sId, successorBookings);
-  const sStart = spanStart(successorBookings), sEnd = spanEnd(successorBookings);
+  const sStart = spanStart(successorBookings),
+    sEnd = spanEnd(successorBookings);
   const lagBound = applyLag(sCal, dep.type === 'FS' || dep.type === 'FF' ? pt.finish : pt.start, dep.lag);
   // Only a link that loads the base waits for its cure (walls may go up once it has set).
   const cure = dep.waitsForCure === true ? p.cure : null;
@@ -236,34 +287,64 @@ export function checkUnbookedLink(plan: UnbookedPlan, link: DepLink, successorBo
   const finishBound = dep.type === 'FF' || dep.type === 'SF' ? lagBound : Number.NEGATIVE_INFINITY;
   let which: 'start' | 'finish';
   let bound: number, actual: number;
-  if (sStart < startBound) { which = 'start'; bound = startBound; actual = sStart; } else if (sEnd < finishBound) { which = 'finish'; bound = finishBound; actual = sEnd; } else return undefined;
+  if (sStart < startBound) {
+    which = 'start';
+    bound = startBound;
+    actual = sStart;
+  } else if (sEnd < finishBound) {
+    which = 'finish';
+    bound = finishBound;
+    actual = sEnd;
+  } else return undefined;
   const tz = sCal.timeZone;
   // Where a person could book it: a start goes to the successor's next working instant on the step.
   const stepped = roundUpToStep(bound, tz, index.stepMinutes);
   let shown = stepped;
   if (which === 'start') {
-    try { shown = bookableStart(sCal, bound, { stepMinutes: index.stepMinutes }); } catch (e) { if (!(e instanceof SchedulerError)) throw e; }
+    try {
+      shown = bookableStart(sCal, bound, { stepMinutes: index.stepMinutes });
+    } catch (e) {
+      if (!(e instanceof SchedulerError)) throw e;
+    }
   }
-  const P = stageLabel(index, p.id), S = stageLabel(index, sId);
+  const P = stageLabel(index, p.id),
+    S = stageLabel(index, sId);
   let what: string;
   if (which === 'start' && cure && cureBound >= lagBound) {
     what = `needs ${p.durationMinutes > 0 ? `${workWords(p.durationMinutes)} and ` : ''}${(Math.round(cureDays * 10) / 10).toFixed(1)} days to cure first`;
   } else if (dep.type === 'FS') {
-    what = p.durationMinutes > 0 ? `needs ${workWords(p.durationMinutes)}${lagWords(dep.lag)} first` : `has to be done first${lagWords(dep.lag)}`;
+    what =
+      p.durationMinutes > 0
+        ? `needs ${workWords(p.durationMinutes)}${lagWords(dep.lag)} first`
+        : `has to be done first${lagWords(dep.lag)}`;
   } else {
     const own = dep.type === 'FF' ? 'finish' : 'start';
     what = `can't ${own} before about ${formatInstant(own === 'finish' ? pt.finish : pt.start, tz)}${lagWords(dep.lag)}`;
   }
   const { ids, anchor } = chainOf(plan, pt);
   const details: Record<string, unknown> = {
-    dependencyId: dep.id, type: dep.type, unbooked: true, predecessorId: p.id, successorId: sId,
-    earliest: bound, actual, anchor,
-    chain: [pt, ...ids.map((id) => unbookedTimesOf(plan, id)).filter((t): t is UnbookedTimes => t !== null)]
-      .map((t) => ({ stageId: t.stageId, start: t.start, finish: t.finish })),
+    dependencyId: dep.id,
+    type: dep.type,
+    unbooked: true,
+    predecessorId: p.id,
+    successorId: sId,
+    earliest: bound,
+    actual,
+    anchor,
+    chain: [pt, ...ids.map((id) => unbookedTimesOf(plan, id)).filter((t): t is UnbookedTimes => t !== null)].map(
+      (t) => ({ stageId: t.stageId, start: t.start, finish: t.finish }),
+    ),
   };
   details[which === 'start' ? 'earliestStart' : 'earliestFinish'] = shown;
-  return makeViolation('unbooked_predecessor', 'error', [sId, p.id, ...ids], [], [],
-    `${S} can't ${which} before about ${formatInstant(shown, tz)}: ${P} (not booked yet) ${what}${heldWords(plan, pt, tz)}`, details);
+  return makeViolation(
+    'unbooked_predecessor',
+    'error',
+    [sId, p.id, ...ids],
+    [],
+    [],
+    `${S} can't ${which} before about ${formatInstant(shown, tz)}: ${P} (not booked yet) ${what}${heldWords(plan, pt, tz)}`,
+    details,
+  );
 }
 
 /**

@@ -33,13 +33,21 @@ export function reasonText(choice: string | null | undefined, text: string | nul
 }
 
 /** A partner's answer to a booking request. A proposal names the time that would suit; a decline or proposal may say why. */
-export const PartnerAnswer = z.object({
-  action: z.enum(ANSWER_ACTIONS),
-  proposedStart: WorkInstant.optional(),
-  proposedEnd: WorkInstant.optional(),
-  reason: AnswerReason.optional(),
-}).refine((a) => a.action !== 'propose' || (a.proposedStart && a.proposedEnd), { path: ['proposedStart'], message: 'a proposal needs a start and an end' })
-  .refine((a) => !a.proposedStart || !a.proposedEnd || Date.parse(a.proposedEnd) > Date.parse(a.proposedStart), { path: ['proposedEnd'], message: 'must be after the start' });
+export const PartnerAnswer = z
+  .object({
+    action: z.enum(ANSWER_ACTIONS),
+    proposedStart: WorkInstant.optional(),
+    proposedEnd: WorkInstant.optional(),
+    reason: AnswerReason.optional(),
+  })
+  .refine((a) => a.action !== 'propose' || (a.proposedStart && a.proposedEnd), {
+    path: ['proposedStart'],
+    message: 'a proposal needs a start and an end',
+  })
+  .refine((a) => !a.proposedStart || !a.proposedEnd || Date.parse(a.proposedEnd) > Date.parse(a.proposedStart), {
+    path: ['proposedEnd'],
+    message: 'must be after the start',
+  });
 export type PartnerAnswer = z.infer<typeof PartnerAnswer>;
 
 export const AssignPerson = z.object({ resourceId: Id });
@@ -95,6 +103,8 @@ export const PartnerSlot = z.object({
   cautions: z.array(z.string()),
   answer: BookingAnswerView.nullable(),
   /** An electrical connection: whether it takes a certificate, and the one this firm uploaded (null: none yet). */
-  certificate: z.object({ wanted: z.boolean(), uploaded: z.object({ name: z.string(), uploadedAt: z.string() }).nullable() }).optional(),
+  certificate: z
+    .object({ wanted: z.boolean(), uploaded: z.object({ name: z.string(), uploadedAt: z.string() }).nullable() })
+    .optional(),
 });
 export type PartnerSlot = z.infer<typeof PartnerSlot>;

@@ -4,33 +4,43 @@ import { Id, IsoInstant } from './common.ts';
 export const BOOKING_STATES = ['pencilled', 'sent', 'confirmed', 'declined', 'on_site', 'done'] as const;
 export type BookingState = (typeof BOOKING_STATES)[number];
 
-export const BookingRange = z.object({
-  from: IsoInstant,
-  to: IsoInstant,
-}).refine((r) => Date.parse(r.to) > Date.parse(r.from), { path: ['to'], message: 'must be after from' })
-  .refine((r) => Date.parse(r.to) - Date.parse(r.from) <= 1000 * 60 * 60 * 24 * 100, { path: ['to'], message: 'range may span at most 100 days' });
+export const BookingRange = z
+  .object({
+    from: IsoInstant,
+    to: IsoInstant,
+  })
+  .refine((r) => Date.parse(r.to) > Date.parse(r.from), { path: ['to'], message: 'must be after from' })
+  .refine((r) => Date.parse(r.to) - Date.parse(r.from) <= 1000 * 60 * 60 * 24 * 100, {
+    path: ['to'],
+    message: 'range may span at most 100 days',
+  });
 
 const times = <T extends { startsAt: string; endsAt: string }>(b: T) => Date.parse(b.endsAt) > Date.parse(b.startsAt);
 
-const endsAfterStart = (b: { startsAt: string; endsAt?: string | undefined }) => b.endsAt === undefined || Date.parse(b.endsAt) > Date.parse(b.startsAt);
+const endsAfterStart = (b: { startsAt: string; endsAt?: string | undefined }) =>
+  b.endsAt === undefined || Date.parse(b.endsAt) > Date.parse(b.startsAt);
 
 /** A stage booked on a resource; without `endsAt` the stage's working duration on that resource's calendar is used. */
-export const CreateBooking = z.object({
-  stageId: Id,
-  resourceId: Id,
-  startsAt: IsoInstant,
-  endsAt: IsoInstant.optional(),
-  state: z.enum(['pencilled', 'confirmed']).default('pencilled'),
-}).refine(endsAfterStart, { path: ['endsAt'], message: 'must be after the start' });
+export const CreateBooking = z
+  .object({
+    stageId: Id,
+    resourceId: Id,
+    startsAt: IsoInstant,
+    endsAt: IsoInstant.optional(),
+    state: z.enum(['pencilled', 'confirmed']).default('pencilled'),
+  })
+  .refine(endsAfterStart, { path: ['endsAt'], message: 'must be after the start' });
 export type CreateBooking = z.infer<typeof CreateBooking>;
 
-export const UpdateBooking = z.object({
-  version: z.number().int().min(1),
-  resourceId: Id.optional(),
-  startsAt: IsoInstant,
-  endsAt: IsoInstant,
-  state: z.enum(BOOKING_STATES).optional(),
-}).refine(times, { path: ['endsAt'], message: 'must be after the start' });
+export const UpdateBooking = z
+  .object({
+    version: z.number().int().min(1),
+    resourceId: Id.optional(),
+    startsAt: IsoInstant,
+    endsAt: IsoInstant,
+    state: z.enum(BOOKING_STATES).optional(),
+  })
+  .refine(times, { path: ['endsAt'], message: 'must be after the start' });
 export type UpdateBooking = z.infer<typeof UpdateBooking>;
 
 export const CreateBookings = z.object({
@@ -46,26 +56,31 @@ export const DEPENDENT_CHOICES = ['none', 'within', 'all'] as const;
 export type DependentChoice = (typeof DEPENDENT_CHOICES)[number];
 
 /** A drag on the board: all of a stage's bookings move together; optionally one changes resource. */
-export const MoveStage = z.object({
-  startsAt: IsoInstant,
-  endsAt: IsoInstant.optional(),
-  resourceId: Id.optional(),
-  bookingId: Id.optional(),
-  /** The version of each booking the move was based on: any newer one refuses the move (409). */
-  versions: z.record(Id, z.number().int().min(1)),
-  /** The older switch: true means `dependents: 'all'`. `dependents` wins when both are given. */
-  moveDependents: z.boolean().default(false),
-  dependents: z.enum(DEPENDENT_CHOICES).optional(),
-  /** With `dependents: 'within'`: how many days ahead of the stage its dependents move with it. */
-  withinDays: z.number().int().min(1, 'must be at least 1 day').max(365, 'must be at most 365 days').optional(),
-  /**
-   * Sent or confirmed bookings of partner firms, among the stages after it, that the scheduler
-   * agreed to move (each partner is asked again). Any other one refuses the move (409), listing them.
-   */
-  askAgain: z.array(Id).max(500, 'at most 500 bookings').default([]),
-}).refine(endsAfterStart, { path: ['endsAt'], message: 'must be after the start' })
+export const MoveStage = z
+  .object({
+    startsAt: IsoInstant,
+    endsAt: IsoInstant.optional(),
+    resourceId: Id.optional(),
+    bookingId: Id.optional(),
+    /** The version of each booking the move was based on: any newer one refuses the move (409). */
+    versions: z.record(Id, z.number().int().min(1)),
+    /** The older switch: true means `dependents: 'all'`. `dependents` wins when both are given. */
+    moveDependents: z.boolean().default(false),
+    dependents: z.enum(DEPENDENT_CHOICES).optional(),
+    /** With `dependents: 'within'`: how many days ahead of the stage its dependents move with it. */
+    withinDays: z.number().int().min(1, 'must be at least 1 day').max(365, 'must be at most 365 days').optional(),
+    /**
+     * Sent or confirmed bookings of partner firms, among the stages after it, that the scheduler
+     * agreed to move (each partner is asked again). Any other one refuses the move (409), listing them.
+     */
+    askAgain: z.array(Id).max(500, 'at most 500 bookings').default([]),
+  })
+  .refine(endsAfterStart, { path: ['endsAt'], message: 'must be after the start' })
   .refine((m) => !m.resourceId || m.bookingId, { path: ['bookingId'], message: 'is required when changing resource' })
-  .refine((m) => m.dependents !== 'within' || m.withinDays !== undefined, { path: ['withinDays'], message: "is required when dependents is 'within'" });
+  .refine((m) => m.dependents !== 'within' || m.withinDays !== undefined, {
+    path: ['withinDays'],
+    message: "is required when dependents is 'within'",
+  });
 export type MoveStage = z.infer<typeof MoveStage>;
 
 /** Which stages after a move go with it, as the move's input says. */
@@ -147,11 +162,16 @@ export type ProgressAction = (typeof PROGRESS_ACTIONS)[number];
  * A crew marks its own work: `{ action, version }`, or the older `{ state: 'on_site' | 'done', version }`
  * (on site = arrive, done = finish). Exactly one of the two is given.
  */
-export const MarkProgress = z.object({
-  action: z.enum(PROGRESS_ACTIONS).optional(),
-  state: z.enum(['on_site', 'done']).optional(),
-  version: z.number().int().min(1),
-}).refine((m) => (m.action === undefined) !== (m.state === undefined), { path: ['action'], message: 'give either action or state, not both' });
+export const MarkProgress = z
+  .object({
+    action: z.enum(PROGRESS_ACTIONS).optional(),
+    state: z.enum(['on_site', 'done']).optional(),
+    version: z.number().int().min(1),
+  })
+  .refine((m) => (m.action === undefined) !== (m.state === undefined), {
+    path: ['action'],
+    message: 'give either action or state, not both',
+  });
 export type MarkProgress = z.infer<typeof MarkProgress>;
 
 /** The state machine's action a progress request asks for. @example progressActionOf({ state: 'done', version: 2 }) // 'finish' */

@@ -3,7 +3,13 @@ import { Id, multiLineText } from './common.ts';
 import { SANITISER_KINDS, type ReadingCheck, type WaterTargets } from '../water-balance.ts';
 import type { FileView } from './files.ts';
 
-const reading = (label: string, max: number) => z.number({ message: `${label} must be a number` }).min(0, 'cannot be negative').max(max, `must be at most ${max}`).nullable().default(null);
+const reading = (label: string, max: number) =>
+  z
+    .number({ message: `${label} must be a number` })
+    .min(0, 'cannot be negative')
+    .max(max, `must be at most ${max}`)
+    .nullable()
+    .default(null);
 
 /** The checks of the commissioning record, each ticked or not. */
 export const CommissioningChecks = z.object({

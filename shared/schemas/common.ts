@@ -22,11 +22,25 @@ const yearOf = (isoDate: string) => Number(isoDate.slice(0, 4));
 const startOfYear = (year: number) => Date.UTC(year, 0, 1);
 const yearsMessage = (what: string, years: Years) => `must be a ${what} between ${years.min} and ${years.max}`;
 
-const isoDate = (years: Years) => z.iso.date({ message: 'must be a date like 2026-05-12', abort: true })
-  .refine((d) => yearOf(d) >= years.min && yearOf(d) <= years.max, yearsMessage('date', years));
+const isoDate = (years: Years) =>
+  z.iso
+    .date({ message: 'must be a date like 2026-05-12', abort: true })
+    .refine((d) => yearOf(d) >= years.min && yearOf(d) <= years.max, yearsMessage('date', years));
 // The instant itself (offset applied) must fall in the years, so 1900-01-01T00:30+01:00 is refused.
-const isoInstant = (years: Years) => z.iso.datetime({ offset: true, abort: true, message: 'must be an ISO 8601 date-time with an offset, e.g. 2026-05-12T08:00:00Z' })
-  .refine((t) => { const ms = Date.parse(t); return ms >= startOfYear(years.min) && ms < startOfYear(years.max + 1); }, yearsMessage('time', years));
+const isoInstant = (years: Years) =>
+  z.iso
+    .datetime({
+      offset: true,
+      abort: true,
+      message: 'must be an ISO 8601 date-time with an offset, e.g. 2026-05-12T08:00:00Z',
+    })
+    .refine(
+      (t) => {
+        const ms = Date.parse(t);
+        return ms >= startOfYear(years.min) && ms < startOfYear(years.max + 1);
+      },
+      yearsMessage('time', years),
+    );
 
 /** A calendar date (YYYY-MM-DD) that exists (no 2026-02-30) and falls within DATE_YEARS. */
 export const IsoDate = isoDate(DATE_YEARS);
@@ -76,7 +90,11 @@ const refuse = (kind: 'one-line' | 'multi-line') => (value: string, ctx: z.Refin
 /** One line of text (a name, reference, town, phone number, title), trimmed. */
 export const OneLine = z.string().trim().superRefine(refuse('one-line'));
 /** Several lines of text (notes), trimmed; CRLF is kept as LF. */
-export const MultiLine = z.string().trim().overwrite((s) => s.replace(/\r\n/g, '\n')).superRefine(refuse('multi-line'));
+export const MultiLine = z
+  .string()
+  .trim()
+  .overwrite((s) => s.replace(/\r\n/g, '\n'))
+  .superRefine(refuse('multi-line'));
 
 /** One line of at most `max` characters. @example oneLineText(40).min(1, 'is required') */
 export const oneLineText = (max: number) => OneLine.max(max, `must be at most ${max} characters`);

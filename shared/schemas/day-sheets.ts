@@ -25,4 +25,8 @@ export interface DaySheet {
   visits: DaySheetVisit[];
 }
 
-export interface DaySheetList { date: string; timeZone: string; sheets: DaySheet[] }
+export interface DaySheetList {
+  date: string;
+  timeZone: string;
+  sheets: DaySheet[];
+}

@@ -4,45 +4,50 @@ import { BLOCK_LAYINGS, EXCAVATOR_SIZES, GROUND_TYPES } from '../quantities/sett
 const positive = z.number().gt(0);
 
 /** A firm's own figures over the defaults; every field is optional (left out = the default). */
-export const QuantitySettingsPatch = z.object({
-  perimeterGapMm: z.number().min(0).max(1000),
-  serviceSideGapMm: z.number().min(0).max(2000),
-  workingRoomMm: z.number().min(0).max(2000),
-  baseThicknessMm: z.number().min(50).max(600),
-  subBaseMm: z.number().min(0).max(600),
-  subBaseDensityTPerM3: positive.max(3),
-  subBaseOrderStepT: positive.max(30),
-  bulkingFactor: z.number().min(1).max(2),
-  skipVolumeM3: positive.max(40),
-  grabLorryVolumeM3: positive.max(40),
-  grabLorryPayloadT: positive.max(44),
-  skipPayloadT: positive.max(20),
-  spoilDensityTPerM3: positive.max(3),
-  concreteWasteFraction: z.number().min(0).max(0.5),
-  concreteOrderStepM3: positive.max(10),
-  blockLengthMm: positive.max(1000),
-  blockHeightMm: positive.max(1000),
-  blockThicknessMm: positive.max(500),
-  jointMm: z.number().min(0).max(30),
-  blockLaying: z.enum(BLOCK_LAYINGS),
-  accessWidthAllowanceMm: z.number().min(0).max(1000),
-  dollyHeightMm: z.number().min(0).max(1000),
-  uprightRaiseMm: z.number().min(0).max(1000),
-  maxDollyDryWeightKg: positive.max(5000),
-  supplyCheckFraction: z.number().gt(0).max(1),
-  semiRecessedDepthFraction: z.number().gt(0).lt(1),
-  excavatorRatesM3PerHour: z.object({ '1.5t': positive.max(50), '3t': positive.max(50), '5t': positive.max(50) }).partial(),
-  defaultExcavator: z.enum(EXCAVATOR_SIZES),
-  groundRateFactors: z.partialRecord(z.enum(GROUND_TYPES), positive.max(5)),
-  moveCrew: z.number().int().min(1).max(20),
-  moveExtraCrewOnSteps: z.number().int().min(0).max(20),
-  moveMinutes: z.number().min(0).max(600),
-  moveMinutesPerStep: z.number().min(0).max(60),
-  hoseFlowLitresPerMinute: positive.max(200),
-  fillWaterTempC: z.number().min(0).max(40),
-  targetWaterTempC: z.number().min(20).max(40),
-  heaterKw: positive.max(20),
-}).partial().strict();
+export const QuantitySettingsPatch = z
+  .object({
+    perimeterGapMm: z.number().min(0).max(1000),
+    serviceSideGapMm: z.number().min(0).max(2000),
+    workingRoomMm: z.number().min(0).max(2000),
+    baseThicknessMm: z.number().min(50).max(600),
+    subBaseMm: z.number().min(0).max(600),
+    subBaseDensityTPerM3: positive.max(3),
+    subBaseOrderStepT: positive.max(30),
+    bulkingFactor: z.number().min(1).max(2),
+    skipVolumeM3: positive.max(40),
+    grabLorryVolumeM3: positive.max(40),
+    grabLorryPayloadT: positive.max(44),
+    skipPayloadT: positive.max(20),
+    spoilDensityTPerM3: positive.max(3),
+    concreteWasteFraction: z.number().min(0).max(0.5),
+    concreteOrderStepM3: positive.max(10),
+    blockLengthMm: positive.max(1000),
+    blockHeightMm: positive.max(1000),
+    blockThicknessMm: positive.max(500),
+    jointMm: z.number().min(0).max(30),
+    blockLaying: z.enum(BLOCK_LAYINGS),
+    accessWidthAllowanceMm: z.number().min(0).max(1000),
+    dollyHeightMm: z.number().min(0).max(1000),
+    uprightRaiseMm: z.number().min(0).max(1000),
+    maxDollyDryWeightKg: positive.max(5000),
+    supplyCheckFraction: z.number().gt(0).max(1),
+    semiRecessedDepthFraction: z.number().gt(0).lt(1),
+    excavatorRatesM3PerHour: z
+      .object({ '1.5t': positive.max(50), '3t': positive.max(50), '5t': positive.max(50) })
+      .partial(),
+    defaultExcavator: z.enum(EXCAVATOR_SIZES),
+    groundRateFactors: z.partialRecord(z.enum(GROUND_TYPES), positive.max(5)),
+    moveCrew: z.number().int().min(1).max(20),
+    moveExtraCrewOnSteps: z.number().int().min(0).max(20),
+    moveMinutes: z.number().min(0).max(600),
+    moveMinutesPerStep: z.number().min(0).max(60),
+    hoseFlowLitresPerMinute: positive.max(200),
+    fillWaterTempC: z.number().min(0).max(40),
+    targetWaterTempC: z.number().min(20).max(40),
+    heaterKw: positive.max(20),
+  })
+  .partial()
+  .strict();
 export type QuantitySettingsPatch = z.infer<typeof QuantitySettingsPatch>;
 
 /**
@@ -50,21 +55,35 @@ export type QuantitySettingsPatch = z.infer<typeof QuantitySettingsPatch>;
  * based on old figures would quietly undo someone else's. The photo switch is one yes/no whose
  * request states the whole outcome, so it may be sent on its own without a version.
  */
-export const PutFirmSettings = z.object({
-  version: z.number().int().min(0).optional(),
-  quantities: QuantitySettingsPatch.optional(),
-  /** Keep where a photo was taken (EXIF GPS) in the stored original; off by default. */
-  keepPhotoLocation: z.boolean().optional(),
-  /** Show the householder's name and phone to the partner firms booked on the job (their day sheet); off by default. */
-  shareCustomerContactWithPartners: z.boolean().optional(),
-  /**
-   * The firm's concrete's Nurse–Saul datum temperature, °C, for the cure from the site's weather.
-   * ASTM C1074 asks for it to be found for the mix and recommends 0 °C as the working default.
-   * One value whose request states the whole outcome, so no version (as the switches).
-   */
-  cureDatumC: z.number({ message: 'must be a temperature in °C' }).min(-15, 'must be between −15 and 15 °C').max(15, 'must be between −15 and 15 °C').optional(),
-})
-  .refine((s) => s.quantities === undefined || s.version !== undefined, { path: ['version'], message: 'is required when changing the quantities' })
-  .refine((s) => s.quantities !== undefined || s.keepPhotoLocation !== undefined || s.shareCustomerContactWithPartners !== undefined || s.cureDatumC !== undefined,
-    { path: ['quantities'], message: 'send the quantities, the photo setting, the sharing setting or the cure datum' });
+export const PutFirmSettings = z
+  .object({
+    version: z.number().int().min(0).optional(),
+    quantities: QuantitySettingsPatch.optional(),
+    /** Keep where a photo was taken (EXIF GPS) in the stored original; off by default. */
+    keepPhotoLocation: z.boolean().optional(),
+    /** Show the householder's name and phone to the partner firms booked on the job (their day sheet); off by default. */
+    shareCustomerContactWithPartners: z.boolean().optional(),
+    /**
+     * The firm's concrete's Nurse–Saul datum temperature, °C, for the cure from the site's weather.
+     * ASTM C1074 asks for it to be found for the mix and recommends 0 °C as the working default.
+     * One value whose request states the whole outcome, so no version (as the switches).
+     */
+    cureDatumC: z
+      .number({ message: 'must be a temperature in °C' })
+      .min(-15, 'must be between −15 and 15 °C')
+      .max(15, 'must be between −15 and 15 °C')
+      .optional(),
+  })
+  .refine((s) => s.quantities === undefined || s.version !== undefined, {
+    path: ['version'],
+    message: 'is required when changing the quantities',
+  })
+  .refine(
+    (s) =>
+      s.quantities !== undefined ||
+      s.keepPhotoLocation !== undefined ||
+      s.shareCustomerContactWithPartners !== undefined ||
+      s.cureDatumC !== undefined,
+    { path: ['quantities'], message: 'send the quantities, the photo setting, the sharing setting or the cure datum' },
+  );
 export type PutFirmSettings = z.infer<typeof PutFirmSettings>;

@@ -1,33 +1,47 @@
 import { z } from 'zod';
 import { Id, WorkInstant } from './common.ts';
 
-const pence = (what: string) => z.number({ message: `${what} must be a whole number of pence` }).int(`${what} must be a whole number of pence`).min(0, `${what} can't be negative`).max(100_000_000, `${what} is too large`);
+const pence = (what: string) =>
+  z
+    .number({ message: `${what} must be a whole number of pence` })
+    .int(`${what} must be a whole number of pence`)
+    .min(0, `${what} can't be negative`)
+    .max(100_000_000, `${what} is too large`);
 
 /** A hire period the manager records: which machine, from which supplier, when, at what price. */
-export const CreateHirePeriod = z.object({
-  supplierFirmId: Id,
-  resourceId: Id,
-  onHireAt: WorkInstant,
-  offHireAt: WorkInstant,
-  dayRatePence: pence('The day rate'),
-  deliveryPence: pence('The delivery charge').default(0),
-  collectionPence: pence('The collection charge').default(0),
-  /** Record it already approved (the manager's own hire) or as requested. */
-  approve: z.boolean().default(false),
-}).refine((h) => Date.parse(h.offHireAt) > Date.parse(h.onHireAt), { path: ['offHireAt'], message: 'must be after the on-hire' });
+export const CreateHirePeriod = z
+  .object({
+    supplierFirmId: Id,
+    resourceId: Id,
+    onHireAt: WorkInstant,
+    offHireAt: WorkInstant,
+    dayRatePence: pence('The day rate'),
+    deliveryPence: pence('The delivery charge').default(0),
+    collectionPence: pence('The collection charge').default(0),
+    /** Record it already approved (the manager's own hire) or as requested. */
+    approve: z.boolean().default(false),
+  })
+  .refine((h) => Date.parse(h.offHireAt) > Date.parse(h.onHireAt), {
+    path: ['offHireAt'],
+    message: 'must be after the on-hire',
+  });
 export type CreateHirePeriod = z.infer<typeof CreateHirePeriod>;
 
 /** Approve, end or change a hire period; `version` is the one the change was based on. */
-export const UpdateHirePeriod = z.object({
-  version: z.number().int().min(1),
-  status: z.enum(['approved', 'ended']).optional(),
-  onHireAt: WorkInstant.optional(),
-  offHireAt: WorkInstant.optional(),
-  dayRatePence: pence('The day rate').optional(),
-  deliveryPence: pence('The delivery charge').optional(),
-  collectionPence: pence('The collection charge').optional(),
-}).refine((h) => h.onHireAt === undefined || h.offHireAt === undefined || Date.parse(h.offHireAt) > Date.parse(h.onHireAt),
-  { path: ['offHireAt'], message: 'must be after the on-hire' });
+export const UpdateHirePeriod = z
+  .object({
+    version: z.number().int().min(1),
+    status: z.enum(['approved', 'ended']).optional(),
+    onHireAt: WorkInstant.optional(),
+    offHireAt: WorkInstant.optional(),
+    dayRatePence: pence('The day rate').optional(),
+    deliveryPence: pence('The delivery charge').optional(),
+    collectionPence: pence('The collection charge').optional(),
+  })
+  .refine(
+    (h) => h.onHireAt === undefined || h.offHireAt === undefined || Date.parse(h.offHireAt) > Date.parse(h.onHireAt),
+    { path: ['offHireAt'], message: 'must be after the on-hire' },
+  );
 export type UpdateHirePeriod = z.infer<typeof UpdateHirePeriod>;
 
 /** A hire period as the API returns it. */

@@ -13,8 +13,10 @@ export const JobQuery = Paging.extend({
 });
 export type JobQuery = z.infer<typeof JobQuery>;
 
-const UkPostcode = OneLine.toUpperCase()
-  .regex(/^[A-Z]{1,2}[0-9][A-Z0-9]? ?[0-9][A-Z]{2}$/, 'must be a UK postcode such as LS6 2AB');
+const UkPostcode = OneLine.toUpperCase().regex(
+  /^[A-Z]{1,2}[0-9][A-Z0-9]? ?[0-9][A-Z]{2}$/,
+  'must be a UK postcode such as LS6 2AB',
+);
 
 /** A job's editable fields, without the cross-field rules (zod cannot make a refined object partial). */
 export const JobFields = z.object({
@@ -41,20 +43,27 @@ export const CreateJob = JobFields.refine(promisedInOrder, promisedRule);
 export type CreateJob = z.infer<typeof CreateJob>;
 
 /** PATCH /api/jobs/:id: any of the job's fields, and the version the change is based on. */
-export const UpdateJob = JobFields.partial().extend({
-  version: z.number().int().min(1),
-  status: z.enum(JOB_STATUSES).optional(),
-}).refine(promisedInOrder, promisedRule);
+export const UpdateJob = JobFields.partial()
+  .extend({
+    version: z.number().int().min(1),
+    status: z.enum(JOB_STATUSES).optional(),
+  })
+  .refine(promisedInOrder, promisedRule);
 export type UpdateJob = z.infer<typeof UpdateJob>;
 
 /** GET /api/job-references/next: the prefix to count in (default: the prefix of the firm's latest job). */
 export const NextReferenceQuery = z.object({
-  prefix: oneLineText(30).regex(/^[^0-9]*$|^.*[^0-9]$/, 'must not end in a digit').optional(),
+  prefix: oneLineText(30)
+    .regex(/^[^0-9]*$|^.*[^0-9]$/, 'must not end in a digit')
+    .optional(),
 });
 export type NextReferenceQuery = z.infer<typeof NextReferenceQuery>;
 
 /** The reference a new job would get: the highest of its prefix + 1, the digits as wide as before. */
-export interface NextReference { prefix: string; nextReference: string }
+export interface NextReference {
+  prefix: string;
+  nextReference: string;
+}
 
 export const JobSummary = z.object({
   id: Id,

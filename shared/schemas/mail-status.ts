@@ -31,7 +31,15 @@ export interface UndeliveredMail {
   detail: string | null;
 }
 
-export interface UndeliveredMailList { items: UndeliveredMail[]; total: number; waitingAfterMinutes: number }
+export interface UndeliveredMailList {
+  items: UndeliveredMail[];
+  total: number;
+  waitingAfterMinutes: number;
+}
 
 /** What "Send again" answers: requeued is false when it was already on its way (or sent). */
-export interface SendAgainResult { id: string; status: 'pending' | 'queued' | 'sent'; requeued: boolean }
+export interface SendAgainResult {
+  id: string;
+  status: 'pending' | 'queued' | 'sent';
+  requeued: boolean;
+}

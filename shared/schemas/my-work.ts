@@ -7,13 +7,24 @@ import { IsoInstant } from './common.ts';
  * GET /api/my-work: without a range, from the start of today (the firm's day, by the server's
  * clock) for `days` days, so the phone and the server agree on what "today" is.
  */
-export const MyWorkQuery = z.object({
-  from: IsoInstant.optional(),
-  to: IsoInstant.optional(),
-  days: z.coerce.number().int().min(1, 'must be at least 1 day').max(100, 'must be at most 100 days').default(14),
-}).refine((q) => (q.from === undefined) === (q.to === undefined), { path: ['to'], message: 'give both from and to, or neither' })
-  .refine((q) => q.from === undefined || q.to === undefined || Date.parse(q.to) > Date.parse(q.from), { path: ['to'], message: 'must be after from' })
-  .refine((q) => q.from === undefined || q.to === undefined || Date.parse(q.to) - Date.parse(q.from) <= 100 * 86_400_000, { path: ['to'], message: 'range may span at most 100 days' });
+export const MyWorkQuery = z
+  .object({
+    from: IsoInstant.optional(),
+    to: IsoInstant.optional(),
+    days: z.coerce.number().int().min(1, 'must be at least 1 day').max(100, 'must be at most 100 days').default(14),
+  })
+  .refine((q) => (q.from === undefined) === (q.to === undefined), {
+    path: ['to'],
+    message: 'give both from and to, or neither',
+  })
+  .refine((q) => q.from === undefined || q.to === undefined || Date.parse(q.to) > Date.parse(q.from), {
+    path: ['to'],
+    message: 'must be after from',
+  })
+  .refine(
+    (q) => q.from === undefined || q.to === undefined || Date.parse(q.to) - Date.parse(q.from) <= 100 * 86_400_000,
+    { path: ['to'], message: 'range may span at most 100 days' },
+  );
 export type MyWorkQuery = z.infer<typeof MyWorkQuery>;
 
 /**

@@ -4,7 +4,8 @@ import { z } from 'zod';
 export const MAX_PENCE = 10_000_000;
 
 /** An amount of money in whole pence: a positive integer, never a float of pounds. */
-export const Pence = z.number({ message: 'must be a whole number of pence, e.g. 50000 for £500.00' })
+export const Pence = z
+  .number({ message: 'must be a whole number of pence, e.g. 50000 for £500.00' })
   .int('must be a whole number of pence, e.g. 50000 for £500.00')
   .positive('must be more than 0')
   .max(MAX_PENCE, `must be at most ${MAX_PENCE} pence (£100,000.00)`);

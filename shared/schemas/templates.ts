@@ -2,24 +2,47 @@ import { z } from 'zod';
 import { INSTALLATION_TYPES } from './jobs.ts';
 import { oneLineText } from './common.ts';
 
-const Kind = z.string().trim().regex(/^[a-z][a-z0-9_]{1,39}$/, 'must be lower_snake_case');
+const Kind = z
+  .string()
+  .trim()
+  .regex(/^[a-z][a-z0-9_]{1,39}$/, 'must be lower_snake_case');
 
 export const StageTemplateSchema = z.object({
   kind: Kind,
   name: oneLineText(120).min(1, 'is required'),
   duration: z.discriminatedUnion('kind', [
-    z.object({ kind: z.literal('fixed'), minutes: z.number().int().min(15).max(60 * 24 * 10) }),
-    z.object({ kind: z.literal('excavation'), fallbackMinutes: z.number().int().min(15).max(60 * 24 * 10) }),
+    z.object({
+      kind: z.literal('fixed'),
+      minutes: z
+        .number()
+        .int()
+        .min(15)
+        .max(60 * 24 * 10),
+    }),
+    z.object({
+      kind: z.literal('excavation'),
+      fallbackMinutes: z
+        .number()
+        .int()
+        .min(15)
+        .max(60 * 24 * 10),
+    }),
   ]),
   requirements: z.array(z.object({ kind: Kind, count: z.number().int().min(1).max(10) })).max(10),
-  cure: z.object({ targetFraction: z.number().gt(0).max(1) }).nullable().optional(),
+  cure: z
+    .object({ targetFraction: z.number().gt(0).max(1) })
+    .nullable()
+    .optional(),
   /** Notice the stage needs (checked on each job's stage); with resourceKind, that party's booking only. */
-  leadTime: z.object({
-    workingDays: z.number().int().min(0).max(250),
-    countedFrom: z.enum(['now', 'order']),
-    resourceKind: Kind.nullable().optional(),
-    reason: oneLineText(120).nullable().optional(),
-  }).nullable().optional(),
+  leadTime: z
+    .object({
+      workingDays: z.number().int().min(0).max(250),
+      countedFrom: z.enum(['now', 'order']),
+      resourceKind: Kind.nullable().optional(),
+      reason: oneLineText(120).nullable().optional(),
+    })
+    .nullable()
+    .optional(),
   when: z.enum(['always', 'crane', 'no_crane']).optional(),
   mayContinueNextDay: z.boolean().optional(),
 });

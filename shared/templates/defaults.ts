@@ -16,39 +16,89 @@ import type { InstallTemplate, LinkTemplate, StageTemplate } from './types.ts';
  */
 
 const fixed = (minutes: number) => ({ kind: 'fixed', minutes }) as const;
-const fs = (from: string, to: string, lagAmount = 0, lagUnit: LinkTemplate['lagUnit'] = 'working_hours'): LinkTemplate =>
-  ({ from, to, type: 'FS', lagAmount, lagUnit });
+const fs = (
+  from: string,
+  to: string,
+  lagAmount = 0,
+  lagUnit: LinkTemplate['lagUnit'] = 'working_hours',
+): LinkTemplate => ({ from, to, type: 'FS', lagAmount, lagUnit });
 /** A link into a stage that loads the base: it waits for the base's cure. */
 const onCuredBase = (from: string, to: string): LinkTemplate => ({ ...fs(from, to), waitsForCure: true });
 
-const SURVEY: StageTemplate = { kind: 'survey', name: 'Site survey', duration: fixed(120), requirements: [{ kind: 'install_crew', count: 1 }] };
+const SURVEY: StageTemplate = {
+  kind: 'survey',
+  name: 'Site survey',
+  duration: fixed(120),
+  requirements: [{ kind: 'install_crew', count: 1 }],
+};
 const ELECTRICIAN_NOTICE = { workingDays: 3, countedFrom: 'now', resourceKind: 'electrician' } as const;
-const FIRST_FIX: StageTemplate = { kind: 'electrical_first_fix', name: 'Supply cable first fix', duration: fixed(240), requirements: [{ kind: 'electrician', count: 1 }], leadTime: { ...ELECTRICIAN_NOTICE } };
-const DELIVERY: StageTemplate = { kind: 'delivery', name: 'Delivery', duration: fixed(120), requirements: [{ kind: 'lorry', count: 1 }], leadTime: { workingDays: 15, countedFrom: 'order', reason: "the maker's lead time" } };
+const FIRST_FIX: StageTemplate = {
+  kind: 'electrical_first_fix',
+  name: 'Supply cable first fix',
+  duration: fixed(240),
+  requirements: [{ kind: 'electrician', count: 1 }],
+  leadTime: { ...ELECTRICIAN_NOTICE },
+};
+const DELIVERY: StageTemplate = {
+  kind: 'delivery',
+  name: 'Delivery',
+  duration: fixed(120),
+  requirements: [{ kind: 'lorry', count: 1 }],
+  leadTime: { workingDays: 15, countedFrom: 'order', reason: "the maker's lead time" },
+};
 /** The crane firm's appointed person visits the site and sends the lift plan the lift follows. */
 const LIFT_PLAN: StageTemplate = {
-  kind: 'lift_plan', name: 'Lift plan received', duration: fixed(60), when: 'crane',
-  requirements: [{ kind: 'lift_planner', count: 1 }], leadTime: { workingDays: 5, countedFrom: 'now', resourceKind: 'lift_planner' },
+  kind: 'lift_plan',
+  name: 'Lift plan received',
+  duration: fixed(60),
+  when: 'crane',
+  requirements: [{ kind: 'lift_planner', count: 1 }],
+  leadTime: { workingDays: 5, countedFrom: 'now', resourceKind: 'lift_planner' },
 };
 /**
  * The dig's spoil taken away by the hired haulier (skips swapped or a grab lorry loaded); the plan's
  * note counts the skips or grab-lorry loads from the job's quantities.
  */
 const SPOIL_AWAY: StageTemplate = {
-  kind: 'spoil_away', name: 'Spoil away (skips or grab lorry)', duration: fixed(120),
-  requirements: [{ kind: 'spoil_removal', count: 1 }], leadTime: { workingDays: 2, countedFrom: 'now', resourceKind: 'spoil_removal' },
+  kind: 'spoil_away',
+  name: 'Spoil away (skips or grab lorry)',
+  duration: fixed(120),
+  requirements: [{ kind: 'spoil_removal', count: 1 }],
+  leadTime: { workingDays: 2, countedFrom: 'now', resourceKind: 'spoil_removal' },
 };
 const LIFT = (name: string): StageTemplate => ({
-  kind: 'lift', name, duration: fixed(240), when: 'crane', leadTime: { workingDays: 10, countedFrom: 'now', resourceKind: 'crane' },
-  requirements: [{ kind: 'crane', count: 1 }, { kind: 'install_crew', count: 1 }, { kind: 'pallet_truck', count: 2 }, { kind: 'rollers', count: 1 }],
+  kind: 'lift',
+  name,
+  duration: fixed(240),
+  when: 'crane',
+  leadTime: { workingDays: 10, countedFrom: 'now', resourceKind: 'crane' },
+  requirements: [
+    { kind: 'crane', count: 1 },
+    { kind: 'install_crew', count: 1 },
+    { kind: 'pallet_truck', count: 2 },
+    { kind: 'rollers', count: 1 },
+  ],
 });
 const PLACEMENT = (name: string, rollers: boolean): StageTemplate => ({
-  kind: 'placement', name, duration: fixed(180), when: 'no_crane',
-  requirements: [{ kind: 'install_crew', count: 1 }, { kind: 'pallet_truck', count: 2 }, ...(rollers ? [{ kind: 'rollers', count: 1 }] : [])],
+  kind: 'placement',
+  name,
+  duration: fixed(180),
+  when: 'no_crane',
+  requirements: [
+    { kind: 'install_crew', count: 1 },
+    { kind: 'pallet_truck', count: 2 },
+    ...(rollers ? [{ kind: 'rollers', count: 1 }] : []),
+  ],
 });
 const FINISH: StageTemplate[] = [
   { kind: 'fill', name: 'Fill', duration: fixed(180), requirements: [{ kind: 'install_crew', count: 1 }] },
-  { kind: 'electrical_connect', name: 'Connect and certify', duration: fixed(240), requirements: [{ kind: 'electrician', count: 1 }], leadTime: { ...ELECTRICIAN_NOTICE } },
+  {
+    kind: 'electrical_connect',
+    name: 'Connect and certify',
+    duration: fixed(240),
+    requirements: [{ kind: 'electrician', count: 1 }],
+    leadTime: { ...ELECTRICIAN_NOTICE },
+  },
   { kind: 'commission', name: 'Commission', duration: fixed(180), requirements: [{ kind: 'install_crew', count: 1 }] },
   { kind: 'handover', name: 'Handover', duration: fixed(60), requirements: [{ kind: 'install_crew', count: 1 }] },
 ];
@@ -60,24 +110,33 @@ const CURE_70 = { targetFraction: 0.7 };
  * (common practice, no source).
  */
 const FINISH_LINKS: LinkTemplate[] = [
-  fs('survey', 'lift_plan', 0, 'working_days'), fs('lift_plan', 'lift', 1, 'working_days'),
-  fs('delivery', 'lift'), fs('delivery', 'placement'),
-  fs('electrical_first_fix', 'lift'), fs('electrical_first_fix', 'placement'),
-  fs('lift', 'fill'), fs('placement', 'fill'),
-  fs('lift', 'electrical_connect'), fs('placement', 'electrical_connect'),
-  fs('fill', 'commission'), fs('electrical_connect', 'commission'),
+  fs('survey', 'lift_plan', 0, 'working_days'),
+  fs('lift_plan', 'lift', 1, 'working_days'),
+  fs('delivery', 'lift'),
+  fs('delivery', 'placement'),
+  fs('electrical_first_fix', 'lift'),
+  fs('electrical_first_fix', 'placement'),
+  fs('lift', 'fill'),
+  fs('placement', 'fill'),
+  fs('lift', 'electrical_connect'),
+  fs('placement', 'electrical_connect'),
+  fs('fill', 'commission'),
+  fs('electrical_connect', 'commission'),
   fs('commission', 'handover'),
 ];
 
 const PIT_LINKS: LinkTemplate[] = [
-  fs('survey', 'excavation', 0, 'working_days'), fs('survey', 'electrical_first_fix', 0, 'working_days'),
+  fs('survey', 'excavation', 0, 'working_days'),
+  fs('survey', 'electrical_first_fix', 0, 'working_days'),
   fs('excavation', 'base_pour'),
   // The spoil goes once the dig is done: a grab lorry collects at its end (the same day allowed).
   fs('excavation', 'spoil_away'),
   // Walls go up on the base once it has set overnight; the lift and the placement wait for the cure.
   fs('base_pour', 'walls', 16, 'elapsed_hours'),
-  onCuredBase('base_pour', 'lift'), onCuredBase('base_pour', 'placement'),
-  fs('walls', 'lift'), fs('walls', 'placement'),
+  onCuredBase('base_pour', 'lift'),
+  onCuredBase('base_pour', 'placement'),
+  fs('walls', 'lift'),
+  fs('walls', 'placement'),
   ...FINISH_LINKS,
 ];
 
@@ -86,10 +145,32 @@ export const IN_GROUND_TEMPLATE: InstallTemplate = {
   name: 'In-ground pit',
   stages: [
     SURVEY,
-    { kind: 'excavation', name: 'Excavate pit', duration: { kind: 'excavation', fallbackMinutes: 720 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }], mayContinueNextDay: true },
+    {
+      kind: 'excavation',
+      name: 'Excavate pit',
+      duration: { kind: 'excavation', fallbackMinutes: 720 },
+      requirements: [
+        { kind: 'groundworks_crew', count: 1 },
+        { kind: 'excavator', count: 1 },
+        { kind: 'dumper', count: 1 },
+      ],
+      mayContinueNextDay: true,
+    },
     SPOIL_AWAY,
-    { kind: 'base_pour', name: 'Pour reinforced base', duration: fixed(300), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
-    { kind: 'walls', name: 'Block retaining walls', duration: fixed(960), requirements: [{ kind: 'groundworks_crew', count: 1 }], mayContinueNextDay: true },
+    {
+      kind: 'base_pour',
+      name: 'Pour reinforced base',
+      duration: fixed(300),
+      requirements: [{ kind: 'groundworks_crew', count: 1 }],
+      cure: CURE_70,
+    },
+    {
+      kind: 'walls',
+      name: 'Block retaining walls',
+      duration: fixed(960),
+      requirements: [{ kind: 'groundworks_crew', count: 1 }],
+      mayContinueNextDay: true,
+    },
     FIRST_FIX,
     DELIVERY,
     LIFT_PLAN,
@@ -105,10 +186,32 @@ export const SEMI_RECESSED_TEMPLATE: InstallTemplate = {
   name: 'Semi-recessed pit',
   stages: [
     SURVEY,
-    { kind: 'excavation', name: 'Excavate part-depth pit', duration: { kind: 'excavation', fallbackMinutes: 480 }, requirements: [{ kind: 'groundworks_crew', count: 1 }, { kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }], mayContinueNextDay: true },
+    {
+      kind: 'excavation',
+      name: 'Excavate part-depth pit',
+      duration: { kind: 'excavation', fallbackMinutes: 480 },
+      requirements: [
+        { kind: 'groundworks_crew', count: 1 },
+        { kind: 'excavator', count: 1 },
+        { kind: 'dumper', count: 1 },
+      ],
+      mayContinueNextDay: true,
+    },
     SPOIL_AWAY,
-    { kind: 'base_pour', name: 'Pour reinforced base', duration: fixed(300), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
-    { kind: 'walls', name: 'Block walls to part height', duration: fixed(540), requirements: [{ kind: 'groundworks_crew', count: 1 }], mayContinueNextDay: true },
+    {
+      kind: 'base_pour',
+      name: 'Pour reinforced base',
+      duration: fixed(300),
+      requirements: [{ kind: 'groundworks_crew', count: 1 }],
+      cure: CURE_70,
+    },
+    {
+      kind: 'walls',
+      name: 'Block walls to part height',
+      duration: fixed(540),
+      requirements: [{ kind: 'groundworks_crew', count: 1 }],
+      mayContinueNextDay: true,
+    },
     FIRST_FIX,
     DELIVERY,
     LIFT_PLAN,
@@ -124,7 +227,13 @@ export const SLAB_TEMPLATE: InstallTemplate = {
   name: 'On a slab',
   stages: [
     SURVEY,
-    { kind: 'base_pour', name: 'Pour slab', duration: fixed(360), requirements: [{ kind: 'groundworks_crew', count: 1 }], cure: CURE_70 },
+    {
+      kind: 'base_pour',
+      name: 'Pour slab',
+      duration: fixed(360),
+      requirements: [{ kind: 'groundworks_crew', count: 1 }],
+      cure: CURE_70,
+    },
     FIRST_FIX,
     DELIVERY,
     LIFT_PLAN,
@@ -133,8 +242,10 @@ export const SLAB_TEMPLATE: InstallTemplate = {
     ...FINISH,
   ],
   links: [
-    fs('survey', 'base_pour', 0, 'working_days'), fs('survey', 'electrical_first_fix', 0, 'working_days'),
-    onCuredBase('base_pour', 'lift'), onCuredBase('base_pour', 'placement'),
+    fs('survey', 'base_pour', 0, 'working_days'),
+    fs('survey', 'electrical_first_fix', 0, 'working_days'),
+    onCuredBase('base_pour', 'lift'),
+    onCuredBase('base_pour', 'placement'),
     ...FINISH_LINKS,
   ],
 };
@@ -144,7 +255,12 @@ export const DECK_TEMPLATE: InstallTemplate = {
   name: 'On a deck',
   stages: [
     SURVEY,
-    { kind: 'deck_check', name: "Confirm the deck's rating with the engineer", duration: fixed(60), requirements: [{ kind: 'install_crew', count: 1 }] },
+    {
+      kind: 'deck_check',
+      name: "Confirm the deck's rating with the engineer",
+      duration: fixed(60),
+      requirements: [{ kind: 'install_crew', count: 1 }],
+    },
     FIRST_FIX,
     DELIVERY,
     LIFT_PLAN,
@@ -153,8 +269,10 @@ export const DECK_TEMPLATE: InstallTemplate = {
     ...FINISH,
   ],
   links: [
-    fs('survey', 'deck_check', 0, 'working_days'), fs('survey', 'electrical_first_fix', 0, 'working_days'),
-    fs('deck_check', 'lift'), fs('deck_check', 'placement'),
+    fs('survey', 'deck_check', 0, 'working_days'),
+    fs('survey', 'electrical_first_fix', 0, 'working_days'),
+    fs('deck_check', 'lift'),
+    fs('deck_check', 'placement'),
     ...FINISH_LINKS,
   ],
 };
@@ -171,5 +289,8 @@ export const DEFAULT_TEMPLATES: Record<InstallTemplate['installationType'], Inst
  * source). The firm's service plan sets these up as jobs of their own (server/services/handover.ts).
  */
 export const SERVICE_VISIT_TEMPLATE: StageTemplate = {
-  kind: 'service_visit', name: 'Service visit', duration: fixed(120), requirements: [{ kind: 'install_crew', count: 1 }],
+  kind: 'service_visit',
+  name: 'Service visit',
+  duration: fixed(120),
+  requirements: [{ kind: 'install_crew', count: 1 }],
 };

@@ -27,9 +27,19 @@ export interface PlannedStage {
   cautions: string[];
 }
 
-export interface PlannedLink { fromKind: string; toKind: string; type: DependencyType; lagAmount: number; lagUnit: LagUnit; waitsForCure: boolean }
+export interface PlannedLink {
+  fromKind: string;
+  toKind: string;
+  type: DependencyType;
+  lagAmount: number;
+  lagUnit: LagUnit;
+  waitsForCure: boolean;
+}
 
-export interface Plan { stages: PlannedStage[]; links: PlannedLink[] }
+export interface Plan {
+  stages: PlannedStage[];
+  links: PlannedLink[];
+}
 
 /**
  * A job's stages and dependencies from a template: a crane lift only when a crane is needed,
@@ -57,11 +67,18 @@ export function planFromTemplate(template: InstallTemplate, options: PlanOptions
       durationMinutes = s.duration.fallbackMinutes;
       durationSource = 'template fallback (no quantities yet)';
     }
-    const leadTime: StageNotice | null = s.kind === 'delivery' && options.makerLeadDays
-      ? { workingDays: options.makerLeadDays, countedFrom: 'order', reason: "the maker's lead time" }
-      : s.leadTime ? { ...s.leadTime } : null;
+    const leadTime: StageNotice | null =
+      s.kind === 'delivery' && options.makerLeadDays
+        ? { workingDays: options.makerLeadDays, countedFrom: 'order', reason: "the maker's lead time" }
+        : s.leadTime
+          ? { ...s.leadTime }
+          : null;
     return {
-      kind: s.kind, name: s.name, sequence: n + 1, durationMinutes, durationSource,
+      kind: s.kind,
+      name: s.name,
+      sequence: n + 1,
+      durationMinutes,
+      durationSource,
       requirements: s.requirements.map((r) => ({ ...r })),
       cure: s.cure ? { ...s.cure } : null,
       leadTime,
@@ -70,8 +87,16 @@ export function planFromTemplate(template: InstallTemplate, options: PlanOptions
     };
   });
   const kinds = new Set(stages.map((s) => s.kind));
-  const links = template.links.filter((l) => kinds.has(l.from) && kinds.has(l.to))
-    .map((l): PlannedLink => ({ fromKind: l.from, toKind: l.to, type: l.type, lagAmount: l.lagAmount, lagUnit: l.lagUnit, waitsForCure: l.waitsForCure === true }));
+  const links = template.links
+    .filter((l) => kinds.has(l.from) && kinds.has(l.to))
+    .map((l): PlannedLink => ({
+      fromKind: l.from,
+      toKind: l.to,
+      type: l.type,
+      lagAmount: l.lagAmount,
+      lagUnit: l.lagUnit,
+      waitsForCure: l.waitsForCure === true,
+    }));
   return { stages, links };
 }
 
@@ -92,14 +117,16 @@ export function templateProblems(template: InstallTemplate): string[] {
   });
   template.stages.forEach((s, n) => {
     const kind = s.leadTime?.resourceKind;
-    if (kind && !s.requirements.some((r) => r.kind === kind)) problems.push(`stages[${n}].leadTime.resourceKind: ${s.name} needs no ${kind.replace(/_/g, ' ')}`);
+    if (kind && !s.requirements.some((r) => r.kind === kind))
+      problems.push(`stages[${n}].leadTime.resourceKind: ${s.name} needs no ${kind.replace(/_/g, ' ')}`);
   });
   template.links.forEach((l, n) => {
     if (!kinds.has(l.from)) problems.push(`links[${n}]: no stage ${l.from}`);
     if (!kinds.has(l.to)) problems.push(`links[${n}]: no stage ${l.to}`);
     if (l.from === l.to) problems.push(`links[${n}]: a stage cannot depend on itself`);
     const from = template.stages.find((s) => s.kind === l.from);
-    if (l.waitsForCure === true && from && !from.cure) problems.push(`links[${n}].waitsForCure: ${from.name} has no cure to wait for`);
+    if (l.waitsForCure === true && from && !from.cure)
+      problems.push(`links[${n}].waitsForCure: ${from.name} has no cure to wait for`);
   });
   if (problems.length) return problems;
   // A loop in either planned variant (crane or not) would leave the job unschedulable.
@@ -116,7 +143,10 @@ export function templateProblems(template: InstallTemplate): string[] {
       state.set(k, 2);
       return loop;
     };
-    if (plan.stages.some((s) => visit(s.kind))) { problems.push('links form a loop'); break; }
+    if (plan.stages.some((s) => visit(s.kind))) {
+      problems.push('links form a loop');
+      break;
+    }
   }
   return problems;
 }
@@ -130,6 +160,8 @@ export function templateProblems(template: InstallTemplate): string[] {
  */
 export function spoilAwayNote(spoil: { inputs: Pick<SpoilInputs, 'densityTPerM3'>; result: Spoil }): string {
   const r = spoil.result;
-  return `${plural(r.skips, 'skip')} by ${r.skip.limit} or ${plural(r.grabLorryLoads, 'grab-lorry load')} by ${r.grabLorry.limit}`
-    + ` (${r.looseVolumeM3} m³ loose, ${r.weightT} t of wet soil at ${spoil.inputs.densityTPerM3} t/m³: common practice, no source).`;
+  return (
+    `${plural(r.skips, 'skip')} by ${r.skip.limit} or ${plural(r.grabLorryLoads, 'grab-lorry load')} by ${r.grabLorry.limit}` +
+    ` (${r.looseVolumeM3} m³ loose, ${r.weightT} t of wet soil at ${spoil.inputs.densityTPerM3} t/m³: common practice, no source).`
+  );
 }

@@ -4,11 +4,12 @@ export type DependencyType = 'FS' | 'SS' | 'FF' | 'SF';
 export type LagUnit = 'working_hours' | 'working_days' | 'elapsed_hours' | 'elapsed_days';
 
 /** A stage's length: fixed, or worked out from the job's excavation volume (with a fallback). */
-export type DurationRule =
-  | { kind: 'fixed'; minutes: number }
-  | { kind: 'excavation'; fallbackMinutes: number };
+export type DurationRule = { kind: 'fixed'; minutes: number } | { kind: 'excavation'; fallbackMinutes: number };
 
-export interface Requirement { kind: string; count: number }
+export interface Requirement {
+  kind: string;
+  count: number;
+}
 
 /**
  * Notice a stage needs before it may be booked, in working days from now or from the order date:

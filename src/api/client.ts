@@ -3,7 +3,10 @@
  * RFC 9457 problem+json turned into {@link ApiError}, and a single place that reacts to 401.
  */
 
-export interface FieldProblem { field: string; message: string }
+export interface FieldProblem {
+  field: string;
+  message: string;
+}
 
 /** A failed API call, carrying what the server said in problem+json (RFC 9457). */
 export class ApiError extends Error {
@@ -15,7 +18,14 @@ export class ApiError extends Error {
   /** The whole problem document, for members beyond the standard ones (violations, current, code). */
   readonly problem: Record<string, unknown>;
 
-  constructor(init: { status: number; title: string; detail?: string; type?: string; errors?: FieldProblem[]; problem?: Record<string, unknown> }) {
+  constructor(init: {
+    status: number;
+    title: string;
+    detail?: string;
+    type?: string;
+    errors?: FieldProblem[];
+    problem?: Record<string, unknown>;
+  }) {
     super(init.detail ?? init.title);
     this.name = 'ApiError';
     this.status = init.status;
@@ -67,7 +77,8 @@ function readFieldProblems(value: unknown): FieldProblem[] {
  * @example problemToError(422, { title: 'Invalid job', errors: [{ field: 'reference', message: 'Required' }] })
  */
 export function problemToError(status: number, body: unknown): ApiError {
-  const fallback = fallbackTitles[status] ?? (status >= 500 ? 'Something went wrong on the server' : 'The request failed');
+  const fallback =
+    fallbackTitles[status] ?? (status >= 500 ? 'Something went wrong on the server' : 'The request failed');
   if (!isRecord(body)) return new ApiError({ status, title: fallback });
   const title = typeof body.title === 'string' && body.title.trim() ? body.title : fallback;
   const detail = typeof body.detail === 'string' && body.detail.trim() ? body.detail : undefined;

@@ -35,7 +35,13 @@ export interface JobDetail {
 }
 
 export interface StageBooking {
-  id: string; resourceId: string; resourceName: string; resourceKind: string; startsAt: string; endsAt: string; state: string;
+  id: string;
+  resourceId: string;
+  resourceName: string;
+  resourceKind: string;
+  startsAt: string;
+  endsAt: string;
+  state: string;
   /** A declined booking: why, in the partner's own words (null when they gave none). */
   declineReason?: string | null;
 }
@@ -48,21 +54,45 @@ export interface JobStage {
   requirements: { kind: string; count: number }[];
   cure: { targetFraction: number } | null;
   /** Notice the engine checks before the stage (or one party's booking of it) may start. */
-  notice?: { workingDays: number; countedFrom: 'now' | 'order'; resourceKind?: string | null; reason?: string | null } | null;
+  notice?: {
+    workingDays: number;
+    countedFrom: 'now' | 'order';
+    resourceKind?: string | null;
+    reason?: string | null;
+  } | null;
   notes: string | null;
   cautions: string[];
   /** The stages this one waits for, by the names they have on this job. */
-  after: { stageId: string; kind: string | null; name: string | null; type: string; lagAmount: number; lagUnit: string }[];
+  after: {
+    stageId: string;
+    kind: string | null;
+    name: string | null;
+    type: string;
+    lagAmount: number;
+    lagUnit: string;
+  }[];
   bookings: StageBooking[];
 }
 
 export interface QuantitiesBody {
-  unit: { id: string; model: string; lengthMm: number; widthMm: number; heightMm: number; dryWeightKg: number; filledWeightKg: number };
+  unit: {
+    id: string;
+    model: string;
+    lengthMm: number;
+    widthMm: number;
+    heightMm: number;
+    dryWeightKg: number;
+    filledWeightKg: number;
+  };
   surveyed: boolean;
   quantities: JobQuantities;
 }
 
-export interface UnitOption { id: string; model: string; maker: string }
+export interface UnitOption {
+  id: string;
+  model: string;
+  maker: string;
+}
 
 export const jobWork = {
   job: (id: string) => api.get<JobDetail>(`/api/jobs/${id}`),
@@ -74,7 +104,8 @@ export const jobWork = {
   plan: (id: string) => api.post<{ crane: { needed: boolean; reason: string } }>(`/api/jobs/${id}/plan`),
   quantities: (id: string) => api.get<QuantitiesBody>(`/api/jobs/${id}/quantities`),
   survey: (id: string) => api.get<SurveyView>(`/api/jobs/${id}/survey`),
-  saveSurvey: (id: string, version: number, survey: SurveyFields) => api.put<SurveyView>(`/api/jobs/${id}/survey`, { version, survey }),
+  saveSurvey: (id: string, version: number, survey: SurveyFields) =>
+    api.put<SurveyView>(`/api/jobs/${id}/survey`, { version, survey }),
   files: (id: string) => api.get<{ items: FileView[] }>(`/api/jobs/${id}/files`),
   deleteFile: (fileId: string) => api.delete<void>(`/api/files/${fileId}`),
   daySheets: (date: string) => api.get<DaySheetList>('/api/day-sheets', { query: { date } }),
@@ -84,7 +115,12 @@ export const jobWork = {
  * Sends one file to a job, reporting progress from 0 to 1.
  * @example await uploadJobFile('12', file, csrfToken, (p) => (progress.value = p))
  */
-export function uploadJobFile(jobId: string, file: File, csrfToken: string | null, onProgress: (fraction: number) => void): Promise<FileView> {
+export function uploadJobFile(
+  jobId: string,
+  file: File,
+  csrfToken: string | null,
+  onProgress: (fraction: number) => void,
+): Promise<FileView> {
   return uploadTo<FileView>(`/api/jobs/${jobId}/files`, file, csrfToken, onProgress);
 }
 
@@ -92,17 +128,35 @@ export function uploadJobFile(jobId: string, file: File, csrfToken: string | nul
  * Sends one file (field `file`) to an upload route, reporting progress from 0 to 1.
  * @example await uploadTo('/api/partner/slots/7/certificate', file, csrfToken, (p) => (progress.value = p))
  */
-export function uploadTo<T>(url: string, file: File, csrfToken: string | null, onProgress: (fraction: number) => void): Promise<T> {
+export function uploadTo<T>(
+  url: string,
+  file: File,
+  csrfToken: string | null,
+  onProgress: (fraction: number) => void,
+): Promise<T> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', url);
     xhr.setRequestHeader('Accept', 'application/json, application/problem+json');
     if (csrfToken) xhr.setRequestHeader('X-CSRF-Token', csrfToken);
-    xhr.upload.onprogress = (e) => { if (e.lengthComputable) onProgress(e.loaded / e.total); };
-    xhr.onerror = () => reject(new ApiError({ status: 0, title: 'Waterline could not reach the server', detail: 'Check your connection and try again.' }));
+    xhr.upload.onprogress = (e) => {
+      if (e.lengthComputable) onProgress(e.loaded / e.total);
+    };
+    xhr.onerror = () =>
+      reject(
+        new ApiError({
+          status: 0,
+          title: 'Waterline could not reach the server',
+          detail: 'Check your connection and try again.',
+        }),
+      );
     xhr.onload = () => {
       let body: unknown;
-      try { body = JSON.parse(xhr.responseText); } catch { body = undefined; }
+      try {
+        body = JSON.parse(xhr.responseText);
+      } catch {
+        body = undefined;
+      }
       if (xhr.status >= 200 && xhr.status < 300) resolve(body as T);
       else reject(problemToError(xhr.status, body));
     };

@@ -13,6 +13,9 @@ export function searchSlots(search: z.input<typeof SlotSearch>, signal?: AbortSi
 }
 
 /** Where the jobs' unbooked stages would go: a proposal of new pencilled bookings, nothing saved. */
-export function proposeAutoPlace(request: z.input<typeof AutoPlaceRequest>, signal?: AbortSignal): Promise<AutoPlaceAnswer> {
+export function proposeAutoPlace(
+  request: z.input<typeof AutoPlaceRequest>,
+  signal?: AbortSignal,
+): Promise<AutoPlaceAnswer> {
   return api.post<AutoPlaceAnswer>('/api/plan/auto-place', request, { signal });
 }

@@ -2,11 +2,25 @@
 
 export type Role = 'owner' | 'scheduler' | 'manager' | 'crew' | 'partner' | 'viewer';
 
-export interface SessionUser { id: number | string; name: string; email: string }
+export interface SessionUser {
+  id: number | string;
+  name: string;
+  email: string;
+}
 
-export interface SessionFirm { id: number | string; name: string; kind: string; timeZone: string }
+export interface SessionFirm {
+  id: number | string;
+  name: string;
+  kind: string;
+  timeZone: string;
+}
 
-export interface Membership { firmId: number | string; firmName: string; firmKind: string; role: Role }
+export interface Membership {
+  firmId: number | string;
+  firmName: string;
+  firmKind: string;
+  role: Role;
+}
 
 export interface SessionBody {
   user: SessionUser;
@@ -34,7 +48,10 @@ export interface JobRow {
   orderedOn: string | null;
 }
 
-export interface Page<T> { items: T[]; total: number }
+export interface Page<T> {
+  items: T[];
+  total: number;
+}
 
 export type ResourceCategory = 'crew' | 'person' | 'machine';
 export type Ownership = 'owned' | 'hired' | 'partner';
@@ -50,6 +67,13 @@ export interface ResourceRow {
   ownership: Ownership;
 }
 
-export interface MemberRow { userId: number | string; name: string; email: string; role: Role }
+export interface MemberRow {
+  userId: number | string;
+  name: string;
+  email: string;
+  role: Role;
+}
 
-export interface ItemList<T> { items: T[] }
+export interface ItemList<T> {
+  items: T[];
+}

@@ -1,7 +1,10 @@
 import { ref, shallowRef, watch, onScopeDispose, type Ref, type ShallowRef } from 'vue';
 import { api, ApiError, type RequestOptions } from '@/api/client';
 
-export interface ApiSource { path: string; query?: RequestOptions['query'] }
+export interface ApiSource {
+  path: string;
+  query?: RequestOptions['query'];
+}
 
 export interface ApiResource<T> {
   data: ShallowRef<T | null>;
@@ -42,7 +45,11 @@ export function useApiResource<T>(source: () => ApiSource | null): ApiResource<T
     }
   }
 
-  watch(() => JSON.stringify(source()), () => void fetchNow(source()), { immediate: true });
+  watch(
+    () => JSON.stringify(source()),
+    () => void fetchNow(source()),
+    { immediate: true },
+  );
   onScopeDispose(() => controller?.abort());
 
   return { data, loading, error, refresh: () => fetchNow(source()) };

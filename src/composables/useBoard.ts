@@ -6,7 +6,10 @@ import type { BoardIndex, BoardAnalysis } from '@shared/scheduler/index';
 import { boardAnalysisOf, boardIndexOf } from '@/components/board/engine-view';
 import { callFor, fromView, resultOf, type Intent, type WriteResult } from '@/components/board/drop-actions';
 
-export interface BoardRange { from: number; to: number }
+export interface BoardRange {
+  from: number;
+  to: number;
+}
 
 /**
  * The board's data for the visible range, the engine's index over it (for checks while dragging)
@@ -30,7 +33,9 @@ export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
   // The engine's index is built once per load (or merged write) and serves the analysis and every drag check.
   const index = computed<BoardIndex | null>(() => (data.value ? boardIndexOf(data.value, seesAll()) : null));
   // Problems that involve only busy-elsewhere blocks are another installer's business: dropped.
-  const analysis = computed<BoardAnalysis | null>(() => (data.value && index.value ? boardAnalysisOf(data.value, index.value) : null));
+  const analysis = computed<BoardAnalysis | null>(() =>
+    data.value && index.value ? boardAnalysisOf(data.value, index.value) : null,
+  );
 
   /** The session's changes that can be taken back (the server keeps them). */
   async function loadUndo(): Promise<void> {
@@ -41,7 +46,9 @@ export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
     }
   }
 
-  async function load(next: BoardRange = range ?? { from: Date.now(), to: Date.now() + 7 * 86_400_000 }): Promise<void> {
+  async function load(
+    next: BoardRange = range ?? { from: Date.now(), to: Date.now() + 7 * 86_400_000 },
+  ): Promise<void> {
     range = next;
     controller?.abort();
     const own = new AbortController();
@@ -49,14 +56,19 @@ export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
     loading.value = true;
     try {
       data.value = await api.get<BoardData>('/api/board', {
-        query: { from: new Date(next.from).toISOString(), to: new Date(next.to).toISOString() }, signal: own.signal,
+        query: { from: new Date(next.from).toISOString(), to: new Date(next.to).toISOString() },
+        signal: own.signal,
       });
       error.value = null;
     } catch (caught) {
       if (own.signal.aborted) return;
-      error.value = caught instanceof ApiError ? caught : new ApiError({ status: 0, title: 'The board could not be loaded' });
+      error.value =
+        caught instanceof ApiError ? caught : new ApiError({ status: 0, title: 'The board could not be loaded' });
     } finally {
-      if (controller === own) { loading.value = false; controller = null; }
+      if (controller === own) {
+        loading.value = false;
+        controller = null;
+      }
     }
   }
 
@@ -66,10 +78,12 @@ export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
     if (!current) return;
     const byId = new Map(saved.map((b) => [b.id, b]));
     // The board's own fields (a proposal, an overdue flag) stay until the next load; a decline goes with its state.
-    const bookings = current.bookings.filter((b) => !removedIds.includes(b.id)).map((b) => {
-      const saved = byId.get(b.id);
-      return saved ? { ...b, ...saved, ...(saved.state !== 'declined' ? { declined: null } : {}) } : b;
-    });
+    const bookings = current.bookings
+      .filter((b) => !removedIds.includes(b.id))
+      .map((b) => {
+        const saved = byId.get(b.id);
+        return saved ? { ...b, ...saved, ...(saved.state !== 'declined' ? { declined: null } : {}) } : b;
+      });
     for (const b of saved) if (!current.bookings.some((c) => c.id === b.id)) bookings.push(b);
     data.value = { ...current, bookings };
   }

@@ -6,7 +6,13 @@ import type { BoardBooking, BoardData } from '@shared/board-data';
 import { bookingsOfStage, dependentStageIds } from '@shared/board-actions';
 import { plural } from '@shared/plural';
 import type { DependentChoice, StageCompletion } from '@shared/schemas/bookings';
-import { addWorkingMinutes, formatInstant, resourceCalendarOf, type BoardIndex, type Booking } from '@shared/scheduler/index';
+import {
+  addWorkingMinutes,
+  formatInstant,
+  resourceCalendarOf,
+  type BoardIndex,
+  type Booking,
+} from '@shared/scheduler/index';
 import { refusalOf, type Intent, type MoveIntent, type WriteResult } from '@/components/board/drop-actions';
 import { dependentsChoice, DEFAULT_WITHIN_DAYS, type DependentsChoiceModel } from '@/components/board/move-options';
 import type { HiddenBooking } from '@/components/board/board-search';
@@ -67,11 +73,32 @@ export function useBoardActions(deps: Deps) {
   const ask = (title: string, content: string, buttons: { label: string; value: string; primary?: boolean }[]) =>
     new Promise<string | null>((resolve) => {
       const d = dialog.create({
-        title, content, closable: true, maskClosable: false, onClose: () => resolve(null), onMaskClick: () => resolve(null),
-        action: () => h('div', { class: 'dialog-actions' }, buttons.map((b) => h('button', {
-          type: 'button', class: ['dialog-button', b.primary ? 'dialog-button--primary' : ''], autofocus: b.primary,
-          onClick: () => { d.destroy(); resolve(b.value); },
-        }, b.label))),
+        title,
+        content,
+        closable: true,
+        maskClosable: false,
+        onClose: () => resolve(null),
+        onMaskClick: () => resolve(null),
+        action: () =>
+          h(
+            'div',
+            { class: 'dialog-actions' },
+            buttons.map((b) =>
+              h(
+                'button',
+                {
+                  type: 'button',
+                  class: ['dialog-button', b.primary ? 'dialog-button--primary' : ''],
+                  autofocus: b.primary,
+                  onClick: () => {
+                    d.destroy();
+                    resolve(b.value);
+                  },
+                },
+                b.label,
+              ),
+            ),
+          ),
       });
     });
 
@@ -101,21 +128,58 @@ export function useBoardActions(deps: Deps) {
     const jobs = [...new Map(hidden.map((x) => [x.jobId, x])).values()];
     const n = notification.error({
       title: prefix,
-      content: () => h('div', [
-        h('p', { style: 'margin:0 0 0.4rem' }, reason),
-        h('p', { style: 'margin:0' }, [`It is with ${plural(jobs.length, 'job')} the filters hide: `,
-          ...jobs.flatMap((j, i) => [i ? ', ' : '', h('a', { href: `/jobs/${j.jobId}`, onClick: (e: MouseEvent) => { e.preventDefault(); void router.push(`/jobs/${j.jobId}`); } }, j.reference)]), '.']),
-      ]),
-      action: () => h('button', { type: 'button', class: 'dialog-button dialog-button--primary', onClick: () => { reveal(hidden.map((x) => x.bookingId)); n.destroy(); } }, 'Show the clash'),
-      duration: 15000, closable: true,
+      content: () =>
+        h('div', [
+          h('p', { style: 'margin:0 0 0.4rem' }, reason),
+          h('p', { style: 'margin:0' }, [
+            `It is with ${plural(jobs.length, 'job')} the filters hide: `,
+            ...jobs.flatMap((j, i) => [
+              i ? ', ' : '',
+              h(
+                'a',
+                {
+                  href: `/jobs/${j.jobId}`,
+                  onClick: (e: MouseEvent) => {
+                    e.preventDefault();
+                    void router.push(`/jobs/${j.jobId}`);
+                  },
+                },
+                j.reference,
+              ),
+            ]),
+            '.',
+          ]),
+        ]),
+      action: () =>
+        h(
+          'button',
+          {
+            type: 'button',
+            class: 'dialog-button dialog-button--primary',
+            onClick: () => {
+              reveal(hidden.map((x) => x.bookingId));
+              n.destroy();
+            },
+          },
+          'Show the clash',
+        ),
+      duration: 15000,
+      closable: true,
     });
   }
 
   /** Sends a change and says how it went; a refusal is explained (and the board reloaded when stale). */
-  async function submit(intent: Intent, label: string, onFail?: () => void, options: { quiet?: string[] } = {}): Promise<WriteResult | null> {
+  async function submit(
+    intent: Intent,
+    label: string,
+    onFail?: () => void,
+    options: { quiet?: string[] } = {},
+  ): Promise<WriteResult | null> {
     try {
       const result = await deps.send(intent);
-      const asked = result.reasked?.length ? ` ${plural(result.reasked.length, 'partner')} asked again: ${result.reasked.map((r) => r.firmName).join(', ')}.` : '';
+      const asked = result.reasked?.length
+        ? ` ${plural(result.reasked.length, 'partner')} asked again: ${result.reasked.map((r) => r.firmName).join(', ')}.`
+        : '';
       // Warnings the next step answers anyway (a stage short of resources gets the completion panel) are not repeated.
       const warnings = result.warnings.filter((w) => !options.quiet?.includes(w.kind));
       if (warnings.length) {
@@ -127,15 +191,31 @@ export function useBoardActions(deps: Deps) {
       onFail?.();
       const refusal = refusalOf(error);
       if (refusal.kind === 'stale') await deps.reload();
-      explain(`Not saved: ${label}`, refusal.message, refusal.violations.flatMap((v) => v.bookingIds));
+      explain(
+        `Not saved: ${label}`,
+        refusal.message,
+        refusal.violations.flatMap((v) => v.bookingIds),
+      );
       return null;
     }
   }
 
   /** Asks which stages after a moved stage go with it; resolves null when the move is called off. */
-  function chooseDependents(title: string, model: DependentsChoiceModel, recompute: (days: number) => DependentsChoiceModel) {
+  function chooseDependents(
+    title: string,
+    model: DependentsChoiceModel,
+    recompute: (days: number) => DependentsChoiceModel,
+  ) {
     return new Promise<{ choice: DependentChoice; withinDays: number } | null>((resolve) => {
-      dependentsAsk.value = { title, model, recompute, resolve: (answer) => { dependentsAsk.value = null; resolve(answer); } };
+      dependentsAsk.value = {
+        title,
+        model,
+        recompute,
+        resolve: (answer) => {
+          dependentsAsk.value = null;
+          resolve(answer);
+        },
+      };
     });
   }
 
@@ -148,7 +228,15 @@ export function useBoardActions(deps: Deps) {
 
   /** The engine's verdict on one booking alone at a time and row, the rest of its stage staying. */
   function aloneVerdict(b: BoardBooking, start: number, resourceId: string, end?: number): DragVerdict {
-    return deps.evaluateAlone({ stageId: b.stageId, bookingId: b.id, start, resourceId, oldStart: b.start, oldResourceId: b.resourceId, ...(end !== undefined ? { end } : {}) });
+    return deps.evaluateAlone({
+      stageId: b.stageId,
+      bookingId: b.id,
+      start,
+      resourceId,
+      oldStart: b.start,
+      oldResourceId: b.resourceId,
+      ...(end !== undefined ? { end } : {}),
+    });
   }
 
   /** The move dialog's verdict: the booking's stage to a time and row, or the booking alone. */
@@ -156,76 +244,155 @@ export function useBoardActions(deps: Deps) {
     const b = bookingId ? booking(bookingId) : undefined;
     if (!b) return { allowed: false, reasons: [], warnings: [], start, cited: [] };
     if (alone && b.state !== 'declined') return aloneVerdict(b, start, resourceId);
-    return deps.evaluate({ stageId: b.stageId, bookingId: b.id, start, oldStart: b.start, resourceId, oldResourceId: b.resourceId });
+    return deps.evaluate({
+      stageId: b.stageId,
+      bookingId: b.id,
+      start,
+      oldStart: b.start,
+      resourceId,
+      oldResourceId: b.resourceId,
+    });
   }
 
   /** The move dialog's move. */
   function moveTo(bookingId: string | null, start: number, resourceId: string, alone = false): Promise<boolean> {
     const b = bookingId ? booking(bookingId) : undefined;
     if (!b) return Promise.resolve(false);
-    return moveStage({ stageId: b.stageId, bookingId: b.id, start, oldStart: b.start, resourceId, oldResourceId: b.resourceId }, () => {}, `move '${stageName(b.stageId)}'`, { alone });
+    return moveStage(
+      { stageId: b.stageId, bookingId: b.id, start, oldStart: b.start, resourceId, oldResourceId: b.resourceId },
+      () => {},
+      `move '${stageName(b.stageId)}'`,
+      { alone },
+    );
   }
 
   /** A booking alone changes time or row (Alt held, or a declined one dropped again). */
-  async function moveOne(b: BoardBooking, probe: DragProbe, verdict: DragVerdict, label: string, revert: () => void): Promise<boolean> {
+  async function moveOne(
+    b: BoardBooking,
+    probe: DragProbe,
+    verdict: DragVerdict,
+    label: string,
+    revert: () => void,
+  ): Promise<boolean> {
     const index = deps.index();
     const stage = deps.data()?.stages.find((s) => s.id === b.stageId);
-    if (!index || !stage) { revert(); return false; }
+    if (!index || !stage) {
+      revert();
+      return false;
+    }
     const resourceId = probe.resourceId ?? b.resourceId;
-    const end = probe.end ?? addWorkingMinutes(resourceCalendarOf(index, resourceId), verdict.start, stage.durationMinutes);
-    return (await submit({ kind: 'patch', bookingId: b.id, version: b.version ?? 1, start: verdict.start, end, ...(resourceId !== b.resourceId ? { resourceId } : {}) }, label, revert)) !== null;
+    const end =
+      probe.end ?? addWorkingMinutes(resourceCalendarOf(index, resourceId), verdict.start, stage.durationMinutes);
+    return (
+      (await submit(
+        {
+          kind: 'patch',
+          bookingId: b.id,
+          version: b.version ?? 1,
+          start: verdict.start,
+          end,
+          ...(resourceId !== b.resourceId ? { resourceId } : {}),
+        },
+        label,
+        revert,
+      )) !== null
+    );
   }
 
   /** A booked stage was dropped, resized or moved by keyboard; `alone` moves only the dragged booking (Alt held, or chosen). */
-  async function moveStage(probe: DragProbe, revert: () => void, label: string, options: { alone?: boolean } = {}): Promise<boolean> {
+  async function moveStage(
+    probe: DragProbe,
+    revert: () => void,
+    label: string,
+    options: { alone?: boolean } = {},
+  ): Promise<boolean> {
     // Dropped on the tray: the drag check takes it off the board when the button comes up.
-    if (probe.bookingId && deps.pointerOverTray()) { revert(); return false; }
+    if (probe.bookingId && deps.pointerOverTray()) {
+      revert();
+      return false;
+    }
     const data = deps.data();
     const index = deps.index();
-    if (!data || !index) { revert(); return false; }
+    if (!data || !index) {
+      revert();
+      return false;
+    }
     const dragged = probe.bookingId ? booking(probe.bookingId) : undefined;
     const own = data.bookings.filter((b) => b.stageId === probe.stageId && b.state !== 'declined' && !b.elsewhere);
     const alone = Boolean(dragged && dragged.state !== 'declined' && own.length > 1 && (options.alone ?? deps.alone()));
-    const verdict = alone && dragged ? aloneVerdict(dragged, probe.start, probe.resourceId ?? dragged.resourceId, probe.end) : deps.evaluate(probe);
+    const verdict =
+      alone && dragged
+        ? aloneVerdict(dragged, probe.start, probe.resourceId ?? dragged.resourceId, probe.end)
+        : deps.evaluate(probe);
     if (!verdict.allowed) {
       revert();
       explain('Not moved', verdict.reasons[0] ?? 'that time breaks a rule', verdict.cited);
       return false;
     }
-    if (dragged?.state === 'declined') return moveOne(dragged, probe, verdict, `rebook '${stageName(dragged.stageId)}'`, revert);
+    if (dragged?.state === 'declined')
+      return moveOne(dragged, probe, verdict, `rebook '${stageName(dragged.stageId)}'`, revert);
     if (alone && dragged) return moveOne(dragged, probe, verdict, `${label} (this booking only)`, revert);
     const partnerHeld = own.filter((b) => HELD.includes(b.state) && resourceOf(b.resourceId)?.ownership === 'partner');
     if (partnerHeld.length) {
-      const firms = [...new Set(partnerHeld.map((b) => resourceOf(b.resourceId)?.firmName ?? 'the partner'))].join(', ');
-      const ok = await ask('Move a booking a partner has seen?', `This stage was already sent to or confirmed by ${firms}. Moving it asks them again.`, [
-        { label: 'Move and ask again', value: 'yes', primary: true }, { label: 'Keep it where it was', value: 'no' },
-      ]);
-      if (ok !== 'yes') { revert(); return false; }
+      const firms = [...new Set(partnerHeld.map((b) => resourceOf(b.resourceId)?.firmName ?? 'the partner'))].join(
+        ', ',
+      );
+      const ok = await ask(
+        'Move a booking a partner has seen?',
+        `This stage was already sent to or confirmed by ${firms}. Moving it asks them again.`,
+        [
+          { label: 'Move and ask again', value: 'yes', primary: true },
+          { label: 'Keep it where it was', value: 'no' },
+        ],
+      );
+      if (ok !== 'yes') {
+        revert();
+        return false;
+      }
     }
     const spanStart = spanStartAfter(index, probe, verdict.start);
     const move = {
-      stageId: probe.stageId, start: spanStart,
+      stageId: probe.stageId,
+      start: spanStart,
       ...(probe.end !== undefined ? { end: probe.end } : {}),
-      ...(probe.resourceId && probe.resourceId !== probe.oldResourceId ? { resourceId: probe.resourceId, bookingId: probe.bookingId } : {}),
+      ...(probe.resourceId && probe.resourceId !== probe.oldResourceId
+        ? { resourceId: probe.resourceId, bookingId: probe.bookingId }
+        : {}),
     };
     let dependents: DependentChoice = 'none';
     let withinDays = DEFAULT_WITHIN_DAYS;
     let askAgain: string[] = [];
-    if (probe.end === undefined && dependentStageIds(index, probe.stageId).some((id) => bookingsOfStage(index, id).length)) {
+    if (
+      probe.end === undefined &&
+      dependentStageIds(index, probe.stageId).some((id) => bookingsOfStage(index, id).length)
+    ) {
       const model = dependentsChoice(data, index, move);
       if (model.dependents > 0) {
-        const answer = await chooseDependents(`Move '${stageName(probe.stageId)}' to ${when(spanStart)}`, model, (days) => dependentsChoice(data, index, move, days));
-        if (!answer) { revert(); return false; }
+        const answer = await chooseDependents(
+          `Move '${stageName(probe.stageId)}' to ${when(spanStart)}`,
+          model,
+          (days) => dependentsChoice(data, index, move, days),
+        );
+        if (!answer) {
+          revert();
+          return false;
+        }
         dependents = answer.choice;
         withinDays = answer.withinDays;
         const chosen = dependentsChoice(data, index, move, withinDays).options.find((o) => o.choice === dependents);
         // The dialog listed them: these partners are asked again (the stage's own were agreed above).
-        askAgain = (chosen?.partner ?? []).filter((p) => !own.some((b) => b.id === p.bookingId)).map((p) => p.bookingId);
+        askAgain = (chosen?.partner ?? [])
+          .filter((p) => !own.some((b) => b.id === p.bookingId))
+          .map((p) => p.bookingId);
       }
     }
     const intent: MoveIntent = {
-      kind: 'move', ...move, versions: Object.fromEntries(own.map((b) => [b.id, b.version ?? 1])),
-      dependents, ...(dependents === 'within' ? { withinDays } : {}), ...(askAgain.length ? { askAgain } : {}),
+      kind: 'move',
+      ...move,
+      versions: Object.fromEntries(own.map((b) => [b.id, b.version ?? 1])),
+      dependents,
+      ...(dependents === 'within' ? { withinDays } : {}),
+      ...(askAgain.length ? { askAgain } : {}),
     };
     return (await submit(intent, label, revert)) !== null;
   }
@@ -235,7 +402,10 @@ export function useBoardActions(deps: Deps) {
     completionBusy.value = true;
     try {
       const found = await api.get<StageCompletion>(`/api/stages/${stageId}/completion`, {
-        query: { ...(resourceId ? { resourceId } : {}), ...(start !== undefined ? { startsAt: new Date(start).toISOString() } : {}) },
+        query: {
+          ...(resourceId ? { resourceId } : {}),
+          ...(start !== undefined ? { startsAt: new Date(start).toISOString() } : {}),
+        },
       });
       completion.value = found.requirements.some((r) => r.proposed.length || r.short) ? found : null;
     } catch (error) {
@@ -253,10 +423,15 @@ export function useBoardActions(deps: Deps) {
   /** Books the resources chosen in the completion panel, in one go (the batch route). */
   async function applyCompletion(resourceIds: string[]): Promise<boolean> {
     const c = completion.value;
-    if (!c || resourceIds.length === 0) { completion.value = null; return false; }
+    if (!c || resourceIds.length === 0) {
+      completion.value = null;
+      return false;
+    }
     const start = Date.parse(c.startsAt);
-    const done = await submit({ kind: 'batch', bookings: resourceIds.map((resourceId) => ({ stageId: c.stageId, resourceId, start })) },
-      `book the rest of '${c.stageName}' (${plural(resourceIds.length, 'resource')})`);
+    const done = await submit(
+      { kind: 'batch', bookings: resourceIds.map((resourceId) => ({ stageId: c.stageId, resourceId, start })) },
+      `book the rest of '${c.stageName}' (${plural(resourceIds.length, 'resource')})`,
+    );
     if (done) completion.value = null;
     return done !== null;
   }
@@ -269,8 +444,12 @@ export function useBoardActions(deps: Deps) {
       explain('Not booked', verdict.reasons[0] ?? 'choose a row', verdict.cited);
       return false;
     }
-    const done = await submit({ kind: 'book', stageId: probe.stageId, resourceId: probe.resourceId, start: verdict.start },
-      verdict.joins ? `${label} at the stage's time (${when(verdict.start)})` : label, undefined, { quiet: ['capacity'] });
+    const done = await submit(
+      { kind: 'book', stageId: probe.stageId, resourceId: probe.resourceId, start: verdict.start },
+      verdict.joins ? `${label} at the stage's time (${when(verdict.start)})` : label,
+      undefined,
+      { quiet: ['capacity'] },
+    );
     if (!done) return false;
     selectedStage.value = probe.stageId;
     await openCompletion(probe.stageId, probe.resourceId, verdict.start);
@@ -285,14 +464,24 @@ export function useBoardActions(deps: Deps) {
     const name = stageName(b.stageId);
     if (HELD.includes(b.state)) {
       const partner = resource?.ownership === 'partner';
-      const ok = await ask(`Take '${name}' off the board?`, partner
-        ? `${resource?.firmName ?? 'The partner'} has ${b.state === 'sent' ? 'been asked for' : 'confirmed'} ${resource?.name ?? 'this booking'} on ${when(b.start)}. Taking it off cancels the request: they will be told by e-mail, with a calendar cancellation.`
-        : `${resource?.name ?? 'This booking'} is confirmed for ${when(b.start)}. Taking it off frees them and puts the stage back in the tray.`, [
-        { label: partner ? 'Take it off and tell them' : 'Take it off', value: 'yes', primary: true }, { label: 'Keep it', value: 'no' },
-      ]);
+      const ok = await ask(
+        `Take '${name}' off the board?`,
+        partner
+          ? `${resource?.firmName ?? 'The partner'} has ${b.state === 'sent' ? 'been asked for' : 'confirmed'} ${resource?.name ?? 'this booking'} on ${when(b.start)}. Taking it off cancels the request: they will be told by e-mail, with a calendar cancellation.`
+          : `${resource?.name ?? 'This booking'} is confirmed for ${when(b.start)}. Taking it off frees them and puts the stage back in the tray.`,
+        [
+          { label: partner ? 'Take it off and tell them' : 'Take it off', value: 'yes', primary: true },
+          { label: 'Keep it', value: 'no' },
+        ],
+      );
       if (ok !== 'yes') return false;
     }
-    return (await submit({ kind: 'remove', bookingId, version: b.version ?? 1 }, `take off '${name}' (${resource?.name ?? 'booking'})`)) !== null;
+    return (
+      (await submit(
+        { kind: 'remove', bookingId, version: b.version ?? 1 },
+        `take off '${name}' (${resource?.name ?? 'booking'})`,
+      )) !== null
+    );
   }
 
   /** A declined (or pencilled) partner booking is sent as a request (again). */
@@ -300,7 +489,12 @@ export function useBoardActions(deps: Deps) {
     const b = booking(bookingId);
     if (!b) return false;
     const firm = resourceOf(b.resourceId)?.firmName ?? 'the partner';
-    return (await submit({ kind: 'publish', bookingId, version: b.version ?? 1 }, `request for '${stageName(b.stageId)}' sent to ${firm} again`)) !== null;
+    return (
+      (await submit(
+        { kind: 'publish', bookingId, version: b.version ?? 1 },
+        `request for '${stageName(b.stageId)}' sent to ${firm} again`,
+      )) !== null
+    );
   }
 
   /**
@@ -316,41 +510,109 @@ export function useBoardActions(deps: Deps) {
     const proposal = b.proposal;
     const firm = resourceOf(b.resourceId)?.firmName ?? 'The partner';
     const own = bookingsOfStage(index, b.stageId);
-    const alone = deps.evaluateSet(b.stageId, own.map((x) => (x.id === b.id ? { ...x, start: proposal.start, end: proposal.end } : x)), proposal.start);
+    const alone = deps.evaluateSet(
+      b.stageId,
+      own.map((x) => (x.id === b.id ? { ...x, start: proposal.start, end: proposal.end } : x)),
+      proposal.start,
+    );
     const move = { stageId: b.stageId, start: proposal.start, end: proposal.end };
-    const whole = own.length > 1 || !alone.allowed ? deps.evaluate({ stageId: b.stageId, start: proposal.start, end: proposal.end, oldStart: Math.min(...own.map((x) => x.start)) }) : null;
+    const whole =
+      own.length > 1 || !alone.allowed
+        ? deps.evaluate({
+            stageId: b.stageId,
+            start: proposal.start,
+            end: proposal.end,
+            oldStart: Math.min(...own.map((x) => x.start)),
+          })
+        : null;
     const shifted = whole ? dependentsChoice(data, index, { stageId: b.stageId, start: proposal.start }) : null;
     const after = shifted?.options.find((o) => o.choice === 'all');
     const verdictText = alone.allowed
-      ? alone.warnings.length ? `The board allows it, with a warning: ${alone.warnings[0]}` : 'The board finds nothing against it.'
+      ? alone.warnings.length
+        ? `The board allows it, with a warning: ${alone.warnings[0]}`
+        : 'The board finds nothing against it.'
       : `On its own it breaks the plan: ${alone.reasons[0]}`;
-    const others = own.length > 1 ? ` The stage's other ${plural(own.length - 1, 'booking')} would stay at ${when(Math.min(...own.map((x) => x.start)))} unless the stage moves.` : '';
+    const others =
+      own.length > 1
+        ? ` The stage's other ${plural(own.length - 1, 'booking')} would stay at ${when(Math.min(...own.map((x) => x.start)))} unless the stage moves.`
+        : '';
     const partners = after?.partner.filter((p) => p.bookingId !== bookingId) ?? [];
     const buttons = [
       ...(alone.allowed ? [{ label: 'Accept', value: 'alone', primary: true }] : []),
-      ...(whole && whole.allowed && after ? [{ label: `Move the stage there${shifted!.dependents ? ` with ${plural(after.stageIds.length, 'stage')} after it` : ''}, then accept`, value: 'whole', primary: !alone.allowed }] : []),
+      ...(whole && whole.allowed && after
+        ? [
+            {
+              label: `Move the stage there${shifted!.dependents ? ` with ${plural(after.stageIds.length, 'stage')} after it` : ''}, then accept`,
+              value: 'whole',
+              primary: !alone.allowed,
+            },
+          ]
+        : []),
       { label: 'Not now', value: 'no' },
     ];
-    const extra = whole && after && (after.breaks.length || !whole.allowed) ? ` Moving the whole stage would not hold either: ${whole.reasons[0] ?? after.breaks[0]}` : '';
-    const listed = partners.length ? ` Moving the stages after it asks again: ${partners.map((p) => `${p.firmName} ('${p.stageName}', ${p.state})`).join('; ')}.` : '';
-    const choice = await ask(`${firm} proposes ${when(proposal.start)}`, `${verdictText}${others}${extra}${listed}`, buttons);
-    if (choice === 'alone') return (await submit({ kind: 'accept-proposal', bookingId, version: b.version ?? 1 }, `take ${firm}'s proposed time`)) !== null;
+    const extra =
+      whole && after && (after.breaks.length || !whole.allowed)
+        ? ` Moving the whole stage would not hold either: ${whole.reasons[0] ?? after.breaks[0]}`
+        : '';
+    const listed = partners.length
+      ? ` Moving the stages after it asks again: ${partners.map((p) => `${p.firmName} ('${p.stageName}', ${p.state})`).join('; ')}.`
+      : '';
+    const choice = await ask(
+      `${firm} proposes ${when(proposal.start)}`,
+      `${verdictText}${others}${extra}${listed}`,
+      buttons,
+    );
+    if (choice === 'alone')
+      return (
+        (await submit(
+          { kind: 'accept-proposal', bookingId, version: b.version ?? 1 },
+          `take ${firm}'s proposed time`,
+        )) !== null
+      );
     if (choice !== 'whole') return false;
-    const versions = Object.fromEntries(data.bookings.filter((x) => x.stageId === b.stageId && x.state !== 'declined').map((x) => [x.id, x.version ?? 1]));
-    const moved = await submit({ kind: 'move', ...move, versions, dependents: 'all', askAgain: partners.map((p) => p.bookingId) }, `move '${stageName(b.stageId)}' to ${firm}'s proposed time`);
+    const versions = Object.fromEntries(
+      data.bookings.filter((x) => x.stageId === b.stageId && x.state !== 'declined').map((x) => [x.id, x.version ?? 1]),
+    );
+    const moved = await submit(
+      { kind: 'move', ...move, versions, dependents: 'all', askAgain: partners.map((p) => p.bookingId) },
+      `move '${stageName(b.stageId)}' to ${firm}'s proposed time`,
+    );
     if (!moved) return false;
     const now = moved.bookings.find((x) => x.id === bookingId);
-    return (await submit({ kind: 'accept-proposal', bookingId, version: now?.version ?? (b.version ?? 1) + 1 }, `take ${firm}'s proposed time`)) !== null;
+    return (
+      (await submit(
+        { kind: 'accept-proposal', bookingId, version: now?.version ?? (b.version ?? 1) + 1 },
+        `take ${firm}'s proposed time`,
+      )) !== null
+    );
   }
 
   /** Selecting a booking highlights its whole stage. */
   function select(bookingId: string | null): void {
-    selectedStage.value = bookingId ? booking(bookingId)?.stageId ?? null : null;
+    selectedStage.value = bookingId ? (booking(bookingId)?.stageId ?? null) : null;
   }
 
   return {
-    completion, completionBusy, dependentsAsk, selectedStage, revealed,
-    moveStage, moveTo, checkAt, bookStage, openCompletion, closeCompletion, applyCompletion, unbook, sendAgain, acceptProposal, select, reveal, hideRevealed,
-    submit, ask, explain,
+    completion,
+    completionBusy,
+    dependentsAsk,
+    selectedStage,
+    revealed,
+    moveStage,
+    moveTo,
+    checkAt,
+    bookStage,
+    openCompletion,
+    closeCompletion,
+    applyCompletion,
+    unbook,
+    sendAgain,
+    acceptProposal,
+    select,
+    reveal,
+    hideRevealed,
+    submit,
+    ask,
+    explain,
   };
 }

@@ -2,12 +2,24 @@ import { computed } from 'vue';
 import type { BoardData } from '@shared/board-data';
 import type { BoardIndex, BookingState, Violation } from '@shared/scheduler/index';
 import { eventsOf, rowsOf } from '@/components/board/board-events';
-import { boardVisibility, hiddenCited, hiddenNote, type BoardFilterInput, type BoardVisibility } from '@/components/board/board-search';
+import {
+  boardVisibility,
+  hiddenCited,
+  hiddenNote,
+  type BoardFilterInput,
+  type BoardVisibility,
+} from '@/components/board/board-search';
 import { trayGroups } from '@/components/board/tray';
 import { POINTER_CLASSES } from '@/components/board/board-pointer';
 
 /** The toolbar's filters as the URL keeps them. */
-export interface BoardFilterValues { firm: string; kind: string; job: string; state: BookingState | ''; q: string }
+export interface BoardFilterValues {
+  firm: string;
+  kind: string;
+  job: string;
+  state: BookingState | '';
+  q: string;
+}
 
 interface Deps {
   data: () => BoardData | null;
@@ -36,7 +48,13 @@ export function useBoardFilter(deps: Deps) {
   const visibility = computed<BoardVisibility | null>(() => {
     const data = deps.data();
     const highlighted = deps.highlighted?.() ?? new Set<string>();
-    return data ? boardVisibility(data, input.value, highlighted.size ? new Set([...deps.revealed(), ...highlighted]) : deps.revealed()) : null;
+    return data
+      ? boardVisibility(
+          data,
+          input.value,
+          highlighted.size ? new Set([...deps.revealed(), ...highlighted]) : deps.revealed(),
+        )
+      : null;
   });
 
   const rows = computed(() => {
@@ -52,7 +70,8 @@ export function useBoardFilter(deps: Deps) {
     const selected = deps.selectedStage();
     const highlighted = deps.highlighted?.() ?? new Set<string>();
     const perStage = new Map<string, number>();
-    for (const b of data.bookings) if (b.state !== 'declined' && !b.elsewhere) perStage.set(b.stageId, (perStage.get(b.stageId) ?? 0) + 1);
+    for (const b of data.bookings)
+      if (b.state !== 'declined' && !b.elsewhere) perStage.set(b.stageId, (perStage.get(b.stageId) ?? 0) + 1);
     return eventsOf(data, { canEdit: deps.canEdit(), problems: deps.problems(), declined: true })
       .filter((e) => shown.bookings.has(e.id))
       .map((e) => {

@@ -1,7 +1,14 @@
 import { computed, nextTick, watch } from 'vue';
 import { useRoute, useRouter } from 'vue-router';
 import type { BoardData } from '@shared/board-data';
-import { hireBand, pointerFocus, pointerNotice, pointerOf, pointsAtAnything, POINTER_CLASSES } from '@/components/board/board-pointer';
+import {
+  hireBand,
+  pointerFocus,
+  pointerNotice,
+  pointerOf,
+  pointsAtAnything,
+  POINTER_CLASSES,
+} from '@/components/board/board-pointer';
 
 /** How many frames to wait for the timeline to draw what a link points at before giving up. */
 const FRAMES_TO_WAIT = 120;
@@ -32,24 +39,30 @@ export function useBoardPointer(deps: { data: () => BoardData | null; timeZone: 
 
   // Scrolled to once per link (and per date), not again on every reload of the board.
   let scrolledFor = '';
-  watch([() => deps.data(), () => route.fullPath], async () => {
-    const data = deps.data();
-    const key = `${route.query.highlight ?? ''}|${route.query.hire ?? ''}|${route.query.date ?? ''}|${route.query.view ?? ''}`;
-    if (!data || !active.value || scrolledFor === key) return;
-    const focus = pointerFocus(data, pointer.value);
-    if (!focus) return;
-    scrolledFor = key;
-    await nextTick();
-    const selector = focus.bookingId ? `.fc-event.${POINTER_CLASSES.highlight}` : `.fc-bg-event.${POINTER_CLASSES.hire}`;
-    for (let frame = 0; frame < FRAMES_TO_WAIT; frame++) {
-      const el = document.querySelector<HTMLElement>(selector);
-      if (el) {
-        el.scrollIntoView({ block: 'center', inline: focus.bookingId ? 'center' : 'start' });
-        return;
+  watch(
+    [() => deps.data(), () => route.fullPath],
+    async () => {
+      const data = deps.data();
+      const key = `${route.query.highlight ?? ''}|${route.query.hire ?? ''}|${route.query.date ?? ''}|${route.query.view ?? ''}`;
+      if (!data || !active.value || scrolledFor === key) return;
+      const focus = pointerFocus(data, pointer.value);
+      if (!focus) return;
+      scrolledFor = key;
+      await nextTick();
+      const selector = focus.bookingId
+        ? `.fc-event.${POINTER_CLASSES.highlight}`
+        : `.fc-bg-event.${POINTER_CLASSES.hire}`;
+      for (let frame = 0; frame < FRAMES_TO_WAIT; frame++) {
+        const el = document.querySelector<HTMLElement>(selector);
+        if (el) {
+          el.scrollIntoView({ block: 'center', inline: focus.bookingId ? 'center' : 'start' });
+          return;
+        }
+        await new Promise((resolve) => requestAnimationFrame(resolve));
       }
-      await new Promise((resolve) => requestAnimationFrame(resolve));
-    }
-  }, { immediate: true });
+    },
+    { immediate: true },
+  );
 
   return { pointer, active, highlighted, band, notice, dismiss };
 }

@@ -25,7 +25,9 @@ export function useBoardStream(canReload: () => boolean, reload: () => Promise<v
     source = new EventSource('/api/board/stream');
     source.addEventListener('bookings', schedule);
     source.addEventListener('resync', schedule);
-    source.addEventListener('error', () => { broken = true; });
+    source.addEventListener('error', () => {
+      broken = true;
+    });
     source.addEventListener('open', () => {
       // The first open is the board's own load; only a reopening has something to catch up on.
       if (broken) schedule();

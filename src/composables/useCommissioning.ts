@@ -11,8 +11,13 @@ export type SaveStatus = 'idle' | 'waiting' | 'saving' | 'saved' | 'failed';
 type Fields = Omit<PutCommissioning, 'version'>;
 
 const fieldsOf = (v: CommissioningView): Fields => ({
-  checks: { ...v.checks }, ph: v.ph, totalAlkalinityPpm: v.totalAlkalinityPpm, sanitiserPpm: v.sanitiserPpm,
-  sanitiserKind: v.sanitiserKind, notes: v.notes, photoFileIds: v.photos.map((p) => p.id),
+  checks: { ...v.checks },
+  ph: v.ph,
+  totalAlkalinityPpm: v.totalAlkalinityPpm,
+  sanitiserPpm: v.sanitiserPpm,
+  sanitiserKind: v.sanitiserKind,
+  notes: v.notes,
+  photoFileIds: v.photos.map((p) => p.id),
 });
 
 /**
@@ -22,14 +27,22 @@ const fieldsOf = (v: CommissioningView): Fields => ({
  * own typing is never overwritten by an answer that arrives while they type.
  * @example const { view, form, status, changed } = useCommissioning(jobId, { problem: showProblem, stale: warn })
  */
-export function useCommissioning(jobId: Ref<string>, tell: { problem: (error: unknown) => void; stale: (text: string) => void }) {
+export function useCommissioning(
+  jobId: Ref<string>,
+  tell: { problem: (error: unknown) => void; stale: (text: string) => void },
+) {
   const view = shallowRef<CommissioningView | null>(null);
   const error = shallowRef<ApiError | null>(null);
   const loading = ref(false);
   const status = ref<SaveStatus>('idle');
   const form = reactive<Fields>({
     checks: { pumpsPrimed: false, pumpsTested: false, heaterWorking: false, lightsWorking: false, noLeaks: false },
-    ph: null, totalAlkalinityPpm: null, sanitiserPpm: null, sanitiserKind: null, notes: null, photoFileIds: [],
+    ph: null,
+    totalAlkalinityPpm: null,
+    sanitiserPpm: null,
+    sanitiserKind: null,
+    notes: null,
+    photoFileIds: [],
   });
   let timer: ReturnType<typeof setTimeout> | null = null;
   let saving: Promise<void> | null = null;
@@ -50,7 +63,10 @@ export function useCommissioning(jobId: Ref<string>, tell: { problem: (error: un
 
   async function saveNow(): Promise<void> {
     if (!view.value) return;
-    if (saving) { again = true; return saving; }
+    if (saving) {
+      again = true;
+      return saving;
+    }
     status.value = 'saving';
     saving = (async () => {
       try {
@@ -69,7 +85,10 @@ export function useCommissioning(jobId: Ref<string>, tell: { problem: (error: un
       } finally {
         saving = null;
       }
-      if (again) { again = false; await saveNow(); }
+      if (again) {
+        again = false;
+        await saveNow();
+      }
     })();
     return saving;
   }
@@ -78,12 +97,19 @@ export function useCommissioning(jobId: Ref<string>, tell: { problem: (error: un
   function changed(): void {
     status.value = 'waiting';
     if (timer) clearTimeout(timer);
-    timer = setTimeout(() => { timer = null; void saveNow(); }, SAVE_DELAY_MS);
+    timer = setTimeout(() => {
+      timer = null;
+      void saveNow();
+    }, SAVE_DELAY_MS);
   }
 
   /** Saves at once (leaving the page, adding a photo). */
   async function flush(): Promise<void> {
-    if (timer) { clearTimeout(timer); timer = null; await saveNow(); }
+    if (timer) {
+      clearTimeout(timer);
+      timer = null;
+      await saveNow();
+    }
   }
 
   watch(jobId, () => void load(), { immediate: true });

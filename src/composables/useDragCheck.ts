@@ -1,7 +1,13 @@
 import { computed, ref, shallowRef } from 'vue';
 import {
-  addWorkingMinutes, checkMove, checkStageBookings, nextWorkingInstant, resourceCalendarOf,
-  type BoardIndex, type Booking, type Violation,
+  addWorkingMinutes,
+  checkMove,
+  checkStageBookings,
+  nextWorkingInstant,
+  resourceCalendarOf,
+  type BoardIndex,
+  type Booking,
+  type Violation,
 } from '@shared/scheduler/index';
 import { bookingsOfStage, isBlocking } from '@shared/board-actions';
 import { wrongKindMessage } from '@shared/stage-completion';
@@ -46,7 +52,13 @@ export interface DragCheckOptions {
   hiddenNote?: (bookingIds: string[]) => string;
 }
 
-const refuse = (start: number, reason: string): DragVerdict => ({ allowed: false, reasons: [reason], warnings: [], start, cited: [] });
+const refuse = (start: number, reason: string): DragVerdict => ({
+  allowed: false,
+  reasons: [reason],
+  warnings: [],
+  start,
+  cited: [],
+});
 
 /**
  * The check that runs on every drag frame: the engine's incremental move check against the index
@@ -55,7 +67,11 @@ const refuse = (start: number, reason: string): DragVerdict => ({ allowed: false
  * verdict without showing anything (for drops, dialogs and proposals), so the reason box goes
  * when the button comes up.
  */
-export function useDragCheck(index: () => BoardIndex | null, onRefusedDrop: (verdict: DragVerdict, fromTray: boolean) => void = () => {}, options: DragCheckOptions = {}) {
+export function useDragCheck(
+  index: () => BoardIndex | null,
+  onRefusedDrop: (verdict: DragVerdict, fromTray: boolean) => void = () => {},
+  options: DragCheckOptions = {},
+) {
   const verdict = shallowRef<DragVerdict | null>(null);
   const pointer = ref({ x: 0, y: 0 });
   /** The pointer is over the tray while a booking is dragged: dropping takes it off the board. */
@@ -85,7 +101,14 @@ export function useDragCheck(index: () => BoardIndex | null, onRefusedDrop: (ver
     const note = cited.length && options.hiddenNote ? options.hiddenNote(cited) : '';
     const reasons = blocking.map((v) => v.message);
     if (note && reasons.length) reasons[0] = `${reasons[0]} ${note}`;
-    return { allowed: blocking.length === 0, reasons, warnings: violations.filter((v) => !isBlocking(v)).map((v) => v.message), start, cited, ...extra };
+    return {
+      allowed: blocking.length === 0,
+      reasons,
+      warnings: violations.filter((v) => !isBlocking(v)).map((v) => v.message),
+      start,
+      cited,
+      ...extra,
+    };
   }
 
   /** The verdict on a stage's complete new set of bookings (a proposal taken, a rebooking). */
@@ -121,7 +144,8 @@ export function useDragCheck(index: () => BoardIndex | null, onRefusedDrop: (ver
       if (dragged?.state === 'declined') {
         // Dropped again after a decline: the declined booking is rebooked there, beside the stage's others.
         const resourceId = probe.resourceId ?? dragged.resourceId;
-        if (current.some((b) => b.resourceId === resourceId)) return refuse(start, `${ix.resources.get(resourceId)?.name ?? 'That resource'} already has '${stage.name}'.`);
+        if (current.some((b) => b.resourceId === resourceId))
+          return refuse(start, `${ix.resources.get(resourceId)?.name ?? 'That resource'} already has '${stage.name}'.`);
         const end = probe.end ?? naturalEnd(ix, resourceId, start, stage.durationMinutes);
         const own = [...current, { ...dragged, resourceId, start, end, state: 'pencilled' as const }];
         return { ...verdictOf(checkStageBookings(ix, stage.id, own), start), rebooks: true };
@@ -129,10 +153,16 @@ export function useDragCheck(index: () => BoardIndex | null, onRefusedDrop: (ver
       if (probe.oldStart === undefined && current.length && probe.resourceId) {
         // A stage partly booked, dropped again from the tray: the resource joins it at the stage's time.
         const at = Math.min(...current.map((b) => b.start));
-        if (current.some((b) => b.resourceId === probe.resourceId)) return refuse(at, `${resource?.name ?? 'That resource'} already has '${stage.name}'.`);
+        if (current.some((b) => b.resourceId === probe.resourceId))
+          return refuse(at, `${resource?.name ?? 'That resource'} already has '${stage.name}'.`);
         const joining: Booking = {
-          id: `join:${stage.id}`, stageId: stage.id, resourceId: probe.resourceId, start: at, end: naturalEnd(ix, probe.resourceId, at, stage.durationMinutes),
-          state: 'pencilled', installerFirmId: current[0]!.installerFirmId,
+          id: `join:${stage.id}`,
+          stageId: stage.id,
+          resourceId: probe.resourceId,
+          start: at,
+          end: naturalEnd(ix, probe.resourceId, at, stage.durationMinutes),
+          state: 'pencilled',
+          installerFirmId: current[0]!.installerFirmId,
         };
         return verdictOf(checkStageBookings(ix, stage.id, [...current, joining]), at, { joins: true, completes: true });
       }
@@ -141,9 +171,12 @@ export function useDragCheck(index: () => BoardIndex | null, onRefusedDrop: (ver
         stageId: probe.stageId,
         start: spanStartFor(ix, { ...probe, start }),
         ...(probe.end !== undefined ? { end: probe.end } : {}),
-        ...(changesResource || probe.oldStart === undefined ? { resourceId: probe.resourceId, ...(probe.bookingId ? { bookingId: probe.bookingId } : {}) } : {}),
+        ...(changesResource || probe.oldStart === undefined
+          ? { resourceId: probe.resourceId, ...(probe.bookingId ? { bookingId: probe.bookingId } : {}) }
+          : {}),
       });
-      const together = probe.bookingId && probe.oldStart !== undefined && current.length > 1 ? { together: current.length } : {};
+      const together =
+        probe.bookingId && probe.oldStart !== undefined && current.length > 1 ? { together: current.length } : {};
       return verdictOf(violations, start, probe.oldStart === undefined ? { completes: true } : together);
     } catch (error) {
       return refuse(start, error instanceof Error ? error.message : String(error));
@@ -161,10 +194,18 @@ export function useDragCheck(index: () => BoardIndex | null, onRefusedDrop: (ver
     const resourceId = probe.resourceId ?? dragged.resourceId;
     const resource = ix.resources.get(resourceId);
     const kinds = stage.requirements.map((r) => r.kind);
-    if (resource && resourceId !== dragged.resourceId && kinds.length && !kinds.includes(resource.kind)) return refuse(probe.start, wrongKindMessage(stage.name, resource, kinds));
+    if (resource && resourceId !== dragged.resourceId && kinds.length && !kinds.includes(resource.kind))
+      return refuse(probe.start, wrongKindMessage(stage.name, resource, kinds));
     try {
       const end = probe.end ?? naturalEnd(ix, resourceId, probe.start, stage.durationMinutes);
-      return verdictOf(checkStageBookings(ix, stage.id, current.map((b) => (b.id === dragged.id ? { ...b, resourceId, start: probe.start, end } : b))), probe.start);
+      return verdictOf(
+        checkStageBookings(
+          ix,
+          stage.id,
+          current.map((b) => (b.id === dragged.id ? { ...b, resourceId, start: probe.start, end } : b)),
+        ),
+        probe.start,
+      );
     } catch (error) {
       return refuse(probe.start, error instanceof Error ? error.message : String(error));
     }
@@ -176,7 +217,10 @@ export function useDragCheck(index: () => BoardIndex | null, onRefusedDrop: (ver
     lastProbe = probe;
     if (key === cacheKey && verdict.value) return verdict.value;
     cacheKey = key;
-    const grouped = probe.bookingId !== undefined && probe.oldStart !== undefined && (index()?.stages.get(probe.stageId)?.bookings.length ?? 0) > 1;
+    const grouped =
+      probe.bookingId !== undefined &&
+      probe.oldStart !== undefined &&
+      (index()?.stages.get(probe.stageId)?.bookings.length ?? 0) > 1;
     const result = alone.value && grouped ? evaluateAlone(probe) : evaluate(probe);
     if (dragging) verdict.value = result;
     return result;
@@ -231,9 +275,31 @@ export function useDragCheck(index: () => BoardIndex | null, onRefusedDrop: (ver
   }
 
   /** What the box by the pointer shows: the verdict, or what dropping on the tray does. */
-  const shown = computed<DragVerdict | null>(() => (overTray.value && verdict.value
-    ? { allowed: true, reasons: [], warnings: [], start: verdict.value.start, cited: [], hint: 'Drop here to take it off the board (back to the tray).' }
-    : verdict.value));
+  const shown = computed<DragVerdict | null>(() =>
+    overTray.value && verdict.value
+      ? {
+          allowed: true,
+          reasons: [],
+          warnings: [],
+          start: verdict.value.start,
+          cited: [],
+          hint: 'Drop here to take it off the board (back to the tray).',
+        }
+      : verdict.value,
+  );
 
-  return { verdict, shown, pointer, overTray, alone, check, evaluate, evaluateAlone, evaluateSet, start, stop, pointerOverTray };
+  return {
+    verdict,
+    shown,
+    pointer,
+    overTray,
+    alone,
+    check,
+    evaluate,
+    evaluateAlone,
+    evaluateSet,
+    start,
+    stop,
+    pointerOverTray,
+  };
 }

@@ -8,7 +8,10 @@ import { useApiResource } from './useApiResource';
 
 /** What each part of the job page reads, by the permission its route checks (shared/permissions.ts). */
 export const JOB_SECTIONS = {
-  job: 'jobs:read', stages: 'jobs:read', quantities: 'surveys:read', files: 'surveys:read',
+  job: 'jobs:read',
+  stages: 'jobs:read',
+  quantities: 'surveys:read',
+  files: 'surveys:read',
 } as const satisfies Record<string, Permission>;
 
 /**
@@ -18,7 +21,8 @@ export const JOB_SECTIONS = {
  */
 export function useJobDetail(jobId: Ref<string>, can: (permission: Permission) => boolean) {
   // The path is read inside the getter, so a new job id re-fetches; null (not permitted) waits for ever.
-  const source = (section: keyof typeof JOB_SECTIONS, path: () => string) => () => (can(JOB_SECTIONS[section]) ? { path: path() } : null);
+  const source = (section: keyof typeof JOB_SECTIONS, path: () => string) => () =>
+    can(JOB_SECTIONS[section]) ? { path: path() } : null;
   const job = useApiResource<JobDetail>(source('job', () => `/api/jobs/${jobId.value}`));
   const stages = useApiResource<ItemList<JobStage>>(source('stages', () => `/api/jobs/${jobId.value}/stages`));
   const quantities = useApiResource<QuantitiesBody>(source('quantities', () => `/api/jobs/${jobId.value}/quantities`));

@@ -4,14 +4,40 @@ import { ApiError } from '@/api/client';
 import { jobWork, type JobDetail, type UnitOption } from '@/api/job-work';
 import type { InstallationType } from '@/api/types';
 
-const FIELDS = ['reference', 'customerName', 'customerPhone', 'customerEmail', 'siteAddress', 'siteTown', 'sitePostcode', 'accessNotes',
-  'unitId', 'installationType', 'promisedFrom', 'promisedTo', 'orderedOn'] as const;
+const FIELDS = [
+  'reference',
+  'customerName',
+  'customerPhone',
+  'customerEmail',
+  'siteAddress',
+  'siteTown',
+  'sitePostcode',
+  'accessNotes',
+  'unitId',
+  'installationType',
+  'promisedFrom',
+  'promisedTo',
+  'orderedOn',
+] as const;
 type Field = (typeof FIELDS)[number];
-export type JobDraft = Record<Exclude<Field, 'installationType'>, string> & { installationType: InstallationType | null };
+export type JobDraft = Record<Exclude<Field, 'installationType'>, string> & {
+  installationType: InstallationType | null;
+};
 
 const blank = (): JobDraft => ({
-  reference: '', customerName: '', customerPhone: '', customerEmail: '', siteAddress: '', siteTown: '', sitePostcode: '',
-  accessNotes: '', unitId: '', installationType: null, promisedFrom: '', promisedTo: '', orderedOn: '',
+  reference: '',
+  customerName: '',
+  customerPhone: '',
+  customerEmail: '',
+  siteAddress: '',
+  siteTown: '',
+  sitePostcode: '',
+  accessNotes: '',
+  unitId: '',
+  installationType: null,
+  promisedFrom: '',
+  promisedTo: '',
+  orderedOn: '',
 });
 
 /**
@@ -43,8 +69,16 @@ export function useJobForm(jobId: Ref<string | null>) {
 
   // Empty optional boxes are left out (absent rather than ""); empty required ones stay, so the
   // schema answers "is required" for them.
-  const REQUIRED = new Set(['reference', 'customerName', 'siteAddress', 'siteTown', 'sitePostcode', 'installationType']);
-  const present = () => Object.fromEntries(Object.entries(draft).filter(([k, v]) => REQUIRED.has(k) || (v !== '' && v !== null)));
+  const REQUIRED = new Set([
+    'reference',
+    'customerName',
+    'siteAddress',
+    'siteTown',
+    'sitePostcode',
+    'installationType',
+  ]);
+  const present = () =>
+    Object.fromEntries(Object.entries(draft).filter(([k, v]) => REQUIRED.has(k) || (v !== '' && v !== null)));
 
   function changes(): Record<string, unknown> {
     const was = loaded.value as unknown as Record<string, unknown>;
@@ -55,11 +89,15 @@ export function useJobForm(jobId: Ref<string | null>) {
     const result = loaded.value
       ? UpdateJob.safeParse({ ...changes(), version: loaded.value.version })
       : CreateJob.safeParse(present());
-    errors.value = result.success ? {} : Object.fromEntries(result.error.issues.map((i) => [i.path.join('.'), i.message]));
+    errors.value = result.success
+      ? {}
+      : Object.fromEntries(result.error.issues.map((i) => [i.path.join('.'), i.message]));
     if (!result.success) return null;
     saving.value = true;
     try {
-      return loaded.value ? await jobWork.updateJob(loaded.value.id, result.data as UpdateJob) : await jobWork.createJob(result.data as CreateJob);
+      return loaded.value
+        ? await jobWork.updateJob(loaded.value.id, result.data as UpdateJob)
+        : await jobWork.createJob(result.data as CreateJob);
     } catch (error) {
       if (error instanceof ApiError) {
         errors.value = Object.fromEntries(error.errors.map((e) => [e.field, e.message]));

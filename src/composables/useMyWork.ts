@@ -31,7 +31,14 @@ export function useMyWork(prompts: MyWorkPrompts) {
   /** Marks a step after asking; the announcement's Undo takes it back from the version just saved. */
   async function mark(item: MyWorkItem, action: ProgressAction): Promise<boolean> {
     const words = PROGRESS_WORDS[action];
-    if (!(await prompts.confirm({ title: words.question, text: `${item.stage.name} · ${item.job.reference}, ${item.site.address}`, yes: words.yes }))) return false;
+    if (
+      !(await prompts.confirm({
+        title: words.question,
+        text: `${item.stage.name} · ${item.job.reference}, ${item.site.address}`,
+        yes: words.yes,
+      }))
+    )
+      return false;
     busy.value = item.bookingId;
     try {
       const saved = await send(item, action, item.version);

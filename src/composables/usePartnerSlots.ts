@@ -9,7 +9,9 @@ import type { PartnerAnswer, PartnerSlot } from '@shared/schemas/answers';
  * @example const { slots, loading, error, refresh, answer } = usePartnerSlots()
  */
 export function usePartnerSlots() {
-  const { data, loading, error, refresh } = useApiResource<{ items: PartnerSlot[] }>(() => ({ path: '/api/partner/slots' }));
+  const { data, loading, error, refresh } = useApiResource<{ items: PartnerSlot[] }>(() => ({
+    path: '/api/partner/slots',
+  }));
   const busy = ref<string | null>(null);
   const slots = computed(() => data.value?.items ?? []);
 

@@ -43,7 +43,9 @@ export function usePlanRequest<T>(): PlanRequest<T> {
     result.value = null;
     seconds.value = 0;
     const started = Date.now();
-    ticker = setInterval(() => { seconds.value = Math.floor((Date.now() - started) / 1000); }, 1000);
+    ticker = setInterval(() => {
+      seconds.value = Math.floor((Date.now() - started) / 1000);
+    }, 1000);
     try {
       const answer = await call(own.signal);
       if (controller !== own) return null;
@@ -51,7 +53,10 @@ export function usePlanRequest<T>(): PlanRequest<T> {
       return answer;
     } catch (caught) {
       if (own.signal.aborted) return null;
-      error.value = caught instanceof ApiError ? caught : new ApiError({ status: 0, title: 'Something went wrong', detail: String(caught) });
+      error.value =
+        caught instanceof ApiError
+          ? caught
+          : new ApiError({ status: 0, title: 'Something went wrong', detail: String(caught) });
       return null;
     } finally {
       if (controller === own) {
@@ -112,7 +117,14 @@ export function usePlanProgress() {
     });
     return new Promise((resolve) => {
       const timer = setTimeout(resolve, 1000);
-      own.addEventListener('open', () => { clearTimeout(timer); resolve(); }, { once: true });
+      own.addEventListener(
+        'open',
+        () => {
+          clearTimeout(timer);
+          resolve();
+        },
+        { once: true },
+      );
     });
   }
 

@@ -13,13 +13,21 @@ export function useProblemMessage() {
   function showProblem(error: unknown): void {
     const summary = problemSummary(error);
     if (summary.fields.length === 0) {
-      message.error(summary.detail ? `${summary.title}. ${summary.detail}` : summary.title, { duration: 6000, closable: true });
+      message.error(summary.detail ? `${summary.title}. ${summary.detail}` : summary.title, {
+        duration: 6000,
+        closable: true,
+      });
       return;
     }
     notification.error({
       title: summary.title,
       description: summary.detail,
-      content: () => h('ul', { class: 'problem-fields' }, summary.fields.map((field) => h('li', fieldProblemText(field)))),
+      content: () =>
+        h(
+          'ul',
+          { class: 'problem-fields' },
+          summary.fields.map((field) => h('li', fieldProblemText(field))),
+        ),
       duration: 10000,
     });
   }

@@ -7,7 +7,10 @@ import { fixRequest } from '@shared/reports/fixes';
 import type { ClashReport, HireReport, SuggestedFix, UtilisationReport } from '@shared/reports/types';
 import type { WriteResultBody } from '@/components/reports/fix-result';
 
-export interface ReportSpanQuery { from: string; to: string }
+export interface ReportSpanQuery {
+  from: string;
+  to: string;
+}
 
 /** The CSV downloads: each is one table with one header; the utilisation totals are a file of their own. */
 export type ReportCsv = 'clashes' | 'hire' | 'utilisation' | 'utilisation-summary' | 'risks';
@@ -21,10 +24,15 @@ export type ReportCsv = 'clashes' | 'hire' | 'utilisation' | 'utilisation-summar
 export function useReports(span: Ref<ReportSpanQuery>) {
   const clashes = useApiResource<ClashReport>(() => ({ path: '/api/reports/clashes', query: { ...span.value } }));
   const hire = useApiResource<HireReport>(() => ({ path: '/api/reports/hire', query: { ...span.value } }));
-  const utilisation = useApiResource<UtilisationReport>(() => ({ path: '/api/reports/utilisation', query: { ...span.value } }));
-  const worst = computed(() => (clashes.data.value && hire.data.value && utilisation.data.value
-    ? worstProblems(clashes.data.value, hire.data.value, utilisation.data.value)
-    : null));
+  const utilisation = useApiResource<UtilisationReport>(() => ({
+    path: '/api/reports/utilisation',
+    query: { ...span.value },
+  }));
+  const worst = computed(() =>
+    clashes.data.value && hire.data.value && utilisation.data.value
+      ? worstProblems(clashes.data.value, hire.data.value, utilisation.data.value)
+      : null,
+  );
   const csv = (name: ReportCsv) => withQuery(`/api/reports/${name}.csv`, { ...span.value });
   const applying = ref(false);
 

@@ -3,14 +3,38 @@ import { SurveyFields, type SurveyInput } from '@shared/schemas/surveys';
 import { ApiError } from '@/api/client';
 import { jobWork } from '@/api/job-work';
 
-export type SurveyDraft = Required<Omit<SurveyInput, 'surveyedAt' | 'accessWidthMm' | 'groundType'>> & { accessWidthMm: number | null; groundType: SurveyInput['groundType'] | null };
+export type SurveyDraft = Required<Omit<SurveyInput, 'surveyedAt' | 'accessWidthMm' | 'groundType'>> & {
+  accessWidthMm: number | null;
+  groundType: SurveyInput['groundType'] | null;
+};
 
 const blank = (): SurveyDraft => ({
-  accessWidthMm: null, accessHeightMm: null, steps: 0, gates: 0, overheadObstructions: false, overheadNotes: null,
-  groundType: null, buriedServicesNotes: null, craneStandingPosition: null, craneDistanceToSetDownM: null,
-  consumerUnitDistanceM: null, consumerUnitLocation: null, mainFuseAmps: null, drainage: null, craneRequired: null, excavatorSize: null,
-  evChargerAmps: null, electricShowerAmps: null, heatPumpAmps: null, otherLargeLoadAmps: null, otherLargeLoadNotes: null,
-  earthingArrangement: null, hoseFlowLitresPerMinute: null, siteLatitude: null, siteLongitude: null, notes: null,
+  accessWidthMm: null,
+  accessHeightMm: null,
+  steps: 0,
+  gates: 0,
+  overheadObstructions: false,
+  overheadNotes: null,
+  groundType: null,
+  buriedServicesNotes: null,
+  craneStandingPosition: null,
+  craneDistanceToSetDownM: null,
+  consumerUnitDistanceM: null,
+  consumerUnitLocation: null,
+  mainFuseAmps: null,
+  drainage: null,
+  craneRequired: null,
+  excavatorSize: null,
+  evChargerAmps: null,
+  electricShowerAmps: null,
+  heatPumpAmps: null,
+  otherLargeLoadAmps: null,
+  otherLargeLoadNotes: null,
+  earthingArrangement: null,
+  hoseFlowLitresPerMinute: null,
+  siteLatitude: null,
+  siteLongitude: null,
+  notes: null,
 });
 
 /** Degrees to five places (about a metre): more than a forecast needs, and no false precision. */
@@ -38,19 +62,24 @@ export function useSurveyForm(jobId: Ref<string>) {
       version.value = v;
     } catch (error) {
       if (error instanceof ApiError && error.status === 404) Object.assign(draft, blank());
-      else loadError.value = error instanceof ApiError ? error : new ApiError({ status: 0, title: 'Something went wrong' });
+      else
+        loadError.value =
+          error instanceof ApiError ? error : new ApiError({ status: 0, title: 'Something went wrong' });
     } finally {
       loading.value = false;
     }
   }
 
   // Empty text boxes mean "nothing recorded".
-  const cleaned = () => Object.fromEntries(Object.entries(draft).map(([k, v]) => [k, typeof v === 'string' && v.trim() === '' ? null : v]));
+  const cleaned = () =>
+    Object.fromEntries(Object.entries(draft).map(([k, v]) => [k, typeof v === 'string' && v.trim() === '' ? null : v]));
 
   /** Checks the draft; returns the parsed fields, or null with `errors` filled in per field. */
   function check() {
     const result = SurveyFields.safeParse(cleaned());
-    errors.value = result.success ? {} : Object.fromEntries(result.error.issues.map((i) => [i.path.join('.'), i.message]));
+    errors.value = result.success
+      ? {}
+      : Object.fromEntries(result.error.issues.map((i) => [i.path.join('.'), i.message]));
     return result.success ? result.data : null;
   }
 
@@ -63,7 +92,8 @@ export function useSurveyForm(jobId: Ref<string>) {
       version.value = saved.version;
       return true;
     } catch (error) {
-      if (error instanceof ApiError) errors.value = Object.fromEntries(error.errors.map((e) => [e.field.replace(/^survey\./, ''), e.message]));
+      if (error instanceof ApiError)
+        errors.value = Object.fromEntries(error.errors.map((e) => [e.field.replace(/^survey\./, ''), e.message]));
       throw error;
     } finally {
       saving.value = false;
@@ -76,17 +106,25 @@ export function useSurveyForm(jobId: Ref<string>) {
    * to null when done, or to the reason in words when the position could not be had.
    */
   async function useHerePosition(): Promise<string | null> {
-    if (typeof navigator === 'undefined' || !navigator.geolocation) return 'This browser cannot tell where it is; type the position instead.';
+    if (typeof navigator === 'undefined' || !navigator.geolocation)
+      return 'This browser cannot tell where it is; type the position instead.';
     locating.value = true;
     try {
       const pos = await new Promise<GeolocationPosition>((resolve, reject) =>
-        navigator.geolocation.getCurrentPosition(resolve, reject, { enableHighAccuracy: false, timeout: 15_000, maximumAge: 60_000 }));
+        navigator.geolocation.getCurrentPosition(resolve, reject, {
+          enableHighAccuracy: false,
+          timeout: 15_000,
+          maximumAge: 60_000,
+        }),
+      );
       draft.siteLatitude = fivePlaces(pos.coords.latitude);
       draft.siteLongitude = fivePlaces(pos.coords.longitude);
       return null;
     } catch (error) {
       const code = (error as GeolocationPositionError | undefined)?.code;
-      return code === 1 ? 'Location was not allowed on this phone; type the position instead.' : 'The position could not be found; try again outside, or type it.';
+      return code === 1
+        ? 'Location was not allowed on this phone; type the position instead.'
+        : 'The position could not be found; try again outside, or type it.';
     } finally {
       locating.value = false;
     }

@@ -9,13 +9,26 @@ import { useAction } from './useAction';
  * @example const { list, busy, sendAgain } = useUndeliveredMail(() => jobId.value)
  */
 export function useUndeliveredMail(jobId: () => string | null = () => null) {
-  const list = useApiResource<UndeliveredMailList>(() => ({ path: '/api/mail/undelivered', query: jobId() ? { jobId: jobId()! } : undefined }));
+  const list = useApiResource<UndeliveredMailList>(() => ({
+    path: '/api/mail/undelivered',
+    query: jobId() ? { jobId: jobId()! } : undefined,
+  }));
   const { busy, run } = useAction();
   let result: SendAgainResult | null = null;
 
   async function sendAgain(id: string): Promise<void> {
-    const ok = await run(id, async () => { result = await api.post<SendAgainResult>('/api/mail/send-again', { id }); },
-      () => (result?.requeued ? 'Sending it again now.' : result?.status === 'sent' ? 'It has already gone.' : 'It is already on its way.'));
+    const ok = await run(
+      id,
+      async () => {
+        result = await api.post<SendAgainResult>('/api/mail/send-again', { id });
+      },
+      () =>
+        result?.requeued
+          ? 'Sending it again now.'
+          : result?.status === 'sent'
+            ? 'It has already gone.'
+            : 'It is already on its way.',
+    );
     if (ok) await list.refresh();
   }
 

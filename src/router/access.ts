@@ -27,7 +27,11 @@ export function isRole(value: unknown): value is Role {
   return typeof value === 'string' && (ALL_ROLES as readonly string[]).includes(value);
 }
 
-export interface NavItem { label: string; path: string; permission: Permission }
+export interface NavItem {
+  label: string;
+  path: string;
+  permission: Permission;
+}
 
 /** The main navigation, in the order it is shown. */
 export const NAV_ITEMS: readonly NavItem[] = [
@@ -49,7 +53,10 @@ export function navFor(role: Role | null | undefined): NavItem[] {
   return NAV_ITEMS.filter((item) => can(role, item.permission));
 }
 
-export interface AccessMeta { public?: boolean; roles?: readonly Role[] }
+export interface AccessMeta {
+  public?: boolean;
+  roles?: readonly Role[];
+}
 
 /** Whether a role may open a route. Routes without `meta.roles` are open to anyone signed in. */
 export function mayVisit(meta: AccessMeta, role: Role | null | undefined): boolean {
@@ -68,8 +75,16 @@ export function safeNext(next: unknown): string | null {
   return next;
 }
 
-export interface GuardTarget { path: string; fullPath: string; meta: AccessMeta; query?: Record<string, unknown> }
-export interface GuardSession { signedIn: boolean; role: Role | null }
+export interface GuardTarget {
+  path: string;
+  fullPath: string;
+  meta: AccessMeta;
+  query?: Record<string, unknown>;
+}
+export interface GuardSession {
+  signedIn: boolean;
+  role: Role | null;
+}
 export type GuardDecision = true | { path: string; query?: Record<string, string> };
 
 /**

@@ -15,27 +15,117 @@ declare module 'vue-router' {
 }
 
 export const routes: RouteRecordRaw[] = [
-  { path: '/sign-in', name: 'sign-in', component: () => import('@/views/SignInView.vue'), meta: { public: true, title: 'Sign in' } },
+  {
+    path: '/sign-in',
+    name: 'sign-in',
+    component: () => import('@/views/SignInView.vue'),
+    meta: { public: true, title: 'Sign in' },
+  },
   { path: '/', name: 'home', component: () => import('@/views/HomeView.vue'), meta: { title: 'Home' } },
-  { path: '/board', name: 'board', component: () => import('@/views/BoardView.vue'), meta: { roles: rolesWith('board:read'), title: 'Board' } },
-  { path: '/jobs', name: 'jobs', component: () => import('@/views/JobsView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Jobs' } },
-  { path: '/resources', name: 'resources', component: () => import('@/views/ResourcesView.vue'), meta: { roles: rolesWith('resources:read'), title: 'Resources' } },
-  { path: '/firm', name: 'firm', component: () => import('@/views/FirmView.vue'), meta: { roles: rolesWith('firm:manage'), title: 'Firm' } },
-  { path: '/my-work', name: 'my-work', component: () => import('@/views/MyWorkView.vue'), meta: { roles: rolesWith('my-work:read'), title: 'My work' } },
-  { path: '/slots', name: 'slots', component: () => import('@/views/PartnerSlotsView.vue'), meta: { roles: rolesWith('slots:read'), title: 'Our slots' } },
-  { path: '/jobs/new', name: 'job-new', component: () => import('@/views/JobFormView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'New job' } },
-  { path: '/jobs/:id(\\d+)', name: 'job', component: () => import('@/views/JobDetailView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Job' } },
-  { path: '/jobs/:id(\\d+)/edit', name: 'job-edit', component: () => import('@/views/JobFormView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'Edit job' } },
-  { path: '/jobs/:id(\\d+)/survey', name: 'job-survey', component: () => import('@/views/SurveyView.vue'), meta: { roles: rolesWith('surveys:write'), title: 'Site survey' } },
+  {
+    path: '/board',
+    name: 'board',
+    component: () => import('@/views/BoardView.vue'),
+    meta: { roles: rolesWith('board:read'), title: 'Board' },
+  },
+  {
+    path: '/jobs',
+    name: 'jobs',
+    component: () => import('@/views/JobsView.vue'),
+    meta: { roles: rolesWith('jobs:read'), title: 'Jobs' },
+  },
+  {
+    path: '/resources',
+    name: 'resources',
+    component: () => import('@/views/ResourcesView.vue'),
+    meta: { roles: rolesWith('resources:read'), title: 'Resources' },
+  },
+  {
+    path: '/firm',
+    name: 'firm',
+    component: () => import('@/views/FirmView.vue'),
+    meta: { roles: rolesWith('firm:manage'), title: 'Firm' },
+  },
+  {
+    path: '/my-work',
+    name: 'my-work',
+    component: () => import('@/views/MyWorkView.vue'),
+    meta: { roles: rolesWith('my-work:read'), title: 'My work' },
+  },
+  {
+    path: '/slots',
+    name: 'slots',
+    component: () => import('@/views/PartnerSlotsView.vue'),
+    meta: { roles: rolesWith('slots:read'), title: 'Our slots' },
+  },
+  {
+    path: '/jobs/new',
+    name: 'job-new',
+    component: () => import('@/views/JobFormView.vue'),
+    meta: { roles: rolesWith('jobs:write'), title: 'New job' },
+  },
+  {
+    path: '/jobs/:id(\\d+)',
+    name: 'job',
+    component: () => import('@/views/JobDetailView.vue'),
+    meta: { roles: rolesWith('jobs:read'), title: 'Job' },
+  },
+  {
+    path: '/jobs/:id(\\d+)/edit',
+    name: 'job-edit',
+    component: () => import('@/views/JobFormView.vue'),
+    meta: { roles: rolesWith('jobs:write'), title: 'Edit job' },
+  },
+  {
+    path: '/jobs/:id(\\d+)/survey',
+    name: 'job-survey',
+    component: () => import('@/views/SurveyView.vue'),
+    meta: { roles: rolesWith('surveys:write'), title: 'Site survey' },
+  },
   // The crew's commissioning record (the office reads and may fill it in too); the server decides who may change it.
-  { path: '/jobs/:id(\\d+)/commission', name: 'job-commission', component: () => import('@/views/CommissioningView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Commissioning' } },
+  {
+    path: '/jobs/:id(\\d+)/commission',
+    name: 'job-commission',
+    component: () => import('@/views/CommissioningView.vue'),
+    meta: { roles: rolesWith('jobs:read'), title: 'Commissioning' },
+  },
   // The handover with the householder on the crew's phone; signing takes the progress permission (the server checks it too).
-  { path: '/jobs/:id(\\d+)/handover', name: 'job-handover', component: () => import('@/views/HandoverView.vue'), meta: { roles: rolesWith('jobs:read'), title: 'Handover' } },
-  { path: '/templates', name: 'templates', component: () => import('@/views/TemplatesView.vue'), meta: { roles: rolesWith('jobs:write'), title: 'Stage templates' } },
-  { path: '/day-sheets', name: 'day-sheets', component: () => import('@/views/DaySheetView.vue'), meta: { roles: rolesWith('day-sheets:read'), title: 'Day sheets' } },
-  { path: '/slots/day-sheets', name: 'partner-day-sheets', component: () => import('@/views/DaySheetView.vue'), meta: { roles: rolesWith('slots:read'), title: 'Day sheets' } },
-  { path: '/reports', name: 'reports', component: () => import('@/views/ReportsView.vue'), meta: { roles: rolesWith('reports:read'), title: 'Reports' } },
-  { path: '/:pathMatch(.*)*', name: 'not-found', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Page not found' } },
+  {
+    path: '/jobs/:id(\\d+)/handover',
+    name: 'job-handover',
+    component: () => import('@/views/HandoverView.vue'),
+    meta: { roles: rolesWith('jobs:read'), title: 'Handover' },
+  },
+  {
+    path: '/templates',
+    name: 'templates',
+    component: () => import('@/views/TemplatesView.vue'),
+    meta: { roles: rolesWith('jobs:write'), title: 'Stage templates' },
+  },
+  {
+    path: '/day-sheets',
+    name: 'day-sheets',
+    component: () => import('@/views/DaySheetView.vue'),
+    meta: { roles: rolesWith('day-sheets:read'), title: 'Day sheets' },
+  },
+  {
+    path: '/slots/day-sheets',
+    name: 'partner-day-sheets',
+    component: () => import('@/views/DaySheetView.vue'),
+    meta: { roles: rolesWith('slots:read'), title: 'Day sheets' },
+  },
+  {
+    path: '/reports',
+    name: 'reports',
+    component: () => import('@/views/ReportsView.vue'),
+    meta: { roles: rolesWith('reports:read'), title: 'Reports' },
+  },
+  {
+    path: '/:pathMatch(.*)*',
+    name: 'not-found',
+    component: () => import('@/views/NotFoundView.vue'),
+    meta: { public: true, title: 'Page not found' },
+  },
 ];
 
 export const router = createRouter({

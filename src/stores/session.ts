@@ -83,5 +83,20 @@ export const useSessionStore = defineStore('session', () => {
     return roleCan(role.value, permission);
   }
 
-  return { user, firm, role, memberships, csrfToken, loaded, signedIn, home, timeZone, load, switchFirm, signOut, reset, can };
+  return {
+    user,
+    firm,
+    role,
+    memberships,
+    csrfToken,
+    loaded,
+    signedIn,
+    home,
+    timeZone,
+    load,
+    switchFirm,
+    signOut,
+    reset,
+    can,
+  };
 });

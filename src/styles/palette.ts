@@ -30,7 +30,10 @@ export const palette = {
   info: '#1D5A9E',
 } as const;
 
-export interface TagColours { text: string; background: string }
+export interface TagColours {
+  text: string;
+  background: string;
+}
 
 /** Job states: dark text on a pale tint of the same hue. */
 export const statusColours = {

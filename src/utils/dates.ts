@@ -61,6 +61,11 @@ export function formatInstant(iso: string, timeZone: string, options: CalendarDa
     month: 'short',
     ...(year !== options.currentYear ? { year: 'numeric' } : {}),
   }).format(value);
-  const time = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(value);
+  const time = new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+  }).format(value);
   return `${parts.replace(',', '')}, ${time}`;
 }

@@ -1,6 +1,10 @@
 import { ApiError, type FieldProblem } from '@/api/client';
 
-export interface ProblemSummary { title: string; detail: string | undefined; fields: FieldProblem[] }
+export interface ProblemSummary {
+  title: string;
+  detail: string | undefined;
+  fields: FieldProblem[];
+}
 
 /**
  * What to tell a person about a failure, whatever was thrown.

@@ -1,7 +1,16 @@
 import type { ResourceRow } from '@/api/types';
 
-export interface KindGroup { kind: string; items: ResourceRow[] }
-export interface FirmGroup { firmId: ResourceRow['firmId']; firmName: string; firmKind: string; kinds: KindGroup[]; count: number }
+export interface KindGroup {
+  kind: string;
+  items: ResourceRow[];
+}
+export interface FirmGroup {
+  firmId: ResourceRow['firmId'];
+  firmName: string;
+  firmKind: string;
+  kinds: KindGroup[];
+  count: number;
+}
 
 const byName = (a: string, b: string) => a.localeCompare(b, 'en-GB', { sensitivity: 'base' });
 
@@ -10,7 +19,10 @@ const byName = (a: string, b: string) => a.localeCompare(b, 'en-GB', { sensitivi
  * name; kinds and resources are in name order. The input is not changed.
  * @example groupResources(items, { ownFirmId: 1 })[0].firmId // 1
  */
-export function groupResources(items: readonly ResourceRow[], options: { ownFirmId?: ResourceRow['firmId'] } = {}): FirmGroup[] {
+export function groupResources(
+  items: readonly ResourceRow[],
+  options: { ownFirmId?: ResourceRow['firmId'] } = {},
+): FirmGroup[] {
   const firms = new Map<string, FirmGroup>();
   for (const item of items) {
     const key = String(item.firmId);

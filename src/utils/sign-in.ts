@@ -1,4 +1,7 @@
-export interface SignInProblem { title: string; detail: string }
+export interface SignInProblem {
+  title: string;
+  detail: string;
+}
 
 /**
  * The message for `/sign-in?error=…`. Unknown codes still get a plain message, so a new server
@@ -14,7 +17,10 @@ export function signInErrorText(code: unknown): SignInProblem | null {
         detail: 'This Google account has no access to Waterline yet. Ask an owner of your firm to invite you.',
       };
     case 'unavailable':
-      return { title: 'Waterline could not be reached', detail: 'The server did not answer. Check your connection and try again in a moment.' };
+      return {
+        title: 'Waterline could not be reached',
+        detail: 'The server did not answer. Check your connection and try again in a moment.',
+      };
     case 'signed_out':
       return { title: 'You were signed out', detail: 'Your session ended. Sign in again to carry on.' };
     default:

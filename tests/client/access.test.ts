@@ -107,14 +107,26 @@ describe('decideNavigation', () => {
       expect(decideNavigation(to('/'), as('partner'))).toEqual({ path: '/slots' });
     });
     it('moves away from sign-in, to next when it is safe', () => {
-      expect(decideNavigation(to('/sign-in', { public: true }, { next: '/resources' }), as('manager'))).toEqual({ path: '/resources' });
-      expect(decideNavigation(to('/sign-in', { public: true }, { next: '//elsewhere.example' }), as('manager'))).toEqual({ path: '/board' });
+      expect(decideNavigation(to('/sign-in', { public: true }, { next: '/resources' }), as('manager'))).toEqual({
+        path: '/resources',
+      });
+      expect(
+        decideNavigation(to('/sign-in', { public: true }, { next: '//elsewhere.example' }), as('manager')),
+      ).toEqual({ path: '/board' });
     });
-    it("sends a role that may not see a page to its home", () => {
-      expect(decideNavigation(to('/firm', { roles: rolesWith('firm:manage') }), as('scheduler'))).toEqual({ path: '/board' });
-      expect(decideNavigation(to('/reports', { roles: rolesWith('reports:read') }), as('crew'))).toEqual({ path: '/my-work' });
-      expect(decideNavigation(to('/board', { roles: rolesWith('board:read') }), as('partner'))).toEqual({ path: '/slots' });
-      expect(decideNavigation(to('/jobs', { roles: rolesWith('jobs:read') }), as('partner'))).toEqual({ path: '/slots' });
+    it('sends a role that may not see a page to its home', () => {
+      expect(decideNavigation(to('/firm', { roles: rolesWith('firm:manage') }), as('scheduler'))).toEqual({
+        path: '/board',
+      });
+      expect(decideNavigation(to('/reports', { roles: rolesWith('reports:read') }), as('crew'))).toEqual({
+        path: '/my-work',
+      });
+      expect(decideNavigation(to('/board', { roles: rolesWith('board:read') }), as('partner'))).toEqual({
+        path: '/slots',
+      });
+      expect(decideNavigation(to('/jobs', { roles: rolesWith('jobs:read') }), as('partner'))).toEqual({
+        path: '/slots',
+      });
     });
     it('lets a role open what it may see', () => {
       expect(decideNavigation(to('/firm', { roles: rolesWith('firm:manage') }), as('owner'))).toBe(true);

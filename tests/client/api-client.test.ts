@@ -35,7 +35,10 @@ describe('problemToError', () => {
   });
 
   it('drops malformed field errors and keeps the rest', () => {
-    const error = problemToError(400, { title: 'Bad input', errors: [{ field: 'x' }, 'nonsense', { message: 'Whole form is empty' }] });
+    const error = problemToError(400, {
+      title: 'Bad input',
+      errors: [{ field: 'x' }, 'nonsense', { message: 'Whole form is empty' }],
+    });
     expect(error.errors).toEqual([{ field: '', message: 'Whole form is empty' }]);
   });
 
@@ -48,7 +51,9 @@ describe('problemToError', () => {
 
 describe('withQuery', () => {
   it('leaves out empty values', () => {
-    expect(withQuery('/api/jobs', { search: '', status: null, page: 2, sort: 'promisedFrom', x: undefined })).toBe('/api/jobs?page=2&sort=promisedFrom');
+    expect(withQuery('/api/jobs', { search: '', status: null, page: 2, sort: 'promisedFrom', x: undefined })).toBe(
+      '/api/jobs?page=2&sort=promisedFrom',
+    );
     expect(withQuery('/api/jobs', {})).toBe('/api/jobs');
   });
 });
@@ -73,7 +78,10 @@ describe('request', () => {
   });
 
   it('throws an ApiError from a problem+json answer', async () => {
-    stubFetch(() => ({ status: 409, body: { title: 'Crane already booked', detail: 'The 60 t crane is on another lift that day.' } }));
+    stubFetch(() => ({
+      status: 409,
+      body: { title: 'Crane already booked', detail: 'The 60 t crane is on another lift that day.' },
+    }));
     const error = await api.post('/api/bookings', {}).catch((e: unknown) => e);
     expect(error).toBeInstanceOf(ApiError);
     expect((error as ApiError).status).toBe(409);
@@ -92,7 +100,10 @@ describe('request', () => {
 
   it('turns a network failure into an ApiError with status 0', async () => {
     vi.stubGlobal('fetch', () => Promise.reject(new TypeError('Failed to fetch')));
-    await expect(api.get('/api/jobs')).rejects.toMatchObject({ status: 0, title: 'Waterline could not reach the server' });
+    await expect(api.get('/api/jobs')).rejects.toMatchObject({
+      status: 0,
+      title: 'Waterline could not reach the server',
+    });
   });
 
   it('passes an abort through untouched, so a cancelled load is not shown as a failure', async () => {

@@ -12,12 +12,15 @@ describe('booking-state colours', () => {
     expect(Object.keys(bookingStateColours).sort()).toEqual(Object.keys(STATE_LABELS).sort());
   });
 
-  it.each(Object.entries(bookingStateColours))('%s: ink and muted ink (the town) read on its tint, its edge stands out from the page', (_state, c) => {
-    expect(contrastRatio(palette.ink, c.background)).toBeGreaterThanOrEqual(TEXT);
-    expect(contrastRatio(palette.inkMuted, c.background)).toBeGreaterThanOrEqual(TEXT);
-    expect(contrastRatio(c.edge, palette.surface)).toBeGreaterThanOrEqual(NON_TEXT);
-    expect(contrastRatio(c.edge, c.background)).toBeGreaterThanOrEqual(NON_TEXT);
-  });
+  it.each(Object.entries(bookingStateColours))(
+    '%s: ink and muted ink (the town) read on its tint, its edge stands out from the page',
+    (_state, c) => {
+      expect(contrastRatio(palette.ink, c.background)).toBeGreaterThanOrEqual(TEXT);
+      expect(contrastRatio(palette.inkMuted, c.background)).toBeGreaterThanOrEqual(TEXT);
+      expect(contrastRatio(c.edge, palette.surface)).toBeGreaterThanOrEqual(NON_TEXT);
+      expect(contrastRatio(c.edge, c.background)).toBeGreaterThanOrEqual(NON_TEXT);
+    },
+  );
 
   it('reach the board as CSS custom properties, on-site spelt with a dash', () => {
     const variables = bookingStateVariables();

@@ -14,32 +14,110 @@ import { stubFetch } from './fake-fetch';
 const built = vi.hoisted(() => ({ count: 0 }));
 vi.mock('@shared/scheduler/board-index', async (importOriginal) => {
   const real = await importOriginal<typeof import('@shared/scheduler/board-index')>();
-  return { ...real, createBoardIndex: (...args: Parameters<typeof real.createBoardIndex>) => { built.count += 1; return real.createBoardIndex(...args); } };
+  return {
+    ...real,
+    createBoardIndex: (...args: Parameters<typeof real.createBoardIndex>) => {
+      built.count += 1;
+      return real.createBoardIndex(...args);
+    },
+  };
 });
 
-afterEach(() => { vi.unstubAllGlobals(); built.count = 0; });
+afterEach(() => {
+  vi.unstubAllGlobals();
+  built.count = 0;
+});
 
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [number, number][][];
+const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
+  number,
+  number,
+][][];
 const HOUR = 3_600_000;
 const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
 
 /** Two crews; a job of a dig and a base pour, the dig booked Monday, the pour waiting in the tray. */
 function board(): BoardData {
   return {
-    from: MON - 8 * HOUR, to: MON + 7 * 24 * HOUR, now: MON - 24 * HOUR, firmId: 'f1',
-    calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK, holidays: [{ date: '2026-12-25', name: 'Christmas Day' }] }],
+    from: MON - 8 * HOUR,
+    to: MON + 7 * 24 * HOUR,
+    now: MON - 24 * HOUR,
+    firmId: 'f1',
+    calendars: [
+      { id: 'c1', timeZone: 'Europe/London', weekly: WEEK, holidays: [{ date: '2026-12-25', name: 'Christmas Day' }] },
+    ],
     resources: [
-      { id: 'r1', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'c1', name: 'Crew Heron', firmName: 'Tideway', firmKind: 'installer', ownership: 'owned' },
-      { id: 'r2', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'c1', name: 'Crew Kestrel', firmName: 'Tideway', firmKind: 'installer', ownership: 'owned' },
+      {
+        id: 'r1',
+        firmId: 'f1',
+        category: 'crew',
+        kind: 'install_crew',
+        calendarId: 'c1',
+        name: 'Crew Heron',
+        firmName: 'Tideway',
+        firmKind: 'installer',
+        ownership: 'owned',
+      },
+      {
+        id: 'r2',
+        firmId: 'f1',
+        category: 'crew',
+        kind: 'install_crew',
+        calendarId: 'c1',
+        name: 'Crew Kestrel',
+        firmName: 'Tideway',
+        firmKind: 'installer',
+        ownership: 'owned',
+      },
     ],
-    jobs: [{ id: 'j1', firmId: 'f1', reference: 'TW-2417', customerName: 'A Customer', siteTown: 'Otley', status: 'planned', installationType: 'slab', promisedBy: null }],
+    jobs: [
+      {
+        id: 'j1',
+        firmId: 'f1',
+        reference: 'TW-2417',
+        customerName: 'A Customer',
+        siteTown: 'Otley',
+        status: 'planned',
+        installationType: 'slab',
+        promisedBy: null,
+      },
+    ],
     stages: [
-      { id: 'dig', jobId: 'j1', kind: 'excavation', name: 'Excavate pit', durationMinutes: 240, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 1 },
-      { id: 'base', jobId: 'j1', kind: 'base_pour', name: 'Pour base', durationMinutes: 240, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 2 },
+      {
+        id: 'dig',
+        jobId: 'j1',
+        kind: 'excavation',
+        name: 'Excavate pit',
+        durationMinutes: 240,
+        requirements: [{ kind: 'install_crew', count: 1 }],
+        sequence: 1,
+      },
+      {
+        id: 'base',
+        jobId: 'j1',
+        kind: 'base_pour',
+        name: 'Pour base',
+        durationMinutes: 240,
+        requirements: [{ kind: 'install_crew', count: 1 }],
+        sequence: 2,
+      },
     ],
-    dependencies: [{ id: 'd1', fromStageId: 'dig', toStageId: 'base', type: 'FS', lag: { amount: 0, unit: 'working_hours' } }],
-    bookings: [{ id: 'b1', stageId: 'dig', resourceId: 'r1', start: MON, end: MON + 4 * HOUR, state: 'pencilled', installerFirmId: 'f1', version: 1 }],
-    hirePeriods: [], leadTimeRules: [],
+    dependencies: [
+      { id: 'd1', fromStageId: 'dig', toStageId: 'base', type: 'FS', lag: { amount: 0, unit: 'working_hours' } },
+    ],
+    bookings: [
+      {
+        id: 'b1',
+        stageId: 'dig',
+        resourceId: 'r1',
+        start: MON,
+        end: MON + 4 * HOUR,
+        state: 'pencilled',
+        installerFirmId: 'f1',
+        version: 1,
+      },
+    ],
+    hirePeriods: [],
+    leadTimeRules: [],
   };
 }
 
@@ -55,8 +133,13 @@ describe("the board's engine index", () => {
       const b = useBoard();
       const drag = useDragCheck(() => b.index.value);
       const shown = useBoardFilter({
-        data: () => b.data.value, index: () => b.index.value, filters: () => ({ firm: '', kind: '', job: '', state: '', q: '' }),
-        problems: () => new Map(), canEdit: () => true, revealed: () => new Set(), selectedStage: () => null,
+        data: () => b.data.value,
+        index: () => b.index.value,
+        filters: () => ({ firm: '', kind: '', job: '', state: '', q: '' }),
+        problems: () => new Map(),
+        canEdit: () => true,
+        revealed: () => new Set(),
+        selectedStage: () => null,
       });
       return { b, drag, shown };
     })!;
@@ -67,7 +150,15 @@ describe("the board's engine index", () => {
     expect(b.analysis.value?.errorCount).toBe(0);
     expect(shown.tray.value.flatMap((t) => t.stages.map((s) => s.stage.id))).toEqual(['base']);
     expect(shown.rows.value.map((r) => r.id).sort()).toEqual(['r1', 'r2']);
-    for (let hour = 0; hour < 20; hour += 1) drag.evaluate({ stageId: 'dig', bookingId: 'b1', start: MON + 24 * HOUR + hour * 1800_000, oldStart: MON, resourceId: 'r2', oldResourceId: 'r1' });
+    for (let hour = 0; hour < 20; hour += 1)
+      drag.evaluate({
+        stageId: 'dig',
+        bookingId: 'b1',
+        start: MON + 24 * HOUR + hour * 1800_000,
+        oldStart: MON,
+        resourceId: 'r2',
+        oldResourceId: 'r1',
+      });
     // The pour before the dig is done: refused, from the same index.
     expect(drag.evaluate({ stageId: 'base', start: MON, resourceId: 'r2' }).allowed).toBe(false);
     expect(built.count).toBe(1);
@@ -86,7 +177,16 @@ describe("the board's engine index", () => {
 
   it("gives the same analysis as the engine's own analyseBoard", () => {
     const data = board();
-    data.bookings.push({ id: 'b2', stageId: 'base', resourceId: 'r1', start: MON + HOUR, end: MON + 5 * HOUR, state: 'pencilled', installerFirmId: 'f1', version: 1 });
+    data.bookings.push({
+      id: 'b2',
+      stageId: 'base',
+      resourceId: 'r1',
+      start: MON + HOUR,
+      end: MON + 5 * HOUR,
+      state: 'pencilled',
+      installerFirmId: 'f1',
+      version: 1,
+    });
     const ours = boardAnalysisOf(data, boardIndexOf(data, true));
     const engine = analyseBoard(toEngineBoard(data), { now: data.now, seesAllBookings: true });
     // The pour overlaps the dig on Crew Heron and starts before it ends: a clash and an order error.

@@ -4,7 +4,14 @@ import { renderToString } from 'vue/server-renderer';
 import type { BoardData } from '@shared/board-data';
 import type { BookingState } from '@shared/scheduler/index';
 import BoardLegend from '@/components/board/BoardLegend.vue';
-import { BOARD_BLOCKS, BOOKING_MARKERS, STATE_LABELS, closuresOf, eventsOf, problemsByBooking } from '@/components/board/board-events';
+import {
+  BOARD_BLOCKS,
+  BOOKING_MARKERS,
+  STATE_LABELS,
+  closuresOf,
+  eventsOf,
+  problemsByBooking,
+} from '@/components/board/board-events';
 import { chipMarks } from '@/components/board/booking-chip';
 
 const MON = Date.UTC(2026, 8, 14, 7);
@@ -13,28 +20,105 @@ const STATES: BookingState[] = ['pencilled', 'sent', 'confirmed', 'declined', 'o
 
 /** A board with a booking in every state, every marker, a busy-elsewhere block, a closure and a holiday. */
 function everything(): BoardData {
-  const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [number, number][][];
+  const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
+    number,
+    number,
+  ][][];
   return {
-    from: MON - 24 * HOUR, to: MON + 7 * 24 * HOUR, now: MON, firmId: 'f1',
-    calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK, closures: [{ start: MON + 48 * HOUR, end: MON + 72 * HOUR }] }],
-    resources: [{ id: 'r1', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'c1', name: 'Crew Heron', firmName: 'Tideway', firmKind: 'installer', ownership: 'owned' }],
+    from: MON - 24 * HOUR,
+    to: MON + 7 * 24 * HOUR,
+    now: MON,
+    firmId: 'f1',
+    calendars: [
+      {
+        id: 'c1',
+        timeZone: 'Europe/London',
+        weekly: WEEK,
+        closures: [{ start: MON + 48 * HOUR, end: MON + 72 * HOUR }],
+      },
+    ],
+    resources: [
+      {
+        id: 'r1',
+        firmId: 'f1',
+        category: 'crew',
+        kind: 'install_crew',
+        calendarId: 'c1',
+        name: 'Crew Heron',
+        firmName: 'Tideway',
+        firmKind: 'installer',
+        ownership: 'owned',
+      },
+    ],
     jobs: [
-      { id: 'j1', firmId: 'f1', reference: 'TW-1', customerName: 'A Customer', siteTown: 'Otley', status: 'planned', installationType: 'slab', promisedBy: null },
-      { id: 'elsewhere', firmId: 'elsewhere', reference: '', customerName: '', siteTown: '', status: 'planned', installationType: 'slab', promisedBy: null },
+      {
+        id: 'j1',
+        firmId: 'f1',
+        reference: 'TW-1',
+        customerName: 'A Customer',
+        siteTown: 'Otley',
+        status: 'planned',
+        installationType: 'slab',
+        promisedBy: null,
+      },
+      {
+        id: 'elsewhere',
+        firmId: 'elsewhere',
+        reference: '',
+        customerName: '',
+        siteTown: '',
+        status: 'planned',
+        installationType: 'slab',
+        promisedBy: null,
+      },
     ],
     stages: [
-      ...STATES.map((s, i) => ({ id: `s-${s}`, jobId: 'j1', kind: 'fill', name: 'Fill', durationMinutes: 60, requirements: [{ kind: 'install_crew', count: 1 }], sequence: i })),
-      { id: 'elsewhere:1', jobId: 'elsewhere', kind: 'elsewhere', name: 'Busy elsewhere', durationMinutes: 60, requirements: [], sequence: 0 },
+      ...STATES.map((s, i) => ({
+        id: `s-${s}`,
+        jobId: 'j1',
+        kind: 'fill',
+        name: 'Fill',
+        durationMinutes: 60,
+        requirements: [{ kind: 'install_crew', count: 1 }],
+        sequence: i,
+      })),
+      {
+        id: 'elsewhere:1',
+        jobId: 'elsewhere',
+        kind: 'elsewhere',
+        name: 'Busy elsewhere',
+        durationMinutes: 60,
+        requirements: [],
+        sequence: 0,
+      },
     ],
     dependencies: [],
     bookings: [
       ...STATES.map((state, i) => ({
-        id: `b-${state}`, stageId: `s-${state}`, resourceId: 'r1', start: MON + i * HOUR, end: MON + (i + 1) * HOUR, state, installerFirmId: 'f1', version: 1,
-        ...(state === 'sent' ? { overdue: true } : {}), ...(state === 'confirmed' ? { proposal: { start: MON + 30 * HOUR, end: MON + 31 * HOUR } } : {}),
+        id: `b-${state}`,
+        stageId: `s-${state}`,
+        resourceId: 'r1',
+        start: MON + i * HOUR,
+        end: MON + (i + 1) * HOUR,
+        state,
+        installerFirmId: 'f1',
+        version: 1,
+        ...(state === 'sent' ? { overdue: true } : {}),
+        ...(state === 'confirmed' ? { proposal: { start: MON + 30 * HOUR, end: MON + 31 * HOUR } } : {}),
       })),
-      { id: 'elsewhere-1', stageId: 'elsewhere:1', resourceId: 'r1', start: MON + 8 * HOUR, end: MON + 9 * HOUR, state: 'confirmed', installerFirmId: 'elsewhere', elsewhere: true },
+      {
+        id: 'elsewhere-1',
+        stageId: 'elsewhere:1',
+        resourceId: 'r1',
+        start: MON + 8 * HOUR,
+        end: MON + 9 * HOUR,
+        state: 'confirmed',
+        installerFirmId: 'elsewhere',
+        elsewhere: true,
+      },
     ],
-    hirePeriods: [], leadTimeRules: [],
+    hirePeriods: [],
+    leadTimeRules: [],
   };
 }
 
@@ -45,7 +129,16 @@ async function legendHtml(): Promise<string> {
 /** The key's items, each as its data-key and its text. */
 function items(html: string): Map<string, string> {
   const out = new Map<string, string>();
-  for (const m of html.matchAll(/<li[^>]*data-key="([^"]+)"[^>]*>([\s\S]*?)<\/li>/g)) out.set(m[1]!, m[2]!.replace(/<[^>]+>/g, ' ').replace(/&#39;/g, "'").replace(/&amp;/g, '&').replace(/\s+/g, ' ').trim());
+  for (const m of html.matchAll(/<li[^>]*data-key="([^"]+)"[^>]*>([\s\S]*?)<\/li>/g))
+    out.set(
+      m[1]!,
+      m[2]!
+        .replace(/<[^>]+>/g, ' ')
+        .replace(/&#39;/g, "'")
+        .replace(/&amp;/g, '&')
+        .replace(/\s+/g, ' ')
+        .trim(),
+    );
   return out;
 }
 
@@ -76,13 +169,37 @@ describe('the key to the board', () => {
 
   it('covers every class and symbol the board draws, so nothing on it goes unexplained', async () => {
     const data = everything();
-    const problems = problemsByBooking([{ kind: 'clash', severity: 'error', stageIds: ['s-pencilled'], resourceIds: ['r1'], bookingIds: ['b-pencilled'], message: 'Crew Heron is booked twice' }]);
+    const problems = problemsByBooking([
+      {
+        kind: 'clash',
+        severity: 'error',
+        stageIds: ['s-pencilled'],
+        resourceIds: ['r1'],
+        bookingIds: ['b-pencilled'],
+        message: 'Crew Heron is booked twice',
+      },
+    ]);
     const events = eventsOf(data, { canEdit: true, problems, declined: true });
-    const blocks = closuresOf(data, [{ calendarId: 'c1', start: MON + 96 * HOUR, end: MON + 120 * HOUR, name: 'A holiday' }]);
+    const blocks = closuresOf(data, [
+      { calendarId: 'c1', start: MON + 96 * HOUR, end: MON + 120 * HOUR, name: 'A holiday' },
+    ]);
     const classes = new Set([...events, ...blocks].flatMap((e) => e.classNames).filter((c) => c !== 'wl-booking'));
     const symbols = new Set(events.flatMap((e) => chipMarks(e.extendedProps).split(' ')).filter(Boolean));
     // The fixture reaches every state, marker and block the board can draw.
-    expect([...classes].sort()).toEqual(['wl-closed', 'wl-elsewhere', 'wl-has-problem', 'wl-holiday', 'wl-overdue', 'wl-proposed', 'wl-state-confirmed', 'wl-state-declined', 'wl-state-done', 'wl-state-on_site', 'wl-state-pencilled', 'wl-state-sent']);
+    expect([...classes].sort()).toEqual([
+      'wl-closed',
+      'wl-elsewhere',
+      'wl-has-problem',
+      'wl-holiday',
+      'wl-overdue',
+      'wl-proposed',
+      'wl-state-confirmed',
+      'wl-state-declined',
+      'wl-state-done',
+      'wl-state-on_site',
+      'wl-state-pencilled',
+      'wl-state-sent',
+    ]);
     const html = await legendHtml();
     const explained = [...items(html).values()].join(' ');
     for (const c of classes) expect(html, c).toMatch(new RegExp(`class="[^"]*\\b${c}\\b`));

@@ -1,5 +1,17 @@
 import { describe, expect, it } from 'vitest';
-import { boardTitle, isoWeek, mondayOf, rangeOf, showsWholeDays, slotLabels, stepDate, unitOf, VIEW_PARAM, workingWindow, ZOOM_LEVELS } from '@/components/board/board-range';
+import {
+  boardTitle,
+  isoWeek,
+  mondayOf,
+  rangeOf,
+  showsWholeDays,
+  slotLabels,
+  stepDate,
+  unitOf,
+  VIEW_PARAM,
+  workingWindow,
+  ZOOM_LEVELS,
+} from '@/components/board/board-range';
 
 const DAY = 86_400_000;
 /** A slot as the timeline hands it to a label formatter: month counted from 0. */
@@ -10,10 +22,19 @@ const slot = (date: string, hour = 0) => {
 
 describe('zoom levels', () => {
   it('are a day, a week, a fortnight and a month, each named in the URL', () => {
-    expect(ZOOM_LEVELS.map((z) => [z.param, z.label])).toEqual([['day', 'Day'], ['week', 'Week'], ['fortnight', 'Fortnight'], ['month', 'Month']]);
+    expect(ZOOM_LEVELS.map((z) => [z.param, z.label])).toEqual([
+      ['day', 'Day'],
+      ['week', 'Week'],
+      ['fortnight', 'Fortnight'],
+      ['month', 'Month'],
+    ]);
     for (const z of ZOOM_LEVELS) expect(VIEW_PARAM[z.param]).toBe(z.view);
     expect(unitOf('resourceTimelineFortnight')).toBe('fortnight');
-    expect(['resourceTimelineDay', 'resourceTimelineWeek', 'resourceTimelineFortnight', 'resourceTimelineMonth'].map((v) => showsWholeDays(v as never))).toEqual([false, false, true, true]);
+    expect(
+      ['resourceTimelineDay', 'resourceTimelineWeek', 'resourceTimelineFortnight', 'resourceTimelineMonth'].map((v) =>
+        showsWholeDays(v as never),
+      ),
+    ).toEqual([false, false, true, true]);
   });
 });
 
@@ -61,8 +82,14 @@ describe('ISO week numbers', () => {
   // ISO 8601: weeks start on Monday and week 1 holds the year's first Thursday, so 2026 (starting
   // on a Thursday) has 53 weeks and 2020's last week runs into 2021.
   it.each([
-    ['2026-01-01', 1], ['2026-06-01', 23], ['2026-12-31', 53], ['2027-01-01', 53], ['2027-01-04', 1],
-    ['2024-12-30', 1], ['2021-01-03', 53], ['2021-01-04', 1],
+    ['2026-01-01', 1],
+    ['2026-06-01', 23],
+    ['2026-12-31', 53],
+    ['2027-01-01', 53],
+    ['2027-01-04', 1],
+    ['2024-12-30', 1],
+    ['2021-01-03', 53],
+    ['2021-01-04', 1],
   ])('%s is in week %i', (date, week) => {
     const { year, month, day } = slot(date);
     expect(isoWeek(year, month, day)).toBe(week);
@@ -95,8 +122,14 @@ describe('the hours the timeline shows', () => {
 
   it('cover every calendar: whole hours for a day, a morning and afternoon of equal length for a week', () => {
     // 08:00–17:00 and an electricians' 07:30–16:30: the afternoon needs 5 h, so halves of 6 h (5 does not divide a day).
-    expect(workingWindow([calendar([[480, 1020]]), calendar([[450, 990]])])).toEqual({ day: { start: '07:00', end: '17:00' }, week: { start: '06:00', end: '18:00', half: '06:00' } });
-    expect(workingWindow([calendar([[540, 900]])])).toEqual({ day: { start: '09:00', end: '15:00' }, week: { start: '09:00', end: '15:00', half: '03:00' } });
+    expect(workingWindow([calendar([[480, 1020]]), calendar([[450, 990]])])).toEqual({
+      day: { start: '07:00', end: '17:00' },
+      week: { start: '06:00', end: '18:00', half: '06:00' },
+    });
+    expect(workingWindow([calendar([[540, 900]])])).toEqual({
+      day: { start: '09:00', end: '15:00' },
+      week: { start: '09:00', end: '15:00', half: '03:00' },
+    });
   });
 
   it('fall back to a working day of 08:00–17:00 without calendars, and never pass midnight', () => {

@@ -10,35 +10,198 @@ const H = 3_600_000;
 /** Two jobs: TW-2417 in Otley (dig booked on the excavator, lift on Crew Heron), TW-2423 in Wetherby (dig on the dumper only). */
 function board(): BoardData {
   return {
-    from: MON - H, to: MON + 7 * 24 * H, now: MON - 24 * H, firmId: 'f1',
+    from: MON - H,
+    to: MON + 7 * 24 * H,
+    now: MON - 24 * H,
+    firmId: 'f1',
     calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK.map((d) => d.map(([a, b]) => [a, b] as const)) }],
     resources: [
-      { id: 'r-heron', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'c1', name: 'Crew Heron', firmName: 'Tideway', firmKind: 'installer', ownership: 'owned' },
-      { id: 'r-exc', firmId: 'f1', category: 'machine', kind: 'excavator', calendarId: 'c1', name: '1.5 t excavator', firmName: 'Tideway', firmKind: 'installer', ownership: 'owned' },
-      { id: 'r-dump', firmId: 'f1', category: 'machine', kind: 'dumper', calendarId: 'c1', name: 'Tracked dumper', firmName: 'Tideway', firmKind: 'installer', ownership: 'owned' },
-      { id: 'r-priya', firmId: 'f2', category: 'person', kind: 'electrician', calendarId: 'c1', name: 'Priya Nair', firmName: 'Brightspark Electrical', firmKind: 'electrical', ownership: 'partner' },
+      {
+        id: 'r-heron',
+        firmId: 'f1',
+        category: 'crew',
+        kind: 'install_crew',
+        calendarId: 'c1',
+        name: 'Crew Heron',
+        firmName: 'Tideway',
+        firmKind: 'installer',
+        ownership: 'owned',
+      },
+      {
+        id: 'r-exc',
+        firmId: 'f1',
+        category: 'machine',
+        kind: 'excavator',
+        calendarId: 'c1',
+        name: '1.5 t excavator',
+        firmName: 'Tideway',
+        firmKind: 'installer',
+        ownership: 'owned',
+      },
+      {
+        id: 'r-dump',
+        firmId: 'f1',
+        category: 'machine',
+        kind: 'dumper',
+        calendarId: 'c1',
+        name: 'Tracked dumper',
+        firmName: 'Tideway',
+        firmKind: 'installer',
+        ownership: 'owned',
+      },
+      {
+        id: 'r-priya',
+        firmId: 'f2',
+        category: 'person',
+        kind: 'electrician',
+        calendarId: 'c1',
+        name: 'Priya Nair',
+        firmName: 'Brightspark Electrical',
+        firmKind: 'electrical',
+        ownership: 'partner',
+      },
     ],
     jobs: [
-      { id: 'j17', firmId: 'f1', reference: 'TW-2417', customerName: 'Freya Lund', siteTown: 'Otley', sitePostcode: 'LS21 3QP', status: 'planned', installationType: 'in_ground', promisedBy: MON + 20 * 24 * H },
-      { id: 'j23', firmId: 'f1', reference: 'TW-2423', customerName: 'Beth Garside', siteTown: 'Wetherby', sitePostcode: 'LS22 6XN', status: 'planned', installationType: 'in_ground', promisedBy: MON + 30 * 24 * H },
-      { id: 'elsewhere', firmId: 'elsewhere', reference: '', customerName: '', siteTown: '', status: 'planned', installationType: 'slab', promisedBy: null },
+      {
+        id: 'j17',
+        firmId: 'f1',
+        reference: 'TW-2417',
+        customerName: 'Freya Lund',
+        siteTown: 'Otley',
+        sitePostcode: 'LS21 3QP',
+        status: 'planned',
+        installationType: 'in_ground',
+        promisedBy: MON + 20 * 24 * H,
+      },
+      {
+        id: 'j23',
+        firmId: 'f1',
+        reference: 'TW-2423',
+        customerName: 'Beth Garside',
+        siteTown: 'Wetherby',
+        sitePostcode: 'LS22 6XN',
+        status: 'planned',
+        installationType: 'in_ground',
+        promisedBy: MON + 30 * 24 * H,
+      },
+      {
+        id: 'elsewhere',
+        firmId: 'elsewhere',
+        reference: '',
+        customerName: '',
+        siteTown: '',
+        status: 'planned',
+        installationType: 'slab',
+        promisedBy: null,
+      },
     ],
     stages: [
-      { id: 's17-dig', jobId: 'j17', kind: 'excavation', name: 'Excavate pit', durationMinutes: 300, requirements: [{ kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }], sequence: 1 },
-      { id: 's17-lift', jobId: 'j17', kind: 'lift', name: 'Crane lift', durationMinutes: 240, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 2 },
-      { id: 's17-con', jobId: 'j17', kind: 'electrical_connect', name: 'Connect and certify', durationMinutes: 240, requirements: [{ kind: 'electrician', count: 1 }], sequence: 3 },
-      { id: 's23-dig', jobId: 'j23', kind: 'excavation', name: 'Excavate pit', durationMinutes: 300, requirements: [{ kind: 'excavator', count: 1 }, { kind: 'dumper', count: 1 }], sequence: 1 },
-      { id: 's23-fill', jobId: 'j23', kind: 'fill', name: 'Fill', durationMinutes: 180, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 2 },
-      { id: 'elsewhere:1', jobId: 'elsewhere', kind: 'elsewhere', name: 'Busy elsewhere', durationMinutes: 60, requirements: [], sequence: 0 },
+      {
+        id: 's17-dig',
+        jobId: 'j17',
+        kind: 'excavation',
+        name: 'Excavate pit',
+        durationMinutes: 300,
+        requirements: [
+          { kind: 'excavator', count: 1 },
+          { kind: 'dumper', count: 1 },
+        ],
+        sequence: 1,
+      },
+      {
+        id: 's17-lift',
+        jobId: 'j17',
+        kind: 'lift',
+        name: 'Crane lift',
+        durationMinutes: 240,
+        requirements: [{ kind: 'install_crew', count: 1 }],
+        sequence: 2,
+      },
+      {
+        id: 's17-con',
+        jobId: 'j17',
+        kind: 'electrical_connect',
+        name: 'Connect and certify',
+        durationMinutes: 240,
+        requirements: [{ kind: 'electrician', count: 1 }],
+        sequence: 3,
+      },
+      {
+        id: 's23-dig',
+        jobId: 'j23',
+        kind: 'excavation',
+        name: 'Excavate pit',
+        durationMinutes: 300,
+        requirements: [
+          { kind: 'excavator', count: 1 },
+          { kind: 'dumper', count: 1 },
+        ],
+        sequence: 1,
+      },
+      {
+        id: 's23-fill',
+        jobId: 'j23',
+        kind: 'fill',
+        name: 'Fill',
+        durationMinutes: 180,
+        requirements: [{ kind: 'install_crew', count: 1 }],
+        sequence: 2,
+      },
+      {
+        id: 'elsewhere:1',
+        jobId: 'elsewhere',
+        kind: 'elsewhere',
+        name: 'Busy elsewhere',
+        durationMinutes: 60,
+        requirements: [],
+        sequence: 0,
+      },
     ],
     dependencies: [],
     bookings: [
-      { id: 'b17-dig', stageId: 's17-dig', resourceId: 'r-exc', start: MON, end: MON + 5 * H, state: 'pencilled', installerFirmId: 'f1', version: 1 },
-      { id: 'b17-lift', stageId: 's17-lift', resourceId: 'r-heron', start: MON + 48 * H, end: MON + 52 * H, state: 'confirmed', installerFirmId: 'f1', version: 1 },
-      { id: 'b23-dig', stageId: 's23-dig', resourceId: 'r-dump', start: MON, end: MON + 5 * H, state: 'sent', installerFirmId: 'f1', version: 2 },
-      { id: 'elsewhere-1', stageId: 'elsewhere:1', resourceId: 'r-priya', start: MON, end: MON + H, state: 'confirmed', installerFirmId: 'elsewhere', elsewhere: true },
+      {
+        id: 'b17-dig',
+        stageId: 's17-dig',
+        resourceId: 'r-exc',
+        start: MON,
+        end: MON + 5 * H,
+        state: 'pencilled',
+        installerFirmId: 'f1',
+        version: 1,
+      },
+      {
+        id: 'b17-lift',
+        stageId: 's17-lift',
+        resourceId: 'r-heron',
+        start: MON + 48 * H,
+        end: MON + 52 * H,
+        state: 'confirmed',
+        installerFirmId: 'f1',
+        version: 1,
+      },
+      {
+        id: 'b23-dig',
+        stageId: 's23-dig',
+        resourceId: 'r-dump',
+        start: MON,
+        end: MON + 5 * H,
+        state: 'sent',
+        installerFirmId: 'f1',
+        version: 2,
+      },
+      {
+        id: 'elsewhere-1',
+        stageId: 'elsewhere:1',
+        resourceId: 'r-priya',
+        start: MON,
+        end: MON + H,
+        state: 'confirmed',
+        installerFirmId: 'elsewhere',
+        elsewhere: true,
+      },
     ],
-    hirePeriods: [], leadTimeRules: [],
+    hirePeriods: [],
+    leadTimeRules: [],
   };
 }
 
@@ -51,8 +214,9 @@ describe('the search box', () => {
     const v = boardVisibility(data, { ...NO_FILTER, q: 'TW-2417' });
     expect(sorted(v.rows)).toEqual(['r-exc', 'r-heron']);
     expect(sorted(v.bookings)).toEqual(['b17-dig', 'b17-lift']);
-    expect(trayGroups(data, order(data), v.trayStage).map((g) => [g.job.reference, g.stages.map((s) => s.stage.id)]))
-      .toEqual([['TW-2417', ['s17-dig', 's17-con']]]);
+    expect(
+      trayGroups(data, order(data), v.trayStage).map((g) => [g.job.reference, g.stages.map((s) => s.stage.id)]),
+    ).toEqual([['TW-2417', ['s17-dig', 's17-con']]]);
   });
 
   it('finds a job by its customer, its town or its postcode, whatever the case or spacing', () => {
@@ -69,7 +233,10 @@ describe('the search box', () => {
     const v = boardVisibility(data, { ...NO_FILTER, q: 'tracked dumper' });
     expect(sorted(v.rows)).toEqual(['r-dump']);
     expect(sorted(v.bookings)).toEqual(['b23-dig']);
-    expect(trayGroups(data, order(data), v.trayStage).flatMap((g) => g.stages.map((s) => s.stage.id))).toEqual(['s17-dig', 's23-dig']);
+    expect(trayGroups(data, order(data), v.trayStage).flatMap((g) => g.stages.map((s) => s.stage.id))).toEqual([
+      's17-dig',
+      's23-dig',
+    ]);
   });
 
   it('takes several words, each found in the job or the resource', () => {
@@ -81,10 +248,15 @@ describe('the search box', () => {
   it('shows nothing, tray included, when nothing matches', () => {
     const data = board();
     const v = boardVisibility(data, { ...NO_FILTER, q: 'TW-9999' });
-    expect([v.rows.size, v.bookings.size, trayGroups(data, order(data), v.trayStage).length, v.filtering]).toEqual([0, 0, 0, true]);
+    expect([v.rows.size, v.bookings.size, trayGroups(data, order(data), v.trayStage).length, v.filtering]).toEqual([
+      0,
+      0,
+      0,
+      true,
+    ]);
   });
 
-  it('without a search shows every row and booking (another installer\'s block too)', () => {
+  it("without a search shows every row and booking (another installer's block too)", () => {
     const v = boardVisibility(board(), NO_FILTER);
     expect(v.rows.size).toBe(4);
     expect(sorted(v.bookings)).toEqual(['b17-dig', 'b17-lift', 'b23-dig', 'elsewhere-1']);
@@ -99,7 +271,10 @@ describe('the job and state filters', () => {
     expect(sorted(v.bookings)).toEqual(['b23-dig', 'elsewhere-1']);
     expect(v.rows.size).toBe(4);
     expect(trayGroups(data, order(data), v.trayStage).map((g) => g.job.reference)).toEqual(['TW-2423']);
-    expect(sorted(boardVisibility(data, { ...NO_FILTER, state: 'confirmed' }).bookings)).toEqual(['b17-lift', 'elsewhere-1']);
+    expect(sorted(boardVisibility(data, { ...NO_FILTER, state: 'confirmed' }).bookings)).toEqual([
+      'b17-lift',
+      'elsewhere-1',
+    ]);
   });
 
   it('never hide a booking a refusal cites: it is named by its job, and shown once revealed, with its row', () => {
@@ -107,7 +282,10 @@ describe('the job and state filters', () => {
     const filters = { ...NO_FILTER, jobId: 'j17', firmId: 'f2' };
     const v = boardVisibility(data, filters);
     const hidden = hiddenCited(data, v, ['b17-dig', 'b23-dig', 'elsewhere-1']);
-    expect(hidden).toEqual([{ bookingId: 'b17-dig', jobId: 'j17', reference: 'TW-2417' }, { bookingId: 'b23-dig', jobId: 'j23', reference: 'TW-2423' }]);
+    expect(hidden).toEqual([
+      { bookingId: 'b17-dig', jobId: 'j17', reference: 'TW-2417' },
+      { bookingId: 'b23-dig', jobId: 'j23', reference: 'TW-2423' },
+    ]);
     expect(hiddenNote(hidden)).toBe('(TW-2417, TW-2423 are hidden by the filters)');
     const shown = boardVisibility(data, filters, new Set(['b23-dig']));
     expect(shown.bookings.has('b23-dig')).toBe(true);
@@ -128,9 +306,22 @@ describe('the tray', () => {
 
   it('shows a decline beside the stage it puts back', () => {
     const data = board();
-    data.bookings.push({ id: 'b17-con', stageId: 's17-con', resourceId: 'r-priya', start: MON + 72 * H, end: MON + 76 * H, state: 'declined', installerFirmId: 'f1', version: 3 });
+    data.bookings.push({
+      id: 'b17-con',
+      stageId: 's17-con',
+      resourceId: 'r-priya',
+      start: MON + 72 * H,
+      end: MON + 76 * H,
+      state: 'declined',
+      installerFirmId: 'f1',
+      version: 3,
+    });
     const con = trayGroups(data, order(data))[0]!.stages.find((s) => s.stage.id === 's17-con')!;
-    expect(con).toMatchObject({ short: [{ kind: 'electrician', count: 1 }], bookedCount: 0, declinedBy: ['Brightspark Electrical'] });
+    expect(con).toMatchObject({
+      short: [{ kind: 'electrician', count: 1 }],
+      bookedCount: 0,
+      declinedBy: ['Brightspark Electrical'],
+    });
   });
 });
 

@@ -6,22 +6,43 @@ import { useBoardStream } from '@/composables/useBoardStream';
 class FakeEventSource extends EventTarget {
   static last: FakeEventSource | null = null;
   closed = false;
-  constructor(readonly url: string) { super(); FakeEventSource.last = this; }
-  close() { this.closed = true; }
-  send(type: string, data: unknown) { this.dispatchEvent(new MessageEvent(type, { data: JSON.stringify(data) })); }
+  constructor(readonly url: string) {
+    super();
+    FakeEventSource.last = this;
+  }
+  close() {
+    this.closed = true;
+  }
+  send(type: string, data: unknown) {
+    this.dispatchEvent(new MessageEvent(type, { data: JSON.stringify(data) }));
+  }
 }
 
 // A renderer that draws nothing: enough for a component's lifecycle (onMounted, onBeforeUnmount) without a DOM.
 const { createApp } = createRenderer<object, object>({
-  insert: () => undefined, remove: () => undefined, patchProp: () => undefined,
-  createElement: () => ({}), createText: () => ({}), createComment: () => ({}),
-  setText: () => undefined, setElementText: () => undefined, parentNode: () => null, nextSibling: () => null,
+  insert: () => undefined,
+  remove: () => undefined,
+  patchProp: () => undefined,
+  createElement: () => ({}),
+  createText: () => ({}),
+  createComment: () => ({}),
+  setText: () => undefined,
+  setElementText: () => undefined,
+  parentNode: () => null,
+  nextSibling: () => null,
 });
 
 /** A board that uses the stream; `reloads` counts its reloads. */
 function mountBoard(canReload = () => true) {
   const reload = vi.fn(() => Promise.resolve());
-  const app = createApp(defineComponent({ setup() { useBoardStream(canReload, reload); return () => null; } }));
+  const app = createApp(
+    defineComponent({
+      setup() {
+        useBoardStream(canReload, reload);
+        return () => null;
+      },
+    }),
+  );
   app.mount({});
   return { reload, source: FakeEventSource.last!, unmount: () => app.unmount() };
 }
@@ -32,7 +53,7 @@ afterEach(() => {
 });
 
 describe('the live board', () => {
-  it('reloads on a change, on the server\'s resync and when the browser reopens a broken stream, not on the first open', () => {
+  it("reloads on a change, on the server's resync and when the browser reopens a broken stream, not on the first open", () => {
     vi.useFakeTimers();
     vi.stubGlobal('EventSource', FakeEventSource);
     const board = mountBoard();

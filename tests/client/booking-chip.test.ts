@@ -7,8 +7,18 @@ const HOUR = 3_600_000;
 
 function props(overrides: Partial<EventInput['extendedProps']> = {}): EventInput['extendedProps'] {
   return {
-    bookingId: 'b1', stageId: 's1', jobId: 'j1', state: 'confirmed', elsewhere: false, problems: [],
-    reference: 'TW-2417', stageName: 'Pour reinforced base', stageKind: 'base_pour', town: 'Otley', markers: [], ...overrides,
+    bookingId: 'b1',
+    stageId: 's1',
+    jobId: 'j1',
+    state: 'confirmed',
+    elsewhere: false,
+    problems: [],
+    reference: 'TW-2417',
+    stageName: 'Pour reinforced base',
+    stageKind: 'base_pour',
+    town: 'Otley',
+    markers: [],
+    ...overrides,
   };
 }
 
@@ -33,7 +43,12 @@ describe('a booking in words', () => {
   });
 
   it('tells everything in its tooltip: job, state, time and each marker with the problem itself', () => {
-    const lines = bookingSummary(props({ markers: ['problem', 'overdue'], problems: ['Millstone gang is booked twice.'] }), MON_8, MON_8 + 5 * HOUR, 'Europe/London');
+    const lines = bookingSummary(
+      props({ markers: ['problem', 'overdue'], problems: ['Millstone gang is booked twice.'] }),
+      MON_8,
+      MON_8 + 5 * HOUR,
+      'Europe/London',
+    );
     expect(lines).toEqual([
       'TW-2417 · Pour reinforced base · Otley',
       '✔ Confirmed: the firm said yes',
@@ -44,7 +59,13 @@ describe('a booking in words', () => {
   });
 
   it("tells nothing of another installer's booking but that it is busy", () => {
-    expect(bookingSummary(props({ elsewhere: true, reference: '', stageName: 'Busy elsewhere', town: '' }), MON_8, MON_8 + HOUR, 'Europe/London'))
-      .toEqual(["Busy elsewhere: another installer's booking", 'Mon 14 Sep 08:00–09:00']);
+    expect(
+      bookingSummary(
+        props({ elsewhere: true, reference: '', stageName: 'Busy elsewhere', town: '' }),
+        MON_8,
+        MON_8 + HOUR,
+        'Europe/London',
+      ),
+    ).toEqual(["Busy elsewhere: another installer's booking", 'Mon 14 Sep 08:00–09:00']);
   });
 });

@@ -3,7 +3,10 @@ import type { BoardData } from '@shared/board-data';
 import { boardAnalysisOf, boardIndexOf, seesAllBookingsAs } from '@/components/board/engine-view';
 import { stageLines } from '@/components/board/job-panel';
 
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [number, number][][];
+const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
+  number,
+  number,
+][][];
 const HOUR = 3_600_000;
 const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
 
@@ -14,21 +17,83 @@ const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in Lond
  */
 function board(): BoardData {
   return {
-    from: MON - 8 * HOUR, to: MON + 7 * 24 * HOUR, now: MON, firmId: 'f1',
+    from: MON - 8 * HOUR,
+    to: MON + 7 * 24 * HOUR,
+    now: MON,
+    firmId: 'f1',
     calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK }],
-    resources: [{ id: 'r1', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'c1', name: 'Crew Heron', firmName: 'Tideway', firmKind: 'installer', ownership: 'owned' }],
-    jobs: [{ id: 'j1', firmId: 'f1', reference: 'TW-2417', customerName: 'A Customer', siteTown: 'Otley', status: 'planned', installationType: 'slab', promisedBy: null }],
+    resources: [
+      {
+        id: 'r1',
+        firmId: 'f1',
+        category: 'crew',
+        kind: 'install_crew',
+        calendarId: 'c1',
+        name: 'Crew Heron',
+        firmName: 'Tideway',
+        firmKind: 'installer',
+        ownership: 'owned',
+      },
+    ],
+    jobs: [
+      {
+        id: 'j1',
+        firmId: 'f1',
+        reference: 'TW-2417',
+        customerName: 'A Customer',
+        siteTown: 'Otley',
+        status: 'planned',
+        installationType: 'slab',
+        promisedBy: null,
+      },
+    ],
     stages: [
-      { id: 'dig', jobId: 'j1', kind: 'excavation', name: 'Excavate pit', durationMinutes: 540, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 1 },
-      { id: 'base', jobId: 'j1', kind: 'base_pour', name: 'Pour base', durationMinutes: 240, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 2 },
-      { id: 'lift', jobId: 'j1', kind: 'lift', name: 'Crane lift', durationMinutes: 180, requirements: [{ kind: 'install_crew', count: 1 }], sequence: 3 },
+      {
+        id: 'dig',
+        jobId: 'j1',
+        kind: 'excavation',
+        name: 'Excavate pit',
+        durationMinutes: 540,
+        requirements: [{ kind: 'install_crew', count: 1 }],
+        sequence: 1,
+      },
+      {
+        id: 'base',
+        jobId: 'j1',
+        kind: 'base_pour',
+        name: 'Pour base',
+        durationMinutes: 240,
+        requirements: [{ kind: 'install_crew', count: 1 }],
+        sequence: 2,
+      },
+      {
+        id: 'lift',
+        jobId: 'j1',
+        kind: 'lift',
+        name: 'Crane lift',
+        durationMinutes: 180,
+        requirements: [{ kind: 'install_crew', count: 1 }],
+        sequence: 3,
+      },
     ],
     dependencies: [
       { id: 'd1', fromStageId: 'dig', toStageId: 'base', type: 'FS', lag: { amount: 0, unit: 'working_hours' } },
       { id: 'd2', fromStageId: 'base', toStageId: 'lift', type: 'FS', lag: { amount: 0, unit: 'working_hours' } },
     ],
-    bookings: [{ id: 'b1', stageId: 'lift', resourceId: 'r1', start: MON + 5 * HOUR, end: MON + 8 * HOUR, state: 'pencilled', installerFirmId: 'f1', version: 1 }],
-    hirePeriods: [], leadTimeRules: [],
+    bookings: [
+      {
+        id: 'b1',
+        stageId: 'lift',
+        resourceId: 'r1',
+        start: MON + 5 * HOUR,
+        end: MON + 8 * HOUR,
+        state: 'pencilled',
+        installerFirmId: 'f1',
+        version: 1,
+      },
+    ],
+    hirePeriods: [],
+    leadTimeRules: [],
   };
 }
 
@@ -43,7 +108,9 @@ describe("the engine over a crew member's part of the board", () => {
   });
 
   it("warns of the unbooked stages before the lift on the office's board, and not on a crew member's", () => {
-    const office = analysed(board(), seesAllBookingsAs('scheduler')).violations.filter((v) => v.kind === 'unbooked_predecessor');
+    const office = analysed(board(), seesAllBookingsAs('scheduler')).violations.filter(
+      (v) => v.kind === 'unbooked_predecessor',
+    );
     expect(office.map((v) => v.stageIds)).toEqual([['base', 'dig', 'lift']]);
     expect(analysed(board(), seesAllBookingsAs('crew')).violations).toEqual([]);
   });
@@ -54,12 +121,20 @@ describe("the job panel's earliest times", () => {
     // Now is Monday 09:07.
     const data = { ...board(), bookings: [], now: MON + 67 * 60_000 };
     const analysis = analysed(data, true);
-    const lines = stageLines(data, boardIndexOf(data, true), 'j1', analysis.criticalPaths.find((p) => p.jobId === 'j1'), analysis.violations);
+    const lines = stageLines(
+      data,
+      boardIndexOf(data, true),
+      'j1',
+      analysis.criticalPaths.find((p) => p.jobId === 'j1'),
+      analysis.violations,
+    );
     // A dig of one whole working day must be done within one (it may not run on overnight), so not
     // from 09:15 Monday: Tuesday 08:00–17:00; the base then Wednesday 08:00–12:00, the lift from 12:00 (BST).
     const DAY = 24 * HOUR;
     expect(lines.map((l) => [l.stage.id, l.booked, l.earliestStart])).toEqual([
-      ['dig', false, MON + DAY], ['base', false, MON + 2 * DAY], ['lift', false, MON + 2 * DAY + 4 * HOUR],
+      ['dig', false, MON + DAY],
+      ['base', false, MON + 2 * DAY],
+      ['lift', false, MON + 2 * DAY + 4 * HOUR],
     ]);
   });
 });

@@ -1,6 +1,11 @@
 import { vi } from 'vitest';
 
-export interface SentRequest { url: string; method: string; headers: Record<string, string>; body: unknown }
+export interface SentRequest {
+  url: string;
+  method: string;
+  headers: Record<string, string>;
+  body: unknown;
+}
 
 type Answer = { status: number; body?: unknown; contentType?: string };
 
@@ -21,7 +26,10 @@ export function stubFetch(answer: (request: SentRequest) => Answer | Promise<Ans
     const { status, body, contentType } = await answer(request);
     const type = contentType ?? (status >= 400 ? 'application/problem+json' : 'application/json');
     const text = body === undefined ? null : typeof body === 'string' ? body : JSON.stringify(body);
-    return new Response(status === 204 ? null : text, { status, headers: text === null ? {} : { 'content-type': type } });
+    return new Response(status === 204 ? null : text, {
+      status,
+      headers: text === null ? {} : { 'content-type': type },
+    });
   });
   return sent;
 }

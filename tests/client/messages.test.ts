@@ -6,8 +6,16 @@ import { humanise } from '@/utils/labels';
 
 describe('problemSummary', () => {
   it('uses what the server said', () => {
-    const error = new ApiError({ status: 422, title: 'Some details need correcting', errors: [{ field: 'siteTown', message: 'Required' }] });
-    expect(problemSummary(error)).toEqual({ title: 'Some details need correcting', detail: undefined, fields: [{ field: 'siteTown', message: 'Required' }] });
+    const error = new ApiError({
+      status: 422,
+      title: 'Some details need correcting',
+      errors: [{ field: 'siteTown', message: 'Required' }],
+    });
+    expect(problemSummary(error)).toEqual({
+      title: 'Some details need correcting',
+      detail: undefined,
+      fields: [{ field: 'siteTown', message: 'Required' }],
+    });
   });
   it('says something useful about an unexpected failure', () => {
     expect(problemSummary(new Error('boom')).title).toBe('Something went wrong');

@@ -7,32 +7,55 @@ import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
 import { stubFetch, type SentRequest } from './fake-fetch';
 import { renderHtml } from './render';
 
-afterEach(() => { vi.unstubAllGlobals(); });
+afterEach(() => {
+  vi.unstubAllGlobals();
+});
 const flush = () => new Promise((resolve) => setTimeout(resolve, 0));
 
 function item(id: string, day: string, startsAt: string, over: Partial<MyWorkItem> = {}): MyWorkItem {
   return {
-    bookingId: id, version: 3, startsAt, endsAt: new Date(Date.parse(startsAt) + 4 * 3_600_000).toISOString(), state: 'confirmed', day, actions: [],
+    bookingId: id,
+    version: 3,
+    startsAt,
+    endsAt: new Date(Date.parse(startsAt) + 4 * 3_600_000).toISOString(),
+    state: 'confirmed',
+    day,
+    actions: [],
     resource: { id: '7', name: 'Crew Heron', kind: 'install_crew', category: 'crew', firmName: 'Tideway Hot Tubs' },
     stage: { id: `s${id}`, kind: 'excavation', name: 'Excavate pit' },
     job: { id: '12', reference: 'TW-2407', unitName: 'Solway 7', installationType: 'in_ground' },
-    site: { address: 'The Old Barn, Hall Lane', town: 'Bramhope', postcode: 'LS16 9AS', accessNotes: 'Side gate 900 mm' },
-    contacts: [{ role: 'Customer', name: 'Ellie Fairburn', phone: '07700 900106' }, { role: 'Installer office', name: 'Tideway Hot Tubs', phone: '0113 496 0001' }],
-    alongside: [], cautions: ['Locate buried services before digging.', 'Follow local codes and licensed practice.'],
+    site: {
+      address: 'The Old Barn, Hall Lane',
+      town: 'Bramhope',
+      postcode: 'LS16 9AS',
+      accessNotes: 'Side gate 900 mm',
+    },
+    contacts: [
+      { role: 'Customer', name: 'Ellie Fairburn', phone: '07700 900106' },
+      { role: 'Installer office', name: 'Tideway Hot Tubs', phone: '0113 496 0001' },
+    ],
+    alongside: [],
+    cautions: ['Locate buried services before digging.', 'Follow local codes and licensed practice.'],
     ...over,
   };
 }
 
 describe('the day list', () => {
   it('puts today first, counts work still running from yesterday as today, and names the days', () => {
-    const list: MyWorkList = { today: '2026-06-01', timeZone: 'Europe/London', items: [
-      item('3', '2026-06-03', '2026-06-03T07:00:00Z'),
-      item('2', '2026-06-02', '2026-06-02T07:00:00Z'),
-      item('1', '2026-06-01', '2026-06-01T07:00:00Z'),
-      item('0', '2026-05-29', '2026-05-29T07:00:00Z'), // a dig still under way
-    ] };
+    const list: MyWorkList = {
+      today: '2026-06-01',
+      timeZone: 'Europe/London',
+      items: [
+        item('3', '2026-06-03', '2026-06-03T07:00:00Z'),
+        item('2', '2026-06-02', '2026-06-02T07:00:00Z'),
+        item('1', '2026-06-01', '2026-06-01T07:00:00Z'),
+        item('0', '2026-05-29', '2026-05-29T07:00:00Z'), // a dig still under way
+      ],
+    };
     expect(groupByDay(list).map((g) => [g.label, g.items.map((i) => i.bookingId)])).toEqual([
-      ['Today', ['0', '1']], ['Tomorrow', ['2']], ['Wednesday 3 June', ['3']],
+      ['Today', ['0', '1']],
+      ['Tomorrow', ['2']],
+      ['Wednesday 3 June', ['3']],
     ]);
     expect(dayLabel('2026-06-08', '2026-06-01')).toBe('Monday 8 June');
   });
@@ -43,8 +66,13 @@ describe('the day list', () => {
 });
 
 describe('a card', () => {
-  it('shows the street, postcode, site contact, the office\'s phone and the cautions', async () => {
-    const html = await renderHtml(MyWorkCard, { item: item('1', '2026-06-01', '2026-06-01T07:00:00Z', { actions: ['arrive'] }), timeZone: 'Europe/London', busy: false, canSurvey: true });
+  it("shows the street, postcode, site contact, the office's phone and the cautions", async () => {
+    const html = await renderHtml(MyWorkCard, {
+      item: item('1', '2026-06-01', '2026-06-01T07:00:00Z', { actions: ['arrive'] }),
+      timeZone: 'Europe/London',
+      busy: false,
+      canSurvey: true,
+    });
     expect(html).toContain('The Old Barn, Hall Lane');
     expect(html).toContain('LS16 9AS');
     expect(html).toContain('Site contact:</span> Ellie Fairburn</span><a href="tel:07700900106"');
@@ -56,8 +84,15 @@ describe('a card', () => {
   });
 
   it('offers only the steps the server says may be marked now', async () => {
-    const render = (actions: MyWorkItem['actions']) => renderHtml(MyWorkCard, { item: item('1', '2026-06-01', '2026-06-01T07:00:00Z', { actions }), timeZone: 'Europe/London', busy: false, canSurvey: false });
-    const buttons = (html: string) => [...html.matchAll(/<span class="n-button__content">(?:<!--\[-->)?([^<]*)/g)].map((m) => m[1]);
+    const render = (actions: MyWorkItem['actions']) =>
+      renderHtml(MyWorkCard, {
+        item: item('1', '2026-06-01', '2026-06-01T07:00:00Z', { actions }),
+        timeZone: 'Europe/London',
+        busy: false,
+        canSurvey: false,
+      });
+    const buttons = (html: string) =>
+      [...html.matchAll(/<span class="n-button__content">(?:<!--\[-->)?([^<]*)/g)].map((m) => m[1]);
     expect(buttons(await render([]))).toEqual([]);
     expect(buttons(await render(['arrive']))).toEqual(['On site']);
     expect(buttons(await render(['finish', 'undo-arrive']))).toEqual(['Done', 'Not on site yet']);
@@ -65,9 +100,17 @@ describe('a card', () => {
 });
 
 describe('marking progress', () => {
-  const list: MyWorkList = { today: '2026-06-01', timeZone: 'Europe/London', items: [item('41', '2026-06-01', '2026-06-01T07:00:00Z', { actions: ['arrive'] })] };
+  const list: MyWorkList = {
+    today: '2026-06-01',
+    timeZone: 'Europe/London',
+    items: [item('41', '2026-06-01', '2026-06-01T07:00:00Z', { actions: ['arrive'] })],
+  };
   function serve(): SentRequest[] {
-    return stubFetch((r) => (r.method === 'GET' ? { status: 200, body: list } : { status: 200, body: { id: '41', state: 'on_site', version: 4 } }));
+    return stubFetch((r) =>
+      r.method === 'GET'
+        ? { status: 200, body: list }
+        : { status: 200, body: { id: '41', state: 'on_site', version: 4 } },
+    );
   }
 
   it('asks first, sends the step with the version it was shown, then offers an Undo that takes it back', async () => {
@@ -75,11 +118,18 @@ describe('marking progress', () => {
     const announced: { text: string; undo: (() => Promise<void>) | null }[] = [];
     const questions: string[] = [];
     const scope = effectScope();
-    const work = scope.run(() => useMyWork({
-      confirm: async (q) => { questions.push(q.title); return true; },
-      announce: (text, undo) => announced.push({ text, undo }),
-      problem: (e) => { throw e; },
-    }))!;
+    const work = scope.run(() =>
+      useMyWork({
+        confirm: async (q) => {
+          questions.push(q.title);
+          return true;
+        },
+        announce: (text, undo) => announced.push({ text, undo }),
+        problem: (e) => {
+          throw e;
+        },
+      }),
+    )!;
     await flush();
     expect(await work.mark(work.groups.value[0]!.items[0]!, 'arrive')).toBe(true);
     expect(questions).toEqual(['Mark that you are on site now?']);
@@ -96,7 +146,9 @@ describe('marking progress', () => {
   it('sends nothing when the question is answered no', async () => {
     const sent = serve();
     const scope = effectScope();
-    const work = scope.run(() => useMyWork({ confirm: async () => false, announce: () => undefined, problem: () => undefined }))!;
+    const work = scope.run(() =>
+      useMyWork({ confirm: async () => false, announce: () => undefined, problem: () => undefined }),
+    )!;
     await flush();
     expect(await work.mark(work.groups.value[0]!.items[0]!, 'arrive')).toBe(false);
     expect(sent.filter((r) => r.method === 'POST')).toEqual([]);

@@ -31,8 +31,16 @@ describe('the palette meets WCAG 2.2 AA', () => {
     ['warning on surface', palette.warning, palette.surface],
     ['success on surface', palette.success, palette.surface],
     ['info on surface', palette.info, palette.surface],
-    ...Object.entries({ ...statusColours }).map(([name, c]): [string, string, string] => [`state ${name}`, c.text, c.background]),
-    ...Object.entries({ ...ownershipColours }).map(([name, c]): [string, string, string] => [`ownership ${name}`, c.text, c.background]),
+    ...Object.entries({ ...statusColours }).map(([name, c]): [string, string, string] => [
+      `state ${name}`,
+      c.text,
+      c.background,
+    ]),
+    ...Object.entries({ ...ownershipColours }).map(([name, c]): [string, string, string] => [
+      `ownership ${name}`,
+      c.text,
+      c.background,
+    ]),
   ];
   it.each(textPairs)('%s reaches 4.5:1', (_name, fg, bg) => {
     expect(contrastRatio(fg, bg)).toBeGreaterThanOrEqual(TEXT);

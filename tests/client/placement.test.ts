@@ -12,23 +12,46 @@ const flush = () => new Promise((resolve) => setTimeout(resolve, 0));
 
 /** A fetch whose answers the test releases by hand, honouring AbortSignal like the browser's. */
 function manualFetch() {
-  const waiting: { url: string; method: string; body: unknown; release: (body: unknown, status?: number) => void }[] = [];
-  vi.stubGlobal('fetch', (url: string, init: RequestInit = {}) =>
-    new Promise<Response>((resolve, reject) => {
-      init.signal?.addEventListener('abort', () => reject(new DOMException('Aborted', 'AbortError')));
-      waiting.push({
-        url, method: init.method ?? 'GET', body: typeof init.body === 'string' ? JSON.parse(init.body) : undefined,
-        release: (body, status = 200) =>
-          resolve(new Response(JSON.stringify(body), { status, headers: { 'content-type': status >= 400 ? 'application/problem+json' : 'application/json' } })),
-      });
-    }),
+  const waiting: { url: string; method: string; body: unknown; release: (body: unknown, status?: number) => void }[] =
+    [];
+  vi.stubGlobal(
+    'fetch',
+    (url: string, init: RequestInit = {}) =>
+      new Promise<Response>((resolve, reject) => {
+        init.signal?.addEventListener('abort', () => reject(new DOMException('Aborted', 'AbortError')));
+        waiting.push({
+          url,
+          method: init.method ?? 'GET',
+          body: typeof init.body === 'string' ? JSON.parse(init.body) : undefined,
+          release: (body, status = 200) =>
+            resolve(
+              new Response(JSON.stringify(body), {
+                status,
+                headers: { 'content-type': status >= 400 ? 'application/problem+json' : 'application/json' },
+              }),
+            ),
+        });
+      }),
   );
   return waiting;
 }
 
 const answer = (stageId: string, start: number): SlotAnswer => ({
-  stageId, horizonDays: 120,
-  kinds: [{ kind: 'dumper', slots: [{ resourceId: '12', start, end: start + 7_200_000, cost: { extraHireDays: 0, extraHirePence: 0, floatUsedMinutes: 0, delaysJob: false } }] }],
+  stageId,
+  horizonDays: 120,
+  kinds: [
+    {
+      kind: 'dumper',
+      slots: [
+        {
+          resourceId: '12',
+          start,
+          end: start + 7_200_000,
+          cost: { extraHireDays: 0, extraHirePence: 0, floatUsedMinutes: 0, delaysJob: false },
+        },
+      ],
+    },
+  ],
 });
 
 describe('planning on the server', () => {
@@ -78,9 +101,16 @@ describe('planning on the server', () => {
 class FakeEventSource extends EventTarget {
   static last: FakeEventSource | null = null;
   closed = false;
-  constructor(readonly url: string) { super(); FakeEventSource.last = this; }
-  close() { this.closed = true; }
-  send(type: string, data: unknown) { this.dispatchEvent(new MessageEvent(type, { data: JSON.stringify(data) })); }
+  constructor(readonly url: string) {
+    super();
+    FakeEventSource.last = this;
+  }
+  close() {
+    this.closed = true;
+  }
+  send(type: string, data: unknown) {
+    this.dispatchEvent(new MessageEvent(type, { data: JSON.stringify(data) }));
+  }
 }
 
 describe("auto-place's progress", () => {

@@ -5,11 +5,32 @@ import QuantityPanel from '@/components/job-detail/QuantityPanel.vue';
 import { renderHtml } from './render';
 
 // The invented catalogue unit "Aurora 6": 2200 × 2200 × 900 mm, 380 kg dry, 2300 kg filled, 1500 L, one 32 A supply.
-const AURORA_6 = { lengthMm: 2200, widthMm: 2200, heightMm: 900, dryWeightKg: 380, filledWeightKg: 2300, waterLitres: 1500, supplies: [{ amps: 32 }] };
+const AURORA_6 = {
+  lengthMm: 2200,
+  widthMm: 2200,
+  heightMm: 900,
+  dryWeightKg: 380,
+  filledWeightKg: 2300,
+  waterLitres: 1500,
+  supplies: [{ amps: 32 }],
+};
 /** A clay garden up three steps through a 1200 mm side path; an 80 A fuse with an EV charger; TN-S; a measured 12 L/min tap. */
-const SURVEY = { accessWidthMm: 1200, accessHeightMm: null, steps: 3, groundType: 'clay', mainFuseAmps: 80, evChargerAmps: 32, earthingArrangement: 'TN-S' as const, hoseFlowLitresPerMinute: 12 };
-const inGround = () => jobQuantities({ installationType: 'in_ground', unit: AURORA_6, survey: SURVEY, settings: DEFAULT_QUANTITY_SETTINGS });
-const cardOf = (key: string) => quantityGroups(inGround()).flatMap((g) => g.cards).find((c) => c.key === key)!;
+const SURVEY = {
+  accessWidthMm: 1200,
+  accessHeightMm: null,
+  steps: 3,
+  groundType: 'clay',
+  mainFuseAmps: 80,
+  evChargerAmps: 32,
+  earthingArrangement: 'TN-S' as const,
+  hoseFlowLitresPerMinute: 12,
+};
+const inGround = () =>
+  jobQuantities({ installationType: 'in_ground', unit: AURORA_6, survey: SURVEY, settings: DEFAULT_QUANTITY_SETTINGS });
+const cardOf = (key: string) =>
+  quantityGroups(inGround())
+    .flatMap((g) => g.cards)
+    .find((c) => c.key === key)!;
 
 describe('the job page quantity cards', () => {
   it('shows every figure of an in-ground job, grouped as the groundworker orders and the crew plans', () => {
@@ -35,10 +56,16 @@ describe('the job page quantity cards', () => {
     const dig = cardOf('pit');
     expect(dig.headline).toBe('Dig 3980 × 3530 mm (14.0494 m²)');
     expect(dig.inputs).toEqual([
-      { label: 'Unit length', value: '2200 mm' }, { label: 'Unit width', value: '2200 mm' }, { label: 'Service gap each side', value: '150 mm' },
-      { label: 'Gap at the equipment end', value: '600 mm' }, { label: 'Wall thickness each side', value: '215 mm' }, { label: 'Working room each side', value: '300 mm' },
+      { label: 'Unit length', value: '2200 mm' },
+      { label: 'Unit width', value: '2200 mm' },
+      { label: 'Service gap each side', value: '150 mm' },
+      { label: 'Gap at the equipment end', value: '600 mm' },
+      { label: 'Wall thickness each side', value: '215 mm' },
+      { label: 'Working room each side', value: '300 mm' },
     ]);
-    expect(dig.formula).toContain('2200 + 150 + 600 at the equipment end = 2950 + 2 × 215 walls = 3380 + 2 × 300 working room = 3980');
+    expect(dig.formula).toContain(
+      '2200 + 150 + 600 at the equipment end = 2950 + 2 × 215 walls = 3380 + 2 × 300 working room = 3980',
+    );
     expect(dig.source).toMatch(/common practice, no source/);
   });
 
@@ -56,7 +83,10 @@ describe('the job page quantity cards', () => {
   it('uses the survey: ground in the dig time, steps in the move, loads and earthing in the supply', () => {
     expect(cardOf('excavationTime').inputs).toContainEqual({ label: 'Ground (from the survey)', value: 'clay' });
     expect(cardOf('move').headline).toBe('4 people, 45 min, boards over the steps');
-    expect(cardOf('supply').inputs).toContainEqual({ label: 'Large loads already in the house', value: 'EV charger 32 A' });
+    expect(cardOf('supply').inputs).toContainEqual({
+      label: 'Large loads already in the house',
+      value: 'EV charger 32 A',
+    });
     expect(cardOf('supply').inputs).toContainEqual({ label: 'Earthing (survey)', value: 'TN-S' });
     // 32 A new + 32 A EV charger = 64 A on 80 A = 80 % > 50 %: the electrician checks.
     expect(cardOf('supply').headline).toBe('64 A (80 % of the main fuse): electrician to check the supply');
@@ -64,9 +94,18 @@ describe('the job page quantity cards', () => {
 
   it('asks the electrician to look at an unrecorded earth even when the load is modest', () => {
     // 32 A on 80 A = 40 % ≤ 50 % (threshold: common practice, no source), but no earthing arrangement recorded.
-    const q = jobQuantities({ installationType: 'slab', unit: AURORA_6, survey: { ...SURVEY, evChargerAmps: null, earthingArrangement: null }, settings: DEFAULT_QUANTITY_SETTINGS });
-    const supply = quantityGroups(q).flatMap((g) => g.cards).find((c) => c.key === 'supply');
-    expect(supply?.headline).toBe('32 A (40 % of the main fuse): supply looks adequate; the electrician to look at the earthing');
+    const q = jobQuantities({
+      installationType: 'slab',
+      unit: AURORA_6,
+      survey: { ...SURVEY, evChargerAmps: null, earthingArrangement: null },
+      settings: DEFAULT_QUANTITY_SETTINGS,
+    });
+    const supply = quantityGroups(q)
+      .flatMap((g) => g.cards)
+      .find((c) => c.key === 'supply');
+    expect(supply?.headline).toBe(
+      '32 A (40 % of the main fuse): supply looks adequate; the electrician to look at the earthing',
+    );
   });
 
   it('times the fill from the measured flow and the heat-up from physics', () => {
@@ -82,9 +121,22 @@ describe('the job page quantity cards', () => {
   });
 
   it('writes inputs that are not plain numbers in words', () => {
-    expect(cardInputs({ routeHeightMm: null, wasteFraction: 0.05, circuitAmps: [32, 16], existingLoads: [], laying: 'on_edge', byCrane: false })).toEqual([
-      { label: 'Route height (survey)', value: 'open above' }, { label: 'Waste allowance', value: '5 %' }, { label: 'New circuits', value: '32 A + 16 A' },
-      { label: 'Large loads already in the house', value: 'none recorded' }, { label: 'Laid', value: 'on edge' }, { label: 'Lifted by crane', value: 'no' },
+    expect(
+      cardInputs({
+        routeHeightMm: null,
+        wasteFraction: 0.05,
+        circuitAmps: [32, 16],
+        existingLoads: [],
+        laying: 'on_edge',
+        byCrane: false,
+      }),
+    ).toEqual([
+      { label: 'Route height (survey)', value: 'open above' },
+      { label: 'Waste allowance', value: '5 %' },
+      { label: 'New circuits', value: '32 A + 16 A' },
+      { label: 'Large loads already in the house', value: 'none recorded' },
+      { label: 'Laid', value: 'on edge' },
+      { label: 'Lifted by crane', value: 'no' },
     ]);
     expect([duration(45), duration(105), duration(990)]).toEqual(['45 min', '1 h 45 min', '16 h 30 min']);
   });

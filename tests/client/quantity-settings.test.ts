@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { SETTING_FIELDS, changedCount, formValues, settingsPatch, wallThicknessText } from '@/components/quantity-settings-fields';
+import {
+  SETTING_FIELDS,
+  changedCount,
+  formValues,
+  settingsPatch,
+  wallThicknessText,
+} from '@/components/quantity-settings-fields';
 import { DEFAULT_QUANTITY_SETTINGS, EXCAVATOR_SIZES, GROUND_TYPES, settingsWith } from '@shared/quantities/index';
 import { QuantitySettingsPatch } from '@shared/schemas/firm-settings';
 
@@ -16,13 +22,30 @@ describe("the firm's quantity settings form", () => {
 
   it('saves only what differs from the defaults, and a schema-valid patch', () => {
     const values = {
-      ...formValues(D), concreteOrderStepM3: 0.5, hoseFlowLitresPerMinute: 12, heaterKw: 2, skipPayloadT: 4.5, serviceSideGapMm: 700,
-      workingRoomMm: 400, spoilDensityTPerM3: 1.6, blockLaying: 'on_edge', 'groundRateFactors.clay': 0.6, 'excavatorRatesM3PerHour.3t': 1.8,
+      ...formValues(D),
+      concreteOrderStepM3: 0.5,
+      hoseFlowLitresPerMinute: 12,
+      heaterKw: 2,
+      skipPayloadT: 4.5,
+      serviceSideGapMm: 700,
+      workingRoomMm: 400,
+      spoilDensityTPerM3: 1.6,
+      blockLaying: 'on_edge',
+      'groundRateFactors.clay': 0.6,
+      'excavatorRatesM3PerHour.3t': 1.8,
     };
     const patch = settingsPatch(values, {}, D);
     expect(patch).toEqual({
-      serviceSideGapMm: 700, workingRoomMm: 400, concreteOrderStepM3: 0.5, blockLaying: 'on_edge', skipPayloadT: 4.5, spoilDensityTPerM3: 1.6,
-      hoseFlowLitresPerMinute: 12, heaterKw: 2, excavatorRatesM3PerHour: { '3t': 1.8 }, groundRateFactors: { clay: 0.6 },
+      serviceSideGapMm: 700,
+      workingRoomMm: 400,
+      concreteOrderStepM3: 0.5,
+      blockLaying: 'on_edge',
+      skipPayloadT: 4.5,
+      spoilDensityTPerM3: 1.6,
+      hoseFlowLitresPerMinute: 12,
+      heaterKw: 2,
+      excavatorRatesM3PerHour: { '3t': 1.8 },
+      groundRateFactors: { clay: 0.6 },
     });
     expect(QuantitySettingsPatch.safeParse(patch).success).toBe(true);
     expect(changedCount(values, D)).toBe(10);
@@ -37,6 +60,8 @@ describe("the firm's quantity settings form", () => {
   it('says how thick the walls come out for the blocks and the laying', () => {
     // 440 × 215 × 100 mm blocks: flat = 215 mm, on edge = 100 mm (common practice, no source).
     expect(wallThicknessText(formValues(D))).toBe('Walls 215 mm thick (blocks laid flat), on both sides of the pit.');
-    expect(wallThicknessText({ ...formValues(D), blockLaying: 'on_edge' })).toBe('Walls 100 mm thick (blocks laid on edge), on both sides of the pit.');
+    expect(wallThicknessText({ ...formValues(D), blockLaying: 'on_edge' })).toBe(
+      'Walls 100 mm thick (blocks laid on edge), on both sides of the pit.',
+    );
   });
 });

@@ -11,13 +11,25 @@ const Blank = { render: () => null };
  * A component rendered to HTML the way the server renderer does it (no browser): inside the app's
  * providers, a router at `path` and a fresh Pinia. Lifecycle hooks such as onMounted do not run.
  */
-export async function renderHtml(component: Component, props: Record<string, unknown> = {}, options: { path?: string; before?: () => void } = {}): Promise<string> {
+export async function renderHtml(
+  component: Component,
+  props: Record<string, unknown> = {},
+  options: { path?: string; before?: () => void } = {},
+): Promise<string> {
   const app = createSSRApp({
-    render: () => h(NConfigProvider, null, () => h(NMessageProvider, null, () => h(NNotificationProvider, null, () => h(NDialogProvider, null, () => h(component, props))))),
+    render: () =>
+      h(NConfigProvider, null, () =>
+        h(NMessageProvider, null, () =>
+          h(NNotificationProvider, null, () => h(NDialogProvider, null, () => h(component, props))),
+        ),
+      ),
   });
   const router = createRouter({
     history: createMemoryHistory(),
-    routes: [{ path: '/jobs/:id(\\d+)/:page?', component: Blank }, { path: '/:rest(.*)*', component: Blank }],
+    routes: [
+      { path: '/jobs/:id(\\d+)/:page?', component: Blank },
+      { path: '/:rest(.*)*', component: Blank },
+    ],
   });
   const pinia = createPinia();
   app.use(router).use(pinia);
@@ -31,12 +43,16 @@ export async function renderHtml(component: Component, props: Record<string, unk
   return (await renderToString(app)).replace(/ data-v-[0-9a-f]+(="")?/g, '');
 }
 
-export interface Control { tag: string; attrs: Record<string, string> }
+export interface Control {
+  tag: string;
+  attrs: Record<string, string>;
+}
 
 /** Every form control in the HTML (input, textarea, select) with its attributes. */
 export function controlsOf(html: string): Control[] {
   return [...html.matchAll(/<(input|textarea|select)\b([^>]*)>/g)].map((m) => ({
-    tag: m[1]!, attrs: Object.fromEntries([...m[2]!.matchAll(/([\w:-]+)(?:="([^"]*)")?/g)].map((a) => [a[1]!, a[2] ?? ''])),
+    tag: m[1]!,
+    attrs: Object.fromEntries([...m[2]!.matchAll(/([\w:-]+)(?:="([^"]*)")?/g)].map((a) => [a[1]!, a[2] ?? ''])),
   }));
 }
 
@@ -48,5 +64,11 @@ export function labelledIds(html: string): Set<string> {
 /** Controls a screen reader would announce with no name: no label for their id, no aria-label(ledby). */
 export function unlabelled(html: string): Control[] {
   const ids = labelledIds(html);
-  return controlsOf(html).filter((c) => c.attrs.type !== 'hidden' && !c.attrs['aria-label'] && !c.attrs['aria-labelledby'] && !(c.attrs.id && ids.has(c.attrs.id)));
+  return controlsOf(html).filter(
+    (c) =>
+      c.attrs.type !== 'hidden' &&
+      !c.attrs['aria-label'] &&
+      !c.attrs['aria-labelledby'] &&
+      !(c.attrs.id && ids.has(c.attrs.id)),
+  );
 }

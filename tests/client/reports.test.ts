@@ -2,7 +2,14 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import { effectScope, ref } from 'vue';
 import { fixRequest } from '@shared/reports/fixes';
 import { worstProblems } from '@shared/reports/worst';
-import type { ClashReport, ClashRow, HireReport, RiskRow, SuggestedFix, UtilisationReport } from '@shared/reports/types';
+import type {
+  ClashReport,
+  ClashRow,
+  HireReport,
+  RiskRow,
+  SuggestedFix,
+  UtilisationReport,
+} from '@shared/reports/types';
 import { useReports } from '@/composables/useReports';
 import RiskTable from '@/components/reports/RiskTable.vue';
 import ClashTable from '@/components/reports/ClashTable.vue';
@@ -10,23 +17,67 @@ import { fixDoneText } from '@/components/reports/fix-result';
 import { stubFetch } from './fake-fetch';
 import { renderHtml } from './render';
 
-afterEach(() => { vi.unstubAllGlobals(); });
+afterEach(() => {
+  vi.unstubAllGlobals();
+});
 const flush = () => new Promise((resolve) => setTimeout(resolve, 0));
 
 const fix: SuggestedFix = {
-  stageId: '41', bookingId: '31', versions: { 30: 2, 31: 5 },
+  stageId: '41',
+  bookingId: '31',
+  versions: { 30: 2, 31: 5 },
   moves: [
-    { bookingId: '30', fromResourceId: '9', fromResourceName: 'Fix crane', fromStart: Date.UTC(2026, 5, 3, 7), fromEnd: Date.UTC(2026, 5, 3, 11), resourceId: '9', resourceName: 'Fix crane', start: Date.UTC(2026, 5, 8, 7), end: Date.UTC(2026, 5, 8, 11), asksPartnerAgain: true },
-    { bookingId: '31', fromResourceId: '12', fromResourceName: 'Fix crew A', fromStart: Date.UTC(2026, 5, 3, 8), fromEnd: Date.UTC(2026, 5, 3, 11), resourceId: '13', resourceName: 'Fix crew B', start: Date.UTC(2026, 5, 8, 8), end: Date.UTC(2026, 5, 8, 11), asksPartnerAgain: false },
+    {
+      bookingId: '30',
+      fromResourceId: '9',
+      fromResourceName: 'Fix crane',
+      fromStart: Date.UTC(2026, 5, 3, 7),
+      fromEnd: Date.UTC(2026, 5, 3, 11),
+      resourceId: '9',
+      resourceName: 'Fix crane',
+      start: Date.UTC(2026, 5, 8, 7),
+      end: Date.UTC(2026, 5, 8, 11),
+      asksPartnerAgain: true,
+    },
+    {
+      bookingId: '31',
+      fromResourceId: '12',
+      fromResourceName: 'Fix crew A',
+      fromStart: Date.UTC(2026, 5, 3, 8),
+      fromEnd: Date.UTC(2026, 5, 3, 11),
+      resourceId: '13',
+      resourceName: 'Fix crew B',
+      start: Date.UTC(2026, 5, 8, 8),
+      end: Date.UTC(2026, 5, 8, 11),
+      asksPartnerAgain: false,
+    },
   ],
-  resourceId: '13', resourceName: 'Fix crew B', start: Date.UTC(2026, 5, 8, 8), end: Date.UTC(2026, 5, 8, 11), date: '2026-06-08',
-  extraHireDays: 0, extraHirePence: 0, floatUsedMinutes: 0, delaysJob: false,
-  label: 'Move to Fix crew B on Mon 8 Jun 09:00 — no extra cost', link: '/board?view=day&date=2026-06-08&q=Fix+crew+B&highlight=31',
+  resourceId: '13',
+  resourceName: 'Fix crew B',
+  start: Date.UTC(2026, 5, 8, 8),
+  end: Date.UTC(2026, 5, 8, 11),
+  date: '2026-06-08',
+  extraHireDays: 0,
+  extraHirePence: 0,
+  floatUsedMinutes: 0,
+  delaysJob: false,
+  label: 'Move to Fix crew B on Mon 8 Jun 09:00 — no extra cost',
+  link: '/board?view=day&date=2026-06-08&q=Fix+crew+B&highlight=31',
 };
 const risk = (over: Partial<RiskRow>): RiskRow => ({
-  jobId: '5', reference: 'TW-9102', customerName: 'Test Householder', siteTown: 'Testbury', promisedBy: null, promisedDate: null, lateByMs: 0, floatMinutes: 0,
-  reasons: [{ reason: 'short_resourced', label: "'Heavy lift' needs 2 fix crews; 1 is booked" }], status: 'blocked', statusLabel: "Can't go ahead as booked",
-  link: '/board?view=day&date=2026-06-18&job=5', ...over,
+  jobId: '5',
+  reference: 'TW-9102',
+  customerName: 'Test Householder',
+  siteTown: 'Testbury',
+  promisedBy: null,
+  promisedDate: null,
+  lateByMs: 0,
+  floatMinutes: 0,
+  reasons: [{ reason: 'short_resourced', label: "'Heavy lift' needs 2 fix crews; 1 is booked" }],
+  status: 'blocked',
+  statusLabel: "Can't go ahead as booked",
+  link: '/board?view=day&date=2026-06-18&job=5',
+  ...over,
 });
 
 describe('applying a suggested fix', () => {
@@ -34,23 +85,38 @@ describe('applying a suggested fix', () => {
     expect(fixRequest(fix)).toEqual({
       path: '/api/stages/41/move',
       // The crane starts the stage (07:00 UTC): every booking shifts by the same time.
-      body: { startsAt: '2026-06-08T07:00:00.000Z', bookingId: '31', resourceId: '13', versions: { 30: 2, 31: 5 }, moveDependents: false },
+      body: {
+        startsAt: '2026-06-08T07:00:00.000Z',
+        bookingId: '31',
+        resourceId: '13',
+        versions: { 30: 2, 31: 5 },
+        moveDependents: false,
+      },
     });
   });
 
   it('posts it, then reads the reports again', async () => {
-    const sent = stubFetch((r) => (r.method === 'POST'
-      ? { status: 200, body: { bookings: [{ id: '30' }, { id: '31' }], warnings: [] } }
-      : { status: 200, body: { rows: [], periods: [], resources: [], risks: [], perWeek: [], idlePerWeek: [], weeks: [] } }));
+    const sent = stubFetch((r) =>
+      r.method === 'POST'
+        ? { status: 200, body: { bookings: [{ id: '30' }, { id: '31' }], warnings: [] } }
+        : {
+            status: 200,
+            body: { rows: [], periods: [], resources: [], risks: [], perWeek: [], idlePerWeek: [], weeks: [] },
+          },
+    );
     const scope = effectScope();
     const reports = scope.run(() => useReports(ref({ from: '2026-05-31T23:00:00Z', to: '2026-06-28T23:00:00Z' })))!;
     await flush();
     const readsBefore = sent.filter((r) => r.method === 'GET').length;
     const result = await reports.applyFix(fix);
-    expect(sent.filter((r) => r.method === 'POST').map((r) => [r.url, r.body])).toEqual([['/api/stages/41/move', fixRequest(fix).body]]);
+    expect(sent.filter((r) => r.method === 'POST').map((r) => [r.url, r.body])).toEqual([
+      ['/api/stages/41/move', fixRequest(fix).body],
+    ]);
     expect(sent.filter((r) => r.method === 'GET').length).toBe(readsBefore + 3);
     expect(fixDoneText(result)).toBe('Fix applied: 2 bookings moved');
-    expect(reports.csv('utilisation-summary')).toBe('/api/reports/utilisation-summary.csv?from=2026-05-31T23%3A00%3A00Z&to=2026-06-28T23%3A00%3A00Z');
+    expect(reports.csv('utilisation-summary')).toBe(
+      '/api/reports/utilisation-summary.csv?from=2026-05-31T23%3A00%3A00Z&to=2026-06-28T23%3A00%3A00Z',
+    );
     scope.stop();
   });
 });
@@ -64,9 +130,22 @@ describe('the report tables', () => {
 
   it('link a clash to both sides on the board and offer each fix for preview', async () => {
     const row: ClashRow = {
-      id: 'clash:1', kind: 'clash', kindLabel: 'Resource double-booked', bookingIds: ['30', '31'], date: '2026-06-03', from: 0, to: 1,
-      message: 'Fix crew A is booked for both', jobIds: ['5'], jobReferences: ['TW-9101'], stageId: '41', stageName: 'Lift', resourceNames: ['Fix crew A'],
-      costPence: 0, link: '/board?view=day&date=2026-06-03&q=Fix+crew+A&highlight=30%2C31', fixes: [fix],
+      id: 'clash:1',
+      kind: 'clash',
+      kindLabel: 'Resource double-booked',
+      bookingIds: ['30', '31'],
+      date: '2026-06-03',
+      from: 0,
+      to: 1,
+      message: 'Fix crew A is booked for both',
+      jobIds: ['5'],
+      jobReferences: ['TW-9101'],
+      stageId: '41',
+      stageName: 'Lift',
+      resourceNames: ['Fix crew A'],
+      costPence: 0,
+      link: '/board?view=day&date=2026-06-03&q=Fix+crew+A&highlight=30%2C31',
+      fixes: [fix],
     };
     const html = await renderHtml(ClashTable, { rows: [row] });
     expect(html).toContain('href="/board?view=day&amp;date=2026-06-03&amp;q=Fix+crew+A&amp;highlight=30%2C31"');
@@ -77,6 +156,8 @@ describe('the report tables', () => {
     const clashes = { rows: [], perWeek: [] } as unknown as ClashReport;
     const hire = { periods: [] } as unknown as HireReport;
     const utilisation = { risks: [risk({})] } as unknown as UtilisationReport;
-    expect(worstProblems(clashes, hire, utilisation).map((p) => [p.source, p.title])).toEqual([['blocked_job', "Can't go ahead as booked: TW-9102, Testbury"]]);
+    expect(worstProblems(clashes, hire, utilisation).map((p) => [p.source, p.title])).toEqual([
+      ['blocked_job', "Can't go ahead as booked: TW-9102, Testbury"],
+    ]);
   });
 });

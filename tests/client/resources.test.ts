@@ -3,8 +3,20 @@ import type { ResourceRow } from '@/api/types';
 import { groupResources } from '@/utils/resources';
 
 // Invented firms: an installer with its own crew and dumper, a plant hire firm and a crane firm.
-const row = (id: number, name: string, kind: string, firmId: number, firmName: string, ownership: ResourceRow['ownership']): ResourceRow => ({
-  id, name, kind, firmId, firmName, ownership,
+const row = (
+  id: number,
+  name: string,
+  kind: string,
+  firmId: number,
+  firmName: string,
+  ownership: ResourceRow['ownership'],
+): ResourceRow => ({
+  id,
+  name,
+  kind,
+  firmId,
+  firmName,
+  ownership,
   category: kind === 'crew' ? 'crew' : 'machine',
   firmKind: firmId === 1 ? 'installer' : 'plant_hire',
 });

@@ -31,7 +31,8 @@ beforeEach(() => {
   setUnauthorizedHandler(() => {});
   signedIn = true;
   sent = stubFetch((request) => {
-    if (request.url === '/api/session') return signedIn ? { status: 200, body: installer } : { status: 401, body: { title: 'Please sign in' } };
+    if (request.url === '/api/session')
+      return signedIn ? { status: 200, body: installer } : { status: 401, body: { title: 'Please sign in' } };
     if (request.url === '/api/session/firm') return { status: 200, body: groundworks };
     if (request.url === '/auth/sign-out') return { status: 204 };
     return { status: 404, body: { title: 'Not found' } };

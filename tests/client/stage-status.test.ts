@@ -6,18 +6,35 @@ import type { JobStage } from '@/api/job-work';
 import { useSessionStore } from '@/stores/session';
 import { renderHtml } from './render';
 
-const crane = (id: string, state: string, startsAt = '2026-06-09T07:00:00Z') => ({ id, resourceName: '60 t mobile crane', startsAt, state });
+const crane = (id: string, state: string, startsAt = '2026-06-09T07:00:00Z') => ({
+  id,
+  resourceName: '60 t mobile crane',
+  startsAt,
+  state,
+});
 
 describe("the job page's word on a stage's bookings", () => {
   it('counts only bookings that stand as booked', () => {
     expect(stageBookingStatus('14', [crane('31', 'declined')], 'Europe/London').booked).toBe(0);
-    expect(stageBookingStatus('14', [crane('31', 'declined'), { ...crane('32', 'pencilled'), resourceName: 'Crew Heron' }], 'Europe/London').booked).toBe(1);
+    expect(
+      stageBookingStatus(
+        '14',
+        [crane('31', 'declined'), { ...crane('32', 'pencilled'), resourceName: 'Crew Heron' }],
+        'Europe/London',
+      ).booked,
+    ).toBe(1);
     expect(stageBookingStatus('14', [], 'Europe/London')).toEqual({ booked: 0, declined: null, rebookLink: null });
   });
 
   it('says who declined, to book again on the board at that day with the declined booking outlined', () => {
     // 23:30 UTC on 8 June is already 9 June in London (BST).
-    expect(stageBookingStatus('14', [crane('31', 'declined', '2026-06-08T23:30:00Z'), crane('33', 'declined', '2026-06-10T07:00:00Z')], 'Europe/London')).toEqual({
+    expect(
+      stageBookingStatus(
+        '14',
+        [crane('31', 'declined', '2026-06-08T23:30:00Z'), crane('33', 'declined', '2026-06-10T07:00:00Z')],
+        'Europe/London',
+      ),
+    ).toEqual({
       booked: 0,
       declined: 'Declined by 60 t mobile crane — book again',
       rebookLink: '/board?view=day&date=2026-06-09&job=14&highlight=31%2C33',
@@ -26,10 +43,33 @@ describe("the job page's word on a stage's bookings", () => {
 });
 
 function stage(id: string, name: string, bookings: JobStage['bookings']): JobStage {
-  return { id, kind: 'lift', name, sequence: Number(id), durationMinutes: 120, requirements: [{ kind: 'crane', count: 1 }], cure: null, notes: null, cautions: [], after: [], bookings };
+  return {
+    id,
+    kind: 'lift',
+    name,
+    sequence: Number(id),
+    durationMinutes: 120,
+    requirements: [{ kind: 'crane', count: 1 }],
+    cure: null,
+    notes: null,
+    cautions: [],
+    after: [],
+    bookings,
+  };
 }
-const booking = (id: string, state: string, resourceName = '60 t mobile crane') => ({ id, resourceId: 'r1', resourceName, resourceKind: 'crane', startsAt: '2026-06-09T07:00:00Z', endsAt: '2026-06-09T09:00:00Z', state });
-const tags = (html: string) => [...html.matchAll(/<span class="n-tag__content">([\s\S]*?)<\/span>/g)].map((m) => m[1]!.replace(/<[^>]+>/g, '').trim());
+const booking = (id: string, state: string, resourceName = '60 t mobile crane') => ({
+  id,
+  resourceId: 'r1',
+  resourceName,
+  resourceKind: 'crane',
+  startsAt: '2026-06-09T07:00:00Z',
+  endsAt: '2026-06-09T09:00:00Z',
+  state,
+});
+const tags = (html: string) =>
+  [...html.matchAll(/<span class="n-tag__content">([\s\S]*?)<\/span>/g)].map((m) =>
+    m[1]!.replace(/<[^>]+>/g, '').trim(),
+  );
 
 describe('the stage list on the job page', () => {
   const stages = [
@@ -39,13 +79,36 @@ describe('the stage list on the job page', () => {
   ];
 
   it("labels a declined stage to book again, linked to the board for those who book, and doesn't call it booked", async () => {
-    const html = await renderHtml(StageList, { stages, timeZone: 'Europe/London' }, { path: '/jobs/14', before: () => { useSessionStore().role = 'scheduler'; } });
-    expect(tags(html)).toEqual(['Declined by 60 t mobile crane — book again', 'Declined by Priya Nair — book again', 'Booked', 'Not booked']);
+    const html = await renderHtml(
+      StageList,
+      { stages, timeZone: 'Europe/London' },
+      {
+        path: '/jobs/14',
+        before: () => {
+          useSessionStore().role = 'scheduler';
+        },
+      },
+    );
+    expect(tags(html)).toEqual([
+      'Declined by 60 t mobile crane — book again',
+      'Declined by Priya Nair — book again',
+      'Booked',
+      'Not booked',
+    ]);
     expect(html).toContain('href="/board?view=day&amp;date=2026-06-09&amp;job=14&amp;highlight=31"');
   });
 
   it('gives crew the words without the link', async () => {
-    const html = await renderHtml(StageList, { stages, timeZone: 'Europe/London' }, { path: '/jobs/14', before: () => { useSessionStore().role = 'crew'; } });
+    const html = await renderHtml(
+      StageList,
+      { stages, timeZone: 'Europe/London' },
+      {
+        path: '/jobs/14',
+        before: () => {
+          useSessionStore().role = 'crew';
+        },
+      },
+    );
     expect(tags(html)[0]).toBe('Declined by 60 t mobile crane — book again');
     expect(html).not.toContain('href="/board');
   });
@@ -56,25 +119,42 @@ describe('the confirmations before refusing a proposal or cancelling a request',
   const start = Date.UTC(2026, 5, 9, 7);
 
   it('say the partner is e-mailed and that it cannot be undone', () => {
-    const refuse = refuseWords({ start, proposal: { start: Date.UTC(2026, 5, 10, 12), end: Date.UTC(2026, 5, 10, 15) } }, resource, 'Europe/London');
+    const refuse = refuseWords(
+      { start, proposal: { start: Date.UTC(2026, 5, 10, 12), end: Date.UTC(2026, 5, 10, 15) } },
+      resource,
+      'Europe/London',
+    );
     expect(refuse).toEqual({
       title: 'Refuse the proposed time?',
-      content: "Fellside Crane Hire proposed Wed 10 Jun 13:00. Refusing keeps 60 t mobile crane on Tue 9 Jun 08:00 and asks them by e-mail to confirm that time again. This can't be undone.",
-      yes: 'Refuse and ask again', no: 'Keep the proposal open',
+      content:
+        "Fellside Crane Hire proposed Wed 10 Jun 13:00. Refusing keeps 60 t mobile crane on Tue 9 Jun 08:00 and asks them by e-mail to confirm that time again. This can't be undone.",
+      yes: 'Refuse and ask again',
+      no: 'Keep the proposal open',
     });
     const cancel = cancelWords({ start, state: 'confirmed' }, resource, 'Europe/London');
     expect(cancel.title).toBe('Cancel the request to Fellside Crane Hire?');
-    expect(cancel.content).toBe("Fellside Crane Hire has confirmed 60 t mobile crane on Tue 9 Jun 08:00. Cancelling tells them by e-mail, with a calendar cancellation; the booking stays on the board as pencilled. This can't be undone: to ask them again, send the request again (they will have to confirm again).");
-    expect(cancelWords({ start, state: 'sent' }, resource, 'Europe/London').content).toMatch(/^Fellside Crane Hire has been asked for 60 t mobile crane on Tue 9 Jun 08:00\. .* send the request again\.$/);
+    expect(cancel.content).toBe(
+      "Fellside Crane Hire has confirmed 60 t mobile crane on Tue 9 Jun 08:00. Cancelling tells them by e-mail, with a calendar cancellation; the booking stays on the board as pencilled. This can't be undone: to ask them again, send the request again (they will have to confirm again).",
+    );
+    expect(cancelWords({ start, state: 'sent' }, resource, 'Europe/London').content).toMatch(
+      /^Fellside Crane Hire has been asked for 60 t mobile crane on Tue 9 Jun 08:00\. .* send the request again\.$/,
+    );
   });
 });
 
 describe('the notice a stage needs, in words', () => {
   it('says how many working days, whose notice and why, and where it counts from', () => {
-    expect(noticeText({ workingDays: 10, countedFrom: 'now', resourceKind: 'crane', reason: 'time for a site visit and a lift plan' }))
-      .toBe("10 working days' notice for the crane (time for a site visit and a lift plan), counted from booking");
-    expect(noticeText({ workingDays: 35, countedFrom: 'order', reason: "the maker's lead time" }))
-      .toBe("35 working days' notice (the maker's lead time), counted from the order date");
+    expect(
+      noticeText({
+        workingDays: 10,
+        countedFrom: 'now',
+        resourceKind: 'crane',
+        reason: 'time for a site visit and a lift plan',
+      }),
+    ).toBe("10 working days' notice for the crane (time for a site visit and a lift plan), counted from booking");
+    expect(noticeText({ workingDays: 35, countedFrom: 'order', reason: "the maker's lead time" })).toBe(
+      "35 working days' notice (the maker's lead time), counted from the order date",
+    );
     expect(noticeText({ workingDays: 1, countedFrom: 'now' })).toBe("1 working day's notice, counted from booking");
   });
 });

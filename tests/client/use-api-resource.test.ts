@@ -12,15 +12,22 @@ const flush = () => new Promise((resolve) => setTimeout(resolve, 0));
 /** A fetch whose answers the test releases by hand, honouring AbortSignal like the browser's. */
 function manualFetch() {
   const waiting: { url: string; release: (body: unknown, status?: number) => void }[] = [];
-  vi.stubGlobal('fetch', (url: string, init: RequestInit = {}) =>
-    new Promise<Response>((resolve, reject) => {
-      init.signal?.addEventListener('abort', () => reject(new DOMException('Aborted', 'AbortError')));
-      waiting.push({
-        url,
-        release: (body, status = 200) =>
-          resolve(new Response(JSON.stringify(body), { status, headers: { 'content-type': status >= 400 ? 'application/problem+json' : 'application/json' } })),
-      });
-    }),
+  vi.stubGlobal(
+    'fetch',
+    (url: string, init: RequestInit = {}) =>
+      new Promise<Response>((resolve, reject) => {
+        init.signal?.addEventListener('abort', () => reject(new DOMException('Aborted', 'AbortError')));
+        waiting.push({
+          url,
+          release: (body, status = 200) =>
+            resolve(
+              new Response(JSON.stringify(body), {
+                status,
+                headers: { 'content-type': status >= 400 ? 'application/problem+json' : 'application/json' },
+              }),
+            ),
+        });
+      }),
   );
   return waiting;
 }
@@ -30,7 +37,9 @@ describe('useApiResource', () => {
     const waiting = manualFetch();
     const page = ref(1);
     const scope = effectScope();
-    const resource = scope.run(() => useApiResource<{ page: number }>(() => ({ path: '/api/jobs', query: { page: page.value } })))!;
+    const resource = scope.run(() =>
+      useApiResource<{ page: number }>(() => ({ path: '/api/jobs', query: { page: page.value } })),
+    )!;
     expect(resource.loading.value).toBe(true);
     waiting[0]?.release({ page: 1 });
     await flush();
@@ -47,7 +56,9 @@ describe('useApiResource', () => {
     const waiting = manualFetch();
     const search = ref('pit');
     const scope = effectScope();
-    const resource = scope.run(() => useApiResource<{ search: string }>(() => ({ path: '/api/jobs', query: { search: search.value } })))!;
+    const resource = scope.run(() =>
+      useApiResource<{ search: string }>(() => ({ path: '/api/jobs', query: { search: search.value } })),
+    )!;
     search.value = 'pit base';
     await nextTick();
     waiting[1]?.release({ search: 'pit base' });

@@ -32,12 +32,25 @@ async function openBoard(p: Page, query: string): Promise<void> {
   await p.waitForSelector('.fc-event.wl-booking [class="wl-chip"], .fc-event.wl-booking .wl-chip');
   await p.evaluate(() => document.fonts.ready);
   // Labels and tooltips are written on the frame after the events mount.
-  await p.waitForFunction(() => [...document.querySelectorAll('.fc-event.wl-booking')].every((el) => el.getAttribute('title')));
+  await p.waitForFunction(() =>
+    [...document.querySelectorAll('.fc-event.wl-booking')].every((el) => el.getAttribute('title')),
+  );
 }
 
 /** What the reader sees of every booking: its visible text and its tooltip. */
-const bookings = (p: Page) => p.$$eval('.fc-event.wl-booking', (els) => els.map((el) => ({ text: (el as HTMLElement).innerText.replace(/\s+/g, ' ').trim(), title: el.getAttribute('title') ?? '' })));
-const headerRows = (p: Page) => p.$$eval('.fc-timeline-header-row', (rows) => rows.map((r) => [...r.querySelectorAll('.fc-timeline-slot-cushion')].map((c) => (c as HTMLElement).innerText.trim())));
+const bookings = (p: Page) =>
+  p.$$eval('.fc-event.wl-booking', (els) =>
+    els.map((el) => ({
+      text: (el as HTMLElement).innerText.replace(/\s+/g, ' ').trim(),
+      title: el.getAttribute('title') ?? '',
+    })),
+  );
+const headerRows = (p: Page) =>
+  p.$$eval('.fc-timeline-header-row', (rows) =>
+    rows.map((r) =>
+      [...r.querySelectorAll('.fc-timeline-slot-cushion')].map((c) => (c as HTMLElement).innerText.trim()),
+    ),
+  );
 
 describe('the board at 1280 × 800', () => {
   it('shows a week of mornings and afternoons without sideways scrolling, every name whole and every booking readable', async () => {
@@ -52,18 +65,38 @@ describe('the board at 1280 × 800', () => {
     // Nothing scrolls sideways: not the page, not the timeline's own scrollers.
     const overflow = await page.evaluate(() => ({
       page: document.documentElement.scrollWidth - document.documentElement.clientWidth,
-      timeline: Math.max(...[...document.querySelectorAll('.board-timeline .fc-scroller')].map((s) => s.scrollWidth - s.clientWidth)),
+      timeline: Math.max(
+        ...[...document.querySelectorAll('.board-timeline .fc-scroller')].map((s) => s.scrollWidth - s.clientWidth),
+      ),
     }));
     expect(overflow).toEqual({ page: 0, timeline: 0 });
 
     // Resource names wrap rather than being cut.
-    const cut = await page.$$eval('.wl-resource__name', (els) => els.filter((el) => el.scrollWidth > el.clientWidth + 1 || (el.closest('.fc-datagrid-cell-cushion')!.scrollWidth > el.closest('.fc-datagrid-cell-cushion')!.clientWidth + 1)).map((el) => el.textContent));
+    const cut = await page.$$eval('.wl-resource__name', (els) =>
+      els
+        .filter(
+          (el) =>
+            el.scrollWidth > el.clientWidth + 1 ||
+            el.closest('.fc-datagrid-cell-cushion')!.scrollWidth >
+              el.closest('.fc-datagrid-cell-cushion')!.clientWidth + 1,
+        )
+        .map((el) => el.textContent),
+    );
     expect(cut).toEqual([]);
     expect(await page.locator('.wl-resource__name', { hasText: '18 t lorry with loader crane' }).count()).toBe(1);
 
     // The stage's short name and the town are shown whole (wrapped, never cut with an ellipsis).
-    const cutLines = await page.$$eval('.fc-event.wl-booking .wl-chip__stage, .fc-event.wl-booking .wl-chip__town',
-      (els) => els.filter((el) => (el as HTMLElement).offsetParent !== null && (el.scrollWidth > el.clientWidth + 1 || el.scrollHeight > el.clientHeight + 1)).map((el) => el.textContent));
+    const cutLines = await page.$$eval(
+      '.fc-event.wl-booking .wl-chip__stage, .fc-event.wl-booking .wl-chip__town',
+      (els) =>
+        els
+          .filter(
+            (el) =>
+              (el as HTMLElement).offsetParent !== null &&
+              (el.scrollWidth > el.clientWidth + 1 || el.scrollHeight > el.clientHeight + 1),
+          )
+          .map((el) => el.textContent),
+    );
     expect(cutLines).toEqual([]);
     expect(await page.locator('.fc-event.wl-booking .wl-chip__town:visible').count()).toBeGreaterThan(10);
 
@@ -72,7 +105,10 @@ describe('the board at 1280 × 800', () => {
     expect(seen.length).toBeGreaterThan(10);
     for (const b of seen) {
       expect(b.text, b.title).toMatch(/[A-Z]{2}-\d{3,4}|Busy elsewhere/);
-      if (!b.text.startsWith('Busy')) expect(b.title).toMatch(/^[A-Z]{2}-\d{3,4} · .+ · .+\n. .+: .+\n(Mon|Tue|Wed|Thu|Fri|Sat|Sun) \d+ [A-Z][a-z]{2} \d\d:\d\d/);
+      if (!b.text.startsWith('Busy'))
+        expect(b.title).toMatch(
+          /^[A-Z]{2}-\d{3,4} · .+ · .+\n. .+: .+\n(Mon|Tue|Wed|Thu|Fri|Sat|Sun) \d+ [A-Z][a-z]{2} \d\d:\d\d/,
+        );
     }
   }, 60_000);
 
@@ -124,14 +160,31 @@ describe('the board at 1280 × 800', () => {
     await picker.fill('Fri 3 Jul 2026');
     await picker.press('Enter');
     await page.waitForURL(/date=2026-07-03/);
-    await expect.poll(async () => (await headerRows(page))[0]).toEqual(['Week 27 · 29 Jun – 5 Jul', 'Week 28 · 6–12 Jul']);
+    await expect
+      .poll(async () => (await headerRows(page))[0])
+      .toEqual(['Week 27 · 29 Jun – 5 Jul', 'Week 28 · 6–12 Jul']);
     expect(await page.locator('.board-toolbar__title').innerText()).toBe('Mon 29 Jun – Sun 12 Jul 2026');
   }, 60_000);
 
   it('names every state and marker in the key', async () => {
     await openBoard(page, 'view=week&date=2026-06-03');
     const key = await page.locator('.board-key').innerText();
-    for (const word of ['Pencilled', 'Asked', 'Confirmed', 'Declined', 'On site', 'Done', 'Problem', 'Answer overdue', 'Other time proposed', 'Busy elsewhere', 'Not working', 'Public holiday', 'Outside working hours', 'Now']) {
+    for (const word of [
+      'Pencilled',
+      'Asked',
+      'Confirmed',
+      'Declined',
+      'On site',
+      'Done',
+      'Problem',
+      'Answer overdue',
+      'Other time proposed',
+      'Busy elsewhere',
+      'Not working',
+      'Public holiday',
+      'Outside working hours',
+      'Now',
+    ]) {
       expect(key).toContain(word);
     }
   }, 60_000);
@@ -154,7 +207,10 @@ describe('the board at 1280 × 800', () => {
     const movable = page.locator('.fc-event.wl-booking.fc-event-draggable').first();
     await movable.focus();
     await page.keyboard.press('m');
-    await page.getByRole('dialog').getByText(/^Move .+ to…$/).waitFor({ timeout: 5_000 });
+    await page
+      .getByRole('dialog')
+      .getByText(/^Move .+ to…$/)
+      .waitFor({ timeout: 5_000 });
     await page.keyboard.press('Escape');
   }, 60_000);
 });
@@ -181,7 +237,8 @@ async function missingGlyphs(p: Page, selector: string): Promise<string[]> {
       const style = getComputedStyle(el);
       const font = `${style.fontWeight} 28px ${style.fontFamily}`;
       const box = draw(font, '\u{10FFFD}');
-      for (const ch of (el.textContent ?? '').replace(/[\s\w.,:;·()'’–-]/g, '')) if (draw(font, ch) === box) missing.add(ch);
+      for (const ch of (el.textContent ?? '').replace(/[\s\w.,:;·()'’–-]/g, ''))
+        if (draw(font, ch) === box) missing.add(ch);
     }
     return [...missing];
   });
@@ -197,47 +254,84 @@ describe("a report's link on the board", () => {
     reports = await manager.newPage();
     await signInThroughPage(reports, app.url, account('manager').email);
   }, 60_000);
-  afterAll(async () => { await manager?.close(); });
+  afterAll(async () => {
+    await manager?.close();
+  });
 
   /** The reports page's "Show on the board" links, as it writes them. */
   async function reportLinks(): Promise<string[]> {
     await reports.goto(`${app.url}/reports`);
     // Both tables loaded: the clashes' links (with bookings) and the hire table's (a hire alone).
-    await reports.waitForFunction(() => {
-      const hrefs = [...document.querySelectorAll('a[href^="/board?"]')].map((a) => a.getAttribute('href')!);
-      return hrefs.some((h) => h.includes('highlight=')) && hrefs.some((h) => h.includes('hire=') && !h.includes('highlight='));
-    }, undefined, { timeout: 30_000 });
-    return reports.$$eval('a', (as) => as.map((a) => a.getAttribute('href') ?? '').filter((h) => h.startsWith('/board?')));
+    await reports.waitForFunction(
+      () => {
+        const hrefs = [...document.querySelectorAll('a[href^="/board?"]')].map((a) => a.getAttribute('href')!);
+        return (
+          hrefs.some((h) => h.includes('highlight=')) &&
+          hrefs.some((h) => h.includes('hire=') && !h.includes('highlight='))
+        );
+      },
+      undefined,
+      { timeout: 30_000 },
+    );
+    return reports.$$eval('a', (as) =>
+      as.map((a) => a.getAttribute('href') ?? '').filter((h) => h.startsWith('/board?')),
+    );
   }
-  const outlined = (p: Page) => p.$$eval('.fc-event.wl-pointed', (els) => els.map((el) => (el as HTMLElement).dataset.bookingId ?? ''));
+  const outlined = (p: Page) =>
+    p.$$eval('.fc-event.wl-pointed', (els) => els.map((el) => (el as HTMLElement).dataset.bookingId ?? ''));
 
   it('outlines both sides of a clash, whatever the job filter, scrolled into view, until dismissed', async () => {
     // The demo's plan has no double booking: the test makes one, Crew Heron twice on Thu 25 Jun, 08:00–12:00 and
     // 10:00–14:00 BST (pencilled, as the database refuses confirmed overlaps; set up directly, as a fixture).
     const knex = app.ctx.knex;
-    const job = await makeJob(knex, { reference: 'TW-9901', stages: [
-      { kind: 'fill', name: 'Fill', minutes: 240, needs: { install_crew: 1 } }, { kind: 'handover', name: 'Handover', minutes: 240, needs: { install_crew: 1 } },
-    ], links: [] });
+    const job = await makeJob(knex, {
+      reference: 'TW-9901',
+      stages: [
+        { kind: 'fill', name: 'Fill', minutes: 240, needs: { install_crew: 1 } },
+        { kind: 'handover', name: 'Handover', minutes: 240, needs: { install_crew: 1 } },
+      ],
+      links: [],
+    });
     const heron = await idOf(knex, 'resources', { name: 'Crew Heron' });
     const ids: string[] = [];
     onTestFinished(async () => {
       await knex('bookings').whereIn('id', ids).delete();
       await knex('jobs').where('id', job.jobId).delete();
     });
-    for (const [kind, start, end] of [['fill', '07:00', '11:00'], ['handover', '09:00', '13:00']] as const) {
-      const [row] = await knex('bookings').insert({ stage_id: job.stage[kind], resource_id: heron, starts_at: `2026-06-25T${start}:00Z`, ends_at: `2026-06-25T${end}:00Z`, state: 'pencilled' }).returning('id');
+    for (const [kind, start, end] of [
+      ['fill', '07:00', '11:00'],
+      ['handover', '09:00', '13:00'],
+    ] as const) {
+      const [row] = await knex('bookings')
+        .insert({
+          stage_id: job.stage[kind],
+          resource_id: heron,
+          starts_at: `2026-06-25T${start}:00Z`,
+          ends_at: `2026-06-25T${end}:00Z`,
+          state: 'pencilled',
+        })
+        .returning('id');
       ids.push(String(row.id));
     }
-    const sameIds = (h: string) => (new URLSearchParams(h.split('?')[1]).get('highlight') ?? '').split(',').sort().join() === [...ids].sort().join();
+    const sameIds = (h: string) =>
+      (new URLSearchParams(h.split('?')[1]).get('highlight') ?? '').split(',').sort().join() === [...ids].sort().join();
     const link = (await reportLinks()).find(sameIds);
     expect(link).toMatch(/^\/board\?view=day&date=2026-06-25&q=Crew\+Heron&highlight=\d+%2C\d+$/);
-    await reports.getByRole('link', { name: 'Show on the board' }).and(reports.locator(`a[href="${link}"]`)).first().click();
+    await reports
+      .getByRole('link', { name: 'Show on the board' })
+      .and(reports.locator(`a[href="${link}"]`))
+      .first()
+      .click();
     await reports.waitForURL(/\/board\?/);
     await expect.poll(async () => (await outlined(reports)).sort(), { timeout: 15_000 }).toEqual([...ids].sort());
-    await reports.waitForFunction(() => [...document.querySelectorAll('.fc-event.wl-pointed')].every((el) => el.getAttribute('title')));
+    await reports.waitForFunction(() =>
+      [...document.querySelectorAll('.fc-event.wl-pointed')].every((el) => el.getAttribute('title')),
+    );
     await reports.screenshot({ path: 'tests/e2e/artifacts/board-report-clash.png' });
     const notice = reports.getByRole('status', { name: 'Picked out by the link' });
-    expect(await notice.innerText()).toMatch(/^Outlined: [A-Z]{2}-\d{4} · .+ on .+, (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \d+ [A-Z][a-z]{2} \d\d:\d\d; [A-Z]{2}-\d{4} · .+\./);
+    expect(await notice.innerText()).toMatch(
+      /^Outlined: [A-Z]{2}-\d{4} · .+ on .+, (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \d+ [A-Z][a-z]{2} \d\d:\d\d; [A-Z]{2}-\d{4} · .+\./,
+    );
     // The first of them is inside the timeline's visible area (scrolled to).
     const seen = await reports.$eval('.fc-event.wl-pointed', (el) => {
       const r = el.getBoundingClientRect();
@@ -269,16 +363,23 @@ describe("a report's link on the board", () => {
     expect(await band.count()).toBe(1);
     // On the machine's own row.
     const rowId = await band.evaluate((el) => el.closest('[data-resource-id]')?.getAttribute('data-resource-id'));
-    expect(await reports.$eval(`.fc-datagrid-cell[data-resource-id="${rowId}"]`, (el) => (el as HTMLElement).innerText)).toContain(machine);
-    expect(await reports.getByRole('status', { name: 'Picked out by the link' }).innerText())
-      .toMatch(new RegExp(`^Hire period drawn on its row: ${machine.replace(/[()]/g, '\\$&')}, on hire (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \\d+ [A-Z][a-z]{2} – (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \\d+ [A-Z][a-z]{2}\\.`));
+    expect(
+      await reports.$eval(`.fc-datagrid-cell[data-resource-id="${rowId}"]`, (el) => (el as HTMLElement).innerText),
+    ).toContain(machine);
+    expect(await reports.getByRole('status', { name: 'Picked out by the link' }).innerText()).toMatch(
+      new RegExp(
+        `^Hire period drawn on its row: ${machine.replace(/[()]/g, '\\$&')}, on hire (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \\d+ [A-Z][a-z]{2} – (Mon|Tue|Wed|Thu|Fri|Sat|Sun) \\d+ [A-Z][a-z]{2}\\.`,
+      ),
+    );
   }, 90_000);
 });
 
 describe('symbols on the board', () => {
   it('draws every state and marker symbol of the key and of the bookings with a real glyph, not an empty box', async () => {
     await openBoard(page, 'view=week&date=2026-06-03');
-    const keySymbols = await page.$$eval('.board-key__swatch', (els) => els.map((el) => el.textContent?.trim() ?? '').filter(Boolean));
+    const keySymbols = await page.$$eval('.board-key__swatch', (els) =>
+      els.map((el) => el.textContent?.trim() ?? '').filter(Boolean),
+    );
     // Six states and three markers, each with its own symbol.
     expect(new Set(keySymbols).size).toBe(9);
     expect(await missingGlyphs(page, '.board-key__swatch')).toEqual([]);
@@ -288,7 +389,12 @@ describe('symbols on the board', () => {
 
 describe('the board on a phone (390 × 844)', () => {
   it('lists the day resource by resource, with date navigation and no timeline', async () => {
-    const phone = await browser.newContext({ viewport: { width: 390, height: 844 }, timezoneId: 'Europe/London', isMobile: true, hasTouch: true });
+    const phone = await browser.newContext({
+      viewport: { width: 390, height: 844 },
+      timezoneId: 'Europe/London',
+      isMobile: true,
+      hasTouch: true,
+    });
     const p = await phone.newPage();
     await signInThroughPage(p, app.url, account('scheduler').email);
     await p.goto(`${app.url}/board?view=week&date=2026-06-02`);

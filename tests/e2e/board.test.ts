@@ -10,7 +10,9 @@ let page: Page;
 beforeAll(async () => {
   app = await startServer();
   browser = await launchBrowser();
-  page = await (await browser.newContext({ viewport: { width: 1440, height: 900 }, timezoneId: 'Europe/London' })).newPage();
+  page = await (
+    await browser.newContext({ viewport: { width: 1440, height: 900 }, timezoneId: 'Europe/London' })
+  ).newPage();
 }, 60_000);
 afterAll(async () => {
   await browser?.close();
@@ -18,7 +20,12 @@ afterAll(async () => {
 });
 
 /** Drags a tray stage onto a resource's row at a local time, as a person would with the mouse. */
-async function dragTrayStage(stageTitle: string, resourceId: string, slotDate: string, fractionIntoSlot: number): Promise<void> {
+async function dragTrayStage(
+  stageTitle: string,
+  resourceId: string,
+  slotDate: string,
+  fractionIntoSlot: number,
+): Promise<void> {
   const item = page.locator(`.tray-stage[data-title="${stageTitle}"]`);
   await item.scrollIntoViewIfNeeded();
   const from = (await item.boundingBox())!;
@@ -27,7 +34,8 @@ async function dragTrayStage(stageTitle: string, resourceId: string, slotDate: s
   const to = { x: slot.x + slot.width * fractionIntoSlot + 4, y: lane.y + lane.height / 2 };
   await page.mouse.move(from.x + 20, from.y + 10);
   await page.mouse.down();
-  for (let i = 1; i <= 20; i += 1) await page.mouse.move(from.x + 20 + ((to.x - from.x - 20) * i) / 20, from.y + 10 + ((to.y - from.y - 10) * i) / 20);
+  for (let i = 1; i <= 20; i += 1)
+    await page.mouse.move(from.x + 20 + ((to.x - from.x - 20) * i) / 20, from.y + 10 + ((to.y - from.y - 10) * i) / 20);
   await page.waitForTimeout(150);
   await page.mouse.up();
 }
@@ -47,8 +55,12 @@ describe('the scheduler on the board', () => {
     await page.reload();
     const event = page.locator('.fc-event', { hasText: 'TW-2423 · Pour reinforced base' });
     await event.first().waitFor({ timeout: 10_000 });
-    const rows = await app.ctx.knex('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
-      .where({ 'jobs.reference': 'TW-2423', 'stages.kind': 'base_pour' }).select('bookings.*');
+    const rows = await app.ctx
+      .knex('bookings')
+      .join('stages', 'stages.id', 'bookings.stage_id')
+      .join('jobs', 'jobs.id', 'stages.job_id')
+      .where({ 'jobs.reference': 'TW-2423', 'stages.kind': 'base_pour' })
+      .select('bookings.*');
     expect(rows).toHaveLength(1);
     // 08:00 BST is 07:00 UTC; the pour lasts its 300 working minutes.
     expect(rows[0].startsAt.toISOString()).toBe('2026-09-14T07:00:00.000Z');
@@ -64,7 +76,10 @@ describe('the scheduler on the board', () => {
     await dragTrayStage('TW-2423 · Crane lift into pit', heron, '2026-09-16T06:00:00', 1 / 3);
     const refusal = page.getByText(/Not booked:.*(cure|strength)/i);
     await refusal.first().waitFor({ timeout: 10_000 });
-    const rows = await app.ctx.knex('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
+    const rows = await app.ctx
+      .knex('bookings')
+      .join('stages', 'stages.id', 'bookings.stage_id')
+      .join('jobs', 'jobs.id', 'stages.job_id')
       .where({ 'jobs.reference': 'TW-2423', 'stages.kind': 'lift' });
     expect(rows).toEqual([]);
     await page.screenshot({ path: 'tests/e2e/artifacts/board-refused-lift.png' });

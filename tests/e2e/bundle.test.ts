@@ -9,14 +9,19 @@ import { fileURLToPath } from 'node:url';
  * date-holidays brought the whole world's holidays into the engine's chunk (1.46 MB, 253 KB gzipped).
  */
 const assets = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', '..', 'dist', 'assets');
-const chunks = readdirSync(assets).filter((f) => f.endsWith('.js')).map((f) => ({ name: f, text: readFileSync(path.join(assets, f), 'utf8') }));
+const chunks = readdirSync(assets)
+  .filter((f) => f.endsWith('.js'))
+  .map((f) => ({ name: f, text: readFileSync(path.join(assets, f), 'utf8') }));
 
 describe('the built client', () => {
   it('holds none of the date-holidays tables', () => {
     expect(chunks.length).toBeGreaterThan(5);
     // Names from date-holidays' German and Spanish tables: no text of our own uses them.
     for (const marker of ['Fronleichnam', 'Tag der Deutschen Einheit', 'Día de la Hispanidad']) {
-      expect(chunks.filter((c) => c.text.includes(marker)).map((c) => c.name), marker).toEqual([]);
+      expect(
+        chunks.filter((c) => c.text.includes(marker)).map((c) => c.name),
+        marker,
+      ).toEqual([]);
     }
   });
 

@@ -17,21 +17,65 @@ beforeAll(async () => {
   app = await startServer();
   const knex = app.ctx.knex;
   const tideway = await idOf(knex, 'firms', { name: 'Tideway Hot Tubs' });
-  const [job] = await knex('jobs').insert({
-    firm_id: tideway, reference: 'TW-8811', customer_name: 'Mina Holt', customer_phone: '07700 900811', customer_email: 'mina@home.example',
-    site_address: '9 Weir Street', site_town: 'Headingley', site_postcode: 'LS6 2AB', access_notes: 'Side gate 900 mm wide; park on the drive',
-    installation_type: 'in_ground', status: 'planned', unit_id: await idOf(knex, 'units', { model: 'Brook 4' }),
-  }).returning('id');
-  const stage = async (kind: string, name: string, sequence: number) => String((await knex('stages').insert({ job_id: job.id, kind, name, sequence,
-    duration_minutes: 240, requirements: JSON.stringify([{ kind: 'installer', count: 1 }]) }).returning('id'))[0].id);
+  const [job] = await knex('jobs')
+    .insert({
+      firm_id: tideway,
+      reference: 'TW-8811',
+      customer_name: 'Mina Holt',
+      customer_phone: '07700 900811',
+      customer_email: 'mina@home.example',
+      site_address: '9 Weir Street',
+      site_town: 'Headingley',
+      site_postcode: 'LS6 2AB',
+      access_notes: 'Side gate 900 mm wide; park on the drive',
+      installation_type: 'in_ground',
+      status: 'planned',
+      unit_id: await idOf(knex, 'units', { model: 'Brook 4' }),
+    })
+    .returning('id');
+  const stage = async (kind: string, name: string, sequence: number) =>
+    String(
+      (
+        await knex('stages')
+          .insert({
+            job_id: job.id,
+            kind,
+            name,
+            sequence,
+            duration_minutes: 240,
+            requirements: JSON.stringify([{ kind: 'installer', count: 1 }]),
+          })
+          .returning('id')
+      )[0].id,
+    );
   const connor = await idOf(knex, 'resources', { name: 'Connor Reid' });
-  const [b] = await knex('bookings').insert({ stage_id: await stage('excavation', 'Excavate pit', 1), resource_id: connor,
-    starts_at: '2026-06-01T07:00:00Z', ends_at: '2026-06-01T11:00:00Z', state: 'confirmed' }).returning('id');
+  const [b] = await knex('bookings')
+    .insert({
+      stage_id: await stage('excavation', 'Excavate pit', 1),
+      resource_id: connor,
+      starts_at: '2026-06-01T07:00:00Z',
+      ends_at: '2026-06-01T11:00:00Z',
+      state: 'confirmed',
+    })
+    .returning('id');
   today = String(b.id);
-  await knex('bookings').insert({ stage_id: await stage('fill', 'Fill', 2), resource_id: connor,
-    starts_at: '2026-06-04T07:00:00Z', ends_at: '2026-06-04T09:00:00Z', state: 'confirmed' });
+  await knex('bookings').insert({
+    stage_id: await stage('fill', 'Fill', 2),
+    resource_id: connor,
+    starts_at: '2026-06-04T07:00:00Z',
+    ends_at: '2026-06-04T09:00:00Z',
+    state: 'confirmed',
+  });
   browser = await launchBrowser();
-  page = await (await browser.newContext({ viewport: { width: 390, height: 844 }, deviceScaleFactor: 2, isMobile: true, hasTouch: true, timezoneId: 'Europe/London' })).newPage();
+  page = await (
+    await browser.newContext({
+      viewport: { width: 390, height: 844 },
+      deviceScaleFactor: 2,
+      isMobile: true,
+      hasTouch: true,
+      timezoneId: 'Europe/London',
+    })
+  ).newPage();
 }, 60_000);
 afterAll(async () => {
   await browser?.close();
@@ -59,12 +103,16 @@ describe('a crew member on a phone', () => {
     await card.getByRole('button', { name: 'On site' }).click();
     await page.getByRole('button', { name: 'Yes, on site' }).click();
     await page.getByText('Excavate pit: marked on site').waitFor();
-    await expect.poll(async () => (await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('on_site');
+    await expect
+      .poll(async () => (await app.ctx.knex('bookings').where('id', today).first('state')).state)
+      .toBe('on_site');
     await card.getByRole('button', { name: 'Done' }).waitFor();
     await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-on-site.png' });
 
     await page.getByRole('button', { name: 'Undo' }).click();
-    await expect.poll(async () => (await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('confirmed');
+    await expect
+      .poll(async () => (await app.ctx.knex('bookings').where('id', today).first('state')).state)
+      .toBe('confirmed');
     await card.getByRole('button', { name: 'On site' }).waitFor();
   }, 90_000);
 });

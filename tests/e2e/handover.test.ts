@@ -30,16 +30,36 @@ beforeAll(async () => {
   app = await startServer();
   await app.ctx.knex.raw('TRUNCATE outbox, link_uses, link_attempts RESTART IDENTITY');
   store = new S3ObjectStore(app.ctx.config);
-  job = await makeHandoverJob(app.ctx.knex, { reference: 'HE-501', startsAt: '2026-06-01T11:00:00Z', store, commissionDone: false, record: false });
+  job = await makeHandoverJob(app.ctx.knex, {
+    reference: 'HE-501',
+    startsAt: '2026-06-01T11:00:00Z',
+    store,
+    commissionDone: false,
+    record: false,
+  });
   inbox = new Inbox();
   await inbox.clear();
   const config = { ...app.ctx.config, MAIL_QUEUE: `mail-handover-${process.pid}-${Date.now()}` };
-  pipeline = startMailPipeline({ knex: app.ctx.knex, config, logger: pino({ level: 'silent' }), relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 } });
+  pipeline = startMailPipeline({
+    knex: app.ctx.knex,
+    config,
+    logger: pino({ level: 'silent' }),
+    relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 },
+  });
   browser = await launchBrowser();
-  page = await (await browser.newContext({ viewport: { width: 390, height: 844 }, deviceScaleFactor: 2, isMobile: true, hasTouch: true, timezoneId: 'Europe/London' })).newPage();
+  page = await (
+    await browser.newContext({
+      viewport: { width: 390, height: 844 },
+      deviceScaleFactor: 2,
+      isMobile: true,
+      hasTouch: true,
+      timezoneId: 'Europe/London',
+    })
+  ).newPage();
 }, 120_000);
 afterEach(async (ctx) => {
-  if (ctx.task.result?.state === 'fail') await page.screenshot({ path: 'tests/e2e/artifacts/handover-failed.png', fullPage: true }).catch(() => undefined);
+  if (ctx.task.result?.state === 'fail')
+    await page.screenshot({ path: 'tests/e2e/artifacts/handover-failed.png', fullPage: true }).catch(() => undefined);
 });
 afterAll(async () => {
   await browser?.close();
@@ -48,7 +68,8 @@ afterAll(async () => {
   await app?.stop();
 });
 
-const stateOf = async (stageId: string) => (await app.ctx.knex('bookings').where('stage_id', stageId).first('state'))?.state;
+const stateOf = async (stageId: string) =>
+  (await app.ctx.knex('bookings').where('stage_id', stageId).first('state'))?.state;
 
 /** Marks a My work card's step, answering the question the page asks first. */
 async function mark(card: ReturnType<Page['locator']>, button: string, yes: string): Promise<void> {
@@ -71,10 +92,18 @@ describe('a crew member on a phone', () => {
     await page.locator('#reading-ph').fill('7.4');
     await page.locator('#reading-ta').fill('100');
     await page.locator('#reading-sanitiser').fill('3.5');
-    const photo = await sharp({ create: { width: 64, height: 48, channels: 3, background: '#3a7ca5' } }).jpeg().toBuffer();
-    await page.locator('input[type=file]').setInputFiles({ name: 'running.jpg', mimeType: 'image/jpeg', buffer: photo });
+    const photo = await sharp({ create: { width: 64, height: 48, channels: 3, background: '#3a7ca5' } })
+      .jpeg()
+      .toBuffer();
+    await page
+      .locator('input[type=file]')
+      .setInputFiles({ name: 'running.jpg', mimeType: 'image/jpeg', buffer: photo });
     await page.getByText('commissioning can be marked done from').waitFor({ timeout: 15_000 });
-    await expect.poll(async () => (await app.ctx.knex('commissioning_records').where('job_id', job.jobId).first('ph'))?.ph, { timeout: 10_000 }).toBe(7.4);
+    await expect
+      .poll(async () => (await app.ctx.knex('commissioning_records').where('job_id', job.jobId).first('ph'))?.ph, {
+        timeout: 10_000,
+      })
+      .toBe(7.4);
     await page.screenshot({ path: 'tests/e2e/artifacts/handover-commissioning.png', fullPage: true });
 
     await page.goto(`${app.url}/my-work`);
@@ -96,7 +125,9 @@ describe('a crew member on a phone', () => {
     for (const item of HANDOVER_CHECKLIST) await page.getByText(item.title, { exact: true }).click();
     expect(await page.locator('#handover-name').inputValue()).toBe('Ruth Calder');
     // Crew never see the householder's address itself, only a hint to check it by.
-    expect(await page.locator('#handover-email').getAttribute('placeholder')).toBe('The job\'s address (r…@calder.example)');
+    expect(await page.locator('#handover-email').getAttribute('placeholder')).toBe(
+      "The job's address (r…@calder.example)",
+    );
     expect(await page.content()).not.toContain('ruth@calder.example');
 
     // The householder signs with the mouse; "Clear" empties the pad, then they sign again.
@@ -106,7 +137,14 @@ describe('a crew member on a phone', () => {
       const box = (await pad.boundingBox())!;
       await page.mouse.move(box.x + 30, box.y + 120);
       await page.mouse.down();
-      for (const [dx, dy] of [[80, 40], [130, 110], [190, 50], [260, 100], [320, 60]] as const) await page.mouse.move(box.x + dx, box.y + dy, { steps: 6 });
+      for (const [dx, dy] of [
+        [80, 40],
+        [130, 110],
+        [190, 50],
+        [260, 100],
+        [320, 60],
+      ] as const)
+        await page.mouse.move(box.x + dx, box.y + dy, { steps: 6 });
       await page.mouse.up();
     };
     await draw();
@@ -126,10 +164,21 @@ describe('a crew member on a phone', () => {
     // Nothing of the page reaches past the phone's width.
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
 
-    const [mail] = await inbox.waitFor((m) => m.to.includes('ruth@calder.example') && m.subject === 'Your hot tub handover pack (HE-501)', 1, 30_000);
-    expect(mail!.attachments.map((a) => [a.filename, a.contentType])).toEqual([['Handover pack HE-501.pdf', 'application/pdf'], ['EIC-7731.pdf', 'application/pdf']]);
+    const [mail] = await inbox.waitFor(
+      (m) => m.to.includes('ruth@calder.example') && m.subject === 'Your hot tub handover pack (HE-501)',
+      1,
+      30_000,
+    );
+    expect(mail!.attachments.map((a) => [a.filename, a.contentType])).toEqual([
+      ['Handover pack HE-501.pdf', 'application/pdf'],
+      ['EIC-7731.pdf', 'application/pdf'],
+    ]);
     expect(mail!.text).toContain('Register your warranty'.toUpperCase());
-    const [notice] = await inbox.waitFor((m) => m.to.includes('ruth@calder.example') && m.subject === 'Your service visits (HE-501)', 1, 30_000);
+    const [notice] = await inbox.waitFor(
+      (m) => m.to.includes('ruth@calder.example') && m.subject === 'Your service visits (HE-501)',
+      1,
+      30_000,
+    );
     expect(notice!.text).toContain('September 2026 (HE-501-S1)');
   }, 180_000);
 });

@@ -9,7 +9,8 @@ import type { Agent } from '../helpers/server.ts';
 
 /** Moves the pressed mouse to a point in small steps, so FullCalendar sees a drag, not a jump. */
 async function glide(page: Page, from: { x: number; y: number }, to: { x: number; y: number }): Promise<void> {
-  for (let i = 1; i <= 20; i += 1) await page.mouse.move(from.x + ((to.x - from.x) * i) / 20, from.y + ((to.y - from.y) * i) / 20);
+  for (let i = 1; i <= 20; i += 1)
+    await page.mouse.move(from.x + ((to.x - from.x) * i) / 20, from.y + ((to.y - from.y) * i) / 20);
 }
 
 /** Opens the board at a view and date and waits for a row to be drawn. */
@@ -22,7 +23,12 @@ export async function openBoard(page: Page, baseUrl: string, query: string, rowI
  * Where a drop lands: a resource's row at a fraction of a timeline slot (the week view's slots are
  * half days: 06:00–12:00 and 12:00–18:00 local, so a third into the morning is 08:00).
  */
-async function rowPoint(page: Page, resourceId: string, slotDate: string, fractionIntoSlot: number): Promise<{ x: number; y: number }> {
+async function rowPoint(
+  page: Page,
+  resourceId: string,
+  slotDate: string,
+  fractionIntoSlot: number,
+): Promise<{ x: number; y: number }> {
   const laneLocator = page.locator(`td.fc-timeline-lane[data-resource-id="${resourceId}"]`).first();
   await laneLocator.scrollIntoViewIfNeeded();
   const slot = (await page.locator(`td.fc-timeline-slot-lane[data-date="${slotDate}"]`).first().boundingBox())!;
@@ -31,7 +37,13 @@ async function rowPoint(page: Page, resourceId: string, slotDate: string, fracti
 }
 
 /** Drags a tray stage (by its "REF · Stage" title) onto a resource's row; returns what the box by the pointer said. */
-export async function dragTrayStage(page: Page, stageTitle: string, resourceId: string, slotDate: string, fractionIntoSlot: number): Promise<string> {
+export async function dragTrayStage(
+  page: Page,
+  stageTitle: string,
+  resourceId: string,
+  slotDate: string,
+  fractionIntoSlot: number,
+): Promise<string> {
   const item = page.locator(`.tray-stage[data-title="${stageTitle}"]`);
   await item.scrollIntoViewIfNeeded();
   const to = await rowPoint(page, resourceId, slotDate, fractionIntoSlot);
@@ -49,7 +61,13 @@ export async function dragTrayStage(page: Page, stageTitle: string, resourceId: 
 }
 
 /** Drags a booking on the board onto a resource's row at a fraction of a slot. */
-export async function dragBooking(page: Page, bookingId: string, resourceId: string, slotDate: string, fractionIntoSlot: number): Promise<void> {
+export async function dragBooking(
+  page: Page,
+  bookingId: string,
+  resourceId: string,
+  slotDate: string,
+  fractionIntoSlot: number,
+): Promise<void> {
   const event = page.locator(`[data-booking-id="${bookingId}"]`);
   await event.scrollIntoViewIfNeeded();
   const to = await rowPoint(page, resourceId, slotDate, fractionIntoSlot);
@@ -78,19 +96,47 @@ export async function dragBookingToTray(page: Page, bookingId: string): Promise<
 }
 
 /** A booking as the test reads it back from the database. */
-export interface StoredBooking { id: string; resourceId: string; startsAt: string; endsAt: string; state: string }
+export interface StoredBooking {
+  id: string;
+  resourceId: string;
+  startsAt: string;
+  endsAt: string;
+  state: string;
+}
 
 /** The bookings of a stage as stored, by resource name. */
 export async function storedBookings(knex: Knex, stageId: string): Promise<(StoredBooking & { resource: string })[]> {
-  const rows = await knex('bookings').join('resources', 'resources.id', 'bookings.resource_id').where('bookings.stage_id', stageId)
-    .orderBy('resources.name').select('bookings.id', 'bookings.resource_id', 'bookings.starts_at', 'bookings.ends_at', 'bookings.state', 'resources.name');
-  return rows.map((r: { id: unknown; resourceId: unknown; startsAt: Date; endsAt: Date; state: string; name: string }) => ({
-    id: String(r.id), resourceId: String(r.resourceId), startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), state: r.state, resource: r.name,
-  }));
+  const rows = await knex('bookings')
+    .join('resources', 'resources.id', 'bookings.resource_id')
+    .where('bookings.stage_id', stageId)
+    .orderBy('resources.name')
+    .select(
+      'bookings.id',
+      'bookings.resource_id',
+      'bookings.starts_at',
+      'bookings.ends_at',
+      'bookings.state',
+      'resources.name',
+    );
+  return rows.map(
+    (r: { id: unknown; resourceId: unknown; startsAt: Date; endsAt: Date; state: string; name: string }) => ({
+      id: String(r.id),
+      resourceId: String(r.resourceId),
+      startsAt: r.startsAt.toISOString(),
+      endsAt: r.endsAt.toISOString(),
+      state: r.state,
+      resource: r.name,
+    }),
+  );
 }
 
 /** The bookings of a stage the API lists to the signed-in office in a range (GET /api/bookings). */
-export async function apiBookings(agent: Agent, stageId: string, from: string, to: string): Promise<{ id: string; resourceId: string; state: string; startsAt: string }[]> {
+export async function apiBookings(
+  agent: Agent,
+  stageId: string,
+  from: string,
+  to: string,
+): Promise<{ id: string; resourceId: string; state: string; startsAt: string }[]> {
   const res = await agent.get('/api/bookings').query({ from, to }).expect(200);
   return (res.body.items as { id: string; stageId: string; resourceId: string; state: string; startsAt: string }[])
     .filter((b) => String(b.stageId) === stageId)

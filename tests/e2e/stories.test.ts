@@ -23,7 +23,12 @@ let office: Agent;
 /** The pages a failed test leaves a picture of. */
 const open: { name: string; page: Page }[] = [];
 
-const CONNECT: FixtureStage = { kind: 'electrical_connect', name: 'Connect and certify', minutes: 240, needs: { electrician: 1 } };
+const CONNECT: FixtureStage = {
+  kind: 'electrical_connect',
+  name: 'Connect and certify',
+  minutes: 240,
+  needs: { electrician: 1 },
+};
 
 async function newPage(name: string): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
@@ -40,7 +45,12 @@ beforeAll(async () => {
   await inbox.clear();
   // A queue of this run's own, so job ids (outbox keys, which restart with the database) never meet an earlier run's jobs.
   const config = { ...app.ctx.config, MAIL_QUEUE: `mail-stories-${process.pid}-${Date.now()}` };
-  pipeline = startMailPipeline({ knex: app.ctx.knex, config, logger: pino({ level: 'silent' }), relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 } });
+  pipeline = startMailPipeline({
+    knex: app.ctx.knex,
+    config,
+    logger: pino({ level: 'silent' }),
+    relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 },
+  });
   browser = await launchBrowser();
   office = await signIn(app.ctx, account('scheduler').email);
 }, 120_000);
@@ -48,7 +58,8 @@ beforeAll(async () => {
 afterEach(async (ctx) => {
   if (ctx.task.result?.state === 'fail') {
     const test = ctx.task.name.slice(0, 40).replace(/\W+/g, '-');
-    for (const { name, page } of open) await page.screenshot({ path: `tests/e2e/artifacts/stories-failed-${test}-${name}.png` }).catch(() => undefined);
+    for (const { name, page } of open)
+      await page.screenshot({ path: `tests/e2e/artifacts/stories-failed-${test}-${name}.png` }).catch(() => undefined);
   }
   for (const { page } of open.splice(0)) await page.context().close();
 });
@@ -60,25 +71,43 @@ afterAll(async () => {
 
 describe('stories across firms', () => {
   it("the electrician confirms from the e-mail and the scheduler's open board shows it within 2 s", async () => {
-    const job = await makeJob(app.ctx.knex, { reference: 'ST-101', town: 'Kirkby Malzeard', postcode: 'HG4 3RS', stages: [CONNECT], links: [] });
+    const job = await makeJob(app.ctx.knex, {
+      reference: 'ST-101',
+      town: 'Kirkby Malzeard',
+      postcode: 'HG4 3RS',
+      stages: [CONNECT],
+      links: [],
+    });
     const priya = await idOf(app.ctx.knex, 'resources', { name: 'Priya Nair' });
     const { page: board } = await newPage('scheduler');
     await signInThroughPage(board, app.url, account('scheduler').email);
     await openBoard(board, app.url, 'view=week&date=2026-12-14', priya);
 
     // The scheduler books Priya for Monday 14 December 08:00 (GMT: local time) and sends the request.
-    const made = await office.post('/api/bookings').set('X-CSRF-Token', office.csrf)
-      .send({ stageId: job.stage.electrical_connect, resourceId: priya, startsAt: '2026-12-14T08:00:00Z' }).expect(201);
+    const made = await office
+      .post('/api/bookings')
+      .set('X-CSRF-Token', office.csrf)
+      .send({ stageId: job.stage.electrical_connect, resourceId: priya, startsAt: '2026-12-14T08:00:00Z' })
+      .expect(201);
     const booking = (made.body.bookings as { id: string; version: number }[])[0]!;
     const id = String(booking.id);
-    await office.post(`/api/bookings/${id}/publish`).set('X-CSRF-Token', office.csrf).send({ version: booking.version }).expect(200);
+    await office
+      .post(`/api/bookings/${id}/publish`)
+      .set('X-CSRF-Token', office.csrf)
+      .send({ version: booking.version })
+      .expect(200);
     const chip = board.locator(`.fc-event[data-booking-id="${id}"]`);
     // The open board shows the request as sent (its stream, no reload) before the partner answers.
     await expect.poll(() => chip.getAttribute('class').catch(() => ''), { timeout: 15_000 }).toContain('wl-state-sent');
     expect(await chip.getAttribute('class')).not.toContain('wl-state-confirmed');
 
-    const [mail] = await inbox.waitFor((m) => m.to.includes('priya.nair@brightspark.example')
-      && m.subject === 'Booking request: Connect and certify, Kirkby Malzeard, Mon 14 Dec 2026', 1, 20_000);
+    const [mail] = await inbox.waitFor(
+      (m) =>
+        m.to.includes('priya.nair@brightspark.example') &&
+        m.subject === 'Booking request: Connect and certify, Kirkby Malzeard, Mon 14 Dec 2026',
+      1,
+      20_000,
+    );
     const links = answerLinks(mail!);
 
     // Priya answers from the e-mail: a page of its own, no session.
@@ -89,7 +118,9 @@ describe('stories across firms', () => {
     await partner.getByText('Thank you: the slot is confirmed').waitFor({ timeout: 10_000 });
     const shownAt = Date.now();
 
-    await expect.poll(() => chip.getAttribute('class'), { timeout: 2_000, interval: 50 }).toContain('wl-state-confirmed');
+    await expect
+      .poll(() => chip.getAttribute('class'), { timeout: 2_000, interval: 50 })
+      .toContain('wl-state-confirmed');
     expect(Date.now() - shownAt).toBeLessThanOrEqual(2_000);
     expect(await chip.getAttribute('class')).not.toContain('wl-state-sent');
     // Stored as confirmed, and the board never reloaded to show it (the same document, still on the week).
@@ -102,8 +133,11 @@ describe('stories across firms', () => {
     // The demo's TW-2410 digs on the hired 3 t excavator after that hire has ended (seeds/demo.ts, DEMO_PROBLEMS.hireClash).
     const hired = await idOf(knex, 'resources', { name: '3 t excavator (hired)' });
     const owned = await idOf(knex, 'resources', { name: '1.5 t excavator' });
-    const dig = await knex('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
-      .where({ 'jobs.reference': 'TW-2410', 'stages.kind': 'excavation', 'bookings.resource_id': hired }).first('bookings.id', 'bookings.starts_at');
+    const dig = await knex('bookings')
+      .join('stages', 'stages.id', 'bookings.stage_id')
+      .join('jobs', 'jobs.id', 'stages.job_id')
+      .where({ 'jobs.reference': 'TW-2410', 'stages.kind': 'excavation', 'bookings.resource_id': hired })
+      .first('bookings.id', 'bookings.starts_at');
     expect(dig).toBeDefined();
     const digId = String(dig.id);
 
@@ -123,7 +157,9 @@ describe('stories across firms', () => {
     await row.getByRole('link', { name: 'Show on the board' }).click();
     await page.waitForURL(/\/board\?/);
     expect(new URL(page.url()).searchParams.get('highlight')?.split(',')).toContain(digId);
-    await expect.poll(() => page.locator(`.fc-event.wl-pointed[data-booking-id="${digId}"]`).count(), { timeout: 15_000 }).toBe(1);
+    await expect
+      .poll(() => page.locator(`.fc-event.wl-pointed[data-booking-id="${digId}"]`).count(), { timeout: 15_000 })
+      .toBe(1);
 
     // The report's first suggestion reads "Move to 1.5 t excavator on Tue 16 Jun 10:00 — no extra cost". She widens the
     // search to every excavator and drags the dig, held near its start, onto the firm's own machine at the same hour.
@@ -132,19 +168,27 @@ describe('stories across firms', () => {
     await page.waitForSelector(`td.fc-timeline-lane[data-resource-id="${owned}"]`);
     const chip = page.locator(`.fc-event[data-booking-id="${digId}"]`);
     const box = (await chip.boundingBox())!;
-    const ten = (await page.locator('td.fc-timeline-slot-lane[data-date="2026-06-16T10:00:00"]').first().boundingBox())!;
+    const ten = (await page
+      .locator('td.fc-timeline-slot-lane[data-date="2026-06-16T10:00:00"]')
+      .first()
+      .boundingBox())!;
     const lane = (await page.locator(`td.fc-timeline-lane[data-resource-id="${owned}"]`).first().boundingBox())!;
     const grip = 40; // pixels in from the chip's start (its very end is a resize handle)
     const from = { x: box.x + grip, y: box.y + box.height / 2 };
     const to = { x: from.x + (ten.x - box.x), y: lane.y + lane.height / 2 };
     await page.mouse.move(from.x, from.y);
     await page.mouse.down();
-    for (let i = 1; i <= 20; i += 1) await page.mouse.move(from.x + ((to.x - from.x) * i) / 20, from.y + ((to.y - from.y) * i) / 20);
+    for (let i = 1; i <= 20; i += 1)
+      await page.mouse.move(from.x + ((to.x - from.x) * i) / 20, from.y + ((to.y - from.y) * i) / 20);
     await page.locator('.drag-reason').waitFor({ timeout: 5_000 });
     await page.mouse.up();
     // The dig's gang is Millstone Groundworks', already asked: the board says a move asks them again, and she agrees.
     await page.getByRole('button', { name: 'Move and ask again' }).click();
-    await expect.poll(async () => String((await knex('bookings').where('id', digId).first('resource_id')).resourceId), { timeout: 15_000 }).toBe(owned);
+    await expect
+      .poll(async () => String((await knex('bookings').where('id', digId).first('resource_id')).resourceId), {
+        timeout: 15_000,
+      })
+      .toBe(owned);
     const moved = await knex('bookings').where('id', digId).first('starts_at');
     expect(moved.startsAt.toISOString()).toBe('2026-06-16T09:00:00.000Z');
     await page.screenshot({ path: 'tests/e2e/artifacts/story-manager-fixed.png' });
@@ -152,7 +196,11 @@ describe('stories across firms', () => {
     // Back in the reports the clash is gone.
     await page.goto(`${app.url}/reports`);
     await page.getByRole('heading', { name: /clash/i }).first().waitFor({ timeout: 30_000 });
-    await expect.poll(() => page.locator('tr', { hasText: 'TW-2410' }).filter({ hasText: '3 t excavator' }).count(), { timeout: 15_000 }).toBe(0);
+    await expect
+      .poll(() => page.locator('tr', { hasText: 'TW-2410' }).filter({ hasText: '3 t excavator' }).count(), {
+        timeout: 15_000,
+      })
+      .toBe(0);
   }, 120_000);
 
   it("the second installer finds none of the first installer's names anywhere", async () => {
@@ -161,11 +209,16 @@ describe('stories across firms', () => {
     const jobs = await knex('jobs').where('firm_id', tideway).select('reference', 'customer_name');
     const crews = await knex('resources').where({ firm_id: tideway, category: 'crew' }).pluck('name');
     const people = [
-      ...await knex('resources').where({ firm_id: tideway, category: 'person' }).pluck('name'),
-      ...await knex('users').join('memberships', 'memberships.user_id', 'users.id').where('memberships.firm_id', tideway).pluck('users.name'),
+      ...(await knex('resources').where({ firm_id: tideway, category: 'person' }).pluck('name')),
+      ...(await knex('users')
+        .join('memberships', 'memberships.user_id', 'users.id')
+        .where('memberships.firm_id', tideway)
+        .pluck('users.name')),
     ];
     const references = jobs.map((j: { reference: string }) => j.reference);
-    const forbidden = [...new Set([...jobs.map((j: { customerName: string }) => j.customerName), ...references, ...crews, ...people])];
+    const forbidden = [
+      ...new Set([...jobs.map((j: { customerName: string }) => j.customerName), ...references, ...crews, ...people]),
+    ];
     // The seeded scenario really has these (so the check below has something to find).
     expect(references.filter((r: string) => r.startsWith('TW-')).length).toBeGreaterThan(5);
     expect(crews.sort()).toEqual(['Crew Heron', 'Crew Kestrel', 'Crew Otter']);
@@ -201,7 +254,8 @@ describe('stories across firms', () => {
     await page.getByText('Priya Nair').filter({ visible: true }).first().waitFor({ timeout: 15_000 });
     seen.push({ path: '/reports', text: await page.locator('body').innerText(), html: await page.content() });
     const ben = await signIn(app.ctx, 'ben.moor@moorview.example');
-    for (const report of ['clashes', 'hire', 'utilisation', 'risks.csv']) await ben.get(`/api/reports/${report}`).expect(403);
+    for (const report of ['clashes', 'hire', 'utilisation', 'risks.csv'])
+      await ben.get(`/api/reports/${report}`).expect(403);
     // The shared partners are on Moorview's board, and Tideway's bookings on them show only as busy.
     const month = seen[1]!;
     expect(month.text).toContain('Priya Nair');

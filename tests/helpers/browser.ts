@@ -7,12 +7,21 @@ import { startTestApp, type TestContext } from './server.ts';
 /** Debian's chromium, as the machine provides it (never a downloaded browser). */
 export async function launchBrowser(): Promise<Browser> {
   const executablePath = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
-  if (!existsSync(executablePath)) throw new Error(`No chromium at ${executablePath}: npm test installs it as root, or run apt-get install chromium`);
+  if (!existsSync(executablePath))
+    throw new Error(`No chromium at ${executablePath}: npm test installs it as root, or run apt-get install chromium`);
   return chromium.launch({
     executablePath,
     headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking',
-      '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage'],
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+      '--disable-dev-shm-usage',
+    ],
   });
 }
 
@@ -27,16 +36,23 @@ async function freePort(): Promise<number> {
   });
 }
 
-export interface RunningApp { ctx: TestContext; url: string; stop(): Promise<void> }
+export interface RunningApp {
+  ctx: TestContext;
+  url: string;
+  stop(): Promise<void>;
+}
 
 /** The real app over the seeded test database, listening on a free loopback port (it serves dist/). */
 export async function startServer(): Promise<RunningApp> {
   const port = await freePort();
   const url = `http://127.0.0.1:${port}`;
   const ctx = await startTestApp({ PUBLIC_URL: url });
-  const server: Server = await new Promise((resolve) => { const s = ctx.waterline.app.listen(port, '127.0.0.1', () => resolve(s)); });
+  const server: Server = await new Promise((resolve) => {
+    const s = ctx.waterline.app.listen(port, '127.0.0.1', () => resolve(s));
+  });
   return {
-    ctx, url,
+    ctx,
+    url,
     async stop() {
       server.closeAllConnections();
       await new Promise((r) => server.close(r));

@@ -9,8 +9,12 @@ import type { Knex } from 'knex';
  * await unbookJobs(ctx.knex, 'TW-2417', 'TW-2421')
  */
 export async function unbookJobs(knex: Knex, ...references: string[]): Promise<void> {
-  await knex('bookings').whereIn('stage_id', knex('stages').join('jobs', 'jobs.id', 'stages.job_id')
-    .whereIn('jobs.reference', references).select('stages.id')).delete();
+  await knex('bookings')
+    .whereIn(
+      'stage_id',
+      knex('stages').join('jobs', 'jobs.id', 'stages.job_id').whereIn('jobs.reference', references).select('stages.id'),
+    )
+    .delete();
 }
 
 /**

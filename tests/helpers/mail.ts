@@ -13,19 +13,33 @@ export class Inbox {
   async list(): Promise<InboxMessage[]> {
     return ((await (await fetch(`${this.url}/api/messages`)).json()) as { items: InboxMessage[] }).items;
   }
-  async clear(): Promise<void> { await fetch(`${this.url}/api/messages`, { method: 'DELETE' }); }
+  async clear(): Promise<void> {
+    await fetch(`${this.url}/api/messages`, { method: 'DELETE' });
+  }
   async failNext(count: number): Promise<void> {
-    await fetch(`${this.url}/api/fail-next`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ count }) });
+    await fetch(`${this.url}/api/fail-next`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ count }),
+    });
   }
   /** Waits until `count` messages match, then returns them. */
   async waitFor(match: (m: InboxMessage) => boolean, count = 1, timeoutMs = 15_000): Promise<InboxMessage[]> {
     let found: InboxMessage[] = [];
-    await waitUntil(async () => (found = (await this.list()).filter(match)).length >= count, timeoutMs, `${count} matching e-mail(s)`);
+    await waitUntil(
+      async () => (found = (await this.list()).filter(match)).length >= count,
+      timeoutMs,
+      `${count} matching e-mail(s)`,
+    );
     return found;
   }
 }
 
-export async function waitUntil(check: () => boolean | Promise<boolean>, timeoutMs = 15_000, what = 'condition'): Promise<void> {
+export async function waitUntil(
+  check: () => boolean | Promise<boolean>,
+  timeoutMs = 15_000,
+  what = 'condition',
+): Promise<void> {
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
     if (await check()) return;
@@ -51,13 +65,30 @@ export interface MailTestContext extends TestContext {
  * can arrive from what was queued before (the relay's stale-row scan runs hourly in tests), so an
  * inbox count taken then is final.
  */
-export async function waitForMailSettled(ctx: Pick<TestContext, 'knex'>, pipeline: MailPipeline, timeoutMs = 15_000): Promise<void> {
-  await waitUntil(async () => {
-    const open = await ctx.knex('outbox').whereIn('status', ['pending', 'queued']).count<{ count: string }[]>('* as count');
-    if (Number(open[0]!.count) > 0) return false;
-    const counts = await pipeline.queue.getJobCounts('waiting', 'active', 'delayed', 'prioritized', 'waiting-children');
-    return Object.values(counts).every((n) => n === 0);
-  }, timeoutMs, 'the outbox and the mail queue to be idle');
+export async function waitForMailSettled(
+  ctx: Pick<TestContext, 'knex'>,
+  pipeline: MailPipeline,
+  timeoutMs = 15_000,
+): Promise<void> {
+  await waitUntil(
+    async () => {
+      const open = await ctx
+        .knex('outbox')
+        .whereIn('status', ['pending', 'queued'])
+        .count<{ count: string }[]>('* as count');
+      if (Number(open[0]!.count) > 0) return false;
+      const counts = await pipeline.queue.getJobCounts(
+        'waiting',
+        'active',
+        'delayed',
+        'prioritized',
+        'waiting-children',
+      );
+      return Object.values(counts).every((n) => n === 0);
+    },
+    timeoutMs,
+    'the outbox and the mail queue to be idle',
+  );
 }
 
 /**
@@ -81,8 +112,23 @@ export async function startMailTestApp(overrides: Record<string, string> = {}): 
     startPipeline(redisUrl?: string) {
       const config = redisUrl ? { ...ctx.config, REDIS_URL: redisUrl } : ctx.config;
       const logs: TestPipeline['logs'] = [];
-      const logger = pino({ level: 'info' }, { write: (line: string) => { logs.push(JSON.parse(line) as TestPipeline['logs'][number]); } });
-      const pipeline = { ...startMailPipeline({ knex: ctx.knex, config, logger, relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 } }), logs };
+      const logger = pino(
+        { level: 'info' },
+        {
+          write: (line: string) => {
+            logs.push(JSON.parse(line) as TestPipeline['logs'][number]);
+          },
+        },
+      );
+      const pipeline = {
+        ...startMailPipeline({
+          knex: ctx.knex,
+          config,
+          logger,
+          relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 },
+        }),
+        logs,
+      };
       pipelines.push(pipeline);
       return pipeline;
     },
@@ -96,12 +142,23 @@ export async function startMailTestApp(overrides: Record<string, string> = {}): 
 }
 
 /** A pencilled booking of an unbooked tray job's stage on a named resource (demo scenario). */
-export async function pencilIn(knex: Knex, input: { job: string; stage: string; resource: string; startsAt: string; endsAt: string; state?: string }): Promise<{ id: string; version: number }> {
-  const stageId = await idOf(knex, 'stages', { job_id: await idOf(knex, 'jobs', { reference: input.job }), kind: input.stage });
-  const [row] = await knex('bookings').insert({
-    stage_id: stageId, resource_id: await idOf(knex, 'resources', { name: input.resource }),
-    starts_at: input.startsAt, ends_at: input.endsAt, state: input.state ?? 'pencilled',
-  }).returning(['id', 'version']);
+export async function pencilIn(
+  knex: Knex,
+  input: { job: string; stage: string; resource: string; startsAt: string; endsAt: string; state?: string },
+): Promise<{ id: string; version: number }> {
+  const stageId = await idOf(knex, 'stages', {
+    job_id: await idOf(knex, 'jobs', { reference: input.job }),
+    kind: input.stage,
+  });
+  const [row] = await knex('bookings')
+    .insert({
+      stage_id: stageId,
+      resource_id: await idOf(knex, 'resources', { name: input.resource }),
+      starts_at: input.startsAt,
+      ends_at: input.endsAt,
+      state: input.state ?? 'pencilled',
+    })
+    .returning(['id', 'version']);
   return { id: String(row.id), version: row.version };
 }
 
@@ -116,7 +173,14 @@ export function answerLinks(message: InboxMessage): { confirm: string; decline: 
 }
 
 /** The iCalendar part of a message, parsed by ical.js (an independent reader of RFC 5545). */
-export function calendarOf(message: InboxMessage): { method: string; uid: string; sequence: number; start: Date; end: Date; status: string } {
+export function calendarOf(message: InboxMessage): {
+  method: string;
+  uid: string;
+  sequence: number;
+  start: Date;
+  end: Date;
+  status: string;
+} {
   const part = message.attachments.find((a) => a.contentType.startsWith('text/calendar'));
   if (!part) throw new Error(`no text/calendar part in "${message.subject}"`);
   const cal = new ICAL.Component(ICAL.parse(part.content));

@@ -34,12 +34,17 @@ function newestSource(p: string): number {
  */
 export function assertFreshBuild(): void {
   if (!existsSync(WEB_ENTRY) || !existsSync(WORKER_ENTRY)) {
-    throw new Error('No production build in dist-server/: run these tests through `npm test -- tests/ops/…`, which builds it.');
+    throw new Error(
+      'No production build in dist-server/: run these tests through `npm test -- tests/ops/…`, which builds it.',
+    );
   }
   if (process.env.WATERLINE_SERVER_BUILD === 'fresh') return;
   const built = statSync(WEB_ENTRY).mtimeMs;
   const stale = SOURCES.filter((s) => newestSource(path.join(root, s)) > built);
-  if (stale.length) throw new Error(`dist-server/ is older than ${stale.join(', ')}: rebuild it (npm run build:server or npm test -- tests/ops/…).`);
+  if (stale.length)
+    throw new Error(
+      `dist-server/ is older than ${stale.join(', ')}: rebuild it (npm run build:server or npm test -- tests/ops/…).`,
+    );
 }
 
 export async function freePort(): Promise<number> {
@@ -71,14 +76,22 @@ export function startNode(name: string, entry: string, env: NodeJS.ProcessEnv): 
     env: { ...process.env, NODE_OPTIONS: '', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
-  child.stdout!.on('data', (c: Buffer) => { text += c.toString(); });
-  child.stderr!.on('data', (c: Buffer) => { text += c.toString(); });
-  const exited = new Promise<number | null>((resolve) => child.once('exit', (code, signal) => {
-    if (signal) text += `\n[${name} ended by ${signal}]`;
-    resolve(code);
-  }));
+  child.stdout!.on('data', (c: Buffer) => {
+    text += c.toString();
+  });
+  child.stderr!.on('data', (c: Buffer) => {
+    text += c.toString();
+  });
+  const exited = new Promise<number | null>((resolve) =>
+    child.once('exit', (code, signal) => {
+      if (signal) text += `\n[${name} ended by ${signal}]`;
+      resolve(code);
+    }),
+  );
   return {
-    name, child, exited,
+    name,
+    child,
+    exited,
     output: () => text,
     async stop(signal = 'SIGTERM') {
       if (child.exitCode === null && child.signalCode === null) child.kill(signal);
@@ -88,23 +101,44 @@ export function startNode(name: string, entry: string, env: NodeJS.ProcessEnv): 
 }
 
 /** Polls `check` every 100 ms until it holds, for at most `timeoutMs`; the error names `what` and the process output. */
-export async function until(what: string, check: () => boolean | Promise<boolean>, timeoutMs = 30_000, output: () => string = () => ''): Promise<void> {
+export async function until(
+  what: string,
+  check: () => boolean | Promise<boolean>,
+  timeoutMs = 30_000,
+  output: () => string = () => '',
+): Promise<void> {
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
     if (await check()) return;
     await new Promise((r) => setTimeout(r, 100));
   }
-  throw new Error(`${what} did not happen within ${timeoutMs / 1000} s${output() ? `; output:\n${output().slice(-3000)}` : ''}`);
+  throw new Error(
+    `${what} did not happen within ${timeoutMs / 1000} s${output() ? `; output:\n${output().slice(-3000)}` : ''}`,
+  );
 }
 
 /** A compiled web process on a free port; resolves once /api/health/ready says ready. */
 export async function startWeb(name: string, env: NodeJS.ProcessEnv): Promise<Started & { port: number; url: string }> {
   const port = await freePort();
   const url = `http://127.0.0.1:${port}`;
-  const web = startNode(name, WEB_ENTRY, { HOST: '127.0.0.1', PORT: String(port), PUBLIC_URL: url, RUN_WORKER: '0', ...env });
-  await until(`${name} to be ready`, async () => {
-    if (web.child.exitCode !== null) throw new Error(`${name} exited with ${web.child.exitCode}:\n${web.output()}`);
-    return fetch(`${url}/api/health/ready`).then((r) => r.status === 200, () => false);
-  }, 120_000, web.output);
+  const web = startNode(name, WEB_ENTRY, {
+    HOST: '127.0.0.1',
+    PORT: String(port),
+    PUBLIC_URL: url,
+    RUN_WORKER: '0',
+    ...env,
+  });
+  await until(
+    `${name} to be ready`,
+    async () => {
+      if (web.child.exitCode !== null) throw new Error(`${name} exited with ${web.child.exitCode}:\n${web.output()}`);
+      return fetch(`${url}/api/health/ready`).then(
+        (r) => r.status === 200,
+        () => false,
+      );
+    },
+    120_000,
+    web.output,
+  );
   return { ...web, port, url };
 }

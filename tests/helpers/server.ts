@@ -19,15 +19,38 @@ export interface TestContext {
 }
 
 /** The tables the demo scenario fills (emptied before each seeding). */
-export const SEEDED_TABLES = ['audit_log', 'bookings', 'dependencies', 'stages', 'jobs', 'units', 'lead_time_rules', 'hire_periods',
-  'calendar_exceptions', 'crew_members', 'resources', 'calendars', 'partnerships', 'memberships', 'users', 'firms', 'session'];
+export const SEEDED_TABLES = [
+  'audit_log',
+  'bookings',
+  'dependencies',
+  'stages',
+  'jobs',
+  'units',
+  'lead_time_rules',
+  'hire_periods',
+  'calendar_exceptions',
+  'crew_members',
+  'resources',
+  'calendars',
+  'partnerships',
+  'memberships',
+  'users',
+  'firms',
+  'session',
+];
 
 export function testConfig(overrides: Partial<Record<string, string>> = {}): Config {
   if (!process.env.DATABASE_URL || !process.env.FAKE_OAUTH_URL) {
     throw new Error('Server tests need PostgreSQL, Redis and the fake sign-in provider: run them with `npm test`.');
   }
   // Generous rate limits, and Redis keys of their own, so one test's requests never use up another's budget.
-  const limits = { SIGN_IN_RATE_LIMIT: '10000', ANSWER_LINK_RATE_LIMIT: '10000', INVITE_LINK_RATE_LIMIT: '10000', FEED_RATE_LIMIT: '10000', RATE_LIMIT_PREFIX: `waterline-test:${randomUUID()}` };
+  const limits = {
+    SIGN_IN_RATE_LIMIT: '10000',
+    ANSWER_LINK_RATE_LIMIT: '10000',
+    INVITE_LINK_RATE_LIMIT: '10000',
+    FEED_RATE_LIMIT: '10000',
+    RATE_LIMIT_PREFIX: `waterline-test:${randomUUID()}`,
+  };
   return loadConfig({ ...process.env, LOG_LEVEL: process.env.TEST_LOG_LEVEL ?? 'silent', ...limits, ...overrides });
 }
 
@@ -40,8 +63,13 @@ export async function startTestApp(overrides: Partial<Record<string, string>> = 
   await seedDemo(knex, { today: TEST_TODAY });
   const waterline = createApp({ config, knex, now: () => TEST_TODAY.getTime() });
   return {
-    config, knex, waterline,
-    async close() { await waterline.close(); await knex.destroy(); },
+    config,
+    knex,
+    waterline,
+    async close() {
+      await waterline.close();
+      await knex.destroy();
+    },
   };
 }
 
@@ -63,7 +91,9 @@ export async function signIn(ctx: { waterline: { app: WaterlineApp['app'] | stri
   const callback = new URL(provider.headers.get('location') ?? '');
   const done = await agent.get(callback.pathname + callback.search);
   if (done.status !== 302 || done.headers.location !== '/jobs') {
-    throw Object.assign(new Error(`sign-in as ${email} ended at ${done.status} ${done.headers.location}`), { location: done.headers.location });
+    throw Object.assign(new Error(`sign-in as ${email} ended at ${done.status} ${done.headers.location}`), {
+      location: done.headers.location,
+    });
   }
   const session = await agent.get('/api/session').expect(200);
   agent.csrf = session.body.csrfToken;
@@ -86,7 +116,8 @@ export async function idOf(knex: Knex, table: string, where: Record<string, unkn
 /** The session cookie of a signed-in agent, to send with plain fetch (e.g. for the live stream). */
 export function sessionCookieOf(agent: Agent): string {
   return (agent as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }).jar
-    .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString();
+    .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false })
+    .toValueString();
 }
 
 /** An open live board stream, read as text as it arrives. */
@@ -102,21 +133,32 @@ export interface StreamReader {
 /** Opens GET /api/board/stream as a signed-in agent on a listening server at 127.0.0.1:`port`. */
 export async function openBoardStream(agent: Agent, port: number): Promise<StreamReader> {
   const controller = new AbortController();
-  const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, { headers: { cookie: sessionCookieOf(agent) }, signal: controller.signal });
+  const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, {
+    headers: { cookie: sessionCookieOf(agent) },
+    signal: controller.signal,
+  });
   if (res.status !== 200) throw new Error(`the stream answered ${res.status}`);
   const reader = res.body!.getReader();
   let text = '';
   let done = false;
   let pending: Promise<void> | null = null;
-  const pump = () => (pending ??= reader.read().then((r) => {
-    pending = null;
-    if (r.done) done = true; else text += new TextDecoder().decode(r.value);
-  }));
+  const pump = () =>
+    (pending ??= reader.read().then((r) => {
+      pending = null;
+      if (r.done) done = true;
+      else text += new TextDecoder().decode(r.value);
+    }));
   await pump(); // the retry line: the stream is open
   return {
     text: () => text,
-    async until(pred) { while (!pred(text) && !done) await pump(); return text; },
-    async ended() { while (!done) await pump(); return true; },
+    async until(pred) {
+      while (!pred(text) && !done) await pump();
+      return text;
+    },
+    async ended() {
+      while (!done) await pump();
+      return true;
+    },
     close: () => controller.abort(),
   };
 }

@@ -6,7 +6,17 @@ import knexFactory, { type Knex } from 'knex';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { migrationConfig } from '../../server/db.ts';
 import { account, signIn } from '../helpers/server.ts';
-import { assertFreshBuild, DIST_SERVER, NO_TYPESCRIPT, root, startNode, startWeb, until, WEB_ENTRY, WORKER_ENTRY } from '../helpers/processes.ts';
+import {
+  assertFreshBuild,
+  DIST_SERVER,
+  NO_TYPESCRIPT,
+  root,
+  startNode,
+  startWeb,
+  until,
+  WEB_ENTRY,
+  WORKER_ENTRY,
+} from '../helpers/processes.ts';
 
 /**
  * The production build (`npm run build`: the client by Vite into dist/, the server side by tsc into
@@ -24,9 +34,17 @@ const stops: (() => Promise<void>)[] = [];
 function runNode(args: string[], env: NodeJS.ProcessEnv): Promise<{ code: number | null; output: string }> {
   return new Promise((resolve) => {
     let output = '';
-    const child = spawn(process.execPath, ['--import', NO_TYPESCRIPT, ...args], { cwd: root, env: { ...process.env, NODE_OPTIONS: '', ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
-    child.stdout.on('data', (c: Buffer) => { output += c.toString(); });
-    child.stderr.on('data', (c: Buffer) => { output += c.toString(); });
+    const child = spawn(process.execPath, ['--import', NO_TYPESCRIPT, ...args], {
+      cwd: root,
+      env: { ...process.env, NODE_OPTIONS: '', ...env },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
+    child.stdout.on('data', (c: Buffer) => {
+      output += c.toString();
+    });
+    child.stderr.on('data', (c: Buffer) => {
+      output += c.toString();
+    });
     child.once('exit', (code) => resolve({ code, output }));
   });
 }
@@ -52,16 +70,20 @@ describe('the production build', () => {
   });
 
   it('migrates an empty database with the compiled migrations, which the source migrator then finds complete', async () => {
-    const { code, output } = await runNode([path.join(DIST_SERVER, 'scripts', 'migrate.js'), 'latest', '--seed'], { DATABASE_URL: buildUrl });
+    const { code, output } = await runNode([path.join(DIST_SERVER, 'scripts', 'migrate.js'), 'latest', '--seed'], {
+      DATABASE_URL: buildUrl,
+    });
     expect(code, output).toBe(0);
-    const sources = readdirSync(path.join(root, 'migrations')).filter((f) => /^\d+_.+\.ts$/.test(f)).sort();
+    const sources = readdirSync(path.join(root, 'migrations'))
+      .filter((f) => /^\d+_.+\.ts$/.test(f))
+      .sort();
     expect(output).toContain(`Applied ${sources.length} migration(s).`);
     expect(output).toMatch(/Seeded the demo scenario: \d+ jobs/);
 
     // Recorded under their source names, so development and production agree on what has run.
     const knex = knexFactory({ client: 'pg', connection: buildUrl, pool: { min: 0, max: 1 } });
     try {
-      const [done, pending] = await knex.migrate.list(migrationConfig) as [{ name: string }[], unknown[]];
+      const [done, pending] = (await knex.migrate.list(migrationConfig)) as [{ name: string }[], unknown[]];
       expect(pending).toEqual([]);
       expect(done.map((m) => m.name)).toEqual(sources);
     } finally {
@@ -71,8 +93,12 @@ describe('the production build', () => {
 
   it('serves with plain node in production mode: ready, signed-in API calls, the built client, a clean stop', async () => {
     const web = await startWeb('web', {
-      NODE_ENV: 'production', DATABASE_URL: buildUrl, LOG_LEVEL: 'warn', MAIL_QUEUE: `build-test-${process.pid}`,
-      SESSION_SECRET: randomBytes(24).toString('base64url'), LINK_SECRET: randomBytes(32).toString('base64url'),
+      NODE_ENV: 'production',
+      DATABASE_URL: buildUrl,
+      LOG_LEVEL: 'warn',
+      MAIL_QUEUE: `build-test-${process.pid}`,
+      SESSION_SECRET: randomBytes(24).toString('base64url'),
+      LINK_SECRET: randomBytes(32).toString('base64url'),
     });
     stops.push(() => web.stop());
     expect(web.child.spawnargs).toEqual([process.execPath, '--import', NO_TYPESCRIPT, WEB_ENTRY]);
@@ -87,8 +113,14 @@ describe('the production build', () => {
     const jobs = await scheduler.get('/api/jobs').expect(200);
     expect(JSON.stringify(jobs.body)).toContain('TW-2417');
     // A write through the CSRF check and the write path: a new job.
-    const created = await scheduler.post('/api/jobs').set('X-CSRF-Token', scheduler.csrf)
-      .send({ reference: 'BUILD-1', customerName: 'Ida Penrose', siteAddress: '4 Wren Close', siteTown: 'Ilkley', sitePostcode: 'LS29 9AB', installationType: 'slab' });
+    const created = await scheduler.post('/api/jobs').set('X-CSRF-Token', scheduler.csrf).send({
+      reference: 'BUILD-1',
+      customerName: 'Ida Penrose',
+      siteAddress: '4 Wren Close',
+      siteTown: 'Ilkley',
+      sitePostcode: 'LS29 9AB',
+      installationType: 'slab',
+    });
     expect(created.status, JSON.stringify(created.body)).toBe(201);
 
     // The client Vite built, found from dist-server/ (a page route gets the app's index.html).
@@ -103,8 +135,12 @@ describe('the production build', () => {
 
   it('runs the worker with plain node until SIGTERM', async () => {
     const worker = startNode('worker', WORKER_ENTRY, {
-      NODE_ENV: 'production', DATABASE_URL: buildUrl, LOG_LEVEL: 'info', MAIL_QUEUE: `build-test-${process.pid}`,
-      SESSION_SECRET: randomBytes(24).toString('base64url'), LINK_SECRET: randomBytes(32).toString('base64url'),
+      NODE_ENV: 'production',
+      DATABASE_URL: buildUrl,
+      LOG_LEVEL: 'info',
+      MAIL_QUEUE: `build-test-${process.pid}`,
+      SESSION_SECRET: randomBytes(24).toString('base64url'),
+      LINK_SECRET: randomBytes(32).toString('base64url'),
       PUBLIC_URL: 'https://plan.build-test.example',
     });
     stops.push(() => worker.stop());

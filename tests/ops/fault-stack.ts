@@ -29,17 +29,26 @@ export async function freePort(): Promise<number> {
 }
 
 /** Polls `check` every 100 ms until it returns a truthy value, or fails after `timeoutMs`. */
-export async function until<T>(what: string, check: () => T | Promise<T>, timeoutMs: number, log: () => string = () => ''): Promise<NonNullable<T>> {
+export async function until<T>(
+  what: string,
+  check: () => T | Promise<T>,
+  timeoutMs: number,
+  log: () => string = () => '',
+): Promise<NonNullable<T>> {
   const deadline = Date.now() + timeoutMs;
   let last: unknown;
   while (Date.now() < deadline) {
     try {
       const value = await check();
       if (value) return value as NonNullable<T>;
-    } catch (error) { last = error; }
+    } catch (error) {
+      last = error;
+    }
     await new Promise((r) => setTimeout(r, 100));
   }
-  throw new Error(`${what} did not happen within ${timeoutMs / 1000} s${last ? ` (last error: ${String(last)})` : ''}${log() ? `; output:\n${log().slice(-3000)}` : ''}`);
+  throw new Error(
+    `${what} did not happen within ${timeoutMs / 1000} s${last ? ` (last error: ${String(last)})` : ''}${log() ? `; output:\n${log().slice(-3000)}` : ''}`,
+  );
 }
 
 export interface FaultStack {
@@ -86,27 +95,58 @@ export async function startFaultStack(database: string): Promise<FaultStack> {
   let signer: TestContext | null = null;
 
   const stack: FaultStack = {
-    dataDir, config, knex, inbox, app: null,
-    stopPostgres() { pg?.stop(); pg = null; },
-    async startPostgres() { pg = await startPostgres(dataDir, pgPort); },
-    stopRedis() { redis?.stop(); redis = null; },
-    async startRedis() { redis = await startRedis(dataDir, redisPort); },
+    dataDir,
+    config,
+    knex,
+    inbox,
+    app: null,
+    stopPostgres() {
+      pg?.stop();
+      pg = null;
+    },
+    async startPostgres() {
+      pg = await startPostgres(dataDir, pgPort);
+    },
+    stopRedis() {
+      redis?.stop();
+      redis = null;
+    },
+    async startRedis() {
+      redis = await startRedis(dataDir, redisPort);
+    },
     async startServer(env = {}) {
       output = '';
       child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
         cwd: path.resolve('.'),
         env: {
-          ...process.env, NODE_ENV: 'test', LOG_LEVEL: 'warn', RUN_WORKER: '1',
-          DATABASE_URL: config.DATABASE_URL, REDIS_URL: config.REDIS_URL, SMTP_URL: config.SMTP_URL,
-          PUBLIC_URL: config.PUBLIC_URL, PORT: String(appPort), HOST: '127.0.0.1',
-          RATE_LIMIT_PREFIX: config.RATE_LIMIT_PREFIX, ...env,
+          ...process.env,
+          NODE_ENV: 'test',
+          LOG_LEVEL: 'warn',
+          RUN_WORKER: '1',
+          DATABASE_URL: config.DATABASE_URL,
+          REDIS_URL: config.REDIS_URL,
+          SMTP_URL: config.SMTP_URL,
+          PUBLIC_URL: config.PUBLIC_URL,
+          PORT: String(appPort),
+          HOST: '127.0.0.1',
+          RATE_LIMIT_PREFIX: config.RATE_LIMIT_PREFIX,
+          ...env,
         },
         stdio: ['ignore', 'pipe', 'pipe'],
       });
-      child.stdout!.on('data', (c: Buffer) => { output += c.toString(); });
-      child.stderr!.on('data', (c: Buffer) => { output += c.toString(); });
+      child.stdout!.on('data', (c: Buffer) => {
+        output += c.toString();
+      });
+      child.stderr!.on('data', (c: Buffer) => {
+        output += c.toString();
+      });
       stack.app = { port: appPort, url: config.PUBLIC_URL, output: () => output };
-      await until('the server to listen', () => output.includes('is listening'), 150_000, () => output);
+      await until(
+        'the server to listen',
+        () => output.includes('is listening'),
+        150_000,
+        () => output,
+      );
     },
     async stopServer() {
       const running = child;
@@ -137,18 +177,40 @@ export async function startFaultStack(database: string): Promise<FaultStack> {
 }
 
 /** A fetch to the spawned server as a signed-in agent (cookie and CSRF token), bounded in time. */
-export async function call(stack: FaultStack, agent: Agent, method: string, url: string, body?: unknown, timeoutMs = 15_000): Promise<{ status: number; type: string; body: Record<string, unknown>; ms: number }> {
+export async function call(
+  stack: FaultStack,
+  agent: Agent,
+  method: string,
+  url: string,
+  body?: unknown,
+  timeoutMs = 15_000,
+): Promise<{ status: number; type: string; body: Record<string, unknown>; ms: number }> {
   const started = performance.now();
   const res = await fetch(`${stack.app!.url}${url}`, {
     method,
-    headers: { cookie: sessionCookieOf(agent), 'x-csrf-token': agent.csrf, ...(body ? { 'content-type': 'application/json' } : {}) },
+    headers: {
+      cookie: sessionCookieOf(agent),
+      'x-csrf-token': agent.csrf,
+      ...(body ? { 'content-type': 'application/json' } : {}),
+    },
     body: body ? JSON.stringify(body) : undefined,
     signal: AbortSignal.timeout(timeoutMs),
   }).catch((error: unknown) => {
-    throw new Error(`${method} ${url} got no answer (${String(error)}); the server's output:\n${stack.app!.output().slice(-3000)}`);
+    throw new Error(
+      `${method} ${url} got no answer (${String(error)}); the server's output:\n${stack.app!.output().slice(-3000)}`,
+    );
   });
   const text = await res.text();
   let parsed: Record<string, unknown> = {};
-  try { parsed = text ? JSON.parse(text) as Record<string, unknown> : {}; } catch { parsed = { text }; }
-  return { status: res.status, type: res.headers.get('content-type') ?? '', body: parsed, ms: performance.now() - started };
+  try {
+    parsed = text ? (JSON.parse(text) as Record<string, unknown>) : {};
+  } catch {
+    parsed = { text };
+  }
+  return {
+    status: res.status,
+    type: res.headers.get('content-type') ?? '',
+    body: parsed,
+    ms: performance.now() - started,
+  };
 }

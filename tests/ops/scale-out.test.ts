@@ -1,7 +1,15 @@
 import { randomUUID } from 'node:crypto';
 import { Queue } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { account, idOf, openBoardStream, sessionCookieOf, signIn, type Agent, type StreamReader } from '../helpers/server.ts';
+import {
+  account,
+  idOf,
+  openBoardStream,
+  sessionCookieOf,
+  signIn,
+  type Agent,
+  type StreamReader,
+} from '../helpers/server.ts';
 import { startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
 import { makeJob } from '../helpers/flows.ts';
 import { assertFreshBuild, startNode, startWeb, until, WORKER_ENTRY, type Started } from '../helpers/processes.ts';
@@ -35,16 +43,27 @@ let jobs = 0;
 beforeAll(async () => {
   assertFreshBuild();
   ctx = await startMailTestApp({ PUBLIC_URL });
-  queue = new Queue<MailJobData>(ctx.config.MAIL_QUEUE, { connection: redisConnection(ctx.config.REDIS_URL), prefix: QUEUE_PREFIX });
+  queue = new Queue<MailJobData>(ctx.config.MAIL_QUEUE, {
+    connection: redisConnection(ctx.config.REDIS_URL),
+    prefix: QUEUE_PREFIX,
+  });
   crane = await idOf(ctx.knex, 'resources', { name: '60 t mobile crane' });
   const env = {
-    PUBLIC_URL, MAIL_QUEUE: ctx.config.MAIL_QUEUE, LOG_LEVEL: 'info',
+    PUBLIC_URL,
+    MAIL_QUEUE: ctx.config.MAIL_QUEUE,
+    LOG_LEVEL: 'info',
     // One rate-limit key space for the four processes, as one deployment has; sign-ins unlimited here.
-    RATE_LIMIT_PREFIX: `waterline-test:scale-out:${randomUUID()}`, FEED_RATE_LIMIT: String(FEED_LIMIT), SIGN_IN_RATE_LIMIT: '10000',
+    RATE_LIMIT_PREFIX: `waterline-test:scale-out:${randomUUID()}`,
+    FEED_RATE_LIMIT: String(FEED_LIMIT),
+    SIGN_IN_RATE_LIMIT: '10000',
   };
   [webA, webB] = await Promise.all([startWeb('web A', env), startWeb('web B', env)]);
   for (const name of ['worker 1', 'worker 2']) workers.push(startNode(name, WORKER_ENTRY, env));
-  await Promise.all(workers.map((w) => until(`${w.name} to start`, () => w.output().includes('mail worker started'), 120_000, w.output)));
+  await Promise.all(
+    workers.map((w) =>
+      until(`${w.name} to start`, () => w.output().includes('mail worker started'), 120_000, w.output),
+    ),
+  );
   onA = await signIn({ waterline: { app: webA.url } }, account('scheduler').email);
   onB = await signIn({ waterline: { app: webB.url } }, account('scheduler').email);
   stream = await openBoardStream(onA, webA.port);
@@ -60,8 +79,14 @@ afterAll(async () => {
 /** A new job of Tideway's with one two-hour crane lift, booked through `agent` on `day` and sent to the crane firm. */
 async function bookAndSend(agent: Agent, day: string): Promise<string> {
   jobs += 1;
-  const job = await makeJob(ctx.knex, { reference: `SO-${jobs}`, stages: [{ kind: 'lift', name: 'Crane lift', minutes: 120, needs: { crane: 1 } }], links: [] });
-  const booked = await agent.post('/api/bookings').set('X-CSRF-Token', agent.csrf)
+  const job = await makeJob(ctx.knex, {
+    reference: `SO-${jobs}`,
+    stages: [{ kind: 'lift', name: 'Crane lift', minutes: 120, needs: { crane: 1 } }],
+    links: [],
+  });
+  const booked = await agent
+    .post('/api/bookings')
+    .set('X-CSRF-Token', agent.csrf)
     .send({ stageId: job.stage.lift, resourceId: crane, startsAt: `${day}T09:00:00Z`, endsAt: `${day}T11:00:00Z` });
   expect(booked.status, JSON.stringify(booked.body)).toBe(201);
   const { id, version } = booked.body.bookings[0] as { id: string; version: number };
@@ -79,16 +104,26 @@ function workingDays(from: number, count: number): string[] {
 }
 
 /** The request e-mails in the inbox about a booking (its invite's UID, RFC 5545 §3.8.4.7, is on PUBLIC_URL's host). */
-const about = (id: string) => (m: InboxMessage) => m.attachments.some((a) => a.content.includes(`UID:booking-${id}@plan.scale-out.example`));
+const about = (id: string) => (m: InboxMessage) =>
+  m.attachments.some((a) => a.content.includes(`UID:booking-${id}@plan.scale-out.example`));
 
 /** Until every outbox row of these bookings is sent and the queue holds nothing waiting, running or delayed. */
 async function mailSettled(ids: string[], timeoutMs: number): Promise<void> {
-  await until('the mail to settle', async () => {
-    const open = await ctx.knex('outbox').whereRaw("payload->>'bookingId' = ANY(?)", [ids]).whereNot('status', 'sent').count<{ n: string }[]>('* as n');
-    if (Number(open[0]!.n) > 0) return false;
-    const counts = await queue.getJobCounts('waiting', 'active', 'delayed', 'prioritized', 'waiting-children');
-    return Object.values(counts).every((n) => n === 0);
-  }, timeoutMs, () => workers.map((w) => `${w.name}:\n${w.output()}`).join('\n'));
+  await until(
+    'the mail to settle',
+    async () => {
+      const open = await ctx
+        .knex('outbox')
+        .whereRaw("payload->>'bookingId' = ANY(?)", [ids])
+        .whereNot('status', 'sent')
+        .count<{ n: string }[]>('* as n');
+      if (Number(open[0]!.n) > 0) return false;
+      const counts = await queue.getJobCounts('waiting', 'active', 'delayed', 'prioritized', 'waiting-children');
+      return Object.values(counts).every((n) => n === 0);
+    },
+    timeoutMs,
+    () => workers.map((w) => `${w.name}:\n${w.output()}`).join('\n'),
+  );
 }
 
 describe('two web processes and two workers over one PostgreSQL and Redis', () => {
@@ -103,12 +138,20 @@ describe('two web processes and two workers over one PostgreSQL and Redis', () =
     for (const day of workingDays(0, 8)) sent.push(await bookAndSend(onB, day));
 
     // Every committed change to a booking (an audit row each) is heard on A, none lost.
-    const audits = await ctx.knex('audit_log').where('entity', 'booking').whereIn('entity_id', sent).select('entity_id');
+    const audits = await ctx
+      .knex('audit_log')
+      .where('entity', 'booking')
+      .whereIn('entity_id', sent)
+      .select('entity_id');
     const expected = new Map(sent.map((id) => [id, audits.filter((a) => String(a.entityId) === id).length]));
     expect([...expected.values()].every((n) => n >= 2)).toBe(true); // booked, then sent
-    const heard = (text: string, id: string) => text.split(`event: bookings\ndata: {"bookingId":"${id}"}\n\n`).length - 1;
+    const heard = (text: string, id: string) =>
+      text.split(`event: bookings\ndata: {"bookingId":"${id}"}\n\n`).length - 1;
     const allHeard = stream.until((t) => sent.every((id) => heard(t, id) >= expected.get(id)!));
-    const text = await Promise.race([allHeard, new Promise<string>((r) => setTimeout(() => r(stream.text()), 15_000).unref())]);
+    const text = await Promise.race([
+      allHeard,
+      new Promise<string>((r) => setTimeout(() => r(stream.text()), 15_000).unref()),
+    ]);
     expect(Object.fromEntries(sent.map((id) => [id, heard(text, id)]))).toEqual(Object.fromEntries(expected));
     expect(stream.text()).not.toContain('event: resync');
 
@@ -130,13 +173,27 @@ describe('two web processes and two workers over one PostgreSQL and Redis', () =
 
   it('give one of two conflicting writes at once, one on A and one on B, and refuse the other with 409', async () => {
     jobs += 1;
-    const job = await makeJob(ctx.knex, { reference: `SO-${jobs}`, stages: [{ kind: 'handover', name: 'Handover', minutes: 60, needs: { install_crew: 1 } }], links: [] });
+    const job = await makeJob(ctx.knex, {
+      reference: `SO-${jobs}`,
+      stages: [{ kind: 'handover', name: 'Handover', minutes: 60, needs: { install_crew: 1 } }],
+      links: [],
+    });
     const otter = await idOf(ctx.knex, 'resources', { name: 'Crew Otter' });
-    const booked = await onA.post('/api/bookings').set('X-CSRF-Token', onA.csrf).send({ stageId: job.stage.handover, resourceId: otter, startsAt: '2027-10-04T09:00:00Z' });
+    const booked = await onA
+      .post('/api/bookings')
+      .set('X-CSRF-Token', onA.csrf)
+      .send({ stageId: job.stage.handover, resourceId: otter, startsAt: '2027-10-04T09:00:00Z' });
     expect(booked.status, JSON.stringify(booked.body)).toBe(201);
     const { id, version } = booked.body.bookings[0] as { id: string; version: number };
-    const move = (agent: Agent, hour: string) => agent.patch(`/api/bookings/${id}`).set('X-CSRF-Token', agent.csrf)
-      .send({ version, startsAt: `2027-10-05T${hour}:00:00Z`, endsAt: `2027-10-05T${String(Number(hour) + 1).padStart(2, '0')}:00:00Z` });
+    const move = (agent: Agent, hour: string) =>
+      agent
+        .patch(`/api/bookings/${id}`)
+        .set('X-CSRF-Token', agent.csrf)
+        .send({
+          version,
+          startsAt: `2027-10-05T${hour}:00:00Z`,
+          endsAt: `2027-10-05T${String(Number(hour) + 1).padStart(2, '0')}:00:00Z`,
+        });
     const [a, b] = await Promise.all([move(onA, '09'), move(onB, '13')]);
     expect([a.status, b.status].sort(), JSON.stringify([a.body, b.body])).toEqual([200, 409]);
     const winner = a.status === 200 ? '09' : '13';

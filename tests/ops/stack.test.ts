@@ -24,21 +24,35 @@ async function freePort(): Promise<number> {
 function listening(port: number): Promise<boolean> {
   return new Promise((resolve) => {
     const socket = connect(port, '127.0.0.1');
-    socket.once('connect', () => { socket.destroy(); resolve(true); });
+    socket.once('connect', () => {
+      socket.destroy();
+      resolve(true);
+    });
     socket.once('error', () => resolve(false));
   });
 }
 
-async function until(what: string, check: () => boolean | Promise<boolean>, timeoutMs: number, log: () => string = () => ''): Promise<void> {
+async function until(
+  what: string,
+  check: () => boolean | Promise<boolean>,
+  timeoutMs: number,
+  log: () => string = () => '',
+): Promise<void> {
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
     if (await check()) return;
     await new Promise((r) => setTimeout(r, 200));
   }
-  throw new Error(`${what} did not happen within ${timeoutMs / 1000} s${log() ? `; its output:\n${log().slice(-3000)}` : ''}`);
+  throw new Error(
+    `${what} did not happen within ${timeoutMs / 1000} s${log() ? `; its output:\n${log().slice(-3000)}` : ''}`,
+  );
 }
 
-interface Started { child: ChildProcess; output: () => string; exited: Promise<number | null> }
+interface Started {
+  child: ChildProcess;
+  output: () => string;
+  exited: Promise<number | null>;
+}
 
 /** `node scripts/bootstrap.mjs start` in its own process group, as a terminal runs it. */
 function startStack(ports: { pg: number; redis: number; app: number }): Started {
@@ -48,20 +62,30 @@ function startStack(ports: { pg: number; redis: number; app: number }): Started 
     detached: true,
     env: {
       ...process.env,
-      WATERLINE_DATA_DIR: dataDir, WATERLINE_PG_PORT: String(ports.pg), WATERLINE_REDIS_PORT: String(ports.redis),
-      PORT: String(ports.app), WATERLINE_FAKE_PORTS: 'free', LOG_LEVEL: 'warn',
+      WATERLINE_DATA_DIR: dataDir,
+      WATERLINE_PG_PORT: String(ports.pg),
+      WATERLINE_REDIS_PORT: String(ports.redis),
+      PORT: String(ports.app),
+      WATERLINE_FAKE_PORTS: 'free',
+      LOG_LEVEL: 'warn',
     },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
-  child.stdout!.on('data', (c: Buffer) => { text += c.toString(); });
-  child.stderr!.on('data', (c: Buffer) => { text += c.toString(); });
+  child.stdout!.on('data', (c: Buffer) => {
+    text += c.toString();
+  });
+  child.stderr!.on('data', (c: Buffer) => {
+    text += c.toString();
+  });
   const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
   return { child, output: () => text, exited };
 }
 
 /** What the terminal does on Ctrl-C: the signal goes to every process of the foreground group. */
 function ctrlC(s: Started): void {
-  try { process.kill(-s.child.pid!, 'SIGINT'); } catch (error) {
+  try {
+    process.kill(-s.child.pid!, 'SIGINT');
+  } catch (error) {
     // The group is gone: the first Ctrl-C already finished stopping everything.
     if ((error as NodeJS.ErrnoException).code !== 'ESRCH') throw error;
   }
@@ -70,12 +94,15 @@ function ctrlC(s: Started): void {
 const ports = { pg: 0, redis: 0, app: 0 };
 afterAll(async () => {
   // Whatever a failed run left behind, stopped the hard way.
-  const run = (cmd: string, args: string[]) => new Promise((r) => spawn(cmd, args, { stdio: 'ignore' }).once('exit', r).once('error', r));
-  if (ports.redis && await listening(ports.redis)) await run('redis-cli', ['-p', String(ports.redis), 'shutdown', 'nosave']);
-  if (ports.pg && await listening(ports.pg)) {
+  const run = (cmd: string, args: string[]) =>
+    new Promise((r) => spawn(cmd, args, { stdio: 'ignore' }).once('exit', r).once('error', r));
+  if (ports.redis && (await listening(ports.redis)))
+    await run('redis-cli', ['-p', String(ports.redis), 'shutdown', 'nosave']);
+  if (ports.pg && (await listening(ports.pg))) {
     const versions = readdirSync('/usr/lib/postgresql').sort((a, b) => Number(b) - Number(a));
     const pgCtl = path.join('/usr/lib/postgresql', versions[0] ?? '', 'bin', 'pg_ctl');
-    const asPostgres = process.getuid?.() === 0 ? ['runuser', ['-u', 'postgres', '--', pgCtl]] as const : [pgCtl, []] as const;
+    const asPostgres =
+      process.getuid?.() === 0 ? (['runuser', ['-u', 'postgres', '--', pgCtl]] as const) : ([pgCtl, []] as const);
     await run(asPostgres[0], [...asPostgres[1], '-D', path.join(dataDir, 'pg'), '-m', 'immediate', 'stop']);
   }
   rmSync(dataDir, { recursive: true, force: true });

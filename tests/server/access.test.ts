@@ -40,10 +40,17 @@ beforeAll(async () => {
   tideway = await idOf(k, 'firms', { name: 'Tideway Hot Tubs' });
   const moorview = await idOf(k, 'firms', { name: 'Moorview Spas' });
   const bookingOf = (where: (q: ReturnType<typeof k>) => unknown) => {
-    const q = k('bookings').join('stages', 'stages.id', 'bookings.stage_id').join('jobs', 'jobs.id', 'stages.job_id')
-      .join('resources', 'resources.id', 'bookings.resource_id').orderBy('bookings.id');
+    const q = k('bookings')
+      .join('stages', 'stages.id', 'bookings.stage_id')
+      .join('jobs', 'jobs.id', 'stages.job_id')
+      .join('resources', 'resources.id', 'bookings.resource_id')
+      .orderBy('bookings.id');
     where(q);
-    return q.first('bookings.id', 'bookings.stage_id as stageId', 'jobs.id as jobId') as Promise<{ id: string; stageId: string; jobId: string }>;
+    return q.first('bookings.id', 'bookings.stage_id as stageId', 'jobs.id as jobId') as Promise<{
+      id: string;
+      stageId: string;
+      jobId: string;
+    }>;
   };
 
   // Tideway's office: job TW-2405 and one of its bookings; its approved hire of the 3 t excavator.
@@ -59,10 +66,27 @@ beforeAll(async () => {
   // Another installer's rows: Moorview's job, stage and booking, a file and a hire period of theirs.
   const mvJob = await idOf(k, 'jobs', { reference: 'MV-118' });
   const mv = await bookingOf((q) => q.where('jobs.id', mvJob));
-  const [mvFile] = await k('job_files').insert({ job_id: mvJob, object_key: 'jobs/mv/plan.pdf', name: 'plan.pdf', content_type: 'application/pdf', size_bytes: 10 }).returning('id');
+  const [mvFile] = await k('job_files')
+    .insert({
+      job_id: mvJob,
+      object_key: 'jobs/mv/plan.pdf',
+      name: 'plan.pdf',
+      content_type: 'application/pdf',
+      size_bytes: 10,
+    })
+    .returning('id');
   const priya = await idOf(k, 'resources', { name: 'Priya Nair' });
-  const [mvHire] = await k('hire_periods').insert({ resource_id: priya, hirer_firm_id: moorview, supplier_firm_id: await idOf(k, 'firms', { name: 'Brightspark Electrical' }),
-    on_hire_at: new Date('2026-06-08T07:00:00Z'), off_hire_at: new Date('2026-06-08T16:00:00Z'), day_rate_pence: 30000, status: 'requested' }).returning('id');
+  const [mvHire] = await k('hire_periods')
+    .insert({
+      resource_id: priya,
+      hirer_firm_id: moorview,
+      supplier_firm_id: await idOf(k, 'firms', { name: 'Brightspark Electrical' }),
+      on_hire_at: new Date('2026-06-08T07:00:00Z'),
+      off_hire_at: new Date('2026-06-08T16:00:00Z'),
+      day_rate_pence: 30000,
+      status: 'requested',
+    })
+    .returning('id');
   // Another partner firm's: a crane booking of Fellside's, and Northgate's electrician.
   const crane = await bookingOf((q) => q.where('resources.name', 'like', '%crane%'));
   const gareth = await idOf(k, 'resources', { name: 'Gareth Pryce' });
@@ -72,26 +96,54 @@ beforeAll(async () => {
   const noFile = '999999999';
   own = {
     office: { job: twJob, stage: twBooking.stageId, booking: twBooking.id, file: noFile, person: tom, hire: twHire },
-    crew: { job: String(heron.jobId), stage: String(heron.stageId), booking: String(heron.id), file: noFile, person: tom, hire: twHire },
-    partner: { job: String(slot.jobId), stage: String(slot.stageId), booking: String(slot.id), file: noFile, person: tom, hire: twHire },
+    crew: {
+      job: String(heron.jobId),
+      stage: String(heron.stageId),
+      booking: String(heron.id),
+      file: noFile,
+      person: tom,
+      hire: twHire,
+    },
+    partner: {
+      job: String(slot.jobId),
+      stage: String(slot.stageId),
+      booking: String(slot.id),
+      file: noFile,
+      person: tom,
+      hire: twHire,
+    },
   };
-  const theirs = { job: mvJob, stage: String(mv.stageId), booking: String(mv.id), file: String(mvFile.id), person: mvCrew, hire: String(mvHire.id) };
+  const theirs = {
+    job: mvJob,
+    stage: String(mv.stageId),
+    booking: String(mv.id),
+    file: String(mvFile.id),
+    person: mvCrew,
+    hire: String(mvHire.id),
+  };
   other = { office: theirs, crew: theirs, partner: { ...theirs, booking: String(crane.id), person: gareth } };
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe('the route table', () => {
   it('holds every route Express knows, each with an access rule', () => {
     const table = new Set(ctx.waterline.routes.routes.map((r) => `${r.method.toUpperCase()} ${r.path}`));
     const express: string[] = [];
-    for (const layer of (ctx.waterline.app.router as unknown as { stack: { route?: { path: string; methods: Record<string, boolean> } }[] }).stack) {
+    for (const layer of (
+      ctx.waterline.app.router as unknown as { stack: { route?: { path: string; methods: Record<string, boolean> } }[] }
+    ).stack) {
       if (!layer.route) continue;
       for (const m of Object.keys(layer.route.methods)) express.push(`${m.toUpperCase()} ${layer.route.path}`);
     }
     expect(express.length).toBeGreaterThan(10);
     expect(express.filter((r) => !table.has(r))).toEqual([]);
     for (const r of ctx.waterline.routes.routes) {
-      expect(r.access === 'public' || r.access === 'signed-in' || r.access in PERMISSIONS, `${r.method} ${r.path}`).toBe(true);
+      expect(
+        r.access === 'public' || r.access === 'signed-in' || r.access in PERMISSIONS,
+        `${r.method} ${r.path}`,
+      ).toBe(true);
     }
   });
 
@@ -113,7 +165,8 @@ describe('the route table', () => {
   });
 
   it('checks each read against its own permission, not a borrowed one', () => {
-    const rule = (method: string, path: string) => ctx.waterline.routes.routes.find((r) => r.method === method && r.path === path)?.access;
+    const rule = (method: string, path: string) =>
+      ctx.waterline.routes.routes.find((r) => r.method === method && r.path === path)?.access;
     expect(rule('get', '/api/board')).toBe('board:read');
     expect(rule('get', '/api/board/stream')).toBe('board:read');
     expect(rule('get', '/api/jobs/:id')).toBe('jobs:read');
@@ -128,14 +181,24 @@ describe('the route table', () => {
 const RANGE = { from: '2026-06-01T00:00:00Z', to: '2026-06-29T00:00:00Z' };
 /** Queries a read needs to get past validation, so it reaches the service. */
 const QUERIES: Record<string, Record<string, string>> = {
-  '/api/board': RANGE, '/api/bookings': RANGE, '/api/my-work': RANGE,
-  '/api/day-sheets': { date: '2026-06-08' }, '/api/partner/day-sheets': { date: '2026-06-08' },
+  '/api/board': RANGE,
+  '/api/bookings': RANGE,
+  '/api/my-work': RANGE,
+  '/api/day-sheets': { date: '2026-06-08' },
+  '/api/partner/day-sheets': { date: '2026-06-08' },
 };
 
 function idKindOf(path: string): IdKind | null {
   if (!path.includes(':id')) return null;
-  const kinds: [string, IdKind][] = [['/api/jobs/', 'job'], ['/api/stages/', 'stage'], ['/api/bookings/', 'booking'], ['/api/files/', 'file'],
-    ['/api/partner/slots/', 'booking'], ['/api/partner/people/', 'person'], ['/api/hire-periods/', 'hire']];
+  const kinds: [string, IdKind][] = [
+    ['/api/jobs/', 'job'],
+    ['/api/stages/', 'stage'],
+    ['/api/bookings/', 'booking'],
+    ['/api/files/', 'file'],
+    ['/api/partner/slots/', 'booking'],
+    ['/api/partner/people/', 'person'],
+    ['/api/hire-periods/', 'hire'],
+  ];
   const found = kinds.find(([prefix]) => path.startsWith(prefix));
   if (!found) throw new Error(`the access matrix has no id for ${path}: add its kind to idKindOf`);
   return found[1];
@@ -147,25 +210,48 @@ function pathFor(route: RouteSpec, ids: Record<IdKind, string>): string {
 }
 
 /** A body valid enough that a write reaches its lookup (so another firm's id meets the scope, not the validator). */
-function validBody(route: RouteSpec, ids: Record<IdKind, string>): { body?: object; query?: Record<string, string>; file?: boolean } {
+function validBody(
+  route: RouteSpec,
+  ids: Record<IdKind, string>,
+): { body?: object; query?: Record<string, string>; file?: boolean } {
   switch (`${route.method} ${route.path}`) {
-    case 'patch /api/bookings/:id': return { body: { version: 1, startsAt: '2026-09-02T08:00:00Z', endsAt: '2026-09-02T09:00:00Z' } };
-    case 'delete /api/bookings/:id': return { query: { version: '1' } };
-    case 'post /api/bookings/:id/progress': return { body: { state: 'on_site', version: 1 } };
-    case 'post /api/stages/:id/move': return { body: { startsAt: '2026-09-02T08:00:00Z', versions: {} } };
-    case 'patch /api/jobs/:id': return { body: { version: 1, accessNotes: 'Side gate' } };
-    case 'put /api/jobs/:id/survey': return { body: { version: 0, survey: { accessWidthMm: 900, groundType: 'clay' } } };
-    case 'post /api/jobs/:id/files': return { file: true };
-    case 'post /api/partner/slots/:id/answer': return { body: { action: 'confirm' } };
-    case 'put /api/partner/slots/:id/person': return { body: { resourceId: ids.person } };
-    case 'patch /api/hire-periods/:id': return { body: { version: 1, status: 'ended' } };
+    case 'patch /api/bookings/:id':
+      return { body: { version: 1, startsAt: '2026-09-02T08:00:00Z', endsAt: '2026-09-02T09:00:00Z' } };
+    case 'delete /api/bookings/:id':
+      return { query: { version: '1' } };
+    case 'post /api/bookings/:id/progress':
+      return { body: { state: 'on_site', version: 1 } };
+    case 'post /api/stages/:id/move':
+      return { body: { startsAt: '2026-09-02T08:00:00Z', versions: {} } };
+    case 'patch /api/jobs/:id':
+      return { body: { version: 1, accessNotes: 'Side gate' } };
+    case 'put /api/jobs/:id/survey':
+      return { body: { version: 0, survey: { accessWidthMm: 900, groundType: 'clay' } } };
+    case 'post /api/jobs/:id/files':
+      return { file: true };
+    case 'post /api/partner/slots/:id/answer':
+      return { body: { action: 'confirm' } };
+    case 'put /api/partner/slots/:id/person':
+      return { body: { resourceId: ids.person } };
+    case 'patch /api/hire-periods/:id':
+      return { body: { version: 1, status: 'ended' } };
     default:
-      if (/^post \/api\/bookings\/:id\/(publish|cancel|proposal\/accept|proposal\/refuse)$/.test(`${route.method} ${route.path}`)) return { body: { version: 1 } };
+      if (
+        /^post \/api\/bookings\/:id\/(publish|cancel|proposal\/accept|proposal\/refuse)$/.test(
+          `${route.method} ${route.path}`,
+        )
+      )
+        return { body: { version: 1 } };
       return {};
   }
 }
 
-async function call(role: Role, route: RouteSpec, path: string, options: { body?: object; query?: Record<string, string>; file?: boolean }) {
+async function call(
+  role: Role,
+  route: RouteSpec,
+  path: string,
+  options: { body?: object; query?: Record<string, string>; file?: boolean },
+) {
   const agent = agents.get(role)!;
   let req = agent[route.method](path).set('X-CSRF-Token', agent.csrf);
   if (options.query) req = req.query(options.query);
@@ -178,7 +264,10 @@ function allowed(route: RouteSpec, role: Role): boolean {
   return (PERMISSIONS[route.access] as readonly Role[]).includes(role);
 }
 
-const apiRoutes = () => ctx.waterline.routes.routes.filter((r) => r.path.startsWith('/api') && r.access !== 'public' && r.path !== '/api/board/stream');
+const apiRoutes = () =>
+  ctx.waterline.routes.routes.filter(
+    (r) => r.path.startsWith('/api') && r.access !== 'public' && r.path !== '/api/board/stream',
+  );
 
 describe('each role on each route (generated from the two tables)', () => {
   // Runs first: another firm's ids change nothing, so the own-id passes below see the demo as seeded.
@@ -189,7 +278,10 @@ describe('each role on each route (generated from the two tables)', () => {
         const ids = other[reachOfRole(role)];
         const res = await call(role, route, pathFor(route, ids), validBody(route, ids));
         const expected = allowed(route, role) ? 404 : 403;
-        if (res.status !== expected) verdicts.push(`${role} ${route.method.toUpperCase()} ${route.path} → ${res.status} ${JSON.stringify(res.body).slice(0, 160)} (expected ${expected})`);
+        if (res.status !== expected)
+          verdicts.push(
+            `${role} ${route.method.toUpperCase()} ${route.path} → ${res.status} ${JSON.stringify(res.body).slice(0, 160)} (expected ${expected})`,
+          );
         else expect(JSON.stringify(res.body)).not.toMatch(/Alan Frost|Valley Drive/);
       }
     }
@@ -201,8 +293,13 @@ describe('each role on each route (generated from the two tables)', () => {
     for (const route of apiRoutes().filter((r) => r.method === 'get')) {
       for (const role of ROLES) {
         const res = await call(role, route, pathFor(route, own[reachOfRole(role)]), { query: QUERIES[route.path] });
-        const ok = allowed(route, role) ? ![401, 403, 404].includes(res.status) && res.status < 500 : res.status === 403;
-        if (!ok) verdicts.push(`${role} GET ${route.path} → ${res.status} (expected ${allowed(route, role) ? 'allowed' : '403'})`);
+        const ok = allowed(route, role)
+          ? ![401, 403, 404].includes(res.status) && res.status < 500
+          : res.status === 403;
+        if (!ok)
+          verdicts.push(
+            `${role} GET ${route.path} → ${res.status} (expected ${allowed(route, role) ? 'allowed' : '403'})`,
+          );
       }
     }
     expect(verdicts).toEqual([]);
@@ -211,12 +308,16 @@ describe('each role on each route (generated from the two tables)', () => {
   it('writes: let through exactly where the table says, refused with 403 elsewhere', async () => {
     const verdicts: string[] = [];
     // An empty body: the access rule is what is tested here, not the write (nothing is changed).
-    const sample = (route: RouteSpec): { body?: object } => (route.path === '/api/session/firm' ? { body: { firmId: tideway } } : { body: {} });
+    const sample = (route: RouteSpec): { body?: object } =>
+      route.path === '/api/session/firm' ? { body: { firmId: tideway } } : { body: {} };
     for (const route of apiRoutes().filter((r) => r.method !== 'get')) {
       for (const role of ROLES) {
         const res = await call(role, route, pathFor(route, own[reachOfRole(role)]), sample(route));
         const ok = allowed(route, role) ? ![401, 403].includes(res.status) && res.status < 500 : res.status === 403;
-        if (!ok) verdicts.push(`${role} ${route.method.toUpperCase()} ${route.path} → ${res.status} (expected ${allowed(route, role) ? 'allowed' : '403'})`);
+        if (!ok)
+          verdicts.push(
+            `${role} ${route.method.toUpperCase()} ${route.path} → ${res.status} (expected ${allowed(route, role) ? 'allowed' : '403'})`,
+          );
       }
     }
     expect(verdicts).toEqual([]);
@@ -230,10 +331,16 @@ describe('each role on each route (generated from the two tables)', () => {
       const stream = ctx.waterline.routes.routes.find((r) => r.path === '/api/board/stream')!;
       for (const role of ROLES) {
         const agent = agents.get(role)!;
-        const cookie = (agent as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }).jar
-          .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString();
+        const cookie = (
+          agent as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }
+        ).jar
+          .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false })
+          .toValueString();
         const controller = new AbortController();
-        const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, { headers: { cookie }, signal: controller.signal });
+        const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, {
+          headers: { cookie },
+          signal: controller.signal,
+        });
         expect(res.status, role).toBe(allowed(stream, role) ? 200 : 403);
         controller.abort();
       }
@@ -259,10 +366,17 @@ describe("another firm's ids", () => {
     expect(job.body).toMatchObject({ status: 404, title: 'Not found' });
     expect(JSON.stringify(job.body)).not.toContain('Alan Frost');
     await scheduler.get(`/api/bookings/${other.office.booking}`).expect(404);
-    await scheduler.patch(`/api/bookings/${other.office.booking}`).set('X-CSRF-Token', scheduler.csrf)
-      .send({ version: 1, startsAt: '2026-09-02T08:00:00Z', endsAt: '2026-09-02T09:00:00Z' }).expect(404);
+    await scheduler
+      .patch(`/api/bookings/${other.office.booking}`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 1, startsAt: '2026-09-02T08:00:00Z', endsAt: '2026-09-02T09:00:00Z' })
+      .expect(404);
     const moorviewFirm = await idOf(ctx.knex, 'firms', { name: 'Moorview Spas' });
-    await scheduler.put('/api/session/firm').set('X-CSRF-Token', scheduler.csrf).send({ firmId: moorviewFirm }).expect(404);
+    await scheduler
+      .put('/api/session/firm')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ firmId: moorviewFirm })
+      .expect(404);
   });
 
   it('never appear in lists', async () => {

@@ -17,13 +17,23 @@ beforeAll(async () => {
   await unbookJobs(ctx.knex, 'TW-2419', 'TW-2420', 'TW-2421');
   scheduler = await signIn(ctx, account('scheduler').email);
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 /** Pencils a booking in, publishes it and returns it with the request e-mail. */
 async function requested(input: Parameters<typeof pencilIn>[1]): Promise<{ id: string; mail: InboxMessage }> {
   const b = await pencilIn(ctx.knex, input);
-  await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: b.version }).expect(200);
-  const [mail] = await ctx.inbox.waitFor((m) => m.text.includes(`booking-${b.id}@127.0.0.1`) || (m.attachments[0]?.content ?? '').includes(`booking-${b.id}@127.0.0.1`));
+  await scheduler
+    .post(`/api/bookings/${b.id}/publish`)
+    .set('X-CSRF-Token', scheduler.csrf)
+    .send({ version: b.version })
+    .expect(200);
+  const [mail] = await ctx.inbox.waitFor(
+    (m) =>
+      m.text.includes(`booking-${b.id}@127.0.0.1`) ||
+      (m.attachments[0]?.content ?? '').includes(`booking-${b.id}@127.0.0.1`),
+  );
   return { id: b.id, mail: mail! };
 }
 const stateOf = async (id: string) => (await ctx.knex('bookings').where('id', id).first()).state as string;
@@ -31,7 +41,13 @@ const attempts = async (reason: string) => ctx.knex('link_attempts').where({ rea
 
 describe('an answer link opened with GET', () => {
   it('only shows the slot and a button: nothing changes (mail scanners follow links)', async () => {
-    const { id, mail } = await requested({ job: 'TW-2419', stage: 'electrical_connect', resource: 'Tom Ashworth', startsAt: '2027-05-04T08:00:00Z', endsAt: '2027-05-04T12:00:00Z' });
+    const { id, mail } = await requested({
+      job: 'TW-2419',
+      stage: 'electrical_connect',
+      resource: 'Tom Ashworth',
+      startsAt: '2027-05-04T08:00:00Z',
+      endsAt: '2027-05-04T12:00:00Z',
+    });
     const links = answerLinks(mail);
     for (const path of [links.confirm, links.decline, links.propose, links.confirm]) {
       const page = await web().get(path).expect(200);
@@ -54,7 +70,11 @@ describe('an answer link opened with GET', () => {
     expect(done.text).toContain('the slot is confirmed');
     expect(await stateOf(id)).toBe('confirmed');
     const view = await scheduler.get(`/api/bookings/${id}`).expect(200);
-    expect(view.body).toMatchObject({ state: 'confirmed', overdue: false, answer: { action: 'confirm', via: 'link', version: 2 } });
+    expect(view.body).toMatchObject({
+      state: 'confirmed',
+      overdue: false,
+      answer: { action: 'confirm', via: 'link', version: 2 },
+    });
 
     // Used once: a second press is refused, logged, and changes nothing.
     const again = await web().post(links.confirm).type('form').send({}).expect(409);
@@ -67,7 +87,13 @@ describe('an answer link opened with GET', () => {
 
 describe('a link that is not what was sent', () => {
   it('refuses a tampered token and logs the attempt', async () => {
-    const { id, mail } = await requested({ job: 'TW-2420', stage: 'electrical_connect', resource: 'Tom Ashworth', startsAt: '2027-05-05T08:00:00Z', endsAt: '2027-05-05T12:00:00Z' });
+    const { id, mail } = await requested({
+      job: 'TW-2420',
+      stage: 'electrical_connect',
+      resource: 'Tom Ashworth',
+      startsAt: '2027-05-05T08:00:00Z',
+      endsAt: '2027-05-05T12:00:00Z',
+    });
     const token = answerLinks(mail).decline.split('/').pop()!;
     const [h, p, s] = token.split('.') as [string, string, string];
     const claims = JSON.parse(Buffer.from(p, 'base64url').toString());
@@ -82,8 +108,20 @@ describe('a link that is not what was sent', () => {
   });
 
   it('refuses an expired token', async () => {
-    const b = await pencilIn(ctx.knex, { job: 'TW-2420', stage: 'electrical_first_fix', resource: 'Tom Ashworth', startsAt: '2027-05-06T08:00:00Z', endsAt: '2027-05-06T12:00:00Z', state: 'sent' });
-    const token = await new LinkSigner(ctx.config.LINK_SECRET).signAnswer({ bookingId: b.id, version: 1, action: 'confirm', expiresAt: new Date(Date.now() - 60_000) });
+    const b = await pencilIn(ctx.knex, {
+      job: 'TW-2420',
+      stage: 'electrical_first_fix',
+      resource: 'Tom Ashworth',
+      startsAt: '2027-05-06T08:00:00Z',
+      endsAt: '2027-05-06T12:00:00Z',
+      state: 'sent',
+    });
+    const token = await new LinkSigner(ctx.config.LINK_SECRET).signAnswer({
+      bookingId: b.id,
+      version: 1,
+      action: 'confirm',
+      expiresAt: new Date(Date.now() - 60_000),
+    });
     const page = await web().get(`/answer/${token}`).expect(410);
     expect(page.text).toContain('This link has expired');
     await web().post(`/answer/${token}`).type('form').send({}).expect(410);
@@ -92,18 +130,40 @@ describe('a link that is not what was sent', () => {
   });
 
   it('refuses a token signed with another secret', async () => {
-    const token = await new LinkSigner('another-secret-of-at-least-32-characters!').signAnswer({ bookingId: '1', version: 1, action: 'confirm', expiresAt: new Date(Date.now() + 3_600_000) });
+    const token = await new LinkSigner('another-secret-of-at-least-32-characters!').signAnswer({
+      bookingId: '1',
+      version: 1,
+      action: 'confirm',
+      expiresAt: new Date(Date.now() + 3_600_000),
+    });
     await web().get(`/answer/${token}`).expect(400);
   });
 });
 
 describe('a link for a version that has changed', () => {
   it('says the slot has changed and shows the new one', async () => {
-    const { id, mail } = await requested({ job: 'TW-2423', stage: 'electrical_connect', resource: 'Priya Nair', startsAt: '2027-05-10T08:00:00Z', endsAt: '2027-05-10T12:00:00Z' });
+    const { id, mail } = await requested({
+      job: 'TW-2423',
+      stage: 'electrical_connect',
+      resource: 'Priya Nair',
+      startsAt: '2027-05-10T08:00:00Z',
+      endsAt: '2027-05-10T12:00:00Z',
+    });
     const old = answerLinks(mail);
-    await scheduler.post(`/api/bookings/${id}/cancel`).set('X-CSRF-Token', scheduler.csrf).send({ version: 2 }).expect(200);
-    await ctx.knex('bookings').where('id', id).update({ starts_at: '2027-05-11T08:00:00Z', ends_at: '2027-05-11T12:00:00Z' });
-    await scheduler.post(`/api/bookings/${id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 3 }).expect(200);
+    await scheduler
+      .post(`/api/bookings/${id}/cancel`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 2 })
+      .expect(200);
+    await ctx
+      .knex('bookings')
+      .where('id', id)
+      .update({ starts_at: '2027-05-11T08:00:00Z', ends_at: '2027-05-11T12:00:00Z' });
+    await scheduler
+      .post(`/api/bookings/${id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 3 })
+      .expect(200);
     const page = await web().get(old.confirm).expect(200);
     expect(page.text).toContain('This slot has changed');
     expect(page.text).toContain('Tuesday 11 May 2027');
@@ -118,9 +178,24 @@ describe('confirming a time that was taken meanwhile', () => {
   it('shows a clear page: PostgreSQL refused the overlap', async () => {
     // The write path never sends two overlapping requests for one crane, so the overlap is made
     // behind its back: PostgreSQL's exclusion constraint is the last guard, and the page explains it.
-    const first = await requested({ job: 'TW-2421', stage: 'lift', resource: '25 t city crane', startsAt: '2027-05-27T08:00:00Z', endsAt: '2027-05-27T12:00:00Z' });
-    const second = await requested({ job: 'TW-2422', stage: 'lift', resource: '25 t city crane', startsAt: '2027-06-01T10:00:00Z', endsAt: '2027-06-01T14:00:00Z' });
-    await ctx.knex('bookings').where('id', first.id).update({ starts_at: '2027-06-01T08:00:00Z', ends_at: '2027-06-01T12:00:00Z' });
+    const first = await requested({
+      job: 'TW-2421',
+      stage: 'lift',
+      resource: '25 t city crane',
+      startsAt: '2027-05-27T08:00:00Z',
+      endsAt: '2027-05-27T12:00:00Z',
+    });
+    const second = await requested({
+      job: 'TW-2422',
+      stage: 'lift',
+      resource: '25 t city crane',
+      startsAt: '2027-06-01T10:00:00Z',
+      endsAt: '2027-06-01T14:00:00Z',
+    });
+    await ctx
+      .knex('bookings')
+      .where('id', first.id)
+      .update({ starts_at: '2027-06-01T08:00:00Z', ends_at: '2027-06-01T12:00:00Z' });
     await web().post(answerLinks(first.mail).confirm).type('form').send({}).expect(200);
     const page = await web().post(answerLinks(second.mail).confirm).type('form').send({}).expect(409);
     expect(page.text).toContain('That time was taken meanwhile');
@@ -139,36 +214,84 @@ describe('confirming a time that was taken meanwhile', () => {
 
 describe('proposing another time', () => {
   it('stores the proposal for the board; the scheduler accepts it and the partner gets the update', async () => {
-    const { id, mail } = await requested({ job: 'TW-2424', stage: 'electrical_connect', resource: 'Gareth Pryce', startsAt: '2027-05-12T08:00:00Z', endsAt: '2027-05-12T12:00:00Z' });
+    const { id, mail } = await requested({
+      job: 'TW-2424',
+      stage: 'electrical_connect',
+      resource: 'Gareth Pryce',
+      startsAt: '2027-05-12T08:00:00Z',
+      endsAt: '2027-05-12T12:00:00Z',
+    });
     const links = answerLinks(mail);
     const form = await web().get(links.propose).expect(200);
     expect(form.text).toContain('name="date"');
     expect(form.text).toContain('value="2027-05-12"');
     await web().post(links.propose).type('form').send({ date: '2027-05-13', start: '13:00', end: '10:00' }).expect(400);
-    const done = await web().post(links.propose).type('form').send({ date: '2027-05-13', start: '12:00', end: '16:00' }).expect(200);
+    const done = await web()
+      .post(links.propose)
+      .type('form')
+      .send({ date: '2027-05-13', start: '12:00', end: '16:00' })
+      .expect(200);
     expect(done.text).toContain('your proposal is sent');
     const view = (await scheduler.get(`/api/bookings/${id}`).expect(200)).body;
     // 12:00–16:00 BST is 11:00–15:00 UTC.
-    expect(view.answer).toMatchObject({ action: 'propose', proposalStatus: 'open', proposedStart: '2027-05-13T11:00:00.000Z', proposedEnd: '2027-05-13T15:00:00.000Z' });
+    expect(view.answer).toMatchObject({
+      action: 'propose',
+      proposalStatus: 'open',
+      proposedStart: '2027-05-13T11:00:00.000Z',
+      proposedEnd: '2027-05-13T15:00:00.000Z',
+    });
     expect(view.state).toBe('sent');
 
     await ctx.inbox.clear();
-    const accepted = await scheduler.post(`/api/bookings/${id}/proposal/accept`).set('X-CSRF-Token', scheduler.csrf).send({ version: 2 }).expect(200);
-    expect(accepted.body).toMatchObject({ version: 3, state: 'sent', startsAt: '2027-05-13T11:00:00.000Z', endsAt: '2027-05-13T15:00:00.000Z', answer: { proposalStatus: 'accepted' } });
+    const accepted = await scheduler
+      .post(`/api/bookings/${id}/proposal/accept`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 2 })
+      .expect(200);
+    expect(accepted.body).toMatchObject({
+      version: 3,
+      state: 'sent',
+      startsAt: '2027-05-13T11:00:00.000Z',
+      endsAt: '2027-05-13T15:00:00.000Z',
+      answer: { proposalStatus: 'accepted' },
+    });
     const [update] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking changed: Connect and certify'));
     expect(calendarOf(update!)).toMatchObject({ method: 'REQUEST', uid: `booking-${id}@127.0.0.1`, sequence: 3 });
     expect(calendarOf(update!).start.toISOString()).toBe('2027-05-13T11:00:00.000Z');
-    await scheduler.post(`/api/bookings/${id}/proposal/accept`).set('X-CSRF-Token', scheduler.csrf).send({ version: 3 }).expect(409);
+    await scheduler
+      .post(`/api/bookings/${id}/proposal/accept`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 3 })
+      .expect(409);
   });
 
   it('lets the scheduler refuse a proposal: the slot stands and the partner is asked again', async () => {
     // The first fix comes before the unit goes in and is connected (Thu 13 May, above): Thu 6 May.
-    const { id, mail } = await requested({ job: 'TW-2424', stage: 'electrical_first_fix', resource: 'Gareth Pryce', startsAt: '2027-05-06T08:00:00Z', endsAt: '2027-05-06T12:00:00Z' });
-    await web().post(answerLinks(mail).propose).type('form').send({ date: '2027-05-07', start: '09:00', end: '13:00' }).expect(200);
+    const { id, mail } = await requested({
+      job: 'TW-2424',
+      stage: 'electrical_first_fix',
+      resource: 'Gareth Pryce',
+      startsAt: '2027-05-06T08:00:00Z',
+      endsAt: '2027-05-06T12:00:00Z',
+    });
+    await web()
+      .post(answerLinks(mail).propose)
+      .type('form')
+      .send({ date: '2027-05-07', start: '09:00', end: '13:00' })
+      .expect(200);
     await ctx.inbox.clear();
-    const refused = await scheduler.post(`/api/bookings/${id}/proposal/refuse`).set('X-CSRF-Token', scheduler.csrf).send({ version: 2 }).expect(200);
+    const refused = await scheduler
+      .post(`/api/bookings/${id}/proposal/refuse`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 2 })
+      .expect(200);
     // The slot stands and the partner is asked about it again: a new request version, with new links.
-    expect(refused.body).toMatchObject({ version: 3, state: 'sent', startsAt: '2027-05-06T08:00:00.000Z', answer: { proposalStatus: 'refused' } });
+    expect(refused.body).toMatchObject({
+      version: 3,
+      state: 'sent',
+      startsAt: '2027-05-06T08:00:00.000Z',
+      answer: { proposalStatus: 'refused' },
+    });
     const [again] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Your proposed time could not be used'));
     // The new links work: the partner confirms the original slot.
     await web().post(answerLinks(again!).confirm).type('form').send({}).expect(200);

@@ -16,7 +16,9 @@ beforeAll(async () => {
   ctx = await startTestApp();
   scheduler = await signIn(ctx, account('scheduler').email);
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 const DAY = 86_400_000;
 const range = { from: TEST_TODAY.toISOString(), to: new Date(TEST_TODAY.getTime() + 28 * DAY).toISOString() };
@@ -24,9 +26,15 @@ const range = { from: TEST_TODAY.toISOString(), to: new Date(TEST_TODAY.getTime(
 /** Every SQL statement `run` sends through this knex. */
 async function queriesOf(knex: Knex, run: () => Promise<unknown>): Promise<string[]> {
   const seen: string[] = [];
-  const listen = (q: { sql: string }) => { seen.push(q.sql); };
+  const listen = (q: { sql: string }) => {
+    seen.push(q.sql);
+  };
   knex.on('query', listen);
-  try { await run(); } finally { knex.off('query', listen); }
+  try {
+    await run();
+  } finally {
+    knex.off('query', listen);
+  }
   return seen;
 }
 
@@ -38,7 +46,9 @@ describe('GET /api/board answers 304 while the window is unchanged', () => {
     expect(first.headers['cache-control']).toBe('private, no-cache');
     // Unchanged: 304, and the board is not loaded (no query reads the stages).
     let again: request.Response | undefined;
-    const sql = await queriesOf(ctx.knex, async () => { again = await scheduler.get('/api/board').query(range).set('If-None-Match', etag).expect(304); });
+    const sql = await queriesOf(ctx.knex, async () => {
+      again = await scheduler.get('/api/board').query(range).set('If-None-Match', etag).expect(304);
+    });
     expect(again!.text).toBe('');
     expect(again!.headers.etag).toBe(etag);
     expect(sql.some((q) => q.includes('"stages"'))).toBe(false);
@@ -47,12 +57,24 @@ describe('GET /api/board answers 304 while the window is unchanged', () => {
     const data = first.body as BoardData;
     const own = new Set(data.resources.filter((r) => r.ownership !== 'partner').map((r) => r.id));
     const pencilled = data.bookings.find((b) => b.state === 'pencilled' && own.has(b.resourceId))!;
-    await scheduler.patch(`/api/bookings/${pencilled.id}`).set('X-CSRF-Token', scheduler.csrf)
-      .send({ startsAt: new Date(pencilled.start).toISOString(), endsAt: new Date(pencilled.end).toISOString(), state: 'confirmed', version: pencilled.version }).expect(200);
+    await scheduler
+      .patch(`/api/bookings/${pencilled.id}`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({
+        startsAt: new Date(pencilled.start).toISOString(),
+        endsAt: new Date(pencilled.end).toISOString(),
+        state: 'confirmed',
+        version: pencilled.version,
+      })
+      .expect(200);
     const changed = await scheduler.get('/api/board').query(range).set('If-None-Match', etag).expect(200);
     expect(changed.headers.etag).not.toBe(etag);
     expect((changed.body as BoardData).bookings.find((b) => b.id === pencilled.id)?.state).toBe('confirmed');
-    await scheduler.get('/api/board').query(range).set('If-None-Match', changed.headers.etag as string).expect(304);
+    await scheduler
+      .get('/api/board')
+      .query(range)
+      .set('If-None-Match', changed.headers.etag as string)
+      .expect(304);
   });
 
   it("keeps its ETag when another installer changes what this board can't see", async () => {
@@ -61,8 +83,13 @@ describe('GET /api/board answers 304 while the window is unchanged', () => {
     const theirJob = await ctx.knex('jobs').where('firm_id', moorview).first('id', 'site_town');
     await ctx.knex('jobs').where('id', theirJob.id).update({ site_town: 'Elsewhereby' });
     // Their pencilled booking blocks nobody: the shared partner's installers are not told of it.
-    const theirPencilled = await ctx.knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').join('jobs as j', 'j.id', 's.job_id')
-      .where('j.firm_id', moorview).where('b.state', 'pencilled').first('b.id');
+    const theirPencilled = await ctx
+      .knex('bookings as b')
+      .join('stages as s', 's.id', 'b.stage_id')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .where('j.firm_id', moorview)
+      .where('b.state', 'pencilled')
+      .first('b.id');
     if (theirPencilled) await ctx.knex('bookings').where('id', theirPencilled.id).update({ updated_at: new Date() });
     const res = await scheduler.get('/api/board').query(range).set('If-None-Match', etag).expect(304);
     expect(res.headers.etag).toBe(etag);
@@ -104,7 +131,9 @@ describe('the built client', () => {
     // Signed in on the app serving that folder.
     agent = await signIn({ ...ctx, waterline: app }, account('scheduler').email);
   });
-  afterAll(async () => { await app.close(); });
+  afterAll(async () => {
+    await app.close();
+  });
 
   it('is served without reading the session: no query, no cookie', async () => {
     // The observable: an API call of this session rolls its cookie and looks the member up ...
@@ -133,21 +162,34 @@ describe('the calendar feed', () => {
   it('reads its bookings in a number of queries that does not grow with them', async () => {
     const partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
     const tom = await idOf(ctx.knex, 'resources', { name: 'Tom Ashworth' });
-    const url = new URL((await partner.post(`/api/partner/people/${tom}/feed`).set('X-CSRF-Token', partner.csrf).expect(201)).body.url);
+    const url = new URL(
+      (await partner.post(`/api/partner/people/${tom}/feed`).set('X-CSRF-Token', partner.csrf).expect(201)).body.url,
+    );
     const feedNow = Math.floor(Date.now() / 60_000) * 60_000;
     const read = async () => {
       let text = '';
-      const sql = await queriesOf(ctx.knex, async () => { text = (await request(ctx.waterline.app).get(url.pathname).expect(200)).text; });
+      const sql = await queriesOf(ctx.knex, async () => {
+        text = (await request(ctx.waterline.app).get(url.pathname).expect(200)).text;
+      });
       const events = new ICAL.Component(ICAL.parse(text)).getAllSubcomponents('vevent').map((v) => new ICAL.Event(v));
       return { count: sql.length, events };
     };
     // Slots sent to Tom on stages of six Tideway jobs (test set-up, not the product's write path): one, then five more.
-    const stages = await ctx.knex('stages as s').join('jobs as j', 'j.id', 's.job_id').where('j.reference', 'like', 'TW-%')
+    const stages = await ctx
+      .knex('stages as s')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .where('j.reference', 'like', 'TW-%')
       .whereNotExists(ctx.knex('bookings as b').whereRaw('b.stage_id = s.id').where('b.resource_id', tom))
-      .orderBy('s.id').limit(6).select('s.id', 'j.reference');
+      .orderBy('s.id')
+      .limit(6)
+      .select('s.id', 'j.reference');
     expect(stages).toHaveLength(6);
     const slot = (s: { id: string }, n: number) => ({
-      stage_id: s.id, resource_id: tom, state: 'sent', starts_at: new Date(feedNow + (20 + n) * DAY), ends_at: new Date(feedNow + (20 + n) * DAY + 3 * 3_600_000),
+      stage_id: s.id,
+      resource_id: tom,
+      state: 'sent',
+      starts_at: new Date(feedNow + (20 + n) * DAY),
+      ends_at: new Date(feedNow + (20 + n) * DAY + 3 * 3_600_000),
     });
     await ctx.knex('bookings').insert(slot(stages[0]!, 0));
     const before = await read();
@@ -161,7 +203,14 @@ describe('the calendar feed', () => {
       expect(event.description).toContain(`for Tideway Hot Tubs (job ${s.reference})`);
       expect(event.description).toContain('Not yet confirmed.');
     }
-    await ctx.knex('bookings').whereIn('stage_id', stages.map((s) => s.id)).where('resource_id', tom).delete();
+    await ctx
+      .knex('bookings')
+      .whereIn(
+        'stage_id',
+        stages.map((s) => s.id),
+      )
+      .where('resource_id', tom)
+      .delete();
   });
 });
 
@@ -172,34 +221,89 @@ describe('pruning', () => {
     await ctx.knex('outbox').delete();
     await ctx.knex('link_attempts').delete();
     await ctx.knex('outbox').insert([
-      { idempotency_key: 'old-sent', kind: 'booking_request', payload: '{}', status: 'sent', created_at: ago(40), sent_at: ago(40) },
+      {
+        idempotency_key: 'old-sent',
+        kind: 'booking_request',
+        payload: '{}',
+        status: 'sent',
+        created_at: ago(40),
+        sent_at: ago(40),
+      },
       { idempotency_key: 'old-failed', kind: 'booking_request', payload: '{}', status: 'failed', created_at: ago(31) },
-      { idempotency_key: 'new-sent', kind: 'booking_request', payload: '{}', status: 'sent', created_at: ago(29), sent_at: ago(29) },
-      { idempotency_key: 'old-pending', kind: 'booking_request', payload: '{}', status: 'pending', created_at: ago(60) },
+      {
+        idempotency_key: 'new-sent',
+        kind: 'booking_request',
+        payload: '{}',
+        status: 'sent',
+        created_at: ago(29),
+        sent_at: ago(29),
+      },
+      {
+        idempotency_key: 'old-pending',
+        kind: 'booking_request',
+        payload: '{}',
+        status: 'pending',
+        created_at: ago(60),
+      },
       { idempotency_key: 'old-queued', kind: 'booking_request', payload: '{}', status: 'queued', created_at: ago(60) },
     ]);
     await ctx.knex('link_attempts').insert([
       { reason: 'expired', path: '/answer/x', at: ago(91) },
       { reason: 'expired', path: '/answer/y', at: ago(89) },
     ]);
-    const marks = await ctx.knex('board_changes').insert([{ firm_id: 1, at: ago(3) }, { firm_id: 1, at: ago(1) }]).returning('id');
-    const result = await pruneOldRows(ctx.knex, { now, outboxKeepDays: 30, linkAttemptsKeepDays: 90, boardChangesKeepDays: 2, batch: 1 });
+    const marks = await ctx
+      .knex('board_changes')
+      .insert([
+        { firm_id: 1, at: ago(3) },
+        { firm_id: 1, at: ago(1) },
+      ])
+      .returning('id');
+    const result = await pruneOldRows(ctx.knex, {
+      now,
+      outboxKeepDays: 30,
+      linkAttemptsKeepDays: 90,
+      boardChangesKeepDays: 2,
+      batch: 1,
+    });
     expect(result).toMatchObject({ outbox: 2, linkAttempts: 1 });
-    expect((await ctx.knex('outbox').orderBy('idempotency_key').pluck('idempotency_key'))).toEqual(['new-sent', 'old-pending', 'old-queued']);
+    expect(await ctx.knex('outbox').orderBy('idempotency_key').pluck('idempotency_key')).toEqual([
+      'new-sent',
+      'old-pending',
+      'old-queued',
+    ]);
     expect(await ctx.knex('link_attempts').pluck('path')).toEqual(['/answer/y']);
-    expect(await ctx.knex('board_changes').whereIn('id', marks.map((m) => m.id)).pluck('id')).toEqual([marks[1]!.id]);
+    expect(
+      await ctx
+        .knex('board_changes')
+        .whereIn(
+          'id',
+          marks.map((m) => m.id),
+        )
+        .pluck('id'),
+    ).toEqual([marks[1]!.id]);
   });
 });
 
 describe('the indexes of migration 20261224090000', () => {
   it('exist', async () => {
     const names = await ctx.knex('pg_indexes').where('schemaname', 'public').pluck('indexname');
-    expect(names).toEqual(expect.arrayContaining(['bookings_during_idx', 'booking_requests_waiting_idx', 'outbox_queued_idx', 'outbox_settled_idx', 'link_attempts_at_idx', 'board_changes_firm_idx']));
+    expect(names).toEqual(
+      expect.arrayContaining([
+        'bookings_during_idx',
+        'booking_requests_waiting_idx',
+        'outbox_queued_idx',
+        'outbox_settled_idx',
+        'link_attempts_at_idx',
+        'board_changes_firm_idx',
+      ]),
+    );
   });
 
   it("answer the board's range query from the GiST index", async () => {
     const captured: { sql: string; bindings: Knex.RawBinding[] }[] = [];
-    const listen = (q: { sql: string; bindings?: Knex.RawBinding[] }) => { captured.push({ sql: q.sql, bindings: [...(q.bindings ?? [])] }); };
+    const listen = (q: { sql: string; bindings?: Knex.RawBinding[] }) => {
+      captured.push({ sql: q.sql, bindings: [...(q.bindings ?? [])] });
+    };
     ctx.knex.on('query', listen);
     await scheduler.get('/api/board').query(range).expect(200);
     ctx.knex.off('query', listen);
@@ -212,7 +316,9 @@ describe('the indexes of migration 20261224090000', () => {
       const plan = await ctx.knex.transaction(async (trx) => {
         await trx.raw('SET LOCAL enable_seqscan = off');
         // knex reports the SQL as sent to PostgreSQL ($1, $2, … in order): back to its own placeholders.
-        return (await trx.raw(`EXPLAIN ${q.sql.replace(/\$\d+/g, '?')}`, q.bindings)).rows.map((r: Record<string, string>) => Object.values(r)[0]).join('\n');
+        return (await trx.raw(`EXPLAIN ${q.sql.replace(/\$\d+/g, '?')}`, q.bindings)).rows
+          .map((r: Record<string, string>) => Object.values(r)[0])
+          .join('\n');
       });
       plans.set(q.sql, plan);
     }

@@ -4,8 +4,12 @@ import { account, signIn, startTestApp, type TestContext } from '../helpers/serv
 import { safeNext } from '../../server/routes/auth.ts';
 
 let ctx: TestContext;
-beforeAll(async () => { ctx = await startTestApp(); });
-afterAll(async () => { await ctx.close(); });
+beforeAll(async () => {
+  ctx = await startTestApp();
+});
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe('signing in with Google (through the local provider)', () => {
   it('runs redirect → code → token → profile and opens a session for the demo scheduler', async () => {
@@ -16,7 +20,10 @@ describe('signing in with Google (through the local provider)', () => {
     expect(body.firm.timeZone).toBe('Europe/London');
     expect(body.role).toBe('scheduler');
     expect(body.csrfToken).toMatch(/^[\w-]{32}$/);
-    const user = await ctx.knex('users').where({ email: account('scheduler').email }).first();
+    const user = await ctx
+      .knex('users')
+      .where({ email: account('scheduler').email })
+      .first();
     expect(user.googleSub).toMatch(/^fake-[0-9a-f]{20}$/);
   });
 
@@ -39,7 +46,9 @@ describe('signing in with Google (through the local provider)', () => {
   });
 
   it('refuses a Google account nobody invited', async () => {
-    await expect(signIn(ctx, 'stranger@elsewhere.example')).rejects.toMatchObject({ location: '/sign-in?error=unknown_account' });
+    await expect(signIn(ctx, 'stranger@elsewhere.example')).rejects.toMatchObject({
+      location: '/sign-in?error=unknown_account',
+    });
     expect(await ctx.knex('users').where({ email: 'stranger@elsewhere.example' }).first()).toBeUndefined();
   });
 

@@ -1,7 +1,16 @@
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
-import { openBoardStream, account, idOf, signIn, startTestApp, TEST_TODAY, type Agent, type TestContext } from '../helpers/server.ts';
+import {
+  openBoardStream,
+  account,
+  idOf,
+  signIn,
+  startTestApp,
+  TEST_TODAY,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
 import { makeJob } from '../helpers/flows.ts';
 import { createApp } from '../../server/app.ts';
 import { KEEP_ALIVE_MS, LISTENER_APPLICATION_NAME } from '../../server/services/board-stream.ts';
@@ -34,7 +43,9 @@ afterAll(async () => {
   await new Promise((r) => server.close(r));
 });
 
-afterEach(() => { vi.restoreAllMocks(); });
+afterEach(() => {
+  vi.restoreAllMocks();
+});
 
 /** The live stream of one signed-in agent on the server at `at` (this file's by default). */
 const openStream = (agent: Agent, at = port) => openBoardStream(agent, at);
@@ -52,8 +63,11 @@ async function eventually<T>(check: () => Promise<T | undefined | false>, ms = 1
 
 /** The backends of this database's board-stream listeners that have run their LISTEN. */
 async function listenerPids(): Promise<number[]> {
-  const { rows } = await ctx.knex.raw(`SELECT pid FROM pg_stat_activity WHERE datname = current_database()
-    AND application_name = ? AND query LIKE 'LISTEN%'`, [LISTENER_APPLICATION_NAME]) as { rows: { pid: number }[] };
+  const { rows } = (await ctx.knex.raw(
+    `SELECT pid FROM pg_stat_activity WHERE datname = current_database()
+    AND application_name = ? AND query LIKE 'LISTEN%'`,
+    [LISTENER_APPLICATION_NAME],
+  )) as { rows: { pid: number }[] };
   return rows.map((r) => r.pid).sort();
 }
 
@@ -72,9 +86,19 @@ let jobs = 0;
 /** Books a one-hour stage of a fresh job of the test's own on Crew Otter; the booking's id. */
 async function bookSomething(day: string): Promise<string> {
   jobs += 1;
-  const job = await makeJob(ctx.knex, { reference: `FX-BS-${jobs}`, stages: [{ kind: 'handover', name: 'Handover', minutes: 60, needs: { install_crew: 1 } }], links: [] });
-  const res = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
-    .send({ stageId: job.stage.handover, resourceId: await idOf(ctx.knex, 'resources', { name: 'Crew Otter' }), startsAt: `${day}T09:00:00Z` });
+  const job = await makeJob(ctx.knex, {
+    reference: `FX-BS-${jobs}`,
+    stages: [{ kind: 'handover', name: 'Handover', minutes: 60, needs: { install_crew: 1 } }],
+    links: [],
+  });
+  const res = await scheduler
+    .post('/api/bookings')
+    .set('X-CSRF-Token', scheduler.csrf)
+    .send({
+      stageId: job.stage.handover,
+      resourceId: await idOf(ctx.knex, 'resources', { name: 'Crew Otter' }),
+      startsAt: `${day}T09:00:00Z`,
+    });
   expect(res.status, JSON.stringify(res.body)).toBe(201);
   return String(res.body.bookings[0].id);
 }

@@ -4,8 +4,12 @@ import { analyseBoard } from '../../shared/scheduler/index.ts';
 import { toEngineBoard, type BoardData } from '../../shared/board-data.ts';
 
 let ctx: TestContext;
-beforeAll(async () => { ctx = await startTestApp(); });
-afterAll(async () => { await ctx.close(); });
+beforeAll(async () => {
+  ctx = await startTestApp();
+});
+afterAll(async () => {
+  await ctx.close();
+});
 
 const range = { from: TEST_TODAY.toISOString(), to: new Date(TEST_TODAY.getTime() + 28 * 86_400_000).toISOString() };
 
@@ -18,9 +22,25 @@ describe('the board data for a scheduler', () => {
 
   it('has rows for own crews and machines and for every partner firm', () => {
     const firms = new Set(data.resources.map((r) => r.firmName));
-    expect(firms).toEqual(new Set(['Tideway Hot Tubs', 'Fellside Crane Hire', 'Brightspark Electrical', 'Northgate Electrical', 'Millstone Groundworks', 'Carrow Haulage']));
-    expect(data.resources.find((r) => r.name === 'Crew Heron')).toMatchObject({ ownership: 'owned', kind: 'install_crew', personIds: expect.any(Array) });
-    expect(data.resources.find((r) => r.name === '3 t excavator (hired)')).toMatchObject({ ownership: 'hired', hired: true });
+    expect(firms).toEqual(
+      new Set([
+        'Tideway Hot Tubs',
+        'Fellside Crane Hire',
+        'Brightspark Electrical',
+        'Northgate Electrical',
+        'Millstone Groundworks',
+        'Carrow Haulage',
+      ]),
+    );
+    expect(data.resources.find((r) => r.name === 'Crew Heron')).toMatchObject({
+      ownership: 'owned',
+      kind: 'install_crew',
+      personIds: expect.any(Array),
+    });
+    expect(data.resources.find((r) => r.name === '3 t excavator (hired)')).toMatchObject({
+      ownership: 'hired',
+      hired: true,
+    });
     expect(data.resources.find((r) => r.name === 'Priya Nair')).toMatchObject({ ownership: 'partner' });
   });
 
@@ -85,10 +105,16 @@ describe('two schedulers on two server processes', () => {
       const port = (serverB.address() as { port: number }).port;
       // The second scheduler's board, served by process B, listens on its stream.
       const owner = await signIn(ctx, account('owner').email);
-      const cookie = (owner as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }).jar
-        .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString();
+      const cookie = (
+        owner as unknown as { jar: { getCookie: (n: string, o: object) => { toValueString(): string } } }
+      ).jar
+        .getCookie('waterline.sid', { domain: '127.0.0.1', path: '/', secure: false, script: false })
+        .toValueString();
       const controller = new AbortController();
-      const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, { headers: { cookie }, signal: controller.signal });
+      const res = await fetch(`http://127.0.0.1:${port}/api/board/stream`, {
+        headers: { cookie },
+        signal: controller.signal,
+      });
       expect(res.status).toBe(200);
       expect(res.headers.get('content-type')).toMatch(/text\/event-stream/);
       const reader = res.body!.getReader();
@@ -96,11 +122,18 @@ describe('two schedulers on two server processes', () => {
 
       // The first scheduler books through process A.
       const scheduler = await signIn(ctx, account('scheduler').email);
-      const stage = await ctx.knex('stages').join('jobs', 'jobs.id', 'stages.job_id').where({ 'jobs.reference': 'TW-2419', 'stages.kind': 'handover' }).first('stages.id');
+      const stage = await ctx
+        .knex('stages')
+        .join('jobs', 'jobs.id', 'stages.job_id')
+        .where({ 'jobs.reference': 'TW-2419', 'stages.kind': 'handover' })
+        .first('stages.id');
       const crew = await ctx.knex('resources').where({ name: 'Crew Otter' }).first('id');
       const started = Date.now();
-      const saved = await scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf)
-        .send({ stageId: String(stage.id), resourceId: String(crew.id), startsAt: '2026-11-02T09:00:00Z' }).expect(201);
+      const saved = await scheduler
+        .post('/api/bookings')
+        .set('X-CSRF-Token', scheduler.csrf)
+        .send({ stageId: String(stage.id), resourceId: String(crew.id), startsAt: '2026-11-02T09:00:00Z' })
+        .expect(201);
       let text = '';
       while (!text.includes('event: bookings')) text += new TextDecoder().decode((await reader.read()).value);
       expect(Date.now() - started).toBeLessThan(2000);
@@ -116,12 +149,20 @@ describe('two schedulers on two server processes', () => {
 describe("a partner's proposal on the board", () => {
   it('shows on the booking until the scheduler accepts or refuses it', async () => {
     const partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
-    const slots = (await partner.get('/api/partner/slots').query({ from: TEST_TODAY.toISOString() }).expect(200)).body.items as { id: string; state: string; startsAt: string; installer: { name: string } }[];
+    const slots = (await partner.get('/api/partner/slots').query({ from: TEST_TODAY.toISOString() }).expect(200)).body
+      .items as { id: string; state: string; startsAt: string; installer: { name: string } }[];
     const asked = slots.find((s) => s.state === 'sent' && s.installer.name === 'Tideway Hot Tubs');
     expect(asked).toBeTruthy();
     const start = Date.parse(asked!.startsAt) + 86_400_000;
-    await partner.post(`/api/partner/slots/${asked!.id}/answer`).set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'propose', proposedStart: new Date(start).toISOString(), proposedEnd: new Date(start + 4 * 3_600_000).toISOString() }).expect(200);
+    await partner
+      .post(`/api/partner/slots/${asked!.id}/answer`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({
+        action: 'propose',
+        proposedStart: new Date(start).toISOString(),
+        proposedEnd: new Date(start + 4 * 3_600_000).toISOString(),
+      })
+      .expect(200);
     const scheduler = await signIn(ctx, account('scheduler').email);
     const data: BoardData = (await scheduler.get('/api/board').query(range).expect(200)).body;
     expect(data.bookings.find((b) => b.id === asked!.id)?.proposal).toEqual({ start, end: start + 4 * 3_600_000 });

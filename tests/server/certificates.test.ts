@@ -25,19 +25,49 @@ let jpeg: Buffer;
 
 const PDF = Buffer.from('%PDF-1.4\n1 0 obj << /Type /Catalog >> endobj\ntrailer << /Root 1 0 R >>\n%%EOF\n');
 
-const bookingOf = async (reference: string, kind: string) => String((await ctx.knex('bookings as b').join('stages as s', 's.id', 'b.stage_id')
-  .join('jobs as j', 'j.id', 's.job_id').where({ 'j.reference': reference, 's.kind': kind }).first('b.id')).id);
+const bookingOf = async (reference: string, kind: string) =>
+  String(
+    (
+      await ctx
+        .knex('bookings as b')
+        .join('stages as s', 's.id', 'b.stage_id')
+        .join('jobs as j', 'j.id', 's.job_id')
+        .where({ 'j.reference': reference, 's.kind': kind })
+        .first('b.id')
+    ).id,
+  );
 const uploadOnSlot = (as: Agent, slotId: string, buffer: Buffer, filename: string) =>
   as.post(`/api/partner/slots/${slotId}/certificate`).set('X-CSRF-Token', as.csrf).attach('file', buffer, { filename });
 const versionOf = async (id: string) => (await ctx.knex('bookings').where('id', id).first('version')).version as number;
-const finish = async (id: string, as: Agent = crew) => as.post(`/api/bookings/${id}/progress`).set('X-CSRF-Token', as.csrf).send({ action: 'finish', version: await versionOf(id) });
-const waive = (reference: string, reason: unknown, as: Agent = scheduler) => as.put(`/api/jobs/${job[reference]}/certificate-waiver`).set('X-CSRF-Token', as.csrf).send({ reason });
+const finish = async (id: string, as: Agent = crew) =>
+  as
+    .post(`/api/bookings/${id}/progress`)
+    .set('X-CSRF-Token', as.csrf)
+    .send({ action: 'finish', version: await versionOf(id) });
+const waive = (reference: string, reason: unknown, as: Agent = scheduler) =>
+  as.put(`/api/jobs/${job[reference]}/certificate-waiver`).set('X-CSRF-Token', as.csrf).send({ reason });
 /** The householder's signed handover, as a fixture (tests/server/handover.test.ts signs through the page). */
 async function signedHandover(reference: string): Promise<void> {
-  const [file] = await ctx.knex('job_files').insert({ job_id: job[reference], object_key: `fixtures/signature-${reference}-${Date.now()}.png`, name: 'signature.png', content_type: 'image/png', size_bytes: 1 }).returning('id');
-  await ctx.knex('handovers').insert({ job_id: job[reference], checklist: JSON.stringify({}), householder_name: 'Fixture Householder', signature_file_id: file.id, signed_at: TEST_TODAY });
+  const [file] = await ctx
+    .knex('job_files')
+    .insert({
+      job_id: job[reference],
+      object_key: `fixtures/signature-${reference}-${Date.now()}.png`,
+      name: 'signature.png',
+      content_type: 'image/png',
+      size_bytes: 1,
+    })
+    .returning('id');
+  await ctx.knex('handovers').insert({
+    job_id: job[reference],
+    checklist: JSON.stringify({}),
+    householder_name: 'Fixture Householder',
+    signature_file_id: file.id,
+    signed_at: TEST_TODAY,
+  });
 }
-const certificateRows = async () => Number((await ctx.knex('electrical_certificates').count<{ count: string }[]>('* as count'))[0]!.count);
+const certificateRows = async () =>
+  Number((await ctx.knex('electrical_certificates').count<{ count: string }[]>('* as count'))[0]!.count);
 
 beforeAll(async () => {
   ctx = await startTestApp();
@@ -55,9 +85,13 @@ beforeAll(async () => {
     // The crew is on site for the handover (only possible on its day through the app; the demo's is later).
     await ctx.knex('bookings').where('id', handover[reference]).increment('version', 1).update({ state: 'on_site' });
   }
-  jpeg = await sharp({ create: { width: 64, height: 64, channels: 3, background: { r: 200, g: 200, b: 200 } } }).jpeg().toBuffer();
+  jpeg = await sharp({ create: { width: 64, height: 64, channels: 3, background: { r: 200, g: 200, b: 200 } } })
+    .jpeg()
+    .toBuffer();
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe('handing over without the certificate', () => {
   it('is refused with 409 problem+json saying the certificate is missing', async () => {
@@ -65,7 +99,9 @@ describe('handing over without the certificate', () => {
     expect(res.status).toBe(409);
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(res.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/certificate-missing`);
-    expect(res.body.missing).toEqual(['No electrical certificate: the electrician uploads it from their slot or the link in their e-mail, or the office records why the job may be handed over without it.']);
+    expect(res.body.missing).toEqual([
+      'No electrical certificate: the electrician uploads it from their slot or the link in their e-mail, or the office records why the job may be handed over without it.',
+    ]);
     expect((await ctx.knex('bookings').where('id', handover['TW-2401']).first('state')).state).toBe('on_site');
   });
 });
@@ -79,7 +115,9 @@ describe('the electrician uploading from Our slots', () => {
     // A photo named .pdf is refused by the same inspection as a survey file.
     expect((await uploadOnSlot(electrician, connect['TW-2401']!, jpeg, 'certificate.pdf')).status).toBe(415);
     expect(await certificateRows()).toBe(0);
-    expect(await ctx.knex('job_files').where('job_id', job['TW-2401']).count<{ count: string }[]>('* as count')).toEqual(before);
+    expect(
+      await ctx.knex('job_files').where('job_id', job['TW-2401']).count<{ count: string }[]>('* as count'),
+    ).toEqual(before);
   });
 
   it("is 404 for another partner firm's electrician (or anyone) on a slot that is not theirs", async () => {
@@ -99,11 +137,18 @@ describe('the electrician uploading from Our slots', () => {
     expect(res.status).toBe(201);
     expect(res.body).toEqual({ name: 'EIC TW-2401.pdf', uploadedAt: TEST_TODAY.toISOString() });
     const stored = await loadCertificate(ctx.knex, job['TW-2401']!);
-    expect(stored.certificate).toMatchObject({ name: 'EIC TW-2401.pdf', uploadedByFirmId: await idOf(ctx.knex, 'firms', { name: 'Brightspark Electrical' }) });
+    expect(stored.certificate).toMatchObject({
+      name: 'EIC TW-2401.pdf',
+      uploadedByFirmId: await idOf(ctx.knex, 'firms', { name: 'Brightspark Electrical' }),
+    });
     expect(stored.certificate!.storageKey).toMatch(new RegExp(`^jobs/${job['TW-2401']}/[0-9a-f-]{36}\\.pdf$`));
     expect(stored.waiver).toBeNull();
-    const slots = (await electrician.get('/api/partner/slots').query({ from: '2026-05-01T00:00:00Z' }).expect(200)).body.items as { id: string; certificate?: unknown }[];
-    expect(slots.find((s) => s.id === connect['TW-2401'])?.certificate).toEqual({ wanted: true, uploaded: { name: 'EIC TW-2401.pdf', uploadedAt: TEST_TODAY.toISOString() } });
+    const slots = (await electrician.get('/api/partner/slots').query({ from: '2026-05-01T00:00:00Z' }).expect(200)).body
+      .items as { id: string; certificate?: unknown }[];
+    expect(slots.find((s) => s.id === connect['TW-2401'])?.certificate).toEqual({
+      wanted: true,
+      uploaded: { name: 'EIC TW-2401.pdf', uploadedAt: TEST_TODAY.toISOString() },
+    });
   });
 });
 
@@ -113,7 +158,9 @@ describe('the installer', () => {
     expect(body.certificate).toMatchObject({ name: 'EIC TW-2401.pdf', uploadedByFirm: 'Brightspark Electrical' });
     const pdf = await fetch(body.certificate.url);
     expect(Buffer.from(await pdf.arrayBuffer()).equals(PDF)).toBe(true);
-    expect((await crew.get(`/api/jobs/${job['TW-2401']}/certificate`).expect(200)).body.certificate.name).toBe('EIC TW-2401.pdf');
+    expect((await crew.get(`/api/jobs/${job['TW-2401']}/certificate`).expect(200)).body.certificate.name).toBe(
+      'EIC TW-2401.pdf',
+    );
   });
 
   it('is the only installer who does: another installer gets 404, a partner firm 403', async () => {
@@ -126,7 +173,9 @@ describe('the installer', () => {
     const unsigned = await finish(handover['TW-2401']!);
     expect(unsigned.status).toBe(409);
     expect(unsigned.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/handover-unsigned`);
-    expect(unsigned.body.missing).toEqual(['The householder has not signed the handover: open Hand over on the phone, go through the checklist with them and ask them to sign.']);
+    expect(unsigned.body.missing).toEqual([
+      'The householder has not signed the handover: open Hand over on the phone, go through the checklist with them and ask them to sign.',
+    ]);
     await signedHandover('TW-2401');
     const res = await finish(handover['TW-2401']!);
     expect(res.status).toBe(200);
@@ -141,8 +190,14 @@ describe("the office's waiver", () => {
     const empty = await waive('TW-2402', '   ');
     expect(empty.status).toBe(400);
     expect(empty.body.errors[0].field).toBe('reason');
-    const saved = (await waive('TW-2402', 'Unit plugs into the existing outdoor socket; no new circuit was made.').expect(200)).body;
-    expect(saved.waiver).toMatchObject({ reason: 'Unit plugs into the existing outdoor socket; no new circuit was made.', by: 'Sam Okafor', at: TEST_TODAY.toISOString() });
+    const saved = (
+      await waive('TW-2402', 'Unit plugs into the existing outdoor socket; no new circuit was made.').expect(200)
+    ).body;
+    expect(saved.waiver).toMatchObject({
+      reason: 'Unit plugs into the existing outdoor socket; no new circuit was made.',
+      by: 'Sam Okafor',
+      at: TEST_TODAY.toISOString(),
+    });
     expect(saved.certificate).toBeNull();
     // Taken back, the gate closes again; recorded again, it opens.
     await waive('TW-2402', null).expect(200);
@@ -158,7 +213,12 @@ describe("the office's waiver", () => {
 
 describe('the certificate link (no sign-in)', () => {
   it('is offered on the answer page once an electrical connection is confirmed', async () => {
-    const answer = await new LinkSigner(ctx.config.LINK_SECRET).signAnswer({ bookingId: connect['TW-2402']!, version: await versionOf(connect['TW-2402']!), action: 'confirm', expiresAt: new Date(Date.now() + 86_400_000) });
+    const answer = await new LinkSigner(ctx.config.LINK_SECRET).signAnswer({
+      bookingId: connect['TW-2402']!,
+      version: await versionOf(connect['TW-2402']!),
+      action: 'confirm',
+      expiresAt: new Date(Date.now() + 86_400_000),
+    });
     const page = await request(ctx.waterline.app).get(`/answer/${answer}`).expect(200);
     const link = /href="([^"]*\/answer\/certificate\/[^"]+)"/.exec(page.text)?.[1];
     expect(link).toBeDefined();
@@ -167,19 +227,38 @@ describe('the certificate link (no sign-in)', () => {
   });
 
   it('takes a PDF for its own booking, refuses other files on the page, and refuses a link for another firm', async () => {
-    const token = await links.sign({ bookingId: connect['TW-2402']!, firmId: await idOf(ctx.knex, 'firms', { name: 'Brightspark Electrical' }) }, new Date(TEST_TODAY.getTime() + 86_400_000));
-    const refused = await request(ctx.waterline.app).post(`/answer/certificate/${token}`).attach('file', jpeg, { filename: 'photo.jpg' });
+    const token = await links.sign(
+      { bookingId: connect['TW-2402']!, firmId: await idOf(ctx.knex, 'firms', { name: 'Brightspark Electrical' }) },
+      new Date(TEST_TODAY.getTime() + 86_400_000),
+    );
+    const refused = await request(ctx.waterline.app)
+      .post(`/answer/certificate/${token}`)
+      .attach('file', jpeg, { filename: 'photo.jpg' });
     expect(refused.status).toBe(415);
     expect(refused.text).toContain('The certificate must be a PDF.');
-    const ok = await request(ctx.waterline.app).post(`/answer/certificate/${token}`).attach('file', PDF, { filename: 'EIC TW-2402.pdf' });
+    const ok = await request(ctx.waterline.app)
+      .post(`/answer/certificate/${token}`)
+      .attach('file', PDF, { filename: 'EIC TW-2402.pdf' });
     expect(ok.status).toBe(201);
     expect(ok.text).toContain('EIC TW-2402.pdf');
     expect((await loadCertificate(ctx.knex, job['TW-2402']!)).certificate).toMatchObject({ name: 'EIC TW-2402.pdf' });
 
     // A link naming another electrical firm (not the one holding the booking) is spent, whatever it sends.
-    const northgate = await links.sign({ bookingId: connect['TW-2402']!, firmId: await idOf(ctx.knex, 'firms', { name: 'Northgate Electrical' }) }, new Date(TEST_TODAY.getTime() + 86_400_000));
-    expect((await request(ctx.waterline.app).post(`/answer/certificate/${northgate}`).attach('file', PDF, { filename: 'x.pdf' })).status).toBe(410);
-    const expired = await links.sign({ bookingId: connect['TW-2402']!, firmId: '1' }, new Date(TEST_TODAY.getTime() - 1000));
+    const northgate = await links.sign(
+      { bookingId: connect['TW-2402']!, firmId: await idOf(ctx.knex, 'firms', { name: 'Northgate Electrical' }) },
+      new Date(TEST_TODAY.getTime() + 86_400_000),
+    );
+    expect(
+      (
+        await request(ctx.waterline.app)
+          .post(`/answer/certificate/${northgate}`)
+          .attach('file', PDF, { filename: 'x.pdf' })
+      ).status,
+    ).toBe(410);
+    const expired = await links.sign(
+      { bookingId: connect['TW-2402']!, firmId: '1' },
+      new Date(TEST_TODAY.getTime() - 1000),
+    );
     expect((await request(ctx.waterline.app).get(`/answer/certificate/${expired}`)).status).toBe(410);
     expect((await request(ctx.waterline.app).get(`/answer/certificate/${token.slice(0, -3)}abc`)).status).toBe(400);
     expect((await loadCertificate(ctx.knex, job['TW-2402']!)).certificate?.name).toBe('EIC TW-2402.pdf');

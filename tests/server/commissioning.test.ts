@@ -23,10 +23,16 @@ const PDF = Buffer.from('%PDF-1.4\n1 0 obj << /Type /Catalog >> endobj\ntrailer 
 const ALL_TICKED = { pumpsPrimed: true, pumpsTested: true, heaterWorking: true, lightsWorking: true, noLeaks: true };
 
 const record = (as: Agent = crew) => as.get(`/api/jobs/${jobId}/commissioning`);
-const save = (body: object, as: Agent = crew) => as.put(`/api/jobs/${jobId}/commissioning`).set('X-CSRF-Token', as.csrf).send(body);
+const save = (body: object, as: Agent = crew) =>
+  as.put(`/api/jobs/${jobId}/commissioning`).set('X-CSRF-Token', as.csrf).send(body);
 const version = async () => (await record().expect(200)).body.version as number;
-const bookingVersion = async () => (await ctx.knex('bookings').where('id', bookingId).first('version')).version as number;
-const finish = async (as: Agent = crew) => as.post(`/api/bookings/${bookingId}/progress`).set('X-CSRF-Token', as.csrf).send({ action: 'finish', version: await bookingVersion() });
+const bookingVersion = async () =>
+  (await ctx.knex('bookings').where('id', bookingId).first('version')).version as number;
+const finish = async (as: Agent = crew) =>
+  as
+    .post(`/api/bookings/${bookingId}/progress`)
+    .set('X-CSRF-Token', as.csrf)
+    .send({ action: 'finish', version: await bookingVersion() });
 const stateOf = async () => (await ctx.knex('bookings').where('id', bookingId).first('state')).state as string;
 
 beforeAll(async () => {
@@ -37,16 +43,39 @@ beforeAll(async () => {
   partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
   otherInstaller = await signIn(ctx, account('scheduler', 'Moorview Spas').email);
   jobId = await idOf(ctx.knex, 'jobs', { reference: 'TW-2402' });
-  const booking = await ctx.knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').join('resources as r', 'r.id', 'b.resource_id')
-    .where({ 's.job_id': jobId, 's.kind': 'commission', 'r.name': 'Crew Heron' }).first('b.id', 'b.version');
+  const booking = await ctx
+    .knex('bookings as b')
+    .join('stages as s', 's.id', 'b.stage_id')
+    .join('resources as r', 'r.id', 'b.resource_id')
+    .where({ 's.job_id': jobId, 's.kind': 'commission', 'r.name': 'Crew Heron' })
+    .first('b.id', 'b.version');
   bookingId = String(booking.id);
   // The crew arrived (marking on site is only possible on the booking's day; the demo's is later).
-  await ctx.knex('bookings').where('id', bookingId).update({ state: 'on_site', version: booking.version + 1 });
-  const jpeg = await sharp({ create: { width: 640, height: 480, channels: 3, background: { r: 30, g: 110, b: 150 } } }).jpeg().toBuffer();
-  photoId = (await crew.post(`/api/jobs/${jobId}/files`).set('X-CSRF-Token', crew.csrf).attach('file', jpeg, { filename: 'running.jpg' }).expect(201)).body.id;
-  pdfId = (await crew.post(`/api/jobs/${jobId}/files`).set('X-CSRF-Token', crew.csrf).attach('file', PDF, { filename: 'manual.pdf' }).expect(201)).body.id;
+  await ctx
+    .knex('bookings')
+    .where('id', bookingId)
+    .update({ state: 'on_site', version: booking.version + 1 });
+  const jpeg = await sharp({ create: { width: 640, height: 480, channels: 3, background: { r: 30, g: 110, b: 150 } } })
+    .jpeg()
+    .toBuffer();
+  photoId = (
+    await crew
+      .post(`/api/jobs/${jobId}/files`)
+      .set('X-CSRF-Token', crew.csrf)
+      .attach('file', jpeg, { filename: 'running.jpg' })
+      .expect(201)
+  ).body.id;
+  pdfId = (
+    await crew
+      .post(`/api/jobs/${jobId}/files`)
+      .set('X-CSRF-Token', crew.csrf)
+      .attach('file', PDF, { filename: 'manual.pdf' })
+      .expect(201)
+  ).body.id;
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe('before anything is recorded', () => {
   it("shows an empty record with the firm's ranges, each with its source, and the cautions", async () => {
@@ -63,16 +92,31 @@ describe('before anything is recorded', () => {
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(res.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/commissioning-incomplete`);
     expect(res.body.missing).toEqual(['Nothing is recorded yet: fill in the commissioning record.']);
-    expect(res.body.detail).toBe("'Commission' can't be marked done yet. Nothing is recorded yet: fill in the commissioning record.");
+    expect(res.body.detail).toBe(
+      "'Commission' can't be marked done yet. Nothing is recorded yet: fill in the commissioning record.",
+    );
     expect(await stateOf()).toBe('on_site');
   });
 });
 
 describe('an incomplete record', () => {
   it('is saved as the crew goes, and Done names each missing item', async () => {
-    const saved = await save({ version: 0, checks: { ...ALL_TICKED, lightsWorking: false }, ph: 7.9, totalAlkalinityPpm: 100, sanitiserPpm: null, sanitiserKind: 'chlorine', notes: null, photoFileIds: [] }).expect(200);
+    const saved = await save({
+      version: 0,
+      checks: { ...ALL_TICKED, lightsWorking: false },
+      ph: 7.9,
+      totalAlkalinityPpm: 100,
+      sanitiserPpm: null,
+      sanitiserKind: 'chlorine',
+      notes: null,
+      photoFileIds: [],
+    }).expect(200);
     expect(saved.body.version).toBe(1);
-    expect(saved.body.readings.map((r: { key: string; verdict: string }) => [r.key, r.verdict])).toEqual([['ph', 'high'], ['totalAlkalinityPpm', 'in-range'], ['sanitiserPpm', 'missing']]);
+    expect(saved.body.readings.map((r: { key: string; verdict: string }) => [r.key, r.verdict])).toEqual([
+      ['ph', 'high'],
+      ['totalAlkalinityPpm', 'in-range'],
+      ['sanitiserPpm', 'missing'],
+    ]);
     const res = await finish();
     expect(res.status).toBe(409);
     expect(res.body.missing).toEqual([
@@ -90,13 +134,26 @@ describe('an incomplete record', () => {
     expect(res.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/commissioning-incomplete`);
   });
 
-  it('flags a reading against the firm\'s own range and names that range\'s source', async () => {
+  it("flags a reading against the firm's own range and names that range's source", async () => {
     const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
-    await ctx.knex('firm_settings').insert({ firm_id: tideway, water_targets: JSON.stringify({ totalAlkalinityPpm: { min: 110, max: 150, source: "the unit maker's manual" } }) })
-      .onConflict('firm_id').merge(['water_targets']);
+    await ctx
+      .knex('firm_settings')
+      .insert({
+        firm_id: tideway,
+        water_targets: JSON.stringify({
+          totalAlkalinityPpm: { min: 110, max: 150, source: "the unit maker's manual" },
+        }),
+      })
+      .onConflict('firm_id')
+      .merge(['water_targets']);
     try {
       const body = (await record().expect(200)).body;
-      expect(body.readings[1]).toMatchObject({ key: 'totalAlkalinityPpm', value: 100, verdict: 'low', range: { min: 110, max: 150, source: "the unit maker's manual" } });
+      expect(body.readings[1]).toMatchObject({
+        key: 'totalAlkalinityPpm',
+        value: 100,
+        verdict: 'low',
+        range: { min: 110, max: 150, source: "the unit maker's manual" },
+      });
     } finally {
       await ctx.knex('firm_settings').where('firm_id', tideway).update({ water_targets: '{}' });
     }
@@ -111,38 +168,71 @@ describe('an incomplete record', () => {
 
   it('two saves at once from the same version: one is kept, the other is told someone else saved (409)', async () => {
     const v = await version();
-    const body = { version: v, checks: { ...ALL_TICKED, lightsWorking: false }, ph: 7.9, totalAlkalinityPpm: 100, sanitiserKind: 'chlorine', photoFileIds: [] };
+    const body = {
+      version: v,
+      checks: { ...ALL_TICKED, lightsWorking: false },
+      ph: 7.9,
+      totalAlkalinityPpm: 100,
+      sanitiserKind: 'chlorine',
+      photoFileIds: [],
+    };
     // Hold the record's row so both saves are under way before either can write (polled, 10 s at most).
     const holder = await ctx.knex.transaction();
     await holder('commissioning_records').where('job_id', jobId).forUpdate().first('id');
     const both = Promise.all([save(body), save(body)]);
-    const waiting = async () => Number((await ctx.knex.raw(`SELECT count(*) AS n FROM pg_stat_activity WHERE datname = current_database() AND wait_event_type = 'Lock'`)).rows[0].n);
-    for (const started = Date.now(); await waiting() < 2 && Date.now() - started < 10_000;) await new Promise((r) => setTimeout(r, 20));
+    const waiting = async () =>
+      Number(
+        (
+          await ctx.knex.raw(
+            `SELECT count(*) AS n FROM pg_stat_activity WHERE datname = current_database() AND wait_event_type = 'Lock'`,
+          )
+        ).rows[0].n,
+      );
+    for (const started = Date.now(); (await waiting()) < 2 && Date.now() - started < 10_000;)
+      await new Promise((r) => setTimeout(r, 20));
     await holder.commit();
     const results = await both;
     expect(results.map((r) => r.status).sort()).toEqual([200, 409]);
     expect((await loadCommissioningRecord(ctx.knex, jobId))?.version).toBe(v + 1);
   });
 
-  it('takes only photos of this job as its photos (a PDF or another job\'s file is 400 naming the field)', async () => {
+  it("takes only photos of this job as its photos (a PDF or another job's file is 400 naming the field)", async () => {
     const v = await version();
     const res = await save({ version: v, checks: ALL_TICKED, photoFileIds: [pdfId] });
     expect(res.status).toBe(400);
     expect(res.body.errors).toEqual([{ field: 'photoFileIds', message: `${pdfId} is not a photo on this job` }]);
-    const otherJobFile = await ctx.knex('job_files').insert({ job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2405' }), object_key: 'jobs/x/other.jpg', name: 'other.jpg', content_type: 'image/jpeg', size_bytes: 10 }).returning('id');
-    expect((await save({ version: v, checks: ALL_TICKED, photoFileIds: [String(otherJobFile[0].id)] })).status).toBe(400);
+    const otherJobFile = await ctx
+      .knex('job_files')
+      .insert({
+        job_id: await idOf(ctx.knex, 'jobs', { reference: 'TW-2405' }),
+        object_key: 'jobs/x/other.jpg',
+        name: 'other.jpg',
+        content_type: 'image/jpeg',
+        size_bytes: 10,
+      })
+      .returning('id');
+    expect((await save({ version: v, checks: ALL_TICKED, photoFileIds: [String(otherJobFile[0].id)] })).status).toBe(
+      400,
+    );
   });
 
   it('refuses readings that are not readings (400 naming the field)', async () => {
     const v = await version();
-    const res = await save({ version: v, checks: ALL_TICKED, ph: 15, sanitiserKind: 'ozone', notes: 'ok\u0000', photoFileIds: [] });
+    const res = await save({
+      version: v,
+      checks: ALL_TICKED,
+      ph: 15,
+      sanitiserKind: 'ozone',
+      notes: 'ok\u0000',
+      photoFileIds: [],
+    });
     expect(res.status).toBe(400);
     expect(res.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['notes', 'ph', 'sanitiserKind']);
   });
 });
 
 describe('who reads and writes the record', () => {
-  it("is 404 to another installer and 403 to a partner firm, for reads and writes", async () => {
+  it('is 404 to another installer and 403 to a partner firm, for reads and writes', async () => {
     expect((await record(otherInstaller)).status).toBe(404);
     expect((await save({ version: 1, checks: ALL_TICKED }, otherInstaller)).status).toBe(404);
     expect((await record(partner)).status).toBe(403);
@@ -156,22 +246,36 @@ describe('who reads and writes the record', () => {
   });
 
   it('refuses crew who are not booked on the commissioning (403)', async () => {
-    await ctx.knex('bookings').where('id', bookingId).update({ resource_id: await idOf(ctx.knex, 'resources', { name: 'Crew Kestrel' }) });
+    await ctx
+      .knex('bookings')
+      .where('id', bookingId)
+      .update({ resource_id: await idOf(ctx.knex, 'resources', { name: 'Crew Kestrel' }) });
     try {
       // Connor still sees the job through his crew's other stages, but may not change its commissioning.
       expect((await record()).body.canEdit).toBe(false);
       const res = await save({ version: await version(), checks: ALL_TICKED, photoFileIds: [] });
       expect(res.status).toBe(403);
     } finally {
-      await ctx.knex('bookings').where('id', bookingId).update({ resource_id: await idOf(ctx.knex, 'resources', { name: 'Crew Heron' }) });
+      await ctx
+        .knex('bookings')
+        .where('id', bookingId)
+        .update({ resource_id: await idOf(ctx.knex, 'resources', { name: 'Crew Heron' }) });
     }
   });
 });
 
 describe('a complete record', () => {
   it('with an out-of-range reading explained in the notes and a photo, lets Done through', async () => {
-    const saved = await save({ version: await version(), checks: ALL_TICKED, ph: 7.9, totalAlkalinityPpm: 100, sanitiserPpm: 4, sanitiserKind: 'chlorine',
-      notes: 'pH a little high after the fill: dosed pH minus, householder to re-test tomorrow.', photoFileIds: [photoId] }).expect(200);
+    const saved = await save({
+      version: await version(),
+      checks: ALL_TICKED,
+      ph: 7.9,
+      totalAlkalinityPpm: 100,
+      sanitiserPpm: 4,
+      sanitiserKind: 'chlorine',
+      notes: 'pH a little high after the fill: dosed pH minus, householder to re-test tomorrow.',
+      photoFileIds: [photoId],
+    }).expect(200);
     expect(saved.body.gaps).toEqual([]);
     expect(saved.body.completedAt).toBe(new Date(saved.body.updatedAt).toISOString());
     expect(saved.body.photos.map((p: { id: string }) => p.id)).toEqual([photoId]);
@@ -191,8 +295,13 @@ describe('a complete record', () => {
 
 describe('the demo scenario', () => {
   it('has no commissioning or handover marked done, so it needs no record or certificate to stay consistent', async () => {
-    const done = await ctx.knex('bookings as b').join('stages as s', 's.id', 'b.stage_id').whereIn('s.kind', ['commission', 'handover'])
-      .where('b.state', 'done').whereNot('b.id', bookingId).count<{ count: string }[]>('* as count');
+    const done = await ctx
+      .knex('bookings as b')
+      .join('stages as s', 's.id', 'b.stage_id')
+      .whereIn('s.kind', ['commission', 'handover'])
+      .where('b.state', 'done')
+      .whereNot('b.id', bookingId)
+      .count<{ count: string }[]>('* as count');
     expect(Number(done[0]!.count)).toBe(0);
   });
 });

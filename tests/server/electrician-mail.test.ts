@@ -31,7 +31,12 @@ const EXPECTED_SUPPLY = [
 ];
 
 async function outboxRow(kind: OutboxKind, bookingId: string): Promise<OutboxPayload> {
-  const row = await ctx.knex('outbox').where('kind', kind).whereRaw("payload->>'bookingId' = ?", [bookingId]).orderBy('id', 'desc').first();
+  const row = await ctx
+    .knex('outbox')
+    .where('kind', kind)
+    .whereRaw("payload->>'bookingId' = ?", [bookingId])
+    .orderBy('id', 'desc')
+    .first();
   if (!row) throw new Error(`no ${kind} row for booking ${bookingId}`);
   return row.payload as OutboxPayload;
 }
@@ -43,7 +48,14 @@ async function compose(kind: OutboxKind, bookingId: string): Promise<OutgoingMai
 }
 
 /** The invite's VEVENT, read by ical.js (an independent reader of RFC 5545). */
-function invite(mail: OutgoingMail): { method: string; uid: string; sequence: number; status: string; partstat: string; start: string } {
+function invite(mail: OutgoingMail): {
+  method: string;
+  uid: string;
+  sequence: number;
+  status: string;
+  partstat: string;
+  start: string;
+} {
   if (!mail.ics) throw new Error('no invite');
   const cal = new ICAL.Component(ICAL.parse(mail.ics.content));
   const vevent = cal.getFirstSubcomponent('vevent')!;
@@ -68,23 +80,43 @@ beforeAll(async () => {
   jobId = await idOf(ctx.knex, 'jobs', { reference: 'TW-2417' });
   tidewayId = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
   const job = await ctx.knex('jobs').where('id', jobId).first('unit_id');
-  await ctx.knex('units').where('id', job.unitId).update({ supplies: JSON.stringify([{ amps: 32 }, { amps: 16 }]) });
+  await ctx
+    .knex('units')
+    .where('id', job.unitId)
+    .update({ supplies: JSON.stringify([{ amps: 32 }, { amps: 16 }]) });
   await ctx.knex('surveys').where('job_id', jobId).delete();
-  await ctx.knex('surveys').insert({ job_id: jobId, access_width_mm: 1200, ground_type: 'clay', main_fuse_amps: 80, earthing_arrangement: 'TN-C-S', consumer_unit_distance_m: 14.5, consumer_unit_location: 'Garage, left of the door' });
+  await ctx.knex('surveys').insert({
+    job_id: jobId,
+    access_width_mm: 1200,
+    ground_type: 'clay',
+    main_fuse_amps: 80,
+    earthing_arrangement: 'TN-C-S',
+    consumer_unit_distance_m: 14.5,
+    consumer_unit_location: 'Garage, left of the door',
+  });
   await ctx.knex('resources').where('name', 'Crew Heron').update({ phone: '07700 900555' });
   // Words the office's plan may carry: a partner must never be shown them.
-  await ctx.knex('stages').where({ job_id: jobId, kind: 'electrical_connect' }).update({ notes: "Needs 3 working days' notice" });
+  await ctx
+    .knex('stages')
+    .where({ job_id: jobId, kind: 'electrical_connect' })
+    .update({ notes: "Needs 3 working days' notice" });
 
   const b = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'electrical_connect', resource: 'Priya Nair', ...SLOT });
-  await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+  await scheduler
+    .post(`/api/bookings/${b.id}/publish`)
+    .set('X-CSRF-Token', scheduler.csrf)
+    .send({ version: 1 })
+    .expect(200);
   slot = b.id;
   // The installer's own crew on the job that day: the partner's contact on site.
   await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'fill', resource: 'Crew Heron', ...CREW_DAY });
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe("the electrician's request", () => {
-  it('gives the unit\'s load in A and kW, the supply from the survey and the crew on site, and no office notes', async () => {
+  it("gives the unit's load in A and kW, the supply from the survey and the crew on site, and no office notes", async () => {
     const mail = await compose('booking_request', slot);
     expect(mail.to).toContain('priya.nair@brightspark.example');
     for (const body of [mail.text, mail.html]) {
@@ -99,21 +131,34 @@ describe("the electrician's request", () => {
     }
   });
 
-  it('adds the householder\'s name and phone only once the installer shares them with partners', async () => {
-    await ctx.knex('firm_settings').insert({ firm_id: tidewayId, share_customer_contact_with_partners: true })
-      .onConflict('firm_id').merge(['share_customer_contact_with_partners']);
+  it("adds the householder's name and phone only once the installer shares them with partners", async () => {
+    await ctx
+      .knex('firm_settings')
+      .insert({ firm_id: tidewayId, share_customer_contact_with_partners: true })
+      .onConflict('firm_id')
+      .merge(['share_customer_contact_with_partners']);
     try {
       const mail = await compose('booking_request', slot);
       expect(mail.text).toContain(`Customer, Freya Lund: ${CUSTOMER_PHONE}`);
       expect(mail.text).not.toContain('freya@home.example');
     } finally {
-      await ctx.knex('firm_settings').where('firm_id', tidewayId).update({ share_customer_contact_with_partners: false });
+      await ctx
+        .knex('firm_settings')
+        .where('firm_id', tidewayId)
+        .update({ share_customer_contact_with_partners: false });
     }
   });
 
   it('invites as TENTATIVE while the request waits for an answer (RFC 5545 §3.8.1.11)', async () => {
     const ics = invite(await compose('booking_request', slot));
-    expect(ics).toEqual({ method: 'REQUEST', uid: `booking-${slot}@127.0.0.1`, sequence: 2, status: 'TENTATIVE', partstat: 'NEEDS-ACTION', start: '2027-08-03T08:00:00.000Z' });
+    expect(ics).toEqual({
+      method: 'REQUEST',
+      uid: `booking-${slot}@127.0.0.1`,
+      sequence: 2,
+      status: 'TENTATIVE',
+      partstat: 'NEEDS-ACTION',
+      start: '2027-08-03T08:00:00.000Z',
+    });
   });
 
   it('shows the same facts on the answer page behind the e-mailed link', async () => {
@@ -128,9 +173,11 @@ describe("the electrician's request", () => {
 });
 
 describe("the electrician's slot list", () => {
-  it('carries the supply lines and the read policy\'s contacts', async () => {
+  it("carries the supply lines and the read policy's contacts", async () => {
     const res = await partner.get('/api/partner/slots?from=2027-08-01T00:00:00Z').expect(200);
-    const mine = (res.body.items as { id: string; supply: string[] | null; contacts: unknown[]; unit: string | null }[]).find((i) => i.id === slot)!;
+    const mine = (
+      res.body.items as { id: string; supply: string[] | null; contacts: unknown[]; unit: string | null }[]
+    ).find((i) => i.id === slot)!;
     expect(mine.supply).toEqual(EXPECTED_SUPPLY);
     expect(mine.contacts).toEqual([
       { name: 'Crew Heron', phone: '07700 900555', role: 'On site that day' },
@@ -141,9 +188,18 @@ describe("the electrician's slot list", () => {
 });
 
 describe('a crane firm', () => {
-  it('is not sent the house\'s electrical supply', async () => {
-    const lift = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'lift', resource: '60 t mobile crane', startsAt: '2027-07-20T08:00:00Z', endsAt: '2027-07-20T12:00:00Z' });
-    const sent = await scheduler.post(`/api/bookings/${lift.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 });
+  it("is not sent the house's electrical supply", async () => {
+    const lift = await pencilIn(ctx.knex, {
+      job: 'TW-2417',
+      stage: 'lift',
+      resource: '60 t mobile crane',
+      startsAt: '2027-07-20T08:00:00Z',
+      endsAt: '2027-07-20T12:00:00Z',
+    });
+    const sent = await scheduler
+      .post(`/api/bookings/${lift.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 1 });
     expect(sent.status, JSON.stringify(sent.body)).toBe(200);
     const mail = await compose('booking_request', lift.id);
     expect(mail.text).toContain('Installer office, Tideway Hot Tubs: 0113 496 0001');
@@ -155,13 +211,27 @@ describe('a crane firm', () => {
 
 describe('once the electrician confirms', () => {
   it('sends an updated invite: the same UID, a higher SEQUENCE, CONFIRMED and accepted', async () => {
-    await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'confirm' }).expect(200);
+    await partner
+      .post(`/api/partner/slots/${slot}/answer`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ action: 'confirm' })
+      .expect(200);
     const mail = await compose('booking_confirmed', slot);
     expect(mail.subject).toBe('Confirmed: Connect and certify, Bingley, Tue 3 Aug 2027');
     for (const line of EXPECTED_SUPPLY) expect(mail.text).toContain(line);
-    expect(invite(mail)).toEqual({ method: 'REQUEST', uid: `booking-${slot}@127.0.0.1`, sequence: 3, status: 'CONFIRMED', partstat: 'ACCEPTED', start: '2027-08-03T08:00:00.000Z' });
+    expect(invite(mail)).toEqual({
+      method: 'REQUEST',
+      uid: `booking-${slot}@127.0.0.1`,
+      sequence: 3,
+      status: 'CONFIRMED',
+      partstat: 'ACCEPTED',
+      start: '2027-08-03T08:00:00.000Z',
+    });
     // The request of the version before is superseded, so no tentative invite goes out after this one.
-    const stale = await composeMessage({ knex: ctx.knex, config: ctx.config }, 'booking_request', { bookingId: slot, version: 2 });
+    const stale = await composeMessage({ knex: ctx.knex, config: ctx.config }, 'booking_request', {
+      bookingId: slot,
+      version: 2,
+    });
     expect(stale).toEqual({ skip: 'superseded by version 3' });
   });
 });

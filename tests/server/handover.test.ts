@@ -34,7 +34,11 @@ const good = () => ({ checklist: { ...ALL_TICKED }, householderName: 'Ruth Calde
 
 async function pdfText(buffer: Buffer): Promise<string> {
   const parser = new PDFParse({ data: buffer });
-  try { return (await parser.getText()).text; } finally { await parser.destroy(); }
+  try {
+    return (await parser.getText()).text;
+  } finally {
+    await parser.destroy();
+  }
 }
 
 describe('signing the handover', () => {
@@ -47,20 +51,29 @@ describe('signing the handover', () => {
     const blank = await sign(crew, job.jobId, { ...good(), signature: await signaturePng(true) }).expect(400);
     expect(blank.body.errors).toEqual([{ field: 'signature', message: 'is blank: ask the householder to sign' }]);
 
-    const notPng = await sign(crew, job.jobId, { ...good(), signature: `data:image/png;base64,${Buffer.from('%PDF-1.4 not a picture').toString('base64')}` }).expect(400);
+    const notPng = await sign(crew, job.jobId, {
+      ...good(),
+      signature: `data:image/png;base64,${Buffer.from('%PDF-1.4 not a picture').toString('base64')}`,
+    }).expect(400);
     expect(notPng.body.errors[0].field).toBe('signature');
 
     const { chemicals: _skipped, ...partly } = ALL_TICKED;
     const unticked = await sign(crew, job.jobId, { ...good(), checklist: partly }).expect(400);
-    expect(unticked.body.errors).toEqual([{ field: 'checklist.chemicals', message: 'must be gone through with the householder' }]);
+    expect(unticked.body.errors).toEqual([
+      { field: 'checklist.chemicals', message: 'must be gone through with the householder' },
+    ]);
     const untrue = await sign(crew, job.jobId, { ...good(), checklist: { ...ALL_TICKED, cover: false } }).expect(400);
-    expect(untrue.body.errors).toEqual([{ field: 'checklist.cover', message: 'must be gone through with the householder' }]);
+    expect(untrue.body.errors).toEqual([
+      { field: 'checklist.cover', message: 'must be gone through with the householder' },
+    ]);
 
     const nul = await sign(crew, job.jobId, { ...good(), householderName: 'Ruth\u0000Calder' }).expect(400);
     expect(nul.body.errors[0].field).toBe('householderName');
     // Nothing was kept by any of the refusals.
     expect(await ctx.knex('handovers').where('job_id', job.jobId).first()).toBeUndefined();
-    expect(await ctx.knex('bookings').where('id', job.handoverBookingId).first('state')).toEqual({ state: 'confirmed' });
+    expect(await ctx.knex('bookings').where('id', job.handoverBookingId).first('state')).toEqual({
+      state: 'confirmed',
+    });
   });
 
   it('keeps the signature, marks the handover stage done through the write path and queues the pack e-mail exactly once on a double submit', async () => {
@@ -74,13 +87,27 @@ describe('signing the handover', () => {
     expect(refused.body.code).toBe('already-handed-over');
 
     const handover = await ctx.knex('handovers').where('job_id', job.jobId).first();
-    expect(handover).toMatchObject({ householderName: 'Ruth Calder', checklist: ALL_TICKED, signedAt: new Date('2026-06-01T07:00:00Z') });
-    const outbox = await ctx.knex('outbox').where('kind', 'handover_pack').whereRaw(`payload->>'jobId' = ?`, [job.jobId]);
+    expect(handover).toMatchObject({
+      householderName: 'Ruth Calder',
+      checklist: ALL_TICKED,
+      signedAt: new Date('2026-06-01T07:00:00Z'),
+    });
+    const outbox = await ctx
+      .knex('outbox')
+      .where('kind', 'handover_pack')
+      .whereRaw(`payload->>'jobId' = ?`, [job.jobId]);
     expect(outbox).toHaveLength(1);
     expect(String(handover.packOutboxId)).toBe(String(outbox[0].id));
     // Crew progress through the guarded writer: arrived, then done, each audited as a booking change.
-    expect(await ctx.knex('bookings').where('id', job.handoverBookingId).first('state', 'version')).toEqual({ state: 'done', version: 3 });
-    const audits = await ctx.knex('audit_log').where({ entity: 'booking', entity_id: job.handoverBookingId }).orderBy('id').pluck('after');
+    expect(await ctx.knex('bookings').where('id', job.handoverBookingId).first('state', 'version')).toEqual({
+      state: 'done',
+      version: 3,
+    });
+    const audits = await ctx
+      .knex('audit_log')
+      .where({ entity: 'booking', entity_id: job.handoverBookingId })
+      .orderBy('id')
+      .pluck('after');
     expect(audits.map((x: { action: string }) => x.action)).toEqual(['arrive', 'finish']);
     expect(await ctx.knex('jobs').where('id', job.jobId).first('status')).toEqual({ status: 'handed_over' });
     const files = await ctx.knex('job_files').where('job_id', job.jobId).orderBy('id').pluck('name');
@@ -88,17 +115,30 @@ describe('signing the handover', () => {
 
     // A later submit is refused the same way, and still nothing more is queued.
     await sign(office, job.jobId, good()).expect(409);
-    expect(await ctx.knex('outbox').where('kind', 'handover_pack').whereRaw(`payload->>'jobId' = ?`, [job.jobId])).toHaveLength(1);
+    expect(
+      await ctx.knex('outbox').where('kind', 'handover_pack').whereRaw(`payload->>'jobId' = ?`, [job.jobId]),
+    ).toHaveLength(1);
   });
 
   it('e-mails a pack whose text carries the commissioning readings with their ranges, the certificate and the water-care cautions', async () => {
     const job = await makeHandoverJob(ctx.knex, { reference: 'HO-103', startsAt: '2026-06-01T11:00:00Z', store });
     await sign(crew, job.jobId, { ...good(), householderName: 'Ruth Calder-Łukasiewicz' }).expect(201);
-    const row = await ctx.knex('outbox').where('kind', 'handover_pack').whereRaw(`payload->>'jobId' = ?`, [job.jobId]).first();
-    const mail = await composeMessage({ knex: ctx.knex, config: ctx.config, store }, row.kind, row.payload) as OutgoingMail;
+    const row = await ctx
+      .knex('outbox')
+      .where('kind', 'handover_pack')
+      .whereRaw(`payload->>'jobId' = ?`, [job.jobId])
+      .first();
+    const mail = (await composeMessage(
+      { knex: ctx.knex, config: ctx.config, store },
+      row.kind,
+      row.payload,
+    )) as OutgoingMail;
     expect(mail.to).toEqual(['ruth@calder.example']);
     expect(mail.subject).toBe('Your hot tub handover pack (HO-103)');
-    expect(mail.attachments?.map((x) => [x.filename, x.contentType])).toEqual([['Handover pack HO-103.pdf', 'application/pdf'], ['EIC-7731.pdf', 'application/pdf']]);
+    expect(mail.attachments?.map((x) => [x.filename, x.contentType])).toEqual([
+      ['Handover pack HO-103.pdf', 'application/pdf'],
+      ['EIC-7731.pdf', 'application/pdf'],
+    ]);
 
     const text = (await pdfText(mail.attachments![0]!.content)).replace(/\s+/g, ' ');
     // The record's readings against the default ranges (shared/water-balance.ts, common practice, no source).
@@ -113,7 +153,7 @@ describe('signing the handover', () => {
     expect(text).toContain('Keep chemicals locked away from children');
     expect(text).toContain('Lock the cover straps every time the spa is left');
     expect(text).toContain('Test the RCD as often as its maker says');
-    expect(text).toContain('Register the spa\'s warranty');
+    expect(text).toContain("Register the spa's warranty");
     expect(text).toContain('Tideway Hot Tubs: 0113 496 0001');
     expect(text).toContain('Keep the water at or below 40 °C');
     // Latin-1 and Latin Extended-A letters both print (two subsets of the embedded font).
@@ -129,10 +169,21 @@ describe('signing the handover', () => {
     expect(await ctx.knex('handovers').where('job_id', job.jobId).first()).toBeUndefined();
     expect(await ctx.knex('job_files').where('job_id', job.jobId).count('* as n')).toEqual([{ n: '0' }]);
 
-    await ctx.knex('jobs').where('id', job.jobId).update({ certificate_waiver_reason: 'Electrician re-testing on Friday' });
+    await ctx
+      .knex('jobs')
+      .where('id', job.jobId)
+      .update({ certificate_waiver_reason: 'Electrician re-testing on Friday' });
     await sign(crew, job.jobId, good()).expect(201);
-    const row = await ctx.knex('outbox').where('kind', 'handover_pack').whereRaw(`payload->>'jobId' = ?`, [job.jobId]).first();
-    const mail = await composeMessage({ knex: ctx.knex, config: ctx.config, store }, row.kind, row.payload) as OutgoingMail;
+    const row = await ctx
+      .knex('outbox')
+      .where('kind', 'handover_pack')
+      .whereRaw(`payload->>'jobId' = ?`, [job.jobId])
+      .first();
+    const mail = (await composeMessage(
+      { knex: ctx.knex, config: ctx.config, store },
+      row.kind,
+      row.payload,
+    )) as OutgoingMail;
     expect(mail.attachments).toHaveLength(1);
     const text = (await pdfText(mail.attachments![0]!.content)).replace(/\s+/g, ' ');
     expect(text).toContain('The electrical certificate was not on file at handover (Electrician re-testing on Friday)');
@@ -144,35 +195,93 @@ describe('service visits from the handover', () => {
     const job = await makeHandoverJob(ctx.knex, { reference: 'HO-201', startsAt: '2026-06-01T13:00:00Z', store });
     const res = await sign(crew, job.jobId, good()).expect(201);
     // Handed over Mon 1 Jun 2026: + 3 months = 1 Sep 2026; + 12 more = 1 Sep 2027. Windows ± 14 days.
-    expect(res.body.serviceVisits.map((v: { reference: string; dueOn: string }) => [v.reference, v.dueOn])).toEqual([['HO-201-S1', '2026-09-01'], ['HO-201-S2', '2027-09-01']]);
-    const jobs = await ctx.knex('jobs').where('parent_job_id', job.jobId).orderBy('service_due_on')
-      .select('reference', 'kind', 'status', 'service_due_on', 'promised_from', 'promised_to', 'customer_name', 'site_postcode');
-    expect(jobs).toEqual([
-      { reference: 'HO-201-S1', kind: 'service', status: 'planned', serviceDueOn: '2026-09-01', promisedFrom: '2026-08-18', promisedTo: '2026-09-15', customerName: 'Ruth Calder', sitePostcode: 'LS21 1AA' },
-      { reference: 'HO-201-S2', kind: 'service', status: 'planned', serviceDueOn: '2027-09-01', promisedFrom: '2027-08-18', promisedTo: '2027-09-15', customerName: 'Ruth Calder', sitePostcode: 'LS21 1AA' },
+    expect(res.body.serviceVisits.map((v: { reference: string; dueOn: string }) => [v.reference, v.dueOn])).toEqual([
+      ['HO-201-S1', '2026-09-01'],
+      ['HO-201-S2', '2027-09-01'],
     ]);
-    const stages = await ctx.knex('stages').whereIn('job_id', ctx.knex('jobs').where('parent_job_id', job.jobId).select('id')).select('kind', 'duration_minutes', 'requirements');
+    const jobs = await ctx
+      .knex('jobs')
+      .where('parent_job_id', job.jobId)
+      .orderBy('service_due_on')
+      .select(
+        'reference',
+        'kind',
+        'status',
+        'service_due_on',
+        'promised_from',
+        'promised_to',
+        'customer_name',
+        'site_postcode',
+      );
+    expect(jobs).toEqual([
+      {
+        reference: 'HO-201-S1',
+        kind: 'service',
+        status: 'planned',
+        serviceDueOn: '2026-09-01',
+        promisedFrom: '2026-08-18',
+        promisedTo: '2026-09-15',
+        customerName: 'Ruth Calder',
+        sitePostcode: 'LS21 1AA',
+      },
+      {
+        reference: 'HO-201-S2',
+        kind: 'service',
+        status: 'planned',
+        serviceDueOn: '2027-09-01',
+        promisedFrom: '2027-08-18',
+        promisedTo: '2027-09-15',
+        customerName: 'Ruth Calder',
+        sitePostcode: 'LS21 1AA',
+      },
+    ]);
+    const stages = await ctx
+      .knex('stages')
+      .whereIn('job_id', ctx.knex('jobs').where('parent_job_id', job.jobId).select('id'))
+      .select('kind', 'duration_minutes', 'requirements');
     expect(stages).toEqual([
       { kind: 'service_visit', durationMinutes: 120, requirements: [{ kind: 'install_crew', count: 1 }] },
       { kind: 'service_visit', durationMinutes: 120, requirements: [{ kind: 'install_crew', count: 1 }] },
     ]);
-    const notice = await ctx.knex('outbox').where('kind', 'service_plan_notice').whereRaw(`payload->>'jobId' = ?`, [job.jobId]).first();
-    const mail = await composeMessage({ knex: ctx.knex, config: ctx.config, store }, notice.kind, notice.payload) as OutgoingMail;
+    const notice = await ctx
+      .knex('outbox')
+      .where('kind', 'service_plan_notice')
+      .whereRaw(`payload->>'jobId' = ?`, [job.jobId])
+      .first();
+    const mail = (await composeMessage(
+      { knex: ctx.knex, config: ctx.config, store },
+      notice.kind,
+      notice.payload,
+    )) as OutgoingMail;
     expect(mail.to).toEqual(['ruth@calder.example']);
     expect(mail.text).toContain('September 2026 (HO-201-S1)\nSeptember 2027 (HO-201-S2)');
   });
 
   it("follows the firm's own plan, and shows a visit in the board's tray only as its window comes near", async () => {
-    await office.put('/api/firm/service-plan').set('X-CSRF-Token', office.csrf).send({ firstAfterMonths: 6, everyMonths: 12, visitsAhead: 3 }).expect(200);
+    await office
+      .put('/api/firm/service-plan')
+      .set('X-CSRF-Token', office.csrf)
+      .send({ firstAfterMonths: 6, everyMonths: 12, visitsAhead: 3 })
+      .expect(200);
     const job = await makeHandoverJob(ctx.knex, { reference: 'HO-202', startsAt: '2026-06-01T14:00:00Z', store });
     const res = await sign(crew, job.jobId, good()).expect(201);
     // 1 Jun 2026 + 6 months = 1 Dec 2026; then 1 Dec 2027 and 1 Dec 2028.
-    expect(res.body.serviceVisits.map((v: { dueOn: string }) => v.dueOn)).toEqual(['2026-12-01', '2027-12-01', '2028-12-01']);
-    await office.put('/api/firm/service-plan').set('X-CSRF-Token', office.csrf).send({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 }).expect(200);
+    expect(res.body.serviceVisits.map((v: { dueOn: string }) => v.dueOn)).toEqual([
+      '2026-12-01',
+      '2027-12-01',
+      '2028-12-01',
+    ]);
+    await office
+      .put('/api/firm/service-plan')
+      .set('X-CSRF-Token', office.csrf)
+      .send({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 })
+      .expect(200);
 
     const trayRefs = async (from: string, to: string) => {
       const board = await office.get('/api/board').query({ from, to }).expect(200);
-      return (board.body.jobs as { reference: string }[]).map((j) => j.reference).filter((r) => r.startsWith('HO-202-'));
+      return (board.body.jobs as { reference: string }[])
+        .map((j) => j.reference)
+        .filter((r) => r.startsWith('HO-202-'));
     };
     // The board of the week of 1 Jun: the first visit's window (from 17 Nov) is months away.
     expect(await trayRefs('2026-06-01T00:00:00Z', '2026-06-08T00:00:00Z')).toEqual([]);
@@ -182,10 +291,24 @@ describe('service visits from the handover', () => {
 
   it('lets only the owner change the plan, within bounds', async () => {
     const scheduler = await signIn(ctx, account('scheduler').email);
-    await scheduler.put('/api/firm/service-plan').set('X-CSRF-Token', scheduler.csrf).send({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 }).expect(403);
-    const bad = await office.put('/api/firm/service-plan').set('X-CSRF-Token', office.csrf).send({ firstAfterMonths: 0, everyMonths: 9999, visitsAhead: 2 }).expect(400);
+    await scheduler
+      .put('/api/firm/service-plan')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 })
+      .expect(403);
+    const bad = await office
+      .put('/api/firm/service-plan')
+      .set('X-CSRF-Token', office.csrf)
+      .send({ firstAfterMonths: 0, everyMonths: 9999, visitsAhead: 2 })
+      .expect(400);
     expect(bad.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['everyMonths', 'firstAfterMonths']);
-    expect((await scheduler.get('/api/firm/service-plan').expect(200)).body).toEqual({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2, isDefault: true, source: 'common practice, no source' });
+    expect((await scheduler.get('/api/firm/service-plan').expect(200)).body).toEqual({
+      firstAfterMonths: 3,
+      everyMonths: 12,
+      visitsAhead: 2,
+      isDefault: true,
+      source: 'common practice, no source',
+    });
   });
 });
 
@@ -202,9 +325,16 @@ describe('who may read and sign', () => {
     await sign(viewer, job.jobId, good()).expect(403);
 
     const seen = await crew.get(`/api/jobs/${job.jobId}/handover`).expect(200);
-    expect(seen.body).toMatchObject({ householderEmail: null, householderEmailHint: 'r…@calder.example', stageBooked: true, signed: null });
+    expect(seen.body).toMatchObject({
+      householderEmail: null,
+      householderEmailHint: 'r…@calder.example',
+      stageBooked: true,
+      signed: null,
+    });
     expect(JSON.stringify(seen.body)).not.toContain('ruth@calder.example');
-    expect((await office.get(`/api/jobs/${job.jobId}/handover`).expect(200)).body.householderEmail).toBe('ruth@calder.example');
+    expect((await office.get(`/api/jobs/${job.jobId}/handover`).expect(200)).body.householderEmail).toBe(
+      'ruth@calder.example',
+    );
 
     // A job the crew member is not booked on does not exist for them.
     await ctx.knex('bookings').whereIn('stage_id', Object.values(job.stage)).delete();

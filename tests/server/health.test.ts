@@ -8,12 +8,19 @@ import { startTestApp, testConfig, type TestContext } from '../helpers/server.ts
 /** A TCP port that accepts connections and never says a word: a hung Redis or PostgreSQL. */
 async function silentPort(): Promise<{ port: number; close(): Promise<void> }> {
   const sockets = new Set<Socket>();
-  const server: Server = createServer((socket) => { sockets.add(socket); socket.on('error', () => {}); });
+  const server: Server = createServer((socket) => {
+    sockets.add(socket);
+    socket.on('error', () => {});
+  });
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   const port = (server.address() as { port: number }).port;
   return {
     port,
-    close: () => new Promise<void>((resolve) => { for (const s of sockets) s.destroy(); server.close(() => resolve()); }),
+    close: () =>
+      new Promise<void>((resolve) => {
+        for (const s of sockets) s.destroy();
+        server.close(() => resolve());
+      }),
   };
 }
 
@@ -27,15 +34,24 @@ async function closedPort(): Promise<number> {
 }
 
 let ctx: TestContext;
-beforeAll(async () => { ctx = await startTestApp(); });
-afterAll(async () => { await ctx.close(); });
+beforeAll(async () => {
+  ctx = await startTestApp();
+});
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe('liveness and readiness', () => {
   it('answers live without asking any dependency, and ready with each dependency', async () => {
     const live = await request(ctx.waterline.app).get('/api/health/live').expect(200);
     expect(live.body).toEqual({ status: 'ok' });
     const ready = await request(ctx.waterline.app).get('/api/health/ready').expect(200);
-    expect(ready.body).toMatchObject({ status: 'ok', ready: true, database: { status: 'ok' }, queue: { status: 'ok' } });
+    expect(ready.body).toMatchObject({
+      status: 'ok',
+      ready: true,
+      database: { status: 'ok' },
+      queue: { status: 'ok' },
+    });
   });
 });
 
@@ -48,7 +64,9 @@ describe('a dependency that is away', () => {
       expect(report.ready).toBe(true);
       expect(report.database.status).toBe('ok');
       expect(report.queue.status).toBe('down');
-    } finally { await health.close(); }
+    } finally {
+      await health.close();
+    }
   });
 
   it('Redis hanging: the check gives up after its timeout instead of waiting for ever', async () => {
@@ -62,7 +80,10 @@ describe('a dependency that is away', () => {
       expect(report.ready).toBe(true);
       // Bounded by the 400 ms timeout (plus scheduling slack on a loaded machine), not by Redis.
       expect(took).toBeLessThan(3000);
-    } finally { await health.close(); await hung.close(); }
+    } finally {
+      await health.close();
+      await hung.close();
+    }
   });
 
   it('database away: not ready', async () => {
@@ -73,8 +94,16 @@ describe('a dependency that is away', () => {
     const health = new Health(deadKnex, testConfig().REDIS_URL, 500);
     try {
       const report = await health.check();
-      expect(report).toMatchObject({ status: 'down', ready: false, database: { status: 'down' }, queue: { status: 'ok' } });
+      expect(report).toMatchObject({
+        status: 'down',
+        ready: false,
+        database: { status: 'down' },
+        queue: { status: 'ok' },
+      });
       expect(report.database.reason).toBeTruthy();
-    } finally { await health.close(); await deadKnex.destroy(); }
+    } finally {
+      await health.close();
+      await deadKnex.destroy();
+    }
   });
 });

@@ -12,13 +12,24 @@ beforeAll(async () => {
   ctx.startPipeline();
   owner = await signIn(ctx, account('owner').email);
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe('inviting a new scheduler', () => {
   it('e-mails a signed link; accepting it lets that Google account sign in with the role', async () => {
     await expect(signIn(ctx, EMAIL)).rejects.toMatchObject({ location: '/sign-in?error=unknown_account' });
-    const created = await owner.post('/api/firm/invitations').set('X-CSRF-Token', owner.csrf).send({ email: 'Jo.Planner@tideway.example', role: 'scheduler' }).expect(201);
-    expect(created.body).toMatchObject({ email: EMAIL, role: 'scheduler', firmName: 'Tideway Hot Tubs', acceptedAt: null });
+    const created = await owner
+      .post('/api/firm/invitations')
+      .set('X-CSRF-Token', owner.csrf)
+      .send({ email: 'Jo.Planner@tideway.example', role: 'scheduler' })
+      .expect(201);
+    expect(created.body).toMatchObject({
+      email: EMAIL,
+      role: 'scheduler',
+      firmName: 'Tideway Hot Tubs',
+      acceptedAt: null,
+    });
     const list = await owner.get('/api/firm/invitations').expect(200);
     expect(list.body.items.map((i: { email: string }) => i.email)).toContain(EMAIL);
 
@@ -36,7 +47,11 @@ describe('inviting a new scheduler', () => {
     expect(accepted.text).toContain('Invitation accepted');
     const agent = await signIn(ctx, EMAIL);
     const session = await agent.get('/api/session').expect(200);
-    expect(session.body).toMatchObject({ role: 'scheduler', firm: { name: 'Tideway Hot Tubs' }, user: { email: EMAIL } });
+    expect(session.body).toMatchObject({
+      role: 'scheduler',
+      firm: { name: 'Tideway Hot Tubs' },
+      user: { email: EMAIL },
+    });
 
     // The link works once.
     const again = await request(ctx.waterline.app).post(link).type('form').send({}).expect(409);
@@ -45,11 +60,19 @@ describe('inviting a new scheduler', () => {
 
   it('is for owners only', async () => {
     const scheduler = await signIn(ctx, account('scheduler').email);
-    await scheduler.post('/api/firm/invitations').set('X-CSRF-Token', scheduler.csrf).send({ email: 'x@tideway.example', role: 'viewer' }).expect(403);
+    await scheduler
+      .post('/api/firm/invitations')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ email: 'x@tideway.example', role: 'viewer' })
+      .expect(403);
   });
 
   it('refuses a bad address or role by name', async () => {
-    const res = await owner.post('/api/firm/invitations').set('X-CSRF-Token', owner.csrf).send({ email: 'nope', role: 'boss' }).expect(400);
+    const res = await owner
+      .post('/api/firm/invitations')
+      .set('X-CSRF-Token', owner.csrf)
+      .send({ email: 'nope', role: 'boss' })
+      .expect(400);
     expect(res.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['email', 'role']);
   });
 });

@@ -15,14 +15,39 @@ beforeAll(async () => {
   crew = await signIn(ctx, account('crew').email);
   scheduler = await signIn(ctx, account('scheduler').email);
   const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
-  const [job] = await ctx.knex('jobs').insert({
-    firm_id: tideway, reference: 'TW-8802', customer_name: 'Owen Pike', customer_phone: '07700 900802', customer_email: 'owen@home.example',
-    site_address: '4 Ash Grove', site_town: 'Horsforth', site_postcode: 'LS18 4AA', installation_type: 'in_ground', status: 'planned',
-    unit_id: await idOf(ctx.knex, 'units', { model: 'Aurora 6' }),
-  }).returning('id');
+  const [job] = await ctx
+    .knex('jobs')
+    .insert({
+      firm_id: tideway,
+      reference: 'TW-8802',
+      customer_name: 'Owen Pike',
+      customer_phone: '07700 900802',
+      customer_email: 'owen@home.example',
+      site_address: '4 Ash Grove',
+      site_town: 'Horsforth',
+      site_postcode: 'LS18 4AA',
+      installation_type: 'in_ground',
+      status: 'planned',
+      unit_id: await idOf(ctx.knex, 'units', { model: 'Aurora 6' }),
+    })
+    .returning('id');
   jobId = String(job.id);
-  const stage = async (kind: string, name: string, sequence: number) => String((await ctx.knex('stages').insert({ job_id: jobId, kind, name, sequence,
-    duration_minutes: 120, requirements: JSON.stringify([{ kind: 'installer', count: 1 }]) }).returning('id'))[0].id);
+  const stage = async (kind: string, name: string, sequence: number) =>
+    String(
+      (
+        await ctx
+          .knex('stages')
+          .insert({
+            job_id: jobId,
+            kind,
+            name,
+            sequence,
+            duration_minutes: 120,
+            requirements: JSON.stringify([{ kind: 'installer', count: 1 }]),
+          })
+          .returning('id')
+      )[0].id,
+    );
   const survey = await stage('survey', 'Site survey', 1);
   const firstFix = await stage('electrical_first_fix', 'Supply cable first fix', 2);
   const lift = await stage('lift', 'Crane lift into pit', 3);
@@ -30,17 +55,36 @@ beforeAll(async () => {
     { from_stage_id: survey, to_stage_id: firstFix, type: 'FS', lag_amount: 0, lag_unit: 'working_days' },
     { from_stage_id: firstFix, to_stage_id: lift, type: 'FS', lag_amount: 1, lag_unit: 'elapsed_days' },
   ]);
-  await ctx.knex('bookings').insert({ stage_id: survey, resource_id: await idOf(ctx.knex, 'resources', { name: 'Connor Reid' }),
-    starts_at: '2026-06-03T07:00:00Z', ends_at: '2026-06-03T09:00:00Z', state: 'confirmed' });
-  await ctx.knex('surveys').insert({ job_id: jobId, access_width_mm: 1200, steps: 0, gates: 0, overhead_obstructions: false, ground_type: 'clay',
-    surveyed_at: '2026-05-28T09:00:00Z' });
+  await ctx.knex('bookings').insert({
+    stage_id: survey,
+    resource_id: await idOf(ctx.knex, 'resources', { name: 'Connor Reid' }),
+    starts_at: '2026-06-03T07:00:00Z',
+    ends_at: '2026-06-03T09:00:00Z',
+    state: 'confirmed',
+  });
+  await ctx.knex('surveys').insert({
+    job_id: jobId,
+    access_width_mm: 1200,
+    steps: 0,
+    gates: 0,
+    overhead_obstructions: false,
+    ground_type: 'clay',
+    surveyed_at: '2026-05-28T09:00:00Z',
+  });
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe('the job page for a crew member booked on the job', () => {
   it('reads the job, its stages, its quantities and its files without a refusal', async () => {
     const job = await crew.get(`/api/jobs/${jobId}`).expect(200);
-    expect(job.body).toMatchObject({ reference: 'TW-8802', unitName: 'Aurora 6', unitMaker: 'Harbourline Works', surveyedAt: '2026-05-28T09:00:00.000Z' });
+    expect(job.body).toMatchObject({
+      reference: 'TW-8802',
+      unitName: 'Aurora 6',
+      unitMaker: 'Harbourline Works',
+      surveyedAt: '2026-05-28T09:00:00.000Z',
+    });
     // The read policy: no householder e-mail or phone on the job page for crew.
     expect(job.body).toMatchObject({ customerEmail: null, customerPhone: null });
     await crew.get(`/api/jobs/${jobId}/stages`).expect(200);
@@ -55,17 +99,34 @@ describe('the job page for a crew member booked on the job', () => {
 describe('the job page for the office', () => {
   it('has the unit and the customer e-mail for the header, and no survey date before a survey', async () => {
     const job = await scheduler.get(`/api/jobs/${jobId}`).expect(200);
-    expect(job.body).toMatchObject({ unitName: 'Aurora 6', customerEmail: 'owen@home.example', customerPhone: '07700 900802' });
+    expect(job.body).toMatchObject({
+      unitName: 'Aurora 6',
+      customerEmail: 'owen@home.example',
+      customerPhone: '07700 900802',
+    });
     const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
-    const [fresh] = await ctx.knex('jobs').insert({ firm_id: tideway, reference: 'TW-8803', customer_name: 'Ruth Lane', site_address: '1 Elm Row',
-      site_town: 'Otley', site_postcode: 'LS21 1AA', installation_type: 'slab', status: 'planned' }).returning('id');
+    const [fresh] = await ctx
+      .knex('jobs')
+      .insert({
+        firm_id: tideway,
+        reference: 'TW-8803',
+        customer_name: 'Ruth Lane',
+        site_address: '1 Elm Row',
+        site_town: 'Otley',
+        site_postcode: 'LS21 1AA',
+        installation_type: 'slab',
+        status: 'planned',
+      })
+      .returning('id');
     const unsurveyed = await scheduler.get(`/api/jobs/${fresh.id}`).expect(200);
     // Planned, yet never surveyed: the step bar must not tick "Surveyed".
     expect(unsurveyed.body).toMatchObject({ status: 'planned', surveyedAt: null, unitName: null });
   });
 
   it("names each stage's predecessors as those stages are named on the job", async () => {
-    const { items } = (await scheduler.get(`/api/jobs/${jobId}/stages`).expect(200)).body as { items: { name: string; after: { name: string; lagAmount: number }[] }[] };
+    const { items } = (await scheduler.get(`/api/jobs/${jobId}/stages`).expect(200)).body as {
+      items: { name: string; after: { name: string; lagAmount: number }[] }[];
+    };
     const lift = items.find((s) => s.name === 'Crane lift into pit')!;
     expect(lift.after).toMatchObject([{ name: 'Supply cable first fix', lagAmount: 1 }]);
     expect(items.find((s) => s.name === 'Supply cable first fix')!.after).toMatchObject([{ name: 'Site survey' }]);
@@ -74,8 +135,15 @@ describe('the job page for the office', () => {
 
 describe('the next job reference', () => {
   it("suggests the firm's highest reference of the prefix + 1, keeping the digits' width", async () => {
-    const highest = (await ctx.knex('jobs').where('firm_id', await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }))
-      .whereRaw(`reference ~ '^TW-[0-9]+$'`).select('reference')).map((r) => Number(r.reference.slice(3))).sort((a, b) => b - a)[0]!;
+    const highest = (
+      await ctx
+        .knex('jobs')
+        .where('firm_id', await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }))
+        .whereRaw(`reference ~ '^TW-[0-9]+$'`)
+        .select('reference')
+    )
+      .map((r) => Number(r.reference.slice(3)))
+      .sort((a, b) => b - a)[0]!;
     expect(highest).toBe(8803); // the jobs added above are the highest
     const next = await scheduler.get('/api/job-references/next').expect(200);
     expect(next.body).toEqual({ prefix: 'TW-', nextReference: 'TW-8804' });
@@ -86,17 +154,31 @@ describe('the next job reference', () => {
   });
 
   it('answers a reference already taken with 409 naming the next free one, on create and on edit', async () => {
-    const body = { reference: 'TW-8802', customerName: 'Ada Marsh', siteAddress: '2 Mill Lane', siteTown: 'Ilkley', sitePostcode: 'LS29 8AA', installationType: 'slab' };
+    const body = {
+      reference: 'TW-8802',
+      customerName: 'Ada Marsh',
+      siteAddress: '2 Mill Lane',
+      siteTown: 'Ilkley',
+      sitePostcode: 'LS29 8AA',
+      installationType: 'slab',
+    };
     const taken = await scheduler.post('/api/jobs').set('X-CSRF-Token', scheduler.csrf).send(body).expect(409);
     expect(taken.headers['content-type']).toContain('application/problem+json');
     expect(taken.body).toMatchObject({
-      code: 'duplicate-reference', nextReference: 'TW-8804',
+      code: 'duplicate-reference',
+      nextReference: 'TW-8804',
       detail: 'TW-8802 is already the reference of another job (Owen Pike, Horsforth). TW-8804 is the next free one.',
       errors: [{ field: 'reference', message: 'is already used by another job; TW-8804 is free' }],
     });
     const job = (await scheduler.get(`/api/jobs/${jobId}`).expect(200)).body;
-    const edit = await scheduler.patch(`/api/jobs/${jobId}`).set('X-CSRF-Token', scheduler.csrf).send({ version: job.version, reference: 'TW-8803' }).expect(409);
-    expect(edit.body.errors).toEqual([{ field: 'reference', message: 'is already used by another job; TW-8804 is free' }]);
+    const edit = await scheduler
+      .patch(`/api/jobs/${jobId}`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: job.version, reference: 'TW-8803' })
+      .expect(409);
+    expect(edit.body.errors).toEqual([
+      { field: 'reference', message: 'is already used by another job; TW-8804 is free' },
+    ]);
   });
 
   it('is for those who create jobs', async () => {

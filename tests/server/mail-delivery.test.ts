@@ -4,7 +4,16 @@ import { TEST_TODAY, account, idOf, signIn, type Agent } from '../helpers/server
 import { Booking } from '../../server/models/index.ts';
 import { actorFor } from '../../server/services/session.ts';
 import { BookingsService } from '../../server/services/bookings.ts';
-import { answerLinks, calendarOf, pencilIn, startMailTestApp, waitForMailSettled, waitUntil, type MailTestContext, type TestPipeline } from '../helpers/mail.ts';
+import {
+  answerLinks,
+  calendarOf,
+  pencilIn,
+  startMailTestApp,
+  waitForMailSettled,
+  waitUntil,
+  type MailTestContext,
+  type TestPipeline,
+} from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import { scanOverdueRequests } from '../../server/services/reminders.ts';
 
@@ -28,13 +37,19 @@ beforeAll(async () => {
   await unbookJobs(ctx.knex, 'TW-2417', 'TW-2420');
   lift = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'lift', resource: '60 t mobile crane', ...SLOT });
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 const toFellside = (m: { to: string[] }) => m.to.includes('bookings@fellside.example');
 
 describe('publishing a crane booking', () => {
   it('sends one request e-mail with the slot, the cautions, three links and an invite', async () => {
-    const res = await scheduler.post(`/api/bookings/${lift.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    const res = await scheduler
+      .post(`/api/bookings/${lift.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 1 })
+      .expect(200);
     expect(res.body).toMatchObject({ id: lift.id, state: 'sent', version: 2, overdue: false, answer: null });
     const outbox = await ctx.knex('outbox').where('kind', 'booking_request');
     expect(outbox).toHaveLength(1);
@@ -71,21 +86,43 @@ describe('publishing a crane booking', () => {
     expect(ics.sequence).toBe(2); // RFC 5545 §3.8.7.4 SEQUENCE: the booking version
     expect(ics.start.toISOString()).toBe(SLOT.startsAt); // RFC 5545 §3.8.2.4 DTSTART
     expect(ics.end.toISOString()).toBe(SLOT.endsAt); // RFC 5545 §3.8.2.2 DTEND
-    await waitUntil(async () => (await ctx.knex('outbox').where('id', outbox[0].id).first()).status === 'sent', 5000, 'outbox row sent');
+    await waitUntil(
+      async () => (await ctx.knex('outbox').where('id', outbox[0].id).first()).status === 'sent',
+      5000,
+      'outbox row sent',
+    );
   });
 
   it('refuses to publish an own-firm resource (there is nobody to ask)', async () => {
-    const own = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'fill', resource: 'Crew Otter', startsAt: '2027-03-12T08:00:00Z', endsAt: '2027-03-12T11:00:00Z' });
-    const res = await scheduler.post(`/api/bookings/${own.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(422);
+    const own = await pencilIn(ctx.knex, {
+      job: 'TW-2417',
+      stage: 'fill',
+      resource: 'Crew Otter',
+      startsAt: '2027-03-12T08:00:00Z',
+      endsAt: '2027-03-12T11:00:00Z',
+    });
+    const res = await scheduler
+      .post(`/api/bookings/${own.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 1 })
+      .expect(422);
     expect(res.body.code).toBe('own-resource');
   });
 });
 
 /** A scheduler's move through the guarded write path, as the board's PATCH makes it. */
 async function moveAsScheduler(id: string, startsAt: string, endsAt: string): Promise<Booking> {
-  const actor = await actorFor(ctx.knex, await idOf(ctx.knex, 'users', { email: account('scheduler').email }), undefined);
+  const actor = await actorFor(
+    ctx.knex,
+    await idOf(ctx.knex, 'users', { email: account('scheduler').email }),
+    undefined,
+  );
   const current = (await Booking.query(ctx.knex).findById(id))!;
-  await new BookingsService(ctx.knex, () => TEST_TODAY.getTime()).update(actor!, id, { version: current.version, startsAt, endsAt });
+  await new BookingsService(ctx.knex, () => TEST_TODAY.getTime()).update(actor!, id, {
+    version: current.version,
+    startsAt,
+    endsAt,
+  });
   return (await Booking.query(ctx.knex).findById(id))!;
 }
 
@@ -124,14 +161,28 @@ describe('moving a booking already sent', () => {
 describe('a move through the board API (PATCH /api/bookings/:id)', () => {
   it('queues the update in the same transaction as the move', async () => {
     await ctx.inbox.clear();
-    const b = await pencilIn(ctx.knex, { job: 'TW-2423', stage: 'lift', resource: '25 t city crane', startsAt: '2027-03-22T08:00:00Z', endsAt: '2027-03-22T12:00:00Z' });
-    await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    const b = await pencilIn(ctx.knex, {
+      job: 'TW-2423',
+      stage: 'lift',
+      resource: '25 t city crane',
+      startsAt: '2027-03-22T08:00:00Z',
+      endsAt: '2027-03-22T12:00:00Z',
+    });
+    await scheduler
+      .post(`/api/bookings/${b.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 1 })
+      .expect(200);
     await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking request') && m.subject.includes('22 Mar 2027'));
-    const res = await scheduler.patch(`/api/bookings/${b.id}`).set('X-CSRF-Token', scheduler.csrf)
+    const res = await scheduler
+      .patch(`/api/bookings/${b.id}`)
+      .set('X-CSRF-Token', scheduler.csrf)
       .send({ version: 2, startsAt: '2027-03-23T08:00:00Z', endsAt: '2027-03-23T12:00:00Z' });
     expect(res.status).toBe(200);
     expect(res.body.bookings[0]).toMatchObject({ version: 3, state: 'sent' });
-    const [mail] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking changed') && m.subject.includes('23 Mar 2027'));
+    const [mail] = await ctx.inbox.waitFor(
+      (m) => m.subject.startsWith('Booking changed') && m.subject.includes('23 Mar 2027'),
+    );
     expect(calendarOf(mail!)).toMatchObject({ uid: `booking-${b.id}@${HOST}`, sequence: 3 });
   });
 });
@@ -139,19 +190,38 @@ describe('a move through the board API (PATCH /api/bookings/:id)', () => {
 describe('cancelling a sent booking', () => {
   it('sends METHOD:CANCEL for the same UID and puts the booking back to pencilled', async () => {
     await ctx.inbox.clear();
-    const res = await scheduler.post(`/api/bookings/${lift.id}/cancel`).set('X-CSRF-Token', scheduler.csrf).send({ version: 5 }).expect(200);
+    const res = await scheduler
+      .post(`/api/bookings/${lift.id}/cancel`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 5 })
+      .expect(200);
     expect(res.body).toMatchObject({ state: 'pencilled', version: 6 });
     const [mail] = await ctx.inbox.waitFor(toFellside);
     expect(mail!.subject).toMatch(/^Booking cancelled: Crane lift into pit/);
     const ics = calendarOf(mail!);
-    expect(ics).toMatchObject({ method: 'CANCEL', uid: `booking-${lift.id}@${HOST}`, sequence: 6, status: 'CANCELLED' }); // RFC 5546 §3.2.5
+    expect(ics).toMatchObject({
+      method: 'CANCEL',
+      uid: `booking-${lift.id}@${HOST}`,
+      sequence: 6,
+      status: 'CANCELLED',
+    }); // RFC 5546 §3.2.5
     expect(mail!.text).not.toMatch(/Confirm:/);
   });
 
   it('sends a cancellation when a sent booking is taken off the board altogether', async () => {
     await ctx.inbox.clear();
-    const sparky = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'electrical_connect', resource: 'Gareth Pryce', startsAt: '2027-03-16T09:00:00Z', endsAt: '2027-03-16T13:00:00Z' });
-    await scheduler.post(`/api/bookings/${sparky.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    const sparky = await pencilIn(ctx.knex, {
+      job: 'TW-2417',
+      stage: 'electrical_connect',
+      resource: 'Gareth Pryce',
+      startsAt: '2027-03-16T09:00:00Z',
+      endsAt: '2027-03-16T13:00:00Z',
+    });
+    await scheduler
+      .post(`/api/bookings/${sparky.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 1 })
+      .expect(200);
     await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking request: Connect and certify'));
     await scheduler.delete(`/api/bookings/${sparky.id}?version=2`).set('X-CSRF-Token', scheduler.csrf).expect(204);
     const [mail] = await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking cancelled: Connect and certify'));
@@ -164,11 +234,25 @@ describe('when the mail server refuses for a while', () => {
   it('retries with back-off and delivers the message once', async () => {
     await ctx.inbox.clear();
     await ctx.inbox.failNext(2);
-    const b = await pencilIn(ctx.knex, { job: 'TW-2420', stage: 'lift', resource: '25 t city crane', startsAt: '2027-04-06T08:00:00Z', endsAt: '2027-04-06T12:00:00Z' });
-    await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+    const b = await pencilIn(ctx.knex, {
+      job: 'TW-2420',
+      stage: 'lift',
+      resource: '25 t city crane',
+      startsAt: '2027-04-06T08:00:00Z',
+      endsAt: '2027-04-06T12:00:00Z',
+    });
+    await scheduler
+      .post(`/api/bookings/${b.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 1 })
+      .expect(200);
     const mails = await ctx.inbox.waitFor(toFellside, 1, 20_000);
     expect(mails).toHaveLength(1);
-    const row = await ctx.knex('outbox').where('kind', 'booking_request').whereRaw("payload->>'bookingId' = ?", [b.id]).first();
+    const row = await ctx
+      .knex('outbox')
+      .where('kind', 'booking_request')
+      .whereRaw("payload->>'bookingId' = ?", [b.id])
+      .first();
     await waitUntil(async () => (await ctx.knex('outbox').where('id', row.id).first()).status === 'sent', 5000, 'sent');
     expect((await ctx.knex('outbox').where('id', row.id).first()).attempts).toBeGreaterThanOrEqual(3);
     await waitForMailSettled(ctx, pipeline);
@@ -179,18 +263,44 @@ describe('when the mail server refuses for a while', () => {
 describe('a request nobody answers', () => {
   it('is flagged overdue after REMINDER_HOURS and gets exactly one reminder per version', async () => {
     await ctx.inbox.clear();
-    const b = await pencilIn(ctx.knex, { job: 'TW-2422', stage: 'lift', resource: '60 t mobile crane', startsAt: '2027-04-07T08:00:00Z', endsAt: '2027-04-07T12:00:00Z' });
-    await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
-    await ctx.inbox.waitFor((m) => m.subject.startsWith('Booking request: Crane lift into pit') && m.subject.includes('7 Apr 2027'));
-    const sentAt = (await ctx.knex('booking_requests').where({ booking_id: b.id, booking_version: 2 }).first()).requestedAt as Date;
+    const b = await pencilIn(ctx.knex, {
+      job: 'TW-2422',
+      stage: 'lift',
+      resource: '60 t mobile crane',
+      startsAt: '2027-04-07T08:00:00Z',
+      endsAt: '2027-04-07T12:00:00Z',
+    });
+    await scheduler
+      .post(`/api/bookings/${b.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 1 })
+      .expect(200);
+    await ctx.inbox.waitFor(
+      (m) => m.subject.startsWith('Booking request: Crane lift into pit') && m.subject.includes('7 Apr 2027'),
+    );
+    const sentAt = (await ctx.knex('booking_requests').where({ booking_id: b.id, booking_version: 2 }).first())
+      .requestedAt as Date;
     // REMINDER_HOURS defaults to 48 (config.ts); 47 hours on nothing is due, 49 hours on it is.
-    expect(await scanOverdueRequests(ctx.knex, { now: new Date(sentAt.getTime() + 47 * 3_600_000), reminderHours: ctx.config.REMINDER_HOURS })).toBe(0);
+    expect(
+      await scanOverdueRequests(ctx.knex, {
+        now: new Date(sentAt.getTime() + 47 * 3_600_000),
+        reminderHours: ctx.config.REMINDER_HOURS,
+      }),
+    ).toBe(0);
     expect((await scheduler.get(`/api/bookings/${b.id}`).expect(200)).body.overdue).toBe(false);
-    expect(await scanOverdueRequests(ctx.knex, { now: new Date(sentAt.getTime() + 49 * 3_600_000), reminderHours: 48 })).toBeGreaterThanOrEqual(1);
-    expect((await ctx.knex('booking_requests').where({ booking_id: b.id, booking_version: 2 }).first()).overdueAt).toBeInstanceOf(Date);
-    expect(await scanOverdueRequests(ctx.knex, { now: new Date(sentAt.getTime() + 99 * 3_600_000), reminderHours: 48 })).toBe(0);
+    expect(
+      await scanOverdueRequests(ctx.knex, { now: new Date(sentAt.getTime() + 49 * 3_600_000), reminderHours: 48 }),
+    ).toBeGreaterThanOrEqual(1);
+    expect(
+      (await ctx.knex('booking_requests').where({ booking_id: b.id, booking_version: 2 }).first()).overdueAt,
+    ).toBeInstanceOf(Date);
+    expect(
+      await scanOverdueRequests(ctx.knex, { now: new Date(sentAt.getTime() + 99 * 3_600_000), reminderHours: 48 }),
+    ).toBe(0);
     expect((await scheduler.get(`/api/bookings/${b.id}`).expect(200)).body.overdue).toBe(true);
-    const reminders = await ctx.inbox.waitFor((m) => m.subject.startsWith('Reminder, please answer: Crane lift into pit') && m.subject.includes('7 Apr 2027'));
+    const reminders = await ctx.inbox.waitFor(
+      (m) => m.subject.startsWith('Reminder, please answer: Crane lift into pit') && m.subject.includes('7 Apr 2027'),
+    );
     expect(reminders).toHaveLength(1);
     expect(calendarOf(reminders[0]!).sequence).toBe(2);
   });

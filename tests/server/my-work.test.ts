@@ -14,7 +14,8 @@ let today: string; // booking id
 let thursday: string; // TW-8801's fill, Thu 4 Jun 08:00 BST
 const run = vi.spyOn(BookingWriter.prototype, 'run');
 
-const post = (id: string, body: object) => crew.post(`/api/bookings/${id}/progress`).set('X-CSRF-Token', crew.csrf).send(body);
+const post = (id: string, body: object) =>
+  crew.post(`/api/bookings/${id}/progress`).set('X-CSRF-Token', crew.csrf).send(body);
 const versionOf = async (id: string) => (await ctx.knex('bookings').where('id', id).first('version')).version as number;
 const myWork = async () => (await crew.get('/api/my-work').expect(200)).body as MyWorkList;
 
@@ -22,24 +23,73 @@ beforeAll(async () => {
   ctx = await startTestApp();
   crew = await signIn(ctx, account('crew').email);
   const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
-  const [job] = await ctx.knex('jobs').insert({
-    firm_id: tideway, reference: 'TW-8801', customer_name: 'Mina Holt', customer_phone: '07700 900801', customer_email: 'mina@home.example',
-    site_address: '9 Weir Street', site_town: 'Headingley', site_postcode: 'LS6 2AB', installation_type: 'in_ground', status: 'planned',
-  }).returning('id');
-  const [stage] = await ctx.knex('stages').insert({ job_id: job.id, kind: 'excavation', name: 'Excavate pit', sequence: 1, duration_minutes: 240,
-    requirements: JSON.stringify([{ kind: 'install_crew', count: 1 }]) }).returning('id');
-  const [fill] = await ctx.knex('stages').insert({ job_id: job.id, kind: 'fill', name: 'Fill', sequence: 2, duration_minutes: 120,
-    requirements: JSON.stringify([{ kind: 'installer', count: 1 }]) }).returning('id');
+  const [job] = await ctx
+    .knex('jobs')
+    .insert({
+      firm_id: tideway,
+      reference: 'TW-8801',
+      customer_name: 'Mina Holt',
+      customer_phone: '07700 900801',
+      customer_email: 'mina@home.example',
+      site_address: '9 Weir Street',
+      site_town: 'Headingley',
+      site_postcode: 'LS6 2AB',
+      installation_type: 'in_ground',
+      status: 'planned',
+    })
+    .returning('id');
+  const [stage] = await ctx
+    .knex('stages')
+    .insert({
+      job_id: job.id,
+      kind: 'excavation',
+      name: 'Excavate pit',
+      sequence: 1,
+      duration_minutes: 240,
+      requirements: JSON.stringify([{ kind: 'install_crew', count: 1 }]),
+    })
+    .returning('id');
+  const [fill] = await ctx
+    .knex('stages')
+    .insert({
+      job_id: job.id,
+      kind: 'fill',
+      name: 'Fill',
+      sequence: 2,
+      duration_minutes: 120,
+      requirements: JSON.stringify([{ kind: 'installer', count: 1 }]),
+    })
+    .returning('id');
   const connor = await idOf(ctx.knex, 'resources', { name: 'Connor Reid' });
-  const [b] = await ctx.knex('bookings').insert({ stage_id: stage.id, resource_id: connor,
-    starts_at: '2026-06-01T07:00:00Z', ends_at: '2026-06-01T11:00:00Z', state: 'confirmed' }).returning('id');
+  const [b] = await ctx
+    .knex('bookings')
+    .insert({
+      stage_id: stage.id,
+      resource_id: connor,
+      starts_at: '2026-06-01T07:00:00Z',
+      ends_at: '2026-06-01T11:00:00Z',
+      state: 'confirmed',
+    })
+    .returning('id');
   today = String(b.id);
-  const [t] = await ctx.knex('bookings').insert({ stage_id: fill.id, resource_id: connor,
-    starts_at: '2026-06-04T07:00:00Z', ends_at: '2026-06-04T09:00:00Z', state: 'confirmed' }).returning('id');
+  const [t] = await ctx
+    .knex('bookings')
+    .insert({
+      stage_id: fill.id,
+      resource_id: connor,
+      starts_at: '2026-06-04T07:00:00Z',
+      ends_at: '2026-06-04T09:00:00Z',
+      state: 'confirmed',
+    })
+    .returning('id');
   thursday = String(t.id);
 });
-afterAll(async () => { await ctx.close(); });
-afterEach(() => { run.mockClear(); });
+afterAll(async () => {
+  await ctx.close();
+});
+afterEach(() => {
+  run.mockClear();
+});
 
 describe('My work, as the crew sees it on a phone', () => {
   it("starts today by the server's clock, today's work first", async () => {
@@ -91,8 +141,18 @@ describe('marking progress, and taking it back, through the guarded writer', () 
     expect(undone.body.state).toBe('on_site');
     // Five writes, each through the one door, each audited.
     expect(run).toHaveBeenCalledTimes(5);
-    const audit = await ctx.knex('audit_log').where({ entity: 'booking', entity_id: today }).orderBy('id').select('after');
-    expect(audit.map((a) => (a.after as { action: string }).action)).toEqual(['arrive', 'undo-arrive', 'arrive', 'finish', 'undo-finish']);
+    const audit = await ctx
+      .knex('audit_log')
+      .where({ entity: 'booking', entity_id: today })
+      .orderBy('id')
+      .select('after');
+    expect(audit.map((a) => (a.after as { action: string }).action)).toEqual([
+      'arrive',
+      'undo-arrive',
+      'arrive',
+      'finish',
+      'undo-finish',
+    ]);
   });
 
   it('refuses "On site" days ahead and "Done" before "On site" (409, in plain words)', async () => {

@@ -15,26 +15,47 @@ beforeAll(async () => {
   scheduler = await signIn(ctx, account('scheduler').email);
   partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
   await unbookJobs(ctx.knex, 'TW-2417');
-  const b = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'electrical_connect', resource: 'Priya Nair', startsAt: '2027-08-03T08:00:00Z', endsAt: '2027-08-03T12:00:00Z' });
-  await scheduler.post(`/api/bookings/${b.id}/publish`).set('X-CSRF-Token', scheduler.csrf).send({ version: 1 }).expect(200);
+  const b = await pencilIn(ctx.knex, {
+    job: 'TW-2417',
+    stage: 'electrical_connect',
+    resource: 'Priya Nair',
+    startsAt: '2027-08-03T08:00:00Z',
+    endsAt: '2027-08-03T12:00:00Z',
+  });
+  await scheduler
+    .post(`/api/bookings/${b.id}/publish`)
+    .set('X-CSRF-Token', scheduler.csrf)
+    .send({ version: 1 })
+    .expect(200);
   slot = b.id;
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe("a partner's own slots", () => {
   it('lists upcoming slots of the firm for every installer it works with, with only what the day needs', async () => {
     const res = await partner.get('/api/partner/slots?from=2026-05-01T00:00:00Z').expect(200);
-    const items = res.body.items as { id: string; state: string; installer: { name: string }; site: Record<string, unknown> }[];
+    const items = res.body.items as {
+      id: string;
+      state: string;
+      installer: { name: string };
+      site: Record<string, unknown>;
+    }[];
     expect(new Set(items.map((i) => i.installer.name))).toEqual(new Set(['Tideway Hot Tubs', 'Moorview Spas']));
     const mine = items.find((i) => i.id === slot)!;
     expect(mine).toMatchObject({
-      state: 'sent', version: 2, timeZone: 'Europe/London',
+      state: 'sent',
+      version: 2,
+      timeZone: 'Europe/London',
       stage: { name: 'Connect and certify', kind: 'electrical_connect' },
       resource: { name: 'Priya Nair', kind: 'electrician' },
       site: { address: '56 Church Street', town: 'Bingley', postcode: 'BD16 2LE' },
       installer: { name: 'Tideway Hot Tubs', phone: '0113 496 0001' },
     });
-    expect((mine as unknown as { cautions: string[] }).cautions.join(' ')).toMatch(/registered \(licensed\) electrician/);
+    expect((mine as unknown as { cautions: string[] }).cautions.join(' ')).toMatch(
+      /registered \(licensed\) electrician/,
+    );
     // A pencilled booking is the installer's private plan.
     expect(items.map((i) => i.state)).not.toContain('pencilled');
     expect(items.length).toBeGreaterThan(1);
@@ -53,35 +74,74 @@ describe("a partner's own slots", () => {
   });
 
   it('answers through the app: a proposal shows on the board', async () => {
-    const res = await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'propose', proposedStart: '2027-08-04T08:00:00Z', proposedEnd: '2027-08-04T12:00:00Z' }).expect(200);
-    expect(res.body).toMatchObject({ result: 'proposed', slot: { id: slot, answer: { action: 'propose', via: 'app', proposalStatus: 'open' } } });
+    const res = await partner
+      .post(`/api/partner/slots/${slot}/answer`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ action: 'propose', proposedStart: '2027-08-04T08:00:00Z', proposedEnd: '2027-08-04T12:00:00Z' })
+      .expect(200);
+    expect(res.body).toMatchObject({
+      result: 'proposed',
+      slot: { id: slot, answer: { action: 'propose', via: 'app', proposalStatus: 'open' } },
+    });
     const board = await scheduler.get(`/api/bookings/${slot}`).expect(200);
     expect(board.body.answer).toMatchObject({ action: 'propose', proposedStart: '2027-08-04T08:00:00.000Z' });
-    await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'propose' }).expect(400);
+    await partner
+      .post(`/api/partner/slots/${slot}/answer`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ action: 'propose' })
+      .expect(400);
   });
 
   it("refuses another firm's slot with 404", async () => {
-    const crane = await pencilIn(ctx.knex, { job: 'TW-2417', stage: 'lift', resource: '60 t mobile crane', startsAt: '2027-07-29T08:00:00Z', endsAt: '2027-07-29T12:00:00Z', state: 'sent' });
-    await partner.post(`/api/partner/slots/${crane.id}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'confirm' }).expect(404);
+    const crane = await pencilIn(ctx.knex, {
+      job: 'TW-2417',
+      stage: 'lift',
+      resource: '60 t mobile crane',
+      startsAt: '2027-07-29T08:00:00Z',
+      endsAt: '2027-07-29T12:00:00Z',
+      state: 'sent',
+    });
+    await partner
+      .post(`/api/partner/slots/${crane.id}/answer`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ action: 'confirm' })
+      .expect(404);
   });
 
   it('puts another of its own people on the slot, and no one else', async () => {
     const tom = await idOf(ctx.knex, 'resources', { name: 'Tom Ashworth' });
-    const res = await partner.put(`/api/partner/slots/${slot}/person`).set('X-CSRF-Token', partner.csrf).send({ resourceId: tom }).expect(200);
+    const res = await partner
+      .put(`/api/partner/slots/${slot}/person`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ resourceId: tom })
+      .expect(200);
     expect(res.body).toMatchObject({ id: slot, version: 3, resource: { name: 'Tom Ashworth' } });
     // Still awaiting an answer: a fresh request (version 3) goes out so the links in hand work.
     expect(await ctx.knex('outbox').where('idempotency_key', `booking.${slot}.v3.update.r${tom}`)).toHaveLength(1);
-    await partner.put(`/api/partner/slots/${slot}/person`).set('X-CSRF-Token', partner.csrf)
-      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' }) }).expect(404);
-    await partner.put(`/api/partner/slots/${slot}/person`).set('X-CSRF-Token', partner.csrf)
-      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: '60 t mobile crane' }) }).expect(404);
+    await partner
+      .put(`/api/partner/slots/${slot}/person`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' }) })
+      .expect(404);
+    await partner
+      .put(`/api/partner/slots/${slot}/person`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: '60 t mobile crane' }) })
+      .expect(404);
   });
 
   it('confirms through the app', async () => {
-    const res = await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'confirm' }).expect(200);
+    const res = await partner
+      .post(`/api/partner/slots/${slot}/answer`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ action: 'confirm' })
+      .expect(200);
     expect(res.body).toMatchObject({ result: 'confirmed', slot: { state: 'confirmed' } });
-    const again = await partner.post(`/api/partner/slots/${slot}/answer`).set('X-CSRF-Token', partner.csrf).send({ action: 'confirm' }).expect(409);
+    const again = await partner
+      .post(`/api/partner/slots/${slot}/answer`)
+      .set('X-CSRF-Token', partner.csrf)
+      .send({ action: 'confirm' })
+      .expect(409);
     expect(again.body.code).toBe('not-awaiting-answer');
   });
 });
@@ -104,7 +164,10 @@ describe('a private calendar feed per person', () => {
     expect(mine!.description).toContain('Follow local codes and licensed practice');
     expect(feed.text).not.toContain('@home.example');
     // Only a hash of the link's secret is stored: the secret itself appears in no row.
-    const secret = path1.split('/').pop()!.replace(/\.ics$/, '');
+    const secret = path1
+      .split('/')
+      .pop()!
+      .replace(/\.ics$/, '');
     const stored = await ctx.knex('calendar_feeds').where('resource_id', tom);
     expect(stored.length).toBeGreaterThan(0);
     for (const row of stored) {
@@ -121,6 +184,9 @@ describe('a private calendar feed per person', () => {
   });
 
   it("is only for the firm's own people", async () => {
-    await partner.post(`/api/partner/people/${await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' })}/feed`).set('X-CSRF-Token', partner.csrf).expect(404);
+    await partner
+      .post(`/api/partner/people/${await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' })}/feed`)
+      .set('X-CSRF-Token', partner.csrf)
+      .expect(404);
   });
 });

@@ -27,25 +27,47 @@ async function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const s = net.createServer();
     s.once('error', reject);
-    s.listen(0, '127.0.0.1', () => { const { port } = s.address() as net.AddressInfo; s.close(() => resolve(port)); });
+    s.listen(0, '127.0.0.1', () => {
+      const { port } = s.address() as net.AddressInfo;
+      s.close(() => resolve(port));
+    });
   });
 }
 
 beforeAll(async () => {
   fake = await startFakePayments(0, { now: () => PAID_AT });
   const port = await freePort();
-  ctx = await startTestApp({ PUBLIC_URL: `http://127.0.0.1:${port}`, FAKE_PAYMENTS_URL: fake.url, FAKE_PAYMENTS_SECRET_KEY: fake.secretKey, FAKE_PAYMENTS_WEBHOOK_SECRET: fake.webhookSecret });
-  server = await new Promise((resolve) => { const s = ctx.waterline.app.listen(port, '127.0.0.1', () => resolve(s)); });
+  ctx = await startTestApp({
+    PUBLIC_URL: `http://127.0.0.1:${port}`,
+    FAKE_PAYMENTS_URL: fake.url,
+    FAKE_PAYMENTS_SECRET_KEY: fake.secretKey,
+    FAKE_PAYMENTS_WEBHOOK_SECRET: fake.webhookSecret,
+  });
+  server = await new Promise((resolve) => {
+    const s = ctx.waterline.app.listen(port, '127.0.0.1', () => resolve(s));
+  });
   scheduler = await signIn(ctx, account('scheduler').email);
   // TW-2418 back to an enquiry, for an invented swim spa whose maker needs 35 working days from the order.
   await backToEnquiry(ctx.knex, 'TW-2418');
   job = await idOf(ctx.knex, 'jobs', { reference: 'TW-2418' });
   other = await idOf(ctx.knex, 'jobs', { reference: 'TW-2419' });
   const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
-  const [unit] = await ctx.knex('units').insert({
-    firm_id: tideway, model: 'Tarn 5 swim spa', maker: 'Harbourline Works', length_mm: 5000, width_mm: 2300, height_mm: 1500,
-    dry_weight_kg: 1900, filled_weight_kg: 10500, water_litres: 8500, supplies: JSON.stringify([{ amps: 32 }, { amps: 32 }]), maker_lead_days: 35,
-  }).returning('id');
+  const [unit] = await ctx
+    .knex('units')
+    .insert({
+      firm_id: tideway,
+      model: 'Tarn 5 swim spa',
+      maker: 'Harbourline Works',
+      length_mm: 5000,
+      width_mm: 2300,
+      height_mm: 1500,
+      dry_weight_kg: 1900,
+      filled_weight_kg: 10500,
+      water_litres: 8500,
+      supplies: JSON.stringify([{ amps: 32 }, { amps: 32 }]),
+      maker_lead_days: 35,
+    })
+    .returning('id');
   await ctx.knex('jobs').where('id', job).update({ unit_id: unit.id, installation_type: 'slab' });
   await post(`/api/jobs/${job}/plan`).expect(201);
 });
@@ -56,10 +78,13 @@ afterAll(async () => {
   await fake?.stop();
 });
 
-const post = (path: string, body: object = {}, agent: Agent = scheduler) => agent.post(path).set('X-CSRF-Token', agent.csrf).send(body);
-const put = (path: string, body: object, agent: Agent = scheduler) => agent.put(path).set('X-CSRF-Token', agent.csrf).send(body);
+const post = (path: string, body: object = {}, agent: Agent = scheduler) =>
+  agent.post(path).set('X-CSRF-Token', agent.csrf).send(body);
+const put = (path: string, body: object, agent: Agent = scheduler) =>
+  agent.put(path).set('X-CSRF-Token', agent.csrf).send(body);
 const paymentsOf = (jobId: string) => ctx.knex('job_payments').where('job_id', jobId).orderBy('id');
-const count = async (table: string, where: Record<string, unknown>) => Number((await ctx.knex(table).where(where).count<{ count: string }[]>('* as count'))[0]!.count);
+const count = async (table: string, where: Record<string, unknown>) =>
+  Number((await ctx.knex(table).where(where).count<{ count: string }[]>('* as count'))[0]!.count);
 
 /** Opens the householder's link as a browser would, then presses Pay on the fake's page. */
 async function payThroughLink(link: string): Promise<{ sessionId: string; eventId: string }> {
@@ -71,24 +96,37 @@ async function payThroughLink(link: string): Promise<{ sessionId: string; eventI
   expect(paid.status).toBe(303);
   expect(paid.headers.get('location')).toBe(link);
   const delivery = fake.deliveries[before]!;
-  expect({ status: delivery.status, body: JSON.parse(delivery.body) }).toEqual({ status: 200, body: { outcome: 'applied', detail: expect.stringMatching(/paid$/) } });
+  expect({ status: delivery.status, body: JSON.parse(delivery.body) }).toEqual({
+    status: 200,
+    body: { outcome: 'applied', detail: expect.stringMatching(/paid$/) },
+  });
   return { sessionId: page.split('/').pop()!, eventId: delivery.eventId };
 }
 
 describe('a deposit paid through the provider', () => {
   let eventId = '';
 
-  it('is asked for from the price and the firm\'s 25 %, e-mailed to the householder, with a link to copy', async () => {
+  it("is asked for from the price and the firm's 25 %, e-mailed to the householder, with a link to copy", async () => {
     await put(`/api/jobs/${job}/price`, { pricePence: 1_000_000 }).expect(200);
     const res = await post(`/api/jobs/${job}/payments/deposit`).expect(201);
     expect(res.body.payments).toHaveLength(1);
-    expect(res.body.payments[0]).toMatchObject({ kind: 'deposit', amountPence: 250_000, status: 'requested', paidAt: null });
-    expect(res.body.payments[0].link).toMatch(new RegExp(`^http://127\\.0\\.0\\.1:\\d+/pay/${res.body.payments[0].id}\\.[\\w-]{32}$`));
+    expect(res.body.payments[0]).toMatchObject({
+      kind: 'deposit',
+      amountPence: 250_000,
+      status: 'requested',
+      paidAt: null,
+    });
+    expect(res.body.payments[0].link).toMatch(
+      new RegExp(`^http://127\\.0\\.0\\.1:\\d+/pay/${res.body.payments[0].id}\\.[\\w-]{32}$`),
+    );
     expect(res.body).toMatchObject({ pricePence: 1_000_000, paidPence: 0, duePence: 1_000_000, orderedOn: null });
     const mail = await ctx.knex('outbox').where('kind', 'payment_request').first('payload');
     expect(mail.payload).toEqual({ paymentId: res.body.payments[0].id });
     const composed = await composeMessage({ knex: ctx.knex, config: ctx.config }, 'payment_request', mail.payload);
-    expect(composed).toMatchObject({ to: [(await ctx.knex('jobs').where('id', job).first('customer_email')).customerEmail], subject: 'Deposit for job TW-2418: £2,500.00' });
+    expect(composed).toMatchObject({
+      to: [(await ctx.knex('jobs').where('id', job).first('customer_email')).customerEmail],
+      subject: 'Deposit for job TW-2418: £2,500.00',
+    });
     expect((composed as { text: string }).text).toContain(res.body.payments[0].link);
   });
 
@@ -99,8 +137,18 @@ describe('a deposit paid through the provider', () => {
     expect(payment).toMatchObject({ status: 'paid', amountPence: 250_000, paidAt: new Date(PAID_AT) });
     expect(payment.paymentIntentId).toMatch(/^pi_/);
     expect((await ctx.knex('jobs').where('id', job).first('ordered_on')).orderedOn).toBe('2026-06-01');
-    const audit = await ctx.knex('audit_log').where({ entity: 'job', entity_id: job }).whereRaw("jsonb_exists(after, 'orderedOn')").select('before', 'after', 'actor_user_id');
-    expect(audit).toEqual([{ before: { orderedOn: null }, after: { orderedOn: '2026-06-01', because: `deposit ${payment.id} paid` }, actorUserId: null }]);
+    const audit = await ctx
+      .knex('audit_log')
+      .where({ entity: 'job', entity_id: job })
+      .whereRaw("jsonb_exists(after, 'orderedOn')")
+      .select('before', 'after', 'actor_user_id');
+    expect(audit).toEqual([
+      {
+        before: { orderedOn: null },
+        after: { orderedOn: '2026-06-01', because: `deposit ${payment.id} paid` },
+        actorUserId: null,
+      },
+    ]);
     const summary = (await scheduler.get(`/api/jobs/${job}/payments`).expect(200)).body;
     expect(summary).toMatchObject({ paidPence: 250_000, duePence: 750_000, orderedOn: '2026-06-01' });
     expect(summary.payments[0]).toMatchObject({ status: 'paid', paidOn: '2026-06-01', link: null });
@@ -111,22 +159,37 @@ describe('a deposit paid through the provider', () => {
     expect(fake.sessions.size).toBe(sessions);
   });
 
-  it('has the engine refuse a delivery before the maker\'s 35 working days from that order date (422), and take one after', async () => {
+  it("has the engine refuse a delivery before the maker's 35 working days from that order date (422), and take one after", async () => {
     const delivery = String((await ctx.knex('stages').where({ job_id: job, kind: 'delivery' }).first('id')).id);
     const lorry = await idOf(ctx.knex, 'resources', { name: '18 t lorry with loader crane' });
     // Fri 17 July 2026 14:00 BST: 34 working days after Mon 1 June, a day short (same figures as the stage-notice test).
-    const early = await post('/api/bookings', { stageId: delivery, resourceId: lorry, startsAt: '2026-07-17T13:00:00Z' }).expect(422);
-    expect(early.body.violations.filter((v: { kind: string }) => v.kind === 'lead_time').map((v: { message: string }) => v.message)).toEqual([
+    const early = await post('/api/bookings', {
+      stageId: delivery,
+      resourceId: lorry,
+      startsAt: '2026-07-17T13:00:00Z',
+    }).expect(422);
+    expect(
+      early.body.violations
+        .filter((v: { kind: string }) => v.kind === 'lead_time')
+        .map((v: { message: string }) => v.message),
+    ).toEqual([
       "'Delivery' needs 35 working days' notice from the order date (the maker's lead time): the earliest start is Mon 20 Jul 08:00",
     ]);
-    const later = await post('/api/bookings', { stageId: delivery, resourceId: lorry, startsAt: '2026-09-07T08:00:00Z' });
+    const later = await post('/api/bookings', {
+      stageId: delivery,
+      resourceId: lorry,
+      startsAt: '2026-09-07T08:00:00Z',
+    });
     expect(later.status, JSON.stringify(later.body)).toBe(201);
   });
 
   it('has no second effect when the same event comes again', async () => {
     const audits = await count('audit_log', { entity: 'payment' });
     const replay = await fake.redeliver(eventId);
-    expect({ status: replay.status, body: JSON.parse(replay.body) }).toEqual({ status: 200, body: { outcome: 'replayed', detail: 'this event was received before' } });
+    expect({ status: replay.status, body: JSON.parse(replay.body) }).toEqual({
+      status: 200,
+      body: { outcome: 'replayed', detail: 'this event was received before' },
+    });
     expect((await paymentsOf(job)).map((p) => p.status)).toEqual(['paid']);
     expect(await count('audit_log', { entity: 'payment' })).toBe(audits);
     expect(await count('webhook_events', { provider_event_id: eventId })).toBe(1);
@@ -135,11 +198,18 @@ describe('a deposit paid through the provider', () => {
   it('refuses a webhook whose signature does not match (400 problem+json), logs it, and changes nothing', async () => {
     const sent = fake.deliveries.find((d) => d.eventId === eventId)!;
     const forged = sent.payload.replace('"id": "evt_', '"id": "evt_forged');
-    const res = await request(ctx.waterline.app).post('/api/payments/webhook').set('content-type', 'application/json').set('stripe-signature', sent.signature).send(forged);
+    const res = await request(ctx.waterline.app)
+      .post('/api/payments/webhook')
+      .set('content-type', 'application/json')
+      .set('stripe-signature', sent.signature)
+      .send(forged);
     expect(res.status).toBe(400);
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(res.body.type).toMatch(/\/problems\/bad-signature$/);
-    const unsigned = await request(ctx.waterline.app).post('/api/payments/webhook').set('content-type', 'application/json').send(sent.payload);
+    const unsigned = await request(ctx.waterline.app)
+      .post('/api/payments/webhook')
+      .set('content-type', 'application/json')
+      .send(sent.payload);
     expect(unsigned.status).toBe(400);
     const refused = await ctx.knex('webhook_events').where('outcome', 'refused').select('provider_event_id', 'detail');
     expect(refused).toHaveLength(2);
@@ -154,9 +224,17 @@ describe('a deposit paid through the provider', () => {
 
   it('asks for the balance at handover: the price less the deposit, once', async () => {
     const sam = await idOf(ctx.knex, 'users', { email: account('scheduler').email });
-    const actor: Actor = { userId: sam, firmId: await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }), firmKind: 'installer', role: 'scheduler' };
+    const actor: Actor = {
+      userId: sam,
+      firmId: await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }),
+      firmKind: 'installer',
+      role: 'scheduler',
+    };
     const first = await ctx.knex.transaction((trx) => requestBalance({ actor, trx, jobId: job }));
-    expect(first).toMatchObject({ created: true, payment: { kind: 'balance', amountPence: 750_000, status: 'requested' } });
+    expect(first).toMatchObject({
+      created: true,
+      payment: { kind: 'balance', amountPence: 750_000, status: 'requested' },
+    });
     const second = await ctx.knex.transaction((trx) => requestBalance({ actor, trx, jobId: job }));
     expect(second).toMatchObject({ created: false, payment: { id: first!.payment.id } });
     expect((await paymentsOf(job)).map((p) => `${p.kind}:${p.status}`)).toEqual(['deposit:paid', 'balance:requested']);
@@ -166,14 +244,20 @@ describe('a deposit paid through the provider', () => {
 
 describe('requests the office cannot make', () => {
   it('a second deposit request while one is open: 409, also when two arrive at once', async () => {
-    const [a, b] = await Promise.all([post(`/api/jobs/${other}/payments/deposit`, { amountPence: 50_000 }), post(`/api/jobs/${other}/payments/deposit`, { amountPence: 50_000 })]);
+    const [a, b] = await Promise.all([
+      post(`/api/jobs/${other}/payments/deposit`, { amountPence: 50_000 }),
+      post(`/api/jobs/${other}/payments/deposit`, { amountPence: 50_000 }),
+    ]);
     expect([a.status, b.status].sort()).toEqual([201, 409]);
     expect((a.status === 409 ? a : b).body.detail).toMatch(/already open/);
     expect((await paymentsOf(other)).map((p) => p.status)).toEqual(['requested']);
     // Withdrawn, it may be asked for again (the open session, if any, is closed first).
     await post(`/api/jobs/${other}/payments/deposit/cancel`).expect(200);
     await post(`/api/jobs/${other}/payments/deposit`, { amountPence: 60_000 }).expect(201);
-    expect((await paymentsOf(other)).map((p) => `${p.status}:${p.amountPence}`)).toEqual(['cancelled:50000', 'requested:60000']);
+    expect((await paymentsOf(other)).map((p) => `${p.status}:${p.amountPence}`)).toEqual([
+      'cancelled:50000',
+      'requested:60000',
+    ]);
   });
 
   it('amounts must be whole positive pence: 400 naming amountPence', async () => {
@@ -208,7 +292,9 @@ describe('requests the office cannot make', () => {
   it('a link with a wrong signature opens nothing', async () => {
     const [open] = await paymentsOf(other).where('status', 'requested');
     const sessions = fake.sessions.size;
-    const res = await request(ctx.waterline.app).get(`/pay/${open.id}.${'A'.repeat(32)}`).expect(404);
+    const res = await request(ctx.waterline.app)
+      .get(`/pay/${open.id}.${'A'.repeat(32)}`)
+      .expect(404);
     expect(res.text).toContain('This payment link is not valid');
     expect(fake.sessions.size).toBe(sessions);
   });

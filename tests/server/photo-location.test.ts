@@ -14,7 +14,9 @@ beforeAll(async () => {
   owner = await signIn(ctx, account('owner').email);
   jobId = await idOf(ctx.knex, 'jobs', { reference: 'TW-2405' });
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 // Invented camera and place; the GPS values are a field near Otley, written as EXIF rationals.
 const MAKE = 'Otterbrook';
@@ -22,13 +24,26 @@ const MODEL = 'Field Camera 2';
 const DATUM = 'WGS-84 pit corner';
 const CAMERA_AND_PLACE = {
   IFD0: { Make: MAKE, Model: MODEL },
-  IFD3: { GPSLatitudeRef: 'N', GPSLatitude: '53/1 54/1 3/1', GPSLongitudeRef: 'W', GPSLongitude: '1/1 41/1 2/1', GPSMapDatum: DATUM },
+  IFD3: {
+    GPSLatitudeRef: 'N',
+    GPSLatitude: '53/1 54/1 3/1',
+    GPSLongitudeRef: 'W',
+    GPSLongitude: '1/1 41/1 2/1',
+    GPSMapDatum: DATUM,
+  },
 };
 
 /** A 64 × 48 photo taken on its side (EXIF orientation 6) carrying a camera make, model and GPS position. */
 function photo(format: 'jpeg' | 'png' | 'webp' | 'avif', options: { progressive?: boolean } = {}): Promise<Buffer> {
-  const image = sharp({ create: { width: 64, height: 48, channels: 3, background: { r: 40, g: 120, b: 160 } } })
-    .composite([{ input: { create: { width: 16, height: 16, channels: 3, background: { r: 230, g: 200, b: 40 } } }, left: 4, top: 4 }]);
+  const image = sharp({
+    create: { width: 64, height: 48, channels: 3, background: { r: 40, g: 120, b: 160 } },
+  }).composite([
+    {
+      input: { create: { width: 16, height: 16, channels: 3, background: { r: 230, g: 200, b: 40 } } },
+      left: 4,
+      top: 4,
+    },
+  ]);
   const encoded = format === 'jpeg' ? image.jpeg({ progressive: options.progressive ?? false }) : image[format]();
   return encoded.withExif(CAMERA_AND_PLACE).withMetadata({ orientation: 6 }).toBuffer();
 }
@@ -95,7 +110,9 @@ describe('a photo upload, by default', () => {
   });
 
   it('leaves a photo with nothing to remove byte for byte as it came', async () => {
-    const plain = await sharp({ create: { width: 32, height: 24, channels: 3, background: '#2878a0' } }).jpeg().toBuffer();
+    const plain = await sharp({ create: { width: 32, height: 24, channels: 3, background: '#2878a0' } })
+      .jpeg()
+      .toBuffer();
     const res = await upload(plain, 'plain.jpg').expect(201);
     expect((await stored(res.body.url)).equals(plain)).toBe(true);
   });
@@ -103,8 +120,15 @@ describe('a photo upload, by default', () => {
 
 describe("the firm's photo location setting", () => {
   it('is off until the owner turns it on; then the original keeps its GPS; off again, it goes', async () => {
-    expect((await owner.get('/api/firm/settings').expect(200)).body).toMatchObject({ keepPhotoLocation: false, version: 0 });
-    await scheduler.put('/api/firm/settings').set('X-CSRF-Token', scheduler.csrf).send({ keepPhotoLocation: true }).expect(403);
+    expect((await owner.get('/api/firm/settings').expect(200)).body).toMatchObject({
+      keepPhotoLocation: false,
+      version: 0,
+    });
+    await scheduler
+      .put('/api/firm/settings')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ keepPhotoLocation: true })
+      .expect(403);
 
     const on = await setKeep(true).expect(200);
     // The switch needs no version and does not move the quantity figures' version.
@@ -125,11 +149,18 @@ describe("the firm's photo location setting", () => {
 
   it('sits beside the quantity figures without touching them', async () => {
     const before = (await owner.get('/api/firm/settings').expect(200)).body;
-    const saved = await owner.put('/api/firm/settings').set('X-CSRF-Token', owner.csrf)
-      .send({ version: before.version, quantities: { perimeterGapMm: 150 } }).expect(200);
+    const saved = await owner
+      .put('/api/firm/settings')
+      .set('X-CSRF-Token', owner.csrf)
+      .send({ version: before.version, quantities: { perimeterGapMm: 150 } })
+      .expect(200);
     await setKeep(true).expect(200);
     const after = (await owner.get('/api/firm/settings').expect(200)).body;
-    expect(after).toMatchObject({ keepPhotoLocation: true, version: saved.body.version, overrides: { perimeterGapMm: 150 } });
+    expect(after).toMatchObject({
+      keepPhotoLocation: true,
+      version: saved.body.version,
+      overrides: { perimeterGapMm: 150 },
+    });
     await setKeep(false).expect(200);
   });
 });

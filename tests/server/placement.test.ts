@@ -1,7 +1,15 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
-import { openBoardStream, account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import {
+  openBoardStream,
+  account,
+  idOf,
+  signIn,
+  startTestApp,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
 import { makeJob, type FixtureStage } from '../helpers/flows.ts';
 import type { AutoPlaceAnswer, PlanProgress, SlotAnswer } from '../../shared/schemas/placement.ts';
 
@@ -19,19 +27,28 @@ const DIG_ONLY: FixtureStage = { kind: 'excavation', name: 'Excavate pit', minut
 /** The spoil taken away with the tracked dumper (the firm's only one): two working hours. */
 const SPOIL: FixtureStage = { kind: 'spoil', name: 'Take the spoil away', minutes: 120, needs: { dumper: 1 } };
 /** Connecting the spa: an electrician (a partner's) for four working hours. */
-const CONNECT: FixtureStage = { kind: 'electrical_connect', name: 'Connect and certify', minutes: 240, needs: { electrician: 1 } };
+const CONNECT: FixtureStage = {
+  kind: 'electrical_connect',
+  name: 'Connect and certify',
+  minutes: 240,
+  needs: { electrician: 1 },
+};
 /** Another job's spoil run: three working hours on the same dumper. */
 const LONG_SPOIL: FixtureStage = { ...SPOIL, minutes: 180 };
 
 beforeAll(async () => {
   ctx = await startTestApp();
   scheduler = await signIn(ctx, account('scheduler').email);
-  for (const name of ['1.5 t excavator', 'Tracked dumper', 'Priya Nair']) ids[name] = await idOf(ctx.knex, 'resources', { name });
+  for (const name of ['1.5 t excavator', 'Tracked dumper', 'Priya Nair'])
+    ids[name] = await idOf(ctx.knex, 'resources', { name });
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 const write = (path: string, body: object) => scheduler.post(path).set('X-CSRF-Token', scheduler.csrf).send(body);
-const book = (stageId: string, resourceId: string, startsAt: string) => write('/api/bookings', { stageId, resourceId, startsAt }).expect(201);
+const book = (stageId: string, resourceId: string, startsAt: string) =>
+  write('/api/bookings', { stageId, resourceId, startsAt }).expect(201);
 const iso = (t: number) => new Date(t).toISOString();
 
 /**
@@ -40,8 +57,16 @@ const iso = (t: number) => new Date(t).toISOString();
  * is London's on that day ('+01' in summer time, '+00' after October's clock change). Nothing of
  * the demo is booked that far ahead.
  */
-async function dugOnMonday(prefix: string, monday: string, utcOffset: '+01' | '+00'): Promise<{ spoil: string; jobId: string }> {
-  const job = await makeJob(ctx.knex, { reference: `${prefix}-1`, stages: [DIG_ONLY, SPOIL], links: [['excavation', 'spoil']] });
+async function dugOnMonday(
+  prefix: string,
+  monday: string,
+  utcOffset: '+01' | '+00',
+): Promise<{ spoil: string; jobId: string }> {
+  const job = await makeJob(ctx.knex, {
+    reference: `${prefix}-1`,
+    stages: [DIG_ONLY, SPOIL],
+    links: [['excavation', 'spoil']],
+  });
   const other = await makeJob(ctx.knex, { reference: `${prefix}-2`, stages: [LONG_SPOIL], links: [] });
   await book(job.stage.excavation!, ids['1.5 t excavator']!, `${monday}T08:00:00${utcOffset}:00`);
   // The other job's spoil run takes the dumper just when this one could start.
@@ -79,34 +104,81 @@ describe('POST /api/plan/slots', () => {
     expect(iso(all.kinds[0]!.slots[0]!.start)).toBe('2026-11-03T08:00:00.000Z');
     const wrong = await write('/api/plan/slots', { stageId: spoil, resourceKind: 'crane' }).expect(400);
     expect(wrong.headers['content-type']).toMatch(/application\/problem\+json/);
-    expect(wrong.body.errors).toEqual([{ field: 'resourceKind', message: "is not a kind 'Take the spoil away' needs (it needs dumper)" }]);
+    expect(wrong.body.errors).toEqual([
+      { field: 'resourceKind', message: "is not a kind 'Take the spoil away' needs (it needs dumper)" },
+    ]);
   });
 
   it("counts another installer's request for a shared electrician, beyond the first span read, telling nothing of it", async () => {
     // Monday 11 January 2027, 32 weeks ahead (GMT): further than the first read of today + 150 days.
-    const job = await makeJob(ctx.knex, { reference: 'FX-E-1', stages: [DIG_ONLY, CONNECT], links: [['excavation', 'electrical_connect']] });
+    const job = await makeJob(ctx.knex, {
+      reference: 'FX-E-1',
+      stages: [DIG_ONLY, CONNECT],
+      links: [['excavation', 'electrical_connect']],
+    });
     await book(job.stage.excavation!, ids['1.5 t excavator']!, '2027-01-11T08:00:00Z');
     // Moorview (who shares Brightspark's electricians) asks for Priya on Tuesday 07:30–11:30 and sends the request.
     const moorview = await signIn(ctx, account('scheduler', 'Moorview Spas').email);
-    const [mvJob] = await ctx.knex('jobs').insert({ firm_id: await idOf(ctx.knex, 'firms', { name: 'Moorview Spas' }), reference: 'MV-PL-1', customer_name: 'Hal Penrose',
-      site_address: '9 Fold Lane', site_town: 'Otley', site_postcode: 'LS21 1AA', installation_type: 'slab', status: 'planned' }).returning('id');
-    const [mvStage] = await ctx.knex('stages').insert({ job_id: mvJob.id, kind: 'electrical_connect', name: 'Connect and certify', sequence: 1, duration_minutes: 240,
-      requirements: JSON.stringify([{ kind: 'electrician', count: 1 }]) }).returning('id');
-    const mvBooked = await moorview.post('/api/bookings').set('X-CSRF-Token', moorview.csrf)
-      .send({ stageId: String(mvStage.id), resourceId: ids['Priya Nair'], startsAt: '2027-01-12T07:30:00Z' }).expect(201);
+    const [mvJob] = await ctx
+      .knex('jobs')
+      .insert({
+        firm_id: await idOf(ctx.knex, 'firms', { name: 'Moorview Spas' }),
+        reference: 'MV-PL-1',
+        customer_name: 'Hal Penrose',
+        site_address: '9 Fold Lane',
+        site_town: 'Otley',
+        site_postcode: 'LS21 1AA',
+        installation_type: 'slab',
+        status: 'planned',
+      })
+      .returning('id');
+    const [mvStage] = await ctx
+      .knex('stages')
+      .insert({
+        job_id: mvJob.id,
+        kind: 'electrical_connect',
+        name: 'Connect and certify',
+        sequence: 1,
+        duration_minutes: 240,
+        requirements: JSON.stringify([{ kind: 'electrician', count: 1 }]),
+      })
+      .returning('id');
+    const mvBooked = await moorview
+      .post('/api/bookings')
+      .set('X-CSRF-Token', moorview.csrf)
+      .send({ stageId: String(mvStage.id), resourceId: ids['Priya Nair'], startsAt: '2027-01-12T07:30:00Z' })
+      .expect(201);
     const mvBooking = mvBooked.body.bookings[0] as { id: string; version: number };
-    await moorview.post(`/api/bookings/${mvBooking.id}/publish`).set('X-CSRF-Token', moorview.csrf).send({ version: mvBooking.version }).expect(200);
+    await moorview
+      .post(`/api/bookings/${mvBooking.id}/publish`)
+      .set('X-CSRF-Token', moorview.csrf)
+      .send({ version: mvBooking.version })
+      .expect(200);
 
-    const res = await write('/api/plan/slots', { stageId: job.stage.electrical_connect, resourceId: ids['Priya Nair'], alternatives: 0 }).expect(200);
+    const res = await write('/api/plan/slots', {
+      stageId: job.stage.electrical_connect,
+      resourceId: ids['Priya Nair'],
+      alternatives: 0,
+    }).expect(200);
     // Monday after the dig leaves 13:00–16:30, too short for four hours in one day; Tuesday 07:30 is
     // Moorview's: Priya's first free four hours are Tuesday 11:30–15:30 (her day is 07:30–16:30).
-    expect((res.body as SlotAnswer).kinds[0]!.slots.map((s) => [iso(s.start), iso(s.end)])).toEqual([['2027-01-12T11:30:00.000Z', '2027-01-12T15:30:00.000Z']]);
+    expect((res.body as SlotAnswer).kinds[0]!.slots.map((s) => [iso(s.start), iso(s.end)])).toEqual([
+      ['2027-01-12T11:30:00.000Z', '2027-01-12T15:30:00.000Z'],
+    ]);
     expect(JSON.stringify(res.body)).not.toMatch(/MV-PL-1|Hal Penrose|Otley|Moorview/);
     expect(JSON.stringify(res.body)).not.toContain(`"${mvBooking.id}"`);
   });
 
   it("answers 404 for another firm's stage and for one that does not exist, telling nothing of it", async () => {
-    const mvStage = String((await ctx.knex('stages').join('jobs', 'jobs.id', 'stages.job_id').where('jobs.reference', 'MV-118').first('stages.id')).id);
+    const mvStage = String(
+      (
+        await ctx
+          .knex('stages')
+          .join('jobs', 'jobs.id', 'stages.job_id')
+          .where('jobs.reference', 'MV-118')
+          .first('stages.id')
+      ).id,
+    );
     const foreign = await write('/api/plan/slots', { stageId: mvStage }).expect(404);
     expect(foreign.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(foreign.body).toMatchObject({ status: 404, detail: 'No such stage.' });
@@ -126,7 +198,9 @@ describe('POST /api/plan/slots', () => {
     for (const [body, field, message] of cases) {
       const res = await write('/api/plan/slots', body).expect(400);
       expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
-      expect(res.body.errors, JSON.stringify(body)).toEqual([expect.objectContaining({ field, message: expect.stringMatching(message) })]);
+      expect(res.body.errors, JSON.stringify(body)).toEqual([
+        expect.objectContaining({ field, message: expect.stringMatching(message) }),
+      ]);
     }
   });
 
@@ -147,9 +221,16 @@ describe('POST /api/plan/auto-place', () => {
       [spoil, '2026-11-17T08:00:00.000Z', '2026-11-17T10:00:00.000Z', [ids['Tracked dumper']]],
     ]);
     const batch = await write('/api/bookings/batch', {
-      bookings: answer.bookings.map((b) => ({ stageId: b.stageId, resourceId: b.resourceId, startsAt: iso(b.start), endsAt: iso(b.end) })),
+      bookings: answer.bookings.map((b) => ({
+        stageId: b.stageId,
+        resourceId: b.resourceId,
+        startsAt: iso(b.start),
+        endsAt: iso(b.end),
+      })),
     }).expect(201);
-    expect(batch.body.bookings.map((b: { stageId: string; startsAt: string }) => [b.stageId, b.startsAt])).toEqual([[spoil, '2026-11-17T08:00:00.000Z']]);
+    expect(batch.body.bookings.map((b: { stageId: string; startsAt: string }) => [b.stageId, b.startsAt])).toEqual([
+      [spoil, '2026-11-17T08:00:00.000Z'],
+    ]);
   });
 
   it("answers 404 for another firm's job, 400 for bad input", async () => {
@@ -167,14 +248,17 @@ describe('POST /api/plan/auto-place', () => {
     for (const [body, field, message] of cases) {
       const res = await write('/api/plan/auto-place', body).expect(400);
       expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
-      expect(res.body.errors, JSON.stringify(body)).toEqual([expect.objectContaining({ field, message: expect.stringMatching(message) })]);
+      expect(res.body.errors, JSON.stringify(body)).toEqual([
+        expect.objectContaining({ field, message: expect.stringMatching(message) }),
+      ]);
     }
   });
 });
 
 const openStream = openBoardStream;
 
-const progressOf = (text: string) => [...text.matchAll(/event: plan-progress\ndata: (.*)\n/g)].map((m) => JSON.parse(m[1]!) as PlanProgress);
+const progressOf = (text: string) =>
+  [...text.matchAll(/event: plan-progress\ndata: (.*)\n/g)].map((m) => JSON.parse(m[1]!) as PlanProgress);
 
 describe("auto-place's progress on the board stream", () => {
   it("reaches the caller's own stream, named by the planId, and no one else's", async () => {
@@ -186,9 +270,14 @@ describe("auto-place's progress on the board stream", () => {
     const theirs = await openStream(owner, port);
     try {
       // Two stages to place, so the planner searches beyond its first plan.
-      const job = await makeJob(ctx.knex, { reference: 'FX-PR-1', stages: [DIG_ONLY, SPOIL], links: [['excavation', 'spoil']] });
+      const job = await makeJob(ctx.knex, {
+        reference: 'FX-PR-1',
+        stages: [DIG_ONLY, SPOIL],
+        links: [['excavation', 'spoil']],
+      });
       const planId = 'plan-progress-test-1';
-      const answer = (await write('/api/plan/auto-place', { jobIds: [job.jobId], planId, budgetMs: 50 }).expect(200)).body as AutoPlaceAnswer;
+      const answer = (await write('/api/plan/auto-place', { jobIds: [job.jobId], planId, budgetMs: 50 }).expect(200))
+        .body as AutoPlaceAnswer;
       expect(answer.placed.map((p) => p.stageId).sort()).toEqual([job.stage.excavation, job.stage.spoil].sort());
       await mine.until((t) => t.includes('"phase":"placing"') || t.includes('"phase":"search"'));
       const heard = progressOf(mine.text());
@@ -197,7 +286,12 @@ describe("auto-place's progress on the board stream", () => {
       expect(heard.length).toBeGreaterThanOrEqual(2);
       // Booking the result tells both office streams; the owner's heard that and no progress before it.
       const booked = await write('/api/bookings/batch', {
-        bookings: answer.bookings.map((b) => ({ stageId: b.stageId, resourceId: b.resourceId, startsAt: iso(b.start), endsAt: iso(b.end) })),
+        bookings: answer.bookings.map((b) => ({
+          stageId: b.stageId,
+          resourceId: b.resourceId,
+          startsAt: iso(b.start),
+          endsAt: iso(b.end),
+        })),
       }).expect(201);
       const firstId = String(booked.body.bookings[0].id);
       await theirs.until((t) => t.includes(firstId));

@@ -6,8 +6,12 @@ import { PROBLEM_TYPES } from '../../server/problem-types.ts';
 import { account, signIn, startTestApp, type TestContext } from '../helpers/server.ts';
 
 let ctx: TestContext;
-beforeAll(async () => { ctx = await startTestApp(); });
-afterAll(async () => { await ctx.close(); });
+beforeAll(async () => {
+  ctx = await startTestApp();
+});
+afterAll(async () => {
+  await ctx.close();
+});
 
 function sourcesUnder(dir: string): string[] {
   return readdirSync(dir).flatMap((name) => {
@@ -20,7 +24,8 @@ describe('problem types', () => {
   it('every code the server can answer with has an explanation', () => {
     const codes = new Set<string>();
     for (const file of sourcesUnder(path.resolve('server'))) {
-      for (const m of readFileSync(file, 'utf8').matchAll(/(?:new HttpError|super)\(\s*\d{3},\s*'([a-z-]+)'/g)) codes.add(m[1]!);
+      for (const m of readFileSync(file, 'utf8').matchAll(/(?:new HttpError|super)\(\s*\d{3},\s*'([a-z-]+)'/g))
+        codes.add(m[1]!);
     }
     // The scan must see the error classes themselves, or it proves nothing.
     expect(codes).toContain('bad-request');
@@ -30,7 +35,11 @@ describe('problem types', () => {
 
   it('answers with an absolute type under PUBLIC_URL that resolves to a page explaining it', async () => {
     const scheduler = await signIn(ctx, account('scheduler').email);
-    const refused = await scheduler.post('/api/jobs').set('X-CSRF-Token', scheduler.csrf).send({ reference: '' }).expect(400);
+    const refused = await scheduler
+      .post('/api/jobs')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ reference: '' })
+      .expect(400);
     expect(refused.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/bad-request`);
     const page = await request(ctx.waterline.app).get(new URL(refused.body.type).pathname).expect(200);
     expect(page.headers['content-type']).toMatch(/text\/html/);
@@ -39,7 +48,12 @@ describe('problem types', () => {
 
   it('a malformed JSON body gets its own documented type', async () => {
     const scheduler = await signIn(ctx, account('scheduler').email);
-    const res = await scheduler.post('/api/jobs').set('X-CSRF-Token', scheduler.csrf).set('Content-Type', 'application/json').send('{"reference":').expect(400);
+    const res = await scheduler
+      .post('/api/jobs')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .set('Content-Type', 'application/json')
+      .send('{"reference":')
+      .expect(400);
     expect(res.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/malformed-body`);
   });
 

@@ -49,14 +49,22 @@ describe('the sign-in budget', () => {
     // The sign-in above used one of two: one more start is allowed, the next is not.
     await request(waterline.app).get('/auth/google').expect(302);
     const refused = await request(waterline.app).get('/auth/google').expect(429);
-    expect(refused.body).toMatchObject({ type: `${ctx.config.PUBLIC_URL}/problems/rate-limited`, status: 429, title: 'Too many sign-in attempts' });
+    expect(refused.body).toMatchObject({
+      type: `${ctx.config.PUBLIC_URL}/problems/rate-limited`,
+      status: 429,
+      title: 'Too many sign-in attempts',
+    });
   });
 
   it('charges a callback with a forged state, and refuses them past the budget', async () => {
     const waterline = appWith({ SIGN_IN_RATE_LIMIT: '2' });
     const forged = '/auth/google/callback?code=forged&state=forged';
-    expect((await request(waterline.app).get(forged).expect(302)).headers.location).toBe('/sign-in?error=sign_in_failed');
-    expect((await request(waterline.app).get(forged).expect(302)).headers.location).toBe('/sign-in?error=sign_in_failed');
+    expect((await request(waterline.app).get(forged).expect(302)).headers.location).toBe(
+      '/sign-in?error=sign_in_failed',
+    );
+    expect((await request(waterline.app).get(forged).expect(302)).headers.location).toBe(
+      '/sign-in?error=sign_in_failed',
+    );
     const refused = await request(waterline.app).get(forged).expect(429);
     expect(refused.body).toMatchObject({ status: 429, title: 'Too many sign-in attempts' });
     expect(Number(refused.headers['retry-after'])).toBeGreaterThan(0);
@@ -87,14 +95,23 @@ describe('public links', () => {
   it('refuse forged answer tokens past the budget before they write a link_attempts row; good links are free', async () => {
     const waterline = appWith({ ANSWER_LINK_RATE_LIMIT: '5' });
     const booking = await ctx.knex('bookings').first('id', 'version');
-    const good = await new LinkSigner(ctx.config.LINK_SECRET).signAnswer({ bookingId: String(booking.id), version: booking.version, action: 'decline', expiresAt: new Date(Date.now() + 3_600_000) });
+    const good = await new LinkSigner(ctx.config.LINK_SECRET).signAnswer({
+      bookingId: String(booking.id),
+      version: booking.version,
+      action: 'decline',
+      expiresAt: new Date(Date.now() + 3_600_000),
+    });
     // More good links than the budget: each gives its point back (in Redis, once its response has gone).
     for (let i = 0; i < 7; i += 1) await request(waterline.app).get(`/answer/${good}`).expect(200);
     await expect.poll(() => redis.get(`${waterline.config.RATE_LIMIT_PREFIX}:answer-link:127.0.0.1`)).toBe('0');
 
     const before = Number((await ctx.knex('link_attempts').count({ n: '*' }).first())?.n);
     // A burst of forged tokens at once: only the budget's worth gets through to the token check.
-    const burst = await Promise.all(Array.from({ length: 12 }, (_, i) => request(waterline.app).get(`/answer/forged-${i}`).set('Accept', 'application/json')));
+    const burst = await Promise.all(
+      Array.from({ length: 12 }, (_, i) =>
+        request(waterline.app).get(`/answer/forged-${i}`).set('Accept', 'application/json'),
+      ),
+    );
     const statuses = burst.map((r) => r.status).sort();
     expect(statuses).toEqual([...Array<number>(5).fill(400), ...Array<number>(7).fill(429)]);
     const after = Number((await ctx.knex('link_attempts').count({ n: '*' }).first())?.n);
@@ -102,8 +119,14 @@ describe('public links', () => {
 
     const refused = burst.find((r) => r.status === 429)!;
     expect(refused.headers['content-type']).toMatch(/^application\/problem\+json/);
-    expect(refused.body).toMatchObject({ type: `${ctx.config.PUBLIC_URL}/problems/rate-limited`, title: 'Too many refused links', status: 429 });
-    expect(refused.body.detail).toMatch(/^Too many answer links from your address were not valid\. Try again in \d+ minutes\.$/);
+    expect(refused.body).toMatchObject({
+      type: `${ctx.config.PUBLIC_URL}/problems/rate-limited`,
+      title: 'Too many refused links',
+      status: 429,
+    });
+    expect(refused.body.detail).toMatch(
+      /^Too many answer links from your address were not valid\. Try again in \d+ minutes\.$/,
+    );
     expect(Number(refused.headers['retry-after'])).toBeGreaterThan(0);
 
     // A person in a browser gets a short page; invitations and feeds have budgets of their own.
@@ -153,11 +176,16 @@ describe('closing the app', () => {
 describe('two web processes over the real Redis', () => {
   const children: ChildProcess[] = [];
   afterAll(async () => {
-    await Promise.all(children.map((child) => new Promise((resolve) => {
-      if (child.exitCode !== null || child.signalCode !== null) return resolve(null);
-      child.once('exit', resolve);
-      child.kill('SIGTERM');
-    })));
+    await Promise.all(
+      children.map(
+        (child) =>
+          new Promise((resolve) => {
+            if (child.exitCode !== null || child.signalCode !== null) return resolve(null);
+            child.once('exit', resolve);
+            child.kill('SIGTERM');
+          }),
+      ),
+    );
   });
 
   async function startServer(env: NodeJS.ProcessEnv): Promise<string> {
@@ -165,16 +193,34 @@ describe('two web processes over the real Redis', () => {
     const url = `http://127.0.0.1:${port}`;
     const child = spawn(path.join(root, 'node_modules', '.bin', 'tsx'), ['server/index.ts'], {
       cwd: root,
-      env: { ...process.env, ...env, PORT: String(port), HOST: '127.0.0.1', PUBLIC_URL: url, LOG_LEVEL: 'silent', RUN_WORKER: '0' },
+      env: {
+        ...process.env,
+        ...env,
+        PORT: String(port),
+        HOST: '127.0.0.1',
+        PUBLIC_URL: url,
+        LOG_LEVEL: 'silent',
+        RUN_WORKER: '0',
+      },
       stdio: ['ignore', 'ignore', 'pipe'],
     });
     let stderr = '';
-    child.stderr?.on('data', (d: Buffer) => { stderr += String(d); });
+    child.stderr?.on('data', (d: Buffer) => {
+      stderr += String(d);
+    });
     children.push(child);
-    await expect.poll(async () => {
-      if (child.exitCode !== null) throw new Error(`the server on ${port} exited: ${stderr}`);
-      return fetch(`${url}/api/health`).then((r) => r.status, () => 0);
-    }, { timeout: 45_000, interval: 100 }).toBe(200);
+    await expect
+      .poll(
+        async () => {
+          if (child.exitCode !== null) throw new Error(`the server on ${port} exited: ${stderr}`);
+          return fetch(`${url}/api/health`).then(
+            (r) => r.status,
+            () => 0,
+          );
+        },
+        { timeout: 45_000, interval: 100 },
+      )
+      .toBe(200);
     return url;
   }
 

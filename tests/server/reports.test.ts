@@ -23,14 +23,29 @@ const JUNE = { from: '2026-05-31T23:00:00Z', to: '2026-07-04T23:00:00Z' };
 const qs = (r: { from: string; to: string }) => `from=${encodeURIComponent(r.from)}&to=${encodeURIComponent(r.to)}`;
 
 async function addStage(name: string, sequence: number, kinds: string[]): Promise<string> {
-  const [row] = await ctx.knex('stages').insert({
-    job_id: jobId, kind: 'groundworks', name, sequence, duration_minutes: 540,
-    requirements: JSON.stringify(kinds.map((kind) => ({ kind, count: 1 }))),
-  }).returning('id');
+  const [row] = await ctx
+    .knex('stages')
+    .insert({
+      job_id: jobId,
+      kind: 'groundworks',
+      name,
+      sequence,
+      duration_minutes: 540,
+      requirements: JSON.stringify(kinds.map((kind) => ({ kind, count: 1 }))),
+    })
+    .returning('id');
   return String(row.id);
 }
-async function book(stageId: string, resourceId: string, startsAt: string, endsAt: string, state = 'confirmed'): Promise<void> {
-  await ctx.knex('bookings').insert({ stage_id: stageId, resource_id: resourceId, starts_at: startsAt, ends_at: endsAt, state });
+async function book(
+  stageId: string,
+  resourceId: string,
+  startsAt: string,
+  endsAt: string,
+  state = 'confirmed',
+): Promise<void> {
+  await ctx
+    .knex('bookings')
+    .insert({ stage_id: stageId, resource_id: resourceId, starts_at: startsAt, ends_at: endsAt, state });
 }
 
 beforeAll(async () => {
@@ -39,75 +54,159 @@ beforeAll(async () => {
   tidewayId = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
   moorviewId = await idOf(ctx.knex, 'firms', { name: 'Moorview Spas' });
   const calendar = await idOf(ctx.knex, 'calendars', { firm_id: tidewayId, name: 'Standard week' });
-  const resource = async (name: string, category: string, kind: string, ownership = 'owned') => String((await ctx.knex('resources')
-    .insert({ firm_id: tidewayId, name, category, kind, ownership, calendar_id: calendar }).returning('id'))[0].id);
+  const resource = async (name: string, category: string, kind: string, ownership = 'owned') =>
+    String(
+      (
+        await ctx
+          .knex('resources')
+          .insert({ firm_id: tidewayId, name, category, kind, ownership, calendar_id: calendar })
+          .returning('id')
+      )[0].id,
+    );
   digger = await resource('Test mini digger (hired)', 'machine', 'mini_excavator', 'hired');
   wren = await resource('Crew Wren', 'crew', 'test_crew');
   finch = await resource('Crew Finch', 'crew', 'test_crew');
   priya = await idOf(ctx.knex, 'resources', { name: 'Priya Nair' });
-  const [job] = await ctx.knex('jobs').insert({
-    firm_id: tidewayId, reference: 'TW-9001', customer_name: 'Iris Test', site_address: '1 Sample Row', site_town: 'Testbury',
-    site_postcode: 'LS1 1AA', installation_type: 'in_ground', status: 'planned', promised_from: '2026-07-20', promised_to: '2026-07-24',
-  }).returning('id');
+  const [job] = await ctx
+    .knex('jobs')
+    .insert({
+      firm_id: tidewayId,
+      reference: 'TW-9001',
+      customer_name: 'Iris Test',
+      site_address: '1 Sample Row',
+      site_town: 'Testbury',
+      site_postcode: 'LS1 1AA',
+      installation_type: 'in_ground',
+      status: 'planned',
+      promised_from: '2026-07-20',
+      promised_to: '2026-07-24',
+    })
+    .returning('id');
   jobId = String(job.id);
 
   // Tue 23 and Wed 24 Jun, 08:00–17:00 BST: the hired digger and Crew Wren, both days.
   const dig1 = await addStage('Dig (day 1)', 1, ['mini_excavator', 'test_crew']);
   const dig2 = await addStage('Dig (day 2)', 2, ['mini_excavator', 'test_crew']);
-  for (const [stage, day] of [[dig1, '23'], [dig2, '24']] as const) {
+  for (const [stage, day] of [
+    [dig1, '23'],
+    [dig2, '24'],
+  ] as const) {
     await book(stage, digger, `2026-06-${day}T07:00:00Z`, `2026-06-${day}T16:00:00Z`);
     await book(stage, wren, `2026-06-${day}T07:00:00Z`, `2026-06-${day}T16:00:00Z`);
   }
   // Crew Finch twice on Thu 25 Jun: 08:00–12:00 and 10:00–14:00 BST (pencilled; the database refuses confirmed overlaps).
-  await book(await addStage('Walls', 3, ['test_crew']), finch, '2026-06-25T07:00:00Z', '2026-06-25T11:00:00Z', 'pencilled');
-  await book(await addStage('Backfill', 4, ['test_crew']), finch, '2026-06-25T09:00:00Z', '2026-06-25T13:00:00Z', 'pencilled');
+  await book(
+    await addStage('Walls', 3, ['test_crew']),
+    finch,
+    '2026-06-25T07:00:00Z',
+    '2026-06-25T11:00:00Z',
+    'pencilled',
+  );
+  await book(
+    await addStage('Backfill', 4, ['test_crew']),
+    finch,
+    '2026-06-25T09:00:00Z',
+    '2026-06-25T13:00:00Z',
+    'pencilled',
+  );
   // The digger on Mon 29 Jun, after its off-hire: one working day outside the hire.
-  await book(await addStage('Level the pit', 5, ['mini_excavator']), digger, '2026-06-29T07:00:00Z', '2026-06-29T16:00:00Z', 'pencilled');
+  await book(
+    await addStage('Level the pit', 5, ['mini_excavator']),
+    digger,
+    '2026-06-29T07:00:00Z',
+    '2026-06-29T16:00:00Z',
+    'pencilled',
+  );
   // Priya Nair (Brightspark) on Mon 8 Jun 09:00–13:00 BST, the time Moorview has asked her for MV-118.
-  await book(await addStage('Connect (test)', 6, ['electrician']), priya, '2026-06-08T08:00:00Z', '2026-06-08T12:00:00Z', 'pencilled');
+  await book(
+    await addStage('Connect (test)', 6, ['electrician']),
+    priya,
+    '2026-06-08T08:00:00Z',
+    '2026-06-08T12:00:00Z',
+    'pencilled',
+  );
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 describe('recording and approving a hire period', () => {
   it('refuses a missing day rate and an off-hire before the on-hire, naming the field (400 problem+json)', async () => {
     const base = { supplierFirmId: await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' }), resourceId: digger };
-    const noRate = await manager.post('/api/hire-periods').set('X-CSRF-Token', manager.csrf)
+    const noRate = await manager
+      .post('/api/hire-periods')
+      .set('X-CSRF-Token', manager.csrf)
       .send({ ...base, onHireAt: '2026-06-22T06:00:00Z', offHireAt: '2026-06-26T17:00:00Z' });
     expect(noRate.status).toBe(400);
     expect(noRate.headers['content-type']).toContain('application/problem+json');
     expect(noRate.body.errors.map((e: { field: string }) => e.field)).toEqual(['dayRatePence']);
-    const backwards = await manager.post('/api/hire-periods').set('X-CSRF-Token', manager.csrf)
+    const backwards = await manager
+      .post('/api/hire-periods')
+      .set('X-CSRF-Token', manager.csrf)
       .send({ ...base, onHireAt: '2026-06-26T17:00:00Z', offHireAt: '2026-06-22T06:00:00Z', dayRatePence: 14500 });
     expect(backwards.status).toBe(400);
     expect(backwards.body.errors).toEqual([{ field: 'offHireAt', message: 'must be after the on-hire' }]);
   });
 
   it('records the digger on hire Mon 22 – Fri 26 Jun at £145.00 a day, approved and audited', async () => {
-    const res = await manager.post('/api/hire-periods').set('X-CSRF-Token', manager.csrf).send({
-      supplierFirmId: await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' }), resourceId: digger,
-      onHireAt: '2026-06-22T06:00:00Z', offHireAt: '2026-06-26T17:00:00Z', // 07:00 Mon to 18:00 Fri BST
-      dayRatePence: 14500, deliveryPence: 6000, collectionPence: 6000, approve: true,
-    }).expect(201);
+    const res = await manager
+      .post('/api/hire-periods')
+      .set('X-CSRF-Token', manager.csrf)
+      .send({
+        supplierFirmId: await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' }),
+        resourceId: digger,
+        onHireAt: '2026-06-22T06:00:00Z',
+        offHireAt: '2026-06-26T17:00:00Z', // 07:00 Mon to 18:00 Fri BST
+        dayRatePence: 14500,
+        deliveryPence: 6000,
+        collectionPence: 6000,
+        approve: true,
+      })
+      .expect(201);
     expect(res.body).toMatchObject({ status: 'approved', version: 1, dayRatePence: 14500, hirerFirmId: tidewayId });
     hireId = res.body.id;
-    const audit = await ctx.knex('audit_log').where({ entity: 'hire_period', entity_id: hireId, action: 'create' }).first();
+    const audit = await ctx
+      .knex('audit_log')
+      .where({ entity: 'hire_period', entity_id: hireId, action: 'create' })
+      .first();
     expect(audit).toBeTruthy();
   });
 
   it('changes the hire only from the version it was loaded at (409 otherwise) and audits the change', async () => {
-    await manager.patch(`/api/hire-periods/${hireId}`).set('X-CSRF-Token', manager.csrf).send({ version: 7, dayRatePence: 15000 }).expect(409);
-    const bad = await manager.patch(`/api/hire-periods/${hireId}`).set('X-CSRF-Token', manager.csrf).send({ version: 1, offHireAt: '2026-06-20T17:00:00Z' });
+    await manager
+      .patch(`/api/hire-periods/${hireId}`)
+      .set('X-CSRF-Token', manager.csrf)
+      .send({ version: 7, dayRatePence: 15000 })
+      .expect(409);
+    const bad = await manager
+      .patch(`/api/hire-periods/${hireId}`)
+      .set('X-CSRF-Token', manager.csrf)
+      .send({ version: 1, offHireAt: '2026-06-20T17:00:00Z' });
     expect(bad.status).toBe(400);
     expect(bad.body.errors).toEqual([{ field: 'offHireAt', message: 'must be after the on-hire' }]);
-    const ok = await manager.patch(`/api/hire-periods/${hireId}`).set('X-CSRF-Token', manager.csrf).send({ version: 1, status: 'approved' }).expect(200);
+    const ok = await manager
+      .patch(`/api/hire-periods/${hireId}`)
+      .set('X-CSRF-Token', manager.csrf)
+      .send({ version: 1, status: 'approved' })
+      .expect(200);
     expect(ok.body.version).toBe(2);
-    expect(await ctx.knex('audit_log').where({ entity: 'hire_period', entity_id: hireId, action: 'update' }).count('* as n').first()).toEqual({ n: '1' });
+    expect(
+      await ctx
+        .knex('audit_log')
+        .where({ entity: 'hire_period', entity_id: hireId, action: 'update' })
+        .count('* as n')
+        .first(),
+    ).toEqual({ n: '1' });
   });
 
   it('is for managers and owners only', async () => {
     const scheduler = await signIn(ctx, account('scheduler').email);
     await scheduler.post('/api/hire-periods').set('X-CSRF-Token', scheduler.csrf).send({}).expect(403);
-    await scheduler.patch(`/api/hire-periods/${hireId}`).set('X-CSRF-Token', scheduler.csrf).send({ version: 2 }).expect(403);
+    await scheduler
+      .patch(`/api/hire-periods/${hireId}`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 2 })
+      .expect(403);
   });
 });
 
@@ -122,7 +221,10 @@ describe('the hire report', () => {
     expect(p.idleCostPence).toBe(3 * 14500); // £435.00
     expect(p.totalCostPence).toBe(5 * 14500 + 6000 + 6000); // £725.00 + £60.00 + £60.00 = £845.00
     expect(p.bookingsOutsideHire).toBe(1); // Mon 29 Jun
-    expect(p.suggestions.map((s) => [s.kind, s.savesPence])).toEqual([['shorten_start', 14500], ['shorten_end', 2 * 14500]]);
+    expect(p.suggestions.map((s) => [s.kind, s.savesPence])).toEqual([
+      ['shorten_start', 14500],
+      ['shorten_end', 2 * 14500],
+    ]);
     expect(p.suggestions[1]!.label).toBe('Off-hire 2 days earlier (last paid day Wed 24 Jun): saves £290.00');
     // The board at the hire's week, on the digger's row, with the hire drawn (a single idle day showed an empty day).
     expect(p.link).toBe(`/board?view=week&date=2026-06-22&q=Test+mini+digger+%28hired%29&hire=${hireId}`);
@@ -130,21 +232,26 @@ describe('the hire report', () => {
     expect(report.idlePerWeek).toEqual([{ week: '2026-06-22', idleDays: 3, costPence: 43500 }]);
   });
 
-  it('gives the same idle figures as the board\'s own idle-hire warning', async () => {
+  it("gives the same idle figures as the board's own idle-hire warning", async () => {
     const board = (await manager.get(`/api/board?${qs(WEEK)}`).expect(200)).body;
     const { analyseBoard } = await import('../../shared/scheduler/index.ts');
     const { toEngineBoard } = await import('../../shared/board-data.ts');
-    const warning = analyseBoard(toEngineBoard(board), { now: board.now, skipCriticalPath: true }).violations
-      .find((v) => v.kind === 'idle_hire' && v.details?.hirePeriodId === hireId);
+    const warning = analyseBoard(toEngineBoard(board), { now: board.now, skipCriticalPath: true }).violations.find(
+      (v) => v.kind === 'idle_hire' && v.details?.hirePeriodId === hireId,
+    );
     expect(warning?.details).toMatchObject({ costPence: 43500, paidDays: 5 });
   });
 
   it('exports to CSV with the same figures', async () => {
     const res = await manager.get(`/api/reports/hire.csv?${qs(WEEK)}`).expect(200);
     expect(res.headers['content-type']).toBe('text/csv; charset=utf-8');
-    expect(res.headers['content-disposition']).toBe('attachment; filename="waterline-hire-2026-06-21-to-2026-06-28.csv"');
+    expect(res.headers['content-disposition']).toBe(
+      'attachment; filename="waterline-hire-2026-06-21-to-2026-06-28.csv"',
+    );
     const line = res.text.split('\r\n').find((l) => l.startsWith('Test mini digger (hired),'))!;
-    expect(line).toContain(',2026-06-22,2026-06-26,145.00,5,2,3,2026-06-22; 2026-06-25; 2026-06-26,435.00,60.00,60.00,845.00,1,');
+    expect(line).toContain(
+      ',2026-06-22,2026-06-26,145.00,5,2,3,2026-06-22; 2026-06-25; 2026-06-26,435.00,60.00,60.00,845.00,1,',
+    );
   });
 });
 
@@ -178,7 +285,11 @@ describe('the clash report', () => {
   it('lists the double-booked crew, the digger outside its hire and the shared electrician, soonest first', async () => {
     const report: ClashReport = (await manager.get(`/api/reports/clashes?${qs(JUNE)}`).expect(200)).body;
     const mine = report.rows.filter((r) => r.jobReferences.includes('TW-9001'));
-    expect(mine.map((r) => [r.date, r.kind])).toEqual([['2026-06-08', 'cross_firm'], ['2026-06-25', 'clash'], ['2026-06-29', 'hire']]);
+    expect(mine.map((r) => [r.date, r.kind])).toEqual([
+      ['2026-06-08', 'cross_firm'],
+      ['2026-06-25', 'clash'],
+      ['2026-06-29', 'hire'],
+    ]);
     const dates = report.rows.map((r) => r.date);
     expect(dates).toEqual([...dates].sort());
 
@@ -187,7 +298,9 @@ describe('the clash report', () => {
     expect([clash.from, clash.to]).toEqual([Date.parse('2026-06-25T09:00:00Z'), Date.parse('2026-06-25T11:00:00Z')]);
     expect(clash.stageName).toBe('Backfill'); // the later-booked of the two moves
     // Both sides: Crew Finch's row, no job filter, both bookings outlined.
-    const finchBookings = (await ctx.knex('bookings').where('resource_id', finch).orderBy('id').select('id')).map((b) => String(b.id));
+    const finchBookings = (await ctx.knex('bookings').where('resource_id', finch).orderBy('id').select('id')).map((b) =>
+      String(b.id),
+    );
     expect(clash.link).toBe(`/board?view=day&date=2026-06-25&q=Crew+Finch&highlight=${finchBookings.join('%2C')}`);
     expect(clash.message).toContain('Crew Finch');
     expect(clash.fixes.length).toBeGreaterThan(0);
@@ -195,7 +308,10 @@ describe('the clash report', () => {
       // The crews of kind test_crew are Tideway's own: no hire, so a fix costs nothing extra.
       expect(f.extraHirePence).toBe(0);
       expect(f.start).toBeGreaterThanOrEqual(Date.parse('2026-06-01T07:00:00Z')); // never before now
-      const overlapsOther = f.resourceId === finch && f.start < Date.parse('2026-06-25T11:00:00Z') && f.end > Date.parse('2026-06-25T07:00:00Z');
+      const overlapsOther =
+        f.resourceId === finch &&
+        f.start < Date.parse('2026-06-25T11:00:00Z') &&
+        f.end > Date.parse('2026-06-25T07:00:00Z');
       expect(overlapsOther).toBe(false);
     }
 
@@ -212,34 +328,57 @@ describe('the clash report', () => {
 
   it('exports to CSV, quoting fields with commas, quotes and newlines', async () => {
     const res = await manager.get(`/api/reports/clashes.csv?${qs(JUNE)}`).expect(200);
-    expect(res.headers['content-disposition']).toBe('attachment; filename="waterline-clashes-2026-05-31-to-2026-07-04.csv"');
-    expect(res.text.startsWith('\uFEFFDate,Problem,Resources,Jobs,Stage to move,What the check says,Cost as booked (£),Suggested fixes,Board link\r\n')).toBe(true);
-    expect(res.text).toContain('2026-06-29,Machine used outside its hire,Test mini digger (hired),TW-9001,Level the pit,');
+    expect(res.headers['content-disposition']).toBe(
+      'attachment; filename="waterline-clashes-2026-05-31-to-2026-07-04.csv"',
+    );
+    expect(
+      res.text.startsWith(
+        '\uFEFFDate,Problem,Resources,Jobs,Stage to move,What the check says,Cost as booked (£),Suggested fixes,Board link\r\n',
+      ),
+    ).toBe(true);
+    expect(res.text).toContain(
+      '2026-06-29,Machine used outside its hire,Test mini digger (hired),TW-9001,Level the pit,',
+    );
   });
 });
 
 describe('privacy between installer firms', () => {
   let moorview: Agent;
   beforeAll(async () => {
-    const [user] = await ctx.knex('users').insert({ email: 'nell.moor@moorview.example', name: 'Nell Moor' }).returning('id');
+    const [user] = await ctx
+      .knex('users')
+      .insert({ email: 'nell.moor@moorview.example', name: 'Nell Moor' })
+      .returning('id');
     await ctx.knex('memberships').insert({ user_id: user.id, firm_id: moorviewId, role: 'manager' });
     moorview = await signIn(ctx, 'nell.moor@moorview.example');
     // Tideway sends its request to Priya: only then is she busy for Moorview (a pencilled booking blocks nobody else).
-    await ctx.knex('bookings').where({ resource_id: priya, starts_at: new Date('2026-06-08T08:00:00Z') })
-      .whereIn('stage_id', ctx.knex('stages').select('id').where('name', 'Connect (test)')).update({ state: 'sent' });
+    await ctx
+      .knex('bookings')
+      .where({ resource_id: priya, starts_at: new Date('2026-06-08T08:00:00Z') })
+      .whereIn('stage_id', ctx.knex('stages').select('id').where('name', 'Connect (test)'))
+      .update({ state: 'sent' });
   });
 
   const paths = ['clashes', 'clashes.csv', 'hire', 'hire.csv', 'utilisation', 'utilisation.csv', 'risks.csv'];
-  const everything = async (agent: Agent) => (await Promise.all(paths.map(async (p) => {
-    const res = await agent.get(`/api/reports/${p}?${qs(JUNE)}`).expect(200);
-    return p.endsWith('.csv') ? res.text : JSON.stringify(res.body);
-  }))).join('\n');
-  const jobWords = async (firmId: string) => (await ctx.knex('jobs').where('firm_id', firmId).select('reference', 'customer_name', 'site_address', 'site_town'))
-    .flatMap((j) => [j.reference, j.customerName, j.siteAddress, j.siteTown] as string[]);
+  const everything = async (agent: Agent) =>
+    (
+      await Promise.all(
+        paths.map(async (p) => {
+          const res = await agent.get(`/api/reports/${p}?${qs(JUNE)}`).expect(200);
+          return p.endsWith('.csv') ? res.text : JSON.stringify(res.body);
+        }),
+      )
+    ).join('\n');
+  const jobWords = async (firmId: string) =>
+    (
+      await ctx.knex('jobs').where('firm_id', firmId).select('reference', 'customer_name', 'site_address', 'site_town')
+    ).flatMap((j) => [j.reference, j.customerName, j.siteAddress, j.siteTown] as string[]);
 
-  it('shows neither installer the other\'s job reference, customer or site in any report or CSV', async () => {
-    const tidewayWords = await jobWords(tidewayId), moorviewWords = await jobWords(moorviewId);
-    const tidewaySees = await everything(manager), moorviewSees = await everything(moorview);
+  it("shows neither installer the other's job reference, customer or site in any report or CSV", async () => {
+    const tidewayWords = await jobWords(tidewayId),
+      moorviewWords = await jobWords(moorviewId);
+    const tidewaySees = await everything(manager),
+      moorviewSees = await everything(moorview);
     // Harrogate is a town both firms work in: a shared town is no leak.
     for (const w of moorviewWords.filter((x) => !tidewayWords.includes(x))) expect(tidewaySees).not.toContain(w);
     for (const w of tidewayWords.filter((x) => !moorviewWords.includes(x))) expect(moorviewSees).not.toContain(w);
@@ -270,7 +409,9 @@ describe('who may read the reports', () => {
   it('lets the owner read them, and refuses a bad range naming the field', async () => {
     const owner = await signIn(ctx, account('owner').email);
     await owner.get(`/api/reports/clashes?${qs(WEEK)}`).expect(200);
-    const bad = await owner.get(`/api/reports/hire?from=${encodeURIComponent(WEEK.to)}&to=${encodeURIComponent(WEEK.from)}`).expect(400);
+    const bad = await owner
+      .get(`/api/reports/hire?from=${encodeURIComponent(WEEK.to)}&to=${encodeURIComponent(WEEK.from)}`)
+      .expect(400);
     expect(bad.body.errors).toEqual([{ field: 'query.to', message: 'must be after from' }]);
   });
 });

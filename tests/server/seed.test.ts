@@ -8,11 +8,16 @@ import { analyseBoard } from '../../shared/scheduler/index.ts';
 import { SEEDED_TABLES, account, idOf, startTestApp, TEST_TODAY, type TestContext } from '../helpers/server.ts';
 
 let ctx: TestContext;
-beforeAll(async () => { ctx = await startTestApp(); });
-afterAll(async () => { await ctx.close(); });
+beforeAll(async () => {
+  ctx = await startTestApp();
+});
+afterAll(async () => {
+  await ctx.close();
+});
 
 const DAY = 86_400_000;
-const count = async (table: string) => Number((await ctx.knex(table).count<{ count: string }[]>('* as count'))[0]!.count);
+const count = async (table: string) =>
+  Number((await ctx.knex(table).count<{ count: string }[]>('* as count'))[0]!.count);
 
 /**
  * What the office's board shows on `today`: the engine's problems (as the board keeps them: its
@@ -20,7 +25,12 @@ const count = async (table: string) => Number((await ctx.knex(table).count<{ cou
  * flagged overdue, and the jobs with stages waiting in the tray.
  */
 async function officeBoard(today: Date) {
-  const actor = { userId: await idOf(ctx.knex, 'users', { email: account('scheduler').email }), firmId: await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }), firmKind: 'installer' as const, role: 'scheduler' as const };
+  const actor = {
+    userId: await idOf(ctx.knex, 'users', { email: account('scheduler').email }),
+    firmId: await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }),
+    firmKind: 'installer' as const,
+    role: 'scheduler' as const,
+  };
   const now = today.getTime();
   const data = await loadBoard(ctx.knex, actor, { from: now - 90 * DAY, to: now + 180 * DAY, now });
   const analysis = analyseBoard(toEngineBoard(data), { now });
@@ -29,12 +39,26 @@ async function officeBoard(today: Date) {
   const resource = (id: string) => data.resources.find((r) => r.id === id)!;
   const booked = new Set(data.bookings.map((b) => b.stageId));
   return {
-    problems: ownViolations(data, analysis.violations).map((v) => ({
-      kind: v.kind, severity: v.severity, jobs: [...new Set(v.stageIds.map(jobOf))].sort(), resources: v.resourceIds.map((id) => resource(id).name).sort(),
-    })).sort((a, b) => a.kind.localeCompare(b.kind)),
-    late: analysis.criticalPaths.filter((c) => c.lateByMs > 0).map((c) => reference(c.jobId)).sort(),
-    overdue: data.bookings.filter((b) => b.overdue).map((b) => `${jobOf(b.stageId)}: ${resource(b.resourceId).firmName}`),
-    tray: [...new Set(data.stages.filter((s) => s.jobId !== ELSEWHERE_JOB_ID && !booked.has(s.id)).map((s) => reference(s.jobId)))].sort(),
+    problems: ownViolations(data, analysis.violations)
+      .map((v) => ({
+        kind: v.kind,
+        severity: v.severity,
+        jobs: [...new Set(v.stageIds.map(jobOf))].sort(),
+        resources: v.resourceIds.map((id) => resource(id).name).sort(),
+      }))
+      .sort((a, b) => a.kind.localeCompare(b.kind)),
+    late: analysis.criticalPaths
+      .filter((c) => c.lateByMs > 0)
+      .map((c) => reference(c.jobId))
+      .sort(),
+    overdue: data.bookings
+      .filter((b) => b.overdue)
+      .map((b) => `${jobOf(b.stageId)}: ${resource(b.resourceId).firmName}`),
+    tray: [
+      ...new Set(
+        data.stages.filter((s) => s.jobId !== ELSEWHERE_JOB_ID && !booked.has(s.id)).map((s) => reference(s.jobId)),
+      ),
+    ].sort(),
   };
 }
 
@@ -56,13 +80,17 @@ describe('the demo scenario', () => {
   it('is seeded once: a second run adds nothing', async () => {
     const before = { jobs: await count('jobs'), bookings: await count('bookings'), users: await count('users') };
     expect(await seedDemo(ctx.knex, { today: TEST_TODAY })).toEqual({ skipped: true, jobs: 0, bookings: 0 });
-    expect({ jobs: await count('jobs'), bookings: await count('bookings'), users: await count('users') }).toEqual(before);
+    expect({ jobs: await count('jobs'), bookings: await count('bookings'), users: await count('users') }).toEqual(
+      before,
+    );
   });
 
   it('has the firms, machines and jobs the product is shown with', async () => {
     const firms = await ctx.knex('firms').orderBy('name').select('name', 'kind');
     expect(firms.filter((f) => f.kind === 'installer')).toHaveLength(2);
-    expect(new Set(firms.map((f) => f.kind))).toEqual(new Set(['installer', 'groundworks', 'plant_hire', 'crane_hire', 'haulage', 'electrical']));
+    expect(new Set(firms.map((f) => f.kind))).toEqual(
+      new Set(['installer', 'groundworks', 'plant_hire', 'crane_hire', 'haulage', 'electrical']),
+    );
     const tideway = await ctx.knex('firms').where('name', 'Tideway Hot Tubs').first();
     const kinds = await ctx.knex('resources').where('firm_id', tideway.id).select('kind', 'ownership');
     const countOf = (kind: string) => kinds.filter((k) => k.kind === kind).length;
@@ -72,9 +100,19 @@ describe('the demo scenario', () => {
     expect(countOf('pallet_truck')).toBe(4);
     expect(countOf('rollers')).toBe(1);
     expect(kinds.some((k) => k.ownership === 'hired')).toBe(true);
-    expect(await ctx.knex('jobs').where('firm_id', tideway.id).count<{ count: string }[]>('* as count').then((r) => Number(r[0]!.count))).toBeGreaterThanOrEqual(20);
+    expect(
+      await ctx
+        .knex('jobs')
+        .where('firm_id', tideway.id)
+        .count<{ count: string }[]>('* as count')
+        .then((r) => Number(r[0]!.count)),
+    ).toBeGreaterThanOrEqual(20);
     // Moorview shares Brightspark Electrical with Tideway.
-    const shared = await ctx.knex('partnerships as p').join('firms as f', 'f.id', 'p.partner_firm_id').where('f.name', 'Brightspark Electrical').count<{ count: string }[]>('* as count');
+    const shared = await ctx
+      .knex('partnerships as p')
+      .join('firms as f', 'f.id', 'p.partner_firm_id')
+      .where('f.name', 'Brightspark Electrical')
+      .count<{ count: string }[]>('* as count');
     expect(Number(shared[0]!.count)).toBe(2);
   });
 
@@ -92,13 +130,22 @@ describe('the demo scenario', () => {
 
   it('is a plan the engine made: every job but the newest three booked, each booked stage with all it needs', async () => {
     expect((await officeBoard(TEST_TODAY)).tray).toEqual(['TW-2422', 'TW-2423', 'TW-2424']);
-    const stages = await ctx.knex('stages as s').join('jobs as j', 'j.id', 's.job_id').where('j.reference', 'like', 'TW-%')
-      .whereExists(ctx.knex('bookings').whereRaw('bookings.stage_id = s.id')).select('s.id', 's.name', 'j.reference', 's.requirements');
+    const stages = await ctx
+      .knex('stages as s')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .where('j.reference', 'like', 'TW-%')
+      .whereExists(ctx.knex('bookings').whereRaw('bookings.stage_id = s.id'))
+      .select('s.id', 's.name', 'j.reference', 's.requirements');
     expect(stages.length).toBeGreaterThan(180);
-    const bookings = await ctx.knex('bookings as b').join('resources as r', 'r.id', 'b.resource_id').select('b.stage_id', 'r.id as resource', 'r.kind');
+    const bookings = await ctx
+      .knex('bookings as b')
+      .join('resources as r', 'r.id', 'b.resource_id')
+      .select('b.stage_id', 'r.id as resource', 'r.kind');
     for (const s of stages) {
       for (const need of s.requirements as { kind: string; count: number }[]) {
-        const got = new Set(bookings.filter((b) => String(b.stageId) === String(s.id) && b.kind === need.kind).map((b) => b.resource));
+        const got = new Set(
+          bookings.filter((b) => String(b.stageId) === String(s.id) && b.kind === need.kind).map((b) => b.resource),
+        );
         expect(got.size, `${s.reference} ${s.name}: ${need.kind}`).toBe(need.count);
       }
     }
@@ -110,11 +157,19 @@ describe('the demo scenario', () => {
 
   it('gives each booking the state it has reached by today, with the requests and answers behind it', async () => {
     const today = TEST_TODAY.getTime();
-    const rows = await ctx.knex('bookings as b').join('resources as r', 'r.id', 'b.resource_id').join('firms as f', 'f.id', 'r.firm_id')
-      .join('stages as s', 's.id', 'b.stage_id').join('jobs as j', 'j.id', 's.job_id').where('j.reference', 'like', 'TW-%')
+    const rows = await ctx
+      .knex('bookings as b')
+      .join('resources as r', 'r.id', 'b.resource_id')
+      .join('firms as f', 'f.id', 'r.firm_id')
+      .join('stages as s', 's.id', 'b.stage_id')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .where('j.reference', 'like', 'TW-%')
       .select('b.id', 'b.state', 'b.version', 'b.starts_at', 'b.ends_at', 'f.name as firm');
     const requests = await ctx.knex('booking_requests').select('booking_id', 'booking_version', 'overdue_at');
-    const answers = await ctx.knex('booking_answers as a').leftJoin('users as u', 'u.id', 'a.answered_by').select('a.booking_id', 'a.booking_version', 'a.action', 'a.via', 'u.email');
+    const answers = await ctx
+      .knex('booking_answers as a')
+      .leftJoin('users as u', 'u.id', 'a.answered_by')
+      .select('a.booking_id', 'a.booking_version', 'a.action', 'a.via', 'u.email');
     const states = new Map<string, number>();
     for (const b of rows) {
       const [start, end] = [b.startsAt.getTime(), b.endsAt.getTime()];
@@ -130,23 +185,44 @@ describe('the demo scenario', () => {
         expect([request, answer], what).toEqual([[], []]);
       } else {
         // Asked (version 2, as the outbox writes it); a held or finished slot was confirmed by the partner's answer to that request.
-        expect(request.map((r) => r.bookingVersion), what).toEqual([2]);
-        expect(answer.map((a) => [a.bookingVersion, a.action]), what).toEqual(b.state === 'sent' ? [] : [[2, 'confirm']]);
-        if (b.firm === 'Brightspark Electrical' && b.state !== 'sent') expect(answer[0]).toMatchObject({ via: 'app', email: 'priya.nair@brightspark.example' });
+        expect(
+          request.map((r) => r.bookingVersion),
+          what,
+        ).toEqual([2]);
+        expect(
+          answer.map((a) => [a.bookingVersion, a.action]),
+          what,
+        ).toEqual(b.state === 'sent' ? [] : [[2, 'confirm']]);
+        if (b.firm === 'Brightspark Electrical' && b.state !== 'sent')
+          expect(answer[0]).toMatchObject({ via: 'app', email: 'priya.nair@brightspark.example' });
       }
     }
-    expect(Object.fromEntries(states)).toMatchObject({ done: expect.any(Number), confirmed: expect.any(Number), sent: expect.any(Number), pencilled: expect.any(Number) });
+    expect(Object.fromEntries(states)).toMatchObject({
+      done: expect.any(Number),
+      confirmed: expect.any(Number),
+      sent: expect.any(Number),
+      pencilled: expect.any(Number),
+    });
     expect(requests.filter((r) => r.overdueAt !== null)).toHaveLength(1);
   });
 
   // Days that once broke it or sit on edges: a Wednesday in December, the day after each clock
   // change, a bank holiday, a Saturday, and the first of the year.
-  it.each(['2026-12-02T09:00:00Z', '2027-03-29T08:00:00Z', '2026-10-26T09:00:00Z', '2026-12-25T10:00:00Z', '2027-05-15T10:00:00Z', '2027-01-01T09:00:00Z'])(
-    'can be seeded on %s, showing the same deliberate problems (npm start seeds it on the day it first runs)', async (day) => {
+  it.each([
+    '2026-12-02T09:00:00Z',
+    '2027-03-29T08:00:00Z',
+    '2026-10-26T09:00:00Z',
+    '2026-12-25T10:00:00Z',
+    '2027-05-15T10:00:00Z',
+    '2027-01-01T09:00:00Z',
+  ])(
+    'can be seeded on %s, showing the same deliberate problems (npm start seeds it on the day it first runs)',
+    async (day) => {
       await ctx.knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
       const result = await seedDemo(ctx.knex, { today: new Date(day) });
       expect(result.skipped).toBe(false);
       expect(result.bookings).toBeGreaterThan(200);
       expect(await officeBoard(new Date(day))).toEqual(DELIBERATE);
-    });
+    },
+  );
 });

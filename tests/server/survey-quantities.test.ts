@@ -18,36 +18,76 @@ beforeAll(async () => {
   const brook = units.find((u) => u.model === 'Brook 4');
   if (!brook) throw new Error('the demo catalogue has no Brook 4');
   const created = await write(scheduler, 'post', '/api/jobs', {
-    reference: 'TW-3200', customerName: 'Ines Calloway', siteAddress: '4 Heron Row', siteTown: 'Otley', sitePostcode: 'LS21 3AB',
-    installationType: 'slab', unitId: brook.id,
+    reference: 'TW-3200',
+    customerName: 'Ines Calloway',
+    siteAddress: '4 Heron Row',
+    siteTown: 'Otley',
+    sitePostcode: 'LS21 3AB',
+    installationType: 'slab',
+    unitId: brook.id,
   }).expect(201);
   job = String(created.body.id);
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 /** A clay garden up five steps, a 60 A fuse already carrying an EV charger and an electric shower, a TT earth, a slow tap. */
 const SURVEY = {
-  accessWidthMm: 1200, accessHeightMm: null, steps: 5, gates: 1, overheadObstructions: false, groundType: 'clay',
-  mainFuseAmps: 60, evChargerAmps: 32, electricShowerAmps: 45, heatPumpAmps: null, otherLargeLoadAmps: null,
-  earthingArrangement: 'TT', hoseFlowLitresPerMinute: 12.5,
+  accessWidthMm: 1200,
+  accessHeightMm: null,
+  steps: 5,
+  gates: 1,
+  overheadObstructions: false,
+  groundType: 'clay',
+  mainFuseAmps: 60,
+  evChargerAmps: 32,
+  electricShowerAmps: 45,
+  heatPumpAmps: null,
+  otherLargeLoadAmps: null,
+  earthingArrangement: 'TT',
+  hoseFlowLitresPerMinute: 12.5,
 };
 
 describe('the survey fields behind the quantities', () => {
   it('are saved and read back', async () => {
     const saved = await write(scheduler, 'put', `/api/jobs/${job}/survey`, { version: 0, survey: SURVEY }).expect(200);
     expect(saved.body).toMatchObject({
-      version: 1, steps: 5, groundType: 'clay', evChargerAmps: 32, electricShowerAmps: 45, heatPumpAmps: null, otherLargeLoadAmps: null,
-      otherLargeLoadNotes: null, earthingArrangement: 'TT', hoseFlowLitresPerMinute: 12.5,
+      version: 1,
+      steps: 5,
+      groundType: 'clay',
+      evChargerAmps: 32,
+      electricShowerAmps: 45,
+      heatPumpAmps: null,
+      otherLargeLoadAmps: null,
+      otherLargeLoadNotes: null,
+      earthingArrangement: 'TT',
+      hoseFlowLitresPerMinute: 12.5,
     });
     const read = await scheduler.get(`/api/jobs/${job}/survey`).expect(200);
-    expect(read.body).toMatchObject({ earthingArrangement: 'TT', hoseFlowLitresPerMinute: 12.5, electricShowerAmps: 45 });
+    expect(read.body).toMatchObject({
+      earthingArrangement: 'TT',
+      hoseFlowLitresPerMinute: 12.5,
+      electricShowerAmps: 45,
+    });
   });
 
   it('reach the figures through GET /api/jobs/:id/quantities', async () => {
     const q = (await scheduler.get(`/api/jobs/${job}/quantities`).expect(200)).body.quantities;
     // Supply: 16 A new + 32 A EV charger + 45 A shower = 93 A ≥ 60 A (93 ÷ 60 = 1.55); TT earth recorded for the electrician.
-    expect(q.supply.inputs.existingLoads).toEqual([{ name: 'EV charger', amps: 32 }, { name: 'electric shower', amps: 45 }]);
-    expect(q.supply.result).toMatchObject({ newAmps: 16, existingAmps: 77, totalAmps: 93, shareOfFuse: 1.55, verdict: 'exceeds', earthing: 'TT', electricianToLook: true });
+    expect(q.supply.inputs.existingLoads).toEqual([
+      { name: 'EV charger', amps: 32 },
+      { name: 'electric shower', amps: 45 },
+    ]);
+    expect(q.supply.result).toMatchObject({
+      newAmps: 16,
+      existingAmps: 77,
+      totalAmps: 93,
+      shareOfFuse: 1.55,
+      verdict: 'exceeds',
+      earthing: 'TT',
+      electricianToLook: true,
+    });
     expect(q.supply.result.reasons.join(' ')).toMatch(/earth electrode/);
     // Fill at the measured 12.5 L/min: 1250 ÷ 12.5 = 100 min → 105 min.
     expect(q.fill.inputs).toEqual({ litres: 1250, flowLitresPerMinute: 12.5, flowFrom: 'survey' });
@@ -71,9 +111,18 @@ describe('the survey fields behind the quantities', () => {
 
   it("follow the firm's own new figures once saved", async () => {
     const current = (await owner.get('/api/firm/settings').expect(200)).body.version;
-    await write(owner, 'put', '/api/firm/settings', { version: current, quantities: { groundRateFactors: { marsh: 1 } } }).expect(400);
-    await write(owner, 'put', '/api/firm/settings', { version: current, quantities: { blockLaying: 'sideways' } }).expect(400);
-    const saved = await write(owner, 'put', '/api/firm/settings', { version: current, quantities: { groundRateFactors: { clay: 0.5 }, heaterKw: 6 } }).expect(200);
+    await write(owner, 'put', '/api/firm/settings', {
+      version: current,
+      quantities: { groundRateFactors: { marsh: 1 } },
+    }).expect(400);
+    await write(owner, 'put', '/api/firm/settings', {
+      version: current,
+      quantities: { blockLaying: 'sideways' },
+    }).expect(400);
+    const saved = await write(owner, 'put', '/api/firm/settings', {
+      version: current,
+      quantities: { groundRateFactors: { clay: 0.5 }, heaterKw: 6 },
+    }).expect(200);
     expect(saved.body.quantities.groundRateFactors).toMatchObject({ clay: 0.5, loam: 1 });
     const q = (await scheduler.get(`/api/jobs/${job}/quantities`).expect(200)).body.quantities;
     // Clay × 0.5: 1.323 ÷ 0.75 = 1.764 h → 120 min. Heater 6 kW: 146 510 ÷ 6 = 24 418 s = 6.78 h.
@@ -83,22 +132,34 @@ describe('the survey fields behind the quantities', () => {
   });
 
   it('are refused with the field named when they make no sense', async () => {
-    const bad = { version: 1, survey: { ...SURVEY, earthingArrangement: 'PME', evChargerAmps: 0, hoseFlowLitresPerMinute: -2 } };
+    const bad = {
+      version: 1,
+      survey: { ...SURVEY, earthingArrangement: 'PME', evChargerAmps: 0, hoseFlowLitresPerMinute: -2 },
+    };
     const res = await write(scheduler, 'put', `/api/jobs/${job}/survey`, bad).expect(400);
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
-    const fields = Object.fromEntries((res.body.errors as { field: string; message: string }[]).map((e) => [e.field, e.message]));
+    const fields = Object.fromEntries(
+      (res.body.errors as { field: string; message: string }[]).map((e) => [e.field, e.message]),
+    );
     expect(fields).toMatchObject({
-      'survey.earthingArrangement': 'pick an earthing arrangement', 'survey.evChargerAmps': 'must be more than 0', 'survey.hoseFlowLitresPerMinute': 'must be more than 0',
+      'survey.earthingArrangement': 'pick an earthing arrangement',
+      'survey.evChargerAmps': 'must be more than 0',
+      'survey.hoseFlowLitresPerMinute': 'must be more than 0',
     });
   });
 });
 
-describe("planning a dug job: the spoil stage", () => {
+describe('planning a dug job: the spoil stage', () => {
   it('books the skips or grab lorry after the excavation, with the count the quantities give in its note', async () => {
     const units = (await scheduler.get('/api/units').expect(200)).body.items as { id: string; model: string }[];
     const created = await write(scheduler, 'post', '/api/jobs', {
-      reference: 'TW-3201', customerName: 'Ansel Whitby', siteAddress: '9 Mill Fold', siteTown: 'Otley', sitePostcode: 'LS21 3AD',
-      installationType: 'in_ground', unitId: units.find((u) => u.model === 'Brook 4')!.id,
+      reference: 'TW-3201',
+      customerName: 'Ansel Whitby',
+      siteAddress: '9 Mill Fold',
+      siteTown: 'Otley',
+      sitePostcode: 'LS21 3AD',
+      installationType: 'in_ground',
+      unitId: units.find((u) => u.model === 'Brook 4')!.id,
     }).expect(201);
     const dug = String(created.body.id);
     await write(scheduler, 'put', `/api/jobs/${dug}/survey`, { version: 0, survey: SURVEY }).expect(200);
@@ -109,16 +170,25 @@ describe("planning a dug job: the spoil stage", () => {
     expect(stages.map((s) => s.kind).slice(0, 4)).toEqual(['survey', 'excavation', 'spoil_away', 'base_pour']);
     const away = stages.find((s) => s.kind === 'spoil_away');
     expect(away).toMatchObject({
-      name: 'Spoil away (skips or grab lorry)', requirements: [{ kind: 'spoil_removal', count: 1 }],
+      name: 'Spoil away (skips or grab lorry)',
+      requirements: [{ kind: 'spoil_removal', count: 1 }],
       notice: { workingDays: 2, countedFrom: 'now', resourceKind: 'spoil_removal' },
-      notes: '6 skips by weight or 2 grab-lorry loads by weight (17.308 m³ loose, 31.154 t of wet soil at 1.8 t/m³: common practice, no source).',
+      notes:
+        '6 skips by weight or 2 grab-lorry loads by weight (17.308 m³ loose, 31.154 t of wet soil at 1.8 t/m³: common practice, no source).',
     });
     // After the dig is done, the same working day allowed.
     const dig = stages.find((s) => s.kind === 'excavation');
-    const into = await ctx.knex('dependencies').where('to_stage_id', away.id).select('from_stage_id', 'type', 'lag_amount', 'lag_unit', 'waits_for_cure');
-    expect(into).toEqual([{ fromStageId: dig.id, type: 'FS', lagAmount: 0, lagUnit: 'working_hours', waitsForCure: false }]);
+    const into = await ctx
+      .knex('dependencies')
+      .where('to_stage_id', away.id)
+      .select('from_stage_id', 'type', 'lag_amount', 'lag_unit', 'waits_for_cure');
+    expect(into).toEqual([
+      { fromStageId: dig.id, type: 'FS', lagAmount: 0, lagUnit: 'working_hours', waitsForCure: false },
+    ]);
     // The job page shows the note and the spoil cautions.
-    const page = (await scheduler.get(`/api/jobs/${dug}/stages`).expect(200)).body.items.find((s: { kind: string }) => s.kind === 'spoil_away');
+    const page = (await scheduler.get(`/api/jobs/${dug}/stages`).expect(200)).body.items.find(
+      (s: { kind: string }) => s.kind === 'spoil_away',
+    );
     expect(page.notes).toBe(away.notes);
     expect(page.cautions.join(' ')).toMatch(/overload a skip/);
   });

@@ -20,34 +20,65 @@ beforeAll(async () => {
   await backToEnquiry(ctx.knex, 'TW-2421');
   enquiry = await idOf(ctx.knex, 'jobs', { reference: 'TW-2421' });
 });
-afterAll(async () => { await ctx.close(); });
+afterAll(async () => {
+  await ctx.close();
+});
 
 const write = (agent: Agent, method: 'put' | 'post' | 'patch', path: string, body?: object) =>
-  agent[method](path).set('X-CSRF-Token', agent.csrf).send(body ?? {});
+  agent[method](path)
+    .set('X-CSRF-Token', agent.csrf)
+    .send(body ?? {});
 
 const SURVEY = {
-  accessWidthMm: 1200, accessHeightMm: null, steps: 2, gates: 1, overheadObstructions: false, groundType: 'clay',
-  buriedServicesNotes: 'Gas pipe along the side path (utility plan)', craneStandingPosition: 'Road outside no. 14',
-  craneDistanceToSetDownM: 11.5, consumerUnitDistanceM: 14, mainFuseAmps: 60, drainage: 'Gully by the back door',
+  accessWidthMm: 1200,
+  accessHeightMm: null,
+  steps: 2,
+  gates: 1,
+  overheadObstructions: false,
+  groundType: 'clay',
+  buriedServicesNotes: 'Gas pipe along the side path (utility plan)',
+  craneStandingPosition: 'Road outside no. 14',
+  craneDistanceToSetDownM: 11.5,
+  consumerUnitDistanceM: 14,
+  mainFuseAmps: 60,
+  drainage: 'Gully by the back door',
 };
 
-const fieldsOf = (body: { errors: { field: string; message: string }[] }) => Object.fromEntries(body.errors.map((e) => [e.field, e.message]));
+const fieldsOf = (body: { errors: { field: string; message: string }[] }) =>
+  Object.fromEntries(body.errors.map((e) => [e.field, e.message]));
 
 describe('the site survey', () => {
   it('is recorded once, moves the enquiry to surveyed, and refuses a stale save (409)', async () => {
     await scheduler.get(`/api/jobs/${enquiry}/survey`).expect(404);
-    const first = await write(scheduler, 'put', `/api/jobs/${enquiry}/survey`, { version: 0, survey: SURVEY }).expect(200);
-    expect(first.body).toMatchObject({ version: 1, accessWidthMm: 1200, mainFuseAmps: 60, craneDistanceToSetDownM: 11.5, surveyedBy: { name: 'Sam Okafor' } });
+    const first = await write(scheduler, 'put', `/api/jobs/${enquiry}/survey`, { version: 0, survey: SURVEY }).expect(
+      200,
+    );
+    expect(first.body).toMatchObject({
+      version: 1,
+      accessWidthMm: 1200,
+      mainFuseAmps: 60,
+      craneDistanceToSetDownM: 11.5,
+      surveyedBy: { name: 'Sam Okafor' },
+    });
     expect((await ctx.knex('jobs').where('id', enquiry).first()).status).toBe('surveyed');
 
-    const again = await write(scheduler, 'put', `/api/jobs/${enquiry}/survey`, { version: 1, survey: { ...SURVEY, steps: 3 } }).expect(200);
+    const again = await write(scheduler, 'put', `/api/jobs/${enquiry}/survey`, {
+      version: 1,
+      survey: { ...SURVEY, steps: 3 },
+    }).expect(200);
     expect(again.body.version).toBe(2);
-    const stale = await write(owner, 'put', `/api/jobs/${enquiry}/survey`, { version: 1, survey: { ...SURVEY, steps: 9 } }).expect(409);
+    const stale = await write(owner, 'put', `/api/jobs/${enquiry}/survey`, {
+      version: 1,
+      survey: { ...SURVEY, steps: 9 },
+    }).expect(409);
     expect(stale.body).toMatchObject({ code: 'stale-version', current: { version: 2, steps: 3 } });
   });
 
   it('is checked by the same schema on the form and the server', async () => {
-    const bad = { version: 2, survey: { ...SURVEY, accessWidthMm: -5, overheadObstructions: true, groundType: 'marsh' } };
+    const bad = {
+      version: 2,
+      survey: { ...SURVEY, accessWidthMm: -5, overheadObstructions: true, groundType: 'marsh' },
+    };
     const unit = PutSurvey.safeParse(bad);
     expect(unit.success).toBe(false);
     const local = Object.fromEntries(unit.error!.issues.map((i) => [i.path.join('.'), i.message]));
@@ -79,9 +110,18 @@ describe("the job's quantities", () => {
   });
 
   it("use the owner's own figures once saved", async () => {
-    await write(scheduler, 'put', '/api/firm/settings', { version: 0, quantities: { perimeterGapMm: 200 } }).expect(403);
-    const saved = await write(owner, 'put', '/api/firm/settings', { version: 0, quantities: { perimeterGapMm: 200 } }).expect(200);
-    expect(saved.body).toMatchObject({ version: 1, overrides: { perimeterGapMm: 200 }, quantities: { perimeterGapMm: 200, baseThicknessMm: 150 } });
+    await write(scheduler, 'put', '/api/firm/settings', { version: 0, quantities: { perimeterGapMm: 200 } }).expect(
+      403,
+    );
+    const saved = await write(owner, 'put', '/api/firm/settings', {
+      version: 0,
+      quantities: { perimeterGapMm: 200 },
+    }).expect(200);
+    expect(saved.body).toMatchObject({
+      version: 1,
+      overrides: { perimeterGapMm: 200 },
+      quantities: { perimeterGapMm: 200, baseThicknessMm: 150 },
+    });
     // (2000 + 2 × 200)² = 2.4 × 2.4 = 5.76 m².
     const res = await scheduler.get(`/api/jobs/${enquiry}/quantities`).expect(200);
     expect(res.body.quantities.pit.result.areaM2).toBe(5.76);
@@ -99,22 +139,51 @@ describe('planning a job from its template', () => {
     const res = await write(scheduler, 'post', `/api/jobs/${enquiry}/plan`).expect(201);
     expect(res.body.crane).toEqual({ needed: false, reason: 'The unit goes along the route on its side on a dolly.' });
     const stages = await stagesOf(enquiry);
-    expect(stages.map((s) => s.kind)).toEqual(['survey', 'base_pour', 'electrical_first_fix', 'delivery', 'placement', 'fill', 'electrical_connect', 'commission', 'handover']);
+    expect(stages.map((s) => s.kind)).toEqual([
+      'survey',
+      'base_pour',
+      'electrical_first_fix',
+      'delivery',
+      'placement',
+      'fill',
+      'electrical_connect',
+      'commission',
+      'handover',
+    ]);
     expect(stages.find((s) => s.kind === 'base_pour').cure).toEqual({ targetFraction: 0.7 });
-    expect(stages.find((s) => s.kind === 'placement').requirements).toEqual([{ kind: 'install_crew', count: 1 }, { kind: 'pallet_truck', count: 2 }]);
-    const deps = await ctx.knex('dependencies as d').join('stages as a', 'a.id', 'd.from_stage_id').join('stages as b', 'b.id', 'd.to_stage_id')
-      .where('a.job_id', enquiry).select('a.kind as from', 'b.kind as to', 'd.lag_amount', 'd.lag_unit');
+    expect(stages.find((s) => s.kind === 'placement').requirements).toEqual([
+      { kind: 'install_crew', count: 1 },
+      { kind: 'pallet_truck', count: 2 },
+    ]);
+    const deps = await ctx
+      .knex('dependencies as d')
+      .join('stages as a', 'a.id', 'd.from_stage_id')
+      .join('stages as b', 'b.id', 'd.to_stage_id')
+      .where('a.job_id', enquiry)
+      .select('a.kind as from', 'b.kind as to', 'd.lag_amount', 'd.lag_unit');
     expect(deps).toContainEqual({ from: 'base_pour', to: 'placement', lagAmount: 0, lagUnit: 'working_hours' });
     expect(deps).toContainEqual({ from: 'commission', to: 'handover', lagAmount: 0, lagUnit: 'working_hours' });
     expect(deps).toHaveLength(res.body.links.length);
-    expect(await ctx.knex('bookings').whereIn('stage_id', stages.map((s) => s.id)).count('* as n').first()).toEqual({ n: '0' });
+    expect(
+      await ctx
+        .knex('bookings')
+        .whereIn(
+          'stage_id',
+          stages.map((s) => s.id),
+        )
+        .count('* as n')
+        .first(),
+    ).toEqual({ n: '0' });
     expect((await ctx.knex('jobs').where('id', enquiry).first()).status).toBe('planned');
   });
 
   it('plans a crane lift once the survey finds the route too narrow, replacing the unbooked plan', async () => {
     const current = (await scheduler.get(`/api/jobs/${enquiry}/survey`).expect(200)).body.version;
     // On its side the Brook 4 needs 850 + 100 = 950 mm: an 800 mm gate is too narrow.
-    await write(scheduler, 'put', `/api/jobs/${enquiry}/survey`, { version: current, survey: { ...SURVEY, accessWidthMm: 800 } }).expect(200);
+    await write(scheduler, 'put', `/api/jobs/${enquiry}/survey`, {
+      version: current,
+      survey: { ...SURVEY, accessWidthMm: 800 },
+    }).expect(200);
     const res = await write(scheduler, 'post', `/api/jobs/${enquiry}/plan`).expect(201);
     expect(res.body.crane.needed).toBe(true);
     const kinds = (await stagesOf(enquiry)).map((s) => s.kind);
@@ -137,12 +206,25 @@ describe('planning a job from its template', () => {
     const list = await scheduler.get('/api/templates').expect(200);
     const slab = list.body.items.find((t: { installationType: string }) => t.installationType === 'slab');
     expect(slab).toMatchObject({ isDefault: true, version: 0 });
-    const edited = { version: 0, name: slab.name, links: slab.links, stages: slab.stages.map((s: { kind: string }) => (s.kind === 'handover' ? { ...s, duration: { kind: 'fixed', minutes: 90 } } : s)) };
+    const edited = {
+      version: 0,
+      name: slab.name,
+      links: slab.links,
+      stages: slab.stages.map((s: { kind: string }) =>
+        s.kind === 'handover' ? { ...s, duration: { kind: 'fixed', minutes: 90 } } : s,
+      ),
+    };
     const saved = await write(scheduler, 'put', '/api/templates/slab', edited).expect(200);
     expect(saved.body).toMatchObject({ isDefault: false, version: 1 });
     await write(owner, 'put', '/api/templates/slab', edited).expect(409);
-    const looped = { ...edited, version: 1, links: [...edited.links, { from: 'handover', to: 'survey', type: 'FS', lagAmount: 0, lagUnit: 'working_hours' }] };
-    expect((await write(scheduler, 'put', '/api/templates/slab', looped).expect(400)).body.errors[0].message).toBe('links form a loop');
+    const looped = {
+      ...edited,
+      version: 1,
+      links: [...edited.links, { from: 'handover', to: 'survey', type: 'FS', lagAmount: 0, lagUnit: 'working_hours' }],
+    };
+    expect((await write(scheduler, 'put', '/api/templates/slab', looped).expect(400)).body.errors[0].message).toBe(
+      'links form a loop',
+    );
     await write(scheduler, 'post', `/api/jobs/${enquiry}/plan`).expect(201);
     expect((await stagesOf(enquiry)).find((s) => s.kind === 'handover').durationMinutes).toBe(90);
   });
@@ -151,25 +233,51 @@ describe('planning a job from its template', () => {
 describe('editing a job', () => {
   it('saves with the next version and refuses a stale one', async () => {
     const job = await ctx.knex('jobs').where('id', enquiry).first();
-    const res = await write(scheduler, 'patch', `/api/jobs/${enquiry}`, { version: job.version, accessNotes: 'Gate key under the pot' }).expect(200);
-    expect(res.body).toMatchObject({ version: job.version + 1, accessNotes: 'Gate key under the pot', reference: 'TW-2421' });
-    expect((await write(scheduler, 'patch', `/api/jobs/${enquiry}`, { version: job.version, accessNotes: 'x' }).expect(409)).body.code).toBe('stale-version');
+    const res = await write(scheduler, 'patch', `/api/jobs/${enquiry}`, {
+      version: job.version,
+      accessNotes: 'Gate key under the pot',
+    }).expect(200);
+    expect(res.body).toMatchObject({
+      version: job.version + 1,
+      accessNotes: 'Gate key under the pot',
+      reference: 'TW-2421',
+    });
+    expect(
+      (await write(scheduler, 'patch', `/api/jobs/${enquiry}`, { version: job.version, accessNotes: 'x' }).expect(409))
+        .body.code,
+    ).toBe('stale-version');
   });
 
   it('is checked by the same schema on the form and the server', async () => {
-    const bad = { reference: 'T-1', customerName: 'A Person', siteAddress: '1 Row', siteTown: 'Leeds', sitePostcode: 'NOT A CODE', installationType: 'slab', promisedFrom: '2026-07-10', promisedTo: '2026-07-01' };
+    const bad = {
+      reference: 'T-1',
+      customerName: 'A Person',
+      siteAddress: '1 Row',
+      siteTown: 'Leeds',
+      sitePostcode: 'NOT A CODE',
+      installationType: 'slab',
+      promisedFrom: '2026-07-10',
+      promisedTo: '2026-07-01',
+    };
     const local = CreateJob.safeParse(bad);
     expect(local.success).toBe(false);
     const messages = Object.fromEntries(local.error!.issues.map((i) => [i.path.join('.'), i.message]));
-    expect(messages).toEqual({ sitePostcode: 'must be a UK postcode such as LS6 2AB', promisedTo: 'must be on or after the start of the promised window' });
+    expect(messages).toEqual({
+      sitePostcode: 'must be a UK postcode such as LS6 2AB',
+      promisedTo: 'must be on or after the start of the promised window',
+    });
     const created = await write(scheduler, 'post', '/api/jobs', bad).expect(400);
     expect(fieldsOf(created.body)).toEqual(messages);
 
     // The window rule runs once the fields are sound, on create and on edit alike.
     const window = { version: 1, promisedFrom: '2026-07-10', promisedTo: '2026-07-01' };
-    expect(UpdateJob.safeParse(window).error!.issues[0]!.message).toBe('must be on or after the start of the promised window');
+    expect(UpdateJob.safeParse(window).error!.issues[0]!.message).toBe(
+      'must be on or after the start of the promised window',
+    );
     const job = await ctx.knex('jobs').where('id', enquiry).first();
-    const edited = await write(scheduler, 'patch', `/api/jobs/${enquiry}`, { ...window, version: job.version }).expect(400);
+    const edited = await write(scheduler, 'patch', `/api/jobs/${enquiry}`, { ...window, version: job.version }).expect(
+      400,
+    );
     expect(fieldsOf(edited.body)).toEqual({ promisedTo: 'must be on or after the start of the promised window' });
   });
 });

@@ -15,16 +15,26 @@ beforeAll(async () => {
   scheduler = await signIn(ctx, account('scheduler').email);
   jobId = await idOf(ctx.knex, 'jobs', { reference: 'TW-2405' });
   // A 1280 × 960 photo made here: a thumbnail of it is 320 × 240 (960 × 320 ÷ 1280 = 240).
-  jpeg = await sharp({ create: { width: 1280, height: 960, channels: 3, background: { r: 40, g: 120, b: 160 } } }).jpeg().toBuffer();
+  jpeg = await sharp({ create: { width: 1280, height: 960, channels: 3, background: { r: 40, g: 120, b: 160 } } })
+    .jpeg()
+    .toBuffer();
 });
-afterAll(async () => { await ctx.close(); });
-afterEach(() => { vi.restoreAllMocks(); });
+afterAll(async () => {
+  await ctx.close();
+});
+afterEach(() => {
+  vi.restoreAllMocks();
+});
 
 const fileRows = async () => Number((await ctx.knex('job_files').count<{ count: string }[]>('* as count'))[0]!.count);
 const upload = (buffer: Buffer, filename: string, as: Agent = scheduler) =>
   as.post(`/api/jobs/${jobId}/files`).set('X-CSRF-Token', as.csrf).attach('file', buffer, { filename });
 
-function expectProblem(res: { status: number; headers: Record<string, string>; body: Record<string, unknown> }, status: number, code: string) {
+function expectProblem(
+  res: { status: number; headers: Record<string, string>; body: Record<string, unknown> },
+  status: number,
+  code: string,
+) {
   expect(res.status).toBe(status);
   expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
   expect(res.body).toMatchObject({ status, type: `${ctx.config.PUBLIC_URL}/problems/${code}` });
@@ -33,7 +43,12 @@ function expectProblem(res: { status: number; headers: Record<string, string>; b
 describe('uploading a photo', () => {
   it('keeps the original and a 320 px thumbnail behind private links that expire in ten minutes', async () => {
     const res = await upload(jpeg, 'pit from the patio.jpg').expect(201);
-    expect(res.body).toMatchObject({ name: 'pit from the patio.jpg', contentType: 'image/jpeg', sizeBytes: jpeg.length, isPhoto: true });
+    expect(res.body).toMatchObject({
+      name: 'pit from the patio.jpg',
+      contentType: 'image/jpeg',
+      sizeBytes: jpeg.length,
+      isPhoto: true,
+    });
     expect(res.body.url).toContain('X-Amz-Expires=600');
     const original = await fetch(res.body.url);
     expect(original.status).toBe(200);
@@ -75,7 +90,10 @@ describe('refusing a file', () => {
   it('with a name that climbs out of its folder', async () => {
     const before = await fileRows();
     // `filepath` makes the test client send the name as given (by default it keeps only the last part).
-    const res = await scheduler.post(`/api/jobs/${jobId}/files`).set('X-CSRF-Token', scheduler.csrf).attach('file', jpeg, { filepath: '../../etc/passwd.jpg' } as unknown as { filename: string });
+    const res = await scheduler
+      .post(`/api/jobs/${jobId}/files`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .attach('file', jpeg, { filepath: '../../etc/passwd.jpg' } as unknown as { filename: string });
     expectProblem(res, 400, 'bad-file-name');
     expect(res.body.detail).toMatch(/folder path/);
     expect(await fileRows()).toBe(before);
@@ -86,9 +104,16 @@ describe('refusing a file', () => {
   });
 
   it('when none is sent, or two are', async () => {
-    expectProblem(await scheduler.post(`/api/jobs/${jobId}/files`).set('X-CSRF-Token', scheduler.csrf).field('note', 'x'), 400, 'bad-request');
-    const two = await scheduler.post(`/api/jobs/${jobId}/files`).set('X-CSRF-Token', scheduler.csrf)
-      .attach('file', jpeg, { filename: 'a.jpg' }).attach('file', jpeg, { filename: 'b.jpg' });
+    expectProblem(
+      await scheduler.post(`/api/jobs/${jobId}/files`).set('X-CSRF-Token', scheduler.csrf).field('note', 'x'),
+      400,
+      'bad-request',
+    );
+    const two = await scheduler
+      .post(`/api/jobs/${jobId}/files`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .attach('file', jpeg, { filename: 'a.jpg' })
+      .attach('file', jpeg, { filename: 'b.jpg' });
     expectProblem(two, 400, 'bad-request');
   });
 
@@ -109,7 +134,12 @@ describe('nothing half-stored', () => {
   it('removes the original again when the thumbnail cannot be stored', async () => {
     const realPut = S3ObjectStore.prototype.put;
     let calls = 0;
-    const put = vi.spyOn(S3ObjectStore.prototype, 'put').mockImplementation(async function (this: S3ObjectStore, key: string, body: Buffer, type: string) {
+    const put = vi.spyOn(S3ObjectStore.prototype, 'put').mockImplementation(async function (
+      this: S3ObjectStore,
+      key: string,
+      body: Buffer,
+      type: string,
+    ) {
       calls += 1;
       if (calls === 2) throw new Error('storage went away');
       return realPut.call(this, key, body, type);
@@ -128,7 +158,9 @@ describe('nothing half-stored', () => {
     // A trigger that fails the insert, as a database fault would after the objects are stored.
     await ctx.knex.raw(`CREATE FUNCTION job_files_test_refusal() RETURNS trigger AS $$
       BEGIN IF NEW.name = 'refused.jpg' THEN RAISE EXCEPTION 'refused for the test'; END IF; RETURN NEW; END $$ LANGUAGE plpgsql`);
-    await ctx.knex.raw('CREATE TRIGGER job_files_test_refusal BEFORE INSERT ON job_files FOR EACH ROW EXECUTE FUNCTION job_files_test_refusal()');
+    await ctx.knex.raw(
+      'CREATE TRIGGER job_files_test_refusal BEFORE INSERT ON job_files FOR EACH ROW EXECUTE FUNCTION job_files_test_refusal()',
+    );
     const del = vi.spyOn(S3ObjectStore.prototype, 'delete');
     try {
       const before = await fileRows();
@@ -152,18 +184,26 @@ describe('deleting a file', () => {
     await scheduler.delete(`/api/files/${res.body.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
     expect(await ctx.knex('job_files').where('id', res.body.id).first()).toBeUndefined();
     expect((await fetch(res.body.url)).status).toBe(404);
-    const audit = await ctx.knex('audit_log').where({ entity: 'job_file', entity_id: res.body.id }).orderBy('id').pluck('action');
+    const audit = await ctx
+      .knex('audit_log')
+      .where({ entity: 'job_file', entity_id: res.body.id })
+      .orderBy('id')
+      .pluck('action');
     expect(audit).toEqual(['create', 'delete']);
   });
 
   it('keeps the row when storage refuses the delete', async () => {
     const res = await upload(jpeg, 'kept.jpg').expect(201);
     vi.spyOn(S3ObjectStore.prototype, 'delete').mockRejectedValueOnce(new Error('storage is down'));
-    expectProblem(await scheduler.delete(`/api/files/${res.body.id}`).set('X-CSRF-Token', scheduler.csrf), 503, 'storage-unavailable');
+    expectProblem(
+      await scheduler.delete(`/api/files/${res.body.id}`).set('X-CSRF-Token', scheduler.csrf),
+      503,
+      'storage-unavailable',
+    );
     expect(await ctx.knex('job_files').where('id', res.body.id).first()).toBeDefined();
   });
 
-  it("is not possible from another firm (404, as if it did not exist)", async () => {
+  it('is not possible from another firm (404, as if it did not exist)', async () => {
     const res = await upload(jpeg, 'private.jpg').expect(201);
     const other = await signIn(ctx, account('scheduler', 'Moorview Spas').email);
     await other.get(`/api/jobs/${jobId}/files`).expect(404);

@@ -31,8 +31,14 @@ describe('the bookings table', () => {
       if (file === WRITER) continue;
       // Statement by statement: a query on bookings (query builder or SQL) that writes.
       for (const statement of readFileSync(path.join(root, file), 'utf8').split(/;\s*\n/)) {
-        const onBookings = /\(\s*['"]bookings(?: as \w+)?['"]\s*\)|\bBooking\.query\(|\b(?:UPDATE|INTO|FROM)\s+bookings\b/i.test(statement);
-        const writes = /\.(?:insert|update|patch|patchAndFetchById|updateAndFetchById|del|delete|deleteById|upsertGraph|insertGraph)\(|\b(?:UPDATE\s+bookings|INSERT\s+INTO\s+bookings|DELETE\s+FROM\s+bookings)\b/i.test(statement);
+        const onBookings =
+          /\(\s*['"]bookings(?: as \w+)?['"]\s*\)|\bBooking\.query\(|\b(?:UPDATE|INTO|FROM)\s+bookings\b/i.test(
+            statement,
+          );
+        const writes =
+          /\.(?:insert|update|patch|patchAndFetchById|updateAndFetchById|del|delete|deleteById|upsertGraph|insertGraph)\(|\b(?:UPDATE\s+bookings|INSERT\s+INTO\s+bookings|DELETE\s+FROM\s+bookings)\b/i.test(
+            statement,
+          );
         if (onBookings && writes) offenders.push(`${file}: ${statement.trim().slice(0, 120)}`);
       }
     }
@@ -48,11 +54,18 @@ describe('every route that changes bookings', () => {
   beforeAll(async () => {
     ctx = await startTestApp();
     for (const role of ROLES) {
-      agents.set(role, await signIn(ctx, (role === 'partner' ? account('partner', 'Brightspark Electrical') : account(role)).email));
+      agents.set(
+        role,
+        await signIn(ctx, (role === 'partner' ? account('partner', 'Brightspark Electrical') : account(role)).email),
+      );
     }
   });
-  afterAll(async () => { await ctx.close(); });
-  afterEach(() => { run.mockClear(); });
+  afterAll(async () => {
+    await ctx.close();
+  });
+  afterEach(() => {
+    run.mockClear();
+  });
 
   // An id no row has: the write path must still be entered (and answer 404 from inside it).
   const none = '999999';
@@ -71,11 +84,16 @@ describe('every route that changes bookings', () => {
     'put /api/partner/slots/:id/person': { resourceId: none },
     'post /answer/:token': {},
   };
-  const changesBookings = (method: string, p: string) => method !== 'get'
-    && (/^\/api\/(bookings|stages)\b/.test(p) || /^\/api\/partner\/slots\/:id\/(answer|person)$/.test(p) || p === '/answer/:token');
+  const changesBookings = (method: string, p: string) =>
+    method !== 'get' &&
+    (/^\/api\/(bookings|stages)\b/.test(p) ||
+      /^\/api\/partner\/slots\/:id\/(answer|person)$/.test(p) ||
+      p === '/answer/:token');
 
   it('is known to this test (a new one must be added above, with a body)', () => {
-    const routes = ctx.waterline.routes.routes.filter((r) => changesBookings(r.method, r.path)).map((r) => `${r.method} ${r.path}`);
+    const routes = ctx.waterline.routes.routes
+      .filter((r) => changesBookings(r.method, r.path))
+      .map((r) => `${r.method} ${r.path}`);
     expect(routes.length).toBeGreaterThanOrEqual(13);
     expect(routes.filter((r) => !(r in bodies))).toEqual([]);
   });
@@ -87,10 +105,17 @@ describe('every route that changes bookings', () => {
       run.mockClear();
       let res;
       if (route.path === '/answer/:token') {
-        const token = await signer.signAnswer({ bookingId: none, version: 1, action: 'confirm', expiresAt: new Date(Date.now() + 86_400_000) });
+        const token = await signer.signAnswer({
+          bookingId: none,
+          version: 1,
+          action: 'confirm',
+          expiresAt: new Date(Date.now() + 86_400_000),
+        });
         res = await request(ctx.waterline.app).post(`/answer/${token}`).type('form').send({});
       } else {
-        const role = ROLES.find((r) => route.access === 'public' || route.access === 'signed-in' || may(r, route.access as never))!;
+        const role = ROLES.find(
+          (r) => route.access === 'public' || route.access === 'signed-in' || may(r, route.access as never),
+        )!;
         const agent = agents.get(role)!;
         const url = route.path.replace(':id', none) + (route.method === 'delete' ? '?version=1' : '');
         res = await agent[route.method](url).set('X-CSRF-Token', agent.csrf).send(bodies[key]);

@@ -1,11 +1,22 @@
 import { describe, expect, it } from 'vitest';
-import { createBoardIndex, formatInstant, weeklyHours, type Board, type WorkingCalendar } from '../../shared/scheduler/index.js';
+import {
+  createBoardIndex,
+  formatInstant,
+  weeklyHours,
+  type Board,
+  type WorkingCalendar,
+} from '../../shared/scheduler/index.js';
 import { shiftDependents } from '../../shared/board-actions.js';
 import { at, booking, dep, emptyBoard, LONDON, stage } from './scheduler/scenario.js';
 
 const NOW = at(2026, 5, 1, 9);
 const startsOf = (shifts: ReturnType<typeof shiftDependents>, tz = LONDON) =>
-  Object.fromEntries(shifts.map((s) => [s.stageId, s.bookings.map((b) => `${formatInstant(b.start, tz)}–${formatInstant(b.end, tz).slice(-5)}`)]));
+  Object.fromEntries(
+    shifts.map((s) => [
+      s.stageId,
+      s.bookings.map((b) => `${formatInstant(b.start, tz)}–${formatInstant(b.end, tz).slice(-5)}`),
+    ]),
+  );
 
 describe('moving a stage with its dependents', () => {
   // The lift Tue 2 Jun 08:00–12:00 on the crane, the connection 1 working hour later, 13:00–16:00 (both Mon–Fri 08:00–17:00).
@@ -19,15 +30,21 @@ describe('moving a stage with its dependents', () => {
   const index = createBoardIndex(board, { now: NOW });
 
   it('by 37 working minutes puts the connection on the next quarter hour: 13:37 becomes 13:45', () => {
-    expect(startsOf(shiftDependents(index, 'lift', at(2026, 6, 2, 8, 37)))).toEqual({ connect: ['Tue 2 Jun 13:45–16:45'] });
+    expect(startsOf(shiftDependents(index, 'lift', at(2026, 6, 2, 8, 37)))).toEqual({
+      connect: ['Tue 2 Jun 13:45–16:45'],
+    });
   });
 
   it('by 1½ h would run the 3-hour connection past 17:00: it goes to the next morning instead', () => {
-    expect(startsOf(shiftDependents(index, 'lift', at(2026, 6, 2, 9, 30)))).toEqual({ connect: ['Wed 3 Jun 08:00–11:00'] });
+    expect(startsOf(shiftDependents(index, 'lift', at(2026, 6, 2, 9, 30)))).toEqual({
+      connect: ['Wed 3 Jun 08:00–11:00'],
+    });
   });
 
   it('on an hourly step (an option), 13:37 becomes 14:00', () => {
-    expect(startsOf(shiftDependents(index, 'lift', at(2026, 6, 2, 8, 37), { stepMinutes: 60 }))).toEqual({ connect: ['Tue 2 Jun 14:00–17:00'] });
+    expect(startsOf(shiftDependents(index, 'lift', at(2026, 6, 2, 8, 37), { stepMinutes: 60 }))).toEqual({
+      connect: ['Tue 2 Jun 14:00–17:00'],
+    });
   });
 });
 
@@ -62,7 +79,11 @@ describe('across the October clock change', () => {
   });
 
   it('in Adelaide (UTC+9:30, then +10:30 from Sun 4 Oct) on an hourly step the connection lands on the local hour', () => {
-    const adelaide: WorkingCalendar = { id: 'cal-adl', timeZone: 'Australia/Adelaide', weekly: weeklyHours([1, 2, 3, 4, 5], [[8 * 60, 17 * 60]]) };
+    const adelaide: WorkingCalendar = {
+      id: 'cal-adl',
+      timeZone: 'Australia/Adelaide',
+      weekly: weeklyHours([1, 2, 3, 4, 5], [[8 * 60, 17 * 60]]),
+    };
     const b: Board = {
       calendars: [adelaide],
       resources: [
@@ -70,18 +91,34 @@ describe('across the October clock change', () => {
         { id: 'spark-sa', firmId: 'sa', category: 'person', kind: 'electrician', calendarId: 'cal-adl' },
       ],
       jobs: [{ id: 'job-1', firmId: 'sa' }],
-      stages: [stage('lift', 'lift', 240, [['crane', 1]]), stage('connect', 'electrical_connect', 180, [['electrician', 1]])],
+      stages: [
+        stage('lift', 'lift', 240, [['crane', 1]]),
+        stage('connect', 'electrical_connect', 180, [['electrician', 1]]),
+      ],
       dependencies: [dep('lift', 'connect')],
       bookings: [
         // Fri 2 Oct 08:00–12:00 ACST = Thu 1 Oct 22:30 – Fri 02:30 UTC; Mon 5 Oct 09:00–12:00 ACDT = Sun 4 Oct 22:30 – Mon 01:30 UTC.
-        booking('b-lift', 'lift', 'crane-sa', Date.UTC(2026, 9, 1, 22, 30), Date.UTC(2026, 9, 2, 2, 30), { installerFirmId: 'sa' }),
-        booking('b-conn', 'connect', 'spark-sa', Date.UTC(2026, 9, 4, 22, 30), Date.UTC(2026, 9, 5, 1, 30), { installerFirmId: 'sa' }),
+        booking('b-lift', 'lift', 'crane-sa', Date.UTC(2026, 9, 1, 22, 30), Date.UTC(2026, 9, 2, 2, 30), {
+          installerFirmId: 'sa',
+        }),
+        booking('b-conn', 'connect', 'spark-sa', Date.UTC(2026, 9, 4, 22, 30), Date.UTC(2026, 9, 5, 1, 30), {
+          installerFirmId: 'sa',
+        }),
       ],
-      hirePeriods: [], leadTimeRules: [],
+      hirePeriods: [],
+      leadTimeRules: [],
     };
     // 25 working minutes later: 09:25 ACDT = 22:55 UTC; the next whole local hour is 10:00 ACDT = 23:30 UTC
     // (a UTC-hour step would have said 23:00 UTC, 09:30 on the local clock).
-    const shifts = shiftDependents(createBoardIndex(b, { now: Date.UTC(2026, 8, 1) }), 'lift', Date.UTC(2026, 9, 1, 22, 55), { stepMinutes: 60 });
-    expect(shifts[0]?.bookings[0]).toMatchObject({ start: Date.UTC(2026, 9, 4, 23, 30), end: Date.UTC(2026, 9, 5, 2, 30) });
+    const shifts = shiftDependents(
+      createBoardIndex(b, { now: Date.UTC(2026, 8, 1) }),
+      'lift',
+      Date.UTC(2026, 9, 1, 22, 55),
+      { stepMinutes: 60 },
+    );
+    expect(shifts[0]?.bookings[0]).toMatchObject({
+      start: Date.UTC(2026, 9, 4, 23, 30),
+      end: Date.UTC(2026, 9, 5, 2, 30),
+    });
   });
 });

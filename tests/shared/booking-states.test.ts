@@ -8,12 +8,15 @@ const crew = { party: 'crew', side: 'own' } as const;
 
 describe('the booking state machine', () => {
   it("never lets the installer confirm a partner firm's resource: only the partner's answer does", () => {
-    expect(nextState('book-confirmed', null, officeOnPartner)).toEqual({ ok: false, reason: 'Only the partner firm can confirm its own people and machines: send them a request instead.' });
+    expect(nextState('book-confirmed', null, officeOnPartner)).toEqual({
+      ok: false,
+      reason: 'Only the partner firm can confirm its own people and machines: send them a request instead.',
+    });
     expect(nextState('confirm', 'pencilled', officeOnPartner).ok).toBe(false);
     expect(nextState('accept', 'sent', partner)).toEqual({ ok: true, to: 'confirmed' });
   });
 
-  it("lets the office confirm its own crews and machines, and book them straight in as confirmed", () => {
+  it('lets the office confirm its own crews and machines, and book them straight in as confirmed', () => {
     expect(nextState('confirm', 'pencilled', office)).toEqual({ ok: true, to: 'confirmed' });
     expect(nextState('book-confirmed', null, office)).toEqual({ ok: true, to: 'confirmed' });
   });
@@ -31,12 +34,18 @@ describe('the booking state machine', () => {
   });
 
   it('keeps progress in order: on site, then done, each by the crew or the office, each with its undo', () => {
-    expect(nextState('finish', 'pencilled', crew)).toEqual({ ok: false, reason: "A pencilled booking can't be marked done." });
+    expect(nextState('finish', 'pencilled', crew)).toEqual({
+      ok: false,
+      reason: "A pencilled booking can't be marked done.",
+    });
     expect(nextState('arrive', 'pencilled', crew)).toEqual({ ok: true, to: 'on_site' });
     expect(nextState('finish', 'on_site', crew)).toEqual({ ok: true, to: 'done' });
     expect(nextState('undo-finish', 'done', crew)).toEqual({ ok: true, to: 'on_site' });
     expect(nextState('arrive', 'sent', { party: 'crew', side: 'partner' }).ok).toBe(false);
-    expect(nextState('finish', 'on_site', partner)).toEqual({ ok: false, reason: "A partner firm can't have an on site booking marked done." });
+    expect(nextState('finish', 'on_site', partner)).toEqual({
+      ok: false,
+      reason: "A partner firm can't have an on site booking marked done.",
+    });
   });
 
   it('keeps a declined booking until the scheduler rebooks it or takes it off', () => {

@@ -61,8 +61,15 @@ describe('the one caution list', () => {
       for (const sample of samples) if (text.includes(sample)) offenders.push(`${file}: ${sample}`);
     }
     expect(offenders).toEqual([]);
-    const outputs = ['server/mail/messages.ts', 'server/pages/answers.ts', 'server/services/feeds.ts', 'server/services/partner-slots.ts',
-      'server/services/day-sheets.ts', 'server/services/plans.ts'];
-    for (const file of outputs) expect(readFileSync(path.join(root, file), 'utf8'), file).toMatch(/from '\.\.\/\.\.\/shared\/cautions\.ts'/);
+    const outputs = [
+      'server/mail/messages.ts',
+      'server/pages/answers.ts',
+      'server/services/feeds.ts',
+      'server/services/partner-slots.ts',
+      'server/services/day-sheets.ts',
+      'server/services/plans.ts',
+    ];
+    for (const file of outputs)
+      expect(readFileSync(path.join(root, file), 'utf8'), file).toMatch(/from '\.\.\/\.\.\/shared\/cautions\.ts'/);
   });
 });

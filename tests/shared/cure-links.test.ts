@@ -1,7 +1,14 @@
 import { describe, expect, it } from 'vitest';
 import {
-  analyseBoard, createBoardIndex, findSlots, formatInstant, jobCriticalPath, unbookedStageTimes,
-  type Board, type Booking, type Violation,
+  analyseBoard,
+  createBoardIndex,
+  findSlots,
+  formatInstant,
+  jobCriticalPath,
+  unbookedStageTimes,
+  type Board,
+  type Booking,
+  type Violation,
 } from '../../shared/scheduler/index.js';
 import { IN_GROUND_TEMPLATE, planFromTemplate } from '../../shared/templates/index.js';
 import { at, LONDON } from './scheduler/scenario.js';
@@ -15,8 +22,15 @@ import { plannedBoard } from './scheduler/in-ground.js';
 // t = 4·0.7 / (1 − 0.85·0.7) = 6.9136 days after Wed 3 Jun 13:00 = Wed 10 Jun 10:56.
 const NOW = at(2026, 5, 29, 9);
 const when = (t: number | undefined) => (t === undefined ? '' : formatInstant(t, LONDON));
-const b = (id: string, stageId: string, resourceId: string, start: number, end: number): Booking =>
-  ({ id, stageId, resourceId, start, end, state: 'confirmed', installerFirmId: 'tideway' });
+const b = (id: string, stageId: string, resourceId: string, start: number, end: number): Booking => ({
+  id,
+  stageId,
+  resourceId,
+  start,
+  end,
+  state: 'confirmed',
+  installerFirmId: 'tideway',
+});
 
 function pouredBoard(extra: Booking[] = []): Board {
   const board = plannedBoard();
@@ -39,7 +53,14 @@ describe('the default in-ground template', () => {
     const links = planFromTemplate(IN_GROUND_TEMPLATE, { craneNeeded: true, excavationMinutes: null }).links;
     const out = links.filter((l) => l.fromKind === 'base_pour');
     expect(out).toEqual([
-      { fromKind: 'base_pour', toKind: 'walls', type: 'FS', lagAmount: 16, lagUnit: 'elapsed_hours', waitsForCure: false },
+      {
+        fromKind: 'base_pour',
+        toKind: 'walls',
+        type: 'FS',
+        lagAmount: 16,
+        lagUnit: 'elapsed_hours',
+        waitsForCure: false,
+      },
       { fromKind: 'base_pour', toKind: 'lift', type: 'FS', lagAmount: 0, lagUnit: 'working_hours', waitsForCure: true },
     ]);
   });
@@ -63,19 +84,28 @@ describe('walls on a base that has set overnight', () => {
   it('are offered, planned and placed from the next working day, not after the cure', () => {
     const index = createBoardIndex(pouredBoard(), { now: NOW });
     expect(when(unbookedStageTimes(index, 'walls')?.start)).toBe('Thu 4 Jun 08:00');
-    expect(when(findSlots(index, { stageId: 'walls', resourceKind: 'groundworks_crew', earliest: NOW }, { alternatives: 0 })[0]?.start)).toBe('Thu 4 Jun 08:00');
+    expect(
+      when(
+        findSlots(index, { stageId: 'walls', resourceKind: 'groundworks_crew', earliest: NOW }, { alternatives: 0 })[0]
+          ?.start,
+      ),
+    ).toBe('Thu 4 Jun 08:00');
     expect(when(jobCriticalPath(index, 'job').stages.find((s) => s.stageId === 'walls')?.es)).toBe('Thu 4 Jun 08:00');
   });
 });
 
 describe('the lift, which loads the base', () => {
-  const lift = (day: number, hour: number) => ['crane', 'crew-heron', 'pt-1', 'pt-2', 'rollers']
-    .map((r) => b(`lift-${r}`, 'lift', r, at(2026, 6, day, hour), at(2026, 6, day, hour + 4)));
+  const lift = (day: number, hour: number) =>
+    ['crane', 'crew-heron', 'pt-1', 'pt-2', 'rollers'].map((r) =>
+      b(`lift-${r}`, 'lift', r, at(2026, 6, day, hour), at(2026, 6, day, hour + 4)),
+    );
 
   it('is refused before the cure releases the base, and the refusal names the cure', () => {
     const { violations } = analyseBoard(pouredBoard(lift(9, 8)), { now: NOW, skipCriticalPath: true });
     const cure = violations.filter((v) => v.kind === 'cure');
-    expect(cure.map((v) => v.message)).toEqual(["'Crane lift into pit' can't start before the base has cured: 70% strength is reached at Wed 10 Jun 10:56"]);
+    expect(cure.map((v) => v.message)).toEqual([
+      "'Crane lift into pit' can't start before the base has cured: 70% strength is reached at Wed 10 Jun 10:56",
+    ]);
     expect(cure[0]?.severity).toBe('error');
   });
 

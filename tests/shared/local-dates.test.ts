@@ -1,7 +1,15 @@
 import { describe, expect, it } from 'vitest';
 import { createBoardIndex, jobCriticalPath, weeklyHours, type Board } from '../../shared/scheduler/index.ts';
 import {
-  addDays, dayOfDate, deadlineDate, endOfLocalDay, localDateOf, orderedFrom, promisedDeadline, startOfLocalDay, todayIn,
+  addDays,
+  dayOfDate,
+  deadlineDate,
+  endOfLocalDay,
+  localDateOf,
+  orderedFrom,
+  promisedDeadline,
+  startOfLocalDay,
+  todayIn,
 } from '../../shared/local-dates.ts';
 
 const HOUR = 3_600_000;
@@ -16,13 +24,17 @@ describe('a local day in London across the clock changes', () => {
   it('is 23 hours on the spring day and starts at midnight GMT', () => {
     expect(startOfLocalDay('2026-03-29', 'Europe/London')).toBe(Date.UTC(2026, 2, 29, 0));
     expect(endOfLocalDay('2026-03-29', 'Europe/London')).toBe(Date.UTC(2026, 2, 29, 23));
-    expect(endOfLocalDay('2026-03-29', 'Europe/London') - startOfLocalDay('2026-03-29', 'Europe/London')).toBe(23 * HOUR);
+    expect(endOfLocalDay('2026-03-29', 'Europe/London') - startOfLocalDay('2026-03-29', 'Europe/London')).toBe(
+      23 * HOUR,
+    );
   });
 
   it('is 25 hours on the autumn day, starting at midnight BST and ending at midnight GMT', () => {
     expect(startOfLocalDay('2026-10-25', 'Europe/London')).toBe(Date.UTC(2026, 9, 24, 23));
     expect(endOfLocalDay('2026-10-25', 'Europe/London')).toBe(Date.UTC(2026, 9, 26, 0));
-    expect(endOfLocalDay('2026-10-25', 'Europe/London') - startOfLocalDay('2026-10-25', 'Europe/London')).toBe(25 * HOUR);
+    expect(endOfLocalDay('2026-10-25', 'Europe/London') - startOfLocalDay('2026-10-25', 'Europe/London')).toBe(
+      25 * HOUR,
+    );
   });
 
   it('puts an instant on the local date, not the UTC one', () => {
@@ -59,8 +71,12 @@ describe('a promised date', () => {
 
   it('follows New York across its own clock changes (UTC−5 in winter, 23 and 25 hour days)', () => {
     expect(promisedDeadline('2026-01-15', 'America/New_York')).toBe(Date.UTC(2026, 0, 16, 5));
-    expect(endOfLocalDay('2026-03-08', 'America/New_York') - startOfLocalDay('2026-03-08', 'America/New_York')).toBe(23 * HOUR);
-    expect(endOfLocalDay('2026-11-01', 'America/New_York') - startOfLocalDay('2026-11-01', 'America/New_York')).toBe(25 * HOUR);
+    expect(endOfLocalDay('2026-03-08', 'America/New_York') - startOfLocalDay('2026-03-08', 'America/New_York')).toBe(
+      23 * HOUR,
+    );
+    expect(endOfLocalDay('2026-11-01', 'America/New_York') - startOfLocalDay('2026-11-01', 'America/New_York')).toBe(
+      25 * HOUR,
+    );
   });
 
   it('reads back as its own date on the clock-change days', () => {
@@ -101,10 +117,30 @@ describe("the engine's lateness against a promised date", () => {
       calendars: [{ id: 'cal', timeZone: zone, weekly: weeklyHours([1, 2, 3, 4, 5], [[480, 1020]]) }],
       resources: [{ id: 'crew', firmId: 'f', category: 'crew', kind: 'install_crew', calendarId: 'cal' }],
       jobs: [{ id: 'job-1', firmId: 'f', promisedBy: promisedDeadline('2026-07-01', zone) }],
-      stages: [{ id: 'a', jobId: 'job-1', kind: 'delivery', name: 'Delivery', durationMinutes: 540, requirements: [{ kind: 'install_crew', count: 1 }] }],
+      stages: [
+        {
+          id: 'a',
+          jobId: 'job-1',
+          kind: 'delivery',
+          name: 'Delivery',
+          durationMinutes: 540,
+          requirements: [{ kind: 'install_crew', count: 1 }],
+        },
+      ],
       dependencies: [],
-      bookings: [{ id: 'ba', stageId: 'a', resourceId: 'crew', start: at(8), end: at(17), state: 'confirmed', installerFirmId: 'f' }],
-      hirePeriods: [], leadTimeRules: [],
+      bookings: [
+        {
+          id: 'ba',
+          stageId: 'a',
+          resourceId: 'crew',
+          start: at(8),
+          end: at(17),
+          state: 'confirmed',
+          installerFirmId: 'f',
+        },
+      ],
+      hirePeriods: [],
+      leadTimeRules: [],
     };
     return jobCriticalPath(createBoardIndex(board, { now: Date.UTC(2026, 5, 1) }), 'job-1').lateByMs;
   }

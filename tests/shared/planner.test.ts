@@ -1,32 +1,50 @@
 import { readFileSync } from 'node:fs';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { analyseBoard, autoPlace, weeklyHours, type AutoPlaceResult, type Board, type Booking, type Resource, type Stage } from '../../shared/scheduler/index.js';
+import {
+  analyseBoard,
+  autoPlace,
+  weeklyHours,
+  type AutoPlaceResult,
+  type Board,
+  type Booking,
+  type Resource,
+  type Stage,
+} from '../../shared/scheduler/index.js';
 import { comparePlanCosts } from '../../shared/scheduler/planner/place.js';
 import { checkPsplibPlan, parseSm, psplibBoard, PSPLIB_NOW } from '../../bench/psplib/psplib.js';
 import { at, dep, firmCal, LONDON } from './scheduler/scenario.js';
 
 // Instances and proven optimal makespans from PSPLIB: R. Kolisch and A. Sprecher, "PSPLIB — A
 // project scheduling problem library", EJOR 96 (1996) 205–216 (tests/fixtures/psplib/README.md).
-const PSPLIB_OPTIMA: [string, number][] = [['j301_1.sm', 43], ['j3010_2.sm', 56], ['j3013_1.sm', 58], ['j3037_4.sm', 83], ['j3045_3.sm', 92]];
+const PSPLIB_OPTIMA: [string, number][] = [
+  ['j301_1.sm', 43],
+  ['j3010_2.sm', 56],
+  ['j3013_1.sm', 58],
+  ['j3037_4.sm', 83],
+  ['j3045_3.sm', 92],
+];
 
 function fixture(name: string): string {
   return readFileSync(new URL(`../fixtures/psplib/${name}`, import.meta.url), 'utf8');
 }
 
 describe('planner on PSPLIB j30 instances', () => {
-  it.each(PSPLIB_OPTIMA)('%s: feasible and within 5 per cent of the optimum, %i, with a 100 ms budget', (name, optimum) => {
-    const inst = parseSm(fixture(name));
-    const board = psplibBoard(inst);
-    const result = autoPlace(board, { now: PSPLIB_NOW, budgetMs: 100, seed: 7 });
-    const check = checkPsplibPlan(inst, result.bookings);
-    expect(check.problems).toEqual([]);
-    expect(result.unplaced).toEqual([]);
-    expect(check.makespan).toBeGreaterThanOrEqual(optimum);
-    // Margin: the benchmark averages well under 1 % at 300 ms; 5 % leaves room for the small budget.
-    expect(check.makespan).toBeLessThanOrEqual(Math.floor(optimum * 1.05));
-    expect(result.costs.finishMinutes).toBe(check.makespan * 60);
-  });
+  it.each(PSPLIB_OPTIMA)(
+    '%s: feasible and within 5 per cent of the optimum, %i, with a 100 ms budget',
+    (name, optimum) => {
+      const inst = parseSm(fixture(name));
+      const board = psplibBoard(inst);
+      const result = autoPlace(board, { now: PSPLIB_NOW, budgetMs: 100, seed: 7 });
+      const check = checkPsplibPlan(inst, result.bookings);
+      expect(check.problems).toEqual([]);
+      expect(result.unplaced).toEqual([]);
+      expect(check.makespan).toBeGreaterThanOrEqual(optimum);
+      // Margin: the benchmark averages well under 1 % at 300 ms; 5 % leaves room for the small budget.
+      expect(check.makespan).toBeLessThanOrEqual(Math.floor(optimum * 1.05));
+      expect(result.costs.finishMinutes).toBe(check.makespan * 60);
+    },
+  );
 
   it('beats the single pass where the single pass is far from the optimum, and says so', () => {
     const inst = parseSm(fixture('j3010_2.sm'));
@@ -35,7 +53,9 @@ describe('planner on PSPLIB j30 instances', () => {
     const planned = autoPlace(board, { now: PSPLIB_NOW, budgetMs: 100 });
     expect(single.source).toBe('single-pass');
     expect(planned.source).toBe('search');
-    expect(checkPsplibPlan(inst, planned.bookings).makespan).toBeLessThan(checkPsplibPlan(inst, single.bookings).makespan);
+    expect(checkPsplibPlan(inst, planned.bookings).makespan).toBeLessThan(
+      checkPsplibPlan(inst, single.bookings).makespan,
+    );
   });
 
   it('gives the same plan for the same seed and budget, and reports progress', () => {
@@ -54,10 +74,29 @@ describe('planner on PSPLIB j30 instances', () => {
 // hire period and notice, an electrician on a four-day week), closures, other work already booked,
 // and one or two jobs of linked stages, some with a promised date.
 const crewCal = { ...firmCal, id: 'cal-crew', holidayRegion: null };
-const sparkCal = { id: 'cal-spark', timeZone: LONDON, weekly: weeklyHours([1, 2, 3, 4], [[7 * 60, 15 * 60]]), holidayRegion: null };
+const sparkCal = {
+  id: 'cal-spark',
+  timeZone: LONDON,
+  weekly: weeklyHours([1, 2, 3, 4], [[7 * 60, 15 * 60]]),
+  holidayRegion: null,
+};
 const RESOURCES: Resource[] = [
-  { id: 'crew-a', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'cal-crew', personIds: ['ann', 'bo'] },
-  { id: 'crew-b', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'cal-crew', personIds: ['bo', 'cy'] },
+  {
+    id: 'crew-a',
+    firmId: 'f1',
+    category: 'crew',
+    kind: 'install_crew',
+    calendarId: 'cal-crew',
+    personIds: ['ann', 'bo'],
+  },
+  {
+    id: 'crew-b',
+    firmId: 'f1',
+    category: 'crew',
+    kind: 'install_crew',
+    calendarId: 'cal-crew',
+    personIds: ['bo', 'cy'],
+  },
   { id: 'crew-c', firmId: 'f1', category: 'crew', kind: 'install_crew', calendarId: 'cal-crew', personIds: ['di'] },
   { id: 'crane-1', firmId: 'f2', category: 'machine', kind: 'crane', calendarId: 'cal-crew', hired: true },
   { id: 'spark-1', firmId: 'f3', category: 'person', kind: 'electrician', calendarId: 'cal-spark' },
@@ -67,28 +106,61 @@ const KINDS = ['install_crew', 'crane', 'electrician'];
 
 const boardArb = fc.record({
   closureDay: fc.integer({ min: 1, max: 20 }),
-  busy: fc.array(fc.record({ r: fc.integer({ min: 0, max: 4 }), day: fc.integer({ min: 0, max: 15 }), hours: fc.integer({ min: 1, max: 8 }) }), { maxLength: 8 }),
-  jobs: fc.array(fc.record({
-    stages: fc.array(fc.record({ kind: fc.integer({ min: 0, max: 2 }), hours: fc.integer({ min: 1, max: 8 }), crew: fc.integer({ min: 1, max: 2 }) }), { minLength: 2, maxLength: 5 }),
-    link: fc.constantFrom('FS', 'SS'),
-    lag: fc.integer({ min: 0, max: 4 }),
-    promisedDay: fc.option(fc.integer({ min: 3, max: 30 }), { nil: undefined }),
-  }), { minLength: 1, maxLength: 2 }),
+  busy: fc.array(
+    fc.record({
+      r: fc.integer({ min: 0, max: 4 }),
+      day: fc.integer({ min: 0, max: 15 }),
+      hours: fc.integer({ min: 1, max: 8 }),
+    }),
+    { maxLength: 8 },
+  ),
+  jobs: fc.array(
+    fc.record({
+      stages: fc.array(
+        fc.record({
+          kind: fc.integer({ min: 0, max: 2 }),
+          hours: fc.integer({ min: 1, max: 8 }),
+          crew: fc.integer({ min: 1, max: 2 }),
+        }),
+        { minLength: 2, maxLength: 5 },
+      ),
+      link: fc.constantFrom('FS', 'SS'),
+      lag: fc.integer({ min: 0, max: 4 }),
+      promisedDay: fc.option(fc.integer({ min: 3, max: 30 }), { nil: undefined }),
+    }),
+    { minLength: 1, maxLength: 2 },
+  ),
 });
 
 type BoardSpec = typeof boardArb extends fc.Arbitrary<infer T> ? T : never;
 
 function buildBoard(spec: BoardSpec): Board {
-  const stages: Stage[] = [{ id: 'other-work', jobId: 'other', kind: 'survey', name: 'Other work', durationMinutes: 60, requirements: [{ kind: 'install_crew', count: 1 }] }];
+  const stages: Stage[] = [
+    {
+      id: 'other-work',
+      jobId: 'other',
+      kind: 'survey',
+      name: 'Other work',
+      durationMinutes: 60,
+      requirements: [{ kind: 'install_crew', count: 1 }],
+    },
+  ];
   const deps: Board['dependencies'] = [];
-  spec.jobs.forEach((j, ji) => j.stages.forEach((s, si) => {
-    const kind = KINDS[s.kind] as string;
-    stages.push({
-      id: `j${ji}-s${si}`, jobId: `job-${ji}`, kind: `step-${si}`, name: `Step ${si + 1}`, durationMinutes: s.hours * 60,
-      requirements: [{ kind, count: kind === 'install_crew' ? s.crew : 1 }], mayContinueNextDay: s.hours > 4,
-    });
-    if (si > 0) deps.push(dep(`j${ji}-s${si - 1}`, `j${ji}-s${si}`, j.link, j.lag, 'working_hours'));
-  }));
+  spec.jobs.forEach((j, ji) =>
+    j.stages.forEach((s, si) => {
+      const kind = KINDS[s.kind] as string;
+      stages.push({
+        id: `j${ji}-s${si}`,
+        jobId: `job-${ji}`,
+        kind: `step-${si}`,
+        name: `Step ${si + 1}`,
+        durationMinutes: s.hours * 60,
+        requirements: [{ kind, count: kind === 'install_crew' ? s.crew : 1 }],
+        mayContinueNextDay: s.hours > 4,
+      });
+      if (si > 0) deps.push(dep(`j${ji}-s${si - 1}`, `j${ji}-s${si}`, j.link, j.lag, 'working_hours'));
+    }),
+  );
   // Other work already booked: one block per resource and day, never overlapping each other.
   const taken = new Set<string>();
   const bookings: Booking[] = [];
@@ -98,14 +170,50 @@ function buildBoard(spec: BoardSpec): Board {
     taken.add(key);
     const r = RESOURCES[b.r] as Resource;
     const start = NOW + b.day * 86_400_000 + 2 * 3_600_000; // 10:00 (BST) on a later day
-    bookings.push({ id: `busy-${key}`, stageId: 'other-work', resourceId: r.id, start, end: start + b.hours * 3_600_000, state: 'confirmed', installerFirmId: 'other-firm' });
+    bookings.push({
+      id: `busy-${key}`,
+      stageId: 'other-work',
+      resourceId: r.id,
+      start,
+      end: start + b.hours * 3_600_000,
+      state: 'confirmed',
+      installerFirmId: 'other-firm',
+    });
   }
   return {
-    calendars: [{ ...crewCal, closures: [{ start: NOW + spec.closureDay * 86_400_000 - 7 * 3_600_000, end: NOW + (spec.closureDay + 1) * 86_400_000 - 7 * 3_600_000 }] }, sparkCal],
+    calendars: [
+      {
+        ...crewCal,
+        closures: [
+          {
+            start: NOW + spec.closureDay * 86_400_000 - 7 * 3_600_000,
+            end: NOW + (spec.closureDay + 1) * 86_400_000 - 7 * 3_600_000,
+          },
+        ],
+      },
+      sparkCal,
+    ],
     resources: RESOURCES,
-    jobs: [{ id: 'other', firmId: 'other-firm' }, ...spec.jobs.map((j, ji) => ({ id: `job-${ji}`, firmId: 'f1', promisedBy: j.promisedDay === undefined ? null : NOW + j.promisedDay * 86_400_000 }))],
-    stages, dependencies: deps, bookings,
-    hirePeriods: [{ id: 'crane-hire', resourceId: 'crane-1', onHire: NOW + 2 * 86_400_000, offHire: NOW + 40 * 86_400_000, dayRatePence: 25_000 }],
+    jobs: [
+      { id: 'other', firmId: 'other-firm' },
+      ...spec.jobs.map((j, ji) => ({
+        id: `job-${ji}`,
+        firmId: 'f1',
+        promisedBy: j.promisedDay === undefined ? null : NOW + j.promisedDay * 86_400_000,
+      })),
+    ],
+    stages,
+    dependencies: deps,
+    bookings,
+    hirePeriods: [
+      {
+        id: 'crane-hire',
+        resourceId: 'crane-1',
+        onHire: NOW + 2 * 86_400_000,
+        offHire: NOW + 40 * 86_400_000,
+        dayRatePence: 25_000,
+      },
+    ],
     leadTimeRules: [{ appliesTo: { resourceKind: 'crane' }, workingDays: 2, from: 'now' }],
   };
 }
@@ -116,18 +224,24 @@ function placedBoard(board: Board, r: AutoPlaceResult): Board {
 
 describe('planner on random boards', () => {
   it('places only where every rule holds, never moves existing bookings, and is never worse than the single pass', () => {
-    fc.assert(fc.property(boardArb, (spec) => {
-      const board = buildBoard(spec);
-      const jobIds = spec.jobs.map((_, ji) => `job-${ji}`);
-      const single = autoPlace(board, { now: NOW, jobIds, budgetMs: 0 });
-      const planned = autoPlace(board, { now: NOW, jobIds, budgetMs: 15, seed: 5 });
-      expect(comparePlanCosts(planned.costs, single.costs)).toBeLessThanOrEqual(0);
-      const placedIds = new Set(planned.placed.map((p) => p.stageId));
-      const errors = analyseBoard(placedBoard(board, planned), { now: NOW }).violations
-        .filter((v) => v.severity === 'error' && v.kind !== 'capacity' && v.stageIds.some((id) => placedIds.has(id)));
-      expect(errors).toEqual([]);
-      expect(planned.bookings.every((b) => b.state === 'pencilled' && !board.bookings.some((x) => x.id === b.id))).toBe(true);
-      expect(planned.placed.length + planned.unplaced.length).toBe(board.stages.length - 1);
-    }), { numRuns: 25, seed: 20260601 });
+    fc.assert(
+      fc.property(boardArb, (spec) => {
+        const board = buildBoard(spec);
+        const jobIds = spec.jobs.map((_, ji) => `job-${ji}`);
+        const single = autoPlace(board, { now: NOW, jobIds, budgetMs: 0 });
+        const planned = autoPlace(board, { now: NOW, jobIds, budgetMs: 15, seed: 5 });
+        expect(comparePlanCosts(planned.costs, single.costs)).toBeLessThanOrEqual(0);
+        const placedIds = new Set(planned.placed.map((p) => p.stageId));
+        const errors = analyseBoard(placedBoard(board, planned), { now: NOW }).violations.filter(
+          (v) => v.severity === 'error' && v.kind !== 'capacity' && v.stageIds.some((id) => placedIds.has(id)),
+        );
+        expect(errors).toEqual([]);
+        expect(
+          planned.bookings.every((b) => b.state === 'pencilled' && !board.bookings.some((x) => x.id === b.id)),
+        ).toBe(true);
+        expect(planned.placed.length + planned.unplaced.length).toBe(board.stages.length - 1);
+      }),
+      { numRuns: 25, seed: 20260601 },
+    );
   });
 });

@@ -14,7 +14,9 @@ describe('service visit dates', () => {
       { number: 1, dueOn: '2026-08-31', promisedFrom: '2026-08-17', promisedTo: '2026-09-14' },
       { number: 2, dueOn: '2027-08-31', promisedFrom: '2027-08-17', promisedTo: '2027-09-14' },
     ]);
-    expect(serviceVisitDates('2026-12-15', { firstAfterMonths: 6, everyMonths: 6, visitsAhead: 3 }).map((v) => v.dueOn)).toEqual(['2027-06-15', '2027-12-15', '2028-06-15']);
+    expect(
+      serviceVisitDates('2026-12-15', { firstAfterMonths: 6, everyMonths: 6, visitsAhead: 3 }).map((v) => v.dueOn),
+    ).toEqual(['2027-06-15', '2027-12-15', '2028-06-15']);
     expect(monthName('2027-06-15')).toBe('June 2027');
   });
 });

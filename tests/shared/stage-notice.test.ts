@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { analyseBoard, createBoardIndex, formatInstant, unbookedStageTimes, type Board, type Booking } from '../../shared/scheduler/index.js';
+import {
+  analyseBoard,
+  createBoardIndex,
+  formatInstant,
+  unbookedStageTimes,
+  type Board,
+  type Booking,
+} from '../../shared/scheduler/index.js';
 import { at, LONDON } from './scheduler/scenario.js';
 import { plannedBoard } from './scheduler/in-ground.js';
 
@@ -13,12 +20,23 @@ const withMakerLead = (bookings: Booking[] = []): Board => {
   return {
     ...board,
     bookings,
-    leadTimeRules: [...board.leadTimeRules, { appliesTo: { stageId: 'delivery' }, workingDays: 35, from: 'order', reason: "the maker's lead time" }],
+    leadTimeRules: [
+      ...board.leadTimeRules,
+      { appliesTo: { stageId: 'delivery' }, workingDays: 35, from: 'order', reason: "the maker's lead time" },
+    ],
   };
 };
-const delivery = (d: number, m = 6): Booking =>
-  ({ id: 'lorry-1', stageId: 'delivery', resourceId: 'lorry', start: at(2026, m, d, 9), end: at(2026, m, d, 11), state: 'pencilled', installerFirmId: 'tideway' });
-const notice = (board: Board) => analyseBoard(board, { now: NOW, skipCriticalPath: true }).violations.filter((v) => v.kind === 'lead_time');
+const delivery = (d: number, m = 6): Booking => ({
+  id: 'lorry-1',
+  stageId: 'delivery',
+  resourceId: 'lorry',
+  start: at(2026, m, d, 9),
+  end: at(2026, m, d, 11),
+  state: 'pencilled',
+  installerFirmId: 'tideway',
+});
+const notice = (board: Board) =>
+  analyseBoard(board, { now: NOW, skipCriticalPath: true }).violations.filter((v) => v.kind === 'lead_time');
 
 describe("a stage's own notice (the maker's lead time on the delivery)", () => {
   it('refuses the delivery before the order date plus 35 working days', () => {
@@ -27,7 +45,7 @@ describe("a stage's own notice (the maker's lead time on the delivery)", () => {
     ]);
   });
 
-  it('tells only the rule that holds it back longest when the firm\'s 15 days are short too', () => {
+  it("tells only the rule that holds it back longest when the firm's 15 days are short too", () => {
     expect(notice(withMakerLead([delivery(5)])).map((v) => v.message)).toEqual([
       "'Delivery' needs 35 working days' notice from the order date (the maker's lead time): the earliest start is Mon 6 Jul 09:00",
     ]);
@@ -37,15 +55,26 @@ describe("a stage's own notice (the maker's lead time on the delivery)", () => {
     expect(notice(withMakerLead([delivery(6, 7)]))).toEqual([]);
   });
 
-  it('holds another job\'s delivery to the firm\'s rule alone', () => {
+  it("holds another job's delivery to the firm's rule alone", () => {
     const board = withMakerLead([delivery(10)]);
-    const other = { ...board, leadTimeRules: board.leadTimeRules.map((r) => (r.appliesTo.stageId ? { ...r, appliesTo: { stageId: 'someone-else' } } : r)) };
+    const other = {
+      ...board,
+      leadTimeRules: board.leadTimeRules.map((r) =>
+        r.appliesTo.stageId ? { ...r, appliesTo: { stageId: 'someone-else' } } : r,
+      ),
+    };
     expect(notice(other)).toEqual([]);
   });
 
   it('keeps the unbooked delivery in the tray until then, saying whose notice it is', () => {
     const times = unbookedStageTimes(createBoardIndex(withMakerLead(), { now: NOW }), 'delivery');
     expect(formatInstant(times?.start ?? 0, LONDON)).toBe('Mon 6 Jul 09:00');
-    expect(times?.heldBy).toEqual({ kind: 'lead_time', workingDays: 35, from: 'order', ordered: true, reason: "the maker's lead time" });
+    expect(times?.heldBy).toEqual({
+      kind: 'lead_time',
+      workingDays: 35,
+      from: 'order',
+      ordered: true,
+      reason: "the maker's lead time",
+    });
   });
 });

@@ -1,10 +1,23 @@
 import { describe, expect, it } from 'vitest';
 import {
-  COMMON_PRACTICE, DEFAULT_WATER_TARGETS, commissioningGaps, readingVerdict, waterTargetsOf, type CommissioningFacts,
+  COMMON_PRACTICE,
+  DEFAULT_WATER_TARGETS,
+  commissioningGaps,
+  readingVerdict,
+  waterTargetsOf,
+  type CommissioningFacts,
 } from '../../shared/water-balance.ts';
 
 const ALL_TICKED = { pumpsPrimed: true, pumpsTested: true, heaterWorking: true, lightsWorking: true, noLeaks: true };
-const complete: CommissioningFacts = { checks: ALL_TICKED, ph: 7.4, totalAlkalinityPpm: 100, sanitiserPpm: 4, sanitiserKind: 'chlorine', notes: null, photoCount: 1 };
+const complete: CommissioningFacts = {
+  checks: ALL_TICKED,
+  ph: 7.4,
+  totalAlkalinityPpm: 100,
+  sanitiserPpm: 4,
+  sanitiserKind: 'chlorine',
+  notes: null,
+  photoCount: 1,
+};
 
 describe('the default target ranges', () => {
   it('are the usual hot-tub figures, each marked as common practice with no source', () => {
@@ -21,7 +34,13 @@ describe('the default target ranges', () => {
 describe('a reading against its range', () => {
   it('is in range at both ends, and low or high just outside', () => {
     const ph = DEFAULT_WATER_TARGETS.ph;
-    expect([7.19, 7.2, 7.5, 7.8, 7.81].map((v) => readingVerdict(v, ph))).toEqual(['low', 'in-range', 'in-range', 'in-range', 'high']);
+    expect([7.19, 7.2, 7.5, 7.8, 7.81].map((v) => readingVerdict(v, ph))).toEqual([
+      'low',
+      'in-range',
+      'in-range',
+      'in-range',
+      'high',
+    ]);
     expect(readingVerdict(null, ph)).toBe('missing');
     expect(readingVerdict(Number.NaN, ph)).toBe('missing');
   });
@@ -29,7 +48,11 @@ describe('a reading against its range', () => {
 
 describe("a firm's own ranges", () => {
   it('replace the defaults where well formed, keeping their source, and never a reversed range', () => {
-    const t = waterTargetsOf({ ph: { min: 7.0, max: 7.6, source: "the unit maker's manual" }, brominePpm: { min: 6, max: 4 }, totalAlkalinityPpm: { min: 90, max: 110 } });
+    const t = waterTargetsOf({
+      ph: { min: 7.0, max: 7.6, source: "the unit maker's manual" },
+      brominePpm: { min: 6, max: 4 },
+      totalAlkalinityPpm: { min: 90, max: 110 },
+    });
     expect(t.ph).toEqual({ min: 7.0, max: 7.6, unit: '', source: "the unit maker's manual" });
     expect(t.brominePpm).toEqual(DEFAULT_WATER_TARGETS.brominePpm);
     expect(t.totalAlkalinityPpm.source).toBe(COMMON_PRACTICE);
@@ -43,7 +66,16 @@ describe('what a commissioning record still lacks', () => {
   });
 
   it('names each missing item in plain words', () => {
-    const gaps = commissioningGaps({ ...complete, checks: { ...ALL_TICKED, heaterWorking: false, noLeaks: false }, totalAlkalinityPpm: null, sanitiserKind: null, photoCount: 0 }, DEFAULT_WATER_TARGETS);
+    const gaps = commissioningGaps(
+      {
+        ...complete,
+        checks: { ...ALL_TICKED, heaterWorking: false, noLeaks: false },
+        totalAlkalinityPpm: null,
+        sanitiserKind: null,
+        photoCount: 0,
+      },
+      DEFAULT_WATER_TARGETS,
+    );
     expect(gaps).toEqual([
       'Not ticked: heater working.',
       'Not ticked: no leaks at unions, valves and the cabinet.',
@@ -59,7 +91,12 @@ describe('what a commissioning record still lacks', () => {
     expect(commissioningGaps(bromine, DEFAULT_WATER_TARGETS)).toEqual([
       "Bromine 3.5 is below the firm's range (4–6 ppm): bring it into range, or say in the notes what was done about it.",
     ]);
-    expect(commissioningGaps({ ...bromine, notes: 'Dosed; householder to re-test tomorrow before use.' }, DEFAULT_WATER_TARGETS)).toEqual([]);
+    expect(
+      commissioningGaps(
+        { ...bromine, notes: 'Dosed; householder to re-test tomorrow before use.' },
+        DEFAULT_WATER_TARGETS,
+      ),
+    ).toEqual([]);
     expect(commissioningGaps({ ...bromine, notes: '   ' }, DEFAULT_WATER_TARGETS)).toHaveLength(1);
   });
 });

@@ -30,26 +30,55 @@ export function whyNotWorking(cal: CompiledCalendar, instant: number): string {
  * checkAvailability(index, craneOnBankHoliday) // [{ kind: 'availability', severity: 'error', … }]
  */
 export function checkAvailability(
-  index: BoardIndex, booking: Booking, stage: Stage | undefined = index.stages.get(booking.stageId)?.stage,
-  out: Violation[] = [], cal: CompiledCalendar = resourceCalendarOf(index, booking.resourceId),
+  index: BoardIndex,
+  booking: Booking,
+  stage: Stage | undefined = index.stages.get(booking.stageId)?.stage,
+  out: Violation[] = [],
+  cal: CompiledCalendar = resourceCalendarOf(index, booking.resourceId),
 ): Violation[] {
   if (!isWorkingInstant(cal, booking.start)) {
     const why = whyNotWorking(cal, booking.start);
-    out.push(makeViolation('availability', 'error', [booking.stageId], [booking.resourceId], [booking.id],
-      `${capitalise(resourceLabel(index, booking.resourceId))} isn't working when ${stageLabel(index, booking.stageId)} starts (${formatInstant(booking.start, cal.timeZone)}: ${why})`, { at: booking.start, reason: why }));
+    out.push(
+      makeViolation(
+        'availability',
+        'error',
+        [booking.stageId],
+        [booking.resourceId],
+        [booking.id],
+        `${capitalise(resourceLabel(index, booking.resourceId))} isn't working when ${stageLabel(index, booking.stageId)} starts (${formatInstant(booking.start, cal.timeZone)}: ${why})`,
+        { at: booking.start, reason: why },
+      ),
+    );
   }
   if (!isWorkingEnd(cal, booking.end)) {
     const why = whyNotWorking(cal, booking.end - 1);
-    out.push(makeViolation('availability', 'error', [booking.stageId], [booking.resourceId], [booking.id],
-      `${capitalise(resourceLabel(index, booking.resourceId))} isn't working when ${stageLabel(index, booking.stageId)} finishes (${formatInstant(booking.end, cal.timeZone)}: ${why})`, { at: booking.end, reason: why }));
+    out.push(
+      makeViolation(
+        'availability',
+        'error',
+        [booking.stageId],
+        [booking.resourceId],
+        [booking.id],
+        `${capitalise(resourceLabel(index, booking.resourceId))} isn't working when ${stageLabel(index, booking.stageId)} finishes (${formatInstant(booking.end, cal.timeZone)}: ${why})`,
+        { at: booking.end, reason: why },
+      ),
+    );
   }
   const need = stage?.durationMinutes ?? 0;
   if (need > 0) {
     const booked = workingMinutesBetween(cal, booking.start, booking.end);
     if (booked < need) {
-      out.push(makeViolation('availability', 'warning', [booking.stageId], [booking.resourceId], [booking.id],
-        `${stageLabel(index, booking.stageId)} needs ${fmtHours(need)} of work but ${resourceLabel(index, booking.resourceId)} is booked for ${fmtHours(booked)} of working time`,
-        { neededMinutes: need, bookedMinutes: booked }));
+      out.push(
+        makeViolation(
+          'availability',
+          'warning',
+          [booking.stageId],
+          [booking.resourceId],
+          [booking.id],
+          `${stageLabel(index, booking.stageId)} needs ${fmtHours(need)} of work but ${resourceLabel(index, booking.resourceId)} is booked for ${fmtHours(booked)} of working time`,
+          { neededMinutes: need, bookedMinutes: booked },
+        ),
+      );
     }
   }
   return out;

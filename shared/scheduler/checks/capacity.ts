@@ -11,21 +11,37 @@ import { makeViolation, stageLabel } from './violation.js';
  * checkCapacity(index, 'lift-1', bookings) // "'Lift' needs 2 pallet trucks but 1 is booked"
  */
 export function checkCapacity(
-  index: BoardIndex, stageId: string, bookings: readonly Booking[],
-  stage: Stage | undefined = index.stages.get(stageId)?.stage, out: Violation[] = [],
+  index: BoardIndex,
+  stageId: string,
+  bookings: readonly Booking[],
+  stage: Stage | undefined = index.stages.get(stageId)?.stage,
+  out: Violation[] = [],
 ): Violation[] {
   if (bookings.length === 0 || stage === undefined) return out;
   for (const req of stage.requirements) {
-    if (req.count === 1 && bookings.length === 1 && index.resources.get((bookings[0] as Booking).resourceId)?.kind === req.kind) continue;
+    if (
+      req.count === 1 &&
+      bookings.length === 1 &&
+      index.resources.get((bookings[0] as Booking).resourceId)?.kind === req.kind
+    )
+      continue;
     const got: string[] = [];
     for (const b of bookings) {
       if (index.resources.get(b.resourceId)?.kind === req.kind && !got.includes(b.resourceId)) got.push(b.resourceId);
     }
     if (got.length < req.count) {
       const words = req.kind.replace(/_/g, ' ');
-      out.push(makeViolation('capacity', 'error', [stageId], got, bookings.map((b) => b.id),
-        `${stageLabel(index, stageId)} needs ${req.count} ${words}${req.count === 1 ? '' : 's'} but ${got.length} ${got.length === 1 ? 'is' : 'are'} booked`,
-        { kind: req.kind, needed: req.count, booked: got.length }));
+      out.push(
+        makeViolation(
+          'capacity',
+          'error',
+          [stageId],
+          got,
+          bookings.map((b) => b.id),
+          `${stageLabel(index, stageId)} needs ${req.count} ${words}${req.count === 1 ? '' : 's'} but ${got.length} ${got.length === 1 ? 'is' : 'are'} booked`,
+          { kind: req.kind, needed: req.count, booked: got.length },
+        ),
+      );
     }
   }
   return out;

@@ -7,9 +7,15 @@ function ordered(a: Booking, b: Booking): [Booking, Booking] {
   return compareBookings(a, b) <= 0 ? [a, b] : [b, a];
 }
 
-function overlapWords(index: BoardIndex, resourceId: string, a: Booking, b: Booking): { from: number; to: number; words: string } {
+function overlapWords(
+  index: BoardIndex,
+  resourceId: string,
+  a: Booking,
+  b: Booking,
+): { from: number; to: number; words: string } {
   const tz = resourceCalendarOf(index, resourceId).timeZone;
-  const from = Math.max(a.start, b.start), to = Math.min(a.end, b.end);
+  const from = Math.max(a.start, b.start),
+    to = Math.min(a.end, b.end);
   return { from, to, words: `from ${formatInstant(from, tz)} to ${formatInstant(to, tz)}` };
 }
 
@@ -39,13 +45,28 @@ export function resourcePairViolations(index: BoardIndex, x: Booking, y: Booking
   const { from, to, words } = overlapWords(index, rid, a, b);
   const who = capitalise(resourceLabel(index, rid));
   if (a.installerFirmId === b.installerFirmId) {
-    const what = a.stageId === b.stageId
-      ? `twice for ${stageLabel(index, a.stageId)}`
-      : `for both ${stageLabel(index, a.stageId)}${onJob(index, a, b)} and ${stageLabel(index, b.stageId)}${onJob(index, b, a)}`;
-    return [makeViolation('clash', 'error', [a.stageId, b.stageId], [rid], [a.id, b.id], `${who} is booked ${what} ${words}`, { from, to })];
+    const what =
+      a.stageId === b.stageId
+        ? `twice for ${stageLabel(index, a.stageId)}`
+        : `for both ${stageLabel(index, a.stageId)}${onJob(index, a, b)} and ${stageLabel(index, b.stageId)}${onJob(index, b, a)}`;
+    return [
+      makeViolation(
+        'clash',
+        'error',
+        [a.stageId, b.stageId],
+        [rid],
+        [a.id, b.id],
+        `${who} is booked ${what} ${words}`,
+        { from, to },
+      ),
+    ];
   }
-  return [a, b].map((own) => makeViolation('cross_firm', 'error', [own.stageId], [rid], [own.id],
-    `${who} is busy elsewhere ${words}`, { from, to }));
+  return [a, b].map((own) =>
+    makeViolation('cross_firm', 'error', [own.stageId], [rid], [own.id], `${who} is busy elsewhere ${words}`, {
+      from,
+      to,
+    }),
+  );
 }
 
 /**
@@ -58,9 +79,15 @@ export function resourcePairViolations(index: BoardIndex, x: Booking, y: Booking
 export function personPairViolation(index: BoardIndex, personId: string, x: Booking, y: Booking): Violation {
   const [a, b] = ordered(x, y);
   const { from, to, words } = overlapWords(index, a.resourceId, a, b);
-  return makeViolation('person_double', 'error', [a.stageId, b.stageId], [a.resourceId, b.resourceId], [a.id, b.id],
+  return makeViolation(
+    'person_double',
+    'error',
+    [a.stageId, b.stageId],
+    [a.resourceId, b.resourceId],
+    [a.id, b.id],
     `${capitalise(resourceLabel(index, personId))} would be in two places ${words}: with ${resourceLabel(index, a.resourceId)} on ${stageLabel(index, a.stageId)}${onJob(index, a, b)} and with ${resourceLabel(index, b.resourceId)} on ${stageLabel(index, b.stageId)}${onJob(index, b, a)}`,
-    { personId, from, to });
+    { personId, from, to },
+  );
 }
 
 /** Calls `visit` for every overlapping pair in a list sorted by start (sweep, O(n log n + pairs)). */
@@ -95,12 +122,15 @@ export function overlappingPairs(bookings: readonly Booking[]): [Booking, Bookin
   for (const b of bookings) {
     if (b.state === 'declined') continue;
     const l = byResource.get(b.resourceId);
-    if (l === undefined) byResource.set(b.resourceId, [b]); else l.push(b);
+    if (l === undefined) byResource.set(b.resourceId, [b]);
+    else l.push(b);
   }
   const out: [Booking, Booking][] = [];
   for (const list of byResource.values()) {
     list.sort(compareBookings);
-    sweep(list, (a, b) => { out.push([a, b]); });
+    sweep(list, (a, b) => {
+      out.push([a, b]);
+    });
   }
   return out;
 }
@@ -115,7 +145,9 @@ export function overlappingPairs(bookings: readonly Booking[]): [Booking, Bookin
 export function checkAllResourceClashes(index: BoardIndex): Violation[] {
   const out: Violation[] = [];
   for (const { list } of index.bookingsByResource.values()) {
-    sweep(list, (a, b) => { for (const v of resourcePairViolations(index, a, b)) out.push(v); });
+    sweep(list, (a, b) => {
+      for (const v of resourcePairViolations(index, a, b)) out.push(v);
+    });
   }
   return out;
 }
@@ -134,7 +166,9 @@ export function checkAllPersonDoubles(index: BoardIndex): Violation[] {
     const all: Booking[] = [];
     for (const rid of rids) for (const b of index.bookingsByResource.get(rid)?.list ?? []) all.push(b);
     all.sort(compareBookings);
-    sweep(all, (a, b) => { if (a.resourceId !== b.resourceId) out.push(personPairViolation(index, personId, a, b)); });
+    sweep(all, (a, b) => {
+      if (a.resourceId !== b.resourceId) out.push(personPairViolation(index, personId, a, b));
+    });
   }
   return out;
 }
@@ -146,15 +180,23 @@ export function checkAllPersonDoubles(index: BoardIndex): Violation[] {
  * @example
  * overlappingOnResource(index, 'crane-1', start, end, 'lift-1')
  */
-export function overlappingOnResource(index: BoardIndex, resourceId: string, start: number, end: number, skipStageId: string): Booking[] {
+export function overlappingOnResource(
+  index: BoardIndex,
+  resourceId: string,
+  start: number,
+  end: number,
+  skipStageId: string,
+): Booking[] {
   const rb = index.bookingsByResource.get(resourceId);
   if (rb === undefined) return [];
   const { list, maxLength } = rb;
   const lowStart = start - maxLength;
-  let lo = 0, hi = list.length;
+  let lo = 0,
+    hi = list.length;
   while (lo < hi) {
     const mid = (lo + hi) >> 1;
-    if ((list[mid] as Booking).start <= lowStart) lo = mid + 1; else hi = mid;
+    if ((list[mid] as Booking).start <= lowStart) lo = mid + 1;
+    else hi = mid;
   }
   const out: Booking[] = [];
   for (let i = lo; i < list.length; i++) {

@@ -17,10 +17,12 @@ export function checkHire(index: BoardIndex, booking: Booking): Violation[] {
   if (periods.some((p) => p.onHire <= booking.start && booking.end <= p.offHire)) return [];
   const tz = resourceCalendarOf(index, r.id).timeZone;
   const who = capitalise(resourceLabel(index, r.id));
-  const message = periods.length === 0
-    ? `${who} is hired in but not on hire for ${stageLabel(index, booking.stageId)}`
-    : `${who} is booked for ${stageLabel(index, booking.stageId)} outside its hire (${periods
-      .map((p) => `${formatInstant(p.onHire, tz)} to ${formatInstant(p.offHire, tz)}`).join('; ')})`;
+  const message =
+    periods.length === 0
+      ? `${who} is hired in but not on hire for ${stageLabel(index, booking.stageId)}`
+      : `${who} is booked for ${stageLabel(index, booking.stageId)} outside its hire (${periods
+          .map((p) => `${formatInstant(p.onHire, tz)} to ${formatInstant(p.offHire, tz)}`)
+          .join('; ')})`;
   return [makeViolation('hire', 'error', [booking.stageId], [r.id], [booking.id], message)];
 }
 
@@ -40,11 +42,13 @@ export interface IdleHire {
  */
 export function idleHireDays(index: BoardIndex, period: HirePeriod): IdleHire {
   const cal = resourceCalendarOf(index, period.resourceId);
-  const first = cal.dayOf(period.onHire), last = cal.dayOf(period.offHire - 1);
+  const first = cal.dayOf(period.onHire),
+    last = cal.dayOf(period.offHire - 1);
   const booked = new Set<number>();
   for (const b of index.bookingsByResource.get(period.resourceId)?.list ?? []) {
     if (b.end <= period.onHire || b.start >= period.offHire) continue;
-    const a = Math.max(cal.dayOf(b.start), first), z = Math.min(cal.dayOf(b.end - 1), last);
+    const a = Math.max(cal.dayOf(b.start), first),
+      z = Math.min(cal.dayOf(b.end - 1), last);
     for (let d = a; d <= z; d++) booked.add(d);
   }
   const idleDays: string[] = [];
@@ -74,9 +78,17 @@ export function checkIdleHire(index: BoardIndex): Violation[] {
     const idle = idleHireDays(index, p);
     if (idle.idleDays.length === 0) continue;
     const names = idle.idleDays.map((d) => formatInstant(Date.parse(`${d}T12:00:00Z`), 'UTC').slice(0, -6));
-    out.push(makeViolation('idle_hire', 'warning', [], [p.resourceId], [],
-      `${capitalise(resourceLabel(index, p.resourceId))} is on hire but idle on ${idle.idleDays.length} day${idle.idleDays.length === 1 ? '' : 's'} (${names.join(', ')}): ${formatPence(idle.costPence)} paid for nothing`,
-      { hirePeriodId: p.id, ...idle, dayRatePence: p.dayRatePence }));
+    out.push(
+      makeViolation(
+        'idle_hire',
+        'warning',
+        [],
+        [p.resourceId],
+        [],
+        `${capitalise(resourceLabel(index, p.resourceId))} is on hire but idle on ${idle.idleDays.length} day${idle.idleDays.length === 1 ? '' : 's'} (${names.join(', ')}): ${formatPence(idle.costPence)} paid for nothing`,
+        { hirePeriodId: p.id, ...idle, dayRatePence: p.dayRatePence },
+      ),
+    );
   }
   return out;
 }

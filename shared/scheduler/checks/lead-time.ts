@@ -15,7 +15,10 @@ export function noticeWords(workingDays: number): string {
   return workingDays === 1 ? "1 working day's" : `${workingDays} working days'`;
 }
 
-interface RulesByStage { general: LeadTimeRule[]; byStage: Map<string, LeadTimeRule[]> }
+interface RulesByStage {
+  general: LeadTimeRule[];
+  byStage: Map<string, LeadTimeRule[]>;
+}
 
 const rulesCache = new WeakMap<readonly LeadTimeRule[], RulesByStage>();
 
@@ -36,7 +39,8 @@ export function leadTimeRulesOfStage(index: BoardIndex, stageId: string): LeadTi
       const { resourceKind, stageKind, stageId: id } = rule.appliesTo;
       if (id !== undefined) {
         const l = split.byStage.get(id);
-        if (l === undefined) split.byStage.set(id, [rule]); else l.push(rule);
+        if (l === undefined) split.byStage.set(id, [rule]);
+        else l.push(rule);
       } else if (resourceKind !== undefined || stageKind !== undefined) split.general.push(rule);
     }
     rulesCache.set(rules, split);
@@ -56,7 +60,9 @@ export function matchingLeadTimeRules(index: BoardIndex, booking: Booking): Lead
   const s = index.stages.get(booking.stageId)?.stage;
   return leadTimeRulesOfStage(index, booking.stageId).filter((rule) => {
     const { resourceKind, stageKind } = rule.appliesTo;
-    return (resourceKind === undefined || resourceKind === r?.kind) && (stageKind === undefined || stageKind === s?.kind);
+    return (
+      (resourceKind === undefined || resourceKind === r?.kind) && (stageKind === undefined || stageKind === s?.kind)
+    );
   });
 }
 
@@ -100,14 +106,28 @@ export function checkLeadTime(index: BoardIndex, booking: Booking): Violation[] 
   }
   if (worst === null) return [];
   const { rule, earliest } = worst;
-  const what = rule.appliesTo.resourceKind !== undefined
-    ? capitalise(resourceLabel(index, booking.resourceId))
-    : stageLabel(index, booking.stageId);
-  const fromWords = rule.from === 'order' ? (job?.orderedAt != null ? 'the order date' : 'today (the unit is not ordered yet)') : 'today';
+  const what =
+    rule.appliesTo.resourceKind !== undefined
+      ? capitalise(resourceLabel(index, booking.resourceId))
+      : stageLabel(index, booking.stageId);
+  const fromWords =
+    rule.from === 'order'
+      ? job?.orderedAt != null
+        ? 'the order date'
+        : 'today (the unit is not ordered yet)'
+      : 'today';
   // Counted from now the notice ends at an odd minute: say (and offer) the next booking step.
   const shown = roundUpToStep(earliest, cal.timeZone, index.stepMinutes);
   const why = rule.reason ? ` (${rule.reason})` : '';
-  return [makeViolation('lead_time', 'error', [booking.stageId], [booking.resourceId], [booking.id],
-    `${what} needs ${noticeWords(rule.workingDays)} notice from ${fromWords}${why}: the earliest start is ${formatInstant(shown, cal.timeZone)}`,
-    { earliest, earliestStart: shown, workingDays: rule.workingDays, from: rule.from })];
+  return [
+    makeViolation(
+      'lead_time',
+      'error',
+      [booking.stageId],
+      [booking.resourceId],
+      [booking.id],
+      `${what} needs ${noticeWords(rule.workingDays)} notice from ${fromWords}${why}: the earliest start is ${formatInstant(shown, cal.timeZone)}`,
+      { earliest, earliestStart: shown, workingDays: rule.workingDays, from: rule.from },
+    ),
+  ];
 }

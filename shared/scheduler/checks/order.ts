@@ -23,7 +23,12 @@ const WORDS = {
  * @example
  * checkDependency(index, { id: 'd1', fromStageId: 'base', toStageId: 'lift', type: 'FS', lag: { amount: 0, unit: 'working_hours' } }, bookingsOf)
  */
-export function checkDependency(index: BoardIndex, dep: Dependency, bookingsOf: BookingsOf, out: Violation[] = []): Violation[] {
+export function checkDependency(
+  index: BoardIndex,
+  dep: Dependency,
+  bookingsOf: BookingsOf,
+  out: Violation[] = [],
+): Violation[] {
   return checkDependencyBetween(index, dep, bookingsOf(dep.fromStageId), bookingsOf(dep.toStageId), out);
 }
 
@@ -34,11 +39,18 @@ export function checkDependency(index: BoardIndex, dep: Dependency, bookingsOf: 
  * checkDependencyBetween(index, dep, baseBookings, liftBookings, [])
  */
 export function checkDependencyBetween(
-  index: BoardIndex, dep: Dependency, pb: readonly Booking[], sb: readonly Booking[], out: Violation[] = [],
+  index: BoardIndex,
+  dep: Dependency,
+  pb: readonly Booking[],
+  sb: readonly Booking[],
+  out: Violation[] = [],
   from: Stage | undefined = index.stages.get(dep.fromStageId)?.stage,
 ): Violation[] {
   if (pb.length === 0 || sb.length === 0) return out;
-  const pStart = spanStart(pb), pEnd = spanEnd(pb), sStart = spanStart(sb), sEnd = spanEnd(sb);
+  const pStart = spanStart(pb),
+    pEnd = spanEnd(pb),
+    sStart = spanStart(sb),
+    sEnd = spanEnd(sb);
   const succCal = stageCalendarOf(index, dep.toStageId, sb);
   const tz = succCal.timeZone;
   const anchor = dep.type === 'FS' || dep.type === 'FF' ? pEnd : pStart;
@@ -47,20 +59,45 @@ export function checkDependencyBetween(
   if (subject < bound) {
     // Words only when there is something to say (no destructuring on the path every link takes).
     const [verb, done, does] = WORDS[dep.type];
-    const P = stageLabel(index, dep.fromStageId), S = stageLabel(index, dep.toStageId);
+    const P = stageLabel(index, dep.fromStageId),
+      S = stageLabel(index, dep.toStageId);
     const ids = [dep.fromStageId, dep.toStageId];
     const details: Record<string, unknown> = {
-      dependencyId: dep.id, type: dep.type, predecessorId: dep.fromStageId, successorId: dep.toStageId, earliest: bound, actual: subject,
+      dependencyId: dep.id,
+      type: dep.type,
+      predecessorId: dep.fromStageId,
+      successorId: dep.toStageId,
+      earliest: bound,
+      actual: subject,
     };
     // Where a person would book it: the bound rounded up to the booking step (the check itself is exact).
     const shown = roundUpToStep(bound, tz, index.stepMinutes);
     if (dep.type === 'FS' || dep.type === 'SS') details.earliestStart = shown;
     if (dep.lag.amount === 0) {
-      out.push(makeViolation('order', 'error', ids, [], [], `${S} can't ${verb} before ${P} has ${done} (${formatInstant(bound, tz)})`, details));
+      out.push(
+        makeViolation(
+          'order',
+          'error',
+          ids,
+          [],
+          [],
+          `${S} can't ${verb} before ${P} has ${done} (${formatInstant(bound, tz)})`,
+          details,
+        ),
+      );
     } else {
       const rel = dep.lag.amount > 0 ? 'after' : 'before';
-      out.push(makeViolation('lag', 'error', ids, [], [],
-        `${S} can't ${verb} before ${formatInstant(shown, tz)}: it must wait ${describeLag(dep.lag)} ${rel} ${P} ${does}`, details));
+      out.push(
+        makeViolation(
+          'lag',
+          'error',
+          ids,
+          [],
+          [],
+          `${S} can't ${verb} before ${formatInstant(shown, tz)}: it must wait ${describeLag(dep.lag)} ${rel} ${P} ${does}`,
+          details,
+        ),
+      );
     }
   }
   const cure = dep.waitsForCure === true ? from?.cure : undefined;
@@ -69,9 +106,23 @@ export function checkDependencyBetween(
     if (sStart < ex.releaseAt) {
       const S = stageLabel(index, dep.toStageId);
       const pct = Math.round(cure.targetFraction * 100);
-      out.push(makeViolation('cure', 'error', [dep.fromStageId, dep.toStageId], [], [],
-        `${S} can't start before the base has cured: ${pct}% strength is reached at ${formatInstant(ex.releaseAt, tz)}`,
-        { dependencyId: dep.id, predecessorId: dep.fromStageId, successorId: dep.toStageId, ...ex, earliestStart: roundUpToStep(ex.releaseAt, tz, index.stepMinutes) }));
+      out.push(
+        makeViolation(
+          'cure',
+          'error',
+          [dep.fromStageId, dep.toStageId],
+          [],
+          [],
+          `${S} can't start before the base has cured: ${pct}% strength is reached at ${formatInstant(ex.releaseAt, tz)}`,
+          {
+            dependencyId: dep.id,
+            predecessorId: dep.fromStageId,
+            successorId: dep.toStageId,
+            ...ex,
+            earliestStart: roundUpToStep(ex.releaseAt, tz, index.stepMinutes),
+          },
+        ),
+      );
     }
   }
   return out;
@@ -87,7 +138,11 @@ export function checkDependencyBetween(
  * earliestStartFromPredecessors(index, 'lift-1', 'crane-1', bookingsOf) // epoch ms
  */
 export function earliestStartFromPredecessors(
-  index: BoardIndex, stageId: string, resourceId: string, bookingsOf: BookingsOf, plan: UnbookedPlan = unbookedPlan(index, bookingsOf),
+  index: BoardIndex,
+  stageId: string,
+  resourceId: string,
+  bookingsOf: BookingsOf,
+  plan: UnbookedPlan = unbookedPlan(index, bookingsOf),
 ): number {
   const cal = resourceCalendarOf(index, resourceId);
   let t = Number.NEGATIVE_INFINITY;
@@ -99,7 +154,8 @@ export function earliestStartFromPredecessors(
       if (u !== null) p = { start: u.start, end: u.finish };
     }
     if (p === null) continue;
-    if (dep.type === 'FS' || dep.type === 'SS') t = Math.max(t, applyLag(cal, dep.type === 'FS' ? p.end : p.start, dep.lag));
+    if (dep.type === 'FS' || dep.type === 'SS')
+      t = Math.max(t, applyLag(cal, dep.type === 'FS' ? p.end : p.start, dep.lag));
     const cure = dep.waitsForCure === true ? index.stages.get(dep.fromStageId)?.stage.cure : undefined;
     if (cure) t = Math.max(t, releaseInstant(p.end, cureDays(cure)));
   }

@@ -38,25 +38,48 @@ const lastSplit = new WeakMap<BoardIndex, LastSplit>();
  * // "'Connect and certify' would be split over two working days (Fri 2 Oct 13:00 to Sat 3 Oct 08:30): …"
  */
 export function checkSplit(
-  index: BoardIndex, booking: Booking, stage: Stage | undefined = index.stages.get(booking.stageId)?.stage,
-  out: Violation[] = [], cal: CompiledCalendar = resourceCalendarOf(index, booking.resourceId),
+  index: BoardIndex,
+  booking: Booking,
+  stage: Stage | undefined = index.stages.get(booking.stageId)?.stage,
+  out: Violation[] = [],
+  cal: CompiledCalendar = resourceCalendarOf(index, booking.resourceId),
 ): Violation[] {
   // Work on site or done happened as it did: a planning rule has nothing to say to it (and must
   // not refuse marking its progress).
-  if (stage === undefined || booking.state === 'on_site' || booking.state === 'done' || !mustFitInOneDay(stage, cal)) return out;
+  if (stage === undefined || booking.state === 'on_site' || booking.state === 'done' || !mustFitInOneDay(stage, cal))
+    return out;
   // Most bookings start and end on one local day: two offset look-ups settle them.
   if (cal.dayOf(booking.start) === cal.dayOf(booking.end - 1)) return out;
   // A stage's bookings usually share their times (a lift's crane and pallet trucks): the words
   // worked out for one serve the next.
   const last = lastSplit.get(index);
-  if (last !== undefined && last.cal === cal && last.stage === stage && last.stageId === booking.stageId && last.start === booking.start && last.end === booking.end) {
+  if (
+    last !== undefined &&
+    last.cal === cal &&
+    last.stage === stage &&
+    last.stageId === booking.stageId &&
+    last.start === booking.start &&
+    last.end === booking.end
+  ) {
     if (last.message !== null) {
-      out.push(makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id], last.message, { ...last.details }));
+      out.push(
+        makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id], last.message, {
+          ...last.details,
+        }),
+      );
     }
     return out;
   }
   const days = workingDaysWithin(cal, booking.start, booking.end, 3);
-  const seen: LastSplit = { cal, stage, stageId: booking.stageId, start: booking.start, end: booking.end, message: null, details: {} };
+  const seen: LastSplit = {
+    cal,
+    stage,
+    stageId: booking.stageId,
+    start: booking.start,
+    end: booking.end,
+    message: null,
+    details: {},
+  };
   lastSplit.set(index, seen);
   if (days.length < 2) return out;
   if (workingMinutesBetween(cal, booking.start, booking.end) * MINUTE_MS === booking.end - booking.start) return out;
@@ -64,10 +87,15 @@ export function checkSplit(
   const need = stage.durationMinutes;
   const step = index.stepMinutes;
   let next: number | null = null;
-  try { next = bookableStart(cal, booking.start, { stepMinutes: step, fitMinutes: need }); } catch (e) { if (!(e instanceof SchedulerError)) throw e; }
+  try {
+    next = bookableStart(cal, booking.start, { stepMinutes: step, fitMinutes: need });
+  } catch (e) {
+    if (!(e instanceof SchedulerError)) throw e;
+  }
   const first = days[0] as number;
   const ivs = cal.dayIntervals(first);
-  const dayStart = ivs[0] as number, dayEnd = ivs[ivs.length - 1] as number;
+  const dayStart = ivs[0] as number,
+    dayEnd = ivs[ivs.length - 1] as number;
   let advice: string;
   const details: Record<string, unknown> = { neededMinutes: need, days: days.length };
   if (next === booking.start) {
@@ -77,15 +105,22 @@ export function checkSplit(
   } else {
     // The latest start on the first working day that still leaves the whole stage that day.
     const latest = roundDownToStep(addWorkingMinutes(cal, dayEnd, -need), tz, step);
-    const fits = latest >= dayStart && cal.dayOf(latest) === first && workingMinutesBetween(cal, latest, dayEnd) >= need;
+    const fits =
+      latest >= dayStart && cal.dayOf(latest) === first && workingMinutesBetween(cal, latest, dayEnd) >= need;
     const from = next === null ? null : formatInstant(next, tz);
-    advice = fits ? `start by ${formatInstant(latest, tz).slice(-5)}${from === null ? '' : ` or from ${from}`}` : from === null ? 'no later day has room for it' : `start from ${from}`;
+    advice = fits
+      ? `start by ${formatInstant(latest, tz).slice(-5)}${from === null ? '' : ` or from ${from}`}`
+      : from === null
+        ? 'no later day has room for it'
+        : `start from ${from}`;
     if (next !== null) details.earliestStart = next;
     if (fits) details.latestStartThatDay = latest;
   }
   const message = `${stageLabel(index, booking.stageId)} would be split over ${days.length === 2 ? 'two' : 'several'} working days (${formatInstant(booking.start, tz)} to ${formatInstant(booking.end, tz)}): its ${hours(need)} must be done within one working day — ${advice}`;
   seen.message = message;
   seen.details = details;
-  out.push(makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id], message, { ...details }));
+  out.push(
+    makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id], message, { ...details }),
+  );
   return out;
 }

@@ -16,7 +16,10 @@ import { unbookedPlan, unbookedViolationsOf } from '../unbooked.js';
  * checkBooking(index, booking)
  */
 export function checkBooking(
-  index: BoardIndex, booking: Booking, stage: Stage | undefined = index.stages.get(booking.stageId)?.stage, out: Violation[] = [],
+  index: BoardIndex,
+  booking: Booking,
+  stage: Stage | undefined = index.stages.get(booking.stageId)?.stage,
+  out: Violation[] = [],
 ): Violation[] {
   const r = index.resourceInfo.get(booking.resourceId);
   checkAvailability(index, booking, stage, out, r?.cal);
@@ -66,6 +69,14 @@ export function checkStageOwn(index: BoardIndex, stageId: string, bookingsOf: Bo
  * cycleViolations(index) // [{ kind: 'cycle', message: "These stages wait for each other in a circle: 'A', 'B'" }]
  */
 export function cycleViolations(index: BoardIndex): Violation[] {
-  return index.cycles.map((ids) => makeViolation('cycle', 'error', ids, [], [],
-    `These stages wait for each other in a circle: ${ids.map((id) => stageLabel(index, id)).join(' → ')}`));
+  return index.cycles.map((ids) =>
+    makeViolation(
+      'cycle',
+      'error',
+      ids,
+      [],
+      [],
+      `These stages wait for each other in a circle: ${ids.map((id) => stageLabel(index, id)).join(' → ')}`,
+    ),
+  );
 }

@@ -11,11 +11,21 @@ export type BookingsOf = (stageId: string) => readonly Booking[];
  * makeViolation('clash', 'error', ['lift-1'], ['crane-1'], ['b1', 'b2'], 'The crane is booked twice')
  */
 export function makeViolation(
-  kind: ViolationKind, severity: Severity, stageIds: string[], resourceIds: string[], bookingIds: string[],
-  message: string, details?: Record<string, unknown>,
+  kind: ViolationKind,
+  severity: Severity,
+  stageIds: string[],
+  resourceIds: string[],
+  bookingIds: string[],
+  message: string,
+  details?: Record<string, unknown>,
 ): Violation {
   const v: Violation = {
-    kind, severity, stageIds: uniqueSorted(stageIds), resourceIds: uniqueSorted(resourceIds), bookingIds: uniqueSorted(bookingIds), message,
+    kind,
+    severity,
+    stageIds: uniqueSorted(stageIds),
+    resourceIds: uniqueSorted(resourceIds),
+    bookingIds: uniqueSorted(bookingIds),
+    message,
   };
   if (details !== undefined) v.details = details;
   return v;
@@ -51,7 +61,8 @@ const COMMA = 44; // ','
 function compareIdLists(x: readonly string[], y: readonly string[]): number {
   const n = Math.min(x.length, y.length);
   for (let i = 0; i < n; i++) {
-    const a = x[i] as string, b = y[i] as string;
+    const a = x[i] as string,
+      b = y[i] as string;
     if (a === b) continue;
     // The texts differ inside these ids unless one is a prefix of the other; then the shorter
     // one's separator meets the longer one's next character.
@@ -60,7 +71,8 @@ function compareIdLists(x: readonly string[], y: readonly string[]): number {
       const d = a.charCodeAt(k) - b.charCodeAt(k);
       if (d !== 0) return d;
     }
-    const sepA = i + 1 < x.length ? COMMA : BAR, sepB = i + 1 < y.length ? COMMA : BAR;
+    const sepA = i + 1 < x.length ? COMMA : BAR,
+      sepB = i + 1 < y.length ? COMMA : BAR;
     const d = a.length < b.length ? sepA - b.charCodeAt(m) : a.charCodeAt(m) - sepB;
     return d === 0 ? Number.NaN : d;
   }
@@ -96,7 +108,8 @@ export function compareViolations(a: Violation, b: Violation): number {
     if (d === 0) return a.message < b.message ? -1 : a.message > b.message ? 1 : 0;
   }
   if (Number.isNaN(d)) {
-    const ka = violationKey(a), kb = violationKey(b);
+    const ka = violationKey(a),
+      kb = violationKey(b);
     return ka < kb ? -1 : ka > kb ? 1 : 0;
   }
   return d;

@@ -39,7 +39,8 @@ export interface PlanModel {
 }
 
 function gcd(a: number, b: number): number {
-  a = Math.abs(Math.round(a)); b = Math.abs(Math.round(b));
+  a = Math.abs(Math.round(a));
+  b = Math.abs(Math.round(b));
   while (b > 0) [a, b] = [b, a % b];
   return a;
 }
@@ -50,10 +51,14 @@ const MAX_SLOTS = 60_000;
 function lagMinutes(dep: Dependency, dayMinutes: number, workShare: number): number {
   const a = dep.lag.amount;
   switch (dep.lag.unit) {
-    case 'working_hours': return a * 60;
-    case 'working_days': return a * dayMinutes;
-    case 'elapsed_hours': return a * 60 * workShare;
-    case 'elapsed_days': return a * 1440 * workShare;
+    case 'working_hours':
+      return a * 60;
+    case 'working_days':
+      return a * dayMinutes;
+    case 'elapsed_hours':
+      return a * 60 * workShare;
+    case 'elapsed_days':
+      return a * 1440 * workShare;
   }
 }
 
@@ -72,7 +77,12 @@ export function buildPlanModel(index: BoardIndex, stages: Stage[], earliest: (s:
 
   const kinds: string[] = [];
   const kindIx = new Map<string, number>();
-  for (const s of stages) for (const r of s.requirements) if (!kindIx.has(r.kind)) { kindIx.set(r.kind, kinds.length); kinds.push(r.kind); }
+  for (const s of stages)
+    for (const r of s.requirements)
+      if (!kindIx.has(r.kind)) {
+        kindIx.set(r.kind, kinds.length);
+        kinds.push(r.kind);
+      }
 
   const releaseMin = stages.map((s) => axis(earliest(s)));
   const durMin = stages.map((s) => s.durationMinutes);
@@ -83,9 +93,18 @@ export function buildPlanModel(index: BoardIndex, stages: Stage[], earliest: (s:
       const i = pos.get(l.from.stage.id);
       if (i === undefined || i === j) continue;
       const lag = lagMinutes(l.dep, dayMinutes, workShare);
-      const cure = l.dep.waitsForCure === true && l.from.stage.cure ? cureElapsedDays(l.from.stage.cure) * 1440 * workShare : 0;
-      const di = durMin[i] as number, dj = durMin[j] as number;
-      const delta = l.dep.type === 'FS' ? di + Math.max(lag, cure) : l.dep.type === 'SS' ? lag : l.dep.type === 'FF' ? di - dj + lag : lag - dj;
+      const cure =
+        l.dep.waitsForCure === true && l.from.stage.cure ? cureElapsedDays(l.from.stage.cure) * 1440 * workShare : 0;
+      const di = durMin[i] as number,
+        dj = durMin[j] as number;
+      const delta =
+        l.dep.type === 'FS'
+          ? di + Math.max(lag, cure)
+          : l.dep.type === 'SS'
+            ? lag
+            : l.dep.type === 'FF'
+              ? di - dj + lag
+              : lag - dj;
       links.push({ from: i, to: j, deltaMin: delta });
     }
   }
@@ -102,7 +121,8 @@ export function buildPlanModel(index: BoardIndex, stages: Stage[], earliest: (s:
       if (r.hired === true) {
         let t = 0;
         for (const p of index.hireByResource.get(r.id) ?? []) {
-          const a = axis(p.onHire), z = axis(p.offHire);
+          const a = axis(p.onHire),
+            z = axis(p.offHire);
           if (a > t) blocks.push({ k, from: t, to: a });
           t = Math.max(t, z);
         }
@@ -122,14 +142,19 @@ export function buildPlanModel(index: BoardIndex, stages: Stage[], earliest: (s:
   const job = new Int32Array(n);
   stages.forEach((s, i) => {
     let j = jobIx.get(s.jobId);
-    if (j === undefined) { j = jobIds.length; jobIx.set(s.jobId, j); jobIds.push(s.jobId); }
+    if (j === undefined) {
+      j = jobIds.length;
+      jobIx.set(s.jobId, j);
+      jobIds.push(s.jobId);
+    }
     job[i] = j;
   });
   const bookedFinishMin = jobIds.map(() => 0);
   for (const info of index.stageList) {
     const j = jobIx.get(info.stage.jobId);
     if (j === undefined) continue;
-    for (const b of bookingsOfStage(index, info.stage.id)) bookedFinishMin[j] = Math.max(bookedFinishMin[j] as number, axis(b.end));
+    for (const b of bookingsOfStage(index, info.stage.id))
+      bookedFinishMin[j] = Math.max(bookedFinishMin[j] as number, axis(b.end));
   }
   const promisedMin = jobIds.map((id) => {
     const p = index.jobs.get(id)?.promisedBy;
@@ -137,16 +162,21 @@ export function buildPlanModel(index: BoardIndex, stages: Stage[], earliest: (s:
   });
 
   let lastBlock = 0;
-  for (const b of blocks) if (Number.isFinite(b.to)) lastBlock = Math.max(lastBlock, b.to); else lastBlock = Math.max(lastBlock, b.from);
-  const span = Math.max(0, ...releaseMin, lastBlock, ...bookedFinishMin) + durMin.reduce((a, b) => a + b, 0)
-    + links.reduce((a, l) => a + Math.max(0, l.deltaMin), 0);
+  for (const b of blocks)
+    if (Number.isFinite(b.to)) lastBlock = Math.max(lastBlock, b.to);
+    else lastBlock = Math.max(lastBlock, b.from);
+  const span =
+    Math.max(0, ...releaseMin, lastBlock, ...bookedFinishMin) +
+    durMin.reduce((a, b) => a + b, 0) +
+    links.reduce((a, l) => a + Math.max(0, l.deltaMin), 0);
   // Coarsen the grid when the horizon would be too long to keep per-slot counts.
   while (toUnits(span) * Math.max(1, kinds.length) > MAX_SLOTS) unit *= 2;
   const horizon = toUnits(span) + 2;
   const avail = new Int32Array(horizon * kinds.length);
   kinds.forEach((_, k) => avail.fill(capacity[k] as number, k * horizon, (k + 1) * horizon));
   for (const b of blocks) {
-    const a = Math.max(0, Math.floor(b.from / unit)), z = Math.min(horizon, Number.isFinite(b.to) ? toUnits(b.to) : horizon);
+    const a = Math.max(0, Math.floor(b.from / unit)),
+      z = Math.min(horizon, Number.isFinite(b.to) ? toUnits(b.to) : horizon);
     for (let t = a; t < z; t++) avail[b.k * horizon + t] = Math.max(0, (avail[b.k * horizon + t] as number) - 1);
   }
 
@@ -157,11 +187,13 @@ export function buildPlanModel(index: BoardIndex, stages: Stage[], earliest: (s:
     (preds[l.to] as { from: number; delta: number }[]).push({ from: l.from, delta });
     (succs[l.from] as { to: number; delta: number }[]).push({ to: l.to, delta });
   }
-  const needs = stages.map((s) => s.requirements.flatMap((r): [number, number][] => {
-    const k = kindIx.get(r.kind) as number;
-    const c = Math.min(r.count, capacity[k] as number);
-    return c > 0 ? [[k, c]] : [];
-  }));
+  const needs = stages.map((s) =>
+    s.requirements.flatMap((r): [number, number][] => {
+      const k = kindIx.get(r.kind) as number;
+      const c = Math.min(r.count, capacity[k] as number);
+      return c > 0 ? [[k, c]] : [];
+    }),
+  );
 
   // Topological order (Kahn, smallest index first for determinism).
   const indeg = preds.map((p) => p.length);
@@ -175,8 +207,20 @@ export function buildPlanModel(index: BoardIndex, stages: Stage[], earliest: (s:
   for (let i = 0; i < n; i++) if (!topo.includes(i)) topo.push(i); // cannot happen without cycles; kept total
 
   return {
-    n, stages, job, jobIds, dur: Int32Array.from(durMin, toUnits), release: Int32Array.from(releaseMin, toUnits),
-    preds, succs, needs, kinds, avail, horizon, unitMinutes: unit, topo,
+    n,
+    stages,
+    job,
+    jobIds,
+    dur: Int32Array.from(durMin, toUnits),
+    release: Int32Array.from(releaseMin, toUnits),
+    preds,
+    succs,
+    needs,
+    kinds,
+    avail,
+    horizon,
+    unitMinutes: unit,
+    topo,
     promised: promisedMin.map((p) => (Number.isFinite(p) ? Math.floor(p / unit) : p)),
     bookedFinish: bookedFinishMin.map((m) => toUnits(m)),
   };

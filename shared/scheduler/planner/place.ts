@@ -1,4 +1,10 @@
-import { bookingsOfStage, compareBookings, resourceCalendarOf, stageCalendarOf, type BoardIndex } from '../board-index.js';
+import {
+  bookingsOfStage,
+  compareBookings,
+  resourceCalendarOf,
+  stageCalendarOf,
+  type BoardIndex,
+} from '../board-index.js';
 import { bookableStart, mustFitInOneDay } from '../booking-step.js';
 import { addWorkingMinutes, isWorkingInstant } from '../calendar.js';
 import { overlappingOnResource } from '../checks/clash.js';
@@ -37,12 +43,17 @@ function insertBooking(index: BoardIndex, b: Booking): void {
   const info = index.stages.get(b.stageId);
   if (info !== undefined) info.bookings = [...info.bookings, b].sort((x, y) => (x.id < y.id ? -1 : 1));
   let rb = index.bookingsByResource.get(b.resourceId);
-  if (rb === undefined) { rb = { list: [], maxLength: 0 }; index.bookingsByResource.set(b.resourceId, rb); }
+  if (rb === undefined) {
+    rb = { list: [], maxLength: 0 };
+    index.bookingsByResource.set(b.resourceId, rb);
+  }
   const list = rb.list;
-  let lo = 0, hi = list.length;
+  let lo = 0,
+    hi = list.length;
   while (lo < hi) {
     const mid = (lo + hi) >> 1;
-    if (compareBookings(list[mid] as Booking, b) < 0) lo = mid + 1; else hi = mid;
+    if (compareBookings(list[mid] as Booking, b) < 0) lo = mid + 1;
+    else hi = mid;
   }
   list.splice(lo, 0, b);
   rb.maxLength = Math.max(rb.maxLength, b.end - b.start);
@@ -59,17 +70,33 @@ function removeBooking(index: BoardIndex, b: Booking): void {
   }
 }
 
-function candidatesFor(index: BoardIndex, kind: string, firmId: string | undefined, preferred: ReadonlySet<string> | undefined): Resource[] {
+function candidatesFor(
+  index: BoardIndex,
+  kind: string,
+  firmId: string | undefined,
+  preferred: ReadonlySet<string> | undefined,
+): Resource[] {
   // The job's own firm first, owned before hired, then by id: cheapest and closest first. The
   // planner puts a job's own crew of that kind before the rest, so a job keeps its people.
-  return (index.resourcesByKind.get(kind) ?? []).slice().sort((a, b) =>
-    (preferred === undefined ? 0 : Number(!preferred.has(a.id)) - Number(!preferred.has(b.id)))
-    || Number(a.firmId !== firmId) - Number(b.firmId !== firmId) || Number(a.hired === true) - Number(b.hired === true) || (a.id < b.id ? -1 : 1));
+  return (index.resourcesByKind.get(kind) ?? [])
+    .slice()
+    .sort(
+      (a, b) =>
+        (preferred === undefined ? 0 : Number(!preferred.has(a.id)) - Number(!preferred.has(b.id))) ||
+        Number(a.firmId !== firmId) - Number(b.firmId !== firmId) ||
+        Number(a.hired === true) - Number(b.hired === true) ||
+        (a.id < b.id ? -1 : 1),
+    );
 }
 
 /** Tries every requirement at one start; returns the bookings or the refusals met. */
 function tryAt(
-  index: BoardIndex, stage: Stage, t: Instant, firmId: string, seq: { n: number }, preferred: ReadonlySet<string> | undefined,
+  index: BoardIndex,
+  stage: Stage,
+  t: Instant,
+  firmId: string,
+  seq: { n: number },
+  preferred: ReadonlySet<string> | undefined,
 ): { bookings: Booking[] | null; refusals: Violation[] } {
   const chosen: Booking[] = [];
   const refusals: Violation[] = [];
@@ -82,21 +109,41 @@ function tryAt(
       // Cheap refusals first (not working, not on hire, already booked); the full check follows.
       if (!isWorkingInstant(cal, t)) continue;
       const end = addWorkingMinutes(cal, t, stage.durationMinutes);
-      if (r.hired === true && !(index.hireByResource.get(r.id) ?? []).some((p) => p.onHire <= t && end <= p.offHire)) continue;
+      if (r.hired === true && !(index.hireByResource.get(r.id) ?? []).some((p) => p.onHire <= t && end <= p.offHire))
+        continue;
       const busy = overlappingOnResource(index, r.id, t, end, stage.id);
       if (busy.length > 0) {
         const until = Math.max(...busy.map((o) => o.end));
-        refusals.push(makeViolation('clash', 'error', [stage.id], [r.id], [],
-          `${capitalise(resourceLabel(index, r.id))} is busy until ${formatInstant(until, cal.timeZone)}`, { to: until }));
+        refusals.push(
+          makeViolation(
+            'clash',
+            'error',
+            [stage.id],
+            [r.id],
+            [],
+            `${capitalise(resourceLabel(index, r.id))} is busy until ${formatInstant(until, cal.timeZone)}`,
+            { to: until },
+          ),
+        );
         continue;
       }
       const b: Booking = {
-        id: `auto:${stage.id}:${seq.n + chosen.length}`, stageId: stage.id, resourceId: r.id, start: t,
-        end: end > t ? end : t + 60_000, state: 'pencilled', installerFirmId: firmId,
+        id: `auto:${stage.id}:${seq.n + chosen.length}`,
+        stageId: stage.id,
+        resourceId: r.id,
+        start: t,
+        end: end > t ? end : t + 60_000,
+        state: 'pencilled',
+        installerFirmId: firmId,
       };
       const trial = [...chosen, b];
-      const errs = checkStageBookings(index, stage.id, trial, { errorsOnly: true }).filter((v) => v.kind !== 'capacity');
-      if (errs.length === 0) { chosen.push(b); got++; } else refusals.push(...errs);
+      const errs = checkStageBookings(index, stage.id, trial, { errorsOnly: true }).filter(
+        (v) => v.kind !== 'capacity',
+      );
+      if (errs.length === 0) {
+        chosen.push(b);
+        got++;
+      } else refusals.push(...errs);
     }
     if (got < req.count) return { bookings: null, refusals };
   }
@@ -114,8 +161,20 @@ export function firstPossibleStart(index: BoardIndex, stage: Stage): Instant {
   const bookingsOf: BookingsOf = (id) => bookingsOfStage(index, id);
   let t0 = index.now;
   if (first !== undefined) {
-    const probe: Booking = { id: 'probe', stageId: stage.id, resourceId: first.id, start: t0, end: t0 + 1, state: 'pencilled', installerFirmId: firmId };
-    t0 = Math.max(t0, earliestStartFromPredecessors(index, stage.id, first.id, bookingsOf), leadTimeEarliest(index, probe));
+    const probe: Booking = {
+      id: 'probe',
+      stageId: stage.id,
+      resourceId: first.id,
+      start: t0,
+      end: t0 + 1,
+      state: 'pencilled',
+      installerFirmId: firmId,
+    };
+    t0 = Math.max(
+      t0,
+      earliestStartFromPredecessors(index, stage.id, first.id, bookingsOf),
+      leadTimeEarliest(index, probe),
+    );
   }
   return t0;
 }
@@ -126,11 +185,23 @@ export function firstPossibleStart(index: BoardIndex, stage: Stage): Instant {
  * where every requirement gets enough resources and no error check fails.
  */
 export function placeStages(
-  index: BoardIndex, stages: readonly Stage[], horizonDays: number, before: Before, options: { keepCrew?: boolean } = {},
+  index: BoardIndex,
+  stages: readonly Stage[],
+  horizonDays: number,
+  before: Before,
+  options: { keepCrew?: boolean } = {},
 ): Placement {
   const horizon = horizonDays * DAY_MS;
   const pending = new Map(stages.map((s) => [s.id, s]));
-  const out: Placement = { bookings: [], placed: [], unplaced: [], order: [], undo: () => { for (const b of out.bookings) removeBooking(index, b); } };
+  const out: Placement = {
+    bookings: [],
+    placed: [],
+    unplaced: [],
+    order: [],
+    undo: () => {
+      for (const b of out.bookings) removeBooking(index, b);
+    },
+  };
   const failed = new Set<string>();
   const booked = (id: string): boolean => bookingsOfStage(index, id).length > 0;
   const seq = { n: 0 };
@@ -156,7 +227,12 @@ export function placeStages(
         const p = waiting.from.stage.id;
         if (!pending.has(p) && blocked === undefined) {
           const name = index.stages.get(p)?.stage.name ?? p;
-          blocked = { stage: s, reason: failed.has(p) ? `It waits for '${name}', which couldn't be placed` : `It waits for '${name}', which has no booking` };
+          blocked = {
+            stage: s,
+            reason: failed.has(p)
+              ? `It waits for '${name}', which couldn't be placed`
+              : `It waits for '${name}', which has no booking`,
+          };
         }
         continue;
       }
@@ -185,14 +261,19 @@ export function placeStages(
     const preferred = options.keepCrew === true ? crewOf.get(stage.jobId) : undefined;
     while (t < limit) {
       const tried = tryAt(index, stage, t, firmId, seq, preferred);
-      if (tried.bookings !== null) { placed = tried.bookings; break; }
+      if (tried.bookings !== null) {
+        placed = tried.bookings;
+        break;
+      }
       lastRefusals = tried.refusals;
       if (laterCannotHelp(stage.id, tried.refusals)) break;
       t = at(nextCandidate(cal, t, tried.refusals));
     }
     if (placed === null) {
       failed.add(stage.id);
-      const why = lastRefusals[0]?.message ?? `no ${stage.requirements.map((r) => r.kind.replace(/_/g, ' ')).join(' and ')} on the board`;
+      const why =
+        lastRefusals[0]?.message ??
+        `no ${stage.requirements.map((r) => r.kind.replace(/_/g, ' ')).join(' and ')} on the board`;
       out.unplaced.push({ stageId: stage.id, reason: `No slot within ${horizonDays} days; the last refusal: ${why}` });
       continue;
     }
@@ -206,7 +287,12 @@ export function placeStages(
         crewOf.set(stage.jobId, set);
       }
     }
-    out.placed.push({ stageId: stage.id, start: t, end: Math.max(...placed.map((b) => b.end)), resourceIds: placed.map((b) => b.resourceId) });
+    out.placed.push({
+      stageId: stage.id,
+      start: t,
+      end: Math.max(...placed.map((b) => b.end)),
+      resourceIds: placed.map((b) => b.resourceId),
+    });
   }
   return out;
 }
@@ -235,11 +321,16 @@ export function planCosts(index: BoardIndex, stages: readonly Stage[], unplaced:
       }
     }
   }
-  let lateJobs = 0, latenessMinutes = 0, finishMinutes = 0;
+  let lateJobs = 0,
+    latenessMinutes = 0,
+    finishMinutes = 0;
   for (const [jobId, f] of finish) {
     finishMinutes += Math.max(0, Math.round((f - index.now) / 60_000));
     const p = index.jobs.get(jobId)?.promisedBy;
-    if (p !== undefined && p !== null && f > p) { lateJobs++; latenessMinutes += Math.round((f - p) / 60_000); }
+    if (p !== undefined && p !== null && f > p) {
+      lateJobs++;
+      latenessMinutes += Math.round((f - p) / 60_000);
+    }
   }
   const kinds = new Set(stages.flatMap((s) => s.requirements.map((r) => r.kind)));
   let idleHirePence = 0;
@@ -253,6 +344,12 @@ export function planCosts(index: BoardIndex, stages: readonly Stage[], unplaced:
 
 /** Negative when `a` is the better plan: fewer unplaced stages, then the order of {@link PlanCosts}. */
 export function comparePlanCosts(a: PlanCosts, b: PlanCosts): number {
-  return a.unplacedStages - b.unplacedStages || a.lateJobs - b.lateJobs || a.latenessMinutes - b.latenessMinutes
-    || a.finishMinutes - b.finishMinutes || a.idleHirePence - b.idleHirePence || a.crewChanges - b.crewChanges;
+  return (
+    a.unplacedStages - b.unplacedStages ||
+    a.lateJobs - b.lateJobs ||
+    a.latenessMinutes - b.latenessMinutes ||
+    a.finishMinutes - b.finishMinutes ||
+    a.idleHirePence - b.idleHirePence ||
+    a.crewChanges - b.crewChanges
+  );
 }

@@ -43,7 +43,10 @@ export interface SearchOptions {
 }
 
 /** A plan the search found: its list (start order) and its schedule. */
-export interface Candidate extends Schedule { list: number[]; key: string }
+export interface Candidate extends Schedule {
+  list: number[];
+  key: string;
+}
 
 /**
  * Work units per millisecond of budget, measured on the development machine (two shared cores,
@@ -53,7 +56,10 @@ export interface Candidate extends Schedule { list: number[]; key: string }
  */
 export const WORK_PER_MS = 25_000;
 
-interface Times { es: Int32Array; lf: Int32Array }
+interface Times {
+  es: Int32Array;
+  lf: Int32Array;
+}
 
 function timesOf(m: PlanModel): Times {
   const es = new Int32Array(m.n);
@@ -63,13 +69,18 @@ function timesOf(m: PlanModel): Times {
     es[j] = t;
   }
   const jobEnd = m.bookedFinish.slice();
-  for (let j = 0; j < m.n; j++) jobEnd[m.job[j] as number] = Math.max(jobEnd[m.job[j] as number] as number, (es[j] as number) + (m.dur[j] as number));
+  for (let j = 0; j < m.n; j++)
+    jobEnd[m.job[j] as number] = Math.max(
+      jobEnd[m.job[j] as number] as number,
+      (es[j] as number) + (m.dur[j] as number),
+    );
   const lf = new Int32Array(m.n);
   for (let i = m.topo.length - 1; i >= 0; i--) {
     const j = m.topo[i] as number;
     const g = m.job[j] as number;
     let t = Math.min(jobEnd[g] as number, Math.max(m.promised[g] as number, (es[j] as number) + (m.dur[j] as number)));
-    for (const q of m.succs[j] as { to: number; delta: number }[]) t = Math.min(t, (lf[q.to] as number) - (m.dur[q.to] as number) - q.delta + (m.dur[j] as number));
+    for (const q of m.succs[j] as { to: number; delta: number }[])
+      t = Math.min(t, (lf[q.to] as number) - (m.dur[q.to] as number) - q.delta + (m.dur[j] as number));
     lf[j] = t;
   }
   return { es, lf };
@@ -86,17 +97,29 @@ function listBy(m: PlanModel, prio: ArrayLike<number>, rnd?: () => number, alpha
     let pick = 0;
     if (rnd === undefined) {
       for (let i = 1; i < eligible.length; i++) {
-        const a = eligible[i] as number, b = eligible[pick] as number;
-        if ((prio[a] as number) < (prio[b] as number) || ((prio[a] as number) === (prio[b] as number) && a < b)) pick = i;
+        const a = eligible[i] as number,
+          b = eligible[pick] as number;
+        if ((prio[a] as number) < (prio[b] as number) || ((prio[a] as number) === (prio[b] as number) && a < b))
+          pick = i;
       }
     } else {
       let worst = Number.NEGATIVE_INFINITY;
       for (const j of eligible) worst = Math.max(worst, prio[j] as number);
       let total = 0;
-      const w = eligible.map((j) => { const x = (worst - (prio[j] as number) + 1) ** alpha; total += x; return x; });
+      const w = eligible.map((j) => {
+        const x = (worst - (prio[j] as number) + 1) ** alpha;
+        total += x;
+        return x;
+      });
       let r = rnd() * total;
       pick = w.length - 1;
-      for (let i = 0; i < w.length; i++) { r -= w[i] as number; if (r < 0) { pick = i; break; } }
+      for (let i = 0; i < w.length; i++) {
+        r -= w[i] as number;
+        if (r < 0) {
+          pick = i;
+          break;
+        }
+      }
     }
     const j = eligible[pick] as number;
     eligible.splice(pick, 1);
@@ -111,15 +134,34 @@ function crossover(mother: number[], father: number[], q1: number, q2: number): 
   const n = mother.length;
   const taken = new Uint8Array(n);
   const child: number[] = [];
-  for (let i = 0; i < q1; i++) { const j = mother[i] as number; child.push(j); taken[j] = 1; }
-  for (const j of father) { if (child.length >= q2) break; if (taken[j] === 0) { child.push(j); taken[j] = 1; } }
-  for (const j of mother) if (taken[j] === 0) { child.push(j); taken[j] = 1; }
+  for (let i = 0; i < q1; i++) {
+    const j = mother[i] as number;
+    child.push(j);
+    taken[j] = 1;
+  }
+  for (const j of father) {
+    if (child.length >= q2) break;
+    if (taken[j] === 0) {
+      child.push(j);
+      taken[j] = 1;
+    }
+  }
+  for (const j of mother)
+    if (taken[j] === 0) {
+      child.push(j);
+      taken[j] = 1;
+    }
   return child;
 }
 
 function linked(m: PlanModel): (a: number, b: number) => boolean {
   const set = new Set<number>();
-  m.succs.forEach((qs, j) => { for (const q of qs) { set.add(j * m.n + q.to); set.add(q.to * m.n + j); } });
+  m.succs.forEach((qs, j) => {
+    for (const q of qs) {
+      set.add(j * m.n + q.to);
+      set.add(q.to * m.n + j);
+    }
+  });
   return (a, b) => set.has(a * m.n + b);
 }
 
@@ -147,7 +189,12 @@ export function searchPlans(m: PlanModel, options: SearchOptions, keep = 3): Can
   // A small problem is searched out long before a big budget is spent: stop when nothing better has
   // turned up for a while (common practice, no source).
   const stall = Math.max(100, 20 * m.n);
-  const report = (): void => options.onProgress?.({ schedules, used: Math.min(1, work.done / Math.max(1, options.workLimit)), best: (pool[0]?.cost ?? []).slice() });
+  const report = (): void =>
+    options.onProgress?.({
+      schedules,
+      used: Math.min(1, work.done / Math.max(1, options.workLimit)),
+      best: (pool[0]?.cost ?? []).slice(),
+    });
   const consider = (list: number[]): Candidate => {
     schedules++;
     const improved = justify(m, serialSchedule(m, list, work), work);
@@ -165,7 +212,10 @@ export function searchPlans(m: PlanModel, options: SearchOptions, keep = 3): Can
     }
     return c;
   };
-  const done = (): boolean => work.done >= options.workLimit || schedules - lastGain > stall || (pool[0] !== undefined && compareCost(pool[0].cost, bound) <= 0);
+  const done = (): boolean =>
+    work.done >= options.workLimit ||
+    schedules - lastGain > stall ||
+    (pool[0] !== undefined && compareCost(pool[0].cost, bound) <= 0);
 
   const { es, lf } = timesOf(m);
   const ls = Int32Array.from(lf, (f, j) => f - (m.dur[j] as number));
@@ -182,17 +232,24 @@ export function searchPlans(m: PlanModel, options: SearchOptions, keep = 3): Can
       if (m.n <= 400) for (const x of reach[q.to] as Set<number>) r.add(x);
     }
     all[j] = -r.size;
-    weight[j] = -((m.dur[j] as number) + (m.succs[j] as { to: number }[]).reduce((a, q) => a + (m.dur[q.to] as number), 0));
+    weight[j] = -(
+      (m.dur[j] as number) + (m.succs[j] as { to: number }[]).reduce((a, q) => a + (m.dur[q.to] as number), 0)
+    );
   }
   const seedPop: Candidate[] = [];
   for (const l of options.seedLists ?? []) {
     // A partial list (stages the engine could not place are missing) is completed in link order.
     const rank = new Float64Array(m.n).fill(Number.POSITIVE_INFINITY);
-    l.forEach((j, i) => { rank[j] = i; });
+    l.forEach((j, i) => {
+      rank[j] = i;
+    });
     seedPop.push(consider(listBy(m, rank)));
     if (done()) break;
   }
-  for (const prio of [lf, ls, slack, all, weight]) { if (done()) break; seedPop.push(consider(listBy(m, prio))); }
+  for (const prio of [lf, ls, slack, all, weight]) {
+    if (done()) break;
+    seedPop.push(consider(listBy(m, prio)));
+  }
   report();
   const popSize = Math.max(8, Math.min(40, 2 * m.n));
   while (!done() && seedPop.length < popSize) seedPop.push(consider(listBy(m, lf, rnd, 1 + rnd())));
@@ -203,15 +260,20 @@ export function searchPlans(m: PlanModel, options: SearchOptions, keep = 3): Can
   let round = 0;
   while (!done()) {
     const pick = (): Candidate => {
-      const a = population[Math.floor(rnd() * population.length)] as Candidate, b = population[Math.floor(rnd() * population.length)] as Candidate;
+      const a = population[Math.floor(rnd() * population.length)] as Candidate,
+        b = population[Math.floor(rnd() * population.length)] as Candidate;
       return compareCost(a.cost, b.cost) <= 0 ? a : b;
     };
-    const mother = pick(), father = pick();
-    const q1 = Math.floor(rnd() * m.n), q2 = q1 + Math.floor(rnd() * (m.n - q1 + 1));
+    const mother = pick(),
+      father = pick();
+    const q1 = Math.floor(rnd() * m.n),
+      q2 = q1 + Math.floor(rnd() * (m.n - q1 + 1));
     const child = crossover(mother.list, father.list, q1, q2);
     for (let i = 0; i + 1 < child.length; i++) {
       if (rnd() < 0.05 && !adjacent(child[i] as number, child[i + 1] as number)) {
-        const x = child[i] as number; child[i] = child[i + 1] as number; child[i + 1] = x;
+        const x = child[i] as number;
+        child[i] = child[i + 1] as number;
+        child[i + 1] = x;
       }
     }
     // Now and then a fresh sample keeps the population from closing in on one plan.

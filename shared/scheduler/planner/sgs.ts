@@ -15,7 +15,9 @@ export interface Schedule {
 }
 
 /** Counts the inner work done, so budgets are counted in work and every run is repeatable. */
-export interface Work { done: number }
+export interface Work {
+  done: number;
+}
 
 function earliestFit(m: PlanModel, free: Int32Array, j: number, t: number, work: Work): number {
   const d = m.dur[j] as number;
@@ -26,7 +28,11 @@ function earliestFit(m: PlanModel, free: Int32Array, j: number, t: number, work:
     if (t + d > H) return t; // past the model's horizon: nothing more to count
     let clash = -1;
     for (let x = t + d - 1; x >= t && clash < 0; x--) {
-      for (const [k, c] of needs) if ((free[k * H + x] as number) < c) { clash = x; break; }
+      for (const [k, c] of needs)
+        if ((free[k * H + x] as number) < c) {
+          clash = x;
+          break;
+        }
     }
     work.done += d;
     if (clash < 0) return t;
@@ -44,7 +50,11 @@ function latestFit(m: PlanModel, free: Int32Array, j: number, t: number, lo: num
     if (t <= lo) return lo;
     let clash = -1;
     for (let x = t; x < t + d && clash < 0; x++) {
-      for (const [k, c] of needs) if ((free[k * H + x] as number) < c) { clash = x; break; }
+      for (const [k, c] of needs)
+        if ((free[k * H + x] as number) < c) {
+          clash = x;
+          break;
+        }
     }
     work.done += d;
     if (clash < 0) return t;
@@ -53,9 +63,11 @@ function latestFit(m: PlanModel, free: Int32Array, j: number, t: number, lo: num
 }
 
 function take(m: PlanModel, free: Int32Array, j: number, t: number): void {
-  const d = m.dur[j] as number, H = m.horizon;
+  const d = m.dur[j] as number,
+    H = m.horizon;
   if (t + d > H) return;
-  for (const [k, c] of m.needs[j] as [number, number][]) for (let x = t; x < t + d; x++) free[k * H + x] = (free[k * H + x] as number) - c;
+  for (const [k, c] of m.needs[j] as [number, number][])
+    for (let x = t; x < t + d; x++) free[k * H + x] = (free[k * H + x] as number) - c;
 }
 
 /**
@@ -65,13 +77,19 @@ function take(m: PlanModel, free: Int32Array, j: number, t: number): void {
 export function scheduleCost(m: PlanModel, start: Int32Array): number[] {
   const finish = m.bookedFinish.slice();
   for (let j = 0; j < m.n; j++) {
-    const f = (start[j] as number) + (m.dur[j] as number), g = m.job[j] as number;
+    const f = (start[j] as number) + (m.dur[j] as number),
+      g = m.job[j] as number;
     if (f > (finish[g] as number)) finish[g] = f;
   }
-  let late = 0, lateness = 0, sum = 0;
+  let late = 0,
+    lateness = 0,
+    sum = 0;
   finish.forEach((f, g) => {
     const p = m.promised[g] as number;
-    if (f > p) { late++; lateness += f - p; }
+    if (f > p) {
+      late++;
+      lateness += f - p;
+    }
     sum += f;
   });
   return [late, lateness, sum];
@@ -89,7 +107,8 @@ export function serialSchedule(m: PlanModel, list: readonly number[], work: Work
   const start = new Int32Array(m.n);
   for (const j of list) {
     let es = m.release[j] as number;
-    for (const p of m.preds[j] as { from: number; delta: number }[]) es = Math.max(es, (start[p.from] as number) + p.delta);
+    for (const p of m.preds[j] as { from: number; delta: number }[])
+      es = Math.max(es, (start[p.from] as number) + p.delta);
     const t = earliestFit(m, free, j, Math.max(0, es), work);
     start[j] = t;
     take(m, free, j, t);
@@ -105,7 +124,12 @@ function backwardPass(m: PlanModel, start: Int32Array, work: Work): Int32Array {
     jobEnd[g] = Math.max(jobEnd[g] as number, (s[j] as number) + (m.dur[j] as number));
   }
   const ids = Array.from({ length: m.n }, (_, j) => j);
-  ids.sort((a, b) => ((s[b] as number) + (m.dur[b] as number)) - ((s[a] as number) + (m.dur[a] as number)) || (s[b] as number) - (s[a] as number) || b - a);
+  ids.sort(
+    (a, b) =>
+      (s[b] as number) + (m.dur[b] as number) - ((s[a] as number) + (m.dur[a] as number)) ||
+      (s[b] as number) - (s[a] as number) ||
+      b - a,
+  );
   const free = m.avail.slice();
   for (const j of ids) {
     let lim = (jobEnd[m.job[j] as number] as number) - (m.dur[j] as number);
@@ -134,8 +158,12 @@ function forwardPass(m: PlanModel, start: Int32Array, work: Work): Int32Array {
 /** Activities by start, ties in topological order: a list the serial scheme turns back into the same or a better schedule. */
 export function startOrder(m: PlanModel, start: Int32Array): number[] {
   const rank = new Int32Array(m.n);
-  m.topo.forEach((j, i) => { rank[j] = i; });
-  return Array.from({ length: m.n }, (_, j) => j).sort((a, b) => (start[a] as number) - (start[b] as number) || (rank[a] as number) - (rank[b] as number));
+  m.topo.forEach((j, i) => {
+    rank[j] = i;
+  });
+  return Array.from({ length: m.n }, (_, j) => j).sort(
+    (a, b) => (start[a] as number) - (start[b] as number) || (rank[a] as number) - (rank[b] as number),
+  );
 }
 
 /** Forward–backward improvement, repeated while it helps (at most `rounds` times). */

@@ -27,9 +27,18 @@ export interface EventInput {
   classNames: string[];
   editable: boolean;
   extendedProps: {
-    bookingId: string; stageId: string; jobId: string; state: BookingState; elsewhere: boolean; problems: string[];
+    bookingId: string;
+    stageId: string;
+    jobId: string;
+    state: BookingState;
+    elsewhere: boolean;
+    problems: string[];
     /** What a booking's label shows: job reference, stage (name and kind), town, and its markers. */
-    reference: string; stageName: string; stageKind: string; town: string; markers: BookingMarker[];
+    reference: string;
+    stageName: string;
+    stageKind: string;
+    town: string;
+    markers: BookingMarker[];
   };
 }
 
@@ -60,23 +69,51 @@ export const STATE_LABELS: Record<BookingState, { label: string; symbol: string;
  * installed: the overdue clock is ◷ (U+25F7), not ⏰ (U+23F0).
  */
 export const BOOKING_MARKERS = {
-  problem: { symbol: '⚠', label: 'Problem', description: 'breaks a rule: open the job to see which', className: 'wl-has-problem' },
-  overdue: { symbol: '◷', label: 'Answer overdue', description: 'the partner has not answered by the reminder time', className: 'wl-overdue' },
-  proposed: { symbol: '⇄', label: 'Other time proposed', description: 'the partner proposed another time: open the job to accept or refuse it', className: 'wl-proposed' },
+  problem: {
+    symbol: '⚠',
+    label: 'Problem',
+    description: 'breaks a rule: open the job to see which',
+    className: 'wl-has-problem',
+  },
+  overdue: {
+    symbol: '◷',
+    label: 'Answer overdue',
+    description: 'the partner has not answered by the reminder time',
+    className: 'wl-overdue',
+  },
+  proposed: {
+    symbol: '⇄',
+    label: 'Other time proposed',
+    description: 'the partner proposed another time: open the job to accept or refuse it',
+    className: 'wl-proposed',
+  },
 } as const;
 export type BookingMarker = keyof typeof BOOKING_MARKERS;
 
 /** Blocks that are not this board's bookings: another installer's work, closures and absences, public holidays. */
 export const BOARD_BLOCKS = {
-  elsewhere: { label: 'Busy elsewhere', description: "booked by another installer (no details are shared)", className: 'wl-elsewhere' },
+  elsewhere: {
+    label: 'Busy elsewhere',
+    description: 'booked by another installer (no details are shared)',
+    className: 'wl-elsewhere',
+  },
   closed: { label: 'Not working', description: 'closure or absence', className: 'wl-closed' },
   holiday: { label: 'Public holiday', description: "a holiday in the resource's region", className: 'wl-holiday' },
 } as const;
 
 const KIND_LABELS: Record<string, string> = {
-  install_crew: 'install crew', groundworks_crew: 'groundworks crew', electrician: 'electrician', crane: 'crane',
-  excavator: 'excavator', dumper: 'dumper', pallet_truck: 'pallet truck', rollers: 'rollers', lorry: 'lorry', installer: 'installer',
-  lift_planner: 'lift planner', spoil_removal: 'skips / grab lorry',
+  install_crew: 'install crew',
+  groundworks_crew: 'groundworks crew',
+  electrician: 'electrician',
+  crane: 'crane',
+  excavator: 'excavator',
+  dumper: 'dumper',
+  pallet_truck: 'pallet truck',
+  rollers: 'rollers',
+  lorry: 'lorry',
+  installer: 'installer',
+  lift_planner: 'lift planner',
+  spoil_removal: 'skips / grab lorry',
 };
 
 /** The heading shown for a row group. */
@@ -97,9 +134,14 @@ export function kindLabel(kind: string): string {
   return KIND_LABELS[kind] ?? kind.replace(/_/g, ' ');
 }
 
-const hhmm = (minute: number) => `${String(Math.floor(minute / 60)).padStart(2, '0')}:${String(minute % 60).padStart(2, '0')}`;
+const hhmm = (minute: number) =>
+  `${String(Math.floor(minute / 60)).padStart(2, '0')}:${String(minute % 60).padStart(2, '0')}`;
 
-export interface RowFilter { firmIds?: string[]; kinds?: string[]; search?: string }
+export interface RowFilter {
+  firmIds?: string[];
+  kinds?: string[];
+  search?: string;
+}
 
 /** Rows for the timeline: grouped, filtered, with each resource's weekly hours as business hours. */
 export function rowsOf(data: BoardData, filter: RowFilter = {}): RowInput[] {
@@ -112,14 +154,31 @@ export function rowsOf(data: BoardData, filter: RowFilter = {}): RowInput[] {
     .map((r) => {
       const { group, order } = groupOf(r);
       const weekly = calendars.get(r.calendarId)?.weekly ?? [];
-      const businessHours = weekly.flatMap((ranges, day) => ranges.map(([a, b]) => ({ daysOfWeek: [day], startTime: hhmm(a), endTime: hhmm(b) })));
+      const businessHours = weekly.flatMap((ranges, day) =>
+        ranges.map(([a, b]) => ({ daysOfWeek: [day], startTime: hhmm(a), endTime: hhmm(b) })),
+      );
       // The timeline orders groups by their value: the order key leads it, the label follows.
-      return { id: r.id, title: r.name, group: `${order}|${group}`, groupOrder: order, kind: kindLabel(r.kind), firmId: r.firmId, businessHours };
+      return {
+        id: r.id,
+        title: r.name,
+        group: `${order}|${group}`,
+        groupOrder: order,
+        kind: kindLabel(r.kind),
+        firmId: r.firmId,
+        businessHours,
+      };
     })
-    .sort((a, b) => a.groupOrder.localeCompare(b.groupOrder) || a.kind.localeCompare(b.kind) || a.title.localeCompare(b.title));
+    .sort(
+      (a, b) =>
+        a.groupOrder.localeCompare(b.groupOrder) || a.kind.localeCompare(b.kind) || a.title.localeCompare(b.title),
+    );
 }
 
-export interface EventFilter { jobId?: string | null; states?: BookingState[]; search?: string }
+export interface EventFilter {
+  jobId?: string | null;
+  states?: BookingState[];
+  search?: string;
+}
 
 /** Problems per booking id, from the engine's violations. */
 export function problemsByBooking(violations: readonly Violation[]): Map<string, Violation[]> {
@@ -129,7 +188,15 @@ export function problemsByBooking(violations: readonly Violation[]): Map<string,
 }
 
 /** One event per booking; another installer's booking of a shared resource shows only as busy. */
-export function eventsOf(data: BoardData, options: { canEdit: boolean; problems?: Map<string, Violation[]>; filter?: EventFilter; /** Keep declined bookings (the board shows them, to rebook). */ declined?: boolean }): EventInput[] {
+export function eventsOf(
+  data: BoardData,
+  options: {
+    canEdit: boolean;
+    problems?: Map<string, Violation[]>;
+    filter?: EventFilter;
+    /** Keep declined bookings (the board shows them, to rebook). */ declined?: boolean;
+  },
+): EventInput[] {
   const stages = new Map<string, BoardStage>(data.stages.map((s) => [s.id, s]));
   const jobs = new Map<string, BoardJob>(data.jobs.map((j) => [j.id, j]));
   const search = options.filter?.search?.trim().toLowerCase();
@@ -143,34 +210,66 @@ export function eventsOf(data: BoardData, options: { canEdit: boolean; problems?
     if (!b.elsewhere && f?.jobId && job.id !== f.jobId) continue;
     if (!b.elsewhere && f?.states?.length && !f.states.includes(b.state)) continue;
     const title = b.elsewhere ? 'Busy elsewhere' : `${job.reference} · ${stage.name}`;
-    if (search && !b.elsewhere && !`${title} ${job.customerName} ${job.siteTown}`.toLowerCase().includes(search)) continue;
+    if (search && !b.elsewhere && !`${title} ${job.customerName} ${job.siteTown}`.toLowerCase().includes(search))
+      continue;
     // A busy-elsewhere block is another installer's: its problems are not this board's to show.
-    const problems = b.elsewhere ? [] : (options.problems?.get(b.id) ?? []).filter((v) => v.severity === 'error').map((v) => v.message);
+    const problems = b.elsewhere
+      ? []
+      : (options.problems?.get(b.id) ?? []).filter((v) => v.severity === 'error').map((v) => v.message);
     out.push(toEvent(b, title, stage, job, options.canEdit, problems));
   }
   return out;
 }
 
-function toEvent(b: BoardBooking, title: string, stage: BoardStage, job: BoardJob, canEdit: boolean, problems: string[]): EventInput {
+function toEvent(
+  b: BoardBooking,
+  title: string,
+  stage: BoardStage,
+  job: BoardJob,
+  canEdit: boolean,
+  problems: string[],
+): EventInput {
   const state = STATE_LABELS[b.state];
-  const markers = b.elsewhere ? [] : ([problems.length && 'problem', b.overdue && 'overdue', b.proposal && 'proposed'].filter(Boolean) as BookingMarker[]);
+  const markers = b.elsewhere
+    ? []
+    : ([problems.length && 'problem', b.overdue && 'overdue', b.proposal && 'proposed'].filter(
+        Boolean,
+      ) as BookingMarker[]);
   return {
     id: b.id,
     resourceId: b.resourceId,
     start: b.start,
     end: b.end,
-    title: b.elsewhere ? title : `${markers.map((m) => `${BOOKING_MARKERS[m].symbol} `).join('')}${state.symbol} ${title}`,
-    classNames: ['wl-booking', b.elsewhere ? BOARD_BLOCKS.elsewhere.className : `wl-state-${b.state}`, ...markers.map((m) => BOOKING_MARKERS[m].className)],
+    title: b.elsewhere
+      ? title
+      : `${markers.map((m) => `${BOOKING_MARKERS[m].symbol} `).join('')}${state.symbol} ${title}`,
+    classNames: [
+      'wl-booking',
+      b.elsewhere ? BOARD_BLOCKS.elsewhere.className : `wl-state-${b.state}`,
+      ...markers.map((m) => BOOKING_MARKERS[m].className),
+    ],
     editable: canEdit && !b.elsewhere && b.state !== 'done' && b.state !== 'on_site',
     extendedProps: {
-      bookingId: b.id, stageId: stage.id, jobId: job.id, state: b.state, elsewhere: Boolean(b.elsewhere), problems,
-      reference: job.reference, stageName: b.elsewhere ? title : stage.name, stageKind: stage.kind, town: job.siteTown, markers,
+      bookingId: b.id,
+      stageId: stage.id,
+      jobId: job.id,
+      state: b.state,
+      elsewhere: Boolean(b.elsewhere),
+      problems,
+      reference: job.reference,
+      stageName: b.elsewhere ? title : stage.name,
+      stageKind: stage.kind,
+      town: job.siteTown,
+      markers,
     },
   };
 }
 
 /** Calendar closures and absences as shaded blocks on the rows they apply to. */
-export function closuresOf(data: BoardData, holidays: { calendarId: string; start: number; end: number; name: string }[] = []): BackgroundInput[] {
+export function closuresOf(
+  data: BoardData,
+  holidays: { calendarId: string; start: number; end: number; name: string }[] = [],
+): BackgroundInput[] {
   const rowsByCalendar = new Map<string, string[]>();
   for (const r of data.resources) rowsByCalendar.set(r.calendarId, [...(rowsByCalendar.get(r.calendarId) ?? []), r.id]);
   const out: BackgroundInput[] = [];
@@ -179,13 +278,30 @@ export function closuresOf(data: BoardData, holidays: { calendarId: string; star
     if (!rows) continue;
     (c.closures ?? []).forEach((span, i) => {
       if (span.end > data.from && span.start < data.to) {
-        out.push({ id: `closure-${c.id}-${i}`, resourceIds: rows, start: span.start, end: span.end, display: 'background', classNames: [BOARD_BLOCKS.closed.className], title: BOARD_BLOCKS.closed.label });
+        out.push({
+          id: `closure-${c.id}-${i}`,
+          resourceIds: rows,
+          start: span.start,
+          end: span.end,
+          display: 'background',
+          classNames: [BOARD_BLOCKS.closed.className],
+          title: BOARD_BLOCKS.closed.label,
+        });
       }
     });
   }
   for (const h of holidays) {
     const rows = rowsByCalendar.get(h.calendarId);
-    if (rows) out.push({ id: `holiday-${h.calendarId}-${h.start}`, resourceIds: rows, start: h.start, end: h.end, display: 'background', classNames: [BOARD_BLOCKS.holiday.className], title: h.name });
+    if (rows)
+      out.push({
+        id: `holiday-${h.calendarId}-${h.start}`,
+        resourceIds: rows,
+        start: h.start,
+        end: h.end,
+        display: 'background',
+        classNames: [BOARD_BLOCKS.holiday.className],
+        title: h.name,
+      });
   }
   return out;
 }
@@ -194,23 +310,34 @@ export function closuresOf(data: BoardData, holidays: { calendarId: string; star
 export function trayOf(data: BoardData, order: (jobId: string) => string[]): { job: BoardJob; stages: BoardStage[] }[] {
   const booked = new Set(data.bookings.filter((b) => b.state !== 'declined').map((b) => b.stageId));
   const byJob = new Map<string, BoardStage[]>();
-  for (const s of data.stages) if (!booked.has(s.id) && s.kind !== 'elsewhere') byJob.set(s.jobId, [...(byJob.get(s.jobId) ?? []), s]);
+  for (const s of data.stages)
+    if (!booked.has(s.id) && s.kind !== 'elsewhere') byJob.set(s.jobId, [...(byJob.get(s.jobId) ?? []), s]);
   const jobs = new Map(data.jobs.map((j) => [j.id, j]));
   return [...byJob.entries()]
     .map(([jobId, stages]) => {
       const rank = new Map(order(jobId).map((id, i) => [id, i]));
-      return { job: jobs.get(jobId)!, stages: [...stages].sort((a, b) => (rank.get(a.id) ?? a.sequence) - (rank.get(b.id) ?? b.sequence)) };
+      return {
+        job: jobs.get(jobId)!,
+        stages: [...stages].sort((a, b) => (rank.get(a.id) ?? a.sequence) - (rank.get(b.id) ?? b.sequence)),
+      };
     })
     .filter((t) => t.job)
-    .sort((a, b) => (a.job.promisedBy ?? Infinity) - (b.job.promisedBy ?? Infinity) || a.job.reference.localeCompare(b.job.reference));
+    .sort(
+      (a, b) =>
+        (a.job.promisedBy ?? Infinity) - (b.job.promisedBy ?? Infinity) ||
+        a.job.reference.localeCompare(b.job.reference),
+    );
 }
 
 /**
  * The public holidays each calendar carries (the server lists them for the loaded range) that fall
  * within the board's range, as whole local days — the days the engine also treats as non-working.
  */
-export function holidaysOf(data: BoardData, toInstant: (timeZone: string, day: number, minute: number) => number,
-  dayOf: (y: number, m: number, d: number) => number): { calendarId: string; start: number; end: number; name: string }[] {
+export function holidaysOf(
+  data: BoardData,
+  toInstant: (timeZone: string, day: number, minute: number) => number,
+  dayOf: (y: number, m: number, d: number) => number,
+): { calendarId: string; start: number; end: number; name: string }[] {
   const out: { calendarId: string; start: number; end: number; name: string }[] = [];
   for (const c of data.calendars) {
     for (const h of c.holidays ?? []) {

@@ -19,7 +19,8 @@ export interface BoardPointer {
 export const POINTER_CLASSES = { highlight: 'wl-pointed', hire: 'wl-hire-band' } as const;
 
 const ID = /^[1-9]\d{0,17}$/;
-const first = (v: unknown): string => (typeof v === 'string' ? v : Array.isArray(v) && typeof v[0] === 'string' ? v[0] : '');
+const first = (v: unknown): string =>
+  typeof v === 'string' ? v : Array.isArray(v) && typeof v[0] === 'string' ? v[0] : '';
 
 /**
  * The pointer in a board URL's query; anything that is not a booking or hire id is ignored.
@@ -29,7 +30,14 @@ const first = (v: unknown): string => (typeof v === 'string' ? v : Array.isArray
  * pointerOf({ highlight: 'x,,31' })           // { highlight: ['31'], hireId: null }
  */
 export function pointerOf(query: Record<string, unknown>): BoardPointer {
-  const highlight = [...new Set(first(query.highlight).split(',').map((s) => s.trim()).filter((s) => ID.test(s)))];
+  const highlight = [
+    ...new Set(
+      first(query.highlight)
+        .split(',')
+        .map((s) => s.trim())
+        .filter((s) => ID.test(s)),
+    ),
+  ];
   const hire = first(query.hire).trim();
   return { highlight, hireId: ID.test(hire) ? hire : null };
 }
@@ -47,11 +55,22 @@ export const pointsAtAnything = (p: BoardPointer): boolean => p.highlight.length
 export function hireBand(data: BoardData, hireId: string | null): BackgroundInput | null {
   const hire = hireId === null ? undefined : data.hirePeriods.find((h) => h.id === hireId);
   if (!hire) return null;
-  return { id: `hire-${hire.id}`, resourceIds: [hire.resourceId], start: hire.onHire, end: hire.offHire, display: 'background', classNames: [POINTER_CLASSES.hire], title: 'On hire' };
+  return {
+    id: `hire-${hire.id}`,
+    resourceIds: [hire.resourceId],
+    start: hire.onHire,
+    end: hire.offHire,
+    display: 'background',
+    classNames: [POINTER_CLASSES.hire],
+    title: 'On hire',
+  };
 }
 
 /** Where the board should scroll to: the earliest outlined booking, else the hire's start. */
-export function pointerFocus(data: BoardData, p: BoardPointer): { resourceId: string; start: number; bookingId: string | null } | null {
+export function pointerFocus(
+  data: BoardData,
+  p: BoardPointer,
+): { resourceId: string; start: number; bookingId: string | null } | null {
   const wanted = new Set(p.highlight);
   const found = data.bookings.filter((b) => wanted.has(b.id)).sort((a, b) => a.start - b.start)[0];
   if (found) return { resourceId: found.resourceId, start: found.start, bookingId: found.id };
@@ -91,10 +110,12 @@ export function pointerNotice(data: BoardData, p: BoardPointer, timeZone: string
     bookings.push(`${what} on ${resource?.name ?? 'a resource'}, ${formatInstant(b.start, timeZone)}`);
   }
   const hire = p.hireId === null ? undefined : data.hirePeriods.find((h) => h.id === p.hireId);
-  const machine = hire ? data.resources.find((r) => r.id === hire.resourceId)?.name ?? 'the machine' : '';
+  const machine = hire ? (data.resources.find((r) => r.id === hire.resourceId)?.name ?? 'the machine') : '';
   return {
     bookings,
-    hire: hire ? `${machine}, on hire ${localParts(hire.onHire, timeZone).day} – ${localParts(hire.offHire - 1, timeZone).day}` : null,
+    hire: hire
+      ? `${machine}, on hire ${localParts(hire.onHire, timeZone).day} – ${localParts(hire.offHire - 1, timeZone).day}`
+      : null,
     missingBookings: p.highlight.length - bookings.length,
     missingHire: p.hireId !== null && !hire,
   };

@@ -6,11 +6,15 @@
 import type { WorkingCalendar } from '@shared/scheduler/index';
 
 /** The timeline's views: a day of hours, a week of mornings and afternoons, a fortnight and a month of days. */
-export type BoardViewName = 'resourceTimelineDay' | 'resourceTimelineWeek' | 'resourceTimelineFortnight' | 'resourceTimelineMonth';
+export type BoardViewName =
+  'resourceTimelineDay' | 'resourceTimelineWeek' | 'resourceTimelineFortnight' | 'resourceTimelineMonth';
 
 /** The `view` URL parameter. */
 export const VIEW_PARAM: Record<string, BoardViewName> = {
-  day: 'resourceTimelineDay', week: 'resourceTimelineWeek', fortnight: 'resourceTimelineFortnight', month: 'resourceTimelineMonth',
+  day: 'resourceTimelineDay',
+  week: 'resourceTimelineWeek',
+  fortnight: 'resourceTimelineFortnight',
+  month: 'resourceTimelineMonth',
 };
 
 /** The zoom levels in the order the switch shows them, with the word for one step of each. */
@@ -35,7 +39,20 @@ const DAY = 86_400_000;
 const WEEKDAYS = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'];
 const WEEKDAYS_LONG = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'];
 const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
-const MONTHS_LONG = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+const MONTHS_LONG = [
+  'January',
+  'February',
+  'March',
+  'April',
+  'May',
+  'June',
+  'July',
+  'August',
+  'September',
+  'October',
+  'November',
+  'December',
+];
 
 /** Today's date in a time zone as YYYY-MM-DD. */
 export function todayIso(timeZone: string, now = new Date()): string {
@@ -72,8 +89,10 @@ export function stepDate(view: BoardViewName, date: string, direction: -1 | 1): 
 export function spanTitle(first: Date, last: Date): string {
   const day = (d: Date) => `${WEEKDAYS[d.getUTCDay()]} ${d.getUTCDate()}`;
   const month = (d: Date) => MONTHS[d.getUTCMonth()];
-  if (first.getUTCFullYear() !== last.getUTCFullYear()) return `${day(first)} ${month(first)} ${first.getUTCFullYear()} – ${day(last)} ${month(last)} ${last.getUTCFullYear()}`;
-  if (first.getUTCMonth() !== last.getUTCMonth()) return `${day(first)} ${month(first)} – ${day(last)} ${month(last)} ${last.getUTCFullYear()}`;
+  if (first.getUTCFullYear() !== last.getUTCFullYear())
+    return `${day(first)} ${month(first)} ${first.getUTCFullYear()} – ${day(last)} ${month(last)} ${last.getUTCFullYear()}`;
+  if (first.getUTCMonth() !== last.getUTCMonth())
+    return `${day(first)} ${month(first)} – ${day(last)} ${month(last)} ${last.getUTCFullYear()}`;
   return `${day(first)} – ${day(last)} ${month(last)} ${last.getUTCFullYear()}`;
 }
 
@@ -85,7 +104,8 @@ export function spanTitle(first: Date, last: Date): string {
 export function boardTitle(view: BoardViewName, date: string): string {
   const d = utcNoon(date);
   if (view === 'resourceTimelineMonth') return `${MONTHS_LONG[d.getUTCMonth()]} ${d.getUTCFullYear()}`;
-  if (view === 'resourceTimelineDay') return `${WEEKDAYS_LONG[d.getUTCDay()]} ${d.getUTCDate()} ${MONTHS_LONG[d.getUTCMonth()]} ${d.getUTCFullYear()}`;
+  if (view === 'resourceTimelineDay')
+    return `${WEEKDAYS_LONG[d.getUTCDay()]} ${d.getUTCDate()} ${MONTHS_LONG[d.getUTCMonth()]} ${d.getUTCFullYear()}`;
   const first = utcNoon(mondayOf(date));
   const last = new Date(first.getTime() + ((view === 'resourceTimelineFortnight' ? 14 : 7) - 1) * DAY);
   return spanTitle(first, last);
@@ -120,7 +140,12 @@ export function isoWeek(year: number, month: number, day: number): number {
 }
 
 /** A slot's local date and hour, as the calendar component hands them to a label formatter (month from 0). */
-export interface SlotDate { year: number; month: number; day: number; hour: number }
+export interface SlotDate {
+  year: number;
+  month: number;
+  day: number;
+  hour: number;
+}
 
 /**
  * The header labels of each zoom level, row by row (the timeline merges neighbouring cells of a
@@ -132,19 +157,22 @@ export interface SlotDate { year: number; month: number; day: number; hour: numb
 export function slotLabels(view: BoardViewName): ((d: SlotDate) => string)[] {
   const weekday = (d: SlotDate) => WEEKDAYS[new Date(Date.UTC(d.year, d.month, d.day)).getUTCDay()] ?? '';
   if (view === 'resourceTimelineDay') return [(d) => `${String(d.hour).padStart(2, '0')}:00`];
-  if (view === 'resourceTimelineWeek') return [(d) => `${weekday(d)} ${d.day} ${MONTHS[d.month]}`, (d) => (d.hour < 12 ? 'am' : 'pm')];
+  if (view === 'resourceTimelineWeek')
+    return [(d) => `${weekday(d)} ${d.day} ${MONTHS[d.month]}`, (d) => (d.hour < 12 ? 'am' : 'pm')];
   const week = (d: SlotDate) => {
     const monday = utcNoon(mondayOf(iso(new Date(Date.UTC(d.year, d.month, d.day)))));
     const sunday = new Date(monday.getTime() + 6 * DAY);
-    const span = monday.getUTCMonth() === sunday.getUTCMonth()
-      ? `${monday.getUTCDate()}–${sunday.getUTCDate()} ${MONTHS[sunday.getUTCMonth()]}`
-      : `${monday.getUTCDate()} ${MONTHS[monday.getUTCMonth()]} – ${sunday.getUTCDate()} ${MONTHS[sunday.getUTCMonth()]}`;
+    const span =
+      monday.getUTCMonth() === sunday.getUTCMonth()
+        ? `${monday.getUTCDate()}–${sunday.getUTCDate()} ${MONTHS[sunday.getUTCMonth()]}`
+        : `${monday.getUTCDate()} ${MONTHS[monday.getUTCMonth()]} – ${sunday.getUTCDate()} ${MONTHS[sunday.getUTCMonth()]}`;
     return `Week ${isoWeek(d.year, d.month, d.day)} · ${span}`;
   };
   return [week, view === 'resourceTimelineMonth' ? (d) => `${weekday(d)}\n${d.day}` : (d) => `${weekday(d)} ${d.day}`];
 }
 
-const hhmm = (minute: number) => `${String(Math.floor(minute / 60)).padStart(2, '0')}:${String(minute % 60).padStart(2, '0')}`;
+const hhmm = (minute: number) =>
+  `${String(Math.floor(minute / 60)).padStart(2, '0')}:${String(minute % 60).padStart(2, '0')}`;
 
 /** Slot lengths (hours) that divide a day, so the timeline's slots land on the same hours every day. */
 const DAY_DIVISORS = [1, 2, 3, 4, 6, 8, 12];
@@ -155,7 +183,10 @@ const DAY_DIVISORS = [1, 2, 3, 4, 6, 8, 12];
  * length centred on noon (a length that divides the day, as the timeline needs).
  * @example workingWindow([{ weekly: [[], [[450, 1020]]] }]) // { day: { start: '07:00', end: '17:00' }, week: { start: '06:00', end: '18:00', half: '06:00' } }
  */
-export function workingWindow(calendars: readonly Pick<WorkingCalendar, 'weekly'>[]): { day: { start: string; end: string }; week: { start: string; end: string; half: string } } {
+export function workingWindow(calendars: readonly Pick<WorkingCalendar, 'weekly'>[]): {
+  day: { start: string; end: string };
+  week: { start: string; end: string; half: string };
+} {
   const ranges = calendars.flatMap((c) => c.weekly.flatMap((day) => day));
   const first = ranges.length ? Math.min(...ranges.map(([a]) => a)) : 8 * 60;
   const last = ranges.length ? Math.max(...ranges.map(([, b]) => b)) : 17 * 60;

@@ -27,7 +27,9 @@ export function searchTerms(q: string): string[] {
 /** What a job is found by: its reference, customer, town and postcode (with and without its space). */
 export function jobText(job: BoardJob): string {
   const postcode = job.sitePostcode ?? '';
-  return [job.reference, job.customerName, job.siteTown, postcode, postcode.replace(/\s+/g, '')].join(' ').toLowerCase();
+  return [job.reference, job.customerName, job.siteTown, postcode, postcode.replace(/\s+/g, '')]
+    .join(' ')
+    .toLowerCase();
 }
 
 /** What a resource is found by: its name, its firm and its kind. */
@@ -66,13 +68,19 @@ export interface BoardVisibility {
  * @example
  * boardVisibility(data, { ...NO_FILTER, q: 'TW-2417' }).rows // the rows TW-2417 is booked on
  */
-export function boardVisibility(data: BoardData, f: BoardFilterInput, revealed: ReadonlySet<string> = new Set()): BoardVisibility {
+export function boardVisibility(
+  data: BoardData,
+  f: BoardFilterInput,
+  revealed: ReadonlySet<string> = new Set(),
+): BoardVisibility {
   const terms = searchTerms(f.q);
   const jobs = new Map(data.jobs.map((j) => [j.id, j]));
   const stages = new Map(data.stages.map((s) => [s.id, s]));
   const resources = new Map(data.resources.map((r) => [r.id, r]));
   const rowFilter = (r: BoardResource) => (!f.firmId || r.firmId === f.firmId) && (!f.kind || r.kind === f.kind);
-  const foundResources = new Set(terms.length ? data.resources.filter((r) => matchesAll(terms, resourceText(r))).map((r) => r.id) : []);
+  const foundResources = new Set(
+    terms.length ? data.resources.filter((r) => matchesAll(terms, resourceText(r))).map((r) => r.id) : [],
+  );
 
   const ownShown = (b: BoardBooking): boolean => {
     const stage = stages.get(b.stageId);
@@ -101,14 +109,26 @@ export function boardVisibility(data: BoardData, f: BoardFilterInput, revealed: 
     if (f.jobId && s.jobId !== f.jobId) return false;
     if (terms.length === 0) return true;
     const job = jobs.get(s.jobId);
-    return (job !== undefined && matchesAll(terms, jobText(job), s.name.toLowerCase())) || s.requirements.some((r) => foundKinds.has(r.kind));
+    return (
+      (job !== undefined && matchesAll(terms, jobText(job), s.name.toLowerCase())) ||
+      s.requirements.some((r) => foundKinds.has(r.kind))
+    );
   };
 
-  return { rows, bookings, trayStage, filtering: terms.length > 0 || Boolean(f.jobId || f.state || f.firmId || f.kind) };
+  return {
+    rows,
+    bookings,
+    trayStage,
+    filtering: terms.length > 0 || Boolean(f.jobId || f.state || f.firmId || f.kind),
+  };
 }
 
 /** A booking a refusal cites that the filters hide, named by its job so the scheduler can find it. */
-export interface HiddenBooking { bookingId: string; jobId: string; reference: string }
+export interface HiddenBooking {
+  bookingId: string;
+  jobId: string;
+  reference: string;
+}
 
 /**
  * The bookings a refusal cites (violation booking ids) that the board does not show now; another
@@ -117,12 +137,19 @@ export interface HiddenBooking { bookingId: string; jobId: string; reference: st
  * @example
  * hiddenCited(data, visibility, ['b7', 'b9']) // [{ bookingId: 'b9', jobId: 'j3', reference: 'TW-2423' }]
  */
-export function hiddenCited(data: BoardData, visibility: Pick<BoardVisibility, 'bookings'>, bookingIds: readonly string[]): HiddenBooking[] {
+export function hiddenCited(
+  data: BoardData,
+  visibility: Pick<BoardVisibility, 'bookings'>,
+  bookingIds: readonly string[],
+): HiddenBooking[] {
   const out: HiddenBooking[] = [];
   for (const id of new Set(bookingIds)) {
     if (visibility.bookings.has(id)) continue;
     const b = data.bookings.find((x) => x.id === id);
-    const job = b && !b.elsewhere ? data.jobs.find((j) => j.id === data.stages.find((s) => s.id === b.stageId)?.jobId) : undefined;
+    const job =
+      b && !b.elsewhere
+        ? data.jobs.find((j) => j.id === data.stages.find((s) => s.id === b.stageId)?.jobId)
+        : undefined;
     if (job) out.push({ bookingId: id, jobId: job.id, reference: job.reference });
   }
   return out;

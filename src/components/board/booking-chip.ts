@@ -11,9 +11,19 @@ type BookingProps = EventInput['extendedProps'];
 
 /** Short names of the usual stage kinds, for chips too narrow for the stage's own name. */
 export const STAGE_SHORT_NAMES: Record<string, string> = {
-  survey: 'Survey', excavation: 'Dig', base_pour: 'Base', walls: 'Walls', electrical_first_fix: 'Cable',
-  delivery: 'Delivery', lift: 'Lift', placement: 'Place', fill: 'Fill', electrical_connect: 'Connect',
-  commission: 'Commission', handover: 'Handover', deck_check: 'Deck check',
+  survey: 'Survey',
+  excavation: 'Dig',
+  base_pour: 'Base',
+  walls: 'Walls',
+  electrical_first_fix: 'Cable',
+  delivery: 'Delivery',
+  lift: 'Lift',
+  placement: 'Place',
+  fill: 'Fill',
+  electrical_connect: 'Connect',
+  commission: 'Commission',
+  handover: 'Handover',
+  deck_check: 'Deck check',
 };
 
 /**
@@ -50,7 +60,10 @@ const browserZone = () => Intl.DateTimeFormat().resolvedOptions().timeZone;
 export function localParts(instant: number, timeZone: string): { day: string; time: string } {
   const d = new Date(instant + timeZoneOffset(timeZone, instant));
   const pad = (n: number) => String(n).padStart(2, '0');
-  return { day: `${WEEKDAYS[d.getUTCDay()]} ${d.getUTCDate()} ${MONTHS[d.getUTCMonth()]}`, time: `${pad(d.getUTCHours())}:${pad(d.getUTCMinutes())}` };
+  return {
+    day: `${WEEKDAYS[d.getUTCDay()]} ${d.getUTCDate()} ${MONTHS[d.getUTCMonth()]}`,
+    time: `${pad(d.getUTCHours())}:${pad(d.getUTCMinutes())}`,
+  };
 }
 
 /**
@@ -69,12 +82,18 @@ export function whenText(start: number, end: number, timeZone = browserZone()): 
 export function bookingSummary(props: BookingProps, start: number, end: number, timeZone?: string): string[] {
   if (props.elsewhere) return [`${props.stageName}: another installer's booking`, whenText(start, end, timeZone)];
   const state = STATE_LABELS[props.state];
-  const lines = [bookingLine(props), `${state.symbol} ${state.label}: ${state.description}`, whenText(start, end, timeZone)];
+  const lines = [
+    bookingLine(props),
+    `${state.symbol} ${state.label}: ${state.description}`,
+    whenText(start, end, timeZone),
+  ];
   for (const m of props.markers) {
     const marker = BOOKING_MARKERS[m];
-    lines.push(m === 'problem' && props.problems.length
-      ? `${marker.symbol} ${marker.label}: ${props.problems.join(' ')}`
-      : `${marker.symbol} ${marker.label}: ${marker.description}`);
+    lines.push(
+      m === 'problem' && props.problems.length
+        ? `${marker.symbol} ${marker.label}: ${props.problems.join(' ')}`
+        : `${marker.symbol} ${marker.label}: ${marker.description}`,
+    );
   }
   return lines;
 }
@@ -100,7 +119,11 @@ export function chipNodes(props: BookingProps): HTMLElement {
   const marks = span('wl-chip__marks', chipMarks(props));
   marks.setAttribute('aria-hidden', 'true');
   const stage = span('wl-chip__stage');
-  stage.append(span('wl-chip__sep', ' · '), span('wl-chip__full', props.stageName), span('wl-chip__short', stageShortName(props.stageKind, props.stageName)));
+  stage.append(
+    span('wl-chip__sep', ' · '),
+    span('wl-chip__full', props.stageName),
+    span('wl-chip__short', stageShortName(props.stageKind, props.stageName)),
+  );
   // The firm's own prefix ("TW-") is the same on every job of the board: the narrowest chips leave it to the tooltip.
   const ref = span('wl-chip__ref');
   const prefix = /^[A-Za-z]+-(?=\S)/.exec(props.reference)?.[0] ?? '';

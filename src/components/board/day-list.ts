@@ -4,7 +4,14 @@
  * markers agree; pure, so it is tested without a browser.
  */
 import { dayNumber, localToInstant } from '@shared/scheduler/index';
-import { BOARD_BLOCKS, BOOKING_MARKERS, STATE_LABELS, groupHeading, type EventInput, type RowInput } from './board-events';
+import {
+  BOARD_BLOCKS,
+  BOOKING_MARKERS,
+  STATE_LABELS,
+  groupHeading,
+  type EventInput,
+  type RowInput,
+} from './board-events';
 import { bookingLine, localParts, stageShortName } from './booking-chip';
 import { POINTER_CLASSES } from './board-pointer';
 
@@ -29,8 +36,16 @@ export interface DayListBooking {
   summary: string;
 }
 
-export interface DayListResource { id: string; title: string; kind: string; bookings: DayListBooking[] }
-export interface DayListGroup { heading: string; resources: DayListResource[] }
+export interface DayListResource {
+  id: string;
+  title: string;
+  kind: string;
+  bookings: DayListBooking[];
+}
+export interface DayListGroup {
+  heading: string;
+  resources: DayListResource[];
+}
 
 /** The first and last instant of a calendar day in a time zone. @example dayBounds('2026-09-14', 'Europe/London') // 13 Sep 23:00Z … 14 Sep 23:00Z */
 export function dayBounds(date: string, timeZone: string): { start: number; end: number } {
@@ -54,7 +69,12 @@ function timeText(start: number, end: number, day: { start: number; end: number 
  * The day's list: groups in the board's order, each resource with the bookings that touch the day
  * (busy resources only), and the resources with nothing booked that day.
  */
-export function dayListOf(rows: readonly RowInput[], events: readonly EventInput[], date: string, timeZone: string): { groups: DayListGroup[]; free: RowInput[] } {
+export function dayListOf(
+  rows: readonly RowInput[],
+  events: readonly EventInput[],
+  date: string,
+  timeZone: string,
+): { groups: DayListGroup[]; free: RowInput[] } {
   const day = dayBounds(date, timeZone);
   const byResource = new Map<string, EventInput[]>();
   for (const e of events) {
@@ -65,11 +85,19 @@ export function dayListOf(rows: readonly RowInput[], events: readonly EventInput
   const free: RowInput[] = [];
   for (const row of rows) {
     const booked = byResource.get(row.id);
-    if (!booked?.length) { free.push(row); continue; }
+    if (!booked?.length) {
+      free.push(row);
+      continue;
+    }
     const heading = groupHeading(row.group);
     let group = groups[groups.length - 1];
     if (group?.heading !== heading) groups.push((group = { heading, resources: [] }));
-    group.resources.push({ id: row.id, title: row.title, kind: row.kind, bookings: [...booked].sort((a, b) => a.start - b.start || a.end - b.end).map((e) => entryOf(e, day, timeZone)) });
+    group.resources.push({
+      id: row.id,
+      title: row.title,
+      kind: row.kind,
+      bookings: [...booked].sort((a, b) => a.start - b.start || a.end - b.end).map((e) => entryOf(e, day, timeZone)),
+    });
   }
   return { groups, free };
 }
@@ -81,10 +109,28 @@ function entryOf(e: EventInput, day: { start: number; end: number }, timeZone: s
   const markers = p.markers.map((key) => ({ key, ...BOOKING_MARKERS[key] }));
   const stateText = p.elsewhere ? BOARD_BLOCKS.elsewhere.label : `${state.symbol} ${state.label}`;
   return {
-    bookingId: e.id, time, reference: p.reference, stage: p.stageName, stageShort: stageShortName(p.stageKind, p.stageName), town: p.town,
-    state: stateText, stateClass: p.elsewhere ? BOARD_BLOCKS.elsewhere.className : `wl-state-${p.state}`, markers, problems: p.problems,
-    elsewhere: p.elsewhere, editable: e.editable, outlined: e.classNames.includes(POINTER_CLASSES.highlight),
-    summary: [time, bookingLine(p), p.elsewhere ? '' : state.label, ...markers.map((m) => m.label), ...p.problems, e.classNames.includes(POINTER_CLASSES.highlight) ? 'Outlined by the link' : '']
-      .filter(Boolean).join('. '),
+    bookingId: e.id,
+    time,
+    reference: p.reference,
+    stage: p.stageName,
+    stageShort: stageShortName(p.stageKind, p.stageName),
+    town: p.town,
+    state: stateText,
+    stateClass: p.elsewhere ? BOARD_BLOCKS.elsewhere.className : `wl-state-${p.state}`,
+    markers,
+    problems: p.problems,
+    elsewhere: p.elsewhere,
+    editable: e.editable,
+    outlined: e.classNames.includes(POINTER_CLASSES.highlight),
+    summary: [
+      time,
+      bookingLine(p),
+      p.elsewhere ? '' : state.label,
+      ...markers.map((m) => m.label),
+      ...p.problems,
+      e.classNames.includes(POINTER_CLASSES.highlight) ? 'Outlined by the link' : '',
+    ]
+      .filter(Boolean)
+      .join('. '),
   };
 }

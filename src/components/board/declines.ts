@@ -39,8 +39,17 @@ export function declinedItems(data: BoardData): DeclinedItem[] {
     if (!stage || !job || !resource) continue;
     const side = resource.ownership === 'partner' ? 'partner' : 'own';
     out.push({
-      bookingId: b.id, stageId: stage.id, jobId: job.id, stageName: stage.name, jobReference: job.reference, resourceName: resource.name,
-      firmName: resource.firmName, start: b.start, declinedAt: b.declined?.at ?? null, via: b.declined?.via ?? null, reason: b.declined?.reason ?? null,
+      bookingId: b.id,
+      stageId: stage.id,
+      jobId: job.id,
+      stageName: stage.name,
+      jobReference: job.reference,
+      resourceName: resource.name,
+      firmName: resource.firmName,
+      start: b.start,
+      declinedAt: b.declined?.at ?? null,
+      via: b.declined?.via ?? null,
+      reason: b.declined?.reason ?? null,
       canSendAgain: actionsFor('declined', { party: 'office', side }).includes('send'),
     });
   }
@@ -56,5 +65,7 @@ export function declinedItems(data: BoardData): DeclinedItem[] {
 export function newlyDeclined(before: BoardData | null, after: BoardData): string[] {
   if (!before) return [];
   const was = new Map(before.bookings.map((b) => [b.id, b.state]));
-  return after.bookings.filter((b) => b.state === 'declined' && !b.elsewhere && was.has(b.id) && was.get(b.id) !== 'declined').map((b) => b.id);
+  return after.bookings
+    .filter((b) => b.state === 'declined' && !b.elsewhere && was.has(b.id) && was.get(b.id) !== 'declined')
+    .map((b) => b.id);
 }

@@ -24,23 +24,50 @@ export interface MoveIntent {
 }
 
 /** A stage from the tray is booked on a resource. */
-export interface BookIntent { kind: 'book'; stageId: string; resourceId: string; start: number }
+export interface BookIntent {
+  kind: 'book';
+  stageId: string;
+  resourceId: string;
+  start: number;
+}
 
 /** Several bookings at once: the rest of a stage's resources, or an auto-place preview. */
-export interface BatchIntent { kind: 'batch'; bookings: { stageId: string; resourceId: string; start: number; end?: number }[] }
+export interface BatchIntent {
+  kind: 'batch';
+  bookings: { stageId: string; resourceId: string; start: number; end?: number }[];
+}
 
 /** One booking alone changes time or row (the rest of its stage stays); a declined one is rebooked this way. */
-export interface PatchIntent { kind: 'patch'; bookingId: string; version: number; start: number; end: number; resourceId?: string }
+export interface PatchIntent {
+  kind: 'patch';
+  bookingId: string;
+  version: number;
+  start: number;
+  end: number;
+  resourceId?: string;
+}
 
 /** A booking is taken off the board (back to the tray). */
-export interface RemoveIntent { kind: 'remove'; bookingId: string; version: number }
+export interface RemoveIntent {
+  kind: 'remove';
+  bookingId: string;
+  version: number;
+}
 
 /** A partner's request is sent (again, after a decline), or the partner's proposed time is taken. */
-export interface RequestIntent { kind: 'publish' | 'accept-proposal'; bookingId: string; version: number }
+export interface RequestIntent {
+  kind: 'publish' | 'accept-proposal';
+  bookingId: string;
+  version: number;
+}
 
 export type Intent = MoveIntent | BookIntent | BatchIntent | PatchIntent | RemoveIntent | RequestIntent;
 
-export interface ApiCall { method: 'POST' | 'PATCH' | 'DELETE'; path: string; body?: unknown }
+export interface ApiCall {
+  method: 'POST' | 'PATCH' | 'DELETE';
+  path: string;
+  body?: unknown;
+}
 
 const iso = (t: number) => new Date(t).toISOString();
 
@@ -48,11 +75,23 @@ const iso = (t: number) => new Date(t).toISOString();
 export function callFor(intent: Intent): ApiCall {
   switch (intent.kind) {
     case 'book':
-      return { method: 'POST', path: '/api/bookings', body: { stageId: intent.stageId, resourceId: intent.resourceId, startsAt: iso(intent.start) } };
+      return {
+        method: 'POST',
+        path: '/api/bookings',
+        body: { stageId: intent.stageId, resourceId: intent.resourceId, startsAt: iso(intent.start) },
+      };
     case 'batch':
       return {
-        method: 'POST', path: '/api/bookings/batch',
-        body: { bookings: intent.bookings.map((b) => ({ stageId: b.stageId, resourceId: b.resourceId, startsAt: iso(b.start), ...(b.end !== undefined ? { endsAt: iso(b.end) } : {}) })) },
+        method: 'POST',
+        path: '/api/bookings/batch',
+        body: {
+          bookings: intent.bookings.map((b) => ({
+            stageId: b.stageId,
+            resourceId: b.resourceId,
+            startsAt: iso(b.start),
+            ...(b.end !== undefined ? { endsAt: iso(b.end) } : {}),
+          })),
+        },
       };
     case 'move':
       return {
@@ -70,20 +109,34 @@ export function callFor(intent: Intent): ApiCall {
       };
     case 'patch':
       return {
-        method: 'PATCH', path: `/api/bookings/${intent.bookingId}`,
-        body: { version: intent.version, startsAt: iso(intent.start), endsAt: iso(intent.end), ...(intent.resourceId ? { resourceId: intent.resourceId } : {}) },
+        method: 'PATCH',
+        path: `/api/bookings/${intent.bookingId}`,
+        body: {
+          version: intent.version,
+          startsAt: iso(intent.start),
+          endsAt: iso(intent.end),
+          ...(intent.resourceId ? { resourceId: intent.resourceId } : {}),
+        },
       };
     case 'remove':
       return { method: 'DELETE', path: `/api/bookings/${intent.bookingId}?version=${intent.version}` };
     case 'publish':
       return { method: 'POST', path: `/api/bookings/${intent.bookingId}/publish`, body: { version: intent.version } };
     case 'accept-proposal':
-      return { method: 'POST', path: `/api/bookings/${intent.bookingId}/proposal/accept`, body: { version: intent.version } };
+      return {
+        method: 'POST',
+        path: `/api/bookings/${intent.bookingId}/proposal/accept`,
+        body: { version: intent.version },
+      };
   }
 }
 
 /** The server's answer to a write. */
-export interface WriteResult { bookings: BookingView[]; warnings: Violation[]; reasked?: PartnerBookingNote[] }
+export interface WriteResult {
+  bookings: BookingView[];
+  warnings: Violation[];
+  reasked?: PartnerBookingNote[];
+}
 
 /** Every write answers with its saved bookings: a list (book, move, batch), one booking (requests), or nothing (take off). */
 export function resultOf(body: unknown): WriteResult {
@@ -91,13 +144,23 @@ export function resultOf(body: unknown): WriteResult {
     const r = body as WriteResult;
     return { bookings: r.bookings, warnings: r.warnings ?? [], ...(r.reasked ? { reasked: r.reasked } : {}) };
   }
-  if (body && typeof body === 'object' && 'id' in body && 'stageId' in body) return { bookings: [body as BookingView], warnings: [] };
+  if (body && typeof body === 'object' && 'id' in body && 'stageId' in body)
+    return { bookings: [body as BookingView], warnings: [] };
   return { bookings: [], warnings: [] };
 }
 
 /** A saved booking as the board keeps it. */
 export function fromView(v: BookingView, installerFirmId: string): BoardBooking {
-  return { id: v.id, stageId: v.stageId, resourceId: v.resourceId, start: Date.parse(v.startsAt), end: Date.parse(v.endsAt), state: v.state, version: v.version, installerFirmId };
+  return {
+    id: v.id,
+    stageId: v.stageId,
+    resourceId: v.resourceId,
+    start: Date.parse(v.startsAt),
+    end: Date.parse(v.endsAt),
+    state: v.state,
+    version: v.version,
+    installerFirmId,
+  };
 }
 
 /** What the board does when a write fails. */
@@ -111,15 +174,33 @@ export interface Refusal {
 }
 
 export function refusalOf(error: unknown): Refusal {
-  if (!(error instanceof ApiError)) return { kind: 'failed', message: 'The change could not be saved.', violations: [] };
+  if (!(error instanceof ApiError))
+    return { kind: 'failed', message: 'The change could not be saved.', violations: [] };
   const violations = Array.isArray(error.problem.violations) ? (error.problem.violations as Violation[]) : [];
   if (error.status === 422) return { kind: 'refused', message: error.detail ?? error.title, violations };
   if (error.status === 409 && (error.problem.code === 'stale-version' || error.problem.code === 'undo-stale')) {
-    return { kind: 'stale', message: error.problem.code === 'undo-stale' ? error.detail ?? error.title : 'Someone else changed this stage meanwhile; the board now shows their change.', violations };
+    return {
+      kind: 'stale',
+      message:
+        error.problem.code === 'undo-stale'
+          ? (error.detail ?? error.title)
+          : 'Someone else changed this stage meanwhile; the board now shows their change.',
+      violations,
+    };
   }
   if (error.status === 409 && error.problem.code === 'asks-partners-again') {
-    return { kind: 'refused', message: error.detail ?? error.title, violations, partner: error.problem.bookings as PartnerBookingNote[] };
+    return {
+      kind: 'refused',
+      message: error.detail ?? error.title,
+      violations,
+      partner: error.problem.bookings as PartnerBookingNote[],
+    };
   }
-  if (error.status === 409) return { kind: 'refused', message: error.detail ?? 'That resource is already confirmed for that time.', violations };
+  if (error.status === 409)
+    return {
+      kind: 'refused',
+      message: error.detail ?? 'That resource is already confirmed for that time.',
+      violations,
+    };
   return { kind: 'failed', message: error.detail ? `${error.title}. ${error.detail}` : error.title, violations };
 }

@@ -7,7 +7,14 @@
  */
 import type { Role } from '@shared/permissions';
 import { ownViolations, toEngineBoard, type BoardData } from '@shared/board-data';
-import { boardCriticalPath, boardViolations, createBoardIndex, type BoardAnalysis, type BoardIndex, type BoardIndexOptions } from '@shared/scheduler/index';
+import {
+  boardCriticalPath,
+  boardViolations,
+  createBoardIndex,
+  type BoardAnalysis,
+  type BoardIndex,
+  type BoardIndexOptions,
+} from '@shared/scheduler/index';
 
 /**
  * Whether a role's board holds every booking of its firm (crew see their own rows only).
@@ -38,5 +45,10 @@ export function boardIndexOf(data: BoardData, seesAllBookings: boolean): BoardIn
 export function boardAnalysisOf(data: BoardData, index: BoardIndex): BoardAnalysis {
   const violations = ownViolations(data, boardViolations(index));
   const errorCount = violations.filter((v) => v.severity === 'error').length;
-  return { violations, errorCount, warningCount: violations.length - errorCount, criticalPaths: boardCriticalPath(index) };
+  return {
+    violations,
+    errorCount,
+    warningCount: violations.length - errorCount,
+    criticalPaths: boardCriticalPath(index),
+  };
 }

@@ -1,6 +1,14 @@
 /** What the job panel lists: the job's stages in order with dates, float and the critical path. */
 import type { BoardBooking, BoardData, BoardStage } from '@shared/board-data';
-import { describeLag, formatInstant, unbookedPlan, unbookedTimesOf, type BoardIndex, type JobCriticalPath, type Violation } from '@shared/scheduler/index';
+import {
+  describeLag,
+  formatInstant,
+  unbookedPlan,
+  unbookedTimesOf,
+  type BoardIndex,
+  type JobCriticalPath,
+  type Violation,
+} from '@shared/scheduler/index';
 import { bookingsOfStage, dependentStageIds } from '@shared/board-actions';
 import { plural } from '@shared/plural';
 
@@ -28,7 +36,13 @@ export interface StageLine {
  * The job's stages for the panel, in the order they happen (booked ones by their start, unbooked by
  * their earliest). `index` is the board's engine index, over the same data.
  */
-export function stageLines(data: BoardData, index: BoardIndex, jobId: string, path: JobCriticalPath | undefined, violations: readonly Violation[]): StageLine[] {
+export function stageLines(
+  data: BoardData,
+  index: BoardIndex,
+  jobId: string,
+  path: JobCriticalPath | undefined,
+  violations: readonly Violation[],
+): StageLine[] {
   const stages = data.stages.filter((s) => s.jobId === jobId);
   // One plan for the panel: each unbooked predecessor is worked out once.
   const plan = unbookedPlan(index);
@@ -38,7 +52,10 @@ export function stageLines(data: BoardData, index: BoardIndex, jobId: string, pa
     .map((stage) => {
       const own = data.bookings.filter((b) => b.stageId === stage.id && b.state !== 'declined');
       const t = timing.get(stage.id);
-      const cure = data.dependencies.some((d) => d.toStageId === stage.id && d.waitsForCure === true && data.stages.find((s) => s.id === d.fromStageId)?.cure);
+      const cure = data.dependencies.some(
+        (d) =>
+          d.toStageId === stage.id && d.waitsForCure === true && data.stages.find((s) => s.id === d.fromStageId)?.cure,
+      );
       return {
         stage,
         booked: own.length > 0,
@@ -48,14 +65,21 @@ export function stageLines(data: BoardData, index: BoardIndex, jobId: string, pa
         floatMinutes: t?.totalFloatMinutes ?? null,
         critical: isCritical(path, stage.id, t?.totalFloatMinutes ?? null),
         bookings: data.bookings.filter((b) => b.stageId === stage.id && !b.elsewhere),
-        after: data.dependencies.filter((d) => d.toStageId === stage.id).map((d) => {
-          const lag = d.lag.amount ? ` + ${describeLag(d.lag)}` : '';
-          return `${d.type === 'FS' ? 'after' : d.type} ${names.get(d.fromStageId) ?? 'another stage'}${lag}`;
-        }).concat(cure ? ['once the base has cured'] : []),
+        after: data.dependencies
+          .filter((d) => d.toStageId === stage.id)
+          .map((d) => {
+            const lag = d.lag.amount ? ` + ${describeLag(d.lag)}` : '';
+            return `${d.type === 'FS' ? 'after' : d.type} ${names.get(d.fromStageId) ?? 'another stage'}${lag}`;
+          })
+          .concat(cure ? ['once the base has cured'] : []),
         problems: violations.filter((v) => v.stageIds.includes(stage.id)),
       };
     })
-    .sort((a, b) => (a.start ?? a.earliestStart ?? Infinity) - (b.start ?? b.earliestStart ?? Infinity) || a.stage.sequence - b.stage.sequence);
+    .sort(
+      (a, b) =>
+        (a.start ?? a.earliestStart ?? Infinity) - (b.start ?? b.earliestStart ?? Infinity) ||
+        a.stage.sequence - b.stage.sequence,
+    );
 }
 
 /**
@@ -67,7 +91,11 @@ export function stageLines(data: BoardData, index: BoardIndex, jobId: string, pa
  * isCritical(path, 'lift-1', 0)     // true
  * isCritical(path, 'lift-1', 3240)  // false: 6 working days spare
  */
-export function isCritical(path: Pick<JobCriticalPath, 'criticalStageIds'> | undefined, stageId: string, floatMinutes: number | null): boolean {
+export function isCritical(
+  path: Pick<JobCriticalPath, 'criticalStageIds'> | undefined,
+  stageId: string,
+  floatMinutes: number | null,
+): boolean {
   return floatMinutes !== null && floatMinutes <= 0 && (path?.criticalStageIds.includes(stageId) ?? false);
 }
 
@@ -88,7 +116,12 @@ export function lateText(lateByMs: number): string {
 }
 
 /** A booked later stage that leaves no room for this one. */
-export interface BlockingStage { stageId: string; name: string; start: number; message: string }
+export interface BlockingStage {
+  stageId: string;
+  name: string;
+  start: number;
+  message: string;
+}
 
 /**
  * Why the slot finder found nothing: a booked stage after this one (directly or through others)
@@ -101,8 +134,15 @@ export interface BlockingStage { stageId: string; name: string; start: number; m
  * blockingLaterStage(data, index, 'fill-1', es, 'install_crew', 'Europe/London')
  * // { name: 'Connect and certify', message: "'Connect and certify' is booked for Tue 3 Mar 08:00, before 'Fill' could be done (Wed 4 Mar 11:00 at the earliest): move it later first." }
  */
-export function blockingLaterStage(data: BoardData, index: BoardIndex, stageId: string, earliest: number, kind: string, timeZone: string,
-  addMinutes: (resourceId: string, t: number, minutes: number) => number): BlockingStage | null {
+export function blockingLaterStage(
+  data: BoardData,
+  index: BoardIndex,
+  stageId: string,
+  earliest: number,
+  kind: string,
+  timeZone: string,
+  addMinutes: (resourceId: string, t: number, minutes: number) => number,
+): BlockingStage | null {
   const stage = data.stages.find((s) => s.id === stageId);
   const resource = data.resources.find((r) => r.kind === kind);
   if (!stage || !resource) return null;
@@ -117,7 +157,9 @@ export function blockingLaterStage(data: BoardData, index: BoardIndex, stageId: 
   if (!first) return null;
   const name = data.stages.find((s) => s.id === first.id)?.name ?? 'a later stage';
   return {
-    stageId: first.id, name, start: first.start,
+    stageId: first.id,
+    name,
+    start: first.start,
     message: `'${name}' is booked for ${formatInstant(first.start, timeZone)}, before '${stage.name}' could be done (${formatInstant(finish, timeZone)} at the earliest): move it later first.`,
   };
 }

@@ -13,7 +13,10 @@ const DAY_MINUTES = 1440;
  */
 export function pounds(pence: number): string {
   const whole = Math.round(pence) % 100 === 0;
-  const value = (Math.round(pence) / 100).toLocaleString('en-GB', whole ? { maximumFractionDigits: 0 } : { minimumFractionDigits: 2, maximumFractionDigits: 2 });
+  const value = (Math.round(pence) / 100).toLocaleString(
+    'en-GB',
+    whole ? { maximumFractionDigits: 0 } : { minimumFractionDigits: 2, maximumFractionDigits: 2 },
+  );
   return `£${value}`;
 }
 
@@ -37,13 +40,22 @@ function lateness(minutes: number): string {
  * // ['Every stage placed', 'No job past its promised date', 'Finishes Thu 18 Jun',
  * //  'Idle paid hire: £0', 'Crew changes within the job: 1', 'Best of the plans the search tried']
  */
-export function planCostLines(result: Pick<AutoPlaceResult, 'costs' | 'placed' | 'source'>, timeZone: string, now: number): string[] {
+export function planCostLines(
+  result: Pick<AutoPlaceResult, 'costs' | 'placed' | 'source'>,
+  timeZone: string,
+  now: number,
+): string[] {
   const { costs } = result;
   const lines: string[] = [];
-  lines.push(costs.unplacedStages === 0 ? 'Every stage placed' : `${plural(costs.unplacedStages, 'stage')} could not be placed`);
+  lines.push(
+    costs.unplacedStages === 0 ? 'Every stage placed' : `${plural(costs.unplacedStages, 'stage')} could not be placed`,
+  );
   if (costs.lateJobs === 0) lines.push('No job past its promised date');
   else if (costs.lateJobs === 1) lines.push(`1 job past its promised date, ${lateness(costs.latenessMinutes)} late`);
-  else lines.push(`${plural(costs.lateJobs, 'job')} past their promised dates, ${lateness(costs.latenessMinutes)} late in all`);
+  else
+    lines.push(
+      `${plural(costs.lateJobs, 'job')} past their promised dates, ${lateness(costs.latenessMinutes)} late in all`,
+    );
   if (result.placed.length > 0) {
     const finish = Math.max(...result.placed.map((p) => p.end));
     const currentYear = Number(todayIn(timeZone, now).slice(0, 4));
@@ -51,6 +63,8 @@ export function planCostLines(result: Pick<AutoPlaceResult, 'costs' | 'placed' |
   }
   lines.push(`Idle paid hire: ${pounds(costs.idleHirePence)}`);
   lines.push(`Crew changes within the job: ${costs.crewChanges}`);
-  lines.push(result.source === 'search' ? 'Best of the plans the search tried' : 'The first plan: the search found none better');
+  lines.push(
+    result.source === 'search' ? 'Best of the plans the search tried' : 'The first plan: the search found none better',
+  );
   return lines;
 }

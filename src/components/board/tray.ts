@@ -7,7 +7,10 @@ import type { BoardBooking, BoardData, BoardJob, BoardStage } from '@shared/boar
 import { plural } from '@shared/plural';
 import { kindLabel } from './board-events';
 
-export interface TrayShort { kind: string; count: number }
+export interface TrayShort {
+  kind: string;
+  count: number;
+}
 
 export interface TrayStage {
   stage: BoardStage;
@@ -21,9 +24,16 @@ export interface TrayStage {
   declinedBy: string[];
 }
 
-export interface TrayGroup { job: BoardJob; stages: TrayStage[] }
+export interface TrayGroup {
+  job: BoardJob;
+  stages: TrayStage[];
+}
 
-interface Lookups { stages: Map<string, BoardStage>; kinds: Map<string, string>; bookingsOf: Map<string, BoardBooking[]> }
+interface Lookups {
+  stages: Map<string, BoardStage>;
+  kinds: Map<string, string>;
+  bookingsOf: Map<string, BoardBooking[]>;
+}
 // Per loaded board (a change makes a new data object): stages, resource kinds and own bookings by stage,
 // so the tray of a board of thousands of stages is worked out in one pass, not one scan per stage.
 const lookups = new WeakMap<BoardData, Lookups>();
@@ -34,9 +44,14 @@ function lookupsOf(data: BoardData): Lookups {
     for (const b of data.bookings) {
       if (b.elsewhere) continue;
       const list = bookingsOf.get(b.stageId);
-      if (list) list.push(b); else bookingsOf.set(b.stageId, [b]);
+      if (list) list.push(b);
+      else bookingsOf.set(b.stageId, [b]);
     }
-    found = { stages: new Map(data.stages.map((s) => [s.id, s])), kinds: new Map(data.resources.map((r) => [r.id, r.kind])), bookingsOf };
+    found = {
+      stages: new Map(data.stages.map((s) => [s.id, s])),
+      kinds: new Map(data.resources.map((r) => [r.id, r.kind])),
+      bookingsOf,
+    };
     lookups.set(data, found);
   }
   return found;
@@ -55,7 +70,10 @@ export function shortfallOf(data: BoardData, stageId: string): TrayShort[] {
   if (!stage) return [];
   const own = (bookingsOf.get(stageId) ?? []).filter((b) => b.state !== 'declined');
   return stage.requirements
-    .map((req) => ({ kind: req.kind, count: req.count - new Set(own.filter((b) => kinds.get(b.resourceId) === req.kind).map((b) => b.resourceId)).size }))
+    .map((req) => ({
+      kind: req.kind,
+      count: req.count - new Set(own.filter((b) => kinds.get(b.resourceId) === req.kind).map((b) => b.resourceId)).size,
+    }))
     .filter((s) => s.count > 0);
 }
 
@@ -83,7 +101,11 @@ export function needsText(short: readonly TrayShort[]): string {
  * @example
  * trayGroups(data, () => index.order.map((i) => i.stage.id), (s) => visibility.trayStage(s))
  */
-export function trayGroups(data: BoardData, order: (jobId: string) => string[], show: (stage: BoardStage) => boolean = () => true): TrayGroup[] {
+export function trayGroups(
+  data: BoardData,
+  order: (jobId: string) => string[],
+  show: (stage: BoardStage) => boolean = () => true,
+): TrayGroup[] {
   const jobs = new Map(data.jobs.map((j) => [j.id, j]));
   const firmOf = new Map(data.resources.map((r) => [r.id, r.firmName]));
   const byJob = new Map<string, TrayStage[]>();
@@ -94,8 +116,13 @@ export function trayGroups(data: BoardData, order: (jobId: string) => string[], 
     const own = lookupsOf(data).bookingsOf.get(stage.id) ?? [];
     const active = own.filter((b) => b.state !== 'declined');
     const item: TrayStage = {
-      stage, short, bookedCount: active.length, startsAt: active.length ? Math.min(...active.map((b) => b.start)) : null,
-      declinedBy: [...new Set(own.filter((b) => b.state === 'declined').map((b) => firmOf.get(b.resourceId) ?? 'A partner'))],
+      stage,
+      short,
+      bookedCount: active.length,
+      startsAt: active.length ? Math.min(...active.map((b) => b.start)) : null,
+      declinedBy: [
+        ...new Set(own.filter((b) => b.state === 'declined').map((b) => firmOf.get(b.resourceId) ?? 'A partner')),
+      ],
     };
     byJob.set(stage.jobId, [...(byJob.get(stage.jobId) ?? []), item]);
   }
@@ -105,8 +132,20 @@ export function trayGroups(data: BoardData, order: (jobId: string) => string[], 
       // One rank table per order list (the board hands every job the same one).
       const list = order(jobId);
       let rank = ranks.get(list);
-      if (!rank) { rank = new Map(list.map((id, i) => [id, i])); ranks.set(list, rank); }
-      return { job: jobs.get(jobId)!, stages: stages.sort((a, b) => (rank.get(a.stage.id) ?? a.stage.sequence) - (rank.get(b.stage.id) ?? b.stage.sequence)) };
+      if (!rank) {
+        rank = new Map(list.map((id, i) => [id, i]));
+        ranks.set(list, rank);
+      }
+      return {
+        job: jobs.get(jobId)!,
+        stages: stages.sort(
+          (a, b) => (rank.get(a.stage.id) ?? a.stage.sequence) - (rank.get(b.stage.id) ?? b.stage.sequence),
+        ),
+      };
     })
-    .sort((a, b) => (a.job.promisedBy ?? Infinity) - (b.job.promisedBy ?? Infinity) || a.job.reference.localeCompare(b.job.reference));
+    .sort(
+      (a, b) =>
+        (a.job.promisedBy ?? Infinity) - (b.job.promisedBy ?? Infinity) ||
+        a.job.reference.localeCompare(b.job.reference),
+    );
 }

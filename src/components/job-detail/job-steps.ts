@@ -7,10 +7,20 @@ import type { JobDetail, JobStage } from '@/api/job-work';
 import { humanise } from '@/utils/labels';
 
 export type StepKey = 'enquiry' | 'surveyed' | 'planned' | 'in_progress' | 'handed_over';
-export interface JobStep { key: StepKey; label: string; done: boolean; current: boolean; detail: string }
+export interface JobStep {
+  key: StepKey;
+  label: string;
+  done: boolean;
+  current: boolean;
+  detail: string;
+}
 
 const LABELS: Record<StepKey, string> = {
-  enquiry: 'Enquiry', surveyed: 'Surveyed', planned: 'Planned', in_progress: 'In progress', handed_over: 'Handed over',
+  enquiry: 'Enquiry',
+  surveyed: 'Surveyed',
+  planned: 'Planned',
+  in_progress: 'In progress',
+  handed_over: 'Handed over',
 };
 
 /**
@@ -21,20 +31,34 @@ const LABELS: Record<StepKey, string> = {
  * @example
  * jobSteps({ status: 'planned', surveyedAt: null }, [plannedStage]).find((s) => s.key === 'surveyed')!.done // false
  */
-export function jobSteps(job: Pick<JobDetail, 'status' | 'surveyedAt'>, stages: readonly Pick<JobStage, 'kind' | 'bookings'>[]): JobStep[] {
+export function jobSteps(
+  job: Pick<JobDetail, 'status' | 'surveyedAt'>,
+  stages: readonly Pick<JobStage, 'kind' | 'bookings'>[],
+): JobStep[] {
   const bookings = stages.flatMap((s) => s.bookings);
-  const handedOver = job.status === 'handed_over' || stages.some((s) => s.kind === 'handover' && s.bookings.some((b) => b.state === 'done'));
+  const handedOver =
+    job.status === 'handed_over' ||
+    stages.some((s) => s.kind === 'handover' && s.bookings.some((b) => b.state === 'done'));
   const started = bookings.some((b) => b.state === 'on_site' || b.state === 'done');
   const done: Record<StepKey, [boolean, string]> = {
     enquiry: [true, 'Recorded'],
     surveyed: [job.surveyedAt !== null, job.surveyedAt ? 'Survey saved' : 'No survey saved yet'],
-    planned: [stages.length > 0, stages.length ? `${stages.length} stage${stages.length === 1 ? '' : 's'}` : 'No stages yet'],
+    planned: [
+      stages.length > 0,
+      stages.length ? `${stages.length} stage${stages.length === 1 ? '' : 's'}` : 'No stages yet',
+    ],
     in_progress: [started || handedOver, started ? 'Work marked on site' : 'No work started'],
     handed_over: [handedOver, handedOver ? 'Handed over' : 'Not yet'],
   };
   const keys = Object.keys(LABELS) as StepKey[];
   const current = keys.find((k) => !done[k][0]) ?? null;
-  return keys.map((key) => ({ key, label: LABELS[key], done: done[key][0], current: key === current, detail: done[key][1] }));
+  return keys.map((key) => ({
+    key,
+    label: LABELS[key],
+    done: done[key][0],
+    current: key === current,
+    detail: done[key][1],
+  }));
 }
 
 /**
@@ -44,8 +68,10 @@ export function jobSteps(job: Pick<JobDetail, 'status' | 'surveyedAt'>, stages: 
  * predecessorText(lift.after, stages) // 'Supply cable first fix, Block retaining walls + 1 elapsed days'
  */
 export function predecessorText(after: JobStage['after'], stages: readonly Pick<JobStage, 'id' | 'name'>[]): string {
-  return after.map((a) => {
-    const name = stages.find((s) => s.id === a.stageId)?.name ?? a.name ?? humanise(a.kind ?? 'another stage');
-    return name + (a.lagAmount ? ` + ${a.lagAmount} ${humanise(a.lagUnit).toLowerCase()}` : '');
-  }).join(', ');
+  return after
+    .map((a) => {
+      const name = stages.find((s) => s.id === a.stageId)?.name ?? a.name ?? humanise(a.kind ?? 'another stage');
+      return name + (a.lagAmount ? ` + ${a.lagAmount} ${humanise(a.lagUnit).toLowerCase()}` : '');
+    })
+    .join(', ');
 }

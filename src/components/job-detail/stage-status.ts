@@ -22,7 +22,11 @@ export interface StageBookingStatus {
  * stageBookingStatus('14', [{ id: '31', resourceName: '60 t mobile crane', state: 'declined', startsAt: '2026-06-09T07:00:00Z', … }], 'Europe/London')
  * // { booked: 0, declined: 'Declined by 60 t mobile crane — book again', rebookLink: '/board?view=day&date=2026-06-09&job=14&highlight=31' }
  */
-export function stageBookingStatus(jobId: string, bookings: readonly Pick<StageBooking, 'id' | 'resourceName' | 'startsAt' | 'state'>[], timeZone: string): StageBookingStatus {
+export function stageBookingStatus(
+  jobId: string,
+  bookings: readonly Pick<StageBooking, 'id' | 'resourceName' | 'startsAt' | 'state'>[],
+  timeZone: string,
+): StageBookingStatus {
   const declined = bookings.filter((b) => b.state === 'declined');
   const first = declined[0];
   const who = [...new Set(declined.map((b) => b.resourceName))].join(', ');

@@ -5,7 +5,11 @@
 import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
 import type { ProgressAction } from '@shared/schemas/bookings';
 
-export interface DayGroup { day: string; label: string; items: MyWorkItem[] }
+export interface DayGroup {
+  day: string;
+  label: string;
+  items: MyWorkItem[];
+}
 
 const nextDay = (iso: string) => new Date(Date.parse(`${iso}T12:00:00Z`) + 86_400_000).toISOString().slice(0, 10);
 
@@ -16,7 +20,9 @@ const nextDay = (iso: string) => new Date(Date.parse(`${iso}T12:00:00Z`) + 86_40
 export function dayLabel(day: string, today: string): string {
   if (day === today) return 'Today';
   if (day === nextDay(today)) return 'Tomorrow';
-  return new Intl.DateTimeFormat('en-GB', { timeZone: 'UTC', weekday: 'long', day: 'numeric', month: 'long' }).format(new Date(`${day}T12:00:00Z`));
+  return new Intl.DateTimeFormat('en-GB', { timeZone: 'UTC', weekday: 'long', day: 'numeric', month: 'long' }).format(
+    new Date(`${day}T12:00:00Z`),
+  );
 }
 
 /**
@@ -26,24 +32,46 @@ export function dayLabel(day: string, today: string): string {
  */
 export function groupByDay(list: MyWorkList): DayGroup[] {
   const groups = new Map<string, MyWorkItem[]>();
-  const sorted = [...list.items].sort((a, b) => Date.parse(a.startsAt) - Date.parse(b.startsAt) || a.bookingId.localeCompare(b.bookingId));
+  const sorted = [...list.items].sort(
+    (a, b) => Date.parse(a.startsAt) - Date.parse(b.startsAt) || a.bookingId.localeCompare(b.bookingId),
+  );
   for (const item of sorted) {
     const day = item.day < list.today ? list.today : item.day;
     groups.set(day, [...(groups.get(day) ?? []), item]);
   }
-  return [...groups.entries()].sort(([a], [b]) => a.localeCompare(b)).map(([day, items]) => ({ day, label: dayLabel(day, list.today), items }));
+  return [...groups.entries()]
+    .sort(([a], [b]) => a.localeCompare(b))
+    .map(([day, items]) => ({ day, label: dayLabel(day, list.today), items }));
 }
 
 /** The words around each progress step: the button, the question before it and what is said after. */
 export const PROGRESS_WORDS: Record<ProgressAction, { button: string; question: string; yes: string; done: string }> = {
-  arrive: { button: 'On site', question: 'Mark that you are on site now?', yes: 'Yes, on site', done: 'marked on site' },
+  arrive: {
+    button: 'On site',
+    question: 'Mark that you are on site now?',
+    yes: 'Yes, on site',
+    done: 'marked on site',
+  },
   finish: { button: 'Done', question: 'Mark this work as done?', yes: 'Yes, done', done: 'marked done' },
-  'undo-arrive': { button: 'Not on site yet', question: 'Take back "on site"?', yes: 'Take it back', done: 'no longer on site' },
-  'undo-finish': { button: 'Not done yet', question: 'Take back "done"? The work shows as on site again.', yes: 'Take it back', done: 'no longer done' },
+  'undo-arrive': {
+    button: 'Not on site yet',
+    question: 'Take back "on site"?',
+    yes: 'Take it back',
+    done: 'no longer on site',
+  },
+  'undo-finish': {
+    button: 'Not done yet',
+    question: 'Take back "done"? The work shows as on site again.',
+    yes: 'Take it back',
+    done: 'no longer done',
+  },
 };
 
 /** Which action takes a step back (the Undo after marking). */
-export const UNDO_OF = { arrive: 'undo-arrive', finish: 'undo-finish' } as const satisfies Record<'arrive' | 'finish', ProgressAction>;
+export const UNDO_OF = { arrive: 'undo-arrive', finish: 'undo-finish' } as const satisfies Record<
+  'arrive' | 'finish',
+  ProgressAction
+>;
 
 /** A phone number as a tel: link (spaces dropped). @example telHref('0113 496 0001') // 'tel:01134960001' */
 export function telHref(phone: string): string {

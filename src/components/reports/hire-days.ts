@@ -1,11 +1,18 @@
 import { endOfLocalDay, startOfLocalDay } from '@shared/local-dates';
 
 /** A hire's first and last day as typed into the form (YYYY-MM-DD, either may be empty). */
-export interface HireDays { onHire: string; offHire: string }
+export interface HireDays {
+  onHire: string;
+  offHire: string;
+}
 
 /** A typed day as an instant, or '' (which the hire schema refuses with its own words) when it is not a day. */
 function instantOr(at: () => number): string {
-  try { return new Date(at()).toISOString(); } catch { return ''; }
+  try {
+    return new Date(at()).toISOString();
+  } catch {
+    return '';
+  }
 }
 
 /**

@@ -13,15 +13,22 @@ let port: number;
 beforeAll(async () => {
   const app = express();
   // A signed-in session holding TOKEN, as express-session would give.
-  app.use((req, _res, next) => { (req as unknown as { session: object }).session = { userId: 'u1', csrfToken: TOKEN }; next(); });
+  app.use((req, _res, next) => {
+    (req as unknown as { session: object }).session = { userId: 'u1', csrfToken: TOKEN };
+    next();
+  });
   app.use(csrfProtection);
-  app.post('/api/jobs', (_req, res) => { res.status(201).json({ ok: true }); });
+  app.post('/api/jobs', (_req, res) => {
+    res.status(201).json({ ok: true });
+  });
   app.use(errorHandler);
   server = app.listen(0, '127.0.0.1');
   await new Promise<void>((resolve) => server.once('listening', () => resolve()));
   port = (server.address() as AddressInfo).port;
 });
-afterAll(async () => { await new Promise<void>((resolve) => server.close(() => resolve())); });
+afterAll(async () => {
+  await new Promise<void>((resolve) => server.close(() => resolve()));
+});
 
 /** Sends a POST with the CSRF header as raw bytes, the way any client may put them on the wire. */
 function postWithHeaderBytes(header: Buffer): Promise<{ status: number; body: string }> {
@@ -34,10 +41,15 @@ function postWithHeaderBytes(header: Buffer): Promise<{ status: number; body: st
       const text = Buffer.concat(chunks).toString('utf8');
       resolve({ status: Number(text.slice(9, 12)), body: text.slice(text.indexOf('\r\n\r\n') + 4) });
     });
-    socket.write(Buffer.concat([
-      Buffer.from('POST /api/jobs HTTP/1.1\r\nHost: 127.0.0.1\r\nConnection: close\r\nContent-Length: 0\r\nX-CSRF-Token: '),
-      header, Buffer.from('\r\n\r\n'),
-    ]));
+    socket.write(
+      Buffer.concat([
+        Buffer.from(
+          'POST /api/jobs HTTP/1.1\r\nHost: 127.0.0.1\r\nConnection: close\r\nContent-Length: 0\r\nX-CSRF-Token: ',
+        ),
+        header,
+        Buffer.from('\r\n\r\n'),
+      ]),
+    );
   });
 }
 

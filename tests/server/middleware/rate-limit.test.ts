@@ -5,32 +5,51 @@ import express from 'express';
 import request from 'supertest';
 import RedisMock from 'ioredis-mock';
 import pino from 'pino';
-import { addressKey, createRateLimits, type RateLimits, type RateLimitSettings } from '../../../server/middleware/rate-limit.ts';
+import {
+  addressKey,
+  createRateLimits,
+  type RateLimits,
+  type RateLimitSettings,
+} from '../../../server/middleware/rate-limit.ts';
 import { errorHandler } from '../../../server/errors.ts';
 
 const WINDOW = 900;
 
 function settings(overrides: Partial<RateLimitSettings> = {}): RateLimitSettings {
   return {
-    REDIS_URL: 'redis://127.0.0.1:6379', RATE_LIMIT_PREFIX: `unit:${randomUUID()}`, RATE_LIMIT_WINDOW_SECONDS: WINDOW,
-    SIGN_IN_RATE_LIMIT: 3, ANSWER_LINK_RATE_LIMIT: 2, INVITE_LINK_RATE_LIMIT: 2, FEED_RATE_LIMIT: 2, ...overrides,
+    REDIS_URL: 'redis://127.0.0.1:6379',
+    RATE_LIMIT_PREFIX: `unit:${randomUUID()}`,
+    RATE_LIMIT_WINDOW_SECONDS: WINDOW,
+    SIGN_IN_RATE_LIMIT: 3,
+    ANSWER_LINK_RATE_LIMIT: 2,
+    INVITE_LINK_RATE_LIMIT: 2,
+    FEED_RATE_LIMIT: 2,
+    ...overrides,
   };
 }
 
 /** A small app with the budgets where the web app puts them; /answer/good answers 200, any other token 400. */
 function appWith(limits: RateLimits) {
   const app = express();
-  app.get('/auth/google', limits.signIn.count, (_req, res) => { res.redirect('https://provider.example/authorize'); });
+  app.get('/auth/google', limits.signIn.count, (_req, res) => {
+    res.redirect('https://provider.example/authorize');
+  });
   app.use('/answer', limits.answerLinks.count);
   app.use('/invite', limits.inviteLinks.count);
-  app.get('/answer/:token', (req, res) => { res.status(req.params.token === 'good' ? 200 : 400).send('page'); });
-  app.get('/invite/:token', (_req, res) => { res.status(400).send('refused'); });
+  app.get('/answer/:token', (req, res) => {
+    res.status(req.params.token === 'good' ? 200 : 400).send('page');
+  });
+  app.get('/invite/:token', (_req, res) => {
+    res.status(400).send('refused');
+  });
   app.use(errorHandler);
   return app;
 }
 
 const open: RateLimits[] = [];
-afterEach(async () => { await Promise.all(open.splice(0).map((l) => l.close())); });
+afterEach(async () => {
+  await Promise.all(open.splice(0).map((l) => l.close()));
+});
 
 describe('addressKey', () => {
   it('keys IPv4 by the address, IPv4-mapped IPv6 by its IPv4, IPv6 by its /56', () => {
@@ -81,7 +100,10 @@ describe('a budget over Redis (ioredis-mock)', () => {
     open.push(limits);
     const app = appWith(limits);
     await request(app).get('/auth/google').set('Accept', 'text/html').expect(302);
-    const refused = await request(app).get('/auth/google').set('Accept', 'text/html,application/xhtml+xml,*/*;q=0.8').expect(429);
+    const refused = await request(app)
+      .get('/auth/google')
+      .set('Accept', 'text/html,application/xhtml+xml,*/*;q=0.8')
+      .expect(429);
     expect(refused.headers['content-type']).toMatch(/^text\/html/);
     expect(refused.text).toContain('<h1>Too many sign-in attempts</h1>');
     expect(refused.text).toContain('Try again in 15 minutes.');
@@ -166,8 +188,10 @@ describe('when Redis does not answer', () => {
           buffered = buffered.slice(at);
           const name = parts[0]?.toLowerCase();
           if (name === 'evalsha' || name === 'eval') scripts += 1;
-          else if (name === 'info') { const info = 'redis_version:7.0.0\r\nloading:0\r\n'; s.write(`$${info.length}\r\n${info}\r\n`); }
-          else s.write('+OK\r\n');
+          else if (name === 'info') {
+            const info = 'redis_version:7.0.0\r\nloading:0\r\n';
+            s.write(`$${info.length}\r\n${info}\r\n`);
+          } else s.write('+OK\r\n');
         }
       });
     });
@@ -186,7 +210,17 @@ describe('when Redis does not answer', () => {
 
   function capturingLogger() {
     const lines: { level: number; msg: string; limit?: string }[] = [];
-    return { lines, logger: pino({ level: 'warn' }, { write: (line: string) => { lines.push(JSON.parse(line)); } }) };
+    return {
+      lines,
+      logger: pino(
+        { level: 'warn' },
+        {
+          write: (line: string) => {
+            lines.push(JSON.parse(line));
+          },
+        },
+      ),
+    };
   }
 
   it('still serves at once when nothing listens, counting in this process and warning once', async () => {

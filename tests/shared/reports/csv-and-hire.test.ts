@@ -9,7 +9,15 @@ describe('CSV per RFC 4180', () => {
     expect(csvField('Dig, then pour')).toBe('"Dig, then pour"');
     expect(csvField('the "big" crane')).toBe('"the ""big"" crane"');
     expect(csvField('line one\nline two')).toBe('"line one\nline two"');
-    expect(toCsv([{ a: 'x', b: 2 }], [{ header: 'A', value: (r) => r.a }, { header: 'B', value: (r) => r.b }])).toBe('A,B\r\nx,2\r\n');
+    expect(
+      toCsv(
+        [{ a: 'x', b: 2 }],
+        [
+          { header: 'A', value: (r) => r.a },
+          { header: 'B', value: (r) => r.b },
+        ],
+      ),
+    ).toBe('A,B\r\nx,2\r\n');
   });
   it('keeps spreadsheet formulas from running but leaves negative numbers alone', () => {
     expect(csvField('=SUM(A1:A9)')).toBe("'=SUM(A1:A9)");
@@ -37,9 +45,20 @@ describe('hire suggestions', () => {
   });
   it('offers to off-hire over a middle gap only when it costs more than collecting and delivering again', () => {
     const fortnight = [...week, '2026-06-29', '2026-06-30', '2026-07-01', '2026-07-02', '2026-07-03'];
-    const idle = new Set(['2026-06-23', '2026-06-24', '2026-06-25', '2026-06-26', '2026-06-29', '2026-06-30', '2026-07-01', '2026-07-02']);
+    const idle = new Set([
+      '2026-06-23',
+      '2026-06-24',
+      '2026-06-25',
+      '2026-06-26',
+      '2026-06-29',
+      '2026-06-30',
+      '2026-07-01',
+      '2026-07-02',
+    ]);
     // 8 idle days × £145.00 = £1,160.00, less £120.00 collection and delivery = £1,040.00
-    expect(hireSuggestions(fortnight, idle, 14500, charges, '2026-06-01')).toEqual([expect.objectContaining({ kind: 'split', savesPence: 104000 })]);
+    expect(hireSuggestions(fortnight, idle, 14500, charges, '2026-06-01')).toEqual([
+      expect.objectContaining({ kind: 'split', savesPence: 104000 }),
+    ]);
     // One idle day at £100.00 saves less than the £120.00 of another collection and delivery: nothing to suggest.
     expect(hireSuggestions(week, new Set(['2026-06-24']), 10000, charges, '2026-06-01')).toEqual([]);
   });
@@ -52,10 +71,26 @@ describe('hire suggestions', () => {
 
 describe('report weeks and booked time', () => {
   it('starts weeks on the local Monday (BST in June)', () => {
-    expect(weeksFrom(Date.parse('2026-06-03T12:00:00Z'), 'Europe/London', 2)).toEqual({ from: '2026-05-31T23:00:00.000Z', to: '2026-06-14T23:00:00.000Z' });
+    expect(weeksFrom(Date.parse('2026-06-03T12:00:00Z'), 'Europe/London', 2)).toEqual({
+      from: '2026-05-31T23:00:00.000Z',
+      to: '2026-06-14T23:00:00.000Z',
+    });
     expect(weekOfDate('2026-06-28')).toBe('2026-06-22'); // a Sunday belongs to the week before
   });
   it('merges overlapping bookings so shared time counts once', () => {
-    expect(unionWithin([{ start: 0, end: 10 }, { start: 5, end: 20 }, { start: 30, end: 40 }], 0, 35)).toEqual([{ start: 0, end: 20 }, { start: 30, end: 35 }]);
+    expect(
+      unionWithin(
+        [
+          { start: 0, end: 10 },
+          { start: 5, end: 20 },
+          { start: 30, end: 40 },
+        ],
+        0,
+        35,
+      ),
+    ).toEqual([
+      { start: 0, end: 20 },
+      { start: 30, end: 35 },
+    ]);
   });
 });

@@ -1,7 +1,17 @@
 import { describe, expect, it } from 'vitest';
 import {
-  analyseBoard, autoPlace, bookableStart, createBoardIndex, findSlots, formatInstant, longestWorkingDayMinutes, mustFitInOneDay,
-  roundDownToStep, roundUpToStep, weeklyHours, type WorkingCalendar,
+  analyseBoard,
+  autoPlace,
+  bookableStart,
+  createBoardIndex,
+  findSlots,
+  formatInstant,
+  longestWorkingDayMinutes,
+  mustFitInOneDay,
+  roundDownToStep,
+  roundUpToStep,
+  weeklyHours,
+  type WorkingCalendar,
 } from '../../../shared/scheduler/index.js';
 import { at, booking, emptyBoard, LONDON } from './scenario.js';
 import { electriciansWeek } from './in-ground.js';
@@ -48,14 +58,18 @@ describe('rounding up to the booking step, in local time', () => {
 });
 
 describe('the first start a person would book', () => {
-  const lateStarter: WorkingCalendar = { id: 'late', timeZone: LONDON, weekly: weeklyHours([1, 2, 3, 4, 5], [[7 * 60 + 40, 16 * 60]]) };
+  const lateStarter: WorkingCalendar = {
+    id: 'late',
+    timeZone: LONDON,
+    weekly: weeklyHours([1, 2, 3, 4, 5], [[7 * 60 + 40, 16 * 60]]),
+  };
 
   it('is in working time and on the step', () => {
     expect(bookableStart(lateStarter, at(2026, 6, 1, 7), { stepMinutes: 15 })).toBe(at(2026, 6, 1, 7, 45));
     expect(bookableStart(lateStarter, at(2026, 6, 1, 15, 50), { stepMinutes: 15 })).toBe(at(2026, 6, 2, 7, 45));
   });
 
-  it('with a stage to fit in the day: 4 h from Friday 13:00 on the electricians\' week goes to Saturday 08:00, 5 h to Monday 07:30', () => {
+  it("with a stage to fit in the day: 4 h from Friday 13:00 on the electricians' week goes to Saturday 08:00, 5 h to Monday 07:30", () => {
     expect(bookableStart(electriciansWeek, at(2026, 10, 2, 13), { fitMinutes: 240 })).toBe(at(2026, 10, 3, 8));
     expect(bookableStart(electriciansWeek, at(2026, 10, 2, 13), { fitMinutes: 300 })).toBe(at(2026, 10, 5, 7, 30));
     expect(bookableStart(electriciansWeek, at(2026, 10, 2, 13))).toBe(at(2026, 10, 2, 13));
@@ -63,7 +77,19 @@ describe('the first start a person would book', () => {
 
   it("a working day is the week's longest (ranges merged); a stage fits one when no longer and not allowed to continue", () => {
     expect(longestWorkingDayMinutes(electriciansWeek)).toBe(540);
-    expect(longestWorkingDayMinutes({ id: 'x', timeZone: LONDON, weekly: weeklyHours([1], [[480, 720], [600, 900]]) })).toBe(420);
+    expect(
+      longestWorkingDayMinutes({
+        id: 'x',
+        timeZone: LONDON,
+        weekly: weeklyHours(
+          [1],
+          [
+            [480, 720],
+            [600, 900],
+          ],
+        ),
+      }),
+    ).toBe(420);
     expect(mustFitInOneDay({ durationMinutes: 540 }, electriciansWeek)).toBe(true);
     expect(mustFitInOneDay({ durationMinutes: 541 }, electriciansWeek)).toBe(false);
     expect(mustFitInOneDay({ durationMinutes: 240, mayContinueNextDay: true }, electriciansWeek)).toBe(false);
@@ -74,21 +100,35 @@ describe('times the engine works out for people land on the step', () => {
   it('the slot finder: the connection 1 working hour after a lift ending at 12:07 is offered from 13:15', () => {
     const b = emptyBoard();
     b.bookings = [booking('l', 'lift', 'crane-1', at(2026, 6, 2, 8, 7), at(2026, 6, 2, 12, 7))];
-    const slots = findSlots(createBoardIndex(b, { now: at(2026, 5, 1, 9) }), { stageId: 'connect', resourceId: 'spark-1', earliest: at(2026, 5, 1, 9) }, { alternatives: 0 });
-    expect(slots.map((s) => [formatInstant(s.start, LONDON), formatInstant(s.end, LONDON)])).toEqual([['Tue 2 Jun 13:15', 'Tue 2 Jun 16:15']]);
+    const slots = findSlots(
+      createBoardIndex(b, { now: at(2026, 5, 1, 9) }),
+      { stageId: 'connect', resourceId: 'spark-1', earliest: at(2026, 5, 1, 9) },
+      { alternatives: 0 },
+    );
+    expect(slots.map((s) => [formatInstant(s.start, LONDON), formatInstant(s.end, LONDON)])).toEqual([
+      ['Tue 2 Jun 13:15', 'Tue 2 Jun 16:15'],
+    ]);
   });
 
   it('auto-place: from a "now" of 09:07 the first stage starts at 09:15 (or on a half-hour step, 09:30)', () => {
-    expect(autoPlace(emptyBoard(), { now: at(2026, 5, 1, 9, 7) }).placed[0]).toMatchObject({ stageId: 'dig', start: at(2026, 5, 1, 9, 15) });
-    expect(autoPlace(emptyBoard(), { now: at(2026, 5, 1, 9, 7), bookingStepMinutes: 30 }).placed[0]).toMatchObject({ stageId: 'dig', start: at(2026, 5, 1, 9, 30) });
+    expect(autoPlace(emptyBoard(), { now: at(2026, 5, 1, 9, 7) }).placed[0]).toMatchObject({
+      stageId: 'dig',
+      start: at(2026, 5, 1, 9, 15),
+    });
+    expect(autoPlace(emptyBoard(), { now: at(2026, 5, 1, 9, 7), bookingStepMinutes: 30 }).placed[0]).toMatchObject({
+      stageId: 'dig',
+      start: at(2026, 5, 1, 9, 30),
+    });
   });
 
-  it("a notice period counted from 09:07 gives the earliest start as 09:15 (the check itself is exact)", () => {
+  it('a notice period counted from 09:07 gives the earliest start as 09:15 (the check itself is exact)', () => {
     const b = emptyBoard();
     b.bookings = [booking('b-lift', 'lift', 'crane-1', at(2026, 5, 7, 8), at(2026, 5, 7, 12), { state: 'pencilled' })];
     // 5 working days from Fri 1 May 09:07, skipping the bank holiday on Mon 4 May: Mon 11 May 09:07.
     const lead = analyseBoard(b, { now: at(2026, 5, 1, 9, 7) }).violations.filter((v) => v.kind === 'lead_time');
-    expect(lead.map((v) => v.message)).toEqual(["The crane (crane-1) needs 5 working days' notice from today: the earliest start is Mon 11 May 09:15"]);
+    expect(lead.map((v) => v.message)).toEqual([
+      "The crane (crane-1) needs 5 working days' notice from today: the earliest start is Mon 11 May 09:15",
+    ]);
     expect(lead[0]?.details).toMatchObject({ earliest: at(2026, 5, 11, 9, 7), earliestStart: at(2026, 5, 11, 9, 15) });
   });
 });

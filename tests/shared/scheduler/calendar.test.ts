@@ -1,16 +1,33 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import {
-  addWorkingDays, addWorkingMinutes, compileCalendar, countWorkingDays, dayNumber, isWorkingInstant, localToInstant,
-  nextWorkingInstant, resourceCalendar, SchedulerError, timeZoneOffset, weeklyHours,
-  workingIntervals, workingMinutesBetween, type WorkingCalendar,
+  addWorkingDays,
+  addWorkingMinutes,
+  compileCalendar,
+  countWorkingDays,
+  dayNumber,
+  isWorkingInstant,
+  localToInstant,
+  nextWorkingInstant,
+  resourceCalendar,
+  SchedulerError,
+  timeZoneOffset,
+  weeklyHours,
+  workingIntervals,
+  workingMinutesBetween,
+  type WorkingCalendar,
 } from '../../../shared/scheduler/index.js';
 import { at, firmCal, LONDON, MON_FRI_8_TO_5 } from './scenario.js';
 
 describe('public holidays come from the calendar (the server lists them; the engine holds no tables)', () => {
   it('keeps the listed days free and treats other days as ordinary', () => {
     // St Andrew's Day, Monday 30 November 2026, is a bank holiday in Scotland only (gov.uk, from memory).
-    const scotland: WorkingCalendar = { id: 'sct', timeZone: LONDON, weekly: MON_FRI_8_TO_5, holidays: [{ date: '2026-11-30', name: "St Andrew's Day" }] };
+    const scotland: WorkingCalendar = {
+      id: 'sct',
+      timeZone: LONDON,
+      weekly: MON_FRI_8_TO_5,
+      holidays: [{ date: '2026-11-30', name: "St Andrew's Day" }],
+    };
     const england: WorkingCalendar = { id: 'eng', timeZone: LONDON, weekly: MON_FRI_8_TO_5 };
     expect(isWorkingInstant(scotland, at(2026, 11, 30, 10))).toBe(false);
     expect(isWorkingInstant(england, at(2026, 11, 30, 10))).toBe(true);
@@ -20,12 +37,17 @@ describe('public holidays come from the calendar (the server lists them; the eng
 
   it('refuses a holiday that is not a date', () => {
     for (const date of ['2026-02-30', '30/11/2026', '']) {
-      const cal: WorkingCalendar = { id: `bad ${date}`, timeZone: LONDON, weekly: MON_FRI_8_TO_5, holidays: [{ date, name: 'x' }] };
+      const cal: WorkingCalendar = {
+        id: `bad ${date}`,
+        timeZone: LONDON,
+        weekly: MON_FRI_8_TO_5,
+        holidays: [{ date, name: 'x' }],
+      };
       expect(() => nextWorkingInstant(cal, at(2026, 11, 30, 10))).toThrow(SchedulerError);
     }
   });
 
-  it('a resource calendar keeps its firm\'s holidays', () => {
+  it("a resource calendar keeps its firm's holidays", () => {
     const own = resourceCalendar(firmCal, { id: 'dave' });
     expect(own.holidays).toBe(firmCal.holidays);
     expect(isWorkingInstant(own, at(2026, 12, 28, 10))).toBe(false);
@@ -44,7 +66,8 @@ describe('Europe/London clock changes (last Sunday of March and October at 01:00
       const [y, m, d] = c.date;
       const day = dayNumber(y, m, d);
       expect((localToInstant(LONDON, day + 1, 0) - localToInstant(LONDON, day, 0)) / 3_600_000).toBe(c.hours);
-      const before = timeZoneOffset(LONDON, c.change - 1), after = timeZoneOffset(LONDON, c.change);
+      const before = timeZoneOffset(LONDON, c.change - 1),
+        after = timeZoneOffset(LONDON, c.change);
       expect(before).not.toBe(after);
       expect(Math.abs(after - before)).toBe(3_600_000);
       expect(timeZoneOffset(LONDON, c.change - 3_600_000)).toBe(before);
@@ -52,7 +75,11 @@ describe('Europe/London clock changes (last Sunday of March and October at 01:00
   }
 
   it('a round-the-clock calendar has 1380 working minutes on the spring day and 1500 on the autumn day', () => {
-    const allDay: WorkingCalendar = { id: 'always', timeZone: LONDON, weekly: weeklyHours([0, 1, 2, 3, 4, 5, 6], [[0, 1440]]) };
+    const allDay: WorkingCalendar = {
+      id: 'always',
+      timeZone: LONDON,
+      weekly: weeklyHours([0, 1, 2, 3, 4, 5, 6], [[0, 1440]]),
+    };
     expect(workingMinutesBetween(allDay, at(2026, 3, 29), at(2026, 3, 30))).toBe(1380);
     expect(workingMinutesBetween(allDay, at(2026, 10, 25), at(2026, 10, 26))).toBe(1500);
   });
@@ -105,7 +132,8 @@ describe('working time on a Monday–Friday 08:00–17:00 calendar in England', 
 
 describe('a resource calendar: firm calendar, own hours and absences', () => {
   const sam = resourceCalendar(firmCal, {
-    id: 'sam', weekly: weeklyHours([1, 2, 3, 4], [[7 * 60, 16 * 60]]),
+    id: 'sam',
+    weekly: weeklyHours([1, 2, 3, 4], [[7 * 60, 16 * 60]]),
     absences: [{ start: at(2026, 6, 9), end: at(2026, 6, 11) }],
   });
 
@@ -114,7 +142,7 @@ describe('a resource calendar: firm calendar, own hours and absences', () => {
     expect(nextWorkingInstant(sam, at(2026, 6, 8, 16))).toBe(at(2026, 6, 11, 7));
   });
 
-  it('keeps the firm\'s bank holidays: Spring bank holiday 25 May 2026 is off', () => {
+  it("keeps the firm's bank holidays: Spring bank holiday 25 May 2026 is off", () => {
     expect(nextWorkingInstant(sam, at(2026, 5, 25, 9))).toBe(at(2026, 5, 26, 7));
   });
 
@@ -126,7 +154,9 @@ describe('a resource calendar: firm calendar, own hours and absences', () => {
 
 describe('refuses bad input with typed errors', () => {
   it('an unknown time zone', () => {
-    expect(() => compileCalendar({ id: 'x', timeZone: 'Mars/Olympus', weekly: MON_FRI_8_TO_5 })).toThrow(SchedulerError);
+    expect(() => compileCalendar({ id: 'x', timeZone: 'Mars/Olympus', weekly: MON_FRI_8_TO_5 })).toThrow(
+      SchedulerError,
+    );
   });
   it('working hours that are not minutes of a day', () => {
     const bad = { id: 'x', timeZone: LONDON, weekly: weeklyHours([1], [[600, 1500]]) };
@@ -134,7 +164,9 @@ describe('refuses bad input with typed errors', () => {
   });
   it('a calendar with no working time at all', () => {
     const never = { id: 'never', timeZone: LONDON, weekly: weeklyHours([], []) };
-    expect(() => nextWorkingInstant(never, at(2026, 1, 1))).toThrowError(expect.objectContaining({ code: 'no_working_time' }));
+    expect(() => nextWorkingInstant(never, at(2026, 1, 1))).toThrowError(
+      expect.objectContaining({ code: 'no_working_time' }),
+    );
   });
   it('a non-finite instant', () => {
     expect(() => addWorkingMinutes(firmCal, Number.NaN, 10)).toThrow(RangeError);
@@ -142,8 +174,12 @@ describe('refuses bad input with typed errors', () => {
   it('working time counted across millennia (year 9999), at once rather than after minutes of work', () => {
     const cal = { ...firmCal, id: 'far' };
     const started = performance.now();
-    expect(() => workingMinutesBetween(cal, at(2026, 6, 1), Date.UTC(9999, 0, 4, 9))).toThrowError(expect.objectContaining({ code: 'out_of_range' }));
-    expect(() => workingMinutesBetween({ ...cal, id: 'far-back' }, Date.parse('0001-01-04T09:00:00Z'), at(2026, 6, 1))).toThrowError(expect.objectContaining({ code: 'out_of_range' }));
+    expect(() => workingMinutesBetween(cal, at(2026, 6, 1), Date.UTC(9999, 0, 4, 9))).toThrowError(
+      expect.objectContaining({ code: 'out_of_range' }),
+    );
+    expect(() =>
+      workingMinutesBetween({ ...cal, id: 'far-back' }, Date.parse('0001-01-04T09:00:00Z'), at(2026, 6, 1)),
+    ).toThrowError(expect.objectContaining({ code: 'out_of_range' }));
     expect(performance.now() - started).toBeLessThan(1000);
     // A year still counts: 2026-06-01 to 2027-06-01 holds 261 weekdays, less the 8 England and Wales
     // bank holidays in it (gov.uk lists, as checked above), each of 9 working hours: 253 × 540 minutes.
@@ -153,25 +189,50 @@ describe('refuses bad input with typed errors', () => {
 
 describe('properties of working time', () => {
   const start2026 = at(2026, 1, 1);
-  const workingStart = fc.integer({ min: 0, max: 2 * 365 * 24 * 60 }).map((m) => nextWorkingInstant(firmCal, start2026 + m * 60_000));
+  const workingStart = fc
+    .integer({ min: 0, max: 2 * 365 * 24 * 60 })
+    .map((m) => nextWorkingInstant(firmCal, start2026 + m * 60_000));
 
   it('adding then subtracting working time returns the start (starts inside working time)', () => {
-    fc.assert(fc.property(workingStart, fc.integer({ min: 1, max: 20_000 }), (s, minutes) => {
-      const end = addWorkingMinutes(firmCal, s, minutes);
-      expect(addWorkingMinutes(firmCal, end, -minutes)).toBe(s);
-      expect(workingMinutesBetween(firmCal, s, end)).toBeCloseTo(minutes, 6);
-    }), { numRuns: 300 });
+    fc.assert(
+      fc.property(workingStart, fc.integer({ min: 1, max: 20_000 }), (s, minutes) => {
+        const end = addWorkingMinutes(firmCal, s, minutes);
+        expect(addWorkingMinutes(firmCal, end, -minutes)).toBe(s);
+        expect(workingMinutesBetween(firmCal, s, end)).toBeCloseTo(minutes, 6);
+      }),
+      { numRuns: 300 },
+    );
   });
 
   it('the same holds in New York, across US clock changes and federal holidays', () => {
     // US federal holidays 2026 (observed; from memory): New Year, MLK Day, Presidents' Day, Memorial Day,
     // Juneteenth, Independence Day (Saturday 4 July, observed Friday 3 July), Labor Day, Columbus Day,
     // Veterans Day, Thanksgiving, Christmas.
-    const federal = ['2026-01-01', '2026-01-19', '2026-02-16', '2026-05-25', '2026-06-19', '2026-07-03', '2026-09-07', '2026-10-12', '2026-11-11', '2026-11-26', '2026-12-25'];
-    const ny: WorkingCalendar = { id: 'ny', timeZone: 'America/New_York', weekly: MON_FRI_8_TO_5, holidays: federal.map((date) => ({ date, name: 'federal holiday' })) };
-    fc.assert(fc.property(fc.integer({ min: 0, max: 365 * 24 * 60 }), fc.integer({ min: 1, max: 5000 }), (m, minutes) => {
-      const s = nextWorkingInstant(ny, start2026 + m * 60_000);
-      expect(addWorkingMinutes(ny, addWorkingMinutes(ny, s, minutes), -minutes)).toBe(s);
-    }), { numRuns: 200 });
+    const federal = [
+      '2026-01-01',
+      '2026-01-19',
+      '2026-02-16',
+      '2026-05-25',
+      '2026-06-19',
+      '2026-07-03',
+      '2026-09-07',
+      '2026-10-12',
+      '2026-11-11',
+      '2026-11-26',
+      '2026-12-25',
+    ];
+    const ny: WorkingCalendar = {
+      id: 'ny',
+      timeZone: 'America/New_York',
+      weekly: MON_FRI_8_TO_5,
+      holidays: federal.map((date) => ({ date, name: 'federal holiday' })),
+    };
+    fc.assert(
+      fc.property(fc.integer({ min: 0, max: 365 * 24 * 60 }), fc.integer({ min: 1, max: 5000 }), (m, minutes) => {
+        const s = nextWorkingInstant(ny, start2026 + m * 60_000);
+        expect(addWorkingMinutes(ny, addWorkingMinutes(ny, s, minutes), -minutes)).toBe(s);
+      }),
+      { numRuns: 200 },
+    );
   });
 });

@@ -1,6 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import {
-  ageForStrengthRatio, analyseBoard, cureRelease, elapsedDaysForEquivalentAge, equivalentAge, strengthRatioAtAge,
+  ageForStrengthRatio,
+  analyseBoard,
+  cureRelease,
+  elapsedDaysForEquivalentAge,
+  equivalentAge,
+  strengthRatioAtAge,
 } from '../../../shared/scheduler/index.js';
 import { at, booking, emptyBoard } from './scenario.js';
 
@@ -29,16 +34,19 @@ describe('Nurse–Saul maturity (ASTM C1074, datum 0 °C, reference 23 °C), wor
   // more, so 3 + 13.90123 = 16.90123 elapsed days. (With the older −10 °C datum and 20 °C reference the
   // same temperatures gave 10.87 days: the old constants made a cold base cure too soon.)
   const temps = [5, 5, 10];
-  it('equivalent age after 3 days is 20/23 = 0.870 days', () => expect(equivalentAge(temps, 3)).toBeCloseTo(20 / 23, 10));
-  it('part days count in proportion: after 1.5 days, (5 + 2.5)/23 = 0.326', () => expect(equivalentAge(temps, 1.5)).toBeCloseTo(7.5 / 23, 10));
-  it('70% is reached after 16.901 elapsed days', () => expect(elapsedDaysForEquivalentAge(temps, ageForStrengthRatio(0.7))).toBeCloseTo(16.90123, 5));
+  it('equivalent age after 3 days is 20/23 = 0.870 days', () =>
+    expect(equivalentAge(temps, 3)).toBeCloseTo(20 / 23, 10));
+  it('part days count in proportion: after 1.5 days, (5 + 2.5)/23 = 0.326', () =>
+    expect(equivalentAge(temps, 1.5)).toBeCloseTo(7.5 / 23, 10));
+  it('70% is reached after 16.901 elapsed days', () =>
+    expect(elapsedDaysForEquivalentAge(temps, ageForStrengthRatio(0.7))).toBeCloseTo(16.90123, 5));
   it('cold below the datum adds nothing, and a frozen forecast never releases', () => {
     // −15 °C counts 0; 20 °C counts 20/23.
     expect(equivalentAge([-15, 20], 2)).toBeCloseTo(20 / 23, 10);
     // −1 °C is below the 0 °C datum (it would still have counted 9/30 a day at the older −10 °C datum).
     expect(() => elapsedDaysForEquivalentAge([-1], 1)).toThrow(RangeError);
   });
-  it('a datum and reference of the caller\'s own are honoured: datum −10, reference 20 gives (5 + 10)/30 = 0.5 a day at 5 °C', () => {
+  it("a datum and reference of the caller's own are honoured: datum −10, reference 20 gives (5 + 10)/30 = 0.5 a day at 5 °C", () => {
     expect(equivalentAge([5], 2, { datumC: -10, referenceC: 20 })).toBeCloseTo(1, 10);
   });
 
@@ -68,7 +76,9 @@ describe('when the base has not cured', () => {
     const cure = analyseBoard(board, { now: at(2026, 4, 1) }).violations.filter((v) => v.kind === 'cure');
     // Poured until Tue 5 May 16:00 BST; + 6.914 days = Tue 12 May 13:55:33, rounded up to 13:56.
     expect(cure).toHaveLength(1);
-    expect(cure[0]?.message).toBe("'Lift' can't start before the base has cured: 70% strength is reached at Tue 12 May 13:56");
+    expect(cure[0]?.message).toBe(
+      "'Lift' can't start before the base has cured: 70% strength is reached at Tue 12 May 13:56",
+    );
     expect(cure[0]?.severity).toBe('error');
     expect(cure[0]?.details?.releaseAt).toBe(at(2026, 5, 12, 13, 56));
   });

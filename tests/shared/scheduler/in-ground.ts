@@ -2,24 +2,41 @@
 // firm, its partners and their people are our own scenario.
 import type { Board, Resource, WorkingCalendar } from '../../../shared/scheduler/index.js';
 import { weeklyHours } from '../../../shared/scheduler/index.js';
-import { DECK_TEMPLATE, IN_GROUND_TEMPLATE, planFromTemplate, type InstallTemplate } from '../../../shared/templates/index.js';
+import {
+  DECK_TEMPLATE,
+  IN_GROUND_TEMPLATE,
+  planFromTemplate,
+  type InstallTemplate,
+} from '../../../shared/templates/index.js';
 import { at, LONDON } from './scenario.js';
 import { ENGLAND_AND_WALES } from './uk-holidays.js';
 
 /** Mon–Fri 08:00–17:00 in England (the installer, the groundworkers, the crane and lorry firms). */
 export const standardWeek: WorkingCalendar = {
-  id: 'cal-standard', timeZone: LONDON, weekly: weeklyHours([1, 2, 3, 4, 5], [[8 * 60, 17 * 60]]), holidayRegion: { country: 'GB', state: 'ENG' }, holidays: ENGLAND_AND_WALES,
+  id: 'cal-standard',
+  timeZone: LONDON,
+  weekly: weeklyHours([1, 2, 3, 4, 5], [[8 * 60, 17 * 60]]),
+  holidayRegion: { country: 'GB', state: 'ENG' },
+  holidays: ENGLAND_AND_WALES,
 };
 
 /** The electricians' week: Mon–Fri 07:30–16:30 and Saturday 08:00–12:00. */
 export const electriciansWeek: WorkingCalendar = {
-  id: 'cal-electricians', timeZone: LONDON,
+  id: 'cal-electricians',
+  timeZone: LONDON,
   weekly: [[], [[450, 990]], [[450, 990]], [[450, 990]], [[450, 990]], [[450, 990]], [[480, 720]]],
-  holidayRegion: { country: 'GB', state: 'ENG' }, holidays: ENGLAND_AND_WALES,
+  holidayRegion: { country: 'GB', state: 'ENG' },
+  holidays: ENGLAND_AND_WALES,
 };
 
-const res = (id: string, kind: string, firmId: string, calendarId = standardWeek.id, name?: string): Resource =>
-  ({ id, kind, firmId, calendarId, category: kind.endsWith('crew') ? 'crew' : kind === 'electrician' ? 'person' : 'machine', ...(name ? { name } : {}) });
+const res = (id: string, kind: string, firmId: string, calendarId = standardWeek.id, name?: string): Resource => ({
+  id,
+  kind,
+  firmId,
+  calendarId,
+  category: kind.endsWith('crew') ? 'crew' : kind === 'electrician' ? 'person' : 'machine',
+  ...(name ? { name } : {}),
+});
 
 export const installResources: Resource[] = [
   res('crew-heron', 'install_crew', 'tideway', standardWeek.id, 'Crew Heron'),
@@ -43,7 +60,11 @@ export const installResources: Resource[] = [
  */
 export const WALLS_AFTER_CURE: InstallTemplate = {
   ...IN_GROUND_TEMPLATE,
-  links: IN_GROUND_TEMPLATE.links.map((l) => (l.from === 'base_pour' && l.to === 'walls' ? { ...l, lagAmount: 1, lagUnit: 'elapsed_days', waitsForCure: true } : l)),
+  links: IN_GROUND_TEMPLATE.links.map((l) =>
+    l.from === 'base_pour' && l.to === 'walls'
+      ? { ...l, lagAmount: 1, lagUnit: 'elapsed_days', waitsForCure: true }
+      : l,
+  ),
 };
 
 /** Mon 1 Jun 2026 08:00 BST. */
@@ -54,17 +75,33 @@ export const JUNE_1 = at(2026, 6, 1, 8);
  * was ordered on Fri 15 May 09:00 unless `orderedAt` says otherwise. Notice: crane 5 working days,
  * electrician 3, delivery 15 from the order (the firm-wide rules; the stages' own notice is not loaded here).
  */
-export function plannedBoard(template: InstallTemplate = IN_GROUND_TEMPLATE, orderedAt: number | null = at(2026, 5, 15, 9)): Board {
+export function plannedBoard(
+  template: InstallTemplate = IN_GROUND_TEMPLATE,
+  orderedAt: number | null = at(2026, 5, 15, 9),
+): Board {
   const plan = planFromTemplate(template, { craneNeeded: true, excavationMinutes: null });
   return {
     calendars: [standardWeek, electriciansWeek],
     resources: installResources,
     jobs: [{ id: 'job', firmId: 'tideway', promisedBy: null, orderedAt }],
     stages: plan.stages.map((s) => ({
-      id: s.kind, jobId: 'job', kind: s.kind, name: s.name, durationMinutes: s.durationMinutes, requirements: s.requirements,
-      cure: s.cure, mayContinueNextDay: s.mayContinueNextDay,
+      id: s.kind,
+      jobId: 'job',
+      kind: s.kind,
+      name: s.name,
+      durationMinutes: s.durationMinutes,
+      requirements: s.requirements,
+      cure: s.cure,
+      mayContinueNextDay: s.mayContinueNextDay,
     })),
-    dependencies: plan.links.map((l) => ({ id: `${l.fromKind}>${l.toKind}`, fromStageId: l.fromKind, toStageId: l.toKind, type: l.type, lag: { amount: l.lagAmount, unit: l.lagUnit }, waitsForCure: l.waitsForCure })),
+    dependencies: plan.links.map((l) => ({
+      id: `${l.fromKind}>${l.toKind}`,
+      fromStageId: l.fromKind,
+      toStageId: l.toKind,
+      type: l.type,
+      lag: { amount: l.lagAmount, unit: l.lagUnit },
+      waitsForCure: l.waitsForCure,
+    })),
     bookings: [],
     hirePeriods: [],
     leadTimeRules: [

@@ -7,7 +7,17 @@ const NOW = at(2026, 5, 1, 9); // Fri 1 May 2026 09:00 BST
 describe('finding a slot for the lift crane', () => {
   const board = emptyBoard();
   board.jobs = [...board.jobs, { id: 'job-2', firmId: 'installer-1' }];
-  board.stages = [...board.stages, { id: 'lift-2', jobId: 'job-2', kind: 'lift', name: 'Lift', durationMinutes: 540, requirements: [{ kind: 'crane', count: 1 }] }];
+  board.stages = [
+    ...board.stages,
+    {
+      id: 'lift-2',
+      jobId: 'job-2',
+      kind: 'lift',
+      name: 'Lift',
+      durationMinutes: 540,
+      requirements: [{ kind: 'crane', count: 1 }],
+    },
+  ];
   board.bookings = [
     booking('b-base', 'base', 'ground-1', at(2026, 5, 5, 8), at(2026, 5, 5, 12)),
     // The crane is out on another lift on Tue 12 May.
@@ -15,7 +25,7 @@ describe('finding a slot for the lift crane', () => {
   ];
   const index = createBoardIndex(board, { now: NOW });
 
-  it('the earliest start waits for the cure and steps past the crane\'s other booking', () => {
+  it("the earliest start waits for the cure and steps past the crane's other booking", () => {
     // Cure: poured until Tue 5 May 12:00 BST, 70% at + 6.9136 d = Tue 12 May 09:56; the crane is
     // busy all of Tue 12 May, so the first slot is Wed 13 May 08:00.
     const slots = findSlots(index, { stageId: 'lift', resourceId: 'crane-1', earliest: NOW }, { alternatives: 2 });
@@ -26,14 +36,20 @@ describe('finding a slot for the lift crane', () => {
 
   it('each slot, booked, passes every error check of the stage except the other kinds still to book', () => {
     for (const s of findSlots(index, { stageId: 'lift', resourceKind: 'crane', earliest: NOW })) {
-      const vs = analyseBoard({ ...board, bookings: [...board.bookings, ...s.bookings] }, { now: NOW }).violations
-        .filter((v) => v.severity === 'error' && v.stageIds.includes('lift'));
+      const vs = analyseBoard(
+        { ...board, bookings: [...board.bookings, ...s.bookings] },
+        { now: NOW },
+      ).violations.filter((v) => v.severity === 'error' && v.stageIds.includes('lift'));
       expect(vs.map((v) => v.kind)).toEqual(['capacity', 'capacity']);
     }
   });
 
   it('a hired excavator outside its hire is offered with the extra hire days priced', () => {
-    const slots = findSlots(createBoardIndex(emptyBoard(), { now: NOW }), { stageId: 'dig', resourceId: 'digger-1', earliest: at(2026, 5, 7, 8) }, { alternatives: 1 });
+    const slots = findSlots(
+      createBoardIndex(emptyBoard(), { now: NOW }),
+      { stageId: 'dig', resourceId: 'digger-1', earliest: at(2026, 5, 7, 8) },
+      { alternatives: 1 },
+    );
     // 12 working hours from Thu 7 May 08:00 runs to Fri 8 May 17:00: inside hire (1–9 May).
     // Its early start is Fri 1 May 09:00: Fri 09–17 (480) + Tue 5 (540) + Wed 6 (540) = 1560 working
     // minutes of float used; the job has no spare float, so it finishes later.
@@ -52,7 +68,11 @@ describe("the stage's other bookings move with a slot", () => {
       booking('b-crane', 'lift', 'crane-1', at(2026, 6, 2, 15), at(2026, 6, 3, 10)),
       booking('b-crew', 'lift', 'crew-a', at(2026, 6, 2, 15), at(2026, 6, 3, 10)),
     ];
-    const [slot] = findSlots(createBoardIndex(board, { now: NOW }), { stageId: 'lift', resourceId: 'crane-1', earliest: at(2026, 6, 4, 8) }, { alternatives: 0 });
+    const [slot] = findSlots(
+      createBoardIndex(board, { now: NOW }),
+      { stageId: 'lift', resourceId: 'crane-1', earliest: at(2026, 6, 4, 8) },
+      { alternatives: 0 },
+    );
     expect(slot?.bookings.map((b) => [b.resourceId, b.start, b.end])).toEqual([
       ['crane-1', at(2026, 6, 4, 8), at(2026, 6, 4, 12)],
       ['crew-a', at(2026, 6, 4, 8), at(2026, 6, 4, 12)],
@@ -67,15 +87,29 @@ describe('auto-placing a whole install', () => {
     expect(result.unplaced).toEqual([]);
     expect(result.order).toEqual(['dig', 'base', 'lift', 'connect']);
     // dig: 12 working hours from Fri 1 May 09:00: Fri 09–17 (8 h), Mon 4 May bank holiday, Tue 08–12.
-    expect(result.placed[0]).toEqual({ stageId: 'dig', start: at(2026, 5, 1, 9), end: at(2026, 5, 5, 12), resourceIds: ['ground-1', 'digger-1'] });
+    expect(result.placed[0]).toEqual({
+      stageId: 'dig',
+      start: at(2026, 5, 1, 9),
+      end: at(2026, 5, 5, 12),
+      resourceIds: ['ground-1', 'digger-1'],
+    });
     expect(result.placed[1]).toMatchObject({ stageId: 'base', start: at(2026, 5, 5, 12), end: at(2026, 5, 5, 16) });
     // Poured until Tue 5 May 16:00; 70% at Tue 12 May 13:56 (ACI 209R-92, 6.9136 days), on the
     // 15-minute step 14:00; the crane's 5 working days' notice ends Mon 11 May 09:00. The lift's
     // 4 h would run from 14:00 into Wednesday (the calendar ends at 17:00), and a lift is done in
     // one working day: Wed 13 May 08:00.
-    expect(result.placed[2]).toMatchObject({ stageId: 'lift', start: at(2026, 5, 13, 8), end: at(2026, 5, 13, 12), resourceIds: ['crane-1', 'crew-a', 'pt-1', 'pt-2'] });
+    expect(result.placed[2]).toMatchObject({
+      stageId: 'lift',
+      start: at(2026, 5, 13, 8),
+      end: at(2026, 5, 13, 12),
+      resourceIds: ['crane-1', 'crew-a', 'pt-1', 'pt-2'],
+    });
     // 1 working hour after the lift: Wed 13 May 13:00, 3 h to 16:00.
-    expect(result.placed[3]).toMatchObject({ stageId: 'connect', start: at(2026, 5, 13, 13), end: at(2026, 5, 13, 16) });
+    expect(result.placed[3]).toMatchObject({
+      stageId: 'connect',
+      start: at(2026, 5, 13, 13),
+      end: at(2026, 5, 13, 16),
+    });
     const after = analyseBoard({ ...board, bookings: result.bookings }, { now: NOW });
     expect(after.errorCount).toBe(0);
     expect(result.bookings.every((b) => b.state === 'pencilled' && b.installerFirmId === 'installer-1')).toBe(true);

@@ -1,6 +1,14 @@
 import { describe, expect, it } from 'vitest';
 import {
-  analyseBoard, autoPlace, checkMove, createBoardIndex, findSlots, formatInstant, localDayOf, type Board, type Violation,
+  analyseBoard,
+  autoPlace,
+  checkMove,
+  createBoardIndex,
+  findSlots,
+  formatInstant,
+  localDayOf,
+  type Board,
+  type Violation,
 } from '../../../shared/scheduler/index.js';
 import { isBlocking } from '../../../shared/board-actions.js';
 import { at, booking, LONDON } from './scenario.js';
@@ -25,16 +33,22 @@ describe("a 4-hour electrician's visit (electricians work Mon–Fri 07:30–16:3
       "'Connect and certify' would be split over two working days (Fri 2 Oct 13:00 to Sat 3 Oct 08:30): its 4 h must be done within one working day — start by 12:30 or from Sat 3 Oct 08:00",
     ]);
     expect(vs.every(isBlocking)).toBe(true);
-    expect(vs[0]?.details).toMatchObject({ earliestStart: at(2026, 10, 3, 8), latestStartThatDay: at(2026, 10, 2, 12, 30), neededMinutes: 240 });
+    expect(vs[0]?.details).toMatchObject({
+      earliestStart: at(2026, 10, 3, 8),
+      latestStartThatDay: at(2026, 10, 2, 12, 30),
+      neededMinutes: 240,
+    });
   });
 
-  it('is refused the same way while it is dragged from the tray (the board\'s incremental check)', () => {
+  it("is refused the same way while it is dragged from the tray (the board's incremental check)", () => {
     const index = createBoardIndex(boardWith(), { now: NOW });
     const vs = checkMove(index, { stageId: 'electrical_connect', start: at(2026, 10, 2, 13), resourceId: 'priya' });
     expect(splits(vs).map((v) => v.message)).toEqual([
       "'Connect and certify' would be split over two working days (Fri 2 Oct 13:00 to Sat 3 Oct 08:30): its 4 h must be done within one working day — start by 12:30 or from Sat 3 Oct 08:00",
     ]);
-    expect(splits(checkMove(index, { stageId: 'electrical_connect', start: at(2026, 10, 2, 12, 30), resourceId: 'priya' }))).toEqual([]);
+    expect(
+      splits(checkMove(index, { stageId: 'electrical_connect', start: at(2026, 10, 2, 12, 30), resourceId: 'priya' })),
+    ).toEqual([]);
   });
 
   it('booked for longer than the day has left from a good start: told when to end it', () => {
@@ -45,12 +59,23 @@ describe("a 4-hour electrician's visit (electricians work Mon–Fri 07:30–16:3
   });
 
   it('once on site (or done) it is what happened: not checked, so marking progress is never refused for it', () => {
-    const b = boardWith(booking('visit', 'electrical_connect', 'priya', at(2026, 10, 2, 13), at(2026, 10, 3, 8, 30), { state: 'on_site' }));
+    const b = boardWith(
+      booking('visit', 'electrical_connect', 'priya', at(2026, 10, 2, 13), at(2026, 10, 3, 8, 30), {
+        state: 'on_site',
+      }),
+    );
     expect(splits(analyseBoard(b, { now: NOW }).violations)).toEqual([]);
   });
 
   it('within one day is fine; so is running over when the template lets the stage continue next day', () => {
-    expect(splits(analyseBoard(boardWith(booking('visit', 'electrical_connect', 'priya', at(2026, 10, 2, 8), at(2026, 10, 2, 12))), { now: NOW }).violations)).toEqual([]);
+    expect(
+      splits(
+        analyseBoard(
+          boardWith(booking('visit', 'electrical_connect', 'priya', at(2026, 10, 2, 8), at(2026, 10, 2, 12))),
+          { now: NOW },
+        ).violations,
+      ),
+    ).toEqual([]);
     const b = boardWith(booking('visit', 'electrical_connect', 'priya', at(2026, 10, 2, 13), at(2026, 10, 3, 8, 30)));
     b.stages = b.stages.map((s) => (s.id === 'electrical_connect' ? { ...s, mayContinueNextDay: true } : s));
     expect(splits(analyseBoard(b, { now: NOW }).violations)).toEqual([]);
@@ -68,8 +93,15 @@ describe('stages longer than a working day', () => {
 describe('the slot finder and auto-place keep such stages to one working day', () => {
   it('the first slot for the visit from Friday 13:00 is Saturday 08:00–12:00, then Monday 07:30', () => {
     const index = createBoardIndex(boardWith(), { now: NOW });
-    const slots = findSlots(index, { stageId: 'electrical_connect', resourceId: 'priya', earliest: at(2026, 10, 2, 13) }, { alternatives: 1 });
-    expect(slots.map((s) => [when(s.start), when(s.end)])).toEqual([['Sat 3 Oct 08:00', 'Sat 3 Oct 12:00'], ['Mon 5 Oct 07:30', 'Mon 5 Oct 11:30']]);
+    const slots = findSlots(
+      index,
+      { stageId: 'electrical_connect', resourceId: 'priya', earliest: at(2026, 10, 2, 13) },
+      { alternatives: 1 },
+    );
+    expect(slots.map((s) => [when(s.start), when(s.end)])).toEqual([
+      ['Sat 3 Oct 08:00', 'Sat 3 Oct 12:00'],
+      ['Mon 5 Oct 07:30', 'Mon 5 Oct 11:30'],
+    ]);
   });
 
   it('auto-placing the whole job puts the connection on Saturday morning after the Friday lift, and every short stage within a day', () => {
@@ -79,13 +111,20 @@ describe('the slot finder and auto-place keep such stages to one working day', (
     const placed = new Map(result.placed.map((p) => [p.stageId, p]));
     // The lift at its earliest, Fri 12 Jun 09:00–13:00 (see unbooked.test.ts); the connection
     // after it: Friday 13:00 + 4 h would end past the electricians' 16:30, so Sat 13 Jun 08:00–12:00.
-    expect([when(placed.get('lift')?.start), when(placed.get('lift')?.end)]).toEqual(['Fri 12 Jun 09:00', 'Fri 12 Jun 13:00']);
-    expect([when(placed.get('electrical_connect')?.start), when(placed.get('electrical_connect')?.end)]).toEqual(['Sat 13 Jun 08:00', 'Sat 13 Jun 12:00']);
+    expect([when(placed.get('lift')?.start), when(placed.get('lift')?.end)]).toEqual([
+      'Fri 12 Jun 09:00',
+      'Fri 12 Jun 13:00',
+    ]);
+    expect([when(placed.get('electrical_connect')?.start), when(placed.get('electrical_connect')?.end)]).toEqual([
+      'Sat 13 Jun 08:00',
+      'Sat 13 Jun 12:00',
+    ]);
     const after = analyseBoard({ ...board, bookings: result.bookings }, { now: JUNE_1 });
     expect(after.violations.filter((v) => v.severity === 'error')).toEqual([]);
     for (const b of result.bookings) {
       const stage = board.stages.find((s) => s.id === b.stageId)!;
-      if (stage.durationMinutes <= 540 && !stage.mayContinueNextDay) expect(localDayOf(LONDON, b.end - 1), b.stageId).toBe(localDayOf(LONDON, b.start));
+      if (stage.durationMinutes <= 540 && !stage.mayContinueNextDay)
+        expect(localDayOf(LONDON, b.end - 1), b.stageId).toBe(localDayOf(LONDON, b.start));
     }
   });
 });

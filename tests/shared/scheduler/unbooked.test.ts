@@ -1,8 +1,19 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import {
-  analyseBoard, applyMove, checkMove, checkStageBookings, createBoardIndex, findSlots, formatInstant, unbookedStageTimes,
-  violationKey, type Board, type Booking, type StageMove, type Violation,
+  analyseBoard,
+  applyMove,
+  checkMove,
+  checkStageBookings,
+  createBoardIndex,
+  findSlots,
+  formatInstant,
+  unbookedStageTimes,
+  violationKey,
+  type Board,
+  type Booking,
+  type StageMove,
+  type Violation,
 } from '../../../shared/scheduler/index.js';
 import { isBlocking } from '../../../shared/board-actions.js';
 import { at, booking, dep, emptyBoard, LONDON } from './scenario.js';
@@ -10,7 +21,10 @@ import { DECK_TEMPLATE, JUNE_1, plannedBoard, WALLS_AFTER_CURE } from './in-grou
 import { randomBoard, randomMove, prng, T0 } from './random-board.js';
 
 const unbookedOf = (vs: Violation[]) => vs.filter((v) => v.kind === 'unbooked_predecessor');
-const messages = (vs: Violation[]) => unbookedOf(vs).map((v) => v.message).sort();
+const messages = (vs: Violation[]) =>
+  unbookedOf(vs)
+    .map((v) => v.message)
+    .sort();
 const when = (t: number | undefined) => (t === undefined ? '' : formatInstant(t, LONDON));
 
 // Hand-worked: the job below, nothing booked, today Mon 1 Jun 2026 08:00 BST. Crews, the crane and
@@ -26,7 +40,10 @@ const when = (t: number | undefined) => (t === undefined ? '' : formatInstant(t,
 //   lift 4 h: after the walls, Fri 12 Jun 09:00–13:00
 describe('earliest times of the stages in the tray', () => {
   const index = createBoardIndex(plannedBoard(WALLS_AFTER_CURE), { now: JUNE_1 });
-  const times = (id: string) => { const t = unbookedStageTimes(index, id); return [when(t?.start), when(t?.finish)]; };
+  const times = (id: string) => {
+    const t = unbookedStageTimes(index, id);
+    return [when(t?.start), when(t?.finish)];
+  };
 
   it('are worked back through every unbooked stage to now, with durations, lags, cure and notice', () => {
     expect(times('survey')).toEqual(['Mon 1 Jun 08:00', 'Mon 1 Jun 10:00']);
@@ -39,8 +56,18 @@ describe('earliest times of the stages in the tray', () => {
   });
 
   it('say what holds each back', () => {
-    expect(unbookedStageTimes(index, 'walls')?.heldBy).toEqual({ kind: 'predecessor', stageId: 'base_pour', dependencyId: 'base_pour>walls', booked: false });
-    expect(unbookedStageTimes(index, 'delivery')?.heldBy).toEqual({ kind: 'lead_time', workingDays: 15, from: 'order', ordered: true });
+    expect(unbookedStageTimes(index, 'walls')?.heldBy).toEqual({
+      kind: 'predecessor',
+      stageId: 'base_pour',
+      dependencyId: 'base_pour>walls',
+      booked: false,
+    });
+    expect(unbookedStageTimes(index, 'delivery')?.heldBy).toEqual({
+      kind: 'lead_time',
+      workingDays: 15,
+      from: 'order',
+      ordered: true,
+    });
     expect(unbookedStageTimes(index, 'survey')?.heldBy).toEqual({ kind: 'now' });
     expect(unbookedStageTimes(index, 'electrical_first_fix')?.calendarId).toBe('cal-electricians');
   });
@@ -64,17 +91,23 @@ describe('a crane lift dropped while everything before it is unbooked', () => {
     expect(walls?.details).toMatchObject({ earliestStart: at(2026, 6, 12, 9), anchor: 'now', successorId: 'lift' });
   });
 
-  it('gets the same verdict from the server\'s check and from the full analysis of the board it would make', () => {
+  it("gets the same verdict from the server's check and from the full analysis of the board it would make", () => {
     const move = drop(at(2026, 6, 9, 8));
-    const theLift = checkMove(index, move).filter((v) => v.kind === 'unbooked_predecessor').map(violationKey);
+    const theLift = checkMove(index, move)
+      .filter((v) => v.kind === 'unbooked_predecessor')
+      .map(violationKey);
     const after = applyMove(board, index, move);
-    const server = checkStageBookings(index, 'lift', after.bookings.filter((b) => b.stageId === 'lift')).filter((v) => v.kind === 'unbooked_predecessor');
+    const server = checkStageBookings(
+      index,
+      'lift',
+      after.bookings.filter((b) => b.stageId === 'lift'),
+    ).filter((v) => v.kind === 'unbooked_predecessor');
     const full = analyseBoard(after, { now: JUNE_1 }).violations.filter((v) => v.kind === 'unbooked_predecessor');
     expect(server.map(violationKey)).toEqual(theLift);
     expect(full.map(violationKey)).toEqual(theLift);
   });
 
-  it('is accepted from the walls\' earliest finish, and refused a quarter of an hour before', () => {
+  it("is accepted from the walls' earliest finish, and refused a quarter of an hour before", () => {
     expect(checkMove(index, drop(at(2026, 6, 12, 9))).filter(isBlocking)).toEqual([]);
     expect(messages(checkMove(index, drop(at(2026, 6, 12, 8, 45))))).toHaveLength(1);
   });
@@ -82,7 +115,9 @@ describe('a crane lift dropped while everything before it is unbooked', () => {
   it('once accepted, leaves the base pour bookable at its own earliest time (it used to be refused as "too early")', () => {
     const withLift = applyMove(board, index, drop(at(2026, 6, 12, 9)));
     const index2 = createBoardIndex(withLift, { now: JUNE_1 });
-    expect(checkMove(index2, { stageId: 'base_pour', start: at(2026, 6, 3, 8), resourceId: 'gang' }).filter(isBlocking)).toEqual([]);
+    expect(
+      checkMove(index2, { stageId: 'base_pour', start: at(2026, 6, 3, 8), resourceId: 'gang' }).filter(isBlocking),
+    ).toEqual([]);
   });
 });
 
@@ -136,7 +171,10 @@ describe('the earliest start shown', () => {
     const b = plannedBoard(DECK_TEMPLATE);
     b.bookings = [
       booking('d', 'delivery', 'lorry', at(2026, 6, 8, 11), at(2026, 6, 8, 13), { installerFirmId: 'tideway' }),
-      booking('c', 'electrical_connect', 'priya', at(2026, 6, 8, 13), at(2026, 6, 8, 16, 30), { installerFirmId: 'tideway', state: 'sent' }),
+      booking('c', 'electrical_connect', 'priya', at(2026, 6, 8, 13), at(2026, 6, 8, 16, 30), {
+        installerFirmId: 'tideway',
+        state: 'sent',
+      }),
     ];
     expect(messages(analyseBoard(b, { now: JUNE_1 }).violations)).toEqual([
       "'Connect and certify' can't start before about Tue 9 Jun 07:30: 'Crane lift onto deck' (not booked yet) needs 4 h first; it can't start itself before about Mon 8 Jun 13:00 (after 'Delivery')",
@@ -159,12 +197,20 @@ describe('other links from an unbooked stage', () => {
 describe('when the check stands aside', () => {
   it('work already on site (or done) is not second-guessed; the same booking merely confirmed is', () => {
     const b = plannedBoard(WALLS_AFTER_CURE);
-    const lift = (state: Booking['state'], id = 'b-lift', resourceId = 'crane') => booking(id, 'lift', resourceId, at(2026, 6, 1, 9), at(2026, 6, 1, 13), { state, installerFirmId: 'tideway' });
+    const lift = (state: Booking['state'], id = 'b-lift', resourceId = 'crane') =>
+      booking(id, 'lift', resourceId, at(2026, 6, 1, 9), at(2026, 6, 1, 13), { state, installerFirmId: 'tideway' });
     expect(unbookedOf(analyseBoard({ ...b, bookings: [lift('on_site')] }, { now: JUNE_1 }).violations)).toEqual([]);
     // The crew has arrived though the crane's booking still says confirmed: under way all the same.
-    expect(unbookedOf(analyseBoard({ ...b, bookings: [lift('confirmed'), lift('on_site', 'b-crew', 'crew-heron')] }, { now: JUNE_1 }).violations)).toEqual([]);
+    expect(
+      unbookedOf(
+        analyseBoard({ ...b, bookings: [lift('confirmed'), lift('on_site', 'b-crew', 'crew-heron')] }, { now: JUNE_1 })
+          .violations,
+      ),
+    ).toEqual([]);
     // The walls, the delivery, the first fix and the crane firm's lift plan, and the base through its cure.
-    expect(unbookedOf(analyseBoard({ ...b, bookings: [lift('confirmed')] }, { now: JUNE_1 }).violations)).toHaveLength(5);
+    expect(unbookedOf(analyseBoard({ ...b, bookings: [lift('confirmed')] }, { now: JUNE_1 }).violations)).toHaveLength(
+      5,
+    );
   });
 
   it('a predecessor whose only resource never works (no hours on its calendar) sets no bound instead of failing the board', () => {
@@ -177,8 +223,13 @@ describe('when the check stands aside', () => {
     expect(unbookedOf(vs).filter((v) => v.stageIds.includes('delivery'))).toEqual([]);
   });
 
-  it('a board holding only part of the bookings (a crew member\'s own rows) does not guess', () => {
-    const b = { ...plannedBoard(WALLS_AFTER_CURE), bookings: [booking('b-lift', 'lift', 'crane', at(2026, 6, 9, 8), at(2026, 6, 9, 12), { installerFirmId: 'tideway' })] };
+  it("a board holding only part of the bookings (a crew member's own rows) does not guess", () => {
+    const b = {
+      ...plannedBoard(WALLS_AFTER_CURE),
+      bookings: [
+        booking('b-lift', 'lift', 'crane', at(2026, 6, 9, 8), at(2026, 6, 9, 12), { installerFirmId: 'tideway' }),
+      ],
+    };
     expect(unbookedOf(analyseBoard(b, { now: JUNE_1, seesAllBookings: false }).violations)).toEqual([]);
     expect(unbookedOf(analyseBoard(b, { now: JUNE_1 }).violations)).toHaveLength(2);
   });
@@ -197,33 +248,56 @@ describe('property: the drops the board accepts never add an order, lag, cure or
   let accepted = 0;
 
   it('holds over sequences of drops from an empty board, each checked incrementally', () => {
-    fc.assert(fc.property(fc.integer({ min: 1, max: 2 ** 31 - 1 }), fc.integer({ min: 1, max: 2 ** 31 - 1 }), (seed, dropSeed) => {
-      let board = randomBoard(seed, { bookedFraction: 0, stagesPerJob: 5 });
-      const rnd = prng(dropSeed);
-      for (let n = 0; n < 14; n++) {
-        const index = createBoardIndex(board, { now: T0 });
-        const stage = board.stages[Math.floor(rnd() * board.stages.length)]!;
-        let target = stage.id;
-        let own: Booking[] | null = null;
-        if (rnd() < 0.6 && stage.requirements[0]) {
-          // Mostly where the slot finder offers (these are usually accepted) …
-          const slot = findSlots(index, { stageId: stage.id, resourceKind: stage.requirements[0].kind, earliest: T0 + Math.floor(rnd() * 10) * 86_400_000 }, { alternatives: 0, horizonDays: 40 })[0];
-          if (slot) own = slot.bookings;
-        } else {
-          // … and anywhere at all (most of these are refused).
-          const move = randomMove(board, Math.floor(rnd() * 2 ** 31));
-          target = move.stageId;
-          try { own = applyMove(board, index, move).bookings.filter((b) => b.stageId === move.stageId && b.state !== 'declined'); } catch { own = null; }
-        }
-        if (own === null || own.length === 0) continue;
-        if (checkStageBookings(index, target, own).some(isBlocking)) continue;
-        const others = board.bookings.filter((b) => b.stageId !== target);
-        board = { ...board, bookings: [...others, ...own] };
-        accepted++;
-        const found = analyseBoard(board, { now: T0, skipCriticalPath: true }).violations.filter((v) => KINDS.has(v.kind) && v.severity === 'error');
-        expect(found).toEqual([]);
-      }
-    }), { numRuns: 120 });
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 2 ** 31 - 1 }),
+        fc.integer({ min: 1, max: 2 ** 31 - 1 }),
+        (seed, dropSeed) => {
+          let board = randomBoard(seed, { bookedFraction: 0, stagesPerJob: 5 });
+          const rnd = prng(dropSeed);
+          for (let n = 0; n < 14; n++) {
+            const index = createBoardIndex(board, { now: T0 });
+            const stage = board.stages[Math.floor(rnd() * board.stages.length)]!;
+            let target = stage.id;
+            let own: Booking[] | null = null;
+            if (rnd() < 0.6 && stage.requirements[0]) {
+              // Mostly where the slot finder offers (these are usually accepted) …
+              const slot = findSlots(
+                index,
+                {
+                  stageId: stage.id,
+                  resourceKind: stage.requirements[0].kind,
+                  earliest: T0 + Math.floor(rnd() * 10) * 86_400_000,
+                },
+                { alternatives: 0, horizonDays: 40 },
+              )[0];
+              if (slot) own = slot.bookings;
+            } else {
+              // … and anywhere at all (most of these are refused).
+              const move = randomMove(board, Math.floor(rnd() * 2 ** 31));
+              target = move.stageId;
+              try {
+                own = applyMove(board, index, move).bookings.filter(
+                  (b) => b.stageId === move.stageId && b.state !== 'declined',
+                );
+              } catch {
+                own = null;
+              }
+            }
+            if (own === null || own.length === 0) continue;
+            if (checkStageBookings(index, target, own).some(isBlocking)) continue;
+            const others = board.bookings.filter((b) => b.stageId !== target);
+            board = { ...board, bookings: [...others, ...own] };
+            accepted++;
+            const found = analyseBoard(board, { now: T0, skipCriticalPath: true }).violations.filter(
+              (v) => KINDS.has(v.kind) && v.severity === 'error',
+            );
+            expect(found).toEqual([]);
+          }
+        },
+      ),
+      { numRuns: 120 },
+    );
     // The property only means something if drops were accepted.
     expect(accepted).toBeGreaterThan(300);
   });

@@ -1,6 +1,15 @@
 import { describe, expect, it } from 'vitest';
 import type { z } from 'zod';
-import { EmailAddress, IsoDate, IsoInstant, WorkDate, WorkInstant, multiLineText, oneLineText, textProblem } from '../../../shared/schemas/common.ts';
+import {
+  EmailAddress,
+  IsoDate,
+  IsoInstant,
+  WorkDate,
+  WorkInstant,
+  multiLineText,
+  oneLineText,
+  textProblem,
+} from '../../../shared/schemas/common.ts';
 import { CreateJob, JobQuery } from '../../../shared/schemas/jobs.ts';
 import { SurveyFields } from '../../../shared/schemas/surveys.ts';
 import { PutTemplate } from '../../../shared/schemas/templates.ts';
@@ -35,11 +44,13 @@ describe('one-line text', () => {
   });
 
   it('refuses line breaks (CR, LF, CRLF, U+2028) inside the text', () => {
-    for (const v of ['Otley\nRoad', 'Otley\rRoad', 'Otley\r\nRoad', 'Otley\u2028Road']) expect(messages(town, v)).toEqual([LINE]);
+    for (const v of ['Otley\nRoad', 'Otley\rRoad', 'Otley\r\nRoad', 'Otley\u2028Road'])
+      expect(messages(town, v)).toEqual([LINE]);
   });
 
   it('refuses NUL, TAB, DEL, C1 controls and the bidi overrides and isolates', () => {
-    for (const v of ['Leeds\u0000', 'Lee\tds', 'Leeds\u007f', 'Leeds\u0085', 'Leeds\u009b']) expect(messages(town, v)).toEqual([HIDDEN]);
+    for (const v of ['Leeds\u0000', 'Lee\tds', 'Leeds\u007f', 'Leeds\u0085', 'Leeds\u009b'])
+      expect(messages(town, v)).toEqual([HIDDEN]);
     for (const cp of [0x202a, 0x202b, 0x202c, 0x202d, 0x202e, 0x2066, 0x2067, 0x2068, 0x2069]) {
       expect(messages(town, `pit${String.fromCharCode(cp)}gpj.exe`), cp.toString(16)).toEqual([HIDDEN]);
     }
@@ -95,7 +106,9 @@ describe('dates and instants', () => {
     expect(messages(IsoDate, '2026-04-31')).toEqual(['must be a date like 2026-05-12']);
     expect(IsoDate.parse('2028-02-29')).toBe('2028-02-29');
     expect(messages(IsoInstant, '0000-01-01T00:00:00Z')).toEqual(['must be a time between 1900 and 2200']);
-    expect(messages(IsoInstant, '2026-02-30T08:00:00Z')).toEqual(['must be an ISO 8601 date-time with an offset, e.g. 2026-05-12T08:00:00Z']);
+    expect(messages(IsoInstant, '2026-02-30T08:00:00Z')).toEqual([
+      'must be an ISO 8601 date-time with an offset, e.g. 2026-05-12T08:00:00Z',
+    ]);
   });
 
   it('hold instants to 1900–2200 by the instant itself, offset applied', () => {
@@ -114,35 +127,72 @@ describe('dates and instants', () => {
 });
 
 describe('the schemas people fill in', () => {
-  const job = { reference: 'TW-3001', customerName: 'Ines Calloway', siteAddress: '4 Heron Row', siteTown: 'Otley', sitePostcode: 'LS21 3AB', installationType: 'slab' };
+  const job = {
+    reference: 'TW-3001',
+    customerName: 'Ines Calloway',
+    siteAddress: '4 Heron Row',
+    siteTown: 'Otley',
+    sitePostcode: 'LS21 3AB',
+    installationType: 'slab',
+  };
 
   it('jobs: one-line fields, notes, the search box and the promised dates', () => {
-    expect(fieldErrors(CreateJob, { ...job, reference: 'TW-3001\r\n', customerName: 'Ines\u202ECalloway', siteTown: 'Ot\nley', customerPhone: '0113\t496', sitePostcode: 'LS21\u00003AB' }))
-      .toEqual({ customerName: HIDDEN, siteTown: LINE, customerPhone: HIDDEN, sitePostcode: HIDDEN });
+    expect(
+      fieldErrors(CreateJob, {
+        ...job,
+        reference: 'TW-3001\r\n',
+        customerName: 'Ines\u202ECalloway',
+        siteTown: 'Ot\nley',
+        customerPhone: '0113\t496',
+        sitePostcode: 'LS21\u00003AB',
+      }),
+    ).toEqual({ customerName: HIDDEN, siteTown: LINE, customerPhone: HIDDEN, sitePostcode: HIDDEN });
     // A trailing line break is trimmed off, like a trailing space: nothing of it is kept.
     expect(CreateJob.parse({ ...job, reference: 'TW-3001\r\n' }).reference).toBe('TW-3001');
-    expect(CreateJob.parse({ ...job, accessNotes: 'Side gate.\r\nDog in garden.' }).accessNotes).toBe('Side gate.\nDog in garden.');
+    expect(CreateJob.parse({ ...job, accessNotes: 'Side gate.\r\nDog in garden.' }).accessNotes).toBe(
+      'Side gate.\nDog in garden.',
+    );
     expect(fieldErrors(CreateJob, { ...job, accessNotes: 'Side gate\u0000' })).toEqual({ accessNotes: HIDDEN });
-    expect(fieldErrors(CreateJob, { ...job, promisedFrom: '0000-01-01' })).toEqual({ promisedFrom: 'must be a date between 2000 and 2100' });
+    expect(fieldErrors(CreateJob, { ...job, promisedFrom: '0000-01-01' })).toEqual({
+      promisedFrom: 'must be a date between 2000 and 2100',
+    });
     expect(fieldErrors(JobQuery, { search: '\u0000' })).toEqual({ search: HIDDEN });
     expect(fieldErrors(JobQuery, { search: 'Otley\uD800' })).toEqual({ search: BROKEN });
   });
 
   it('surveys: one-line places, multi-line notes', () => {
     const survey = { accessWidthMm: 900, groundType: 'clay' };
-    expect(SurveyFields.parse({ ...survey, notes: 'Level lawn.\nSoft ground by the shed.' }).notes).toBe('Level lawn.\nSoft ground by the shed.');
-    expect(fieldErrors(SurveyFields, { ...survey, craneStandingPosition: 'Lay-by\nopposite', drainage: 'Soakaway\u202E', buriedServicesNotes: 'Gas\u0000' }))
-      .toEqual({ craneStandingPosition: LINE, drainage: HIDDEN, buriedServicesNotes: HIDDEN });
+    expect(SurveyFields.parse({ ...survey, notes: 'Level lawn.\nSoft ground by the shed.' }).notes).toBe(
+      'Level lawn.\nSoft ground by the shed.',
+    );
+    expect(
+      fieldErrors(SurveyFields, {
+        ...survey,
+        craneStandingPosition: 'Lay-by\nopposite',
+        drainage: 'Soakaway\u202E',
+        buriedServicesNotes: 'Gas\u0000',
+      }),
+    ).toEqual({ craneStandingPosition: LINE, drainage: HIDDEN, buriedServicesNotes: HIDDEN });
   });
 
   it('templates, invitations, day sheets and firm settings', () => {
     const stage = { kind: 'dig', name: 'Dig\nthe pit', duration: { kind: 'fixed', minutes: 60 }, requirements: [] };
-    expect(fieldErrors(PutTemplate, { version: 0, name: 'Slab\u2066', stages: [stage], links: [] }))
-      .toEqual({ name: HIDDEN, 'stages.0.name': LINE });
-    expect(fieldErrors(CreateInvitation, { email: 'crew@tideway.test\nBcc: x@y.test', role: 'crew' })).toEqual({ email: LINE });
-    expect(fieldErrors(DaySheetQuery, { date: '9999-12-31' })).toEqual({ date: 'must be a date between 2000 and 2100' });
+    expect(fieldErrors(PutTemplate, { version: 0, name: 'Slab\u2066', stages: [stage], links: [] })).toEqual({
+      name: HIDDEN,
+      'stages.0.name': LINE,
+    });
+    expect(fieldErrors(CreateInvitation, { email: 'crew@tideway.test\nBcc: x@y.test', role: 'crew' })).toEqual({
+      email: LINE,
+    });
+    expect(fieldErrors(DaySheetQuery, { date: '9999-12-31' })).toEqual({
+      date: 'must be a date between 2000 and 2100',
+    });
     expect(PutFirmSettings.parse({ keepPhotoLocation: true })).toEqual({ keepPhotoLocation: true });
-    expect(fieldErrors(PutFirmSettings, { quantities: {} })).toEqual({ version: 'is required when changing the quantities' });
-    expect(fieldErrors(PutFirmSettings, { keepPhotoLocation: 'yes' })).toEqual({ keepPhotoLocation: 'Invalid input: expected boolean, received string' });
+    expect(fieldErrors(PutFirmSettings, { quantities: {} })).toEqual({
+      version: 'is required when changing the quantities',
+    });
+    expect(fieldErrors(PutFirmSettings, { keepPhotoLocation: 'yes' })).toEqual({
+      keepPhotoLocation: 'Invalid input: expected boolean, received string',
+    });
   });
 });
