@@ -103,6 +103,11 @@ const Env = z.object({
   WEATHER_API_URL: z.url().default('https://api.open-meteo.com'),
   // How often the worker refreshes the forecasts of sites with a base poured or about to be.
   WEATHER_REFRESH_HOURS: z.coerce.number().min(1).max(168).default(24),
+  // The BullMQ queue of the daily forecast refresh (one per installation, like MAIL_QUEUE).
+  WEATHER_QUEUE: z
+    .string()
+    .regex(/^[\w-]+$/)
+    .default('weather'),
   // Pruning (workers/prune.ts, every PRUNE_EVERY_HOURS): e-mails sent or given up on (outbox rows
   // created this many days ago; pending and queued rows are never pruned), refused link attempts, and
   // the board's change marks behind its ETags. Our own judgement of how long each stays useful, no source.

@@ -6,7 +6,6 @@ import { refreshForecasts } from '../server/services/weather.ts';
 import { QUEUE_PREFIX, redisConnection } from './connection.ts';
 
 /** The queue and the one repeating job that refreshes site forecasts. */
-export const WEATHER_QUEUE = 'weather';
 export const WEATHER_SCHEDULER_ID = 'refresh-site-forecasts';
 
 export interface WeatherRefresh {
@@ -31,13 +30,13 @@ function closeWithin(closing: Promise<void>, ms: number): Promise<void> {
  */
 export function startWeatherRefresh(options: {
   knex: Knex;
-  config: Pick<Config, 'REDIS_URL' | 'WEATHER_API_URL' | 'WEATHER_REFRESH_HOURS'>;
+  config: Pick<Config, 'REDIS_URL' | 'WEATHER_API_URL' | 'WEATHER_REFRESH_HOURS' | 'WEATHER_QUEUE'>;
   logger: Logger;
   now?: () => number;
 }): WeatherRefresh {
   const { knex, config, logger } = options;
   const now = options.now ?? Date.now;
-  const queue = new Queue(WEATHER_QUEUE, {
+  const queue = new Queue(config.WEATHER_QUEUE, {
     connection: redisConnection(config.REDIS_URL, { failFast: true }),
     prefix: QUEUE_PREFIX,
   });
@@ -53,7 +52,7 @@ export function startWeatherRefresh(options: {
     )
     .catch((err: unknown) => logger.warn({ err }, 'the forecast refresh could not be scheduled'));
   const worker = new Worker(
-    WEATHER_QUEUE,
+    config.WEATHER_QUEUE,
     async () => {
       const result = await refreshForecasts(knex, { baseUrl: config.WEATHER_API_URL, now: now() });
       for (const f of result.failed)

@@ -204,7 +204,8 @@ describe('the daily refresh job', () => {
     fake.setTemperature(() => 9);
     const refresh = startWeatherRefresh({
       knex: ctx.knex,
-      config: { ...ctx.config, WEATHER_API_URL: fake.url },
+      // A queue of this run's own: a worker of another test file (tests/ops) on the same Redis never takes its job.
+      config: { ...ctx.config, WEATHER_API_URL: fake.url, WEATHER_QUEUE: `weather-test-${process.pid}-${Date.now()}` },
       logger: pino({ level: 'silent' }),
       now: () => today,
     });
