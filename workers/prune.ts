@@ -48,7 +48,7 @@ export function startPruning(options: {
   void queue
     .upsertJobScheduler(
       PRUNE_SCHEDULER_ID,
-      { every: config.PRUNE_EVERY_HOURS * 3600_000, immediately: true },
+      { every: config.PRUNE_EVERY_HOURS * 3600_000 },
       {
         name: 'prune',
         opts: { removeOnComplete: { count: 20 }, removeOnFail: { count: 20 } },

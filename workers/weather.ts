@@ -44,7 +44,7 @@ export function startWeatherRefresh(options: {
   void queue
     .upsertJobScheduler(
       WEATHER_SCHEDULER_ID,
-      { every: config.WEATHER_REFRESH_HOURS * 3600_000, immediately: true },
+      { every: config.WEATHER_REFRESH_HOURS * 3600_000 },
       {
         name: 'refresh',
         opts: { removeOnComplete: { count: 50 }, removeOnFail: { count: 50 } },
