@@ -180,6 +180,7 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
     now,
     limits: bookingLimitsOf(config),
     fullcalendarLicenseKey: config.FULLCALENDAR_LICENSE_KEY,
+    release: config.RELEASE_ID,
   });
   const jobWork = jobWorkRoutes(routes, { knex, config, now });
   const handover = handoverRoutes(routes, { knex, config, now, limits: bookingLimitsOf(config) });

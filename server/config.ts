@@ -44,6 +44,12 @@ const Env = z.object({
   PORT: z.coerce.number().int().default(3000),
   HOST: z.string().default('127.0.0.1'),
   PUBLIC_URL: z.url().default('http://127.0.0.1:3000'),
+  // The release every web process of one deployment runs (e.g. the commit): their board ETags then agree,
+  // so a 304 holds whichever process answers. Unset, each process tags its own (safe, fewer 304s).
+  RELEASE_ID: z
+    .string()
+    .regex(/^[\w.-]{1,64}$/)
+    .optional(),
   DATABASE_URL: z.string().min(1),
   REDIS_URL: z.string().min(1).default('redis://127.0.0.1:6379'),
   SESSION_SECRET: z.string().min(16, 'SESSION_SECRET must be at least 16 characters'),

@@ -36,12 +36,14 @@ export interface ApiDeps {
   fullcalendarLicenseKey: string;
   now?: () => number;
   limits?: BookingLimits;
+  /** RELEASE_ID: one release's processes give the same board ETags. */
+  release?: string;
 }
 
 /** The JSON API: one line a route, each naming who may call it. */
 export function apiRoutes(
   table: RouteTable,
-  { knex, health, stream, fullcalendarLicenseKey, now = Date.now, limits }: ApiDeps,
+  { knex, health, stream, fullcalendarLicenseKey, now = Date.now, limits, release }: ApiDeps,
 ): void {
   const jobs = new JobsService(knex);
   const directory = new DirectoryService();
@@ -73,7 +75,7 @@ export function apiRoutes(
       const { from, to } = parse(BookingRange, req.query, 'query');
       const window = { from: Date.parse(from), to: Date.parse(to), now: now() };
       // Unchanged since the reader's copy → 304 without loading (the browser revalidates by itself).
-      const etag = await boardEtag(knex, req.actor!, window);
+      const etag = await boardEtag(knex, req.actor!, window, release);
       res.set({ ETag: etag, 'Cache-Control': 'private, no-cache' });
       if (etagMatches(req.get('If-None-Match'), etag)) {
         res.status(304).end();

@@ -4,9 +4,10 @@ import { visibleFirmIds } from '../models/base.ts';
 import type { Actor } from './actor.ts';
 
 /**
- * A new process may answer in another shape: its ETags never match an older process's. Several
- * processes behind one address each keep their own, so a request may miss a 304 it could have had,
- * never the other way round.
+ * Without a release id (RELEASE_ID) a process tags its own: a new process may answer in another
+ * shape, so its ETags never match an older one's, and several processes behind one address each
+ * keep their own (a request may miss a 304 it could have had, never the other way round). With one,
+ * every process of that release gives the same tags.
  */
 const PROCESS_ID = randomUUID();
 /** A 304 may hand back a board whose `now` is up to this old (the engine counts notice from it). */
@@ -29,7 +30,7 @@ export interface BoardWindow {
  * it tells nothing of ids or counts, and another firm's change that the actor cannot see leaves it as it was.
  * Worked out before the board is loaded, so a change committed in between only costs one more 200.
  */
-export async function boardEtag(knex: Knex, actor: Actor, window: BoardWindow): Promise<string> {
+export async function boardEtag(knex: Knex, actor: Actor, window: BoardWindow, release = PROCESS_ID): Promise<string> {
   // Per firm, the newest row from the end of its index; then the recent rows of all of them.
   const { rows } = await knex.raw(
     `WITH f(firm_id) AS (?),
@@ -39,7 +40,7 @@ export async function boardEtag(knex: Knex, actor: Actor, window: BoardWindow): 
   );
   const version = rows[0] as { top: string | null; recent: string };
   const key = [
-    PROCESS_ID,
+    release,
     actor.userId,
     actor.firmId,
     actor.role,

@@ -5,7 +5,16 @@ import request from 'supertest';
 import ICAL from 'ical.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Knex } from 'knex';
-import { account, idOf, signIn, startTestApp, TEST_TODAY, type Agent, type TestContext } from '../helpers/server.ts';
+import {
+  account,
+  idOf,
+  sessionCookieOf,
+  signIn,
+  startTestApp,
+  TEST_TODAY,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
 import { createApp } from '../../server/app.ts';
 import { pruneOldRows } from '../../server/services/prune.ts';
 import { bookingDuring } from '../../server/services/ranges.ts';
@@ -107,6 +116,30 @@ describe('GET /api/board answers 304 while the window is unchanged', () => {
     const job = await ctx.knex('jobs').where('firm_id', tideway).first('id', 'site_town');
     await ctx.knex('jobs').where('id', job.id).update({ site_town: job.siteTown });
     await scheduler.get('/api/board').query(range).set('If-None-Match', etag).expect(200);
+  }, 60_000);
+});
+
+describe('several web processes of one release (RELEASE_ID)', () => {
+  it("agree on the board's ETag, so a 304 holds whichever answers; a process without the setting tags its own", async () => {
+    const now = () => TEST_TODAY.getTime();
+    const a = createApp({ config: { ...ctx.config, RELEASE_ID: 'release-7' }, knex: ctx.knex, now });
+    const b = createApp({ config: { ...ctx.config, RELEASE_ID: 'release-7' }, knex: ctx.knex, now });
+    const own = createApp({ config: { ...ctx.config, RELEASE_ID: undefined }, knex: ctx.knex, now });
+    try {
+      // Sessions live in PostgreSQL: one sign-in serves every process.
+      const onA = await signIn({ ...ctx, waterline: a }, account('scheduler').email);
+      const etag = (await onA.get('/api/board').query(range).expect(200)).headers.etag as string;
+      const cookie = sessionCookieOf(onA);
+      await request(b.app).get('/api/board').query(range).set('Cookie', cookie).set('If-None-Match', etag).expect(304);
+      await request(own.app)
+        .get('/api/board')
+        .query(range)
+        .set('Cookie', cookie)
+        .set('If-None-Match', etag)
+        .expect(200);
+    } finally {
+      await Promise.all([a.close(), b.close(), own.close()]);
+    }
   }, 60_000);
 });
 
