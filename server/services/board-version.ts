@@ -30,7 +30,12 @@ export interface BoardWindow {
  * it tells nothing of ids or counts, and another firm's change that the actor cannot see leaves it as it was.
  * Worked out before the board is loaded, so a change committed in between only costs one more 200.
  */
-export async function boardEtag(knex: Knex, actor: Actor, window: BoardWindow, release = PROCESS_ID): Promise<string> {
+export async function boardEtag(
+  knex: Knex,
+  actor: Actor,
+  window: BoardWindow,
+  release: string = PROCESS_ID,
+): Promise<string> {
   // Per firm, the newest row from the end of its index; then the recent rows of all of them.
   const { rows } = await knex.raw(
     `WITH f(firm_id) AS (?),
