@@ -9,8 +9,13 @@ import { fileURLToPath } from 'node:url';
 pg.types.setTypeParser(pg.types.builtins.DATE, (v) => v);
 pg.types.setTypeParser(pg.types.builtins.NUMERIC, (v) => Number(v));
 
-/** Longest a request waits for a pooled connection before it answers 503 (knex's default is 60 s). */
-export const ACQUIRE_TIMEOUT_MS = 5000;
+/**
+ * Longest a request waits for a pooled connection before it answers 503 (knex's default is 60 s).
+ * Long enough for a queue of writers on one stage to take their turns (each waits for the one before
+ * it under the write path's locks); a database that is down fails faster than this, as each new
+ * connection's refusal reaches the waiting request at once.
+ */
+export const ACQUIRE_TIMEOUT_MS = 20_000;
 /** Longest one new connection may take to open (node-postgres waits for ever by default). */
 export const CONNECT_TIMEOUT_MS = 3000;
 
