@@ -2,8 +2,8 @@
  * Board benchmark (not a test): a 4-week window with 300 resources and 3,000 bookings.
  * Measures GET /api/board (median and p95 over repeated requests) and, in headless chromium, the
  * time from opening the board to its events being drawn and the first drag check answering: the
- * 300-row board folded as it opens and with all its rows open (only those in view are drawn), a
- * scroll to its foot, a drag, and the demo board (seeds/demo.ts) in a database of its own.
+ * 300-row board folded as it opens and with all its rows open (only the bookings of rows in view are
+ * drawn), a scroll to its foot and one half-way down, a drag, and the demo board (seeds/demo.ts) in a database of its own.
  * Run with `npm run bench:board` (it starts PostgreSQL, Redis and the fakes itself).
  */
 import http from 'node:http';
@@ -157,6 +157,29 @@ await page.waitForFunction(
 );
 console.log(
   `  scrolled to the foot (scrollbar ${foot.height} px for ${RESOURCES} rows and their groups): last row drawn in ${(performance.now() - tScroll).toFixed(0)} ms`,
+);
+
+// Scrolled half-way down: the rows now in view get their bookings (only rows in view carry theirs).
+const tMiddle = performance.now();
+const middleRows = await page.evaluate(() => {
+  const scroller = document.querySelector('.fc-timeline-body')!.closest('.fc-scroller')!;
+  scroller.scrollTop = scroller.scrollHeight / 2 - scroller.clientHeight / 2;
+  const view = scroller.getBoundingClientRect();
+  return [...document.querySelectorAll<HTMLElement>('td.fc-timeline-lane[data-resource-id]')]
+    .filter((lane) => {
+      const r = lane.getBoundingClientRect();
+      return r.bottom > view.top && r.top < view.bottom;
+    })
+    .map((lane) => lane.dataset.resourceId!);
+});
+await page.waitForFunction(
+  (ids) =>
+    ids.every((id) => document.querySelector(`td.fc-timeline-lane[data-resource-id="${id}"] .fc-event.wl-booking`)),
+  middleRows,
+  { timeout: 60_000 },
+);
+console.log(
+  `  scrolled half-way (${middleRows.length} rows in view): their bookings drawn in ${(performance.now() - tMiddle).toFixed(0)} ms`,
 );
 
 // Drag feedback: drag one booking along its row while recording every frame the page draws.

@@ -12,6 +12,20 @@ import {
 
 /** How many frames to wait for the timeline to draw what a link points at before giving up. */
 const FRAMES_TO_WAIT = 120;
+/**
+ * How many frames what a link points at must stay in view before the board stops following it: on
+ * a large board, rows above it get their bookings (and their height) just after the first scroll.
+ */
+const FRAMES_TO_SETTLE = 20;
+
+/** Whether an element is wholly inside the part of its scroller (and the window) in view. */
+function inView(el: HTMLElement): boolean {
+  const box = el.getBoundingClientRect();
+  const scroller = el.closest('.fc-scroller')?.getBoundingClientRect();
+  const top = Math.max(0, scroller?.top ?? 0),
+    bottom = Math.min(window.innerHeight, scroller?.bottom ?? window.innerHeight);
+  return box.top >= top && box.bottom <= bottom;
+}
 
 /**
  * A report's link on the board (`?highlight=` and `?hire=`): the bookings to outline (shown
@@ -52,12 +66,17 @@ export function useBoardPointer(deps: { data: () => BoardData | null; timeZone: 
       const selector = focus.bookingId
         ? `.fc-event.${POINTER_CLASSES.highlight}`
         : `.fc-bg-event.${POINTER_CLASSES.hire}`;
-      for (let frame = 0; frame < FRAMES_TO_WAIT; frame++) {
+      const show = (el: HTMLElement) =>
+        el.scrollIntoView({ block: 'center', inline: focus.bookingId ? 'center' : 'start' });
+      let shown = false;
+      let settled = 0;
+      for (let frame = 0; frame < FRAMES_TO_WAIT && settled < FRAMES_TO_SETTLE; frame++) {
         const el = document.querySelector<HTMLElement>(selector);
-        if (el) {
-          el.scrollIntoView({ block: 'center', inline: focus.bookingId ? 'center' : 'start' });
-          return;
-        }
+        if (el && (!shown || !inView(el))) {
+          show(el);
+          shown = true;
+          settled = 0;
+        } else if (shown) settled++;
         await new Promise((resolve) => requestAnimationFrame(resolve));
       }
     },
