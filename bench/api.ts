@@ -325,8 +325,11 @@ async function unbookedStages(knexx: Knex, count: number): Promise<{ stageId: st
     .where({ firm_id: installer.id, kind: 'install_crew' })
     .orderBy('id')
     .pluck('id');
+  crewCount = crews.length;
   return stages.map((s, i) => ({ stageId: String(s.id), resourceId: String(crews[i % crews.length]) }));
 }
+/** How many crews the new stages take turns on (stage n on crew n mod this). */
+let crewCount = 1;
 const fresh = await unbookedStages(knex, 6000);
 let nextStage = 0;
 const BATCH = 5;
@@ -340,12 +343,15 @@ async function batchLoad(c: number): Promise<Figures> {
           const items = Array.from({ length: BATCH }, () => {
             const n = nextStage++;
             const s = fresh[n % fresh.length]!;
-            // Weekdays in weeks 6–9, mornings or afternoons, so the bookings spread out.
-            const day = 35 + (Math.floor(n / 2) % 4) * 7 + (n % 5);
+            // Each crew's own next half day from week 6 on, weekdays only: no two bookings of the
+            // load share a crew and a time (they did once, and the engine rightly refused the clashes).
+            const turn = Math.floor(n / crewCount);
+            const workday = Math.floor(turn / 2);
+            const day = 35 + Math.floor(workday / 5) * 7 + (workday % 5);
             return {
               stageId: s.stageId,
               resourceId: s.resourceId,
-              startsAt: new Date(START + day * DAY + (n % 2) * 4 * 3_600_000).toISOString(),
+              startsAt: new Date(START + day * DAY + (turn % 2) * 4 * 3_600_000).toISOString(),
             };
           });
           return {
@@ -361,7 +367,8 @@ async function batchLoad(c: number): Promise<Figures> {
 {
   const s = fresh[fresh.length - 1]!;
   await tryOnce('/api/bookings/batch', {
-    bookings: [{ stageId: s.stageId, resourceId: s.resourceId, startsAt: new Date(START + 36 * DAY).toISOString() }],
+    // A Monday in week 44, far from the load's own half days.
+    bookings: [{ stageId: s.stageId, resourceId: s.resourceId, startsAt: new Date(START + 301 * DAY).toISOString() }],
   });
 }
 console.log(`\nPOST /api/bookings/batch (${BATCH} stages of ${BATCH} jobs a request):`);
