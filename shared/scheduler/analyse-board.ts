@@ -1,13 +1,19 @@
-import { createBoardIndex, type BoardIndex, type BoardIndexOptions } from './board-index.js';
+import {
+  createBoardIndex,
+  type BoardIndex,
+  type BoardIndexOptions,
+  type DepLink,
+  type StageInfo,
+} from './board-index.js';
 import { boardCriticalPath, type JobCriticalPath } from './board-critical-path.js';
 import { checkAllPersonDoubles, checkAllResourceClashes } from './checks/clash.js';
 import { checkIdleHire } from './checks/hire.js';
 import { checkDependencyBetween } from './checks/order.js';
 import { checkBooking, cycleViolations } from './checks/stage.js';
 import { checkCapacity } from './checks/capacity.js';
-import { normaliseViolations } from './checks/violation.js';
+import { normaliseOwnViolations } from './checks/violation.js';
 import { checkUnbookedLink, unbookedPlan, type UnbookedPlan } from './unbooked.js';
-import type { Board, Violation } from './types.js';
+import type { Board, Booking, Violation } from './types.js';
 
 /** Everything the board shows after a full check. */
 export interface BoardAnalysis {
@@ -33,10 +39,17 @@ export function boardViolations(index: BoardIndex): Violation[] {
   const out: Violation[] = [];
   // Earliest times of unbooked stages, worked out only for those a booked successor waits on.
   let plan: UnbookedPlan | undefined;
-  for (const info of index.stageList) {
-    if (info.bookings.length === 0) {
+  // Indexed loops throughout: for…of over 20,000 stages and their links left iterator objects
+  // behind (garbage the collector then spent its time on).
+  const stages = index.stageList;
+  for (let k = 0; k < stages.length; k++) {
+    const info = stages[k] as StageInfo;
+    const own = info.bookings;
+    const depsOut = info.depsOut;
+    if (own.length === 0) {
       if (!index.seesAllBookings) continue;
-      for (const l of info.depsOut) {
+      for (let i = 0; i < depsOut.length; i++) {
+        const l = depsOut[i] as DepLink;
         if (l.to.bookings.length === 0 || l.to === info) continue;
         plan ??= unbookedPlan(index);
         const v = checkUnbookedLink(plan, l, l.to.bookings);
@@ -44,15 +57,18 @@ export function boardViolations(index: BoardIndex): Violation[] {
       }
       continue;
     }
-    for (const l of info.depsOut) checkDependencyBetween(index, l.dep, info.bookings, l.to.bookings, out, info.stage);
-    for (const b of info.bookings) checkBooking(index, b, info.stage, out);
-    checkCapacity(index, info.stage.id, info.bookings, info.stage, out);
+    for (let i = 0; i < depsOut.length; i++) {
+      const l = depsOut[i] as DepLink;
+      checkDependencyBetween(index, l.dep, own, l.to.bookings, out, info.stage);
+    }
+    for (let i = 0; i < own.length; i++) checkBooking(index, own[i] as Booking, info.stage, out);
+    checkCapacity(index, info.stage.id, own, info.stage, out);
   }
-  for (const v of checkAllResourceClashes(index)) out.push(v);
-  for (const v of checkAllPersonDoubles(index)) out.push(v);
+  checkAllResourceClashes(index, out);
+  checkAllPersonDoubles(index, out);
   for (const v of cycleViolations(index)) out.push(v);
-  for (const v of checkIdleHire(index)) out.push(v);
-  return normaliseViolations(out);
+  checkIdleHire(index, out);
+  return normaliseOwnViolations(out);
 }
 
 /**

@@ -1,4 +1,4 @@
-import { spanEnd, spanStart, stageCalendarOf, type BoardIndex, type StageInfo } from './board-index.js';
+import { spanEnd, spanStart, stageCalendarOf, type BoardIndex, type DepLink, type StageInfo } from './board-index.js';
 import { addWorkingMinutes, nextWorkingInstant, workingMinutesBetween, type CompiledCalendar } from './calendar.js';
 import type { BookingsOf } from './checks/violation.js';
 import { cureRelease, releaseInstant } from './cure.js';
@@ -49,6 +49,15 @@ export interface JobCriticalPathOptions {
 
 const TOLERANCE_MINUTES = 0.5;
 
+/**
+ * The same number, as a small integer where it is one (not -0). Minutes come out of float
+ * arithmetic; stored as they are, every timing held three more boxed numbers on the heap (the
+ * output's 20,000 timings are most of what the collector has to move).
+ */
+function small(minutes: number): number {
+  return minutes === (minutes | 0) && (minutes !== 0 || 1 / minutes > 0) ? minutes | 0 : minutes;
+}
+
 /** Per-stage numbers of one run, in typed arrays indexed by StageInfo.idx (no per-stage objects). */
 interface Work {
   es: Float64Array;
@@ -61,7 +70,12 @@ interface Work {
   booked: Uint8Array;
   /** 1 + position of the stage's job in `jobs`, 0 when the stage is not in this run. */
   job: Int32Array;
-  cal: CompiledCalendar[];
+  /**
+   * Each stage's calendar as a position in `cals`: a list of 20,000 calendars would be allocated
+   * in large-object space on every run, a typed array of numbers is not.
+   */
+  calNo: Int32Array;
+  cals: CompiledCalendar[];
 }
 
 interface JobWork {
@@ -73,16 +87,23 @@ interface JobWork {
 
 function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
   const out: JobCriticalPath[] = new Array<JobCriticalPath>(jobs.length);
-  const { es, ef, ls, lf, d, cure, booked, job: jobOf, cal } = w;
-  jobs.forEach((job, j) => {
+  const { es, ef, ls, lf, d, cure, booked, job: jobOf, calNo, cals } = w;
+  // Plain indexed loops, no closure or iterator per job, stage or link: this runs over every stage
+  // of the board, and what it leaves behind besides the timings is garbage to collect.
+  for (let j = 0; j < jobs.length; j++) {
+    const job = jobs[j] as JobWork;
+    const list = job.stages;
     const me = j + 1;
-    for (const x of job.stages) {
+    for (let k = 0; k < list.length; k++) {
+      const x = list[k] as StageInfo;
       const i = x.idx;
       if (booked[i] === 1) continue;
-      const c = cal[i] as CompiledCalendar;
+      const c = cals[calNo[i] as number] as CompiledCalendar;
       const di = d[i] as number;
       let t = index.now;
-      for (const l of x.depsIn) {
+      const depsIn = x.depsIn;
+      for (let n = 0; n < depsIn.length; n++) {
+        const l = depsIn[n] as DepLink;
         const p = l.from.idx;
         if (jobOf[p] !== me) continue;
         const dep = l.dep;
@@ -99,24 +120,27 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
     }
     let start = Number.POSITIVE_INFINITY,
       finish = Number.NEGATIVE_INFINITY;
-    for (const x of job.stages) {
-      if ((es[x.idx] as number) < start) start = es[x.idx] as number;
-      if ((ef[x.idx] as number) > finish) finish = ef[x.idx] as number;
+    for (let k = 0; k < list.length; k++) {
+      const i = (list[k] as StageInfo).idx;
+      if ((es[i] as number) < start) start = es[i] as number;
+      if ((ef[i] as number) > finish) finish = ef[i] as number;
     }
-    if (job.stages.length === 0) start = finish = index.now;
+    if (list.length === 0) start = finish = index.now;
     const end = job.promisedBy ?? finish;
-    for (let k = job.stages.length - 1; k >= 0; k--) {
-      const x = job.stages[k] as StageInfo;
+    for (let k = list.length - 1; k >= 0; k--) {
+      const x = list[k] as StageInfo;
       const i = x.idx;
-      const c = cal[i] as CompiledCalendar;
+      const c = cals[calNo[i] as number] as CompiledCalendar;
       const di = d[i] as number;
       let latest = end;
-      for (const l of x.depsOut) {
+      const depsOut = x.depsOut;
+      for (let n = 0; n < depsOut.length; n++) {
+        const l = depsOut[n] as DepLink;
         const s = l.to.idx;
         if (jobOf[s] !== me) continue;
         const dep = l.dep;
         const subject = (dep.type === 'FS' || dep.type === 'SS' ? ls[s] : lf[s]) as number;
-        const back = reverseLag(cal[s] as CompiledCalendar, subject, dep.lag);
+        const back = reverseLag(cals[calNo[s] as number] as CompiledCalendar, subject, dep.lag);
         const b = dep.type === 'FS' || dep.type === 'FF' ? back : addWorkingMinutes(c, back, di);
         if (b < latest) latest = b;
         const ci = cure[i] as number;
@@ -126,19 +150,22 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
       ls[i] = di > 0 ? addWorkingMinutes(c, latest, -di) : latest;
     }
     let minFloat = Number.POSITIVE_INFINITY;
-    const timings: StageTiming[] = new Array<StageTiming>(job.stages.length);
-    for (let k = 0; k < job.stages.length; k++) {
-      const x = job.stages[k] as StageInfo;
+    const timings: StageTiming[] = new Array<StageTiming>(list.length);
+    for (let k = 0; k < list.length; k++) {
+      const x = list[k] as StageInfo;
       const i = x.idx;
-      const c = cal[i] as CompiledCalendar;
+      const c = cals[calNo[i] as number] as CompiledCalendar;
       let free = workingMinutesBetween(c, ef[i] as number, end);
-      for (const l of x.depsOut) {
+      const depsOut = x.depsOut;
+      for (let n = 0; n < depsOut.length; n++) {
+        const l = depsOut[n] as DepLink;
         const s = l.to.idx;
         if (jobOf[s] !== me) continue;
         const dep = l.dep;
         const subject = (dep.type === 'FS' || dep.type === 'SS' ? es[s] : ef[s]) as number;
         const own = (dep.type === 'FS' || dep.type === 'FF' ? ef[i] : es[i]) as number;
-        free = Math.min(free, workingMinutesBetween(c, own, reverseLag(cal[s] as CompiledCalendar, subject, dep.lag)));
+        const succCal = cals[calNo[s] as number] as CompiledCalendar;
+        free = Math.min(free, workingMinutesBetween(c, own, reverseLag(succCal, subject, dep.lag)));
         const ci = cure[i] as number;
         if (ci > 0 && dep.waitsForCure === true)
           free = Math.min(free, workingMinutesBetween(c, ef[i] as number, (es[s] as number) - ci * DAY_MS));
@@ -149,18 +176,19 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
         stageId: x.stage.id,
         booked: booked[i] === 1,
         calendarId: c.source.id,
-        durationMinutes: d[i] as number,
+        durationMinutes: small(d[i] as number),
         es: es[i] as number,
         ef: ef[i] as number,
         ls: ls[i] as number,
         lf: lf[i] as number,
-        totalFloatMinutes: total,
-        freeFloatMinutes: free,
+        totalFloatMinutes: small(total),
+        freeFloatMinutes: small(free),
         critical: false,
       };
     }
     const critical: string[] = [];
-    for (const t of timings) {
+    for (let k = 0; k < timings.length; k++) {
+      const t = timings[k] as StageTiming;
       t.critical = t.totalFloatMinutes <= minFloat + TOLERANCE_MINUTES;
       if (t.critical) critical.push(t.stageId);
     }
@@ -174,7 +202,7 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
       criticalStageIds: critical,
       stages: timings,
     };
-  });
+  }
   return out;
 }
 
@@ -217,8 +245,10 @@ function prepare(
     cure: new Float64Array(n),
     booked: new Uint8Array(n),
     job: new Int32Array(n),
-    cal: new Array<CompiledCalendar>(n),
+    calNo: new Int32Array(n),
+    cals: [],
   };
+  const calPos = new Map<CompiledCalendar, number>();
   const jobPos = new Map<string, number>();
   const jobs: JobWork[] = [];
   let lastId = '',
@@ -239,7 +269,13 @@ function prepare(
     const i = info.idx;
     const own = bookingsOfOpt === undefined ? info.bookings : bookingsOfOpt(stage.id);
     const c = stageCalendarOf(index, stage.id, own);
-    w.cal[i] = c;
+    let no = calPos.get(c);
+    if (no === undefined) {
+      no = w.cals.length;
+      w.cals.push(c);
+      calPos.set(c, no);
+    }
+    w.calNo[i] = no;
     w.job[i] = pos + 1;
     if (stage.cure) {
       let days = cureDaysCache.get(stage.cure);

@@ -2,6 +2,7 @@ import { assertBookingStep, DEFAULT_BOOKING_STEP_MINUTES } from './booking-step.
 import { compileCalendar, type CompiledCalendar } from './calendar.js';
 import { SchedulerError } from './errors.js';
 import { findCycles } from './graph.js';
+import { IdMap } from './id-map.js';
 import type { Board, BoardOptions, Booking, Dependency, HirePeriod, Job, Resource, Stage } from './types.js';
 
 /** Bookings on one resource, sorted by start then id, with the longest length for window scans. */
@@ -46,8 +47,8 @@ export interface BoardIndex {
   readonly stepMinutes: number;
   /** False when the board holds only part of the bookings: unbooked predecessors are not checked. */
   readonly seesAllBookings: boolean;
-  /** Stages by id, with their bookings and dependencies. */
-  readonly stages: Map<string, StageInfo>;
+  /** Stages by id, with their bookings and dependencies (read-only: see IdMap). */
+  readonly stages: ReadonlyMap<string, StageInfo>;
   /** The same, in board order. */
   readonly stageList: StageInfo[];
   readonly jobs: Map<string, Job>;
@@ -92,6 +93,61 @@ function byId(a: Booking, b: Booking): number {
   return a.id < b.id ? -1 : a.id > b.id ? 1 : 0;
 }
 
+function stageIdOf(info: StageInfo): string {
+  return info.stage.id;
+}
+
+function byOnHire(a: HirePeriod, b: HirePeriod): number {
+  return a.onHire - b.onHire;
+}
+
+/**
+ * Sorts a list in place (stably, as Array#sort does), doing nothing when it is in order already:
+ * bookings and hire periods mostly come in order, and Array#sort allocates work space on every
+ * call, thousands of times per index. Short lists are insertion-sorted.
+ */
+function sortInPlace<T>(list: T[], compare: (a: T, b: T) => number): void {
+  let i = 1;
+  while (i < list.length && compare(list[i - 1] as T, list[i] as T) <= 0) i++;
+  if (i >= list.length) return;
+  if (list.length > 16) {
+    list.sort(compare);
+    return;
+  }
+  for (; i < list.length; i++) {
+    const x = list[i] as T;
+    let j = i - 1;
+    while (j >= 0 && compare(list[j] as T, x) > 0) {
+      list[j + 1] = list[j] as T;
+      j--;
+    }
+    list[j + 1] = x;
+  }
+}
+
+/**
+ * A resource's people, sorted and each once: its `personIds` and itself when it is a person
+ * (what `[...new Set(ids)].sort()` gives, without the Set and spread per resource).
+ */
+function peopleOf(r: Resource): string[] {
+  const ids = r.personIds ?? EMPTY_IDS;
+  const list: string[] = [];
+  for (const id of ids) {
+    // Anything but a string sorts by its text: leave that to the general way.
+    if (typeof id !== 'string') return [...new Set([...ids, ...(r.category === 'person' ? [r.id] : [])])].sort();
+    if (!list.includes(id)) list.push(id);
+  }
+  if (r.category === 'person' && !list.includes(r.id)) list.push(r.id);
+  sortInPlace(list, byText);
+  return list;
+}
+
+const EMPTY_IDS: readonly string[] = Object.freeze([]);
+
+function byText(a: string, b: string): number {
+  return a < b ? -1 : a > b ? 1 : 0;
+}
+
 /**
  * Kahn's algorithm over the resolved links, taking the most recently freed stage first (a stack),
  * so each job's stages come out together; Tarjan's only over what it could not order.
@@ -123,13 +179,41 @@ function orderStages(list: StageInfo[]): { order: StageInfo[]; blocked: Set<stri
 }
 
 /**
+ * The stage with an id, as `stages.get(id)` gives it. Bookings and dependencies mostly come stage
+ * by stage in board order, so the stage at the cursor and the one after it are tried first: a
+ * string comparison instead of a map look-up for most of the index's 60,000 look-ups.
+ */
+function findStage(
+  list: readonly StageInfo[],
+  stages: ReadonlyMap<string, StageInfo>,
+  id: string,
+  cursor: { at: number; usable: boolean },
+): StageInfo | undefined {
+  if (cursor.usable) {
+    const here = list[cursor.at];
+    if (here !== undefined && here.stage.id === id) return here;
+    const next = list[cursor.at + 1];
+    if (next !== undefined && next.stage.id === id) {
+      cursor.at++;
+      return next;
+    }
+  }
+  const info = stages.get(id);
+  if (info !== undefined) cursor.at = info.idx;
+  return info;
+}
+
+/**
  * Orders bookings by start, then id: the order every sweep and scan relies on.
  *
  * @example
  * bookings.slice().sort(compareBookings)
  */
 export function compareBookings(a: Booking, b: Booking): number {
-  return a.start - b.start || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
+  // -1, 0 or 1 rather than the difference of two instants, which would be boxed on every call.
+  if (a.start < b.start) return -1;
+  if (a.start > b.start) return 1;
+  return a.id < b.id ? -1 : a.id > b.id ? 1 : 0;
 }
 
 /**
@@ -161,15 +245,12 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
     resources.set(r.id, r);
     resourceInfo.set(r.id, { resource: r, cal: calendars.get(r.calendarId) as CompiledCalendar });
     push(resourcesByKind, r.kind, r);
-    const people = new Set(r.personIds ?? []);
-    if (r.category === 'person') people.add(r.id);
-    if (people.size > 0) {
-      const list = [...people].sort();
+    if ((r.personIds !== undefined && r.personIds.length > 0) || r.category === 'person') {
+      const list = peopleOf(r);
       personsOfResource.set(r.id, list);
       for (const p of list) push(resourcesOfPerson, p, r.id);
     }
   }
-  const stages = new Map<string, StageInfo>();
   const stageList: StageInfo[] = new Array<StageInfo>(board.stages.length);
   // A plain loop (no closure per stage): this runs for every stage of every analysis.
   for (let idx = 0; idx < board.stages.length; idx++) {
@@ -177,18 +258,25 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
     if (!(Number.isFinite(s.durationMinutes) && s.durationMinutes >= 0)) {
       throw new SchedulerError('invalid_duration', `Stage ${s.id} needs a duration of zero or more working minutes`);
     }
-    const info: StageInfo = { idx, stage: s, bookings: EMPTY_BOOKINGS, depsIn: EMPTY_LINKS, depsOut: EMPTY_LINKS };
-    stages.set(s.id, info);
-    stageList[idx] = info;
+    stageList[idx] = { idx, stage: s, bookings: EMPTY_BOOKINGS, depsIn: EMPTY_LINKS, depsOut: EMPTY_LINKS };
   }
+  const stages = new IdMap(stageList, stageIdOf);
   const jobs = new Map<string, Job>();
   for (const j of board.jobs) jobs.set(j.id, j);
   const byResource = new Map<string, Booking[]>();
-  for (const b of board.bookings) {
+  // With repeated ids the map holds the last stage of each: look-ups then go to the map alone.
+  const cursor = { at: 0, usable: stages.size === stageList.length };
+  // Each active booking's stage, and how many each stage has, so its list is made at its full
+  // length (a list grown from one to two holds room for seventeen, and the index lives through
+  // the whole analysis).
+  const stageOf = new Int32Array(board.bookings.length).fill(-1);
+  const counts = new Int32Array(stageList.length);
+  for (let k = 0; k < board.bookings.length; k++) {
+    const b = board.bookings[k] as Booking;
     if (!(Number.isFinite(b.start) && Number.isFinite(b.end) && b.end > b.start)) {
       throw new RangeError(`Booking ${b.id} must end after it starts`);
     }
-    const info = stages.get(b.stageId);
+    const info = findStage(stageList, stages, b.stageId, cursor);
     if (info === undefined)
       throw new SchedulerError('unknown_stage', `Booking ${b.id} is for stage ${b.stageId}, which is not on the board`);
     if (!resourceInfo.has(b.resourceId))
@@ -197,21 +285,40 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
         `Booking ${b.id} is for resource ${b.resourceId}, which is not on the board`,
       );
     if (b.state === 'declined') continue;
-    if (info.bookings.length === 0) info.bookings = [b];
-    else info.bookings.push(b);
+    stageOf[k] = info.idx;
+    counts[info.idx] = (counts[info.idx] as number) + 1;
     push(byResource, b.resourceId, b);
   }
-  for (const info of stageList) if (info.bookings.length > 1) info.bookings.sort(byId);
-  const bookingsByResource = new Map<string, ResourceBookings>();
-  for (const [rid, list] of byResource) {
-    list.sort(compareBookings);
-    let maxLength = 0;
-    for (const b of list) maxLength = Math.max(maxLength, b.end - b.start);
-    bookingsByResource.set(rid, { list, maxLength });
+  for (let k = 0; k < board.bookings.length; k++) {
+    const at = stageOf[k] as number;
+    if (at < 0) continue;
+    const info = stageList[at] as StageInfo;
+    const b = board.bookings[k] as Booking;
+    if (info.bookings.length === 0) {
+      const n = counts[at] as number;
+      info.bookings = n === 1 ? [b] : new Array<Booking>(n);
+      counts[at] = 0; // from here on: how many are in
+    }
+    info.bookings[counts[at] as number] = b;
+    counts[at] = (counts[at] as number) + 1;
   }
+  for (let i = 0; i < stageList.length; i++) {
+    const info = stageList[i] as StageInfo;
+    if (info.bookings.length > 1) sortInPlace(info.bookings, byId);
+  }
+  const bookingsByResource = new Map<string, ResourceBookings>();
+  byResource.forEach((list, rid) => {
+    sortInPlace(list, compareBookings);
+    let maxLength = 0;
+    for (let i = 0; i < list.length; i++) {
+      const b = list[i] as Booking;
+      maxLength = Math.max(maxLength, b.end - b.start);
+    }
+    bookingsByResource.set(rid, { list, maxLength });
+  });
   for (const d of board.dependencies) {
-    const from = stages.get(d.fromStageId),
-      to = stages.get(d.toStageId);
+    const from = findStage(stageList, stages, d.fromStageId, cursor),
+      to = findStage(stageList, stages, d.toStageId, cursor);
     if (from === undefined || to === undefined) {
       throw new SchedulerError('unknown_stage', `Dependency ${d.id} links a stage that is not on the board`);
     }
@@ -226,7 +333,7 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
     if (!(h.offHire > h.onHire)) throw new RangeError(`Hire period ${h.id} must end after it starts`);
     push(hireByResource, h.resourceId, h);
   }
-  for (const l of hireByResource.values()) l.sort((a, b) => a.onHire - b.onHire);
+  hireByResource.forEach((l) => sortInPlace(l, byOnHire));
   const { order, blocked, cycles } = orderStages(stageList);
   return {
     board,

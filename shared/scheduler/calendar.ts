@@ -1,6 +1,14 @@
 import { SchedulerError } from './errors.js';
 import { holidayDaysOf } from './holidays.js';
-import { DAY_MS, MINUTE_MS, assertTimeZone, localToInstant, timeZoneOffset, weekdayOfDay } from './time-zone.js';
+import {
+  DAY_MS,
+  MINUTE_MS,
+  assertTimeZone,
+  localToInstant,
+  offsetSpanAt,
+  weekdayOfDay,
+  type OffsetSpan,
+} from './time-zone.js';
 import type { Instant, Interval, WorkingCalendar } from './types.js';
 
 /** How far the engine looks for working time before giving up (about ten years). */
@@ -33,6 +41,8 @@ class CalendarImpl implements CompiledCalendar {
   private readonly closures: number[];
   private cumBase = 0;
   private cum: number[] = [];
+  /** The zone's offset over a span of time, from the last look-up (empty at first). */
+  private readonly span: OffsetSpan = { lo: 0, hi: 0, offset: 0 };
 
   constructor(cal: WorkingCalendar) {
     validateCalendar(cal);
@@ -49,7 +59,16 @@ class CalendarImpl implements CompiledCalendar {
   }
 
   dayOf(instant: Instant): number {
-    return Math.floor((instant + timeZoneOffset(this.timeZone, instant)) / DAY_MS);
+    // Inside the span of the last offset looked up (clocks change twice a year) this is one sum, small
+    // enough to be inlined; a call with an instant would box it on the heap, on every calendar step.
+    const span = this.span;
+    if (instant >= span.lo && instant < span.hi) return Math.floor((instant + span.offset) / DAY_MS);
+    return this.dayOfElsewhere(instant);
+  }
+
+  private dayOfElsewhere(instant: Instant): number {
+    offsetSpanAt(this.timeZone, instant, this.span);
+    return Math.floor((instant + this.span.offset) / DAY_MS);
   }
 
   dayIntervals(day: number): readonly number[] {
@@ -89,7 +108,31 @@ class CalendarImpl implements CompiledCalendar {
 
   workedUntil(instant: Instant): number {
     const day = this.dayOf(instant);
-    return this.cumAt(day) + workedBefore(this.dayIntervals(day), instant);
+    // The running total is nearly always there already: read it here, since a double handed back
+    // from a call (cumAt's) is boxed on the heap, and this runs for every working-time difference.
+    const i = day - this.cumBase;
+    const cum = this.cum;
+    const before = i >= 0 && i < cum.length ? (cum[i] as number) : this.cumAt(day);
+    return before + workedBefore(this.dayIntervals(day), instant);
+  }
+
+  /**
+   * Working milliseconds from `start` to `end`: workedUntil(end) - workedUntil(start) written out,
+   * so the two large running totals never leave this function (each would be boxed on the heap).
+   */
+  workedBetween(start: Instant, end: Instant): number {
+    // End first, as workedUntil(end) - workedUntil(start) would ask (cumAt may grow the totals).
+    const b = this.dayOf(end);
+    let i = b - this.cumBase;
+    const atEnd =
+      (i >= 0 && i < this.cum.length ? (this.cum[i] as number) : this.cumAt(b)) +
+      workedBefore(this.dayIntervals(b), end);
+    const a = this.dayOf(start);
+    i = a - this.cumBase;
+    const atStart =
+      (i >= 0 && i < this.cum.length ? (this.cum[i] as number) : this.cumAt(a)) +
+      workedBefore(this.dayIntervals(a), start);
+    return atEnd - atStart;
   }
 
   private cumAt(day: number): number {
@@ -329,7 +372,7 @@ export function workingMinutesBetween(cal: Cal, start: Instant, end: Instant): n
       `Calendar ${c.source.id} can't count working time across more than ten years`,
     );
   }
-  return (c.workedUntil(end) - c.workedUntil(start)) / MINUTE_MS;
+  return (c as CalendarImpl).workedBetween(start, end) / MINUTE_MS;
 }
 
 /**

@@ -1,4 +1,4 @@
-import { timeZoneOffset } from './time-zone.js';
+import { isFourDigitYearDay, packedCivilDate, timeZoneOffset } from './time-zone.js';
 import type { Instant } from './types.js';
 
 const WEEKDAYS = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'];
@@ -38,6 +38,19 @@ export function formatInstant(instant: Instant, timeZone: string): string {
   const weekday = (((day + 4) % 7) + 7) % 7;
   return `${WEEKDAYS[weekday] as string} ${date} ${MONTHS[month] as string} ${TWO_DIGITS[Math.floor(minuteOfDay / 60)] as string}:${TWO_DIGITS[minuteOfDay % 60] as string}`;
 }
+/**
+ * "Tue 12 May" for a local day number (the date part of {@link formatInstant}), or undefined
+ * outside the years 1000 to 9999.
+ *
+ * @example
+ * formatDayOfWeek(dayNumber(2026, 5, 12)) // 'Tue 12 May'
+ */
+export function formatDayOfWeek(day: number): string | undefined {
+  if (!isFourDigitYearDay(day)) return undefined;
+  const c = packedCivilDate(day);
+  return `${WEEKDAYS[(((day + 4) % 7) + 7) % 7] as string} ${c & 31} ${MONTHS[((c >> 5) & 15) - 1] as string}`;
+}
+
 /**
  * Pence as pounds for messages.
  *

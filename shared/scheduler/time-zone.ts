@@ -220,6 +220,40 @@ export function timeZoneOffset(timeZone: string, instant: Instant): number {
   return z.offsets[lo] as number;
 }
 
+/** A span of time over which a zone's offset stays the same (see {@link offsetSpanAt}). */
+export interface OffsetSpan {
+  /** First instant of the span. */
+  lo: number;
+  /** First instant after it (lo = hi: an empty span). */
+  hi: number;
+  /** The offset throughout, as {@link timeZoneOffset} gives it. */
+  offset: number;
+}
+
+/**
+ * Writes into `span` the zone's offset at an instant and a span around it with that same offset
+ * (within the years already looked up; empty for far-off instants), so a caller can skip the
+ * look-up for the next instants inside it. Allocates nothing.
+ *
+ * @example
+ * const span = { lo: 0, hi: 0, offset: 0 }
+ * offsetSpanAt('Europe/London', Date.UTC(2026, 6, 1), span) // span.offset 3_600_000, lo 29 Mar 01:00 UTC
+ */
+export function offsetSpanAt(timeZone: string, instant: Instant, span: OffsetSpan): void {
+  const offset = timeZoneOffset(timeZone, instant);
+  const z = zone(timeZone);
+  span.offset = offset;
+  if (!(instant >= z.lo && instant < z.hi)) {
+    span.lo = instant;
+    span.hi = instant;
+    return;
+  }
+  // timeZoneOffset left the segment it used as the hint.
+  const k = z.hint;
+  span.lo = z.starts[k] as number;
+  span.hi = k + 1 < z.starts.length ? (z.starts[k + 1] as number) : z.hi;
+}
+
 /**
  * The local day number (days since 1970-01-01 in that zone) holding an instant.
  *
@@ -270,7 +304,50 @@ export function dayNumber(year: number, month: number, day: number): number {
  * isoDateOfDay(dayNumber(2026, 12, 28)) // '2026-12-28'
  */
 export function isoDateOfDay(day: number): string {
+  // Plain arithmetic for four-digit years (a Date and its ISO text per day showed up in the
+  // idle-hire check); anything else as a Date says it.
+  if (Number.isInteger(day) && day >= FIRST_PLAIN_DAY && day <= LAST_PLAIN_DAY) {
+    const c = packedCivilDate(day);
+    const year = Math.floor(c / 512);
+    return `${year}-${PAD2[(c >> 5) & 15] as string}-${PAD2[c & 31] as string}`;
+  }
   return new Date(day * DAY_MS).toISOString().slice(0, 10);
+}
+
+const PAD2 = Array.from({ length: 32 }, (_, i) => String(i).padStart(2, '0'));
+/** 1 January 1000 and 31 December 9999: the days whose dates {@link packedCivilDate} words need no Date for. */
+const FIRST_PLAIN_DAY = Date.UTC(1000, 0, 1) / DAY_MS;
+const LAST_PLAIN_DAY = Date.UTC(9999, 11, 31) / DAY_MS;
+
+/**
+ * True for the days of years 1000 to 9999.
+ *
+ * @example
+ * isFourDigitYearDay(dayNumber(2026, 5, 12)) // true
+ */
+export function isFourDigitYearDay(day: number): boolean {
+  return Number.isInteger(day) && day >= FIRST_PLAIN_DAY && day <= LAST_PLAIN_DAY;
+}
+
+/**
+ * The civil date of a whole day number as one number, year * 512 + month * 32 + day of month
+ * (month 1..12), so hot loops get it without an object: after H. Hinnant's civil_from_days
+ * ("chrono-Compatible Low-Level Date Algorithms"), proleptic Gregorian.
+ *
+ * @example
+ * const c = packedCivilDate(dayNumber(2026, 5, 12)) // Math.floor(c / 512) === 2026, (c >> 5) & 15 === 5, c & 31 === 12
+ */
+export function packedCivilDate(day: number): number {
+  const z = day + 719_468;
+  const era = Math.floor(z / 146_097);
+  const doe = z - era * 146_097;
+  const yoe = Math.floor((doe - Math.floor(doe / 1460) + Math.floor(doe / 36_524) - Math.floor(doe / 146_096)) / 365);
+  const doy = doe - (365 * yoe + Math.floor(yoe / 4) - Math.floor(yoe / 100));
+  const mp = Math.floor((5 * doy + 2) / 153);
+  const date = doy - Math.floor((153 * mp + 2) / 5) + 1;
+  const month = mp < 10 ? mp + 3 : mp - 9;
+  const year = yoe + era * 400 + (month <= 2 ? 1 : 0);
+  return year * 512 + month * 32 + date;
 }
 
 /**

@@ -1,7 +1,7 @@
 import { compareBookings, resourceCalendarOf, type BoardIndex } from '../board-index.js';
 import { formatInstant } from '../format.js';
 import type { Booking, Violation } from '../types.js';
-import { capitalise, makeViolation, resourceLabel, stageLabel } from './violation.js';
+import { capitalise, makeViolation, resourceLabel, stageLabel, violationOf } from './violation.js';
 
 function ordered(a: Booking, b: Booking): [Booking, Booking] {
   return compareBookings(a, b) <= 0 ? [a, b] : [b, a];
@@ -40,6 +40,11 @@ function onJob(index: BoardIndex, b: Booking, other: Booking): string {
  * resourcePairViolations(index, bookingA, bookingB)
  */
 export function resourcePairViolations(index: BoardIndex, x: Booking, y: Booking): Violation[] {
+  return pushResourcePair(index, x, y, []);
+}
+
+/** {@link resourcePairViolations} appended to `out`. */
+function pushResourcePair(index: BoardIndex, x: Booking, y: Booking, out: Violation[]): Violation[] {
   const [a, b] = ordered(x, y);
   const rid = a.resourceId;
   const { from, to, words } = overlapWords(index, rid, a, b);
@@ -49,7 +54,7 @@ export function resourcePairViolations(index: BoardIndex, x: Booking, y: Booking
       a.stageId === b.stageId
         ? `twice for ${stageLabel(index, a.stageId)}`
         : `for both ${stageLabel(index, a.stageId)}${onJob(index, a, b)} and ${stageLabel(index, b.stageId)}${onJob(index, b, a)}`;
-    return [
+    out.push(
       makeViolation(
         'clash',
         'error',
@@ -59,14 +64,18 @@ export function resourcePairViolations(index: BoardIndex, x: Booking, y: Booking
         `${who} is booked ${what} ${words}`,
         { from, to },
       ),
-    ];
+    );
+    return out;
   }
-  return [a, b].map((own) =>
-    makeViolation('cross_firm', 'error', [own.stageId], [rid], [own.id], `${who} is busy elsewhere ${words}`, {
-      from,
-      to,
-    }),
-  );
+  for (const own of [a, b]) {
+    out.push(
+      violationOf('cross_firm', 'error', [own.stageId], [rid], [own.id], `${who} is busy elsewhere ${words}`, {
+        from,
+        to,
+      }),
+    );
+  }
+  return out;
 }
 
 /**
@@ -90,23 +99,34 @@ export function personPairViolation(index: BoardIndex, personId: string, x: Book
   );
 }
 
-/** Calls `visit` for every overlapping pair in a list sorted by start (sweep, O(n log n + pairs)). */
-function sweep(list: readonly Booking[], visit: (a: Booking, b: Booking) => void): void {
-  // `active` holds the bookings still running, compacted in place; its tail beyond `n` is stale
+/**
+ * Calls `visit` for every overlapping pair among the first `n` bookings of a list sorted by start
+ * (sweep, O(n log n + pairs)). `active` is scratch space the caller may reuse between sweeps, and
+ * `visit` gets `index` and `out` passed on, so a caller needs no closure per list.
+ */
+function sweep<C>(
+  list: readonly Booking[],
+  n: number,
+  active: Booking[],
+  context: C,
+  out: Violation[],
+  visit: (context: C, a: Booking, b: Booking, out: Violation[]) => void,
+): void {
+  // `active` holds the bookings still running, compacted in place; its tail beyond `live` is stale
   // (shrinking an array's length trims the heap and was slow in the benchmark).
-  const active: Booking[] = [];
-  let n = 0;
-  for (const b of list) {
+  let live = 0;
+  for (let k = 0; k < n; k++) {
+    const b = list[k] as Booking;
     let keep = 0;
-    for (let i = 0; i < n; i++) {
+    for (let i = 0; i < live; i++) {
       const a = active[i] as Booking;
       if (a.end > b.start) {
         active[keep++] = a;
-        visit(a, b);
+        visit(context, a, b, out);
       }
     }
     active[keep] = b;
-    n = keep + 1;
+    live = keep + 1;
   }
 }
 
@@ -126,10 +146,11 @@ export function overlappingPairs(bookings: readonly Booking[]): [Booking, Bookin
     else l.push(b);
   }
   const out: [Booking, Booking][] = [];
+  const active: Booking[] = [];
   for (const list of byResource.values()) {
     list.sort(compareBookings);
-    sweep(list, (a, b) => {
-      out.push([a, b]);
+    sweep(list, list.length, active, out, [], (pairs, a, b) => {
+      pairs.push([a, b]);
     });
   }
   return out;
@@ -137,41 +158,87 @@ export function overlappingPairs(bookings: readonly Booking[]): [Booking, Bookin
 
 /**
  * All clash and cross-firm violations on the board: one sweep per resource over its bookings
- * sorted by start.
+ * sorted by start, appended to `out`.
  *
  * @example
  * checkAllResourceClashes(index).filter(v => v.kind === 'clash')
  */
-export function checkAllResourceClashes(index: BoardIndex): Violation[] {
-  const out: Violation[] = [];
-  for (const { list } of index.bookingsByResource.values()) {
-    sweep(list, (a, b) => {
-      for (const v of resourcePairViolations(index, a, b)) out.push(v);
-    });
+export function checkAllResourceClashes(index: BoardIndex, out: Violation[] = []): Violation[] {
+  const active: Booking[] = [];
+  for (const { list } of index.bookingsByResource.values())
+    sweep(list, list.length, active, index, out, pushResourcePair);
+  return out;
+}
+
+/** One person's context for {@link pushPersonPair}. */
+interface PersonSweep {
+  index: BoardIndex;
+  personId: string;
+}
+
+function pushPersonPair(p: PersonSweep, a: Booking, b: Booking, out: Violation[]): void {
+  if (a.resourceId !== b.resourceId) out.push(personPairViolation(p.index, p.personId, a, b));
+}
+
+/**
+ * All one-person-in-two-places violations: one sweep per person over the bookings of every
+ * resource they belong to, appended to `out`.
+ *
+ * @example
+ * checkAllPersonDoubles(index)
+ */
+export function checkAllPersonDoubles(index: BoardIndex, out: Violation[] = []): Violation[] {
+  // One merge buffer, sweep space and context for every person: a person is in two or three
+  // crews, and a fresh list, sort and closure per person was a good part of this check's garbage.
+  const all: Booking[] = [];
+  const active: Booking[] = [];
+  const heads: number[] = [];
+  const context: PersonSweep = { index, personId: '' };
+  for (const [personId, rids] of index.resourcesOfPerson) {
+    if (rids.length < 2) continue;
+    const n = mergeBookings(index, rids, all, heads);
+    context.personId = personId;
+    sweep(all, n, active, context, out, pushPersonPair);
   }
   return out;
 }
 
 /**
- * All one-person-in-two-places violations: one sweep per person over the bookings of every
- * resource they belong to.
- *
- * @example
- * checkAllPersonDoubles(index)
+ * The bookings of several resources in compareBookings order, written over the start of `all`;
+ * returns how many. Each resource's list is already in that order, so a merge of the few lists
+ * does (a sort for many).
  */
-export function checkAllPersonDoubles(index: BoardIndex): Violation[] {
-  const out: Violation[] = [];
-  for (const [personId, rids] of index.resourcesOfPerson) {
-    if (rids.length < 2) continue;
-    const all: Booking[] = [];
-    for (const rid of rids) for (const b of index.bookingsByResource.get(rid)?.list ?? []) all.push(b);
-    all.sort(compareBookings);
-    sweep(all, (a, b) => {
-      if (a.resourceId !== b.resourceId) out.push(personPairViolation(index, personId, a, b));
-    });
+function mergeBookings(index: BoardIndex, rids: readonly string[], all: Booking[], heads: number[]): number {
+  let n = 0;
+  if (rids.length > 4) {
+    const many: Booking[] = [];
+    for (const rid of rids) for (const b of index.bookingsByResource.get(rid)?.list ?? []) many.push(b);
+    many.sort(compareBookings);
+    for (const b of many) all[n++] = b;
+    return n;
   }
-  return out;
+  const lists: (readonly Booking[])[] = [];
+  for (let r = 0; r < rids.length; r++) {
+    lists.push(index.bookingsByResource.get(rids[r] as string)?.list ?? NO_BOOKINGS);
+    heads[r] = 0;
+  }
+  for (;;) {
+    let best = -1;
+    let pick: Booking | undefined;
+    for (let r = 0; r < lists.length; r++) {
+      const b = (lists[r] as readonly Booking[])[heads[r] as number];
+      if (b !== undefined && (pick === undefined || compareBookings(b, pick) < 0)) {
+        pick = b;
+        best = r;
+      }
+    }
+    if (pick === undefined) return n;
+    all[n++] = pick;
+    heads[best] = (heads[best] as number) + 1;
+  }
 }
+
+const NO_BOOKINGS: readonly Booking[] = Object.freeze([]);
 
 /**
  * Bookings on a resource (from the index) overlapping [start, end), skipping one stage's own.

@@ -3,7 +3,7 @@ import { roundUpToStep } from '../booking-step.js';
 import { addWorkingDays } from '../calendar.js';
 import { formatInstant } from '../format.js';
 import type { Booking, LeadTimeRule, Violation } from '../types.js';
-import { capitalise, makeViolation, resourceLabel, stageLabel } from './violation.js';
+import { capitalise, resourceLabel, stageLabel, violationOf } from './violation.js';
 
 /**
  * "5 working days'", "1 working day's": the possessive before "notice".
@@ -87,13 +87,14 @@ export function leadTimeEarliest(index: BoardIndex, booking: Booking): number {
 /**
  * Lead-time check of one booking: at most one violation, for the rule whose notice ends last.
  * Only pencilled bookings are checked: once a booking is sent
- * the other party has had notice, and a confirmed one was accepted. Severity error.
+ * the other party has had notice, and a confirmed one was accepted. Severity error. Appends to
+ * `out` and returns it.
  *
  * @example
  * checkLeadTime(index, pencilledCraneBooking)
  */
-export function checkLeadTime(index: BoardIndex, booking: Booking): Violation[] {
-  if (booking.state !== 'pencilled') return [];
+export function checkLeadTime(index: BoardIndex, booking: Booking, out: Violation[] = []): Violation[] {
+  if (booking.state !== 'pencilled') return out;
   const cal = resourceCalendarOf(index, booking.resourceId);
   const job = index.jobs.get(index.stages.get(booking.stageId)?.stage.jobId ?? '');
   // The firm's rule and the stage's own may both apply (15 days for any delivery, 35 for this
@@ -104,7 +105,7 @@ export function checkLeadTime(index: BoardIndex, booking: Booking): Violation[] 
     const earliest = addWorkingDays(cal, from, rule.workingDays);
     if (booking.start < earliest && (worst === null || earliest > worst.earliest)) worst = { rule, earliest };
   }
-  if (worst === null) return [];
+  if (worst === null) return out;
   const { rule, earliest } = worst;
   const what =
     rule.appliesTo.resourceKind !== undefined
@@ -119,8 +120,8 @@ export function checkLeadTime(index: BoardIndex, booking: Booking): Violation[] 
   // Counted from now the notice ends at an odd minute: say (and offer) the next booking step.
   const shown = roundUpToStep(earliest, cal.timeZone, index.stepMinutes);
   const why = rule.reason ? ` (${rule.reason})` : '';
-  return [
-    makeViolation(
+  out.push(
+    violationOf(
       'lead_time',
       'error',
       [booking.stageId],
@@ -129,5 +130,6 @@ export function checkLeadTime(index: BoardIndex, booking: Booking): Violation[] 
       `${what} needs ${noticeWords(rule.workingDays)} notice from ${fromWords}${why}: the earliest start is ${formatInstant(shown, cal.timeZone)}`,
       { earliest, earliestStart: shown, workingDays: rule.workingDays, from: rule.from },
     ),
-  ];
+  );
+  return out;
 }

@@ -1,28 +1,54 @@
 import { resourceCalendarOf, type BoardIndex } from '../board-index.js';
-import { bookableStart, mustFitInOneDay, roundDownToStep, workingDaysWithin } from '../booking-step.js';
+import { bookableStart, mustFitInOneDay, roundDownToStep } from '../booking-step.js';
 import { addWorkingMinutes, workingMinutesBetween, type CompiledCalendar } from '../calendar.js';
 import { SchedulerError } from '../errors.js';
 import { formatInstant } from '../format.js';
 import { MINUTE_MS } from '../time-zone.js';
 import type { Booking, Stage, Violation } from '../types.js';
-import { makeViolation, stageLabel } from './violation.js';
+import { stageLabel, violationOf } from './violation.js';
 
 function hours(minutes: number): string {
   return minutes < 60 ? `${minutes} min` : `${Math.round((minutes / 60) * 100) / 100} h`;
 }
 
-/** The last booking checked on an index: its calendar, stage, times and the words it got (null: none). */
-interface LastSplit {
-  cal: CompiledCalendar;
-  stage: Stage;
-  stageId: string;
-  start: number;
+/**
+ * What a booking's times come to on a calendar for a stage of `need` minutes: the message after the
+ * stage's name and its details (words null: not split). They depend on nothing else (the booking
+ * step is the index's), so they are worked out once per index: the bookings of a stage, and
+ * stages of different jobs booked alike, share them. Entries with the same start are chained.
+ */
+interface SplitWords {
   end: number;
-  message: string | null;
-  details: Record<string, unknown>;
+  need: number;
+  words: string | null;
+  details: Record<string, unknown> | null;
+  next: SplitWords | undefined;
 }
 
-const lastSplit = new WeakMap<BoardIndex, LastSplit>();
+/** Per index: calendar → booking start → words. Dropped with the index. */
+const splitMemo = new WeakMap<BoardIndex, Map<CompiledCalendar, Map<number, SplitWords>>>();
+
+/** How many local days with working time [start, end) touches, up to three; the first in `firstDay`. */
+function workingDaysTouched(cal: CompiledCalendar, start: number, end: number, firstDay: { day: number }): number {
+  // workingDaysWithin without its array: this runs for every booking that crosses midnight.
+  let n = 0;
+  const first = cal.dayOf(start),
+    last = Math.min(cal.dayOf(end - 1), first + 3660);
+  for (let d = first; d <= last && n < 3; d++) {
+    const ivs = cal.dayIntervals(d);
+    for (let i = 0; i < ivs.length; i += 2) {
+      if ((ivs[i + 1] as number) > start && (ivs[i] as number) < end) {
+        if (n === 0) firstDay.day = d;
+        n++;
+        break;
+      }
+    }
+  }
+  return n;
+}
+
+// Where workingDaysTouched leaves the first day (one object for the module, not one per booking).
+const FIRST = { day: 0 };
 
 /**
  * A stage no longer than a working day (and not allowed to continue next day) must be done within
@@ -50,55 +76,62 @@ export function checkSplit(
     return out;
   // Most bookings start and end on one local day: two offset look-ups settle them.
   if (cal.dayOf(booking.start) === cal.dayOf(booking.end - 1)) return out;
-  // A stage's bookings usually share their times (a lift's crane and pallet trucks): the words
-  // worked out for one serve the next.
-  const last = lastSplit.get(index);
-  if (
-    last !== undefined &&
-    last.cal === cal &&
-    last.stage === stage &&
-    last.stageId === booking.stageId &&
-    last.start === booking.start &&
-    last.end === booking.end
-  ) {
-    if (last.message !== null) {
-      out.push(
-        makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id], last.message, {
-          ...last.details,
-        }),
-      );
-    }
-    return out;
-  }
-  const days = workingDaysWithin(cal, booking.start, booking.end, 3);
-  const seen: LastSplit = {
-    cal,
-    stage,
-    stageId: booking.stageId,
-    start: booking.start,
-    end: booking.end,
-    message: null,
-    details: {},
-  };
-  lastSplit.set(index, seen);
-  if (days.length < 2) return out;
-  if (workingMinutesBetween(cal, booking.start, booking.end) * MINUTE_MS === booking.end - booking.start) return out;
-  const tz = cal.timeZone;
   const need = stage.durationMinutes;
+  let byCal = splitMemo.get(index);
+  if (byCal === undefined) {
+    byCal = new Map();
+    splitMemo.set(index, byCal);
+  }
+  let byStart = byCal.get(cal);
+  if (byStart === undefined) {
+    byStart = new Map();
+    byCal.set(cal, byStart);
+  }
+  const chain = byStart.get(booking.start);
+  let known = chain;
+  while (known !== undefined && (known.end !== booking.end || known.need !== need)) known = known.next;
+  if (known === undefined) {
+    known = splitWords(index, cal, booking.start, booking.end, need);
+    known.next = chain;
+    byStart.set(booking.start, known);
+  }
+  if (known.words !== null) {
+    out.push(
+      violationOf(
+        'split',
+        'error',
+        [booking.stageId],
+        [booking.resourceId],
+        [booking.id],
+        stageLabel(index, booking.stageId) + known.words,
+        { ...known.details },
+      ),
+    );
+  }
+  return out;
+}
+
+/** The words and details of a booking on `cal` from `start` to `end` of a stage of `need` minutes. */
+function splitWords(index: BoardIndex, cal: CompiledCalendar, start: number, end: number, need: number): SplitWords {
+  const none: SplitWords = { end, need, words: null, details: null, next: undefined };
+  const days = workingDaysTouched(cal, start, end, FIRST);
+  if (days < 2) return none;
+  if (workingMinutesBetween(cal, start, end) * MINUTE_MS === end - start) return none;
+  const tz = cal.timeZone;
   const step = index.stepMinutes;
   let next: number | null = null;
   try {
-    next = bookableStart(cal, booking.start, { stepMinutes: step, fitMinutes: need });
+    next = bookableStart(cal, start, { stepMinutes: step, fitMinutes: need });
   } catch (e) {
     if (!(e instanceof SchedulerError)) throw e;
   }
-  const first = days[0] as number;
+  const first = FIRST.day;
   const ivs = cal.dayIntervals(first);
   const dayStart = ivs[0] as number,
     dayEnd = ivs[ivs.length - 1] as number;
   let advice: string;
-  const details: Record<string, unknown> = { neededMinutes: need, days: days.length };
-  if (next === booking.start) {
+  const details: Record<string, unknown> = { neededMinutes: need, days };
+  if (next === start) {
     // It would fit from where it starts: it is booked for longer than the day has left.
     advice = `end it by ${formatInstant(dayEnd, tz).slice(-5)}`;
     details.latestEnd = dayEnd;
@@ -116,11 +149,6 @@ export function checkSplit(
     if (next !== null) details.earliestStart = next;
     if (fits) details.latestStartThatDay = latest;
   }
-  const message = `${stageLabel(index, booking.stageId)} would be split over ${days.length === 2 ? 'two' : 'several'} working days (${formatInstant(booking.start, tz)} to ${formatInstant(booking.end, tz)}): its ${hours(need)} must be done within one working day — ${advice}`;
-  seen.message = message;
-  seen.details = details;
-  out.push(
-    makeViolation('split', 'error', [booking.stageId], [booking.resourceId], [booking.id], message, { ...details }),
-  );
-  return out;
+  const words = ` would be split over ${days === 2 ? 'two' : 'several'} working days (${formatInstant(start, tz)} to ${formatInstant(end, tz)}): its ${hours(need)} must be done within one working day — ${advice}`;
+  return { end, need, words, details, next: undefined };
 }

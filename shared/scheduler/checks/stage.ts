@@ -24,8 +24,9 @@ export function checkBooking(
   const r = index.resourceInfo.get(booking.resourceId);
   checkAvailability(index, booking, stage, out, r?.cal);
   checkSplit(index, booking, stage, out, r?.cal);
-  if (booking.state === 'pencilled') for (const v of checkLeadTime(index, booking)) out.push(v);
-  if (r?.resource.hired === true) for (const v of checkHire(index, booking)) out.push(v);
+  // Both append to `out`: no list of their own per booking.
+  if (booking.state === 'pencilled') checkLeadTime(index, booking, out);
+  if (r?.resource.hired === true) checkHire(index, booking, out);
   return out;
 }
 
