@@ -65,6 +65,9 @@ export function useEventWindow(deps: {
   let depths = new Map<string, number>();
   let levelHeight = DEFAULT_LEVEL_HEIGHT;
   let frame = 0;
+  /** Where the last look left the view, and whether that was the board's foot. */
+  let lastTop = -1;
+  let atFoot = false;
   let scroller: HTMLElement | null = null;
   let observer: ResizeObserver | null = null;
 
@@ -126,6 +129,10 @@ export function useEventWindow(deps: {
     if (document.querySelector('.fc-event-mirror')) return;
     const { boxes, els, names } = lanes();
     measure(els);
+    // Someone who scrolled to the foot stays there while the rows above it settle their heights.
+    if (atFoot && scroller.scrollTop === lastTop) scroller.scrollTop = scroller.scrollHeight;
+    lastTop = scroller.scrollTop;
+    atFoot = lastTop + scroller.clientHeight >= scroller.scrollHeight - 2;
     const view = { top: scroller.scrollTop, height: scroller.clientHeight };
     let next = drawn ?? new Set<string>();
     if (next.size === 0 || needsRedraw(boxes, next, view)) next = rowsToDraw(boxes, view);
