@@ -36,8 +36,9 @@ const t0 = performance.now();
 const { email } = await generate(knex);
 console.log(`Generated ${RESOURCES} resources and ${BOOKINGS} bookings in ${Math.round(performance.now() - t0)} ms`);
 
+// A server on a free port first (its address is the app's PUBLIC_URL), then the app that serves.
 const server = await new Promise<import('node:http').Server>((resolve) => {
-  const s = createApp({ config, knex, now: () => START - 7 * DAY }).app.listen(0, '127.0.0.1', () => resolve(s));
+  const s = http.createServer().listen(0, '127.0.0.1', () => resolve(s));
 });
 const port = (server.address() as { port: number }).port;
 const base = `http://127.0.0.1:${port}`;

@@ -1,5 +1,5 @@
 // The engine benchmark's floor (bench/engine.ts): the same graph and bookings in plain typed arrays.
-import type { Board } from '../shared/scheduler/index.js';
+import type { Board, BoardAnalysis } from '../shared/scheduler/index.js';
 
 /** The board read into typed arrays: what any implementation has to hold, ids turned into numbers. */
 export interface FloorInput {
@@ -217,4 +217,26 @@ export function floorPass(x: FloorInput): { overlaps: number; minFloat: number; 
     }
   }
   return { overlaps, minFloat, freeSum };
+}
+
+/**
+ * A copy of an analysis's result, object for object (every violation with its three id lists and
+ * details, every job's path with its stage timings) but reusing its words: what allocating the
+ * result's shape costs on its own, the part of the full analysis no faster check can remove while
+ * the engine answers in these objects.
+ */
+export function copyResult(a: BoardAnalysis): BoardAnalysis {
+  const violations = a.violations.map((v) => ({
+    ...v,
+    stageIds: v.stageIds.slice(),
+    resourceIds: v.resourceIds.slice(),
+    bookingIds: v.bookingIds.slice(),
+    ...(v.details === undefined ? {} : { details: { ...v.details } }),
+  }));
+  const criticalPaths = a.criticalPaths.map((p) => ({
+    ...p,
+    criticalStageIds: p.criticalStageIds.slice(),
+    stages: p.stages.map((t) => ({ ...t })),
+  }));
+  return { ...a, violations, criticalPaths };
 }
