@@ -63,6 +63,8 @@ export function useEventWindow(deps: {
   /** The height drawn rows of each stack depth most often had. */
   const byDepth = new Map<number, number>();
   let depths = new Map<string, number>();
+  /** The bookings changed since the depths were worked out (done when a look needs them: never on a small board). */
+  let stale = true;
   let levelHeight = DEFAULT_LEVEL_HEIGHT;
   let frame = 0;
   /** Where the last look left the view, and whether that was the board's foot. */
@@ -127,6 +129,10 @@ export function useEventWindow(deps: {
     if (!scroller) return;
     // A drag in progress keeps the bookings it started with (the window catches up on the drop).
     if (document.querySelector('.fc-event-mirror')) return;
+    if (stale) {
+      restack();
+      stale = false;
+    }
     const { boxes, els, names } = lanes();
     measure(els);
     // Someone who scrolled to the foot stays there while the rows above it settle their heights.
@@ -167,9 +173,8 @@ export function useEventWindow(deps: {
     return el;
   }
 
-  restack();
   watch([deps.events, deps.wholeDays], () => {
-    restack();
+    stale = true;
     schedule();
   });
   watch(() => deps.rows().length, schedule);
