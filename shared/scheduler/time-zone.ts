@@ -306,7 +306,7 @@ export function dayNumber(year: number, month: number, day: number): number {
 export function isoDateOfDay(day: number): string {
   // Plain arithmetic for four-digit years (a Date and its ISO text per day showed up in the
   // idle-hire check); anything else as a Date says it.
-  if (Number.isInteger(day) && day >= FIRST_PLAIN_DAY && day <= LAST_PLAIN_DAY) {
+  if (isFourDigitYearDay(day)) {
     const c = packedCivilDate(day);
     const year = Math.floor(c / 512);
     return `${year}-${PAD2[(c >> 5) & 15] as string}-${PAD2[c & 31] as string}`;

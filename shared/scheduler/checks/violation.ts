@@ -19,16 +19,15 @@ export function makeViolation(
   message: string,
   details?: Record<string, unknown>,
 ): Violation {
-  const v: Violation = {
+  return violationOf(
     kind,
     severity,
-    stageIds: uniqueSorted(stageIds),
-    resourceIds: uniqueSorted(resourceIds),
-    bookingIds: uniqueSorted(bookingIds),
+    uniqueSorted(stageIds),
+    uniqueSorted(resourceIds),
+    uniqueSorted(bookingIds),
     message,
-  };
-  if (details !== undefined) v.details = details;
-  return v;
+    details,
+  );
 }
 
 /**
@@ -48,7 +47,6 @@ export function violationOf(
   message: string,
   details?: Record<string, unknown>,
 ): Violation {
-  // Same property order as makeViolation's, so the objects share one shape and serialise alike.
   const v: Violation = { kind, severity, stageIds, resourceIds, bookingIds, message };
   if (details !== undefined) v.details = details;
   return v;
