@@ -19,10 +19,18 @@ const waterline = createApp({
 });
 server.on('request', waterline.app);
 process.send?.({ base });
+/**
+ * The last load leaves requests in flight (autocannon stops without waiting for them): they finish
+ * before the pool closes, or each would fail with knex's "Acquire connection error: aborted".
+ */
+async function drained(): Promise<void> {
+  const pool = (knex.client as { pool: { numUsed(): number; numPendingAcquires(): number } }).pool;
+  while (pool.numUsed() + pool.numPendingAcquires() > 0) await new Promise((resolve) => setTimeout(resolve, 50));
+}
 process.on('SIGTERM', () => {
   server.close();
-  void waterline
-    .close()
+  void drained()
+    .then(() => waterline.close())
     .then(() => knex.destroy())
     .then(() => process.exit(0));
 });

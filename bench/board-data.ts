@@ -6,6 +6,7 @@
 import type { Knex } from 'knex';
 import type { Express } from 'express';
 import request from 'supertest';
+import { emptySeededTables } from '../seeds/demo.ts';
 
 export const RESOURCES = 300;
 export const BOOKINGS = 3000;
@@ -25,26 +26,7 @@ export const quantile = (xs: number[], q: number) => {
 };
 
 export async function generate(knex: Knex): Promise<{ email: string }> {
-  const tables = [
-    'audit_log',
-    'bookings',
-    'dependencies',
-    'stages',
-    'jobs',
-    'units',
-    'lead_time_rules',
-    'hire_periods',
-    'calendar_exceptions',
-    'crew_members',
-    'resources',
-    'calendars',
-    'partnerships',
-    'memberships',
-    'users',
-    'firms',
-    'session',
-  ];
-  await knex.raw(`TRUNCATE ${tables.join(', ')} RESTART IDENTITY CASCADE`);
+  await emptySeededTables(knex);
   const [installer] = await knex('firms').insert({ name: 'Bench Installer', kind: 'installer' }).returning('id');
   const partnerIds: string[] = [];
   for (let p = 0; p < 10; p += 1) {

@@ -13,7 +13,7 @@ import type { Knex } from 'knex';
 import { createKnex, migrationConfig } from '../server/db.ts';
 import { ensureDatabase } from '../scripts/services/postgres.ts';
 import { loadBoard } from '../server/services/board.ts';
-import { seedDemo } from '../seeds/demo.ts';
+import { emptySeededTables, seedDemo } from '../seeds/demo.ts';
 import { toEngineBoard } from '../shared/board-data.ts';
 import {
   analyseBoard,
@@ -28,26 +28,6 @@ import { planCosts } from '../shared/scheduler/planner/place.ts';
 /** The day the demo is seeded as of (the tests' clock, so the figures repeat). */
 const TODAY = new Date('2026-06-01T07:00:00Z');
 const DAY = 86_400_000;
-/** The tables the demo fills, emptied inside the rolled-back transaction so the seed runs afresh. */
-const SEEDED_TABLES = [
-  'audit_log',
-  'bookings',
-  'dependencies',
-  'stages',
-  'jobs',
-  'units',
-  'lead_time_rules',
-  'hire_periods',
-  'calendar_exceptions',
-  'crew_members',
-  'resources',
-  'calendars',
-  'partnerships',
-  'memberships',
-  'users',
-  'firms',
-  'session',
-];
 const cpuMs = (): number => {
   const u = process.cpuUsage();
   return (u.user + u.system) / 1000;
@@ -68,7 +48,8 @@ async function demoBoard(knex: Knex): Promise<Board> {
   let board: Board | undefined;
   await knex
     .transaction(async (trx) => {
-      await trx.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+      // Emptied inside the rolled-back transaction, so the seed runs afresh and nothing is kept.
+      await emptySeededTables(trx);
       await seedDemo(trx, { today: TODAY });
       const user = (await trx('users').where('email', 'sam.okafor@tideway.example').first('id')) as { id: string };
       const firm = (await trx('firms').where('name', 'Tideway Hot Tubs').first('id')) as { id: string };

@@ -121,6 +121,37 @@ async function insertAll(
   return new Map(out.map((r) => [String(r[camel]), String(r.id)]));
 }
 
+/** The tables the demo scenario fills: what a fresh seeding (a test's, a benchmark's) empties first. */
+export const SEEDED_TABLES = [
+  'audit_log',
+  'bookings',
+  'dependencies',
+  'stages',
+  'jobs',
+  'units',
+  'lead_time_rules',
+  'hire_periods',
+  'calendar_exceptions',
+  'crew_members',
+  'resources',
+  'calendars',
+  'partnerships',
+  'memberships',
+  'users',
+  'firms',
+  'session',
+] as const;
+
+/**
+ * Empties the tables the demo fills (and what hangs off them), so a seeding starts afresh.
+ *
+ * @example
+ * await emptySeededTables(knex); await seedDemo(knex, { today })
+ */
+export async function emptySeededTables(knex: Knex): Promise<void> {
+  await knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+}
+
 /**
  * Seeds the demo scenario once (a second run finds Tideway and adds nothing), planned as of `today`.
  *

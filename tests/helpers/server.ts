@@ -4,7 +4,7 @@ import type { Knex } from 'knex';
 import { loadConfig, type Config } from '../../server/config.ts';
 import { createKnex, migrationConfig } from '../../server/db.ts';
 import { createApp, type WaterlineApp } from '../../server/app.ts';
-import { seedDemo } from '../../seeds/demo.ts';
+import { emptySeededTables, seedDemo } from '../../seeds/demo.ts';
 import { DEMO_ACCOUNTS, type DemoAccount } from '../../seeds/demo-accounts.ts';
 import type { Role } from '../../shared/permissions.ts';
 
@@ -17,27 +17,6 @@ export interface TestContext {
   waterline: WaterlineApp;
   close(): Promise<void>;
 }
-
-/** The tables the demo scenario fills (emptied before each seeding). */
-export const SEEDED_TABLES = [
-  'audit_log',
-  'bookings',
-  'dependencies',
-  'stages',
-  'jobs',
-  'units',
-  'lead_time_rules',
-  'hire_periods',
-  'calendar_exceptions',
-  'crew_members',
-  'resources',
-  'calendars',
-  'partnerships',
-  'memberships',
-  'users',
-  'firms',
-  'session',
-];
 
 export function testConfig(overrides: Partial<Record<string, string>> = {}): Config {
   if (!process.env.DATABASE_URL || !process.env.FAKE_OAUTH_URL) {
@@ -59,7 +38,7 @@ export async function startTestApp(overrides: Partial<Record<string, string>> = 
   const config = testConfig(overrides);
   const knex = createKnex(config.DATABASE_URL);
   await knex.migrate.latest(migrationConfig);
-  await knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+  await emptySeededTables(knex);
   await seedDemo(knex, { today: TEST_TODAY });
   const waterline = createApp({ config, knex, now: () => TEST_TODAY.getTime() });
   return {

@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Knex } from 'knex';
 import { createKnex, migrationConfig } from '../../server/db.ts';
-import { SEEDED_TABLES, TEST_TODAY, testConfig } from '../helpers/server.ts';
-import { seedDemo } from '../../seeds/demo.ts';
+import { TEST_TODAY, testConfig } from '../helpers/server.ts';
+import { emptySeededTables, seedDemo } from '../../seeds/demo.ts';
 
 let knex: Knex;
 beforeAll(() => {
@@ -64,7 +64,7 @@ describe('migrations', () => {
 
   it('keep older data that held one resource twice: the later booking goes back to pencilled, with an audit row saying why', async () => {
     await knex.migrate.latest(migrationConfig);
-    await knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+    await emptySeededTables(knex);
     // The demo is planned with today's board loader, so it is seeded on today's schema and the
     // migrations are then taken back to before the rule, data and all.
     await seedDemo(knex, { today: TEST_TODAY });

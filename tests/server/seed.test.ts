@@ -1,11 +1,11 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { seedDemo } from '../../seeds/demo.ts';
+import { emptySeededTables, seedDemo } from '../../seeds/demo.ts';
 import { DEMO_ACCOUNTS } from '../../seeds/demo-accounts.ts';
 import { ROLES } from '../../shared/permissions.ts';
 import { loadBoard } from '../../server/services/board.ts';
 import { ELSEWHERE_JOB_ID, ownViolations, toEngineBoard } from '../../shared/board-data.ts';
 import { analyseBoard } from '../../shared/scheduler/index.ts';
-import { SEEDED_TABLES, account, idOf, startTestApp, TEST_TODAY, type TestContext } from '../helpers/server.ts';
+import { account, idOf, startTestApp, TEST_TODAY, type TestContext } from '../helpers/server.ts';
 
 let ctx: TestContext;
 beforeAll(async () => {
@@ -218,7 +218,7 @@ describe('the demo scenario', () => {
   ])(
     'can be seeded on %s, showing the same deliberate problems (npm start seeds it on the day it first runs)',
     async (day) => {
-      await ctx.knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+      await emptySeededTables(ctx.knex);
       const result = await seedDemo(ctx.knex, { today: new Date(day) });
       expect(result.skipped).toBe(false);
       expect(result.bookings).toBeGreaterThan(200);
