@@ -12,7 +12,9 @@ import Stripe from 'stripe';
  *   a retried create gives the same session) → a session with `url` on this fake's hosted page;
  * - `GET /v1/checkout/sessions/:id` and `POST /v1/checkout/sessions/:id/expire`;
  * - `GET /pay/:id`: the hosted page, whose "Pay" button completes the session, sends the signed
- *   `checkout.session.completed` event and returns the payer to the session's `success_url`.
+ *   `checkout.session.completed` event and returns the payer to the session's `success_url`; its
+ *   "Pay by bank" button completes it unpaid (the money still on its way), to be settled later with
+ *   `settleBank`, which sends `checkout.session.async_payment_succeeded` or `…_failed`.
  *
  * Events go to the app that made the session: `/api/payments/webhook` at the origin of its
  * `success_url` (the stand-in for a webhook endpoint set up in the provider's dashboard), signed
@@ -31,6 +33,10 @@ export interface FakePayments {
   deliveries: FakeDelivery[];
   /** Completes a session as the hosted page's button does; resolves once the app answered the event. */
   pay(sessionId: string): Promise<FakeDelivery>;
+  /** Completes a session by bank payment, unpaid until `settleBank` (the "Pay by bank" button). */
+  payByBank(sessionId: string): Promise<FakeDelivery>;
+  /** The bank's word on a bank payment days later: the money arrived, or it did not. */
+  settleBank(sessionId: string, outcome: 'succeeded' | 'failed'): Promise<FakeDelivery>;
   /** Sends an event again (same id and body, a fresh signature), as the provider retries. */
   redeliver(eventId: string): Promise<FakeDelivery>;
   stop(): Promise<void>;
@@ -124,12 +130,8 @@ export async function startFakePayments(port: number, options: { now?: () => num
     return delivery;
   };
 
-  const complete = async (session: FakeSession): Promise<FakeDelivery> => {
-    if (session.status !== 'open') throw new Error(`session ${session.id} is ${session.status}`);
-    session.status = 'complete';
-    session.payment_status = 'paid';
-    session.payment_intent = id('pi');
-    session.url = null;
+  /** Sends a signed event about a session, as the provider does. */
+  const tell = (type: string, session: FakeSession): Promise<FakeDelivery> => {
     const eventId = id('evt');
     const payload = JSON.stringify(
       {
@@ -140,18 +142,31 @@ export async function startFakePayments(port: number, options: { now?: () => num
         livemode: false,
         pending_webhooks: 1,
         request: { id: null, idempotency_key: null },
-        type: 'checkout.session.completed',
+        type,
         data: { object: { ...session } },
       },
       null,
       2,
     );
-    events.set(eventId, {
-      type: 'checkout.session.completed',
-      payload,
-      url: new URL('/api/payments/webhook', session.success_url).href,
-    });
+    events.set(eventId, { type, payload, url: new URL('/api/payments/webhook', session.success_url).href });
     return send(eventId);
+  };
+
+  /** The payer finishes on the page: by card (paid at once) or by bank (paid once the bank settles). */
+  const complete = (session: FakeSession, by: 'card' | 'bank' = 'card'): Promise<FakeDelivery> => {
+    if (session.status !== 'open') throw new Error(`session ${session.id} is ${session.status}`);
+    session.status = 'complete';
+    session.payment_status = by === 'card' ? 'paid' : 'unpaid';
+    session.payment_intent = id('pi');
+    session.url = null;
+    return tell('checkout.session.completed', session);
+  };
+
+  const settleBank = (session: FakeSession, outcome: 'succeeded' | 'failed'): Promise<FakeDelivery> => {
+    if (session.status !== 'complete' || session.payment_status !== 'unpaid')
+      throw new Error(`session ${session.id} has no bank payment waiting`);
+    if (outcome === 'succeeded') session.payment_status = 'paid';
+    return tell(`checkout.session.async_payment_${outcome}`, session);
   };
 
   app.post('/v1/checkout/sessions', (req, res) => {
@@ -262,18 +277,20 @@ export async function startFakePayments(port: number, options: { now?: () => num
 <h1>${esc(session.line_items_name)}</h1><p style="font-size:1.4rem">${esc(pounds(session.amount_total))}</p>
 ${
   open
-    ? `<form method="post" action="/pay/${esc(session.id)}"><button type="submit" style="font-size:1.2rem;padding:.8rem 2rem">Pay</button></form>`
+    ? `<form method="post" action="/pay/${esc(session.id)}"><button type="submit" style="font-size:1.2rem;padding:.8rem 2rem">Pay</button>
+<button type="submit" name="by" value="bank" style="font-size:1.2rem;padding:.8rem 2rem">Pay by bank (clears in a few days)</button></form>`
     : `<p>This payment is ${esc(session.status === 'complete' ? 'already paid' : 'no longer open')}.</p>`
 }
 </body></html>`);
   });
-  app.post('/pay/:id', async (req, res) => {
+  app.post('/pay/:id', express.urlencoded({ extended: false, limit: '1kb' }), async (req, res) => {
     const session = sessions.get(req.params.id);
     if (!session) {
       res.status(404).type('text/plain').send('No such payment page.');
       return;
     }
-    if (session.status === 'open') await complete(session);
+    if (session.status === 'open')
+      await complete(session, (req.body as { by?: string } | undefined)?.by === 'bank' ? 'bank' : 'card');
     res.redirect(303, session.success_url);
   });
 
@@ -290,6 +307,16 @@ ${
       const session = sessions.get(sessionId);
       if (!session) throw new Error(`no session ${sessionId}`);
       return complete(session);
+    },
+    async payByBank(sessionId) {
+      const session = sessions.get(sessionId);
+      if (!session) throw new Error(`no session ${sessionId}`);
+      return complete(session, 'bank');
+    },
+    async settleBank(sessionId, outcome) {
+      const session = sessions.get(sessionId);
+      if (!session) throw new Error(`no session ${sessionId}`);
+      return settleBank(session, outcome);
     },
     redeliver: send,
     stop: () =>

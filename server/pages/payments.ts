@@ -15,7 +15,7 @@ const what = (p: PaymentFacts) =>
 
 /** The pages behind a householder's payment link, for whatever state the request is in. */
 export function paymentPage(
-  state: 'paid' | 'closed' | 'unknown' | 'confirming' | 'unavailable',
+  state: 'paid' | 'closed' | 'failed' | 'unknown' | 'confirming' | 'unavailable',
   p?: PaymentFacts,
 ): { status: number; html: string } {
   switch (state) {
@@ -33,8 +33,17 @@ export function paymentPage(
         status: 200,
         html: page(
           'Payment received',
-          `<p>Your payment of the ${what(p!)} went through. ${e(p!.firmName)} is being told; you need do nothing more.</p>`,
+          `<p>Your payment of the ${what(p!)} is on its way. ${e(p!.firmName)} is told as soon as it clears; you need do nothing more.</p>`,
           'ok',
+        ),
+      };
+    case 'failed':
+      return {
+        status: 410,
+        html: page(
+          'Your bank payment did not go through',
+          `<p>The bank payment of the ${what(p!)} did not go through, so nothing was taken. ${e(p!.firmName)} has been told and will send you a new request.</p>`,
+          'warn',
         ),
       };
     case 'closed':

@@ -190,6 +190,7 @@ export class PaymentsService {
       requestedAt: r.requestedAt.toISOString(),
       paidAt: r.paidAt?.toISOString() ?? null,
       paidOn: r.paidAt ? localDateOf(r.paidAt, job.timeZone) : null,
+      closedOn: r.closedAt && r.status !== 'paid' ? localDateOf(r.closedAt, job.timeZone) : null,
       link: r.status === 'requested' ? paymentLink(this.config, String(r.id)) : null,
     }));
     return {
@@ -312,7 +313,7 @@ export class PaymentsService {
   async openLink(token: string): Promise<
     | { redirect: string }
     | {
-        state: 'paid' | 'closed' | 'unknown' | 'confirming';
+        state: 'paid' | 'closed' | 'failed' | 'unknown' | 'confirming';
         payment?: {
           amountPence: number;
           kind: PaymentKind;
@@ -342,6 +343,7 @@ export class PaymentsService {
         paidOn: row.paidAt ? localDateOf(row.paidAt, row.timeZone) : null,
       };
       if (row.status === 'paid') return { state: 'paid' as const, payment };
+      if (row.status === 'failed') return { state: 'failed' as const, payment };
       if (row.status !== 'requested') return { state: 'closed' as const, payment };
       if (!this.provider) throw new PaymentsUnavailableError();
       let session: CheckoutSession | null = row.checkoutSessionId
@@ -435,6 +437,8 @@ export class PaymentsService {
       }
       return { outcome: 'ignored', detail: 'session expired after the payment was closed', paymentId };
     }
+    if (event.type === 'checkout.session.async_payment_failed')
+      return this.bankPaymentFailed(trx, job, payment, session);
     if (event.type !== 'checkout.session.completed' && event.type !== 'checkout.session.async_payment_succeeded')
       return { outcome: 'ignored', detail: `not handled (${event.type})`, paymentId };
     if (!session.paid) return { outcome: 'ignored', detail: 'completed but not paid yet', paymentId };
@@ -485,5 +489,38 @@ export class PaymentsService {
       }
     }
     return { outcome: 'applied', detail: `${payment.kind} paid`, paymentId };
+  }
+
+  /**
+   * A bank payment the householder started on the link did not go through (days later, the
+   * provider says so). The request closes as failed, so the office sees it on the job and can ask
+   * again (a fresh e-mail and link); the board hears of the change. Only the request's own session
+   * counts: a late word about an old session changes nothing.
+   */
+  private async bankPaymentFailed(
+    trx: Knex.Transaction,
+    job: { id: string; firmId: string },
+    payment: PaymentRow,
+    session: CheckoutSession,
+  ): Promise<{ outcome: 'applied' | 'ignored'; detail: string; paymentId: string }> {
+    const paymentId = String(payment.id);
+    if (payment.status !== 'requested' || payment.checkoutSessionId !== session.id)
+      return { outcome: 'ignored', detail: `bank payment failed, but the request is ${payment.status}`, paymentId };
+    const [after] = (await trx('job_payments')
+      .where('id', paymentId)
+      .update({ status: 'failed', closed_at: new Date(this.now()) })
+      .returning('*')) as PaymentRow[];
+    await recordChange(
+      trx,
+      null,
+      'payment',
+      paymentId,
+      'update',
+      snapshot(payment),
+      snapshot(after!),
+      String(job.firmId),
+    );
+    await notifyJobChange(trx, String(job.id));
+    return { outcome: 'applied', detail: `${payment.kind} bank payment failed; ask again`, paymentId };
   }
 }

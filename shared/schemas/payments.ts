@@ -35,6 +35,8 @@ export interface PaymentView {
   paidAt: string | null;
   /** The local date it was paid on, in the firm's zone. */
   paidOn: string | null;
+  /** The local date a request was withdrawn or its bank payment failed, in the firm's zone. */
+  closedOn: string | null;
   /** The householder's link, while the request is open. */
   link: string | null;
 }

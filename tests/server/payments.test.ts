@@ -299,3 +299,63 @@ describe('requests the office cannot make', () => {
     expect(fake.sessions.size).toBe(sessions);
   });
 });
+
+describe('a deposit paid by bank, which clears days later or not at all', () => {
+  /** Asks for a deposit on `reference` and has the householder pay it by bank on the fake's page. */
+  async function bankPaid(reference: string): Promise<{ jobId: string; sessionId: string; link: string }> {
+    const jobId = await idOf(ctx.knex, 'jobs', { reference });
+    const asked = await post(`/api/jobs/${jobId}/payments/deposit`, { amountPence: 40_000 }).expect(201);
+    const link = asked.body.payments.at(-1).link as string;
+    const page = String((await request(ctx.waterline.app).get(new URL(link).pathname).expect(303)).headers.location);
+    const sessionId = page.split('/').pop()!;
+    const before = fake.deliveries.length;
+    const done = await fetch(page, {
+      method: 'POST',
+      redirect: 'manual',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: 'by=bank',
+    });
+    expect(done.status).toBe(303);
+    expect(JSON.parse(fake.deliveries[before]!.body)).toEqual({
+      outcome: 'ignored',
+      detail: 'completed but not paid yet',
+    });
+    // The householder's link says the money is on its way, not that it arrived.
+    const waiting = await request(ctx.waterline.app).get(new URL(link).pathname).expect(200);
+    expect(waiting.text).toContain('is on its way');
+    return { jobId, sessionId, link };
+  }
+
+  it('a failed bank payment closes the request as failed, audited, the link says so, and the office may ask again', async () => {
+    const { jobId, sessionId, link } = await bankPaid('TW-2420');
+    expect((await paymentsOf(jobId)).map((p) => p.status)).toEqual(['requested']);
+    const orderedOn = (await ctx.knex('jobs').where('id', jobId).first('ordered_on')).orderedOn;
+    const audits = await count('audit_log', { entity: 'payment' });
+    const failed = await fake.settleBank(sessionId, 'failed');
+    expect({ status: failed.status, body: JSON.parse(failed.body) }).toEqual({
+      status: 200,
+      body: { outcome: 'applied', detail: 'deposit bank payment failed; ask again' },
+    });
+    const summary = (await scheduler.get(`/api/jobs/${jobId}/payments`).expect(200)).body;
+    expect(summary.payments).toEqual([
+      expect.objectContaining({ status: 'failed', closedOn: '2026-06-01', paidOn: null, link: null }),
+    ]);
+    expect(summary).toMatchObject({ paidPence: 0, orderedOn });
+    expect(await count('audit_log', { entity: 'payment' })).toBe(audits + 1);
+    const page = await request(ctx.waterline.app).get(new URL(link).pathname).expect(410);
+    expect(page.text).toContain('Your bank payment did not go through');
+    // The same word again changes nothing; a new request goes out.
+    const replay = await fake.redeliver(failed.eventId);
+    expect(JSON.parse(replay.body).outcome).toBe('replayed');
+    await post(`/api/jobs/${jobId}/payments/deposit`, { amountPence: 40_000 }).expect(201);
+    expect((await paymentsOf(jobId)).map((p) => p.status)).toEqual(['failed', 'requested']);
+  });
+
+  it('a bank payment that clears is paid on the day the bank said so, and sets the order date', async () => {
+    const { jobId, sessionId } = await bankPaid('TW-2421');
+    const cleared = await fake.settleBank(sessionId, 'succeeded');
+    expect(JSON.parse(cleared.body)).toEqual({ outcome: 'applied', detail: 'deposit paid' });
+    expect((await paymentsOf(jobId)).map((p) => `${p.status}:${p.amountPence}`)).toEqual(['paid:40000']);
+    expect((await ctx.knex('jobs').where('id', jobId).first('ordered_on')).orderedOn).toBe('2026-06-01');
+  });
+});
