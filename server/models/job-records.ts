@@ -81,6 +81,8 @@ export class FirmSettings extends ScopedModel {
   shareCustomerContactWithPartners!: boolean;
   /** The firm's concrete's Nurse–Saul datum, °C (ASTM C1074's working default 0 °C unless changed). */
   cureDatumC!: number;
+  /** The deposit asked for by default, % of the job's price (25 unless the firm set its own). */
+  depositPercent!: number;
   version!: number;
   updatedAt!: Date;
   static override scope(q: AnyQuery, actor: Actor) {

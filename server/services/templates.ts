@@ -17,6 +17,8 @@ import { BadRequestError, ConflictError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
+import { DEFAULT_DEPOSIT_PERCENT } from './payments.ts';
+import { may } from '../../shared/permissions.ts';
 
 export interface TemplateView extends InstallTemplate {
   version: number;
@@ -49,6 +51,8 @@ export interface SettingsView {
   shareCustomerContactWithPartners: boolean;
   /** The Nurse–Saul datum (°C) the cure from the site's weather counts above (cure.ts; 0 °C by default). */
   cureDatumC: number;
+  /** The deposit asked for by default, % of the price: for those who see money (`payments:read`) only. */
+  depositPercent?: number;
 }
 
 /** A firm's stage templates (its own edits over the built-in defaults) and its quantity settings. */
@@ -127,6 +131,7 @@ export class TemplatesService {
       keepPhotoLocation: row?.keepPhotoLocation ?? false,
       shareCustomerContactWithPartners: row?.shareCustomerContactWithPartners ?? false,
       cureDatumC: row?.cureDatumC ?? DATUM_C,
+      ...(may(actor.role, 'payments:read') ? { depositPercent: row?.depositPercent ?? DEFAULT_DEPOSIT_PERCENT } : {}),
     };
   }
 
@@ -149,6 +154,7 @@ export class TemplatesService {
         keepPhotoLocation: before?.keepPhotoLocation ?? false,
         shareCustomerContactWithPartners: before?.shareCustomerContactWithPartners ?? false,
         cureDatumC: before?.cureDatumC ?? DATUM_C,
+        depositPercent: before?.depositPercent ?? DEFAULT_DEPOSIT_PERCENT,
       };
       const now = {
         quantities: input.quantities ?? was.quantities,
@@ -156,6 +162,7 @@ export class TemplatesService {
         shareCustomerContactWithPartners:
           input.shareCustomerContactWithPartners ?? was.shareCustomerContactWithPartners,
         cureDatumC: input.cureDatumC ?? was.cureDatumC,
+        depositPercent: input.depositPercent ?? was.depositPercent,
         version: input.quantities ? current + 1 : current,
       };
       if (before) {
@@ -170,6 +177,7 @@ export class TemplatesService {
         keepPhotoLocation: now.keepPhotoLocation,
         shareCustomerContactWithPartners: now.shareCustomerContactWithPartners,
         cureDatumC: now.cureDatumC,
+        depositPercent: now.depositPercent,
       });
       return this.settings(actor, trx);
     });

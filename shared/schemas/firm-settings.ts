@@ -73,6 +73,13 @@ export const PutFirmSettings = z
       .min(-15, 'must be between −15 and 15 °C')
       .max(15, 'must be between −15 and 15 °C')
       .optional(),
+    /** The deposit asked for by default, as a whole percentage of the job's price (25 unless set). */
+    depositPercent: z
+      .number({ message: 'must be a whole percentage from 1 to 100' })
+      .int('must be a whole percentage from 1 to 100')
+      .min(1, 'must be a whole percentage from 1 to 100')
+      .max(100, 'must be a whole percentage from 1 to 100')
+      .optional(),
   })
   .refine((s) => s.quantities === undefined || s.version !== undefined, {
     path: ['version'],
@@ -83,7 +90,11 @@ export const PutFirmSettings = z
       s.quantities !== undefined ||
       s.keepPhotoLocation !== undefined ||
       s.shareCustomerContactWithPartners !== undefined ||
-      s.cureDatumC !== undefined,
-    { path: ['quantities'], message: 'send the quantities, the photo setting, the sharing setting or the cure datum' },
+      s.cureDatumC !== undefined ||
+      s.depositPercent !== undefined,
+    {
+      path: ['quantities'],
+      message: 'send the quantities, the photo setting, the sharing setting, the cure datum or the deposit percentage',
+    },
   );
 export type PutFirmSettings = z.infer<typeof PutFirmSettings>;

@@ -359,3 +359,43 @@ describe('a deposit paid by bank, which clears days later or not at all', () => 
     expect((await ctx.knex('jobs').where('id', jobId).first('ordered_on')).orderedOn).toBe('2026-06-01');
   });
 });
+
+describe("the firm's own deposit percentage", () => {
+  it('the owner sets it on the firm settings; the next deposit is asked for from it', async () => {
+    const owner = await signIn(ctx, account('owner').email);
+    for (const depositPercent of [0, 101, 12.5, '30']) {
+      const res = await put('/api/firm/settings', { depositPercent }, owner).expect(400);
+      expect(res.body.errors).toEqual([
+        { field: 'depositPercent', message: 'must be a whole percentage from 1 to 100' },
+      ]);
+    }
+    await put('/api/firm/settings', { depositPercent: 30 }).expect(403);
+    expect((await put('/api/firm/settings', { depositPercent: 30 }, owner).expect(200)).body.depositPercent).toBe(30);
+    try {
+      // A Tideway job nobody has asked money for yet.
+      const { id: jobId } = await ctx
+        .knex('jobs')
+        .where('reference', 'like', 'TW-%')
+        .whereNotExists(ctx.knex('job_payments').whereRaw('job_payments.job_id = jobs.id'))
+        .orderBy('reference')
+        .first('id');
+      await put(`/api/jobs/${jobId}/price`, { pricePence: 820_000 }).expect(200);
+      const asked = (await post(`/api/jobs/${jobId}/payments/deposit`).expect(201)).body;
+      // 30 % of £8,200.00 = £2,460.00.
+      expect(asked).toMatchObject({ depositPercent: 30, suggestedDepositPence: 246_000 });
+      expect(asked.payments.at(-1)).toMatchObject({ kind: 'deposit', amountPence: 246_000 });
+      const audit = await ctx
+        .knex('audit_log')
+        .where({ entity: 'firm_settings' })
+        .orderBy('id', 'desc')
+        .first('before', 'after');
+      // Tideway had no settings of its own: the first save makes them.
+      expect([audit.before, audit.after.depositPercent]).toEqual([null, 30]);
+      // Crew read the firm's settings (quantities, cure) but never money.
+      const crew = await signIn(ctx, account('crew').email);
+      expect((await crew.get('/api/firm/settings').expect(200)).body).not.toHaveProperty('depositPercent');
+    } finally {
+      await put('/api/firm/settings', { depositPercent: 25 }, owner).expect(200);
+    }
+  });
+});
