@@ -2,7 +2,7 @@ import type { Knex } from 'knex';
 import { reachOf, type Actor } from '../services/actor.ts';
 import { ScopedModel, visibleJobIds, type AnyQuery } from './base.ts';
 import type { InstallTemplate } from '../../shared/templates/types.ts';
-import type { QuantitySettingsPatch } from '../../shared/schemas/firm-settings.ts';
+import type { QuantitySettingsPatch, WaterTargetsPatch } from '../../shared/schemas/firm-settings.ts';
 import type { EarthingArrangement } from '../../shared/quantities/supply.ts';
 
 const knexOf = (q: AnyQuery): Knex => q.modelClass().knex();
@@ -72,9 +72,11 @@ export class StageTemplateRow extends ScopedModel {
 export class FirmSettings extends ScopedModel {
   static override tableName = 'firm_settings';
   static override idColumn = 'firm_id';
-  static override jsonAttributes = ['quantities'];
+  static override jsonAttributes = ['quantities', 'waterTargets'];
   firmId!: string;
   quantities!: QuantitySettingsPatch;
+  /** The firm's own commissioning water ranges over the usual figures (water-balance.ts). */
+  waterTargets!: WaterTargetsPatch;
   /** Keep EXIF location in stored photo originals (off: it is removed on upload). */
   keepPhotoLocation!: boolean;
   /** Partners booked on a job see the householder's name and phone (read-policy.ts); off by default. */

@@ -19,6 +19,7 @@ import { scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
 import { DEFAULT_DEPOSIT_PERCENT } from './payments.ts';
 import { may } from '../../shared/permissions.ts';
+import { DEFAULT_WATER_TARGETS, waterTargetsOf, type WaterTargets } from '../../shared/water-balance.ts';
 
 export interface TemplateView extends InstallTemplate {
   version: number;
@@ -51,6 +52,10 @@ export interface SettingsView {
   shareCustomerContactWithPartners: boolean;
   /** The Nurse–Saul datum (°C) the cure from the site's weather counts above (cure.ts; 0 °C by default). */
   cureDatumC: number;
+  /** The firm's target ranges for the commissioning readings: its own where set, the usual figures otherwise. */
+  waterTargets: WaterTargets;
+  /** The usual figures (common practice, no source), to compare and go back to. */
+  waterTargetDefaults: WaterTargets;
   /** The deposit asked for by default, % of the price: for those who see money (`payments:read`) only. */
   depositPercent?: number;
 }
@@ -131,6 +136,8 @@ export class TemplatesService {
       keepPhotoLocation: row?.keepPhotoLocation ?? false,
       shareCustomerContactWithPartners: row?.shareCustomerContactWithPartners ?? false,
       cureDatumC: row?.cureDatumC ?? DATUM_C,
+      waterTargets: waterTargetsOf(row?.waterTargets),
+      waterTargetDefaults: DEFAULT_WATER_TARGETS,
       ...(may(actor.role, 'payments:read') ? { depositPercent: row?.depositPercent ?? DEFAULT_DEPOSIT_PERCENT } : {}),
     };
   }
@@ -155,6 +162,7 @@ export class TemplatesService {
         shareCustomerContactWithPartners: before?.shareCustomerContactWithPartners ?? false,
         cureDatumC: before?.cureDatumC ?? DATUM_C,
         depositPercent: before?.depositPercent ?? DEFAULT_DEPOSIT_PERCENT,
+        waterTargets: before?.waterTargets ?? {},
       };
       const now = {
         quantities: input.quantities ?? was.quantities,
@@ -163,6 +171,7 @@ export class TemplatesService {
           input.shareCustomerContactWithPartners ?? was.shareCustomerContactWithPartners,
         cureDatumC: input.cureDatumC ?? was.cureDatumC,
         depositPercent: input.depositPercent ?? was.depositPercent,
+        waterTargets: input.waterTargets ?? was.waterTargets,
         version: input.quantities ? current + 1 : current,
       };
       if (before) {
@@ -178,6 +187,7 @@ export class TemplatesService {
         shareCustomerContactWithPartners: now.shareCustomerContactWithPartners,
         cureDatumC: now.cureDatumC,
         depositPercent: now.depositPercent,
+        waterTargets: now.waterTargets,
       });
       return this.settings(actor, trx);
     });

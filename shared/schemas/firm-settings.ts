@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { BLOCK_LAYINGS, EXCAVATOR_SIZES, GROUND_TYPES } from '../quantities/settings.ts';
+import type { WaterTargets } from '../water-balance.ts';
 
 const positive = z.number().gt(0);
 
@@ -50,6 +51,44 @@ export const QuantitySettingsPatch = z
   .strict();
 export type QuantitySettingsPatch = z.infer<typeof QuantitySettingsPatch>;
 
+/** One of the firm's own water ranges: its bounds, and where the figures come from. */
+const waterRange = (lowest: number, highest: number, unit: string) =>
+  z
+    .object({
+      min: z
+        .number({ message: `must be a number${unit}` })
+        .min(lowest, `must be between ${lowest} and ${highest}${unit}`)
+        .max(highest, `must be between ${lowest} and ${highest}${unit}`),
+      max: z
+        .number({ message: `must be a number${unit}` })
+        .min(lowest, `must be between ${lowest} and ${highest}${unit}`)
+        .max(highest, `must be between ${lowest} and ${highest}${unit}`),
+      source: z
+        .string({ message: 'must say where the figures come from' })
+        .trim()
+        .min(1, 'must say where the figures come from, e.g. the unit maker’s manual')
+        .max(200, 'must be at most 200 characters')
+        // eslint-disable-next-line no-control-regex
+        .refine((s) => !/[\u0000-\u001f\u007f]/.test(s), 'must not contain control characters'),
+    })
+    .strict()
+    .refine((r) => r.min <= r.max, { path: ['max'], message: 'must not be below the lowest value' });
+
+/**
+ * The firm's own target ranges for the commissioning readings (water-balance.ts); a range left out
+ * is the usual figure. The whole set is sent each time, so it needs no version.
+ */
+export const WaterTargetsPatch = z
+  .object({
+    ph: waterRange(0, 14, ''),
+    totalAlkalinityPpm: waterRange(0, 1000, ' ppm'),
+    freeChlorinePpm: waterRange(0, 50, ' ppm'),
+    brominePpm: waterRange(0, 50, ' ppm'),
+  })
+  .partial()
+  .strict() satisfies z.ZodType<Partial<Record<keyof WaterTargets, unknown>>>;
+export type WaterTargetsPatch = z.infer<typeof WaterTargetsPatch>;
+
 /**
  * PUT /api/firm/settings. `version` guards the quantity figures: a form of many values where a save
  * based on old figures would quietly undo someone else's. The photo switch is one yes/no whose
@@ -73,6 +112,7 @@ export const PutFirmSettings = z
       .min(-15, 'must be between −15 and 15 °C')
       .max(15, 'must be between −15 and 15 °C')
       .optional(),
+    waterTargets: WaterTargetsPatch.optional(),
     /** The deposit asked for by default, as a whole percentage of the job's price (25 unless set). */
     depositPercent: z
       .number({ message: 'must be a whole percentage from 1 to 100' })
@@ -91,10 +131,12 @@ export const PutFirmSettings = z
       s.keepPhotoLocation !== undefined ||
       s.shareCustomerContactWithPartners !== undefined ||
       s.cureDatumC !== undefined ||
-      s.depositPercent !== undefined,
+      s.depositPercent !== undefined ||
+      s.waterTargets !== undefined,
     {
       path: ['quantities'],
-      message: 'send the quantities, the photo setting, the sharing setting, the cure datum or the deposit percentage',
+      message:
+        'send the quantities, the photo setting, the sharing setting, the cure datum, the deposit percentage or the water targets',
     },
   );
 export type PutFirmSettings = z.infer<typeof PutFirmSettings>;

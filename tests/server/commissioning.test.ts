@@ -134,18 +134,41 @@ describe('an incomplete record', () => {
     expect(res.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/commissioning-incomplete`);
   });
 
-  it("flags a reading against the firm's own range and names that range's source", async () => {
-    const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
-    await ctx
-      .knex('firm_settings')
-      .insert({
-        firm_id: tideway,
-        water_targets: JSON.stringify({
-          totalAlkalinityPpm: { min: 110, max: 150, source: "the unit maker's manual" },
-        }),
-      })
-      .onConflict('firm_id')
-      .merge(['water_targets']);
+  it("flags a reading against the firm's own range, set by the owner, and names that range's source", async () => {
+    const owner = await signIn(ctx, account('owner').email);
+    const setTargets = (waterTargets: object, who: Agent = owner) =>
+      who.put('/api/firm/settings').set('X-CSRF-Token', who.csrf).send({ waterTargets });
+    // Only the owner sets them; a range must be whole, in bounds, in order and say where it comes from.
+    await setTargets({ totalAlkalinityPpm: { min: 110, max: 150, source: 'x' } }, scheduler).expect(403);
+    for (const [bad, field, message] of [
+      [{ ph: { min: 7.8, max: 7.2, source: 'x' } }, 'waterTargets.ph.max', 'must not be below the lowest value'],
+      [{ ph: { min: -1, max: 7.2, source: 'x' } }, 'waterTargets.ph.min', 'must be between 0 and 14'],
+      [
+        { brominePpm: { min: 4, max: 6, source: ' ' } },
+        'waterTargets.brominePpm.source',
+        'must say where the figures come from, e.g. the unit maker’s manual',
+      ],
+      [
+        { brominePpm: { min: 4, max: 6, source: 'manual\u0000' } },
+        'waterTargets.brominePpm.source',
+        'must not contain control characters',
+      ],
+      [{ copper: { min: 0, max: 1, source: 'x' } }, 'waterTargets', 'Unrecognized key: "copper"'],
+    ] as const) {
+      const res = await setTargets(bad).expect(400);
+      expect(res.body.errors, JSON.stringify(bad)).toEqual([{ field, message }]);
+    }
+    const saved = await setTargets({
+      totalAlkalinityPpm: { min: 110, max: 150, source: " the unit maker's manual " },
+    }).expect(200);
+    expect(saved.body.waterTargets.totalAlkalinityPpm).toEqual({
+      min: 110,
+      max: 150,
+      unit: 'ppm',
+      source: "the unit maker's manual",
+    });
+    // The others stay at the usual figures.
+    expect(saved.body.waterTargets.ph).toEqual(saved.body.waterTargetDefaults.ph);
     try {
       const body = (await record().expect(200)).body;
       expect(body.readings[1]).toMatchObject({
@@ -155,8 +178,9 @@ describe('an incomplete record', () => {
         range: { min: 110, max: 150, source: "the unit maker's manual" },
       });
     } finally {
-      await ctx.knex('firm_settings').where('firm_id', tideway).update({ water_targets: '{}' });
+      await setTargets({}).expect(200);
     }
+    expect((await record().expect(200)).body.readings[1]).toMatchObject({ verdict: 'in-range', range: { min: 80 } });
   });
 
   it('refuses a save based on an older version (409), keeping the newer one', async () => {
