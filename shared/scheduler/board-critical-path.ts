@@ -87,37 +87,16 @@ interface JobWork {
 
 function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
   const out: JobCriticalPath[] = new Array<JobCriticalPath>(jobs.length);
-  const { es, ef, ls, lf, d, cure, booked, job: jobOf, calNo, cals } = w;
+  const { es, ef } = w;
   // Plain indexed loops, no closure or iterator per job, stage or link: this runs over every stage
-  // of the board, and what it leaves behind besides the timings is garbage to collect.
+  // of the board, and what it leaves behind besides the timings is garbage to collect. Each pass is
+  // a function of its own, optimised with its own inlining budget: as one function, most of the
+  // calendar arithmetic of the later passes was left as calls.
   for (let j = 0; j < jobs.length; j++) {
     const job = jobs[j] as JobWork;
     const list = job.stages;
     const me = j + 1;
-    for (let k = 0; k < list.length; k++) {
-      const x = list[k] as StageInfo;
-      const i = x.idx;
-      if (booked[i] === 1) continue;
-      const c = cals[calNo[i] as number] as CompiledCalendar;
-      const di = d[i] as number;
-      let t = index.now;
-      const depsIn = x.depsIn;
-      for (let n = 0; n < depsIn.length; n++) {
-        const l = depsIn[n] as DepLink;
-        const p = l.from.idx;
-        if (jobOf[p] !== me) continue;
-        const dep = l.dep;
-        const anchor = (dep.type === 'FS' || dep.type === 'FF' ? ef[p] : es[p]) as number;
-        const bound = applyLag(c, anchor, dep.lag);
-        const b = dep.type === 'FS' || dep.type === 'SS' ? bound : addWorkingMinutes(c, bound, -di);
-        if (b > t) t = b;
-        const cp = cure[p] as number;
-        if (cp > 0 && dep.waitsForCure === true) t = Math.max(t, releaseInstant(ef[p] as number, cp));
-      }
-      const start = di > 0 ? nextWorkingInstant(c, t) : t;
-      es[i] = start;
-      ef[i] = addWorkingMinutes(c, start, di);
-    }
+    forwardPass(index.now, list, me, w);
     let start = Number.POSITIVE_INFINITY,
       finish = Number.NEGATIVE_INFINITY;
     for (let k = 0; k < list.length; k++) {
@@ -127,65 +106,9 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
     }
     if (list.length === 0) start = finish = index.now;
     const end = job.promisedBy ?? finish;
-    for (let k = list.length - 1; k >= 0; k--) {
-      const x = list[k] as StageInfo;
-      const i = x.idx;
-      const c = cals[calNo[i] as number] as CompiledCalendar;
-      const di = d[i] as number;
-      let latest = end;
-      const depsOut = x.depsOut;
-      for (let n = 0; n < depsOut.length; n++) {
-        const l = depsOut[n] as DepLink;
-        const s = l.to.idx;
-        if (jobOf[s] !== me) continue;
-        const dep = l.dep;
-        const subject = (dep.type === 'FS' || dep.type === 'SS' ? ls[s] : lf[s]) as number;
-        const back = reverseLag(cals[calNo[s] as number] as CompiledCalendar, subject, dep.lag);
-        const b = dep.type === 'FS' || dep.type === 'FF' ? back : addWorkingMinutes(c, back, di);
-        if (b < latest) latest = b;
-        const ci = cure[i] as number;
-        if (ci > 0 && dep.waitsForCure === true) latest = Math.min(latest, (ls[s] as number) - ci * DAY_MS);
-      }
-      lf[i] = latest;
-      ls[i] = di > 0 ? addWorkingMinutes(c, latest, -di) : latest;
-    }
-    let minFloat = Number.POSITIVE_INFINITY;
+    backwardPass(list, me, end, w);
     const timings: StageTiming[] = new Array<StageTiming>(list.length);
-    for (let k = 0; k < list.length; k++) {
-      const x = list[k] as StageInfo;
-      const i = x.idx;
-      const c = cals[calNo[i] as number] as CompiledCalendar;
-      let free = workingMinutesBetween(c, ef[i] as number, end);
-      const depsOut = x.depsOut;
-      for (let n = 0; n < depsOut.length; n++) {
-        const l = depsOut[n] as DepLink;
-        const s = l.to.idx;
-        if (jobOf[s] !== me) continue;
-        const dep = l.dep;
-        const subject = (dep.type === 'FS' || dep.type === 'SS' ? es[s] : ef[s]) as number;
-        const own = (dep.type === 'FS' || dep.type === 'FF' ? ef[i] : es[i]) as number;
-        const succCal = cals[calNo[s] as number] as CompiledCalendar;
-        free = Math.min(free, workingMinutesBetween(c, own, reverseLag(succCal, subject, dep.lag)));
-        const ci = cure[i] as number;
-        if (ci > 0 && dep.waitsForCure === true)
-          free = Math.min(free, workingMinutesBetween(c, ef[i] as number, (es[s] as number) - ci * DAY_MS));
-      }
-      const total = workingMinutesBetween(c, es[i] as number, ls[i] as number);
-      if (total < minFloat) minFloat = total;
-      timings[k] = {
-        stageId: x.stage.id,
-        booked: booked[i] === 1,
-        calendarId: c.source.id,
-        durationMinutes: small(d[i] as number),
-        es: es[i] as number,
-        ef: ef[i] as number,
-        ls: ls[i] as number,
-        lf: lf[i] as number,
-        totalFloatMinutes: small(total),
-        freeFloatMinutes: small(free),
-        critical: false,
-      };
-    }
+    const minFloat = timingsOf(list, me, end, w, timings);
     const critical: string[] = [];
     for (let k = 0; k < timings.length; k++) {
       const t = timings[k] as StageTiming;
@@ -204,6 +127,107 @@ function run(index: BoardIndex, jobs: JobWork[], w: Work): JobCriticalPath[] {
     };
   }
   return out;
+}
+
+/** Early start and finish of a job's unbooked stages (booked ones sit where they are booked). */
+function forwardPass(now: number, list: readonly StageInfo[], me: number, w: Work): void {
+  const { es, ef, d, cure, booked, job: jobOf, calNo, cals } = w;
+  for (let k = 0; k < list.length; k++) {
+    const x = list[k] as StageInfo;
+    const i = x.idx;
+    if (booked[i] === 1) continue;
+    const c = cals[calNo[i] as number] as CompiledCalendar;
+    const di = d[i] as number;
+    let t = now;
+    const depsIn = x.depsIn;
+    for (let n = 0; n < depsIn.length; n++) {
+      const l = depsIn[n] as DepLink;
+      const p = l.from.idx;
+      if (jobOf[p] !== me) continue;
+      const dep = l.dep;
+      const anchor = (dep.type === 'FS' || dep.type === 'FF' ? ef[p] : es[p]) as number;
+      const bound = applyLag(c, anchor, dep.lag);
+      const b = dep.type === 'FS' || dep.type === 'SS' ? bound : addWorkingMinutes(c, bound, -di);
+      if (b > t) t = b;
+      const cp = cure[p] as number;
+      if (cp > 0 && dep.waitsForCure === true) t = Math.max(t, releaseInstant(ef[p] as number, cp));
+    }
+    const start = di > 0 ? nextWorkingInstant(c, t) : t;
+    es[i] = start;
+    ef[i] = addWorkingMinutes(c, start, di);
+  }
+}
+
+/** Late start and finish of every stage of a job, from `end` (the promised date or the finish) back. */
+function backwardPass(list: readonly StageInfo[], me: number, end: number, w: Work): void {
+  const { ls, lf, d, cure, job: jobOf, calNo, cals } = w;
+  for (let k = list.length - 1; k >= 0; k--) {
+    const x = list[k] as StageInfo;
+    const i = x.idx;
+    const c = cals[calNo[i] as number] as CompiledCalendar;
+    const di = d[i] as number;
+    let latest = end;
+    const depsOut = x.depsOut;
+    for (let n = 0; n < depsOut.length; n++) {
+      const l = depsOut[n] as DepLink;
+      const s = l.to.idx;
+      if (jobOf[s] !== me) continue;
+      const dep = l.dep;
+      const subject = (dep.type === 'FS' || dep.type === 'SS' ? ls[s] : lf[s]) as number;
+      const back = reverseLag(cals[calNo[s] as number] as CompiledCalendar, subject, dep.lag);
+      const b = dep.type === 'FS' || dep.type === 'FF' ? back : addWorkingMinutes(c, back, di);
+      if (b < latest) latest = b;
+      const ci = cure[i] as number;
+      if (ci > 0 && dep.waitsForCure === true) latest = Math.min(latest, (ls[s] as number) - ci * DAY_MS);
+    }
+    lf[i] = latest;
+    ls[i] = di > 0 ? addWorkingMinutes(c, latest, -di) : latest;
+  }
+}
+
+/**
+ * Each stage's timing into `timings` (not yet marked critical); returns the least total float
+ * (+Infinity for no stages).
+ */
+function timingsOf(list: readonly StageInfo[], me: number, end: number, w: Work, timings: StageTiming[]): number {
+  const { es, ef, ls, lf, d, cure, booked, job: jobOf, calNo, cals } = w;
+  let minFloat = Number.POSITIVE_INFINITY;
+  for (let k = 0; k < list.length; k++) {
+    const x = list[k] as StageInfo;
+    const i = x.idx;
+    const c = cals[calNo[i] as number] as CompiledCalendar;
+    let free = workingMinutesBetween(c, ef[i] as number, end);
+    const depsOut = x.depsOut;
+    for (let n = 0; n < depsOut.length; n++) {
+      const l = depsOut[n] as DepLink;
+      const s = l.to.idx;
+      if (jobOf[s] !== me) continue;
+      const dep = l.dep;
+      const subject = (dep.type === 'FS' || dep.type === 'SS' ? es[s] : ef[s]) as number;
+      const own = (dep.type === 'FS' || dep.type === 'FF' ? ef[i] : es[i]) as number;
+      const succCal = cals[calNo[s] as number] as CompiledCalendar;
+      free = Math.min(free, workingMinutesBetween(c, own, reverseLag(succCal, subject, dep.lag)));
+      const ci = cure[i] as number;
+      if (ci > 0 && dep.waitsForCure === true)
+        free = Math.min(free, workingMinutesBetween(c, ef[i] as number, (es[s] as number) - ci * DAY_MS));
+    }
+    const total = workingMinutesBetween(c, es[i] as number, ls[i] as number);
+    if (total < minFloat) minFloat = total;
+    timings[k] = {
+      stageId: x.stage.id,
+      booked: booked[i] === 1,
+      calendarId: c.source.id,
+      durationMinutes: small(d[i] as number),
+      es: es[i] as number,
+      ef: ef[i] as number,
+      ls: ls[i] as number,
+      lf: lf[i] as number,
+      totalFloatMinutes: small(total),
+      freeFloatMinutes: small(free),
+      critical: false,
+    };
+  }
+  return minFloat;
 }
 
 const cureDaysCache = new WeakMap<CureRule, number>();

@@ -1,9 +1,12 @@
 import { assertBookingStep, DEFAULT_BOOKING_STEP_MINUTES } from './booking-step.js';
+import { addBooking, bookingLists, orderedByResource } from './booking-lists.js';
 import { compileCalendar, type CompiledCalendar } from './calendar.js';
 import { SchedulerError } from './errors.js';
 import { findCycles } from './graph.js';
 import { IdMap } from './id-map.js';
 import type { Board, BoardOptions, Booking, Dependency, HirePeriod, Job, Resource, Stage } from './types.js';
+
+export { compareBookings } from './booking-lists.js';
 
 /** Bookings on one resource, sorted by start then id, with the longest length for window scans. */
 export interface ResourceBookings {
@@ -89,6 +92,17 @@ function push<K, V>(m: Map<K, V[]>, k: K, v: V): void {
 const EMPTY_BOOKINGS = Object.freeze([]) as unknown as Booking[];
 const EMPTY_LINKS = Object.freeze([]) as unknown as DepLink[];
 
+/**
+ * A stage's links with one more: a new list for the first, a copy of a list shared with the other
+ * end of its one link (see createBoardIndex), otherwise the list itself.
+ */
+function withLink(links: DepLink[], link: DepLink, shared: boolean): DepLink[] {
+  if (links.length === 0) return [link];
+  if (shared) return [links[0] as DepLink, link];
+  links.push(link);
+  return links;
+}
+
 function byId(a: Booking, b: Booking): number {
   return a.id < b.id ? -1 : a.id > b.id ? 1 : 0;
 }
@@ -160,10 +174,12 @@ function orderStages(list: StageInfo[]): { order: StageInfo[]; blocked: Set<stri
     const s = list[i] as StageInfo;
     if (indeg[s.idx] === 0) stack.push(s);
   }
-  const order: StageInfo[] = [];
+  // Made at its full length (20,000 pushes grew it through a dozen copies); cut short by a cycle.
+  const order: StageInfo[] = new Array<StageInfo>(list.length);
+  let ordered = 0;
   while (stack.length > 0) {
     const s = stack.pop() as StageInfo;
-    order.push(s);
+    order[ordered++] = s;
     for (let k = s.depsOut.length - 1; k >= 0; k--) {
       const to = (s.depsOut[k] as DepLink).to;
       const left = (indeg[to.idx] as number) - 1;
@@ -171,7 +187,8 @@ function orderStages(list: StageInfo[]): { order: StageInfo[]; blocked: Set<stri
       if (left === 0) stack.push(to);
     }
   }
-  if (order.length === list.length) return { order, blocked: new Set(), cycles: [] };
+  if (ordered === list.length) return { order, blocked: new Set(), cycles: [] };
+  order.length = ordered;
   const rest = list.filter((s) => (indeg[s.idx] as number) > 0);
   const blocked = new Set(rest.map((s) => s.stage.id));
   const deps = rest.flatMap((s) => s.depsOut.filter((l) => blocked.has(l.to.stage.id)).map((l) => l.dep));
@@ -201,19 +218,6 @@ function findStage(
   const info = stages.get(id);
   if (info !== undefined) cursor.at = info.idx;
   return info;
-}
-
-/**
- * Orders bookings by start, then id: the order every sweep and scan relies on.
- *
- * @example
- * bookings.slice().sort(compareBookings)
- */
-export function compareBookings(a: Booking, b: Booking): number {
-  // -1, 0 or 1 rather than the difference of two instants, which would be boxed on every call.
-  if (a.start < b.start) return -1;
-  if (a.start > b.start) return 1;
-  return a.id < b.id ? -1 : a.id > b.id ? 1 : 0;
 }
 
 /**
@@ -263,7 +267,8 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
   const stages = new IdMap(stageList, stageIdOf);
   const jobs = new Map<string, Job>();
   for (const j of board.jobs) jobs.set(j.id, j);
-  const byResource = new Map<string, Booking[]>();
+  // Each resource's active bookings, gathered in board order (see addBooking).
+  const byResource = bookingLists(board.resources.length);
   // With repeated ids the map holds the last stage of each: look-ups then go to the map alone.
   const cursor = { at: 0, usable: stages.size === stageList.length };
   // Each active booking's stage, and how many each stage has, so its list is made at its full
@@ -279,7 +284,9 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
     const info = findStage(stageList, stages, b.stageId, cursor);
     if (info === undefined)
       throw new SchedulerError('unknown_stage', `Booking ${b.id} is for stage ${b.stageId}, which is not on the board`);
-    if (!resourceInfo.has(b.resourceId))
+    // A resource with a list already is on the board: one look-up for most bookings, not two.
+    const no = byResource.numbers.get(b.resourceId);
+    if (no === undefined && !resourceInfo.has(b.resourceId))
       throw new SchedulerError(
         'unknown_resource',
         `Booking ${b.id} is for resource ${b.resourceId}, which is not on the board`,
@@ -287,7 +294,7 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
     if (b.state === 'declined') continue;
     stageOf[k] = info.idx;
     counts[info.idx] = (counts[info.idx] as number) + 1;
-    push(byResource, b.resourceId, b);
+    addBooking(byResource, no, b);
   }
   for (let k = 0; k < board.bookings.length; k++) {
     const at = stageOf[k] as number;
@@ -306,16 +313,7 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
     const info = stageList[i] as StageInfo;
     if (info.bookings.length > 1) sortInPlace(info.bookings, byId);
   }
-  const bookingsByResource = new Map<string, ResourceBookings>();
-  byResource.forEach((list, rid) => {
-    sortInPlace(list, compareBookings);
-    let maxLength = 0;
-    for (let i = 0; i < list.length; i++) {
-      const b = list[i] as Booking;
-      maxLength = Math.max(maxLength, b.end - b.start);
-    }
-    bookingsByResource.set(rid, { list, maxLength });
-  });
+  const bookingsByResource: Map<string, ResourceBookings> = orderedByResource(byResource);
   for (const d of board.dependencies) {
     const from = findStage(stageList, stages, d.fromStageId, cursor),
       to = findStage(stageList, stages, d.toStageId, cursor);
@@ -323,10 +321,14 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
       throw new SchedulerError('unknown_stage', `Dependency ${d.id} links a stage that is not on the board`);
     }
     const link: DepLink = { dep: d, from, to };
-    if (from.depsOut.length === 0) from.depsOut = [link];
-    else from.depsOut.push(link);
-    if (to.depsIn.length === 0) to.depsIn = [link];
-    else to.depsIn.push(link);
+    // The only link out of one stage and into the next (most of a job's chain) is one list for
+    // both ends: 18,000 fewer arrays that every analysis allocates and keeps to the end.
+    if (from.depsOut.length === 0 && to.depsIn.length === 0) {
+      from.depsOut = to.depsIn = [link];
+      continue;
+    }
+    from.depsOut = withLink(from.depsOut, link, from.depsOut[0]?.to.depsIn === from.depsOut);
+    to.depsIn = withLink(to.depsIn, link, to.depsIn[0]?.from.depsOut === to.depsIn);
   }
   const hireByResource = new Map<string, HirePeriod[]>();
   for (const h of board.hirePeriods) {

@@ -72,11 +72,17 @@ class CalendarImpl implements CompiledCalendar {
   }
 
   dayIntervals(day: number): readonly number[] {
+    // The day already built is the hot path: kept this small, it is inlined into the arithmetic
+    // below (and its callers), which then has room left to inline the rest of its steps too.
+    const hit = this.dayArr[day - this.dayBase];
+    return hit !== undefined ? hit : this.dayIntervalsToBuild(day);
+  }
+
+  /** {@link dayIntervals} of a day not built yet, or outside the dense array. */
+  private dayIntervalsToBuild(day: number): readonly number[] {
     const i = day - this.dayBase;
     const arr = this.dayArr;
     if (i >= 0 && i < arr.length) {
-      const hit = arr[i];
-      if (hit !== undefined) return hit;
       const built = this.build(day);
       arr[i] = built;
       return built;
@@ -117,10 +123,12 @@ class CalendarImpl implements CompiledCalendar {
   }
 
   /**
-   * Working milliseconds from `start` to `end`: workedUntil(end) - workedUntil(start) written out,
-   * so the two large running totals never leave this function (each would be boxed on the heap).
+   * Working minutes from `start` to `end`: (workedUntil(end) - workedUntil(start)) / MINUTE_MS
+   * written out, so the two large running totals never leave this function (each would be boxed
+   * on the heap), nor does their difference in milliseconds: whole minutes come back as small
+   * integers, which need no box.
    */
-  workedBetween(start: Instant, end: Instant): number {
+  minutesBetween(start: Instant, end: Instant): number {
     // End first, as workedUntil(end) - workedUntil(start) would ask (cumAt may grow the totals).
     const b = this.dayOf(end);
     let i = b - this.cumBase;
@@ -132,7 +140,7 @@ class CalendarImpl implements CompiledCalendar {
     const atStart =
       (i >= 0 && i < this.cum.length ? (this.cum[i] as number) : this.cumAt(a)) +
       workedBefore(this.dayIntervals(a), start);
-    return atEnd - atStart;
+    return (atEnd - atStart) / MINUTE_MS;
   }
 
   private cumAt(day: number): number {
@@ -372,7 +380,7 @@ export function workingMinutesBetween(cal: Cal, start: Instant, end: Instant): n
       `Calendar ${c.source.id} can't count working time across more than ten years`,
     );
   }
-  return (c as CalendarImpl).workedBetween(start, end) / MINUTE_MS;
+  return (c as CalendarImpl).minutesBetween(start, end);
 }
 
 /**

@@ -3,6 +3,7 @@ import { roundUpToStep } from '../booking-step.js';
 import { cureElapsedDays as cureDays, cureRelease, releaseInstant } from '../cure.js';
 import { formatInstant } from '../format.js';
 import { applyLag, describeLag } from '../lag.js';
+import type { CompiledCalendar } from '../calendar.js';
 import type { Booking, Dependency, Stage, Violation } from '../types.js';
 import { makeViolation, stageLabel, type BookingsOf } from './violation.js';
 import { unbookedPlan, unbookedTimesOf, type UnbookedPlan } from '../unbooked.js';
@@ -51,12 +52,15 @@ export function checkDependencyBetween(
     pEnd = spanEnd(pb),
     sStart = spanStart(sb),
     sEnd = spanEnd(sb);
-  const succCal = stageCalendarOf(index, dep.toStageId, sb);
-  const tz = succCal.timeZone;
   const anchor = dep.type === 'FS' || dep.type === 'FF' ? pEnd : pStart;
   const subject = dep.type === 'FS' || dep.type === 'SS' ? sStart : sEnd;
-  const bound = applyLag(succCal, anchor, dep.lag);
+  // The successor's calendar only for a lag to count on or words to say: most links have neither,
+  // and looking it up for each of them showed in the full analysis.
+  let succCal: CompiledCalendar | undefined;
+  const bound =
+    dep.lag.amount === 0 ? anchor : applyLag((succCal = stageCalendarOf(index, dep.toStageId, sb)), anchor, dep.lag);
   if (subject < bound) {
+    const tz = (succCal ??= stageCalendarOf(index, dep.toStageId, sb)).timeZone;
     // Words only when there is something to say (no destructuring on the path every link takes).
     const [verb, done, does] = WORDS[dep.type];
     const P = stageLabel(index, dep.fromStageId),
@@ -104,6 +108,7 @@ export function checkDependencyBetween(
   if (cure && sStart < releaseInstant(pEnd, cureDays(cure))) {
     const ex = cureRelease(pEnd, cure);
     if (sStart < ex.releaseAt) {
+      const tz = (succCal ??= stageCalendarOf(index, dep.toStageId, sb)).timeZone;
       const S = stageLabel(index, dep.toStageId);
       const pct = Math.round(cure.targetFraction * 100);
       out.push(
