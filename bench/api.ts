@@ -232,6 +232,8 @@ const moves = stageRows.map((s) => ({
   later: false,
 }));
 let nextMove = 0;
+/** The first refusal of each status under load, to say why (a refused move is not an error of the bench). */
+const refusals = new Map<number, string>();
 async function moveLoad(c: number): Promise<Figures> {
   return load(c, {
     path: '/api/stages/0/move',
@@ -259,6 +261,7 @@ async function moveLoad(c: number): Promise<Figures> {
         onResponse: (status, body, ctx) => {
           const context = ctx as Record<string, unknown>;
           const m = context.move as (typeof moves)[number];
+          if (status >= 400 && !refusals.has(status)) refusals.set(status, body.slice(0, 300));
           if (status === 200)
             m.version =
               (JSON.parse(body) as { bookings: { id: string; version: number }[] }).bookings.find(
@@ -294,6 +297,7 @@ async function tryOnce(pathname: string, body: unknown): Promise<void> {
 console.log('\nPOST /api/stages/:id/move (one stage, its own booking):');
 for (const c of CONNECTIONS)
   console.log(`  ${String(c).padStart(2)} connection${c > 1 ? 's' : ' '} ${fmt(await moveLoad(c))}`);
+for (const [status, body] of refusals) console.log(`  (first ${status} under load: ${body})`);
 
 // 3. Batch create: the first stage of five new jobs each request, on the installer's own crews.
 async function unbookedStages(knexx: Knex, count: number): Promise<{ stageId: string; resourceId: string }[]> {
