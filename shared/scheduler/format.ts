@@ -1,3 +1,4 @@
+import { formatPence as formatWholePence } from '../money.js';
 import { isFourDigitYearDay, packedCivilDate, timeZoneOffset } from './time-zone.js';
 import type { Instant } from './types.js';
 
@@ -52,11 +53,12 @@ export function formatDayOfWeek(day: number): string | undefined {
 }
 
 /**
- * Pence as pounds for messages.
+ * Pence as pounds for messages, as money reads everywhere else (shared/money.ts): to the nearest
+ * penny of a worked-out amount, with thousands separators.
  *
  * @example
- * formatPence(45000) // '£450.00'
+ * formatPence(130500) // '£1,305.00'
  */
 export function formatPence(pence: number): string {
-  return `£${(pence / 100).toFixed(2)}`;
+  return formatWholePence(Math.round(pence));
 }
