@@ -1,5 +1,5 @@
 import { assertBookingStep, DEFAULT_BOOKING_STEP_MINUTES } from './booking-step.js';
-import { addBooking, bookingLists, orderedByResource } from './booking-lists.js';
+import { addBooking, bookingLists, orderedByResource, sortInPlace } from './booking-lists.js';
 import { compileCalendar, type CompiledCalendar } from './calendar.js';
 import { SchedulerError } from './errors.js';
 import { findCycles } from './graph.js';
@@ -113,30 +113,6 @@ function stageIdOf(info: StageInfo): string {
 
 function byOnHire(a: HirePeriod, b: HirePeriod): number {
   return a.onHire - b.onHire;
-}
-
-/**
- * Sorts a list in place (stably, as Array#sort does), doing nothing when it is in order already:
- * bookings and hire periods mostly come in order, and Array#sort allocates work space on every
- * call, thousands of times per index. Short lists are insertion-sorted.
- */
-function sortInPlace<T>(list: T[], compare: (a: T, b: T) => number): void {
-  let i = 1;
-  while (i < list.length && compare(list[i - 1] as T, list[i] as T) <= 0) i++;
-  if (i >= list.length) return;
-  if (list.length > 16) {
-    list.sort(compare);
-    return;
-  }
-  for (; i < list.length; i++) {
-    const x = list[i] as T;
-    let j = i - 1;
-    while (j >= 0 && compare(list[j] as T, x) > 0) {
-      list[j + 1] = list[j] as T;
-      j--;
-    }
-    list[j + 1] = x;
-  }
 }
 
 /**

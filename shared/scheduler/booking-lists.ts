@@ -81,26 +81,30 @@ export function orderedByResource(lists: BookingLists): Map<string, OrderedBooki
   const out = new Map<string, OrderedBookings>();
   lists.numbers.forEach((no, resourceId) => {
     const list = lists.lists[no] as Booking[];
-    if (lists.outOfOrder[no] === 1) sortBookings(list);
+    if (lists.outOfOrder[no] === 1) sortInPlace(list, compareBookings);
     out.set(resourceId, { list, maxLength: lists.longest[no] as number });
   });
   return out;
 }
 
 /**
- * Sorts stably, as Array#sort does; a short list by insertion (Array#sort allocates work space on
- * every call).
+ * Sorts a list in place (stably, as Array#sort does), doing nothing when it is in order already:
+ * bookings and hire periods mostly come in order, and Array#sort allocates work space on every
+ * call, thousands of times per index. Short lists are insertion-sorted.
  */
-function sortBookings(list: Booking[]): void {
+export function sortInPlace<T>(list: T[], compare: (a: T, b: T) => number): void {
+  let i = 1;
+  while (i < list.length && compare(list[i - 1] as T, list[i] as T) <= 0) i++;
+  if (i >= list.length) return;
   if (list.length > 16) {
-    list.sort(compareBookings);
+    list.sort(compare);
     return;
   }
-  for (let i = 1; i < list.length; i++) {
-    const x = list[i] as Booking;
+  for (; i < list.length; i++) {
+    const x = list[i] as T;
     let j = i - 1;
-    while (j >= 0 && compareBookings(list[j] as Booking, x) > 0) {
-      list[j + 1] = list[j] as Booking;
+    while (j >= 0 && compare(list[j] as T, x) > 0) {
+      list[j + 1] = list[j] as T;
       j--;
     }
     list[j + 1] = x;
