@@ -14,15 +14,61 @@ export function isSortKey(key: unknown): key is JobSortKey {
   return typeof key === 'string' && (SORTABLE as readonly string[]).includes(key);
 }
 
-/** The jobs table's columns; sorting is done by the server, so each sortable column only shows the current order. */
+/**
+ * The jobs table's columns; sorting is done by the server, so each sortable column only shows the
+ * current order. On a phone (`phone: true`) two columns hold the same facts, stacked, so the list
+ * reads without scrolling sideways: the job and its state, then the customer, site, unit and dates.
+ */
 export function jobColumns(options: {
   sort: JobSortKey;
   order: 'asc' | 'desc';
   currentYear: number;
+  phone?: boolean;
 }): DataTableColumns<JobRow> {
   const sortOrder = (key: JobSortKey): DataTableSortState['order'] =>
     options.sort === key ? (options.order === 'asc' ? 'ascend' : 'descend') : false;
   const dates = { currentYear: options.currentYear };
+  const state = (row: JobRow) =>
+    h(ColourTag, {
+      label: JOB_STATUS_LABELS[row.status] ?? row.status,
+      colours: statusColours[row.status] ?? statusColours.enquiry,
+    });
+  const promised = (row: JobRow) => formatCalendarRange(row.promisedFrom, row.promisedTo, dates);
+  const type = (row: JobRow) => INSTALLATION_TYPE_LABELS[row.installationType] ?? row.installationType;
+  if (options.phone) {
+    return [
+      {
+        key: 'reference',
+        title: 'Job',
+        sorter: true,
+        sortOrder: sortOrder('reference'),
+        width: 112,
+        render: (row) =>
+          h('div', { style: 'display: grid; gap: 0.3rem; justify-items: start' }, [
+            h(RouterLink, { to: `/jobs/${row.id}` }, () => row.reference),
+            state(row),
+          ]),
+      },
+      {
+        key: 'customerName',
+        title: 'Customer and site',
+        sorter: true,
+        sortOrder: sortOrder('customerName'),
+        render: (row) =>
+          h('div', [
+            h('div', row.customerName),
+            h(
+              'div',
+              { class: 'wl-small wl-muted' },
+              [row.siteTown, row.unitName ? `${row.unitName}, ${type(row).toLowerCase()}` : type(row)]
+                .filter(Boolean)
+                .join(' · '),
+            ),
+            h('div', { class: 'wl-small' }, promised(row) ? `Promised ${promised(row)}` : 'Not promised yet'),
+          ]),
+      },
+    ];
+  }
   return [
     {
       key: 'reference',
@@ -42,35 +88,21 @@ export function jobColumns(options: {
     {
       key: 'unitName',
       title: 'Unit',
-      render: (row) =>
-        h('div', [
-          h('div', row.unitName),
-          h(
-            'div',
-            { class: 'wl-small wl-muted' },
-            INSTALLATION_TYPE_LABELS[row.installationType] ?? row.installationType,
-          ),
-        ]),
+      render: (row) => h('div', [h('div', row.unitName), h('div', { class: 'wl-small wl-muted' }, type(row))]),
     },
     {
       key: 'promisedFrom',
       title: 'Promised',
       sorter: true,
       sortOrder: sortOrder('promisedFrom'),
-      render: (row) =>
-        formatCalendarRange(row.promisedFrom, row.promisedTo, dates) ||
-        h('span', { class: 'wl-muted' }, 'Not promised yet'),
+      render: (row) => promised(row) || h('span', { class: 'wl-muted' }, 'Not promised yet'),
     },
     {
       key: 'status',
       title: 'State',
       sorter: true,
       sortOrder: sortOrder('status'),
-      render: (row) =>
-        h(ColourTag, {
-          label: JOB_STATUS_LABELS[row.status] ?? row.status,
-          colours: statusColours[row.status] ?? statusColours.enquiry,
-        }),
+      render: state,
     },
     {
       key: 'orderedOn',

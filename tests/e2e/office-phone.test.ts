@@ -1,0 +1,75 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { account } from '../helpers/server.ts';
+
+/*
+ * The office pages on a phone (390 × 844 CSS pixels, a common handset size: common practice, no
+ * source), as the owner of the demo installer: the jobs list, the firm's people and the stage
+ * templates read without scrolling sideways.
+ */
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+
+beforeAll(async () => {
+  app = await startServer();
+  browser = await launchBrowser();
+  page = await (
+    await browser.newContext({
+      viewport: { width: 390, height: 844 },
+      deviceScaleFactor: 2,
+      isMobile: true,
+      hasTouch: true,
+      timezoneId: 'Europe/London',
+    })
+  ).newPage();
+  await signInThroughPage(page, app.url, account('owner').email);
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+/** How far anything on the page, or any table's own scroller, runs past its width (CSS pixels). */
+const overflow = () =>
+  page.evaluate(() => {
+    const sideways = (el: Element) => el.scrollWidth - el.clientWidth;
+    return Math.max(
+      sideways(document.documentElement),
+      ...[...document.querySelectorAll('table, .n-scrollbar-container, .n-data-table-base-table-body')].map((el) =>
+        sideways(el),
+      ),
+    );
+  });
+
+describe('office pages on a phone', () => {
+  it('lists the jobs in two stacked columns: job and state, then customer, site, unit and dates', async () => {
+    await page.goto(`${app.url}/jobs`);
+    const first = page.locator('.n-data-table-tbody .n-data-table-tr').first();
+    await first.waitFor();
+    expect(await page.locator('.n-data-table-th').allTextContents()).toEqual(['Job', 'Customer and site']);
+    expect(await first.textContent()).toMatch(/Promised|Not promised yet/);
+    expect(await overflow()).toBeLessThanOrEqual(1);
+    await page.screenshot({ path: 'tests/e2e/artifacts/jobs-phone.png' });
+  });
+
+  it("shows each person's name, e-mail and role in view", async () => {
+    await page.goto(`${app.url}/firm`);
+    const owner = page.locator('.n-data-table-tr', { hasText: account('owner').email });
+    await owner.waitFor();
+    expect(await owner.textContent()).toContain('Owner');
+    expect(await owner.locator('text=Owner').isVisible()).toBe(true);
+    expect(await overflow()).toBeLessThanOrEqual(1);
+  });
+
+  it('labels every field of the stage templates, the header row being hidden', async () => {
+    await page.goto(`${app.url}/templates`);
+    await page.locator('table.grid').waitFor();
+    const minutes = page.locator('td[data-label="Minutes of work"]').first();
+    expect(await minutes.evaluate((td) => getComputedStyle(td, '::before').content)).toBe('"Minutes of work"');
+    expect(await page.locator('table.grid thead').isVisible()).toBe(false);
+    expect(await overflow()).toBeLessThanOrEqual(1);
+    await page.screenshot({ path: 'tests/e2e/artifacts/templates-phone.png' });
+  });
+});
