@@ -41,7 +41,7 @@ export function paymentRoutes(
     })
     .put('/api/jobs/:id/price', 'payments:write', async (req, res) => {
       const id = await job(req);
-      res.json(await payments.setPrice(req.actor!, id, parse(SetPrice, req.body).pricePence));
+      res.json(await payments.setPrice(req.actor!, id, parse(SetPrice, req.body)));
     })
     .post('/api/jobs/:id/payments/deposit', 'payments:write', async (req, res) => {
       const id = await job(req);

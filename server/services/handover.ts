@@ -75,14 +75,14 @@ export async function signatureImage(dataUrl: string): Promise<Buffer> {
 export async function servicePlanOf(
   knex: Knex | Knex.Transaction,
   firmId: string,
-): Promise<ServicePlan & { isDefault: boolean }> {
+): Promise<ServicePlan & { isDefault: boolean; version: number }> {
   const row = await knex('firm_settings').where('firm_id', firmId).first('service_plan');
-  const stored = row?.servicePlan as Partial<ServicePlan> | undefined;
-  const plan = { ...DEFAULT_SERVICE_PLAN, ...(stored ?? {}) };
+  const { version = 0, ...stored } = (row?.servicePlan ?? {}) as Partial<ServicePlan> & { version?: number };
+  const plan = { ...DEFAULT_SERVICE_PLAN, ...stored };
   const isDefault = (Object.keys(DEFAULT_SERVICE_PLAN) as (keyof ServicePlan)[]).every(
     (k) => plan[k] === DEFAULT_SERVICE_PLAN[k],
   );
-  return { ...plan, isDefault };
+  return { ...plan, isDefault, version };
 }
 
 /**
@@ -425,25 +425,41 @@ export class HandoverService {
     return { ...plan, isDefault, source: PLAN_SOURCE };
   }
 
+  /**
+   * Replaces the firm's service plan. The plan keeps its own count of saves (in the stored plan,
+   * apart from the quantity settings' version): a save based on an older count is refused with the
+   * plan as it stands, so two owners editing at once can't overwrite each other unseen.
+   */
   async putServicePlan(actor: Actor, input: PutServicePlan): Promise<ServicePlanView> {
+    const { version, ...plan } = input;
     await this.knex.transaction(async (trx) => {
-      const before = await scoped(FirmSettings, actor, trx).first().forUpdate();
-      const was = before ? await servicePlanOf(trx, actor.firmId) : null;
-      if (before)
-        await trx('firm_settings')
-          .where('firm_id', actor.firmId)
-          .update({ service_plan: JSON.stringify(input), updated_at: new Date() });
-      // A firm without settings yet gets its row; version 0 keeps the quantity form's own count untouched.
-      else
-        await trx('firm_settings').insert({ firm_id: actor.firmId, service_plan: JSON.stringify(input), version: 0 });
+      // The firm's settings row, made first when it has none, then locked: two first saves at once
+      // meet at the lock like any others (version 0 keeps the quantity form's own count untouched).
+      const created = await trx('firm_settings')
+        .insert({ firm_id: actor.firmId, version: 0 })
+        .onConflict('firm_id')
+        .ignore()
+        .returning('firm_id');
+      await scoped(FirmSettings, actor, trx).first().forUpdate();
+      const was = await servicePlanOf(trx, actor.firmId);
+      if (was.version !== version) {
+        throw new ConflictError('Someone else changed the service plan since you loaded it: reload to see theirs.', {
+          code: 'stale-version',
+          current: { ...was, source: PLAN_SOURCE },
+        });
+      }
+      await trx('firm_settings')
+        .where('firm_id', actor.firmId)
+        .update({ service_plan: JSON.stringify({ ...plan, version: version + 1 }), updated_at: new Date() });
+      const isNew = created.length > 0;
       await recordChange(
         trx,
         actor,
         'firm_settings',
         actor.firmId,
-        before ? 'update' : 'create',
-        was ? { servicePlan: was } : null,
-        { servicePlan: input },
+        isNew ? 'create' : 'update',
+        isNew ? null : { servicePlan: was },
+        { servicePlan: { ...plan, version: version + 1 } },
       );
     });
     return this.servicePlan(actor);

@@ -12,7 +12,7 @@ import { PaymentProvider, SignatureError, type CheckoutSession, type ProviderEve
 import { BadRequestError, ConflictError, HttpError } from '../errors.ts';
 import { localDateOf } from '../../shared/local-dates.ts';
 import { depositOf } from '../../shared/money.ts';
-import type { JobPayments, PaymentKind, PaymentStatus, PaymentView } from '../../shared/schemas/payments.ts';
+import type { JobPayments, PaymentKind, PaymentStatus, PaymentView, SetPrice } from '../../shared/schemas/payments.ts';
 
 /** A job_payments row (camelCase through knex's mapping). */
 export interface PaymentRow {
@@ -207,10 +207,17 @@ export class PaymentsService {
     };
   }
 
-  async setPrice(actor: Actor, jobId: string, pricePence: number): Promise<JobPayments> {
+  /** Sets the job's price; refused, with the price as it stands, when it is no longer `wasPence`. */
+  async setPrice(actor: Actor, jobId: string, { pricePence, wasPence }: SetPrice): Promise<JobPayments> {
     await this.knex.transaction(async (trx) => {
       await findVisible(Job, actor, jobId, trx, 'job');
       const job = await lockJob(trx, jobId);
+      if ((job.pricePence ?? null) !== wasPence) {
+        throw new ConflictError('Someone else changed the price since you loaded it: check it before saving yours.', {
+          code: 'stale-version',
+          current: { pricePence: job.pricePence ?? null },
+        });
+      }
       await trx('jobs').where('id', jobId).update({ price_pence: pricePence });
       await recordChange(trx, actor, 'job', jobId, 'update', { pricePence: job.pricePence }, { pricePence });
     });

@@ -24,9 +24,10 @@ export const SignHandover = z.object({
 });
 export type SignHandover = z.infer<typeof SignHandover>;
 
-/** PUT /api/firm/service-plan. */
+/** PUT /api/firm/service-plan: the whole plan, and the version it was based on (GET gives it). */
 export const PutServicePlan = z
   .object({
+    version: z.number({ message: 'is required: the version of the plan you loaded' }).int().min(0),
     firstAfterMonths: z
       .number()
       .int('must be whole months')
@@ -49,6 +50,8 @@ export type PutServicePlan = z.infer<typeof PutServicePlan>;
 export interface ServicePlanView extends ServicePlan {
   isDefault: boolean;
   source: string;
+  /** Counts the plan's saves (0: never saved); a save based on an older one is refused. */
+  version: number;
 }
 
 /** GET /api/jobs/:id/handover: what the page needs, and the handover once signed. */

@@ -21,8 +21,19 @@ export type PaymentStatus = (typeof PAYMENT_STATUSES)[number];
 export const RequestPayment = z.object({ amountPence: Pence.optional() }).strict();
 export type RequestPayment = z.infer<typeof RequestPayment>;
 
-/** The job's agreed price (what the deposit and balance add up to). */
-export const SetPrice = z.object({ pricePence: Pence }).strict();
+/**
+ * The job's agreed price (what the deposit and balance add up to), and the price the change was
+ * based on (null: the job had none): a price changed meanwhile by someone else is not overwritten.
+ */
+export const SetPrice = z
+  .object({
+    pricePence: Pence,
+    wasPence: z
+      .number({ message: 'is required: the price you saw, or null when the job had none' })
+      .int('must be a whole number of pence')
+      .nullable(),
+  })
+  .strict();
 export type SetPrice = z.infer<typeof SetPrice>;
 
 /** One payment as the office sees it. */

@@ -261,7 +261,7 @@ describe('service visits from the handover', () => {
     await office
       .put('/api/firm/service-plan')
       .set('X-CSRF-Token', office.csrf)
-      .send({ firstAfterMonths: 6, everyMonths: 12, visitsAhead: 3 })
+      .send({ version: 0, firstAfterMonths: 6, everyMonths: 12, visitsAhead: 3 })
       .expect(200);
     const job = await makeHandoverJob(ctx.knex, { reference: 'HO-202', startsAt: '2026-06-01T14:00:00Z', store });
     const res = await sign(crew, job.jobId, good()).expect(201);
@@ -274,7 +274,7 @@ describe('service visits from the handover', () => {
     await office
       .put('/api/firm/service-plan')
       .set('X-CSRF-Token', office.csrf)
-      .send({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 })
+      .send({ version: 1, firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 })
       .expect(200);
 
     const trayRefs = async (from: string, to: string) => {
@@ -294,12 +294,12 @@ describe('service visits from the handover', () => {
     await scheduler
       .put('/api/firm/service-plan')
       .set('X-CSRF-Token', scheduler.csrf)
-      .send({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 })
+      .send({ version: 2, firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 })
       .expect(403);
     const bad = await office
       .put('/api/firm/service-plan')
       .set('X-CSRF-Token', office.csrf)
-      .send({ firstAfterMonths: 0, everyMonths: 9999, visitsAhead: 2 })
+      .send({ version: 2, firstAfterMonths: 0, everyMonths: 9999, visitsAhead: 2 })
       .expect(400);
     expect(bad.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['everyMonths', 'firstAfterMonths']);
     expect((await scheduler.get('/api/firm/service-plan').expect(200)).body).toEqual({
@@ -308,7 +308,34 @@ describe('service visits from the handover', () => {
       visitsAhead: 2,
       isDefault: true,
       source: 'common practice, no source',
+      version: 2,
     });
+  });
+
+  it('never overwrites a plan someone else saved meanwhile: a save from an older version is refused with theirs', async () => {
+    const put = (body: Record<string, unknown>) =>
+      office.put('/api/firm/service-plan').set('X-CSRF-Token', office.csrf).send(body);
+    const missing = await put({ firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 }).expect(400);
+    expect(missing.body.errors).toEqual([
+      { field: 'version', message: 'is required: the version of the plan you loaded' },
+    ]);
+    const { version } = (await office.get('/api/firm/service-plan').expect(200)).body;
+    // Two owners save from the same version at once: one wins, the other is told and sees the winner's plan.
+    const [a, b] = await Promise.all([
+      put({ version, firstAfterMonths: 4, everyMonths: 6, visitsAhead: 2 }),
+      put({ version, firstAfterMonths: 5, everyMonths: 24, visitsAhead: 1 }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 409]);
+    const [won, lost] = a.status === 200 ? [a, b] : [b, a];
+    expect(lost.body).toMatchObject({
+      code: 'stale-version',
+      detail: 'Someone else changed the service plan since you loaded it: reload to see theirs.',
+      current: { ...won.body, version: version + 1 },
+    });
+    expect((await office.get('/api/firm/service-plan').expect(200)).body).toEqual(won.body);
+    // A save from the version before is refused too, however late it comes.
+    await put({ version, firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 }).expect(409);
+    await put({ version: version + 1, firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 }).expect(200);
   });
 });
 

@@ -107,7 +107,7 @@ describe('a deposit paid through the provider', () => {
   let eventId = '';
 
   it("is asked for from the price and the firm's 25 %, e-mailed to the householder, with a link to copy", async () => {
-    await put(`/api/jobs/${job}/price`, { pricePence: 1_000_000 }).expect(200);
+    await put(`/api/jobs/${job}/price`, { pricePence: 1_000_000, wasPence: null }).expect(200);
     const res = await post(`/api/jobs/${job}/payments/deposit`).expect(201);
     expect(res.body.payments).toHaveLength(1);
     expect(res.body.payments[0]).toMatchObject({
@@ -260,6 +260,24 @@ describe('requests the office cannot make', () => {
     ]);
   });
 
+  it('a price changed meanwhile is never overwritten: two at once, one wins; the other gets 409 with the price as it stands', async () => {
+    const was = (await scheduler.get(`/api/jobs/${other}/payments`).expect(200)).body.pricePence;
+    const [a, b] = await Promise.all([
+      put(`/api/jobs/${other}/price`, { pricePence: 1_100_000, wasPence: was }),
+      put(`/api/jobs/${other}/price`, { pricePence: 1_250_000, wasPence: was }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 409]);
+    const [won, lost] = a.status === 200 ? [a, b] : [b, a];
+    expect(lost.body).toMatchObject({
+      code: 'stale-version',
+      detail: 'Someone else changed the price since you loaded it: check it before saving yours.',
+      current: { pricePence: won.body.pricePence },
+    });
+    expect((await scheduler.get(`/api/jobs/${other}/payments`).expect(200)).body.pricePence).toBe(won.body.pricePence);
+    // From the price now shown, the change goes through.
+    await put(`/api/jobs/${other}/price`, { pricePence: 1_200_000, wasPence: won.body.pricePence }).expect(200);
+  });
+
   it('amounts must be whole positive pence: 400 naming amountPence', async () => {
     for (const amountPence of [12.5, 0, -100, '5000', 10_000_001, null]) {
       const res = await post(`/api/jobs/${job}/payments/balance`, { amountPence });
@@ -267,14 +285,17 @@ describe('requests the office cannot make', () => {
       expect(res.body.errors.map((e: { field: string }) => e.field)).toEqual(['amountPence']);
     }
     const price = await put(`/api/jobs/${job}/price`, { pricePence: 99.99 }).expect(400);
-    expect(price.body.errors.map((e: { field: string }) => e.field)).toEqual(['pricePence']);
+    expect(price.body.errors).toEqual([
+      { field: 'pricePence', message: 'must be a whole number of pence, e.g. 50000 for £500.00' },
+      { field: 'wasPence', message: 'is required: the price you saw, or null when the job had none' },
+    ]);
   });
 
   it("another firm's job: 404, never data", async () => {
     const mv = await idOf(ctx.knex, 'jobs', { reference: 'MV-118' });
     await scheduler.get(`/api/jobs/${mv}/payments`).expect(404);
     await post(`/api/jobs/${mv}/payments/deposit`, { amountPence: 100 }).expect(404);
-    await put(`/api/jobs/${mv}/price`, { pricePence: 100 }).expect(404);
+    await put(`/api/jobs/${mv}/price`, { pricePence: 100, wasPence: null }).expect(404);
     expect(await paymentsOf(mv)).toEqual([]);
   });
 
@@ -379,7 +400,7 @@ describe("the firm's own deposit percentage", () => {
         .whereNotExists(ctx.knex('job_payments').whereRaw('job_payments.job_id = jobs.id'))
         .orderBy('reference')
         .first('id');
-      await put(`/api/jobs/${jobId}/price`, { pricePence: 820_000 }).expect(200);
+      await put(`/api/jobs/${jobId}/price`, { pricePence: 820_000, wasPence: null }).expect(200);
       const asked = (await post(`/api/jobs/${jobId}/payments/deposit`).expect(201)).body;
       // 30 % of £8,200.00 = £2,460.00.
       expect(asked).toMatchObject({ depositPercent: 30, suggestedDepositPence: 246_000 });
