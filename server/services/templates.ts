@@ -156,6 +156,15 @@ export class TemplatesService {
           current: await this.settings(actor, trx),
         });
       }
+      if (
+        input.waterTargets !== undefined &&
+        JSON.stringify(waterTargetsOf(before?.waterTargets)) !== JSON.stringify(waterTargetsOf(input.waterTargetsWas))
+      ) {
+        throw new ConflictError('Someone else changed the water targets since you loaded them: reload to see theirs.', {
+          code: 'stale-version',
+          current: await this.settings(actor, trx),
+        });
+      }
       const was = {
         quantities: before?.quantities ?? {},
         keepPhotoLocation: before?.keepPhotoLocation ?? false,

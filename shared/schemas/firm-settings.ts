@@ -113,6 +113,13 @@ export const PutFirmSettings = z
       .max(15, 'must be between −15 and 15 °C')
       .optional(),
     waterTargets: WaterTargetsPatch.optional(),
+    /**
+     * The water targets as the form loaded them (GET's `waterTargets`): like the quantities, a form
+     * of many values, so a save based on targets someone else has changed since is refused.
+     */
+    waterTargetsWas: z
+      .record(z.string(), z.unknown(), { message: 'must be the water targets as loaded (GET waterTargets)' })
+      .optional(),
     /** The deposit asked for by default, as a whole percentage of the job's price (25 unless set). */
     depositPercent: z
       .number({ message: 'must be a whole percentage from 1 to 100' })
@@ -124,6 +131,10 @@ export const PutFirmSettings = z
   .refine((s) => s.quantities === undefined || s.version !== undefined, {
     path: ['version'],
     message: 'is required when changing the quantities',
+  })
+  .refine((s) => s.waterTargets === undefined || s.waterTargetsWas !== undefined, {
+    path: ['waterTargetsWas'],
+    message: 'is required when changing the water targets: the targets you loaded',
   })
   .refine(
     (s) =>

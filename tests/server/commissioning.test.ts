@@ -136,10 +136,16 @@ describe('an incomplete record', () => {
 
   it("flags a reading against the firm's own range, set by the owner, and names that range's source", async () => {
     const owner = await signIn(ctx, account('owner').email);
-    const setTargets = (waterTargets: object, who: Agent = owner) =>
-      who.put('/api/firm/settings').set('X-CSRF-Token', who.csrf).send({ waterTargets });
+    const loaded = async () => (await owner.get('/api/firm/settings').expect(200)).body.waterTargets;
+    // Each save sends the targets as loaded, as the Firm page's card does.
+    const setTargets = async (waterTargets: object, status: number, who: Agent = owner) =>
+      who
+        .put('/api/firm/settings')
+        .set('X-CSRF-Token', who.csrf)
+        .send({ waterTargets, waterTargetsWas: await loaded() })
+        .expect(status);
     // Only the owner sets them; a range must be whole, in bounds, in order and say where it comes from.
-    await setTargets({ totalAlkalinityPpm: { min: 110, max: 150, source: 'x' } }, scheduler).expect(403);
+    await setTargets({ totalAlkalinityPpm: { min: 110, max: 150, source: 'x' } }, 403, scheduler);
     for (const [bad, field, message] of [
       [{ ph: { min: 7.8, max: 7.2, source: 'x' } }, 'waterTargets.ph.max', 'must not be below the lowest value'],
       [{ ph: { min: -1, max: 7.2, source: 'x' } }, 'waterTargets.ph.min', 'must be between 0 and 14'],
@@ -155,12 +161,13 @@ describe('an incomplete record', () => {
       ],
       [{ copper: { min: 0, max: 1, source: 'x' } }, 'waterTargets', 'Unrecognized key: "copper"'],
     ] as const) {
-      const res = await setTargets(bad).expect(400);
+      const res = await setTargets(bad, 400);
       expect(res.body.errors, JSON.stringify(bad)).toEqual([{ field, message }]);
     }
-    const saved = await setTargets({
-      totalAlkalinityPpm: { min: 110, max: 150, source: " the unit maker's manual " },
-    }).expect(200);
+    const saved = await setTargets(
+      { totalAlkalinityPpm: { min: 110, max: 150, source: " the unit maker's manual " } },
+      200,
+    );
     expect(saved.body.waterTargets.totalAlkalinityPpm).toEqual({
       min: 110,
       max: 150,
@@ -178,9 +185,37 @@ describe('an incomplete record', () => {
         range: { min: 110, max: 150, source: "the unit maker's manual" },
       });
     } finally {
-      await setTargets({}).expect(200);
+      await setTargets({}, 200);
     }
     expect((await record().expect(200)).body.readings[1]).toMatchObject({ verdict: 'in-range', range: { min: 80 } });
+  });
+
+  it("never overwrites water targets someone else saved meanwhile: two owners' saves from the same load, one wins", async () => {
+    const owner = await signIn(ctx, account('owner').email);
+    const put = (body: object) => owner.put('/api/firm/settings').set('X-CSRF-Token', owner.csrf).send(body);
+    const loaded = (await owner.get('/api/firm/settings').expect(200)).body.waterTargets;
+    const missing = await put({ waterTargets: {} }).expect(400);
+    expect(missing.body.errors).toEqual([
+      { field: 'waterTargetsWas', message: 'is required when changing the water targets: the targets you loaded' },
+    ]);
+    const [a, b] = await Promise.all([
+      put({ waterTargets: { ph: { min: 7.0, max: 7.6, source: 'maker A' } }, waterTargetsWas: loaded }),
+      put({ waterTargets: { brominePpm: { min: 3, max: 5, source: 'maker B' } }, waterTargetsWas: loaded }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 409]);
+    const [won, lost] = a.status === 200 ? [a, b] : [b, a];
+    expect(lost.body).toMatchObject({
+      code: 'stale-version',
+      detail: 'Someone else changed the water targets since you loaded them: reload to see theirs.',
+      current: { waterTargets: won.body.waterTargets },
+    });
+    // The winner's change stands; the loser's never landed.
+    const now = (await owner.get('/api/firm/settings').expect(200)).body;
+    expect(now.waterTargets).toEqual(won.body.waterTargets);
+    expect([now.waterTargets.ph.source, now.waterTargets.brominePpm.source].sort()).toEqual(
+      ['common practice, no source', won === a ? 'maker A' : 'maker B'].sort(),
+    );
+    await put({ waterTargets: {}, waterTargetsWas: now.waterTargets }).expect(200);
   });
 
   it('refuses a save based on an older version (409), keeping the newer one', async () => {
