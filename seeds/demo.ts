@@ -511,6 +511,8 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
           requirements: JSON.stringify(s.requirements),
           cure: s.cure ? JSON.stringify(s.cure) : null,
           notice: s.leadTime ? JSON.stringify(s.leadTime) : null,
+          may_continue_next_day: s.mayContinueNextDay,
+          just_in_time: s.justInTime,
           notes: s.kind === 'lift' || s.kind === 'placement' ? craneReason : s.kind === 'spoil_away' ? spoilNote : null,
         })),
     );

@@ -195,6 +195,8 @@ export class Stage extends ScopedModel {
   requirements!: { kind: string; count: number }[];
   cure!: { targetFraction: number; dailyMeanTempsC?: number[] } | null;
   mayContinueNextDay!: boolean;
+  /** Placed as late as the stages after it allow (the delivery, on the lift day). */
+  justInTime!: boolean;
   /** The notice the stage needs (from its template: a partner's notice, the maker's lead time); checked by the engine. */
   notice!: StageNotice | null;
   notes!: string | null;

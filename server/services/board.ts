@@ -179,6 +179,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
               'stages.requirements',
               'stages.cure',
               'stages.may_continue_next_day',
+              'stages.just_in_time',
               'stages.notice',
             )
             .orderBy(['stages.job_id', 'stages.sequence']),
@@ -360,6 +361,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     cure: cureOf.get(s.id) ?? s.cure,
     sequence: s.sequence,
     mayContinueNextDay: s.mayContinueNextDay,
+    justInTime: s.justInTime,
   }));
   const boardJobs: BoardJob[] = jobs.map((j) => ({
     id: j.id,

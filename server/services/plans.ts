@@ -83,6 +83,7 @@ export class PlansService {
           requirements: JSON.stringify(s.requirements) as never,
           cure: (s.cure ? JSON.stringify(s.cure) : null) as never,
           mayContinueNextDay: s.mayContinueNextDay,
+          justInTime: s.justInTime,
           notice: (s.leadTime ? JSON.stringify(s.leadTime) : null) as never,
           notes: notes || null,
         } as Partial<Stage>);

@@ -108,6 +108,13 @@ export interface Stage {
    * longer than a working day are split over days either way. Default false.
    */
   mayContinueNextDay?: boolean;
+  /**
+   * Wanted as late as the stages after it allow, not as early as possible: the unit's delivery
+   * comes on the day of the lift (lorry, crane and crew on site together), not weeks before it,
+   * left standing on the drive. The planner places it last-minute; the checks are the same.
+   * Default false.
+   */
+  justInTime?: boolean;
 }
 
 export type DependencyType = 'FS' | 'SS' | 'FF' | 'SF';

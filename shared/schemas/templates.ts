@@ -45,6 +45,7 @@ export const StageTemplateSchema = z.object({
     .optional(),
   when: z.enum(['always', 'crane', 'no_crane']).optional(),
   mayContinueNextDay: z.boolean().optional(),
+  justInTime: z.boolean().optional(),
 });
 
 export const LinkTemplateSchema = z.object({

@@ -45,6 +45,9 @@ const DELIVERY: StageTemplate = {
   duration: fixed(120),
   requirements: [{ kind: 'lorry', count: 1 }],
   leadTime: { workingDays: 15, countedFrom: 'order', reason: "the maker's lead time" },
+  // Delivery and lift day: lorry, crane, crew and pallet trucks on site together; a unit delivered
+  // weeks early stands on the drive (common practice, no source).
+  justInTime: true,
 };
 /** The crane firm's appointed person visits the site and sends the lift plan the lift follows. */
 const LIFT_PLAN: StageTemplate = {

@@ -24,6 +24,8 @@ export interface PlannedStage {
   leadTime: StageNotice | null;
   /** May a booking of it run over into the next working day (see StageTemplate.mayContinueNextDay). */
   mayContinueNextDay: boolean;
+  /** Placed as late as the stages after it allow (see StageTemplate.justInTime). */
+  justInTime: boolean;
   cautions: string[];
 }
 
@@ -83,6 +85,7 @@ export function planFromTemplate(template: InstallTemplate, options: PlanOptions
       cure: s.cure ? { ...s.cure } : null,
       leadTime,
       mayContinueNextDay: s.mayContinueNextDay === true,
+      justInTime: s.justInTime === true,
       cautions: cautionsFor(s.kind),
     };
   });

@@ -41,6 +41,8 @@ export interface StageTemplate {
    * (work that can stop overnight and carry on). Longer stages run over days either way. Default false.
    */
   mayContinueNextDay?: boolean;
+  /** Placed as late as the stages after it allow (see Stage.justInTime in the engine). Default false. */
+  justInTime?: boolean;
 }
 
 export interface LinkTemplate {

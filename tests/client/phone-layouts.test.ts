@@ -72,6 +72,7 @@ describe('the stage templates on a phone', () => {
       'Cure before the next stages',
       'Notice (working days)',
       'May continue next working day',
+      'Just in time',
     ]);
     const rows = grid.split('<tr').slice(2); // the header row, then one per stage
     expect(rows).toHaveLength(IN_GROUND_TEMPLATE.stages.length);

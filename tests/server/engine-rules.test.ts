@@ -76,6 +76,21 @@ describe('planning a job', () => {
     const lift = res.body.stages.find((s: { id: string }) => s.id === stage.lift);
     expect([walls?.mayContinueNextDay, lift?.mayContinueNextDay]).toEqual([true, false]);
   });
+
+  it('marks the delivery alone as wanted just in time (on the lift day), and the board hands that on', async () => {
+    const rows = await ctx
+      .knex('stages')
+      .whereIn('id', Object.values(stage))
+      .where('just_in_time', true)
+      .select('kind');
+    expect(rows.map((r) => r.kind)).toEqual(['delivery']);
+    const res = await scheduler
+      .get('/api/board')
+      .query({ from: '2026-06-01T00:00:00Z', to: '2026-06-08T00:00:00Z' })
+      .expect(200);
+    const flags = (id: string) => res.body.stages.find((s: { id: string }) => s.id === id)?.justInTime;
+    expect([flags(stage.delivery!), flags(stage.lift!)]).toEqual([true, false]);
+  });
 });
 
 describe('a crane lift booked while everything before it is unbooked', () => {

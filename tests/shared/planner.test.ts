@@ -14,6 +14,7 @@ import {
 import { comparePlanCosts } from '../../shared/scheduler/planner/place.js';
 import { checkPsplibPlan, parseSm, psplibBoard, PSPLIB_NOW } from '../../bench/psplib/psplib.js';
 import { at, dep, firmCal, LONDON } from './scheduler/scenario.js';
+import { JUNE_1, plannedBoard } from './scheduler/in-ground.js';
 
 // Instances and proven optimal makespans from PSPLIB: R. Kolisch and A. Sprecher, "PSPLIB — A
 // project scheduling problem library", EJOR 96 (1996) 205–216 (tests/fixtures/psplib/README.md).
@@ -243,5 +244,75 @@ describe('planner on random boards', () => {
       }),
       { numRuns: 25, seed: 20260601 },
     );
+  });
+});
+
+describe('a delivery wanted on the lift day (delivery and lift day: lorry, crane and crew together)', () => {
+  // The in-ground install from the default template, ordered Fri 15 May 2026; nothing else booked.
+  const placedAt = (board: Board, budgetMs: number) => {
+    const result = autoPlace(board, { now: JUNE_1, budgetMs });
+    const of = (id: string) => result.placed.find((p) => p.stageId === id);
+    return { result, delivery: of('delivery'), lift: of('lift') };
+  };
+
+  it.each([0, 300])('comes right before the lift, not as soon as the lead time allows (budget %i ms)', (budgetMs) => {
+    const board = plannedBoard();
+    expect(board.stages.find((s) => s.id === 'delivery')?.justInTime).toBe(true);
+    const { result, delivery, lift } = placedAt(board, budgetMs);
+    expect(result.unplaced).toEqual([]);
+    // The lift waits for the walls and the base's cure: Wed 10 Jun 11:00 BST. The lorry's two hours
+    // end as it starts, the same morning.
+    expect(lift?.start).toBe(at(2026, 6, 10, 11));
+    expect(delivery).toMatchObject({ start: at(2026, 6, 10, 9), end: at(2026, 6, 10, 11), resourceIds: ['lorry'] });
+    expect(analyseBoard(placedBoard(board, result), { now: JUNE_1 }).errorCount).toBe(0);
+  });
+
+  it('without the wish, goes as early as the lead time allows, two days before the lift', () => {
+    const board = plannedBoard();
+    board.stages = board.stages.map((s) => ({ ...s, justInTime: false }));
+    const { delivery, lift } = placedAt(board, 0);
+    // 15 working days from Fri 15 May 09:00, Mon 25 May a bank holiday: Mon 8 Jun 09:00 (counted by hand).
+    expect(delivery?.start).toBe(at(2026, 6, 8, 9));
+    expect(lift?.start).toBe(at(2026, 6, 10, 11));
+  });
+
+  const withLorryBusy = (from: number, to: number): Board => {
+    const board = plannedBoard();
+    board.jobs.push({ id: 'elsewhere', firmId: 'other' });
+    board.stages.push({
+      id: 'haul',
+      jobId: 'elsewhere',
+      kind: 'haul',
+      name: 'Haul',
+      durationMinutes: 60,
+      requirements: [{ kind: 'lorry', count: 1 }],
+      mayContinueNextDay: true,
+    });
+    board.bookings.push({
+      id: 'haul-1',
+      stageId: 'haul',
+      resourceId: 'lorry',
+      start: from,
+      end: to,
+      state: 'confirmed',
+      installerFirmId: 'other',
+    });
+    return board;
+  };
+
+  it('comes the afternoon before when the lorry is out on the lift day', () => {
+    const board = withLorryBusy(at(2026, 6, 10, 8), at(2026, 6, 10, 17));
+    const { result, delivery, lift } = placedAt(board, 0);
+    expect(lift?.start).toBe(at(2026, 6, 10, 11));
+    expect(delivery).toMatchObject({ start: at(2026, 6, 9, 15), end: at(2026, 6, 9, 17) });
+    expect(analyseBoard(placedBoard(board, result), { now: JUNE_1 }).errorCount).toBe(0);
+  });
+
+  it('stays where the serial scheme put it when the lorry is busy every later day', () => {
+    const board = withLorryBusy(at(2026, 6, 8, 11), at(2026, 6, 10, 17));
+    const { result, delivery } = placedAt(board, 0);
+    expect(delivery?.start).toBe(at(2026, 6, 8, 9));
+    expect(result.bookings.filter((b) => b.stageId === 'delivery')).toHaveLength(1);
+    expect(analyseBoard(placedBoard(board, result), { now: JUNE_1 }).errorCount).toBe(0);
   });
 });

@@ -5,8 +5,8 @@ import {
   stageCalendarOf,
   type BoardIndex,
 } from '../board-index.js';
-import { bookableStart, mustFitInOneDay } from '../booking-step.js';
-import { addWorkingMinutes, isWorkingInstant } from '../calendar.js';
+import { bookableStart, mustFitInOneDay, roundDownToStep } from '../booking-step.js';
+import { addWorkingMinutes, compileCalendar, isWorkingInstant } from '../calendar.js';
 import { overlappingOnResource } from '../checks/clash.js';
 import { idleHireDays } from '../checks/hire.js';
 import { leadTimeEarliest } from '../checks/lead-time.js';
@@ -294,7 +294,61 @@ export function placeStages(
       resourceIds: placed.map((b) => b.resourceId),
     });
   }
+  // Last, from the end back: the stages wanted just in time, as late as the stages after them allow.
+  const late = new Map(stages.filter((s) => s.justInTime === true).map((s) => [s.id, s]));
+  for (let k = out.placed.length - 1; k >= 0 && late.size > 0; k--) {
+    const stage = late.get((out.placed[k] as PlacedStage).stageId);
+    if (stage !== undefined) pullLater(index, stage, k, out, seq);
+  }
   return out;
+}
+
+/**
+ * Moves a just-in-time stage of a placement (the delivery) as late as the stages after it allow:
+ * on the latest working day, as late in it as it fits, where it ends by the time every stage after
+ * it starts and the engine's checks all pass; failing that on each day back to where the serial
+ * scheme put it, it stays there. Only finish-to-start links after it, all booked, are followed.
+ */
+function pullLater(index: BoardIndex, stage: Stage, k: number, out: Placement, seq: { n: number }): void {
+  const p = out.placed[k] as PlacedStage;
+  const links = index.stages.get(stage.id)?.depsOut ?? [];
+  if (links.length === 0 || links.some((l) => l.dep.type !== 'FS' || l.to.bookings.length === 0)) return;
+  let deadline = Number.POSITIVE_INFINITY;
+  for (const l of links) for (const b of l.to.bookings) deadline = Math.min(deadline, b.start);
+  if (deadline <= p.end) return;
+  const old = out.bookings.filter((b) => b.stageId === stage.id);
+  for (const b of old) removeBooking(index, b);
+  const cal = compileCalendar(stageCalendarOf(index, stage.id, []));
+  const firmId = index.jobs.get(stage.jobId)?.firmId ?? '';
+  for (let day = cal.dayOf(deadline - 1); day >= cal.dayOf(p.start); day--) {
+    const ivs = cal.dayIntervals(day);
+    if (ivs.length === 0) continue;
+    const latestEnd = Math.min(deadline, ivs[ivs.length - 1] as number);
+    const t = roundDownToStep(
+      addWorkingMinutes(cal, latestEnd, -stage.durationMinutes),
+      cal.timeZone,
+      index.stepMinutes,
+    );
+    if (t <= p.start) break;
+    const tried = tryAt(index, stage, t, firmId, seq, undefined);
+    if (tried.bookings === null) continue;
+    if (tried.bookings.length !== old.length) continue;
+    // In the old bookings' places, under their ids: the placement's order of bookings stands.
+    tried.bookings.forEach((b, i) => {
+      const was = old[i] as Booking;
+      b.id = was.id;
+      out.bookings[out.bookings.indexOf(was)] = b;
+      insertBooking(index, b);
+    });
+    out.placed[k] = {
+      stageId: stage.id,
+      start: t,
+      end: Math.max(...tried.bookings.map((b) => b.end)),
+      resourceIds: tried.bookings.map((b) => b.resourceId),
+    };
+    return;
+  }
+  for (const b of old) insertBooking(index, b);
 }
 
 /**

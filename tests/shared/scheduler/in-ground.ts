@@ -93,6 +93,7 @@ export function plannedBoard(
       requirements: s.requirements,
       cure: s.cure,
       mayContinueNextDay: s.mayContinueNextDay,
+      justInTime: s.justInTime,
     })),
     dependencies: plan.links.map((l) => ({
       id: `${l.fromKind}>${l.toKind}`,
