@@ -208,7 +208,8 @@ export type ViolationKind =
   | 'cross_firm'
   | 'cycle'
   | 'unbooked_predecessor'
-  | 'split';
+  | 'split'
+  | 'just_in_time';
 
 export type Severity = 'error' | 'warning';
 

@@ -405,11 +405,11 @@ describe("the scheduler's day on the board", () => {
         void r.text().then((t) => refused.push(`${r.status()} ${r.url()} ${t}`));
     });
     /** One stage from the tray onto a row; the rest of what it needs accepted as proposed, in one click. */
-    const place = async (stage: string, row: string, slotDate: string, proposed: number) => {
+    const place = async (stage: string, row: string, slotDate: string, proposed: number, into = 1 / 3) => {
       const title = `SD-601 · ${stage}`;
       await page.getByText('Loading…').waitFor({ state: 'hidden' });
-      // A third into a morning slot (06:00–12:00) is 08:00.
-      said.push(`${stage}: ${await dragTrayStage(page, title, row, slotDate, 1 / 3)}`);
+      // A third into a morning slot (06:00–12:00) is 08:00, two thirds 10:00.
+      said.push(`${stage}: ${await dragTrayStage(page, title, row, slotDate, into)}`);
       if (proposed) {
         const panel = page.getByRole('dialog', { name: `The rest of '${stage}' (SD-601)` });
         await panel.getByRole('button', { name: `Book these ${proposed}` }).click();
@@ -444,10 +444,11 @@ describe("the scheduler's day on the board", () => {
     await nextWeek('2026-11-09');
     // The walls wait a day after the pour.
     await place('Block retaining walls', rows.gang, '2026-11-09T06:00:00', 0);
-    await place('Delivery', rows.lorry, '2026-11-10T06:00:00', 0);
     // The lift waits for the base to cure in the cold months: well into December.
     for (const monday of ['2026-11-16', '2026-11-23', '2026-11-30', '2026-12-07', '2026-12-14']) await nextWeek(monday);
-    await place('Crane lift into pit', rows.crane, '2026-12-14T06:00:00', 4);
+    // Lift at 10:00; the unit comes on the lorry that morning, 08:00, not weeks before (delivery and lift day).
+    await place('Crane lift into pit', rows.crane, '2026-12-14T06:00:00', 4, 2 / 3);
+    await place('Delivery', rows.lorry, '2026-12-14T06:00:00', 0);
     await place('Fill', rows.crew, '2026-12-15T06:00:00', 0);
     await place('Connect and certify', rows.sparks, '2026-12-15T06:00:00', 0);
     await place('Commission', rows.crew, '2026-12-16T06:00:00', 0);

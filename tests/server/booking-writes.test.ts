@@ -234,7 +234,8 @@ describe('two requests at once', () => {
       .insert(
         Array.from({ length: 50 }, (_, n) => ({
           job_id: jobId,
-          kind: 'handover',
+          // Not 'handover': the job's own handover stays the one stage of that kind (see stageOf).
+          kind: 'service_visit',
           name: `Aftercare visit ${n + 1}`,
           sequence: 100 + n,
           duration_minutes: 60,

@@ -3,7 +3,7 @@ import { roundUpToStep } from '../booking-step.js';
 import { cureElapsedDays as cureDays, cureRelease, releaseInstant } from '../cure.js';
 import { formatInstant } from '../format.js';
 import { applyLag, describeLag } from '../lag.js';
-import type { CompiledCalendar } from '../calendar.js';
+import { countWorkingDays, type CompiledCalendar } from '../calendar.js';
 import type { Booking, Dependency, Stage, Violation } from '../types.js';
 import { makeViolation, stageLabel, type BookingsOf } from './violation.js';
 import { unbookedPlan, unbookedTimesOf, type UnbookedPlan } from '../unbooked.js';
@@ -16,7 +16,8 @@ const WORDS = {
 } as const;
 
 /**
- * Order, lag and cure checks of one dependency between two booked stages (severity error).
+ * Order, lag and cure checks of one dependency between two booked stages (severity error), and
+ * a warning when a stage wanted just in time ends more than the working day before the next.
  * Working lags count on the successor's calendar; the cure of a base stage counts from the end
  * of the pour in elapsed time, and only on a link that waits for it (`waitsForCure`): block walls
  * may go up on a base that has set overnight, the lift waits for the strength.
@@ -100,6 +101,27 @@ export function checkDependencyBetween(
           [],
           `${S} can't ${verb} before ${formatInstant(shown, tz)}: it must wait ${describeLag(dep.lag)} ${rel} ${P} ${does}`,
           details,
+        ),
+      );
+    }
+  }
+  // A stage wanted just in time (the delivery) done days before the stage after it needs it: the
+  // unit would stand waiting on site. On that stage's day or the working day before is in time.
+  if (from?.justInTime === true && dep.type === 'FS' && subject >= bound) {
+    const cal = (succCal ??= stageCalendarOf(index, dep.toStageId, sb));
+    const days = countWorkingDays(cal, pEnd, sStart);
+    if (days > 1) {
+      const P = stageLabel(index, dep.fromStageId),
+        S = stageLabel(index, dep.toStageId);
+      out.push(
+        makeViolation(
+          'just_in_time',
+          'warning',
+          [dep.fromStageId, dep.toStageId],
+          [],
+          [],
+          `${P} ends ${days} working days before ${S} starts (${formatInstant(pEnd, cal.timeZone)}, then ${formatInstant(sStart, cal.timeZone)}): it is wanted just in time, on that day or the working day before, so nothing stands waiting on site`,
+          { dependencyId: dep.id, predecessorId: dep.fromStageId, successorId: dep.toStageId, workingDaysBefore: days },
         ),
       );
     }

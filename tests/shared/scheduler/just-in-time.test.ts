@@ -1,0 +1,69 @@
+import { describe, expect, it } from 'vitest';
+import { analyseBoard, autoPlace, checkMove, createBoardIndex, type Board } from '../../../shared/scheduler/index.js';
+import { JUNE_1, plannedBoard } from './in-ground.js';
+import { at } from './scenario.js';
+
+// The in-ground install from the default template, placed by auto-place: the lift on Wed 10 Jun
+// 2026 at 11:00 BST and the delivery, wanted just in time, 09:00–11:00 that morning. Then the
+// delivery is moved by hand.
+function placed(justInTime = true): Board {
+  const board = plannedBoard();
+  board.stages = board.stages.map((s) => (s.id === 'delivery' ? { ...s, justInTime } : s));
+  return { ...board, bookings: autoPlace(board, { now: JUNE_1, budgetMs: 0 }).bookings };
+}
+function withDelivery(board: Board, start: number, end: number): Board {
+  return {
+    ...board,
+    bookings: board.bookings.map((b) => (b.stageId === 'delivery' ? { ...b, start, end } : b)),
+  };
+}
+const warnings = (board: Board) =>
+  analyseBoard(board, { now: JUNE_1 }).violations.filter((v) => v.kind === 'just_in_time');
+
+describe('a stage wanted just in time, booked days early', () => {
+  it('is in time on the morning of the lift, as auto-place books it', () => {
+    const board = placed();
+    expect(board.bookings.find((b) => b.stageId === 'delivery')).toMatchObject({
+      start: at(2026, 6, 10, 9),
+      end: at(2026, 6, 10, 11),
+    });
+    expect(warnings(board)).toEqual([]);
+  });
+
+  it('is in time the afternoon before', () => {
+    expect(warnings(withDelivery(placed(), at(2026, 6, 9, 15), at(2026, 6, 9, 17)))).toEqual([]);
+  });
+
+  it('is warned of two working days ahead: the unit would stand on site (a warning: the booking stands)', () => {
+    const board = withDelivery(placed(), at(2026, 6, 8, 9), at(2026, 6, 8, 11));
+    const analysis = analyseBoard(board, { now: JUNE_1 });
+    expect(analysis.errorCount).toBe(0);
+    expect(warnings(board)).toEqual([
+      {
+        kind: 'just_in_time',
+        severity: 'warning',
+        stageIds: ['delivery', 'lift'],
+        resourceIds: [],
+        bookingIds: [],
+        message:
+          "'Delivery' ends 2 working days before 'Crane lift into pit' starts (Mon 8 Jun 11:00, then Wed 10 Jun 11:00): it is wanted just in time, on that day or the working day before, so nothing stands waiting on site",
+        details: {
+          dependencyId: 'delivery>lift',
+          predecessorId: 'delivery',
+          successorId: 'lift',
+          workingDaysBefore: 2,
+        },
+      },
+    ]);
+  });
+
+  it('says so while the delivery is dragged there, as the full analysis does', () => {
+    const index = createBoardIndex(placed(), { now: JUNE_1 });
+    const verdict = checkMove(index, { stageId: 'delivery', start: at(2026, 6, 8, 9) });
+    expect(verdict.map((v) => `${v.severity} ${v.kind}`)).toEqual(['warning just_in_time']);
+  });
+
+  it('is not asked of a stage without the wish', () => {
+    expect(warnings(withDelivery(placed(false), at(2026, 6, 8, 9), at(2026, 6, 8, 11)))).toEqual([]);
+  });
+});
