@@ -39,8 +39,11 @@ export async function renderHtml(
   await router.isReady();
   // naive-ui writes its styles through css-render; on the server it needs this adapter.
   setupStyles(app);
+  // What drawers and dialogs teleport to the body comes after the page, as a browser would show it.
+  const ctx: { teleports?: Record<string, string> } = {};
+  const html = (await renderToString(app, ctx)) + Object.values(ctx.teleports ?? {}).join('');
   // Scoped-style markers say nothing about the page: dropped, so tests read the markup itself.
-  return (await renderToString(app)).replace(/ data-v-[0-9a-f]+(="")?/g, '');
+  return html.replace(/ data-v-[0-9a-f]+(="")?/g, '');
 }
 
 export interface Control {

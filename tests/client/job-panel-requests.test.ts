@@ -1,0 +1,127 @@
+import { describe, expect, it } from 'vitest';
+import type { BoardData } from '@shared/board-data';
+import JobPanel from '@/components/board/JobPanel.vue';
+import PartnerRequests from '@/components/board/PartnerRequests.vue';
+import { boardAnalysisOf, boardIndexOf } from '@/components/board/engine-view';
+import { renderHtml } from './render';
+
+const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
+  number,
+  number,
+][][];
+const HOUR = 3_600_000;
+const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
+
+/**
+ * An invented job of one stage, the electrical connection, booked on the installer's own labourer
+ * (pencilled) and on a partner firm's electrician (asked): the electrician is the partner's.
+ */
+function board(): BoardData {
+  const res = (id: string, name: string, kind: string, firmId: string, firmName: string, own: boolean) => ({
+    id,
+    firmId,
+    category: 'person' as const,
+    kind,
+    calendarId: 'c1',
+    name,
+    firmName,
+    firmKind: own ? 'installer' : 'electrical',
+    ownership: own ? ('owned' as const) : ('partner' as const),
+  });
+  return {
+    from: MON - 8 * HOUR,
+    to: MON + 7 * 24 * HOUR,
+    now: MON,
+    firmId: 'f1',
+    calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK }],
+    resources: [
+      res('mate', 'Dev Holt', 'labourer', 'f1', 'Tideway', true),
+      res('spark', 'Rhian Vale', 'electrician', 'f5', 'Larkspur Electrical', false),
+    ],
+    jobs: [
+      {
+        id: 'j1',
+        firmId: 'f1',
+        reference: 'TW-7002',
+        customerName: 'A Customer',
+        siteTown: 'Otley',
+        status: 'planned',
+        installationType: 'slab',
+        promisedBy: null,
+      },
+    ],
+    stages: [
+      {
+        id: 'connect',
+        jobId: 'j1',
+        kind: 'electrical_connect',
+        name: 'Connect and certify',
+        durationMinutes: 240,
+        requirements: [
+          { kind: 'electrician', count: 1 },
+          { kind: 'labourer', count: 1 },
+        ],
+        sequence: 1,
+      },
+    ],
+    dependencies: [],
+    bookings: [
+      {
+        id: 'b1',
+        stageId: 'connect',
+        resourceId: 'spark',
+        start: MON + 48 * HOUR,
+        end: MON + 52 * HOUR,
+        state: 'sent',
+        version: 2,
+        installerFirmId: 'f1',
+      },
+      {
+        id: 'b2',
+        stageId: 'connect',
+        resourceId: 'mate',
+        start: MON + 48 * HOUR,
+        end: MON + 52 * HOUR,
+        state: 'pencilled',
+        version: 1,
+        installerFirmId: 'f1',
+      },
+    ],
+    hirePeriods: [],
+    leadTimeRules: [],
+  } as BoardData;
+}
+
+const text = (html: string) => html.replace(/<[^>]+>/g, ' ').replace(/\s+/g, ' ');
+const count = (s: string, part: string) => s.split(part).length - 1;
+
+describe("a partner's booking on the job panel", () => {
+  it('is listed once, as a request, with what can be done with it: cancel the request or take it off', async () => {
+    const data = board();
+    const index = boardIndexOf(data, true);
+    const html = text(
+      await renderHtml(JobPanel, {
+        jobId: 'j1',
+        data,
+        index,
+        analysis: boardAnalysisOf(data, index),
+        timeZone: 'Europe/London',
+        canEdit: true,
+      }),
+    );
+    expect(count(html, 'Rhian Vale')).toBe(1);
+    expect(html).toContain('Rhian Vale (Larkspur Electrical): ✉ Asked Cancel request… Take off');
+    // The installer's own person stays in the stage's own list.
+    expect(count(html, 'Dev Holt')).toBe(1);
+    expect(html).toContain('Dev Holt · Pencilled Take off');
+  });
+
+  it('says the day a partner declined', async () => {
+    const data = board();
+    data.bookings[0] = { ...data.bookings[0]!, state: 'declined', declined: { at: MON + 3 * HOUR } } as never;
+    const html = text(
+      await renderHtml(PartnerRequests, { stageId: 'connect', data, timeZone: 'Europe/London', canEdit: true }),
+    );
+    expect(html).toContain('Rhian Vale (Larkspur Electrical): ✖ Declined Mon 14 Sep 11:00 Send again Take off');
+  });
+});
