@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import sharp from 'sharp';
-import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
 import { account, idOf } from '../helpers/server.ts';
 
 /*
@@ -17,15 +17,7 @@ beforeAll(async () => {
   app = await startServer();
   jobId = await idOf(app.ctx.knex, 'jobs', { reference: 'TW-2402' });
   browser = await launchBrowser();
-  page = await (
-    await browser.newContext({
-      viewport: { width: 390, height: 844 },
-      deviceScaleFactor: 2,
-      isMobile: true,
-      hasTouch: true,
-      timezoneId: 'Europe/London',
-    })
-  ).newPage();
+  page = await phonePage(browser);
 }, 60_000);
 afterAll(async () => {
   await browser?.close();

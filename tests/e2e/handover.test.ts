@@ -2,7 +2,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import pino from 'pino';
 import sharp from 'sharp';
 import type { Browser, Page } from 'playwright-core';
-import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
 import { account } from '../helpers/server.ts';
 import { Inbox } from '../helpers/mail.ts';
 import { makeHandoverJob, type HandoverFixture } from '../helpers/handover.ts';
@@ -47,15 +47,7 @@ beforeAll(async () => {
     relay: { idleMs: 50, maxBackoffMs: 1000, scanEveryMs: 3_600_000 },
   });
   browser = await launchBrowser();
-  page = await (
-    await browser.newContext({
-      viewport: { width: 390, height: 844 },
-      deviceScaleFactor: 2,
-      isMobile: true,
-      hasTouch: true,
-      timezoneId: 'Europe/London',
-    })
-  ).newPage();
+  page = await phonePage(browser);
 }, 120_000);
 afterEach(async (ctx) => {
   if (ctx.task.result?.state === 'fail')

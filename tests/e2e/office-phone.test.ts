@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
 import { account } from '../helpers/server.ts';
 
 /*
@@ -15,15 +15,7 @@ let page: Page;
 beforeAll(async () => {
   app = await startServer();
   browser = await launchBrowser();
-  page = await (
-    await browser.newContext({
-      viewport: { width: 390, height: 844 },
-      deviceScaleFactor: 2,
-      isMobile: true,
-      hasTouch: true,
-      timezoneId: 'Europe/London',
-    })
-  ).newPage();
+  page = await phonePage(browser);
   await signInThroughPage(page, app.url, account('owner').email);
 }, 60_000);
 afterAll(async () => {

@@ -25,6 +25,21 @@ export async function launchBrowser(): Promise<Browser> {
   });
 }
 
+/**
+ * A page on a phone: 390 × 844 CSS pixels at twice the density, touch, in London (a common handset
+ * size: common practice, no source).
+ */
+export async function phonePage(browser: Browser): Promise<Page> {
+  const context = await browser.newContext({
+    viewport: { width: 390, height: 844 },
+    deviceScaleFactor: 2,
+    isMobile: true,
+    hasTouch: true,
+    timezoneId: 'Europe/London',
+  });
+  return context.newPage();
+}
+
 async function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const s = net.createServer();
