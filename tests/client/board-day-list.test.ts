@@ -5,15 +5,11 @@ import type { BoardData } from '@shared/board-data';
 import BoardDayList from '@/components/board/BoardDayList.vue';
 import { dayBounds, dayListOf } from '@/components/board/day-list';
 import { eventsOf, problemsByBooking, rowsOf } from '@/components/board/board-events';
+import { WEEK, HOUR } from './board-week';
 
-const HOUR = 3_600_000;
 // Tuesday 15 September 2026 in London (BST, UTC+1): local midnight is 23:00 UTC the day before.
 const TUE = Date.UTC(2026, 8, 14, 23);
 const at = (hour: number, minute = 0) => TUE + hour * HOUR + minute * 60_000;
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
-  number,
-  number,
-][][];
 
 /** Two crews, a machine and a partner's electrician; the day has bookings on three of them. */
 function board(): BoardData {

@@ -11,9 +11,7 @@ import {
   rowsOf,
   trayOf,
 } from '@/components/board/board-events';
-
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as const;
-const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London
+import { WEEK, MON } from './board-week';
 
 function board(): BoardData {
   return {

@@ -8,9 +8,8 @@ import { declinedItems, newlyDeclined } from '@/components/board/declines';
 import { eventsOf } from '@/components/board/board-events';
 import { blockingLaterStage, floatText, isCritical, lateText } from '@/components/board/job-panel';
 import { addWorkingMinutes, resourceCalendarOf } from '@shared/scheduler/index';
+import { WEEK, MON } from './board-week';
 
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as const;
-const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
 const H = 3_600_000;
 const DAY = 24 * H;
 

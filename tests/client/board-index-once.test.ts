@@ -8,6 +8,7 @@ import { useDragCheck } from '@/composables/useDragCheck';
 import { useBoardFilter } from '@/composables/useBoardFilter';
 import { boardAnalysisOf, boardIndexOf } from '@/components/board/engine-view';
 import { stubFetch } from './fake-fetch';
+import { WEEK, HOUR, MON } from './board-week';
 
 // Every build of the engine's index, wherever it is asked for (the board's composables or the
 // engine's own analyseBoard, which imports the same module).
@@ -27,13 +28,6 @@ afterEach(() => {
   vi.unstubAllGlobals();
   built.count = 0;
 });
-
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
-  number,
-  number,
-][][];
-const HOUR = 3_600_000;
-const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
 
 /** Two crews; a job of a dig and a base pour, the dig booked Monday, the pour waiting in the tray. */
 function board(): BoardData {

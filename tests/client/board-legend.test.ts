@@ -13,17 +13,12 @@ import {
   problemsByBooking,
 } from '@/components/board/board-events';
 import { chipMarks } from '@/components/board/booking-chip';
+import { WEEK, HOUR, MON } from './board-week';
 
-const MON = Date.UTC(2026, 8, 14, 7);
-const HOUR = 3_600_000;
 const STATES: BookingState[] = ['pencilled', 'sent', 'confirmed', 'declined', 'on_site', 'done'];
 
 /** A board with a booking in every state, every marker, a busy-elsewhere block, a closure and a holiday. */
 function everything(): BoardData {
-  const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
-    number,
-    number,
-  ][][];
   return {
     from: MON - 24 * HOUR,
     to: MON + 7 * 24 * HOUR,

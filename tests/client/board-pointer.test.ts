@@ -3,13 +3,7 @@ import type { BoardData } from '@shared/board-data';
 import { boardLink } from '@shared/reports/context';
 import { hireBand, pointerFocus, pointerNotice, pointerOf, pointsAtAnything } from '@/components/board/board-pointer';
 import { boardVisibility, NO_FILTER } from '@/components/board/board-search';
-
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
-  number,
-  number,
-][][];
-const HOUR = 3_600_000;
-const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
+import { WEEK, HOUR, MON } from './board-week';
 
 /** Two jobs clashing on Crew Heron on Tuesday, and a hired excavator on hire Monday to Friday. */
 function board(): BoardData {

@@ -2,9 +2,8 @@ import { describe, expect, it } from 'vitest';
 import type { BoardData } from '@shared/board-data';
 import { boardVisibility, hiddenCited, hiddenNote, NO_FILTER } from '@/components/board/board-search';
 import { trayGroups, needsText } from '@/components/board/tray';
+import { WEEK, MON } from './board-week';
 
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as const;
-const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London
 const H = 3_600_000;
 
 /** Two jobs: TW-2417 in Otley (dig booked on the excavator, lift on Crew Heron), TW-2423 in Wetherby (dig on the dumper only). */

@@ -2,13 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { BoardData } from '@shared/board-data';
 import { boardAnalysisOf, boardIndexOf, seesAllBookingsAs } from '@/components/board/engine-view';
 import { stageLines } from '@/components/board/job-panel';
-
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
-  number,
-  number,
-][][];
-const HOUR = 3_600_000;
-const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
+import { WEEK, HOUR, MON } from './board-week';
 
 /**
  * A job of three stages in a row — dig (a day), pour the base (half a day), lift — where only the

@@ -4,13 +4,7 @@ import JobPanel from '@/components/board/JobPanel.vue';
 import PartnerRequests from '@/components/board/PartnerRequests.vue';
 import { boardAnalysisOf, boardIndexOf } from '@/components/board/engine-view';
 import { renderHtml } from './render';
-
-const WEEK = [[], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], [[480, 1020]], []] as [
-  number,
-  number,
-][][];
-const HOUR = 3_600_000;
-const MON = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
+import { WEEK, HOUR, MON } from './board-week';
 
 /**
  * An invented job of one stage, the electrical connection, booked on the installer's own labourer
