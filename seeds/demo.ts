@@ -451,6 +451,15 @@ export async function seedDemo(knex: Knex, options: { today?: Date } = {}): Prom
               groundType: GROUND_TYPES[i % GROUND_TYPES.length]!,
               buriedServicesNotes: 'Water supply pipe runs under the drive (deeds plan); scan before digging',
               craneStandingPosition: 'On the drive, outriggers on spreader mats',
+              // Settled with the householder on most surveys; one in five is still to agree (the crew is reminded).
+              unitFacing:
+                i % 5 === 4
+                  ? null
+                  : [
+                      'Controls towards the house, service side to the garden path',
+                      'Steps towards the patio doors, service side to the fence',
+                      'Controls facing the kitchen window, service side to the side gate',
+                    ][i % 3]!,
               craneDistanceToSetDownM: 8 + (i % 5),
               consumerUnitDistanceM: 12 + i,
               mainFuseAmps: [60, 80, 100][i % 3]!,

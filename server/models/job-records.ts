@@ -21,6 +21,8 @@ export class Survey extends ScopedModel {
   groundType!: string;
   buriedServicesNotes!: string | null;
   craneStandingPosition!: string | null;
+  /** Which way the unit faces (controls and service side); null until settled. */
+  unitFacing!: string | null;
   craneDistanceToSetDownM!: number | null;
   consumerUnitDistanceM!: number | null;
   /** Where the consumer unit is, in the surveyor's words; null when not recorded. */

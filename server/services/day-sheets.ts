@@ -31,6 +31,7 @@ type Row = Booking & {
   officeName: string;
   officePhone: string | null;
   unitName: string | null;
+  unitFacing: string | null;
   sharesCustomerContact: boolean | null;
   resourceFirmId: string;
   jobFirmId: string;
@@ -80,6 +81,7 @@ export class DaySheetsService {
       .join('jobs as j', 'j.id', 's.job_id')
       .join('firms as jf', 'jf.id', 'j.firm_id')
       .leftJoin('units as u', 'u.id', 'j.unit_id')
+      .leftJoin('surveys as sv', 'sv.job_id', 'j.id')
       .leftJoin('firm_settings as fs', 'fs.firm_id', 'j.firm_id')
       .where(bookingDuring(this.knex, 'bookings', from, to))
       .whereIn('bookings.state', visitStatesFor(actor))
@@ -104,6 +106,7 @@ export class DaySheetsService {
         'jf.name as officeName',
         'jf.phone as officePhone',
         'u.model as unitName',
+        'sv.unit_facing',
         'fs.share_customer_contact_with_partners as sharesCustomerContact',
         'r.firm_id as resourceFirmId',
         'j.firm_id as jobFirmId',
@@ -146,7 +149,13 @@ export class DaySheetsService {
         firmName: r.resourceFirmName,
       },
       stage: { id: r.stageId, kind: r.stageKind, name: r.stageName },
-      job: { id: r.jobId, reference: r.jobReference, unitName: r.unitName, installationType: r.installationType },
+      job: {
+        id: r.jobId,
+        reference: r.jobReference,
+        unitName: r.unitName,
+        installationType: r.installationType,
+        unitFacing: r.unitFacing ?? null,
+      },
       site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
       contacts: contactsFor(actor, {
         customerName: r.customerName,

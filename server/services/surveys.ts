@@ -21,6 +21,7 @@ function toView(s: Survey, surveyor: User | undefined): SurveyView {
     groundType: s.groundType as SurveyView['groundType'],
     buriedServicesNotes: s.buriedServicesNotes,
     craneStandingPosition: s.craneStandingPosition,
+    unitFacing: s.unitFacing ?? null,
     craneDistanceToSetDownM: s.craneDistanceToSetDownM,
     consumerUnitDistanceM: s.consumerUnitDistanceM,
     consumerUnitLocation: s.consumerUnitLocation ?? null,

@@ -11,7 +11,8 @@ export interface DaySheetVisit {
   endsAt: string;
   state: string;
   stage: { id: string; kind: string; name: string };
-  job: { id: string; reference: string; unitName: string | null; installationType: string };
+  /** `unitFacing`: which way the unit faces, from the survey (null until settled). */
+  job: { id: string; reference: string; unitName: string | null; installationType: string; unitFacing: string | null };
   site: { address: string; town: string; postcode: string; accessNotes: string | null };
   contacts: { name: string; phone: string | null; role: string }[];
   /** Other resources booked on the same stage (crane, plant, partner firms). */

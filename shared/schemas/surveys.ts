@@ -43,6 +43,11 @@ export const SurveyFields = z
     groundType: z.enum(GROUND_TYPES, { message: 'pick a ground type' }),
     buriedServicesNotes: multiLineText(2000).nullable().default(null),
     craneStandingPosition: oneLineText(500).nullable().default(null),
+    /**
+     * Which way the unit faces: its controls and service side ("controls towards the house"). It
+     * can't be turned once in a pit, so it is settled with the householder before the lift.
+     */
+    unitFacing: oneLineText(200).nullable().default(null),
     craneDistanceToSetDownM: metres.nullable().default(null),
     consumerUnitDistanceM: metres.nullable().default(null),
     /** Where the consumer unit is, in a few words ("Garage, left of the door"): the electrician plans the run from it. */

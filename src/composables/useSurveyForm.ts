@@ -18,6 +18,7 @@ const blank = (): SurveyDraft => ({
   groundType: null,
   buriedServicesNotes: null,
   craneStandingPosition: null,
+  unitFacing: null,
   craneDistanceToSetDownM: null,
   consumerUnitDistanceM: null,
   consumerUnitLocation: null,

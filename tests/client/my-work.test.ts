@@ -23,7 +23,7 @@ function item(id: string, day: string, startsAt: string, over: Partial<MyWorkIte
     actions: [],
     resource: { id: '7', name: 'Crew Heron', kind: 'install_crew', category: 'crew', firmName: 'Tideway Hot Tubs' },
     stage: { id: `s${id}`, kind: 'excavation', name: 'Excavate pit' },
-    job: { id: '12', reference: 'TW-2407', unitName: 'Solway 7', installationType: 'in_ground' },
+    job: { id: '12', reference: 'TW-2407', unitName: 'Solway 7', installationType: 'in_ground', unitFacing: null },
     site: {
       address: 'The Old Barn, Hall Lane',
       town: 'Bramhope',

@@ -103,6 +103,23 @@ describe('My work, as the crew sees it on a phone', () => {
     expect(list.items.every((i) => i.day >= '2026-06-01' && i.day < '2026-06-15')).toBe(true);
   });
 
+  it('carries which way the unit faces from the survey (null until settled), for the stages that set it down', async () => {
+    const card = () => myWork().then((l) => l.items.find((i) => i.bookingId === today)!);
+    expect((await card()).job.unitFacing).toBeNull();
+    const jobId = (await card()).job.id;
+    await ctx.knex('surveys').insert({
+      job_id: jobId,
+      access_width_mm: 900,
+      ground_type: 'clay',
+      unit_facing: 'Steps towards the patio doors',
+    });
+    try {
+      expect((await card()).job.unitFacing).toBe('Steps towards the patio doors');
+    } finally {
+      await ctx.knex('surveys').where({ job_id: jobId }).delete();
+    }
+  });
+
   it('puts the street, postcode, site contact, office phone and cautions on each card', async () => {
     const card = (await myWork()).items.find((i) => i.bookingId === today)!;
     expect(card.site).toEqual({ address: '9 Weir Street', town: 'Headingley', postcode: 'LS6 2AB', accessNotes: null });

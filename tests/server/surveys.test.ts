@@ -38,6 +38,7 @@ const SURVEY = {
   groundType: 'clay',
   buriedServicesNotes: 'Gas pipe along the side path (utility plan)',
   craneStandingPosition: 'Road outside no. 14',
+  unitFacing: 'Controls towards the house, service side to the gate',
   craneDistanceToSetDownM: 11.5,
   consumerUnitDistanceM: 14,
   mainFuseAmps: 60,
@@ -58,6 +59,7 @@ describe('the site survey', () => {
       accessWidthMm: 1200,
       mainFuseAmps: 60,
       craneDistanceToSetDownM: 11.5,
+      unitFacing: 'Controls towards the house, service side to the gate',
       surveyedBy: { name: 'Sam Okafor' },
     });
     expect((await ctx.knex('jobs').where('id', enquiry).first()).status).toBe('surveyed');
