@@ -8,6 +8,7 @@ import { findVisible, scoped } from './scope.ts';
 import { jobSupplies, latestAnswers, siteContacts } from './answer-views.ts';
 import { partnerSlotFacts } from './read-policy.ts';
 import { supplyLines } from '../../shared/slot-supply.ts';
+import { unitFacingLine } from '../../shared/unit-facing.ts';
 import { BookingWriter, type BookingLimits } from './booking-writes.ts';
 import { CERTIFIED_STAGE_KIND, partnerCertificates } from './certificates.ts';
 
@@ -35,6 +36,8 @@ type SlotRow = Booking & {
   widthMm: number | null;
   heightMm: number | null;
   dryWeightKg: number | null;
+  installationType: string;
+  unitFacing: string | null;
 };
 
 /**
@@ -62,6 +65,7 @@ export class PartnerSlotsService {
       .join('firms as i', 'i.id', 'j.firm_id')
       .join('resources as r', 'r.id', 'bookings.resource_id')
       .leftJoin('units as u', 'u.id', 'j.unit_id')
+      .leftJoin('surveys as sv', 'sv.job_id', 'j.id')
       .leftJoin('firm_settings as fs', 'fs.firm_id', 'j.firm_id')
       .whereIn('bookings.state', SHOWN)
       .where('bookings.ends_at', '>', from)
@@ -90,6 +94,8 @@ export class PartnerSlotsService {
         'j.customer_phone',
         'fs.share_customer_contact_with_partners as shares_customer_contact',
         'u.model as unit_model',
+        'j.installation_type',
+        'sv.unit_facing',
         'u.length_mm',
         'u.width_mm',
         'u.height_mm',
@@ -144,6 +150,7 @@ export class PartnerSlotsService {
           ? `${r.unitModel}, ${r.lengthMm} × ${r.widthMm} × ${r.heightMm} mm, ${r.dryWeightKg} kg dry`
           : null,
         supply: policy.supply ? supplyLines(policy.supply) : null,
+        facing: unitFacingLine(r.stageKind, r.installationType, r.unitFacing),
         contacts: policy.contacts,
         cautions: cautionsFor(r.stageKind),
         answer: answers.get(String(r.id)) ?? null,

@@ -98,6 +98,8 @@ export const PartnerSlot = z.object({
   /** The unit and, for electrical work, the house's supply and the unit's load as lines (shared/slot-supply.ts). */
   unit: z.string().nullable(),
   supply: z.array(z.string()).nullable(),
+  /** Which way the unit faces, for the delivery, lift and placement (shared/unit-facing.ts); null for other work. */
+  facing: z.string().nullable(),
   /** Whom to call on the day, as the read policy gives it (the householder only where the installer shares it). */
   contacts: z.array(z.object({ name: z.string(), phone: z.string().nullable(), role: z.string() })),
   cautions: z.array(z.string()),

@@ -16,6 +16,7 @@ function slot(id: string, state: string, startsAt: string): PartnerSlot {
     installer: { name: 'Tideway Hot Tubs', phone: null },
     unit: null,
     supply: null,
+    facing: null,
     contacts: [],
     cautions: [],
     answer: null,

@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, idOf, signIn, type Agent } from '../helpers/server.ts';
 import { pencilIn, startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
+import type { PartnerSlot } from '../../shared/schemas/answers.ts';
 
 let ctx: MailTestContext;
 let scheduler: Agent;
@@ -59,6 +60,40 @@ describe("a partner's own slots", () => {
     // A pencilled booking is the installer's private plan.
     expect(items.map((i) => i.state)).not.toContain('pencilled');
     expect(items.length).toBeGreaterThan(1);
+  });
+
+  it('tells the crane firm which way the unit faces on its lift, as the survey settled it (and nothing to the electrician)', async () => {
+    const crane = await signIn(ctx, account('partner', 'Fellside Crane Hire').email);
+    const lift = await pencilIn(ctx.knex, {
+      job: 'TW-2417',
+      stage: 'lift',
+      resource: '60 t mobile crane',
+      startsAt: '2027-08-05T08:00:00Z',
+      endsAt: '2027-08-05T12:00:00Z',
+      state: 'sent',
+    });
+    const jobId = await idOf(ctx.knex, 'jobs', { reference: 'TW-2417' });
+    const facingOf = async (agent: Agent, id: string) =>
+      ((await agent.get('/api/partner/slots?from=2026-05-01T00:00:00Z').expect(200)).body.items as PartnerSlot[]).find(
+        (i) => i.id === id,
+      )?.facing;
+    try {
+      // Not surveyed yet: an in-ground unit, so the crane firm is told it is still to settle.
+      expect(await facingOf(crane, lift.id)).toBe(
+        "Which way the unit faces is not settled: agree it with the householder before it goes in (it can't be turned in the pit)",
+      );
+      await ctx.knex('surveys').insert({
+        job_id: jobId,
+        access_width_mm: 900,
+        ground_type: 'clay',
+        unit_facing: 'Controls towards the house',
+      });
+      expect(await facingOf(crane, lift.id)).toBe('Unit faces: Controls towards the house');
+      expect(await facingOf(partner, slot)).toBeNull();
+    } finally {
+      await ctx.knex('surveys').where({ job_id: jobId }).delete();
+      await ctx.knex('bookings').where({ id: lift.id }).delete();
+    }
   });
 
   it('never shows the householder, their phone or e-mail, or any price', async () => {
