@@ -20,6 +20,9 @@ export interface BookingFacts {
     accessNotes: string | null;
     customerName: string;
     customerEmail: string | null;
+    installationType: string;
+    /** Which way the unit faces, from the survey (null until settled). */
+    unitFacing: string | null;
   };
   unit: { model: string; lengthMm: number; widthMm: number; heightMm: number; dryWeightKg: number } | null;
   installer: { id: string; name: string; phone: string | null; email: string | null; timeZone: string };
@@ -57,6 +60,8 @@ const FACT_COLUMNS = [
   'j.site_town',
   'j.site_postcode',
   'j.access_notes',
+  'j.installation_type',
+  'sv.unit_facing',
   'j.customer_name',
   'j.customer_email',
   'j.customer_phone',
@@ -80,6 +85,7 @@ function withJobAndInstaller(knex: Knex, base: Knex.QueryBuilder): Knex.QueryBui
     .join('jobs as j', 'j.id', 's.job_id')
     .join('firms as i', 'i.id', 'j.firm_id')
     .leftJoin('units as u', 'u.id', 'j.unit_id')
+    .leftJoin('surveys as sv', 'sv.job_id', 'j.id')
     .select(
       ...FACT_COLUMNS,
       knex.raw(
@@ -208,6 +214,8 @@ async function factsOf(knex: Knex, rows: FactRow[], resourceId?: string): Promis
         accessNotes: row.accessNotes,
         customerName: row.customerName,
         customerEmail: row.customerEmail,
+        installationType: row.installationType,
+        unitFacing: row.unitFacing ?? null,
       },
       unit: row.unitModel
         ? {

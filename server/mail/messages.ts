@@ -11,6 +11,7 @@ import { supplyLines } from '../../shared/slot-supply.ts';
 import { composePaymentRequest } from './payment-request.ts';
 import type { ObjectStore } from '../storage/object-store.ts';
 import { composeHandoverPack, composeServicePlanNotice } from './handover.ts';
+import { unitFacingLine } from '../../shared/unit-facing.ts';
 
 /** What the outbox can send; each row's payload carries ids only. */
 export const OUTBOX_KINDS = [
@@ -119,10 +120,19 @@ function slotLines(f: BookingFacts): MailContent['sections'] {
         `Unit: ${f.unit.model}, ${f.unit.lengthMm} × ${f.unit.widthMm} × ${f.unit.heightMm} mm, ${f.unit.dryWeightKg} kg dry`,
       ]
     : [];
+  const facing = unitFacingLine(f.stage.kind, f.job.installationType, f.job.unitFacing);
   const supply = f.forPartner.supply;
   return [
     { heading: 'When', lines: [when.date, `${when.window} (${when.zone})`] },
-    { heading: 'Work', lines: [`${f.stage.name} for job ${f.job.reference}`, `Booked: ${f.resource.name}`, ...unit] },
+    {
+      heading: 'Work',
+      lines: [
+        `${f.stage.name} for job ${f.job.reference}`,
+        `Booked: ${f.resource.name}`,
+        ...unit,
+        ...(facing ? [facing] : []),
+      ],
+    },
     ...(supply ? [{ heading: 'Electrical supply', lines: supplyLines(supply) }] : []),
     {
       heading: 'Site',

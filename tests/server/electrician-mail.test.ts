@@ -188,7 +188,7 @@ describe("the electrician's slot list", () => {
 });
 
 describe('a crane firm', () => {
-  it("is not sent the house's electrical supply", async () => {
+  it("is not sent the house's electrical supply, and is told which way the unit faces", async () => {
     const lift = await pencilIn(ctx.knex, {
       job: 'TW-2417',
       stage: 'lift',
@@ -206,6 +206,20 @@ describe('a crane firm', () => {
     expect(mail.text).not.toContain('ELECTRICAL SUPPLY');
     expect(mail.text).not.toContain('Main fuse');
     expect(mail.text).not.toContain('Unit load');
+    // Which way the in-ground unit faces: not settled on this survey, so the crane firm is told so…
+    expect(mail.text).toContain(
+      "Which way the unit faces is not settled: agree it with the householder before it goes in (it can't be turned in the pit)",
+    );
+    // …and once it is, the way it faces (the electrician's connection is never told either).
+    await ctx.knex('surveys').where('job_id', jobId).update({ unit_facing: 'Controls towards the house' });
+    try {
+      const again = await compose('booking_request', lift.id);
+      for (const body of [again.text, again.html]) expect(body).toContain('Unit faces: Controls towards the house');
+      const electrician = await compose('booking_request', slot);
+      expect(electrician.text).not.toMatch(/Unit faces|Which way the unit faces/);
+    } finally {
+      await ctx.knex('surveys').where('job_id', jobId).update({ unit_facing: null });
+    }
   });
 });
 
