@@ -20,9 +20,6 @@ export interface BookingFacts {
     accessNotes: string | null;
     customerName: string;
     customerEmail: string | null;
-    installationType: string;
-    /** Which way the unit faces, from the survey (null until settled). */
-    unitFacing: string | null;
   };
   unit: { model: string; lengthMm: number; widthMm: number; heightMm: number; dryWeightKg: number } | null;
   installer: { id: string; name: string; phone: string | null; email: string | null; timeZone: string };
@@ -35,7 +32,7 @@ export interface BookingFacts {
    * (services/read-policy.ts `partnerSlotFacts`): whom to call on the day, and the house's
    * supply for electrical work only. Partner-facing outputs read contacts and supply from here.
    */
-  forPartner: { contacts: VisitContact[]; supply: SlotSupply | null };
+  forPartner: { contacts: VisitContact[]; supply: SlotSupply | null; facing: string | null };
 }
 
 /** The booking as the audit log kept it when it was deleted. */
@@ -195,6 +192,9 @@ async function factsOf(knex: Knex, rows: FactRow[], resourceId?: string): Promis
       sharesCustomerContact: row.sharesCustomerContact === true,
       siteContact: contacts.get(slot.bookingId) ?? null,
       supply: supplies.get(slot.jobId)!,
+      stageKind: row.stageKind,
+      installationType: row.installationType,
+      unitFacing: row.unitFacing ?? null,
     });
     out.set(slot.bookingId, {
       booking: {
@@ -214,8 +214,6 @@ async function factsOf(knex: Knex, rows: FactRow[], resourceId?: string): Promis
         accessNotes: row.accessNotes,
         customerName: row.customerName,
         customerEmail: row.customerEmail,
-        installationType: row.installationType,
-        unitFacing: row.unitFacing ?? null,
       },
       unit: row.unitModel
         ? {

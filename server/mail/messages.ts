@@ -11,7 +11,6 @@ import { supplyLines } from '../../shared/slot-supply.ts';
 import { composePaymentRequest } from './payment-request.ts';
 import type { ObjectStore } from '../storage/object-store.ts';
 import { composeHandoverPack, composeServicePlanNotice } from './handover.ts';
-import { unitFacingLine } from '../../shared/unit-facing.ts';
 
 /** What the outbox can send; each row's payload carries ids only. */
 export const OUTBOX_KINDS = [
@@ -120,7 +119,7 @@ function slotLines(f: BookingFacts): MailContent['sections'] {
         `Unit: ${f.unit.model}, ${f.unit.lengthMm} × ${f.unit.widthMm} × ${f.unit.heightMm} mm, ${f.unit.dryWeightKg} kg dry`,
       ]
     : [];
-  const facing = unitFacingLine(f.stage.kind, f.job.installationType, f.job.unitFacing);
+  const facing = f.forPartner.facing;
   const supply = f.forPartner.supply;
   return [
     { heading: 'When', lines: [when.date, `${when.window} (${when.zone})`] },

@@ -25,7 +25,7 @@ export function slotDetails(f: BookingFacts): string {
     : '';
   return `<dl>
 <dt>Work</dt><dd>${e(f.stage.name)} for ${e(f.installer.name)} (job ${e(f.job.reference)})</dd>
-<dt>Booked</dt><dd>${e(f.resource.name)}</dd>${unit}${supply}
+<dt>Booked</dt><dd>${e(f.resource.name)}</dd>${unit}${f.forPartner.facing ? `<dt>Which way it faces</dt><dd>${e(f.forPartner.facing)}</dd>` : ''}${supply}
 <dt>When</dt><dd>${e(when.date)}<br>${e(when.window)} (${e(when.zone)})</dd>
 <dt>Site</dt><dd>${e(f.job.siteAddress)}, ${e(f.job.siteTown)} ${e(f.job.sitePostcode)}</dd>
 <dt>Access and parking</dt><dd>${e(f.job.accessNotes ?? 'Ask the installer before you travel.')}</dd>

@@ -8,7 +8,6 @@ import { findVisible, scoped } from './scope.ts';
 import { jobSupplies, latestAnswers, siteContacts } from './answer-views.ts';
 import { partnerSlotFacts } from './read-policy.ts';
 import { supplyLines } from '../../shared/slot-supply.ts';
-import { unitFacingLine } from '../../shared/unit-facing.ts';
 import { BookingWriter, type BookingLimits } from './booking-writes.ts';
 import { CERTIFIED_STAGE_KIND, partnerCertificates } from './certificates.ts';
 
@@ -134,6 +133,9 @@ export class PartnerSlotsService {
         sharesCustomerContact: r.sharesCustomerContact === true,
         siteContact: onSite.get(String(r.id)) ?? null,
         supply: supplies.get(String(r.jobId))!,
+        stageKind: r.stageKind,
+        installationType: r.installationType,
+        unitFacing: r.unitFacing,
       });
       return {
         id: String(r.id),
@@ -150,7 +152,7 @@ export class PartnerSlotsService {
           ? `${r.unitModel}, ${r.lengthMm} × ${r.widthMm} × ${r.heightMm} mm, ${r.dryWeightKg} kg dry`
           : null,
         supply: policy.supply ? supplyLines(policy.supply) : null,
-        facing: unitFacingLine(r.stageKind, r.installationType, r.unitFacing),
+        facing: policy.facing,
         contacts: policy.contacts,
         cautions: cautionsFor(r.stageKind),
         answer: answers.get(String(r.id)) ?? null,

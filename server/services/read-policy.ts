@@ -1,5 +1,6 @@
 import { reachOf, type Actor, type Reach } from './actor.ts';
 import type { SlotSupply } from '../../shared/slot-supply.ts';
+import { unitFacingLine } from '../../shared/unit-facing.ts';
 
 /**
  * The read policy: what each reach (installer office, crew, partner firm) may read, and which
@@ -97,20 +98,33 @@ export interface SlotFacts extends VisitFacts {
   /** The installer's own crew on the job that day, if any (its name and phone). */
   siteContact: { name: string; phone: string | null } | null;
   supply: SlotSupply;
+  /** The stage booked, the job's installation and which way the unit faces (the survey's; null until settled). */
+  stageKind: string;
+  installationType: string;
+  unitFacing: string | null;
 }
 
 /**
  * What a partner firm reads about one of its slots, with no signed-in actor (the e-mail and the
  * answer page) or as the partner coordinator (the slot list): whom to call — the installer's crew
  * on site that day, the office, and the householder only where the installer shares it — and the
- * house's supply only for electrical work (nobody else prepares for it).
+ * house's supply only for electrical work (nobody else prepares for it), and which way the unit
+ * faces only to those who set it down (the delivery, the lift, the placement).
  */
-export function partnerSlotFacts(f: SlotFacts): { contacts: VisitContact[]; supply: SlotSupply | null } {
+export function partnerSlotFacts(f: SlotFacts): {
+  contacts: VisitContact[];
+  supply: SlotSupply | null;
+  facing: string | null;
+} {
   const contacts: VisitContact[] = [
     ...(f.siteContact ? [{ name: f.siteContact.name, phone: f.siteContact.phone, role: 'On site that day' }] : []),
     ...contactsFor({ reach: 'partner' }, f),
   ];
-  return { contacts, supply: (SUPPLY_READING_KINDS as readonly string[]).includes(f.resourceKind) ? f.supply : null };
+  return {
+    contacts,
+    supply: (SUPPLY_READING_KINDS as readonly string[]).includes(f.resourceKind) ? f.supply : null,
+    facing: unitFacingLine(f.stageKind, f.installationType, f.unitFacing),
+  };
 }
 
 /** Another booking on the same stage, as the day sheet's "with" line may show it. */

@@ -5,6 +5,8 @@ import { account, idOf, signIn, startTestApp, type Agent, type TestContext } fro
 import { pencilIn } from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import { composeMessage, type OutboxKind, type OutgoingMail, type OutboxPayload } from '../../server/mail/messages.ts';
+import { loadBookingFacts } from '../../server/mail/facts.ts';
+import { slotDetails } from '../../server/pages/answers.ts';
 
 // TW-2417 (demo scenario): 56 Church Street, Bingley, householder Freya Lund (07700 900116,
 // freya@home.example), installer Tideway Hot Tubs (0113 496 0001). Priya Nair is Brightspark
@@ -215,6 +217,11 @@ describe('a crane firm', () => {
     try {
       const again = await compose('booking_request', lift.id);
       for (const body of [again.text, again.html]) expect(body).toContain('Unit faces: Controls towards the house');
+      // The answer page behind the e-mailed link says the same, through the same read policy.
+      const facts = await loadBookingFacts(ctx.knex, lift.id);
+      expect(slotDetails(facts!)).toContain(
+        '<dt>Which way it faces</dt><dd>Unit faces: Controls towards the house</dd>',
+      );
       const electrician = await compose('booking_request', slot);
       expect(electrician.text).not.toMatch(/Unit faces|Which way the unit faces/);
     } finally {
