@@ -4,7 +4,7 @@ import { SignJWT, jwtVerify, errors as joseErrors } from 'jose';
 import type { CertificateView, PutCertificateWaiver } from '../../shared/schemas/commissioning.ts';
 import { Booking, Job } from '../models/index.ts';
 import { ElectricalCertificate } from '../models/handover-records.ts';
-import { NotFoundError, UnprocessableError } from '../errors.ts';
+import { ConflictError, NotFoundError, UnprocessableError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { certificateForPartner, isOffice, readsHandoverRecords } from './read-policy.ts';
@@ -180,6 +180,17 @@ export class CertificatesService {
       const job = await scoped(Job, actor, trx).findById(jobId).forUpdate();
       if (!job || !isOffice(actor)) throw new NotFoundError('job');
       const before = await loadCertificate(trx, jobId);
+      const was = before.waiver?.reason ?? null;
+      // A reason someone else recorded, changed or took back since the page loaded is not replaced
+      // unseen, unless it is already what this save asks for.
+      if (input.reasonWas !== was && input.reason !== was) {
+        throw new ConflictError(
+          was === null
+            ? 'Someone else took the reason back since you loaded the page: reload to see it.'
+            : `Someone else recorded a reason since you loaded the page ("${was}"): reload to see it.`,
+          { code: 'stale-version', field: 'reasonWas', current: was },
+        );
+      }
       const patch = input.reason
         ? {
             certificate_waiver_reason: input.reason,

@@ -165,12 +165,32 @@ export class TemplatesService {
           current: await this.settings(actor, trx),
         });
       }
+      const depositWas = before?.depositPercent ?? DEFAULT_DEPOSIT_PERCENT;
+      const datumWas = before?.cureDatumC ?? DATUM_C;
+      // A value someone else changed since the form loaded it is not typed over, unless it is
+      // already what this save asks for (a repeated save changes nothing).
+      if (
+        input.depositPercent !== undefined &&
+        input.depositPercentWas !== depositWas &&
+        input.depositPercent !== depositWas
+      ) {
+        throw new ConflictError(
+          `Someone else set the deposit to ${depositWas} % since you loaded it: reload to see it before changing it.`,
+          { code: 'stale-version', field: 'depositPercentWas', current: await this.settings(actor, trx) },
+        );
+      }
+      if (input.cureDatumC !== undefined && input.cureDatumCWas !== datumWas && input.cureDatumC !== datumWas) {
+        throw new ConflictError(
+          `Someone else set the cure datum to ${datumWas} °C since you loaded it: reload to see it before changing it.`,
+          { code: 'stale-version', field: 'cureDatumCWas', current: await this.settings(actor, trx) },
+        );
+      }
       const was = {
         quantities: before?.quantities ?? {},
         keepPhotoLocation: before?.keepPhotoLocation ?? false,
         shareCustomerContactWithPartners: before?.shareCustomerContactWithPartners ?? false,
-        cureDatumC: before?.cureDatumC ?? DATUM_C,
-        depositPercent: before?.depositPercent ?? DEFAULT_DEPOSIT_PERCENT,
+        cureDatumC: datumWas,
+        depositPercent: depositWas,
         waterTargets: before?.waterTargets ?? {},
       };
       const now = {

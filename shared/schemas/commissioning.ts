@@ -64,9 +64,16 @@ export interface CommissioningView {
   canEdit: boolean;
 }
 
-/** PUT /api/jobs/:id/certificate-waiver: why the job may be handed over without the certificate (null takes it back). */
+/**
+ * PUT /api/jobs/:id/certificate-waiver: why the job may be handed over without the certificate (null
+ * takes it back). `reasonWas` is the reason as the page loaded it (null: none), so a reason someone
+ * else has recorded or taken back since is not quietly replaced (409).
+ */
 export const PutCertificateWaiver = z.object({
   reason: multiLineText(1000).pipe(z.string().min(1, 'say why')).nullable(),
+  reasonWas: z
+    .string({ message: 'must be the reason as loaded (GET waiver.reason), or null when there was none' })
+    .nullable(),
 });
 export type PutCertificateWaiver = z.infer<typeof PutCertificateWaiver>;
 

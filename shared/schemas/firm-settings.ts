@@ -91,8 +91,9 @@ export type WaterTargetsPatch = z.infer<typeof WaterTargetsPatch>;
 
 /**
  * PUT /api/firm/settings. `version` guards the quantity figures: a form of many values where a save
- * based on old figures would quietly undo someone else's. The photo switch is one yes/no whose
- * request states the whole outcome, so it may be sent on its own without a version.
+ * based on old figures would quietly undo someone else's. The water targets, the deposit percentage
+ * and the cure datum each come with the value as loaded (`…Was`) for the same reason. The photo and
+ * sharing switches are yes/no: flipping one states the whole outcome, so it is sent on its own.
  */
 export const PutFirmSettings = z
   .object({
@@ -105,7 +106,7 @@ export const PutFirmSettings = z
     /**
      * The firm's concrete's Nurse–Saul datum temperature, °C, for the cure from the site's weather.
      * ASTM C1074 asks for it to be found for the mix and recommends 0 °C as the working default.
-     * One value whose request states the whole outcome, so no version (as the switches).
+     * Sent with `cureDatumCWas`.
      */
     cureDatumC: z
       .number({ message: 'must be a temperature in °C' })
@@ -120,13 +121,23 @@ export const PutFirmSettings = z
     waterTargetsWas: z
       .record(z.string(), z.unknown(), { message: 'must be the water targets as loaded (GET waterTargets)' })
       .optional(),
-    /** The deposit asked for by default, as a whole percentage of the job's price (25 unless set). */
+    /** The deposit asked for by default, as a whole percentage of the job's price (25 unless set); sent with `depositPercentWas`. */
     depositPercent: z
       .number({ message: 'must be a whole percentage from 1 to 100' })
       .int('must be a whole percentage from 1 to 100')
       .min(1, 'must be a whole percentage from 1 to 100')
       .max(100, 'must be a whole percentage from 1 to 100')
       .optional(),
+    /**
+     * The deposit percentage and the cure datum as the form loaded them (GET's values). A number
+     * typed over one someone else has just changed would quietly undo theirs, so a save based on an
+     * old value is refused (409); the switches need none: flipping one from what you saw can only
+     * ask for what it already is when someone else flipped it first.
+     */
+    depositPercentWas: z
+      .number({ message: 'must be the deposit percentage as loaded (GET depositPercent)' })
+      .optional(),
+    cureDatumCWas: z.number({ message: 'must be the cure datum as loaded (GET cureDatumC)' }).optional(),
   })
   .refine((s) => s.quantities === undefined || s.version !== undefined, {
     path: ['version'],
@@ -135,6 +146,14 @@ export const PutFirmSettings = z
   .refine((s) => s.waterTargets === undefined || s.waterTargetsWas !== undefined, {
     path: ['waterTargetsWas'],
     message: 'is required when changing the water targets: the targets you loaded',
+  })
+  .refine((s) => s.depositPercent === undefined || s.depositPercentWas !== undefined, {
+    path: ['depositPercentWas'],
+    message: 'is required when changing the deposit percentage: the percentage you loaded',
+  })
+  .refine((s) => s.cureDatumC === undefined || s.cureDatumCWas !== undefined, {
+    path: ['cureDatumCWas'],
+    message: 'is required when changing the cure datum: the datum you loaded',
   })
   .refine(
     (s) =>

@@ -64,4 +64,32 @@ describe('office pages on a phone', () => {
     expect(await overflow()).toBeLessThanOrEqual(1);
     await page.screenshot({ path: 'tests/e2e/artifacts/templates-phone.png' });
   });
+
+  it('refuses a deposit typed on a page loaded before someone else changed it, and shows theirs', async () => {
+    await page.goto(`${app.url}/firm`);
+    const box = page.locator('#deposit-percent');
+    await box.waitFor();
+    expect(await box.inputValue()).toBe('25');
+    // Another tab of the same owner saves 30 % meanwhile.
+    const other = await page.context().newPage();
+    await other.goto(`${app.url}/firm`);
+    await other.locator('#deposit-percent').fill('30');
+    await other.locator('#deposit-percent').press('Tab');
+    await other.locator('form.deposit button[type=submit]').click();
+    await other.getByText('Deposits are now asked for at 30 % of the price').waitFor();
+    try {
+      await box.fill('20');
+      await box.press('Tab');
+      await page.locator('form.deposit button[type=submit]').click();
+      await page.getByText('Someone else set the deposit to 30 % since you loaded it').waitFor();
+      // The card now shows theirs, so the next save is made knowing it.
+      await expect.poll(() => box.inputValue()).toBe('30');
+    } finally {
+      await other.locator('#deposit-percent').fill('25');
+      await other.locator('#deposit-percent').press('Tab');
+      await other.locator('form.deposit button[type=submit]').click();
+      await other.getByText('Deposits are now asked for at 25 % of the price').waitFor();
+      await other.close();
+    }
+  });
 });

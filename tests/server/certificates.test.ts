@@ -44,8 +44,8 @@ const finish = async (id: string, as: Agent = crew) =>
     .post(`/api/bookings/${id}/progress`)
     .set('X-CSRF-Token', as.csrf)
     .send({ action: 'finish', version: await versionOf(id) });
-const waive = (reference: string, reason: unknown, as: Agent = scheduler) =>
-  as.put(`/api/jobs/${job[reference]}/certificate-waiver`).set('X-CSRF-Token', as.csrf).send({ reason });
+const waive = (reference: string, reason: unknown, reasonWas: string | null, as: Agent = scheduler) =>
+  as.put(`/api/jobs/${job[reference]}/certificate-waiver`).set('X-CSRF-Token', as.csrf).send({ reason, reasonWas });
 /** The householder's signed handover, as a fixture (tests/server/handover.test.ts signs through the page). */
 async function signedHandover(reference: string): Promise<void> {
   const [file] = await ctx
@@ -85,6 +85,7 @@ beforeAll(async () => {
     // The crew is on site for the handover (only possible on its day through the app; the demo's is later).
     await ctx.knex('bookings').where('id', handover[reference]).increment('version', 1).update({ state: 'on_site' });
   }
+  job['TW-2403'] = await idOf(ctx.knex, 'jobs', { reference: 'TW-2403' });
   jpeg = await sharp({ create: { width: 64, height: 64, channels: 3, background: { r: 200, g: 200, b: 200 } } })
     .jpeg()
     .toBuffer();
@@ -166,7 +167,7 @@ describe('the installer', () => {
   it('is the only installer who does: another installer gets 404, a partner firm 403', async () => {
     expect((await otherInstaller.get(`/api/jobs/${job['TW-2401']}/certificate`)).status).toBe(404);
     expect((await electrician.get(`/api/jobs/${job['TW-2401']}/certificate`)).status).toBe(403);
-    expect((await waive('TW-2401', 'Not needed', otherInstaller)).status).toBe(404);
+    expect((await waive('TW-2401', 'Not needed', null, otherInstaller)).status).toBe(404);
   });
 
   it('can now hand the job over, once the householder has signed', async () => {
@@ -186,28 +187,56 @@ describe('the installer', () => {
 describe("the office's waiver", () => {
   it('lets a job without a certificate be handed over once the reason is recorded', async () => {
     expect((await finish(handover['TW-2402']!)).status).toBe(409);
-    expect((await waive('TW-2402', 'ok', viewer)).status).toBe(403);
-    const empty = await waive('TW-2402', '   ');
+    expect((await waive('TW-2402', 'ok', null, viewer)).status).toBe(403);
+    const empty = await waive('TW-2402', '   ', null);
     expect(empty.status).toBe(400);
     expect(empty.body.errors[0].field).toBe('reason');
-    const saved = (
-      await waive('TW-2402', 'Unit plugs into the existing outdoor socket; no new circuit was made.').expect(200)
-    ).body;
-    expect(saved.waiver).toMatchObject({
-      reason: 'Unit plugs into the existing outdoor socket; no new circuit was made.',
-      by: 'Sam Okafor',
-      at: TEST_TODAY.toISOString(),
-    });
+    const socket = 'Unit plugs into the existing outdoor socket; no new circuit was made.';
+    const saved = (await waive('TW-2402', socket, null).expect(200)).body;
+    expect(saved.waiver).toMatchObject({ reason: socket, by: 'Sam Okafor', at: TEST_TODAY.toISOString() });
     expect(saved.certificate).toBeNull();
     // Taken back, the gate closes again; recorded again, it opens.
-    await waive('TW-2402', null).expect(200);
+    await waive('TW-2402', null, socket).expect(200);
     expect((await finish(handover['TW-2402']!)).status).toBe(409);
-    await waive('TW-2402', 'Unit plugs into the existing outdoor socket; no new circuit was made.').expect(200);
+    await waive('TW-2402', socket, null).expect(200);
     expect((await finish(handover['TW-2402']!)).body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/handover-unsigned`);
     await signedHandover('TW-2402');
     const res = await finish(handover['TW-2402']!);
     expect(res.status).toBe(200);
     expect(res.body.state).toBe('done');
+  });
+});
+
+describe("the office's waiver, from two pages at once", () => {
+  it('is never replaced or taken back unseen: a save from a page loaded before another change gets 409', async () => {
+    const first = 'Householder’s own electrician connects it next week.';
+    // Both pages load the job with no reason; the first records one.
+    await waive('TW-2403', first, null).expect(200);
+    const second = await waive('TW-2403', 'Plugs into the existing socket.', null).expect(409);
+    expect(second.body).toMatchObject({
+      code: 'stale-version',
+      field: 'reasonWas',
+      current: first,
+      detail: `Someone else recorded a reason since you loaded the page ("${first}"): reload to see it.`,
+    });
+    // A page that loaded no reason cannot take back the one recorded since.
+    expect((await waive('TW-2403', null, null).expect(409)).body.current).toBe(first);
+    expect((await scheduler.get(`/api/jobs/${job['TW-2403']}/certificate`).expect(200)).body.waiver.reason).toBe(first);
+    // Taken back by one page, the other page's change of wording is refused too.
+    await waive('TW-2403', null, first).expect(200);
+    expect((await waive('TW-2403', 'Changed wording.', first).expect(409)).body.detail).toBe(
+      'Someone else took the reason back since you loaded the page: reload to see it.',
+    );
+    // Asking for what it already is changes nothing and is no conflict; reasonWas must be sent.
+    await waive('TW-2403', null, first).expect(200);
+    const missing = await scheduler
+      .put(`/api/jobs/${job['TW-2403']}/certificate-waiver`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ reason: 'x' })
+      .expect(400);
+    expect(missing.body.errors).toEqual([
+      { field: 'reasonWas', message: 'must be the reason as loaded (GET waiver.reason), or null when there was none' },
+    ]);
   });
 });
 

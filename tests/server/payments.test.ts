@@ -385,13 +385,22 @@ describe("the firm's own deposit percentage", () => {
   it('the owner sets it on the firm settings; the next deposit is asked for from it', async () => {
     const owner = await signIn(ctx, account('owner').email);
     for (const depositPercent of [0, 101, 12.5, '30']) {
-      const res = await put('/api/firm/settings', { depositPercent }, owner).expect(400);
+      const res = await put('/api/firm/settings', { depositPercent, depositPercentWas: 25 }, owner).expect(400);
       expect(res.body.errors).toEqual([
         { field: 'depositPercent', message: 'must be a whole percentage from 1 to 100' },
       ]);
     }
-    await put('/api/firm/settings', { depositPercent: 30 }).expect(403);
-    expect((await put('/api/firm/settings', { depositPercent: 30 }, owner).expect(200)).body.depositPercent).toBe(30);
+    await put('/api/firm/settings', { depositPercent: 30, depositPercentWas: 25 }).expect(403);
+    expect((await put('/api/firm/settings', { depositPercent: 30 }, owner).expect(400)).body.errors).toEqual([
+      {
+        field: 'depositPercentWas',
+        message: 'is required when changing the deposit percentage: the percentage you loaded',
+      },
+    ]);
+    expect(
+      (await put('/api/firm/settings', { depositPercent: 30, depositPercentWas: 25 }, owner).expect(200)).body
+        .depositPercent,
+    ).toBe(30);
     try {
       // A Tideway job nobody has asked money for yet.
       const { id: jobId } = await ctx
@@ -416,7 +425,27 @@ describe("the firm's own deposit percentage", () => {
       const crew = await signIn(ctx, account('crew').email);
       expect((await crew.get('/api/firm/settings').expect(200)).body).not.toHaveProperty('depositPercent');
     } finally {
-      await put('/api/firm/settings', { depositPercent: 25 }, owner).expect(200);
+      await put('/api/firm/settings', { depositPercent: 25, depositPercentWas: 30 }, owner).expect(200);
+    }
+  });
+
+  it('a save based on a percentage someone else has changed since is refused, not typed over theirs', async () => {
+    const owner = await signIn(ctx, account('owner').email);
+    // Two tabs load 25 %; the first saves 30 %.
+    await put('/api/firm/settings', { depositPercent: 30, depositPercentWas: 25 }, owner).expect(200);
+    try {
+      const stale = await put('/api/firm/settings', { depositPercent: 20, depositPercentWas: 25 }, owner).expect(409);
+      expect(stale.body).toMatchObject({
+        code: 'stale-version',
+        field: 'depositPercentWas',
+        detail: 'Someone else set the deposit to 30 % since you loaded it: reload to see it before changing it.',
+        current: { depositPercent: 30 },
+      });
+      expect((await owner.get('/api/firm/settings').expect(200)).body.depositPercent).toBe(30);
+      // Saving what it already is changes nothing and is no conflict.
+      await put('/api/firm/settings', { depositPercent: 30, depositPercentWas: 25 }, owner).expect(200);
+    } finally {
+      await put('/api/firm/settings', { depositPercent: 25, depositPercentWas: 30 }, owner).expect(200);
     }
   });
 });

@@ -180,11 +180,19 @@ describe('the cure from the site forecast', () => {
   });
 
   it("counts above the firm's own datum when it sets one", async () => {
-    expect(fieldsOf((await write(owner, 'put', '/api/firm/settings', { cureDatumC: 40 }).expect(400)).body)).toEqual({
-      cureDatumC: 'must be between −15 and 15 °C',
+    expect(
+      fieldsOf(
+        (await write(owner, 'put', '/api/firm/settings', { cureDatumC: 40, cureDatumCWas: 0 }).expect(400)).body,
+      ),
+    ).toEqual({ cureDatumC: 'must be between −15 and 15 °C' });
+    expect(fieldsOf((await write(owner, 'put', '/api/firm/settings', { cureDatumC: 5 }).expect(400)).body)).toEqual({
+      cureDatumCWas: 'is required when changing the cure datum: the datum you loaded',
     });
-    await write(scheduler, 'put', '/api/firm/settings', { cureDatumC: 5 }).expect(403);
-    expect((await write(owner, 'put', '/api/firm/settings', { cureDatumC: 5 }).expect(200)).body.cureDatumC).toBe(5);
+    await write(scheduler, 'put', '/api/firm/settings', { cureDatumC: 5, cureDatumCWas: 0 }).expect(403);
+    expect(
+      (await write(owner, 'put', '/api/firm/settings', { cureDatumC: 5, cureDatumCWas: 0 }).expect(200)).body
+        .cureDatumC,
+    ).toBe(5);
     try {
       // Datum 5 °C on June's 13.7 °C: (13.7 − 5) / (23 − 5) = 0.483333 a day; 6.913580 / 0.483333 = 14.303959 days:
       // 2 Jun 12:00 + 14 d = 16 Jun 12:00, + 0.303959 d (7 h 17.7 min) = 16 Jun 19:17.7 → 19:18 UTC.
@@ -192,8 +200,14 @@ describe('the cure from the site forecast', () => {
       expect(cure.datumC).toBe(5);
       expect(new Date(cure.releaseAt).toISOString()).toBe('2026-06-16T19:18:00.000Z');
       expect(cure.summary).toContain('datum 5 °C, reference 23 °C');
+      // A second tab that loaded 0 °C does not type over the 5 °C saved since.
+      const stale = await write(owner, 'put', '/api/firm/settings', { cureDatumC: -2, cureDatumCWas: 0 }).expect(409);
+      expect(stale.body).toMatchObject({ code: 'stale-version', field: 'cureDatumCWas', current: { cureDatumC: 5 } });
+      expect(stale.body.detail).toBe(
+        'Someone else set the cure datum to 5 °C since you loaded it: reload to see it before changing it.',
+      );
     } finally {
-      await write(owner, 'put', '/api/firm/settings', { cureDatumC: 0 }).expect(200);
+      await write(owner, 'put', '/api/firm/settings', { cureDatumC: 0, cureDatumCWas: 5 }).expect(200);
     }
   });
 });
