@@ -6,6 +6,11 @@
 
 /** The stages that set the unit down where it stays. */
 const GOING_IN = new Set(['delivery', 'lift', 'placement']);
+
+/** Whether a stage sets the unit down where it stays (the delivery, the lift, the placement). */
+export function setsUnitDown(stageKind: string): boolean {
+  return GOING_IN.has(stageKind);
+}
 /** Installations where a unit set down in the wrong way can't be turned. */
 const CANT_TURN = new Set(['in_ground', 'semi_recessed']);
 

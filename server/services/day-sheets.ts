@@ -9,7 +9,7 @@ import { Booking, Firm } from '../models/index.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { bookingDuring } from './ranges.ts';
-import { alongsideFor, contactsFor, visitStatesFor, type AlongsideRow } from './read-policy.ts';
+import { alongsideFor, contactsFor, unitFacingFor, visitStatesFor, type AlongsideRow } from './read-policy.ts';
 
 type Row = Booking & {
   resourceName: string;
@@ -154,7 +154,7 @@ export class DaySheetsService {
         reference: r.jobReference,
         unitName: r.unitName,
         installationType: r.installationType,
-        unitFacing: r.unitFacing ?? null,
+        unitFacing: unitFacingFor(actor, r.stageKind, r.unitFacing ?? null),
       },
       site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
       contacts: contactsFor(actor, {

@@ -1,6 +1,6 @@
 import { reachOf, type Actor, type Reach } from './actor.ts';
 import type { SlotSupply } from '../../shared/slot-supply.ts';
-import { unitFacingLine } from '../../shared/unit-facing.ts';
+import { setsUnitDown, unitFacingLine } from '../../shared/unit-facing.ts';
 
 /**
  * The read policy: what each reach (installer office, crew, partner firm) may read, and which
@@ -54,6 +54,16 @@ export function jobForReader<J extends { customerPhone: string | null; customerE
 /** The householder's name on the board: the office only (crew and partners plan nothing by it). */
 export function boardCustomerName(actor: Actor, name: string): string {
   return isOffice(actor) ? name : '';
+}
+
+/**
+ * Which way the unit faces, as the survey recorded it, for a reader's visit of a stage: the
+ * installer's office and crew on any of their job's stages (the pit is dug to it); a partner firm
+ * only on the stages that set the unit down (the delivery, the lift, the placement), as
+ * `partnerSlotFacts` says it on their slots and e-mails.
+ */
+export function unitFacingFor(actor: Actor, stageKind: string, unitFacing: string | null): string | null {
+  return reachOf(actor) !== 'partner' || setsUnitDown(stageKind) ? unitFacing : null;
 }
 
 /** Everything a day-sheet visit could tell; `contactsFor` and `alongsideFor` pick what a reader gets. */

@@ -5,6 +5,8 @@ import { account, idOf, signIn, type Agent } from '../helpers/server.ts';
 import { pencilIn, startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import type { PartnerSlot } from '../../shared/schemas/answers.ts';
+import type { DaySheetList } from '../../shared/schemas/day-sheets.ts';
+import { unitFacingFor } from '../../server/services/read-policy.ts';
 
 let ctx: MailTestContext;
 let scheduler: Agent;
@@ -90,6 +92,23 @@ describe("a partner's own slots", () => {
       });
       expect(await facingOf(crane, lift.id)).toBe('Unit faces: Controls towards the house');
       expect(await facingOf(partner, slot)).toBeNull();
+      // Their day sheets follow the same read policy (a day sheet lists people, so the crane,
+      // a machine, is on none): the electrician's connection does not carry it.
+      const facingOnSheet = async (agent: Agent, date: string, id: string, path = '/api/partner/day-sheets') =>
+        ((await agent.get(path).query({ date }).expect(200)).body as DaySheetList).sheets
+          .flatMap((sh) => sh.visits)
+          .find((v) => v.bookingId === id)?.job;
+      const connection = await facingOnSheet(partner, '2027-08-03', slot);
+      expect(connection?.reference).toBe('TW-2417');
+      expect(connection?.unitFacing).toBeNull();
+      // The installer's own office sees it on every stage of its job (the pit is dug to it).
+      expect((await facingOnSheet(scheduler, '2027-08-03', slot, '/api/day-sheets'))?.unitFacing).toBe(
+        'Controls towards the house',
+      );
+      // A partner's person on a stage that sets the unit down is told (a haulier's driver, a crane operator).
+      const partnerActor = { userId: '1', firmId: '2', firmKind: 'haulage', role: 'partner' } as const;
+      expect(unitFacingFor(partnerActor, 'delivery', 'Controls towards the house')).toBe('Controls towards the house');
+      expect(unitFacingFor(partnerActor, 'electrical_connect', 'Controls towards the house')).toBeNull();
     } finally {
       await ctx.knex('surveys').where({ job_id: jobId }).delete();
       await ctx.knex('bookings').where({ id: lift.id }).delete();
