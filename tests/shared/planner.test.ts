@@ -308,6 +308,77 @@ describe('a delivery wanted on the lift day (delivery and lift day: lorry, crane
     expect(analyseBoard(placedBoard(board, result), { now: JUNE_1 }).errorCount).toBe(0);
   });
 
+  /** The crane out on another firm's job over [from, to). */
+  const withCraneBusy = (from: number, to: number): Board => {
+    const board = plannedBoard();
+    board.jobs.push({ id: 'elsewhere', firmId: 'other' });
+    board.stages.push({
+      id: 'other-lift',
+      jobId: 'elsewhere',
+      kind: 'lift',
+      name: 'Lift elsewhere',
+      durationMinutes: 60,
+      requirements: [{ kind: 'crane', count: 1 }],
+      mayContinueNextDay: true,
+    });
+    board.bookings.push({
+      id: 'other-lift-1',
+      stageId: 'other-lift',
+      resourceId: 'crane',
+      start: from,
+      end: to,
+      state: 'confirmed',
+      installerFirmId: 'other',
+    });
+    return board;
+  };
+
+  it.each([0, 300])(
+    'comes the same morning when the lift would start the day: the lift waits for the lorry (budget %i ms)',
+    (budgetMs) => {
+      // The crane is out all Wednesday: the lift's earliest is then Thu 11 Jun 08:00, the start of
+      // the day, with no room for the lorry's two hours before it. The lift moves to 10:00 so the
+      // unit comes off the lorry that morning, instead of standing on the drive overnight.
+      const board = withCraneBusy(at(2026, 6, 10, 8), at(2026, 6, 10, 17));
+      const { result, delivery, lift } = placedAt(board, budgetMs);
+      expect(result.unplaced).toEqual([]);
+      expect(delivery).toMatchObject({ start: at(2026, 6, 11, 8), end: at(2026, 6, 11, 10) });
+      expect(lift).toMatchObject({ start: at(2026, 6, 11, 10), end: at(2026, 6, 11, 14) });
+      // Every booking of the lift moved with it (crane, crew, pallet trucks, rollers).
+      const liftBookings = result.bookings.filter((b) => b.stageId === 'lift');
+      expect(liftBookings.map((b) => b.start)).toEqual(liftBookings.map(() => at(2026, 6, 11, 10)));
+      expect(liftBookings).toHaveLength(5);
+      expect(analyseBoard(placedBoard(board, result), { now: JUNE_1 }).errorCount).toBe(0);
+    },
+  );
+
+  it('comes on the Monday of a Monday lift, not the Friday before (the unit never stands out over a weekend)', () => {
+    // The crane is out Wed 10 to Fri 12 Jun: the lift's earliest is Mon 15 Jun 08:00.
+    const board = withCraneBusy(at(2026, 6, 10, 8), at(2026, 6, 12, 17));
+    const { result, delivery, lift } = placedAt(board, 0);
+    expect(delivery).toMatchObject({ start: at(2026, 6, 15, 8), end: at(2026, 6, 15, 10) });
+    expect(lift?.start).toBe(at(2026, 6, 15, 10));
+    expect(analyseBoard(placedBoard(board, result), { now: JUNE_1 }).errorCount).toBe(0);
+  });
+
+  it('comes the afternoon before when the lift cannot wait that morning (the crane is wanted elsewhere after it)', () => {
+    // Crane out all Wednesday and from 12:00 on Thursday: the lift has Thu 08:00–12:00 and no later.
+    const board = withCraneBusy(at(2026, 6, 10, 8), at(2026, 6, 10, 17));
+    board.bookings.push({
+      id: 'other-lift-2',
+      stageId: 'other-lift',
+      resourceId: 'crane',
+      start: at(2026, 6, 11, 12),
+      end: at(2026, 6, 11, 17),
+      state: 'confirmed',
+      installerFirmId: 'other',
+    });
+    const { result, delivery, lift } = placedAt(board, 0);
+    expect(lift).toMatchObject({ start: at(2026, 6, 11, 8), end: at(2026, 6, 11, 12) });
+    expect(delivery).toMatchObject({ start: at(2026, 6, 10, 15), end: at(2026, 6, 10, 17) });
+    expect(analyseBoard(placedBoard(board, result), { now: JUNE_1 }).errorCount).toBe(0);
+  });
+
   it('stays where the serial scheme put it when the lorry is busy every later day', () => {
     const board = withLorryBusy(at(2026, 6, 8, 11), at(2026, 6, 10, 17));
     const { result, delivery } = placedAt(board, 0);

@@ -5,8 +5,14 @@ import {
   stageCalendarOf,
   type BoardIndex,
 } from '../board-index.js';
-import { bookableStart, mustFitInOneDay, roundDownToStep } from '../booking-step.js';
-import { addWorkingMinutes, compileCalendar, isWorkingInstant } from '../calendar.js';
+import { bookableStart, mustFitInOneDay, roundDownToStep, roundUpToStep } from '../booking-step.js';
+import {
+  addWorkingMinutes,
+  compileCalendar,
+  isWorkingInstant,
+  workingMinutesBetween,
+  type CompiledCalendar,
+} from '../calendar.js';
 import { overlappingOnResource } from '../checks/clash.js';
 import { idleHireDays } from '../checks/hire.js';
 import { leadTimeEarliest } from '../checks/lead-time.js';
@@ -14,6 +20,7 @@ import { earliestStartFromPredecessors } from '../checks/order.js';
 import { capitalise, makeViolation, resourceLabel, type BookingsOf } from '../checks/violation.js';
 import { checkStageBookings } from '../check-move.js';
 import { formatInstant } from '../format.js';
+import { movedBookings } from '../move.js';
 import { laterCannotHelp, nextCandidate } from '../slot-finder.js';
 import { DAY_MS } from '../time-zone.js';
 import type { Booking, Instant, Resource, Stage, Violation } from '../types.js';
@@ -203,6 +210,7 @@ export function placeStages(
     },
   };
   const failed = new Set<string>();
+  const late = new Map(stages.filter((s) => s.justInTime === true).map((s) => [s.id, s]));
   const booked = (id: string): boolean => bookingsOfStage(index, id).length > 0;
   const seq = { n: 0 };
   const crewOf = new Map<string, Set<string>>();
@@ -293,9 +301,18 @@ export function placeStages(
       end: Math.max(...placed.map((b) => b.end)),
       resourceIds: placed.map((b) => b.resourceId),
     });
+    // A stage wanted just in time goes as late as the stages after it allow as soon as they are
+    // all placed: before anything after them is, so the one after it may still move later that
+    // morning to have both on one day (togetherThatMorning).
+    for (const l of index.stages.get(stage.id)?.depsIn ?? []) {
+      const wanted = late.get(l.from.stage.id);
+      if (wanted === undefined || !l.from.depsOut.every((o) => o.to.bookings.length > 0)) continue;
+      late.delete(wanted.id);
+      const k = out.placed.findIndex((x) => x.stageId === wanted.id);
+      if (k >= 0) pullLater(index, wanted, k, out, seq);
+    }
   }
-  // Last, from the end back: the stages wanted just in time, as late as the stages after them allow.
-  const late = new Map(stages.filter((s) => s.justInTime === true).map((s) => [s.id, s]));
+  // Last, from the end back: those whose stages after them were not all placed.
   for (let k = out.placed.length - 1; k >= 0 && late.size > 0; k--) {
     const stage = late.get((out.placed[k] as PlacedStage).stageId);
     if (stage !== undefined) pullLater(index, stage, k, out, seq);
@@ -320,6 +337,7 @@ function pullLater(index: BoardIndex, stage: Stage, k: number, out: Placement, s
   for (const b of old) removeBooking(index, b);
   const cal = compileCalendar(stageCalendarOf(index, stage.id, []));
   const firmId = index.jobs.get(stage.jobId)?.firmId ?? '';
+  if (togetherThatMorning(index, stage, k, out, seq, old, deadline, cal, firmId)) return;
   for (let day = cal.dayOf(deadline - 1); day >= cal.dayOf(p.start); day--) {
     const ivs = cal.dayIntervals(day);
     if (ivs.length === 0) continue;
@@ -349,6 +367,79 @@ function pullLater(index: BoardIndex, stage: Stage, k: number, out: Placement, s
     return;
   }
   for (const b of old) insertBooking(index, b);
+}
+
+/**
+ * The delivery and the lift on one morning ("delivery and lift day: lorry, crane and crew on site
+ * together"): where the one stage after the just-in-time stage starts as its working day begins,
+ * so no room is left before it that day, and was placed in this same run, it moves later that
+ * day by the just-in-time stage's length and the just-in-time stage goes first, from the start of
+ * the day. Both must pass every engine check where they land (the stage after it with its own
+ * successors, resources and hire); otherwise both stay as they were and the caller tries the
+ * days before. The just-in-time stage's bookings are out of the index when this is called.
+ */
+function togetherThatMorning(
+  index: BoardIndex,
+  stage: Stage,
+  k: number,
+  out: Placement,
+  seq: { n: number },
+  old: readonly Booking[],
+  deadline: Instant,
+  cal: CompiledCalendar,
+  firmId: string,
+): boolean {
+  const links = index.stages.get(stage.id)?.depsOut ?? [];
+  const link = links[0];
+  if (links.length !== 1 || link === undefined || link.dep.lag.amount !== 0) return false;
+  const next = link.to.stage;
+  const kNext = out.placed.findIndex((x) => x.stageId === next.id);
+  if (kNext < 0) return false;
+  const ivs = cal.dayIntervals(cal.dayOf(deadline));
+  const dayStart = ivs[0];
+  // Room before it on its day already: the latest-slot search finds it.
+  if (
+    dayStart === undefined ||
+    deadline < dayStart ||
+    workingMinutesBetween(cal, dayStart, deadline) >= stage.durationMinutes
+  )
+    return false;
+  const start = roundUpToStep(dayStart, cal.timeZone, index.stepMinutes);
+  const nextStart = roundUpToStep(
+    addWorkingMinutes(cal, start, stage.durationMinutes),
+    cal.timeZone,
+    index.stepMinutes,
+  );
+  const was = out.bookings.filter((b) => b.stageId === next.id);
+  const moved = movedBookings(index, { stageId: next.id, start: nextStart });
+  if (checkStageBookings(index, next.id, moved, { errorsOnly: true }).length > 0) return false;
+  for (const b of was) removeBooking(index, b);
+  for (const b of moved) insertBooking(index, b);
+  const tried = tryAt(index, stage, start, firmId, seq, undefined);
+  if (tried.bookings === null || tried.bookings.length !== old.length) {
+    for (const b of moved) removeBooking(index, b);
+    for (const b of was) insertBooking(index, b);
+    return false;
+  }
+  for (const b of moved) out.bookings[out.bookings.findIndex((x) => x.id === b.id)] = b;
+  out.placed[kNext] = {
+    ...(out.placed[kNext] as PlacedStage),
+    start: nextStart,
+    end: Math.max(...moved.map((b) => b.end)),
+  };
+  tried.bookings.forEach((b, i) => {
+    const w = old[i] as Booking;
+    b.id = w.id;
+    out.bookings[out.bookings.indexOf(w)] = b;
+    insertBooking(index, b);
+  });
+  out.placed[k] = {
+    stageId: stage.id,
+    start,
+    end: Math.max(...tried.bookings.map((b) => b.end)),
+    resourceIds: tried.bookings.map((b) => b.resourceId),
+  };
+  return true;
 }
 
 /**

@@ -109,11 +109,17 @@ describe('the slot finder and auto-place keep such stages to one working day', (
     const result = autoPlace(board, { now: JUNE_1 });
     expect(result.unplaced).toEqual([]);
     const placed = new Map(result.placed.map((p) => [p.stageId, p]));
-    // The lift at its earliest, Fri 12 Jun 09:00–13:00 (see unbooked.test.ts); the connection
-    // after it: Friday 13:00 + 4 h would end past the electricians' 16:30, so Sat 13 Jun 08:00–12:00.
+    // The lift's earliest is Fri 12 Jun 09:00 (see unbooked.test.ts); the delivery's two hours
+    // don't fit before it that morning, so the lift waits an hour for the lorry: delivery 08:00–10:00,
+    // lift 10:00–14:00. The connection after it: Friday 14:00 + 4 h would end past the electricians'
+    // 16:30, so Sat 13 Jun 08:00–12:00.
+    expect([when(placed.get('delivery')?.start), when(placed.get('delivery')?.end)]).toEqual([
+      'Fri 12 Jun 08:00',
+      'Fri 12 Jun 10:00',
+    ]);
     expect([when(placed.get('lift')?.start), when(placed.get('lift')?.end)]).toEqual([
-      'Fri 12 Jun 09:00',
-      'Fri 12 Jun 13:00',
+      'Fri 12 Jun 10:00',
+      'Fri 12 Jun 14:00',
     ]);
     expect([when(placed.get('electrical_connect')?.start), when(placed.get('electrical_connect')?.end)]).toEqual([
       'Sat 13 Jun 08:00',
