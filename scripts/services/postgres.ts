@@ -111,7 +111,7 @@ export async function startPostgres(dataDir: string, port: number): Promise<Post
     stop() {
       if (!ours) return;
       try {
-        run(tool('pg_ctl'), ['-D', pgData, '-m', 'fast', '-w', 'stop'], { asUser });
+        run(tool('pg_ctl'), ['-D', pgData, '-m', 'fast', '-w', 'stop'], { asUser, ownSession: true });
       } catch (error) {
         console.error(String(error));
       }

@@ -78,7 +78,7 @@ export async function startRedis(dataDir: string, port: number): Promise<RedisHa
 
 function shutdown(dataDir: string, port: number): void {
   try {
-    run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'shutdown', 'nosave']);
+    run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'shutdown', 'nosave'], { ownSession: true });
   } catch {
     /* already gone */
   }

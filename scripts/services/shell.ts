@@ -8,9 +8,13 @@ export const isRoot = typeof process.getuid === 'function' && process.getuid() =
 export function run(
   cmd: string,
   args: string[],
-  options: { asUser?: string; quiet?: boolean; env?: NodeJS.ProcessEnv } = {},
+  options: { asUser?: string; quiet?: boolean; env?: NodeJS.ProcessEnv; ownSession?: boolean } = {},
 ): string {
-  const [file, argv] = options.asUser && isRoot ? ['runuser', ['-u', options.asUser, '--', cmd, ...args]] : [cmd, args];
+  const [user, userArgv] =
+    options.asUser && isRoot ? ['runuser', ['-u', options.asUser, '--', cmd, ...args]] : [cmd, args];
+  // In a session of its own (util-linux setsid, waiting for it) a Ctrl-C pressed again while it
+  // runs reaches only us, not it: a stop of PostgreSQL or Redis is never cut short half-way.
+  const [file, argv] = options.ownSession === true ? ['setsid', ['--wait', user, ...userArgv]] : [user, userArgv];
   const result = spawnSync(file, argv, { encoding: 'utf8', env: options.env ?? process.env });
   if (result.status !== 0) {
     throw new Error(
