@@ -59,7 +59,8 @@ export function partnerRoutes(table: RouteTable, { knex, config, now = Date.now 
       res.json({ result: outcome.result, slot: slot ?? null });
     })
     .put('/api/partner/slots/:id/person', 'bookings:answer', async (req, res) => {
-      res.json(await slots.assignPerson(req.actor!, id(req.params), parse(AssignPerson, req.body).resourceId));
+      const { resourceId, version } = parse(AssignPerson, req.body);
+      res.json(await slots.assignPerson(req.actor!, id(req.params), resourceId, version));
     })
     .post('/api/partner/people/:id/feed', 'bookings:answer', async (req, res) => {
       res.status(201).json(await feeds.rotate(req.actor!, id(req.params)));

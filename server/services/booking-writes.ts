@@ -41,6 +41,20 @@ export class StaleVersionError extends ConflictError {
   }
 }
 
+/**
+ * A partner's answer or choice of person on a slot changed since their page loaded it: 409 with the
+ * slot's times, state and version as they stand (its own booking; nothing of the installer's plan).
+ */
+export function slotChanged(row: Booking): StaleVersionError {
+  return new StaleVersionError('This slot was changed since you loaded it: check its time and answer again.', {
+    id: String(row.id),
+    startsAt: row.startsAt.toISOString(),
+    endsAt: row.endsAt.toISOString(),
+    state: row.state,
+    version: row.version,
+  });
+}
+
 /** The state machine said no: 409 naming the transition in plain words. */
 export class TransitionRefusedError extends ConflictError {
   constructor(

@@ -13,6 +13,7 @@ import {
   StaleVersionError,
   TransitionRefusedError,
   partyOf,
+  slotChanged,
   type BookingLimits,
   type BookingWork,
   type WriteContext,
@@ -161,6 +162,8 @@ export class ConfirmationsService {
       async (w) => {
         const booking = await w.booking(id);
         if (booking.state === 'pencilled') throw new NotFoundError('booking');
+        // After the pencilled check: a version must not tell a partner of a booking it can't see.
+        if (booking.version !== input.version) throw slotChanged(booking);
         return booking;
       },
       input.action,

@@ -8,7 +8,7 @@ import { findVisible, scoped } from './scope.ts';
 import { jobSupplies, latestAnswers, siteContacts } from './answer-views.ts';
 import { partnerSlotFacts } from './read-policy.ts';
 import { supplyLines } from '../../shared/slot-supply.ts';
-import { BookingWriter, type BookingLimits } from './booking-writes.ts';
+import { BookingWriter, slotChanged, type BookingLimits } from './booking-writes.ts';
 import { CERTIFIED_STAGE_KIND, partnerCertificates } from './certificates.ts';
 
 /** States a partner sees: a pencilled booking is the installer's private plan until it is sent. */
@@ -168,10 +168,11 @@ export class PartnerSlotsService {
    * Puts one of the partner's own people on a slot (same kind of work). The booking's version moves
    * on; a slot still awaiting an answer gets a fresh request so the links in hand stay good.
    */
-  async assignPerson(actor: Actor, id: string, resourceId: string): Promise<PartnerSlot> {
+  async assignPerson(actor: Actor, id: string, resourceId: string, version: number): Promise<PartnerSlot> {
     await this.writer.run({ actor, party: 'partner' }, { bookingIds: [id], resourceIds: [resourceId] }, async (w) => {
       const before = await w.booking(id);
       if (!SHOWN.includes(before.state)) throw new NotFoundError('slot');
+      if (before.version !== version) throw slotChanged(before);
       const current = await Resource.query(w.trx).findById(before.resourceId);
       const person = await findVisible(Resource, actor, resourceId, w.trx, 'person');
       if (person.category !== 'person' || String(person.firmId) !== actor.firmId || person.kind !== current?.kind) {

@@ -32,9 +32,20 @@ export function reasonText(choice: string | null | undefined, text: string | nul
   return [choice?.trim(), text?.trim()].filter(Boolean).join(' — ');
 }
 
-/** A partner's answer to a booking request. A proposal names the time that would suit; a decline or proposal may say why. */
+/** The slot's version as the partner's page loaded it (GET /api/partner/slots `version`). */
+const SlotVersion = z
+  .number({ message: 'must be the slot’s version as loaded (GET /api/partner/slots)' })
+  .int('must be the slot’s version as loaded (GET /api/partner/slots)')
+  .min(1, 'must be the slot’s version as loaded (GET /api/partner/slots)');
+
+/**
+ * A partner's answer to a booking request. A proposal names the time that would suit; a decline or
+ * proposal may say why. `version` is the slot as the partner saw it: a slot the installer has moved
+ * or changed since is not confirmed unseen (409 stale-version), as a signed link names its version.
+ */
 export const PartnerAnswer = z
   .object({
+    version: SlotVersion,
     action: z.enum(ANSWER_ACTIONS),
     proposedStart: WorkInstant.optional(),
     proposedEnd: WorkInstant.optional(),
@@ -50,7 +61,8 @@ export const PartnerAnswer = z
   });
 export type PartnerAnswer = z.infer<typeof PartnerAnswer>;
 
-export const AssignPerson = z.object({ resourceId: Id });
+/** PUT /api/partner/slots/:id/person: which of the partner's people does the slot, on the slot as loaded. */
+export const AssignPerson = z.object({ resourceId: Id, version: SlotVersion });
 export type AssignPerson = z.infer<typeof AssignPerson>;
 
 export const CreateInvitation = z.object({

@@ -1,5 +1,5 @@
 import { computed, ref } from 'vue';
-import { api } from '@/api/client';
+import { api, ApiError } from '@/api/client';
 import { useApiResource } from '@/composables/useApiResource';
 import type { PartnerAnswer, PartnerSlot } from '@shared/schemas/answers';
 
@@ -20,6 +20,10 @@ export function usePartnerSlots() {
     try {
       await api.post(`/api/partner/slots/${slotId}/answer`, body);
       await refresh();
+    } catch (caught) {
+      // The installer changed the slot meanwhile (or someone answered it): show it as it stands now.
+      if (caught instanceof ApiError && caught.status === 409) await refresh();
+      throw caught;
     } finally {
       busy.value = null;
     }

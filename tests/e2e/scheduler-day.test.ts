@@ -287,7 +287,7 @@ describe("the scheduler's day on the board", () => {
     const priya = await resource('Priya Nair');
     const tom = await resource('Tom Ashworth');
     const asked = await bookThroughApi(connect, 'Priya Nair', '2026-11-30T09:00:00Z');
-    await office
+    const published = await office
       .post(`/api/bookings/${asked.id}/publish`)
       .set('X-CSRF-Token', office.csrf)
       .send({ version: asked.version })
@@ -302,7 +302,7 @@ describe("the scheduler's day on the board", () => {
     const answer = await partner
       .post(`/api/partner/slots/${asked.id}/answer`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'decline', reason })
+      .send({ version: published.body.version as number, action: 'decline', reason })
       .expect(200);
     expect(answer.body.result).toBe('declined');
 

@@ -230,9 +230,9 @@ function validBody(
     case 'post /api/jobs/:id/files':
       return { file: true };
     case 'post /api/partner/slots/:id/answer':
-      return { body: { action: 'confirm' } };
+      return { body: { version: 1, action: 'confirm' } };
     case 'put /api/partner/slots/:id/person':
-      return { body: { resourceId: ids.person } };
+      return { body: { resourceId: ids.person, version: 1 } };
     case 'patch /api/hire-periods/:id':
       return { body: { version: 1, status: 'ended' } };
     default:

@@ -150,7 +150,7 @@ describe("a partner's proposal on the board", () => {
   it('shows on the booking until the scheduler accepts or refuses it', async () => {
     const partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
     const slots = (await partner.get('/api/partner/slots').query({ from: TEST_TODAY.toISOString() }).expect(200)).body
-      .items as { id: string; state: string; startsAt: string; installer: { name: string } }[];
+      .items as { id: string; version: number; state: string; startsAt: string; installer: { name: string } }[];
     const asked = slots.find((s) => s.state === 'sent' && s.installer.name === 'Tideway Hot Tubs');
     expect(asked).toBeTruthy();
     const start = Date.parse(asked!.startsAt) + 86_400_000;
@@ -158,6 +158,7 @@ describe("a partner's proposal on the board", () => {
       .post(`/api/partner/slots/${asked!.id}/answer`)
       .set('X-CSRF-Token', partner.csrf)
       .send({
+        version: asked!.version,
         action: 'propose',
         proposedStart: new Date(start).toISOString(),
         proposedEnd: new Date(start + 4 * 3_600_000).toISOString(),

@@ -166,6 +166,7 @@ describe('the engine on every path', () => {
 
   it('refuses to accept a proposed time before the base has cured; the booking and the proposal stay as they were', async () => {
     await write(crane, 'post', `/api/partner/slots/${lift.id}/answer`, {
+      version: 2,
       action: 'propose',
       proposedStart: '2026-09-16T07:00:00Z',
       proposedEnd: '2026-09-16T11:00:00Z',
@@ -179,6 +180,7 @@ describe('the engine on every path', () => {
 
   it("refuses to accept a proposal for Sunday 03:00, outside the crane firm's working week", async () => {
     await write(crane, 'post', `/api/partner/slots/${lift.id}/answer`, {
+      version: 2,
       action: 'propose',
       proposedStart: '2026-09-27T02:00:00Z',
       proposedEnd: '2026-09-27T06:00:00Z',
@@ -204,7 +206,10 @@ describe('the engine on every path', () => {
       ends_at: '2026-11-21T00:00:00Z',
       reason: 'Holiday',
     });
-    const res = await write(electrician, 'put', `/api/partner/slots/${b.id}/person`, { resourceId: tom }).expect(422);
+    const res = await write(electrician, 'put', `/api/partner/slots/${b.id}/person`, {
+      resourceId: tom,
+      version: (await row(b.id)).version,
+    }).expect(422);
     expect(res.body.violations.map((v: { kind: string }) => v.kind)).toContain('availability');
     expect(String((await row(b.id)).resourceId)).toBe(await resource('Priya Nair'));
   });

@@ -26,6 +26,9 @@ let bookingId: string;
 const APP_REASON = 'Not free that day — <b>wedding</b>';
 
 const send = (agent: Agent, path: string, body: object) => agent.post(path).set('X-CSRF-Token', agent.csrf).send(body);
+/** A booking's version now, as a partner's page would have loaded it. */
+const slotVersion = async (id: string): Promise<number> =>
+  (await ctx.knex('bookings').where('id', id).first('version')).version as number;
 const boardWeek = async (): Promise<BoardData> =>
   (await scheduler.get('/api/board').query({ from: '2026-10-11T23:00:00Z', to: '2026-10-19T00:00:00Z' }).expect(200))
     .body;
@@ -54,6 +57,7 @@ beforeAll(async () => {
   bookingId = booked.body.bookings[0].id;
   await send(scheduler, `/api/bookings/${bookingId}/publish`, { version: 1 }).expect(200);
   const answer = await send(partner, `/api/partner/slots/${bookingId}/answer`, {
+    version: await slotVersion(bookingId),
     action: 'decline',
     reason: `  ${APP_REASON}  `,
   }).expect(200);
@@ -136,7 +140,10 @@ describe('a declined booking', () => {
     });
     expect(stale).toMatchObject({ skip: expect.stringMatching(/already dealt with/) });
 
-    await send(partner, `/api/partner/slots/${bookingId}/answer`, { action: 'decline' }).expect(200);
+    await send(partner, `/api/partner/slots/${bookingId}/answer`, {
+      version: await slotVersion(bookingId),
+      action: 'decline',
+    }).expect(200);
     expect(await ctx.knex('outbox').where({ kind: 'booking_declined' }).pluck('idempotency_key')).toEqual([
       `booking.${bookingId}.v3.declined`,
       `booking.${bookingId}.v5.declined`,
@@ -195,12 +202,14 @@ describe("a partner's reason", () => {
 
   it('is refused in the app when too long or holding a control character: 400 naming the field', async () => {
     const long = await send(partner, `/api/partner/slots/${linkBooking}/answer`, {
+      version: await slotVersion(linkBooking),
       action: 'decline',
       reason: 'x'.repeat(600),
     }).expect(400);
     expect(long.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(long.body.errors).toEqual([{ field: 'reason', message: 'must be at most 500 characters' }]);
     const nul = await send(partner, `/api/partner/slots/${linkBooking}/answer`, {
+      version: await slotVersion(linkBooking),
       action: 'decline',
       reason: 'Not free\u0000',
     }).expect(400);
@@ -210,6 +219,7 @@ describe("a partner's reason", () => {
 
   it('may come with a proposal too, kept with it', async () => {
     await send(partner, `/api/partner/slots/${linkBooking}/answer`, {
+      version: await slotVersion(linkBooking),
       action: 'propose',
       proposedStart: '2026-10-16T07:00:00Z',
       proposedEnd: '2026-10-16T11:00:00Z',

@@ -235,7 +235,7 @@ describe('once the electrician confirms', () => {
     await partner
       .post(`/api/partner/slots/${slot}/answer`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'confirm' })
+      .send({ version: (await ctx.knex('bookings').where('id', slot).first('version')).version, action: 'confirm' })
       .expect(200);
     const mail = await compose('booking_confirmed', slot);
     expect(mail.subject).toBe('Confirmed: Connect and certify, Bingley, Tue 3 Aug 2027');

@@ -35,6 +35,9 @@ beforeAll(async () => {
 afterAll(async () => {
   await ctx.close();
 });
+/** A booking's version now, as a partner's page would have loaded it. */
+const slotVersion = async (id: string): Promise<number> =>
+  (await ctx.knex('bookings').where('id', id).first('version')).version as number;
 
 describe("a partner's own slots", () => {
   it('lists upcoming slots of the firm for every installer it works with, with only what the day needs', async () => {
@@ -131,7 +134,12 @@ describe("a partner's own slots", () => {
     const res = await partner
       .post(`/api/partner/slots/${slot}/answer`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'propose', proposedStart: '2027-08-04T08:00:00Z', proposedEnd: '2027-08-04T12:00:00Z' })
+      .send({
+        version: await slotVersion(slot),
+        action: 'propose',
+        proposedStart: '2027-08-04T08:00:00Z',
+        proposedEnd: '2027-08-04T12:00:00Z',
+      })
       .expect(200);
     expect(res.body).toMatchObject({
       result: 'proposed',
@@ -142,7 +150,7 @@ describe("a partner's own slots", () => {
     await partner
       .post(`/api/partner/slots/${slot}/answer`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'propose' })
+      .send({ version: await slotVersion(slot), action: 'propose' })
       .expect(400);
   });
 
@@ -158,7 +166,7 @@ describe("a partner's own slots", () => {
     await partner
       .post(`/api/partner/slots/${crane.id}/answer`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'confirm' })
+      .send({ version: await slotVersion(crane.id), action: 'confirm' })
       .expect(404);
   });
 
@@ -167,7 +175,7 @@ describe("a partner's own slots", () => {
     const res = await partner
       .put(`/api/partner/slots/${slot}/person`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ resourceId: tom })
+      .send({ resourceId: tom, version: 2 })
       .expect(200);
     expect(res.body).toMatchObject({ id: slot, version: 3, resource: { name: 'Tom Ashworth' } });
     // Still awaiting an answer: a fresh request (version 3) goes out so the links in hand work.
@@ -175,26 +183,66 @@ describe("a partner's own slots", () => {
     await partner
       .put(`/api/partner/slots/${slot}/person`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' }) })
+      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' }), version: 3 })
       .expect(404);
     await partner
       .put(`/api/partner/slots/${slot}/person`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: '60 t mobile crane' }) })
+      .send({ resourceId: await idOf(ctx.knex, 'resources', { name: '60 t mobile crane' }), version: 3 })
       .expect(404);
+  });
+
+  it('never confirms a slot changed since the page loaded it: 409 with the slot as it stands', async () => {
+    // The page loaded version 3 (Tom's); the installer moves the slot a day later meanwhile.
+    await ctx
+      .knex('bookings')
+      .where('id', slot)
+      .increment('version', 1)
+      .update({ starts_at: '2027-08-04T08:00:00Z', ends_at: '2027-08-04T12:00:00Z' });
+    try {
+      const stale = await partner
+        .post(`/api/partner/slots/${slot}/answer`)
+        .set('X-CSRF-Token', partner.csrf)
+        .send({ version: 3, action: 'confirm' })
+        .expect(409);
+      expect(stale.body).toMatchObject({
+        code: 'stale-version',
+        detail: 'This slot was changed since you loaded it: check its time and answer again.',
+        current: { id: slot, state: 'sent', version: 4, startsAt: '2027-08-04T08:00:00.000Z' },
+      });
+      expect(Object.keys(stale.body.current).sort()).toEqual(['endsAt', 'id', 'startsAt', 'state', 'version']);
+      const person = await partner
+        .put(`/api/partner/slots/${slot}/person`)
+        .set('X-CSRF-Token', partner.csrf)
+        .send({ resourceId: await idOf(ctx.knex, 'resources', { name: 'Priya Nair' }), version: 3 })
+        .expect(409);
+      expect(person.body.code).toBe('stale-version');
+      expect(await ctx.knex('bookings').where('id', slot).first('state', 'version', 'resource_id')).toEqual({
+        state: 'sent',
+        version: 4,
+        resourceId: await idOf(ctx.knex, 'resources', { name: 'Tom Ashworth' }),
+      });
+      expect(await ctx.knex('booking_answers').where({ booking_id: slot, action: 'confirm' })).toEqual([]);
+    } finally {
+      await ctx
+        .knex('bookings')
+        .where('id', slot)
+        .decrement('version', 1)
+        .update({ starts_at: '2027-08-03T08:00:00Z', ends_at: '2027-08-03T12:00:00Z' });
+    }
   });
 
   it('confirms through the app', async () => {
     const res = await partner
       .post(`/api/partner/slots/${slot}/answer`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'confirm' })
+      .send({ version: 3, action: 'confirm' })
       .expect(200);
     expect(res.body).toMatchObject({ result: 'confirmed', slot: { state: 'confirmed' } });
     const again = await partner
       .post(`/api/partner/slots/${slot}/answer`)
       .set('X-CSRF-Token', partner.csrf)
-      .send({ action: 'confirm' })
+      .send({ version: await slotVersion(slot), action: 'confirm' })
       .expect(409);
     expect(again.body.code).toBe('not-awaiting-answer');
   });

@@ -80,8 +80,8 @@ describe('every route that changes bookings', () => {
     'post /api/bookings/:id/proposal/accept': { version: 1 },
     'post /api/bookings/:id/proposal/refuse': { version: 1 },
     'post /api/stages/:id/move': { startsAt: '2026-11-03T08:00:00Z', versions: {} },
-    'post /api/partner/slots/:id/answer': { action: 'confirm' },
-    'put /api/partner/slots/:id/person': { resourceId: none },
+    'post /api/partner/slots/:id/answer': { version: 1, action: 'confirm' },
+    'put /api/partner/slots/:id/person': { resourceId: none, version: 1 },
     'post /answer/:token': {},
   };
   const changesBookings = (method: string, p: string) =>

@@ -1,0 +1,79 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { account } from '../helpers/server.ts';
+import { unbookJobs } from '../helpers/demo.ts';
+import { pencilIn } from '../helpers/mail.ts';
+
+/*
+ * Our slots on a phone (390 × 844 CSS pixels, a common handset size: common practice, no source),
+ * as Priya Nair of Brightspark Electrical: the connection slots of TW-2417 and TW-2416 (demo
+ * scenario) asked of her, answered from the page.
+ */
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+let first: { id: string; version: number };
+let second: { id: string; version: number };
+
+beforeAll(async () => {
+  app = await startServer();
+  await unbookJobs(app.ctx.knex, 'TW-2416', 'TW-2417');
+  const ask = (job: string, startsAt: string, endsAt: string) =>
+    pencilIn(app.ctx.knex, {
+      job,
+      stage: 'electrical_connect',
+      resource: 'Priya Nair',
+      startsAt,
+      endsAt,
+      state: 'sent',
+    });
+  // Tue 3 Aug 2027 and Thu 12 Aug 2027, 09:00–13:00 BST.
+  first = await ask('TW-2417', '2027-08-03T08:00:00Z', '2027-08-03T12:00:00Z');
+  second = await ask('TW-2416', '2027-08-12T08:00:00Z', '2027-08-12T12:00:00Z');
+  browser = await launchBrowser();
+  page = await phonePage(browser);
+  await signInThroughPage(page, app.url, account('partner', 'Brightspark Electrical').email);
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+const card = (id: string) => page.locator(`[data-slot-id="${id}"]`);
+
+describe('our slots on a phone', () => {
+  it('confirms a slot from its card', async () => {
+    await page.goto(`${app.url}/slots`);
+    await card(first.id).waitFor();
+    expect(await card(first.id).textContent()).toContain('Tuesday 3 August, 09:00–13:00');
+    // The cautions end with the one note, said once.
+    const safety = card(first.id).locator('details');
+    await safety.locator('summary').click();
+    expect((await safety.textContent())?.split('Follow local codes and licensed practice.')).toHaveLength(2);
+    expect(await safety.locator('li').first().textContent()).toBe(
+      'Electrical work is for a registered (licensed) electrician only.',
+    );
+    await card(first.id).getByRole('button', { name: 'Confirm', exact: true }).click();
+    await page.getByText('Slot confirmed').waitFor();
+    await expect.poll(() => card(first.id).textContent()).toContain('Confirmed');
+    expect((await app.ctx.knex('bookings').where('id', first.id).first('state')).state).toBe('confirmed');
+  });
+
+  it('never confirms a slot the installer moved since the page loaded: it says so and shows the new time', async () => {
+    await page.goto(`${app.url}/slots`);
+    await card(second.id).waitFor();
+    expect(await card(second.id).textContent()).toContain('Thursday 12 August, 09:00–13:00');
+    // The installer moves it to Friday meanwhile (a new version of the booking).
+    await app.ctx
+      .knex('bookings')
+      .where('id', second.id)
+      .increment('version', 1)
+      .update({ starts_at: '2027-08-13T08:00:00Z', ends_at: '2027-08-13T12:00:00Z' });
+    await card(second.id).getByRole('button', { name: 'Confirm', exact: true }).click();
+    await page.getByText('This slot was changed since you loaded it').waitFor();
+    await expect.poll(() => card(second.id).textContent()).toContain('Friday 13 August, 09:00–13:00');
+    expect((await app.ctx.knex('bookings').where('id', second.id).first('state')).state).toBe('sent');
+    await page.screenshot({ path: 'tests/e2e/artifacts/slots-phone.png' });
+  });
+});
