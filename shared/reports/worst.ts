@@ -1,3 +1,4 @@
+import { plural } from '../plural.ts';
 import { DAY_MS, formatPence } from '../scheduler/index.ts';
 import type { ClashReport, HireReport, UtilisationReport, WorstProblem } from './types.ts';
 
@@ -49,7 +50,7 @@ export function worstProblems(
       link: r.link,
       fixes: [
         r.status === 'late'
-          ? `${Math.ceil(r.lateByMs / DAY_MS)} day(s) to win back: open the job on the board and let the slot finder offer earlier places`
+          ? `${plural(Math.ceil(r.lateByMs / DAY_MS), 'day')} to win back: open the job on the board and let the slot finder offer earlier places`
           : 'Open the job on the board: book what the stage is short of, or put its stages back in order',
       ],
     }));

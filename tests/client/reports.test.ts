@@ -5,6 +5,7 @@ import { worstProblems } from '@shared/reports/worst';
 import type {
   ClashReport,
   ClashRow,
+  HirePeriodRow,
   HireReport,
   RiskRow,
   SuggestedFix,
@@ -13,6 +14,7 @@ import type {
 import { useReports } from '@/composables/useReports';
 import RiskTable from '@/components/reports/RiskTable.vue';
 import ClashTable from '@/components/reports/ClashTable.vue';
+import HireTable from '@/components/reports/HireTable.vue';
 import { fixDoneText } from '@/components/reports/fix-result';
 import { stubFetch } from './fake-fetch';
 import { renderHtml } from './render';
@@ -159,5 +161,51 @@ describe('the report tables', () => {
     expect(worstProblems(clashes, hire, utilisation).map((p) => [p.source, p.title])).toEqual([
       ['blocked_job', "Can't go ahead as booked: TW-9102, Testbury"],
     ]);
+  });
+
+  it('say how many days a late job has to win back, in words that read right for one day or more', () => {
+    const clashes = { rows: [], perWeek: [] } as unknown as ClashReport;
+    const hire = { periods: [] } as unknown as HireReport;
+    const late = (lateByMs: number) =>
+      worstProblems(clashes, hire, {
+        risks: [risk({ status: 'late', lateByMs, reasons: [] })],
+      } as unknown as UtilisationReport)[0]?.fixes[0];
+    // Part of a day counts as a whole one to win back.
+    expect(late(3_600_000)).toMatch(/^1 day to win back: /);
+    expect(late(42 * 86_400_000)).toMatch(/^42 days to win back: /);
+  });
+});
+
+describe('the hire table', () => {
+  const period = (bookingsOutsideHire: number): HirePeriodRow => ({
+    id: '3',
+    resourceId: '12',
+    resourceName: '3 t excavator (hired)',
+    supplierFirmId: '4',
+    supplierName: 'Test Plant Hire',
+    status: 'approved',
+    version: 1,
+    onHire: 0,
+    offHire: 1,
+    onHireDate: 'Mon 1 Jun',
+    offHireDate: 'Fri 5 Jun',
+    dayRatePence: 14_500,
+    deliveryPence: 0,
+    collectionPence: 0,
+    paidDays: 5,
+    bookedDays: 3,
+    idleDays: ['2026-06-04', '2026-06-05'],
+    idleCostPence: 29_000,
+    totalCostPence: 72_500,
+    bookingsOutsideHire,
+    suggestions: [],
+    link: '/board?view=week&date=2026-06-01',
+  });
+
+  it('counts the bookings outside the hire in words that read right for one or more', async () => {
+    const html = (n: number) => renderHtml(HireTable, { rows: [period(n)], canApprove: false, busyId: null });
+    expect(await html(1)).toContain('1 booking outside the hire');
+    expect(await html(2)).toContain('2 bookings outside the hire');
+    expect(await html(0)).not.toContain('outside the hire');
   });
 });
