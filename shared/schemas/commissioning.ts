@@ -73,6 +73,8 @@ export const PutCertificateWaiver = z.object({
   reason: multiLineText(1000).pipe(z.string().min(1, 'say why')).nullable(),
   reasonWas: z
     .string({ message: 'must be the reason as loaded (GET waiver.reason), or null when there was none' })
+    // No stored reason is longer than the reason allows: a longer one can only be a mistake.
+    .max(1000, 'must be at most 1000 characters (the reason as loaded)')
     .nullable(),
 });
 export type PutCertificateWaiver = z.infer<typeof PutCertificateWaiver>;

@@ -237,6 +237,9 @@ describe("the office's waiver, from two pages at once", () => {
     expect(missing.body.errors).toEqual([
       { field: 'reasonWas', message: 'must be the reason as loaded (GET waiver.reason), or null when there was none' },
     ]);
+    expect((await waive('TW-2403', 'x', 'y'.repeat(1001)).expect(400)).body.errors).toEqual([
+      { field: 'reasonWas', message: 'must be at most 1000 characters (the reason as loaded)' },
+    ]);
   });
 });
 
