@@ -276,22 +276,23 @@ describe('a delivery wanted on the lift day (delivery and lift day: lorry, crane
     expect(lift?.start).toBe(at(2026, 6, 10, 11));
   });
 
-  const withLorryBusy = (from: number, to: number): Board => {
+  /** Another firm's work on one of the job's resources ('lorry', 'crane') over [from, to). */
+  const withBusy = (resourceId: string, kind: string, from: number, to: number): Board => {
     const board = plannedBoard();
     board.jobs.push({ id: 'elsewhere', firmId: 'other' });
     board.stages.push({
-      id: 'haul',
+      id: 'elsewhere-work',
       jobId: 'elsewhere',
       kind: 'haul',
-      name: 'Haul',
+      name: 'Work elsewhere',
       durationMinutes: 60,
-      requirements: [{ kind: 'lorry', count: 1 }],
+      requirements: [{ kind, count: 1 }],
       mayContinueNextDay: true,
     });
     board.bookings.push({
-      id: 'haul-1',
-      stageId: 'haul',
-      resourceId: 'lorry',
+      id: 'elsewhere-1',
+      stageId: 'elsewhere-work',
+      resourceId,
       start: from,
       end: to,
       state: 'confirmed',
@@ -299,6 +300,8 @@ describe('a delivery wanted on the lift day (delivery and lift day: lorry, crane
     });
     return board;
   };
+  const withLorryBusy = (from: number, to: number) => withBusy('lorry', 'lorry', from, to);
+  const withCraneBusy = (from: number, to: number) => withBusy('crane', 'crane', from, to);
 
   it('comes the afternoon before when the lorry is out on the lift day', () => {
     const board = withLorryBusy(at(2026, 6, 10, 8), at(2026, 6, 10, 17));
@@ -307,31 +310,6 @@ describe('a delivery wanted on the lift day (delivery and lift day: lorry, crane
     expect(delivery).toMatchObject({ start: at(2026, 6, 9, 15), end: at(2026, 6, 9, 17) });
     expect(analyseBoard(placedBoard(board, result), { now: JUNE_1 }).errorCount).toBe(0);
   });
-
-  /** The crane out on another firm's job over [from, to). */
-  const withCraneBusy = (from: number, to: number): Board => {
-    const board = plannedBoard();
-    board.jobs.push({ id: 'elsewhere', firmId: 'other' });
-    board.stages.push({
-      id: 'other-lift',
-      jobId: 'elsewhere',
-      kind: 'lift',
-      name: 'Lift elsewhere',
-      durationMinutes: 60,
-      requirements: [{ kind: 'crane', count: 1 }],
-      mayContinueNextDay: true,
-    });
-    board.bookings.push({
-      id: 'other-lift-1',
-      stageId: 'other-lift',
-      resourceId: 'crane',
-      start: from,
-      end: to,
-      state: 'confirmed',
-      installerFirmId: 'other',
-    });
-    return board;
-  };
 
   it.each([0, 300])(
     'comes the same morning when the lift would start the day: the lift waits for the lorry (budget %i ms)',
@@ -365,8 +343,8 @@ describe('a delivery wanted on the lift day (delivery and lift day: lorry, crane
     // Crane out all Wednesday and from 12:00 on Thursday: the lift has Thu 08:00–12:00 and no later.
     const board = withCraneBusy(at(2026, 6, 10, 8), at(2026, 6, 10, 17));
     board.bookings.push({
-      id: 'other-lift-2',
-      stageId: 'other-lift',
+      id: 'elsewhere-2',
+      stageId: 'elsewhere-work',
       resourceId: 'crane',
       start: at(2026, 6, 11, 12),
       end: at(2026, 6, 11, 17),

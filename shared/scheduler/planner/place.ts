@@ -351,19 +351,7 @@ function pullLater(index: BoardIndex, stage: Stage, k: number, out: Placement, s
     const tried = tryAt(index, stage, t, firmId, seq, undefined);
     if (tried.bookings === null) continue;
     if (tried.bookings.length !== old.length) continue;
-    // In the old bookings' places, under their ids: the placement's order of bookings stands.
-    tried.bookings.forEach((b, i) => {
-      const was = old[i] as Booking;
-      b.id = was.id;
-      out.bookings[out.bookings.indexOf(was)] = b;
-      insertBooking(index, b);
-    });
-    out.placed[k] = {
-      stageId: stage.id,
-      start: t,
-      end: Math.max(...tried.bookings.map((b) => b.end)),
-      resourceIds: tried.bookings.map((b) => b.resourceId),
-    };
+    takePlaces(index, out, k, stage.id, t, old, tried.bookings);
     return;
   }
   for (const b of old) insertBooking(index, b);
@@ -427,19 +415,35 @@ function togetherThatMorning(
     start: nextStart,
     end: Math.max(...moved.map((b) => b.end)),
   };
-  tried.bookings.forEach((b, i) => {
-    const w = old[i] as Booking;
-    b.id = w.id;
-    out.bookings[out.bookings.indexOf(w)] = b;
+  takePlaces(index, out, k, stage.id, start, old, tried.bookings);
+  return true;
+}
+
+/**
+ * A stage's new bookings into the index and the placement, in its old bookings' places and under
+ * their ids (the placement's order of bookings stands), and its place at `start`.
+ */
+function takePlaces(
+  index: BoardIndex,
+  out: Placement,
+  k: number,
+  stageId: string,
+  start: Instant,
+  old: readonly Booking[],
+  bookings: Booking[],
+): void {
+  bookings.forEach((b, i) => {
+    const was = old[i] as Booking;
+    b.id = was.id;
+    out.bookings[out.bookings.indexOf(was)] = b;
     insertBooking(index, b);
   });
   out.placed[k] = {
-    stageId: stage.id,
+    stageId,
     start,
-    end: Math.max(...tried.bookings.map((b) => b.end)),
-    resourceIds: tried.bookings.map((b) => b.resourceId),
+    end: Math.max(...bookings.map((b) => b.end)),
+    resourceIds: bookings.map((b) => b.resourceId),
   };
-  return true;
 }
 
 /**
