@@ -5,7 +5,7 @@ import type { BoardData } from '@shared/board-data';
 import BoardDayList from '@/components/board/BoardDayList.vue';
 import { dayBounds, dayListOf } from '@/components/board/day-list';
 import { eventsOf, problemsByBooking, rowsOf } from '@/components/board/board-events';
-import { WEEK, HOUR } from './board-week';
+import { WEEK, HOUR, boardJob } from './board-week';
 
 // Tuesday 15 September 2026 in London (BST, UTC+1): local midnight is 23:00 UTC the day before.
 const TUE = Date.UTC(2026, 8, 14, 23);
@@ -66,16 +66,7 @@ function board(): BoardData {
       },
     ],
     jobs: [
-      {
-        id: 'j1',
-        firmId: 'f1',
-        reference: 'TW-2417',
-        customerName: 'A Customer',
-        siteTown: 'Otley',
-        status: 'planned',
-        installationType: 'in_ground',
-        promisedBy: null,
-      },
+      boardJob({ installationType: 'in_ground' }),
       {
         id: 'j2',
         firmId: 'f1',

@@ -11,7 +11,7 @@ import {
   rowsOf,
   trayOf,
 } from '@/components/board/board-events';
-import { WEEK, MON } from './board-week';
+import { WEEK, MON, boardJob } from './board-week';
 
 function board(): BoardData {
   return {
@@ -65,16 +65,7 @@ function board(): BoardData {
       },
     ],
     jobs: [
-      {
-        id: 'j1',
-        firmId: 'f1',
-        reference: 'TW-1',
-        customerName: 'A Customer',
-        siteTown: 'Otley',
-        status: 'planned',
-        installationType: 'in_ground',
-        promisedBy: MON + 20 * 86_400_000,
-      },
+      boardJob({ reference: 'TW-1', installationType: 'in_ground', promisedBy: MON + 20 * 86_400_000 }),
       {
         id: 'elsewhere',
         firmId: 'elsewhere',

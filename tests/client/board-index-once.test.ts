@@ -8,7 +8,7 @@ import { useDragCheck } from '@/composables/useDragCheck';
 import { useBoardFilter } from '@/composables/useBoardFilter';
 import { boardAnalysisOf, boardIndexOf } from '@/components/board/engine-view';
 import { stubFetch } from './fake-fetch';
-import { WEEK, HOUR, MON } from './board-week';
+import { WEEK, HOUR, MON, boardJob } from './board-week';
 
 // Every build of the engine's index, wherever it is asked for (the board's composables or the
 // engine's own analyseBoard, which imports the same module).
@@ -63,18 +63,7 @@ function board(): BoardData {
         ownership: 'owned',
       },
     ],
-    jobs: [
-      {
-        id: 'j1',
-        firmId: 'f1',
-        reference: 'TW-2417',
-        customerName: 'A Customer',
-        siteTown: 'Otley',
-        status: 'planned',
-        installationType: 'slab',
-        promisedBy: null,
-      },
-    ],
+    jobs: [boardJob()],
     stages: [
       {
         id: 'dig',

@@ -13,7 +13,7 @@ import {
   problemsByBooking,
 } from '@/components/board/board-events';
 import { chipMarks } from '@/components/board/booking-chip';
-import { WEEK, HOUR, MON } from './board-week';
+import { WEEK, HOUR, MON, boardJob } from './board-week';
 
 const STATES: BookingState[] = ['pencilled', 'sent', 'confirmed', 'declined', 'on_site', 'done'];
 
@@ -46,16 +46,7 @@ function everything(): BoardData {
       },
     ],
     jobs: [
-      {
-        id: 'j1',
-        firmId: 'f1',
-        reference: 'TW-1',
-        customerName: 'A Customer',
-        siteTown: 'Otley',
-        status: 'planned',
-        installationType: 'slab',
-        promisedBy: null,
-      },
+      boardJob({ reference: 'TW-1' }),
       {
         id: 'elsewhere',
         firmId: 'elsewhere',

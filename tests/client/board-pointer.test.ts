@@ -3,16 +3,12 @@ import type { BoardData } from '@shared/board-data';
 import { boardLink } from '@shared/reports/context';
 import { hireBand, pointerFocus, pointerNotice, pointerOf, pointsAtAnything } from '@/components/board/board-pointer';
 import { boardVisibility, NO_FILTER } from '@/components/board/board-search';
-import { WEEK, HOUR, MON } from './board-week';
+import { HOUR, MON, boardJob, WEEK_BOARD } from './board-week';
 
 /** Two jobs clashing on Crew Heron on Tuesday, and a hired excavator on hire Monday to Friday. */
 function board(): BoardData {
   return {
-    from: MON - 8 * HOUR,
-    to: MON + 7 * 24 * HOUR,
-    now: MON,
-    firmId: 'f1',
-    calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK }],
+    ...WEEK_BOARD,
     resources: [
       {
         id: '1',
@@ -39,16 +35,7 @@ function board(): BoardData {
       },
     ],
     jobs: [
-      {
-        id: '10',
-        firmId: 'f1',
-        reference: 'TW-2417',
-        customerName: 'A Customer',
-        siteTown: 'Otley',
-        status: 'planned',
-        installationType: 'slab',
-        promisedBy: null,
-      },
+      boardJob({ id: '10' }),
       {
         id: '11',
         firmId: 'f1',

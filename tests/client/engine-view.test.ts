@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { BoardData } from '@shared/board-data';
 import { boardAnalysisOf, boardIndexOf, seesAllBookingsAs } from '@/components/board/engine-view';
 import { stageLines } from '@/components/board/job-panel';
-import { WEEK, HOUR, MON } from './board-week';
+import { HOUR, MON, boardJob, WEEK_BOARD } from './board-week';
 
 /**
  * A job of three stages in a row — dig (a day), pour the base (half a day), lift — where only the
@@ -11,11 +11,7 @@ import { WEEK, HOUR, MON } from './board-week';
  */
 function board(): BoardData {
   return {
-    from: MON - 8 * HOUR,
-    to: MON + 7 * 24 * HOUR,
-    now: MON,
-    firmId: 'f1',
-    calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK }],
+    ...WEEK_BOARD,
     resources: [
       {
         id: 'r1',
@@ -29,18 +25,7 @@ function board(): BoardData {
         ownership: 'owned',
       },
     ],
-    jobs: [
-      {
-        id: 'j1',
-        firmId: 'f1',
-        reference: 'TW-2417',
-        customerName: 'A Customer',
-        siteTown: 'Otley',
-        status: 'planned',
-        installationType: 'slab',
-        promisedBy: null,
-      },
-    ],
+    jobs: [boardJob()],
     stages: [
       {
         id: 'dig',

@@ -4,7 +4,7 @@ import JobPanel from '@/components/board/JobPanel.vue';
 import PartnerRequests from '@/components/board/PartnerRequests.vue';
 import { boardAnalysisOf, boardIndexOf } from '@/components/board/engine-view';
 import { renderHtml } from './render';
-import { WEEK, HOUR, MON } from './board-week';
+import { HOUR, MON, boardJob, WEEK_BOARD } from './board-week';
 
 /**
  * An invented job of one stage, the electrical connection, booked on the installer's own labourer
@@ -23,27 +23,12 @@ function board(): BoardData {
     ownership: own ? ('owned' as const) : ('partner' as const),
   });
   return {
-    from: MON - 8 * HOUR,
-    to: MON + 7 * 24 * HOUR,
-    now: MON,
-    firmId: 'f1',
-    calendars: [{ id: 'c1', timeZone: 'Europe/London', weekly: WEEK }],
+    ...WEEK_BOARD,
     resources: [
       res('mate', 'Dev Holt', 'labourer', 'f1', 'Tideway', true),
       res('spark', 'Rhian Vale', 'electrician', 'f5', 'Larkspur Electrical', false),
     ],
-    jobs: [
-      {
-        id: 'j1',
-        firmId: 'f1',
-        reference: 'TW-7002',
-        customerName: 'A Customer',
-        siteTown: 'Otley',
-        status: 'planned',
-        installationType: 'slab',
-        promisedBy: null,
-      },
-    ],
+    jobs: [boardJob({ reference: 'TW-7002' })],
     stages: [
       {
         id: 'connect',
