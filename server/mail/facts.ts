@@ -1,5 +1,5 @@
 import type { Knex } from 'knex';
-import type { SlotSupply } from '../../shared/slot-supply.ts';
+import { supplyLines, type SlotSupply } from '../../shared/slot-supply.ts';
 import { jobSupplies, siteContacts } from '../services/answer-views.ts';
 import { partnerSlotFacts, type VisitContact } from '../services/read-policy.ts';
 
@@ -272,4 +272,42 @@ export function describeWindow(
       : `${time.format(startsAt)} on the first day to ${time.format(endsAt)} on the last`,
     zone: `${timeZone}, ${zoneName}`,
   };
+}
+
+/**
+ * The slot as a partner needs it: when, what, the unit, the house's supply (electrical work only),
+ * the site and whom to call, from the read policy's `forPartner`. Only structured facts: no stage
+ * notes or other office text. The request e-mails and the person's calendar feed both say it.
+ */
+export function slotSections(f: BookingFacts): { heading: string; lines: string[] }[] {
+  const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
+  const unit = f.unit
+    ? [
+        `Unit: ${f.unit.model}, ${f.unit.lengthMm} × ${f.unit.widthMm} × ${f.unit.heightMm} mm, ${f.unit.dryWeightKg} kg dry`,
+      ]
+    : [];
+  const facing = f.forPartner.facing;
+  const supply = f.forPartner.supply;
+  return [
+    { heading: 'When', lines: [when.date, `${when.window} (${when.zone})`] },
+    {
+      heading: 'Work',
+      lines: [
+        `${f.stage.name} for job ${f.job.reference}`,
+        `Booked: ${f.resource.name}`,
+        ...unit,
+        ...(facing ? [facing] : []),
+      ],
+    },
+    ...(supply ? [{ heading: 'Electrical supply', lines: supplyLines(supply) }] : []),
+    {
+      heading: 'Site',
+      lines: [
+        f.job.siteAddress,
+        `${f.job.siteTown} ${f.job.sitePostcode}`,
+        `Access and parking: ${f.job.accessNotes ?? 'ask the installer before you travel'}`,
+      ],
+    },
+    { heading: 'On the day, call', lines: contactLines(f.forPartner.contacts) },
+  ];
 }

@@ -4,10 +4,9 @@ import { LinkSigner, type AnswerAction } from '../services/links.ts';
 import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
 import { whatToBring } from './what-to-bring.ts';
 import { bookingInvite } from './calendar.ts';
-import { contactLines, describeWindow, loadBookingFacts, type BookingFacts } from './facts.ts';
+import { describeWindow, loadBookingFacts, slotSections, type BookingFacts } from './facts.ts';
 import { renderMail, type MailContent } from './layout.ts';
 import { localDateOf } from '../../shared/local-dates.ts';
-import { supplyLines } from '../../shared/slot-supply.ts';
 import { composePaymentRequest } from './payment-request.ts';
 import type { ObjectStore } from '../storage/object-store.ts';
 import { composeHandoverPack, composeServicePlanNotice } from './handover.ts';
@@ -108,43 +107,6 @@ export async function composeMessage(
   return composeRequest(deps, facts, kind);
 }
 
-/**
- * The slot as a partner needs it: when, what, the unit, the house's supply (electrical work only),
- * the site and whom to call. Only structured facts: no stage notes or other office text.
- */
-function slotLines(f: BookingFacts): MailContent['sections'] {
-  const when = describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone);
-  const unit = f.unit
-    ? [
-        `Unit: ${f.unit.model}, ${f.unit.lengthMm} × ${f.unit.widthMm} × ${f.unit.heightMm} mm, ${f.unit.dryWeightKg} kg dry`,
-      ]
-    : [];
-  const facing = f.forPartner.facing;
-  const supply = f.forPartner.supply;
-  return [
-    { heading: 'When', lines: [when.date, `${when.window} (${when.zone})`] },
-    {
-      heading: 'Work',
-      lines: [
-        `${f.stage.name} for job ${f.job.reference}`,
-        `Booked: ${f.resource.name}`,
-        ...unit,
-        ...(facing ? [facing] : []),
-      ],
-    },
-    ...(supply ? [{ heading: 'Electrical supply', lines: supplyLines(supply) }] : []),
-    {
-      heading: 'Site',
-      lines: [
-        f.job.siteAddress,
-        `${f.job.siteTown} ${f.job.sitePostcode}`,
-        `Access and parking: ${f.job.accessNotes ?? 'ask the installer before you travel'}`,
-      ],
-    },
-    { heading: 'On the day, call', lines: contactLines(f.forPartner.contacts) },
-  ];
-}
-
 function cautionBlock(stageKind: string): MailContent['cautions'] {
   const lines = cautionLines(stageKind);
   return {
@@ -193,7 +155,7 @@ async function composeRequest(
     },
   };
   const head = heads[kind]!;
-  const sections = [...slotLines(f), { heading: 'What to bring', lines: whatToBring(f.resource.kind) }];
+  const sections = [...slotSections(f), { heading: 'What to bring', lines: whatToBring(f.resource.kind) }];
   const content: MailContent = {
     preview: `${head.intro} ${describeWindow(f.booking.startsAt, f.booking.endsAt, f.installer.timeZone).window}`,
     title: head.title,
@@ -243,7 +205,7 @@ async function composeConfirmed(
     intro: [
       `Thank you: ${f.installer.name} has your confirmation of the slot below. The attached invite marks it confirmed in your calendar.`,
     ],
-    sections: [...slotLines(f), { heading: 'What to bring', lines: whatToBring(f.resource.kind) }],
+    sections: [...slotSections(f), { heading: 'What to bring', lines: whatToBring(f.resource.kind) }],
     cautions: cautionBlock(f.stage.kind),
     footer: [
       `Sent by Waterline for ${f.installer.name} to ${f.partner.name}. To change anything now, call ${f.installer.name}${f.installer.phone ? ` on ${f.installer.phone}` : ''}.`,

@@ -4,7 +4,7 @@ import { Resource } from '../models/index.ts';
 import { UnprocessableError } from '../errors.ts';
 import { personFeed } from '../mail/calendar.ts';
 import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
-import { describeWindow, loadBookingFactsMany } from '../mail/facts.ts';
+import { loadBookingFactsMany, slotSections } from '../mail/facts.ts';
 import type { Actor } from './actor.ts';
 import { findVisible } from './scope.ts';
 import { bookingDuring } from './ranges.ts';
@@ -83,16 +83,15 @@ export class FeedsService {
     for (const id of ids) {
       const facts = factsOf.get(String(id));
       if (!facts) continue;
-      const when = describeWindow(facts.booking.startsAt, facts.booking.endsAt, facts.installer.timeZone);
       const cautions = cautionLines(facts.stage.kind);
       events.push({
         facts,
+        // What the request e-mail says of the slot (the read policy's `forPartner`: whom to call,
+        // the supply for electrical work, which way the unit faces for those who set it down).
         description: [
           `${facts.stage.name} for ${facts.installer.name} (job ${facts.job.reference})`,
-          `${when.date}, ${when.window}`,
           facts.booking.state === 'sent' ? 'Not yet confirmed.' : `State: ${facts.booking.state}.`,
-          `Access and parking: ${facts.job.accessNotes ?? 'ask the installer'}`,
-          `On the day call ${facts.installer.name}: ${facts.installer.phone ?? ''}`,
+          ...slotSections(facts).flatMap((s) => ['', `${s.heading}:`, ...s.lines]),
           ...(cautions.length ? ['', ...cautions.map((c) => `- ${c}`), CAUTION_NOTE] : []),
         ].join('\n'),
       });

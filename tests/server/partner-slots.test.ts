@@ -264,6 +264,21 @@ describe('a private calendar feed per person', () => {
     expect(mine!.sequence).toBe(4); // request (2), another person (3), confirmed (4)
     expect(mine!.startDate.toJSDate().toISOString()).toBe('2027-08-03T08:00:00.000Z');
     expect(mine!.description).toContain('Follow local codes and licensed practice');
+    // The slot as the request e-mail gives it, through the read policy: the house's supply for
+    // this electrical work, whom to call (the office; not the householder, whom Tideway doesn't share).
+    const description = mine!.description.split('\n');
+    expect(description.slice(0, 6)).toEqual([
+      'Connect and certify for Tideway Hot Tubs (job TW-2417)',
+      'State: confirmed.',
+      '',
+      'When:',
+      'Tuesday 3 August 2027',
+      '09:00–13:00 (Europe/London, BST)',
+    ]);
+    expect(description).toContain('Electrical supply:');
+    expect(
+      description.slice(description.indexOf('On the day, call:'), description.indexOf('On the day, call:') + 2),
+    ).toEqual(['On the day, call:', 'Installer office, Tideway Hot Tubs: 0113 496 0001']);
     expect(feed.text).not.toContain('@home.example');
     // Only a hash of the link's secret is stored: the secret itself appears in no row.
     const secret = path1
