@@ -81,24 +81,31 @@ function finishes(board: Board): Map<string, number> {
   return out;
 }
 
-/** Re-plans the demo board's unstarted stages all at once and prints the comparison. */
-export async function replanDemo(budgetMs = 2000): Promise<void> {
-  const port = Number(process.env.WATERLINE_PG_PORT ?? 54329);
-  const url = process.env.DATABASE_URL ?? `postgres://postgres@127.0.0.1:${port}/waterline_bench`;
-  if (process.env.DATABASE_URL === undefined) await ensureDatabase(port, 'waterline_bench').catch(() => undefined);
-  const knex = createKnex(url, { min: 0, max: 2 });
-  let board: Board;
-  try {
-    board = await demoBoard(knex);
-  } catch (e) {
-    console.log(
-      `Demo re-plan: skipped, PostgreSQL not usable at ${url.replace(/\/\/[^@]*@/, '//')} (${e instanceof Error ? e.message.split('\n')[0] : String(e)})`,
-    );
-    return;
-  } finally {
-    await knex.destroy();
-  }
-  const now = TODAY.getTime();
+/** What {@link replan} gives back: the plan, and each job's finish before and after. */
+export interface Replan {
+  jobIds: string[];
+  ownJobs: Board['jobs'];
+  view: Board;
+  fixed: Board;
+  open: Set<string>;
+  result: ReturnType<typeof autoPlace>;
+  after: Board;
+  fBefore: Map<string, number>;
+  fAfter: Map<string, number>;
+  /** Re-planned jobs finishing later, and earlier, than in `board`. */
+  later: string[];
+  earlier: string[];
+  wallMs: number;
+  cpu: number;
+  singleMs: number;
+}
+
+/**
+ * Takes every stage whose bookings are all still pencilled off `board` and places them all again at
+ * once (tray stages stay in the tray; sent, confirmed, on-site and done bookings stay put). With
+ * `keep`, no job should finish later than it does on `board` (autoPlace's `notLaterThan`).
+ */
+export function replan(board: Board, now: number, budgetMs: number, options: { keep: boolean }): Replan {
   const installer = board.jobs.find((j) => board.stages.some((s) => s.jobId === j.id))?.firmId;
   const ownJobs = board.jobs.filter((j) => j.firmId === installer);
   const ownJobIds = new Set(ownJobs.map((j) => j.id));
@@ -129,7 +136,9 @@ export async function replanDemo(budgetMs = 2000): Promise<void> {
 
   const w0 = performance.now(),
     c0 = cpuMs();
-  const result = autoPlace(view, { now, jobIds, budgetMs, seed: 1 });
+  // Re-planning keeps what the householders were told: no job later than today's plan.
+  const notLaterThan = Object.fromEntries(finishes(board));
+  const result = autoPlace(view, { now, jobIds, budgetMs, seed: 1, ...(options.keep ? { notLaterThan } : {}) });
   const wallMs = performance.now() - w0,
     cpu = cpuMs() - c0;
   const s0 = performance.now();
@@ -137,16 +146,39 @@ export async function replanDemo(budgetMs = 2000): Promise<void> {
   const singleMs = performance.now() - s0;
   const after: Board = { ...board, bookings: [...fixed.bookings, ...result.bookings] };
 
+  const fBefore = finishes(board),
+    fAfter = finishes(after);
+  const later = jobIds.filter((id) => (fAfter.get(id) ?? 0) > (fBefore.get(id) ?? 0));
+  const earlier = jobIds.filter((id) => (fAfter.get(id) ?? 0) < (fBefore.get(id) ?? 0));
+  return { jobIds, ownJobs, view, fixed, open, result, after, fBefore, fAfter, later, earlier, wallMs, cpu, singleMs };
+}
+
+/** Re-plans the demo board's unstarted stages all at once and prints the comparison. */
+export async function replanDemo(budgetMs = 2000): Promise<void> {
+  const port = Number(process.env.WATERLINE_PG_PORT ?? 54329);
+  const url = process.env.DATABASE_URL ?? `postgres://postgres@127.0.0.1:${port}/waterline_bench`;
+  if (process.env.DATABASE_URL === undefined) await ensureDatabase(port, 'waterline_bench').catch(() => undefined);
+  const knex = createKnex(url, { min: 0, max: 2 });
+  let board: Board;
+  try {
+    board = await demoBoard(knex);
+  } catch (e) {
+    console.log(
+      `Demo re-plan: skipped, PostgreSQL not usable at ${url.replace(/\/\/[^@]*@/, '//')} (${e instanceof Error ? e.message.split('\n')[0] : String(e)})`,
+    );
+    return;
+  } finally {
+    await knex.destroy();
+  }
+  const now = TODAY.getTime();
+  const { jobIds, ownJobs, view, fixed, open, result, after, fBefore, fAfter, later, earlier, wallMs, cpu, singleMs } =
+    replan(board, now, budgetMs, { keep: true });
   // Today's plan costed the same way as the planner costs its own (the same stages, the same rules).
   const pending = view.stages.filter((s) => open.has(s.id));
   const before = planCosts(createBoardIndex(board, { now }), pending, 0);
   const errors = (b: Board) =>
     analyseBoard(b, { now, skipCriticalPath: true }).violations.filter((v) => v.severity === 'error').length;
-  const fBefore = finishes(board),
-    fAfter = finishes(after);
   const refOf = new Map(board.jobs.map((j) => [j.id, (j as { reference?: string }).reference ?? j.id]));
-  const later = jobIds.filter((id) => (fAfter.get(id) ?? 0) > (fBefore.get(id) ?? 0));
-  const earlier = jobIds.filter((id) => (fAfter.get(id) ?? 0) < (fBefore.get(id) ?? 0));
   const lateCount = (f: Map<string, number>) =>
     ownJobs.filter((j) => j.promisedBy != null && (f.get(j.id) ?? 0) > j.promisedBy).length;
 

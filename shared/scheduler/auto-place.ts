@@ -1,7 +1,14 @@
 import { bookingsOfStage, createBoardIndex } from './board-index.js';
 import { boardCriticalPath } from './board-critical-path.js';
 import { buildPlanModel } from './planner/model.js';
-import { comparePlanCosts, firstPossibleStart, placeStages, planCosts, type Before } from './planner/place.js';
+import {
+  comparePlanCosts,
+  firstPossibleStart,
+  laterThanKept,
+  placeStages,
+  planCosts,
+  type Before,
+} from './planner/place.js';
 import { searchPlans, WORK_PER_MS, type SearchProgress } from './planner/search.js';
 import type { Board, BoardOptions, Booking, Instant, Stage } from './types.js';
 
@@ -27,6 +34,12 @@ export interface AutoPlaceOptions extends BoardOptions {
   seed?: number;
   /** Called now and then with how far the search has got. */
   onProgress?: (info: AutoPlaceProgress) => void;
+  /**
+   * Finishes to keep, by job id: re-planning work already on the board should not make a job
+   * finish later than the householder was told. A plan that does is worse than any that doesn't
+   * (fewer such jobs first, then fewer minutes later), before every other cost.
+   */
+  notLaterThan?: Readonly<Record<string, Instant>>;
 }
 
 /** A stage the engine placed. */
@@ -101,7 +114,21 @@ function better(a: Priority, b: Priority): boolean {
  * // bookings: new pencilled bookings to save; unplaced: [{ stageId, reason }]; costs.lateJobs: 0
  */
 export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceResult {
-  const index = createBoardIndex(board, options);
+  const keep = options.notLaterThan;
+  // A finish to keep is planned for as a promise (the priority rule, the quick model and the costs
+  // all aim at it); the result's costs are read against the real promises at the end.
+  const planned =
+    keep === undefined
+      ? board
+      : {
+          ...board,
+          jobs: board.jobs.map((j) =>
+            keep[j.id] === undefined
+              ? j
+              : { ...j, promisedBy: Math.min(j.promisedBy ?? Number.POSITIVE_INFINITY, keep[j.id] as Instant) },
+          ),
+        };
+  const index = createBoardIndex(planned, options);
   const jobIds = new Set(options.jobIds ?? board.jobs.map((j) => j.id));
   const horizonDays = options.horizonDays ?? 180;
   const inCycle = new Set(index.cycles.flat());
@@ -127,6 +154,14 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
     promised: index.jobs.get(s.jobId)?.promisedBy ?? Number.POSITIVE_INFINITY,
     id: s.id,
   });
+  // Jobs finishing later than `keep` says, then by how many minutes: compared before every cost.
+  const laterOf = (): [number, number] => (keep === undefined ? [0, 0] : laterThanKept(index, pending, keep));
+  /** The plan's costs against the jobs' own promises, where finishes to keep stood in for them. */
+  const withRealCosts = (r: AutoPlaceResult): AutoPlaceResult => {
+    if (keep === undefined) return r;
+    const real = createBoardIndex({ ...board, bookings: [...board.bookings, ...r.bookings] }, options);
+    return { ...r, costs: planCosts(real, pending, r.unplaced.length) };
+  };
   const single = placeStages(index, pending, horizonDays, (a, b) => better(priority(a), priority(b)));
   let best: AutoPlaceResult = {
     bookings: single.bookings,
@@ -136,10 +171,37 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
     costs: planCosts(index, pending, early.length + single.unplaced.length),
     source: 'single-pass',
   };
+  let bestLater = laterOf();
   single.undo();
+  /** Keeps a placement (its bookings still in the index) when it beats the best so far. */
+  const consider = (tried: ReturnType<typeof placeStages>): void => {
+    const costs = planCosts(index, pending, early.length + tried.unplaced.length);
+    const later = laterOf();
+    if ((later[0] - bestLater[0] || later[1] - bestLater[1] || comparePlanCosts(costs, best.costs)) < 0) {
+      best = {
+        bookings: tried.bookings,
+        placed: tried.placed,
+        unplaced: [...early, ...tried.unplaced],
+        order: tried.order,
+        costs,
+        source: 'search',
+      };
+      bestLater = later;
+    }
+  };
+  if (keep !== undefined && bestLater[0] > 0) {
+    // The promised dates first, as the office books job by job: what was told is kept where it can be.
+    const promisedFirst = placeStages(index, pending, horizonDays, (a, b) => {
+      const pa = priority(a),
+        pb = priority(b);
+      return pa.promised !== pb.promised ? pa.promised < pb.promised : better(pa, pb);
+    });
+    consider(promisedFirst);
+    promisedFirst.undo();
+  }
   const budget = options.budgetMs ?? ((options.jobIds?.length ?? 2) > 1 ? 2000 : 300);
   options.onProgress?.({ phase: 'single-pass', schedules: 1, used: 0, best: [] });
-  if (budget <= 0 || pending.length < 2) return best;
+  if (budget <= 0 || pending.length < 2) return withRealCosts(best);
 
   const starts = new Map(pending.map((s) => [s.id, firstPossibleStart(index, s)]));
   const model = buildPlanModel(index, pending, (s) => starts.get(s.id) ?? index.now);
@@ -157,18 +219,8 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
     const rank = new Map(c.list.map((j, i) => [(pending[j] as Stage).id, i]));
     const before: Before = (a, b) => (rank.get(a.id) ?? 0) < (rank.get(b.id) ?? 0);
     const tried = placeStages(index, pending, horizonDays, before, { keepCrew: true });
-    const costs = planCosts(index, pending, early.length + tried.unplaced.length);
+    consider(tried);
     tried.undo();
-    if (comparePlanCosts(costs, best.costs) < 0) {
-      best = {
-        bookings: tried.bookings,
-        placed: tried.placed,
-        unplaced: [...early, ...tried.unplaced],
-        order: tried.order,
-        costs,
-        source: 'search',
-      };
-    }
     if (
       tried.unplaced.length === 0 &&
       c === candidates[0] &&
@@ -176,7 +228,7 @@ export function autoPlace(board: Board, options: AutoPlaceOptions): AutoPlaceRes
     )
       break;
   }
-  return best;
+  return withRealCosts(best);
 }
 
 /** True when every stage was placed where the quick model put it (the model was exact here). */

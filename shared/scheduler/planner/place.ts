@@ -491,6 +491,34 @@ export function planCosts(index: BoardIndex, stages: readonly Stage[], unplaced:
   return { unplacedStages: unplaced, lateJobs, latenessMinutes, finishMinutes, idleHirePence, crewChanges };
 }
 
+/**
+ * How many of the jobs in `keep` the placement (its bookings in the index) finishes later than
+ * `keep` says, and by how many minutes in all.
+ */
+export function laterThanKept(
+  index: BoardIndex,
+  stages: readonly Stage[],
+  keep: Readonly<Record<string, Instant>>,
+): [number, number] {
+  const jobIds = new Set(stages.map((s) => s.jobId));
+  const finish = new Map<string, number>();
+  for (const info of index.stageList) {
+    const jobId = info.stage.jobId;
+    if (!jobIds.has(jobId) || keep[jobId] === undefined) continue;
+    for (const b of info.bookings) finish.set(jobId, Math.max(finish.get(jobId) ?? Number.NEGATIVE_INFINITY, b.end));
+  }
+  let jobs = 0,
+    minutes = 0;
+  for (const [jobId, f] of finish) {
+    const kept = keep[jobId] as Instant;
+    if (f > kept) {
+      jobs++;
+      minutes += Math.round((f - kept) / 60_000);
+    }
+  }
+  return [jobs, minutes];
+}
+
 /** Negative when `a` is the better plan: fewer unplaced stages, then the order of {@link PlanCosts}. */
 export function comparePlanCosts(a: PlanCosts, b: PlanCosts): number {
   return (
