@@ -15,10 +15,11 @@ let browser: Browser;
 let page: Page;
 let first: { id: string; version: number };
 let second: { id: string; version: number };
+let third: { id: string; version: number };
 
 beforeAll(async () => {
   app = await startServer();
-  await unbookJobs(app.ctx.knex, 'TW-2416', 'TW-2417');
+  await unbookJobs(app.ctx.knex, 'TW-2415', 'TW-2416', 'TW-2417');
   const ask = (job: string, startsAt: string, endsAt: string) =>
     pencilIn(app.ctx.knex, {
       job,
@@ -31,6 +32,7 @@ beforeAll(async () => {
   // Tue 3 Aug 2027 and Thu 12 Aug 2027, 09:00–13:00 BST.
   first = await ask('TW-2417', '2027-08-03T08:00:00Z', '2027-08-03T12:00:00Z');
   second = await ask('TW-2416', '2027-08-12T08:00:00Z', '2027-08-12T12:00:00Z');
+  third = await ask('TW-2415', '2027-08-17T08:00:00Z', '2027-08-17T12:00:00Z');
   browser = await launchBrowser();
   page = await phonePage(browser);
   await signInThroughPage(page, app.url, account('partner', 'Brightspark Electrical').email);
@@ -75,5 +77,23 @@ describe('our slots on a phone', () => {
     await expect.poll(() => card(second.id).textContent()).toContain('Friday 13 August, 09:00–13:00');
     expect((await app.ctx.knex('bookings').where('id', second.id).first('state')).state).toBe('sent');
     await page.screenshot({ path: 'tests/e2e/artifacts/slots-phone.png' });
+  });
+
+  it('closes the decline dialog when the slot changed meanwhile, so the new time is seen before any answer', async () => {
+    await page.goto(`${app.url}/slots`);
+    await card(third.id).waitFor();
+    await card(third.id).getByRole('button', { name: 'Decline…' }).click();
+    const dialog = page.getByRole('dialog');
+    await dialog.waitFor();
+    await app.ctx
+      .knex('bookings')
+      .where('id', third.id)
+      .increment('version', 1)
+      .update({ starts_at: '2027-08-18T08:00:00Z', ends_at: '2027-08-18T12:00:00Z' });
+    await dialog.getByRole('button', { name: 'Decline the slot' }).click();
+    await page.getByText('This slot was changed since you loaded it').waitFor();
+    await dialog.waitFor({ state: 'hidden' });
+    await expect.poll(() => card(third.id).textContent()).toContain('Wednesday 18 August, 09:00–13:00');
+    expect((await app.ctx.knex('bookings').where('id', third.id).first('state')).state).toBe('sent');
   });
 });
