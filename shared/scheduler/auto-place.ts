@@ -80,7 +80,10 @@ export interface AutoPlaceResult {
   order: string[];
   /** What this plan costs. */
   costs: PlanCosts;
-  /** Which plan won: the single pass, or the planner's search (never worse than the single pass). */
+  /**
+   * Which plan won: the single pass, or another candidate (never worse than the single pass, first
+   * on the finishes to keep when `notLaterThan` is given, then by its costs).
+   */
   source: 'single-pass' | 'search';
 }
 
@@ -104,7 +107,8 @@ function better(a: Priority, b: Priority): boolean {
  * within `budgetMs`, the planner searches a quick model of the same stages (priority rules,
  * regret-biased sampling, forward–backward improvement, a genetic search over stage orders; see
  * planner/) and places its best orders for real with the same engine checks. The plan kept is
- * the best by {@link PlanCosts}, so never worse than the single pass. Starts land on the booking
+ * the best by {@link PlanCosts}, so never worse than the single pass (with `notLaterThan`, jobs
+ * finishing later than kept are counted first). Starts land on the booking
  * step (`bookingStepMinutes`, local time) and, for a stage that must be done within one working
  * day, where it fits in one. Existing bookings never move. Deterministic: same board, seed and
  * budget, same answer.
