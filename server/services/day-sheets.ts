@@ -9,7 +9,15 @@ import { Booking, Firm } from '../models/index.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { bookingDuring } from './ranges.ts';
-import { alongsideFor, contactsFor, unitFacingFor, visitStatesFor, type AlongsideRow } from './read-policy.ts';
+import {
+  alongsideFor,
+  contactsFor,
+  unitArrivalFor,
+  unitFacingFor,
+  visitStatesFor,
+  type AlongsideRow,
+  type ArrivalRow,
+} from './read-policy.ts';
 
 type Row = Booking & {
   resourceName: string;
@@ -134,6 +142,20 @@ export class DaySheetsService {
           )) as (AlongsideRow & { stageId: string })[])
       : [];
 
+    // When the unit arrives, for the stages the delivery comes before (filtered per reader below).
+    const arrivals = stageIds.length
+      ? ((await this.knex('dependencies as d')
+          .join('stages as ds', 'ds.id', 'd.from_stage_id')
+          .join('bookings as b', 'b.stage_id', 'ds.id')
+          .join('resources as r', 'r.id', 'b.resource_id')
+          .join('firms as f', 'f.id', 'r.firm_id')
+          .whereIn('d.to_stage_id', stageIds)
+          .where('ds.kind', 'delivery')
+          .select('d.to_stage_id', 'b.starts_at', 'b.ends_at', 'b.state', 'f.name as firmName')) as (ArrivalRow & {
+          toStageId: string;
+        })[])
+      : [];
+
     return rows.map((r) => ({
       bookingId: r.id,
       version: r.version,
@@ -171,6 +193,10 @@ export class DaySheetsService {
           .map((o) => ({ ...o, resourceId: String(o.resourceId), firmId: String(o.firmId) })),
       ),
       cautions: cautionsFor(r.stageKind),
+      unitArrives: unitArrivalFor(
+        actor,
+        arrivals.filter((a) => String(a.toStageId) === String(r.stageId)),
+      ),
     }));
   }
 

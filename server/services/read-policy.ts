@@ -169,6 +169,35 @@ export function alongsideFor(
     }));
 }
 
+/** A booking of the delivery before a visit's stage, as `unitArrivalFor` reads it. */
+export interface ArrivalRow {
+  startsAt: Date;
+  endsAt: Date;
+  state: string;
+  firmName: string;
+}
+
+/**
+ * When the unit arrives for a visit of the lift or the placement: the earliest active booking of
+ * the delivery before it. The installer's office and crew see any; a partner only one already
+ * asked of the haulier (a pencilled delivery is the installer's plan), as on the "with" line.
+ */
+export function unitArrivalFor(
+  actor: Actor,
+  rows: readonly ArrivalRow[],
+): { startsAt: string; endsAt: string; firmName: string } | null {
+  const partner = reachOf(actor) === 'partner';
+  const seen = rows
+    .filter(
+      (r) => r.state !== 'declined' && (!partner || (PARTNER_VISIBLE_STATES as readonly string[]).includes(r.state)),
+    )
+    .sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime());
+  const first = seen[0];
+  return first
+    ? { startsAt: first.startsAt.toISOString(), endsAt: first.endsAt.toISOString(), firmName: first.firmName }
+    : null;
+}
+
 /** A booking change as the live stream hears of it (from PostgreSQL NOTIFY, server side only). */
 export interface BookingChange {
   bookingId: string;

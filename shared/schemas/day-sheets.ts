@@ -17,6 +17,12 @@ export interface DaySheetVisit {
   contacts: { name: string; phone: string | null; role: string }[];
   /** Other resources booked on the same stage (crane, plant, partner firms). */
   alongside: { name: string; kind: string; firmName: string }[];
+  /**
+   * On a stage the delivery comes before (the lift, the placement): when the unit arrives and on
+   * whose lorry, so the crew is ready to take it off; null when the delivery isn't booked (or, to a
+   * partner, not yet asked of the haulier).
+   */
+  unitArrives: { startsAt: string; endsAt: string; firmName: string } | null;
   cautions: string[];
 }
 

@@ -35,6 +35,7 @@ function item(id: string, day: string, startsAt: string, over: Partial<MyWorkIte
       { role: 'Installer office', name: 'Tideway Hot Tubs', phone: '0113 496 0001' },
     ],
     alongside: [],
+    unitArrives: null,
     cautions: ['Locate buried services before digging.', 'Follow local codes and licensed practice.'],
     ...over,
   };
@@ -81,6 +82,27 @@ describe('a card', () => {
     expect(html.split('Follow local codes and licensed practice.').length - 1).toBe(1); // said once, not twice
     expect(html).toContain('08:00–12:00 · Excavate pit');
     expect(html).toContain('In-ground');
+  });
+
+  it('says when the unit arrives on the placement it comes before, the day too when that is the day before', async () => {
+    const placement = (unitArrives: MyWorkItem['unitArrives']) =>
+      renderHtml(MyWorkCard, {
+        item: item('2', '2026-06-08', '2026-06-08T09:00:00Z', {
+          stage: { id: 's2', kind: 'placement', name: 'Place in the pit' },
+          unitArrives,
+        }),
+        timeZone: 'Europe/London',
+        busy: false,
+        canSurvey: false,
+      });
+    const carrow = { firmName: 'Carrow Haulage' };
+    expect(await placement({ startsAt: '2026-06-08T07:00:00Z', endsAt: '2026-06-08T09:00:00Z', ...carrow })).toContain(
+      'The unit arrives 08:00–10:00 on Carrow Haulage’s lorry',
+    );
+    expect(await placement({ startsAt: '2026-06-05T14:00:00Z', endsAt: '2026-06-05T16:00:00Z', ...carrow })).toContain(
+      'The unit arrives Fri 5 Jun 15:00–17:00 on Carrow Haulage’s lorry',
+    );
+    expect(await placement(null)).not.toContain('The unit arrives');
   });
 
   it('offers only the steps the server says may be marked now', async () => {

@@ -120,6 +120,62 @@ describe('My work, as the crew sees it on a phone', () => {
     }
   });
 
+  it('says when the unit arrives on the placement the delivery comes before, and on no other card', async () => {
+    const jobId = await idOf(ctx.knex, 'jobs', { reference: 'TW-8801' });
+    const stage = async (kind: string, name: string, sequence: number, requirement: string) =>
+      String(
+        (
+          await ctx
+            .knex('stages')
+            .insert({
+              job_id: jobId,
+              kind,
+              name,
+              sequence,
+              duration_minutes: kind === 'delivery' ? 120 : 180,
+              requirements: JSON.stringify([{ kind: requirement, count: 1 }]),
+            })
+            .returning('id')
+        )[0].id,
+      );
+    const delivery = await stage('delivery', 'Delivery', 3, 'lorry');
+    const placement = await stage('placement', 'Place on the slab', 4, 'installer');
+    await ctx.knex('dependencies').insert({ from_stage_id: delivery, to_stage_id: placement, type: 'FS' });
+    // Fri 5 Jun: the lorry 08:00–10:00 BST (pencilled, the office's plan), Connor placing 10:00–13:00.
+    await ctx.knex('bookings').insert([
+      {
+        stage_id: delivery,
+        resource_id: await idOf(ctx.knex, 'resources', { name: '18 t lorry with loader crane' }),
+        starts_at: '2026-06-05T07:00:00Z',
+        ends_at: '2026-06-05T09:00:00Z',
+        state: 'pencilled',
+      },
+      {
+        stage_id: placement,
+        resource_id: await idOf(ctx.knex, 'resources', { name: 'Connor Reid' }),
+        starts_at: '2026-06-05T09:00:00Z',
+        ends_at: '2026-06-05T12:00:00Z',
+        state: 'confirmed',
+      },
+    ]);
+    try {
+      const items = (await myWork()).items;
+      const card = items.find((i) => i.stage.id === placement)!;
+      expect(card.unitArrives).toEqual({
+        startsAt: '2026-06-05T07:00:00.000Z',
+        endsAt: '2026-06-05T09:00:00.000Z',
+        firmName: 'Carrow Haulage',
+      });
+      // Only the lift or placement a delivery comes before says it (Crew Heron's own placement from the demo too).
+      expect([...new Set(items.filter((i) => i.unitArrives !== null).map((i) => i.stage.kind))]).toEqual(['placement']);
+      expect(items.find((i) => i.bookingId === today)!.unitArrives).toBeNull();
+      expect(items.find((i) => i.bookingId === thursday)!.unitArrives).toBeNull();
+    } finally {
+      await ctx.knex('bookings').whereIn('stage_id', [delivery, placement]).delete();
+      await ctx.knex('stages').whereIn('id', [delivery, placement]).delete();
+    }
+  });
+
   it('puts the street, postcode, site contact, office phone and cautions on each card', async () => {
     const card = (await myWork()).items.find((i) => i.bookingId === today)!;
     expect(card.site).toEqual({ address: '9 Weir Street', town: 'Headingley', postcode: 'LS6 2AB', accessNotes: null });

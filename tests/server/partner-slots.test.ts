@@ -6,7 +6,7 @@ import { pencilIn, startMailTestApp, type MailTestContext } from '../helpers/mai
 import { unbookJobs } from '../helpers/demo.ts';
 import type { PartnerSlot } from '../../shared/schemas/answers.ts';
 import type { DaySheetList } from '../../shared/schemas/day-sheets.ts';
-import { unitFacingFor } from '../../server/services/read-policy.ts';
+import { unitArrivalFor, unitFacingFor } from '../../server/services/read-policy.ts';
 
 let ctx: MailTestContext;
 let scheduler: Agent;
@@ -112,6 +112,18 @@ describe("a partner's own slots", () => {
       const partnerActor = { userId: '1', firmId: '2', firmKind: 'haulage', role: 'partner' } as const;
       expect(unitFacingFor(partnerActor, 'delivery', 'Controls towards the house')).toBe('Controls towards the house');
       expect(unitFacingFor(partnerActor, 'electrical_connect', 'Controls towards the house')).toBeNull();
+      // When the unit arrives, on the lift: a pencilled delivery is the installer's plan, not yet the crane firm's to read.
+      const arrival = {
+        startsAt: new Date('2027-08-05T07:00:00Z'),
+        endsAt: new Date('2027-08-05T09:00:00Z'),
+        firmName: 'Carrow Haulage',
+      };
+      expect(unitArrivalFor(partnerActor, [{ ...arrival, state: 'pencilled' }])).toBeNull();
+      expect(unitArrivalFor(partnerActor, [{ ...arrival, state: 'sent' }])).toEqual({
+        startsAt: '2027-08-05T07:00:00.000Z',
+        endsAt: '2027-08-05T09:00:00.000Z',
+        firmName: 'Carrow Haulage',
+      });
     } finally {
       await ctx.knex('surveys').where({ job_id: jobId }).delete();
       await ctx.knex('bookings').where({ id: lift.id }).delete();
