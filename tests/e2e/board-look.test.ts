@@ -415,3 +415,24 @@ describe('the board on a phone (390 × 844)', () => {
     await phone.close();
   }, 60_000);
 });
+
+describe('the board for someone who may only look', () => {
+  it('shows the week with no Undo, no tray and no request refused', async () => {
+    const look = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
+    const p = await look.newPage();
+    await signInThroughPage(p, app.url, account('viewer').email);
+    // Every answer the page gets from here on: a viewer's board asks only for what a viewer may read.
+    const refused: string[] = [];
+    p.on('response', (r) => {
+      if (r.status() >= 400) refused.push(`${r.status()} ${new URL(r.url()).pathname}`);
+    });
+    await openBoard(p, 'view=week&date=2026-06-01');
+    await p.waitForLoadState('networkidle');
+
+    expect(await p.locator('.fc-event.wl-booking').count()).toBeGreaterThan(0);
+    expect(await p.getByRole('button', { name: 'Undo' }).count()).toBe(0);
+    expect(await p.locator('.tray-stage').count()).toBe(0);
+    expect(refused).toEqual([]);
+    await look.close();
+  }, 60_000);
+});
