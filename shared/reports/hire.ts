@@ -243,7 +243,7 @@ function addMergeSuggestions(ctx: ReportContext, rows: HirePeriodRow[]): void {
         b.suggestions.push({
           kind: 'merge',
           savesPence: saves,
-          label: `Overlaps the hire from ${a.onHireDate} on ${plural(shared, 'day')}: merge them: saves ${formatPence(saves)}`,
+          label: `Overlaps the hire from ${dayWords(a.onHireDate)} on ${plural(shared, 'day')}: merge them: saves ${formatPence(saves)}`,
         });
         continue;
       }
@@ -256,7 +256,7 @@ function addMergeSuggestions(ctx: ReportContext, rows: HirePeriodRow[]): void {
         b.suggestions.push({
           kind: 'merge',
           savesPence: saves,
-          label: `Keep it on hire through the ${plural(gap, 'working day')} since the hire ending ${a.offHireDate} instead of collecting and delivering again: saves ${formatPence(saves)}`,
+          label: `Keep it on hire through the ${plural(gap, 'working day')} since the hire ending ${dayWords(a.offHireDate)} instead of collecting and delivering again: saves ${formatPence(saves)}`,
         });
       }
     }

@@ -125,7 +125,10 @@ describe('applying a suggested fix', () => {
 
 describe('the report tables', () => {
   it('never call a job with a stage short of resources "on time"', async () => {
-    const html = await renderHtml(RiskTable, { rows: [risk({})] });
+    const html = await renderHtml(RiskTable, { rows: [risk({})], currentYear: 2026 });
+    expect(html).toContain('<td data-label="Promised by">—</td>');
+    const promised = await renderHtml(RiskTable, { rows: [risk({ promisedDate: '2026-07-24' })], currentYear: 2026 });
+    expect(promised).toContain('<td data-label="Promised by">Fri 24 Jul</td>');
     expect(html).toContain('<td data-label="Status" class="risk--blocked">Can&#39;t go ahead as booked</td>');
     expect(html).not.toContain('on time');
   });
@@ -149,7 +152,8 @@ describe('the report tables', () => {
       link: '/board?view=day&date=2026-06-03&q=Fix+crew+A&highlight=30%2C31',
       fixes: [fix],
     };
-    const html = await renderHtml(ClashTable, { rows: [row] });
+    const html = await renderHtml(ClashTable, { rows: [row], currentYear: 2026 });
+    expect(html).toContain('<td data-label="Date">Wed 3 Jun</td>');
     expect(html).toContain('href="/board?view=day&amp;date=2026-06-03&amp;q=Fix+crew+A&amp;highlight=30%2C31"');
     expect(html).toContain('aria-label="Preview: Move to Fix crew B on Mon 8 Jun 09:00 — no extra cost"');
   });
@@ -187,8 +191,8 @@ describe('the hire table', () => {
     version: 1,
     onHire: 0,
     offHire: 1,
-    onHireDate: 'Mon 1 Jun',
-    offHireDate: 'Fri 5 Jun',
+    onHireDate: '2026-06-01',
+    offHireDate: '2027-01-08',
     dayRatePence: 14_500,
     deliveryPence: 0,
     collectionPence: 0,
@@ -202,8 +206,15 @@ describe('the hire table', () => {
     link: '/board?view=week&date=2026-06-01',
   });
 
+  it('shows the hire dates as the firm reads them, the year only when it is not this one', async () => {
+    const html = await renderHtml(HireTable, { rows: [period(0)], canApprove: false, busyId: null, currentYear: 2026 });
+    expect(html).toContain('<td data-label="On hire">Mon 1 Jun</td>');
+    expect(html).toContain('<td data-label="Off hire">Fri 8 Jan 2027</td>');
+  });
+
   it('counts the bookings outside the hire in words that read right for one or more', async () => {
-    const html = (n: number) => renderHtml(HireTable, { rows: [period(n)], canApprove: false, busyId: null });
+    const html = (n: number) =>
+      renderHtml(HireTable, { rows: [period(n)], canApprove: false, busyId: null, currentYear: 2026 });
     expect(await html(1)).toContain('1 booking outside the hire');
     expect(await html(2)).toContain('2 bookings outside the hire');
     expect(await html(0)).not.toContain('outside the hire');

@@ -1,4 +1,4 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, onTestFinished } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
 import type { ClashReport, HireReport, UtilisationReport } from '../../shared/reports/types.ts';
 
@@ -251,6 +251,43 @@ describe('the hire report', () => {
     const line = res.text.split('\r\n').find((l) => l.startsWith('Test mini digger (hired),'))!;
     expect(line).toContain(
       ',2026-06-22,2026-06-26,145.00,5,2,3,2026-06-22; 2026-06-25; 2026-06-26,435.00,60.00,60.00,845.00,1,',
+    );
+  });
+  it('names the other hire of a merge suggestion by its day, as the other suggestions do', async () => {
+    const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
+    const hire = async (onHireAt: string, offHireAt: string, deliveryPence: number) =>
+      String(
+        (
+          await manager
+            .post('/api/hire-periods')
+            .set('X-CSRF-Token', manager.csrf)
+            .send({
+              supplierFirmId: ridgeway,
+              resourceId: digger,
+              onHireAt,
+              offHireAt,
+              dayRatePence: 14500,
+              deliveryPence,
+              collectionPence: 6000,
+              approve: true,
+            })
+            .expect(201)
+        ).body.id,
+      );
+    // Thu 25 – Fri 26 Jun again: two paid days on both hires. Then Tue 30 Jun after a one-working-day
+    // gap (Mon 29), delivered for £100.00: collecting and delivering again costs more than the day.
+    const overlapping = await hire('2026-06-25T06:00:00Z', '2026-06-26T17:00:00Z', 6000);
+    const later = await hire('2026-06-30T06:00:00Z', '2026-06-30T17:00:00Z', 10000);
+    onTestFinished(async () => {
+      await ctx.knex('hire_periods').whereIn('id', [overlapping, later]).del();
+    });
+    const report: HireReport = (await manager.get(`/api/reports/hire?${qs(JUNE)}`).expect(200)).body;
+    const labels = (id: string) => report.periods.find((x) => x.id === id)!.suggestions.map((s) => s.label);
+    // 2 shared days × £145.00 + £60.00 collection + £60.00 delivery = £410.00
+    expect(labels(overlapping)).toContain('Overlaps the hire from Mon 22 Jun on 2 days: merge them: saves £410.00');
+    // £60.00 collection + £100.00 delivery − 1 day × £145.00 = £15.00
+    expect(labels(later)).toContain(
+      'Keep it on hire through the 1 working day since the hire ending Fri 26 Jun instead of collecting and delivering again: saves £15.00',
     );
   });
 });
