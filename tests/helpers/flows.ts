@@ -41,19 +41,7 @@ export async function makeJob(
     })
     .returning('id');
   const stage: Record<string, string> = {};
-  for (const [n, s] of input.stages.entries()) {
-    const [row] = await knex('stages')
-      .insert({
-        job_id: job.id,
-        kind: s.kind,
-        name: s.name,
-        sequence: n + 1,
-        duration_minutes: s.minutes,
-        requirements: JSON.stringify(Object.entries(s.needs).map(([kind, count]) => ({ kind, count }))),
-      })
-      .returning('id');
-    stage[s.kind] = String(row.id);
-  }
+  for (const [n, s] of input.stages.entries()) stage[s.kind] = await addStage(knex, String(job.id), s, n + 1);
   for (const [from, to] of input.links) {
     await knex('dependencies').insert({
       from_stage_id: stage[from],
@@ -64,6 +52,26 @@ export async function makeJob(
     });
   }
   return { jobId: String(job.id), stage };
+}
+
+/**
+ * One stage added to a job (written directly: a stage is not a booking); returns its id.
+ *
+ * @example
+ * await addStage(ctx.knex, jobId, { kind: 'fill', name: 'Fill', minutes: 180, needs: { install_crew: 1 } }, 4)
+ */
+export async function addStage(knex: Knex, jobId: string, s: FixtureStage, sequence: number): Promise<string> {
+  const [row] = await knex('stages')
+    .insert({
+      job_id: jobId,
+      kind: s.kind,
+      name: s.name,
+      sequence,
+      duration_minutes: s.minutes,
+      requirements: JSON.stringify(Object.entries(s.needs).map(([kind, count]) => ({ kind, count }))),
+    })
+    .returning('id');
+  return String(row.id);
 }
 
 /** "Excavate pit": a groundworks gang, an excavator and a dumper for five working hours. */

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { addStage } from '../helpers/flows.ts';
 
 /*
  * The job page's reads, for the office and for a crew member booked on the job. TW-8802 is added:
@@ -32,22 +33,8 @@ beforeAll(async () => {
     })
     .returning('id');
   jobId = String(job.id);
-  const stage = async (kind: string, name: string, sequence: number) =>
-    String(
-      (
-        await ctx
-          .knex('stages')
-          .insert({
-            job_id: jobId,
-            kind,
-            name,
-            sequence,
-            duration_minutes: 120,
-            requirements: JSON.stringify([{ kind: 'installer', count: 1 }]),
-          })
-          .returning('id')
-      )[0].id,
-    );
+  const stage = (kind: string, name: string, sequence: number) =>
+    addStage(ctx.knex, jobId, { kind, name, minutes: 120, needs: { installer: 1 } }, sequence);
   const survey = await stage('survey', 'Site survey', 1);
   const firstFix = await stage('electrical_first_fix', 'Supply cable first fix', 2);
   const lift = await stage('lift', 'Crane lift into pit', 3);

@@ -1,5 +1,6 @@
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { addStage } from '../helpers/flows.ts';
 import { BookingWriter } from '../../server/services/booking-writes.ts';
 import type { MyWorkList } from '../../shared/schemas/my-work.ts';
 
@@ -122,24 +123,18 @@ describe('My work, as the crew sees it on a phone', () => {
 
   it('says when the unit arrives on the placement the delivery comes before, and on no other card', async () => {
     const jobId = await idOf(ctx.knex, 'jobs', { reference: 'TW-8801' });
-    const stage = async (kind: string, name: string, sequence: number, requirement: string) =>
-      String(
-        (
-          await ctx
-            .knex('stages')
-            .insert({
-              job_id: jobId,
-              kind,
-              name,
-              sequence,
-              duration_minutes: kind === 'delivery' ? 120 : 180,
-              requirements: JSON.stringify([{ kind: requirement, count: 1 }]),
-            })
-            .returning('id')
-        )[0].id,
-      );
-    const delivery = await stage('delivery', 'Delivery', 3, 'lorry');
-    const placement = await stage('placement', 'Place on the slab', 4, 'installer');
+    const delivery = await addStage(
+      ctx.knex,
+      jobId,
+      { kind: 'delivery', name: 'Delivery', minutes: 120, needs: { lorry: 1 } },
+      3,
+    );
+    const placement = await addStage(
+      ctx.knex,
+      jobId,
+      { kind: 'placement', name: 'Place on the slab', minutes: 180, needs: { installer: 1 } },
+      4,
+    );
     await ctx.knex('dependencies').insert({ from_stage_id: delivery, to_stage_id: placement, type: 'FS' });
     // Fri 5 Jun: the lorry 08:00–10:00 BST (pencilled, the office's plan), Connor placing 10:00–13:00.
     await ctx.knex('bookings').insert([
