@@ -43,4 +43,7 @@ export const themeOverrides: GlobalThemeOverrides = {
   Card: { titleFontSizeMedium: typeScale.h4, borderColor: palette.border },
   DataTable: { thColor: palette.page, thTextColor: palette.ink, thFontWeight: '600', borderColor: palette.border },
   Button: { fontWeight: '500' },
+  // A ticked box someone may only read (a manager on the commissioning record) stays readable:
+  // naive-ui's own disabled grey is 1.8:1 on white.
+  Checkbox: { textColorDisabled: palette.inkMuted },
 };
