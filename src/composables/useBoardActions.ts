@@ -1,6 +1,7 @@
 import { h, ref, shallowRef } from 'vue';
 import { useRouter } from 'vue-router';
-import { useDialog, useMessage, useNotification } from 'naive-ui';
+import { useMessage, useNotification } from 'naive-ui';
+import { useNamedDialog } from '@/composables/useNamedDialog';
 import { api } from '@/api/client';
 import type { BoardBooking, BoardData } from '@shared/board-data';
 import { bookingsOfStage, dependentStageIds } from '@shared/board-actions';
@@ -55,7 +56,7 @@ const HELD: readonly string[] = ['sent', 'confirmed'];
  * proposals are answered from here.
  */
 export function useBoardActions(deps: Deps) {
-  const dialog = useDialog();
+  const dialog = useNamedDialog();
   const message = useMessage();
   const notification = useNotification();
   const router = useRouter();

@@ -3,6 +3,8 @@ import { createRequire } from 'node:module';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
 import { account, idOf } from '../helpers/server.ts';
+import { unbookJobs } from '../helpers/demo.ts';
+import { pencilIn } from '../helpers/mail.ts';
 import type { Role } from '../../shared/permissions.ts';
 
 /*
@@ -23,6 +25,16 @@ let job: string;
 beforeAll(async () => {
   app = await startServer();
   job = await idOf(app.ctx.knex, 'jobs', { reference: 'TW-2402' });
+  // A request waiting for Brightspark's answer (Tue 17 Aug 2027, 09:00–13:00 BST), to decline.
+  await unbookJobs(app.ctx.knex, 'TW-2415');
+  await pencilIn(app.ctx.knex, {
+    job: 'TW-2415',
+    stage: 'electrical_connect',
+    resource: 'Priya Nair',
+    startsAt: '2027-08-17T08:00:00Z',
+    endsAt: '2027-08-17T12:00:00Z',
+    state: 'sent',
+  });
   browser = await launchBrowser();
 }, 60_000);
 afterAll(async () => {
@@ -58,6 +70,8 @@ async function signedIn(role: Role, phone: boolean): Promise<{ context: BrowserC
     timezoneId: 'Europe/London',
     bypassCSP: true,
   });
+  // The browser's today is the test scenario's, so every page shows the seeded plan (reports, slots).
+  await context.clock.setFixedTime(new Date('2026-06-01T08:00:00+01:00'));
   const page = await context.newPage();
   const demo = role === 'partner' ? account('partner', 'Brightspark Electrical') : account(role);
   await signInThroughPage(page, app.url, demo.email);
@@ -125,4 +139,73 @@ describe.each([
     },
     120_000,
   );
+});
+
+describe('dialogs and panels', () => {
+  /** Waits for the dialog (or drawer) with this name and returns axe-core's violations with it open. */
+  async function withDialog(page: Page, name: string | RegExp): Promise<Finding[]> {
+    await page.getByRole('dialog', { name }).waitFor();
+    // Let the opening transition finish, so the rules see the dialog as people do.
+    await page.waitForFunction(() =>
+      [...document.querySelectorAll('[role="dialog"]')].every((d) => d.getAnimations().length === 0),
+    );
+    return violations(page);
+  }
+
+  it("pass axe-core on the scheduler's board: a job's panel and moving a booking to a chosen time", async () => {
+    const { context, page } = await signedIn('scheduler', false);
+    try {
+      await open(page, '/board?view=week&date=2026-06-01');
+      const booking = page.locator('.fc-event.wl-booking.wl-state-confirmed').first();
+      const jobRef = (await booking.getAttribute('aria-label'))!.slice(0, 7);
+      await booking.click();
+      expect(await withDialog(page, new RegExp(`^${jobRef} · `))).toEqual([]);
+      await page.keyboard.press('Escape');
+      await booking.focus();
+      await page.keyboard.press('m');
+      expect(await withDialog(page, /^Move .* to…$/)).toEqual([]);
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+
+  it("pass axe-core on the manager's fix preview", async () => {
+    const { context, page } = await signedIn('manager', false);
+    try {
+      await open(page, '/reports');
+      await page
+        .getByRole('button', { name: /^Preview: / })
+        .first()
+        .click();
+      expect(await withDialog(page, 'Preview the fix')).toEqual([]);
+      // Its dates read as the rest of the page's do ("Mon 8 Jun"), not as stored.
+      expect(await page.getByRole('dialog', { name: 'Preview the fix' }).innerText()).not.toMatch(/\d{4}-\d\d-\d\d/);
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+
+  it("pass axe-core on a phone: a partner's decline, the menu, a crew member's on-site question", async () => {
+    const partner = await signedIn('partner', true);
+    const crew = await signedIn('crew', true);
+    try {
+      await open(partner.page, '/slots');
+      await partner.page.getByRole('button', { name: 'Decline…' }).first().click();
+      expect(await withDialog(partner.page, /^Decline: /)).toEqual([]);
+      await partner.page.keyboard.press('Escape');
+      await partner.page.getByRole('dialog').waitFor({ state: 'detached' });
+      await partner.page.getByRole('button', { name: 'Menu' }).click();
+      expect(await withDialog(partner.page, 'Menu')).toEqual([]);
+
+      await open(crew.page, '/my-work');
+      await crew.page
+        .getByRole('button', { name: /On site/ })
+        .first()
+        .click();
+      expect(await withDialog(crew.page, /.+/)).toEqual([]);
+    } finally {
+      await partner.context.close();
+      await crew.context.close();
+    }
+  }, 60_000);
 });
