@@ -209,3 +209,24 @@ describe('dialogs and panels', () => {
     }
   }, 60_000);
 });
+
+describe('the board read aloud', () => {
+  it("makes each booking a button named by its summary, and another installer's time words out of the Tab order", async () => {
+    const { context, page } = await signedIn('scheduler', false);
+    try {
+      // The week Moorview Spas has Brightspark's Priya Nair: busy elsewhere on Tideway's board.
+      await open(page, '/board?view=week&date=2026-06-08');
+      const mine = page.locator('.fc-event.wl-booking:not(.wl-elsewhere)').first();
+      expect(await mine.getAttribute('role')).toBe('button');
+      expect(await mine.getAttribute('aria-label')).toMatch(/^[A-Z]{2}-\d{4} · .*Press Enter for the job/);
+      const elsewhere = page.locator('.fc-event.wl-elsewhere').first();
+      expect(await elsewhere.getAttribute('role')).toBe('img');
+      expect(await elsewhere.getAttribute('tabindex')).toBe('-1');
+      expect(await elsewhere.getAttribute('aria-label')).toMatch(/^Busy elsewhere/);
+      // Neither sits in a part of the page hidden from screen readers.
+      expect(await mine.evaluate((el) => el.closest('[aria-hidden="true"]') === null)).toBe(true);
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+});
