@@ -102,7 +102,7 @@ const DESK: [Role, string[]][] = [
   ],
   ['owner', ['/firm', '/jobs/:job', '/jobs/:job/survey', '/jobs/:job/commission', '/jobs/:job/handover', '/jobs/new']],
   ['manager', ['/reports', '/jobs/:job/commission']],
-  ['viewer', ['/board?view=week&date=2026-06-01', '/jobs/:job']],
+  ['viewer', ['/board?view=week&date=2026-06-01', '/jobs/:job', '/no-such-page']],
   ['crew', ['/my-work', '/board?view=week&date=2026-06-01']],
   ['partner', ['/slots', '/slots/day-sheets']],
 ];
@@ -227,6 +227,37 @@ describe('the board read aloud', () => {
       expect(await mine.evaluate((el) => el.closest('[aria-hidden="true"]') === null)).toBe(true);
     } finally {
       await context.close();
+    }
+  }, 60_000);
+});
+
+describe('pages for people without an account', () => {
+  it('pass axe-core: sign-in, and the pages behind a link from an e-mail that no longer works', async () => {
+    for (const phone of [false, true]) {
+      const context = await browser.newContext({
+        viewport: phone ? { width: 390, height: 844 } : { width: 1280, height: 800 },
+        isMobile: phone,
+        hasTouch: phone,
+        bypassCSP: true,
+      });
+      const page = await context.newPage();
+      try {
+        const found: Record<string, Finding[]> = {};
+        for (const path of [
+          '/sign-in',
+          '/answer/not-a-token',
+          '/invite/not-a-token',
+          '/answer/certificate/not-a-token',
+        ]) {
+          await page.goto(`${app.url}${path}`);
+          await page.waitForLoadState('networkidle');
+          const v = await violations(page);
+          if (v.length > 0) found[path] = v;
+        }
+        expect(found).toEqual({});
+      } finally {
+        await context.close();
+      }
     }
   }, 60_000);
 });
