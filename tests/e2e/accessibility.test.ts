@@ -1,23 +1,19 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createRequire } from 'node:module';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
 import { account, idOf } from '../helpers/server.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import { pencilIn } from '../helpers/mail.ts';
+import { accessibilityViolations as violations, type Finding } from '../helpers/a11y.ts';
 import type { Role } from '../../shared/permissions.ts';
 
 /*
- * Every page each person opens, checked in chromium by axe-core (Deque's accessibility rule engine,
- * its default rules: WCAG 2.0–2.2 A and AA, and its best practices) on the demo data: at 1280 × 800,
- * and on a phone (390 × 844, touch) for the pages people open on site (the board at the test
- * scenario's "today", Monday 1 June 2026, where it has bookings). A page passes with no
- * violation at all, and no box shows the UI library's stock "Please Input". The app's content
- * security policy allows no injected script, so these browser contexts bypass it to load the rule
- * engine (tests only).
+ * Every page each person opens, checked in chromium by axe-core (tests/helpers/a11y.ts: WCAG
+ * 2.0–2.2 A and AA, and best practices) on the demo data: at 1280 × 800, and on a phone (390 × 844,
+ * touch) for the pages people open on site, at the test scenario's "today", Monday 1 June 2026. A
+ * page passes with no violation at all, and no box shows the UI library's stock "Please Input".
+ * The browser contexts bypass the app's content security policy to load the rule engine.
  */
-const axeSource = createRequire(import.meta.url).resolve('axe-core/axe.min.js');
-
 let app: RunningApp;
 let browser: Browser;
 let job: string;
@@ -41,26 +37,6 @@ afterAll(async () => {
   await browser?.close();
   await app?.stop();
 });
-
-interface Finding {
-  rule: string;
-  impact: string | null;
-  where: string[];
-}
-
-/** axe-core's violations on the page as it stands: each rule once, with up to three places. */
-async function violations(page: Page): Promise<Finding[]> {
-  await page.addScriptTag({ path: axeSource });
-  return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run(c: Document): Promise<{ violations: unknown[] }> } }).axe;
-    const result = await axe.run(document);
-    return (result.violations as { id: string; impact: string | null; nodes: { target: string[] }[] }[]).map((v) => ({
-      rule: v.id,
-      impact: v.impact,
-      where: v.nodes.slice(0, 3).map((n) => n.target.join(' ')),
-    }));
-  });
-}
 
 async function signedIn(role: Role, phone: boolean): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({

@@ -7,6 +7,7 @@ import { makeJob, type FixtureStage } from '../helpers/flows.ts';
 import { Inbox, answerLinks } from '../helpers/mail.ts';
 import { startMailPipeline, type MailPipeline } from '../../workers/pipeline.ts';
 import { openBoard } from './helpers-board.ts';
+import { accessibilityViolations } from '../helpers/a11y.ts';
 
 /*
  * Two stories end to end, in chromium at 1280 × 800: a partner answering from the e-mail while the
@@ -31,7 +32,12 @@ const CONNECT: FixtureStage = {
 };
 
 async function newPage(name: string): Promise<{ context: BrowserContext; page: Page }> {
-  const context = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
+  // bypassCSP: the accessibility check injects its rule engine.
+  const context = await browser.newContext({
+    viewport: { width: 1280, height: 800 },
+    timezoneId: 'Europe/London',
+    bypassCSP: true,
+  });
   const page = await context.newPage();
   open.push({ name, page });
   return { context, page };
@@ -114,8 +120,11 @@ describe('stories across firms', () => {
     const { context: partnerContext, page: partner } = await newPage('partner');
     expect(await partnerContext.cookies()).toEqual([]);
     await partner.goto(`${app.url}${links.confirm}`);
+    // The page an electrician answers on, and the one that thanks them, pass axe-core's checks.
+    expect(await accessibilityViolations(partner)).toEqual([]);
     await partner.getByRole('button', { name: 'Confirm', exact: true }).click();
     await partner.getByText('Thank you: the slot is confirmed').waitFor({ timeout: 10_000 });
+    expect(await accessibilityViolations(partner)).toEqual([]);
     const shownAt = Date.now();
 
     await expect
@@ -141,7 +150,12 @@ describe('stories across firms', () => {
     expect(dig).toBeDefined();
     const digId = String(dig.id);
 
-    const context = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
+    // bypassCSP: the accessibility check injects its rule engine.
+    const context = await browser.newContext({
+      viewport: { width: 1280, height: 800 },
+      timezoneId: 'Europe/London',
+      bypassCSP: true,
+    });
     // The reports page spans the weeks from the browser's today: the scenario's Monday 1 June 2026.
     await context.clock.setFixedTime(new Date('2026-06-01T08:00:00+01:00'));
     const page = await context.newPage();
