@@ -30,7 +30,10 @@ async function rowPoint(
   fractionIntoSlot: number,
 ): Promise<{ x: number; y: number }> {
   const laneLocator = page.locator(`td.fc-timeline-lane[data-resource-id="${resourceId}"]`).first();
-  await laneLocator.scrollIntoViewIfNeeded();
+  // The row in the middle of the timeline, as a person would put it before dragging: a row left at
+  // the edge is where the timeline scrolls by itself during a drag, and on a busy machine it
+  // scrolled the next row under the pointer.
+  await laneLocator.evaluate((el) => el.scrollIntoView({ block: 'center', inline: 'nearest' }));
   const slot = (await page.locator(`td.fc-timeline-slot-lane[data-date="${slotDate}"]`).first().boundingBox())!;
   const lane = (await laneLocator.boundingBox())!;
   return { x: slot.x + slot.width * fractionIntoSlot + 4, y: lane.y + lane.height / 2 };
