@@ -68,7 +68,8 @@ async function open(page: Page, path: string): Promise<void> {
  * above it is a scrolling box of the timeline's own that the keyboard cannot reach
  * (scrollable-region-focusable). The timeline scrolls it in step with the lanes, which the keyboard
  * does reach (they hold the bookings). Making the strip focusable breaks the timeline's grid for
- * screen readers, and taking its scrolling away moved where drops land: both were tried.
+ * screen readers. Taking its scrolling away (`overflow: hidden`) kept it in step in a screenshot,
+ * but was reverted with a drag failure that the drag helper turned out to cause: try it again.
  */
 const LEFT_STANDING: Record<string, string[]> = {
   '/board?view=month&date=2026-06-01': ['scrollable-region-focusable'],
