@@ -16,6 +16,12 @@ function calendarToUtc(date: string): Date | null {
 
 /** Today's calendar date in a time zone (the one rule, in shared/local-dates.ts). @example todayIn('Europe/London', new Date('2026-03-29T23:30:00Z')) // '2026-03-30' */
 export { todayIn } from '@shared/local-dates';
+import { todayIn } from '@shared/local-dates';
+
+/** The firm's current year, left out of the dates it shows. @example currentYearIn('Europe/London', new Date('2026-12-31T23:30:00Z')) // 2026 */
+export function currentYearIn(timeZone: string, now: Parameters<typeof todayIn>[1] = new Date()): number {
+  return Number(todayIn(timeZone, now).slice(0, 4));
+}
 
 export interface CalendarDateOptions {
   /** Year to leave out (usually the firm's current year); other years are shown. */

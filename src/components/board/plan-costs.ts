@@ -1,7 +1,7 @@
 import type { AutoPlaceResult } from '@shared/scheduler/index';
-import { localDateOf, todayIn } from '@shared/local-dates';
+import { localDateOf } from '@shared/local-dates';
 import { plural } from '@shared/plural';
-import { formatCalendarDate } from '@/utils/dates';
+import { currentYearIn, formatCalendarDate } from '@/utils/dates';
 
 const DAY_MINUTES = 1440;
 
@@ -58,7 +58,7 @@ export function planCostLines(
     );
   if (result.placed.length > 0) {
     const finish = Math.max(...result.placed.map((p) => p.end));
-    const currentYear = Number(todayIn(timeZone, now).slice(0, 4));
+    const currentYear = currentYearIn(timeZone, now);
     lines.push(`Finishes ${formatCalendarDate(localDateOf(finish, timeZone), { currentYear })}`);
   }
   lines.push(`Idle paid hire: ${pounds(costs.idleHirePence)}`);
