@@ -161,7 +161,7 @@ describe('dialogs and panels', () => {
     }
   }, 60_000);
 
-  it("pass axe-core on a phone: a partner's decline, the menu, a crew member's on-site question", async () => {
+  it("pass axe-core on a phone: a partner's decline, the menu, a crew member's on-site question and its answer's message", async () => {
     const partner = await signedIn('partner', true);
     const crew = await signedIn('crew', true);
     try {
@@ -179,6 +179,15 @@ describe('dialogs and panels', () => {
         .first()
         .click();
       expect(await withDialog(crew.page, /.+/)).toEqual([]);
+      // The answer's message (with its Undo) is read out where it appears: inside the page's
+      // named live region, not loose at the end of the body.
+      await crew.page.getByRole('dialog').getByRole('button', { name: 'Yes, on site' }).click();
+      const said = crew.page.getByRole('region', { name: 'Messages' });
+      await said.getByText(/marked on site/i).waitFor();
+      expect(await said.getAttribute('aria-live')).toBe('polite');
+      await crew.page.getByRole('dialog').waitFor({ state: 'detached' });
+      await crew.page.waitForFunction(() => document.getAnimations().length === 0);
+      expect(await violations(crew.page)).toEqual([]);
     } finally {
       await partner.context.close();
       await crew.context.close();
