@@ -92,4 +92,41 @@ describe('office pages on a phone', () => {
       await other.close();
     }
   });
+
+  it("folds the header into the Menu on a tablet, where the owner's links and account don't fit on one line", async () => {
+    const header = page.locator('header.app-header');
+    /** The header's visible controls: whether the Menu is one, and the furthest right edge of any. */
+    const look = () =>
+      header.evaluate((h) => {
+        const shown = [...h.querySelectorAll<HTMLElement>('a, button, select, p')].filter((e) => e.offsetWidth > 0);
+        return {
+          menu: shown.some((e) => e.textContent?.trim() === 'Menu'),
+          signOut: shown.some((e) => e.textContent?.trim() === 'Sign out'),
+          right: Math.max(...shown.map((e) => e.getBoundingClientRect().right)),
+        };
+      });
+    await page.goto(`${app.url}/jobs`);
+    await page.getByRole('heading', { name: 'Jobs', level: 1 }).waitFor();
+    try {
+      // A tablet upright and on its side (768 and 1024 CSS pixels wide: common practice, no source):
+      // before, the links and account ran on past the edge and "Sign out" could not be reached.
+      for (const width of [768, 1024]) {
+        await page.setViewportSize({ width, height: 1024 });
+        await expect.poll(look).toEqual({ menu: true, signOut: false, right: expect.any(Number) });
+        expect((await look()).right).toBeLessThanOrEqual(width);
+        await header.getByRole('button', { name: 'Menu' }).click();
+        const drawer = page.getByRole('dialog', { name: 'Menu' });
+        await drawer.getByRole('button', { name: 'Sign out' }).waitFor();
+        await page.keyboard.press('Escape');
+        await drawer.waitFor({ state: 'hidden' });
+      }
+      // A desk screen: everything on one line, inside the window.
+      await page.setViewportSize({ width: 1280, height: 800 });
+      await expect.poll(look).toEqual({ menu: false, signOut: true, right: expect.any(Number) });
+      expect((await look()).right).toBeLessThanOrEqual(1280);
+      expect(await header.getByRole('link', { name: 'Reports' }).isVisible()).toBe(true);
+    } finally {
+      await page.setViewportSize({ width: 390, height: 844 });
+    }
+  });
 });
