@@ -61,7 +61,7 @@ describe('the jobs list on a phone', () => {
 });
 
 describe('the stage templates on a phone', () => {
-  it('names its column on every cell, since the header row is hidden under 720 px', async () => {
+  it('names its column on every cell, since the header row is hidden where the table does not fit', async () => {
     const html = await renderHtml(TemplatesView);
     const grid = html.slice(html.indexOf('<table class="grid"'), html.indexOf('</table>'));
     const columns = headers(grid);

@@ -6,7 +6,8 @@ import { account } from '../helpers/server.ts';
 /*
  * The office pages on a phone (390 × 844 CSS pixels, a common handset size: common practice, no
  * source), as the owner of the demo installer: the jobs list, the firm's people and the stage
- * templates read without scrolling sideways.
+ * templates read without scrolling sideways. Then the same owner on a tablet (the window resized):
+ * the header folds into its Menu, and the templates and reports tables turn into fields and cards.
  */
 let app: RunningApp;
 let browser: Browser;
@@ -125,6 +126,34 @@ describe('office pages on a phone', () => {
       await expect.poll(look).toEqual({ menu: false, signOut: true, right: expect.any(Number) });
       expect((await look()).right).toBeLessThanOrEqual(1280);
       expect(await header.getByRole('link', { name: 'Reports' }).isVisible()).toBe(true);
+    } finally {
+      await page.setViewportSize({ width: 390, height: 844 });
+    }
+  });
+
+  it('lays the templates and the reports out for a tablet held upright: fields and cards, nothing off the edge', async () => {
+    /** Whether the first table of this kind shows its header row (a table) or not (cards and fields). */
+    const asTable = (selector: string) =>
+      page
+        .locator(selector)
+        .first()
+        .evaluate((t) => (t.querySelector('thead') as HTMLElement).offsetWidth > 1);
+    try {
+      for (const [width, wide] of [
+        [768, false],
+        [1280, true],
+      ] as const) {
+        await page.setViewportSize({ width, height: 1024 });
+        await page.goto(`${app.url}/templates`);
+        await page.locator('table.grid').waitFor();
+        expect(await asTable('table.grid')).toBe(wide);
+        expect(await overflow()).toBeLessThanOrEqual(1);
+        await page.goto(`${app.url}/reports`);
+        await page.getByRole('heading', { name: 'Hired machines' }).waitFor();
+        await page.locator('table.report-table').first().waitFor();
+        expect(await asTable('table.report-table')).toBe(wide);
+        expect(await overflow()).toBeLessThanOrEqual(1);
+      }
     } finally {
       await page.setViewportSize({ width: 390, height: 844 });
     }
