@@ -131,7 +131,7 @@ describe('office pages on a phone', () => {
     }
   });
 
-  it('lays the templates and the reports out for a tablet held upright: fields and cards, nothing off the edge', async () => {
+  it('lays the jobs, the templates and the reports out for a tablet held upright: stacked columns, fields and cards, nothing off the edge', async () => {
     /** Whether the first table of this kind shows its header row (a table) or not (cards and fields). */
     const asTable = (selector: string) =>
       page
@@ -144,6 +144,11 @@ describe('office pages on a phone', () => {
         [1280, true],
       ] as const) {
         await page.setViewportSize({ width, height: 1024 });
+        await page.goto(`${app.url}/jobs`);
+        await page.locator('.n-data-table-tbody .n-data-table-tr').first().waitFor();
+        const headings = await page.locator('.n-data-table-th').allTextContents();
+        expect(headings.length).toBe(wide ? 6 : 2);
+        expect(await overflow()).toBeLessThanOrEqual(1);
         await page.goto(`${app.url}/templates`);
         await page.locator('table.grid').waitFor();
         expect(await asTable('table.grid')).toBe(wide);
