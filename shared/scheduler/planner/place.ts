@@ -2,8 +2,11 @@ import {
   bookingsOfStage,
   compareBookings,
   resourceCalendarOf,
+  spanEnd,
+  spanStart,
   stageCalendarOf,
   type BoardIndex,
+  type DepLink,
 } from '../board-index.js';
 import { bookableStart, mustFitInOneDay, roundDownToStep, roundUpToStep } from '../booking-step.js';
 import {
@@ -20,6 +23,7 @@ import { earliestStartFromPredecessors } from '../checks/order.js';
 import { capitalise, makeViolation, resourceLabel, type BookingsOf } from '../checks/violation.js';
 import { checkStageBookings } from '../check-move.js';
 import { formatInstant } from '../format.js';
+import { reverseLag } from '../lag.js';
 import { movedBookings } from '../move.js';
 import { laterCannotHelp, nextCandidate } from '../slot-finder.js';
 import { DAY_MS } from '../time-zone.js';
@@ -322,20 +326,19 @@ export function placeStages(
 
 /**
  * Moves a just-in-time stage of a placement (the delivery) as late as the stages after it allow:
- * on the latest working day, as late in it as it fits, where it ends by the time every stage after
- * it starts and the engine's checks all pass; failing that on each day back to where the serial
- * scheme put it, it stays there. Only finish-to-start links after it, all booked, are followed.
+ * on the latest working day, as late in it as it fits, where it ends by the latest its links to
+ * every stage after it allow (see latestEnd) and the engine's checks all pass; failing that on each
+ * day back to where the serial scheme put it, it stays there. The stages after it must all be booked.
  */
 function pullLater(index: BoardIndex, stage: Stage, k: number, out: Placement, seq: { n: number }): void {
   const p = out.placed[k] as PlacedStage;
   const links = index.stages.get(stage.id)?.depsOut ?? [];
-  if (links.length === 0 || links.some((l) => l.dep.type !== 'FS' || l.to.bookings.length === 0)) return;
-  let deadline = Number.POSITIVE_INFINITY;
-  for (const l of links) for (const b of l.to.bookings) deadline = Math.min(deadline, b.start);
+  if (links.length === 0 || links.some((l) => l.to.bookings.length === 0)) return;
+  const cal = compileCalendar(stageCalendarOf(index, stage.id, []));
+  const deadline = latestEnd(index, links, cal, stage.durationMinutes);
   if (deadline <= p.end) return;
   const old = out.bookings.filter((b) => b.stageId === stage.id);
   for (const b of old) removeBooking(index, b);
-  const cal = compileCalendar(stageCalendarOf(index, stage.id, []));
   const firmId = index.jobs.get(stage.jobId)?.firmId ?? '';
   if (togetherThatMorning(index, stage, k, out, seq, old, deadline, cal, firmId)) return;
   for (let day = cal.dayOf(deadline - 1); day >= cal.dayOf(p.start); day--) {
@@ -355,6 +358,26 @@ function pullLater(index: BoardIndex, stage: Stage, k: number, out: Placement, s
     return;
   }
   for (const b of old) insertBooking(index, b);
+}
+
+/**
+ * The latest a stage may end and still keep its links to the stages after it (all booked): a link
+ * counts from the stage's finish (finish to start, finish to finish) or its start (start to start,
+ * start to finish, the end then its duration later), to the next stage's start or finish, less the
+ * link's gap counted on that stage's calendar, as the order check counts it. A gap counted back
+ * from a working day's start can come out a little early; the engine's checks at each try decide.
+ */
+function latestEnd(index: BoardIndex, links: readonly DepLink[], cal: CompiledCalendar, minutes: number): Instant {
+  let deadline = Number.POSITIVE_INFINITY;
+  for (const l of links) {
+    const { dep, to } = l;
+    const subject = dep.type === 'FS' || dep.type === 'SS' ? spanStart(to.bookings) : spanEnd(to.bookings);
+    const anchor =
+      dep.lag.amount === 0 ? subject : reverseLag(stageCalendarOf(index, to.stage.id, to.bookings), subject, dep.lag);
+    const end = dep.type === 'FS' || dep.type === 'FF' ? anchor : addWorkingMinutes(cal, anchor, minutes);
+    deadline = Math.min(deadline, end);
+  }
+  return deadline;
 }
 
 /**
@@ -379,7 +402,7 @@ function togetherThatMorning(
 ): boolean {
   const links = index.stages.get(stage.id)?.depsOut ?? [];
   const link = links[0];
-  if (links.length !== 1 || link === undefined || link.dep.lag.amount !== 0) return false;
+  if (links.length !== 1 || link === undefined || link.dep.type !== 'FS' || link.dep.lag.amount !== 0) return false;
   const next = link.to.stage;
   const kNext = out.placed.findIndex((x) => x.stageId === next.id);
   if (kNext < 0) return false;

@@ -67,3 +67,36 @@ describe('a stage wanted just in time, booked days early', () => {
     expect(warnings(withDelivery(placed(false), at(2026, 6, 8, 9), at(2026, 6, 8, 11)))).toEqual([]);
   });
 });
+
+describe('a stage wanted just in time, linked to the stage after it by its start or by a gap', () => {
+  /** The in-ground install with the delivery's one link to the lift changed as given. */
+  function placedWith(link: { type: 'SS' | 'FF' | 'FS'; lag: { amount: number; unit: 'working_hours' } }) {
+    const board = plannedBoard();
+    board.dependencies = board.dependencies.map((d) => (d.id === 'delivery>lift' ? { ...d, ...link } : d));
+    const result = autoPlace(board, { now: JUNE_1, budgetMs: 0 });
+    const when = (id: string) => result.bookings.find((b) => b.stageId === id);
+    return { result, delivery: when('delivery'), lift: when('lift'), board: { ...board, bookings: result.bookings } };
+  }
+
+  it('starts an hour before the lift when the lift may start an hour after the lorry arrives (start to start)', () => {
+    const { result, delivery, lift, board } = placedWith({ type: 'SS', lag: { amount: 1, unit: 'working_hours' } });
+    expect(result.unplaced).toEqual([]);
+    // The lift waits for the walls and the base's cure whatever the delivery does: Wed 10 Jun 11:00
+    // BST, as above. Start to start with one working hour: the lorry arrives at 10:00 and its two
+    // hours run to 12:00, while the crane lifts (worked out by hand from the link).
+    expect(lift?.start).toBe(at(2026, 6, 10, 11));
+    expect(delivery).toMatchObject({ start: at(2026, 6, 10, 10), end: at(2026, 6, 10, 12) });
+    expect(analyseBoard(board, { now: JUNE_1 }).errorCount).toBe(0);
+  });
+
+  it('ends the working day before when a two-hour gap must follow it (finish to start with a gap)', () => {
+    const { delivery, lift, board } = placedWith({ type: 'FS', lag: { amount: 2, unit: 'working_hours' } });
+    // The lift stays at Wed 10 Jun 11:00 BST. Two working hours (Mon–Fri 08:00–17:00) before it is
+    // 09:00, and the lorry's two hours would then start at 16:00 the day before, over a night it may
+    // not span; so it goes that afternoon, 15:00–17:00, and the gap is 08:00–10:00 Wednesday
+    // (worked out by hand from the calendar).
+    expect(lift?.start).toBe(at(2026, 6, 10, 11));
+    expect(delivery).toMatchObject({ start: at(2026, 6, 9, 15), end: at(2026, 6, 9, 17) });
+    expect(analyseBoard(board, { now: JUNE_1 }).errorCount).toBe(0);
+  });
+});
