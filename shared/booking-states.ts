@@ -199,3 +199,18 @@ export function actionsFor(state: BookingState, ctx: TransitionContext): Booking
 
 /** States in which a booking holds its resource's time against other installers (pencilled is private). */
 export const OCCUPYING_STATES: readonly BookingState[] = ['sent', 'confirmed', 'on_site'];
+
+/**
+ * States in which the office may still move a booking to another time or resource (or, declined,
+ * book it again): until the work starts. Read from the transitions above, for either side, so the
+ * board's drag, the job panel's slot finder and the reports' fixes offer what the server allows.
+ *
+ * @example
+ * MOVABLE_STATES.has('confirmed') // true
+ * MOVABLE_STATES.has('on_site') // false: the crew are there
+ */
+export const MOVABLE_STATES: ReadonlySet<BookingState> = new Set(
+  BOOKING_TRANSITIONS.filter((t) => (t.action === 'move' || t.action === 'rebook') && t.by.includes('office')).flatMap(
+    (t) => t.from.filter((s): s is BookingState => s !== null),
+  ),
+);

@@ -11,6 +11,7 @@ import {
 } from '../scheduler/index.ts';
 import { leadTimeEarliest } from '../scheduler/checks/lead-time.ts';
 import { bookingsOfStage, isBlocking } from '../board-actions.ts';
+import { MOVABLE_STATES } from '../booking-states.ts';
 import type { MoveStage } from '../schemas/bookings.ts';
 import { boardLink, dateIn, resourceName, type ReportContext } from './context.ts';
 import type { FixMove, SuggestedFix } from './types.ts';
@@ -19,7 +20,6 @@ import type { FixMove, SuggestedFix } from './types.ts';
 export const DEFAULT_EXTRA_WORKING_MINUTES = 480;
 
 /** States a move refuses: work under way or done stays where it happened (the state machine's rule). */
-const UNMOVABLE = new Set(['on_site', 'done']);
 
 /** Options for {@link suggestedFixes}. */
 export interface FixOptions {
@@ -84,7 +84,8 @@ export function refusalOf(
   const current = new Map(bookingsOfStage(ctx.index, stageId).map((b) => [b.id, b]));
   const stage = ctx.index.stages.get(stageId)?.stage;
   if (!stage) return 'The stage is not on the board.';
-  if ([...current.values()].some((b) => UNMOVABLE.has(b.state))) return 'Work on this stage is under way or done.';
+  if ([...current.values()].some((b) => !MOVABLE_STATES.has(b.state)))
+    return 'Work on this stage is under way or done.';
   const after: Booking[] = moves.map((m) => ({
     ...(current.get(m.bookingId) as Booking),
     resourceId: m.resourceId,
@@ -140,7 +141,7 @@ export function suggestedFixes(
 ): SuggestedFix[] {
   const wanted = 1 + (options.alternatives ?? 2);
   const current = bookingsOfStage(ctx.index, stageId);
-  if (current.length === 0 || current.some((b) => UNMOVABLE.has(b.state))) return [];
+  if (current.length === 0 || current.some((b) => !MOVABLE_STATES.has(b.state))) return [];
   // The slot finder minds the notice of the booking it places; the stage's other bookings move by
   // the same time and need theirs too: from this start on, every one of them has had its notice.
   const span = spanOf(current) as { start: number; end: number };

@@ -103,4 +103,31 @@ describe("a partner's booking on the job panel", () => {
     );
     expect(html).toContain('Rhian Vale (Larkspur Electrical): ✖ Declined Mon 14 Sep 11:00 Send again Take off');
   });
+
+  it('offers no slot to move to, nor taking off, once the work on the stage has started', async () => {
+    const panel = async (data: BoardData) => {
+      const index = boardIndexOf(data, true);
+      return text(
+        await renderHtml(JobPanel, {
+          jobId: 'j1',
+          data,
+          index,
+          analysis: boardAnalysisOf(data, index),
+          timeZone: 'Europe/London',
+          canEdit: true,
+        }),
+      );
+    };
+    expect(await panel(board())).toContain('Find a slot');
+    const started = board();
+    started.bookings = started.bookings.map((b) => ({
+      ...b,
+      state: b.resourceId === 'mate' ? 'on_site' : 'confirmed',
+    }));
+    const html = await panel(started);
+    // The server refuses to move an on-site booking (the booking state machine): the panel doesn't offer it.
+    expect(html).not.toContain('Find a slot');
+    expect(html).toContain('Dev Holt · On site');
+    expect(html).not.toContain('Dev Holt · On site Take off');
+  });
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { actionsFor, nextState } from '../../shared/booking-states.ts';
+import { actionsFor, MOVABLE_STATES, nextState } from '../../shared/booking-states.ts';
 
 const office = { party: 'office', side: 'own' } as const;
 const officeOnPartner = { party: 'office', side: 'partner' } as const;
@@ -60,5 +60,12 @@ describe('the booking state machine', () => {
     expect(actionsFor('confirmed', partner)).toEqual(['decline', 'propose', 'assign']);
     expect(actionsFor('pencilled', officeOnPartner)).toEqual(['move', 'send', 'unbook']);
     expect(actionsFor('on_site', crew)).toEqual(['finish', 'undo-arrive']);
+  });
+});
+
+describe('what the office may still move', () => {
+  it('is every booking until the work starts: pencilled, asked, confirmed, and declined (booked again)', () => {
+    expect([...MOVABLE_STATES].sort()).toEqual(['confirmed', 'declined', 'pencilled', 'sent']);
+    expect(nextState('move', 'on_site', { party: 'office', side: 'own' }).ok).toBe(false);
   });
 });

@@ -4,6 +4,7 @@
  * tested without a browser.
  */
 import type { BoardBooking, BoardData, BoardJob, BoardResource, BoardStage } from '@shared/board-data';
+import { MOVABLE_STATES } from '@shared/booking-states';
 import type { BookingState, Violation } from '@shared/scheduler/index';
 
 export interface RowInput {
@@ -248,7 +249,7 @@ function toEvent(
       b.elsewhere ? BOARD_BLOCKS.elsewhere.className : `wl-state-${b.state}`,
       ...markers.map((m) => BOOKING_MARKERS[m].className),
     ],
-    editable: canEdit && !b.elsewhere && b.state !== 'done' && b.state !== 'on_site',
+    editable: canEdit && !b.elsewhere && MOVABLE_STATES.has(b.state),
     extendedProps: {
       bookingId: b.id,
       stageId: stage.id,
