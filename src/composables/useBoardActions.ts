@@ -6,6 +6,7 @@ import { api } from '@/api/client';
 import type { BoardBooking, BoardData } from '@shared/board-data';
 import { bookingsOfStage, dependentStageIds } from '@shared/board-actions';
 import { plural } from '@shared/plural';
+import { nextState } from '@shared/booking-states';
 import type { DependentChoice, StageCompletion } from '@shared/schemas/bookings';
 import {
   addWorkingMinutes,
@@ -460,8 +461,17 @@ export function useBoardActions(deps: Deps) {
   /** Takes a booking off the board (tray drop, Delete key, button); a partner who has seen it is told. */
   async function unbook(bookingId: string): Promise<boolean> {
     const b = booking(bookingId);
-    if (!b || b.elsewhere || b.state === 'on_site' || b.state === 'done') return false;
+    if (!b || b.elsewhere) return false;
     const resource = resourceOf(b.resourceId);
+    // The state machine the server enforces: work under way or done stays, and the Delete key says so.
+    const allowed = nextState('unbook', b.state, {
+      party: 'office',
+      side: resource?.ownership === 'partner' ? 'partner' : 'own',
+    });
+    if (!allowed.ok) {
+      message.info(allowed.reason);
+      return false;
+    }
     const name = stageName(b.stageId);
     if (HELD.includes(b.state)) {
       const partner = resource?.ownership === 'partner';

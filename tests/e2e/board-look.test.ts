@@ -227,6 +227,8 @@ describe('the board at 1280 × 800', () => {
     await page.keyboard.press('m');
     await page.getByText(/the work has started, so it stays where it is$/).waitFor();
     await page.keyboard.press('ArrowRight');
+    await page.keyboard.press('Delete');
+    await page.getByText("A done booking can't be taken off the board.").waitFor();
     expect(await page.getByRole('dialog').count()).toBe(0);
     expect(writes).toEqual([]);
   }, 60_000);
