@@ -107,7 +107,8 @@ export function checkDependencyBetween(
   }
   // A stage wanted just in time (the delivery) done days before the stage after it needs it: the
   // unit would stand waiting on site. On that stage's day or the working day before is in time.
-  if (from?.justInTime === true && dep.type === 'FS' && subject >= bound) {
+  // Whatever the link (from its finish or its start): the unit stands there from its end.
+  if (from?.justInTime === true && subject >= bound) {
     const cal = (succCal ??= stageCalendarOf(index, dep.toStageId, sb));
     const days = countWorkingDays(cal, pEnd, sStart);
     if (days > 1) {

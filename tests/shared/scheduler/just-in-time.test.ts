@@ -87,6 +87,15 @@ describe('a stage wanted just in time, linked to the stage after it by its start
     expect(lift?.start).toBe(at(2026, 6, 10, 11));
     expect(delivery).toMatchObject({ start: at(2026, 6, 10, 10), end: at(2026, 6, 10, 12) });
     expect(analyseBoard(board, { now: JUNE_1 }).errorCount).toBe(0);
+    expect(warnings(board)).toEqual([]);
+  });
+
+  it('is warned of, start to start as finish to start, when booked two working days before the lift', () => {
+    const { board } = placedWith({ type: 'SS', lag: { amount: 1, unit: 'working_hours' } });
+    const early = withDelivery(board, at(2026, 6, 8, 9), at(2026, 6, 8, 11));
+    expect(warnings(early).map((v) => v.details)).toEqual([
+      { dependencyId: 'delivery>lift', predecessorId: 'delivery', successorId: 'lift', workingDaysBefore: 2 },
+    ]);
   });
 
   it('ends the working day before when a two-hour gap must follow it (finish to start with a gap)', () => {
