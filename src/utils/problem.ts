@@ -23,3 +23,17 @@ export function problemSummary(error: unknown): ProblemSummary {
 export function fieldProblemText(problem: FieldProblem): string {
   return problem.field ? `${problem.field}: ${problem.message}` : problem.message;
 }
+
+/**
+ * A field's error as the sentence shown under it. The API words its field messages to follow the
+ * field's name ("is required", "must be a UK postcode such as LS6 2AB"), so the box's label goes
+ * first; any other message only gets its capital.
+ *
+ * @example fieldSentence('Customer', 'is required') // 'Customer is required'
+ * @example fieldSentence('Installation', 'pick an installation type') // 'Pick an installation type'
+ */
+export function fieldSentence(label: string, message: string | undefined): string | undefined {
+  if (!message) return undefined;
+  if (/^(is|are|must|can't|cannot|needs?)\b/.test(message)) return `${label} ${message}`;
+  return message.charAt(0).toUpperCase() + message.slice(1);
+}

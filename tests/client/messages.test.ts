@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { ApiError } from '@/api/client';
-import { fieldProblemText, problemSummary } from '@/utils/problem';
+import { fieldProblemText, fieldSentence, problemSummary } from '@/utils/problem';
+import { CreateJob } from '@shared/schemas/jobs';
 import { signInErrorText } from '@/utils/sign-in';
 import { humanise } from '@/utils/labels';
 
@@ -45,5 +46,24 @@ describe('humanise', () => {
   it('turns codes into words', () => {
     expect(humanise('plant_hire')).toBe('Plant hire');
     expect(humanise('crane')).toBe('Crane');
+  });
+});
+
+describe('fieldSentence', () => {
+  it("reads the job schema's own messages for an empty new job as sentences under their boxes", () => {
+    const result = CreateJob.safeParse({
+      reference: 'TW-2425',
+      customerName: '',
+      siteAddress: '',
+      siteTown: '',
+      sitePostcode: '',
+      installationType: '',
+    });
+    expect(result.success).toBe(false);
+    const said = Object.fromEntries(result.error!.issues.map((i) => [i.path.join('.'), i.message]));
+    expect(fieldSentence('Customer', said.customerName)).toBe('Customer is required');
+    expect(fieldSentence('Postcode', said.sitePostcode)).toBe('Postcode must be a UK postcode such as LS6 2AB');
+    expect(fieldSentence('The installation', said.installationType)).toBe('Pick an installation type');
+    expect(fieldSentence('Customer', undefined)).toBeUndefined();
   });
 });
