@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import './messages.ts';
 
 /** Database ids travel as decimal strings (bigint columns). */
 export const Id = z.string().regex(/^[1-9][0-9]{0,17}$/, 'must be a numeric id');

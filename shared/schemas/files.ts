@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import './messages.ts';
 
 /** The kinds of file a job may hold, by what their content is (never by their name). */
 export const FILE_TYPES = {

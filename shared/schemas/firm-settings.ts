@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import './messages.ts';
 import { BLOCK_LAYINGS, EXCAVATOR_SIZES, GROUND_TYPES } from '../quantities/settings.ts';
 import type { WaterTargets } from '../water-balance.ts';
 

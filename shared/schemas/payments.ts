@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import './messages.ts';
 
 /** The most one request may ask for: £100,000 (a swim spa with groundworks stays well below it). Our own ceiling, no source. */
 export const MAX_PENCE = 10_000_000;

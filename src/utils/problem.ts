@@ -1,4 +1,5 @@
 import { ApiError, type FieldProblem } from '@/api/client';
+import { humanise } from '@/utils/labels';
 
 export interface ProblemSummary {
   title: string;
@@ -19,9 +20,22 @@ export function problemSummary(error: unknown): ProblemSummary {
   };
 }
 
-/** One line of text for a field problem: `reference: Required`, or just the message when no field is named. */
+/**
+ * One line of text for a field problem, the field named in words by the last part of its path
+ * (`quantities.perimeterGapMm` → "Perimeter gap mm"), or just the message when no field is named.
+ * A form that knows its labels says it better under the box (fieldSentence); this is the fallback.
+ *
+ * @example fieldProblemText({ field: 'siteTown', message: 'is required' }) // 'Site town is required'
+ */
 export function fieldProblemText(problem: FieldProblem): string {
-  return problem.field ? `${problem.field}: ${problem.message}` : problem.message;
+  if (!problem.field) return problem.message;
+  const last =
+    problem.field
+      .split('.')
+      .filter((part) => !/^\d+$/.test(part))
+      .pop() ?? problem.field;
+  const words = last.replace(/([a-z0-9])([A-Z])/g, '$1 $2').toLowerCase();
+  return fieldSentence(humanise(words), problem.message) as string;
 }
 
 /**

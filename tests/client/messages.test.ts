@@ -22,7 +22,11 @@ describe('problemSummary', () => {
     expect(problemSummary(new Error('boom')).title).toBe('Something went wrong');
   });
   it('writes a field problem as one line', () => {
-    expect(fieldProblemText({ field: 'siteTown', message: 'Required' })).toBe('siteTown: Required');
+    expect(fieldProblemText({ field: 'siteTown', message: 'is required' })).toBe('Site town is required');
+    expect(fieldProblemText({ field: 'quantities.perimeterGapMm', message: 'must be at most 1,000' })).toBe(
+      'Perimeter gap mm must be at most 1,000',
+    );
+    expect(fieldProblemText({ field: 'stages.0', message: 'pick a stage' })).toBe('Pick a stage');
     expect(fieldProblemText({ field: '', message: 'Nothing to save' })).toBe('Nothing to save');
   });
 });

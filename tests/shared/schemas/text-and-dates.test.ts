@@ -192,7 +192,7 @@ describe('the schemas people fill in', () => {
       version: 'is required when changing the quantities',
     });
     expect(fieldErrors(PutFirmSettings, { keepPhotoLocation: 'yes' })).toEqual({
-      keepPhotoLocation: 'Invalid input: expected boolean, received string',
+      keepPhotoLocation: 'must be true or false',
     });
   });
 });
