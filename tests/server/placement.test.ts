@@ -243,7 +243,7 @@ describe('POST /api/plan/auto-place', () => {
       [{ jobIds: ['7'], budgetMs: -1 }, 'budgetMs', /0 or more/],
       [{ jobIds: ['7'], budgetMs: 600_000 }, 'budgetMs', /at most 60000/],
       [{ jobIds: ['7'], planId: 'a b' }, 'planId', /letters, digits or hyphens/],
-      [{ jobIds: 'all' }, 'jobIds', /expected array/i],
+      [{ jobIds: 'all' }, 'jobIds', /^must be a list$/],
     ];
     for (const [body, field, message] of cases) {
       const res = await write('/api/plan/auto-place', body).expect(400);
