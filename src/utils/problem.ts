@@ -48,6 +48,6 @@ export function fieldProblemText(problem: FieldProblem): string {
  */
 export function fieldSentence(label: string, message: string | undefined): string | undefined {
   if (!message) return undefined;
-  if (/^(is|are|must|can't|cannot|needs?)\b/.test(message)) return `${label} ${message}`;
+  if (/^(is|are|must|can|can't|cannot|needs?)\b/.test(message)) return `${label} ${message}`;
   return message.charAt(0).toUpperCase() + message.slice(1);
 }

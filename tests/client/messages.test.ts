@@ -69,5 +69,7 @@ describe('fieldSentence', () => {
     expect(fieldSentence('Postcode', said.sitePostcode)).toBe('Postcode must be a UK postcode such as LS6 2AB');
     expect(fieldSentence('The installation', said.installationType)).toBe('Pick an installation type');
     expect(fieldSentence('Customer', undefined)).toBeUndefined();
+    // The API's plain words for a list too long (shared/schemas/messages.ts) follow the name too.
+    expect(fieldSentence('Requirements', 'can have at most 10')).toBe('Requirements can have at most 10');
   });
 });
