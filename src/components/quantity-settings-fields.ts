@@ -11,7 +11,9 @@ import {
   type QuantitySettings,
 } from '@shared/quantities/settings';
 import { wallThicknessFor } from '@shared/quantities/blocks';
-import type { QuantitySettingsPatch } from '@shared/schemas/firm-settings';
+import { QuantitySettingsPatch } from '@shared/schemas/firm-settings';
+import { fieldSentence } from '@/utils/problem';
+import { humanise } from '@/utils/labels';
 
 type NumberKey = {
   [K in keyof QuantitySettings]: QuantitySettings[K] extends number ? K : never;
@@ -203,4 +205,23 @@ export function wallThicknessText(values: FormValues): string {
     blockThicknessMm: Number(values.blockThicknessMm),
   });
   return `Walls ${mm} mm thick (blocks laid ${laying === 'flat' ? 'flat' : 'on edge'}), on both sides of the pit.`;
+}
+
+/**
+ * What stops a patch being saved, by the form path of each setting, each a sentence naming the
+ * setting by its label ("Gap at the equipment end (mm) must be at most 2,000"), checked with the
+ * API's own schema; empty when it may be sent.
+ *
+ * @example settingProblems({ perimeterGapMm: 5000 }) // { perimeterGapMm: 'Service gap round the unit (mm each side) must be at most 1,000' }
+ */
+export function settingProblems(patch: QuantitySettingsPatch): Record<string, string> {
+  const checked = QuantitySettingsPatch.safeParse(patch);
+  if (checked.success) return {};
+  const labels = new Map(SETTING_FIELDS.map((f) => [f.path as string, f.label]));
+  return Object.fromEntries(
+    checked.error.issues.map((i) => {
+      const path = i.path.join('.');
+      return [path, fieldSentence(labels.get(path) ?? humanise(path), i.message) as string];
+    }),
+  );
 }

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
+  settingProblems,
   SETTING_FIELDS,
   changedCount,
   formValues,
@@ -63,5 +64,15 @@ describe("the firm's quantity settings form", () => {
     expect(wallThicknessText({ ...formValues(D), blockLaying: 'on_edge' })).toBe(
       'Walls 100 mm thick (blocks laid on edge), on both sides of the pit.',
     );
+  });
+});
+
+describe("a setting the firm can't save", () => {
+  it('is named by its label with what is wrong, and a patch within bounds has none', () => {
+    expect(settingProblems({ perimeterGapMm: 5000, serviceSideGapMm: -10 })).toEqual({
+      perimeterGapMm: 'Service gap round the unit (mm each side) must be at most 1,000',
+      serviceSideGapMm: 'Gap at the equipment end (mm) must be at least 0',
+    });
+    expect(settingProblems({ perimeterGapMm: 150 })).toEqual({});
   });
 });
