@@ -73,21 +73,24 @@ function board(): BoardData {
 
 const text = (html: string) => html.replace(/<[^>]+>/g, ' ').replace(/\s+/g, ' ');
 const count = (s: string, part: string) => s.split(part).length - 1;
+/** The job panel's text for the job on this board, as the scheduler sees it. */
+async function panel(data: BoardData): Promise<string> {
+  const index = boardIndexOf(data, true);
+  return text(
+    await renderHtml(JobPanel, {
+      jobId: 'j1',
+      data,
+      index,
+      analysis: boardAnalysisOf(data, index),
+      timeZone: 'Europe/London',
+      canEdit: true,
+    }),
+  );
+}
 
 describe("a partner's booking on the job panel", () => {
   it('is listed once, as a request, with what can be done with it: cancel the request or take it off', async () => {
-    const data = board();
-    const index = boardIndexOf(data, true);
-    const html = text(
-      await renderHtml(JobPanel, {
-        jobId: 'j1',
-        data,
-        index,
-        analysis: boardAnalysisOf(data, index),
-        timeZone: 'Europe/London',
-        canEdit: true,
-      }),
-    );
+    const html = await panel(board());
     expect(count(html, 'Rhian Vale')).toBe(1);
     expect(html).toContain('Rhian Vale (Larkspur Electrical): ✉ Asked Cancel request… Take off');
     // The installer's own person stays in the stage's own list.
@@ -105,19 +108,6 @@ describe("a partner's booking on the job panel", () => {
   });
 
   it('offers no slot to move to, nor taking off, once the work on the stage has started', async () => {
-    const panel = async (data: BoardData) => {
-      const index = boardIndexOf(data, true);
-      return text(
-        await renderHtml(JobPanel, {
-          jobId: 'j1',
-          data,
-          index,
-          analysis: boardAnalysisOf(data, index),
-          timeZone: 'Europe/London',
-          canEdit: true,
-        }),
-      );
-    };
     expect(await panel(board())).toContain('Find a slot');
     const started = board();
     started.bookings = started.bookings.map((b) => ({
