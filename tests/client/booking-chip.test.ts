@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { bookingLine, bookingSummary, chipMarks, stageShortName, whenText } from '@/components/board/booking-chip';
+import {
+  bookingLine,
+  bookingSummary,
+  breakable,
+  chipMarks,
+  stageShortName,
+  whenText,
+} from '@/components/board/booking-chip';
 import type { EventInput } from '@/components/board/board-events';
 
 const MON_8 = Date.UTC(2026, 8, 14, 7); // Monday 14 September 2026, 08:00 in London (BST)
@@ -67,5 +74,18 @@ describe('a booking in words', () => {
         'Europe/London',
       ),
     ).toEqual(["Busy elsewhere: another installer's booking", 'Mon 14 Sep 08:00–09:00']);
+  });
+});
+
+describe('names in a narrow chip', () => {
+  // British English hyphenation patterns (hyph-en-gb, the ones TeX uses) through the hyphen package.
+  it('may break only where a hyphen can show, and read the same when not broken', () => {
+    expect(breakable('Harrogate')).toBe('Har\u00ADrog\u00ADate');
+    expect(breakable('Commission')).toBe('Com\u00ADmis\u00ADsion');
+    expect(breakable('Otley')).toBe('Ot\u00ADley');
+    expect(breakable('Fill')).toBe('Fill');
+    // A long run with no break in the patterns may break at any letter but its first and last three.
+    expect(breakable('Horsforth')).toBe('Hor\u00ADs\u00ADf\u00ADo\u00ADrth');
+    expect(breakable('Pool-in-Wharfedale').replace(/\u00AD/g, '')).toBe('Pool-in-Wharfedale');
   });
 });

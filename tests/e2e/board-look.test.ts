@@ -45,6 +45,50 @@ const bookings = (p: Page) =>
       title: el.getAttribute('title') ?? '',
     })),
   );
+/**
+ * Where the visible short names and towns of the chips go onto another line inside a word: `broken`
+ * lists those split where no hyphen shows ("Harroga/te"), `hyphenated` counts those split at a
+ * soft hyphen or a hyphen of their own ("Harrog-/ate", "Pool-in-/Wharfedale"). Read from where
+ * each letter is drawn.
+ */
+const wordBreaks = (p: Page) =>
+  p.$$eval('.fc-event.wl-booking .wl-chip__short, .fc-event.wl-booking .wl-chip__town', (els) => {
+    const broken: string[] = [];
+    let hyphenated = 0;
+    for (const el of els) {
+      const walker = document.createTreeWalker(el, NodeFilter.SHOW_TEXT);
+      for (let node = walker.nextNode(); node; node = walker.nextNode()) {
+        if ((node.parentElement as HTMLElement).offsetParent === null) continue;
+        const text = node.textContent ?? '';
+        let lastTop: number | undefined;
+        let afterHyphen = false;
+        for (let i = 0; i < text.length; i++) {
+          const ch = text[i] as string;
+          if (ch === '\u00AD') {
+            afterHyphen = true;
+            continue;
+          }
+          if (/\s/.test(ch)) {
+            lastTop = undefined;
+            continue;
+          }
+          const range = document.createRange();
+          range.setStart(node, i);
+          range.setEnd(node, i + 1);
+          // A letter just after a break measures from the line before; its last box is where it is drawn.
+          const boxes = range.getClientRects();
+          const top = (boxes[boxes.length - 1] as DOMRect).top;
+          if (lastTop !== undefined && top > lastTop + 2) {
+            if (afterHyphen) hyphenated++;
+            else broken.push(`${text.replace(/\u00AD/g, '')} before "${ch}"`);
+          }
+          lastTop = top;
+          afterHyphen = ch === '-';
+        }
+      }
+    }
+    return { broken, hyphenated };
+  });
 const headerRows = (p: Page) =>
   p.$$eval('.fc-timeline-header-row', (rows) =>
     rows.map((r) =>
@@ -98,6 +142,7 @@ describe('the board at 1280 × 800', () => {
           .map((el) => el.textContent),
     );
     expect(cutLines).toEqual([]);
+    expect((await wordBreaks(page)).broken).toEqual([]);
     expect(await page.locator('.fc-event.wl-booking .wl-chip__town:visible').count()).toBeGreaterThan(10);
 
     // Every booking shows its job reference (or says it is busy elsewhere); the tooltip has it all.
@@ -127,6 +172,8 @@ describe('the board at 1280 × 800', () => {
     const [weeks, fortnightDays] = await headerRows(page);
     expect(weeks).toEqual(['Week 23 · 1–7 Jun', 'Week 24 · 8–14 Jun']);
     expect(fortnightDays?.slice(0, 3)).toEqual(['Mon 1', 'Tue 2', 'Wed 3']);
+    // A long name in a day's column breaks where a hyphen can show ("Com-/mission"), never midway.
+    expect((await wordBreaks(page)).broken).toEqual([]);
 
     await openBoard(page, 'view=month&date=2026-06-03');
     await page.screenshot({ path: 'tests/e2e/artifacts/board-month.png' });
@@ -135,6 +182,9 @@ describe('the board at 1280 × 800', () => {
     expect(monthWeeks?.[0]).toBe('Week 23 · 1–7 Jun');
     expect(monthDays).toHaveLength(30);
     for (const label of monthDays ?? []) expect(label).toMatch(/^(Mon|Tue|Wed|Thu|Fri|Sat|Sun)\n\d{1,2}$/);
+    const monthBreaks = await wordBreaks(page);
+    expect(monthBreaks.broken).toEqual([]);
+    expect(monthBreaks.hyphenated).toBeGreaterThan(0);
     // A day's column shows the job's number beside its state symbol, then the stage (a longer booking its
     // whole reference); the tooltip has the rest.
     for (const b of await bookings(page)) {

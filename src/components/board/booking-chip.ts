@@ -4,6 +4,7 @@
  * picks the form that fits the chip's width (container queries in board.css), and the full text is
  * always in the tooltip and the accessible name.
  */
+import { hyphenateSync } from 'hyphen/en-gb';
 import { timeZoneOffset } from '@shared/scheduler/index';
 import { BOOKING_MARKERS, STATE_LABELS, type EventInput } from './board-events';
 
@@ -102,6 +103,25 @@ export function bookingSummary(props: BookingProps, start: number, end: number, 
   return lines;
 }
 
+const SHY = '\u00AD';
+/** A run of letters this long with no break of its own may be broken anywhere (with a hyphen). */
+const LONG_RUN = 7;
+
+/**
+ * A name as the narrowest chips may break it: a soft hyphen at each break British English allows
+ * (Liang's patterns, the ones TeX uses), so a day's column reads "Harrog-ate", not "Harroga/te".
+ * A long run the patterns leave whole ("Horsforth") may break at any letter but its first and last
+ * three, still with a hyphen. The browser shows a hyphen only where it breaks; the tooltip and the
+ * accessible name keep the plain words.
+ * @example breakable('Harrogate') // 'Har\u00ADrog\u00ADate'
+ */
+export function breakable(text: string): string {
+  return hyphenateSync(text).replace(new RegExp(`[^\\s${SHY}-]{${LONG_RUN},}`, 'g'), (run) => {
+    const letters = [...run];
+    return letters.map((ch, i) => (i >= 3 && i <= letters.length - 3 ? SHY + ch : ch)).join('');
+  });
+}
+
 function span(className: string, text?: string): HTMLSpanElement {
   const el = document.createElement('span');
   el.className = className;
@@ -126,7 +146,7 @@ export function chipNodes(props: BookingProps): HTMLElement {
   stage.append(
     span('wl-chip__sep', ' · '),
     span('wl-chip__full', props.stageName),
-    span('wl-chip__short', stageShortName(props.stageKind, props.stageName)),
+    span('wl-chip__short', breakable(stageShortName(props.stageKind, props.stageName))),
   );
   // The firm's own prefix ("TW-") is the same on every job of the board: the narrowest chips leave it to the tooltip.
   const ref = span('wl-chip__ref');
@@ -135,7 +155,7 @@ export function chipNodes(props: BookingProps): HTMLElement {
   chip.append(marks, ' ', ref, stage);
   if (props.town) {
     const town = span('wl-chip__town');
-    town.append(span('wl-chip__sep', ' · '), props.town);
+    town.append(span('wl-chip__sep', ' · '), breakable(props.town));
     chip.append(town);
   }
   return chip;
