@@ -78,11 +78,15 @@ const EARTHING_WORDS: Record<EarthingArrangement, string> = {
   unknown: 'the surveyor could not tell: please establish it on site',
 };
 
-const notRecorded = (s: SlotSupply) =>
-  s.surveyed ? 'not recorded at the survey' : 'the site has not been surveyed yet';
+const NOT_RECORDED = 'not recorded at the survey';
+
+/** Said once in place of the house's four supply facts when nobody has surveyed the site yet. */
+export const NOT_SURVEYED_LINE =
+  'House supply: the site has not been surveyed yet; its main fuse, earthing, consumer unit and cable run will show here once it has';
 
 /**
- * The supply facts as lines of plain text, the same in every output.
+ * The supply facts as lines of plain text, the same in every output. Before the survey the house's
+ * facts are one line saying so, not four saying the same thing.
  * @example
  * supplyLines(slotSupply([{ amps: 32 }], null))[0] // 'Unit load: 32 A (one dedicated supply), about 7.4 kW at 230 V'
  */
@@ -91,11 +95,12 @@ export function supplyLines(s: SlotSupply): string[] {
     s.circuitAmps.length === 0
       ? "Unit load: not in the unit's data; ask the installer"
       : `Unit load: ${s.circuitAmps.map((a) => `${a} A`).join(' + ')}${s.circuitAmps.length > 1 ? ` = ${s.totalAmps} A` : ''} (${s.circuitAmps.length === 1 ? 'one dedicated supply' : `${s.circuitAmps.length} dedicated supplies`}), about ${s.loadKw!.toFixed(1)} kW at ${NOMINAL_VOLTS} V`;
+  if (!s.surveyed) return [load, NOT_SURVEYED_LINE];
   return [
     load,
-    `Main fuse: ${s.mainFuseAmps === null ? notRecorded(s) : `${s.mainFuseAmps} A`}`,
-    `Earthing: ${s.earthing === null ? notRecorded(s) : EARTHING_WORDS[s.earthing]}`,
-    `Consumer unit: ${s.consumerUnitLocation ?? notRecorded(s)}`,
-    `Cable run from the consumer unit to the spa: ${s.cableRunM === null ? notRecorded(s) : `${s.cableRunM} m`}`,
+    `Main fuse: ${s.mainFuseAmps === null ? NOT_RECORDED : `${s.mainFuseAmps} A`}`,
+    `Earthing: ${s.earthing === null ? NOT_RECORDED : EARTHING_WORDS[s.earthing]}`,
+    `Consumer unit: ${s.consumerUnitLocation ?? NOT_RECORDED}`,
+    `Cable run from the consumer unit to the spa: ${s.cableRunM === null ? NOT_RECORDED : `${s.cableRunM} m`}`,
   ];
 }

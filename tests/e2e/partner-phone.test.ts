@@ -49,6 +49,11 @@ describe('our slots on a phone', () => {
     await page.goto(`${app.url}/slots`);
     await card(first.id).waitFor();
     expect(await card(first.id).textContent()).toContain('Tuesday 3 August, 09:00–13:00');
+    // Each fact sits under its name, so the value has the card's whole width.
+    const name = (await card(first.id).locator('dt', { hasText: 'When' }).boundingBox())!;
+    const value = (await card(first.id).locator('dt:has-text("When") + dd').boundingBox())!;
+    expect(value.y).toBeGreaterThanOrEqual(name.y + name.height - 1);
+    expect(Math.abs(value.x - name.x)).toBeLessThan(1);
     // The cautions end with the one note, said once.
     const safety = card(first.id).locator('details');
     await safety.locator('summary').click();
