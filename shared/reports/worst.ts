@@ -31,7 +31,7 @@ export function worstProblems(
     .sort((a, b) => b.idleCostPence - a.idleCostPence || a.onHire - b.onHire)
     .map((p) => ({
       source: 'idle_hire',
-      title: `Idle hire: ${p.resourceName}`,
+      title: p.resourceName, // the card's tag already says "Idle hire"
       detail: `${p.idleDays.length} of ${p.paidDays} paid days with nothing booked: ${formatPence(p.idleCostPence)} at ${formatPence(p.dayRatePence)} a day`,
       costPence: p.idleCostPence,
       date: p.idleDays[0] ?? p.onHireDate,

@@ -167,6 +167,31 @@ describe('the report tables', () => {
     ]);
   });
 
+  it('name the idle machine under its "Idle hire" tag without saying idle hire twice', () => {
+    const clashes = { rows: [], perWeek: [] } as unknown as ClashReport;
+    const hire = {
+      periods: [
+        {
+          resourceName: '3 t excavator (hired)',
+          idleCostPence: 130_500,
+          idleDays: ['2026-06-04'],
+          paidDays: 17,
+          dayRatePence: 14_500,
+          onHire: 0,
+          onHireDate: '2026-06-01',
+          link: '/board',
+          suggestions: [],
+        },
+      ],
+    } as unknown as HireReport;
+    const [idle] = worstProblems(clashes, hire, { risks: [] } as unknown as UtilisationReport);
+    expect([idle?.source, idle?.title, idle?.detail]).toEqual([
+      'idle_hire',
+      '3 t excavator (hired)',
+      '1 of 17 paid days with nothing booked: £1,305.00 at £145.00 a day',
+    ]);
+  });
+
   it('say how many days a late job has to win back, in words that read right for one day or more', () => {
     const clashes = { rows: [], perWeek: [] } as unknown as ClashReport;
     const hire = { periods: [] } as unknown as HireReport;
