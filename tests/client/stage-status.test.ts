@@ -23,7 +23,12 @@ describe("the job page's word on a stage's bookings", () => {
         'Europe/London',
       ).booked,
     ).toBe(1);
-    expect(stageBookingStatus('14', [], 'Europe/London')).toEqual({ booked: 0, declined: null, rebookLink: null });
+    expect(stageBookingStatus('14', [], 'Europe/London')).toEqual({
+      booked: 0,
+      progress: null,
+      declined: null,
+      rebookLink: null,
+    });
   });
 
   it('says who declined, to book again on the board at that day with the declined booking outlined', () => {
@@ -36,6 +41,7 @@ describe("the job page's word on a stage's bookings", () => {
       ),
     ).toEqual({
       booked: 0,
+      progress: null,
       declined: 'Declined by 60 t mobile crane — book again',
       rebookLink: '/board?view=day&date=2026-06-09&job=14&highlight=31%2C33',
     });
@@ -71,6 +77,26 @@ const tags = (html: string) =>
     m[1]!.replace(/<[^>]+>/g, '').trim(),
   );
 
+describe('how far a stage has got', () => {
+  const progress = (...states: string[]) =>
+    stageBookingStatus(
+      '14',
+      states.map((state, i) => crane(String(i), state)),
+      'Europe/London',
+    ).progress?.text;
+
+  it("says it in the board's words: confirmed only when every firm on it is, under way once any work starts", () => {
+    expect(progress('pencilled')).toBe('✎ Pencilled');
+    expect(progress('confirmed', 'confirmed')).toBe('✔ Confirmed');
+    expect(progress('confirmed', 'sent', 'declined')).toBe('✉ Asked (1 of 2 confirmed)');
+    expect(progress('confirmed', 'pencilled')).toBe('✎ Pencilled');
+    expect(progress('done', 'confirmed')).toBe('▶ On site');
+    expect(progress('on_site')).toBe('▶ On site');
+    expect(progress('done', 'done', 'declined')).toBe('■ Done');
+    expect(progress('declined')).toBeUndefined();
+  });
+});
+
 describe('the stage list on the job page', () => {
   const stages = [
     stage('1', 'Crane lift', [booking('31', 'declined')]),
@@ -92,7 +118,7 @@ describe('the stage list on the job page', () => {
     expect(tags(html)).toEqual([
       'Declined by 60 t mobile crane — book again',
       'Declined by Priya Nair — book again',
-      'Booked',
+      '✔ Confirmed',
       'Not booked',
     ]);
     expect(html).toContain('href="/board?view=day&amp;date=2026-06-09&amp;job=14&amp;highlight=31"');

@@ -1,16 +1,24 @@
 /**
- * What the job page's stage list says of a stage's bookings: booked (declined bookings don't
- * count), a decline to book again (by whom, and where on the board), or not booked. Pure, so it is
- * tested without a browser.
+ * What the job page's stage list says of a stage's bookings: how far its booked work has got, in
+ * the board's words and symbols (declined bookings don't count), a decline to book again (by whom,
+ * and where on the board), or not booked. Pure, so it is tested without a browser.
  */
 import type { JobStage, StageBooking } from '@/api/job-work';
+import { STATE_LABELS } from '@/components/board/board-events';
 import { humanise } from '@/utils/labels';
+import type { BookingState } from '@shared/schemas/bookings';
 import { localDateOf } from '@shared/local-dates';
 import { plural } from '@shared/plural';
 
 export interface StageBookingStatus {
   /** Bookings that stand (every state but declined). */
   booked: number;
+  /**
+   * How far the stage has got, from its standing bookings: done when all are done, on site once
+   * any work has started, otherwise the least advanced of pencilled, asked and confirmed (a stage
+   * is only confirmed when every crew, machine and partner on it is). Null when nothing stands.
+   */
+  progress: { state: BookingState; text: string } | null;
   /** "Declined by 60 t mobile crane — book again", or null when nothing was declined. */
   declined: string | null;
   /** The board at the first declined booking's day, for this job, with it outlined. */
@@ -20,7 +28,7 @@ export interface StageBookingStatus {
 /**
  * @example
  * stageBookingStatus('14', [{ id: '31', resourceName: '60 t mobile crane', state: 'declined', startsAt: '2026-06-09T07:00:00Z', … }], 'Europe/London')
- * // { booked: 0, declined: 'Declined by 60 t mobile crane — book again', rebookLink: '/board?view=day&date=2026-06-09&job=14&highlight=31' }
+ * // { booked: 0, progress: null, declined: 'Declined by 60 t mobile crane — book again', rebookLink: '/board?view=day&date=2026-06-09&job=14&highlight=31' }
  */
 export function stageBookingStatus(
   jobId: string,
@@ -28,15 +36,34 @@ export function stageBookingStatus(
   timeZone: string,
 ): StageBookingStatus {
   const declined = bookings.filter((b) => b.state === 'declined');
+  const standing = bookings.filter((b) => b.state !== 'declined').map((b) => b.state as BookingState);
   const first = declined[0];
   const who = [...new Set(declined.map((b) => b.resourceName))].join(', ');
   return {
-    booked: bookings.length - declined.length,
+    booked: standing.length,
+    progress: progressOf(standing),
     declined: first ? `Declined by ${who} — book again` : null,
     rebookLink: first
       ? `/board?${new URLSearchParams({ view: 'day', date: localDateOf(Date.parse(first.startsAt), timeZone), job: jobId, highlight: declined.map((b) => b.id).join(',') }).toString()}`
       : null,
   };
+}
+
+/** Before work starts, the least advanced state is where the stage stands. */
+const BEFORE_WORK: readonly BookingState[] = ['pencilled', 'sent', 'confirmed'];
+
+function progressOf(states: readonly BookingState[]): StageBookingStatus['progress'] {
+  if (states.length === 0) return null;
+  const state: BookingState = states.every((s) => s === 'done')
+    ? 'done'
+    : states.some((s) => s === 'on_site' || s === 'done')
+      ? 'on_site'
+      : (BEFORE_WORK.find((s) => states.includes(s)) ?? 'pencilled');
+  const label = STATE_LABELS[state];
+  // Asked of several firms, some may have said yes already.
+  const confirmed = states.filter((s) => s === 'confirmed').length;
+  const count = state === 'sent' && confirmed > 0 ? ` (${confirmed} of ${states.length} confirmed)` : '';
+  return { state, text: `${label.symbol} ${label.label}${count}` };
 }
 
 /**
