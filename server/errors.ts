@@ -68,10 +68,13 @@ export class DatabaseUnavailableError extends HttpError {
 }
 
 export function fieldErrorsOf(error: ZodError, prefix?: string): FieldError[] {
-  return error.issues.map((i) => ({
-    field: [prefix, ...i.path.map(String)].filter(Boolean).join('.') || '(body)',
-    message: i.message,
-  }));
+  const field = (path: readonly PropertyKey[]) => [prefix, ...path.map(String)].filter(Boolean).join('.') || '(body)';
+  // A field the request doesn't take is named on its own (zod names the object that has it).
+  return error.issues.flatMap((i) =>
+    i.code === 'unrecognized_keys'
+      ? i.keys.map((key) => ({ field: field([...i.path, key]), message: 'is not a field this request takes' }))
+      : [{ field: field(i.path), message: i.message }],
+  );
 }
 
 /** What a database refusal means, in the words of the person whose change it refused. */

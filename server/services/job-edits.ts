@@ -29,8 +29,9 @@ export class JobEditsService {
           { field: 'unitId', message: 'is not a unit in your catalogue' },
         ]);
       }
-      const from = changes.promisedFrom ?? before.promisedFrom;
-      const to = changes.promisedTo ?? before.promisedTo;
+      // Left out, a date stays as it was; null clears it.
+      const from = changes.promisedFrom === undefined ? before.promisedFrom : changes.promisedFrom;
+      const to = changes.promisedTo === undefined ? before.promisedTo : changes.promisedTo;
       if (from && to && to < from) {
         throw new BadRequestError('The promised window ends before it starts.', [
           { field: 'promisedTo', message: 'must be on or after the start of the promised window' },

@@ -40,6 +40,8 @@ export const UpdateBooking = z
     endsAt: IsoInstant,
     state: z.enum(BOOKING_STATES).optional(),
   })
+  // A field it doesn't take is refused, not dropped: a misspelt resourceId never looks moved.
+  .strict()
   .refine(times, { path: ['endsAt'], message: 'must be after the start' });
 export type UpdateBooking = z.infer<typeof UpdateBooking>;
 

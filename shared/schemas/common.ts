@@ -121,3 +121,18 @@ export const Problem = z.object({
   errors: z.array(z.object({ field: z.string(), message: z.string() })).optional(),
 });
 export type Problem = z.infer<typeof Problem>;
+
+/**
+ * The rule of a partial update (PATCH): it names at least one field besides the version, so an
+ * empty or misspelt change is refused instead of saved as a change of nothing. Checked only when
+ * nothing else is wrong (a field it doesn't take is the thing to say then).
+ *
+ * @example UpdateThing.strict().refine(...NAMES_A_CHANGE)
+ */
+export const NAMES_A_CHANGE = [
+  (patch: object) => Object.keys(patch).some((k) => k !== 'version'),
+  {
+    message: 'names nothing to change: send at least one field with the version',
+    when: (payload: { issues: readonly unknown[] }) => payload.issues.length === 0,
+  },
+] as const;

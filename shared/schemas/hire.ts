@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { Id, WorkInstant } from './common.ts';
+import { Id, NAMES_A_CHANGE, WorkInstant } from './common.ts';
 
 const pence = (what: string) =>
   z
@@ -38,6 +38,9 @@ export const UpdateHirePeriod = z
     deliveryPence: pence('The delivery charge').optional(),
     collectionPence: pence('The collection charge').optional(),
   })
+  // A field it doesn't take is refused, not dropped, and so is a change that names no field.
+  .strict()
+  .refine(...NAMES_A_CHANGE)
   .refine(
     (h) => h.onHireAt === undefined || h.offHireAt === undefined || Date.parse(h.offHireAt) > Date.parse(h.onHireAt),
     { path: ['offHireAt'], message: 'must be after the on-hire' },

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { EmailAddress, Id, OneLine, Paging, WorkDate, multiLineText, oneLineText } from './common.ts';
+import { EmailAddress, Id, NAMES_A_CHANGE, OneLine, Paging, WorkDate, multiLineText, oneLineText } from './common.ts';
 
 export const INSTALLATION_TYPES = ['in_ground', 'semi_recessed', 'slab', 'deck'] as const;
 export const JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress', 'handed_over', 'cancelled'] as const;
@@ -35,19 +35,35 @@ export const JobFields = z.object({
   orderedOn: WorkDate.optional(),
 });
 
-const promisedInOrder = (j: { promisedFrom?: string | undefined; promisedTo?: string | undefined }) =>
+const promisedInOrder = (j: { promisedFrom?: string | null | undefined; promisedTo?: string | null | undefined }) =>
   !j.promisedFrom || !j.promisedTo || j.promisedTo >= j.promisedFrom;
 const promisedRule = { path: ['promisedTo'], message: 'must be on or after the start of the promised window' };
 
 export const CreateJob = JobFields.refine(promisedInOrder, promisedRule);
 export type CreateJob = z.infer<typeof CreateJob>;
 
-/** PATCH /api/jobs/:id: any of the job's fields, and the version the change is based on. */
+/** An optional field an edit may also clear: null empties it (left out, it stays as it is). */
+const clearable = <T extends z.ZodType>(field: z.ZodOptional<T>) => field.unwrap().nullable().optional();
+
+/**
+ * PATCH /api/jobs/:id: any of the job's fields, and the version the change is based on. An
+ * optional field sent as null is cleared. A field it doesn't know is refused (not dropped, so a
+ * misspelt one never looks saved), and so is a change that names no field.
+ */
 export const UpdateJob = JobFields.partial()
   .extend({
+    customerPhone: clearable(JobFields.shape.customerPhone),
+    customerEmail: clearable(JobFields.shape.customerEmail),
+    accessNotes: clearable(JobFields.shape.accessNotes),
+    unitId: clearable(JobFields.shape.unitId),
+    promisedFrom: clearable(JobFields.shape.promisedFrom),
+    promisedTo: clearable(JobFields.shape.promisedTo),
+    orderedOn: clearable(JobFields.shape.orderedOn),
     version: z.number().int().min(1),
     status: z.enum(JOB_STATUSES).optional(),
   })
+  .strict()
+  .refine(...NAMES_A_CHANGE)
   .refine(promisedInOrder, promisedRule);
 export type UpdateJob = z.infer<typeof UpdateJob>;
 

@@ -80,12 +80,20 @@ export function useJobForm(jobId: Ref<string | null>) {
   const present = () =>
     Object.fromEntries(Object.entries(draft).filter(([k, v]) => REQUIRED.has(k) || (v !== '' && v !== null)));
 
+  /** What the edit changes: the boxes that differ, and null for one emptied that had a value (to clear it). */
   function changes(): Record<string, unknown> {
     const was = loaded.value as unknown as Record<string, unknown>;
-    return Object.fromEntries(Object.entries(present()).filter(([k, v]) => v !== (was[k] ?? '')));
+    const now = present();
+    const changed: Record<string, unknown> = Object.fromEntries(
+      Object.entries(now).filter(([k, v]) => v !== (was[k] ?? '')),
+    );
+    for (const f of FIELDS) if (!(f in now) && (was[f] ?? '') !== '') changed[f] = null;
+    return changed;
   }
 
   async function save(): Promise<JobDetail | null> {
+    // Nothing changed: nothing to send (and no new version for others to trip over).
+    if (loaded.value && Object.keys(changes()).length === 0) return loaded.value;
     const result = loaded.value
       ? UpdateJob.safeParse({ ...changes(), version: loaded.value.version })
       : CreateJob.safeParse(present());

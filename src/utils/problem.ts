@@ -28,7 +28,8 @@ export function problemSummary(error: unknown): ProblemSummary {
  * @example fieldProblemText({ field: 'siteTown', message: 'is required' }) // 'Site town is required'
  */
 export function fieldProblemText(problem: FieldProblem): string {
-  if (!problem.field) return problem.message;
+  // The request as a whole ("(body)"): the message alone, as a sentence.
+  if (!problem.field || problem.field === '(body)') return fieldSentence('', problem.message)!.trim();
   const last =
     problem.field
       .split('.')

@@ -28,6 +28,9 @@ describe('problemSummary', () => {
     );
     expect(fieldProblemText({ field: 'stages.0', message: 'pick a stage' })).toBe('Pick a stage');
     expect(fieldProblemText({ field: '', message: 'Nothing to save' })).toBe('Nothing to save');
+    expect(fieldProblemText({ field: '(body)', message: 'names nothing to change: send at least one field' })).toBe(
+      'Names nothing to change: send at least one field',
+    );
   });
 });
 

@@ -149,6 +149,14 @@ describe('moving a booking', () => {
       code: 'stale-version',
       current: { version: 2, startsAt: '2026-10-09T10:00:00.000Z' },
     });
+    // A misspelt field is refused by name, not dropped (the booking would look moved and wasn't).
+    const misspelt = await scheduler
+      .patch(`/api/bookings/${created.body.id}`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 2, startsAt: '2026-10-09T10:00:00Z', endsAt: '2026-10-09T11:00:00Z', resourceID: crew })
+      .expect(400);
+    expect(misspelt.body.errors).toEqual([{ field: 'resourceID', message: 'is not a field this request takes' }]);
+    expect((await ctx.knex('bookings').where('id', created.body.id).first('version')).version).toBe(2);
   });
 });
 

@@ -172,3 +172,37 @@ describe('the next job reference', () => {
     await crew.get('/api/job-references/next').expect(403);
   });
 });
+
+describe('editing a job', () => {
+  const edit = async (body: Record<string, unknown>, status: number) =>
+    scheduler.patch(`/api/jobs/${jobId}`).set('X-CSRF-Token', scheduler.csrf).send(body).expect(status);
+  const current = async () => (await scheduler.get(`/api/jobs/${jobId}`).expect(200)).body;
+
+  it('clears an optional field sent as null and keeps one left out', async () => {
+    const job = await current();
+    expect(job.customerPhone).toBe('07700 900802');
+    const saved = (await edit({ version: job.version, customerPhone: null, promisedTo: null }, 200)).body;
+    expect(saved.customerPhone ?? null).toBeNull();
+    expect(saved.customerEmail).toBe('owen@home.example');
+    const row = await ctx.knex('jobs').where('id', jobId).first('customer_phone', 'customer_email', 'version');
+    expect(row).toEqual({ customerPhone: null, customerEmail: 'owen@home.example', version: job.version + 1 });
+  });
+
+  it('refuses a field it does not take, naming it, and a change that names no field, changing nothing', async () => {
+    const job = await current();
+    const misspelt = await edit({ version: job.version, customerPhon: '07700 900999' }, 400);
+    expect(misspelt.headers['content-type']).toContain('application/problem+json');
+    expect(misspelt.body.errors).toEqual([{ field: 'customerPhon', message: 'is not a field this request takes' }]);
+    const empty = await edit({ version: job.version }, 400);
+    expect(empty.body.errors).toEqual([
+      { field: '(body)', message: 'names nothing to change: send at least one field with the version' },
+    ]);
+    expect((await current()).version).toBe(job.version);
+  });
+
+  it("won't clear a field every job must have", async () => {
+    const job = await current();
+    const bad = await edit({ version: job.version, customerName: null }, 400);
+    expect(bad.body.errors).toEqual([{ field: 'customerName', message: 'must be text' }]);
+  });
+});

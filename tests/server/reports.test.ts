@@ -184,6 +184,21 @@ describe('recording and approving a hire period', () => {
       .send({ version: 1, offHireAt: '2026-06-20T17:00:00Z' });
     expect(bad.status).toBe(400);
     expect(bad.body.errors).toEqual([{ field: 'offHireAt', message: 'must be after the on-hire' }]);
+    // A misspelt field, or none at all, is refused rather than saved as a change of nothing.
+    const misspelt = await manager
+      .patch(`/api/hire-periods/${hireId}`)
+      .set('X-CSRF-Token', manager.csrf)
+      .send({ version: 1, dayRatePounds: 150 })
+      .expect(400);
+    expect(misspelt.body.errors).toEqual([{ field: 'dayRatePounds', message: 'is not a field this request takes' }]);
+    const nothing = await manager
+      .patch(`/api/hire-periods/${hireId}`)
+      .set('X-CSRF-Token', manager.csrf)
+      .send({ version: 1 })
+      .expect(400);
+    expect(nothing.body.errors).toEqual([
+      { field: '(body)', message: 'names nothing to change: send at least one field with the version' },
+    ]);
     const ok = await manager
       .patch(`/api/hire-periods/${hireId}`)
       .set('X-CSRF-Token', manager.csrf)
