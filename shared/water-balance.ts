@@ -155,6 +155,9 @@ export function readingChecks(
   ];
 }
 
+/** A label inside a sentence: its first letter small, the rest as written ("pH" stays "pH", not "ph"). */
+const inSentence = (label: string) => label.charAt(0).toLowerCase() + label.slice(1);
+
 /**
  * What a record still lacks before commissioning may be marked done, in plain words (empty when
  * complete): every check ticked, each reading taken and within range or explained in the notes,
@@ -167,11 +170,11 @@ export function commissioningGaps(r: CommissioningFacts | null, targets: WaterTa
   if (!r) return ['Nothing is recorded yet: fill in the commissioning record.'];
   const gaps: string[] = [];
   for (const c of COMMISSIONING_CHECKS)
-    if (!r.checks[c.key]) gaps.push(`Not ticked: ${c.label.replace(/ \(.*\)$/, '').toLowerCase()}.`);
+    if (!r.checks[c.key]) gaps.push(`Not ticked: ${inSentence(c.label.replace(/ \(.*\)$/, ''))}.`);
   if (!r.sanitiserKind) gaps.push('Say which sanitiser is used (chlorine or bromine).');
   const explained = Boolean(r.notes && r.notes.trim());
   for (const reading of readingChecks(r, targets)) {
-    if (reading.verdict === 'missing') gaps.push(`No ${reading.label.toLowerCase()} reading.`);
+    if (reading.verdict === 'missing') gaps.push(`No ${inSentence(reading.label)} reading.`);
     else if (reading.verdict !== 'in-range' && !explained) {
       gaps.push(
         `${reading.label} ${reading.value} is ${reading.verdict === 'low' ? 'below' : 'above'} the firm's range (${rangeText(reading.range)}): bring it into range, or say in the notes what was done about it.`,

@@ -70,6 +70,7 @@ describe('what a commissioning record still lacks', () => {
       {
         ...complete,
         checks: { ...ALL_TICKED, heaterWorking: false, noLeaks: false },
+        ph: null,
         totalAlkalinityPpm: null,
         sanitiserKind: null,
         photoCount: 0,
@@ -80,6 +81,7 @@ describe('what a commissioning record still lacks', () => {
       'Not ticked: heater working.',
       'Not ticked: no leaks at unions, valves and the cabinet.',
       'Say which sanitiser is used (chlorine or bromine).',
+      'No pH reading.',
       'No total alkalinity reading.',
       'No photo: add at least one photo of the running unit.',
     ]);
