@@ -108,6 +108,11 @@ export const PROBLEM_TYPES: Record<string, { title: string; explanation: string 
     explanation:
       "The commissioning stage is marked done only when its record is complete: every check ticked, pH, alkalinity and sanitiser readings within the firm's ranges (or a note saying what was done about them) and at least one photo. The answer lists what is missing; finish the record on the commissioning page and mark it done again.",
   },
+  'commissioning-not-done': {
+    title: 'Commissioning is not done',
+    explanation:
+      'A spa is handed over working: the handover is signed and marked done only once every commissioning stage of the job is marked done (which itself needs a complete commissioning record). Finish the commissioning record, mark Commission done on My work, then hand over.',
+  },
   'certificate-missing': {
     title: 'The electrical certificate is missing',
     explanation:

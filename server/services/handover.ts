@@ -22,6 +22,7 @@ import { Booking, Job, Stage } from '../models/index.ts';
 import { FirmSettings, JobFile } from '../models/job-records.ts';
 import { Handover } from '../models/handover.ts';
 import { BadRequestError, ConflictError } from '../errors.ts';
+import { handoverGaps } from './stage-gates.ts';
 import type { ObjectStore } from '../storage/object-store.ts';
 import { inspectFile } from '../storage/inspect.ts';
 import type { Actor } from './actor.ts';
@@ -247,6 +248,8 @@ export class HandoverService {
       householderEmail: email.email,
       householderEmailHint: email.hint,
       stageBooked: booked > 0,
+      // Once signed there is nothing left to ask for.
+      notReady: handover ? [] : await handoverGaps(this.knex, jobId),
       signed,
     };
   }

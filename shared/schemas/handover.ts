@@ -69,6 +69,11 @@ export interface HandoverView {
   householderEmailHint: string | null;
   /** The handover stage's bookings the reader may mark done, and whether they are. */
   stageBooked: boolean;
+  /**
+   * What the job still needs before the householder signs (commissioning done, the electrical
+   * certificate), in plain words; empty when ready. Signing is refused until it is.
+   */
+  notReady: string[];
   signed: null | {
     signedAt: string;
     householderName: string;

@@ -76,6 +76,15 @@ describe('a crew member on a phone', () => {
     const commission = page.locator('article.visit', { hasText: 'HE-501' }).filter({ hasText: 'Commission' });
     await commission.waitFor({ timeout: 15_000 });
 
+    // Before the commissioning, the handover page says it isn't ready, and nobody can sign.
+    await page.goto(`${app.url}/jobs/${job.jobId}/handover`);
+    await expect
+      .poll(() => page.getByTestId('handover-not-ready').textContent())
+      .toContain('Commissioning is not marked done yet');
+    expect(await page.getByRole('button', { name: 'Sign and hand over' }).isDisabled()).toBe(true);
+    await page.goto(`${app.url}/my-work`);
+    await commission.waitFor();
+
     // The commissioning record, filled in on the phone (it saves as it goes).
     await commission.getByRole('link', { name: 'Commissioning record' }).click();
     await page.waitForURL(/\/jobs\/\d+\/commission$/);

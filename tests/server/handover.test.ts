@@ -188,6 +188,30 @@ describe('signing the handover', () => {
     const text = (await pdfText(mail.attachments![0]!.content)).replace(/\s+/g, ' ');
     expect(text).toContain('The electrical certificate was not on file at handover (Electrician re-testing on Friday)');
   });
+
+  it('is not signed before the commissioning is done: the page says so first, and the gate refuses it', async () => {
+    const job = await makeHandoverJob(ctx.knex, {
+      reference: 'HO-105',
+      startsAt: '2026-06-01T15:00:00Z',
+      store,
+      commissionDone: false,
+    });
+    const page = (await crew.get(`/api/jobs/${job.jobId}/handover`).expect(200)).body;
+    expect(page.notReady).toEqual([
+      'Commissioning is not marked done yet: the spa is handed over working, so finish the commissioning record and mark Commission done first.',
+    ]);
+    const refused = await sign(crew, job.jobId, good()).expect(409);
+    expect(refused.body.type).toMatch(/\/commissioning-not-done$/);
+    expect(await ctx.knex('handovers').where('job_id', job.jobId).first()).toBeUndefined();
+    expect(await ctx.knex('bookings').where('id', job.handoverBookingId).first('state')).toEqual({
+      state: 'confirmed',
+    });
+
+    // Commissioning marked done (its record is complete): the page has nothing left to ask, and it signs.
+    await ctx.knex('bookings').where('stage_id', job.stage.commission).update({ state: 'done' });
+    expect((await crew.get(`/api/jobs/${job.jobId}/handover`).expect(200)).body.notReady).toEqual([]);
+    await sign(crew, job.jobId, good()).expect(201);
+  });
 });
 
 describe('service visits from the handover', () => {
