@@ -25,6 +25,8 @@ export const PERMISSIONS = {
   'bookings:read': OFFICE,
   /** The manager fixes what the reports find (a hire clash, idle hire) on the board. */
   'bookings:write': ['owner', 'scheduler', 'manager'],
+  /** Time away of the firm's own resources (holidays, sickness, a machine off the road); a partner firm marks its own. */
+  'absences:write': ['owner', 'scheduler', 'manager', 'partner'],
   /** A partner firm's coordinator answers the requests for its own resources. */
   'bookings:answer': ['partner'],
   /** Crew mark their own bookings on site and done. */

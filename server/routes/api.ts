@@ -16,6 +16,8 @@ import {
 import { SwitchFirm } from '../../shared/schemas/session.ts';
 import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
+import { AbsencesService } from '../services/absences.ts';
+import { CreateAbsence } from '../../shared/schemas/absences.ts';
 import { BookingsService } from '../services/bookings.ts';
 import type { BookingLimits } from '../services/booking-writes.ts';
 import { CompletionService } from '../services/completion.ts';
@@ -47,6 +49,7 @@ export function apiRoutes(
 ): void {
   const jobs = new JobsService(knex);
   const directory = new DirectoryService();
+  const absences = new AbsencesService(knex);
   const bookings = new BookingsService(knex, now, limits);
   const completion = new CompletionService(knex, now);
   const placement = new PlacementService(knex, now, limits);
@@ -111,6 +114,17 @@ export function apiRoutes(
     })
     .get('/api/resources', 'resources:read', async (req, res) => {
       res.json({ items: await directory.resources(req.actor!) });
+    })
+    .get('/api/resources/:id/absences', 'absences:write', async (req, res) => {
+      res.json({ items: await absences.list(req.actor!, parse(IdParams, req.params, 'params').id, now()) });
+    })
+    .post('/api/resources/:id/absences', 'absences:write', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.status(201).json(await absences.create(req.actor!, id, parse(CreateAbsence, req.body)));
+    })
+    .delete('/api/absences/:id', 'absences:write', async (req, res) => {
+      await absences.remove(req.actor!, parse(IdParams, req.params, 'params').id);
+      res.status(204).end();
     })
     .get('/api/units', 'units:read', async (req, res) => {
       res.json({ items: await directory.units(req.actor!) });

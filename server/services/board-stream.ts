@@ -39,6 +39,22 @@ export async function notifyJobChange(trx: Knex.Transaction, jobId: string): Pro
   );
 }
 
+/**
+ * Tells the boards that show a resource that its time changed without any booking changing (time
+ * away marked or taken off): those of its own firm, and, for a partner firm's resource, of every
+ * installer it works with. They reload. The event names no booking.
+ */
+export async function notifyResourceChange(trx: Knex.Transaction, resourceId: string): Promise<void> {
+  await trx.raw(
+    `SELECT pg_notify(?, json_build_object('bookingId', '', 'resourceId', r.id::text,
+      'installerFirmId', f.firm_id::text, 'resourceFirmId', r.firm_id::text)::text)
+     FROM resources r
+     CROSS JOIN LATERAL (SELECT r.firm_id UNION SELECT p.installer_firm_id FROM partnerships p WHERE p.partner_firm_id = r.firm_id) f(firm_id)
+     WHERE r.id = ?`,
+    [CHANNEL, resourceId],
+  );
+}
+
 /** The LISTEN connection's `application_name` in pg_stat_activity. */
 export const LISTENER_APPLICATION_NAME = 'waterline-board-stream';
 /** How often open streams get a comment line, so proxies keep them open (common practice, no source). */

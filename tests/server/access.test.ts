@@ -19,7 +19,7 @@ let ctx: TestContext;
 const agents = new Map<Role, Agent>();
 
 /** The kinds of id routes take, by the path they sit under. */
-type IdKind = 'job' | 'stage' | 'booking' | 'file' | 'person' | 'hire';
+type IdKind = 'job' | 'stage' | 'booking' | 'file' | 'person' | 'hire' | 'resource' | 'absence';
 type Reach = 'office' | 'crew' | 'partner';
 const reachOfRole = (role: Role): Reach => (role === 'crew' ? 'crew' : role === 'partner' ? 'partner' : 'office');
 
@@ -91,11 +91,40 @@ beforeAll(async () => {
   const crane = await bookingOf((q) => q.where('resources.name', 'like', '%crane%'));
   const gareth = await idOf(k, 'resources', { name: 'Gareth Pryce' });
   const mvCrew = await idOf(k, 'resources', { name: 'Moorview crew' });
+  // Time away of each firm's own resources (a week in September 2026).
+  const away = async (resource: string) =>
+    first(
+      k('calendar_exceptions')
+        .insert({
+          resource_id: resource,
+          starts_at: new Date('2026-09-14T00:00:00Z'),
+          ends_at: new Date('2026-09-19T00:00:00Z'),
+          reason: 'Holiday',
+        })
+        .returning('id')
+        .then((rows) => rows[0]),
+    );
+  const otter = await idOf(k, 'resources', { name: 'Crew Otter' });
+  const absence = {
+    tideway: await away(otter),
+    moorview: await away(mvCrew),
+    tom: await away(tom),
+    gareth: await away(gareth),
+  };
 
   // No file of Tideway's exists: the own-id pass below only checks a write's access rule (never a 404).
   const noFile = '999999999';
   own = {
-    office: { job: twJob, stage: twBooking.stageId, booking: twBooking.id, file: noFile, person: tom, hire: twHire },
+    office: {
+      job: twJob,
+      stage: twBooking.stageId,
+      booking: twBooking.id,
+      file: noFile,
+      person: tom,
+      hire: twHire,
+      resource: otter,
+      absence: absence.tideway,
+    },
     crew: {
       job: String(heron.jobId),
       stage: String(heron.stageId),
@@ -103,6 +132,8 @@ beforeAll(async () => {
       file: noFile,
       person: tom,
       hire: twHire,
+      resource: otter,
+      absence: absence.tideway,
     },
     partner: {
       job: String(slot.jobId),
@@ -111,6 +142,8 @@ beforeAll(async () => {
       file: noFile,
       person: tom,
       hire: twHire,
+      resource: tom,
+      absence: absence.tom,
     },
   };
   const theirs = {
@@ -120,8 +153,14 @@ beforeAll(async () => {
     file: String(mvFile.id),
     person: mvCrew,
     hire: String(mvHire.id),
+    resource: mvCrew,
+    absence: absence.moorview,
   };
-  other = { office: theirs, crew: theirs, partner: { ...theirs, booking: String(crane.id), person: gareth } };
+  other = {
+    office: theirs,
+    crew: theirs,
+    partner: { ...theirs, booking: String(crane.id), person: gareth, resource: gareth, absence: absence.gareth },
+  };
 });
 afterAll(async () => {
   await ctx.close();
@@ -198,6 +237,8 @@ function idKindOf(path: string): IdKind | null {
     ['/api/partner/slots/', 'booking'],
     ['/api/partner/people/', 'person'],
     ['/api/hire-periods/', 'hire'],
+    ['/api/resources/', 'resource'],
+    ['/api/absences/', 'absence'],
   ];
   const found = kinds.find(([prefix]) => path.startsWith(prefix));
   if (!found) throw new Error(`the access matrix has no id for ${path}: add its kind to idKindOf`);
@@ -235,6 +276,8 @@ function validBody(
       return { body: { resourceId: ids.person, version: 1 } };
     case 'patch /api/hire-periods/:id':
       return { body: { version: 1, status: 'ended' } };
+    case 'post /api/resources/:id/absences':
+      return { body: { from: '2026-09-21', to: '2026-09-21', reason: 'Holiday' } };
     default:
       if (
         /^post \/api\/bookings\/:id\/(publish|cancel|proposal\/accept|proposal\/refuse)$/.test(

@@ -1,0 +1,125 @@
+import type { Knex } from 'knex';
+import type { AbsenceCreated, AbsenceView, AffectedBooking, CreateAbsence } from '../../shared/schemas/absences.ts';
+import { addDays, localDateOf, startOfLocalDay } from '../../shared/local-dates.ts';
+import { NotFoundError } from '../errors.ts';
+import { reachOf, type Actor } from './actor.ts';
+import { recordChange } from './audit.ts';
+import { notifyResourceChange } from './board-stream.ts';
+
+/** Absences shown on a resource: those not over, and those that ended in the last 30 days. */
+const SHOWN_AFTER_DAYS = 30;
+
+interface OwnResource {
+  id: string;
+  name: string;
+  firmId: string;
+  timeZone: string;
+}
+
+interface ExceptionRow {
+  id: string;
+  resourceId: string;
+  startsAt: Date;
+  endsAt: Date;
+  reason: string;
+}
+
+/**
+ * A resource's time away (holiday, sickness, a machine off the road), kept as the resource's
+ * calendar exceptions, which the board's working calendars and the engine already read. Only the
+ * firm that owns a resource marks it away: an installer its crews, people and machines, a partner
+ * firm its own people and plant (so every installer that books them sees it). Another firm's
+ * resource is 404, as if it did not exist.
+ */
+export class AbsencesService {
+  constructor(private readonly knex: Knex) {}
+
+  /** The resource, when it is the actor's own firm's (404 otherwise, hired or a partner's included). */
+  private async ownResource(actor: Actor, resourceId: string, trx: Knex | Knex.Transaction = this.knex) {
+    const row = (await trx('resources as r')
+      .join('firms as f', 'f.id', 'r.firm_id')
+      .where({ 'r.id': resourceId, 'r.firm_id': actor.firmId, 'r.active': true })
+      .first('r.id', 'r.name', 'r.firm_id', 'f.time_zone')) as OwnResource | undefined;
+    if (!row || reachOf(actor) === 'crew') throw new NotFoundError('resource');
+    return row;
+  }
+
+  private view(r: OwnResource, e: ExceptionRow): AbsenceView {
+    return {
+      id: String(e.id),
+      resourceId: String(e.resourceId),
+      from: localDateOf(e.startsAt.getTime(), r.timeZone),
+      // The exclusive end is the next day's midnight: the last day away is the day before it.
+      to: localDateOf(e.endsAt.getTime() - 1, r.timeZone),
+      reason: e.reason,
+    };
+  }
+
+  async list(actor: Actor, resourceId: string, now: number): Promise<AbsenceView[]> {
+    const r = await this.ownResource(actor, resourceId);
+    const rows = (await this.knex('calendar_exceptions')
+      .where('resource_id', r.id)
+      .where('ends_at', '>', new Date(now - SHOWN_AFTER_DAYS * 86_400_000))
+      .orderBy('starts_at')
+      .select('id', 'resource_id', 'starts_at', 'ends_at', 'reason')) as ExceptionRow[];
+    return rows.map((e) => this.view(r, e));
+  }
+
+  async create(actor: Actor, resourceId: string, input: CreateAbsence): Promise<AbsenceCreated> {
+    return this.knex.transaction(async (trx) => {
+      const r = await this.ownResource(actor, resourceId, trx);
+      const startsAt = new Date(startOfLocalDay(input.from, r.timeZone));
+      const endsAt = new Date(startOfLocalDay(addDays(input.to, 1), r.timeZone));
+      const [row] = (await trx('calendar_exceptions')
+        .insert({ resource_id: r.id, starts_at: startsAt, ends_at: endsAt, reason: input.reason })
+        .returning(['id', 'resource_id', 'starts_at', 'ends_at', 'reason'])) as ExceptionRow[];
+      const absence = this.view(r, row!);
+      await recordChange(trx, actor, 'absence', absence.id, 'create', null, absence);
+      await notifyResourceChange(trx, r.id);
+      const affected = (await trx('bookings as b')
+        .join('stages as s', 's.id', 'b.stage_id')
+        .join('jobs as j', 'j.id', 's.job_id')
+        .where('b.resource_id', r.id)
+        .whereNotIn('b.state', ['declined', 'done'])
+        .where('b.starts_at', '<', endsAt)
+        .where('b.ends_at', '>', startsAt)
+        .orderBy('b.starts_at')
+        .select('b.id', 'b.starts_at', 'b.ends_at', 'j.firm_id', 'j.reference', 's.name')) as {
+        id: string;
+        startsAt: Date;
+        endsAt: Date;
+        firmId: string;
+        reference: string;
+        name: string;
+      }[];
+      return {
+        absence,
+        // Another installer's job (a partner's person booked by them) is named to its own firm only.
+        affected: affected.map((b): AffectedBooking => ({
+          bookingId: String(b.id),
+          startsAt: b.startsAt.toISOString(),
+          endsAt: b.endsAt.toISOString(),
+          jobReference: String(b.firmId) === actor.firmId ? b.reference : null,
+          stageName: String(b.firmId) === actor.firmId ? b.name : null,
+        })),
+      };
+    });
+  }
+
+  async remove(actor: Actor, absenceId: string): Promise<void> {
+    await this.knex.transaction(async (trx) => {
+      const e = (await trx('calendar_exceptions')
+        .where('id', absenceId)
+        .whereNotNull('resource_id')
+        .forUpdate()
+        .first('id', 'resource_id', 'starts_at', 'ends_at', 'reason')) as ExceptionRow | undefined;
+      if (!e) throw new NotFoundError('absence');
+      const r = await this.ownResource(actor, String(e.resourceId), trx).catch(() => {
+        throw new NotFoundError('absence');
+      });
+      await trx('calendar_exceptions').where('id', e.id).delete();
+      await recordChange(trx, actor, 'absence', String(e.id), 'delete', this.view(r, e), null);
+      await notifyResourceChange(trx, r.id);
+    });
+  }
+}

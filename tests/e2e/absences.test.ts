@@ -1,0 +1,63 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { account, idOf } from '../helpers/server.ts';
+
+/*
+ * Marking a crew away from the Resources page on a phone (390 × 844), as the demo installer's
+ * scheduler: Crew Heron on Thu 4 Jun 2026, where the demo books TW-2418's survey and TW-2402's
+ * commissioning and handover on it (the test scenario's today is Mon 1 Jun 2026).
+ */
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+let heron: string;
+
+beforeAll(async () => {
+  app = await startServer();
+  heron = await idOf(app.ctx.knex, 'resources', { name: 'Crew Heron' });
+  browser = await launchBrowser();
+  page = await phonePage(browser);
+  await signInThroughPage(page, app.url, account('scheduler').email);
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+const awayRows = () => app.ctx.knex('calendar_exceptions').where('resource_id', heron).select('reason');
+
+describe('time away on the Resources page', () => {
+  it('marks a crew away for a day, names the bookings left in it, and takes it off again after asking', async () => {
+    await page.goto(`${app.url}/resources`);
+    await page.getByRole('button', { name: 'Time away: Crew Heron' }).click();
+    const panel = page.getByRole('group', { name: 'Time away: Crew Heron' });
+    await panel.getByText('No time away marked.').waitFor();
+
+    // A reason left out is named under the form, and nothing is sent.
+    await panel.getByLabel('First day away').fill('2026-06-04');
+    await panel.getByLabel('Last day away').fill('2026-06-04');
+    await panel.getByRole('button', { name: 'Mark away' }).click();
+    expect(await panel.getByRole('alert').textContent()).toBe('Why is required: say why, in a few words');
+    expect(await awayRows()).toEqual([]);
+
+    await panel.getByLabel('Why').fill('Training');
+    await panel.getByRole('button', { name: 'Mark away' }).click();
+    const status = panel.getByRole('status');
+    await status.waitFor();
+    expect(await status.locator('strong').textContent()).toBe('3 bookings fall in that time');
+    const listed = await status.locator('li').allTextContents();
+    expect(listed.map((l) => l.replace(/, \d\d:\d\d$/, ''))).toEqual([
+      'TW-2418 · Site survey · Thu 4 Jun',
+      'TW-2402 · Commission · Thu 4 Jun',
+      'TW-2402 · Handover · Thu 4 Jun',
+    ]);
+    expect(await awayRows()).toEqual([{ reason: 'Training' }]);
+    await page.screenshot({ path: 'tests/e2e/artifacts/resources-time-away.png', fullPage: true });
+
+    await panel.getByRole('button', { name: 'Take off…' }).click();
+    await page.getByRole('button', { name: 'Take it off' }).click();
+    await panel.getByText('No time away marked.').waitFor();
+    expect(await awayRows()).toEqual([]);
+  });
+});

@@ -1,0 +1,189 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { AddressInfo } from 'node:net';
+import {
+  account,
+  idOf,
+  openBoardStream,
+  signIn,
+  startTestApp,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
+import { makeJob } from '../helpers/flows.ts';
+
+/*
+ * Time away of a resource: Crew Otter (Tideway's own crew) and Priya Nair (Brightspark
+ * Electrical's electrician, marked away by her own firm). The test's today is Mon 1 Jun 2026;
+ * London is on BST (UTC+1) all June, so local midnight is 23:00 UTC the day before.
+ */
+let ctx: TestContext;
+let scheduler: Agent;
+let partner: Agent;
+let otherInstaller: Agent;
+let otter: string;
+let priya: string;
+let fill: { jobId: string; stage: Record<string, string> };
+
+const WEEK = { from: '2026-06-08T00:00:00Z', to: '2026-06-15T00:00:00Z' };
+
+beforeAll(async () => {
+  ctx = await startTestApp();
+  scheduler = await signIn(ctx, account('scheduler').email);
+  partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
+  otherInstaller = await signIn(ctx, account('scheduler', 'Moorview Spas').email);
+  otter = await idOf(ctx.knex, 'resources', { name: 'Crew Otter' });
+  priya = await idOf(ctx.knex, 'resources', { name: 'Priya Nair' });
+  fill = await makeJob(ctx.knex, {
+    reference: 'AW-301',
+    stages: [
+      { kind: 'fill', name: 'Fill', minutes: 120, needs: { install_crew: 1 } },
+      { kind: 'electrical_connect', name: 'Connect and certify', minutes: 120, needs: { electrician: 1 } },
+    ],
+    links: [],
+  });
+  // Wed 10 Jun 09:00–11:00 BST on Crew Otter, and Fri 12 Jun (after the time away) on Crew Otter too.
+  for (const [stageId, resourceId, startsAt, endsAt] of [
+    [fill.stage.fill, otter, '2026-06-10T08:00:00Z', '2026-06-10T10:00:00Z'],
+    [fill.stage.electrical_connect, priya, '2026-06-10T12:00:00Z', '2026-06-10T14:00:00Z'],
+  ] as const)
+    await scheduler
+      .post('/api/bookings')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ stageId, resourceId, startsAt, endsAt })
+      .expect(201);
+}, 60_000);
+afterAll(async () => {
+  await ctx?.close();
+});
+
+const markAway = (as: Agent, resourceId: string, body: Record<string, unknown>) =>
+  as.post(`/api/resources/${resourceId}/absences`).set('X-CSRF-Token', as.csrf).send(body);
+const closuresOf = async (as: Agent, resourceId: string) => {
+  const board = (await as.get('/api/board').query(WEEK).expect(200)).body;
+  const row = board.resources.find((r: { id: string }) => r.id === resourceId);
+  const cal = board.calendars.find((c: { id: string }) => c.id === row.calendarId);
+  return (cal.closures ?? []) as { start: number; end: number }[];
+};
+
+describe('marking a crew away', () => {
+  it('keeps whole local days, shades them on the board, names the bookings left in them, and refreshes open boards', async () => {
+    const before = await scheduler.get('/api/board').query(WEEK).expect(200);
+    const res = await markAway(scheduler, otter, { from: '2026-06-10', to: '2026-06-11', reason: 'Holiday' }).expect(
+      201,
+    );
+    expect(res.body.absence).toMatchObject({
+      resourceId: otter,
+      from: '2026-06-10',
+      to: '2026-06-11',
+      reason: 'Holiday',
+    });
+    expect(res.body.affected).toEqual([
+      {
+        bookingId: expect.any(String),
+        startsAt: '2026-06-10T08:00:00.000Z',
+        endsAt: '2026-06-10T10:00:00.000Z',
+        jobReference: 'AW-301',
+        stageName: 'Fill',
+      },
+    ]);
+    // Wed 10 Jun 00:00 BST to Fri 12 Jun 00:00 BST.
+    expect(await closuresOf(scheduler, otter)).toContainEqual({
+      start: Date.UTC(2026, 5, 9, 23),
+      end: Date.UTC(2026, 5, 11, 23),
+    });
+    // A board loaded before it is out of date now (no 304).
+    await scheduler
+      .get('/api/board')
+      .query(WEEK)
+      .set('If-None-Match', before.headers.etag as string)
+      .expect(200);
+    const audit = await ctx.knex('audit_log').where({ entity: 'absence', entity_id: res.body.absence.id });
+    expect(audit.map((a: { action: string }) => a.action)).toEqual(['create']);
+
+    const listed = (await scheduler.get(`/api/resources/${otter}/absences`).expect(200)).body.items;
+    expect(listed).toContainEqual(res.body.absence);
+  });
+
+  it('takes the time away off again, and the board shades nothing there', async () => {
+    const [a] = (await scheduler.get(`/api/resources/${otter}/absences`).expect(200)).body.items;
+    await scheduler.delete(`/api/absences/${a.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+    expect(await closuresOf(scheduler, otter)).not.toContainEqual({
+      start: Date.UTC(2026, 5, 9, 23),
+      end: Date.UTC(2026, 5, 11, 23),
+    });
+    await scheduler.delete(`/api/absences/${a.id}`).set('X-CSRF-Token', scheduler.csrf).expect(404);
+  });
+
+  it('refuses bad days with the field and the reason, keeping nothing', async () => {
+    const cases: [Record<string, unknown>, { field: string; message: string }][] = [
+      [
+        { from: '2026-06-12', to: '2026-06-10', reason: 'Holiday' },
+        { field: 'to', message: 'must be on or after the first day away' },
+      ],
+      [
+        { from: '2026-06-10', to: '2027-06-11', reason: 'Holiday' },
+        { field: 'to', message: 'must be at most 366 days after the first day away' },
+      ],
+      [{ from: '9999-01-01', to: '2026-06-10', reason: 'Holiday' }, expect.objectContaining({ field: 'from' })],
+      [
+        { from: '2026-06-10', to: '2026-06-10', reason: '' },
+        { field: 'reason', message: 'is required: say why, in a few words' },
+      ],
+      [{ from: '2026-06-10', to: '2026-06-10', reason: 'Hol\u0000iday' }, expect.objectContaining({ field: 'reason' })],
+      [
+        { from: '2026-06-10', to: '2026-06-10', reason: 'Holiday', startsAt: '2026-06-10T08:00:00Z' },
+        { field: 'startsAt', message: 'is not a field this request takes' },
+      ],
+    ];
+    const count = async () => Number((await ctx.knex('calendar_exceptions').count('* as n').first())!.n);
+    const was = await count();
+    for (const [body, problem] of cases) {
+      const res = await markAway(scheduler, otter, body).expect(400);
+      expect(res.headers['content-type']).toContain('application/problem+json');
+      expect(res.body.errors, JSON.stringify(body)).toEqual([problem]);
+    }
+    expect(await count()).toBe(was);
+  });
+});
+
+describe("a partner firm's own people", () => {
+  it("are marked away by their own firm, which the installer's open board hears of and then shades, naming no installer's job to them", async () => {
+    const server = ctx.waterline.app.listen(0, '127.0.0.1');
+    await new Promise((r) => server.once('listening', r));
+    const board = await openBoardStream(scheduler, (server.address() as AddressInfo).port);
+    let res;
+    try {
+      res = await markAway(partner, priya, { from: '2026-06-10', to: '2026-06-10', reason: 'Training' }).expect(201);
+      // The installer's board reloads (an event naming no booking).
+      expect(await board.until((t) => t.includes('data: {"bookingId":""}'))).toContain(
+        'event: bookings\ndata: {"bookingId":""}\n\n',
+      );
+    } finally {
+      board.close();
+      await new Promise((r) => server.close(r));
+    }
+    expect(res.body.affected).toEqual([
+      {
+        bookingId: expect.any(String),
+        startsAt: '2026-06-10T12:00:00.000Z',
+        endsAt: '2026-06-10T14:00:00.000Z',
+        jobReference: null,
+        stageName: null,
+      },
+    ]);
+    expect(await closuresOf(scheduler, priya)).toContainEqual({
+      start: Date.UTC(2026, 5, 9, 23),
+      end: Date.UTC(2026, 5, 10, 23),
+    });
+  });
+
+  it("are not the installer's to mark, nor another installer's resource: 404 as if they did not exist", async () => {
+    await markAway(scheduler, priya, { from: '2026-06-10', to: '2026-06-10', reason: 'Holiday' }).expect(404);
+    await markAway(otherInstaller, otter, { from: '2026-06-10', to: '2026-06-10', reason: 'Holiday' }).expect(404);
+    await markAway(partner, otter, { from: '2026-06-10', to: '2026-06-10', reason: 'Holiday' }).expect(404);
+    const [own] = (await partner.get(`/api/resources/${priya}/absences`).expect(200)).body.items;
+    await scheduler.delete(`/api/absences/${own.id}`).set('X-CSRF-Token', scheduler.csrf).expect(404);
+    await otherInstaller.get(`/api/resources/${priya}/absences`).expect(404);
+    expect((await partner.get(`/api/resources/${priya}/absences`).expect(200)).body.items).toHaveLength(1);
+  });
+});
