@@ -122,6 +122,16 @@ export function apiRoutes(
       const { id } = parse(IdParams, req.params, 'params');
       res.status(201).json(await absences.create(req.actor!, id, parse(CreateAbsence, req.body)));
     })
+    .get('/api/firm/closures', 'absences:write', async (req, res) => {
+      res.json({ items: await absences.listClosures(req.actor!, now()) });
+    })
+    .post('/api/firm/closures', 'absences:write', async (req, res) => {
+      res.status(201).json(await absences.createClosure(req.actor!, parse(CreateAbsence, req.body)));
+    })
+    .delete('/api/firm/closures/:id', 'absences:write', async (req, res) => {
+      await absences.removeClosure(req.actor!, parse(IdParams, req.params, 'params').id);
+      res.status(204).end();
+    })
     .delete('/api/absences/:id', 'absences:write', async (req, res) => {
       await absences.remove(req.actor!, parse(IdParams, req.params, 'params').id);
       res.status(204).end();

@@ -1,10 +1,17 @@
 import type { Knex } from 'knex';
-import type { AbsenceCreated, AbsenceView, AffectedBooking, CreateAbsence } from '../../shared/schemas/absences.ts';
+import type {
+  AbsenceCreated,
+  AbsenceView,
+  AffectedBooking,
+  ClosureCreated,
+  ClosureView,
+  CreateAbsence,
+} from '../../shared/schemas/absences.ts';
 import { addDays, localDateOf, startOfLocalDay } from '../../shared/local-dates.ts';
 import { NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
-import { notifyResourceChange } from './board-stream.ts';
+import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
 
 /** Absences shown on a resource: those not over, and those that ended in the last 30 days. */
 const SHOWN_AFTER_DAYS = 30;
@@ -55,6 +62,42 @@ export class AbsencesService {
     };
   }
 
+  /**
+   * Bookings of the resources (not declined, not done) inside [startsAt, endsAt): the actor's own
+   * firm's jobs named, another installer's only their times.
+   */
+  private async bookingsWithin(
+    trx: Knex.Transaction,
+    actor: Actor,
+    resourceIds: string[] | Knex.QueryBuilder,
+    startsAt: Date,
+    endsAt: Date,
+  ): Promise<AffectedBooking[]> {
+    const rows = (await trx('bookings as b')
+      .join('stages as s', 's.id', 'b.stage_id')
+      .join('jobs as j', 'j.id', 's.job_id')
+      .whereIn('b.resource_id', resourceIds)
+      .whereNotIn('b.state', ['declined', 'done'])
+      .where('b.starts_at', '<', endsAt)
+      .where('b.ends_at', '>', startsAt)
+      .orderBy(['b.starts_at', 'b.id'])
+      .select('b.id', 'b.starts_at', 'b.ends_at', 'j.firm_id', 'j.reference', 's.name')) as {
+      id: string;
+      startsAt: Date;
+      endsAt: Date;
+      firmId: string;
+      reference: string;
+      name: string;
+    }[];
+    return rows.map((b) => ({
+      bookingId: String(b.id),
+      startsAt: b.startsAt.toISOString(),
+      endsAt: b.endsAt.toISOString(),
+      jobReference: String(b.firmId) === actor.firmId ? b.reference : null,
+      stageName: String(b.firmId) === actor.firmId ? b.name : null,
+    }));
+  }
+
   async list(actor: Actor, resourceId: string, now: number): Promise<AbsenceView[]> {
     const r = await this.ownResource(actor, resourceId);
     const rows = (await this.knex('calendar_exceptions')
@@ -76,33 +119,8 @@ export class AbsencesService {
       const absence = this.view(r, row!);
       await recordChange(trx, actor, 'absence', absence.id, 'create', null, absence);
       await notifyResourceChange(trx, r.id);
-      const affected = (await trx('bookings as b')
-        .join('stages as s', 's.id', 'b.stage_id')
-        .join('jobs as j', 'j.id', 's.job_id')
-        .where('b.resource_id', r.id)
-        .whereNotIn('b.state', ['declined', 'done'])
-        .where('b.starts_at', '<', endsAt)
-        .where('b.ends_at', '>', startsAt)
-        .orderBy('b.starts_at')
-        .select('b.id', 'b.starts_at', 'b.ends_at', 'j.firm_id', 'j.reference', 's.name')) as {
-        id: string;
-        startsAt: Date;
-        endsAt: Date;
-        firmId: string;
-        reference: string;
-        name: string;
-      }[];
-      return {
-        absence,
-        // Another installer's job (a partner's person booked by them) is named to its own firm only.
-        affected: affected.map((b): AffectedBooking => ({
-          bookingId: String(b.id),
-          startsAt: b.startsAt.toISOString(),
-          endsAt: b.endsAt.toISOString(),
-          jobReference: String(b.firmId) === actor.firmId ? b.reference : null,
-          stageName: String(b.firmId) === actor.firmId ? b.name : null,
-        })),
-      };
+      const affected = await this.bookingsWithin(trx, actor, [r.id], startsAt, endsAt);
+      return { absence, affected };
     });
   }
 
@@ -120,6 +138,83 @@ export class AbsencesService {
       await trx('calendar_exceptions').where('id', e.id).delete();
       await recordChange(trx, actor, 'absence', String(e.id), 'delete', this.view(r, e), null);
       await notifyResourceChange(trx, r.id);
+    });
+  }
+
+  /** The firm's time zone and its calendars, the first being the one closures are listed from. */
+  private async firmCalendars(actor: Actor, trx: Knex | Knex.Transaction = this.knex) {
+    if (reachOf(actor) === 'crew') throw new NotFoundError('firm');
+    const firm = (await trx('firms').where('id', actor.firmId).first('time_zone')) as { timeZone: string };
+    const calendars = (await trx('calendars').where('firm_id', actor.firmId).orderBy('id').pluck('id')) as string[];
+    return { timeZone: firm.timeZone, calendars: calendars.map(String) };
+  }
+
+  private closureView(timeZone: string, e: { id: string; startsAt: Date; endsAt: Date; reason: string }): ClosureView {
+    return {
+      id: String(e.id),
+      from: localDateOf(e.startsAt.getTime(), timeZone),
+      to: localDateOf(e.endsAt.getTime() - 1, timeZone),
+      reason: e.reason,
+    };
+  }
+
+  /** Days the whole firm is closed (a works shutdown): those not over, and those of the last 30 days. */
+  async listClosures(actor: Actor, now: number): Promise<ClosureView[]> {
+    const { timeZone, calendars } = await this.firmCalendars(actor);
+    if (calendars.length === 0) return [];
+    const rows = await this.knex('calendar_exceptions')
+      .where('calendar_id', calendars[0])
+      .where('ends_at', '>', new Date(now - SHOWN_AFTER_DAYS * 86_400_000))
+      .orderBy('starts_at')
+      .select('id', 'starts_at', 'ends_at', 'reason');
+    return rows.map((e) => this.closureView(timeZone, e));
+  }
+
+  /**
+   * Closes the whole firm for whole local days: the same days on each of its working calendars, so
+   * every crew, person and machine of the firm is shaded on the boards (a partner firm's on the
+   * boards of every installer it works with) and every booking left in them is flagged.
+   */
+  async createClosure(actor: Actor, input: CreateAbsence): Promise<ClosureCreated> {
+    return this.knex.transaction(async (trx) => {
+      const { timeZone, calendars } = await this.firmCalendars(actor, trx);
+      if (calendars.length === 0) throw new NotFoundError('working calendar');
+      const startsAt = new Date(startOfLocalDay(input.from, timeZone));
+      const endsAt = new Date(startOfLocalDay(addDays(input.to, 1), timeZone));
+      const rows = await trx('calendar_exceptions')
+        .insert(calendars.map((c) => ({ calendar_id: c, starts_at: startsAt, ends_at: endsAt, reason: input.reason })))
+        .returning(['id', 'calendar_id', 'starts_at', 'ends_at', 'reason']);
+      const first = rows.find((r: { calendarId: string }) => String(r.calendarId) === calendars[0])!;
+      const closure = this.closureView(timeZone, first);
+      await recordChange(trx, actor, 'closure', closure.id, 'create', null, closure);
+      await notifyFirmChange(trx, actor.firmId);
+      const affected = await this.bookingsWithin(
+        trx,
+        actor,
+        trx('resources').where('firm_id', actor.firmId).select('id'),
+        startsAt,
+        endsAt,
+      );
+      return { closure, affected };
+    });
+  }
+
+  /** Takes a closure off every calendar of the firm (the rows of the same days and reason). */
+  async removeClosure(actor: Actor, closureId: string): Promise<void> {
+    await this.knex.transaction(async (trx) => {
+      const { timeZone, calendars } = await this.firmCalendars(actor, trx);
+      const e = await trx('calendar_exceptions')
+        .where('id', closureId)
+        .whereIn('calendar_id', calendars)
+        .forUpdate()
+        .first('id', 'starts_at', 'ends_at', 'reason');
+      if (!e) throw new NotFoundError('closure');
+      await trx('calendar_exceptions')
+        .whereIn('calendar_id', calendars)
+        .where({ starts_at: e.startsAt, ends_at: e.endsAt, reason: e.reason })
+        .delete();
+      await recordChange(trx, actor, 'closure', String(e.id), 'delete', this.closureView(timeZone, e), null);
+      await notifyFirmChange(trx, actor.firmId);
     });
   }
 }

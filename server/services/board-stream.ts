@@ -55,6 +55,19 @@ export async function notifyResourceChange(trx: Knex.Transaction, resourceId: st
   );
 }
 
+/**
+ * Tells the boards that show a firm's resources that its working days changed (the whole firm
+ * closed, or opened again): its own, and every installer it works with as a partner. They reload.
+ */
+export async function notifyFirmChange(trx: Knex.Transaction, firmId: string): Promise<void> {
+  await trx.raw(
+    `SELECT pg_notify(?, json_build_object('bookingId', '', 'resourceId', '',
+      'installerFirmId', f.firm_id::text, 'resourceFirmId', ?::text)::text)
+     FROM (SELECT ?::bigint UNION SELECT p.installer_firm_id FROM partnerships p WHERE p.partner_firm_id = ?) f(firm_id)`,
+    [CHANNEL, firmId, firmId, firmId],
+  );
+}
+
 /** The LISTEN connection's `application_name` in pg_stat_activity. */
 export const LISTENER_APPLICATION_NAME = 'waterline-board-stream';
 /** How often open streams get a comment line, so proxies keep them open (common practice, no source). */

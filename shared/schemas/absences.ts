@@ -9,6 +9,7 @@ export const ABSENCE_MAX_DAYS = 366;
 export const ABSENCE_REASONS = {
   person: ['Holiday', 'Off sick', 'Training', 'Other work'],
   machine: ['Off the road (repair)', 'Service', 'Inspection', 'Lent out'],
+  firm: ['Works shutdown', 'Christmas and New Year', 'Training day'],
 } as const;
 
 /**
@@ -58,5 +59,19 @@ export interface AffectedBooking {
 export interface AbsenceCreated {
   absence: AbsenceView;
   /** Bookings of the resource (not declined, not done) in the time now away: the board flags them. */
+  affected: AffectedBooking[];
+}
+
+/** Days the whole firm is closed (a works shutdown), as the firm reads them. */
+export interface ClosureView {
+  id: string;
+  from: string;
+  to: string;
+  reason: string;
+}
+
+/** What POST /api/firm/closures answers: the closure, and the firm's bookings now inside it. */
+export interface ClosureCreated {
+  closure: ClosureView;
   affected: AffectedBooking[];
 }

@@ -60,4 +60,39 @@ describe('time away on the Resources page', () => {
     await panel.getByText('No time away marked.').waitFor();
     expect(await awayRows()).toEqual([]);
   });
+
+  it('closes the whole firm for a day, on every one of its calendars, and opens it again', async () => {
+    const closedRows = () =>
+      app.ctx
+        .knex('calendar_exceptions as e')
+        .join('calendars as c', 'c.id', 'e.calendar_id')
+        .join('firms as f', 'f.id', 'c.firm_id')
+        .where('f.name', 'Tideway Hot Tubs')
+        .where('e.reason', 'Training day')
+        .count('* as n')
+        .first();
+    const calendars = await app.ctx
+      .knex('calendars as c')
+      .join('firms as f', 'f.id', 'c.firm_id')
+      .where('f.name', 'Tideway Hot Tubs')
+      .count('* as n')
+      .first();
+    await page.goto(`${app.url}/resources`);
+    const panel = page.getByRole('group', { name: 'Days the firm is closed' });
+    await panel.getByText(/No closed days marked/).waitFor();
+    await panel.getByLabel('First day closed').fill('2026-06-04');
+    await panel.getByLabel('Last day closed').fill('2026-06-04');
+    await panel.getByLabel('Why').fill('Training day');
+    await panel.getByRole('button', { name: 'Close those days' }).click();
+    const status = panel.getByRole('status');
+    await status.waitFor();
+    // Crew Heron's three bookings that day are among them (see the test above).
+    expect(Number((await status.locator('strong').textContent())!.split(' ')[0])).toBeGreaterThanOrEqual(3);
+    expect(await closedRows()).toEqual(calendars);
+
+    await panel.getByRole('button', { name: 'Take off…' }).click();
+    await page.getByRole('button', { name: 'Take it off' }).click();
+    await panel.getByText(/No closed days marked/).waitFor();
+    expect(await closedRows()).toEqual({ n: '0' });
+  });
 });

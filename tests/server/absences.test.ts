@@ -58,8 +58,8 @@ afterAll(async () => {
 
 const markAway = (as: Agent, resourceId: string, body: Record<string, unknown>) =>
   as.post(`/api/resources/${resourceId}/absences`).set('X-CSRF-Token', as.csrf).send(body);
-const closuresOf = async (as: Agent, resourceId: string) => {
-  const board = (await as.get('/api/board').query(WEEK).expect(200)).body;
+const closuresOf = async (as: Agent, resourceId: string, week = WEEK) => {
+  const board = (await as.get('/api/board').query(week).expect(200)).body;
   const row = board.resources.find((r: { id: string }) => r.id === resourceId);
   const cal = board.calendars.find((c: { id: string }) => c.id === row.calendarId);
   return (cal.closures ?? []) as { start: number; end: number }[];
@@ -185,5 +185,60 @@ describe("a partner firm's own people", () => {
     await scheduler.delete(`/api/absences/${own.id}`).set('X-CSRF-Token', scheduler.csrf).expect(404);
     await otherInstaller.get(`/api/resources/${priya}/absences`).expect(404);
     expect((await partner.get(`/api/resources/${priya}/absences`).expect(200)).body.items).toHaveLength(1);
+  });
+});
+
+describe('closing the whole firm', () => {
+  const close = (as: Agent, body: Record<string, unknown>) =>
+    as.post('/api/firm/closures').set('X-CSRF-Token', as.csrf).send(body);
+
+  it("shades every one of the firm's resources on the board and names the firm's bookings left in those days", async () => {
+    const res = await close(scheduler, { from: '2026-06-10', to: '2026-06-10', reason: 'Works shutdown' }).expect(201);
+    expect(res.body.closure).toMatchObject({ from: '2026-06-10', to: '2026-06-10', reason: 'Works shutdown' });
+    expect(res.body.affected).toContainEqual({
+      bookingId: expect.any(String),
+      startsAt: '2026-06-10T08:00:00.000Z',
+      endsAt: '2026-06-10T10:00:00.000Z',
+      jobReference: 'AW-301',
+      stageName: 'Fill',
+    });
+    // Priya is Brightspark's, not Tideway's: her booking that day is not Tideway's to move for this.
+    expect(res.body.affected.map((b: { startsAt: string }) => b.startsAt)).not.toContain('2026-06-10T12:00:00.000Z');
+    const day = { start: Date.UTC(2026, 5, 9, 23), end: Date.UTC(2026, 5, 10, 23) };
+    for (const name of ['Crew Otter', 'Crew Heron', 'Tracked dumper'])
+      expect(await closuresOf(scheduler, await idOf(ctx.knex, 'resources', { name })), name).toContainEqual(day);
+    expect((await scheduler.get('/api/firm/closures').expect(200)).body.items).toEqual([res.body.closure]);
+    // Another installer's board is not closed by it.
+    expect(
+      await closuresOf(otherInstaller, await idOf(ctx.knex, 'resources', { name: 'Moorview crew' })),
+    ).not.toContainEqual(day);
+  });
+
+  it('opens the firm again on every calendar, and another firm cannot take it off', async () => {
+    const [closure] = (await scheduler.get('/api/firm/closures').expect(200)).body.items;
+    await otherInstaller
+      .delete(`/api/firm/closures/${closure.id}`)
+      .set('X-CSRF-Token', otherInstaller.csrf)
+      .expect(404);
+    await partner.delete(`/api/firm/closures/${closure.id}`).set('X-CSRF-Token', partner.csrf).expect(404);
+    await scheduler.delete(`/api/firm/closures/${closure.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+    expect((await scheduler.get('/api/firm/closures').expect(200)).body.items).toEqual([]);
+    expect(await closuresOf(scheduler, otter)).not.toContainEqual({
+      start: Date.UTC(2026, 5, 9, 23),
+      end: Date.UTC(2026, 5, 10, 23),
+    });
+  });
+
+  it("of a partner firm closes its people on each installer's board, on each of its calendars", async () => {
+    await close(partner, { from: '2026-06-16', to: '2026-06-17', reason: 'Works shutdown' }).expect(201);
+    // Priya works to the electricians' calendar, Tom to the standard week: both are closed.
+    for (const name of ['Priya Nair', 'Tom Ashworth'])
+      expect(
+        await closuresOf(scheduler, await idOf(ctx.knex, 'resources', { name }), {
+          from: '2026-06-15T00:00:00Z',
+          to: '2026-06-22T00:00:00Z',
+        }),
+        name,
+      ).toContainEqual({ start: Date.UTC(2026, 5, 15, 23), end: Date.UTC(2026, 5, 17, 23) });
   });
 });

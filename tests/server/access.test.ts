@@ -19,7 +19,7 @@ let ctx: TestContext;
 const agents = new Map<Role, Agent>();
 
 /** The kinds of id routes take, by the path they sit under. */
-type IdKind = 'job' | 'stage' | 'booking' | 'file' | 'person' | 'hire' | 'resource' | 'absence';
+type IdKind = 'job' | 'stage' | 'booking' | 'file' | 'person' | 'hire' | 'resource' | 'absence' | 'closure';
 type Reach = 'office' | 'crew' | 'partner';
 const reachOfRole = (role: Role): Reach => (role === 'crew' ? 'crew' : role === 'partner' ? 'partner' : 'office');
 
@@ -111,6 +111,28 @@ beforeAll(async () => {
     tom: await away(tom),
     gareth: await away(gareth),
   };
+  // A works shutdown of each firm, on the firm's first calendar (how closures are listed).
+  const closed = async (firm: string) =>
+    first(
+      k('calendar_exceptions')
+        .insert({
+          calendar_id: k('calendars')
+            .where('firm_id', await idOf(k, 'firms', { name: firm }))
+            .orderBy('id')
+            .first('id'),
+          starts_at: new Date('2026-12-24T00:00:00Z'),
+          ends_at: new Date('2026-12-29T00:00:00Z'),
+          reason: 'Works shutdown',
+        })
+        .returning('id')
+        .then((rows) => rows[0]),
+    );
+  const closure = {
+    tideway: await closed('Tideway Hot Tubs'),
+    moorview: await closed('Moorview Spas'),
+    brightspark: await closed('Brightspark Electrical'),
+    northgate: await closed('Northgate Electrical'),
+  };
 
   // No file of Tideway's exists: the own-id pass below only checks a write's access rule (never a 404).
   const noFile = '999999999';
@@ -124,6 +146,7 @@ beforeAll(async () => {
       hire: twHire,
       resource: otter,
       absence: absence.tideway,
+      closure: closure.tideway,
     },
     crew: {
       job: String(heron.jobId),
@@ -134,6 +157,7 @@ beforeAll(async () => {
       hire: twHire,
       resource: otter,
       absence: absence.tideway,
+      closure: closure.tideway,
     },
     partner: {
       job: String(slot.jobId),
@@ -144,6 +168,7 @@ beforeAll(async () => {
       hire: twHire,
       resource: tom,
       absence: absence.tom,
+      closure: closure.brightspark,
     },
   };
   const theirs = {
@@ -155,11 +180,19 @@ beforeAll(async () => {
     hire: String(mvHire.id),
     resource: mvCrew,
     absence: absence.moorview,
+    closure: closure.moorview,
   };
   other = {
     office: theirs,
     crew: theirs,
-    partner: { ...theirs, booking: String(crane.id), person: gareth, resource: gareth, absence: absence.gareth },
+    partner: {
+      ...theirs,
+      booking: String(crane.id),
+      person: gareth,
+      resource: gareth,
+      absence: absence.gareth,
+      closure: closure.northgate,
+    },
   };
 });
 afterAll(async () => {
@@ -239,6 +272,7 @@ function idKindOf(path: string): IdKind | null {
     ['/api/hire-periods/', 'hire'],
     ['/api/resources/', 'resource'],
     ['/api/absences/', 'absence'],
+    ['/api/firm/closures/', 'closure'],
   ];
   const found = kinds.find(([prefix]) => path.startsWith(prefix));
   if (!found) throw new Error(`the access matrix has no id for ${path}: add its kind to idKindOf`);
@@ -276,6 +310,7 @@ function validBody(
       return { body: { resourceId: ids.person, version: 1 } };
     case 'patch /api/hire-periods/:id':
       return { body: { version: 1, status: 'ended' } };
+    case 'post /api/firm/closures':
     case 'post /api/resources/:id/absences':
       return { body: { from: '2026-09-21', to: '2026-09-21', reason: 'Holiday' } };
     default:
