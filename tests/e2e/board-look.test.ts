@@ -418,6 +418,19 @@ describe("a report's link on the board", () => {
     await reports.waitForURL((u) => !u.search.includes('highlight='));
     await expect.poll(() => reports.locator('.fc-event.wl-pointed').count()).toBe(0);
     expect(await notice.count()).toBe(0);
+
+    // In a week the two sides are narrow chips with ⚠ beside ✎: the job's number is still whole
+    // (a marked chip leaves out the firm's prefix, as a day's column does).
+    await reports.goto(`${app.url}/board?view=week&date=2026-06-25`);
+    await expect
+      .poll(() => reports.locator('.fc-event .wl-chip--marked').count(), { timeout: 15_000 })
+      .toBeGreaterThan(1);
+    const cutRefs = await reports.$$eval('.fc-event.wl-booking .wl-chip__ref', (els) =>
+      els
+        .filter((el) => el.scrollWidth > el.clientWidth + 1)
+        .map((el) => el.closest('.fc-event')!.getAttribute('title')),
+    );
+    expect(cutRefs).toEqual([]);
   }, 90_000);
 
   it("draws a hire period as a band on the machine's row, and says so", async () => {

@@ -135,7 +135,9 @@ function span(className: string, text?: string): HTMLSpanElement {
  * so the CSS can lay them out on one line, or three, or two in a day's column.
  */
 export function chipNodes(props: BookingProps): HTMLElement {
-  const chip = span(`wl-chip${props.elsewhere ? ' wl-chip--elsewhere' : ''}`);
+  const chip = span(
+    `wl-chip${props.elsewhere ? ' wl-chip--elsewhere' : props.markers.length ? ' wl-chip--marked' : ''}`,
+  );
   if (props.elsewhere) {
     chip.textContent = props.stageName;
     return chip;
