@@ -25,8 +25,11 @@ export const PERMISSIONS = {
   'bookings:read': OFFICE,
   /** The manager fixes what the reports find (a hire clash, idle hire) on the board. */
   'bookings:write': ['owner', 'scheduler', 'manager'],
-  /** Time away of the firm's own resources (holidays, sickness, a machine off the road); a partner firm marks its own. */
-  'absences:write': ['owner', 'scheduler', 'manager', 'partner'],
+  /**
+   * The firm's own crews, people and machines: add one, take one off the books, mark time away
+   * (holidays, sickness, a machine off the road) or close the firm for a few days; a partner firm its own.
+   */
+  'resources:write': ['owner', 'scheduler', 'manager', 'partner'],
   /** A partner firm's coordinator answers the requests for its own resources. */
   'bookings:answer': ['partner'],
   /** Crew mark their own bookings on site and done. */

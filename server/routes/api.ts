@@ -17,6 +17,8 @@ import { SwitchFirm } from '../../shared/schemas/session.ts';
 import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
 import { AbsencesService } from '../services/absences.ts';
+import { ResourceBooksService } from '../services/resource-books.ts';
+import { CreateResource } from '../../shared/schemas/resources.ts';
 import { CreateAbsence } from '../../shared/schemas/absences.ts';
 import { BookingsService } from '../services/bookings.ts';
 import type { BookingLimits } from '../services/booking-writes.ts';
@@ -50,6 +52,7 @@ export function apiRoutes(
   const jobs = new JobsService(knex);
   const directory = new DirectoryService();
   const absences = new AbsencesService(knex);
+  const books = new ResourceBooksService(knex, now);
   const bookings = new BookingsService(knex, now, limits);
   const completion = new CompletionService(knex, now);
   const placement = new PlacementService(knex, now, limits);
@@ -115,24 +118,31 @@ export function apiRoutes(
     .get('/api/resources', 'resources:read', async (req, res) => {
       res.json({ items: await directory.resources(req.actor!) });
     })
-    .get('/api/resources/:id/absences', 'absences:write', async (req, res) => {
+    .post('/api/resources', 'resources:write', async (req, res) => {
+      res.status(201).json(await books.add(req.actor!, parse(CreateResource, req.body)));
+    })
+    .delete('/api/resources/:id', 'resources:write', async (req, res) => {
+      await books.retire(req.actor!, parse(IdParams, req.params, 'params').id);
+      res.status(204).end();
+    })
+    .get('/api/resources/:id/absences', 'resources:write', async (req, res) => {
       res.json({ items: await absences.list(req.actor!, parse(IdParams, req.params, 'params').id, now()) });
     })
-    .post('/api/resources/:id/absences', 'absences:write', async (req, res) => {
+    .post('/api/resources/:id/absences', 'resources:write', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
       res.status(201).json(await absences.create(req.actor!, id, parse(CreateAbsence, req.body)));
     })
-    .get('/api/firm/closures', 'absences:write', async (req, res) => {
+    .get('/api/firm/closures', 'resources:write', async (req, res) => {
       res.json({ items: await absences.listClosures(req.actor!, now()) });
     })
-    .post('/api/firm/closures', 'absences:write', async (req, res) => {
+    .post('/api/firm/closures', 'resources:write', async (req, res) => {
       res.status(201).json(await absences.createClosure(req.actor!, parse(CreateAbsence, req.body)));
     })
-    .delete('/api/firm/closures/:id', 'absences:write', async (req, res) => {
+    .delete('/api/firm/closures/:id', 'resources:write', async (req, res) => {
       await absences.removeClosure(req.actor!, parse(IdParams, req.params, 'params').id);
       res.status(204).end();
     })
-    .delete('/api/absences/:id', 'absences:write', async (req, res) => {
+    .delete('/api/absences/:id', 'resources:write', async (req, res) => {
       await absences.remove(req.actor!, parse(IdParams, req.params, 'params').id);
       res.status(204).end();
     })

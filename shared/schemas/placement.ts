@@ -3,7 +3,7 @@ import { Id } from './common.ts';
 import type { AutoPlaceResult, Slot } from '../scheduler/index.ts';
 
 /** A resource kind as stages and resources name it: `excavator`, `install_crew`, `pallet_truck`. */
-const ResourceKind = z
+export const ResourceKind = z
   .string()
   .regex(/^[a-z][a-z0-9_]{0,39}$/, 'must be a resource kind such as excavator or install_crew');
 

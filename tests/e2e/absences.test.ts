@@ -95,4 +95,20 @@ describe('time away on the Resources page', () => {
     await panel.getByText(/No closed days marked/).waitFor();
     expect(await closedRows()).toEqual({ n: '0' });
   });
+  it("adds a crew to the firm's books, and takes it off again after asking", async () => {
+    await page.goto(`${app.url}/resources`);
+    await page.getByRole('button', { name: 'Add a crew, person or machine' }).click();
+    const form = page.getByRole('form', { name: 'Add a crew, person or machine' });
+    await form.getByLabel('Name').fill('Crew Wren');
+    await form.getByLabel('Kind').fill('install crew');
+    await form.getByRole('button', { name: 'Add', exact: true }).click();
+    await page.getByRole('button', { name: 'Time away: Crew Wren' }).click();
+    const row = await app.ctx.knex('resources').where('name', 'Crew Wren').first('kind', 'active');
+    expect(row).toEqual({ kind: 'install_crew', active: true });
+
+    await page.getByRole('button', { name: 'Take Crew Wren off the books…' }).click();
+    await page.getByRole('button', { name: 'Take it off' }).click();
+    await expect.poll(() => page.getByRole('button', { name: 'Time away: Crew Wren' }).count()).toBe(0);
+    expect((await app.ctx.knex('resources').where('name', 'Crew Wren').first('active')).active).toBe(false);
+  });
 });

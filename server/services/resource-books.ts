@@ -1,0 +1,112 @@
+import type { Knex } from 'knex';
+import type { CreateResource } from '../../shared/schemas/resources.ts';
+import type { AffectedBooking } from '../../shared/schemas/absences.ts';
+import { ConflictError, NotFoundError } from '../errors.ts';
+import { reachOf, type Actor } from './actor.ts';
+import { recordChange } from './audit.ts';
+import { notifyFirmChange } from './board-stream.ts';
+
+/** A resource as the Resources page lists it (the shape of GET /api/resources). */
+export interface ResourceListed {
+  id: string;
+  name: string;
+  category: 'crew' | 'person' | 'machine';
+  kind: string;
+  firmId: string;
+  firmName: string;
+  firmKind: string;
+  ownership: 'owned' | 'hired';
+}
+
+/**
+ * The firm's own books of crews, people and machines: a new one added, an old one taken off (kept,
+ * with its history, but no longer shown or booked). Only the firm that owns a resource changes it;
+ * another firm's is 404, as if it did not exist.
+ */
+export class ResourceBooksService {
+  constructor(
+    private readonly knex: Knex,
+    private readonly now: () => number,
+  ) {}
+
+  async add(actor: Actor, input: CreateResource): Promise<ResourceListed> {
+    if (reachOf(actor) === 'crew') throw new NotFoundError('firm');
+    return this.knex.transaction(async (trx) => {
+      const firm = (await trx('firms').where('id', actor.firmId).first('name', 'kind')) as {
+        name: string;
+        kind: string;
+      };
+      const calendar = (await trx('calendars').where('firm_id', actor.firmId).orderBy('id').first('id')) as
+        { id: string } | undefined;
+      const [row] = (await trx('resources')
+        .insert({
+          firm_id: actor.firmId,
+          name: input.name,
+          category: input.category,
+          kind: input.kind,
+          ownership: input.ownership,
+          phone: input.phone ?? null,
+          calendar_id: calendar?.id ?? null,
+        })
+        .returning(['id', 'name', 'category', 'kind', 'ownership'])) as Omit<
+        ResourceListed,
+        'firmId' | 'firmName' | 'firmKind'
+      >[];
+      const listed: ResourceListed = {
+        ...row!,
+        id: String(row!.id),
+        firmId: actor.firmId,
+        firmName: firm.name,
+        firmKind: firm.kind,
+      };
+      await recordChange(trx, actor, 'resource', listed.id, 'create', null, listed);
+      await notifyFirmChange(trx, actor.firmId);
+      return listed;
+    });
+  }
+
+  /**
+   * Takes a resource off the firm's books. Refused (409, naming them) while it has bookings from
+   * now on that stand: those are moved or taken off the board first, so no booking loses its crew.
+   */
+  async retire(actor: Actor, resourceId: string): Promise<void> {
+    await this.knex.transaction(async (trx) => {
+      const r = (await trx('resources')
+        .where({ id: resourceId, firm_id: actor.firmId, active: true })
+        .forUpdate()
+        .first('id', 'name')) as { id: string; name: string } | undefined;
+      if (!r || reachOf(actor) === 'crew') throw new NotFoundError('resource');
+      const ahead = (await trx('bookings as b')
+        .join('stages as s', 's.id', 'b.stage_id')
+        .join('jobs as j', 'j.id', 's.job_id')
+        .where('b.resource_id', r.id)
+        .whereNotIn('b.state', ['declined', 'done'])
+        .where('b.ends_at', '>', new Date(this.now()))
+        .orderBy(['b.starts_at', 'b.id'])
+        .select('b.id', 'b.starts_at', 'b.ends_at', 'j.firm_id', 'j.reference', 's.name')) as {
+        id: string;
+        startsAt: Date;
+        endsAt: Date;
+        firmId: string;
+        reference: string;
+        name: string;
+      }[];
+      if (ahead.length) {
+        const bookings: AffectedBooking[] = ahead.map((b) => ({
+          bookingId: String(b.id),
+          startsAt: b.startsAt.toISOString(),
+          endsAt: b.endsAt.toISOString(),
+          jobReference: String(b.firmId) === actor.firmId ? b.reference : null,
+          stageName: String(b.firmId) === actor.firmId ? b.name : null,
+        }));
+        throw new ConflictError(
+          `${r.name} has ${ahead.length === 1 ? 'a booking' : `${ahead.length} bookings`} from now on: move ${ahead.length === 1 ? 'it' : 'them'} to someone else or take ${ahead.length === 1 ? 'it' : 'them'} off the board first.`,
+          { code: 'resource-booked', bookings },
+        );
+      }
+      await trx('resources').where('id', r.id).update({ active: false });
+      await recordChange(trx, actor, 'resource', String(r.id), 'update', { active: true }, { active: false });
+      await notifyFirmChange(trx, actor.firmId);
+    });
+  }
+}

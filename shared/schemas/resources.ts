@@ -1,0 +1,30 @@
+import { z } from 'zod';
+import { oneLineText } from './common.ts';
+import { ResourceKind } from './placement.ts';
+
+export const RESOURCE_CATEGORIES = ['crew', 'person', 'machine'] as const;
+
+/**
+ * The kinds stages ask for, as the add form offers them by category (the stage templates' own
+ * kinds; any other may be typed, as long as a stage asks for it by the same word).
+ */
+export const USUAL_RESOURCE_KINDS = {
+  crew: ['install_crew', 'groundworks_crew'],
+  person: ['electrician', 'lift_planner', 'surveyor'],
+  machine: ['excavator', 'dumper', 'pallet_truck', 'rollers', 'crane', 'lorry', 'spoil_removal'],
+} as const satisfies Record<(typeof RESOURCE_CATEGORIES)[number], readonly string[]>;
+
+/**
+ * POST /api/resources: a crew, person or machine of the caller's own firm, booked from then on.
+ * It works the firm's standard week (its first working calendar).
+ */
+export const CreateResource = z
+  .object({
+    name: oneLineText(80).min(1, 'is required'),
+    category: z.enum(RESOURCE_CATEGORIES, { message: 'must be a crew, a person or a machine' }),
+    kind: ResourceKind,
+    ownership: z.enum(['owned', 'hired'], { message: 'must be owned or hired' }).default('owned'),
+    phone: oneLineText(40).optional(),
+  })
+  .strict();
+export type CreateResource = z.infer<typeof CreateResource>;

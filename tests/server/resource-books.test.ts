@@ -1,0 +1,115 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+
+/*
+ * The firm's own books of crews, people and machines: Tideway (the demo installer) adds Crew Wren
+ * and takes it off again; Brightspark (a partner firm) adds an electrician of its own. The test's
+ * today is Mon 1 Jun 2026; Crew Heron is booked through June in the demo.
+ */
+let ctx: TestContext;
+let scheduler: Agent;
+let partner: Agent;
+let otherInstaller: Agent;
+
+const WEEK = { from: '2026-06-01T00:00:00Z', to: '2026-06-08T00:00:00Z' };
+
+beforeAll(async () => {
+  ctx = await startTestApp();
+  scheduler = await signIn(ctx, account('scheduler').email);
+  partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
+  otherInstaller = await signIn(ctx, account('scheduler', 'Moorview Spas').email);
+}, 60_000);
+afterAll(async () => {
+  await ctx?.close();
+});
+
+const add = (as: Agent, body: Record<string, unknown>) =>
+  as.post('/api/resources').set('X-CSRF-Token', as.csrf).send(body);
+const retire = (as: Agent, id: string) => as.delete(`/api/resources/${id}`).set('X-CSRF-Token', as.csrf);
+const boardRows = async (as: Agent) =>
+  ((await as.get('/api/board').query(WEEK).expect(200)).body.resources as { id: string; name: string }[]).map(
+    (r) => r.name,
+  );
+
+describe("adding to the firm's books", () => {
+  it('adds a crew that the Resources page and the board show at once, on the firm’s standard week', async () => {
+    const res = await add(scheduler, { name: 'Crew Wren', category: 'crew', kind: 'install_crew' }).expect(201);
+    expect(res.body).toMatchObject({
+      name: 'Crew Wren',
+      category: 'crew',
+      kind: 'install_crew',
+      ownership: 'owned',
+      firmName: 'Tideway Hot Tubs',
+    });
+    const listed = (await scheduler.get('/api/resources').expect(200)).body.items.map((r: { name: string }) => r.name);
+    expect(listed).toContain('Crew Wren');
+    expect(await boardRows(scheduler)).toContain('Crew Wren');
+    const row = await ctx.knex('resources').where('id', res.body.id).first('calendar_id', 'firm_id');
+    const standard = await ctx.knex('calendars').where('firm_id', row.firmId).orderBy('id').first('id');
+    expect(String(row.calendarId)).toBe(String(standard.id));
+    expect(await ctx.knex('audit_log').where({ entity: 'resource', entity_id: res.body.id }).pluck('action')).toEqual([
+      'create',
+    ]);
+  });
+
+  it('refuses a name the firm already uses, and bad input, naming the field, keeping nothing', async () => {
+    const taken = await add(scheduler, { name: 'Crew Heron', category: 'crew', kind: 'install_crew' }).expect(409);
+    expect(taken.body.errors).toEqual([{ field: 'name', message: 'is already used by another resource' }]);
+    const cases: [Record<string, unknown>, string][] = [
+      [{ name: '', category: 'crew', kind: 'install_crew' }, 'name'],
+      [{ name: 'Crew Lark', category: 'van', kind: 'install_crew' }, 'category'],
+      [{ name: 'Crew Lark', category: 'crew', kind: 'Install crew!' }, 'kind'],
+      [{ name: 'Crew\u0000Lark', category: 'crew', kind: 'install_crew' }, 'name'],
+      [{ name: 'Crew Lark', category: 'crew', kind: 'install_crew', firmId: '1' }, 'firmId'],
+    ];
+    for (const [body, field] of cases) {
+      const res = await add(scheduler, body).expect(400);
+      expect(res.headers['content-type']).toContain('application/problem+json');
+      expect(
+        res.body.errors.map((e: { field: string }) => e.field),
+        JSON.stringify(body),
+      ).toEqual([field]);
+    }
+    expect(await ctx.knex('resources').where('name', 'like', 'Crew%Lark').first()).toBeUndefined();
+  });
+
+  it("lets a partner firm add its own electrician, whom the installer's board then shows", async () => {
+    await add(partner, { name: 'Ada Quill', category: 'person', kind: 'electrician', phone: '07700 900777' }).expect(
+      201,
+    );
+    expect(await boardRows(scheduler)).toContain('Ada Quill');
+    // Moorview works with Brightspark too (it sees Ada), but never sees Tideway's new crew.
+    expect(await boardRows(otherInstaller)).toContain('Ada Quill');
+    expect(await boardRows(otherInstaller)).not.toContain('Crew Wren');
+  });
+});
+
+describe("taking a resource off the firm's books", () => {
+  it('is refused while it still has bookings from now on, naming them, and changes nothing', async () => {
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const res = await retire(scheduler, heron).expect(409);
+    expect(res.body.code).toBe('resource-booked');
+    expect(res.body.detail).toMatch(/^Crew Heron has \d+ bookings from now on: move them to someone else/);
+    expect(res.body.bookings.length).toBeGreaterThan(1);
+    expect(res.body.bookings[0]).toEqual({
+      bookingId: expect.any(String),
+      startsAt: expect.any(String),
+      endsAt: expect.any(String),
+      jobReference: expect.stringMatching(/^TW-\d{4}$/),
+      stageName: expect.any(String),
+    });
+    expect((await ctx.knex('resources').where('id', heron).first('active')).active).toBe(true);
+  });
+
+  it('keeps it with its history but shows and books it no more; another firm gets 404', async () => {
+    const wren = await idOf(ctx.knex, 'resources', { name: 'Crew Wren' });
+    await retire(otherInstaller, wren).expect(404);
+    await retire(partner, wren).expect(404);
+    await retire(scheduler, wren).expect(204);
+    expect((await ctx.knex('resources').where('id', wren).first('active')).active).toBe(false);
+    expect(await boardRows(scheduler)).not.toContain('Crew Wren');
+    const listed = (await scheduler.get('/api/resources').expect(200)).body.items.map((r: { name: string }) => r.name);
+    expect(listed).not.toContain('Crew Wren');
+    await retire(scheduler, wren).expect(404);
+  });
+});
