@@ -629,6 +629,26 @@ export interface WriteOutcome<T> {
   warnings: Violation[];
 }
 
+/** Transaction-long advisory locks on `keys`, taken in sorted order (so two writers never deadlock). */
+async function takeLocks(trx: Knex.Transaction, keys: string[]): Promise<void> {
+  if (keys.length === 0) return;
+  await trx.raw(
+    `SELECT pg_advisory_xact_lock(hashtextextended(k, 0)) FROM (SELECT unnest(?::text[]) AS k ORDER BY 1) AS keys`,
+    [[...keys].sort()],
+  );
+}
+
+/**
+ * The lock every booking write takes on each resource it touches, for a change to a resource's own
+ * time (taken off the books, marked away) to wait for such a write, or make it wait, and so see it.
+ */
+export async function lockResources(trx: Knex.Transaction, resourceIds: readonly string[]): Promise<void> {
+  await takeLocks(
+    trx,
+    resourceIds.map((id) => `resource.${id}`),
+  );
+}
+
 /** Which rows a write will touch, known before it starts: their jobs and resources are locked. */
 export interface LockScope {
   bookingIds?: string[];
@@ -710,18 +730,11 @@ export class BookingWriter {
       ...(resourceRows.rows as { resource_id: string }[]).map((r) => String(r.resource_id)),
       ...(scope.resourceIds ?? []).map(String),
     ]);
-    await this.take(
-      trx,
-      [...resourceIds].sort().map((id) => `resource.${id}`),
-    );
+    await lockResources(trx, [...resourceIds]);
   }
 
   private async take(trx: Knex.Transaction, keys: string[]): Promise<void> {
-    if (keys.length === 0) return;
-    await trx.raw(
-      `SELECT pg_advisory_xact_lock(hashtextextended(k, 0)) FROM (SELECT unnest(?::text[]) AS k ORDER BY 1) AS keys`,
-      [keys.sort()],
-    );
+    await takeLocks(trx, keys);
   }
 
   /**

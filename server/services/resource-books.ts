@@ -5,6 +5,7 @@ import { ConflictError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange } from './board-stream.ts';
+import { lockResources } from './booking-writes.ts';
 
 /** A resource as the Resources page lists it (the shape of GET /api/resources). */
 export interface ResourceListed {
@@ -71,6 +72,8 @@ export class ResourceBooksService {
    */
   async retire(actor: Actor, resourceId: string): Promise<void> {
     await this.knex.transaction(async (trx) => {
+      // A booking being written on it meanwhile is either seen below or, once this commits, refused.
+      await lockResources(trx, [resourceId]);
       const r = (await trx('resources')
         .where({ id: resourceId, firm_id: actor.firmId, active: true })
         .forUpdate()

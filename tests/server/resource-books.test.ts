@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { makeJob } from '../helpers/flows.ts';
 
 /*
  * The firm's own books of crews, people and machines: Tideway (the demo installer) adds Crew Wren
@@ -111,5 +112,37 @@ describe("taking a resource off the firm's books", () => {
     const listed = (await scheduler.get('/api/resources').expect(200)).body.items.map((r: { name: string }) => r.name);
     expect(listed).not.toContain('Crew Wren');
     await retire(scheduler, wren).expect(404);
+  });
+
+  it('never leaves a booking on a crew taken off the books at the same moment as it was booked', async () => {
+    // Five crews, each booked and taken off in two requests sent together: whichever goes first, the
+    // other sees it (the booking is refused, or the taking off is).
+    for (let n = 1; n <= 5; n++) {
+      const crew = (
+        await add(scheduler, { name: `Race crew ${n}`, category: 'crew', kind: 'install_crew' }).expect(201)
+      ).body.id as string;
+      const job = await makeJob(ctx.knex, {
+        reference: `RB-${n}`,
+        stages: [{ kind: 'fill', name: 'Fill', minutes: 120, needs: { install_crew: 1 } }],
+        links: [],
+      });
+      const [booked, retired] = await Promise.all([
+        scheduler
+          .post('/api/bookings')
+          .set('X-CSRF-Token', scheduler.csrf)
+          .send({
+            stageId: job.stage.fill,
+            resourceId: crew,
+            startsAt: '2026-06-24T08:00:00Z',
+            endsAt: '2026-06-24T10:00:00Z',
+          }),
+        retire(scheduler, crew),
+      ]);
+      const outcome = `${booked.status}/${retired.status}`;
+      expect(['201/409', '404/204'], outcome).toContain(outcome);
+      const active = (await ctx.knex('resources').where('id', crew).first('active')).active;
+      const standing = await ctx.knex('bookings').where('resource_id', crew).whereNot('state', 'declined');
+      expect(active || standing.length === 0, outcome).toBe(true);
+    }
   });
 });
