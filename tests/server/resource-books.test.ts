@@ -127,15 +127,12 @@ describe("taking a resource off the firm's books", () => {
         links: [],
       });
       const [booked, retired] = await Promise.all([
-        scheduler
-          .post('/api/bookings')
-          .set('X-CSRF-Token', scheduler.csrf)
-          .send({
-            stageId: job.stage.fill,
-            resourceId: crew,
-            startsAt: '2026-06-24T08:00:00Z',
-            endsAt: '2026-06-24T10:00:00Z',
-          }),
+        scheduler.post('/api/bookings').set('X-CSRF-Token', scheduler.csrf).send({
+          stageId: job.stage.fill,
+          resourceId: crew,
+          startsAt: '2026-06-24T08:00:00Z',
+          endsAt: '2026-06-24T10:00:00Z',
+        }),
         retire(scheduler, crew),
       ]);
       const outcome = `${booked.status}/${retired.status}`;
