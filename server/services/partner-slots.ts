@@ -107,7 +107,7 @@ export class PartnerSlotsService {
       endsAt: r.endsAt,
       timeZone: r.timeZone,
     }));
-    const [answers, onSite, supplies, certificates] = await Promise.all([
+    const [answers, onSite, supplies, certificates, away] = await Promise.all([
       latestAnswers(
         this.knex,
         keys.map((k) => k.bookingId),
@@ -121,6 +121,16 @@ export class PartnerSlotsService {
         this.knex,
         actor.firmId,
         keys.map((k) => k.bookingId),
+      ),
+      awayDuring(
+        this.knex,
+        rows.map((r) => ({
+          bookingId: String(r.id),
+          resourceId: String(r.resourceId),
+          resourceName: r.resourceName,
+          startsAt: r.startsAt,
+          endsAt: r.endsAt,
+        })),
       ),
     ]);
     return rows.map((r) => {
@@ -160,6 +170,7 @@ export class PartnerSlotsService {
           wanted: r.stageKind === CERTIFIED_STAGE_KIND && r.state !== 'sent',
           uploaded: certificates.get(String(r.id)) ?? null,
         },
+        away: away.get(String(r.id)) ?? null,
       };
     });
   }
@@ -188,4 +199,43 @@ export class PartnerSlotsService {
     if (!slot) throw new NotFoundError('slot');
     return slot;
   }
+}
+
+/**
+ * The time away of each slot's own person that falls in the slot, in words: the person marked away
+ * (their own absence), or the whole firm closed (on any of its calendars). The partner's own records,
+ * read for its own slots.
+ */
+async function awayDuring(
+  knex: Knex,
+  slots: { bookingId: string; resourceId: string; resourceName: string; startsAt: Date; endsAt: Date }[],
+): Promise<Map<string, string>> {
+  const out = new Map<string, string>();
+  if (slots.length === 0) return out;
+  const { rows } = (await knex.raw(
+    `SELECT r.id AS resource_id, e.resource_id AS own, e.starts_at, e.ends_at, e.reason
+       FROM resources r
+       JOIN calendar_exceptions e
+         ON e.resource_id = r.id OR e.calendar_id IN (SELECT c.id FROM calendars c WHERE c.firm_id = r.firm_id)
+      WHERE r.id = ANY(?::bigint[]) AND e.ends_at > ? AND e.starts_at < ?
+      ORDER BY e.starts_at`,
+    [
+      slots.map((s) => s.resourceId),
+      new Date(Math.min(...slots.map((s) => s.startsAt.getTime()))),
+      new Date(Math.max(...slots.map((s) => s.endsAt.getTime()))),
+    ],
+  )) as { rows: { resource_id: string; own: string | null; starts_at: Date; ends_at: Date; reason: string }[] };
+  for (const s of slots) {
+    const hit = rows.find(
+      (e) => String(e.resource_id) === s.resourceId && e.starts_at < s.endsAt && e.ends_at > s.startsAt,
+    );
+    if (hit)
+      out.set(
+        s.bookingId,
+        hit.own !== null
+          ? `${s.resourceName} is marked away then (${hit.reason})`
+          : `Your firm is closed then (${hit.reason})`,
+      );
+  }
+  return out;
 }

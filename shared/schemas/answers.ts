@@ -120,5 +120,10 @@ export const PartnerSlot = z.object({
   certificate: z
     .object({ wanted: z.boolean(), uploaded: z.object({ name: z.string(), uploadedAt: z.string() }).nullable() })
     .optional(),
+  /**
+   * The firm's own time away that falls in the slot, in words ("Priya Nair is marked away then
+   * (Training)", "Your firm is closed then (Works shutdown)"); null when the slot's person is free.
+   */
+  away: z.string().nullable().optional(),
 });
 export type PartnerSlot = z.infer<typeof PartnerSlot>;

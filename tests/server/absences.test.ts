@@ -186,6 +186,49 @@ describe("a partner firm's own people", () => {
     await otherInstaller.get(`/api/resources/${priya}/absences`).expect(404);
     expect((await partner.get(`/api/resources/${priya}/absences`).expect(200)).body.items).toHaveLength(1);
   });
+
+  it("show on the partner's own slot asked for before the time away, with the reason", async () => {
+    // Installers can't ask for a time the person is away (the engine refuses it): this slot, Thu 18 Jun
+    // 13:00–15:00 BST, was asked for first, and Priya was marked off sick that day afterwards.
+    const job = await makeJob(ctx.knex, {
+      reference: 'AW-302',
+      stages: [{ kind: 'electrical_connect', name: 'Connect and certify', minutes: 120, needs: { electrician: 1 } }],
+      links: [],
+    });
+    const created = await scheduler
+      .post('/api/bookings')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({
+        stageId: job.stage.electrical_connect,
+        resourceId: priya,
+        startsAt: '2026-06-18T12:00:00Z',
+        endsAt: '2026-06-18T14:00:00Z',
+      })
+      .expect(201);
+    const booking = created.body.bookings[0] as { id: string; version: number };
+    await scheduler
+      .post(`/api/bookings/${booking.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: booking.version })
+      .expect(200);
+    const slotsNow = async () =>
+      (await partner.get('/api/partner/slots').query({ from: '2026-06-01T00:00:00Z' }).expect(200)).body.items as {
+        id: string;
+        away: string | null;
+        startsAt: string;
+        resource: { name: string };
+      }[];
+    expect((await slotsNow()).find((x) => x.id === String(booking.id))?.away).toBeNull();
+    await markAway(partner, priya, { from: '2026-06-18', to: '2026-06-18', reason: 'Off sick' }).expect(201);
+    const slots = await slotsNow();
+    expect(slots.find((x) => x.id === String(booking.id))?.away).toBe('Priya Nair is marked away then (Off sick)');
+    // Her slots say so exactly on the days she is away (10 Jun, Training; 18 Jun, Off sick); Tom's never.
+    const awayDays = ['2026-06-10', '2026-06-18'];
+    for (const x of slots)
+      expect(x.away !== null, `${x.resource.name} ${x.startsAt} ${x.away}`).toBe(
+        x.resource.name === 'Priya Nair' && awayDays.includes(x.startsAt.slice(0, 10)),
+      );
+  });
 });
 
 describe('closing the whole firm', () => {
