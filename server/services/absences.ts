@@ -12,6 +12,7 @@ import { NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
+import { bookingOfOwnResource } from './read-policy.ts';
 
 /** Absences shown on a resource: those not over, and those that ended in the last 30 days. */
 const SHOWN_AFTER_DAYS = 30;
@@ -62,42 +63,6 @@ export class AbsencesService {
     };
   }
 
-  /**
-   * Bookings of the resources (not declined, not done) inside [startsAt, endsAt): the actor's own
-   * firm's jobs named, another installer's only their times.
-   */
-  private async bookingsWithin(
-    trx: Knex.Transaction,
-    actor: Actor,
-    resourceIds: string[] | Knex.QueryBuilder,
-    startsAt: Date,
-    endsAt: Date,
-  ): Promise<AffectedBooking[]> {
-    const rows = (await trx('bookings as b')
-      .join('stages as s', 's.id', 'b.stage_id')
-      .join('jobs as j', 'j.id', 's.job_id')
-      .whereIn('b.resource_id', resourceIds)
-      .whereNotIn('b.state', ['declined', 'done'])
-      .where('b.starts_at', '<', endsAt)
-      .where('b.ends_at', '>', startsAt)
-      .orderBy(['b.starts_at', 'b.id'])
-      .select('b.id', 'b.starts_at', 'b.ends_at', 'j.firm_id', 'j.reference', 's.name')) as {
-      id: string;
-      startsAt: Date;
-      endsAt: Date;
-      firmId: string;
-      reference: string;
-      name: string;
-    }[];
-    return rows.map((b) => ({
-      bookingId: String(b.id),
-      startsAt: b.startsAt.toISOString(),
-      endsAt: b.endsAt.toISOString(),
-      jobReference: String(b.firmId) === actor.firmId ? b.reference : null,
-      stageName: String(b.firmId) === actor.firmId ? b.name : null,
-    }));
-  }
-
   async list(actor: Actor, resourceId: string, now: number): Promise<AbsenceView[]> {
     const r = await this.ownResource(actor, resourceId);
     const rows = (await this.knex('calendar_exceptions')
@@ -119,7 +84,7 @@ export class AbsencesService {
       const absence = this.view(r, row!);
       await recordChange(trx, actor, 'absence', absence.id, 'create', null, absence);
       await notifyResourceChange(trx, r.id);
-      const affected = await this.bookingsWithin(trx, actor, [r.id], startsAt, endsAt);
+      const affected = await bookingsWithin(trx, actor, [r.id], startsAt, endsAt);
       return { absence, affected };
     });
   }
@@ -188,7 +153,7 @@ export class AbsencesService {
       const closure = this.closureView(timeZone, first);
       await recordChange(trx, actor, 'closure', closure.id, 'create', null, closure);
       await notifyFirmChange(trx, actor.firmId);
-      const affected = await this.bookingsWithin(
+      const affected = await bookingsWithin(
         trx,
         actor,
         trx('resources').where('firm_id', actor.firmId).select('id'),
@@ -217,4 +182,36 @@ export class AbsencesService {
       await notifyFirmChange(trx, actor.firmId);
     });
   }
+}
+
+/**
+ * Bookings of the resources (not declined, not done) inside [startsAt, endsAt), soonest first, as
+ * the read policy lets the actor hear of them (bookingOfOwnResource).
+ */
+export async function bookingsWithin(
+  trx: Knex.Transaction,
+  actor: Actor,
+  resourceIds: string[] | Knex.QueryBuilder,
+  startsAt: Date,
+  endsAt?: Date,
+): Promise<AffectedBooking[]> {
+  const q = trx('bookings as b')
+    .join('stages as s', 's.id', 'b.stage_id')
+    .join('jobs as j', 'j.id', 's.job_id')
+    .whereIn('b.resource_id', resourceIds)
+    .whereNotIn('b.state', ['declined', 'done'])
+    .where('b.ends_at', '>', startsAt)
+    .orderBy(['b.starts_at', 'b.id'])
+    .select(
+      'b.id',
+      'b.starts_at',
+      'b.ends_at',
+      'b.state',
+      'j.firm_id as job_firm_id',
+      'j.reference',
+      's.name as stage_name',
+    );
+  if (endsAt) q.where('b.starts_at', '<', endsAt);
+  const rows = (await q) as Parameters<typeof bookingOfOwnResource>[1][];
+  return rows.map((b) => bookingOfOwnResource(actor, b)).filter((b): b is AffectedBooking => b !== null);
 }

@@ -33,6 +33,41 @@ export const ELSEWHERE_BLOCKING_STATES = ['sent', 'confirmed', 'on_site', 'done'
 /** The one state every busy-elsewhere placeholder carries, whatever the other installer's is. */
 export const ELSEWHERE_STATE = 'confirmed' as const;
 
+/**
+ * A booking of the reader's own resource, as a list of what time away or taking it off the books
+ * would leave behind: the reader's own firm's job named; another installer's job (a partner's person
+ * booked by them) only its times, and only once the partner was asked (its pencilled plan stays its
+ * own). Null when the reader may not hear of it at all.
+ */
+export function bookingOfOwnResource(
+  actor: Actor,
+  b: {
+    id: string;
+    startsAt: Date;
+    endsAt: Date;
+    state: string;
+    jobFirmId: string;
+    reference: string;
+    stageName: string;
+  },
+): {
+  bookingId: string;
+  startsAt: string;
+  endsAt: string;
+  jobReference: string | null;
+  stageName: string | null;
+} | null {
+  const own = String(b.jobFirmId) === actor.firmId;
+  if (!own && !(PARTNER_VISIBLE_STATES as readonly string[]).includes(b.state)) return null;
+  return {
+    bookingId: String(b.id),
+    startsAt: b.startsAt.toISOString(),
+    endsAt: b.endsAt.toISOString(),
+    jobReference: own ? b.reference : null,
+    stageName: own ? b.stageName : null,
+  };
+}
+
 export function isOffice(actor: Actor): boolean {
   return reachOf(actor) === 'installer-office';
 }

@@ -1,11 +1,11 @@
 import type { Knex } from 'knex';
 import type { CreateResource } from '../../shared/schemas/resources.ts';
-import type { AffectedBooking } from '../../shared/schemas/absences.ts';
 import { ConflictError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange } from './board-stream.ts';
 import { lockResources } from './booking-writes.ts';
+import { bookingsWithin } from './absences.ts';
 
 /** A resource as the Resources page lists it (the shape of GET /api/resources). */
 export interface ResourceListed {
@@ -79,32 +79,11 @@ export class ResourceBooksService {
         .forUpdate()
         .first('id', 'name')) as { id: string; name: string } | undefined;
       if (!r || reachOf(actor) === 'crew') throw new NotFoundError('resource');
-      const ahead = (await trx('bookings as b')
-        .join('stages as s', 's.id', 'b.stage_id')
-        .join('jobs as j', 'j.id', 's.job_id')
-        .where('b.resource_id', r.id)
-        .whereNotIn('b.state', ['declined', 'done'])
-        .where('b.ends_at', '>', new Date(this.now()))
-        .orderBy(['b.starts_at', 'b.id'])
-        .select('b.id', 'b.starts_at', 'b.ends_at', 'j.firm_id', 'j.reference', 's.name')) as {
-        id: string;
-        startsAt: Date;
-        endsAt: Date;
-        firmId: string;
-        reference: string;
-        name: string;
-      }[];
+      const ahead = await bookingsWithin(trx, actor, [r.id], new Date(this.now()));
       if (ahead.length) {
-        const bookings: AffectedBooking[] = ahead.map((b) => ({
-          bookingId: String(b.id),
-          startsAt: b.startsAt.toISOString(),
-          endsAt: b.endsAt.toISOString(),
-          jobReference: String(b.firmId) === actor.firmId ? b.reference : null,
-          stageName: String(b.firmId) === actor.firmId ? b.name : null,
-        }));
         throw new ConflictError(
           `${r.name} has ${ahead.length === 1 ? 'a booking' : `${ahead.length} bookings`} from now on: move ${ahead.length === 1 ? 'it' : 'them'} to someone else or take ${ahead.length === 1 ? 'it' : 'them'} off the board first.`,
-          { code: 'resource-booked', bookings },
+          { code: 'resource-booked', bookings: ahead },
         );
       }
       await trx('resources').where('id', r.id).update({ active: false });

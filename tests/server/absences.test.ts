@@ -148,6 +148,29 @@ describe('marking a crew away', () => {
 
 describe("a partner firm's own people", () => {
   it("are marked away by their own firm, which the installer's open board hears of and then shades, naming no installer's job to them", async () => {
+    const other = await makeJob(ctx.knex, {
+      reference: 'AW-303',
+      stages: [{ kind: 'electrical_connect', name: 'Connect and certify', minutes: 60, needs: { electrician: 1 } }],
+      links: [],
+    });
+    const made = (
+      await scheduler
+        .post('/api/bookings')
+        .set('X-CSRF-Token', scheduler.csrf)
+        .send({
+          stageId: other.stage.electrical_connect,
+          resourceId: priya,
+          startsAt: '2026-06-10T07:00:00Z',
+          endsAt: '2026-06-10T08:00:00Z',
+        })
+        .expect(201)
+    ).body.bookings[0] as { id: string; version: number };
+    await scheduler
+      .post(`/api/bookings/${made.id}/publish`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: made.version })
+      .expect(200);
+    const asked = String(made.id);
     const server = ctx.waterline.app.listen(0, '127.0.0.1');
     await new Promise((r) => server.once('listening', r));
     const board = await openBoardStream(scheduler, (server.address() as AddressInfo).port);
@@ -162,11 +185,13 @@ describe("a partner firm's own people", () => {
       board.close();
       await new Promise((r) => server.close(r));
     }
+    // What Tideway has asked her for that day (AW-303, 08:00 BST) is listed by its times only; its
+    // pencilled plan for her (AW-301, 13:00 BST) is its own and not listed to her firm at all.
     expect(res.body.affected).toEqual([
       {
-        bookingId: expect.any(String),
-        startsAt: '2026-06-10T12:00:00.000Z',
-        endsAt: '2026-06-10T14:00:00.000Z',
+        bookingId: asked,
+        startsAt: '2026-06-10T07:00:00.000Z',
+        endsAt: '2026-06-10T08:00:00.000Z',
         jobReference: null,
         stageName: null,
       },
