@@ -42,7 +42,7 @@ export function partnerRoutes(table: RouteTable, { knex, config, now = Date.now 
     })
     .get('/api/partner/slots', 'slots:read', async (req, res) => {
       const { from } = parse(SlotQuery, req.query, 'query');
-      res.json({ items: await slots.list(req.actor!, from ? new Date(from) : new Date()) });
+      res.json({ items: await slots.list(req.actor!, new Date(from ?? now())) });
     })
     .post('/api/partner/slots/:id/answer', 'bookings:answer', async (req, res) => {
       const slotId = id(req.params);

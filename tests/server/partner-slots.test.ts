@@ -67,6 +67,15 @@ describe("a partner's own slots", () => {
     expect(items.length).toBeGreaterThan(1);
   });
 
+  it("lists from the app's own today when the page gives no date (a slot of this week is not hidden by the server's clock)", async () => {
+    // The test app's today is Mon 1 Jun 2026 (TEST_TODAY), months before the machine's clock: a slot
+    // of that week is upcoming to the app, and only the app's clock may decide so.
+    const items = (await partner.get('/api/partner/slots').expect(200)).body.items as PartnerSlot[];
+    const startsOf = items.map((i) => Date.parse(i.startsAt));
+    expect(startsOf.some((t) => t < Date.parse('2026-07-01T00:00:00Z'))).toBe(true);
+    expect(Math.min(...items.map((i) => Date.parse(i.endsAt)))).toBeGreaterThan(Date.parse('2026-06-01T00:00:00Z'));
+  });
+
   it('tells the crane firm which way the unit faces on its lift, as the survey settled it (and nothing to the electrician)', async () => {
     const crane = await signIn(ctx, account('partner', 'Fellside Crane Hire').email);
     const lift = await pencilIn(ctx.knex, {
