@@ -13,6 +13,8 @@ import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
 import { bookingOfOwnResource } from './read-policy.ts';
+import { ownResourceIds } from '../models/base.ts';
+import type { MyWorkAway } from '../../shared/schemas/my-work.ts';
 
 /** Absences shown on a resource: those not over, and those that ended in the last 30 days. */
 const SHOWN_AFTER_DAYS = 30;
@@ -104,6 +106,45 @@ export class AbsencesService {
       await recordChange(trx, actor, 'absence', String(e.id), 'delete', this.view(r, e), null);
       await notifyResourceChange(trx, r.id);
     });
+  }
+
+  /**
+   * The reader's own time away over [from, to), in their firm's zone: absences of the resources
+   * they work as (their person row, their crews), and the days their firm is closed, told once
+   * though a closure is kept on each of the firm's calendars. Crew read this on My work.
+   */
+  async ownAwayDuring(actor: Actor, from: Date, to: Date, timeZone: string): Promise<MyWorkAway[]> {
+    const rows = (await this.knex('calendar_exceptions as e')
+      .leftJoin('resources as r', 'r.id', 'e.resource_id')
+      .where((q) =>
+        q
+          .whereIn('e.resource_id', ownResourceIds(this.knex, actor))
+          .orWhereIn('e.calendar_id', this.knex('calendars').where('firm_id', actor.firmId).select('id')),
+      )
+      .where('e.ends_at', '>', from)
+      .where('e.starts_at', '<', to)
+      .orderBy([{ column: 'e.starts_at' }, { column: 'r.name' }])
+      .select('r.name as resource_name', 'e.starts_at', 'e.ends_at', 'e.reason')) as {
+      resourceName: string | null;
+      startsAt: Date;
+      endsAt: Date;
+      reason: string;
+    }[];
+    const seen = new Set<string>();
+    const out: MyWorkAway[] = [];
+    for (const e of rows) {
+      const away: MyWorkAway = {
+        resourceName: e.resourceName ?? null,
+        from: localDateOf(e.startsAt.getTime(), timeZone),
+        to: localDateOf(e.endsAt.getTime() - 1, timeZone),
+        reason: e.reason,
+      };
+      const key = JSON.stringify(away);
+      if (seen.has(key)) continue;
+      seen.add(key);
+      out.push(away);
+    }
+    return out;
   }
 
   /** The firm's time zone and its calendars, the first being the one closures are listed from. */

@@ -8,6 +8,7 @@ import { addDays, endOfLocalDay, localDateOf, startOfLocalDay, todayIn } from '.
 import { Booking, Firm } from '../models/index.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
+import { AbsencesService } from './absences.ts';
 import { bookingDuring } from './ranges.ts';
 import {
   alongsideFor,
@@ -238,11 +239,15 @@ export class DaySheetsService {
       : query.from
         ? new Date(from.getTime() + query.days * DAY_MS)
         : new Date(startOfLocalDay(addDays(today, query.days), timeZone));
-    const visits = await this.visits(actor, from, to);
+    const [visits, away] = await Promise.all([
+      this.visits(actor, from, to),
+      new AbsencesService(this.knex).ownAwayDuring(actor, from, to, timeZone),
+    ]);
     const dayOf = (iso: string) => localDateOf(Date.parse(iso), timeZone);
     return {
       today,
       timeZone,
+      away,
       items: visits.map(({ ownResource, ...v }) => {
         const days = { first: dayOf(v.startsAt), last: dayOf(new Date(Date.parse(v.endsAt) - 1).toISOString()) };
         return { ...v, day: days.first, actions: progressActions(v.state, ownResource, days, today) };

@@ -44,9 +44,23 @@ export interface MyWorkItem extends DaySheetVisit {
   actions: ProgressAction[];
 }
 
+/**
+ * Time away that falls in the range: one of the reader's own resources marked away (their person
+ * row or a crew they belong to), or the whole firm closed (resourceName null).
+ */
+export interface MyWorkAway {
+  resourceName: string | null;
+  /** First and last day away, local dates in the firm's zone, `to` included. */
+  from: string;
+  to: string;
+  reason: string;
+}
+
 export interface MyWorkList {
   /** Today in the firm's zone (YYYY-MM-DD), by the server's clock. */
   today: string;
   timeZone: string;
   items: MyWorkItem[];
+  /** The reader's time away and the firm's closed days in the range, first day first. */
+  away: MyWorkAway[];
 }

@@ -1,6 +1,6 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { effectScope } from 'vue';
-import { dayLabel, groupByDay, telHref } from '@/components/my-work/my-work';
+import { awayWords, dayLabel, groupByDay, telHref } from '@/components/my-work/my-work';
 import { useMyWork } from '@/composables/useMyWork';
 import MyWorkCard from '@/components/my-work/MyWorkCard.vue';
 import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
@@ -44,6 +44,7 @@ function item(id: string, day: string, startsAt: string, over: Partial<MyWorkIte
 describe('the day list', () => {
   it('puts today first, counts work still running from yesterday as today, and names the days', () => {
     const list: MyWorkList = {
+      away: [],
       today: '2026-06-01',
       timeZone: 'Europe/London',
       items: [
@@ -59,6 +60,29 @@ describe('the day list', () => {
       ['Wednesday 3 June', ['3']],
     ]);
     expect(dayLabel('2026-06-08', '2026-06-01')).toBe('Monday 8 June');
+  });
+
+  it("puts the reader's time away on each day it covers, in words", () => {
+    const list: MyWorkList = {
+      away: [
+        { resourceName: 'Crew Heron', from: '2026-06-02', to: '2026-06-03', reason: 'Holiday' },
+        { resourceName: null, from: '2026-06-03', to: '2026-06-03', reason: 'Training day' },
+      ],
+      today: '2026-06-01',
+      timeZone: 'Europe/London',
+      items: [
+        item('1', '2026-06-01', '2026-06-01T07:00:00Z'),
+        item('2', '2026-06-02', '2026-06-02T07:00:00Z'),
+        item('3', '2026-06-03', '2026-06-03T07:00:00Z'),
+        item('4', '2026-06-04', '2026-06-04T07:00:00Z'),
+      ],
+    };
+    expect(groupByDay(list).map((g) => [g.day, g.away.map(awayWords)])).toEqual([
+      ['2026-06-01', []],
+      ['2026-06-02', ['Crew Heron is marked away (Holiday)']],
+      ['2026-06-03', ['Crew Heron is marked away (Holiday)', 'The firm is closed (Training day)']],
+      ['2026-06-04', []],
+    ]);
   });
 
   it('dials a phone number without its spaces', () => {
@@ -123,6 +147,7 @@ describe('a card', () => {
 
 describe('marking progress', () => {
   const list: MyWorkList = {
+    away: [],
     today: '2026-06-01',
     timeZone: 'Europe/London',
     items: [item('41', '2026-06-01', '2026-06-01T07:00:00Z', { actions: ['arrive'] })],

@@ -223,6 +223,31 @@ describe('marking progress, and taking it back, through the guarded writer', () 
     ]);
   });
 
+  it("lists the reader's own days away and the firm's closed days in the fortnight, and no one else's", async () => {
+    const scheduler = await signIn(ctx, account('scheduler').email);
+    const mark = (path: string, body: object) =>
+      scheduler.post(path).set('X-CSRF-Token', scheduler.csrf).send(body).expect(201);
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const otter = await idOf(ctx.knex, 'resources', { name: 'Crew Otter' });
+    await mark(`/api/resources/${heron}/absences`, { from: '2026-06-03', to: '2026-06-04', reason: 'Holiday' });
+    await mark(`/api/resources/${otter}/absences`, { from: '2026-06-02', to: '2026-06-02', reason: 'Training' });
+    await mark('/api/firm/closures', { from: '2026-06-12', to: '2026-06-12', reason: 'Training day' });
+    await mark('/api/firm/closures', { from: '2026-06-22', to: '2026-06-23', reason: 'Works shutdown' });
+    try {
+      // Connor works as Crew Heron (not Otter); the shutdown of 22 Jun is past the fortnight.
+      expect((await myWork()).away).toEqual([
+        { resourceName: 'Crew Heron', from: '2026-06-03', to: '2026-06-04', reason: 'Holiday' },
+        { resourceName: null, from: '2026-06-12', to: '2026-06-12', reason: 'Training day' },
+      ]);
+    } finally {
+      await ctx
+        .knex('calendar_exceptions')
+        .whereIn('reason', ['Holiday', 'Training', 'Training day', 'Works shutdown'])
+        .where('starts_at', '>=', '2026-06-01')
+        .delete();
+    }
+  });
+
   it('refuses "On site" days ahead and "Done" before "On site" (409, in plain words)', async () => {
     const early = await post(thursday, { action: 'arrive', version: await versionOf(thursday) }).expect(409);
     expect(early.body.detail).toBe('This booking is on Thu 4 Jun 08:00: it can be marked on site on that day.');

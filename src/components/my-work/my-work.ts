@@ -2,13 +2,15 @@
  * My work's pure parts: the crew's bookings grouped by day with today first, the words of each
  * progress step, and which step takes which back. Tested without a browser.
  */
-import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
+import type { MyWorkAway, MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
 import type { ProgressAction } from '@shared/schemas/bookings';
 
 export interface DayGroup {
   day: string;
   label: string;
   items: MyWorkItem[];
+  /** The reader's time away on that day (their crew or themselves marked away, or the firm closed). */
+  away: MyWorkAway[];
 }
 
 const nextDay = (iso: string) => new Date(Date.parse(`${iso}T12:00:00Z`) + 86_400_000).toISOString().slice(0, 10);
@@ -41,7 +43,26 @@ export function groupByDay(list: MyWorkList): DayGroup[] {
   }
   return [...groups.entries()]
     .sort(([a], [b]) => a.localeCompare(b))
-    .map(([day, items]) => ({ day, label: dayLabel(day, list.today), items }));
+    .map(([day, items]) => ({ day, label: dayLabel(day, list.today), items, away: awayOn(list.away, day) }));
+}
+
+/**
+ * The time away that covers a local day (dates compare as text).
+ * @example awayOn([{ resourceName: 'Crew Heron', from: '2026-06-03', to: '2026-06-04', reason: 'Holiday' }], '2026-06-04').length // 1
+ */
+export function awayOn(away: readonly MyWorkAway[], day: string): MyWorkAway[] {
+  return away.filter((a) => a.from <= day && day <= a.to);
+}
+
+/**
+ * Who is away, and why, in a few words.
+ * @example awayWords({ resourceName: 'Crew Heron', from: '2026-06-03', to: '2026-06-04', reason: 'Holiday' })
+ * // 'Crew Heron is marked away (Holiday)'
+ */
+export function awayWords(a: MyWorkAway): string {
+  return a.resourceName === null
+    ? `The firm is closed (${a.reason})`
+    : `${a.resourceName} is marked away (${a.reason})`;
 }
 
 /** The words around each progress step: the button, the question before it and what is said after. */
