@@ -103,7 +103,7 @@ export const CONSTRAINT_REFUSALS: Record<string, PlainRefusal> = {
     field: 'resourceId',
     message: 'already has this stage',
   },
-  resources_firm_id_name_unique: {
+  resources_firm_id_name_active_unique: {
     detail: 'Another resource of your firm already has this name.',
     field: 'name',
     message: 'is already used by another resource',

@@ -18,7 +18,7 @@ import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
 import { AbsencesService } from '../services/absences.ts';
 import { ResourceBooksService } from '../services/resource-books.ts';
-import { CreateResource } from '../../shared/schemas/resources.ts';
+import { CreateResource, RenameResource } from '../../shared/schemas/resources.ts';
 import { CreateAbsence } from '../../shared/schemas/absences.ts';
 import { BookingsService } from '../services/bookings.ts';
 import type { BookingLimits } from '../services/booking-writes.ts';
@@ -120,6 +120,11 @@ export function apiRoutes(
     })
     .post('/api/resources', 'resources:write', async (req, res) => {
       res.status(201).json(await books.add(req.actor!, parse(CreateResource, req.body)));
+    })
+    .patch('/api/resources/:id', 'resources:write', async (req, res) => {
+      res.json(
+        await books.rename(req.actor!, parse(IdParams, req.params, 'params').id, parse(RenameResource, req.body)),
+      );
     })
     .delete('/api/resources/:id', 'resources:write', async (req, res) => {
       await books.retire(req.actor!, parse(IdParams, req.params, 'params').id);

@@ -1,5 +1,5 @@
 import type { Knex } from 'knex';
-import type { CreateResource } from '../../shared/schemas/resources.ts';
+import type { CreateResource, RenameResource } from '../../shared/schemas/resources.ts';
 import { ConflictError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
@@ -63,6 +63,30 @@ export class ResourceBooksService {
       await recordChange(trx, actor, 'resource', listed.id, 'create', null, listed);
       await notifyFirmChange(trx, actor.firmId);
       return listed;
+    });
+  }
+
+  /**
+   * Renames one of the firm's own resources (its bookings, past and ahead, follow: they point at
+   * the resource, not its name). Refused (409) when someone renamed it since the page loaded.
+   */
+  async rename(actor: Actor, resourceId: string, input: RenameResource): Promise<{ id: string; name: string }> {
+    return this.knex.transaction(async (trx) => {
+      const r = (await trx('resources')
+        .where({ id: resourceId, firm_id: actor.firmId, active: true })
+        .forUpdate()
+        .first('id', 'name')) as { id: string; name: string } | undefined;
+      if (!r || reachOf(actor) === 'crew') throw new NotFoundError('resource');
+      if (r.name !== input.previousName)
+        throw new ConflictError(`This resource was renamed meanwhile, to ${r.name}: reload and try again.`, {
+          code: 'stale-version',
+          current: { id: String(r.id), name: r.name },
+        });
+      if (r.name === input.name) return { id: String(r.id), name: r.name };
+      await trx('resources').where('id', r.id).update({ name: input.name });
+      await recordChange(trx, actor, 'resource', String(r.id), 'update', { name: r.name }, { name: input.name });
+      await notifyFirmChange(trx, actor.firmId);
+      return { id: String(r.id), name: input.name };
     });
   }
 

@@ -28,3 +28,15 @@ export const CreateResource = z
   })
   .strict();
 export type CreateResource = z.infer<typeof CreateResource>;
+
+/**
+ * PATCH /api/resources/:id: a new name for one of the firm's own resources. `previousName` is the
+ * name the page showed: a rename by someone else meanwhile is refused (409), not overwritten.
+ */
+export const RenameResource = z
+  .object({
+    name: oneLineText(80).min(1, 'is required'),
+    previousName: z.string({ message: 'is required: the name the page showed' }).max(200),
+  })
+  .strict();
+export type RenameResource = z.infer<typeof RenameResource>;

@@ -106,9 +106,21 @@ describe('time away on the Resources page', () => {
     const row = await app.ctx.knex('resources').where('name', 'Crew Wren').first('kind', 'active');
     expect(row).toEqual({ kind: 'install_crew', active: true });
 
-    await page.getByRole('button', { name: 'Take Crew Wren off the books…' }).click();
+    // A slip in the name is put right where it was made; the open row stays open under its new name.
+    const rename = page.getByRole('form', { name: 'Rename Crew Wren' });
+    await rename.getByLabel('New name').fill('Crew Heron');
+    await rename.getByRole('button', { name: 'Rename' }).click();
+    expect(await rename.getByRole('alert').textContent()).toBe('New name is already used by another resource');
+    await rename.getByLabel('New name').fill('Crew Wrenn');
+    await rename.getByRole('button', { name: 'Rename' }).click();
+    await page.getByRole('button', { name: 'Time away: Crew Wrenn' }).waitFor();
+    expect(await page.getByRole('form', { name: 'Rename Crew Wrenn' }).getByLabel('New name').inputValue()).toBe(
+      'Crew Wrenn',
+    );
+
+    await page.getByRole('button', { name: 'Take Crew Wrenn off the books…' }).click();
     await page.getByRole('button', { name: 'Take it off' }).click();
-    await expect.poll(() => page.getByRole('button', { name: 'Time away: Crew Wren' }).count()).toBe(0);
-    expect((await app.ctx.knex('resources').where('name', 'Crew Wren').first('active')).active).toBe(false);
+    await expect.poll(() => page.getByRole('button', { name: 'Time away: Crew Wrenn' }).count()).toBe(0);
+    expect((await app.ctx.knex('resources').where('name', 'Crew Wrenn').first('active')).active).toBe(false);
   });
 });

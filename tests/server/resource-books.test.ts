@@ -114,6 +114,14 @@ describe("taking a resource off the firm's books", () => {
     await retire(scheduler, wren).expect(404);
   });
 
+  it('frees its name: the firm can add a crew of that name again, a new one with no past', async () => {
+    const old = await ctx.knex('resources').where({ name: 'Crew Wren', active: false }).first('id');
+    const again = await add(scheduler, { name: 'Crew Wren', category: 'crew', kind: 'install_crew' }).expect(201);
+    expect(again.body.id).not.toBe(String(old.id));
+    expect(await boardRows(scheduler)).toContain('Crew Wren');
+    await retire(scheduler, again.body.id).expect(204);
+  });
+
   it('never leaves a booking on a crew taken off the books at the same moment as it was booked', async () => {
     // Five crews, each booked and taken off in two requests sent together: whichever goes first, the
     // other sees it (the booking is refused, or the taking off is).
@@ -141,5 +149,61 @@ describe("taking a resource off the firm's books", () => {
       const standing = await ctx.knex('bookings').where('resource_id', crew).whereNot('state', 'declined');
       expect(active || standing.length === 0, outcome).toBe(true);
     }
+  });
+});
+
+describe("renaming a resource on the firm's books", () => {
+  const rename = (as: Agent, id: string, body: Record<string, unknown>) =>
+    as.patch(`/api/resources/${id}`).set('X-CSRF-Token', as.csrf).send(body);
+
+  it('renames it everywhere at once: the list, the board, its bookings; audited', async () => {
+    const kestrel = await idOf(ctx.knex, 'resources', { name: 'Crew Kestrel' });
+    const booked = await ctx.knex('bookings').where('resource_id', kestrel).count<{ count: string }[]>();
+    const res = await rename(scheduler, kestrel, { name: 'Crew Kite', previousName: 'Crew Kestrel' }).expect(200);
+    expect(res.body).toEqual({ id: kestrel, name: 'Crew Kite' });
+    expect(await boardRows(scheduler)).toContain('Crew Kite');
+    expect(await boardRows(scheduler)).not.toContain('Crew Kestrel');
+    expect(await ctx.knex('bookings').where('resource_id', kestrel).count()).toEqual(booked);
+    const audit = await ctx
+      .knex('audit_log')
+      .where({ entity: 'resource', entity_id: kestrel, action: 'update' })
+      .first('before', 'after');
+    expect(audit).toEqual({ before: { name: 'Crew Kestrel' }, after: { name: 'Crew Kite' } });
+    // Back again, from the name the page now shows.
+    await rename(scheduler, kestrel, { name: 'Crew Kestrel', previousName: 'Crew Kite' }).expect(200);
+  });
+
+  it('never overwrites a rename made meanwhile (409 with the name now), nor takes a name in use', async () => {
+    const otter = await idOf(ctx.knex, 'resources', { name: 'Crew Otter' });
+    const stale = await rename(scheduler, otter, { name: 'Crew Osprey', previousName: 'Crew Ottter' }).expect(409);
+    expect(stale.body).toMatchObject({ code: 'stale-version', current: { id: otter, name: 'Crew Otter' } });
+    const taken = await rename(scheduler, otter, { name: 'Crew Heron', previousName: 'Crew Otter' }).expect(409);
+    expect(taken.body.errors).toEqual([{ field: 'name', message: 'is already used by another resource' }]);
+    // A name only a resource taken off the books had is free.
+    await rename(scheduler, otter, { name: 'Crew Wren', previousName: 'Crew Otter' }).expect(200);
+    await rename(scheduler, otter, { name: 'Crew Otter', previousName: 'Crew Wren' }).expect(200);
+    expect((await ctx.knex('resources').where('id', otter).first('name')).name).toBe('Crew Otter');
+  });
+
+  it("is the owner's alone: another firm's or a partner's resource is 404; bad input names the field", async () => {
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const priya = await idOf(ctx.knex, 'resources', { name: 'Priya Nair' });
+    await rename(otherInstaller, heron, { name: 'Ours now', previousName: 'Crew Heron' }).expect(404);
+    await rename(partner, heron, { name: 'Ours now', previousName: 'Crew Heron' }).expect(404);
+    await rename(scheduler, priya, { name: 'Priya N.', previousName: 'Priya Nair' }).expect(404);
+    const cases: [Record<string, unknown>, string][] = [
+      [{ name: '', previousName: 'Crew Heron' }, 'name'],
+      [{ name: 'Crew\u0000Heron', previousName: 'Crew Heron' }, 'name'],
+      [{ name: 'Crew Hawk' }, 'previousName'],
+      [{ name: 'Crew Hawk', previousName: 'Crew Heron', kind: 'crane' }, 'kind'],
+    ];
+    for (const [body, field] of cases) {
+      const res = await rename(scheduler, heron, body).expect(400);
+      expect(
+        res.body.errors.map((e: { field: string }) => e.field),
+        JSON.stringify(body),
+      ).toEqual([field]);
+    }
+    expect((await ctx.knex('resources').where('id', heron).first('name')).name).toBe('Crew Heron');
   });
 });
