@@ -241,6 +241,32 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
           : Promise.resolve([]),
     ] as const);
 
+  // A resource taken off the books stays on the board for the bookings it had that the board loads
+  // (in the window, or on a job in play): without it those bookings would point at nothing.
+  const listed = new Set(resources.map((r) => r.id));
+  const gone = [...new Set(bookingRows.map((b) => b.resourceId))].filter((id) => !listed.has(id));
+  if (gone.length) {
+    const retired = await rows<ResourceRow>(
+      scoped(Resource, actor, trx)
+        .where('resources.active', false)
+        .whereIn('resources.id', gone)
+        .join('firms', 'firms.id', 'resources.firm_id')
+        .select(
+          'resources.*',
+          'firms.name as firmName',
+          'firms.kind as firmKind',
+          'firms.time_zone as timeZone',
+          'firms.holiday_region as holidayRegion',
+        )
+        .orderBy('resources.id'),
+    );
+    resources.push(...retired);
+    // The working calendars of a firm whose every other resource is off the books too.
+    const haveCalendars = new Set(calendarRows.map((c) => c.firmId));
+    const firmsWithout = [...new Set(retired.map((r) => r.firmId))].filter((f) => !haveCalendars.has(f));
+    if (firmsWithout.length)
+      calendarRows.push(...(await rows<Calendar>(Calendar.query(trx).whereIn('firm_id', firmsWithout).orderBy('id'))));
+  }
   const visibleBookings = new Map(bookingRows.map((b) => [b.id, b]));
   const jobById = new Map(jobs.map((j) => [j.id, j]));
   const stageById = new Map(stages.map((s) => [s.id, s]));
@@ -299,6 +325,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
       firmName: r.firmName,
       firmKind: r.firmKind,
       ownership: r.firmId === actor.firmId ? r.ownership : 'partner',
+      ...(r.active ? {} : { retired: true }),
     };
   });
 

@@ -224,7 +224,8 @@ export function createBoardIndex(board: Board, options: BoardIndexOptions): Boar
     }
     resources.set(r.id, r);
     resourceInfo.set(r.id, { resource: r, cal: calendars.get(r.calendarId) as CompiledCalendar });
-    push(resourcesByKind, r.kind, r);
+    // The one list every search for a resource of a kind reads: one taken off the books is not in it.
+    if (r.retired !== true) push(resourcesByKind, r.kind, r);
     if ((r.personIds !== undefined && r.personIds.length > 0) || r.category === 'person') {
       const list = peopleOf(r);
       personsOfResource.set(r.id, list);

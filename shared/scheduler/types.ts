@@ -57,6 +57,11 @@ export interface Resource {
   hired?: boolean;
   /** People in a crew, to catch one person booked in two places. */
   personIds?: string[];
+  /**
+   * Taken off its firm's books: on the board only for the bookings it had, never offered for new
+   * work (no slot, auto-place or plan picks it).
+   */
+  retired?: boolean;
 }
 
 /** Concrete cure rule on a base stage (see cure.ts). */

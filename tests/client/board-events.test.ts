@@ -174,6 +174,26 @@ describe('rows on the board', () => {
     );
   });
 
+  it('put a resource taken off the books in a group of its own, only where it has work in the window, closed to drops', () => {
+    const data = board();
+    data.resources.push(
+      { ...data.resources[0]!, id: 'r4', name: 'Crew Lark', retired: true },
+      { ...data.resources[0]!, id: 'r5', name: 'Crew Wren', retired: true },
+    );
+    // Crew Lark dug on Monday; Crew Wren's only booking loaded was the week before (its job is in play).
+    data.bookings.push(
+      { ...data.bookings[0]!, id: 'b4', resourceId: 'r4' },
+      { ...data.bookings[0]!, id: 'b5', resourceId: 'r5', start: MON - 7 * 86_400_000, end: MON - 6 * 86_400_000 },
+    );
+    const rows = rowsOf(data);
+    expect(rows.map((r) => [r.title, groupHeading(r.group), r.retired])).toEqual([
+      ['Crew Heron', 'Our crews', false],
+      ['3 t excavator', 'Hired machines', false],
+      ['Priya', 'Brightspark', false],
+      ['Crew Lark', 'Taken off the books', true],
+    ]);
+  });
+
   it('filter by firm, kind and search', () => {
     expect(rowsOf(board(), { firmIds: ['f2'] }).map((r) => r.id)).toEqual(['r3']);
     expect(rowsOf(board(), { kinds: ['excavator'] }).map((r) => r.id)).toEqual(['r2']);

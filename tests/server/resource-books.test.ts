@@ -114,6 +114,58 @@ describe("taking a resource off the firm's books", () => {
     await retire(scheduler, wren).expect(404);
   });
 
+  it('keeps its past work on the board, marked as taken off the books, and its job can still be planned', async () => {
+    const lark = (await add(scheduler, { name: 'Crew Lark', category: 'crew', kind: 'install_crew' }).expect(201)).body
+      .id as string;
+    const job = await makeJob(ctx.knex, {
+      reference: 'RB-PAST',
+      stages: [
+        { kind: 'fill', name: 'Fill', minutes: 120, needs: { install_crew: 1 } },
+        { kind: 'handover', name: 'Handover', minutes: 60, needs: { install_crew: 1 } },
+      ],
+      links: [['fill', 'handover']],
+    });
+    // Done in May, before the test's today (Mon 1 Jun): nothing from now on, so it may be taken off.
+    await ctx.knex('bookings').insert({
+      stage_id: job.stage.fill,
+      resource_id: lark,
+      starts_at: '2026-05-20T08:00:00Z',
+      ends_at: '2026-05-20T10:00:00Z',
+      state: 'done',
+    });
+    await retire(scheduler, lark).expect(204);
+    type Row = { id: string; name: string; retired?: boolean };
+    const may = (await scheduler.get('/api/board').query({ from: '2026-05-18T00:00:00Z', to: '2026-05-25T00:00:00Z' }))
+      .body as { resources: Row[]; bookings: { resourceId: string }[] };
+    expect(may.resources.find((r) => r.id === lark)).toMatchObject({ name: 'Crew Lark', retired: true });
+    expect(may.bookings.filter((b) => b.resourceId === lark)).toHaveLength(1);
+    expect(may.resources.find((r) => r.name === 'Crew Heron')?.retired).toBeUndefined();
+    // In June it has no work, but the job it worked on is still in play (its handover waits in the
+    // tray): its past booking comes with the job, and Crew Lark with it, marked (the board draws no
+    // row for it there). The Resources page has it no more.
+    const june = (await scheduler.get('/api/board').query(WEEK).expect(200)).body as { resources: Row[] };
+    expect(june.resources.find((r) => r.id === lark)).toMatchObject({ retired: true });
+    const listed = (await scheduler.get('/api/resources').expect(200)).body.items.map((r: { name: string }) => r.name);
+    expect(listed).not.toContain('Crew Lark');
+    // The job it worked on goes on being planned: its next stage is booked through the engine, which
+    // reads the past work too.
+    await scheduler
+      .post('/api/bookings')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({
+        stageId: job.stage.handover,
+        resourceId: (await add(scheduler, { name: 'Crew Finch', category: 'crew', kind: 'install_crew' })).body.id,
+        startsAt: '2026-06-29T08:00:00Z',
+        endsAt: '2026-06-29T09:00:00Z',
+      })
+      .expect(201);
+    // Another installer never sees it, past work or not.
+    const theirs = (
+      await otherInstaller.get('/api/board').query({ from: '2026-05-18T00:00:00Z', to: '2026-05-25T00:00:00Z' })
+    ).body as { resources: Row[] };
+    expect(theirs.resources.map((r) => r.name)).not.toContain('Crew Lark');
+  });
+
   it('frees its name: the firm can add a crew of that name again, a new one with no past', async () => {
     const old = await ctx.knex('resources').where({ name: 'Crew Wren', active: false }).first('id');
     const again = await add(scheduler, { name: 'Crew Wren', category: 'crew', kind: 'install_crew' }).expect(201);

@@ -17,6 +17,8 @@ export interface RowInput {
   kind: string;
   firmId: string;
   businessHours: { daysOfWeek: number[]; startTime: string; endTime: string }[];
+  /** Taken off the firm's books: shown for its bookings, nothing may be dropped on it. */
+  retired: boolean;
 }
 
 export interface EventInput {
@@ -124,6 +126,7 @@ export function groupHeading(group: string): string {
 
 /** The heading a resource's row sits under: crews, machines, hired machines, partner firms, people. */
 export function groupOf(r: BoardResource): { group: string; order: string } {
+  if (r.retired) return { group: 'Taken off the books', order: '5' };
   if (r.ownership === 'partner') return { group: r.firmName, order: `3 ${r.firmName}` };
   if (r.ownership === 'hired') return { group: 'Hired machines', order: '2' };
   if (r.category === 'machine') return { group: 'Our machines', order: '1' };
@@ -148,7 +151,13 @@ export interface RowFilter {
 export function rowsOf(data: BoardData, filter: RowFilter = {}): RowInput[] {
   const calendars = new Map(data.calendars.map((c) => [c.id, c]));
   const search = filter.search?.trim().toLowerCase();
+  // A resource taken off the books is drawn only where it has work in the window (its job may be
+  // in play for later stages, and its past booking loaded with it).
+  const workedIn = new Set(
+    data.bookings.filter((b) => b.start < data.to && b.end > data.from).map((b) => b.resourceId),
+  );
   return data.resources
+    .filter((r) => !r.retired || workedIn.has(r.id))
     .filter((r) => !filter.firmIds?.length || filter.firmIds.includes(r.firmId))
     .filter((r) => !filter.kinds?.length || filter.kinds.includes(r.kind))
     .filter((r) => !search || r.name.toLowerCase().includes(search) || r.firmName.toLowerCase().includes(search))
@@ -167,6 +176,7 @@ export function rowsOf(data: BoardData, filter: RowFilter = {}): RowInput[] {
         kind: kindLabel(r.kind),
         firmId: r.firmId,
         businessHours,
+        retired: r.retired === true,
       };
     })
     .sort(

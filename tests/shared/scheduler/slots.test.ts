@@ -124,3 +124,36 @@ describe('auto-placing a whole install', () => {
     expect(result.unplaced[1]?.reason).toBe("It waits for 'Lift', which couldn't be placed");
   });
 });
+
+describe('a resource taken off the books', () => {
+  const retired = (id: string) => {
+    const board = emptyBoard();
+    board.resources = board.resources.map((r) => (r.id === id ? { ...r, retired: true } : r));
+    return board;
+  };
+
+  it('is never offered for new work: auto-place and slots take the other crew, and no crane means none', () => {
+    const withoutA = retired('crew-a');
+    expect(autoPlace(withoutA, { now: NOW }).placed[2]?.resourceIds).toEqual(['crane-1', 'crew-b', 'pt-1', 'pt-2']);
+    const offered = findSlots(
+      createBoardIndex(withoutA, { now: NOW }),
+      { stageId: 'lift', resourceKind: 'install_crew', earliest: at(2026, 5, 13, 8) },
+      { alternatives: 3 },
+    ).flatMap((slot) => slot.bookings.map((b) => b.resourceId));
+    expect(offered.length).toBeGreaterThan(0);
+    expect(offered).not.toContain('crew-a');
+    const noCrane = autoPlace(retired('crane-1'), { now: NOW, horizonDays: 30 });
+    expect(noCrane.unplaced.map((u) => u.stageId)).toEqual(['lift', 'connect']);
+  });
+
+  it('still has its past bookings checked and shown like any other', () => {
+    const board = retired('ground-1');
+    board.bookings = [booking('b-dig', 'dig', 'ground-1', at(2026, 5, 1, 9), at(2026, 5, 5, 12))];
+    const index = createBoardIndex(board, { now: NOW });
+    expect(index.resources.get('ground-1')?.retired).toBe(true);
+    expect(analyseBoard(board, { now: NOW }).criticalPaths[0]?.stages[0]).toMatchObject({
+      stageId: 'dig',
+      booked: true,
+    });
+  });
+});
