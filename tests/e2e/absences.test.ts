@@ -30,7 +30,7 @@ const awayRows = () => app.ctx.knex('calendar_exceptions').where('resource_id', 
 describe('time away on the Resources page', () => {
   it('marks a crew away for a day, names the bookings left in it, and takes it off again after asking', async () => {
     await page.goto(`${app.url}/resources`);
-    await page.getByRole('button', { name: 'Time away: Crew Heron' }).click();
+    await page.getByRole('button', { name: 'Edit Crew Heron' }).click();
     const panel = page.getByRole('group', { name: 'Time away: Crew Heron' });
     await panel.getByText('No time away marked.').waitFor();
 
@@ -102,7 +102,7 @@ describe('time away on the Resources page', () => {
     await form.getByLabel('Name').fill('Crew Wren');
     await form.getByLabel('Kind').fill('install crew');
     await form.getByRole('button', { name: 'Add', exact: true }).click();
-    await page.getByRole('button', { name: 'Time away: Crew Wren' }).click();
+    await page.getByRole('button', { name: 'Edit Crew Wren' }).click();
     const row = await app.ctx.knex('resources').where('name', 'Crew Wren').first('kind', 'active');
     expect(row).toEqual({ kind: 'install_crew', active: true });
 
@@ -113,14 +113,14 @@ describe('time away on the Resources page', () => {
     expect(await rename.getByRole('alert').textContent()).toBe('New name is already used by another resource');
     await rename.getByLabel('New name').fill('Crew Wrenn');
     await rename.getByRole('button', { name: 'Rename' }).click();
-    await page.getByRole('button', { name: 'Time away: Crew Wrenn' }).waitFor();
+    await page.getByRole('button', { name: 'Edit Crew Wrenn' }).waitFor();
     expect(await page.getByRole('form', { name: 'Rename Crew Wrenn' }).getByLabel('New name').inputValue()).toBe(
       'Crew Wrenn',
     );
 
     await page.getByRole('button', { name: 'Take Crew Wrenn off the books…' }).click();
     await page.getByRole('button', { name: 'Take it off' }).click();
-    await expect.poll(() => page.getByRole('button', { name: 'Time away: Crew Wrenn' }).count()).toBe(0);
+    await expect.poll(() => page.getByRole('button', { name: 'Edit Crew Wrenn' }).count()).toBe(0);
     expect((await app.ctx.knex('resources').where('name', 'Crew Wrenn').first('active')).active).toBe(false);
   });
 });
