@@ -1,4 +1,4 @@
-import { dayNumber, isoDateOfDay, localDayOf, localToInstant } from './scheduler/time-zone.ts';
+import { dayNumber, isoDateOfDay, localDayOf, localToInstant, timeZoneOffset } from './scheduler/time-zone.ts';
 
 /**
  * Calendar dates (`YYYY-MM-DD`) as a firm means them: a day on the firm's own clock, never a fixed
@@ -121,4 +121,66 @@ export function deadlineDate(deadline: InstantLike, zone: string): string {
  */
 export function todayIn(zone: string, now: InstantLike): string {
   return localDateOf(now, zone);
+}
+
+const CLOCK_TIME = /^([01]\d|2[0-3]):([0-5]\d)$/;
+
+/**
+ * The instant of a local wall-clock time (`HH:MM`) on a date (a time a spring clock change skips
+ * maps forward, as the engine's zone functions do).
+ *
+ * @example
+ * localTimeOn('2026-06-03', '13:00', 'Europe/London') // Date.UTC(2026, 5, 3, 12) (13:00 BST)
+ */
+export function localTimeOn(date: string, time: string, zone: string): number {
+  const m = CLOCK_TIME.exec(time);
+  if (!m) throw new RangeError(`"${time}" is not a time of day like 13:00`);
+  return localToInstant(zone, dayOfDate(date), Number(m[1]) * 60 + Number(m[2]));
+}
+
+/**
+ * The local wall-clock time (`HH:MM`) of an instant.
+ *
+ * @example
+ * localTimeOf(Date.UTC(2026, 5, 3, 12), 'Europe/London') // '13:00'
+ */
+export function localTimeOf(instant: InstantLike, zone: string): string {
+  const ms = msOf(instant);
+  // The wall clock, not the time elapsed since midnight (a clock-change day is 23 or 25 hours).
+  const local = ms + timeZoneOffset(zone, ms);
+  const minute = Math.floor((((local % 86_400_000) + 86_400_000) % 86_400_000) / 60_000);
+  return `${String(Math.floor(minute / 60)).padStart(2, '0')}:${String(minute % 60).padStart(2, '0')}`;
+}
+
+/** A span of time away as its firm reads it (see {@link localSpanOf}). */
+export interface LocalSpan {
+  /** First and last local day it touches, `to` included. */
+  from: string;
+  to: string;
+  /** When it starts on the first day; null from the day's start. */
+  fromTime: string | null;
+  /** When it ends on the last day; null to the day's end. */
+  toTime: string | null;
+}
+
+/**
+ * The local days and times of `[start, end)`: whole days read as dates alone; a span that starts
+ * or ends inside a day gives that time.
+ *
+ * @example
+ * localSpanOf(Date.UTC(2026, 5, 3, 12), Date.UTC(2026, 5, 3, 23), 'Europe/London')
+ * // { from: '2026-06-03', to: '2026-06-03', fromTime: '13:00', toTime: null }
+ */
+export function localSpanOf(start: InstantLike, end: InstantLike, zone: string): LocalSpan {
+  const s = msOf(start),
+    e = msOf(end);
+  const from = localDateOf(s, zone);
+  const endDay = localDateOf(e, zone);
+  const endsAtMidnight = e === startOfLocalDay(endDay, zone);
+  return {
+    from,
+    to: endsAtMidnight ? localDateOf(e - 1, zone) : endDay,
+    fromTime: s === startOfLocalDay(from, zone) ? null : localTimeOf(s, zone),
+    toTime: endsAtMidnight ? null : localTimeOf(e, zone),
+  };
 }

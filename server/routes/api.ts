@@ -19,7 +19,7 @@ import { DirectoryService } from '../services/directory.ts';
 import { AbsencesService } from '../services/absences.ts';
 import { ResourceBooksService } from '../services/resource-books.ts';
 import { CreateResource, RenameResource } from '../../shared/schemas/resources.ts';
-import { CreateAbsence } from '../../shared/schemas/absences.ts';
+import { CreateAbsence, CreateClosure } from '../../shared/schemas/absences.ts';
 import { BookingsService } from '../services/bookings.ts';
 import type { BookingLimits } from '../services/booking-writes.ts';
 import { CompletionService } from '../services/completion.ts';
@@ -141,7 +141,7 @@ export function apiRoutes(
       res.json({ items: await absences.listClosures(req.actor!, now()) });
     })
     .post('/api/firm/closures', 'resources:write', async (req, res) => {
-      res.status(201).json(await absences.createClosure(req.actor!, parse(CreateAbsence, req.body)));
+      res.status(201).json(await absences.createClosure(req.actor!, parse(CreateClosure, req.body)));
     })
     .delete('/api/firm/closures/:id', 'resources:write', async (req, res) => {
       await absences.removeClosure(req.actor!, parse(IdParams, req.params, 'params').id);

@@ -6,8 +6,9 @@ import type {
   ClosureCreated,
   ClosureView,
   CreateAbsence,
+  CreateClosure,
 } from '../../shared/schemas/absences.ts';
-import { addDays, localDateOf, startOfLocalDay } from '../../shared/local-dates.ts';
+import { addDays, localDateOf, localSpanOf, localTimeOn, startOfLocalDay } from '../../shared/local-dates.ts';
 import { NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
@@ -55,12 +56,12 @@ export class AbsencesService {
   }
 
   private view(r: OwnResource, e: ExceptionRow): AbsenceView {
+    // Whole days read as dates alone; part of a day gives its times (the exclusive end of a whole
+    // last day is the next day's midnight).
     return {
       id: String(e.id),
       resourceId: String(e.resourceId),
-      from: localDateOf(e.startsAt.getTime(), r.timeZone),
-      // The exclusive end is the next day's midnight: the last day away is the day before it.
-      to: localDateOf(e.endsAt.getTime() - 1, r.timeZone),
+      ...localSpanOf(e.startsAt, e.endsAt, r.timeZone),
       reason: e.reason,
     };
   }
@@ -78,8 +79,14 @@ export class AbsencesService {
   async create(actor: Actor, resourceId: string, input: CreateAbsence): Promise<AbsenceCreated> {
     return this.knex.transaction(async (trx) => {
       const r = await this.ownResource(actor, resourceId, trx);
-      const startsAt = new Date(startOfLocalDay(input.from, r.timeZone));
-      const endsAt = new Date(startOfLocalDay(addDays(input.to, 1), r.timeZone));
+      const startsAt = new Date(
+        input.fromTime ? localTimeOn(input.from, input.fromTime, r.timeZone) : startOfLocalDay(input.from, r.timeZone),
+      );
+      const endsAt = new Date(
+        input.toTime
+          ? localTimeOn(input.to, input.toTime, r.timeZone)
+          : startOfLocalDay(addDays(input.to, 1), r.timeZone),
+      );
       const [row] = (await trx('calendar_exceptions')
         .insert({ resource_id: r.id, starts_at: startsAt, ends_at: endsAt, reason: input.reason })
         .returning(['id', 'resource_id', 'starts_at', 'ends_at', 'reason'])) as ExceptionRow[];
@@ -135,8 +142,7 @@ export class AbsencesService {
     for (const e of rows) {
       const away: MyWorkAway = {
         resourceName: e.resourceName ?? null,
-        from: localDateOf(e.startsAt.getTime(), timeZone),
-        to: localDateOf(e.endsAt.getTime() - 1, timeZone),
+        ...localSpanOf(e.startsAt, e.endsAt, timeZone),
         reason: e.reason,
       };
       const key = JSON.stringify(away);
@@ -181,7 +187,7 @@ export class AbsencesService {
    * every crew, person and machine of the firm is shaded on the boards (a partner firm's on the
    * boards of every installer it works with) and every booking left in them is flagged.
    */
-  async createClosure(actor: Actor, input: CreateAbsence): Promise<ClosureCreated> {
+  async createClosure(actor: Actor, input: CreateClosure): Promise<ClosureCreated> {
     return this.knex.transaction(async (trx) => {
       const { timeZone, calendars } = await this.firmCalendars(actor, trx);
       if (calendars.length === 0) throw new NotFoundError('working calendar');

@@ -12,27 +12,60 @@ export const ABSENCE_REASONS = {
   firm: ['Works shutdown', 'Christmas and New Year', 'Training day'],
 } as const;
 
+const days = {
+  from: WorkDate,
+  to: WorkDate,
+  reason: oneLineText(120).min(1, 'is required: say why, in a few words'),
+};
+
+/** A time of day on the firm's clock, `HH:MM` (24-hour). */
+const ClockTime = z
+  .string({ message: 'must be a time of day like 13:00' })
+  .regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'must be a time of day like 13:00');
+
+// Each day's own problem is the thing to say when there is one: these compare two good days.
+const whenDaysAreGood = (p: { issues: readonly unknown[] }) => p.issues.length === 0;
+const toOnOrAfterFrom = (a: { from: string; to: string }) => a.to >= a.from;
+const TO_ON_OR_AFTER_FROM = { path: ['to'], message: 'must be on or after the first day', when: whenDaysAreGood };
+const atMostAYear = (a: { from: string; to: string }) =>
+  a.to < a.from || dayOfDate(a.to) - dayOfDate(a.from) < ABSENCE_MAX_DAYS;
+const AT_MOST_A_YEAR = {
+  path: ['to'],
+  message: `must be at most ${ABSENCE_MAX_DAYS} days after the first day`,
+  when: whenDaysAreGood,
+};
+
 /**
- * POST /api/resources/:id/absences: whole local days in the resource's firm's time zone, `to`
- * included, and why. The board shades them and flags any booking that falls in them.
+ * POST /api/firm/closures: whole local days the firm is closed, in its time zone, `to` included,
+ * and why.
+ */
+export const CreateClosure = z
+  .object(days)
+  .strict()
+  .refine(toOnOrAfterFrom, TO_ON_OR_AFTER_FROM)
+  .refine(atMostAYear, AT_MOST_A_YEAR);
+export type CreateClosure = z.infer<typeof CreateClosure>;
+
+/**
+ * POST /api/resources/:id/absences: local days in the resource's firm's time zone, `to` included,
+ * and why; part of a day with `fromTime` (away from then on the first day: a dentist at 14:00) and
+ * `toTime` (back by then on the last day), each `HH:MM`. The board shades the time and flags any
+ * booking that falls in it.
  */
 export const CreateAbsence = z
-  .object({
-    from: WorkDate,
-    to: WorkDate,
-    reason: oneLineText(120).min(1, 'is required: say why, in a few words'),
-  })
+  .object({ ...days, fromTime: ClockTime.optional(), toTime: ClockTime.optional() })
   .strict()
-  // Each day's own problem is the thing to say when there is one: these compare two good days.
-  .refine((a) => a.to >= a.from, {
-    path: ['to'],
-    message: 'must be on or after the first day away',
-    when: (payload) => payload.issues.length === 0,
+  .refine(toOnOrAfterFrom, TO_ON_OR_AFTER_FROM)
+  .refine(atMostAYear, AT_MOST_A_YEAR)
+  .refine((a) => a.toTime !== '00:00', {
+    path: ['toTime'],
+    message: 'must be after 00:00: leave it out when the last day is away whole',
+    when: whenDaysAreGood,
   })
-  .refine((a) => a.to < a.from || dayOfDate(a.to) - dayOfDate(a.from) < ABSENCE_MAX_DAYS, {
-    path: ['to'],
-    message: `must be at most ${ABSENCE_MAX_DAYS} days after the first day away`,
-    when: (payload) => payload.issues.length === 0,
+  .refine((a) => a.from !== a.to || a.fromTime === undefined || a.toTime === undefined || a.toTime > a.fromTime, {
+    path: ['toTime'],
+    message: 'must be after the time away starts',
+    when: whenDaysAreGood,
   });
 export type CreateAbsence = z.infer<typeof CreateAbsence>;
 
@@ -43,6 +76,10 @@ export interface AbsenceView {
   /** First and last day away (local dates, `to` included). */
   from: string;
   to: string;
+  /** Away from this time on the first day (null: the whole day). */
+  fromTime: string | null;
+  /** Back by this time on the last day (null: away the whole day). */
+  toTime: string | null;
   reason: string;
 }
 

@@ -53,6 +53,9 @@ export interface MyWorkAway {
   /** First and last day away, local dates in the firm's zone, `to` included. */
   from: string;
   to: string;
+  /** Away from this time on the first day, back by this time on the last (null: the whole day). */
+  fromTime: string | null;
+  toTime: string | null;
   reason: string;
 }
 

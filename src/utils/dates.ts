@@ -55,6 +55,27 @@ export function formatCalendarRange(from: string | null, to: string | null, opti
   return `${formatCalendarDate(from, options)} – ${formatCalendarDate(to, options)}`;
 }
 
+/**
+ * Time away as days, with the times where it starts or ends inside a day.
+ * @example formatSpan({ from: '2026-12-09', to: '2026-12-09', fromTime: '13:00', toTime: null }, { currentYear: 2026 }) // 'Wed 9 Dec from 13:00'
+ * @example formatSpan({ from: '2026-12-09', to: '2026-12-10', fromTime: '13:00', toTime: '12:00' }, { currentYear: 2026 }) // 'Wed 9 Dec 13:00 – Thu 10 Dec 12:00'
+ */
+export function formatSpan(
+  span: { from: string; to: string; fromTime?: string | null; toTime?: string | null },
+  options: CalendarDateOptions = {},
+): string {
+  const fromTime = span.fromTime ?? null,
+    toTime = span.toTime ?? null;
+  if (fromTime === null && toTime === null) return formatCalendarRange(span.from, span.to, options);
+  const first = formatCalendarDate(span.from, options);
+  if (span.from === span.to) {
+    if (fromTime !== null && toTime !== null) return `${first} ${fromTime}–${toTime}`;
+    return fromTime !== null ? `${first} from ${fromTime}` : `${first} until ${toTime}`;
+  }
+  const last = formatCalendarDate(span.to, options);
+  return `${first}${fromTime === null ? '' : ` ${fromTime}`} – ${last}${toTime === null ? '' : ` ${toTime}`}`;
+}
+
 /** An instant in the firm's zone. @example formatInstant('2026-05-12T07:30:00Z', 'Europe/London') // 'Tue 12 May 2026, 08:30' */
 export function formatInstant(iso: string, timeZone: string, options: CalendarDateOptions = {}): string {
   const value = new Date(iso);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatCalendarDate, formatCalendarRange, formatInstant, todayIn } from '@/utils/dates';
+import { formatCalendarDate, formatCalendarRange, formatInstant, formatSpan, todayIn } from '@/utils/dates';
 
 // Weekdays checked against a printed 2026 calendar: 12 May 2026 is a Tuesday, 29 March 2026 a Sunday.
 describe('formatCalendarDate', () => {
@@ -15,6 +15,22 @@ describe('formatCalendarDate', () => {
   it('gives back what it cannot read, and nothing for no date', () => {
     expect(formatCalendarDate('2026-02-30')).toBe('2026-02-30');
     expect(formatCalendarDate(null)).toBe('');
+  });
+});
+
+describe('formatSpan (time away)', () => {
+  const y = { currentYear: 2026 };
+  it('reads whole days as dates alone, and part of a day with its time', () => {
+    // 9 December 2026 is a Wednesday (printed 2026 calendar).
+    const day = { from: '2026-12-09', to: '2026-12-09' };
+    expect(formatSpan({ ...day, fromTime: null, toTime: null }, y)).toBe('Wed 9 Dec');
+    expect(formatSpan({ ...day, fromTime: '14:00', toTime: null }, y)).toBe('Wed 9 Dec from 14:00');
+    expect(formatSpan({ ...day, fromTime: null, toTime: '10:30' }, y)).toBe('Wed 9 Dec until 10:30');
+    expect(formatSpan({ ...day, fromTime: '09:00', toTime: '12:00' }, y)).toBe('Wed 9 Dec 09:00–12:00');
+    expect(formatSpan({ from: '2026-12-09', to: '2026-12-10', fromTime: '14:00', toTime: '09:00' }, y)).toBe(
+      'Wed 9 Dec 14:00 – Thu 10 Dec 09:00',
+    );
+    expect(formatSpan({ from: '2026-12-09', to: '2026-12-11' }, y)).toBe('Wed 9 Dec – Fri 11 Dec');
   });
 });
 

@@ -62,11 +62,33 @@ describe('the day list', () => {
     expect(dayLabel('2026-06-08', '2026-06-01')).toBe('Monday 8 June');
   });
 
-  it("puts the reader's time away on each day it covers, in words", () => {
+  it("puts the reader's time away on each day it covers, in words, with the time where it is part of a day", () => {
     const list: MyWorkList = {
       away: [
-        { resourceName: 'Crew Heron', from: '2026-06-02', to: '2026-06-03', reason: 'Holiday' },
-        { resourceName: null, from: '2026-06-03', to: '2026-06-03', reason: 'Training day' },
+        {
+          resourceName: 'Crew Heron',
+          from: '2026-06-02',
+          to: '2026-06-03',
+          fromTime: null,
+          toTime: null,
+          reason: 'Holiday',
+        },
+        {
+          resourceName: null,
+          from: '2026-06-03',
+          to: '2026-06-03',
+          fromTime: null,
+          toTime: null,
+          reason: 'Training day',
+        },
+        {
+          resourceName: 'Connor Reid',
+          from: '2026-06-04',
+          to: '2026-06-05',
+          fromTime: '14:00',
+          toTime: '10:30',
+          reason: 'Dentist',
+        },
       ],
       today: '2026-06-01',
       timeZone: 'Europe/London',
@@ -75,14 +97,19 @@ describe('the day list', () => {
         item('2', '2026-06-02', '2026-06-02T07:00:00Z'),
         item('3', '2026-06-03', '2026-06-03T07:00:00Z'),
         item('4', '2026-06-04', '2026-06-04T07:00:00Z'),
+        item('5', '2026-06-05', '2026-06-05T07:00:00Z'),
       ],
     };
-    expect(groupByDay(list).map((g) => [g.day, g.away.map(awayWords)])).toEqual([
+    expect(groupByDay(list).map((g) => [g.day, g.away.map((a) => awayWords(a, g.day))])).toEqual([
       ['2026-06-01', []],
       ['2026-06-02', ['Crew Heron is marked away (Holiday)']],
       ['2026-06-03', ['Crew Heron is marked away (Holiday)', 'The firm is closed (Training day)']],
-      ['2026-06-04', []],
+      ['2026-06-04', ['Connor Reid is marked away from 14:00 (Dentist)']],
+      ['2026-06-05', ['Connor Reid is marked away until 10:30 (Dentist)']],
     ]);
+    expect(awayWords({ ...list.away[2]!, to: '2026-06-04', fromTime: '09:00', toTime: '12:00' }, '2026-06-04')).toBe(
+      'Connor Reid is marked away 09:00–12:00 (Dentist)',
+    );
   });
 
   it('dials a phone number without its spaces', () => {

@@ -59,6 +59,22 @@ describe('time away on the Resources page', () => {
     await page.getByRole('button', { name: 'Take it off' }).click();
     await panel.getByText('No time away marked.').waitFor();
     expect(await awayRows()).toEqual([]);
+
+    // Part of a day: from 14:00 on Thu 4 Jun (BST), to the day's end.
+    await panel.getByLabel('Part of a day').check();
+    await panel.getByLabel(/Away from/).fill('14:00');
+    await panel.getByLabel('Why').fill('Dentist');
+    await panel.getByRole('button', { name: 'Mark away' }).click();
+    await panel.getByText('Thu 4 Jun from 14:00').waitFor();
+    expect(await panel.locator('li', { hasText: 'Dentist' }).first().textContent()).toContain('Thu 4 Jun from 14:00');
+    const row = await app.ctx.knex('calendar_exceptions').where('resource_id', heron).first('starts_at', 'ends_at');
+    expect([row.startsAt.toISOString(), row.endsAt.toISOString()]).toEqual([
+      '2026-06-04T13:00:00.000Z',
+      '2026-06-04T23:00:00.000Z',
+    ]);
+    await panel.getByRole('button', { name: 'Take off…' }).click();
+    await page.getByRole('button', { name: 'Take it off' }).click();
+    await panel.getByText('No time away marked.').waitFor();
   });
 
   it('closes the whole firm for a day, on every one of its calendars, and opens it again', async () => {

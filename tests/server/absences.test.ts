@@ -118,11 +118,11 @@ describe('marking a crew away', () => {
     const cases: [Record<string, unknown>, { field: string; message: string }][] = [
       [
         { from: '2026-06-12', to: '2026-06-10', reason: 'Holiday' },
-        { field: 'to', message: 'must be on or after the first day away' },
+        { field: 'to', message: 'must be on or after the first day' },
       ],
       [
         { from: '2026-06-10', to: '2027-06-11', reason: 'Holiday' },
-        { field: 'to', message: 'must be at most 366 days after the first day away' },
+        { field: 'to', message: 'must be at most 366 days after the first day' },
       ],
       [{ from: '9999-01-01', to: '2026-06-10', reason: 'Holiday' }, expect.objectContaining({ field: 'from' })],
       [
@@ -143,6 +143,100 @@ describe('marking a crew away', () => {
       expect(res.body.errors, JSON.stringify(body)).toEqual([problem]);
     }
     expect(await count()).toBe(was);
+  });
+});
+
+describe('part of a day away', () => {
+  it('keeps the time it starts or ends, shades only that part of the day, and the engine books around it', async () => {
+    const job = await makeJob(ctx.knex, {
+      reference: 'AW-304',
+      stages: [
+        { kind: 'fill', name: 'Fill', minutes: 60, needs: { install_crew: 1 } },
+        { kind: 'handover', name: 'Handover', minutes: 60, needs: { install_crew: 1 } },
+      ],
+      links: [],
+    });
+    // Wed 10 Jun from 12:00 BST: AW-301's fill (09:00–11:00 BST) is not in it.
+    const res = await markAway(scheduler, otter, {
+      from: '2026-06-10',
+      to: '2026-06-10',
+      fromTime: '12:00',
+      reason: 'Dentist',
+    }).expect(201);
+    expect(res.body.absence).toMatchObject({ from: '2026-06-10', to: '2026-06-10', fromTime: '12:00', toTime: null });
+    expect(res.body.affected).toEqual([]);
+    // 12:00 BST is 11:00 UTC; the day ends at 00:00 BST Thu (23:00 UTC Wed).
+    expect(await closuresOf(scheduler, otter)).toContainEqual({
+      start: Date.UTC(2026, 5, 10, 11),
+      end: Date.UTC(2026, 5, 10, 23),
+    });
+    const book = (stageId: string | undefined, startsAt: string, endsAt: string) =>
+      scheduler
+        .post('/api/bookings')
+        .set('X-CSRF-Token', scheduler.csrf)
+        .send({ stageId, resourceId: otter, startsAt, endsAt });
+    // 13:00–14:00 BST is in the time away; 11:00–12:00 BST ends as it begins.
+    const refused = await book(job.stage.fill, '2026-06-10T12:00:00Z', '2026-06-10T13:00:00Z').expect(422);
+    expect(refused.body.violations.map((v: { kind: string }) => v.kind)).toContain('availability');
+    await book(job.stage.fill, '2026-06-10T10:00:00Z', '2026-06-10T11:00:00Z').expect(201);
+
+    // Thu 11 Jun until 10:30 BST names the handover booked at 09:00–10:00 BST, and lists as such.
+    await book(job.stage.handover, '2026-06-11T08:00:00Z', '2026-06-11T09:00:00Z').expect(201);
+    const morning = await markAway(scheduler, otter, {
+      from: '2026-06-11',
+      to: '2026-06-11',
+      toTime: '10:30',
+      reason: 'Van MOT',
+    }).expect(201);
+    expect(morning.body.affected.map((b: { stageName: string }) => b.stageName)).toEqual(['Handover']);
+    const listed = (await scheduler.get(`/api/resources/${otter}/absences`).expect(200)).body.items;
+    expect(listed.map((a: { fromTime: string | null; toTime: string | null }) => [a.fromTime, a.toTime])).toEqual([
+      ['12:00', null],
+      [null, '10:30'],
+    ]);
+    for (const a of listed)
+      await scheduler.delete(`/api/absences/${a.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+  });
+
+  it('refuses a time that is not one, or that ends before it starts, naming the field; the firm closes whole days only', async () => {
+    const day = { from: '2026-06-10', to: '2026-06-10', reason: 'Dentist' };
+    const cases: [Record<string, unknown>, { field: string; message: string }][] = [
+      [
+        { ...day, fromTime: '25:00' },
+        { field: 'fromTime', message: 'must be a time of day like 13:00' },
+      ],
+      [
+        { ...day, toTime: '9am' },
+        { field: 'toTime', message: 'must be a time of day like 13:00' },
+      ],
+      [
+        { ...day, fromTime: '14:00', toTime: '13:00' },
+        { field: 'toTime', message: 'must be after the time away starts' },
+      ],
+      [
+        { ...day, toTime: '00:00' },
+        { field: 'toTime', message: 'must be after 00:00: leave it out when the last day is away whole' },
+      ],
+    ];
+    for (const [body, problem] of cases)
+      expect((await markAway(scheduler, otter, body).expect(400)).body.errors, JSON.stringify(body)).toEqual([problem]);
+    // Over two days, back at 09:00 on the second after leaving at 14:00 on the first is fine.
+    const overnight = await markAway(scheduler, otter, {
+      ...day,
+      to: '2026-06-11',
+      fromTime: '14:00',
+      toTime: '09:00',
+    }).expect(201);
+    await scheduler
+      .delete(`/api/absences/${overnight.body.absence.id}`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .expect(204);
+    const closure = await scheduler
+      .post('/api/firm/closures')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ ...day, fromTime: '12:00' })
+      .expect(400);
+    expect(closure.body.errors).toEqual([{ field: 'fromTime', message: 'is not a field this request takes' }]);
   });
 });
 

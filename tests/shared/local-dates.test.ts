@@ -6,6 +6,9 @@ import {
   deadlineDate,
   endOfLocalDay,
   localDateOf,
+  localSpanOf,
+  localTimeOf,
+  localTimeOn,
   orderedFrom,
   promisedDeadline,
   startOfLocalDay,
@@ -44,6 +47,50 @@ describe('a local day in London across the clock changes', () => {
     // In winter London is on UTC: the same wall time stays on its date.
     expect(localDateOf(Date.UTC(2026, 0, 15, 23, 30), 'Europe/London')).toBe('2026-01-15');
     expect(todayIn('Europe/London', new Date('2026-03-29T23:30:00Z'))).toBe('2026-03-30');
+  });
+});
+
+describe('a time of day on a date (part of a day away)', () => {
+  it('is the wall clock on the day, in summer, in winter and on both clock-change days', () => {
+    expect(localTimeOn('2026-06-03', '13:00', 'Europe/London')).toBe(Date.UTC(2026, 5, 3, 12));
+    expect(localTimeOn('2026-12-09', '13:00', 'Europe/London')).toBe(Date.UTC(2026, 11, 9, 13));
+    // Spring day: 01:00 GMT is the change, so 13:00 is BST (12:00 UTC); autumn: back on GMT by 13:00.
+    expect(localTimeOn('2026-03-29', '13:00', 'Europe/London')).toBe(Date.UTC(2026, 2, 29, 12));
+    expect(localTimeOn('2026-10-25', '13:00', 'Europe/London')).toBe(Date.UTC(2026, 9, 25, 13));
+    // New York in winter is UTC−5.
+    expect(localTimeOn('2026-12-09', '09:30', 'America/New_York')).toBe(Date.UTC(2026, 11, 9, 14, 30));
+    expect(() => localTimeOn('2026-12-09', '24:00', 'Europe/London')).toThrow(RangeError);
+  });
+
+  it('reads back from an instant as the wall clock, not the hours since midnight (25 on the autumn day)', () => {
+    expect(localTimeOf(Date.UTC(2026, 9, 25, 13), 'Europe/London')).toBe('13:00');
+    expect(localTimeOf(Date.UTC(2026, 2, 29, 12), 'Europe/London')).toBe('13:00');
+    expect(localTimeOf(Date.UTC(2026, 5, 3, 23, 15), 'Europe/London')).toBe('00:15');
+  });
+
+  it('reads a span as whole days, or with the times where it starts or ends inside a day', () => {
+    const zone = 'Europe/London';
+    // Wed 3 – Thu 4 June, whole days: 00:00 BST Wed to 00:00 BST Fri.
+    expect(localSpanOf(Date.UTC(2026, 5, 2, 23), Date.UTC(2026, 5, 4, 23), zone)).toEqual({
+      from: '2026-06-03',
+      to: '2026-06-04',
+      fromTime: null,
+      toTime: null,
+    });
+    // From 14:00 BST Wed to 10:30 BST Thu.
+    expect(localSpanOf(Date.UTC(2026, 5, 3, 13), Date.UTC(2026, 5, 4, 9, 30), zone)).toEqual({
+      from: '2026-06-03',
+      to: '2026-06-04',
+      fromTime: '14:00',
+      toTime: '10:30',
+    });
+    // The whole autumn day (25 hours) is still one whole day.
+    expect(localSpanOf(startOfLocalDay('2026-10-25', zone), endOfLocalDay('2026-10-25', zone), zone)).toEqual({
+      from: '2026-10-25',
+      to: '2026-10-25',
+      fromTime: null,
+      toTime: null,
+    });
   });
 });
 

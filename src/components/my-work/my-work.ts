@@ -55,14 +55,26 @@ export function awayOn(away: readonly MyWorkAway[], day: string): MyWorkAway[] {
 }
 
 /**
- * Who is away, and why, in a few words.
- * @example awayWords({ resourceName: 'Crew Heron', from: '2026-06-03', to: '2026-06-04', reason: 'Holiday' })
+ * Who is away, and why, in a few words; on a `day` where it starts or ends inside the day, when.
+ * @example awayWords({ resourceName: 'Crew Heron', from: '2026-06-03', to: '2026-06-04', fromTime: null, toTime: null, reason: 'Holiday' })
  * // 'Crew Heron is marked away (Holiday)'
+ * @example awayWords({ resourceName: 'Connor Reid', from: '2026-06-03', to: '2026-06-03', fromTime: '14:00', toTime: null, reason: 'Dentist' }, '2026-06-03')
+ * // 'Connor Reid is marked away from 14:00 (Dentist)'
  */
-export function awayWords(a: MyWorkAway): string {
+export function awayWords(a: MyWorkAway, day?: string): string {
+  const starts = day === a.from ? a.fromTime : null;
+  const ends = day === a.to ? a.toTime : null;
+  const when =
+    starts !== null && ends !== null
+      ? ` ${starts}–${ends}`
+      : starts !== null
+        ? ` from ${starts}`
+        : ends !== null
+          ? ` until ${ends}`
+          : '';
   return a.resourceName === null
-    ? `The firm is closed (${a.reason})`
-    : `${a.resourceName} is marked away (${a.reason})`;
+    ? `The firm is closed${when} (${a.reason})`
+    : `${a.resourceName} is marked away${when} (${a.reason})`;
 }
 
 /** The words around each progress step: the button, the question before it and what is said after. */
