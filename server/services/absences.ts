@@ -9,7 +9,7 @@ import type {
   CreateClosure,
 } from '../../shared/schemas/absences.ts';
 import { addDays, localDateOf, localSpanOf, localTimeOn, startOfLocalDay } from '../../shared/local-dates.ts';
-import { NotFoundError } from '../errors.ts';
+import { BadRequestError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
@@ -87,6 +87,12 @@ export class AbsencesService {
           ? localTimeOn(input.to, input.toTime, r.timeZone)
           : startOfLocalDay(addDays(input.to, 1), r.timeZone),
       );
+      // Times in order on the page can still meet the wrong way round across the hour the clocks
+      // skip in spring (01:30 is 02:30 then).
+      if (endsAt <= startsAt)
+        throw new BadRequestError('The time away must end after it starts.', [
+          { field: 'toTime', message: 'must be after the time away starts (the clocks go forward that night)' },
+        ]);
       const [row] = (await trx('calendar_exceptions')
         .insert({ resource_id: r.id, starts_at: startsAt, ends_at: endsAt, reason: input.reason })
         .returning(['id', 'resource_id', 'starts_at', 'ends_at', 'reason'])) as ExceptionRow[];

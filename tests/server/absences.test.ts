@@ -218,6 +218,12 @@ describe('part of a day away', () => {
         { field: 'toTime', message: 'must be after 00:00: leave it out when the last day is away whole' },
       ],
     ];
+    // BST begins Sun 28 Mar 2027 at 01:00 UTC (last Sunday of March, gov.uk): 01:30 does not happen
+    // (it is 02:30 BST, 01:30 UTC), so "01:30 to 02:15" would end (01:15 UTC) before it starts.
+    cases.push([
+      { from: '2027-03-28', to: '2027-03-28', reason: 'Dentist', fromTime: '01:30', toTime: '02:15' },
+      { field: 'toTime', message: 'must be after the time away starts (the clocks go forward that night)' },
+    ]);
     for (const [body, problem] of cases)
       expect((await markAway(scheduler, otter, body).expect(400)).body.errors, JSON.stringify(body)).toEqual([problem]);
     // Over two days, back at 09:00 on the second after leaving at 14:00 on the first is fine.
