@@ -231,6 +231,14 @@ describe("renaming a resource on the firm's books", () => {
     expect(stale.body).toMatchObject({ code: 'stale-version', current: { id: otter, name: 'Crew Otter' } });
     const taken = await rename(scheduler, otter, { name: 'Crew Heron', previousName: 'Crew Otter' }).expect(409);
     expect(taken.body.errors).toEqual([{ field: 'name', message: 'is already used by another resource' }]);
+    // Two renames from the same page at once: one is made, the other is told of it.
+    const both = await Promise.all(
+      ['Crew Osprey', 'Crew Owl'].map((name) => rename(scheduler, otter, { name, previousName: 'Crew Otter' })),
+    );
+    expect(both.map((r) => r.status).sort()).toEqual([200, 409]);
+    const made = both.find((r) => r.status === 200)!.body.name as string;
+    expect(both.find((r) => r.status === 409)!.body.current).toEqual({ id: otter, name: made });
+    await rename(scheduler, otter, { name: 'Crew Otter', previousName: made }).expect(200);
     // A name only a resource taken off the books had is free.
     await rename(scheduler, otter, { name: 'Crew Wren', previousName: 'Crew Otter' }).expect(200);
     await rename(scheduler, otter, { name: 'Crew Otter', previousName: 'Crew Wren' }).expect(200);
