@@ -126,6 +126,12 @@ export function apiRoutes(
         await books.rename(req.actor!, parse(IdParams, req.params, 'params').id, parse(RenameResource, req.body)),
       );
     })
+    .get('/api/resources/retired', 'resources:write', async (req, res) => {
+      res.json({ items: await books.retired(req.actor!) });
+    })
+    .post('/api/resources/:id/restore', 'resources:write', async (req, res) => {
+      res.json(await books.restore(req.actor!, parse(IdParams, req.params, 'params').id));
+    })
     .delete('/api/resources/:id', 'resources:write', async (req, res) => {
       await books.retire(req.actor!, parse(IdParams, req.params, 'params').id);
       res.status(204).end();

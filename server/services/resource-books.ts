@@ -90,6 +90,49 @@ export class ResourceBooksService {
     });
   }
 
+  /** The firm's own resources taken off its books, to put one back (most recently taken off first). */
+  async retired(actor: Actor): Promise<ResourceListed[]> {
+    if (reachOf(actor) === 'crew') throw new NotFoundError('firm');
+    const firm = (await this.knex('firms').where('id', actor.firmId).first('name', 'kind')) as {
+      name: string;
+      kind: string;
+    };
+    const rows = (await this.knex('resources')
+      .where({ firm_id: actor.firmId, active: false })
+      .orderBy([{ column: 'name' }, { column: 'id' }])
+      .select('id', 'name', 'category', 'kind', 'ownership')) as Omit<
+      ResourceListed,
+      'firmId' | 'firmName' | 'firmKind'
+    >[];
+    return rows.map((r) => ({
+      ...r,
+      id: String(r.id),
+      firmId: actor.firmId,
+      firmName: firm.name,
+      firmKind: firm.kind,
+    }));
+  }
+
+  /**
+   * Puts a resource taken off the books back on them, with its history (undoing a slip, or a crew
+   * made up again). Refused (409) while another of the firm's resources has its name.
+   */
+  async restore(actor: Actor, resourceId: string): Promise<{ id: string; name: string }> {
+    return this.knex.transaction(async (trx) => {
+      const r = (await trx('resources')
+        .where({ id: resourceId, firm_id: actor.firmId })
+        .forUpdate()
+        .first('id', 'name', 'active')) as { id: string; name: string; active: boolean } | undefined;
+      if (!r || reachOf(actor) === 'crew') throw new NotFoundError('resource');
+      if (r.active) throw new ConflictError(`${r.name} is on the books already.`, { code: 'not-retired' });
+      // Another resource of that name on the books meanwhile: the unique name index refuses it (409, naming the name).
+      await trx('resources').where('id', r.id).update({ active: true });
+      await recordChange(trx, actor, 'resource', String(r.id), 'update', { active: false }, { active: true });
+      await notifyFirmChange(trx, actor.firmId);
+      return { id: String(r.id), name: r.name };
+    });
+  }
+
   /**
    * Takes a resource off the firm's books. Refused (409, naming them) while it has bookings from
    * now on that stand: those are moved or taken off the board first, so no booking loses its crew.

@@ -1,5 +1,5 @@
 import { h } from 'vue';
-import { useMessage, useNotification } from 'naive-ui';
+import { NButton, useMessage, useNotification } from 'naive-ui';
 import { fieldProblemText, problemSummary } from '@/utils/problem';
 
 /**
@@ -32,8 +32,32 @@ export function useProblemMessage() {
     });
   }
 
-  function showDone(text: string): void {
-    message.success(text);
+  /** Says what was done; with `undo`, offers to take it back for ten seconds. */
+  function showDone(text: string, undo?: () => void): void {
+    if (!undo) {
+      message.success(text);
+      return;
+    }
+    const shown = message.success(
+      () =>
+        h('span', { class: 'undo-message' }, [
+          `${text} `,
+          h(
+            NButton,
+            {
+              text: true,
+              type: 'primary',
+              class: 'undo-message__button',
+              onClick: () => {
+                shown.destroy();
+                undo();
+              },
+            },
+            () => 'Undo',
+          ),
+        ]),
+      { duration: 10_000, closable: true },
+    );
   }
 
   return { showProblem, showDone };

@@ -134,9 +134,24 @@ describe('time away on the Resources page', () => {
       'Crew Wrenn',
     );
 
-    await page.getByRole('button', { name: 'Take Crew Wrenn off the books…' }).click();
-    await page.getByRole('button', { name: 'Take it off' }).click();
-    await expect.poll(() => page.getByRole('button', { name: 'Edit Crew Wrenn' }).count()).toBe(0);
+    const takeOff = async () => {
+      await page.getByRole('button', { name: 'Take Crew Wrenn off the books…' }).click();
+      await page.getByRole('button', { name: 'Take it off' }).click();
+      await expect.poll(() => page.getByRole('button', { name: 'Edit Crew Wrenn' }).count()).toBe(0);
+    };
+    // Taken off by a slip: the message's Undo puts it back.
+    await takeOff();
+    await page.getByRole('button', { name: 'Undo' }).click();
+    // Back where it was, its panel still open.
+    expect(await page.getByRole('button', { name: 'Edit Crew Wrenn' }).getAttribute('aria-expanded')).toBe('true');
+    // Taken off again, it is listed under "Taken off the books", from where it can be put back too.
+    await takeOff();
+    await page.getByText(/^Taken off the books/).click();
+    const gone = page.locator('details li', { hasText: 'Crew Wrenn' });
+    await gone.getByRole('button', { name: 'Put back' }).click();
+    await page.getByRole('button', { name: 'Edit Crew Wrenn' }).waitFor();
+    await expect.poll(() => gone.count()).toBe(0);
+    await takeOff();
     expect((await app.ctx.knex('resources').where('name', 'Crew Wrenn').first('active')).active).toBe(false);
   });
 });

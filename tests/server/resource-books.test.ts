@@ -267,3 +267,37 @@ describe("renaming a resource on the firm's books", () => {
     expect((await ctx.knex('resources').where('id', heron).first('name')).name).toBe('Crew Heron');
   });
 });
+
+describe('putting a resource back on the books', () => {
+  const restore = (as: Agent, id: string) =>
+    as.post(`/api/resources/${id}/restore`).set('X-CSRF-Token', as.csrf).send({});
+  const retiredNames = async (as: Agent) =>
+    ((await as.get('/api/resources/retired').expect(200)).body.items as { name: string }[]).map((r) => r.name);
+
+  it("lists the firm's own taken off, and puts one back with its history; another firm's is 404", async () => {
+    expect(await retiredNames(scheduler)).toEqual(expect.arrayContaining(['Crew Lark', 'Crew Wren']));
+    expect(await retiredNames(partner)).not.toContain('Crew Lark');
+    const lark = String((await ctx.knex('resources').where({ name: 'Crew Lark', active: false }).first('id')).id);
+    await restore(otherInstaller, lark).expect(404);
+    await restore(partner, lark).expect(404);
+    expect((await restore(scheduler, lark).expect(200)).body).toEqual({ id: lark, name: 'Crew Lark' });
+    expect(await boardRows(scheduler)).toContain('Crew Lark');
+    expect(await retiredNames(scheduler)).not.toContain('Crew Lark');
+    const again = await restore(scheduler, lark).expect(409);
+    expect(again.body).toMatchObject({ code: 'not-retired', detail: 'Crew Lark is on the books already.' });
+    expect(
+      await ctx.knex('audit_log').where({ entity: 'resource', entity_id: lark, action: 'update' }).pluck('after'),
+    ).toEqual([{ active: false }, { active: true }]);
+  });
+
+  it('is refused while another on the books has its name, naming the field', async () => {
+    const [old] = await ctx.knex('resources').where({ name: 'Crew Wren', active: false }).pluck('id');
+    const now = (await add(scheduler, { name: 'Crew Wren', category: 'crew', kind: 'install_crew' }).expect(201)).body
+      .id as string;
+    const clash = await restore(scheduler, String(old)).expect(409);
+    expect(clash.body.errors).toEqual([{ field: 'name', message: 'is already used by another resource' }]);
+    await retire(scheduler, now).expect(204);
+    await restore(scheduler, String(old)).expect(200);
+    await retire(scheduler, String(old)).expect(204);
+  });
+});
