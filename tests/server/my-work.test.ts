@@ -231,18 +231,35 @@ describe('marking progress, and taking it back, through the guarded writer', () 
     const otter = await idOf(ctx.knex, 'resources', { name: 'Crew Otter' });
     await mark(`/api/resources/${heron}/absences`, { from: '2026-06-03', to: '2026-06-04', reason: 'Holiday' });
     await mark(`/api/resources/${otter}/absences`, { from: '2026-06-02', to: '2026-06-02', reason: 'Training' });
+    const connor = await idOf(ctx.knex, 'resources', { name: 'Connor Reid' });
+    await mark(`/api/resources/${connor}/absences`, {
+      from: '2026-06-09',
+      to: '2026-06-09',
+      fromTime: '14:00',
+      reason: 'Dentist',
+    });
     await mark('/api/firm/closures', { from: '2026-06-12', to: '2026-06-12', reason: 'Training day' });
     await mark('/api/firm/closures', { from: '2026-06-22', to: '2026-06-23', reason: 'Works shutdown' });
     try {
       // Connor works as Crew Heron (not Otter); the shutdown of 22 Jun is past the fortnight.
+      // His own afternoon off (from 14:00 BST on Tue 9 Jun) is told with its time.
+      const whole = { fromTime: null, toTime: null };
       expect((await myWork()).away).toEqual([
-        { resourceName: 'Crew Heron', from: '2026-06-03', to: '2026-06-04', reason: 'Holiday' },
-        { resourceName: null, from: '2026-06-12', to: '2026-06-12', reason: 'Training day' },
+        { resourceName: 'Crew Heron', from: '2026-06-03', to: '2026-06-04', ...whole, reason: 'Holiday' },
+        {
+          resourceName: 'Connor Reid',
+          from: '2026-06-09',
+          to: '2026-06-09',
+          fromTime: '14:00',
+          toTime: null,
+          reason: 'Dentist',
+        },
+        { resourceName: null, from: '2026-06-12', to: '2026-06-12', ...whole, reason: 'Training day' },
       ]);
     } finally {
       await ctx
         .knex('calendar_exceptions')
-        .whereIn('reason', ['Holiday', 'Training', 'Training day', 'Works shutdown'])
+        .whereIn('reason', ['Holiday', 'Training', 'Training day', 'Works shutdown', 'Dentist'])
         .where('starts_at', '>=', '2026-06-01')
         .delete();
     }
