@@ -18,7 +18,7 @@ import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
 import { AbsencesService } from '../services/absences.ts';
 import { ResourceBooksService } from '../services/resource-books.ts';
-import { CreateResource, RenameResource } from '../../shared/schemas/resources.ts';
+import { CreateResource, RenameResource, SetCrewMembers } from '../../shared/schemas/resources.ts';
 import { CreateAbsence, CreateClosure } from '../../shared/schemas/absences.ts';
 import { BookingsService } from '../services/bookings.ts';
 import type { BookingLimits } from '../services/booking-writes.ts';
@@ -125,6 +125,13 @@ export function apiRoutes(
       res.json(
         await books.rename(req.actor!, parse(IdParams, req.params, 'params').id, parse(RenameResource, req.body)),
       );
+    })
+    .get('/api/resources/:id/members', 'resources:write', async (req, res) => {
+      res.json(await books.members(req.actor!, parse(IdParams, req.params, 'params').id));
+    })
+    .put('/api/resources/:id/members', 'resources:write', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await books.setMembers(req.actor!, id, parse(SetCrewMembers, req.body)));
     })
     .get('/api/resources/retired', 'resources:write', async (req, res) => {
       res.json({ items: await books.retired(req.actor!) });

@@ -1,9 +1,17 @@
 import type { Knex } from 'knex';
-import type { CreateResource, RenameResource } from '../../shared/schemas/resources.ts';
+import type {
+  CreateResource,
+  CrewMembers,
+  CrewPerson,
+  RenameResource,
+  SetCrewMembers,
+} from '../../shared/schemas/resources.ts';
+import type { AffectedBooking } from '../../shared/schemas/absences.ts';
+import { BadRequestError } from '../errors.ts';
 import { ConflictError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
-import { notifyFirmChange } from './board-stream.ts';
+import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
 import { lockResources } from './booking-writes.ts';
 import { bookingsWithin } from './absences.ts';
 
@@ -88,6 +96,122 @@ export class ResourceBooksService {
       await notifyFirmChange(trx, actor.firmId);
       return { id: String(r.id), name: input.name };
     });
+  }
+
+  /** One of the firm's own crews, still on the books (404 otherwise, and to crew members). */
+  private async ownCrew(actor: Actor, crewId: string, trx: Knex | Knex.Transaction = this.knex) {
+    const crew = (await trx('resources')
+      .where({ id: crewId, firm_id: actor.firmId, active: true })
+      .first('id', 'name', 'category')) as { id: string; name: string; category: string } | undefined;
+    if (!crew || reachOf(actor) === 'crew') throw new NotFoundError('resource');
+    if (crew.category !== 'crew')
+      throw new ConflictError(`${crew.name} is not a crew: only a crew has people in it.`, { code: 'not-a-crew' });
+    return { ...crew, id: String(crew.id) };
+  }
+
+  /** Who is in the crew, and the firm's people on the books, each with the other crews they are in. */
+  async members(actor: Actor, crewId: string, trx: Knex | Knex.Transaction = this.knex): Promise<CrewMembers> {
+    const crew = await this.ownCrew(actor, crewId, trx);
+    const people = (await trx('resources')
+      .where({ firm_id: actor.firmId, category: 'person', active: true })
+      .orderBy([{ column: 'name' }, { column: 'id' }])
+      .select('id', 'name')) as { id: string; name: string }[];
+    const links = (await trx('crew_members as cm')
+      .join('resources as c', 'c.id', 'cm.crew_id')
+      .where({ 'c.firm_id': actor.firmId, 'c.active': true })
+      .select('cm.crew_id', 'cm.person_id', 'c.name as crew_name')) as {
+      crewId: string;
+      personId: string;
+      crewName: string;
+    }[];
+    const view = (p: { id: string; name: string }): CrewPerson => ({
+      id: String(p.id),
+      name: p.name,
+      alsoIn: links
+        .filter((l) => String(l.personId) === String(p.id) && String(l.crewId) !== crew.id)
+        .map((l) => l.crewName)
+        .sort(),
+    });
+    const inCrew = new Set(links.filter((l) => String(l.crewId) === crew.id).map((l) => String(l.personId)));
+    return {
+      crewId: crew.id,
+      members: people.filter((p) => inCrew.has(String(p.id))).map(view),
+      people: people.map(view),
+    };
+  }
+
+  /**
+   * Sets who is in one of the firm's own crews. Refused (409 `person-double`, naming the bookings)
+   * when a person added would then be in two places from now on: on this crew's booking and, at
+   * the same time, on their own or another crew's (the board's one-person-in-two-places rule).
+   */
+  async setMembers(actor: Actor, crewId: string, input: SetCrewMembers): Promise<CrewMembers> {
+    return this.knex.transaction(async (trx) => {
+      // Bookings on the crew written meanwhile are seen below, or wait for this to commit.
+      await lockResources(trx, [crewId]);
+      const crew = await this.ownCrew(actor, crewId, trx);
+      const now = (await trx('crew_members').where('crew_id', crew.id).orderBy('person_id').pluck('person_id')).map(
+        String,
+      );
+      const sorted = (ids: readonly string[]) => [...new Set(ids)].sort((a, b) => Number(a) - Number(b));
+      if (JSON.stringify(sorted(now)) !== JSON.stringify(sorted(input.previousPersonIds)))
+        throw new ConflictError('Someone else changed the people in this crew meanwhile: reload and try again.', {
+          code: 'stale-version',
+          current: await this.members(actor, crew.id, trx),
+        });
+      const wanted = sorted(input.personIds);
+      const ours = new Set(
+        (
+          await trx('resources')
+            .whereIn('id', wanted)
+            .where({ firm_id: actor.firmId, category: 'person', active: true })
+            .pluck('id')
+        ).map(String),
+      );
+      const strangers = wanted.filter((id) => !ours.has(id));
+      if (strangers.length)
+        throw new BadRequestError("Only the firm's own people on its books can be in its crew.", [
+          { field: 'personIds', message: `must be your firm's own people on its books (not ${strangers.join(', ')})` },
+        ]);
+      const added = wanted.filter((id) => !now.includes(id));
+      const doubles = await this.doublesFromNow(trx, actor, crew.id, added);
+      if (doubles.length)
+        throw new ConflictError(
+          `${doubles[0]!.person} would be in two places: ${crew.name} is booked while they are booked elsewhere. Move one of the bookings first, or leave them out.`,
+          { code: 'person-double', doubles },
+        );
+      await trx('crew_members').where('crew_id', crew.id).delete();
+      if (wanted.length) await trx('crew_members').insert(wanted.map((p) => ({ crew_id: crew.id, person_id: p })));
+      await recordChange(trx, actor, 'resource', crew.id, 'update', { personIds: sorted(now) }, { personIds: wanted });
+      await notifyResourceChange(trx, crew.id);
+      return this.members(actor, crew.id, trx);
+    });
+  }
+
+  /** For each person added, the crew's bookings from now on that overlap their own or their other crews'. */
+  private async doublesFromNow(
+    trx: Knex.Transaction,
+    actor: Actor,
+    crewId: string,
+    added: string[],
+  ): Promise<{ person: string; crewBooking: AffectedBooking; elsewhere: AffectedBooking }[]> {
+    if (added.length === 0) return [];
+    const from = new Date(this.now());
+    const onCrew = await bookingsWithin(trx, actor, [crewId], from);
+    if (onCrew.length === 0) return [];
+    const out: { person: string; crewBooking: AffectedBooking; elsewhere: AffectedBooking }[] = [];
+    for (const personId of added) {
+      const person = (await trx('resources').where('id', personId).first('name')) as { name: string };
+      const otherCrews = (
+        await trx('crew_members').where('person_id', personId).whereNot('crew_id', crewId).pluck('crew_id')
+      ).map(String);
+      const elsewhere = await bookingsWithin(trx, actor, [personId, ...otherCrews], from);
+      for (const a of onCrew)
+        for (const b of elsewhere)
+          if (a.startsAt < b.endsAt && b.startsAt < a.endsAt)
+            out.push({ person: person.name, crewBooking: a, elsewhere: b });
+    }
+    return out;
   }
 
   /** The firm's own resources taken off its books, to put one back (most recently taken off first). */

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { oneLineText } from './common.ts';
+import { Id, oneLineText } from './common.ts';
 import { ResourceKind } from './placement.ts';
 
 export const RESOURCE_CATEGORIES = ['crew', 'person', 'machine'] as const;
@@ -40,3 +40,31 @@ export const RenameResource = z
   })
   .strict();
 export type RenameResource = z.infer<typeof RenameResource>;
+
+/**
+ * PUT /api/resources/:id/members: the people in one of the firm's own crews (its person rows).
+ * `previousPersonIds` is the list the page showed: a change made meanwhile is refused (409), not
+ * overwritten.
+ */
+export const SetCrewMembers = z
+  .object({
+    personIds: z.array(Id).max(50, 'may list at most 50 people'),
+    previousPersonIds: z.array(Id).max(50, 'may list at most 50 people'),
+  })
+  .strict();
+export type SetCrewMembers = z.infer<typeof SetCrewMembers>;
+
+/** A person of the firm as a crew's page lists them. */
+export interface CrewPerson {
+  id: string;
+  name: string;
+  /** The firm's other crews the person is in (by name). */
+  alsoIn: string[];
+}
+
+/** GET /api/resources/:id/members: who is in the crew, and the firm's people who could be. */
+export interface CrewMembers {
+  crewId: string;
+  members: CrewPerson[];
+  people: CrewPerson[];
+}

@@ -154,4 +154,38 @@ describe('time away on the Resources page', () => {
     await takeOff();
     expect((await app.ctx.knex('resources').where('name', 'Crew Wrenn').first('active')).active).toBe(false);
   });
+
+  it('puts a person in a crew, and refuses one who would be in two places, naming the bookings', async () => {
+    await page.goto(`${app.url}/resources`);
+    await page.getByRole('button', { name: 'Add a crew, person or machine' }).click();
+    const form = page.getByRole('form', { name: 'Add a crew, person or machine' });
+    await form.getByLabel('Name').fill('Ola Quist');
+    await form.getByLabel('What it is').selectOption('person');
+    await form.getByLabel('Kind').fill('installer');
+    await form.getByRole('button', { name: 'Add', exact: true }).click();
+    await page.getByRole('button', { name: 'Edit Ola Quist' }).waitFor();
+
+    await page.getByRole('button', { name: 'Edit Crew Otter' }).click();
+    const crew = page.getByRole('form', { name: 'People in Crew Otter' });
+    // Jamie is in Crew Kestrel, booked at the same times as Crew Otter this month.
+    await crew.getByLabel(/Jamie Whitlow/).check();
+    await crew.getByRole('button', { name: 'Save the crew' }).click();
+    await crew.getByRole('status').waitFor();
+    expect(await crew.getByRole('status').locator('li').first().textContent()).toMatch(
+      /^Jamie Whitlow: Crew Otter on /,
+    );
+    await crew.getByLabel(/Jamie Whitlow/).uncheck();
+    await crew.getByLabel(/Ola Quist/).check();
+    await crew.getByRole('button', { name: 'Save the crew' }).click();
+    const otter = await idOf(app.ctx.knex, 'resources', { name: 'Crew Otter' });
+    const ola = await idOf(app.ctx.knex, 'resources', { name: 'Ola Quist' });
+    await expect
+      .poll(async () => (await app.ctx.knex('crew_members').where('crew_id', otter).pluck('person_id')).map(String))
+      .toContain(ola);
+    await crew.getByLabel(/Ola Quist/).uncheck();
+    await crew.getByRole('button', { name: 'Save the crew' }).click();
+    await expect
+      .poll(async () => (await app.ctx.knex('crew_members').where('crew_id', otter).pluck('person_id')).map(String))
+      .not.toContain(ola);
+  });
 });

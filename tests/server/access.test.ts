@@ -310,6 +310,8 @@ function validBody(
       return { body: { resourceId: ids.person, version: 1 } };
     case 'patch /api/hire-periods/:id':
       return { body: { version: 1, status: 'ended' } };
+    case 'put /api/resources/:id/members':
+      return { body: { personIds: [], previousPersonIds: [] } };
     case 'patch /api/resources/:id':
       return { body: { name: 'Crew Renamed', previousName: 'Crew Heron' } };
     case 'post /api/firm/closures':

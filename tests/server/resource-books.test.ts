@@ -301,3 +301,97 @@ describe('putting a resource back on the books', () => {
     await retire(scheduler, String(old)).expect(204);
   });
 });
+
+describe('the people in a crew', () => {
+  const membersOf = async (id: string) =>
+    (await scheduler.get(`/api/resources/${id}/members`).expect(200)).body as {
+      members: { id: string; name: string; alsoIn: string[] }[];
+      people: { id: string; name: string; alsoIn: string[] }[];
+    };
+  const setMembers = (as: Agent, id: string, body: Record<string, unknown>) =>
+    as.put(`/api/resources/${id}/members`).set('X-CSRF-Token', as.csrf).send(body);
+  const boardPeople = async (id: string) =>
+    (
+      (await scheduler.get('/api/board').query(WEEK).expect(200)).body.resources as {
+        id: string;
+        personIds: string[];
+      }[]
+    )
+      .find((r) => r.id === id)!
+      .personIds.slice()
+      .sort();
+
+  it('lists who is in the crew, and every person of the firm with the other crews they are in', async () => {
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const list = await membersOf(heron);
+    expect(list.members.map((m) => m.name)).toEqual(['Aisha Bello', 'Connor Reid']);
+    expect(list.people.find((p) => p.name === 'Jamie Whitlow')?.alsoIn).toEqual(['Crew Kestrel']);
+    expect(list.people.find((p) => p.name === 'Connor Reid')?.alsoIn).toEqual([]);
+    expect(list.people.map((p) => p.name)).not.toContain('Priya Nair');
+  });
+
+  it('takes a new person in and out again; the board knows them as the crew’s, and it is audited', async () => {
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const ola = (await add(scheduler, { name: 'Ola Quist', category: 'person', kind: 'installer' }).expect(201)).body
+      .id as string;
+    const before = (await membersOf(heron)).members.map((m) => m.id);
+    const res = await setMembers(scheduler, heron, { personIds: [...before, ola], previousPersonIds: before }).expect(
+      200,
+    );
+    expect(res.body.members.map((m: { name: string }) => m.name)).toEqual(['Aisha Bello', 'Connor Reid', 'Ola Quist']);
+    expect(await boardPeople(heron)).toEqual([...before, ola].sort());
+    await setMembers(scheduler, heron, { personIds: before, previousPersonIds: [...before, ola] }).expect(200);
+    expect(await boardPeople(heron)).toEqual(before.slice().sort());
+    const audit = await ctx
+      .knex('audit_log')
+      .where({ entity: 'resource', entity_id: heron, action: 'update' })
+      .orderBy('id')
+      .pluck('after');
+    expect(audit.slice(-2).map((a: { personIds: string[] }) => a.personIds.length)).toEqual([3, 2]);
+  });
+
+  it('refuses a person who would then be in two places from now on, naming both bookings, and changes nothing', async () => {
+    // Jamie is in Crew Kestrel, which the demo books through June as it does Crew Heron.
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const jamie = await idOf(ctx.knex, 'resources', { name: 'Jamie Whitlow' });
+    const before = (await membersOf(heron)).members.map((m) => m.id);
+    const res = await setMembers(scheduler, heron, {
+      personIds: [...before, jamie],
+      previousPersonIds: before,
+    }).expect(409);
+    expect(res.body.code).toBe('person-double');
+    expect(res.body.detail).toMatch(/^Jamie Whitlow would be in two places: Crew Heron is booked while/);
+    expect(res.body.doubles.length).toBeGreaterThan(0);
+    type Span = { startsAt: string; endsAt: string };
+    for (const d of res.body.doubles as { crewBooking: Span; elsewhere: Span }[]) {
+      expect(Date.parse(d.crewBooking.startsAt)).toBeLessThan(Date.parse(d.elsewhere.endsAt));
+      expect(Date.parse(d.elsewhere.startsAt)).toBeLessThan(Date.parse(d.crewBooking.endsAt));
+      expect(Date.parse(d.crewBooking.endsAt)).toBeGreaterThan(Date.parse('2026-06-01T00:00:00Z'));
+    }
+    expect((await membersOf(heron)).members.map((m) => m.id)).toEqual(before);
+  });
+
+  it('never overwrites a change made meanwhile, takes only the firm’s own people, and is for crews only', async () => {
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const before = (await membersOf(heron)).members.map((m) => m.id);
+    const stale = await setMembers(scheduler, heron, { personIds: before, previousPersonIds: before.slice(1) }).expect(
+      409,
+    );
+    expect(stale.body.code).toBe('stale-version');
+    expect(stale.body.current.members.map((m: { id: string }) => m.id)).toEqual(before);
+    const priya = await idOf(ctx.knex, 'resources', { name: 'Priya Nair' });
+    const stranger = await setMembers(scheduler, heron, { personIds: [...before, priya], previousPersonIds: before });
+    expect(stranger.status).toBe(400);
+    expect(stranger.body.errors.map((e: { field: string }) => e.field)).toEqual(['personIds']);
+    const dumper = await idOf(ctx.knex, 'resources', { name: 'Tracked dumper' });
+    expect((await setMembers(scheduler, dumper, { personIds: [], previousPersonIds: [] }).expect(409)).body.code).toBe(
+      'not-a-crew',
+    );
+    await setMembers(otherInstaller, heron, { personIds: [], previousPersonIds: before }).expect(404);
+    await setMembers(partner, heron, { personIds: [], previousPersonIds: before }).expect(404);
+    await otherInstaller.get(`/api/resources/${heron}/members`).expect(404);
+    const bad = await setMembers(scheduler, heron, { personIds: ['x'], previousPersonIds: before }).expect(400);
+    expect(bad.body.errors.map((e: { field: string }) => e.field)).toEqual(['personIds.0']);
+    expect((await membersOf(heron)).members.map((m) => m.id)).toEqual(before);
+  });
+});
