@@ -150,9 +150,14 @@ export class ResourceBooksService {
       // Bookings on the crew written meanwhile are seen below, or wait for this to commit.
       await lockResources(trx, [crewId]);
       const crew = await this.ownCrew(actor, crewId, trx);
-      const now = (await trx('crew_members').where('crew_id', crew.id).orderBy('person_id').pluck('person_id')).map(
-        String,
-      );
+      // The people on the books (as the page lists them): one taken off before is dropped on saving.
+      const now = (
+        await trx('crew_members as cm')
+          .join('resources as p', 'p.id', 'cm.person_id')
+          .where({ 'cm.crew_id': crew.id, 'p.active': true })
+          .orderBy('cm.person_id')
+          .pluck('cm.person_id')
+      ).map(String);
       const sorted = (ids: readonly string[]) => [...new Set(ids)].sort((a, b) => Number(a) - Number(b));
       if (JSON.stringify(sorted(now)) !== JSON.stringify(sorted(input.previousPersonIds)))
         throw new ConflictError('Someone else changed the people in this crew meanwhile: reload and try again.', {
@@ -277,6 +282,17 @@ export class ResourceBooksService {
           { code: 'resource-booked', bookings: ahead },
         );
       }
+      // A person who leaves leaves their crews first (and the crews' bookings no longer count them).
+      const crews = (await trx('crew_members as cm')
+        .join('resources as c', 'c.id', 'cm.crew_id')
+        .where({ 'cm.person_id': r.id, 'c.active': true })
+        .orderBy('c.name')
+        .pluck('c.name')) as string[];
+      if (crews.length)
+        throw new ConflictError(
+          `${r.name} is in ${crews.join(' and ')}: take them out of ${crews.length === 1 ? 'the crew' : 'those crews'} first (a crew's Edit).`,
+          { code: 'in-a-crew', crews },
+        );
       await trx('resources').where('id', r.id).update({ active: false });
       await recordChange(trx, actor, 'resource', String(r.id), 'update', { active: true }, { active: false });
       await notifyFirmChange(trx, actor.firmId);

@@ -371,6 +371,30 @@ describe('the people in a crew', () => {
     expect((await membersOf(heron)).members.map((m) => m.id)).toEqual(before);
   });
 
+  it('keeps a person in a crew on the books: they leave the crew first', async () => {
+    const jamie = await idOf(ctx.knex, 'resources', { name: 'Jamie Whitlow' });
+    const res = await retire(scheduler, jamie).expect(409);
+    expect(res.body).toMatchObject({
+      code: 'in-a-crew',
+      crews: ['Crew Kestrel'],
+      detail: "Jamie Whitlow is in Crew Kestrel: take them out of the crew first (a crew's Edit).",
+    });
+    expect((await ctx.knex('resources').where('id', jamie).first('active')).active).toBe(true);
+  });
+
+  it('saves a crew whose list still held someone taken off the books before, dropping them', async () => {
+    // Older data: a person taken off while in a crew (as the rule above now refuses).
+    const otter = await idOf(ctx.knex, 'resources', { name: 'Crew Otter' });
+    const gone = (await add(scheduler, { name: 'Pat Lowe', category: 'person', kind: 'installer' }).expect(201)).body
+      .id as string;
+    await ctx.knex('crew_members').insert({ crew_id: otter, person_id: gone });
+    await ctx.knex('resources').where('id', gone).update({ active: false });
+    const shown = (await membersOf(otter)).members.map((m) => m.id);
+    expect(shown).not.toContain(gone);
+    await setMembers(scheduler, otter, { personIds: shown, previousPersonIds: shown }).expect(200);
+    expect((await ctx.knex('crew_members').where('crew_id', otter).pluck('person_id')).map(String)).not.toContain(gone);
+  });
+
   it('never overwrites a change made meanwhile, takes only the firm’s own people, and is for crews only', async () => {
     const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
     const before = (await membersOf(heron)).members.map((m) => m.id);
