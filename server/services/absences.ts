@@ -79,20 +79,7 @@ export class AbsencesService {
   async create(actor: Actor, resourceId: string, input: CreateAbsence): Promise<AbsenceCreated> {
     return this.knex.transaction(async (trx) => {
       const r = await this.ownResource(actor, resourceId, trx);
-      const startsAt = new Date(
-        input.fromTime ? localTimeOn(input.from, input.fromTime, r.timeZone) : startOfLocalDay(input.from, r.timeZone),
-      );
-      const endsAt = new Date(
-        input.toTime
-          ? localTimeOn(input.to, input.toTime, r.timeZone)
-          : startOfLocalDay(addDays(input.to, 1), r.timeZone),
-      );
-      // Times in order on the page can still meet the wrong way round across the hour the clocks
-      // skip in spring (01:30 is 02:30 then).
-      if (endsAt <= startsAt)
-        throw new BadRequestError('The time away must end after it starts.', [
-          { field: 'toTime', message: 'must be after the time away starts (the clocks go forward that night)' },
-        ]);
+      const { startsAt, endsAt } = instantsOf(input, r.timeZone);
       const [row] = (await trx('calendar_exceptions')
         .insert({ resource_id: r.id, starts_at: startsAt, ends_at: endsAt, reason: input.reason })
         .returning(['id', 'resource_id', 'starts_at', 'ends_at', 'reason'])) as ExceptionRow[];
@@ -168,12 +155,7 @@ export class AbsencesService {
   }
 
   private closureView(timeZone: string, e: { id: string; startsAt: Date; endsAt: Date; reason: string }): ClosureView {
-    return {
-      id: String(e.id),
-      from: localDateOf(e.startsAt.getTime(), timeZone),
-      to: localDateOf(e.endsAt.getTime() - 1, timeZone),
-      reason: e.reason,
-    };
+    return { id: String(e.id), ...localSpanOf(e.startsAt, e.endsAt, timeZone), reason: e.reason };
   }
 
   /** Days the whole firm is closed (a works shutdown): those not over, and those of the last 30 days. */
@@ -197,8 +179,7 @@ export class AbsencesService {
     return this.knex.transaction(async (trx) => {
       const { timeZone, calendars } = await this.firmCalendars(actor, trx);
       if (calendars.length === 0) throw new NotFoundError('working calendar');
-      const startsAt = new Date(startOfLocalDay(input.from, timeZone));
-      const endsAt = new Date(startOfLocalDay(addDays(input.to, 1), timeZone));
+      const { startsAt, endsAt } = instantsOf(input, timeZone);
       const rows = await trx('calendar_exceptions')
         .insert(calendars.map((c) => ({ calendar_id: c, starts_at: startsAt, ends_at: endsAt, reason: input.reason })))
         .returning(['id', 'calendar_id', 'starts_at', 'ends_at', 'reason']);
@@ -235,6 +216,25 @@ export class AbsencesService {
       await notifyFirmChange(trx, actor.firmId);
     });
   }
+}
+
+/**
+ * The instants of time away (or a closure) in a firm's zone: from the first day's start, or its
+ * `fromTime`; to the last day's end, or its `toTime`. Times in order on the page can still meet the
+ * wrong way round across the hour the clocks skip in spring (01:30 is 02:30 then): refused.
+ */
+function instantsOf(input: CreateAbsence, zone: string): { startsAt: Date; endsAt: Date } {
+  const startsAt = new Date(
+    input.fromTime ? localTimeOn(input.from, input.fromTime, zone) : startOfLocalDay(input.from, zone),
+  );
+  const endsAt = new Date(
+    input.toTime ? localTimeOn(input.to, input.toTime, zone) : startOfLocalDay(addDays(input.to, 1), zone),
+  );
+  if (endsAt <= startsAt)
+    throw new BadRequestError('The time away must end after it starts.', [
+      { field: 'toTime', message: 'must be after the time away starts (the clocks go forward that night)' },
+    ]);
+  return { startsAt, endsAt };
 }
 
 /**

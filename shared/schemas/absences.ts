@@ -36,17 +36,6 @@ const AT_MOST_A_YEAR = {
 };
 
 /**
- * POST /api/firm/closures: whole local days the firm is closed, in its time zone, `to` included,
- * and why.
- */
-export const CreateClosure = z
-  .object(days)
-  .strict()
-  .refine(toOnOrAfterFrom, TO_ON_OR_AFTER_FROM)
-  .refine(atMostAYear, AT_MOST_A_YEAR);
-export type CreateClosure = z.infer<typeof CreateClosure>;
-
-/**
  * POST /api/resources/:id/absences: local days in the resource's firm's time zone, `to` included,
  * and why; part of a day with `fromTime` (away from then on the first day: a dentist at 14:00) and
  * `toTime` (back by then on the last day), each `HH:MM`. The board shades the time and flags any
@@ -68,6 +57,13 @@ export const CreateAbsence = z
     when: whenDaysAreGood,
   });
 export type CreateAbsence = z.infer<typeof CreateAbsence>;
+
+/**
+ * POST /api/firm/closures: the same days, times and reason, for the whole firm (a works shutdown,
+ * or closing at 13:00 on Christmas Eve).
+ */
+export const CreateClosure = CreateAbsence;
+export type CreateClosure = CreateAbsence;
 
 /** One absence as the firm that owns the resource reads it. */
 export interface AbsenceView {
@@ -104,6 +100,9 @@ export interface ClosureView {
   id: string;
   from: string;
   to: string;
+  /** Closed from this time on the first day, open again at this time on the last (null: whole days). */
+  fromTime: string | null;
+  toTime: string | null;
   reason: string;
 }
 

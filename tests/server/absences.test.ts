@@ -198,7 +198,7 @@ describe('part of a day away', () => {
       await scheduler.delete(`/api/absences/${a.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
   });
 
-  it('refuses a time that is not one, or that ends before it starts, naming the field; the firm closes whole days only', async () => {
+  it('refuses a time that is not one, or that ends before it starts, naming the field, for a person and for the firm', async () => {
     const day = { from: '2026-06-10', to: '2026-06-10', reason: 'Dentist' };
     const cases: [Record<string, unknown>, { field: string; message: string }][] = [
       [
@@ -237,12 +237,13 @@ describe('part of a day away', () => {
       .delete(`/api/absences/${overnight.body.absence.id}`)
       .set('X-CSRF-Token', scheduler.csrf)
       .expect(204);
+    // The firm's closure takes the same rules.
     const closure = await scheduler
       .post('/api/firm/closures')
       .set('X-CSRF-Token', scheduler.csrf)
-      .send({ ...day, fromTime: '12:00' })
+      .send({ ...day, fromTime: '14:00', toTime: '13:00' })
       .expect(400);
-    expect(closure.body.errors).toEqual([{ field: 'fromTime', message: 'is not a field this request takes' }]);
+    expect(closure.body.errors).toEqual([{ field: 'toTime', message: 'must be after the time away starts' }]);
   });
 });
 
@@ -380,6 +381,22 @@ describe('closing the whole firm', () => {
     expect(
       await closuresOf(otherInstaller, await idOf(ctx.knex, 'resources', { name: 'Moorview crew' })),
     ).not.toContainEqual(day);
+  });
+
+  it('closes the firm for part of a day (from 13:00), on its board and in its list', async () => {
+    const res = await close(scheduler, {
+      from: '2026-06-12',
+      to: '2026-06-12',
+      fromTime: '13:00',
+      reason: 'Early finish',
+    }).expect(201);
+    expect(res.body.closure).toMatchObject({ from: '2026-06-12', to: '2026-06-12', fromTime: '13:00', toTime: null });
+    // 13:00 BST is 12:00 UTC, to 00:00 BST Sat (23:00 UTC Fri).
+    expect(await closuresOf(scheduler, otter)).toContainEqual({
+      start: Date.UTC(2026, 5, 12, 12),
+      end: Date.UTC(2026, 5, 12, 23),
+    });
+    await scheduler.delete(`/api/firm/closures/${res.body.closure.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
   });
 
   it('opens the firm again on every calendar, and another firm cannot take it off', async () => {
