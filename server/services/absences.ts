@@ -8,7 +8,7 @@ import type {
   CreateAbsence,
   CreateClosure,
 } from '../../shared/schemas/absences.ts';
-import { addDays, localDateOf, localSpanOf, localTimeOn, startOfLocalDay } from '../../shared/local-dates.ts';
+import { addDays, localSpanOf, localTimeOn, startOfLocalDay } from '../../shared/local-dates.ts';
 import { BadRequestError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
