@@ -121,9 +121,14 @@ describe('dialogs and panels', () => {
   /** Waits for the dialog (or drawer) with this name and returns axe-core's violations with it open. */
   async function withDialog(page: Page, name: string | RegExp): Promise<Finding[]> {
     await page.getByRole('dialog', { name }).waitFor();
-    // Let the opening transition finish, so the rules see the dialog as people do.
+    // Let the opening transitions finish, so the rules see the dialog as people do: the dialog's
+    // own, its content's, and the fade of the layers it sits in (a half-faded text fails contrast).
     await page.waitForFunction(() =>
-      [...document.querySelectorAll('[role="dialog"]')].every((d) => d.getAnimations().length === 0),
+      [...document.querySelectorAll('[role="dialog"]')].every((d) => {
+        if (d.getAnimations({ subtree: true }).length > 0) return false;
+        for (let up = d.parentElement; up; up = up.parentElement) if (up.getAnimations().length > 0) return false;
+        return true;
+      }),
     );
     return violations(page);
   }
