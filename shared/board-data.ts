@@ -3,6 +3,7 @@ import type {
   Booking,
   Dependency,
   HirePeriod,
+  Interval,
   Job,
   LeadTimeRule,
   Resource,
@@ -52,6 +53,16 @@ export interface BoardBooking extends Booking {
   declined?: { at: number; via: 'link' | 'app'; reason?: string | null } | null;
 }
 
+/** A closure or absence on the board: why, only for the reader's own firm's (read-policy.ts). */
+export interface BoardClosure extends Interval {
+  reason?: string;
+}
+
+/** A working calendar as the board sends it: the engine's, its closures with their reasons where told. */
+export interface BoardCalendar extends WorkingCalendar {
+  closures?: BoardClosure[];
+}
+
 /**
  * What GET /api/board returns: the engine's board (instants as epoch ms) plus names for display.
  * The client builds its engine index from it, so the board and the server check the same data.
@@ -62,7 +73,7 @@ export interface BoardData {
   now: number;
   firmId: string;
   resources: BoardResource[];
-  calendars: WorkingCalendar[];
+  calendars: BoardCalendar[];
   jobs: BoardJob[];
   stages: BoardStage[];
   dependencies: Dependency[];

@@ -1,5 +1,13 @@
 import type { Knex } from 'knex';
-import type { BoardBooking, BoardData, BoardJob, BoardResource, BoardStage } from '../../shared/board-data.ts';
+import type {
+  BoardBooking,
+  BoardCalendar,
+  BoardClosure,
+  BoardData,
+  BoardJob,
+  BoardResource,
+  BoardStage,
+} from '../../shared/board-data.ts';
 import { ELSEWHERE_JOB_ID, elsewhereBookingId, elsewhereStageId } from '../../shared/board-data.ts';
 import type { Dependency, HirePeriod, LeadTimeRule, WorkingCalendar } from '../../shared/scheduler/index.ts';
 import {
@@ -23,6 +31,7 @@ import {
   busyElsewhere,
   ELSEWHERE_BLOCKING_STATES,
   ELSEWHERE_STATE,
+  closureReasonFor,
 } from './read-policy.ts';
 import { cureRulesFromWeather } from './cure-temperatures.ts';
 import { holidaysFor } from './holiday-days.ts';
@@ -273,11 +282,14 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
 
   // Calendars: the firm's calendar as stored, plus one per resource with absences.
   const firmOf = new Map(resources.map((r) => [r.firmId, r]));
-  const calendars: WorkingCalendar[] = [];
-  const closuresOf = (calendarId: string) =>
-    exceptions
-      .filter((e) => e.calendarId === calendarId)
-      .map((e) => ({ start: e.startsAt.getTime(), end: e.endsAt.getTime() }));
+  const calendars: BoardCalendar[] = [];
+  /** A closure or absence as the board draws it, with why only where the read policy tells it. */
+  const closureOf = (e: CalendarException, ownerFirmId: string): BoardClosure => {
+    const reason = closureReasonFor(actor, ownerFirmId, e.reason);
+    return { start: e.startsAt.getTime(), end: e.endsAt.getTime(), ...(reason === undefined ? {} : { reason }) };
+  };
+  const closuresOf = (calendarId: string, ownerFirmId: string) =>
+    exceptions.filter((e) => e.calendarId === calendarId).map((e) => closureOf(e, ownerFirmId));
   const defaultCalendarOfFirm = new Map<string, string>();
   for (const c of calendarRows) {
     const firm = firmOf.get(c.firmId);
@@ -289,7 +301,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
       weekly: weeklyFromJson(c.weeklyHours),
       holidayRegion: holidayRegionOf(firm.holidayRegion),
       holidays: holidaysFor(holidayRegionOf(firm.holidayRegion), query),
-      closures: closuresOf(c.id),
+      closures: closuresOf(c.id, c.firmId),
     });
   }
   const calendarById = new Map(calendars.map((c) => [c.id, c]));
@@ -305,10 +317,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
       const own = {
         ...base,
         id: `${calendarId}+r${r.id}`,
-        closures: [
-          ...(base.closures ?? []),
-          ...absences.map((e) => ({ start: e.startsAt.getTime(), end: e.endsAt.getTime() })),
-        ],
+        closures: [...(base.closures ?? []), ...absences.map((e) => closureOf(e, r.firmId))],
       };
       calendars.push(own);
       calendarId = own.id;

@@ -339,3 +339,13 @@ export function handoverEmailFor(actor: Actor, email: string | null): { email: s
   const at = email.lastIndexOf('@');
   return { email: null, hint: at > 0 ? `${email.slice(0, 1)}…${email.slice(at)}` : null };
 }
+
+/**
+ * Why a resource is away or a firm is closed, on the board: told to the office of the firm it is
+ * about (its own people's holidays and sickness, its own shutdowns), never to another firm (a
+ * partner's electrician "Off sick" is the partner's business: installers see the time, not why),
+ * nor to crew, who read their own on My work.
+ */
+export function closureReasonFor(actor: Actor, ownerFirmId: string, reason: string): string | undefined {
+  return reachOf(actor) === 'installer-office' && String(ownerFirmId) === String(actor.firmId) ? reason : undefined;
+}

@@ -288,6 +288,12 @@ describe('shading and the tray', () => {
     ]);
   });
 
+  it('say why a closure is, where the board was told', () => {
+    const data = board();
+    data.calendars[0]!.closures = [{ start: MON + 86_400_000, end: MON + 2 * 86_400_000, reason: 'Dentist' }];
+    expect(closuresOf(data).map((c) => c.title)).toEqual(['Not working: Dentist']);
+  });
+
   it('list unbooked stages per job in dependency order (a declined booking puts a stage back)', () => {
     const tray = trayOf(board(), () => ['s3', 's2']);
     expect(tray.map((t) => [t.job.reference, t.stages.map((s) => s.id)])).toEqual([['TW-1', ['s3', 's2']]]);

@@ -62,7 +62,14 @@ const closuresOf = async (as: Agent, resourceId: string, week = WEEK) => {
   const board = (await as.get('/api/board').query(week).expect(200)).body;
   const row = board.resources.find((r: { id: string }) => r.id === resourceId);
   const cal = board.calendars.find((c: { id: string }) => c.id === row.calendarId);
-  return (cal.closures ?? []) as { start: number; end: number }[];
+  return ((cal.closures ?? []) as { start: number; end: number }[]).map(({ start, end }) => ({ start, end }));
+};
+/** The reasons a reader's board gives for a resource's closures (undefined where not told). */
+const reasonsOf = async (as: Agent, resourceId: string, week = WEEK) => {
+  const board = (await as.get('/api/board').query(week).expect(200)).body;
+  const row = board.resources.find((r: { id: string }) => r.id === resourceId);
+  const cal = board.calendars.find((c: { id: string }) => c.id === row.calendarId);
+  return ((cal.closures ?? []) as { reason?: string }[]).map((c) => c.reason);
 };
 
 describe('marking a crew away', () => {
@@ -301,6 +308,24 @@ describe("a partner firm's own people", () => {
       start: Date.UTC(2026, 5, 9, 23),
       end: Date.UTC(2026, 5, 10, 23),
     });
+  });
+
+  it("say why on their own firm's board only: the installer sees the partner's time, not its reason", async () => {
+    // Priya was marked away by her own firm ("Training", 10 Jun) above.
+    expect(await reasonsOf(scheduler, priya)).toEqual([undefined]);
+    const otterAway = await markAway(scheduler, otter, {
+      from: '2026-06-09',
+      to: '2026-06-09',
+      reason: 'Holiday',
+    }).expect(201);
+    try {
+      expect(await reasonsOf(scheduler, otter)).toContain('Holiday');
+    } finally {
+      await scheduler
+        .delete(`/api/absences/${otterAway.body.absence.id}`)
+        .set('X-CSRF-Token', scheduler.csrf)
+        .expect(204);
+    }
   });
 
   it("are not the installer's to mark, nor another installer's resource: 404 as if they did not exist", async () => {

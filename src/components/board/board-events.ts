@@ -296,7 +296,8 @@ export function closuresOf(
           end: span.end,
           display: 'background',
           classNames: [BOARD_BLOCKS.closed.className],
-          title: BOARD_BLOCKS.closed.label,
+          // Why, where the board was told (the reader's own firm's time away and closures).
+          title: span.reason ? `${BOARD_BLOCKS.closed.label}: ${span.reason}` : BOARD_BLOCKS.closed.label,
         });
       }
     });
