@@ -140,23 +140,27 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
   const byJobs = async <T>(build: (jobIds: string[]) => { toKnexQuery(): Knex.QueryBuilder }) =>
     rows<T>(build((await jobsList()).map((j) => j.id)));
   const stagesOf = (jobIds: string[]) => knex.raw('SELECT id FROM stages WHERE job_id = ANY(?::bigint[])', [jobIds]);
+  /** The visible resources `which` picks, with their firm's name, kind, zone and holiday region. */
+  const resourceRows = (which: (q: ReturnType<typeof scoped<typeof Resource>>) => unknown) => {
+    const q = scoped(Resource, actor, trx);
+    which(q);
+    return rows<ResourceRow>(
+      q
+        .join('firms', 'firms.id', 'resources.firm_id')
+        .select(
+          'resources.*',
+          'firms.name as firmName',
+          'firms.kind as firmKind',
+          'firms.time_zone as timeZone',
+          'firms.holiday_region as holidayRegion',
+        )
+        .orderBy('resources.id'),
+    );
+  };
 
   const [resources, members, calendarRows, exceptions, jobs, stages, deps, bookingRows, hires, rules, elsewhere] =
     await runQueries(trx !== undefined, [
-      () =>
-        rows<ResourceRow>(
-          scoped(Resource, actor, trx)
-            .where('resources.active', true)
-            .join('firms', 'firms.id', 'resources.firm_id')
-            .select(
-              'resources.*',
-              'firms.name as firmName',
-              'firms.kind as firmKind',
-              'firms.time_zone as timeZone',
-              'firms.holiday_region as holidayRegion',
-            )
-            .orderBy('resources.id'),
-        ),
+      () => resourceRows((q) => q.where('resources.active', true)),
       () =>
         knex('crew_members').whereIn('crew_id', visibleResourceIds).select('crew_id', 'person_id') as Promise<
           { crewId: string; personId: string }[]
@@ -255,20 +259,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
   const listed = new Set(resources.map((r) => r.id));
   const gone = [...new Set(bookingRows.map((b) => b.resourceId))].filter((id) => !listed.has(id));
   if (gone.length) {
-    const retired = await rows<ResourceRow>(
-      scoped(Resource, actor, trx)
-        .where('resources.active', false)
-        .whereIn('resources.id', gone)
-        .join('firms', 'firms.id', 'resources.firm_id')
-        .select(
-          'resources.*',
-          'firms.name as firmName',
-          'firms.kind as firmKind',
-          'firms.time_zone as timeZone',
-          'firms.holiday_region as holidayRegion',
-        )
-        .orderBy('resources.id'),
-    );
+    const retired = await resourceRows((q) => q.where('resources.active', false).whereIn('resources.id', gone));
     resources.push(...retired);
     // The working calendars of a firm whose every other resource is off the books too.
     const haveCalendars = new Set(calendarRows.map((c) => c.firmId));
