@@ -7,13 +7,15 @@ import type {
   SetCrewMembers,
 } from '../../shared/schemas/resources.ts';
 import type { AffectedBooking } from '../../shared/schemas/absences.ts';
-import { BadRequestError } from '../errors.ts';
-import { ConflictError, NotFoundError } from '../errors.ts';
+import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
 import { lockResources } from './booking-writes.ts';
 import { bookingsWithin } from './absences.ts';
+
+/** Ids once each, in numeric order (how a crew's people are compared and kept). */
+const sorted = (ids: readonly string[]) => [...new Set(ids)].sort((a, b) => Number(a) - Number(b));
 
 /** A resource as the Resources page lists it (the shape of GET /api/resources). */
 export interface ResourceListed {
@@ -147,8 +149,14 @@ export class ResourceBooksService {
    */
   async setMembers(actor: Actor, crewId: string, input: SetCrewMembers): Promise<CrewMembers> {
     return this.knex.transaction(async (trx) => {
-      // Bookings on the crew written meanwhile are seen below, or wait for this to commit.
-      await lockResources(trx, [crewId]);
+      // The lock every booking write takes, on everyone this change may put in two places, in one
+      // go: the crew, the people it will hold and the other crews they are in. A booking written on
+      // any of them meanwhile is seen below, or waits for this to commit (and its check sees the crew).
+      const wanted = sorted(input.personIds);
+      const theirCrews = (
+        await trx('crew_members').whereIn('person_id', wanted).whereNot('crew_id', crewId).pluck('crew_id')
+      ).map(String);
+      await lockResources(trx, [crewId, ...wanted, ...theirCrews]);
       const crew = await this.ownCrew(actor, crewId, trx);
       // The people on the books (as the page lists them): one taken off before is dropped on saving.
       const now = (
@@ -158,13 +166,11 @@ export class ResourceBooksService {
           .orderBy('cm.person_id')
           .pluck('cm.person_id')
       ).map(String);
-      const sorted = (ids: readonly string[]) => [...new Set(ids)].sort((a, b) => Number(a) - Number(b));
       if (JSON.stringify(sorted(now)) !== JSON.stringify(sorted(input.previousPersonIds)))
         throw new ConflictError('Someone else changed the people in this crew meanwhile: reload and try again.', {
           code: 'stale-version',
           current: await this.members(actor, crew.id, trx),
         });
-      const wanted = sorted(input.personIds);
       const ours = new Set(
         (
           await trx('resources')

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
 import { makeJob } from '../helpers/flows.ts';
+import { lockResources } from '../../server/services/booking-writes.ts';
 
 /*
  * The firm's own books of crews, people and machines: Tideway (the demo installer) adds Crew Wren
@@ -393,6 +394,51 @@ describe('the people in a crew', () => {
     expect(shown).not.toContain(gone);
     await setMembers(scheduler, otter, { personIds: shown, previousPersonIds: shown }).expect(200);
     expect((await ctx.knex('crew_members').where('crew_id', otter).pluck('person_id')).map(String)).not.toContain(gone);
+  });
+
+  it('waits for a booking being written on their other crew, and then sees it: never a person in two places', async () => {
+    // Pip is in Crew Birch; Crew Alder is booked Mon 22 Jun 09:00–10:00 BST. A booking of Birch at
+    // that time is being written (its transaction holds Birch's booking lock, not yet committed)
+    // when Pip is put in Alder too: the change must wait for it, then refuse.
+    const newOne = async (body: Record<string, unknown>) => (await add(scheduler, body).expect(201)).body.id as string;
+    const alder = await newOne({ name: 'Crew Alder', category: 'crew', kind: 'install_crew' });
+    const birch = await newOne({ name: 'Crew Birch', category: 'crew', kind: 'install_crew' });
+    const pip = await newOne({ name: 'Pip Rowe', category: 'person', kind: 'installer' });
+    await setMembers(scheduler, birch, { personIds: [pip], previousPersonIds: [] }).expect(200);
+    const job = await makeJob(ctx.knex, {
+      reference: 'RM-1',
+      stages: [
+        { kind: 'fill', name: 'Fill', minutes: 60, needs: { install_crew: 1 } },
+        { kind: 'handover', name: 'Handover', minutes: 60, needs: { install_crew: 1 } },
+      ],
+      links: [],
+    });
+    const at = { starts_at: '2026-06-22T08:00:00Z', ends_at: '2026-06-22T09:00:00Z' };
+    await ctx.knex('bookings').insert({ stage_id: job.stage.fill, resource_id: alder, state: 'pencilled', ...at });
+    const writing = await ctx.knex.transaction();
+    try {
+      await lockResources(writing, [birch]);
+      await writing('bookings').insert({ stage_id: job.stage.handover, resource_id: birch, state: 'pencilled', ...at });
+      let answered = false;
+      const joining = setMembers(scheduler, alder, { personIds: [pip], previousPersonIds: [] }).then((r) => {
+        answered = true;
+        return r;
+      });
+      // Until the change either answers or is seen waiting on a lock.
+      const waiting = async () =>
+        Number(
+          (await ctx.knex.raw(`SELECT count(*) AS n FROM pg_locks WHERE locktype = 'advisory' AND NOT granted`)).rows[0]
+            .n,
+        );
+      await expect.poll(async () => answered || (await waiting()) > 0).toBe(true);
+      await writing.commit();
+      const res = await joining;
+      expect(res.status).toBe(409);
+      expect(res.body.code).toBe('person-double');
+    } finally {
+      if (!writing.isCompleted()) await writing.rollback();
+    }
+    expect((await ctx.knex('crew_members').where('crew_id', alder).pluck('person_id')).map(String)).toEqual([]);
   });
 
   it('never overwrites a change made meanwhile, takes only the firm’s own people, and is for crews only', async () => {
