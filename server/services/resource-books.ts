@@ -213,6 +213,8 @@ export class ResourceBooksService {
     const out: { person: string; crewBooking: AffectedBooking; elsewhere: AffectedBooking }[] = [];
     for (const personId of added) {
       const person = (await trx('resources').where('id', personId).first('name')) as { name: string };
+      // Read again under the locks setMembers took (its first read only chose what to lock): a crew
+      // this person joined just before is seen.
       const otherCrews = (
         await trx('crew_members').where('person_id', personId).whereNot('crew_id', crewId).pluck('crew_id')
       ).map(String);
@@ -225,7 +227,7 @@ export class ResourceBooksService {
     return out;
   }
 
-  /** The firm's own resources taken off its books, to put one back (most recently taken off first). */
+  /** The firm's own resources taken off its books, to put one back (by name). */
   async retired(actor: Actor): Promise<ResourceListed[]> {
     if (reachOf(actor) === 'crew') throw new NotFoundError('firm');
     const firm = (await this.knex('firms').where('id', actor.firmId).first('name', 'kind')) as {
