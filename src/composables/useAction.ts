@@ -1,12 +1,15 @@
 import { ref } from 'vue';
 import { useProblemMessage } from './useProblemMessage';
+import type { FieldErrors } from './useFieldErrors';
 
 /**
  * One way to run a user's action: mark it busy (by a key, so a list can show which row is saving),
- * say what was done, or show the server's problem. Resolves true when it worked.
+ * say what was done, or show the server's problem. Resolves true when it worked. With a form's
+ * `fields` (useFieldErrors), the problems the server names by field are also kept for under the
+ * boxes, and cleared when the action works.
  * @example const { busy, run } = useAction(); await run(b.id, () => api.post(...), 'Saved')
  */
-export function useAction() {
+export function useAction(fields?: FieldErrors) {
   const { showProblem, showDone } = useProblemMessage();
   const busy = ref<string | null>(null);
 
@@ -14,9 +17,11 @@ export function useAction() {
     busy.value = key;
     try {
       await action();
+      fields?.clear();
       showDone(typeof done === 'function' ? done() : done);
       return true;
     } catch (caught) {
+      fields?.take(caught);
       showProblem(caught);
       return false;
     } finally {

@@ -1,5 +1,6 @@
 import { reactive, ref, type Ref } from 'vue';
 import { CreateJob, UpdateJob } from '@shared/schemas/jobs';
+import { useFieldErrors } from './useFieldErrors';
 import { ApiError } from '@/api/client';
 import { jobWork, type JobDetail, type UnitOption } from '@/api/job-work';
 import type { InstallationType } from '@/api/types';
@@ -46,7 +47,8 @@ const blank = (): JobDraft => ({
  */
 export function useJobForm(jobId: Ref<string | null>) {
   const draft = reactive<JobDraft>(blank());
-  const errors = ref<Record<string, string>>({});
+  const fields = useFieldErrors();
+  const errors = fields.errors;
   const units = ref<UnitOption[]>([]);
   const loaded = ref<JobDetail | null>(null);
   const saving = ref(false);
@@ -97,18 +99,16 @@ export function useJobForm(jobId: Ref<string | null>) {
     const result = loaded.value
       ? UpdateJob.safeParse({ ...changes(), version: loaded.value.version })
       : CreateJob.safeParse(present());
-    errors.value = result.success
-      ? {}
-      : Object.fromEntries(result.error.issues.map((i) => [i.path.join('.'), i.message]));
-    if (!result.success) return null;
+    const checked = fields.check<CreateJob | UpdateJob>(result);
+    if (checked === null) return null;
     saving.value = true;
     try {
       return loaded.value
-        ? await jobWork.updateJob(loaded.value.id, result.data as UpdateJob)
-        : await jobWork.createJob(result.data as CreateJob);
+        ? await jobWork.updateJob(loaded.value.id, checked as UpdateJob)
+        : await jobWork.createJob(checked as CreateJob);
     } catch (error) {
+      fields.take(error);
       if (error instanceof ApiError) {
-        errors.value = Object.fromEntries(error.errors.map((e) => [e.field, e.message]));
         // A reference taken meanwhile: the server names the next free one; offer it.
         const next = error.problem.nextReference;
         if (typeof next === 'string') suggestedReference.value = next;

@@ -1,5 +1,6 @@
 import { reactive, ref, type Ref } from 'vue';
 import { SurveyFields, type SurveyInput } from '@shared/schemas/surveys';
+import { useFieldErrors } from './useFieldErrors';
 import { ApiError } from '@/api/client';
 import { jobWork } from '@/api/job-work';
 
@@ -48,7 +49,8 @@ const fivePlaces = (deg: number) => Math.round(deg * 1e5) / 1e5;
 export function useSurveyForm(jobId: Ref<string>) {
   const draft = reactive<SurveyDraft>(blank());
   const version = ref(0);
-  const errors = ref<Record<string, string>>({});
+  const fieldErrors = useFieldErrors();
+  const errors = fieldErrors.errors;
   const loading = ref(true);
   const saving = ref(false);
   const loadError = ref<ApiError | null>(null);
@@ -77,11 +79,7 @@ export function useSurveyForm(jobId: Ref<string>) {
 
   /** Checks the draft; returns the parsed fields, or null with `errors` filled in per field. */
   function check() {
-    const result = SurveyFields.safeParse(cleaned());
-    errors.value = result.success
-      ? {}
-      : Object.fromEntries(result.error.issues.map((i) => [i.path.join('.'), i.message]));
-    return result.success ? result.data : null;
+    return fieldErrors.check(SurveyFields.safeParse(cleaned()));
   }
 
   async function save(): Promise<boolean> {
@@ -93,8 +91,7 @@ export function useSurveyForm(jobId: Ref<string>) {
       version.value = saved.version;
       return true;
     } catch (error) {
-      if (error instanceof ApiError)
-        errors.value = Object.fromEntries(error.errors.map((e) => [e.field.replace(/^survey\./, ''), e.message]));
+      fieldErrors.take(error, 'survey');
       throw error;
     } finally {
       saving.value = false;

@@ -1,0 +1,84 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Locator, Page } from 'playwright-core';
+import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { account } from '../helpers/server.ts';
+
+/*
+ * The Firm page's forms on a phone (390 × 844), as the demo installer's owner: a slip is named
+ * under the box it is in, the box says it is wrong and points at that sentence (aria-describedby),
+ * and nothing is saved until it is put right.
+ */
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+
+beforeAll(async () => {
+  app = await startServer();
+  browser = await launchBrowser();
+  page = await phonePage(browser);
+  await signInThroughPage(page, app.url, account('owner').email);
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+/** The sentence a box points at, or null when it points at none. */
+async function problemOf(box: Locator): Promise<string | null> {
+  const id = await box.getAttribute('aria-describedby');
+  if (id === null) return null;
+  expect(await box.getAttribute('aria-invalid')).toBe('true');
+  return page.locator(`[id="${id}"]`).textContent();
+}
+
+const settings = () => app.ctx.knex('firm_settings').select('deposit_percent', 'water_targets', 'service_plan');
+
+describe('problems named under their boxes', () => {
+  it('the deposit, the water targets and the service plan each name their slip under the box, and save nothing', async () => {
+    await page.goto(`${app.url}/firm`);
+    const before = await settings();
+
+    const deposit = page.getByLabel('Deposit (% of the price)');
+    // Typed and sent with Enter, as on a phone's keyboard.
+    await deposit.fill('250');
+    await deposit.press('Enter');
+    expect(await problemOf(deposit)).toBe('The deposit must be a whole percentage from 1 to 100');
+
+    // pH from 8.2 to 7: the highest below the lowest (the pH row's own boxes, by their ids).
+    const phFrom = page.locator('#water-ph-min');
+    const phTo = page.locator('#water-ph-max');
+    await phFrom.fill('8.2');
+    await phTo.fill('7');
+    await page.getByRole('button', { name: 'Save targets' }).click();
+    expect(await problemOf(phTo)).toBe('The highest pH must not be below the lowest value');
+    expect(await problemOf(phFrom)).toBeNull();
+
+    const every = page.getByLabel('Then every (months)');
+    await every.fill('0');
+    await every.press('Tab');
+    await page.locator('form', { has: every }).getByRole('button', { name: 'Save' }).click();
+    expect(await problemOf(every)).toBe('The time between visits must be at least 1 month');
+    await page.screenshot({ path: 'tests/e2e/artifacts/firm-field-problems.png', fullPage: true });
+
+    expect(await settings()).toEqual(before);
+
+    // Put right, the deposit saves and its sentence goes.
+    await deposit.fill('30');
+    await page.locator('form', { has: deposit }).getByRole('button', { name: 'Save' }).click();
+    await page.getByText('Deposits are now asked for at 30 % of the price').waitFor();
+    expect(await problemOf(deposit)).toBeNull();
+    expect((await settings())[0]).toMatchObject({ depositPercent: 30 });
+  });
+
+  it('an invitation to something that is not an e-mail address is named under the address, and not sent', async () => {
+    await page.goto(`${app.url}/firm`);
+    const invite = page.getByRole('form', { name: 'Invite a person' });
+    const address = invite.getByLabel('E-mail');
+    await address.fill('dana at tideway');
+    await invite.getByRole('button', { name: 'Invite' }).click();
+    expect(await problemOf(address)).toBe('The address must be an e-mail address');
+    expect(await app.ctx.knex('invitations').where('email', 'like', 'dana%').count({ n: '*' }).first()).toEqual({
+      n: '0',
+    });
+  });
+});
