@@ -12,6 +12,18 @@ export type FirmKind = (typeof FIRM_KINDS)[number];
 
 const OFFICE: Role[] = ['owner', 'scheduler', 'manager', 'viewer'];
 
+/**
+ * The roles a firm of a kind gives its people: an installer its office and crew; a partner firm
+ * (groundworks, plant, crane, haulage, electrical) its owner and the coordinators who answer the
+ * installers' requests. A partner role inside an installer, or a scheduler inside a partner firm,
+ * would read the board as neither.
+ *
+ * @example rolesForFirmKind('electrical') // ['owner', 'partner']
+ */
+export function rolesForFirmKind(kind: FirmKind): readonly Role[] {
+  return kind === 'installer' ? ['owner', 'scheduler', 'manager', 'crew', 'viewer'] : ['owner', 'partner'];
+}
+
 export const PERMISSIONS = {
   /** The board and its live stream: the office sees its whole firm, crew only their own rows. */
   'board:read': [...OFFICE, 'crew'],

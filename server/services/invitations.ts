@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import type { CreateInvitation } from '../../shared/schemas/answers.ts';
-import type { Role } from '../../shared/permissions.ts';
+import { rolesForFirmKind, type Role } from '../../shared/permissions.ts';
+import { BadRequestError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { enqueueMessage } from './outbox.ts';
@@ -57,6 +58,11 @@ export class InvitationsService {
   }
 
   async create(actor: Actor, input: CreateInvitation): Promise<InvitationView> {
+    const roles = rolesForFirmKind(actor.firmKind);
+    if (!roles.includes(input.role))
+      throw new BadRequestError(`A firm of this kind has no ${input.role} role.`, [
+        { field: 'role', message: `must be one of ${roles.join(', ')} for this firm` },
+      ]);
     return this.knex.transaction(async (trx) => {
       const [row] = await trx('invitations')
         .insert({

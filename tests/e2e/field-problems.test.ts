@@ -73,6 +73,14 @@ describe('problems named under their boxes', () => {
   it('an invitation to something that is not an e-mail address is named under the address, and not sent', async () => {
     await page.goto(`${app.url}/firm`);
     const invite = page.getByRole('form', { name: 'Invite a person' });
+    // The installer's own roles, in words (a partner firm's coordinator role is not one of them).
+    expect(await invite.getByLabel('Role').locator('option').allTextContents()).toEqual([
+      'Owner',
+      'Scheduler',
+      'Installation manager',
+      'Crew',
+      'Viewer',
+    ]);
     const address = invite.getByLabel('E-mail');
     await address.fill('dana at tideway');
     await invite.getByRole('button', { name: 'Invite' }).click();

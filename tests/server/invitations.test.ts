@@ -75,4 +75,19 @@ describe('inviting a new scheduler', () => {
       .expect(400);
     expect(res.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['email', 'role']);
   });
+
+  it("offers only the installer's own roles: a partner firm's coordinator role is refused by name, and nothing is sent", async () => {
+    const invitations = await ctx.knex('invitations').count({ n: '*' }).first();
+    const mail = await ctx.knex('outbox').count({ n: '*' }).first();
+    const res = await owner
+      .post('/api/firm/invitations')
+      .set('X-CSRF-Token', owner.csrf)
+      .send({ email: 'sol.wire@tideway.example', role: 'partner' })
+      .expect(400);
+    expect(res.body.errors).toEqual([
+      { field: 'role', message: 'must be one of owner, scheduler, manager, crew, viewer for this firm' },
+    ]);
+    expect(await ctx.knex('invitations').count({ n: '*' }).first()).toEqual(invitations);
+    expect(await ctx.knex('outbox').count({ n: '*' }).first()).toEqual(mail);
+  });
 });
