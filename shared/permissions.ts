@@ -7,6 +7,16 @@
 export const ROLES = ['owner', 'scheduler', 'manager', 'crew', 'partner', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
 
+/** Each role in words, as every page and e-mail says it. */
+export const ROLE_LABELS: Record<Role, string> = {
+  owner: 'Owner',
+  scheduler: 'Scheduler',
+  manager: 'Installation manager',
+  crew: 'Crew',
+  partner: 'Partner firm',
+  viewer: 'Viewer',
+};
+
 export const FIRM_KINDS = ['installer', 'groundworks', 'plant_hire', 'crane_hire', 'haulage', 'electrical'] as const;
 export type FirmKind = (typeof FIRM_KINDS)[number];
 

@@ -2,6 +2,7 @@ import type { Knex } from 'knex';
 import type { Config } from '../config.ts';
 import { LinkSigner, type AnswerAction } from '../services/links.ts';
 import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
+import { ROLE_LABELS, type Role } from '../../shared/permissions.ts';
 import { whatToBring } from './what-to-bring.ts';
 import { bookingInvite } from './calendar.ts';
 import { describeWindow, loadBookingFacts, slotSections, type BookingFacts } from './facts.ts';
@@ -399,6 +400,7 @@ async function composeInvitation(deps: ComposeDeps, payload: OutboxPayload): Pro
           'i.role',
           'i.expires_at',
           'i.accepted_at',
+          'i.withdrawn_at',
           'f.name as firm_name',
           'f.time_zone',
           'u.name as inviter',
@@ -406,6 +408,8 @@ async function composeInvitation(deps: ComposeDeps, payload: OutboxPayload): Pro
     : null;
   if (!row) return { skip: 'the invitation no longer exists' };
   if (row.acceptedAt) return { skip: 'already accepted' };
+  // Withdrawn before the relay got to it: the person is never sent a link that would not work.
+  if (row.withdrawnAt) return { skip: 'withdrawn by the owner' };
   const token = await new LinkSigner(deps.config.LINK_SECRET).signInvite({
     invitationId: String(row.id),
     expiresAt: row.expiresAt,
@@ -415,7 +419,7 @@ async function composeInvitation(deps: ComposeDeps, payload: OutboxPayload): Pro
     preview: `${row.inviter ?? row.firmName} invited you to Waterline`,
     title: `Join ${row.firmName} on Waterline`,
     intro: [
-      `${row.inviter ?? 'The owner'} has invited you to ${row.firmName}'s schedule as ${row.role}.`,
+      `${row.inviter ?? 'The owner'} has invited you to ${row.firmName}'s schedule as ${ROLE_LABELS[row.role as Role].toLowerCase()}.`,
       `Accept, then sign in with the Google account for ${row.email}.`,
     ],
     sections: [{ heading: 'Good until', lines: [describeWindow(row.expiresAt, row.expiresAt, row.timeZone).date] }],

@@ -13,6 +13,7 @@ import { answerForm, answeredPage, closedPage, refusalPage, stalePage, takenPage
 import { escapeHtml as e, page } from '../pages/page.ts';
 import { z } from 'zod';
 import { AnswerReason, DECLINE_REASON_CHOICES, reasonText } from '../../shared/schemas/answers.ts';
+import { ROLE_LABELS } from '../../shared/permissions.ts';
 import { parse } from '../middleware/validate.ts';
 import { BadRequestError } from '../errors.ts';
 import {
@@ -214,7 +215,7 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
 
   const invitationBody = (
     inv: InvitationView,
-  ) => `<dl><dt>Firm</dt><dd>${e(inv.firmName)}</dd><dt>Role</dt><dd>${e(inv.role)}</dd>
+  ) => `<dl><dt>Firm</dt><dd>${e(inv.firmName)}</dd><dt>Role</dt><dd>${e(ROLE_LABELS[inv.role])}</dd>
 <dt>For</dt><dd>${e(inv.email)}</dd></dl>`;
 
   table.get('/invite/:token', 'public', async (req, res) => {

@@ -74,5 +74,8 @@ export function partnerRoutes(table: RouteTable, { knex, config, now = Date.now 
     })
     .post('/api/firm/invitations', 'firm:manage', async (req, res) => {
       res.status(201).json(await invitations.create(req.actor!, parse(CreateInvitation, req.body)));
+    })
+    .delete('/api/firm/invitations/:id', 'firm:manage', async (req, res) => {
+      res.json(await invitations.withdraw(req.actor!, id(req.params)));
     });
 }

@@ -1,7 +1,7 @@
 import type { Knex } from 'knex';
 import type { CreateInvitation } from '../../shared/schemas/answers.ts';
 import { rolesForFirmKind, type Role } from '../../shared/permissions.ts';
-import { BadRequestError } from '../errors.ts';
+import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { enqueueMessage } from './outbox.ts';
@@ -15,6 +15,8 @@ export interface InvitationView {
   role: Role;
   expiresAt: string;
   acceptedAt: string | null;
+  /** When an owner withdrew it (its link no longer works); null while it stands. */
+  withdrawnAt: string | null;
   firmName: string;
 }
 
@@ -30,6 +32,7 @@ interface InvitationRow {
   role: Role;
   expiresAt: Date;
   acceptedAt: Date | null;
+  withdrawnAt: Date | null;
   firmName: string;
   firmId: string;
 }
@@ -40,6 +43,7 @@ const toView = (r: InvitationRow): InvitationView => ({
   role: r.role,
   expiresAt: r.expiresAt.toISOString(),
   acceptedAt: r.acceptedAt?.toISOString() ?? null,
+  withdrawnAt: r.withdrawnAt?.toISOString() ?? null,
   firmName: r.firmName,
 });
 
@@ -54,7 +58,16 @@ export class InvitationsService {
   private rows(q: Knex | Knex.Transaction) {
     return q('invitations as i')
       .join('firms as f', 'f.id', 'i.firm_id')
-      .select('i.id', 'i.email', 'i.role', 'i.expires_at', 'i.accepted_at', 'i.firm_id', 'f.name as firm_name');
+      .select(
+        'i.id',
+        'i.email',
+        'i.role',
+        'i.expires_at',
+        'i.accepted_at',
+        'i.withdrawn_at',
+        'i.firm_id',
+        'f.name as firm_name',
+      );
   }
 
   async create(actor: Actor, input: CreateInvitation): Promise<InvitationView> {
@@ -92,9 +105,39 @@ export class InvitationsService {
     ).map(toView);
   }
 
+  /**
+   * Withdraws one of the firm's invitations not yet accepted: its link stops working (the person
+   * sees that it is gone). Withdrawing one already withdrawn changes nothing; one already accepted
+   * is refused (409), since the person is in the firm now. Another firm's invitation is not found.
+   */
+  async withdraw(actor: Actor, id: string, now = new Date()): Promise<InvitationView> {
+    return this.knex.transaction(async (trx) => {
+      const row = (await this.rows(trx).where({ 'i.id': id, 'i.firm_id': actor.firmId }).forUpdate('i').first()) as
+        InvitationRow | undefined;
+      if (!row) throw new NotFoundError('invitation');
+      if (row.acceptedAt)
+        throw new ConflictError(`${row.email} has already accepted this invitation: they are in the firm now.`, {
+          code: 'accepted',
+        });
+      if (row.withdrawnAt) return toView(row);
+      await trx('invitations').where('id', row.id).update({ withdrawn_at: now, withdrawn_by: actor.userId });
+      await recordChange(
+        trx,
+        actor,
+        'invitation',
+        String(row.id),
+        'update',
+        { withdrawnAt: null },
+        { withdrawnAt: now },
+      );
+      return toView({ ...row, withdrawnAt: now });
+    });
+  }
+
   async peek(claims: InviteClaims): Promise<InvitationView | null> {
     const row = (await this.rows(this.knex).where('i.id', claims.invitationId).first()) as InvitationRow | undefined;
-    return row ? toView(row) : null;
+    // A withdrawn invitation is gone for the person it was sent to.
+    return row && !row.withdrawnAt ? toView(row) : null;
   }
 
   async accept(claims: InviteClaims, now = new Date()): Promise<InvitationOutcome> {
@@ -106,7 +149,7 @@ export class InvitationsService {
         .returning('jti');
       const row = (await this.rows(trx).where('i.id', claims.invitationId).forUpdate('i').first()) as
         InvitationRow | undefined;
-      if (!row) return { result: 'gone' };
+      if (!row || row.withdrawnAt) return { result: 'gone' };
       if (taken.length === 0 || row.acceptedAt) return { result: 'used' };
       if (row.expiresAt.getTime() < now.getTime()) return { result: 'expired' };
       let user = await trx('users').whereRaw('lower(email) = lower(?)', [row.email]).first('id');

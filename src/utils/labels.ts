@@ -1,5 +1,5 @@
 /** Words the app shows for the server's codes. */
-import type { JobStatus, Ownership, ResourceCategory, Role } from '@/api/types';
+import type { JobStatus, Ownership, ResourceCategory } from '@/api/types';
 
 /** One wording of installation types for every page: the shared map (shared/installation-types.ts). */
 export { INSTALLATION_TYPE_LABELS, installationTypeLabel } from '@shared/installation-types';
@@ -13,14 +13,8 @@ export const JOB_STATUS_LABELS: Record<JobStatus, string> = {
   cancelled: 'Cancelled',
 };
 
-export const ROLE_LABELS: Record<Role, string> = {
-  owner: 'Owner',
-  scheduler: 'Scheduler',
-  manager: 'Installation manager',
-  crew: 'Crew',
-  partner: 'Partner firm',
-  viewer: 'Viewer',
-};
+/** Roles in words: the shared map, which the server's invitation page uses too. */
+export { ROLE_LABELS } from '@shared/permissions';
 
 export const OWNERSHIP_LABELS: Record<Ownership, string> = {
   owned: 'Our own',

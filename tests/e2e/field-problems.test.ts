@@ -73,6 +73,7 @@ describe('problems named under their boxes', () => {
   it('an invitation to something that is not an e-mail address is named under the address, and not sent', async () => {
     await page.goto(`${app.url}/firm`);
     const invite = page.getByRole('form', { name: 'Invite a person' });
+    await invite.getByLabel('Role').waitFor();
     // The installer's own roles, in words (a partner firm's coordinator role is not one of them).
     expect(await invite.getByLabel('Role').locator('option').allTextContents()).toEqual([
       'Owner',
@@ -88,5 +89,34 @@ describe('problems named under their boxes', () => {
     expect(await app.ctx.knex('invitations').where('email', 'like', 'dana%').count({ n: '*' }).first()).toEqual({
       n: '0',
     });
+  });
+});
+
+describe("the firm's invitations", () => {
+  it('lists one just sent as not accepted yet, and withdraws it after asking', async () => {
+    await page.goto(`${app.url}/firm`);
+    const invite = page.getByRole('form', { name: 'Invite a person' });
+    await invite.getByLabel('E-mail').fill('rory.fitter@tideway.example');
+    await invite.getByLabel('Role').selectOption({ label: 'Crew' });
+    await invite.getByRole('button', { name: 'Invite' }).click();
+    const list = page.getByRole('region', { name: 'Invitations' });
+    const row = list.locator('li', { hasText: 'rory.fitter@tideway.example' });
+    await row.waitFor();
+    // Sent on the app's today; the link lasts fourteen days.
+    expect(await row.textContent()).toMatch(
+      /rory\.fitter@tideway\.example · Crew.*Not accepted yet: the link works until /,
+    );
+
+    await row.getByRole('button', { name: 'Withdraw the invitation to rory.fitter@tideway.example' }).click();
+    await page.getByRole('button', { name: 'Withdraw', exact: true }).click();
+    await row.getByText(/^Withdrawn /).waitFor();
+    expect(await row.getByRole('button').count()).toBe(0);
+    const stored = await app.ctx
+      .knex('invitations')
+      .where('email', 'rory.fitter@tideway.example')
+      .first('withdrawn_at', 'role');
+    expect(stored.role).toBe('crew');
+    expect(stored.withdrawnAt).toBeInstanceOf(Date);
+    await page.screenshot({ path: 'tests/e2e/artifacts/firm-invitations.png' });
   });
 });

@@ -19,7 +19,8 @@ let ctx: TestContext;
 const agents = new Map<Role, Agent>();
 
 /** The kinds of id routes take, by the path they sit under. */
-type IdKind = 'job' | 'stage' | 'booking' | 'file' | 'person' | 'hire' | 'resource' | 'absence' | 'closure';
+type IdKind =
+  'job' | 'stage' | 'booking' | 'file' | 'person' | 'hire' | 'resource' | 'absence' | 'closure' | 'invitation';
 type Reach = 'office' | 'crew' | 'partner';
 const reachOfRole = (role: Role): Reach => (role === 'crew' ? 'crew' : role === 'partner' ? 'partner' : 'office');
 
@@ -134,6 +135,24 @@ beforeAll(async () => {
     northgate: await closed('Northgate Electrical'),
   };
 
+  // An invitation of each installer, not yet accepted.
+  const invited = async (firm: string, email: string) =>
+    first(
+      k('invitations')
+        .insert({
+          firm_id: await idOf(k, 'firms', { name: firm }),
+          email,
+          role: 'crew',
+          expires_at: new Date('2026-12-31T00:00:00Z'),
+        })
+        .returning('id')
+        .then((rows) => rows[0]),
+    );
+  const invitation = {
+    tideway: await invited('Tideway Hot Tubs', 'new.fitter@tideway.example'),
+    moorview: await invited('Moorview Spas', 'new.fitter@moorview.example'),
+  };
+
   // No file of Tideway's exists: the own-id pass below only checks a write's access rule (never a 404).
   const noFile = '999999999';
   own = {
@@ -147,6 +166,7 @@ beforeAll(async () => {
       resource: otter,
       absence: absence.tideway,
       closure: closure.tideway,
+      invitation: invitation.tideway,
     },
     crew: {
       job: String(heron.jobId),
@@ -158,6 +178,7 @@ beforeAll(async () => {
       resource: otter,
       absence: absence.tideway,
       closure: closure.tideway,
+      invitation: invitation.tideway,
     },
     partner: {
       job: String(slot.jobId),
@@ -169,6 +190,7 @@ beforeAll(async () => {
       resource: tom,
       absence: absence.tom,
       closure: closure.brightspark,
+      invitation: invitation.tideway,
     },
   };
   const theirs = {
@@ -181,6 +203,7 @@ beforeAll(async () => {
     resource: mvCrew,
     absence: absence.moorview,
     closure: closure.moorview,
+    invitation: invitation.moorview,
   };
   other = {
     office: theirs,
@@ -273,6 +296,7 @@ function idKindOf(path: string): IdKind | null {
     ['/api/resources/', 'resource'],
     ['/api/absences/', 'absence'],
     ['/api/firm/closures/', 'closure'],
+    ['/api/firm/invitations/', 'invitation'],
   ];
   const found = kinds.find(([prefix]) => path.startsWith(prefix));
   if (!found) throw new Error(`the access matrix has no id for ${path}: add its kind to idKindOf`);

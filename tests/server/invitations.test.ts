@@ -2,6 +2,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, signIn, type Agent } from '../helpers/server.ts';
 import { startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
+import { composeMessage } from '../../server/mail/messages.ts';
 
 let ctx: MailTestContext;
 let owner: Agent;
@@ -89,5 +90,88 @@ describe('inviting a new scheduler', () => {
     ]);
     expect(await ctx.knex('invitations').count({ n: '*' }).first()).toEqual(invitations);
     expect(await ctx.knex('outbox').count({ n: '*' }).first()).toEqual(mail);
+  });
+});
+
+describe('withdrawing an invitation', () => {
+  const invite = async (email: string) =>
+    (
+      await owner
+        .post('/api/firm/invitations')
+        .set('X-CSRF-Token', owner.csrf)
+        .send({ email, role: 'crew' })
+        .expect(201)
+    ).body as { id: string };
+  const withdraw = (agent: Agent, id: string) =>
+    agent.delete(`/api/firm/invitations/${id}`).set('X-CSRF-Token', agent.csrf);
+  const linkIn = async (email: string) => {
+    const [mail] = await ctx.inbox.waitFor((m) => m.to.includes(email));
+    return new URL(/^Accept the invitation:\n(\S+)$/m.exec(mail!.text)![1]!).pathname;
+  };
+
+  it('stops its link working, says so in the list, and keeps the row; withdrawing again changes nothing', async () => {
+    const email = 'wrong.address@tideway.example';
+    const { id } = await invite(email);
+    const link = await linkIn(email);
+    const res = await withdraw(owner, id).expect(200);
+    expect(res.body).toMatchObject({ id, email, acceptedAt: null, withdrawnAt: expect.any(String) });
+
+    await request(ctx.waterline.app).get(link).expect(410);
+    await request(ctx.waterline.app).post(link).type('form').send({}).expect(410);
+    expect(await ctx.knex('users').where('email', email).first()).toBeUndefined();
+
+    const listed = (await owner.get('/api/firm/invitations').expect(200)).body.items.find(
+      (i: { id: string }) => i.id === id,
+    );
+    expect(listed.withdrawnAt).toBe(res.body.withdrawnAt);
+    expect((await withdraw(owner, id).expect(200)).body.withdrawnAt).toBe(res.body.withdrawnAt);
+    const audit = await ctx.knex('audit_log').where({ entity: 'invitation', entity_id: id }).pluck('action');
+    expect(audit).toEqual(['create', 'update']);
+  });
+
+  it('one withdrawn before its e-mail went is never sent', async () => {
+    const [row] = await ctx
+      .knex('invitations')
+      .insert({
+        firm_id: await ctx
+          .knex('firms')
+          .where('name', 'Tideway Hot Tubs')
+          .first('id')
+          .then((f) => f.id),
+        email: 'not.sent@tideway.example',
+        role: 'crew',
+        expires_at: new Date(Date.now() + 86_400_000),
+      })
+      .returning('id');
+    await withdraw(owner, String(row.id)).expect(200);
+    expect(
+      await composeMessage({ knex: ctx.knex, config: ctx.config }, 'invitation', { invitationId: String(row.id) }),
+    ).toEqual({ skip: 'withdrawn by the owner' });
+  });
+
+  it('refuses one already accepted (409), and is not found for another firm', async () => {
+    const email = 'kept.on@tideway.example';
+    const { id } = await invite(email);
+    await request(ctx.waterline.app)
+      .post(await linkIn(email))
+      .type('form')
+      .send({})
+      .expect(200);
+    const refused = await withdraw(owner, id).expect(409);
+    expect(refused.body).toMatchObject({ code: 'accepted' });
+
+    // The owner of another installer: Tideway's invitation is not theirs to see or withdraw.
+    const moorview = await ctx.knex('firms').where('name', 'Moorview Spas').first('id');
+    const [other] = await ctx
+      .knex('users')
+      .insert({ email: 'ada.moor@moorview.example', name: 'Ada Moor' })
+      .returning('id');
+    await ctx.knex('memberships').insert({ user_id: other.id, firm_id: moorview.id, role: 'owner' });
+    const otherOwner = await signIn(ctx, 'ada.moor@moorview.example');
+    const { id: open } = await invite('still.open@tideway.example');
+    await withdraw(otherOwner, open).expect(404);
+    expect((await ctx.knex('invitations').where('id', open).first('withdrawn_at')).withdrawnAt).toBeNull();
+    const theirs = (await otherOwner.get('/api/firm/invitations').expect(200)).body.items;
+    expect(theirs.map((i: { email: string }) => i.email)).not.toContain('still.open@tideway.example');
   });
 });
