@@ -120,3 +120,36 @@ describe("the firm's invitations", () => {
     await page.screenshot({ path: 'tests/e2e/artifacts/firm-invitations.png' });
   });
 });
+
+describe("a job's price and payment amounts", () => {
+  it('names a price or amount that is not more than nothing under its box, saves nothing, then saves the price put right', async () => {
+    const job = await app.ctx
+      .knex('jobs as j')
+      .join('firms as f', 'f.id', 'j.firm_id')
+      .where('f.name', 'Tideway Hot Tubs')
+      .whereNull('j.price_pence')
+      .orderBy('j.reference')
+      .first('j.id', 'j.reference');
+    await page.goto(`${app.url}/jobs/${job.id}`);
+    const card = page.locator('section', { has: page.getByRole('heading', { name: 'Payments' }) });
+    await card.getByRole('button', { name: 'Record the price' }).click();
+    const price = card.getByLabel('Price (£)');
+    await price.fill('-5');
+    await price.press('Enter');
+    expect(await problemOf(price)).toBe('The price must be more than 0');
+    expect(await app.ctx.knex('jobs').where('id', job.id).first('price_pence')).toEqual({ pricePence: null });
+
+    // The amount asked for: zero is refused under its own box, and nothing is asked of the householder.
+    const amount = card.getByLabel('Amount (£)').first();
+    await amount.fill('0');
+    await amount.press('Enter');
+    expect(await problemOf(amount)).toBe('The amount must be more than 0');
+    expect(await app.ctx.knex('job_payments').where('job_id', job.id).count({ n: '*' }).first()).toEqual({ n: '0' });
+
+    await price.fill('9500');
+    await price.press('Enter');
+    await page.getByText('Price saved').waitFor();
+    expect(await app.ctx.knex('jobs').where('id', job.id).first('price_pence')).toEqual({ pricePence: 950_000 });
+    expect(await card.textContent()).toContain('Price: £9,500.00');
+  });
+});
