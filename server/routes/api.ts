@@ -13,7 +13,7 @@ import {
   RemoveBooking,
   UpdateBooking,
 } from '../../shared/schemas/bookings.ts';
-import { SwitchFirm } from '../../shared/schemas/session.ts';
+import { ChangeMemberRole, RemoveMember, SwitchFirm } from '../../shared/schemas/session.ts';
 import { JobsService } from '../services/jobs.ts';
 import { DirectoryService } from '../services/directory.ts';
 import { AbsencesService } from '../services/absences.ts';
@@ -27,6 +27,7 @@ import { PlacementService } from '../services/placement.ts';
 import { AutoPlaceRequest, SlotSearch, type PlanProgress } from '../../shared/schemas/placement.ts';
 import { UndoService, type UndoContext, type UndoVerb } from '../services/undo.ts';
 import { actorFor, sessionInfo } from '../services/session.ts';
+import { MembersService } from '../services/members.ts';
 import { loadBoard } from '../services/board.ts';
 import { boardEtag, etagMatches } from '../services/board-version.ts';
 import type { BoardStream } from '../services/board-stream.ts';
@@ -51,6 +52,7 @@ export function apiRoutes(
 ): void {
   const jobs = new JobsService(knex);
   const directory = new DirectoryService();
+  const members = new MembersService(knex);
   const absences = new AbsencesService(knex);
   const books = new ResourceBooksService(knex, now);
   const bookings = new BookingsService(knex, now, limits);
@@ -114,6 +116,15 @@ export function apiRoutes(
     })
     .get('/api/firm/members', 'firm:manage', async (req, res) => {
       res.json({ items: await directory.members(req.actor!) });
+    })
+    .put('/api/firm/members/:id', 'firm:manage', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await members.changeRole(req.actor!, id, parse(ChangeMemberRole, req.body)));
+    })
+    .delete('/api/firm/members/:id', 'firm:manage', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      await members.remove(req.actor!, id, parse(RemoveMember, req.query, 'query').role);
+      res.status(204).end();
     })
     .get('/api/resources', 'resources:read', async (req, res) => {
       res.json({ items: await directory.resources(req.actor!) });

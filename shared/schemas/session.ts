@@ -21,3 +21,19 @@ export type SessionInfo = z.infer<typeof SessionInfo>;
 
 export const SwitchFirm = z.object({ firmId: Id });
 export type SwitchFirm = z.infer<typeof SwitchFirm>;
+
+/**
+ * PUT /api/firm/members/:id: a person's new role in the owner's firm, with the role the page showed
+ * (a change made meanwhile by another owner is refused, not overwritten).
+ */
+export const ChangeMemberRole = z
+  .object({
+    role: z.enum(ROLES, { message: `must be one of ${ROLES.join(', ')}` }),
+    previousRole: z.enum(ROLES, { message: 'is required: the role the page showed' }),
+  })
+  .strict();
+export type ChangeMemberRole = z.infer<typeof ChangeMemberRole>;
+
+/** DELETE /api/firm/members/:id?role=…: the role the page showed, for the same reason. */
+export const RemoveMember = z.object({ role: z.enum(ROLES, { message: 'is required: the role the page showed' }) });
+export type RemoveMember = z.infer<typeof RemoveMember>;

@@ -153,3 +153,36 @@ describe("a job's price and payment amounts", () => {
     expect(await card.textContent()).toContain('Price: £9,500.00');
   });
 });
+
+describe("the firm's people", () => {
+  it("changes a person's role from the list, and takes out someone who has left after asking", async () => {
+    await page.goto(`${app.url}/firm`);
+    const vicRole = page.getByLabel('Role of Vic Amos');
+    await vicRole.waitFor();
+    expect(await vicRole.locator('option').allTextContents()).toEqual([
+      'Owner',
+      'Scheduler',
+      'Installation manager',
+      'Crew',
+      'Viewer',
+    ]);
+    await vicRole.selectOption({ label: 'Scheduler' });
+    await page.getByText('Vic Amos is now scheduler').waitFor();
+    const roleOf = (email: string) =>
+      app.ctx
+        .knex('memberships as m')
+        .join('users as u', 'u.id', 'm.user_id')
+        .where('u.email', email)
+        .first('m.role')
+        .then((r) => r?.role ?? null);
+    expect(await roleOf('vic.amos@tideway.example')).toBe('scheduler');
+
+    await page.getByRole('button', { name: 'Take Connor Reid out of the firm' }).click();
+    await page.getByText('Connor Reid can no longer sign in to Tideway Hot Tubs').waitFor();
+    await page.getByRole('button', { name: 'Take out', exact: true }).click();
+    await page.getByText('Connor Reid is no longer in Tideway Hot Tubs').waitFor();
+    await page.getByRole('cell', { name: /Connor Reid/ }).waitFor({ state: 'detached' });
+    expect(await roleOf('connor.reid@tideway.example')).toBeNull();
+    await page.screenshot({ path: 'tests/e2e/artifacts/firm-people.png' });
+  });
+});

@@ -20,7 +20,17 @@ const agents = new Map<Role, Agent>();
 
 /** The kinds of id routes take, by the path they sit under. */
 type IdKind =
-  'job' | 'stage' | 'booking' | 'file' | 'person' | 'hire' | 'resource' | 'absence' | 'closure' | 'invitation';
+  | 'job'
+  | 'stage'
+  | 'booking'
+  | 'file'
+  | 'person'
+  | 'hire'
+  | 'resource'
+  | 'absence'
+  | 'closure'
+  | 'invitation'
+  | 'member';
 type Reach = 'office' | 'crew' | 'partner';
 const reachOfRole = (role: Role): Reach => (role === 'crew' ? 'crew' : role === 'partner' ? 'partner' : 'office');
 
@@ -153,6 +163,23 @@ beforeAll(async () => {
     moorview: await invited('Moorview Spas', 'new.fitter@moorview.example'),
   };
 
+  // A person of each installer that the write pass may change (their role as it stands, so nothing moves).
+  const memberOf = async (firm: string, email: string) => {
+    const [user] = await k('users')
+      .insert({ email, name: email.split('@')[0] })
+      .returning('id');
+    await k('memberships').insert({
+      user_id: user.id,
+      firm_id: await idOf(k, 'firms', { name: firm }),
+      role: 'viewer',
+    });
+    return String(user.id);
+  };
+  const member = {
+    tideway: await memberOf('Tideway Hot Tubs', 'spare.viewer@tideway.example'),
+    moorview: await memberOf('Moorview Spas', 'spare.viewer@moorview.example'),
+  };
+
   // No file of Tideway's exists: the own-id pass below only checks a write's access rule (never a 404).
   const noFile = '999999999';
   own = {
@@ -167,6 +194,7 @@ beforeAll(async () => {
       absence: absence.tideway,
       closure: closure.tideway,
       invitation: invitation.tideway,
+      member: member.tideway,
     },
     crew: {
       job: String(heron.jobId),
@@ -179,6 +207,7 @@ beforeAll(async () => {
       absence: absence.tideway,
       closure: closure.tideway,
       invitation: invitation.tideway,
+      member: member.tideway,
     },
     partner: {
       job: String(slot.jobId),
@@ -191,6 +220,7 @@ beforeAll(async () => {
       absence: absence.tom,
       closure: closure.brightspark,
       invitation: invitation.tideway,
+      member: member.tideway,
     },
   };
   const theirs = {
@@ -204,6 +234,7 @@ beforeAll(async () => {
     absence: absence.moorview,
     closure: closure.moorview,
     invitation: invitation.moorview,
+    member: member.moorview,
   };
   other = {
     office: theirs,
@@ -297,6 +328,7 @@ function idKindOf(path: string): IdKind | null {
     ['/api/absences/', 'absence'],
     ['/api/firm/closures/', 'closure'],
     ['/api/firm/invitations/', 'invitation'],
+    ['/api/firm/members/', 'member'],
   ];
   const found = kinds.find(([prefix]) => path.startsWith(prefix));
   if (!found) throw new Error(`the access matrix has no id for ${path}: add its kind to idKindOf`);
@@ -336,6 +368,11 @@ function validBody(
       return { body: { version: 1, status: 'ended' } };
     case 'put /api/resources/:id/members':
       return { body: { personIds: [], previousPersonIds: [] } };
+    case 'put /api/firm/members/:id':
+      return { body: { role: 'viewer', previousRole: 'viewer' } };
+    case 'delete /api/firm/members/:id':
+      // The role shown is not theirs: refused as stale (409), so the person stays for later passes.
+      return { query: { role: 'crew' } };
     case 'patch /api/resources/:id':
       return { body: { name: 'Crew Renamed', previousName: 'Crew Heron' } };
     case 'post /api/firm/closures':
