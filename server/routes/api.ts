@@ -119,11 +119,15 @@ export function apiRoutes(
     })
     .put('/api/firm/members/:id', 'firm:manage', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
-      res.json(await members.changeRole(req.actor!, id, parse(ChangeMemberRole, req.body)));
+      const changed = await members.changeRole(req.actor!, id, parse(ChangeMemberRole, req.body));
+      // Their open boards reconnect in the new role.
+      stream.endMember(id, req.actor!.firmId);
+      res.json(changed);
     })
     .delete('/api/firm/members/:id', 'firm:manage', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
       await members.remove(req.actor!, id, parse(RemoveMember, req.query, 'query').role);
+      stream.endMember(id, req.actor!.firmId);
       res.status(204).end();
     })
     .get('/api/resources', 'resources:read', async (req, res) => {

@@ -2,6 +2,7 @@ import pg from 'pg';
 import type { Knex } from 'knex';
 import type { Request, Response } from 'express';
 import { reachOf, type Actor } from './actor.ts';
+import type { Role } from '../../shared/permissions.ts';
 import { ownResourceIds } from '../models/base.ts';
 import { mayHearOf, streamEvent, type BookingChange, type StreamReader } from './read-policy.ts';
 
@@ -79,6 +80,8 @@ const RECONNECT_MAX_MS = 10_000;
 interface Subscriber {
   reader: StreamReader;
   userId: string;
+  /** The role the stream was opened in: a changed role ends it (the board reconnects in the new one). */
+  role: Role;
   sessionId: string;
   res: Response;
 }
@@ -198,13 +201,20 @@ export class BoardStream {
     const bySid = new Map(
       rows.map((r) => [r.sid, (typeof r.sess === 'string' ? JSON.parse(r.sess) : r.sess) as StoredSession]),
     );
+    // The person must still be in the firm, in the role the stream was opened in: someone taken out
+    // of the firm (or given another role) hears nothing more on a stream opened before.
+    const memberships = (await this.knex('memberships')
+      .whereIn('user_id', [...new Set(list.map((s) => s.userId))])
+      .select('user_id', 'firm_id', 'role')) as { userId: string | number; firmId: string | number; role: Role }[];
+    const held = new Set(memberships.map((m) => `${m.userId}|${m.firmId}|${m.role}`));
     return new Set(
       list.filter((s) => {
         const sess = bySid.get(s.sessionId);
         return (
           sess !== undefined &&
           String(sess.userId) === s.userId &&
-          (sess.firmId === undefined || String(sess.firmId) === s.reader.firmId)
+          (sess.firmId === undefined || String(sess.firmId) === s.reader.firmId) &&
+          held.has(`${s.userId}|${s.reader.firmId}|${s.role}`)
         );
       }),
     );
@@ -273,7 +283,7 @@ export class BoardStream {
     });
     res.flushHeaders();
     res.write('retry: 3000\n\n');
-    const subscriber: Subscriber = { reader, userId: actor.userId, sessionId: req.sessionID, res };
+    const subscriber: Subscriber = { reader, userId: actor.userId, role: actor.role, sessionId: req.sessionID, res };
     this.subscribers.add(subscriber);
     req.on('close', () => this.subscribers.delete(subscriber));
   }
@@ -291,6 +301,11 @@ export class BoardStream {
   /** Ends the open streams of one session at once (its person signed out). */
   endSession(sessionId: string): void {
     for (const s of [...this.subscribers]) if (s.sessionId === sessionId) this.end(s);
+  }
+
+  /** Ends at once the open streams of one person in one firm (their role changed, or they were taken out). */
+  endMember(userId: string, firmId: string): void {
+    for (const s of [...this.subscribers]) if (s.userId === userId && s.reader.firmId === firmId) this.end(s);
   }
 
   /** Ends every open stream and the LISTEN connection; no reconnection follows. */

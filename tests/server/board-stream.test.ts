@@ -164,4 +164,40 @@ describe('the board stream', () => {
       leaves.close();
     }
   });
+
+  it('ends a person’s streams as soon as the owner takes them out of the firm', async () => {
+    const owner = await signIn(ctx, account('owner').email);
+    const viewer = await signIn(ctx, account('viewer').email);
+    const stays = await openStream(owner);
+    const leaves = await openStream(viewer);
+    try {
+      const vic = await idOf(ctx.knex, 'users', { email: account('viewer').email });
+      await owner
+        .delete(`/api/firm/members/${vic}`)
+        .query({ role: 'viewer' })
+        .set('X-CSRF-Token', owner.csrf)
+        .expect(204);
+      expect(await leaves.ended()).toBe(true);
+      const id = await bookSomething('2026-11-11');
+      await stays.until((t) => t.includes(`"bookingId":"${id}"`));
+      expect(leaves.text()).not.toContain(id);
+    } finally {
+      stays.close();
+      leaves.close();
+    }
+  });
+
+  it('a stream opened before its person left the firm hears nothing more, however the membership went', async () => {
+    const manager = await signIn(ctx, account('manager').email);
+    const stream = await openStream(manager);
+    try {
+      const maya = await idOf(ctx.knex, 'users', { email: account('manager').email });
+      await ctx.knex('memberships').where('user_id', maya).delete();
+      const id = await bookSomething('2026-11-12');
+      expect(await stream.ended()).toBe(true);
+      expect(stream.text()).not.toContain(id);
+    } finally {
+      stream.close();
+    }
+  });
 });
