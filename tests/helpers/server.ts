@@ -85,6 +85,23 @@ export function account(role: Role, firm = 'Tideway Hot Tubs'): DemoAccount {
   return found;
 }
 
+/**
+ * Waits (polling, 10 s at most) until `count` statements of this database are waiting on a lock:
+ * requests a test has sent are under way and held, before it lets them go.
+ */
+export async function untilWaitingOnLocks(knex: Knex, count: number): Promise<void> {
+  const waiting = async () =>
+    Number(
+      (
+        await knex.raw(
+          `SELECT count(*) AS n FROM pg_stat_activity WHERE datname = current_database() AND wait_event_type = 'Lock'`,
+        )
+      ).rows[0].n,
+    );
+  for (const started = Date.now(); (await waiting()) < count && Date.now() - started < 10_000;)
+    await new Promise((r) => setTimeout(r, 20));
+}
+
 /** Ids from the demo scenario by name. */
 export async function idOf(knex: Knex, table: string, where: Record<string, unknown>): Promise<string> {
   const row = await knex(table).where(where).first('id');

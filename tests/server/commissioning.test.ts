@@ -1,6 +1,14 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import sharp from 'sharp';
-import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import {
+  account,
+  idOf,
+  signIn,
+  startTestApp,
+  untilWaitingOnLocks,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
 import { loadCommissioningRecord } from '../../server/services/commissioning.ts';
 
 /*
@@ -239,16 +247,7 @@ describe('an incomplete record', () => {
     const holder = await ctx.knex.transaction();
     await holder('commissioning_records').where('job_id', jobId).forUpdate().first('id');
     const both = Promise.all([save(body), save(body)]);
-    const waiting = async () =>
-      Number(
-        (
-          await ctx.knex.raw(
-            `SELECT count(*) AS n FROM pg_stat_activity WHERE datname = current_database() AND wait_event_type = 'Lock'`,
-          )
-        ).rows[0].n,
-      );
-    for (const started = Date.now(); (await waiting()) < 2 && Date.now() - started < 10_000;)
-      await new Promise((r) => setTimeout(r, 20));
+    await untilWaitingOnLocks(ctx.knex, 2);
     await holder.commit();
     const results = await both;
     expect(results.map((r) => r.status).sort()).toEqual([200, 409]);

@@ -1,5 +1,13 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import {
+  account,
+  idOf,
+  signIn,
+  startTestApp,
+  untilWaitingOnLocks,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
 
 /*
  * An owner changes a person's role in the firm, or takes out someone who has left; access follows
@@ -85,19 +93,10 @@ describe("the firm's people", () => {
     const holder = await ctx.knex.transaction();
     await holder('memberships').whereIn('user_id', [olivia, sam]).forUpdate().select('id');
     const both = Promise.all([
-      change(owner, sam, { role: 'scheduler', previousRole: 'owner' }).then((r) => r),
-      change(second, olivia, { role: 'scheduler', previousRole: 'owner' }).then((r) => r),
+      change(owner, sam, { role: 'scheduler', previousRole: 'owner' }),
+      change(second, olivia, { role: 'scheduler', previousRole: 'owner' }),
     ]);
-    const waiting = async () =>
-      Number(
-        (
-          await ctx.knex.raw(
-            `SELECT count(*) AS n FROM pg_stat_activity WHERE datname = current_database() AND wait_event_type = 'Lock'`,
-          )
-        ).rows[0].n,
-      );
-    for (const started = Date.now(); (await waiting()) < 2 && Date.now() - started < 10_000;)
-      await new Promise((r) => setTimeout(r, 20));
+    await untilWaitingOnLocks(ctx.knex, 2);
     await holder.commit();
     const answers = await both;
     expect(answers.map((a) => a.status).sort()).toEqual([200, 409]);
