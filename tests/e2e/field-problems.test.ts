@@ -185,4 +185,30 @@ describe("the firm's people", () => {
     expect(await roleOf('connor.reid@tideway.example')).toBeNull();
     await page.screenshot({ path: 'tests/e2e/artifacts/firm-people.png' });
   });
+
+  it('asks before an owner gives up their own owner’s role, keeps it on Keep, and follows the new role on yes', async () => {
+    await page.goto(`${app.url}/firm`);
+    const roleOf = (email: string) =>
+      app.ctx
+        .knex('memberships as m')
+        .join('users as u', 'u.id', 'm.user_id')
+        .where('u.email', email)
+        .first('m.role')
+        .then((r) => r?.role ?? null);
+    await page.getByLabel('Role of Sam Okafor').selectOption({ label: 'Owner' });
+    await page.getByText('Sam Okafor is now owner').waitFor();
+
+    const mine = page.getByLabel('Role of Olivia Hart');
+    await mine.selectOption({ label: 'Scheduler' });
+    const ask = page.getByRole('dialog', { name: 'Stop being an owner of Tideway Hot Tubs?' });
+    await ask.getByRole('button', { name: 'Keep' }).click();
+    await ask.waitFor({ state: 'detached' });
+    expect(await mine.inputValue()).toBe('owner');
+    expect(await roleOf('olivia.hart@tideway.example')).toBe('owner');
+
+    await mine.selectOption({ label: 'Scheduler' });
+    await ask.getByRole('button', { name: 'Change my role' }).click();
+    await page.waitForURL((u) => u.pathname !== '/firm');
+    expect(await roleOf('olivia.hart@tideway.example')).toBe('scheduler');
+  });
 });
