@@ -4,9 +4,10 @@ import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningA
 import { account } from '../helpers/server.ts';
 
 /*
- * The Firm page's forms on a phone (390 × 844), as the demo installer's owner: a slip is named
- * under the box it is in, the box says it is wrong and points at that sentence (aria-describedby),
- * and nothing is saved until it is put right.
+ * The Firm page on a phone (390 × 844), as the demo installer's owner: a slip in any of its forms is
+ * named under the box it is in (the box says it is wrong and points at that sentence with
+ * aria-describedby) and nothing is saved until it is put right; invitations and where each stands;
+ * each person's role, and taking out someone who has left. Also a job's price and payment amounts.
  */
 let app: RunningApp;
 let browser: Browser;
