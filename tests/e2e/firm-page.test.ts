@@ -32,6 +32,15 @@ async function problemOf(box: Locator): Promise<string | null> {
   return page.locator(`[id="${id}"]`).textContent();
 }
 
+/** A person's role in the demo installer, as stored (null when not in it). */
+const roleOf = (email: string) =>
+  app.ctx
+    .knex('memberships as m')
+    .join('users as u', 'u.id', 'm.user_id')
+    .where('u.email', email)
+    .first('m.role')
+    .then((r) => r?.role ?? null);
+
 const settings = () => app.ctx.knex('firm_settings').select('deposit_percent', 'water_targets', 'service_plan');
 
 describe('problems named under their boxes', () => {
@@ -169,13 +178,6 @@ describe("the firm's people", () => {
     ]);
     await vicRole.selectOption({ label: 'Scheduler' });
     await page.getByText('Vic Amos is now scheduler').waitFor();
-    const roleOf = (email: string) =>
-      app.ctx
-        .knex('memberships as m')
-        .join('users as u', 'u.id', 'm.user_id')
-        .where('u.email', email)
-        .first('m.role')
-        .then((r) => r?.role ?? null);
     expect(await roleOf('vic.amos@tideway.example')).toBe('scheduler');
 
     await page.getByRole('button', { name: 'Take Connor Reid out of the firm' }).click();
@@ -189,13 +191,6 @@ describe("the firm's people", () => {
 
   it('asks before an owner gives up their own owner’s role, keeps it on Keep, and follows the new role on yes', async () => {
     await page.goto(`${app.url}/firm`);
-    const roleOf = (email: string) =>
-      app.ctx
-        .knex('memberships as m')
-        .join('users as u', 'u.id', 'm.user_id')
-        .where('u.email', email)
-        .first('m.role')
-        .then((r) => r?.role ?? null);
     await page.getByLabel('Role of Sam Okafor').selectOption({ label: 'Owner' });
     await page.getByText('Sam Okafor is now owner').waitFor();
 
