@@ -1,7 +1,8 @@
 import type { Knex } from 'knex';
 import type { CreateInvitation } from '../../shared/schemas/answers.ts';
-import { rolesForFirmKind, type Role } from '../../shared/permissions.ts';
-import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
+import type { Role } from '../../shared/permissions.ts';
+import { ConflictError, NotFoundError } from '../errors.ts';
+import { assertRoleOfFirm } from './members.ts';
 import type { Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { enqueueMessage } from './outbox.ts';
@@ -71,11 +72,7 @@ export class InvitationsService {
   }
 
   async create(actor: Actor, input: CreateInvitation): Promise<InvitationView> {
-    const roles = rolesForFirmKind(actor.firmKind);
-    if (!roles.includes(input.role))
-      throw new BadRequestError(`A firm of this kind has no ${input.role} role.`, [
-        { field: 'role', message: `must be one of ${roles.join(', ')} for this firm` },
-      ]);
+    assertRoleOfFirm(actor, input.role);
     return this.knex.transaction(async (trx) => {
       const [row] = await trx('invitations')
         .insert({

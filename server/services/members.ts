@@ -12,6 +12,18 @@ export interface MemberView {
   role: Role;
 }
 
+/**
+ * Refuses (400, field `role`) a role the actor's kind of firm does not give its people
+ * (rolesForFirmKind): for an invitation and for a change of role alike.
+ */
+export function assertRoleOfFirm(actor: Actor, role: Role): void {
+  const roles = rolesForFirmKind(actor.firmKind);
+  if (!roles.includes(role))
+    throw new BadRequestError(`A firm of this kind has no ${role} role.`, [
+      { field: 'role', message: `must be one of ${roles.join(', ')} for this firm` },
+    ]);
+}
+
 interface MemberRow {
   id: string;
   userId: string;
@@ -61,11 +73,7 @@ export class MembersService {
   }
 
   async changeRole(actor: Actor, userId: string, input: ChangeMemberRole): Promise<MemberView> {
-    const roles = rolesForFirmKind(actor.firmKind);
-    if (!roles.includes(input.role))
-      throw new BadRequestError(`A firm of this kind has no ${input.role} role.`, [
-        { field: 'role', message: `must be one of ${roles.join(', ')} for this firm` },
-      ]);
+    assertRoleOfFirm(actor, input.role);
     return this.knex.transaction(async (trx) => {
       const { member, owners } = await this.locked(trx, actor, userId);
       this.stale(member, input.previousRole);
