@@ -94,7 +94,7 @@ export function instantOf(date: unknown, time: unknown, timeZone: string): Date 
 export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }: AnswerRouteDeps): void {
   const signer = new LinkSigner(config.LINK_SECRET);
   const confirmations = new ConfirmationsService(knex, now, bookingLimitsOf(config));
-  const invitations = new InvitationsService(knex);
+  const invitations = new InvitationsService(knex, now);
   const feeds = new FeedsService(knex, config.PUBLIC_URL);
   const certificateLinks = new CertificateLinks(config.LINK_SECRET);
 
@@ -135,7 +135,7 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     purpose: 'answer' | 'invite',
   ): Promise<AnswerClaims | InviteClaims | null> {
     try {
-      return await signer.verify(String(req.params.token), purpose);
+      return await signer.verify(String(req.params.token), purpose, new Date(now()));
     } catch (error) {
       if (!(error instanceof LinkError)) throw error;
       await refuse(req, res, error.reason, error.jti);

@@ -24,7 +24,7 @@ export function partnerRoutes(table: RouteTable, { knex, config, now = Date.now 
   const confirmations = new ConfirmationsService(knex, now, bookingLimitsOf(config));
   const slots = new PartnerSlotsService(knex, now, bookingLimitsOf(config));
   const feeds = new FeedsService(knex, config.PUBLIC_URL);
-  const invitations = new InvitationsService(knex);
+  const invitations = new InvitationsService(knex, now);
   const id = (params: unknown) => parse(IdParams, params, 'params').id;
 
   table

@@ -54,7 +54,11 @@ const toView = (r: InvitationRow): InvitationView => ({
  * that verified e-mail finds them through the existing look-up in session.ts and links the account.
  */
 export class InvitationsService {
-  constructor(private readonly knex: Knex) {}
+  constructor(
+    private readonly knex: Knex,
+    /** The app's clock: an invitation runs out INVITATION_DAYS after it is made by it. */
+    private readonly now: () => number = Date.now,
+  ) {}
 
   private rows(q: Knex | Knex.Transaction) {
     return q('invitations as i')
@@ -80,7 +84,7 @@ export class InvitationsService {
           email: input.email,
           role: input.role,
           invited_by: actor.userId,
-          expires_at: new Date(Date.now() + INVITATION_DAYS * 86_400_000),
+          expires_at: new Date(this.now() + INVITATION_DAYS * 86_400_000),
         })
         .returning('id');
       await enqueueMessage(trx, `invitation.${row.id}`, 'invitation', { invitationId: String(row.id) });
@@ -107,7 +111,7 @@ export class InvitationsService {
    * sees that it is gone). Withdrawing one already withdrawn changes nothing; one already accepted
    * is refused (409), since the person is in the firm now. Another firm's invitation is not found.
    */
-  async withdraw(actor: Actor, id: string, now = new Date()): Promise<InvitationView> {
+  async withdraw(actor: Actor, id: string, now = new Date(this.now())): Promise<InvitationView> {
     return this.knex.transaction(async (trx) => {
       const row = (await this.rows(trx).where({ 'i.id': id, 'i.firm_id': actor.firmId }).forUpdate('i').first()) as
         InvitationRow | undefined;
@@ -137,7 +141,7 @@ export class InvitationsService {
     return row && !row.withdrawnAt ? toView(row) : null;
   }
 
-  async accept(claims: InviteClaims, now = new Date()): Promise<InvitationOutcome> {
+  async accept(claims: InviteClaims, now = new Date(this.now())): Promise<InvitationOutcome> {
     return this.knex.transaction(async (trx) => {
       const taken = await trx('link_uses')
         .insert({ jti: claims.jti, purpose: 'invite', subject_id: claims.invitationId })

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Locator, Page } from 'playwright-core';
 import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
-import { account } from '../helpers/server.ts';
+import { account, TEST_TODAY } from '../helpers/server.ts';
 
 /*
  * The Firm page on a phone (390 × 844), as the demo installer's owner: a slip in any of its forms is
@@ -17,6 +17,8 @@ beforeAll(async () => {
   app = await startServer();
   browser = await launchBrowser();
   page = await phonePage(browser);
+  // The browser's today is the app's (the test scenario's): an invitation runs out by that clock.
+  await page.context().clock.setFixedTime(TEST_TODAY);
   await signInThroughPage(page, app.url, account('owner').email);
 }, 60_000);
 afterAll(async () => {

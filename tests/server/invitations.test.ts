@@ -1,6 +1,6 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { account, signIn, type Agent } from '../helpers/server.ts';
+import { account, signIn, TEST_TODAY, type Agent } from '../helpers/server.ts';
 import { startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
 import { composeMessage } from '../../server/mail/messages.ts';
 
@@ -30,6 +30,9 @@ describe('inviting a new scheduler', () => {
       role: 'scheduler',
       firmName: 'Tideway Hot Tubs',
       acceptedAt: null,
+      // Fourteen days by the app's clock (the tests' today), not the machine's: the e-mailed link
+      // is checked against the same clock.
+      expiresAt: new Date(TEST_TODAY.getTime() + 14 * 86_400_000).toISOString(),
     });
     const list = await owner.get('/api/firm/invitations').expect(200);
     expect(list.body.items.map((i: { email: string }) => i.email)).toContain(EMAIL);
