@@ -1,4 +1,4 @@
-import { ref } from 'vue';
+import { nextTick, ref } from 'vue';
 import { ApiError } from '@/api/client';
 import { fieldSentence } from '@/utils/problem';
 
@@ -65,7 +65,18 @@ export function useFieldErrors() {
   const describe = (field: string, id: string): Record<string, string> =>
     errors.value[field] ? { 'aria-invalid': 'true', 'aria-describedby': `${id}-problem` } : {};
 
-  return { errors, check, take, clear, status, sentence, describe };
+  /**
+   * After the form shows its problems: moves to the first box marked invalid, in the middle of the
+   * screen. On a phone the save button stays in view while the box with the problem may be far above.
+   */
+  async function focusFirst(): Promise<void> {
+    await nextTick();
+    const box = document.querySelector<HTMLElement>('[aria-invalid="true"]');
+    box?.focus({ preventScroll: true });
+    box?.scrollIntoView({ block: 'center' });
+  }
+
+  return { errors, check, take, clear, status, sentence, describe, focusFirst };
 }
 
 export type FieldErrors = ReturnType<typeof useFieldErrors>;

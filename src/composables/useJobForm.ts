@@ -119,5 +119,5 @@ export function useJobForm(jobId: Ref<string | null>) {
     }
   }
 
-  return { draft, errors, units, loaded, saving, suggestedReference, load, save };
+  return { draft, errors, fields, units, loaded, saving, suggestedReference, load, save };
 }

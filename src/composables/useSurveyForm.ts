@@ -128,5 +128,18 @@ export function useSurveyForm(jobId: Ref<string>) {
     }
   }
 
-  return { draft, version, errors, loading, saving, loadError, locating, load, check, save, useHerePosition };
+  return {
+    draft,
+    version,
+    errors,
+    fields: fieldErrors,
+    loading,
+    saving,
+    loadError,
+    locating,
+    load,
+    check,
+    save,
+    useHerePosition,
+  };
 }

@@ -12,6 +12,7 @@ let app: RunningApp;
 let browser: Browser;
 let page: Page;
 let today: string;
+let jobId: string;
 
 beforeAll(async () => {
   app = await startServer();
@@ -33,6 +34,7 @@ beforeAll(async () => {
       unit_id: await idOf(knex, 'units', { model: 'Brook 4' }),
     })
     .returning('id');
+  jobId = String(job.id);
   const stage = async (kind: string, name: string, sequence: number) =>
     String(
       (
@@ -107,4 +109,46 @@ describe('a crew member on a phone', () => {
       .toBe('confirmed');
     await card.getByRole('button', { name: 'On site' }).waitFor();
   }, 90_000);
+  it('names each slip in the survey under its box, keeps what was typed, saves nothing, then saves it put right', async () => {
+    await page.goto(`${app.url}/jobs/${jobId}/survey`);
+    const width = page.getByLabel('Narrowest width (mm)');
+    await width.waitFor();
+    const steps = page.getByLabel('Steps', { exact: true });
+    const fuse = page.getByLabel('Main fuse (A)');
+    await width.fill('900');
+    await page.getByLabel('Ground type').selectOption({ label: 'Clay' });
+    // Out of range: a box with a lowest value would quietly have made these 0 and 1 (or 400).
+    await steps.fill('-2');
+    await fuse.fill('1000');
+    await page.getByRole('button', { name: 'Save survey' }).click();
+
+    /** The sentence a box points at (it is marked invalid), or null when it points at none. */
+    const problemOf = async (box: typeof steps) => {
+      const id = await box.getAttribute('aria-describedby');
+      if (id === null) return null;
+      expect(await box.getAttribute('aria-invalid')).toBe('true');
+      return page.locator(`[id="${id}"]`).textContent();
+    };
+    await expect.poll(() => problemOf(steps)).toBe('Steps cannot be negative');
+    // The first box with a problem is brought into view and focused: on a phone it is far above the button.
+    await expect.poll(() => page.evaluate(() => document.activeElement?.id)).toBe('survey-steps');
+    expect(await problemOf(fuse)).toBe('The main fuse must be at most 400 A');
+    expect(await problemOf(width)).toBeNull();
+    expect(await steps.inputValue()).toBe('-2');
+    expect(await fuse.inputValue()).toBe('1000');
+    expect(await app.ctx.knex('surveys').where('job_id', jobId).first()).toBeUndefined();
+    await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-survey-problems.png' });
+
+    await steps.fill('2');
+    await fuse.fill('100');
+    await page.getByRole('button', { name: 'Save survey' }).click();
+    await page.getByText('Survey saved').waitFor();
+    expect(
+      await app.ctx.knex('surveys').where('job_id', jobId).first('steps', 'main_fuse_amps', 'access_width_mm'),
+    ).toEqual({
+      steps: 2,
+      mainFuseAmps: 100,
+      accessWidthMm: 900,
+    });
+  }, 60_000);
 });
