@@ -205,4 +205,62 @@ describe('office pages on a phone', () => {
       }
     }
   }, 60_000);
+  it('records a hire from the Reports page, naming a slip under its box and sending nothing until it is put right', async () => {
+    await page.goto(`${app.url}/reports`);
+    await page.getByRole('button', { name: 'Record a hire…' }).click();
+    const form = page.getByRole('form', { name: 'Record a hire' });
+    const machine = form.getByLabel('Machine');
+    const onHire = form.getByLabel('On hire from');
+    const offHire = form.getByLabel('Off hire after');
+    const rate = form.getByLabel('Day rate (£)');
+    await offHire.fill('2026-09-07');
+    await rate.fill('145 a day');
+    const writes: string[] = [];
+    const onRequest = (r: { method(): string; url(): string }) => {
+      if (r.method() !== 'GET') writes.push(r.url());
+    };
+    page.on('request', onRequest);
+    try {
+      await form.getByRole('button', { name: 'Record the hire' }).click();
+      /** The sentence a box points at (it is marked invalid), or null when it points at none. */
+      const problemOf = async (box: typeof rate) => {
+        const id = await box.getAttribute('aria-describedby');
+        if (id === null) return null;
+        expect(await box.getAttribute('aria-invalid')).toBe('true');
+        return page.locator(`[id="${id}"]`).textContent();
+      };
+      // Left out, or not a sum: said in the form's words, not the API's ("numeric id", "pence").
+      await expect.poll(() => problemOf(machine)).toBe('Choose the hired machine');
+      expect(await problemOf(onHire)).toBe('Give the first day on hire');
+      expect(await problemOf(rate)).toBe('The day rate must be a sum in pounds, e.g. 145 or 145.50');
+      expect(await problemOf(offHire)).toBeNull();
+      expect(await rate.inputValue()).toBe('145 a day');
+      // The first box with a problem is the one moved to.
+      expect(await machine.evaluate((el) => el === document.activeElement)).toBe(true);
+
+      await machine.selectOption({ index: 1 });
+      await form.getByLabel('Supplier').selectOption({ index: 1 });
+      await onHire.fill('2026-09-11');
+      await rate.fill('-5');
+      await form.getByRole('button', { name: 'Record the hire' }).click();
+      await expect.poll(() => problemOf(rate)).toBe("The day rate can't be negative");
+      expect(await problemOf(offHire)).toBe('The off-hire date must be after the on-hire');
+      expect(await problemOf(machine)).toBeNull();
+      expect(await rate.inputValue()).toBe('-5');
+      expect(writes).toEqual([]);
+
+      await offHire.fill('2026-09-18');
+      await rate.fill('145.50');
+      await form.getByRole('button', { name: 'Record the hire' }).click();
+      await page.getByText('Hire recorded').waitFor({ timeout: 10_000 });
+      expect(writes.filter((u) => u.endsWith('/api/hire-periods'))).toHaveLength(1);
+      const saved = await app.ctx
+        .knex('hire_periods')
+        .orderBy('id', 'desc')
+        .first('day_rate_pence', 'delivery_pence', 'status');
+      expect(saved).toEqual({ dayRatePence: 14550, deliveryPence: 0, status: 'approved' });
+    } finally {
+      page.off('request', onRequest);
+    }
+  });
 });
