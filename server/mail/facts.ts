@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
 import { supplyLines, type SlotSupply } from '../../shared/slot-supply.ts';
+import { describeWindow } from '../../shared/slot-window.ts';
 import { jobSupplies, siteContacts } from '../services/answer-views.ts';
 import { partnerSlotFacts, type VisitContact } from '../services/read-policy.ts';
 
@@ -243,35 +244,6 @@ async function factsOf(knex: Knex, rows: FactRow[], resourceId?: string): Promis
 /** "Role, name: phone" for each contact the read policy gives the partner. */
 export function contactLines(contacts: BookingFacts['forPartner']['contacts']): string[] {
   return contacts.map((c) => `${c.role}, ${c.name}: ${c.phone ?? 'no phone recorded'}`);
-}
-
-/** "Tuesday 6 October 2026", "08:00–12:00" in the installer firm's time zone. */
-export function describeWindow(
-  startsAt: Date,
-  endsAt: Date,
-  timeZone: string,
-): { date: string; window: string; zone: string } {
-  const day = new Intl.DateTimeFormat('en-GB', {
-    timeZone,
-    weekday: 'long',
-    day: 'numeric',
-    month: 'long',
-    year: 'numeric',
-  });
-  const time = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
-  const zoneName =
-    new Intl.DateTimeFormat('en-GB', { timeZone, timeZoneName: 'short' })
-      .formatToParts(startsAt)
-      .find((p) => p.type === 'timeZoneName')?.value ?? timeZone;
-  const dayOf = (d: Date) => day.format(d).replace(',', '');
-  const sameDay = dayOf(startsAt) === dayOf(endsAt);
-  return {
-    date: sameDay ? dayOf(startsAt) : `${dayOf(startsAt)} to ${dayOf(endsAt)}`,
-    window: sameDay
-      ? `${time.format(startsAt)}–${time.format(endsAt)}`
-      : `${time.format(startsAt)} on the first day to ${time.format(endsAt)} on the last`,
-    zone: `${timeZone}, ${zoneName}`,
-  };
 }
 
 /**

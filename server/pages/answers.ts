@@ -1,5 +1,6 @@
 import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
-import { contactLines, describeWindow, type BookingFacts } from '../mail/facts.ts';
+import { contactLines, type BookingFacts } from '../mail/facts.ts';
+import { describeWindow } from '../../shared/slot-window.ts';
 import { supplyLines } from '../../shared/slot-supply.ts';
 import type { AnswerAction } from '../services/links.ts';
 import type { LinkRefusal } from '../services/links.ts';

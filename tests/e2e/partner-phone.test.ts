@@ -16,6 +16,7 @@ let page: Page;
 let first: { id: string; version: number };
 let second: { id: string; version: number };
 let third: { id: string; version: number };
+let overnight: { id: string; version: number };
 
 beforeAll(async () => {
   app = await startServer();
@@ -33,6 +34,15 @@ beforeAll(async () => {
   first = await ask('TW-2417', '2027-08-03T08:00:00Z', '2027-08-03T12:00:00Z');
   second = await ask('TW-2416', '2027-08-12T08:00:00Z', '2027-08-12T12:00:00Z');
   third = await ask('TW-2415', '2027-08-17T08:00:00Z', '2027-08-17T12:00:00Z');
+  // A first fix run over two days: Mon 9 Aug 2027 16:00 to Tue 10 Aug 10:00 BST.
+  overnight = await pencilIn(app.ctx.knex, {
+    job: 'TW-2417',
+    stage: 'electrical_first_fix',
+    resource: 'Priya Nair',
+    startsAt: '2027-08-09T15:00:00Z',
+    endsAt: '2027-08-10T09:00:00Z',
+    state: 'sent',
+  });
   browser = await launchBrowser();
   page = await phonePage(browser);
   await signInThroughPage(page, app.url, account('partner', 'Brightspark Electrical').email);
@@ -48,7 +58,11 @@ describe('our slots on a phone', () => {
   it('confirms a slot from its card', async () => {
     await page.goto(`${app.url}/slots`);
     await card(first.id).waitFor();
-    expect(await card(first.id).textContent()).toContain('Tuesday 3 August, 09:00–13:00');
+    expect(await card(first.id).textContent()).toContain('Tuesday 3 August 2027, 09:00–13:00 (Europe/London, BST)');
+    // A slot that runs over a night says both days, as its e-mail does.
+    expect(await card(overnight.id).textContent()).toContain(
+      'Monday 9 August 2027 to Tuesday 10 August 2027, 16:00 on the first day to 10:00 on the last (Europe/London, BST)',
+    );
     // Each fact sits under its name, so the value has the card's whole width.
     const name = (await card(first.id).locator('dt', { hasText: 'When' }).boundingBox())!;
     const value = (await card(first.id).locator('dt:has-text("When") + dd').boundingBox())!;
@@ -70,7 +84,7 @@ describe('our slots on a phone', () => {
   it('never confirms a slot the installer moved since the page loaded: it says so and shows the new time', async () => {
     await page.goto(`${app.url}/slots`);
     await card(second.id).waitFor();
-    expect(await card(second.id).textContent()).toContain('Thursday 12 August, 09:00–13:00');
+    expect(await card(second.id).textContent()).toContain('Thursday 12 August 2027, 09:00–13:00');
     // The installer moves it to Friday meanwhile (a new version of the booking).
     await app.ctx
       .knex('bookings')
@@ -79,7 +93,7 @@ describe('our slots on a phone', () => {
       .update({ starts_at: '2027-08-13T08:00:00Z', ends_at: '2027-08-13T12:00:00Z' });
     await card(second.id).getByRole('button', { name: 'Confirm', exact: true }).click();
     await page.getByText('This slot was changed since you loaded it').waitFor();
-    await expect.poll(() => card(second.id).textContent()).toContain('Friday 13 August, 09:00–13:00');
+    await expect.poll(() => card(second.id).textContent()).toContain('Friday 13 August 2027, 09:00–13:00');
     expect((await app.ctx.knex('bookings').where('id', second.id).first('state')).state).toBe('sent');
     await page.screenshot({ path: 'tests/e2e/artifacts/slots-phone.png' });
   });
@@ -98,7 +112,7 @@ describe('our slots on a phone', () => {
     await dialog.getByRole('button', { name: 'Decline the slot' }).click();
     await page.getByText('This slot was changed since you loaded it').waitFor();
     await dialog.waitFor({ state: 'hidden' });
-    await expect.poll(() => card(third.id).textContent()).toContain('Wednesday 18 August, 09:00–13:00');
+    await expect.poll(() => card(third.id).textContent()).toContain('Wednesday 18 August 2027, 09:00–13:00');
     expect((await app.ctx.knex('bookings').where('id', third.id).first('state')).state).toBe('sent');
   });
 });
