@@ -17,6 +17,7 @@ function calendarToUtc(date: string): Date | null {
 /** Today's calendar date in a time zone (the one rule, in shared/local-dates.ts). @example todayIn('Europe/London', new Date('2026-03-29T23:30:00Z')) // '2026-03-30' */
 export { todayIn } from '@shared/local-dates';
 import { todayIn } from '@shared/local-dates';
+import { dayNumber, localToInstant, timeZoneOffset } from '@shared/scheduler/time-zone';
 
 /** The firm's current year, left out of the dates it shows. @example currentYearIn('Europe/London', new Date('2026-12-31T23:30:00Z')) // 2026 */
 export function currentYearIn(timeZone: string, now: Parameters<typeof todayIn>[1] = new Date()): number {
@@ -95,4 +96,29 @@ export function formatInstant(iso: string, timeZone: string, options: CalendarDa
     hourCycle: 'h23',
   }).format(value);
   return `${parts.replace(',', '')}, ${time}`;
+}
+
+const WEEKDAY_NAMES = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'];
+
+/**
+ * A booking's hours as a list of one day shows them (the board's day list, a crew member's day, a
+ * day sheet): "08:00–12:00" within the day; running into or out of it, the other end names its day
+ * by weekday and date ("Mon 14 16:00 – 10:00"), the month being plain from the page.
+ *
+ * @example hoursOnDay(Date.parse('2026-09-14T15:00Z'), Date.parse('2026-09-15T09:00Z'), '2026-09-15', 'Europe/London')
+ * // 'Mon 14 16:00 – 10:00'
+ */
+export function hoursOnDay(start: number, end: number, date: string, timeZone: string): string {
+  const [y, m, d] = date.split('-').map(Number) as [number, number, number];
+  const day = dayNumber(y, m, d);
+  const from = localToInstant(timeZone, day, 0),
+    to = localToInstant(timeZone, day + 1, 0);
+  const at = (t: number, inDay: boolean) => {
+    const local = new Date(t + timeZoneOffset(timeZone, t));
+    const time = `${String(local.getUTCHours()).padStart(2, '0')}:${String(local.getUTCMinutes()).padStart(2, '0')}`;
+    return inDay ? time : `${WEEKDAY_NAMES[local.getUTCDay()]} ${local.getUTCDate()} ${time}`;
+  };
+  const a = at(start, start >= from);
+  const b = at(end, end <= to);
+  return start >= from && end <= to ? `${a}–${b}` : `${a} – ${b}`;
 }

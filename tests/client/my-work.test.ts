@@ -3,6 +3,9 @@ import { effectScope } from 'vue';
 import { awayWords, dayLabel, groupByDay, telHref } from '@/components/my-work/my-work';
 import { useMyWork } from '@/composables/useMyWork';
 import MyWorkCard from '@/components/my-work/MyWorkCard.vue';
+import CrewDaySheet from '@/components/day-sheet/CrewDaySheet.vue';
+import { hoursOnDay } from '@/utils/dates';
+import type { DaySheet } from '@shared/schemas/day-sheets';
 import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
 import { stubFetch, type SentRequest } from './fake-fetch';
 import { renderHtml } from './render';
@@ -122,6 +125,7 @@ describe('a card', () => {
     const html = await renderHtml(MyWorkCard, {
       item: item('1', '2026-06-01', '2026-06-01T07:00:00Z', { actions: ['arrive'] }),
       timeZone: 'Europe/London',
+      day: '2026-06-01',
       busy: false,
       canSurvey: true,
     });
@@ -143,6 +147,7 @@ describe('a card', () => {
           unitArrives,
         }),
         timeZone: 'Europe/London',
+        day: '2026-06-08',
         busy: false,
         canSurvey: false,
       });
@@ -161,6 +166,7 @@ describe('a card', () => {
       renderHtml(MyWorkCard, {
         item: item('1', '2026-06-01', '2026-06-01T07:00:00Z', { actions }),
         timeZone: 'Europe/London',
+        day: '2026-06-01',
         busy: false,
         canSurvey: false,
       });
@@ -169,6 +175,37 @@ describe('a card', () => {
     expect(buttons(await render([]))).toEqual([]);
     expect(buttons(await render(['arrive']))).toEqual(['On site']);
     expect(buttons(await render(['finish', 'undo-arrive']))).toEqual(['Done', 'Not on site yet']);
+  });
+});
+
+describe('hours of work that runs over a night', () => {
+  // A dig from Mon 14 Dec 2026 08:00 to Tue 15 Dec 13:00 (GMT: the clocks went back on 25 Oct).
+  const dig = { startsAt: '2026-12-14T08:00:00Z', endsAt: '2026-12-15T13:00:00Z' };
+
+  it('name the other day, on the day it starts and on the day it ends', () => {
+    const [start, end] = [Date.parse(dig.startsAt), Date.parse(dig.endsAt)];
+    expect(hoursOnDay(start, end, '2026-12-14', 'Europe/London')).toBe('08:00 – Tue 15 13:00');
+    expect(hoursOnDay(start, end, '2026-12-15', 'Europe/London')).toBe('Mon 14 08:00 – 13:00');
+    expect(hoursOnDay(start, Date.parse('2026-12-14T12:00:00Z'), '2026-12-14', 'Europe/London')).toBe('08:00–12:00');
+    // Midnight in London, not UTC: in June a 23:30 UTC start is 00:30 the next day.
+    expect(
+      hoursOnDay(Date.parse('2026-06-07T23:30:00Z'), Date.parse('2026-06-08T03:30:00Z'), '2026-06-08', 'Europe/London'),
+    ).toBe('00:30–04:30');
+  });
+
+  it('read the same on a card of My work and on a day sheet', async () => {
+    const card = await renderHtml(MyWorkCard, {
+      item: item('4', '2026-12-14', dig.startsAt, { endsAt: dig.endsAt }),
+      timeZone: 'Europe/London',
+      day: '2026-12-15',
+      busy: false,
+      canSurvey: false,
+    });
+    expect(card).toContain('Mon 14 08:00 – 13:00 · Excavate pit');
+    const visit = item('4', '2026-12-14', dig.startsAt, { endsAt: dig.endsAt });
+    const sheet: DaySheet = { date: '2026-12-15', resource: visit.resource, visits: [visit] };
+    const html = await renderHtml(CrewDaySheet, { sheet, timeZone: 'Europe/London', dateLabel: 'Tuesday 15 December' });
+    expect(html).toContain('Mon 14 08:00 – 13:00 · Excavate pit');
   });
 });
 

@@ -12,7 +12,8 @@ import {
   type EventInput,
   type RowInput,
 } from './board-events';
-import { bookingLine, localParts, stageShortName } from './booking-chip';
+import { bookingLine, stageShortName } from './booking-chip';
+import { hoursOnDay } from '@/utils/dates';
 import { POINTER_CLASSES } from './board-pointer';
 
 export interface DayListBooking {
@@ -54,17 +55,6 @@ export function dayBounds(date: string, timeZone: string): { start: number; end:
   return { start: localToInstant(timeZone, day, 0), end: localToInstant(timeZone, day + 1, 0) };
 }
 
-function timeText(start: number, end: number, day: { start: number; end: number }, timeZone: string): string {
-  const at = (t: number, inDay: boolean) => {
-    const { day: date, time } = localParts(t, timeZone);
-    // Another day is named by weekday and date ("Mon 14"), the month being plain from the title.
-    return inDay ? time : `${date.slice(0, date.lastIndexOf(' '))} ${time}`;
-  };
-  const a = at(start, start >= day.start);
-  const b = at(end, end <= day.end);
-  return start >= day.start && end <= day.end ? `${a}–${b}` : `${a} – ${b}`;
-}
-
 /**
  * The day's list: groups in the board's order, each resource with the bookings that touch the day
  * (busy resources only), and the resources with nothing booked that day.
@@ -96,15 +86,15 @@ export function dayListOf(
       id: row.id,
       title: row.title,
       kind: row.kind,
-      bookings: [...booked].sort((a, b) => a.start - b.start || a.end - b.end).map((e) => entryOf(e, day, timeZone)),
+      bookings: [...booked].sort((a, b) => a.start - b.start || a.end - b.end).map((e) => entryOf(e, date, timeZone)),
     });
   }
   return { groups, free };
 }
 
-function entryOf(e: EventInput, day: { start: number; end: number }, timeZone: string): DayListBooking {
+function entryOf(e: EventInput, date: string, timeZone: string): DayListBooking {
   const p = e.extendedProps;
-  const time = timeText(e.start, e.end, day, timeZone);
+  const time = hoursOnDay(e.start, e.end, date, timeZone);
   const state = STATE_LABELS[p.state];
   const markers = p.markers.map((key) => ({ key, ...BOOKING_MARKERS[key] }));
   const stateText = p.elsewhere ? BOARD_BLOCKS.elsewhere.label : `${state.symbol} ${state.label}`;
