@@ -98,6 +98,23 @@ export function formatInstant(iso: string, timeZone: string, options: CalendarDa
   return `${parts.replace(',', '')}, ${time}`;
 }
 
+/**
+ * From when to when, in the firm's zone: the end's time alone on the same day, else its day too.
+ * @example formatInstantSpan('2026-05-12T07:30:00Z', '2026-05-12T11:30:00Z', 'Europe/London', { currentYear: 2026 }) // 'Tue 12 May, 08:30–12:30'
+ * @example formatInstantSpan('2026-12-14T08:00:00Z', '2026-12-15T13:00:00Z', 'Europe/London', { currentYear: 2026 }) // 'Mon 14 Dec, 08:00 – Tue 15 Dec, 13:00'
+ */
+export function formatInstantSpan(
+  startIso: string,
+  endIso: string,
+  timeZone: string,
+  options: CalendarDateOptions = {},
+): string {
+  const start = formatInstant(startIso, timeZone, options);
+  const end = formatInstant(endIso, timeZone, options);
+  const [startDay, endDay] = [start.slice(0, start.lastIndexOf(', ')), end.slice(0, end.lastIndexOf(', '))];
+  return startDay === endDay ? `${start}–${end.slice(end.lastIndexOf(', ') + 2)}` : `${start} – ${end}`;
+}
+
 const WEEKDAY_NAMES = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'];
 
 /**

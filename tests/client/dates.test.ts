@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { formatCalendarDate, formatCalendarRange, formatInstant, formatSpan, todayIn } from '@/utils/dates';
+import {
+  formatCalendarDate,
+  formatCalendarRange,
+  formatInstant,
+  formatInstantSpan,
+  formatSpan,
+  todayIn,
+} from '@/utils/dates';
 
 // Weekdays checked against a printed 2026 calendar: 12 May 2026 is a Tuesday, 29 March 2026 a Sunday.
 describe('formatCalendarDate', () => {
@@ -50,5 +57,18 @@ describe('in the firm time zone', () => {
   });
   it('shows an instant in British Summer Time as local time', () => {
     expect(formatInstant('2026-05-12T07:30:00Z', 'Europe/London', { currentYear: 2026 })).toBe('Tue 12 May, 08:30');
+  });
+  it('shows from when to when: the end time alone on the same day, its day too on another', () => {
+    expect(
+      formatInstantSpan('2026-05-12T07:30:00Z', '2026-05-12T11:30:00Z', 'Europe/London', { currentYear: 2026 }),
+    ).toBe('Tue 12 May, 08:30–12:30');
+    // A dig of a day and a half, in December (GMT): 14 December 2026 is a Monday.
+    expect(
+      formatInstantSpan('2026-12-14T08:00:00Z', '2026-12-15T13:00:00Z', 'Europe/London', { currentYear: 2026 }),
+    ).toBe('Mon 14 Dec, 08:00 – Tue 15 Dec, 13:00');
+    // Past midnight UTC but still the same evening in London: one day.
+    expect(
+      formatInstantSpan('2026-06-08T19:00:00Z', '2026-06-08T22:30:00Z', 'Europe/London', { currentYear: 2026 }),
+    ).toBe('Mon 8 Jun, 20:00–23:30');
   });
 });
