@@ -158,7 +158,7 @@ try {
 } finally {
   await knex.destroy();
   await inbox.stop();
-  redis.stop();
+  await redis.stop();
   pgHandle.stop();
 }
 process.exit(exitCode);

@@ -14,7 +14,7 @@ import {
 export interface RedisHandle {
   port: number;
   startedHere: boolean;
-  stop(): void;
+  stop(): void | Promise<void>;
 }
 
 function ping(port: number): boolean {
@@ -76,11 +76,16 @@ export async function startRedis(dataDir: string, port: number): Promise<RedisHa
   return { port, startedHere: true, stop: () => shutdown(dataDir, port) };
 }
 
-function shutdown(dataDir: string, port: number): void {
+/**
+ * SHUTDOWN answers as Redis begins to exit, a moment before its port closes: stopped means the port
+ * is free, so a start straight after (or a check) never finds the old one half-gone.
+ */
+async function shutdown(dataDir: string, port: number): Promise<void> {
   try {
     run('redis-cli', ['-h', '127.0.0.1', '-p', String(port), 'shutdown', 'nosave'], { ownSession: true });
   } catch {
     /* already gone */
   }
+  await waitFor('Redis to stop', () => !portInUse(port), 15_000);
   releaseClaim(dataDir, 'redis');
 }

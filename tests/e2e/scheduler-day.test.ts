@@ -327,7 +327,7 @@ describe("the scheduler's day on the board", () => {
     await page.goto(`${app.url}/jobs/${job.jobId}`);
     await page.getByText('1. Connect and certify').click();
     await page
-      .getByText(/^Priya Nair · Mon 30 Nov 2026, 09:00 · Declined · Not free that day — <b>wedding<\/b>$/)
+      .getByText(/^Priya Nair · Mon 30 Nov 2026, 09:00–13:00 · Declined · Not free that day — <b>wedding<\/b>$/)
       .waitFor({ timeout: 10_000 });
 
     // Booked again: the declined booking dragged onto Tom's row.

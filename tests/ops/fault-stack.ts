@@ -60,7 +60,7 @@ export interface FaultStack {
   app: { port: number; url: string; output: () => string } | null;
   stopPostgres(): void;
   startPostgres(): Promise<void>;
-  stopRedis(): void;
+  stopRedis(): Promise<void>;
   startRedis(): Promise<void>;
   /** Starts `server/index.ts` with RUN_WORKER=1 against this stack. */
   startServer(env?: Record<string, string>): Promise<void>;
@@ -107,8 +107,8 @@ export async function startFaultStack(database: string): Promise<FaultStack> {
     async startPostgres() {
       pg = await startPostgres(dataDir, pgPort);
     },
-    stopRedis() {
-      redis?.stop();
+    async stopRedis() {
+      await redis?.stop();
       redis = null;
     },
     async startRedis() {
@@ -168,7 +168,7 @@ export async function startFaultStack(database: string): Promise<FaultStack> {
       await signer?.close();
       await knex.destroy();
       await inbox.stop();
-      stack.stopRedis();
+      await stack.stopRedis();
       stack.stopPostgres();
       rmSync(dataDir, { recursive: true, force: true });
     },

@@ -90,7 +90,7 @@ describe('Redis stopped under the server and its in-process worker', () => {
     );
 
     // Redis goes (and with it A's job: no persistence). Bookings still save; B and C wait as outbox rows.
-    stack.stopRedis();
+    await stack.stopRedis();
     const b = await publishLift('TW-2419', '2027-03-15');
     const c = await publishLift('TW-2420', '2027-03-17');
     expect([b.status, c.status]).toEqual([200, 200]);
