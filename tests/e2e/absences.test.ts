@@ -115,6 +115,26 @@ describe('time away on the Resources page', () => {
     await page.goto(`${app.url}/resources`);
     await page.getByRole('button', { name: 'Add a crew, person or machine' }).click();
     const form = page.getByRole('form', { name: 'Add a crew, person or machine' });
+    // The kinds offered are the words a person types, not stored codes.
+    expect(
+      await form.locator('datalist option').evaluateAll((os) => os.map((o) => (o as HTMLOptionElement).value)),
+    ).toEqual(expect.arrayContaining(['install crew']));
+    expect(await form.getByLabel('Kind').getAttribute('placeholder')).toBe('install crew');
+    // Slips are named under the form, each box pointing at its own, the first one focused; nothing is added.
+    const before = await app.ctx.knex('resources').count({ n: '*' }).first();
+    await form.getByLabel('Kind').fill('install crew!');
+    await form.getByRole('button', { name: 'Add', exact: true }).click();
+    const problemOf = async (label: string) => {
+      const id = await form.getByLabel(label).getAttribute('aria-describedby');
+      return id === null ? null : form.locator(`[id="${id}"]`).textContent();
+    };
+    await expect.poll(() => problemOf('Name')).toBe('Name is required');
+    expect(await problemOf('Kind')).toBe(
+      'Kind must start with a letter and hold only letters, digits and spaces, e.g. excavator or install crew',
+    );
+    expect(await problemOf('What it is')).toBeNull();
+    expect(await form.getByLabel('Name').evaluate((el) => el === document.activeElement)).toBe(true);
+    expect(await app.ctx.knex('resources').count({ n: '*' }).first()).toEqual(before);
     await form.getByLabel('Name').fill('Crew Wren');
     await form.getByLabel('Kind').fill('install crew');
     await form.getByRole('button', { name: 'Add', exact: true }).click();
@@ -127,6 +147,9 @@ describe('time away on the Resources page', () => {
     await rename.getByLabel('New name').fill('Crew Heron');
     await rename.getByRole('button', { name: 'Rename' }).click();
     expect(await rename.getByRole('alert').textContent()).toBe('New name is already used by another resource');
+    const problemId = await rename.getByLabel('New name').getAttribute('aria-describedby');
+    expect(await rename.getByRole('alert').getAttribute('id')).toBe(problemId);
+    expect(await rename.getByLabel('New name').evaluate((el) => el === document.activeElement)).toBe(true);
     await rename.getByLabel('New name').fill('Crew Wrenn');
     await rename.getByRole('button', { name: 'Rename' }).click();
     await page.getByRole('button', { name: 'Edit Crew Wrenn' }).waitFor();
