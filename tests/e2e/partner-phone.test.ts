@@ -104,6 +104,17 @@ describe('our slots on a phone', () => {
     await card(third.id).getByRole('button', { name: 'Decline…' }).click();
     const dialog = page.getByRole('dialog');
     await dialog.waitFor();
+    // A quick choice and 500 characters of one's own are more than the installer can be sent: the box says so.
+    await dialog.getByRole('radio').first().check();
+    const own = dialog.getByLabel('In your own words');
+    await own.fill('x'.repeat(500));
+    const problemId = await own.getAttribute('aria-describedby');
+    expect(problemId).toBe('decline-reason-problem');
+    expect(await dialog.locator(`[id="${problemId}"]`).textContent()).toBe('Keep it to 500 characters.');
+    expect(await own.getAttribute('aria-invalid')).toBe('true');
+    expect(await dialog.getByRole('button', { name: 'Decline the slot' }).isDisabled()).toBe(true);
+    await own.fill('Van off the road');
+    expect(await own.getAttribute('aria-describedby')).toBeNull();
     await app.ctx
       .knex('bookings')
       .where('id', third.id)
