@@ -11,6 +11,8 @@ type Checked<T> =
  * The one way a form keeps its problems by field, to show each under its box: from the shared
  * schema checked before sending, or from the server's problem+json (RFC 9457 `errors`) after.
  * Fields are keyed by their dotted path, as the server names them (`waterTargets.ph.max`).
+ * When either finds problems, the first box of this form with one (in the page's order) is focused
+ * (see `focusFirst`): every form, the same way, without each having to ask.
  *
  * @example
  * const fields = useFieldErrors();
@@ -19,6 +21,8 @@ type Checked<T> =
  */
 export function useFieldErrors() {
   const errors = ref<Record<string, string>>({});
+  /** The id of each field's box, as `describe` was given it while the form drew its boxes. */
+  const boxIds = new Map<string, string>();
 
   /** The schema's answer: its data when valid, else null with its problems kept. */
   function check<T>(result: Checked<T>): T | null {
@@ -33,6 +37,7 @@ export function useFieldErrors() {
       found[key] ??= issue.message;
     }
     errors.value = found;
+    void focusFirst();
     return null;
   }
 
@@ -51,6 +56,7 @@ export function useFieldErrors() {
             ]),
           )
         : {};
+    if (Object.keys(errors.value).length > 0) void focusFirst();
   }
 
   function clear(): void {
@@ -62,18 +68,32 @@ export function useFieldErrors() {
   /** The sentence under a field's box, its label first (see fieldSentence), or undefined. */
   const sentence = (field: string, label: string): string | undefined => fieldSentence(label, errors.value[field]);
   /** Attributes for the box itself: marked invalid and pointing at its sentence (ids from `idOf`). */
-  const describe = (field: string, id: string): Record<string, string> =>
-    errors.value[field] ? { 'aria-invalid': 'true', 'aria-describedby': `${id}-problem` } : {};
+  const describe = (field: string, id: string): Record<string, string> => {
+    boxIds.set(field, id);
+    return errors.value[field] ? { 'aria-invalid': 'true', 'aria-describedby': `${id}-problem` } : {};
+  };
 
   /**
-   * After the form shows its problems: moves to the first box marked invalid, in the middle of the
-   * screen. On a phone the save button stays in view while the box with the problem may be far above.
+   * After the form shows its problems: moves to its first box with one, in the middle of the
+   * screen. On a phone the save button stays in view while the box with the problem may be far
+   * above. Only this form's boxes count, so a problem left showing in another form on the page never
+   * takes the focus; a problem of no box (a stale version) leaves it where it is.
    */
   async function focusFirst(): Promise<void> {
     await nextTick();
-    const box = document.querySelector<HTMLElement>('[aria-invalid="true"]');
-    box?.focus({ preventScroll: true });
-    box?.scrollIntoView({ block: 'center' });
+    if (typeof document === 'undefined') return; // drawn on the server (tests): nothing to focus
+    const boxes: HTMLElement[] = [];
+    for (const field of Object.keys(errors.value)) {
+      const id = boxIds.get(field);
+      const box = id === undefined ? null : document.getElementById(id);
+      if (box) boxes.push(box);
+    }
+    const first = boxes.reduce<HTMLElement | undefined>(
+      (a, b) => (a === undefined || b.compareDocumentPosition(a) & Node.DOCUMENT_POSITION_FOLLOWING ? b : a),
+      undefined,
+    );
+    first?.focus({ preventScroll: true });
+    first?.scrollIntoView({ block: 'center' });
   }
 
   return { errors, check, take, clear, status, sentence, describe, focusFirst };
