@@ -39,6 +39,10 @@ describe('time away on the Resources page', () => {
     await panel.getByLabel('Last day away').fill('2026-06-04');
     await panel.getByRole('button', { name: 'Mark away' }).click();
     expect(await panel.getByRole('alert').textContent()).toBe('Why is required: say why, in a few words');
+    // The box points at it and is where the cursor goes.
+    const why = panel.getByLabel('Why');
+    expect(await why.getAttribute('aria-describedby')).toBe(await panel.getByRole('alert').getAttribute('id'));
+    await expect.poll(() => why.evaluate((el) => el === document.activeElement)).toBe(true);
     expect(await awayRows()).toEqual([]);
 
     await panel.getByLabel('Why').fill('Training');
