@@ -13,6 +13,8 @@ describe("a stage template's problems, in the owner's words", () => {
     const withNotice = draft.stages.find((s) => s.leadTime)!;
     withNotice.leadTime!.workingDays = 9999;
     draft.links[0]!.lagAmount = -1;
+    const lift = draft.stages.find((s) => s.requirements.some((r) => r.kind === 'crane'))!;
+    lift.requirements.find((r) => r.kind === 'crane')!.count = 0;
     const checked = PutTemplate.safeParse({ version: 0, name: draft.name, stages: draft.stages, links: draft.links });
     expect(checked.success).toBe(false);
     const said = templateProblems(
@@ -23,6 +25,7 @@ describe("a stage template's problems, in the owner's words", () => {
       'Stage 1: the name is required',
       'Excavate pit: the minutes of work must be at least 15 minutes',
       'Spoil away (skips or grab lorry): the notice must be at most 250 working days',
+      'Crane lift into pit: the crane count must be at least 1',
       // The first gap is the dig's after the survey, whose name was emptied above.
       'Excavate pit after Stage 1: the gap cannot be negative',
     ]);

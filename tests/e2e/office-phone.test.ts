@@ -68,6 +68,38 @@ describe('office pages on a phone', () => {
     await page.screenshot({ path: 'tests/e2e/artifacts/templates-phone.png' });
   });
 
+  it("names a template's slips by stage, marks their boxes, brings the first into view, and saves nothing", async () => {
+    await page.goto(`${app.url}/templates`);
+    await page.locator('table.grid').waitFor();
+    const stored = () => app.ctx.knex('stage_templates').count({ n: '*' }).first();
+    const before = await stored();
+    const fallback = page.getByLabel('Fallback minutes for Excavate pit');
+    await fallback.fill('5');
+    const gap = page.getByLabel('Gap between Site survey and Excavate pit', { exact: true });
+    await gap.fill('-1');
+    await page.getByRole('button', { name: 'Save template' }).click();
+    const list = page.locator('.problems');
+    await list.waitFor();
+    expect(await list.locator('li').allTextContents()).toEqual([
+      'Excavate pit: the minutes of work must be at least 15 minutes',
+      'Excavate pit after Site survey: the gap cannot be negative',
+    ]);
+    // Each box points at its own line; the first (far above the button on a phone) has the cursor.
+    for (const [b, line] of [
+      [fallback, 0],
+      [gap, 1],
+    ] as const) {
+      expect(await b.getAttribute('aria-invalid')).toBe('true');
+      expect(await b.getAttribute('aria-describedby')).toBe(await list.locator('li').nth(line).getAttribute('id'));
+    }
+    await expect.poll(() => fallback.evaluate((el) => el === document.activeElement)).toBe(true);
+    expect(await stored()).toEqual(before);
+    // Put right, the marks go with the list.
+    await page.getByRole('button', { name: 'Discard changes' }).click();
+    expect(await list.count()).toBe(0);
+    expect(await fallback.getAttribute('aria-invalid')).toBeNull();
+  });
+
   it('refuses a deposit typed on a page loaded before someone else changed it, and shows theirs', async () => {
     await page.goto(`${app.url}/firm`);
     const box = page.locator('#deposit-percent');

@@ -16,7 +16,7 @@ function stageField(stage: InstallTemplate['stages'][number] | undefined, rest: 
   if (first === 'duration') return 'the minutes of work';
   if (first === 'requirements' && third === 'count') {
     const kind = stage?.requirements[Number(second)]?.kind;
-    return kind ? `how many ${kindLabel(kind)}` : 'how many are needed';
+    return kind ? `the ${kindLabel(kind)} count` : 'the count needed';
   }
   if (first === 'cure') return 'the cure strength';
   if (first === 'leadTime') return 'the notice';
