@@ -86,6 +86,11 @@ async function shutdown(dataDir: string, port: number): Promise<void> {
   } catch {
     /* already gone */
   }
-  await waitFor('Redis to stop', () => !portInUse(port), 15_000);
+  const deadline = Date.now() + 15_000;
+  while (portInUse(port)) {
+    if (Date.now() > deadline)
+      throw new Error(`Redis on port ${port} was asked to stop but is still running after 15 s`);
+    await new Promise((r) => setTimeout(r, 100));
+  }
   releaseClaim(dataDir, 'redis');
 }
