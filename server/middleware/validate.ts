@@ -38,6 +38,13 @@ function unstorable(value: unknown, path: string[], found: FieldError[], depth =
   }
 }
 
+/** Where the bad values were, in words: the body, the address's query (?…) or its path. */
+const PART_WORDS: Record<Part, string> = {
+  body: 'The request body has',
+  query: "The address's query has",
+  params: "The address's path has",
+};
+
 /**
  * Parses one part of a request with a shared schema; bad input → 400 naming each field (the part
  * as the prefix for query and params: `query.search`, `params.id`).
@@ -47,16 +54,13 @@ export function parse<S extends z.ZodType>(schema: S, value: unknown, part: Part
   const whole = part === 'body' ? '(body)' : part;
   const result = schema.safeParse(value ?? {});
   if (!result.success) {
-    throw new BadRequestError(
-      `The ${part === 'body' ? 'request body' : part} has fields that are not valid.`,
-      fieldErrorsOf(result.error, prefix),
-    );
+    throw new BadRequestError(`${PART_WORDS[part]} fields that are not valid.`, fieldErrorsOf(result.error, prefix));
   }
   const found: FieldError[] = [];
   unstorable(result.data, prefix ? [prefix] : [], found);
   if (found.length) {
     throw new BadRequestError(
-      `The ${part === 'body' ? 'request body' : part} has fields that are not valid.`,
+      `${PART_WORDS[part]} fields that are not valid.`,
       found.map((f) => ({ ...f, field: f.field || whole })),
     );
   }

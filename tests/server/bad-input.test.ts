@@ -61,6 +61,13 @@ describe('what answered 500 answers 400 naming the parameter', () => {
   it('GET /api/jobs?search=%00: the search box refuses a NUL', async () => {
     expectFieldErrors(await scheduler.get('/api/jobs?search=%00'), { 'query.search': HIDDEN });
     expectFieldErrors(await scheduler.get('/api/jobs?search=Otley%0Aroad'), { 'query.search': LINE });
+    // The detail says where, in words (not "The query has…"), and so for the path's own parameters.
+    expect((await scheduler.get('/api/jobs?search=%00')).body.detail).toBe(
+      "The address's query has fields that are not valid.",
+    );
+    expect((await scheduler.get('/api/jobs/abc')).body.detail).toBe(
+      "The address's path has fields that are not valid.",
+    );
     // An ordinary search still works.
     expect(
       (await scheduler.get('/api/jobs?search=TW-2405').expect(200)).body.items.map(
