@@ -10,6 +10,7 @@ import type {
   Stage,
   WorkingCalendar,
 } from './scheduler/index.ts';
+import type { BookingWindow } from './booking-window.ts';
 
 /** A resource row on the board, with what the timeline shows beside the engine's fields. */
 export interface BoardResource extends Resource {
@@ -80,6 +81,8 @@ export interface BoardData {
   bookings: BoardBooking[];
   hirePeriods: HirePeriod[];
   leadTimeRules: LeadTimeRule[];
+  /** How far from `now` a booking may lie (the server's setting); absent from boards built elsewhere. */
+  bookingWindow?: BookingWindow;
 }
 
 /** The engine's view of board data (the display fields ride along unread). */

@@ -21,7 +21,7 @@ import { ResourceBooksService } from '../services/resource-books.ts';
 import { CreateResource, RenameResource, SetCrewMembers } from '../../shared/schemas/resources.ts';
 import { CreateAbsence, CreateClosure } from '../../shared/schemas/absences.ts';
 import { BookingsService } from '../services/bookings.ts';
-import type { BookingLimits } from '../services/booking-writes.ts';
+import { DEFAULT_BOOKING_LIMITS, type BookingLimits } from '../services/booking-writes.ts';
 import { CompletionService } from '../services/completion.ts';
 import { PlacementService } from '../services/placement.ts';
 import { AutoPlaceRequest, SlotSearch, type PlanProgress } from '../../shared/schemas/placement.ts';
@@ -91,12 +91,12 @@ export function apiRoutes(
       }
       // One connection, one snapshot: the loader's queries run one after another in a read-only
       // transaction, so a busy server serves boards in turn instead of interleaving them all.
-      res.json(
-        await knex.transaction((trx) => loadBoard(trx, req.actor!, window), {
-          readOnly: true,
-          isolationLevel: 'repeatable read',
-        }),
-      );
+      const board = await knex.transaction((trx) => loadBoard(trx, req.actor!, window), {
+        readOnly: true,
+        isolationLevel: 'repeatable read',
+      });
+      const { pastDays, futureDays } = limits ?? DEFAULT_BOOKING_LIMITS;
+      res.json({ ...board, bookingWindow: { pastDays, futureDays } });
     })
     .get('/api/board/stream', 'board:read', async (req, res) => {
       await stream.open(req, res, req.actor!);

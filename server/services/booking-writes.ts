@@ -20,6 +20,7 @@ import { loadBoard } from './board.ts';
 import { verifyStages } from './schedule-check.ts';
 import { checkStageFinish } from './stage-gates.ts';
 import { bookingRemoved, enqueueMessage, queueBookingMessage, queueCustomerNotice } from './outbox.ts';
+import { outsideBookingWindow } from '../../shared/booking-window.ts';
 
 const DAY = 86_400_000;
 
@@ -248,14 +249,8 @@ export class BookingWork {
   }
 
   private checkWindow(field: string, instant: number): void {
-    const { pastDays, futureDays } = this.writer.limits;
-    const now = this.writer.now();
-    if (!Number.isFinite(instant) || instant < now - pastDays * DAY || instant > now + futureDays * DAY) {
-      throw new BadRequestError(
-        `Bookings must lie between ${Math.round(pastDays / 365)} years ago and ${Math.round(futureDays / 365)} years ahead.`,
-        [{ field, message: `must be within ${pastDays} days before and ${futureDays} days after today` }],
-      );
-    }
+    const outside = outsideBookingWindow(this.writer.limits, this.writer.now(), instant);
+    if (outside) throw new BadRequestError(outside.detail, [{ field, message: outside.message }]);
   }
 
   /** Checks a start and end a person gave (window, order) before anything else is worked out. */

@@ -153,10 +153,7 @@ class CalendarImpl implements CompiledCalendar {
     // Working time is counted day by day from the first day asked about: a span of more than about
     // ten years is refused rather than counted (year 9999 would take minutes and block everyone).
     if (i < -SEARCH_DAYS || i > cum.length + SEARCH_DAYS) {
-      throw new SchedulerError(
-        'out_of_range',
-        `Calendar ${this.source.id} can't count working time across more than ten years`,
-      );
+      throw tooFar(this.source.id);
     }
     if (i < 0) {
       // Prepend earlier days with negative totals so the origin (and every value handed out) stays put.
@@ -364,6 +361,18 @@ export function isWorkingEnd(cal: Cal, instant: Instant): boolean {
 }
 
 /**
+ * A time more than about ten years from the rest of the plan (year 9999 typed in a date box), in the
+ * words of whoever chose it; which calendar refused is in the details, for the log.
+ */
+function tooFar(calendarId: string): SchedulerError {
+  return new SchedulerError(
+    'out_of_range',
+    'That is more than ten years from the rest of the plan: working time is not counted across more than ten years.',
+    { calendarId },
+  );
+}
+
+/**
  * Working minutes between two instants (negative when `end` is before `start`).
  *
  * @example
@@ -375,10 +384,7 @@ export function workingMinutesBetween(cal: Cal, start: Instant, end: Instant): n
   const c = compileCalendar(cal);
   // Refused before any counting, so the calendar's running totals are never started from a far-off day.
   if (Math.abs(end - start) > SEARCH_DAYS * DAY_MS) {
-    throw new SchedulerError(
-      'out_of_range',
-      `Calendar ${c.source.id} can't count working time across more than ten years`,
-    );
+    throw tooFar(c.source.id);
   }
   return (c as CalendarImpl).minutesBetween(start, end);
 }

@@ -11,6 +11,7 @@ import {
 } from '@shared/scheduler/index';
 import { bookingsOfStage, isBlocking } from '@shared/board-actions';
 import { wrongKindMessage } from '@shared/stage-completion';
+import { outsideBookingWindow, type BookingWindow } from '@shared/booking-window';
 
 export interface DragProbe {
   stageId: string;
@@ -50,6 +51,8 @@ export interface DragCheckOptions {
   onDropOnTray?: (bookingId: string) => void;
   /** Words to add to a refusal citing bookings the filters hide ("(TW-2423 is hidden by the filters)"). */
   hiddenNote?: (bookingIds: string[]) => string;
+  /** How far from the board's today a booking may lie (sent with the board): beyond it, refused as the server would. */
+  bookingWindow?: () => BookingWindow | undefined;
 }
 
 const refuse = (start: number, reason: string): DragVerdict => ({
@@ -81,6 +84,19 @@ export function useDragCheck(
   let cacheKey = '';
   let lastProbe: DragProbe | null = null;
   let dragging = false;
+
+  /**
+   * A time beyond the booking window (a year typed as 2031 or 9999 in the move dialog) is refused in
+   * the server's own words before the engine is asked: the engine counts working time only so far.
+   */
+  function outsideWindow(ix: BoardIndex, start: number, end?: number): DragVerdict | null {
+    const window = options.bookingWindow?.();
+    if (!window) return null;
+    const outside =
+      outsideBookingWindow(window, ix.now, start) ??
+      (end === undefined ? null : outsideBookingWindow(window, ix.now, end));
+    return outside ? refuse(start, outside.detail) : null;
+  }
 
   function spanStartFor(ix: BoardIndex, probe: DragProbe): number {
     const own = bookingsOfStage(ix, probe.stageId);
@@ -115,6 +131,10 @@ export function useDragCheck(
   function evaluateSet(stageId: string, own: Booking[], start: number): DragVerdict {
     const ix = index();
     if (!ix) return refuse(start, 'The board is still loading.');
+    for (const b of own) {
+      const outside = outsideWindow(ix, b.start, b.end);
+      if (outside) return { ...outside, start };
+    }
     try {
       return verdictOf(checkStageBookings(ix, stageId, own), start);
     } catch (error) {
@@ -126,6 +146,8 @@ export function useDragCheck(
   function evaluate(probe: DragProbe): DragVerdict {
     const ix = index();
     if (!ix) return refuse(probe.start, 'The board is still loading.');
+    const outside = outsideWindow(ix, probe.start, probe.end);
+    if (outside) return outside;
     let start = probe.start;
     if (probe.snapToWorkingStart && probe.resourceId && ix.resources.has(probe.resourceId)) {
       start = nextWorkingInstant(resourceCalendarOf(ix, probe.resourceId), start);
@@ -187,6 +209,8 @@ export function useDragCheck(
   function evaluateAlone(probe: DragProbe): DragVerdict {
     const ix = index();
     if (!ix) return refuse(probe.start, 'The board is still loading.');
+    const outside = outsideWindow(ix, probe.start, probe.end);
+    if (outside) return outside;
     const stage = ix.stages.get(probe.stageId)?.stage;
     const current = bookingsOfStage(ix, probe.stageId);
     const dragged = current.find((b) => b.id === probe.bookingId);

@@ -257,10 +257,17 @@ describe('the board at 1280 × 800', () => {
     const movable = page.locator('.fc-event.wl-booking.fc-event-draggable').first();
     await movable.focus();
     await page.keyboard.press('m');
-    await page
-      .getByRole('dialog')
-      .getByText(/^Move .+ to…$/)
-      .waitFor({ timeout: 5_000 });
+    const dialog = page.getByRole('dialog');
+    await dialog.getByText(/^Move .+ to…$/).waitFor({ timeout: 5_000 });
+    // A year typed too far is refused as the server would, in its words (not the engine's): more than
+    // three years from the scenario's today, and year 9999 alike.
+    for (const far of ['2030-06-03T09:00', '9999-01-05T09:00']) {
+      await dialog.getByLabel('Starts').fill(far);
+      await expect
+        .poll(async () => (await dialog.getByRole('alert').textContent())?.trim())
+        .toBe('Can’t go there: Bookings must lie between 2 years ago and 3 years ahead.');
+      expect(await dialog.getByRole('button', { name: 'Move' }).isDisabled()).toBe(true);
+    }
     await page.keyboard.press('Escape');
     await page.getByRole('dialog').waitFor({ state: 'detached' });
 

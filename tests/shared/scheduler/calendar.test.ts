@@ -175,7 +175,13 @@ describe('refuses bad input with typed errors', () => {
     const cal = { ...firmCal, id: 'far' };
     const started = performance.now();
     expect(() => workingMinutesBetween(cal, at(2026, 6, 1), Date.UTC(9999, 0, 4, 9))).toThrowError(
-      expect.objectContaining({ code: 'out_of_range' }),
+      expect.objectContaining({
+        code: 'out_of_range',
+        // Said to whoever typed the year, so in their words; the calendar is named for the log only.
+        message:
+          'That is more than ten years from the rest of the plan: working time is not counted across more than ten years.',
+        details: { calendarId: 'far' },
+      }),
     );
     expect(() =>
       workingMinutesBetween({ ...cal, id: 'far-back' }, Date.parse('0001-01-04T09:00:00Z'), at(2026, 6, 1)),
