@@ -525,3 +525,47 @@ describe('the board for someone who may only look', () => {
     await look.close();
   }, 60_000);
 });
+
+describe('the now line', () => {
+  it('runs under the bookings, so it never cuts through their words', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
+    const p = await ctx.newPage();
+    await signInThroughPage(p, app.url, account('scheduler').email);
+    // A booking of the scenario's first week, within one day and at least two hours long; "now" is
+    // set to its middle, inside the hours the week shows.
+    const week = (await (
+      await p.request.get(`${app.url}/api/board?from=2026-06-01T00:00:00Z&to=2026-06-08T00:00:00Z`)
+    ).json()) as { bookings: { id: string; start: number; end: number; state: string; elsewhere?: boolean }[] };
+    const b = week.bookings.find(
+      (x) =>
+        !x.elsewhere &&
+        x.state !== 'declined' &&
+        x.start >= Date.parse('2026-06-01T00:00:00Z') &&
+        x.end <= Date.parse('2026-06-06T00:00:00Z') &&
+        x.end - x.start >= 2 * 3_600_000 &&
+        new Date(x.start).toISOString().slice(0, 10) === new Date(x.end).toISOString().slice(0, 10),
+    )!;
+    expect(b).toBeDefined();
+    await ctx.clock.setFixedTime(new Date((b.start + b.end) / 2));
+    await openBoard(p, 'view=week&date=2026-06-03');
+    const line = p.locator('.fc-timeline-now-indicator-line');
+    await line.waitFor();
+    const chip = p.locator(`.fc-event[data-booking-id="${b.id}"]`).first();
+    await chip.scrollIntoViewIfNeeded();
+    const [l, c] = [(await line.boundingBox())!, (await chip.boundingBox())!];
+    expect(l.x).toBeGreaterThan(c.x);
+    expect(l.x).toBeLessThan(c.x + c.width);
+    // The line takes no pointer (as drawn); made to take one here, the topmost thing where it
+    // crosses the booking is what is painted there.
+    await p.addStyleTag({ content: '.fc-timeline-now-indicator-line { pointer-events: auto !important; }' });
+    const top = await p.evaluate(
+      ([x, y]) => {
+        const el = document.elementFromPoint(x!, y!);
+        return el?.closest('.fc-event')?.getAttribute('data-booking-id') ?? el?.className ?? null;
+      },
+      [l.x + l.width / 2, c.y + c.height / 2],
+    );
+    expect(top).toBe(b.id);
+    await ctx.close();
+  }, 60_000);
+});
