@@ -259,14 +259,26 @@ describe('the board at 1280 × 800', () => {
     await page.keyboard.press('m');
     const dialog = page.getByRole('dialog');
     await dialog.getByText(/^Move .+ to…$/).waitFor({ timeout: 5_000 });
+    const starts = dialog.getByLabel('Starts');
+    const border = () => starts.evaluate((el) => getComputedStyle(el).borderTopColor);
+    const pointedAt = () =>
+      starts.evaluate((el) => document.getElementById(el.getAttribute('aria-describedby') ?? '')?.textContent?.trim());
+    // Where it is now passes (or warns): the box is not marked, and points at the verdict.
+    expect(await starts.getAttribute('aria-invalid')).toBeNull();
+    const plain = await border();
+    expect(await pointedAt()).toMatch(/^(That time passes every check\.|Allowed, with )/);
     // A year typed too far is refused as the server would, in its words (not the engine's): more than
-    // three years from the scenario's today, and year 9999 alike.
+    // three years from the scenario's today, and year 9999 alike. The box is marked and outlined,
+    // and points at the refusal.
     for (const far of ['2030-06-03T09:00', '9999-01-05T09:00']) {
-      await dialog.getByLabel('Starts').fill(far);
+      await starts.fill(far);
       await expect
         .poll(async () => (await dialog.getByRole('alert').textContent())?.trim())
         .toBe('Can’t go there: Bookings must lie between 2 years ago and 3 years ahead.');
       expect(await dialog.getByRole('button', { name: 'Move' }).isDisabled()).toBe(true);
+      expect(await starts.getAttribute('aria-invalid')).toBe('true');
+      expect(await pointedAt()).toBe('Can’t go there: Bookings must lie between 2 years ago and 3 years ahead.');
+      expect(await border()).not.toBe(plain);
     }
     await page.keyboard.press('Escape');
     await page.getByRole('dialog').waitFor({ state: 'detached' });
