@@ -1,5 +1,6 @@
 import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
-import { contactLines, type BookingFacts } from '../mail/facts.ts';
+import type { BookingFacts } from '../mail/facts.ts';
+import { telHref } from '../../shared/phone.ts';
 import { describeWindow } from '../../shared/slot-window.ts';
 import { supplyLines } from '../../shared/slot-supply.ts';
 import type { AnswerAction } from '../services/links.ts';
@@ -12,6 +13,23 @@ const ACTION_LABEL: Record<AnswerAction, { title: string; button: string }> = {
   decline: { title: 'Decline this slot', button: 'Decline' },
   propose: { title: 'Propose another time', button: 'Send my proposal' },
 };
+
+/** A phone number the partner can tap to call (they open these pages on a phone). */
+function phoneLink(phone: string): string {
+  return `<a href="${e(telHref(phone))}">${e(phone)}</a>`;
+}
+
+/** "Role, name: phone" for each contact the read policy gives the partner (contactLines in the e-mail), phones tappable. */
+function contactsHtml(contacts: BookingFacts['forPartner']['contacts']): string {
+  return contacts
+    .map((c) => `${e(c.role)}, ${e(c.name)}: ${c.phone ? phoneLink(c.phone) : 'no phone recorded'}`)
+    .join('<br>');
+}
+
+/** "call Tideway Hot Tubs on 0113 …" with the number tappable, or without one when none is recorded. */
+function callInstaller(f: BookingFacts): string {
+  return `call ${e(f.installer.name)}${f.installer.phone ? ` on ${phoneLink(f.installer.phone)}` : ''}`;
+}
 
 /** The slot as the partner needs it on the day: the same facts as the e-mail, through the same read policy. */
 export function slotDetails(f: BookingFacts): string {
@@ -30,7 +48,7 @@ export function slotDetails(f: BookingFacts): string {
 <dt>When</dt><dd>${e(when.date)}<br>${e(when.window)} (${e(when.zone)})</dd>
 <dt>Site</dt><dd>${e(f.job.siteAddress)}, ${e(f.job.siteTown)} ${e(f.job.sitePostcode)}</dd>
 <dt>Access and parking</dt><dd>${e(f.job.accessNotes ?? 'Ask the installer before you travel.')}</dd>
-<dt>On the day, call</dt><dd>${lines(contactLines(f.forPartner.contacts))}</dd>
+<dt>On the day, call</dt><dd>${contactsHtml(f.forPartner.contacts)}</dd>
 </dl>${cautions.length ? `<div class="caution"><strong>Safety on this job</strong><ul>${cautions.map((c) => `<li>${e(c)}</li>`).join('')}</ul><strong>${e(CAUTION_NOTE)}</strong></div>` : ''}`;
 }
 
@@ -130,7 +148,7 @@ export function closedPage(f: BookingFacts, after = ''): string {
     }[f.booking.state] ?? f.booking.state;
   return page(
     'Already answered',
-    `<p>This booking is ${e(state)}, so there is nothing to answer. Call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')} to change anything.</p>${slotDetails(f)}${after}`,
+    `<p>This booking is ${e(state)}, so there is nothing to answer. To change anything, ${callInstaller(f)}.</p>${slotDetails(f)}${after}`,
     'warn',
   );
 }
@@ -139,7 +157,7 @@ export function takenPage(f: BookingFacts): string {
   return page(
     'That time was taken meanwhile',
     `<p>${e(f.resource.name)} was confirmed for another job that overlaps this slot, so this one cannot be confirmed.
-Please decline it or propose another time from the e-mail, or call ${e(f.installer.name)} on ${e(f.installer.phone ?? '')}.</p>${slotDetails(f)}`,
+Please decline it or propose another time from the e-mail, or ${callInstaller(f)}.</p>${slotDetails(f)}`,
     'refused',
   );
 }

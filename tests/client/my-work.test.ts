@@ -1,6 +1,7 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { effectScope } from 'vue';
-import { awayWords, dayLabel, groupByDay, telHref } from '@/components/my-work/my-work';
+import { awayWords, dayLabel, groupByDay } from '@/components/my-work/my-work';
+import { telHref } from '@shared/phone';
 import { useMyWork } from '@/composables/useMyWork';
 import MyWorkCard from '@/components/my-work/MyWorkCard.vue';
 import CrewDaySheet from '@/components/day-sheet/CrewDaySheet.vue';
@@ -206,6 +207,8 @@ describe('hours of work that runs over a night', () => {
     const sheet: DaySheet = { date: '2026-12-15', resource: visit.resource, visits: [visit] };
     const html = await renderHtml(CrewDaySheet, { sheet, timeZone: 'Europe/London', dateLabel: 'Tuesday 15 December' });
     expect(html).toContain('Mon 14 08:00 – 13:00 · Excavate pit');
+    // The day sheet's numbers call as the card's do (digits only in the link).
+    expect(html).toContain('<a href="tel:07700900106">07700 900106</a>');
   });
 });
 

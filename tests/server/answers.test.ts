@@ -60,6 +60,8 @@ describe('an answer link opened with GET', () => {
     expect(page.text).toContain('09:00–13:00');
     expect(page.text).toContain('registered (licensed) electrician');
     expect(page.text).toContain('Follow local codes and licensed practice');
+    // Whom to call on the day, each number a tap on the phone the link is opened on.
+    expect(page.text).toContain('Installer office, Tideway Hot Tubs: <a href="tel:01134960001">0113 496 0001</a>');
     expect(await stateOf(id)).toBe('sent');
     expect(await ctx.knex('booking_answers').where('booking_id', id)).toHaveLength(0);
     expect(await ctx.knex('link_uses')).toHaveLength(0);
@@ -200,10 +202,29 @@ describe('confirming a time that was taken meanwhile', () => {
     await web().post(answerLinks(first.mail).confirm).type('form').send({}).expect(200);
     const page = await web().post(answerLinks(second.mail).confirm).type('form').send({}).expect(409);
     expect(page.text).toContain('That time was taken meanwhile');
+    expect(page.text).toContain('or call Tideway Hot Tubs on <a href="tel:01134960001">0113 496 0001</a>.');
     expect(await stateOf(second.id)).toBe('sent');
     // The link was not spent: the partner can still decline or propose with the others.
     await web().post(answerLinks(second.mail).decline).type('form').send({}).expect(200);
     expect(await stateOf(second.id)).toBe('declined');
+  });
+
+  it('says a slot that is under way has nothing to answer, and whom to call', async () => {
+    const { id, mail } = await requested({
+      job: 'TW-2421',
+      stage: 'electrical_connect',
+      resource: 'Tom Ashworth',
+      startsAt: '2027-06-08T08:00:00Z',
+      endsAt: '2027-06-08T12:00:00Z',
+    });
+    // Started on the day without the link being used (the crew marked it from their phone).
+    await ctx.knex('bookings').where('id', id).update({ state: 'on_site' });
+    const page = await web().get(answerLinks(mail).confirm).expect(200);
+    expect(page.text).toContain('Already answered');
+    expect(page.text).toContain(
+      'This booking is under way, so there is nothing to answer. To change anything, call Tideway Hot Tubs on <a href="tel:01134960001">0113 496 0001</a>.',
+    );
+    expect(page.text).not.toMatch(/<form method="post"/);
   });
 
   it('tells the householder the lift day is booked when the crane confirms', async () => {

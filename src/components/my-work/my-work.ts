@@ -105,8 +105,3 @@ export const UNDO_OF = { arrive: 'undo-arrive', finish: 'undo-finish' } as const
   'arrive' | 'finish',
   ProgressAction
 >;
-
-/** A phone number as a tel: link (spaces dropped). @example telHref('0113 496 0001') // 'tel:01134960001' */
-export function telHref(phone: string): string {
-  return `tel:${phone.replace(/[^\d+]/g, '')}`;
-}
