@@ -17,6 +17,7 @@ main{max-width:34rem;margin:1rem auto;background:#fff;border-radius:8px;padding:
 h1{font-size:1.35rem;margin:0 0 .8rem}p,li,dd{font-size:1.05rem;line-height:1.45}dt{font-weight:bold;margin-top:.6rem}dd{margin:0}
 button{display:block;width:100%;padding:.9rem;font-size:1.1rem;font-weight:bold;border-radius:6px;border:2px solid #0b5c7a;background:#0b5c7a;color:#fff;margin-top:1rem;cursor:pointer}
 button:focus-visible,input:focus-visible,a:focus-visible{outline:3px solid #f0b429;outline-offset:2px}
+a{color:#0b5c7a}a[href^="tel:"]{white-space:nowrap;font-weight:bold}
 label{display:block;margin-top:.8rem;font-weight:bold}input{font-size:1.05rem;padding:.5rem;width:100%;box-sizing:border-box;margin-top:.2rem}
 .caution{background:#fff6e0;border-left:4px solid #b7791f;padding:.6rem .9rem;margin-top:1rem}
 </style></head><body><main>
