@@ -20,6 +20,8 @@ import { AbsencesService } from '../services/absences.ts';
 import { ResourceBooksService } from '../services/resource-books.ts';
 import { CreateResource, RenameResource, SetCrewMembers } from '../../shared/schemas/resources.ts';
 import { CreateAbsence, CreateClosure } from '../../shared/schemas/absences.ts';
+import { PutCalendarHours, PutHolidayRegion } from '../../shared/schemas/working-week.ts';
+import { WorkingWeekService } from '../services/working-week.ts';
 import { BookingsService } from '../services/bookings.ts';
 import { DEFAULT_BOOKING_LIMITS, type BookingLimits } from '../services/booking-writes.ts';
 import { CompletionService } from '../services/completion.ts';
@@ -54,6 +56,7 @@ export function apiRoutes(
   const directory = new DirectoryService();
   const members = new MembersService(knex);
   const absences = new AbsencesService(knex);
+  const workingWeek = new WorkingWeekService(knex, now);
   const books = new ResourceBooksService(knex, now);
   const bookings = new BookingsService(knex, now, limits);
   const completion = new CompletionService(knex, now);
@@ -174,6 +177,16 @@ export function apiRoutes(
     .delete('/api/firm/closures/:id', 'resources:write', async (req, res) => {
       await absences.removeClosure(req.actor!, parse(IdParams, req.params, 'params').id);
       res.status(204).end();
+    })
+    .get('/api/firm/working-week', 'firm:manage', async (req, res) => {
+      res.json(await workingWeek.get(req.actor!));
+    })
+    .put('/api/firm/calendars/:id', 'firm:manage', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await workingWeek.putHours(req.actor!, id, parse(PutCalendarHours, req.body)));
+    })
+    .put('/api/firm/holiday-region', 'firm:manage', async (req, res) => {
+      res.json(await workingWeek.putHolidayRegion(req.actor!, parse(PutHolidayRegion, req.body)));
     })
     .delete('/api/absences/:id', 'resources:write', async (req, res) => {
       await absences.remove(req.actor!, parse(IdParams, req.params, 'params').id);

@@ -37,6 +37,7 @@ import { cureRulesFromWeather } from './cure-temperatures.ts';
 import { holidaysFor } from './holiday-days.ts';
 import { orderedFrom, promisedDeadline } from '../../shared/local-dates.ts';
 import { SERVICE_TRAY_LEAD_DAYS } from '../../shared/service-plan.ts';
+import { engineWeekly } from '../../shared/working-week.ts';
 
 const OPEN_JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress'];
 
@@ -53,10 +54,6 @@ export function holidayRegionOf(code: string | null | undefined): WorkingCalenda
   if (!code) return null;
   const [country, state] = code.split('-');
   return country ? { country, ...(state ? { state } : {}) } : null;
-}
-
-function weeklyFromJson(json: Record<string, [number, number][]>): WorkingCalendar['weekly'] {
-  return Array.from({ length: 7 }, (_, d) => (json[String(d)] ?? []).map(([a, b]) => [a, b] as const));
 }
 
 type ResourceRow = Resource & { firmName: string; firmKind: string; timeZone: string; holidayRegion: string };
@@ -289,7 +286,7 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     calendars.push({
       id: c.id,
       timeZone: firm.timeZone,
-      weekly: weeklyFromJson(c.weeklyHours),
+      weekly: engineWeekly(c.weeklyHours),
       holidayRegion: holidayRegionOf(firm.holidayRegion),
       holidays: holidaysFor(holidayRegionOf(firm.holidayRegion), query),
       closures: closuresOf(c.id, c.firmId),

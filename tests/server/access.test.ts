@@ -29,6 +29,7 @@ type IdKind =
   | 'resource'
   | 'absence'
   | 'closure'
+  | 'calendar'
   | 'invitation'
   | 'member';
 type Reach = 'office' | 'crew' | 'partner';
@@ -138,6 +139,20 @@ beforeAll(async () => {
         .returning('id')
         .then((rows) => rows[0]),
     );
+  // Each firm's first working calendar (its standard week).
+  const calendarOf = async (firm: string) =>
+    first(
+      k('calendars')
+        .where('firm_id', await idOf(k, 'firms', { name: firm }))
+        .orderBy('id')
+        .first('id'),
+    );
+  const calendar = {
+    tideway: await calendarOf('Tideway Hot Tubs'),
+    moorview: await calendarOf('Moorview Spas'),
+    brightspark: await calendarOf('Brightspark Electrical'),
+    northgate: await calendarOf('Northgate Electrical'),
+  };
   const closure = {
     tideway: await closed('Tideway Hot Tubs'),
     moorview: await closed('Moorview Spas'),
@@ -193,6 +208,7 @@ beforeAll(async () => {
       resource: otter,
       absence: absence.tideway,
       closure: closure.tideway,
+      calendar: calendar.tideway,
       invitation: invitation.tideway,
       member: member.tideway,
     },
@@ -206,6 +222,7 @@ beforeAll(async () => {
       resource: otter,
       absence: absence.tideway,
       closure: closure.tideway,
+      calendar: calendar.tideway,
       invitation: invitation.tideway,
       member: member.tideway,
     },
@@ -219,6 +236,7 @@ beforeAll(async () => {
       resource: tom,
       absence: absence.tom,
       closure: closure.brightspark,
+      calendar: calendar.brightspark,
       invitation: invitation.tideway,
       member: member.tideway,
     },
@@ -233,6 +251,7 @@ beforeAll(async () => {
     resource: mvCrew,
     absence: absence.moorview,
     closure: closure.moorview,
+    calendar: calendar.moorview,
     invitation: invitation.moorview,
     member: member.moorview,
   };
@@ -246,6 +265,7 @@ beforeAll(async () => {
       resource: gareth,
       absence: absence.gareth,
       closure: closure.northgate,
+      calendar: calendar.northgate,
     },
   };
 });
@@ -327,6 +347,7 @@ function idKindOf(path: string): IdKind | null {
     ['/api/resources/', 'resource'],
     ['/api/absences/', 'absence'],
     ['/api/firm/closures/', 'closure'],
+    ['/api/firm/calendars/', 'calendar'],
     ['/api/firm/invitations/', 'invitation'],
     ['/api/firm/members/', 'member'],
   ];
@@ -375,6 +396,10 @@ function validBody(
       return { query: { role: 'crew' } };
     case 'patch /api/resources/:id':
       return { body: { name: 'Crew Renamed', previousName: 'Crew Heron' } };
+    case 'put /api/firm/calendars/:id':
+      return {
+        body: { version: 1, hours: { mon: [], tue: [], wed: [], thu: [], fri: [], sat: [], sun: [] } },
+      };
     case 'post /api/firm/closures':
     case 'post /api/resources/:id/absences':
       return { body: { from: '2026-09-21', to: '2026-09-21', reason: 'Holiday' } };

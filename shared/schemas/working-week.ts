@@ -1,0 +1,77 @@
+import { z } from 'zod';
+import { HOLIDAY_REGIONS, WEEKDAYS, type HolidayRegionCode, type WeekHours, type Weekday } from '../working-week.ts';
+import type { AffectedBooking } from './absences.ts';
+
+/** Most spans one day can hold (a morning and an afternoon, an evening call-out). */
+export const MAX_SPANS_A_DAY = 3;
+
+/** A time of day on the firm's clock; `24:00` only as a finish (work up to midnight). */
+const Start = z
+  .string({ message: 'must be a time of day like 08:00' })
+  .regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'must be a time of day like 08:00');
+const Finish = z
+  .string({ message: 'must be a time of day like 17:00' })
+  .regex(/^(([01]\d|2[0-3]):[0-5]\d|24:00)$/, 'must be a time of day like 17:00');
+
+const Span = z
+  .object({ from: Start, to: Finish })
+  .strict()
+  .refine((s) => s.to > s.from, { path: ['to'], message: 'must be after the start' });
+
+const Day = z
+  .array(Span)
+  .max(MAX_SPANS_A_DAY, `can hold at most ${MAX_SPANS_A_DAY} spans`)
+  .superRefine((spans, ctx) => {
+    for (let i = 1; i < spans.length; i++) {
+      if (spans[i]!.from < spans[i - 1]!.to)
+        ctx.addIssue({ code: 'custom', path: [i, 'from'], message: 'must be after the span before it ends' });
+    }
+  });
+
+/** PUT /api/firm/calendars/:id: the whole week, and the version it was based on (GET gives it). */
+export const PutCalendarHours = z
+  .object({
+    version: z.number({ message: 'is required: the version of the hours you loaded' }).int().min(1),
+    hours: z.object(Object.fromEntries(WEEKDAYS.map((d) => [d, Day])) as Record<Weekday, typeof Day>).strict(),
+  })
+  .strict();
+export type PutCalendarHours = z.infer<typeof PutCalendarHours>;
+
+const REGION_CODES = Object.keys(HOLIDAY_REGIONS) as [HolidayRegionCode, ...HolidayRegionCode[]];
+const Region = z.enum(REGION_CODES, { message: 'must be England and Wales, Scotland or Northern Ireland' });
+
+/**
+ * PUT /api/firm/holiday-region: the bank holidays the firm works to, and the region the form was
+ * loaded with (`was`), so a change made meanwhile by someone else is not overwritten.
+ */
+export const PutHolidayRegion = z.object({ holidayRegion: Region, was: Region.nullable() }).strict();
+export type PutHolidayRegion = z.infer<typeof PutHolidayRegion>;
+
+/** One working calendar of the firm as the firm page edits it. */
+export interface CalendarHoursView {
+  id: string;
+  name: string;
+  version: number;
+  hours: WeekHours;
+  /** The firm's own crews, people and machines that work to it. */
+  usedBy: string[];
+}
+
+/** GET /api/firm/working-week. */
+export interface WorkingWeekView {
+  timeZone: string;
+  holidayRegion: HolidayRegionCode | null;
+  calendars: CalendarHoursView[];
+}
+
+/** What PUT /api/firm/calendars/:id answers: the hours saved and the bookings now outside them. */
+export interface CalendarHoursSaved {
+  calendar: CalendarHoursView;
+  affected: AffectedBooking[];
+}
+
+/** What PUT /api/firm/holiday-region answers: the region and the bookings now on a bank holiday. */
+export interface HolidayRegionSaved {
+  holidayRegion: HolidayRegionCode;
+  affected: AffectedBooking[];
+}

@@ -1,0 +1,235 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { makeJob } from '../helpers/flows.ts';
+
+/*
+ * A firm's working week on the firm page: Tideway's standard week (seeded Monday–Friday
+ * 08:00–17:00) and the bank holidays it works to. The test's today is Mon 1 Jun 2026; London is on
+ * BST (UTC+1) all summer.
+ */
+let ctx: TestContext;
+let owner: Agent;
+let scheduler: Agent;
+let standard: string;
+let otter: string;
+let job: { jobId: string; stage: Record<string, string> };
+
+const FIVE_DAYS = { from: '08:00', to: '17:00' };
+const week = (over: Record<string, { from: string; to: string }[]> = {}) => ({
+  mon: [FIVE_DAYS],
+  tue: [FIVE_DAYS],
+  wed: [FIVE_DAYS],
+  thu: [FIVE_DAYS],
+  fri: [FIVE_DAYS],
+  sat: [],
+  sun: [],
+  ...over,
+});
+const putHours = (body: object, id = standard) =>
+  owner.put(`/api/firm/calendars/${id}`).set('X-CSRF-Token', owner.csrf).send(body);
+const book = (stageId: string, startsAt: string, endsAt: string) =>
+  scheduler
+    .post('/api/bookings')
+    .set('X-CSRF-Token', scheduler.csrf)
+    .send({ stageId, resourceId: otter, startsAt, endsAt });
+
+/** Weekday and hour on London's clock. */
+function london(iso: string): { weekday: string; hour: number } {
+  const parts = new Intl.DateTimeFormat('en-GB', {
+    timeZone: 'Europe/London',
+    weekday: 'short',
+    hour: 'numeric',
+    hourCycle: 'h23',
+  }).formatToParts(new Date(iso));
+  const part = (t: string) => parts.find((p) => p.type === t)!.value;
+  return { weekday: part('weekday'), hour: Number(part('hour')) };
+}
+
+/** The id of the booking a create answered with (201). */
+async function bookingId(res: Promise<{ status: number; body: { bookings?: { id: string }[] } }>): Promise<string> {
+  const r = await res;
+  expect(r.status, JSON.stringify(r.body)).toBe(201);
+  return String(r.body.bookings![0]!.id);
+}
+
+beforeAll(async () => {
+  ctx = await startTestApp();
+  owner = await signIn(ctx, account('owner').email);
+  scheduler = await signIn(ctx, account('scheduler').email);
+  otter = await idOf(ctx.knex, 'resources', { name: 'Crew Otter' });
+  standard = String(
+    (
+      await ctx
+        .knex('calendars')
+        .where('firm_id', await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }))
+        .orderBy('id')
+        .first('id')
+    ).id,
+  );
+  job = await makeJob(ctx.knex, {
+    reference: 'WW-401',
+    stages: [
+      { kind: 'fill', name: 'Fill', minutes: 120, needs: { install_crew: 1 } },
+      { kind: 'commissioning', name: 'Commission', minutes: 120, needs: { install_crew: 1 } },
+      { kind: 'handover', name: 'Handover', minutes: 120, needs: { install_crew: 1 } },
+      { kind: 'survey', name: 'Survey', minutes: 120, needs: { install_crew: 1 } },
+    ],
+    links: [],
+  });
+}, 60_000);
+afterAll(async () => {
+  await ctx?.close();
+});
+
+describe("the firm's working week", () => {
+  it('shows each calendar as days and times, with who works to it', async () => {
+    const res = await owner.get('/api/firm/working-week').expect(200);
+    expect(res.body).toMatchObject({ timeZone: 'Europe/London', holidayRegion: 'GB-ENG' });
+    const first = res.body.calendars[0];
+    expect(first).toMatchObject({ id: standard, name: 'Standard week', version: 1, hours: week() });
+    expect(first.usedBy).toEqual(expect.arrayContaining(['Crew Heron', 'Crew Otter']));
+    // Only the owner manages the firm.
+    await scheduler.get('/api/firm/working-week').expect(403);
+  });
+
+  it('saves shorter Fridays: the bookings now outside them are named, the board and the engine use them at once', async () => {
+    // Fri 12 Jun: 09:00–11:00 BST stays inside; 14:00–16:00 BST falls outside 08:00–13:00.
+    const morning = await bookingId(book(job.stage.fill!, '2026-06-12T08:00:00Z', '2026-06-12T10:00:00Z'));
+    const afternoon = await bookingId(book(job.stage.commissioning!, '2026-06-12T13:00:00Z', '2026-06-12T15:00:00Z'));
+    const saved = await putHours({ version: 1, hours: week({ fri: [{ from: '08:00', to: '13:00' }] }) }).expect(200);
+    expect(saved.body.calendar).toMatchObject({
+      id: standard,
+      version: 2,
+      hours: { fri: [{ from: '08:00', to: '13:00' }] },
+    });
+    // Named: the afternoon (and the demo's own Friday afternoons on Tideway's rows), not the morning.
+    const named = saved.body.affected as { bookingId: string; startsAt: string; endsAt: string }[];
+    expect(named.map((b) => b.bookingId)).toContain(afternoon);
+    expect(named.map((b) => b.bookingId)).not.toContain(morning);
+    // Every one named starts or finishes in the Friday afternoon the change took away.
+    for (const b of named) {
+      const inIt = (iso: string) => {
+        const { weekday, hour } = london(iso);
+        return weekday === 'Fri' && hour >= 13 && hour <= 17;
+      };
+      expect(inIt(b.startsAt) || inIt(b.endsAt), `${b.startsAt}–${b.endsAt}`).toBe(true);
+    }
+
+    // The board's calendar: Friday (weekday 5) is 480–780 minutes of the local day.
+    const board = await scheduler
+      .get('/api/board')
+      .query({ from: '2026-06-08T00:00:00Z', to: '2026-06-15T00:00:00Z' })
+      .expect(200);
+    const cal = board.body.calendars.find((c: { id: string }) => c.id === standard);
+    expect(cal.weekly[5]).toEqual([[480, 780]]);
+    expect(cal.weekly[1]).toEqual([[480, 1020]]);
+    // The write path's engine reads the new hours: a Friday afternoon is refused now.
+    const refused = await book(job.stage.handover!, '2026-06-19T13:00:00Z', '2026-06-19T15:00:00Z').expect(422);
+    expect(JSON.stringify(refused.body)).toMatch(/isn't working/);
+    await book(job.stage.handover!, '2026-06-19T08:00:00Z', '2026-06-19T10:00:00Z').expect(201);
+
+    // The change is in the audit log, before and after.
+    const audit = await ctx.knex('audit_log').where({ entity: 'calendar', entity_id: standard }).first();
+    expect(audit.before.hours.fri).toEqual([FIVE_DAYS]);
+    expect(audit.after.hours.fri).toEqual([{ from: '08:00', to: '13:00' }]);
+  });
+
+  it('refuses a week that cannot be, saying which day and why', async () => {
+    const bad = await putHours({
+      version: 2,
+      hours: week({
+        mon: [{ from: '17:00', to: '08:00' }],
+        tue: [
+          { from: '08:00', to: '12:30' },
+          { from: '12:00', to: '17:00' },
+        ],
+        wed: [{ from: '25:00', to: '26:00' }],
+        thu: [FIVE_DAYS, FIVE_DAYS, FIVE_DAYS, FIVE_DAYS],
+        fri: [{ from: '08:00\u0000', to: '13:00' }],
+      }),
+    }).expect(400);
+    expect(bad.body.errors).toEqual(
+      expect.arrayContaining([
+        { field: 'hours.mon.0.to', message: 'must be after the start' },
+        { field: 'hours.tue.1.from', message: 'must be after the span before it ends' },
+        { field: 'hours.wed.0.from', message: 'must be a time of day like 08:00' },
+        { field: 'hours.wed.0.to', message: 'must be a time of day like 17:00' },
+        { field: 'hours.thu', message: 'can hold at most 3 spans' },
+        { field: 'hours.fri.0.from', message: 'must be a time of day like 08:00' },
+      ]),
+    );
+    const missing = await putHours({ version: 2, hours: { mon: [] } }).expect(400);
+    expect(missing.body.errors.map((e: { field: string }) => e.field)).toEqual(
+      expect.arrayContaining(['hours.tue', 'hours.sun']),
+    );
+    // Up to midnight is a finish, never a start.
+    await putHours({ version: 2, hours: week({ sat: [{ from: '24:00', to: '24:00' }] }) }).expect(400);
+    // Nothing was saved.
+    expect((await owner.get('/api/firm/working-week').expect(200)).body.calendars[0].version).toBe(2);
+  });
+
+  it('never overwrites hours someone else saved meanwhile', async () => {
+    const [a, b] = await Promise.all([
+      putHours({ version: 2, hours: week({ sat: [{ from: '08:00', to: '12:00' }] }) }),
+      putHours({ version: 2, hours: week({ fri: [{ from: '08:00', to: '16:00' }] }) }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 409]);
+    const [won, lost] = a.status === 200 ? [a, b] : [b, a];
+    expect(lost.body).toMatchObject({
+      code: 'stale-version',
+      detail: 'Someone else changed Standard week since you loaded it: reload to see theirs.',
+      current: won.body.calendar,
+    });
+    expect((await owner.get('/api/firm/working-week').expect(200)).body.calendars[0]).toEqual(won.body.calendar);
+  });
+
+  it("is the firm's own: another firm's calendar is not found", async () => {
+    const moorview = await idOf(ctx.knex, 'firms', { name: 'Moorview Spas' });
+    const theirs = String((await ctx.knex('calendars').where('firm_id', moorview).first('id')).id);
+    await putHours({ version: 1, hours: week() }, theirs).expect(404);
+    await scheduler
+      .put(`/api/firm/calendars/${standard}`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ version: 3, hours: week() })
+      .expect(403);
+  });
+});
+
+describe('the bank holidays a firm works to', () => {
+  const putRegion = (body: object) => owner.put('/api/firm/holiday-region').set('X-CSRF-Token', owner.csrf).send(body);
+
+  it("moves to Scotland's: the board shades St Andrew's Day, and a booking on Scotland's August holiday is named", async () => {
+    // Mon 3 Aug 2026 is a working day in England and Scotland's summer bank holiday (gov.uk's
+    // published bank holidays, from memory; date-holidays agrees, tests/server/holiday-days.test.ts).
+    const august = await bookingId(book(job.stage.survey!, '2026-08-03T08:00:00Z', '2026-08-03T10:00:00Z'));
+    const saved = await putRegion({ holidayRegion: 'GB-SCT', was: 'GB-ENG' }).expect(200);
+    expect(saved.body.holidayRegion).toBe('GB-SCT');
+    expect(saved.body.affected.map((b: { bookingId: string }) => b.bookingId)).toContain(august);
+
+    const board = await scheduler
+      .get('/api/board')
+      .query({ from: '2026-11-23T00:00:00Z', to: '2026-12-07T00:00:00Z' })
+      .expect(200);
+    const days = (
+      board.body.calendars.find((c: { id: string }) => c.id === standard).holidays as { date: string }[]
+    ).map((h) => h.date);
+    expect(days).toContain('2026-11-30'); // St Andrew's Day
+    expect(days).toContain('2026-08-03');
+    expect(days).not.toContain('2026-08-31'); // England's summer bank holiday
+    expect((await owner.get('/api/firm/working-week').expect(200)).body.holidayRegion).toBe('GB-SCT');
+  });
+
+  it('refuses a change from a region that is no longer the firm’s, and a region it does not know', async () => {
+    const stale = await putRegion({ holidayRegion: 'GB-NIR', was: 'GB-ENG' }).expect(409);
+    expect(stale.body).toMatchObject({ code: 'stale-version', current: 'GB-SCT' });
+    const bad = await putRegion({ holidayRegion: 'FR', was: 'GB-SCT' }).expect(400);
+    expect(bad.body.errors).toEqual([
+      { field: 'holidayRegion', message: 'must be England and Wales, Scotland or Northern Ireland' },
+    ]);
+    await scheduler
+      .put('/api/firm/holiday-region')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .send({ holidayRegion: 'GB-ENG', was: 'GB-SCT' })
+      .expect(403);
+  });
+});
