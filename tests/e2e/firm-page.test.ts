@@ -45,6 +45,73 @@ const roleOf = (email: string) =>
 
 const settings = () => app.ctx.knex('firm_settings').select('deposit_percent', 'water_targets', 'service_plan');
 
+describe('the working week', () => {
+  /** Tideway's standard week as stored: weekday (0 = Sunday) → minutes of the local day. */
+  const storedWeek = async () =>
+    (
+      await app.ctx
+        .knex('calendars as c')
+        .join('firms as f', 'f.id', 'c.firm_id')
+        .where('f.name', 'Tideway Hot Tubs')
+        .orderBy('c.id')
+        .first('c.weekly_hours')
+    ).weeklyHours as Record<string, [number, number][]>;
+
+  it('names a finish before the start under its box and saves nothing; shorter Fridays name the bookings left outside them', async () => {
+    await page.goto(`${app.url}/firm`);
+    const monday = page.getByLabel("Monday's finish");
+    await monday.fill('07:00');
+    await page.getByRole('button', { name: 'Save hours' }).click();
+    expect(await problemOf(monday)).toBe("Monday's finish must be after the start");
+    expect(await page.evaluate(() => document.activeElement?.getAttribute('aria-label'))).toBe("Monday's finish");
+    expect((await storedWeek())['1']).toEqual([[480, 1020]]);
+
+    await monday.fill('17:00');
+    await page.getByLabel("Friday's finish").fill('13:00');
+    await page.getByRole('button', { name: 'Save hours' }).click();
+    const told = page.getByRole('status').filter({ hasText: 'outside these hours' });
+    await told.waitFor();
+    expect(await told.locator('p').first().innerText()).toMatch(
+      /^\d+ bookings? now falls? outside these hours and (is|are) flagged on the board: move (it|them), or put the hours back\.$/,
+    );
+    // Each named by its job and stage, starting on a Friday (the scenario's today is Mon 1 Jun 2026).
+    const named = await told.locator('li').allInnerTexts();
+    expect(named.length).toBeGreaterThan(0);
+    for (const line of named.filter((l) => !l.startsWith('and ')))
+      expect(line).toMatch(/^[A-Z]{2}-\d{4} · .+ · Fri \d+ /);
+    expect((await storedWeek())['5']).toEqual([[480, 780]]);
+
+    // Put back as it was: widening leaves nothing outside.
+    await page.getByLabel("Friday's finish").fill('17:00');
+    await page.getByRole('button', { name: 'Save hours' }).click();
+    await page.getByText('Every booking from now on still lies within these hours.').waitFor();
+    expect((await storedWeek())['5']).toEqual([[480, 1020]]);
+  }, 60_000);
+
+  it("moves to Scotland's bank holidays and back", async () => {
+    await page.goto(`${app.url}/firm`);
+    const region = page.getByLabel('Bank holidays of');
+    const save = page.locator('form', { has: region }).getByRole('button', { name: 'Save' });
+    expect(await save.isDisabled()).toBe(true);
+    await region.selectOption({ label: 'Scotland' });
+    await save.click();
+    await page
+      .getByRole('status')
+      .filter({ hasText: /bank holiday/ })
+      .waitFor();
+    const stored = () =>
+      app.ctx
+        .knex('firms')
+        .where('name', 'Tideway Hot Tubs')
+        .first('holiday_region')
+        .then((f) => f.holidayRegion);
+    expect(await stored()).toBe('GB-SCT');
+    await region.selectOption({ label: 'England and Wales' });
+    await save.click();
+    await expect.poll(stored).toBe('GB-ENG');
+  }, 60_000);
+});
+
 describe('problems named under their boxes', () => {
   it('the deposit, the water targets and the service plan each name their slip under the box, and save nothing', async () => {
     await page.goto(`${app.url}/firm`);
