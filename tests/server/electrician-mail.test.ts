@@ -168,7 +168,7 @@ describe("the electrician's request", () => {
     const confirm = /^Confirm:\n(\S+)$/m.exec(mail.text)![1]!;
     const page = await request(ctx.waterline.app).get(new URL(confirm).pathname).expect(200);
     for (const line of EXPECTED_SUPPLY) expect(page.text).toContain(line);
-    expect(page.text).toContain('On site that day, Crew Heron: 07700 900555');
+    expect(page.text).toContain('On site that day, Crew Heron: <a href="tel:07700900555">07700 900555</a>');
     expect(page.text).not.toMatch(/working days&#39; notice|working days' notice/);
     expect(page.text).not.toContain(CUSTOMER_PHONE);
   });
