@@ -97,6 +97,17 @@ export const MultiLine = z
   .overwrite((s) => s.replace(/\r\n/g, '\n'))
   .superRefine(refuse('multi-line'));
 
+/**
+ * Words for a field that is missing, while a field of the wrong type still says what it must be
+ * ("must be a number", from messages.ts): pass as a schema's params.
+ *
+ * @example
+ * z.number(requiredAs('the version you loaded')).safeParse('3').error?.issues[0]?.message // 'must be a number'
+ */
+export const requiredAs = (what: string) => ({
+  error: (issue: { input?: unknown }) => (issue.input === undefined ? `is required: ${what}` : undefined),
+});
+
 /** One line of at most `max` characters. @example oneLineText(40).min(1, 'is required') */
 export const oneLineText = (max: number) => OneLine.max(max, `must be at most ${max} characters`);
 /** Notes of at most `max` characters. */

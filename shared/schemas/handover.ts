@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { EmailAddress, oneLineText } from './common.ts';
+import { EmailAddress, oneLineText, requiredAs } from './common.ts';
 import { HANDOVER_ITEM_IDS, type HandoverItemId } from '../handover.ts';
 import type { ServicePlan } from '../service-plan.ts';
 
@@ -18,7 +18,7 @@ export const SignHandover = z.object({
   householderEmail: EmailAddress.optional(),
   /** The signature drawn on the pad, as a PNG data URL. */
   signature: z
-    .string({ message: 'is required: ask the householder to sign' })
+    .string(requiredAs('ask the householder to sign'))
     .max(MAX_SIGNATURE_CHARS, 'is too large')
     .regex(/^data:image\/png;base64,[A-Za-z0-9+/]+=*$/, 'must be a PNG image from the signature pad'),
 });
@@ -27,7 +27,7 @@ export type SignHandover = z.infer<typeof SignHandover>;
 /** PUT /api/firm/service-plan: the whole plan, and the version it was based on (GET gives it). */
 export const PutServicePlan = z
   .object({
-    version: z.number({ message: 'is required: the version of the plan you loaded' }).int().min(0),
+    version: z.number(requiredAs('the version of the plan you loaded')).int().min(0),
     firstAfterMonths: z
       .number()
       .int('must be whole months')

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { requiredAs } from './common.ts';
 import './messages.ts';
 
 /** The most one request may ask for: £100,000 (a swim spa with groundworks stays well below it). Our own ceiling, no source. */
@@ -30,7 +31,7 @@ export const SetPrice = z
   .object({
     pricePence: Pence,
     wasPence: z
-      .number({ message: 'is required: the price you saw, or null when the job had none' })
+      .number(requiredAs('the price you saw, or null when the job had none'))
       .int('must be a whole number of pence')
       .nullable(),
   })

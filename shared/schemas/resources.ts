@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { Id, oneLineText } from './common.ts';
+import { Id, oneLineText, requiredAs } from './common.ts';
 import { ResourceKind } from './placement.ts';
 
 export const RESOURCE_CATEGORIES = ['crew', 'person', 'machine'] as const;
@@ -36,7 +36,7 @@ export type CreateResource = z.infer<typeof CreateResource>;
 export const RenameResource = z
   .object({
     name: oneLineText(80).min(1, 'is required'),
-    previousName: z.string({ message: 'is required: the name the page showed' }).max(200),
+    previousName: z.string(requiredAs('the name the page showed')).max(200),
   })
   .strict();
 export type RenameResource = z.infer<typeof RenameResource>;

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { FIRM_KINDS, ROLES } from '../permissions.ts';
-import { Id } from './common.ts';
+import { Id, requiredAs } from './common.ts';
 
 export const Membership = z.object({
   firmId: Id,
@@ -29,11 +29,11 @@ export type SwitchFirm = z.infer<typeof SwitchFirm>;
 export const ChangeMemberRole = z
   .object({
     role: z.enum(ROLES, { message: `must be one of ${ROLES.join(', ')}` }),
-    previousRole: z.enum(ROLES, { message: 'is required: the role the page showed' }),
+    previousRole: z.enum(ROLES, requiredAs('the role the page showed')),
   })
   .strict();
 export type ChangeMemberRole = z.infer<typeof ChangeMemberRole>;
 
 /** DELETE /api/firm/members/:id?role=…: the role the page showed, for the same reason. */
-export const RemoveMember = z.object({ role: z.enum(ROLES, { message: 'is required: the role the page showed' }) });
+export const RemoveMember = z.object({ role: z.enum(ROLES, requiredAs('the role the page showed')) });
 export type RemoveMember = z.infer<typeof RemoveMember>;

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { HOLIDAY_REGIONS, WEEKDAYS, type HolidayRegionCode, type WeekHours, type Weekday } from '../working-week.ts';
 import type { AffectedBooking } from './absences.ts';
+import { requiredAs } from './common.ts';
 
 /** Most spans one day can hold (a morning and an afternoon, an evening call-out). */
 export const MAX_SPANS_A_DAY = 3;
@@ -31,7 +32,7 @@ const Day = z
 /** PUT /api/firm/calendars/:id: the whole week, and the version it was based on (GET gives it). */
 export const PutCalendarHours = z
   .object({
-    version: z.number({ message: 'is required: the version of the hours you loaded' }).int().min(1),
+    version: z.number(requiredAs('the version of the hours you loaded')).int().min(1),
     hours: z.object(Object.fromEntries(WEEKDAYS.map((d) => [d, Day])) as Record<Weekday, typeof Day>).strict(),
   })
   .strict();

@@ -343,6 +343,8 @@ describe('service visits from the handover', () => {
     expect(missing.body.errors).toEqual([
       { field: 'version', message: 'is required: the version of the plan you loaded' },
     ]);
+    const asText = await put({ version: '1', firstAfterMonths: 3, everyMonths: 12, visitsAhead: 2 }).expect(400);
+    expect(asText.body.errors).toEqual([{ field: 'version', message: 'must be a number' }]);
     const { version } = (await office.get('/api/firm/service-plan').expect(200)).body;
     // Two owners save from the same version at once: one wins, the other is told and sees the winner's plan.
     const [a, b] = await Promise.all([

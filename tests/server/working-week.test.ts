@@ -162,6 +162,13 @@ describe("the firm's working week", () => {
     expect(missing.body.errors.map((e: { field: string }) => e.field)).toEqual(
       expect.arrayContaining(['hours.tue', 'hours.sun']),
     );
+    // A version sent as text is named as such, not as missing.
+    const asText = await putHours({ version: '2', hours: week() }).expect(400);
+    expect(asText.body.errors).toEqual([{ field: 'version', message: 'must be a number' }]);
+    const none = await putHours({ hours: week() }).expect(400);
+    expect(none.body.errors).toEqual([
+      { field: 'version', message: 'is required: the version of the hours you loaded' },
+    ]);
     // Up to midnight is a finish, never a start.
     await putHours({ version: 2, hours: week({ sat: [{ from: '24:00', to: '24:00' }] }) }).expect(400);
     // Nothing was saved.
