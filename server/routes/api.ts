@@ -20,7 +20,12 @@ import { AbsencesService } from '../services/absences.ts';
 import { ResourceBooksService } from '../services/resource-books.ts';
 import { CreateResource, RenameResource, SetCrewMembers } from '../../shared/schemas/resources.ts';
 import { CreateAbsence, CreateClosure } from '../../shared/schemas/absences.ts';
-import { PutCalendarHours, PutHolidayRegion } from '../../shared/schemas/working-week.ts';
+import {
+  CreateCalendar,
+  PutCalendarHours,
+  PutHolidayRegion,
+  PutResourceCalendar,
+} from '../../shared/schemas/working-week.ts';
 import { WorkingWeekService } from '../services/working-week.ts';
 import { BookingsService } from '../services/bookings.ts';
 import { DEFAULT_BOOKING_LIMITS, type BookingLimits } from '../services/booking-writes.ts';
@@ -184,6 +189,17 @@ export function apiRoutes(
     .put('/api/firm/calendars/:id', 'firm:manage', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
       res.json(await workingWeek.putHours(req.actor!, id, parse(PutCalendarHours, req.body)));
+    })
+    .post('/api/firm/calendars', 'firm:manage', async (req, res) => {
+      res.status(201).json(await workingWeek.createCalendar(req.actor!, parse(CreateCalendar, req.body)));
+    })
+    .delete('/api/firm/calendars/:id', 'firm:manage', async (req, res) => {
+      await workingWeek.removeCalendar(req.actor!, parse(IdParams, req.params, 'params').id);
+      res.status(204).end();
+    })
+    .put('/api/resources/:id/calendar', 'firm:manage', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await workingWeek.putResourceCalendar(req.actor!, id, parse(PutResourceCalendar, req.body)));
     })
     .put('/api/firm/holiday-region', 'firm:manage', async (req, res) => {
       res.json(await workingWeek.putHolidayRegion(req.actor!, parse(PutHolidayRegion, req.body)));

@@ -1,13 +1,18 @@
 import type { Knex } from 'knex';
 import { isWorkingEnd, isWorkingInstant, type WorkingCalendar } from '../../shared/scheduler/index.ts';
 import type { AffectedBooking } from '../../shared/schemas/absences.ts';
-import type {
-  CalendarHoursSaved,
-  CalendarHoursView,
-  HolidayRegionSaved,
-  PutCalendarHours,
-  PutHolidayRegion,
-  WorkingWeekView,
+import {
+  MAX_CALENDARS,
+  type CalendarCreated,
+  type CalendarHoursSaved,
+  type CalendarHoursView,
+  type CreateCalendar,
+  type HolidayRegionSaved,
+  type PutCalendarHours,
+  type PutHolidayRegion,
+  type PutResourceCalendar,
+  type ResourceCalendarSaved,
+  type WorkingWeekView,
 } from '../../shared/schemas/working-week.ts';
 import {
   engineWeekly,
@@ -18,10 +23,10 @@ import {
   type StoredWeeklyHours,
 } from '../../shared/working-week.ts';
 import { todayIn } from '../../shared/local-dates.ts';
-import { ConflictError, NotFoundError } from '../errors.ts';
-import type { Actor } from './actor.ts';
+import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
+import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
-import { notifyFirmChange } from './board-stream.ts';
+import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
 import { bookingsWithin } from './absences.ts';
 import { holidayRegionOf } from './board.ts';
 import { holidaysFor } from './holiday-days.ts';
@@ -32,6 +37,10 @@ interface CalendarRow {
   version: number;
   weeklyHours: StoredWeeklyHours;
 }
+
+/** "A", "A and B", "A, B and C". */
+const andList = (names: string[]) =>
+  names.length <= 1 ? (names[0] ?? '') : `${names.slice(0, -1).join(', ')} and ${names[names.length - 1]}`;
 
 const regionCode = (code: string | null): HolidayRegionCode | null =>
   code !== null && code in HOLIDAY_REGIONS ? (code as HolidayRegionCode) : null;
@@ -71,8 +80,7 @@ export class WorkingWeekService {
         .forUpdate()
         .first('id', 'name', 'version', 'weekly_hours')) as CalendarRow | undefined;
       if (!was) throw new NotFoundError('working calendar');
-      const isDefault =
-        String((await trx('calendars').where('firm_id', actor.firmId).min('id as id').first())!.id) === String(was.id);
+      const isDefault = (await this.standardId(actor, trx)) === String(was.id);
       if (was.version !== input.version) {
         throw new ConflictError(`Someone else changed ${was.name} since you loaded it: reload to see theirs.`, {
           code: 'stale-version',
@@ -152,6 +160,155 @@ export class WorkingWeekService {
     });
   }
 
+  /**
+   * Adds a working week named by the owner: the standard week's hours and the firm's closures (a
+   * works shutdown is every week's), and nothing working to it until someone is moved onto it.
+   */
+  async createCalendar(actor: Actor, input: CreateCalendar): Promise<CalendarCreated> {
+    return this.knex.transaction(async (trx) => {
+      await this.firm(actor, trx, true);
+      const standardId = await this.standardId(actor, trx);
+      const standard = (await trx('calendars').where('id', standardId).first('weekly_hours')) as
+        { weeklyHours: StoredWeeklyHours } | undefined;
+      if (!standard) throw new NotFoundError('working calendar');
+      const count = Number((await trx('calendars').where('firm_id', actor.firmId).count('* as n').first())!.n);
+      if (count >= MAX_CALENDARS) {
+        throw new ConflictError(
+          `Your firm already keeps ${MAX_CALENDARS} working weeks, the most it can: change or take away one of them instead.`,
+          { code: 'too-many-weeks' },
+        );
+      }
+      const [row] = (await trx('calendars')
+        .insert({ firm_id: actor.firmId, name: input.name, weekly_hours: JSON.stringify(standard.weeklyHours) })
+        .returning(['id', 'name', 'version', 'weekly_hours'])) as CalendarRow[];
+      const closures = (await trx('calendar_exceptions')
+        .where('calendar_id', standardId)
+        .select('starts_at', 'ends_at', 'reason')) as { startsAt: Date; endsAt: Date; reason: string }[];
+      if (closures.length) {
+        await trx('calendar_exceptions').insert(
+          closures.map((c) => ({ calendar_id: row!.id, starts_at: c.startsAt, ends_at: c.endsAt, reason: c.reason })),
+        );
+      }
+      const calendar = await this.view(trx, actor, row!, false);
+      await recordChange(trx, actor, 'calendar', calendar.id, 'create', null, {
+        name: calendar.name,
+        hours: calendar.hours,
+      });
+      await notifyFirmChange(trx, actor.firmId);
+      return { calendar };
+    });
+  }
+
+  /**
+   * Takes away a working week nothing on the books works to. The standard week stays (new crews,
+   * people and machines work to it); one still worked to is refused with who works to it.
+   * Resources off the books that worked to it go back to the standard week.
+   */
+  async removeCalendar(actor: Actor, calendarId: string): Promise<void> {
+    await this.knex.transaction(async (trx) => {
+      await this.firm(actor, trx, true);
+      const c = (await trx('calendars')
+        .where({ id: calendarId, firm_id: actor.firmId })
+        .forUpdate()
+        .first('id', 'name', 'version', 'weekly_hours')) as CalendarRow | undefined;
+      if (!c) throw new NotFoundError('working calendar');
+      if ((await this.standardId(actor, trx)) === String(c.id)) {
+        throw new ConflictError(`${c.name} is the firm's standard week: new crews, people and machines work to it.`, {
+          code: 'standard-week',
+        });
+      }
+      const users = (await this.resourcesOf(trx, actor, String(c.id), false).orderBy('name').pluck('name')) as string[];
+      if (users.length) {
+        throw new ConflictError(
+          `${andList(users)} ${users.length === 1 ? 'works' : 'work'} to ${c.name}: move ${users.length === 1 ? 'it' : 'them'} onto another week first.`,
+          { code: 'in-use', usedBy: users },
+        );
+      }
+      const before = await this.view(trx, actor, c, false);
+      await trx('resources').where('calendar_id', c.id).update({ calendar_id: null });
+      await trx('calendars').where('id', c.id).delete();
+      await recordChange(trx, actor, 'calendar', before.id, 'delete', { name: before.name, hours: before.hours }, null);
+      await notifyFirmChange(trx, actor.firmId);
+    });
+  }
+
+  /**
+   * Moves one of the firm's crews, people or machines onto another working week, unless it was
+   * moved meanwhile (`was` is the week the page showed it on: 409 with where it is now), and answers
+   * with its bookings from now on that the new week's hours leave outside working time.
+   */
+  async putResourceCalendar(
+    actor: Actor,
+    resourceId: string,
+    input: PutResourceCalendar,
+  ): Promise<ResourceCalendarSaved> {
+    return this.knex.transaction(async (trx) => {
+      await this.firm(actor, trx);
+      const r = (await trx('resources')
+        .where({ id: resourceId, firm_id: actor.firmId, active: true })
+        .forUpdate()
+        .first('id', 'name', 'calendar_id')) as { id: string; name: string; calendarId: string | null } | undefined;
+      if (!r || reachOf(actor) === 'crew') throw new NotFoundError('resource');
+      const standardId = await this.standardId(actor, trx);
+      const calendars = (await trx('calendars')
+        .where('firm_id', actor.firmId)
+        .whereIn('id', [input.calendarId, r.calendarId ?? standardId])
+        .select('id', 'name', 'version', 'weekly_hours')) as CalendarRow[];
+      const byId = new Map(calendars.map((c) => [String(c.id), c]));
+      const from = byId.get(String(r.calendarId ?? standardId));
+      const to = byId.get(input.calendarId);
+      if (!to) {
+        throw new BadRequestError("That is not one of your firm's working weeks.", [
+          { field: 'calendarId', message: "is not one of your firm's working weeks" },
+        ]);
+      }
+      if (!from) throw new NotFoundError('working calendar');
+      if (String(from.id) !== input.was) {
+        throw new ConflictError(`Someone else moved ${r.name} onto ${from.name} since you loaded the page.`, {
+          code: 'stale-version',
+          current: String(from.id),
+        });
+      }
+      const firm = await this.firm(actor, trx);
+      if (String(from.id) !== String(to.id)) {
+        // The standard week is kept as "none" (see resourcesOf), so a resource follows the firm's standard.
+        await trx('resources')
+          .where('id', r.id)
+          .update({ calendar_id: String(to.id) === standardId ? null : to.id });
+        await recordChange(
+          trx,
+          actor,
+          'resource',
+          String(r.id),
+          'update',
+          { calendar: from.name },
+          { calendar: to.name },
+        );
+        await notifyResourceChange(trx, String(r.id));
+      }
+      const before = this.calendar(firm.timeZone, from.weeklyHours);
+      const after = this.calendar(firm.timeZone, to.weeklyHours);
+      const outside = (cal: WorkingCalendar, b: AffectedBooking) =>
+        !isWorkingInstant(cal, Date.parse(b.startsAt)) || !isWorkingEnd(cal, Date.parse(b.endsAt));
+      const affected = (
+        await bookingsWithin(trx, actor, trx('resources').where('id', r.id).select('id'), new Date(this.now()))
+      ).filter((b) => outside(after, b) && !outside(before, b));
+      return {
+        from: await this.view(trx, actor, from, String(from.id) === standardId),
+        to: await this.view(trx, actor, to, String(to.id) === standardId),
+        affected,
+      };
+    });
+  }
+
+  /** The firm's standard week: its first calendar (what resources with none work to). */
+  private async standardId(actor: Actor, trx: Knex | Knex.Transaction): Promise<string> {
+    const first = (await trx('calendars').where('firm_id', actor.firmId).min('id as id').first()) as
+      { id: string | null } | undefined;
+    if (!first || first.id === null) throw new NotFoundError('working calendar');
+    return String(first.id);
+  }
+
   private async firm(actor: Actor, trx: Knex | Knex.Transaction, lock = false) {
     const q = trx('firms').where('id', actor.firmId);
     if (lock) q.forUpdate();
@@ -177,10 +334,20 @@ export class WorkingWeekService {
     c: CalendarRow,
     isDefault: boolean,
   ): Promise<CalendarHoursView> {
-    const usedBy = (await this.resourcesOf(trx, actor, String(c.id), isDefault)
-      .orderBy('name')
-      .pluck('name')) as string[];
-    return { id: String(c.id), name: c.name, version: c.version, hours: weekHoursOf(c.weeklyHours), usedBy };
+    const usedBy = (
+      (await this.resourcesOf(trx, actor, String(c.id), isDefault).orderBy('name').select('id', 'name')) as {
+        id: string;
+        name: string;
+      }[]
+    ).map((r) => ({ id: String(r.id), name: r.name }));
+    return {
+      id: String(c.id),
+      name: c.name,
+      version: c.version,
+      hours: weekHoursOf(c.weeklyHours),
+      standard: isDefault,
+      usedBy,
+    };
   }
 
   /** Weekly hours alone (no holidays or closures): what a change of hours changes. */

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { HOLIDAY_REGIONS, WEEKDAYS, type HolidayRegionCode, type WeekHours, type Weekday } from '../working-week.ts';
 import type { AffectedBooking } from './absences.ts';
-import { requiredAs } from './common.ts';
+import { Id, oneLineText, requiredAs } from './common.ts';
 
 /** Most spans one day can hold (a morning and an afternoon, an evening call-out). */
 export const MAX_SPANS_A_DAY = 3;
@@ -48,14 +48,44 @@ const Region = z.enum(REGION_CODES, { message: 'must be England and Wales, Scotl
 export const PutHolidayRegion = z.object({ holidayRegion: Region, was: Region.nullable() }).strict();
 export type PutHolidayRegion = z.infer<typeof PutHolidayRegion>;
 
+/** Most working calendars one firm keeps (a standard week, a late shift, the electricians'…). */
+export const MAX_CALENDARS = 12;
+
+/**
+ * POST /api/firm/calendars: another working week for some of the firm's crews, people or machines.
+ * It starts with the standard week's hours and the firm's closures; nothing works to it yet.
+ */
+export const CreateCalendar = z.object({ name: oneLineText(60).min(1, 'is required') }).strict();
+export type CreateCalendar = z.infer<typeof CreateCalendar>;
+
+/**
+ * PUT /api/resources/:id/calendar: the week a crew, person or machine works to, and the week the
+ * page showed it on (`was`), so a move made meanwhile by someone else is not overwritten.
+ */
+export const PutResourceCalendar = z
+  .object({
+    calendarId: Id,
+    was: z.string(requiredAs('the week the page showed it on')).pipe(Id),
+  })
+  .strict();
+export type PutResourceCalendar = z.infer<typeof PutResourceCalendar>;
+
+/** A crew, person or machine of the firm, by name. */
+export interface CalendarUser {
+  id: string;
+  name: string;
+}
+
 /** One working calendar of the firm as the firm page edits it. */
 export interface CalendarHoursView {
   id: string;
   name: string;
   version: number;
   hours: WeekHours;
-  /** The firm's own crews, people and machines that work to it. */
-  usedBy: string[];
+  /** True for the firm's standard week: what new resources and those given no other week work to. */
+  standard: boolean;
+  /** The firm's own crews, people and machines (on the books) that work to it, by name. */
+  usedBy: CalendarUser[];
 }
 
 /** GET /api/firm/working-week. */
@@ -74,5 +104,20 @@ export interface CalendarHoursSaved {
 /** What PUT /api/firm/holiday-region answers: the region and the bookings now on a bank holiday. */
 export interface HolidayRegionSaved {
   holidayRegion: HolidayRegionCode;
+  affected: AffectedBooking[];
+}
+
+/** What POST /api/firm/calendars answers (201). */
+export interface CalendarCreated {
+  calendar: CalendarHoursView;
+}
+
+/**
+ * What PUT /api/resources/:id/calendar answers: the week it left and the one it joined, and its
+ * bookings from now on that fall outside the new week's hours.
+ */
+export interface ResourceCalendarSaved {
+  from: CalendarHoursView;
+  to: CalendarHoursView;
   affected: AffectedBooking[];
 }

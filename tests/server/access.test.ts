@@ -400,6 +400,8 @@ function validBody(
       return {
         body: { version: 1, hours: { mon: [], tue: [], wed: [], thu: [], fri: [], sat: [], sun: [] } },
       };
+    case 'put /api/resources/:id/calendar':
+      return { body: { calendarId: ids.calendar, was: ids.calendar } };
     case 'post /api/firm/closures':
     case 'post /api/resources/:id/absences':
       return { body: { from: '2026-09-21', to: '2026-09-21', reason: 'Holiday' } };

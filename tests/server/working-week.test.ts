@@ -87,7 +87,11 @@ describe("the firm's working week", () => {
     expect(res.body).toMatchObject({ timeZone: 'Europe/London', holidayRegion: 'GB-ENG' });
     const first = res.body.calendars[0];
     expect(first).toMatchObject({ id: standard, name: 'Standard week', version: 1, hours: week() });
-    expect(first.usedBy).toEqual(expect.arrayContaining(['Crew Heron', 'Crew Otter']));
+    expect(first.standard).toBe(true);
+    expect(first.usedBy.map((r: { name: string }) => r.name)).toEqual(
+      expect.arrayContaining(['Crew Heron', 'Crew Otter']),
+    );
+    expect(first.usedBy).toContainEqual({ id: otter, name: 'Crew Otter' });
     // Only the owner manages the firm.
     await scheduler.get('/api/firm/working-week').expect(403);
   });
@@ -238,5 +242,153 @@ describe('the bank holidays a firm works to', () => {
       .set('X-CSRF-Token', scheduler.csrf)
       .send({ holidayRegion: 'GB-ENG', was: 'GB-SCT' })
       .expect(403);
+  });
+});
+
+describe('another working week for some of the firm', () => {
+  let late: string;
+  let second: { jobId: string; stage: Record<string, string> };
+  const LATE = { from: '12:00', to: '20:00' };
+  const lateWeek = week({ mon: [LATE], tue: [LATE], wed: [LATE], thu: [LATE], fri: [LATE] });
+  const post = (agent: Agent, body: object) =>
+    agent.post('/api/firm/calendars').set('X-CSRF-Token', agent.csrf).send(body);
+  const moveOtter = (body: object, agent: Agent = owner) =>
+    agent.put(`/api/resources/${otter}/calendar`).set('X-CSRF-Token', agent.csrf).send(body);
+  const remove = (id: string) => owner.delete(`/api/firm/calendars/${id}`).set('X-CSRF-Token', owner.csrf);
+
+  beforeAll(async () => {
+    second = await makeJob(ctx.knex, {
+      reference: 'WW-402',
+      stages: [
+        { kind: 'survey', name: 'Survey', minutes: 120, needs: { install_crew: 1 } },
+        { kind: 'fill', name: 'Fill', minutes: 60, needs: { install_crew: 1 } },
+        { kind: 'commissioning', name: 'Commission', minutes: 60, needs: { install_crew: 1 } },
+      ],
+      links: [],
+    });
+  });
+
+  it("starts as the standard week with the firm's closures, and nothing works to it", async () => {
+    const closure = await owner
+      .post('/api/firm/closures')
+      .set('X-CSRF-Token', owner.csrf)
+      .send({ from: '2026-12-24', to: '2026-12-31', reason: 'Christmas shutdown' })
+      .expect(201);
+    const standardNow = (await owner.get('/api/firm/working-week').expect(200)).body.calendars[0];
+    const created = await post(owner, { name: '  Late shift ' }).expect(201);
+    late = created.body.calendar.id;
+    expect(created.body.calendar).toEqual({
+      id: late,
+      name: 'Late shift',
+      version: 1,
+      hours: standardNow.hours,
+      standard: false,
+      usedBy: [],
+    });
+    const closures = await ctx.knex('calendar_exceptions').where('calendar_id', late).select('reason', 'starts_at');
+    expect(closures).toEqual([{ reason: 'Christmas shutdown', startsAt: expect.any(Date) }]);
+    expect(closures[0]!.startsAt.toISOString()).toBe('2026-12-24T00:00:00.000Z'); // midnight in London, GMT in winter
+    // A closure taken away later goes from every week, this one too.
+    await owner.delete(`/api/firm/closures/${closure.body.closure.id}`).set('X-CSRF-Token', owner.csrf).expect(204);
+    expect(await ctx.knex('calendar_exceptions').where('calendar_id', late).count('* as n').first()).toEqual({
+      n: '0',
+    });
+    expect(
+      await ctx
+        .knex('audit_log')
+        .where({ entity: 'calendar', entity_id: late, action: 'create' })
+        .count('* as n')
+        .first(),
+    ).toEqual({ n: '1' });
+
+    // Names: the same again, none, a NUL byte, too long; only the owner adds one.
+    const same = await post(owner, { name: 'Late shift' }).expect(409);
+    expect(same.body.errors).toEqual([{ field: 'name', message: 'is already used by another calendar' }]);
+    expect((await post(owner, { name: '   ' }).expect(400)).body.errors).toEqual([
+      { field: 'name', message: 'is required' },
+    ]);
+    expect((await post(owner, { name: 'Late\u0000' }).expect(400)).body.errors[0].field).toBe('name');
+    expect((await post(owner, { name: 'x'.repeat(61) }).expect(400)).body.errors).toEqual([
+      { field: 'name', message: 'must be at most 60 characters' },
+    ]);
+    await post(scheduler, { name: 'Early shift' }).expect(403);
+    const saved = await putHours({ version: 1, hours: lateWeek }, late).expect(200);
+    expect(saved.body.calendar).toMatchObject({ name: 'Late shift', version: 2, hours: lateWeek, usedBy: [] });
+  });
+
+  it('moves a crew onto it: its morning bookings are named, and the board and the write path use its hours at once', async () => {
+    // Tue 16 Jun 2026, 09:00–11:00 BST: inside the standard week, outside 12:00–20:00.
+    const morning = await bookingId(book(second.stage.survey!, '2026-06-16T08:00:00Z', '2026-06-16T10:00:00Z'));
+    const moved = await moveOtter({ calendarId: late, was: standard }).expect(200);
+    const affected = moved.body.affected as { bookingId: string; startsAt: string; endsAt: string }[];
+    expect(affected.map((b) => b.bookingId)).toContain(morning);
+    // Every one named starts before noon or runs past 20:00 (Otter's seeded days and this file's
+    // mornings); Friday 12 June's 14:00–16:00 booking lies within the new hours and is not named.
+    for (const b of affected)
+      expect(london(b.startsAt).hour < 12 || london(b.endsAt).hour >= 20, b.startsAt).toBe(true);
+    const afternoon = String(
+      (await ctx.knex('bookings').where({ stage_id: job.stage.commissioning, resource_id: otter }).first('id')).id,
+    );
+    expect(affected.map((b) => b.bookingId)).not.toContain(afternoon);
+    expect(moved.body.to).toMatchObject({ id: late, usedBy: [{ id: otter, name: 'Crew Otter' }] });
+    expect(moved.body.from.usedBy).not.toContainEqual({ id: otter, name: 'Crew Otter' });
+
+    const board = await scheduler
+      .get('/api/board')
+      .query({ from: '2026-06-15T00:00:00Z', to: '2026-06-22T00:00:00Z' })
+      .expect(200);
+    const otterRow = board.body.resources.find((r: { id: string }) => r.id === otter);
+    const cal = board.body.calendars.find((c: { id: string }) => c.id === otterRow.calendarId);
+    expect(cal.weekly[2]).toEqual([[720, 1200]]);
+    // 09:00 is no longer Otter's working time; 18:00 is.
+    const refused = await book(second.stage.fill!, '2026-06-17T08:00:00Z', '2026-06-17T09:00:00Z');
+    expect(refused.status, JSON.stringify(refused.body)).toBe(422);
+    await bookingId(book(second.stage.commissioning!, '2026-06-17T17:00:00Z', '2026-06-17T18:00:00Z'));
+
+    // Moved meanwhile by someone else: refused with where it is now.
+    const stale = await moveOtter({ calendarId: standard, was: standard }).expect(409);
+    expect(stale.body).toMatchObject({ code: 'stale-version', current: late });
+    // Another firm's week, an id that is no id, the scheduler.
+    const moorview = await idOf(ctx.knex, 'firms', { name: 'Moorview Spas' });
+    const theirs = String((await ctx.knex('calendars').where('firm_id', moorview).first('id')).id);
+    expect((await moveOtter({ calendarId: theirs, was: late }).expect(400)).body.errors).toEqual([
+      { field: 'calendarId', message: "is not one of your firm's working weeks" },
+    ]);
+    expect((await moveOtter({ calendarId: 'late', was: late }).expect(400)).body.errors).toEqual([
+      { field: 'calendarId', message: 'must be a numeric id' },
+    ]);
+    expect((await moveOtter({ calendarId: late }).expect(400)).body.errors).toEqual([
+      { field: 'was', message: 'is required: the week the page showed it on' },
+    ]);
+    await moveOtter({ calendarId: standard, was: late }, scheduler).expect(403);
+    const audit = await ctx
+      .knex('audit_log')
+      .where({ entity: 'resource', entity_id: otter, action: 'update' })
+      .orderBy('id', 'desc')
+      .first('before', 'after');
+    expect(audit).toMatchObject({ before: { calendar: 'Standard week' }, after: { calendar: 'Late shift' } });
+  });
+
+  it('is taken away only once nothing works to it; the standard week stays', async () => {
+    const inUse = await remove(late).expect(409);
+    expect(inUse.body).toMatchObject({
+      code: 'in-use',
+      detail: 'Crew Otter works to Late shift: move it onto another week first.',
+    });
+    await moveOtter({ calendarId: standard, was: late }).expect(200);
+    expect((await ctx.knex('resources').where('id', otter).first('calendar_id')).calendarId).toBeNull();
+    await remove(late).expect(204);
+    const after = (await owner.get('/api/firm/working-week').expect(200)).body.calendars;
+    expect(after.map((c: { id: string }) => c.id)).not.toContain(late);
+    await remove(late).expect(404);
+    const kept = await remove(standard).expect(409);
+    expect(kept.body.code).toBe('standard-week');
+    expect(
+      await ctx
+        .knex('audit_log')
+        .where({ entity: 'calendar', entity_id: late, action: 'delete' })
+        .count('* as n')
+        .first(),
+    ).toEqual({ n: '1' });
   });
 });
