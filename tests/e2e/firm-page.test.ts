@@ -110,6 +110,53 @@ describe('the working week', () => {
     await save.click();
     await expect.poll(stored).toBe('GB-ENG');
   }, 60_000);
+
+  it('adds a late shift, moves a crew onto it and back, and takes it away after asking', async () => {
+    const calendarOf = (name: string) =>
+      app.ctx
+        .knex('resources')
+        .where('name', name)
+        .first('calendar_id')
+        .then((r) => (r.calendarId === null ? null : String(r.calendarId)));
+    await page.goto(`${app.url}/firm`);
+    const name = page.getByLabel('Another working week, named');
+    await page.getByRole('button', { name: 'Add week' }).click();
+    expect(await problemOf(name)).toBe('The name is required');
+    expect(await page.evaluate(() => document.activeElement?.id)).toBe('new-calendar-name');
+
+    await name.fill('Late shift');
+    await name.press('Enter');
+    const late = page.getByRole('region', { name: 'Late shift' });
+    await late.waitFor();
+    // The new week's heading takes the focus; it starts with the standard week's hours and no one on it.
+    expect(await page.evaluate(() => document.activeElement?.textContent?.trim())).toBe('Late shift');
+    expect(await late.getByLabel("Monday's start").inputValue()).toBe('08:00');
+    await late.getByText('Nothing works to it yet.').waitFor();
+    const id = String((await app.ctx.knex('calendars').where('name', 'Late shift').first('id')).id);
+
+    await late.getByLabel('Move onto Late shift').selectOption({ label: 'Crew Otter' });
+    await late.getByRole('button', { name: 'Move' }).click();
+    await late.getByText('Worked to by Crew Otter.').waitFor();
+    await expect.poll(() => calendarOf('Crew Otter')).toBe(id);
+    // Same hours as the standard week: nothing of Otter's falls outside them.
+    await late.getByText('Every booking of Crew Otter from now on lies within these hours.').waitFor();
+    // Worked to: it cannot be taken away.
+    expect(await late.getByRole('button', { name: 'Take away Late shift' }).count()).toBe(0);
+
+    const standard = page.getByRole('region', { name: /^Standard week/ });
+    await standard.getByLabel('Move onto Standard week').selectOption({ label: 'Crew Otter' });
+    await standard.getByRole('button', { name: 'Move' }).click();
+    await expect.poll(() => calendarOf('Crew Otter')).toBe(null);
+    await late.getByRole('button', { name: 'Take away Late shift' }).click();
+    const ask = page.getByRole('dialog', { name: 'Take away Late shift?' });
+    await ask.getByRole('button', { name: 'Keep' }).click();
+    await ask.waitFor({ state: 'detached' });
+    expect(await app.ctx.knex('calendars').where('id', id).count('* as n').first()).toEqual({ n: '1' });
+    await late.getByRole('button', { name: 'Take away Late shift' }).click();
+    await ask.getByRole('button', { name: 'Take away', exact: true }).click();
+    await late.waitFor({ state: 'detached' });
+    expect(await app.ctx.knex('calendars').where('id', id).count('* as n').first()).toEqual({ n: '0' });
+  }, 60_000);
 });
 
 describe('problems named under their boxes', () => {
