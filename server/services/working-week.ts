@@ -253,6 +253,8 @@ export class WorkingWeekService {
       const calendars = (await trx('calendars')
         .where('firm_id', actor.firmId)
         .whereIn('id', [input.calendarId, r.calendarId ?? standardId])
+        // Held until the move is saved: a week being taken away meanwhile waits, then sees who works to it.
+        .forShare()
         .select('id', 'name', 'version', 'weekly_hours')) as CalendarRow[];
       const byId = new Map(calendars.map((c) => [String(c.id), c]));
       const from = byId.get(String(r.calendarId ?? standardId));

@@ -377,7 +377,18 @@ describe('another working week for some of the firm', () => {
     });
     await moveOtter({ calendarId: standard, was: late }).expect(200);
     expect((await ctx.knex('resources').where('id', otter).first('calendar_id')).calendarId).toBeNull();
-    await remove(late).expect(204);
+    // A move onto it and taking it away, at once: one of them wins, and the other is told.
+    const [move, gone] = await Promise.all([moveOtter({ calendarId: late, was: standard }), remove(late)]);
+    const otterOn = (await ctx.knex('resources').where('id', otter).first('calendar_id')).calendarId;
+    if (move.status === 200) {
+      expect(gone.status).toBe(409);
+      expect(String(otterOn)).toBe(late);
+      await moveOtter({ calendarId: standard, was: late }).expect(200);
+      await remove(late).expect(204);
+    } else {
+      expect([move.status, gone.status]).toEqual([400, 204]);
+      expect(otterOn).toBeNull();
+    }
     const after = (await owner.get('/api/firm/working-week').expect(200)).body.calendars;
     expect(after.map((c: { id: string }) => c.id)).not.toContain(late);
     await remove(late).expect(404);
