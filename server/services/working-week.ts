@@ -103,13 +103,7 @@ export class WorkingWeekService {
       );
       await notifyFirmChange(trx, actor.firmId);
       const usedBy = this.resourcesOf(trx, actor, String(was.id), isDefault);
-      const before = this.calendar(firm.timeZone, was.weeklyHours);
-      const after = this.calendar(firm.timeZone, stored);
-      const outside = (cal: WorkingCalendar, b: AffectedBooking) =>
-        !isWorkingInstant(cal, Date.parse(b.startsAt)) || !isWorkingEnd(cal, Date.parse(b.endsAt));
-      const affected = (await bookingsWithin(trx, actor, usedBy.select('id'), new Date(this.now()))).filter(
-        (b) => outside(after, b) && !outside(before, b),
-      );
+      const affected = await this.leftOutside(trx, actor, usedBy.select('id'), firm.timeZone, was.weeklyHours, stored);
       return { calendar: await this.view(trx, actor, row!, isDefault), affected };
     });
   }
@@ -243,7 +237,7 @@ export class WorkingWeekService {
     input: PutResourceCalendar,
   ): Promise<ResourceCalendarSaved> {
     return this.knex.transaction(async (trx) => {
-      await this.firm(actor, trx);
+      const firm = await this.firm(actor, trx);
       const r = (await trx('resources')
         .where({ id: resourceId, firm_id: actor.firmId, active: true })
         .forUpdate()
@@ -271,7 +265,6 @@ export class WorkingWeekService {
           current: String(from.id),
         });
       }
-      const firm = await this.firm(actor, trx);
       if (String(from.id) !== String(to.id)) {
         // The standard week is kept as "none" (see resourcesOf), so a resource follows the firm's standard.
         await trx('resources')
@@ -288,13 +281,14 @@ export class WorkingWeekService {
         );
         await notifyResourceChange(trx, String(r.id));
       }
-      const before = this.calendar(firm.timeZone, from.weeklyHours);
-      const after = this.calendar(firm.timeZone, to.weeklyHours);
-      const outside = (cal: WorkingCalendar, b: AffectedBooking) =>
-        !isWorkingInstant(cal, Date.parse(b.startsAt)) || !isWorkingEnd(cal, Date.parse(b.endsAt));
-      const affected = (
-        await bookingsWithin(trx, actor, trx('resources').where('id', r.id).select('id'), new Date(this.now()))
-      ).filter((b) => outside(after, b) && !outside(before, b));
+      const affected = await this.leftOutside(
+        trx,
+        actor,
+        [String(r.id)],
+        firm.timeZone,
+        from.weeklyHours,
+        to.weeklyHours,
+      );
       return {
         from: await this.view(trx, actor, from, String(from.id) === standardId),
         to: await this.view(trx, actor, to, String(to.id) === standardId),
@@ -350,6 +344,26 @@ export class WorkingWeekService {
       standard: isDefault,
       usedBy,
     };
+  }
+
+  /**
+   * The bookings from now on of `resources` (a subquery of ids) that `after`'s hours leave outside
+   * working time and `before`'s did not: what a change of hours, or a move onto another week, flags.
+   */
+  private async leftOutside(
+    trx: Knex.Transaction,
+    actor: Actor,
+    resources: string[] | Knex.QueryBuilder,
+    timeZone: string,
+    before: StoredWeeklyHours,
+    after: StoredWeeklyHours,
+  ): Promise<AffectedBooking[]> {
+    const [was, is] = [this.calendar(timeZone, before), this.calendar(timeZone, after)];
+    const outside = (cal: WorkingCalendar, b: AffectedBooking) =>
+      !isWorkingInstant(cal, Date.parse(b.startsAt)) || !isWorkingEnd(cal, Date.parse(b.endsAt));
+    return (await bookingsWithin(trx, actor, resources, new Date(this.now()))).filter(
+      (b) => outside(is, b) && !outside(was, b),
+    );
   }
 
   /** Weekly hours alone (no holidays or closures): what a change of hours changes. */
