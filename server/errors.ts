@@ -390,9 +390,22 @@ function toHttpError(err: unknown, req?: Request): HttpError | null {
         : e.type === 'entity.parse.failed'
           ? 'malformed-body'
           : 'bad-request';
-    return new HttpError(status, code, 'The request is not valid', e.message);
+    // The parser's own words ("Unexpected token 'n'…") name no field and no fix: these do.
+    const detail =
+      code === 'malformed-body'
+        ? 'The request body is not valid JSON: send one JSON object.'
+        : code === 'body-too-large'
+          ? `The request body is too large: at most ${sizeWords(Number((e as { limit?: number }).limit))}.`
+          : e.message;
+    return new HttpError(status, code, 'The request is not valid', detail);
   }
   return null;
+}
+
+/** A size in bytes as people say it: "1 MB", "4 KB". */
+function sizeWords(bytes: number): string {
+  if (!Number.isFinite(bytes)) return 'the limit';
+  return bytes >= 1 << 20 ? `${Math.round((bytes / (1 << 20)) * 10) / 10} MB` : `${Math.ceil(bytes / 1024)} KB`;
 }
 
 /**

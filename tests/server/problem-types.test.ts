@@ -55,6 +55,25 @@ describe('problem types', () => {
       .send('{"reference":')
       .expect(400);
     expect(res.body.type).toBe(`${ctx.config.PUBLIC_URL}/problems/malformed-body`);
+    // In words, not the parser's ("Unexpected token…"); a bare null is refused the same way.
+    expect(res.body.detail).toBe('The request body is not valid JSON: send one JSON object.');
+    const bare = await scheduler
+      .post('/api/jobs')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .set('Content-Type', 'application/json')
+      .send('null')
+      .expect(400);
+    expect(bare.body.detail).toBe('The request body is not valid JSON: send one JSON object.');
+    const big = await scheduler
+      .post('/api/jobs')
+      .set('X-CSRF-Token', scheduler.csrf)
+      .set('Content-Type', 'application/json')
+      .send(JSON.stringify({ reference: 'x'.repeat(1_100_000) }))
+      .expect(413);
+    expect(big.body).toMatchObject({
+      type: `${ctx.config.PUBLIC_URL}/problems/body-too-large`,
+      detail: 'The request body is too large: at most 1 MB.',
+    });
   });
 
   it('an unknown problem type is a 404, not an empty page', async () => {
