@@ -1,5 +1,6 @@
 import { Firm, Membership, Resource, Unit, User } from '../models/index.ts';
 import type { Actor } from './actor.ts';
+import { workingWeekFor } from './read-policy.ts';
 import { scoped } from './scope.ts';
 
 /** Firms, people, resources and units as each role may see them. */
@@ -24,13 +25,19 @@ export class DirectoryService {
   }
 
   async resources(actor: Actor) {
+    // The week each works to: its own, else its firm's first calendar (the standard week).
+    const standard = Resource.knex().raw('(SELECT min(s.id) FROM calendars s WHERE s.firm_id = resources.firm_id)');
     const rows = (await scoped(Resource, actor)
       .where('resources.active', true)
       .join('firms', 'firms.id', 'resources.firm_id')
-      .select('resources.*', 'firms.name as firmName', 'firms.kind as firmKind')
+      .leftJoin('calendars as week', 'week.id', Resource.knex().raw('coalesce(resources.calendar_id, ?)', [standard]))
+      .select('resources.*', 'firms.name as firmName', 'firms.kind as firmKind', 'week.name as weekName')
+      .select(Resource.knex().raw('week.id = ? AS standard_week', [standard]))
       .orderBy(['firms.name', 'resources.kind', 'resources.name'])) as (Resource & {
       firmName: string;
       firmKind: string;
+      weekName: string | null;
+      standardWeek: boolean;
     })[];
     return rows.map((r) => ({
       id: r.id,
@@ -41,6 +48,11 @@ export class DirectoryService {
       firmName: r.firmName,
       firmKind: r.firmKind,
       ownership: r.firmId === actor.firmId ? r.ownership : ('partner' as const),
+      workingWeek: workingWeekFor(actor, {
+        firmId: String(r.firmId),
+        weekName: r.weekName,
+        standardWeek: r.standardWeek === true,
+      }),
     }));
   }
 

@@ -349,3 +349,15 @@ export function handoverEmailFor(actor: Actor, email: string | null): { email: s
 export function closureReasonFor(actor: Actor, ownerFirmId: string, reason: string): string | undefined {
   return reachOf(actor) === 'installer-office' && String(ownerFirmId) === String(actor.firmId) ? reason : undefined;
 }
+
+/**
+ * The working week a resource keeps, by name, on the Resources page: told to its own firm only,
+ * and only when it is not the firm's standard week (null then, and for another firm's resource:
+ * a partner's hours show on the board as shading, its week names are its own).
+ */
+export function workingWeekFor(
+  actor: Actor,
+  r: { firmId: string; weekName: string | null; standardWeek: boolean },
+): string | null {
+  return String(r.firmId) === String(actor.firmId) && !r.standardWeek ? r.weekName : null;
+}

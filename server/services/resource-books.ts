@@ -27,6 +27,8 @@ export interface ResourceListed {
   firmName: string;
   firmKind: string;
   ownership: 'owned' | 'hired';
+  /** The working week it keeps when not the firm's standard week (its own firm only; see workingWeekFor). */
+  workingWeek?: string | null;
 }
 
 /**

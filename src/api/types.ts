@@ -65,6 +65,8 @@ export interface ResourceRow {
   firmName: string;
   firmKind: string;
   ownership: Ownership;
+  /** The working week it keeps when not its firm's standard week (the reader's own firm only). */
+  workingWeek?: string | null;
 }
 
 export interface MemberRow {

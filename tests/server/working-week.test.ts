@@ -345,6 +345,19 @@ describe('another working week for some of the firm', () => {
     expect(refused.status, JSON.stringify(refused.body)).toBe(422);
     await bookingId(book(second.stage.commissioning!, '2026-06-17T17:00:00Z', '2026-06-17T18:00:00Z'));
 
+    // The Resources page says which week it keeps, to its own firm only, and only when not the standard.
+    const listed = (await scheduler.get('/api/resources').expect(200)).body.items as {
+      name: string;
+      workingWeek: string | null;
+    }[];
+    const weekOf = (name: string) => listed.find((r) => r.name === name)?.workingWeek;
+    expect(weekOf('Crew Otter')).toBe('Late shift');
+    expect(weekOf('Crew Heron')).toBeNull();
+    expect(weekOf('Priya Nair')).toBeNull(); // Brightspark's electrician keeps Brightspark's Electricians week
+    const partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
+    const theirList = (await partner.get('/api/resources').expect(200)).body.items as typeof listed;
+    expect(theirList.find((r) => r.name === 'Priya Nair')?.workingWeek).toBe('Electricians');
+
     // Moved meanwhile by someone else: refused with where it is now.
     const stale = await moveOtter({ calendarId: standard, was: standard }).expect(409);
     expect(stale.body).toMatchObject({ code: 'stale-version', current: late });
