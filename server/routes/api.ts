@@ -25,6 +25,7 @@ import {
   PutCalendarHours,
   PutHolidayRegion,
   PutResourceCalendar,
+  RenameCalendar,
 } from '../../shared/schemas/working-week.ts';
 import { WorkingWeekService } from '../services/working-week.ts';
 import { BookingsService } from '../services/bookings.ts';
@@ -192,6 +193,10 @@ export function apiRoutes(
     })
     .post('/api/firm/calendars', 'firm:manage', async (req, res) => {
       res.status(201).json(await workingWeek.createCalendar(req.actor!, parse(CreateCalendar, req.body)));
+    })
+    .patch('/api/firm/calendars/:id', 'firm:manage', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await workingWeek.renameCalendar(req.actor!, id, parse(RenameCalendar, req.body)));
     })
     .delete('/api/firm/calendars/:id', 'firm:manage', async (req, res) => {
       await workingWeek.removeCalendar(req.actor!, parse(IdParams, req.params, 'params').id);

@@ -11,6 +11,7 @@ import {
   type PutCalendarHours,
   type PutHolidayRegion,
   type PutResourceCalendar,
+  type RenameCalendar,
   type ResourceCalendarSaved,
   type WorkingWeekView,
 } from '../../shared/schemas/working-week.ts';
@@ -190,6 +191,30 @@ export class WorkingWeekService {
       });
       await notifyFirmChange(trx, actor.firmId);
       return { calendar };
+    });
+  }
+
+  /** Renames a working week, unless it was renamed meanwhile (409 with the week as it stands). */
+  async renameCalendar(actor: Actor, calendarId: string, input: RenameCalendar): Promise<CalendarHoursView> {
+    return this.knex.transaction(async (trx) => {
+      const c = (await trx('calendars')
+        .where({ id: calendarId, firm_id: actor.firmId })
+        .forUpdate()
+        .first('id', 'name', 'version', 'weekly_hours')) as CalendarRow | undefined;
+      if (!c) throw new NotFoundError('working calendar');
+      const isDefault = (await this.standardId(actor, trx)) === String(c.id);
+      if (c.name !== input.previousName) {
+        throw new ConflictError(`This week was renamed meanwhile, to ${c.name}: reload and try again.`, {
+          code: 'stale-version',
+          current: await this.view(trx, actor, c, isDefault),
+        });
+      }
+      if (c.name !== input.name) {
+        await trx('calendars').where('id', c.id).update({ name: input.name });
+        await recordChange(trx, actor, 'calendar', String(c.id), 'update', { name: c.name }, { name: input.name });
+        await notifyFirmChange(trx, actor.firmId);
+      }
+      return this.view(trx, actor, { ...c, name: input.name }, isDefault);
     });
   }
 

@@ -58,6 +58,15 @@ export const MAX_CALENDARS = 12;
 export const CreateCalendar = z.object({ name: oneLineText(60).min(1, 'is required') }).strict();
 export type CreateCalendar = z.infer<typeof CreateCalendar>;
 
+/** PATCH /api/firm/calendars/:id: a new name, and the name the page showed (a rename meanwhile is refused). */
+export const RenameCalendar = z
+  .object({
+    name: oneLineText(60).min(1, 'is required'),
+    previousName: z.string(requiredAs('the name the page showed')).max(200),
+  })
+  .strict();
+export type RenameCalendar = z.infer<typeof RenameCalendar>;
+
 /**
  * PUT /api/resources/:id/calendar: the week a crew, person or machine works to, and the week the
  * page showed it on (`was`), so a move made meanwhile by someone else is not overwritten.

@@ -111,7 +111,7 @@ describe('the working week', () => {
     await expect.poll(stored).toBe('GB-ENG');
   }, 60_000);
 
-  it('adds a late shift, moves a crew onto it and back, and takes it away after asking', async () => {
+  it('adds a late shift, moves a crew onto it and back, renames it, and takes it away after asking', async () => {
     const calendarOf = (name: string) =>
       app.ctx
         .knex('resources')
@@ -147,14 +147,25 @@ describe('the working week', () => {
     await standard.getByLabel('Move onto Standard week').selectOption({ label: 'Crew Otter' });
     await standard.getByRole('button', { name: 'Move' }).click();
     await expect.poll(() => calendarOf('Crew Otter')).toBe(null);
-    await late.getByRole('button', { name: 'Take away Late shift' }).click();
-    const ask = page.getByRole('dialog', { name: 'Take away Late shift?' });
+    // Renamed in place; the heading takes the focus back.
+    await late.getByRole('button', { name: 'Rename Late shift' }).click();
+    const newName = late.getByLabel('New name');
+    expect(await newName.inputValue()).toBe('Late shift');
+    await newName.fill('Evening shift');
+    await newName.press('Enter');
+    const evening = page.getByRole('region', { name: 'Evening shift' });
+    await evening.getByRole('heading', { name: 'Evening shift' }).waitFor();
+    expect(await page.evaluate(() => document.activeElement?.textContent?.trim())).toBe('Evening shift');
+    expect((await app.ctx.knex('calendars').where('id', id).first('name')).name).toBe('Evening shift');
+
+    await evening.getByRole('button', { name: 'Take away Evening shift' }).click();
+    const ask = page.getByRole('dialog', { name: 'Take away Evening shift?' });
     await ask.getByRole('button', { name: 'Keep' }).click();
     await ask.waitFor({ state: 'detached' });
     expect(await app.ctx.knex('calendars').where('id', id).count('* as n').first()).toEqual({ n: '1' });
-    await late.getByRole('button', { name: 'Take away Late shift' }).click();
+    await evening.getByRole('button', { name: 'Take away Evening shift' }).click();
     await ask.getByRole('button', { name: 'Take away', exact: true }).click();
-    await late.waitFor({ state: 'detached' });
+    await evening.waitFor({ state: 'detached' });
     expect(await app.ctx.knex('calendars').where('id', id).count('* as n').first()).toEqual({ n: '0' });
   }, 60_000);
 });

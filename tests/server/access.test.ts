@@ -400,6 +400,8 @@ function validBody(
       return {
         body: { version: 1, hours: { mon: [], tue: [], wed: [], thu: [], fri: [], sat: [], sun: [] } },
       };
+    case 'patch /api/firm/calendars/:id':
+      return { body: { name: 'Renamed week', previousName: 'Standard week' } };
     case 'put /api/resources/:id/calendar':
       return { body: { calendarId: ids.calendar, was: ids.calendar } };
     case 'post /api/firm/closures':

@@ -312,6 +312,24 @@ describe('another working week for some of the firm', () => {
       { field: 'name', message: 'must be at most 60 characters' },
     ]);
     await post(scheduler, { name: 'Early shift' }).expect(403);
+
+    // Renamed by the name the page showed: a rename meanwhile is refused with the week as it stands.
+    const rename = (body: object, agent: Agent = owner) =>
+      agent.patch(`/api/firm/calendars/${late}`).set('X-CSRF-Token', agent.csrf).send(body);
+    expect((await rename({ name: 'Late shft', previousName: 'Late shift' }).expect(200)).body).toMatchObject({
+      id: late,
+      name: 'Late shft',
+    });
+    const stale = await rename({ name: 'Evening shift', previousName: 'Late shift' }).expect(409);
+    expect(stale.body).toMatchObject({ code: 'stale-version', current: { id: late, name: 'Late shft' } });
+    expect((await rename({ name: 'Standard week', previousName: 'Late shft' }).expect(409)).body.errors).toEqual([
+      { field: 'name', message: 'is already used by another calendar' },
+    ]);
+    expect((await rename({ name: 'Late shift' }).expect(400)).body.errors).toEqual([
+      { field: 'previousName', message: 'is required: the name the page showed' },
+    ]);
+    await rename({ name: 'Late shift', previousName: 'Late shft' }, scheduler).expect(403);
+    await rename({ name: 'Late shift', previousName: 'Late shft' }).expect(200);
     const saved = await putHours({ version: 1, hours: lateWeek }, late).expect(200);
     expect(saved.body.calendar).toMatchObject({ name: 'Late shift', version: 2, hours: lateWeek, usedBy: [] });
   });
