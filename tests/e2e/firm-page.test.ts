@@ -134,12 +134,21 @@ describe('the working week', () => {
     await late.getByText('Nothing works to it yet.').waitFor();
     const id = String((await app.ctx.knex('calendars').where('name', 'Late shift').first('id')).id);
 
+    // A Friday worked up to midnight: the time box shows 00:00, said to be midnight, and 24:00 is stored.
+    await late.getByLabel("Friday's start").fill('16:00');
+    await late.getByLabel("Friday's finish").fill('00:00');
+    await late.getByText('midnight').waitFor();
+    await late.getByRole('button', { name: 'Save hours' }).click();
+    await late.getByText('Every booking from now on still lies within these hours.').waitFor();
+    const stored = await app.ctx.knex('calendars').where('name', 'Late shift').first('weekly_hours');
+    expect(stored.weeklyHours['5']).toEqual([[960, 1440]]);
+    expect(await late.getByLabel("Friday's finish").inputValue()).toBe('00:00');
     await late.getByLabel('Move onto Late shift').selectOption({ label: 'Crew Otter' });
     await late.getByRole('button', { name: 'Move' }).click();
     await late.getByText('Worked to by Crew Otter.').waitFor();
     await expect.poll(() => calendarOf('Crew Otter')).toBe(id);
-    // Same hours as the standard week: nothing of Otter's falls outside them.
-    await late.getByText('Every booking of Crew Otter from now on lies within these hours.').waitFor();
+    // Otter's Friday bookings are all in working hours of the standard week; any before 16:00 is named now.
+    await late.getByRole('status').filter({ hasText: 'Crew Otter' }).first().waitFor();
     // Worked to: it cannot be taken away.
     expect(await late.getByRole('button', { name: 'Take away Late shift' }).count()).toBe(0);
 
