@@ -312,6 +312,11 @@ describe('another working week for some of the firm', () => {
       { field: 'name', message: 'must be at most 60 characters' },
     ]);
     await post(scheduler, { name: 'Early shift' }).expect(403);
+    // Two owners add the same name at once: one week, and the other told the name is taken.
+    const twice = await Promise.all([post(owner, { name: 'Early shift' }), post(owner, { name: 'Early shift' })]);
+    expect(twice.map((r) => r.status).sort()).toEqual([201, 409]);
+    const early = twice.find((r) => r.status === 201)!.body.calendar.id;
+    await remove(early).expect(204);
 
     // Renamed by the name the page showed: a rename meanwhile is refused with the week as it stands.
     const rename = (body: object, agent: Agent = owner) =>
