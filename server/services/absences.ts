@@ -146,10 +146,16 @@ export class AbsencesService {
     return out;
   }
 
-  /** The firm's time zone and its calendars, the first being the one closures are listed from. */
-  private async firmCalendars(actor: Actor, trx: Knex | Knex.Transaction = this.knex) {
+  /**
+   * The firm's time zone and its calendars, the first being the one closures are listed from. A
+   * change (`lock`) holds the firm's row first, as every change to its working weeks does
+   * (server/services/working-week.ts): a week added meanwhile gets every closure, or waits for it.
+   */
+  private async firmCalendars(actor: Actor, trx: Knex | Knex.Transaction = this.knex, lock = false) {
     if (reachOf(actor) === 'crew') throw new NotFoundError('firm');
-    const firm = (await trx('firms').where('id', actor.firmId).first('time_zone')) as { timeZone: string };
+    const q = trx('firms').where('id', actor.firmId);
+    if (lock) q.forNoKeyUpdate();
+    const firm = (await q.first('time_zone')) as { timeZone: string };
     const calendars = (await trx('calendars').where('firm_id', actor.firmId).orderBy('id').pluck('id')) as string[];
     return { timeZone: firm.timeZone, calendars: calendars.map(String) };
   }
@@ -177,7 +183,7 @@ export class AbsencesService {
    */
   async createClosure(actor: Actor, input: CreateClosure): Promise<ClosureCreated> {
     return this.knex.transaction(async (trx) => {
-      const { timeZone, calendars } = await this.firmCalendars(actor, trx);
+      const { timeZone, calendars } = await this.firmCalendars(actor, trx, true);
       if (calendars.length === 0) throw new NotFoundError('working calendar');
       const { startsAt, endsAt } = instantsOf(input, timeZone);
       const rows = await trx('calendar_exceptions')
@@ -201,7 +207,7 @@ export class AbsencesService {
   /** Takes a closure off every calendar of the firm (the rows of the same days and reason). */
   async removeClosure(actor: Actor, closureId: string): Promise<void> {
     await this.knex.transaction(async (trx) => {
-      const { timeZone, calendars } = await this.firmCalendars(actor, trx);
+      const { timeZone, calendars } = await this.firmCalendars(actor, trx, true);
       const e = await trx('calendar_exceptions')
         .where('id', closureId)
         .whereIn('calendar_id', calendars)

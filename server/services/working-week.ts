@@ -75,7 +75,7 @@ export class WorkingWeekService {
    */
   async putHours(actor: Actor, calendarId: string, input: PutCalendarHours): Promise<CalendarHoursSaved> {
     return this.knex.transaction(async (trx) => {
-      const firm = await this.firm(actor, trx);
+      const firm = await this.firm(actor, trx, true);
       const was = (await trx('calendars')
         .where({ id: calendarId, firm_id: actor.firmId })
         .forUpdate()
@@ -197,6 +197,7 @@ export class WorkingWeekService {
   /** Renames a working week, unless it was renamed meanwhile (409 with the week as it stands). */
   async renameCalendar(actor: Actor, calendarId: string, input: RenameCalendar): Promise<CalendarHoursView> {
     return this.knex.transaction(async (trx) => {
+      await this.firm(actor, trx, true);
       const c = (await trx('calendars')
         .where({ id: calendarId, firm_id: actor.firmId })
         .forUpdate()
@@ -262,7 +263,7 @@ export class WorkingWeekService {
     input: PutResourceCalendar,
   ): Promise<ResourceCalendarSaved> {
     return this.knex.transaction(async (trx) => {
-      const firm = await this.firm(actor, trx);
+      const firm = await this.firm(actor, trx, true);
       const r = (await trx('resources')
         .where({ id: resourceId, firm_id: actor.firmId, active: true })
         .forUpdate()
@@ -272,8 +273,6 @@ export class WorkingWeekService {
       const calendars = (await trx('calendars')
         .where('firm_id', actor.firmId)
         .whereIn('id', [input.calendarId, r.calendarId ?? standardId])
-        // Held until the move is saved: a week being taken away meanwhile waits, then sees who works to it.
-        .forShare()
         .select('id', 'name', 'version', 'weekly_hours')) as CalendarRow[];
       const byId = new Map(calendars.map((c) => [String(c.id), c]));
       const from = byId.get(String(r.calendarId ?? standardId));
@@ -330,9 +329,16 @@ export class WorkingWeekService {
     return String(first.id);
   }
 
+  /**
+   * The firm's zone and bank holidays; `lock` holds its row for the rest of the transaction. Every
+   * change to a firm's weeks and closed days takes it first, so they run one at a time per firm and
+   * always lock in the same order (a move onto a week and taking that week away at once deadlocked
+   * before). FOR NO KEY UPDATE, not FOR UPDATE: other writes that only point at the firm (an audit
+   * row, a booking) are not held up.
+   */
   private async firm(actor: Actor, trx: Knex | Knex.Transaction, lock = false) {
     const q = trx('firms').where('id', actor.firmId);
-    if (lock) q.forUpdate();
+    if (lock) q.forNoKeyUpdate();
     const firm = (await q.first('time_zone', 'holiday_region')) as
       { timeZone: string; holidayRegion: string | null } | undefined;
     if (!firm) throw new NotFoundError('firm');

@@ -1,5 +1,13 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import {
+  account,
+  idOf,
+  signIn,
+  startTestApp,
+  untilWaitingOnLocks,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
 import { makeJob } from '../helpers/flows.ts';
 
 /*
@@ -413,18 +421,24 @@ describe('another working week for some of the firm', () => {
     });
     await moveOtter({ calendarId: standard, was: late }).expect(200);
     expect((await ctx.knex('resources').where('id', otter).first('calendar_id')).calendarId).toBeNull();
-    // A move onto it and taking it away, at once: one of them wins, and the other is told.
-    const [move, gone] = await Promise.all([moveOtter({ calendarId: late, was: standard }), remove(late)]);
-    const otterOn = (await ctx.knex('resources').where('id', otter).first('calendar_id')).calendarId;
-    if (move.status === 200) {
-      expect(gone.status).toBe(409);
-      expect(String(otterOn)).toBe(late);
-      await moveOtter({ calendarId: standard, was: late }).expect(200);
-      await remove(late).expect(204);
-    } else {
-      expect([move.status, gone.status]).toEqual([400, 204]);
-      expect(otterOn).toBeNull();
-    }
+    // A move onto it under way (the week read, the crew not yet written) while the week is taken
+    // away: the test holds writes to resources, so the move waits there, then sends the take-away.
+    // The take-away waits for the move (both take the firm's row first), then sees Otter on the week
+    // and is refused; the move stands. Before, the two deadlocked (a 500), or the take-away won and
+    // the move failed on a week that was gone.
+    const holder = await ctx.knex.transaction();
+    await holder.raw('LOCK TABLE resources IN SHARE MODE');
+    const moving = moveOtter({ calendarId: late, was: standard }).then((r) => r);
+    await untilWaitingOnLocks(ctx.knex, 1);
+    const taking = remove(late).then((r) => r);
+    await untilWaitingOnLocks(ctx.knex, 2);
+    await holder.commit();
+    const [move, gone] = await Promise.all([moving, taking]);
+    expect([move.status, gone.status], JSON.stringify([move.body, gone.body])).toEqual([200, 409]);
+    expect(gone.body.code).toBe('in-use');
+    expect(String((await ctx.knex('resources').where('id', otter).first('calendar_id')).calendarId)).toBe(late);
+    await moveOtter({ calendarId: standard, was: late }).expect(200);
+    await remove(late).expect(204);
     const after = (await owner.get('/api/firm/working-week').expect(200)).body.calendars;
     expect(after.map((c: { id: string }) => c.id)).not.toContain(late);
     await remove(late).expect(404);
