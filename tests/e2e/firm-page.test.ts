@@ -152,6 +152,14 @@ describe('the working week', () => {
     // Worked to: it cannot be taken away.
     expect(await late.getByRole('button', { name: 'Take away Late shift' }).count()).toBe(0);
 
+    // Undone from the move's own message: back onto the standard week.
+    await late.getByRole('button', { name: 'Undo: move Crew Otter back onto Standard week' }).click();
+    await expect.poll(() => calendarOf('Crew Otter')).toBe(null);
+    await late.getByText('Nothing works to it yet.').waitFor();
+    // And moved again, then back from the standard week's own list.
+    await late.getByLabel('Move onto Late shift').selectOption({ label: 'Crew Otter' });
+    await late.getByRole('button', { name: 'Move' }).click();
+    await expect.poll(() => calendarOf('Crew Otter')).toBe(id);
     const standard = page.getByRole('region', { name: /^Standard week/ });
     await standard.getByLabel('Move onto Standard week').selectOption({ label: 'Crew Otter' });
     await standard.getByRole('button', { name: 'Move' }).click();
