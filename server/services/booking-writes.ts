@@ -644,6 +644,18 @@ export async function lockResources(trx: Knex.Transaction, resourceIds: readonly
   );
 }
 
+/**
+ * The lock every booking write takes on each job it touches (before its resources), for a change to
+ * a job's stages outside the write path (planning it again) to wait for such a write, or make it
+ * wait, and so see its bookings.
+ */
+export async function lockJobs(trx: Knex.Transaction, jobIds: readonly string[]): Promise<void> {
+  await takeLocks(
+    trx,
+    jobIds.map((id) => `job.${id}`),
+  );
+}
+
 /** Which rows a write will touch, known before it starts: their jobs and resources are locked. */
 export interface LockScope {
   bookingIds?: string[];
@@ -711,10 +723,7 @@ export class BookingWriter {
       [stageIds, bookingIds],
     );
     const jobIds = (jobRows.rows as { job_id: string }[]).map((r) => String(r.job_id)).sort();
-    await this.take(
-      trx,
-      jobIds.map((id) => `job.${id}`),
-    );
+    await lockJobs(trx, jobIds);
     // With the jobs held no booking of theirs can change, so their resources are now known for certain.
     const resourceRows = await trx.raw(
       `SELECT DISTINCT b.resource_id FROM bookings b JOIN stages s ON s.id = b.stage_id
@@ -726,10 +735,6 @@ export class BookingWriter {
       ...(scope.resourceIds ?? []).map(String),
     ]);
     await lockResources(trx, [...resourceIds]);
-  }
-
-  private async take(trx: Knex.Transaction, keys: string[]): Promise<void> {
-    await takeLocks(trx, keys);
   }
 
   /**

@@ -8,6 +8,7 @@ import { ConflictError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
+import { lockJobs } from './booking-writes.ts';
 import { latestAnswers } from './answer-views.ts';
 import { answerReasonFor } from './read-policy.ts';
 import type { TemplatesService } from './templates.ts';
@@ -31,6 +32,10 @@ export class PlansService {
    */
   async plan(actor: Actor, jobId: string): Promise<PlanResult> {
     return this.knex.transaction(async (trx) => {
+      if (!(await scoped(Job, actor, trx).findById(jobId))) throw new NotFoundError('job');
+      // A booking of one of its stages under way holds the job in the write path: wait for it (taking
+      // the job's lock first, as the write path does), and count it.
+      await lockJobs(trx, [String(jobId)]);
       const job = await scoped(Job, actor, trx).findById(jobId).forUpdate();
       if (!job) throw new NotFoundError('job');
       const booked = await scoped(Booking, actor, trx)

@@ -1,5 +1,13 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import {
+  account,
+  idOf,
+  signIn,
+  startTestApp,
+  untilWaitingOnLocks,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
 import { backToEnquiry } from '../helpers/demo.ts';
 import { CreateJob, UpdateJob } from '../../shared/schemas/jobs.ts';
 import { PutSurvey } from '../../shared/schemas/surveys.ts';
@@ -202,6 +210,36 @@ describe('planning a job from its template', () => {
     const res = await write(scheduler, 'post', `/api/jobs/${booked}/plan`).expect(409);
     expect(res.body.code).toBe('already-booked');
     expect((await stagesOf(booked)).map((s) => s.id)).toEqual(before.map((s) => s.id));
+  });
+
+  it('waits for a booking of one of its stages under way, then refuses to plan again: the booking stands', async () => {
+    // The survey stage of the plan above, booked on a crew of its kind (Tue 29 Sep 2026, 09:00–11:00 BST).
+    const survey = (await stagesOf(enquiry)).find((s) => s.kind === 'survey');
+    const kind = survey.requirements[0].kind;
+    const crew = await ctx.knex('resources').where({ kind, active: true }).orderBy('id').first('id');
+    // The booking is caught half-way (its row written, its audit row held), then the plan is sent.
+    const holder = await ctx.knex.transaction();
+    await holder.raw('LOCK TABLE audit_log IN SHARE MODE');
+    const booking = write(scheduler, 'post', '/api/bookings', {
+      stageId: String(survey.id),
+      resourceId: String(crew.id),
+      startsAt: '2026-09-29T08:00:00Z',
+      endsAt: '2026-09-29T10:00:00Z',
+    }).then((r) => r);
+    await untilWaitingOnLocks(ctx.knex, 1);
+    const plan = write(scheduler, 'post', `/api/jobs/${enquiry}/plan`).then((r) => r);
+    await untilWaitingOnLocks(ctx.knex, 2);
+    await holder.commit();
+    const [booked, planned] = await Promise.all([booking, plan]);
+    expect(booked.status, JSON.stringify(booked.body)).toBe(201);
+    // Before, the plan counted no bookings (the new one not yet saved), then replaced the stages and
+    // took the booking that had just been answered 201 with them.
+    expect(planned.status, JSON.stringify(planned.body)).toBe(409);
+    expect(planned.body.code).toBe('already-booked');
+    expect(await ctx.knex('bookings').where('id', booked.body.bookings[0].id).first('stage_id')).toEqual({
+      stageId: survey.id,
+    });
+    await ctx.knex('bookings').where('id', booked.body.bookings[0].id).delete();
   });
 
   it("uses the firm's edited template, version-checked", async () => {
