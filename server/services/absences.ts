@@ -14,6 +14,7 @@ import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
 import { bookingOfOwnResource } from './read-policy.ts';
+import { lockResources } from './booking-writes.ts';
 import { ownResourceIds } from '../models/base.ts';
 import type { MyWorkAway } from '../../shared/schemas/my-work.ts';
 
@@ -79,6 +80,7 @@ export class AbsencesService {
   async create(actor: Actor, resourceId: string, input: CreateAbsence): Promise<AbsenceCreated> {
     return this.knex.transaction(async (trx) => {
       const r = await this.ownResource(actor, resourceId, trx);
+      await lockOwnTime(trx, String(r.id));
       const { startsAt, endsAt } = instantsOf(input, r.timeZone);
       const [row] = (await trx('calendar_exceptions')
         .insert({ resource_id: r.id, starts_at: startsAt, ends_at: endsAt, reason: input.reason })
@@ -185,6 +187,7 @@ export class AbsencesService {
     return this.knex.transaction(async (trx) => {
       const { timeZone, calendars } = await this.firmCalendars(actor, trx, true);
       if (calendars.length === 0) throw new NotFoundError('working calendar');
+      await lockFirmTime(trx, actor.firmId);
       const { startsAt, endsAt } = instantsOf(input, timeZone);
       const rows = await trx('calendar_exceptions')
         .insert(calendars.map((c) => ({ calendar_id: c, starts_at: startsAt, ends_at: endsAt, reason: input.reason })))
@@ -273,4 +276,21 @@ export async function bookingsWithin(
   if (endsAt) q.where('b.starts_at', '<', endsAt);
   const rows = (await q) as Parameters<typeof bookingOfOwnResource>[1][];
   return rows.map((b) => bookingOfOwnResource(actor, b)).filter((b): b is AffectedBooking => b !== null);
+}
+
+/**
+ * Takes the write path's lock on a resource whose own time changes (marked away, or back), and on
+ * each crew it is in (a crew's booking takes the crew's lock, and counts its people): a booking
+ * under way is waited for and named among those affected, and one sent meanwhile waits and is
+ * checked against the new time away.
+ */
+export async function lockOwnTime(trx: Knex.Transaction, resourceId: string): Promise<void> {
+  const crews = (await trx('crew_members').where('person_id', resourceId).pluck('crew_id')) as string[];
+  await lockResources(trx, [String(resourceId), ...crews.map(String)]);
+}
+
+/** {@link lockOwnTime} for every resource of a firm: its working days or hours change for all of them. */
+export async function lockFirmTime(trx: Knex.Transaction, firmId: string): Promise<void> {
+  const ids = (await trx('resources').where({ firm_id: firmId, active: true }).pluck('id')) as string[];
+  await lockResources(trx, ids.map(String));
 }

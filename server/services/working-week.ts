@@ -28,7 +28,7 @@ import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
-import { bookingsWithin } from './absences.ts';
+import { bookingsWithin, lockFirmTime, lockOwnTime } from './absences.ts';
 import { holidayRegionOf } from './board.ts';
 import { holidaysFor } from './holiday-days.ts';
 
@@ -76,6 +76,7 @@ export class WorkingWeekService {
   async putHours(actor: Actor, calendarId: string, input: PutCalendarHours): Promise<CalendarHoursSaved> {
     return this.knex.transaction(async (trx) => {
       const firm = await this.firm(actor, trx, true);
+      await lockFirmTime(trx, actor.firmId);
       const was = (await trx('calendars')
         .where({ id: calendarId, firm_id: actor.firmId })
         .forUpdate()
@@ -117,6 +118,7 @@ export class WorkingWeekService {
   async putHolidayRegion(actor: Actor, input: PutHolidayRegion): Promise<HolidayRegionSaved> {
     return this.knex.transaction(async (trx) => {
       const firm = await this.firm(actor, trx, true);
+      await lockFirmTime(trx, actor.firmId);
       const current = regionCode(firm.holidayRegion);
       if (current !== input.was) {
         throw new ConflictError(
@@ -264,9 +266,11 @@ export class WorkingWeekService {
   ): Promise<ResourceCalendarSaved> {
     return this.knex.transaction(async (trx) => {
       const firm = await this.firm(actor, trx, true);
+      // The write path's lock first, then the row (a booking under way holds the one and points at the other).
+      await lockOwnTime(trx, resourceId);
       const r = (await trx('resources')
         .where({ id: resourceId, firm_id: actor.firmId, active: true })
-        .forUpdate()
+        .forNoKeyUpdate()
         .first('id', 'name', 'calendar_id')) as { id: string; name: string; calendarId: string | null } | undefined;
       if (!r || reachOf(actor) === 'crew') throw new NotFoundError('resource');
       const standardId = await this.standardId(actor, trx);

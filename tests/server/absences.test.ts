@@ -6,10 +6,12 @@ import {
   openBoardStream,
   signIn,
   startTestApp,
+  untilWaitingOnLocks,
   type Agent,
   type TestContext,
 } from '../helpers/server.ts';
 import { makeJob } from '../helpers/flows.ts';
+import { lockResources } from '../../server/services/booking-writes.ts';
 
 /*
  * Time away of a resource: Crew Otter (Tideway's own crew) and Priya Nair (Brightspark
@@ -119,6 +121,28 @@ describe('marking a crew away', () => {
       end: Date.UTC(2026, 5, 11, 23),
     });
     await scheduler.delete(`/api/absences/${a.id}`).set('X-CSRF-Token', scheduler.csrf).expect(404);
+  });
+
+  it('waits for a booking of the crew under way (the write path holds the crew), so it sees it or is seen', async () => {
+    // A booking of Otter under way holds the write path's lock on Otter until it is saved; the time
+    // away waits for it, and a booking sent after the time away started waits for that in turn.
+    // Before, the two could pass each other: the booking checked against the days before the time
+    // away, the time away listing the bookings before the booking was saved (201, and named nowhere).
+    const holder = await ctx.knex.transaction();
+    await lockResources(holder, [otter]);
+    let answered = false;
+    const away = markAway(scheduler, otter, { from: '2026-10-13', to: '2026-10-13', reason: 'Training day' }).then(
+      (r) => ((answered = true), r),
+    );
+    try {
+      await untilWaitingOnLocks(ctx.knex, 1);
+      expect(answered).toBe(false);
+    } finally {
+      await holder.commit();
+    }
+    const marked = await away;
+    expect(marked.status).toBe(201);
+    await scheduler.delete(`/api/absences/${marked.body.absence.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
   });
 
   it('refuses bad days with the field and the reason, keeping nothing', async () => {
@@ -385,6 +409,27 @@ describe("a partner firm's own people", () => {
 describe('closing the whole firm', () => {
   const close = (as: Agent, body: Record<string, unknown>) =>
     as.post('/api/firm/closures').set('X-CSRF-Token', as.csrf).send(body);
+
+  it("waits for a booking of any of the firm's resources under way (the write path holds it)", async () => {
+    const holder = await ctx.knex.transaction();
+    await lockResources(holder, [otter]);
+    let answered = false;
+    const closing = close(scheduler, { from: '2026-10-14', to: '2026-10-14', reason: 'Stocktake' }).then(
+      (r) => ((answered = true), r),
+    );
+    try {
+      await untilWaitingOnLocks(ctx.knex, 1);
+      expect(answered).toBe(false);
+    } finally {
+      await holder.commit();
+    }
+    const closed = await closing;
+    expect(closed.status).toBe(201);
+    await scheduler
+      .delete(`/api/firm/closures/${closed.body.closure.id}`)
+      .set('X-CSRF-Token', scheduler.csrf)
+      .expect(204);
+  });
 
   it("shades every one of the firm's resources on the board and names the firm's bookings left in those days", async () => {
     const res = await close(scheduler, { from: '2026-06-10', to: '2026-06-10', reason: 'Works shutdown' }).expect(201);
