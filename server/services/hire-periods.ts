@@ -4,6 +4,8 @@ import { Firm, HirePeriod, Resource } from '../models/index.ts';
 import { BadRequestError, ConflictError, NotFoundError, UnprocessableError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
+import { notifyResourceChange } from './board-stream.ts';
+import { lockResources } from './booking-writes.ts';
 import { findVisible, scoped } from './scope.ts';
 
 /** The model has no typed version yet: the migration 20261215000100 adds it and updated_at. */
@@ -42,6 +44,8 @@ export class HirePeriodsService {
           errors: [{ field: 'resourceId', message: 'is not a machine your firm hires in' }],
         });
       }
+      // The write path's lock on the machine first: a booking of it under way is waited for.
+      await lockResources(trx, [String(resource.id)]);
       const supplier = await scoped(Firm, actor, trx).findById(input.supplierFirmId);
       if (!supplier || supplier.id === actor.firmId) {
         throw new BadRequestError('The supplier must be a firm you work with.', [
@@ -64,6 +68,8 @@ export class HirePeriodsService {
         .returning('*')) as unknown as VersionedHire;
       const view = viewOf(inserted);
       await recordChange(trx, actor, 'hire_period', view.id, 'create', null, view);
+      // Open boards check bookings against the hire and count its idle days: they reload.
+      await notifyResourceChange(trx, String(resource.id));
       return view;
     });
   }
@@ -71,10 +77,12 @@ export class HirePeriodsService {
   /** Approve, end, or change dates and prices of one of the firm's hire periods. */
   async update(actor: Actor, id: string, input: UpdateHirePeriod): Promise<HirePeriodView> {
     return this.knex.transaction(async (trx) => {
-      const before = (await scoped(HirePeriod, actor, trx)
-        .where('hire_periods.hirer_firm_id', actor.firmId)
-        .findById(id)
-        .forUpdate()) as VersionedHire | undefined;
+      const hire = scoped(HirePeriod, actor, trx).where('hire_periods.hirer_firm_id', actor.firmId).findById(id);
+      const seen = (await hire.clone()) as VersionedHire | undefined;
+      if (!seen) throw new NotFoundError('hire period');
+      // The write path's lock on the machine, then the row: a booking of it under way is waited for.
+      await lockResources(trx, [String(seen.resourceId)]);
+      const before = (await hire.forUpdate()) as VersionedHire | undefined;
       if (!before) throw new NotFoundError('hire period');
       if (before.version !== input.version) {
         throw new ConflictError('Someone else changed this hire since you loaded it.', {
@@ -106,6 +114,7 @@ export class HirePeriodsService {
       } as Partial<HirePeriod>)) as VersionedHire;
       const view = viewOf(after);
       await recordChange(trx, actor, 'hire_period', id, 'update', viewOf(before), view);
+      await notifyResourceChange(trx, String(before.resourceId));
       return view;
     });
   }

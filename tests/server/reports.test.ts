@@ -1,5 +1,16 @@
 import { afterAll, beforeAll, describe, expect, it, onTestFinished } from 'vitest';
-import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import type { AddressInfo } from 'node:net';
+import {
+  account,
+  idOf,
+  openBoardStream,
+  signIn,
+  startTestApp,
+  untilWaitingOnLocks,
+  type Agent,
+  type TestContext,
+} from '../helpers/server.ts';
+import { lockResources } from '../../server/services/booking-writes.ts';
 import type { ClashReport, HireReport, UtilisationReport } from '../../shared/reports/types.ts';
 
 /*
@@ -214,13 +225,43 @@ describe('recording and approving a hire period', () => {
     ).toEqual({ n: '1' });
   });
 
+  it("reloads open boards, and waits for a booking of the machine under way (the write path's lock)", async () => {
+    const server = ctx.waterline.app.listen(0, '127.0.0.1');
+    await new Promise((r) => server.once('listening', r));
+    const board = await openBoardStream(manager, (server.address() as AddressInfo).port);
+    const holder = await ctx.knex.transaction();
+    try {
+      await lockResources(holder, [digger]);
+      let answered = false;
+      const change = manager
+        .patch(`/api/hire-periods/${hireId}`)
+        .set('X-CSRF-Token', manager.csrf)
+        .send({ version: 2, dayRatePence: 14500 })
+        .then((r) => ((answered = true), r));
+      try {
+        await untilWaitingOnLocks(ctx.knex, 1);
+        expect(answered).toBe(false);
+      } finally {
+        await holder.commit();
+      }
+      expect((await change).status).toBe(200);
+      // The board reloads (an event naming no booking).
+      expect(await board.until((t) => t.includes('data: {"bookingId":""}'))).toContain(
+        'event: bookings\ndata: {"bookingId":""}\n\n',
+      );
+    } finally {
+      board.close();
+      await new Promise((r) => server.close(r));
+    }
+  });
+
   it('is for managers and owners only', async () => {
     const scheduler = await signIn(ctx, account('scheduler').email);
     await scheduler.post('/api/hire-periods').set('X-CSRF-Token', scheduler.csrf).send({}).expect(403);
     await scheduler
       .patch(`/api/hire-periods/${hireId}`)
       .set('X-CSRF-Token', scheduler.csrf)
-      .send({ version: 2 })
+      .send({ version: 3 })
       .expect(403);
   });
 });
