@@ -5,6 +5,7 @@ import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
+import { notifyJobChange } from './board-stream.ts';
 import { JobsService } from './jobs.ts';
 
 /** Editing a job's details, guarded by its version. */
@@ -42,6 +43,8 @@ export class JobEditsService {
         version: before.version + 1,
       } as Partial<Job>);
       await recordChange(trx, actor, 'job', id, 'update', before, after);
+      // Open boards show its reference, customer and promised window: they reload.
+      await notifyJobChange(trx, String(id));
       return after;
     });
   }

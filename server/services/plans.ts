@@ -9,6 +9,7 @@ import type { Actor } from './actor.ts';
 import { findVisible, scoped } from './scope.ts';
 import { recordChange } from './audit.ts';
 import { lockJobs } from './booking-writes.ts';
+import { notifyJobChange } from './board-stream.ts';
 import { latestAnswers } from './answer-views.ts';
 import { answerReasonFor } from './read-policy.ts';
 import type { TemplatesService } from './templates.ts';
@@ -117,6 +118,8 @@ export class PlansService {
         { stages: old.map((s) => s.kind) },
         { stages: plan.stages.map((s) => s.kind), crane },
       );
+      // Open boards list the job's new stages waiting to be booked: they reload.
+      await notifyJobChange(trx, String(job.id));
       return {
         ...plan,
         crane,

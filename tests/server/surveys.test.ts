@@ -1,7 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { AddressInfo } from 'node:net';
 import {
   account,
   idOf,
+  openBoardStream,
   signIn,
   startTestApp,
   untilWaitingOnLocks,
@@ -267,6 +269,29 @@ describe('planning a job from its template', () => {
     );
     await write(scheduler, 'post', `/api/jobs/${enquiry}/plan`).expect(201);
     expect((await stagesOf(enquiry)).find((s) => s.kind === 'handover').durationMinutes).toBe(90);
+  });
+});
+
+describe('open boards', () => {
+  it('reload when a job is edited or planned again (an event naming no booking)', async () => {
+    const server = ctx.waterline.app.listen(0, '127.0.0.1');
+    await new Promise((r) => server.once('listening', r));
+    const RELOAD = 'event: bookings\ndata: {"bookingId":""}\n\n';
+    const reloads = (t: string) => t.split(RELOAD).length - 1;
+    const board = await openBoardStream(scheduler, (server.address() as AddressInfo).port);
+    try {
+      const job = await ctx.knex('jobs').where('id', enquiry).first('version');
+      await write(scheduler, 'patch', `/api/jobs/${enquiry}`, {
+        version: job.version,
+        accessNotes: 'Side gate: code 4421',
+      }).expect(200);
+      expect(reloads(await board.until((t) => reloads(t) >= 1))).toBe(1);
+      await write(scheduler, 'post', `/api/jobs/${enquiry}/plan`).expect(201);
+      expect(reloads(await board.until((t) => reloads(t) >= 2))).toBe(2);
+    } finally {
+      board.close();
+      await new Promise((r) => server.close(r));
+    }
   });
 });
 
