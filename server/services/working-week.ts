@@ -77,11 +77,7 @@ export class WorkingWeekService {
     return this.knex.transaction(async (trx) => {
       const firm = await this.firm(actor, trx, true);
       await lockFirmTime(trx, actor.firmId);
-      const was = (await trx('calendars')
-        .where({ id: calendarId, firm_id: actor.firmId })
-        .forUpdate()
-        .first('id', 'name', 'version', 'weekly_hours')) as CalendarRow | undefined;
-      if (!was) throw new NotFoundError('working calendar');
+      const was = await this.ownCalendar(trx, actor, calendarId);
       const isDefault = (await this.standardId(actor, trx)) === String(was.id);
       if (was.version !== input.version) {
         throw new ConflictError(`Someone else changed ${was.name} since you loaded it: reload to see theirs.`, {
@@ -200,11 +196,7 @@ export class WorkingWeekService {
   async renameCalendar(actor: Actor, calendarId: string, input: RenameCalendar): Promise<CalendarHoursView> {
     return this.knex.transaction(async (trx) => {
       await this.firm(actor, trx, true);
-      const c = (await trx('calendars')
-        .where({ id: calendarId, firm_id: actor.firmId })
-        .forUpdate()
-        .first('id', 'name', 'version', 'weekly_hours')) as CalendarRow | undefined;
-      if (!c) throw new NotFoundError('working calendar');
+      const c = await this.ownCalendar(trx, actor, calendarId);
       const isDefault = (await this.standardId(actor, trx)) === String(c.id);
       if (c.name !== input.previousName) {
         throw new ConflictError(`This week was renamed meanwhile, to ${c.name}: reload and try again.`, {
@@ -229,11 +221,7 @@ export class WorkingWeekService {
   async removeCalendar(actor: Actor, calendarId: string): Promise<void> {
     await this.knex.transaction(async (trx) => {
       await this.firm(actor, trx, true);
-      const c = (await trx('calendars')
-        .where({ id: calendarId, firm_id: actor.firmId })
-        .forUpdate()
-        .first('id', 'name', 'version', 'weekly_hours')) as CalendarRow | undefined;
-      if (!c) throw new NotFoundError('working calendar');
+      const c = await this.ownCalendar(trx, actor, calendarId);
       if ((await this.standardId(actor, trx)) === String(c.id)) {
         throw new ConflictError(`${c.name} is the firm's standard week: new crews, people and machines work to it.`, {
           code: 'standard-week',
@@ -323,6 +311,16 @@ export class WorkingWeekService {
         affected,
       };
     });
+  }
+
+  /** One of the firm's own weeks, held for the rest of the transaction (404 for any other). */
+  private async ownCalendar(trx: Knex.Transaction, actor: Actor, calendarId: string): Promise<CalendarRow> {
+    const c = (await trx('calendars')
+      .where({ id: calendarId, firm_id: actor.firmId })
+      .forUpdate()
+      .first('id', 'name', 'version', 'weekly_hours')) as CalendarRow | undefined;
+    if (!c) throw new NotFoundError('working calendar');
+    return c;
   }
 
   /** The firm's standard week: its first calendar (what resources with none work to). */

@@ -4,6 +4,7 @@ import type { Knex } from 'knex';
 import { loadConfig, type Config } from '../../server/config.ts';
 import { createKnex, migrationConfig } from '../../server/db.ts';
 import { createApp, type WaterlineApp } from '../../server/app.ts';
+import { lockResources } from '../../server/services/booking-writes.ts';
 import { emptySeededTables, seedDemo } from '../../seeds/demo.ts';
 import { DEMO_ACCOUNTS, type DemoAccount } from '../../seeds/demo-accounts.ts';
 import type { Role } from '../../shared/permissions.ts';
@@ -100,6 +101,31 @@ export async function untilWaitingOnLocks(knex: Knex, count: number): Promise<vo
     );
   for (const started = Date.now(); (await waiting()) < count && Date.now() - started < 10_000;)
     await new Promise((r) => setTimeout(r, 20));
+}
+
+/**
+ * Sends a request while the write path's locks on `resourceIds` are held, as by a booking of them
+ * under way, and says whether it waited for them (polled, 10 s at most), with its response once
+ * they are let go.
+ */
+export async function sentWhileResourcesHeld<R>(
+  knex: Knex,
+  resourceIds: string[],
+  send: () => PromiseLike<R>,
+): Promise<{ waited: boolean; response: R }> {
+  const holder = await knex.transaction();
+  let answered = false;
+  let sent: Promise<R> | undefined;
+  let waited = false;
+  try {
+    await lockResources(holder, resourceIds);
+    sent = Promise.resolve(send()).then((r) => ((answered = true), r));
+    await untilWaitingOnLocks(knex, 1);
+    waited = !answered;
+  } finally {
+    await holder.commit();
+  }
+  return { waited, response: await sent };
 }
 
 /** Ids from the demo scenario by name. */

@@ -6,12 +6,11 @@ import {
   openBoardStream,
   signIn,
   startTestApp,
-  untilWaitingOnLocks,
+  sentWhileResourcesHeld,
   type Agent,
   type TestContext,
 } from '../helpers/server.ts';
 import { makeJob } from '../helpers/flows.ts';
-import { lockResources } from '../../server/services/booking-writes.ts';
 
 /*
  * Time away of a resource: Crew Otter (Tideway's own crew) and Priya Nair (Brightspark
@@ -128,19 +127,10 @@ describe('marking a crew away', () => {
     // away waits for it, and a booking sent after the time away started waits for that in turn.
     // Before, the two could pass each other: the booking checked against the days before the time
     // away, the time away listing the bookings before the booking was saved (201, and named nowhere).
-    const holder = await ctx.knex.transaction();
-    await lockResources(holder, [otter]);
-    let answered = false;
-    const away = markAway(scheduler, otter, { from: '2026-10-13', to: '2026-10-13', reason: 'Training day' }).then(
-      (r) => ((answered = true), r),
+    const { waited, response: marked } = await sentWhileResourcesHeld(ctx.knex, [otter], () =>
+      markAway(scheduler, otter, { from: '2026-10-13', to: '2026-10-13', reason: 'Training day' }),
     );
-    try {
-      await untilWaitingOnLocks(ctx.knex, 1);
-      expect(answered).toBe(false);
-    } finally {
-      await holder.commit();
-    }
-    const marked = await away;
+    expect(waited).toBe(true);
     expect(marked.status).toBe(201);
     await scheduler.delete(`/api/absences/${marked.body.absence.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
   });
@@ -411,19 +401,10 @@ describe('closing the whole firm', () => {
     as.post('/api/firm/closures').set('X-CSRF-Token', as.csrf).send(body);
 
   it("waits for a booking of any of the firm's resources under way (the write path holds it)", async () => {
-    const holder = await ctx.knex.transaction();
-    await lockResources(holder, [otter]);
-    let answered = false;
-    const closing = close(scheduler, { from: '2026-10-14', to: '2026-10-14', reason: 'Stocktake' }).then(
-      (r) => ((answered = true), r),
+    const { waited, response: closed } = await sentWhileResourcesHeld(ctx.knex, [otter], () =>
+      close(scheduler, { from: '2026-10-14', to: '2026-10-14', reason: 'Stocktake' }),
     );
-    try {
-      await untilWaitingOnLocks(ctx.knex, 1);
-      expect(answered).toBe(false);
-    } finally {
-      await holder.commit();
-    }
-    const closed = await closing;
+    expect(waited).toBe(true);
     expect(closed.status).toBe(201);
     await scheduler
       .delete(`/api/firm/closures/${closed.body.closure.id}`)

@@ -6,11 +6,10 @@ import {
   openBoardStream,
   signIn,
   startTestApp,
-  untilWaitingOnLocks,
+  sentWhileResourcesHeld,
   type Agent,
   type TestContext,
 } from '../helpers/server.ts';
-import { lockResources } from '../../server/services/booking-writes.ts';
 import type { ClashReport, HireReport, UtilisationReport } from '../../shared/reports/types.ts';
 
 /*
@@ -229,22 +228,15 @@ describe('recording and approving a hire period', () => {
     const server = ctx.waterline.app.listen(0, '127.0.0.1');
     await new Promise((r) => server.once('listening', r));
     const board = await openBoardStream(manager, (server.address() as AddressInfo).port);
-    const holder = await ctx.knex.transaction();
     try {
-      await lockResources(holder, [digger]);
-      let answered = false;
-      const change = manager
-        .patch(`/api/hire-periods/${hireId}`)
-        .set('X-CSRF-Token', manager.csrf)
-        .send({ version: 2, dayRatePence: 14500 })
-        .then((r) => ((answered = true), r));
-      try {
-        await untilWaitingOnLocks(ctx.knex, 1);
-        expect(answered).toBe(false);
-      } finally {
-        await holder.commit();
-      }
-      expect((await change).status).toBe(200);
+      const { waited, response } = await sentWhileResourcesHeld(ctx.knex, [digger], () =>
+        manager
+          .patch(`/api/hire-periods/${hireId}`)
+          .set('X-CSRF-Token', manager.csrf)
+          .send({ version: 2, dayRatePence: 14500 }),
+      );
+      expect(waited).toBe(true);
+      expect(response.status).toBe(200);
       // The board reloads (an event naming no booking).
       expect(await board.until((t) => t.includes('data: {"bookingId":""}'))).toContain(
         'event: bookings\ndata: {"bookingId":""}\n\n',
