@@ -36,7 +36,7 @@ export function reportRoutes(
   { knex, now = Date.now, publicUrl, extraWorkingMinutes }: ReportRouteDeps,
 ): void {
   const reports = new ReportsService(knex, now, publicUrl, extraWorkingMinutes);
-  const hires = new HirePeriodsService(knex);
+  const hires = new HirePeriodsService(knex, now);
 
   table
     .get('/api/reports/clashes', 'reports:read', async (req, res) => {

@@ -1,7 +1,9 @@
 import type { Knex } from 'knex';
-import type { CreateHirePeriod, HirePeriodView, UpdateHirePeriod } from '../../shared/schemas/hire.ts';
+import type { AffectedBooking } from '../../shared/schemas/absences.ts';
+import type { CreateHirePeriod, HirePeriodSaved, HirePeriodView, UpdateHirePeriod } from '../../shared/schemas/hire.ts';
 import { Firm, HirePeriod, Resource } from '../models/index.ts';
 import { BadRequestError, ConflictError, NotFoundError, UnprocessableError } from '../errors.ts';
+import { bookingsWithin } from './absences.ts';
 import type { Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyResourceChange } from './board-stream.ts';
@@ -34,7 +36,10 @@ function viewOf(h: VersionedHire): HirePeriodView {
  * from a firm it works with; every change audited; a change based on an old version is refused.
  */
 export class HirePeriodsService {
-  constructor(private readonly knex: Knex) {}
+  constructor(
+    private readonly knex: Knex,
+    private readonly now: () => number = Date.now,
+  ) {}
 
   async create(actor: Actor, input: CreateHirePeriod): Promise<HirePeriodView> {
     return this.knex.transaction(async (trx) => {
@@ -74,8 +79,11 @@ export class HirePeriodsService {
     });
   }
 
-  /** Approve, end, or change dates and prices of one of the firm's hire periods. */
-  async update(actor: Actor, id: string, input: UpdateHirePeriod): Promise<HirePeriodView> {
+  /**
+   * Approve, end, or change dates and prices of one of the firm's hire periods; answers with the
+   * machine's bookings from now on that the new dates leave outside every hire of it.
+   */
+  async update(actor: Actor, id: string, input: UpdateHirePeriod): Promise<HirePeriodSaved> {
     return this.knex.transaction(async (trx) => {
       const hire = scoped(HirePeriod, actor, trx).where('hire_periods.hirer_firm_id', actor.firmId).findById(id);
       const seen = (await hire.clone()) as VersionedHire | undefined;
@@ -115,7 +123,35 @@ export class HirePeriodsService {
       const view = viewOf(after);
       await recordChange(trx, actor, 'hire_period', id, 'update', viewOf(before), view);
       await notifyResourceChange(trx, String(before.resourceId));
-      return view;
+      return { hire: view, affected: await this.leftOutside(trx, actor, before, after) };
     });
+  }
+
+  /**
+   * The machine's bookings from now on (soonest first) inside one of its hires as they were and
+   * inside none now that `before` became `after`: those the change leaves off hire. The test is
+   * the engine's (a booking lies wholly inside one hire), so the board flags exactly these.
+   */
+  private async leftOutside(
+    trx: Knex.Transaction,
+    actor: Actor,
+    before: VersionedHire,
+    after: VersionedHire,
+  ): Promise<AffectedBooking[]> {
+    const machine = String(before.resourceId);
+    const others = (await scoped(HirePeriod, actor, trx)
+      .where('hire_periods.resource_id', machine)
+      .whereNot('hire_periods.id', before.id)) as HirePeriod[];
+    const inside = (hires: HirePeriod[], b: AffectedBooking) =>
+      hires.some(
+        (h) => h.onHireAt.getTime() <= Date.parse(b.startsAt) && Date.parse(b.endsAt) <= h.offHireAt.getTime(),
+      );
+    const [was, is] = [
+      [...others, before],
+      [...others, after],
+    ];
+    return (await bookingsWithin(trx, actor, [machine], new Date(this.now()))).filter(
+      (b) => inside(was, b) && !inside(is, b),
+    );
   }
 }

@@ -98,6 +98,7 @@ export function hireSuggestions(
     out.push({
       kind: 'shorten_start',
       savesPence: lead * dayRatePence,
+      change: { onHireDate: paid[lead] as string },
       label: `On-hire ${plural(lead, 'day')} later (first paid day ${dayWords(paid[lead] as string)}): saves ${formatPence(lead * dayRatePence)}`,
     });
   }
@@ -112,6 +113,7 @@ export function hireSuggestions(
     out.push({
       kind: 'shorten_end',
       savesPence: tail * dayRatePence,
+      change: { offHireDate: paid[paid.length - 1 - tail] as string },
       label: `Off-hire ${plural(tail, 'day')} earlier (last paid day ${dayWords(paid[paid.length - 1 - tail] as string)}): saves ${formatPence(tail * dayRatePence)}`,
     });
   }

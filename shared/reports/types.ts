@@ -94,6 +94,11 @@ export interface HireSuggestion {
   /** e.g. "Off-hire 2 days earlier (last paid day Wed 17 Jun): saves £290.00". */
   label: string;
   savesPence: number;
+  /**
+   * The hire's new first or last day (YYYY-MM-DD, the firm's calendar) the suggestion comes to,
+   * for the form that changes the hire's dates; none where the change is not one of dates.
+   */
+  change?: { onHireDate?: string; offHireDate?: string };
 }
 
 export interface HirePeriodRow {

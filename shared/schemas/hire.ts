@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { Id, NAMES_A_CHANGE, WorkInstant } from './common.ts';
+import { Id, NAMES_A_CHANGE, requiredAs, WorkInstant } from './common.ts';
+import type { AffectedBooking } from './absences.ts';
 
 const pence = (what: string) =>
   z
@@ -30,7 +31,7 @@ export type CreateHirePeriod = z.infer<typeof CreateHirePeriod>;
 /** Approve, end or change a hire period; `version` is the one the change was based on. */
 export const UpdateHirePeriod = z
   .object({
-    version: z.number().int().min(1),
+    version: z.number(requiredAs('the version of the hire you loaded')).int().min(1),
     status: z.enum(['approved', 'ended']).optional(),
     onHireAt: WorkInstant.optional(),
     offHireAt: WorkInstant.optional(),
@@ -62,4 +63,13 @@ export interface HirePeriodView {
   approvedBy: string | null;
   version: number;
   updatedAt: string;
+}
+
+/**
+ * What PATCH /api/hire-periods/:id answers: the hire as changed, and the machine's bookings from
+ * now on that its new dates leave outside every hire of the machine (the board flags them).
+ */
+export interface HirePeriodSaved {
+  hire: HirePeriodView;
+  affected: AffectedBooking[];
 }

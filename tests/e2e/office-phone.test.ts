@@ -298,3 +298,53 @@ describe('office pages on a phone', () => {
     }
   });
 });
+
+describe("a hire's dates, changed on a phone and put back", () => {
+  it('names the booking an earlier off-hire leaves off hire, and Undo puts the exact times back', async () => {
+    // The reports page spans the weeks from the browser's today: the scenario's Monday 1 June 2026.
+    const context = await browser.newContext({
+      viewport: { width: 390, height: 844 },
+      isMobile: true,
+      hasTouch: true,
+      timezoneId: 'Europe/London',
+    });
+    await context.clock.setFixedTime(new Date('2026-06-01T08:00:00+01:00'));
+    const phone = await context.newPage();
+    try {
+      await signInThroughPage(phone, app.url, account('manager').email);
+      const machine = await app.ctx.knex('resources').where({ name: '3 t excavator (hired)' }).first('id');
+      const stored = () =>
+        app.ctx
+          .knex('hire_periods')
+          .where({ resource_id: machine.id })
+          .orderBy('id') // the demo's hire (a test above records another)
+          .first('on_hire_at', 'off_hire_at', 'version')
+          .then((h) => ({ on: h.onHireAt.toISOString(), off: h.offHireAt.toISOString(), version: h.version }));
+      const before = await stored();
+      await phone.goto(`${app.url}/reports`);
+      await phone.getByRole('button', { name: /^Change the dates of the hire of 3 t excavator \(hired\)/ }).click();
+      const dialog = phone.getByRole('dialog', { name: 'Change the hire of 3 t excavator (hired)' });
+      const onHire = await dialog.getByLabel('On hire from').inputValue();
+      // Off hire after its first day: the demo's dig on that machine later in the hire is left off hire.
+      await dialog.getByLabel('Off hire after').fill(onHire);
+      await dialog.getByRole('button', { name: 'Save the dates' }).click();
+      const status = phone.locator('.hire-changed');
+      await expect
+        .poll(() => status.textContent(), { timeout: 10_000 })
+        .toMatch(
+          /^\d+ bookings? of 3 t excavator \(hired\) now falls? outside its hire and (is|are) flagged on the board/,
+        );
+      expect(await status.getByRole('listitem').first().textContent()).toMatch(/^TW-\d{4} · Excavate pit · /);
+      // Only the off-hire was sent: the on-hire keeps its exact time; the off-hire is 23:59 BST that day.
+      expect(await stored()).toEqual({ on: before.on, off: `${onHire}T22:59:00.000Z`, version: before.version + 1 });
+      expect(await dialog.count()).toBe(0);
+      await phone.screenshot({ path: 'tests/e2e/artifacts/hire-dates-phone.png' });
+
+      await status.getByRole('button', { name: /^Undo: put back / }).click();
+      await expect.poll(() => status.count(), { timeout: 10_000 }).toBe(0);
+      expect(await stored()).toEqual({ ...before, version: before.version + 2 });
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+});

@@ -214,7 +214,14 @@ describe('recording and approving a hire period', () => {
       .set('X-CSRF-Token', manager.csrf)
       .send({ version: 1, status: 'approved' })
       .expect(200);
-    expect(ok.body.version).toBe(2);
+    expect(ok.body.hire.version).toBe(2);
+    // A version sent as text is told so, not that it is missing.
+    const text = await manager
+      .patch(`/api/hire-periods/${hireId}`)
+      .set('X-CSRF-Token', manager.csrf)
+      .send({ version: '2', dayRatePence: 15000 })
+      .expect(400);
+    expect(text.body.errors).toEqual([{ field: 'version', message: 'must be a number' }]);
     expect(
       await ctx
         .knex('audit_log')
@@ -498,5 +505,54 @@ describe('who may read the reports', () => {
       .get(`/api/reports/hire?from=${encodeURIComponent(WEEK.to)}&to=${encodeURIComponent(WEEK.from)}`)
       .expect(400);
     expect(bad.body.errors).toEqual([{ field: 'query.to', message: 'must be after from' }]);
+  });
+});
+
+describe("changing a hire's dates", () => {
+  const change = async (body: Record<string, unknown>) =>
+    manager.patch(`/api/hire-periods/${hireId}`).set('X-CSRF-Token', manager.csrf).send(body).expect(200);
+  const version = async () => Number((await ctx.knex('hire_periods').where({ id: hireId }).first('version')).version);
+  const named = (res: { body: { affected: { jobReference: string; stageName: string; startsAt: string }[] } }) =>
+    res.body.affected.map((b) => [b.jobReference, b.stageName, b.startsAt]);
+
+  it('names the bookings an earlier off-hire or a later on-hire leaves off hire, and none when put back', async () => {
+    // Off-hire after Tue 23 Jun (23:59 BST): the digger's Wed 24 booking is left off hire. Its Mon 29
+    // booking was off hire already, so it is not named again.
+    const shorter = await change({ version: await version(), offHireAt: '2026-06-23T22:59:00Z' });
+    expect(shorter.body.hire.offHireAt).toBe('2026-06-23T22:59:00.000Z');
+    expect(named(shorter)).toEqual([['TW-9001', 'Dig (day 2)', '2026-06-24T07:00:00.000Z']]);
+    // The board agrees: the Wed 24 booking is now flagged outside the hire.
+    const report: ClashReport = (await manager.get(`/api/reports/clashes?${qs(WEEK)}`).expect(200)).body;
+    expect(report.rows.filter((r) => r.kind === 'hire').map((r) => r.date)).toEqual(['2026-06-24']);
+    // Put back: nothing is left off hire.
+    const back = await change({ version: await version(), offHireAt: '2026-06-26T17:00:00Z' });
+    expect(back.body.affected).toEqual([]);
+    // On hire from Wed 24 Jun 00:00 BST: the Tue 23 booking is left off hire.
+    const later = await change({ version: await version(), onHireAt: '2026-06-23T23:00:00Z' });
+    expect(named(later)).toEqual([['TW-9001', 'Dig (day 1)', '2026-06-23T07:00:00.000Z']]);
+    expect((await change({ version: await version(), onHireAt: '2026-06-22T06:00:00Z' })).body.affected).toEqual([]);
+  });
+
+  it('does not name a booking another hire of the machine still covers', async () => {
+    const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
+    // A second hire of the digger on Wed 24 Jun alone.
+    const other = await manager
+      .post('/api/hire-periods')
+      .set('X-CSRF-Token', manager.csrf)
+      .send({
+        supplierFirmId: ridgeway,
+        resourceId: digger,
+        onHireAt: '2026-06-23T23:00:00Z',
+        offHireAt: '2026-06-24T22:59:00Z',
+        dayRatePence: 14500,
+        approve: true,
+      })
+      .expect(201);
+    onTestFinished(async () => {
+      await ctx.knex('hire_periods').where({ id: other.body.id }).del();
+    });
+    const shorter = await change({ version: await version(), offHireAt: '2026-06-23T22:59:00Z' });
+    expect(shorter.body.affected).toEqual([]);
+    await change({ version: await version(), offHireAt: '2026-06-26T17:00:00Z' });
   });
 });

@@ -36,6 +36,8 @@ describe('hire suggestions', () => {
       'On-hire 1 day later (first paid day Tue 23 Jun): saves £145.00',
       'Off-hire 2 days earlier (last paid day Wed 24 Jun): saves £290.00',
     ]);
+    // Each names the day the hire's dates form is filled with: Tue 23 the first, Wed 24 the last.
+    expect(s.map((x) => x.change)).toEqual([{ onHireDate: '2026-06-23' }, { offHireDate: '2026-06-24' }]);
   });
   it('offers to cancel a hire with nothing booked, delivery and collection included', () => {
     // 5 × £145.00 + £60.00 + £60.00 = £845.00
