@@ -4,7 +4,7 @@ import type { RouteTable } from './table.ts';
 import { parse } from '../middleware/validate.ts';
 import { IdParams } from '../../shared/schemas/common.ts';
 import { ReportQuery } from '../../shared/schemas/reports.ts';
-import { CreateHirePeriod, UpdateHirePeriod } from '../../shared/schemas/hire.ts';
+import { CancelHirePeriod, CreateHirePeriod, UpdateHirePeriod } from '../../shared/schemas/hire.ts';
 import { ReportsService, type ReportSpan } from '../services/reports.ts';
 import { HirePeriodsService } from '../services/hire-periods.ts';
 import { UTF8_BOM } from '../../shared/reports/csv.ts';
@@ -74,5 +74,9 @@ export function reportRoutes(
     .patch('/api/hire-periods/:id', 'hire:approve', async (req, res) => {
       const { id } = parse(IdParams, req.params, 'params');
       res.json(await hires.update(req.actor!, id, parse(UpdateHirePeriod, req.body)));
+    })
+    .delete('/api/hire-periods/:id', 'hire:approve', async (req, res) => {
+      const { id } = parse(IdParams, req.params, 'params');
+      res.json(await hires.cancel(req.actor!, id, parse(CancelHirePeriod, req.query, 'query').version));
     });
 }

@@ -1,6 +1,12 @@
 import type { Knex } from 'knex';
 import type { AffectedBooking } from '../../shared/schemas/absences.ts';
-import type { CreateHirePeriod, HirePeriodSaved, HirePeriodView, UpdateHirePeriod } from '../../shared/schemas/hire.ts';
+import type {
+  CreateHirePeriod,
+  HirePeriodCancelled,
+  HirePeriodSaved,
+  HirePeriodView,
+  UpdateHirePeriod,
+} from '../../shared/schemas/hire.ts';
 import { Firm, HirePeriod, Resource } from '../models/index.ts';
 import { BadRequestError, ConflictError, NotFoundError, UnprocessableError } from '../errors.ts';
 import { bookingsWithin } from './absences.ts';
@@ -85,19 +91,7 @@ export class HirePeriodsService {
    */
   async update(actor: Actor, id: string, input: UpdateHirePeriod): Promise<HirePeriodSaved> {
     return this.knex.transaction(async (trx) => {
-      const hire = scoped(HirePeriod, actor, trx).where('hire_periods.hirer_firm_id', actor.firmId).findById(id);
-      const seen = (await hire.clone()) as VersionedHire | undefined;
-      if (!seen) throw new NotFoundError('hire period');
-      // The write path's lock on the machine, then the row: a booking of it under way is waited for.
-      await lockResources(trx, [String(seen.resourceId)]);
-      const before = (await hire.forUpdate()) as VersionedHire | undefined;
-      if (!before) throw new NotFoundError('hire period');
-      if (before.version !== input.version) {
-        throw new ConflictError('Someone else changed this hire since you loaded it.', {
-          code: 'stale-version',
-          current: viewOf(before),
-        });
-      }
+      const before = await this.held(trx, actor, id, input.version);
       const onHireAt = input.onHireAt ? new Date(input.onHireAt) : before.onHireAt;
       const offHireAt = input.offHireAt ? new Date(input.offHireAt) : before.offHireAt;
       if (offHireAt.getTime() <= onHireAt.getTime()) {
@@ -128,15 +122,58 @@ export class HirePeriodsService {
   }
 
   /**
+   * Cancels a hire that has not started (the manager's "cancel it" when nothing is booked on it);
+   * answers with the machine's bookings from now on that it leaves off hire. One that has started
+   * is kept, for what it cost: its off-hire is changed instead.
+   */
+  async cancel(actor: Actor, id: string, version: number): Promise<HirePeriodCancelled> {
+    return this.knex.transaction(async (trx) => {
+      const hire = await this.held(trx, actor, id, version);
+      if (hire.onHireAt.getTime() <= this.now()) {
+        throw new ConflictError('This hire has started, so it stays on the books: change its off-hire instead.', {
+          code: 'hire-started',
+          current: viewOf(hire),
+        });
+      }
+      await HirePeriod.query(trx).deleteById(id);
+      await recordChange(trx, actor, 'hire_period', id, 'delete', viewOf(hire), null);
+      await notifyResourceChange(trx, String(hire.resourceId));
+      return { affected: await this.leftOutside(trx, actor, hire, null) };
+    });
+  }
+
+  /**
+   * One of the firm's hire periods, locked for a change from `version`: the write path's lock on
+   * the machine first (a booking of it under way is waited for), then the row. Another firm's hire
+   * is not found; a version other than the stored one is refused with the hire as it stands.
+   */
+  private async held(trx: Knex.Transaction, actor: Actor, id: string, version: number): Promise<VersionedHire> {
+    const hire = scoped(HirePeriod, actor, trx).where('hire_periods.hirer_firm_id', actor.firmId).findById(id);
+    const seen = (await hire.clone()) as VersionedHire | undefined;
+    if (!seen) throw new NotFoundError('hire period');
+    await lockResources(trx, [String(seen.resourceId)]);
+    const held = (await hire.forUpdate()) as VersionedHire | undefined;
+    if (!held) throw new NotFoundError('hire period');
+    if (held.version !== version) {
+      throw new ConflictError('Someone else changed this hire since you loaded it.', {
+        code: 'stale-version',
+        current: viewOf(held),
+      });
+    }
+    return held;
+  }
+
+  /**
    * The machine's bookings from now on (soonest first) inside one of its hires as they were and
-   * inside none now that `before` became `after`: those the change leaves off hire. The test is
-   * the engine's (a booking lies wholly inside one hire), so the board flags exactly these.
+   * inside none now that `before` became `after` (or went, when null): those the change leaves off
+   * hire. The test is the engine's (a booking lies wholly inside one hire), so the board flags
+   * exactly these.
    */
   private async leftOutside(
     trx: Knex.Transaction,
     actor: Actor,
     before: VersionedHire,
-    after: VersionedHire,
+    after: VersionedHire | null,
   ): Promise<AffectedBooking[]> {
     const machine = String(before.resourceId);
     const others = (await scoped(HirePeriod, actor, trx)
@@ -146,10 +183,7 @@ export class HirePeriodsService {
       hires.some(
         (h) => h.onHireAt.getTime() <= Date.parse(b.startsAt) && Date.parse(b.endsAt) <= h.offHireAt.getTime(),
       );
-    const [was, is] = [
-      [...others, before],
-      [...others, after],
-    ];
+    const [was, is] = [[...others, before], after === null ? others : [...others, after]];
     return (await bookingsWithin(trx, actor, [machine], new Date(this.now()))).filter(
       (b) => inside(was, b) && !inside(is, b),
     );

@@ -82,10 +82,13 @@ export function hireSuggestions(
     if (future.length === 0) return [];
     const notStarted = (paid[0] as string) >= today;
     const saves = future.length * dayRatePence + (notStarted ? charges.deliveryPence + charges.collectionPence : 0);
+    const lastGone = paid.filter((d) => d < today).at(-1);
     return [
       {
         kind: 'end',
         savesPence: saves,
+        // Not started: the hire can go; started: off-hire after the last day already paid.
+        ...(notStarted ? { cancel: true } : lastGone === undefined ? {} : { change: { offHireDate: lastGone } }),
         label: notStarted
           ? `Nothing is booked on this hire: cancel it: saves ${formatPence(saves)}`
           : `Nothing is booked on this hire: off-hire it now: saves ${formatPence(saves)}`,
@@ -258,7 +261,10 @@ function addMergeSuggestions(ctx: ReportContext, rows: HirePeriodRow[]): void {
         b.suggestions.push({
           kind: 'merge',
           savesPence: saves,
-          label: `Keep it on hire through the ${plural(gap, 'working day')} since the hire ending ${dayWords(a.offHireDate)} instead of collecting and delivering again: saves ${formatPence(saves)}`,
+          label:
+            gap === 0
+              ? `Keep it on hire from the hire ending ${dayWords(a.offHireDate)}, with no working day between, instead of collecting and delivering again: saves ${formatPence(saves)}`
+              : `Keep it on hire through the ${plural(gap, 'working day')} since the hire ending ${dayWords(a.offHireDate)} instead of collecting and delivering again: saves ${formatPence(saves)}`,
         });
       }
     }

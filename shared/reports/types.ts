@@ -99,6 +99,8 @@ export interface HireSuggestion {
    * for the form that changes the hire's dates; none where the change is not one of dates.
    */
   change?: { onHireDate?: string; offHireDate?: string };
+  /** The hire has not started and nothing is booked on it: cancelling it is the suggestion. */
+  cancel?: true;
 }
 
 export interface HirePeriodRow {

@@ -48,6 +48,19 @@ export const UpdateHirePeriod = z
   );
 export type UpdateHirePeriod = z.infer<typeof UpdateHirePeriod>;
 
+/** DELETE /api/hire-periods/:id?version=N: cancels a hire not yet started, from the version the page showed. */
+export const CancelHirePeriod = z.object({
+  version: z
+    .string(requiredAs('the version of the hire you loaded'))
+    .regex(/^[1-9]\d{0,8}$/, 'must be a whole number from 1')
+    .transform(Number),
+});
+
+/** What cancelling a hire answers: the machine's bookings from now on it leaves off hire. */
+export interface HirePeriodCancelled {
+  affected: AffectedBooking[];
+}
+
 /** A hire period as the API returns it. */
 export interface HirePeriodView {
   id: string;

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
-import { account } from '../helpers/server.ts';
+import { account, idOf } from '../helpers/server.ts';
 
 /*
  * The office pages on a phone (390 × 844 CSS pixels, a common handset size: common practice, no
@@ -300,8 +300,8 @@ describe('office pages on a phone', () => {
 });
 
 describe("a hire's dates, changed on a phone and put back", () => {
-  it('names the booking an earlier off-hire leaves off hire, and Undo puts the exact times back', async () => {
-    // The reports page spans the weeks from the browser's today: the scenario's Monday 1 June 2026.
+  /** A phone signed in as the manager on the scenario's Monday 1 June 2026 (the reports page spans the weeks from the browser's today). */
+  async function managerPhone() {
     const context = await browser.newContext({
       viewport: { width: 390, height: 844 },
       isMobile: true,
@@ -310,9 +310,16 @@ describe("a hire's dates, changed on a phone and put back", () => {
     });
     await context.clock.setFixedTime(new Date('2026-06-01T08:00:00+01:00'));
     const phone = await context.newPage();
+    await signInThroughPage(phone, app.url, account('manager').email);
+    return { context, phone };
+  }
+  const machineId = async () =>
+    String((await app.ctx.knex('resources').where({ name: '3 t excavator (hired)' }).first('id')).id);
+
+  it('names the booking an earlier off-hire leaves off hire, and Undo puts the exact times back', async () => {
+    const { context, phone } = await managerPhone();
     try {
-      await signInThroughPage(phone, app.url, account('manager').email);
-      const machine = await app.ctx.knex('resources').where({ name: '3 t excavator (hired)' }).first('id');
+      const machine = { id: await machineId() };
       const stored = () =>
         app.ctx
           .knex('hire_periods')
@@ -338,11 +345,59 @@ describe("a hire's dates, changed on a phone and put back", () => {
       // Only the off-hire was sent: the on-hire keeps its exact time; the off-hire is 23:59 BST that day.
       expect(await stored()).toEqual({ on: before.on, off: `${onHire}T22:59:00.000Z`, version: before.version + 1 });
       expect(await dialog.count()).toBe(0);
+      // It has started (before Mon 1 Jun): it can be changed, not cancelled.
+      expect(await phone.getByRole('button', { name: 'Cancel the hire…' }).count()).toBe(0);
       await phone.screenshot({ path: 'tests/e2e/artifacts/hire-dates-phone.png' });
 
       await status.getByRole('button', { name: /^Undo: put back / }).click();
       await expect.poll(() => status.count(), { timeout: 10_000 }).toBe(0);
       expect(await stored()).toEqual({ ...before, version: before.version + 2 });
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+
+  it('cancels a hire not yet started after asking, and Undo records it again', async () => {
+    // Mon 15 – Wed 17 Jun, not started on Mon 1 Jun.
+    const [{ id }] = await app.ctx
+      .knex('hire_periods')
+      .insert({
+        resource_id: await machineId(),
+        hirer_firm_id: await idOf(app.ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }),
+        supplier_firm_id: await idOf(app.ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' }),
+        on_hire_at: '2026-06-14T23:00:00Z',
+        off_hire_at: '2026-06-17T22:59:00Z',
+        day_rate_pence: 9000,
+        status: 'approved',
+      })
+      .returning('id');
+    const { context, phone } = await managerPhone();
+    try {
+      await phone.goto(`${app.url}/reports`);
+      await phone
+        .getByRole('button', { name: 'Change the dates of the hire of 3 t excavator (hired) from Mon 15 Jun' })
+        .click();
+      await phone.getByRole('button', { name: 'Cancel the hire…' }).click();
+      const asked = phone.getByRole('dialog', { name: 'Cancel the hire of 3 t excavator (hired)?' });
+      // Kept: nothing changes.
+      await asked.getByRole('button', { name: 'Keep it' }).click();
+      await asked.waitFor({ state: 'detached' });
+      expect(await app.ctx.knex('hire_periods').where({ id }).count('* as n').first()).toEqual({ n: '1' });
+      await phone.getByRole('button', { name: 'Cancel the hire…' }).click();
+      await asked.getByRole('button', { name: 'Cancel the hire', exact: true }).click();
+      const undo = phone.getByRole('button', { name: 'Undo: record the hire Mon 15 Jun – Wed 17 Jun again' });
+      await undo.waitFor({ timeout: 10_000 });
+      expect(await app.ctx.knex('hire_periods').where({ id }).count('* as n').first()).toEqual({ n: '0' });
+      await asked.waitFor({ state: 'detached' });
+      await phone.screenshot({ path: 'tests/e2e/artifacts/hire-cancelled-phone.png' });
+      await undo.click();
+      await undo.waitFor({ state: 'detached', timeout: 10_000 });
+      expect(
+        await app.ctx
+          .knex('hire_periods')
+          .where({ on_hire_at: '2026-06-14T23:00:00Z', off_hire_at: '2026-06-17T22:59:00Z' })
+          .select('day_rate_pence', 'status'),
+      ).toEqual([{ dayRatePence: 9000, status: 'approved' }]);
     } finally {
       await context.close();
     }

@@ -387,6 +387,9 @@ function validBody(
       return { body: { resourceId: ids.person, version: 1 } };
     case 'patch /api/hire-periods/:id':
       return { body: { version: 1, status: 'ended' } };
+    case 'delete /api/hire-periods/:id':
+      // An old version: refused as stale (409), so the hire stays for later passes.
+      return { query: { version: '99' } };
     case 'put /api/resources/:id/members':
       return { body: { personIds: [], previousPersonIds: [] } };
     case 'put /api/firm/members/:id':

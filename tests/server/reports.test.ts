@@ -333,8 +333,10 @@ describe('the hire report', () => {
     // gap (Mon 29), delivered for £100.00: collecting and delivering again costs more than the day.
     const overlapping = await hire('2026-06-25T06:00:00Z', '2026-06-26T17:00:00Z', 6000);
     const later = await hire('2026-06-30T06:00:00Z', '2026-06-30T17:00:00Z', 10000);
+    // Wed 1 Jul, the next day after that one: no working day between.
+    const next = await hire('2026-07-01T06:00:00Z', '2026-07-01T17:00:00Z', 10000);
     onTestFinished(async () => {
-      await ctx.knex('hire_periods').whereIn('id', [overlapping, later]).del();
+      await ctx.knex('hire_periods').whereIn('id', [overlapping, later, next]).del();
     });
     const report: HireReport = (await manager.get(`/api/reports/hire?${qs(JUNE)}`).expect(200)).body;
     const labels = (id: string) => report.periods.find((x) => x.id === id)!.suggestions.map((s) => s.label);
@@ -344,6 +346,12 @@ describe('the hire report', () => {
     expect(labels(later)).toContain(
       'Keep it on hire through the 1 working day since the hire ending Fri 26 Jun instead of collecting and delivering again: saves £15.00',
     );
+    // £60.00 collection + £100.00 delivery − 0 days = £160.00
+    expect(labels(next)).toEqual([
+      // Nothing is booked on it: 1 × £145.00 + £100.00 delivery + £60.00 collection = £305.00
+      'Nothing is booked on this hire: cancel it: saves £305.00',
+      'Keep it on hire from the hire ending Tue 30 Jun, with no working day between, instead of collecting and delivering again: saves £160.00',
+    ]);
   });
 });
 
@@ -533,26 +541,52 @@ describe("changing a hire's dates", () => {
     expect((await change({ version: await version(), onHireAt: '2026-06-22T06:00:00Z' })).body.affected).toEqual([]);
   });
 
-  it('does not name a booking another hire of the machine still covers', async () => {
+  it('does not name a booking another hire of the machine still covers, until that hire is cancelled', async () => {
     const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
-    // A second hire of the digger on Wed 24 Jun alone.
-    const other = await manager
-      .post('/api/hire-periods')
-      .set('X-CSRF-Token', manager.csrf)
-      .send({
-        supplierFirmId: ridgeway,
-        resourceId: digger,
-        onHireAt: '2026-06-23T23:00:00Z',
-        offHireAt: '2026-06-24T22:59:00Z',
-        dayRatePence: 14500,
-        approve: true,
-      })
-      .expect(201);
+    const hire = async (onHireAt: string, offHireAt: string) =>
+      String(
+        (
+          await manager
+            .post('/api/hire-periods')
+            .set('X-CSRF-Token', manager.csrf)
+            .send({ supplierFirmId: ridgeway, resourceId: digger, onHireAt, offHireAt, dayRatePence: 14500 })
+            .expect(201)
+        ).body.id,
+      );
+    // A second hire of the digger on Wed 24 Jun alone, and one that started before today (Mon 1 Jun).
+    const other = await hire('2026-06-23T23:00:00Z', '2026-06-24T22:59:00Z');
+    const started = await hire('2026-05-25T07:00:00Z', '2026-06-05T16:00:00Z');
     onTestFinished(async () => {
-      await ctx.knex('hire_periods').where({ id: other.body.id }).del();
+      await ctx.knex('hire_periods').whereIn('id', [other, started]).del();
     });
     const shorter = await change({ version: await version(), offHireAt: '2026-06-23T22:59:00Z' });
     expect(shorter.body.affected).toEqual([]);
+
+    const cancel = (id: string, query: string) =>
+      manager.delete(`/api/hire-periods/${id}${query}`).set('X-CSRF-Token', manager.csrf);
+    expect((await cancel(other, '').expect(400)).body.errors).toEqual([
+      { field: 'query.version', message: 'is required: the version of the hire you loaded' },
+    ]);
+    expect((await cancel(other, '?version=1e3').expect(400)).body.errors).toEqual([
+      { field: 'query.version', message: 'must be a whole number from 1' },
+    ]);
+    expect((await cancel(other, '?version=2').expect(409)).body.code).toBe('stale-version');
+    const started409 = await cancel(started, '?version=1').expect(409);
+    expect(started409.body).toMatchObject({
+      code: 'hire-started',
+      detail: 'This hire has started, so it stays on the books: change its off-hire instead.',
+    });
+    // Cancelled: nothing covers the Wed 24 booking any more.
+    const cancelled = await cancel(other, '?version=1').expect(200);
+    expect(named(cancelled)).toEqual([['TW-9001', 'Dig (day 2)', '2026-06-24T07:00:00.000Z']]);
+    expect(await ctx.knex('hire_periods').whereIn('id', [other, started]).pluck('id')).toEqual([started]);
+    expect(
+      await ctx
+        .knex('audit_log')
+        .where({ entity: 'hire_period', entity_id: other, action: 'delete' })
+        .count('* as n')
+        .first(),
+    ).toEqual({ n: '1' });
     await change({ version: await version(), offHireAt: '2026-06-26T17:00:00Z' });
   });
 });

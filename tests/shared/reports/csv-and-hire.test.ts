@@ -42,7 +42,22 @@ describe('hire suggestions', () => {
   it('offers to cancel a hire with nothing booked, delivery and collection included', () => {
     // 5 × £145.00 + £60.00 + £60.00 = £845.00
     expect(hireSuggestions(week, new Set(week), 14500, charges, '2026-06-01')).toEqual([
-      { kind: 'end', savesPence: 84500, label: 'Nothing is booked on this hire: cancel it: saves £845.00' },
+      {
+        kind: 'end',
+        savesPence: 84500,
+        cancel: true,
+        label: 'Nothing is booked on this hire: cancel it: saves £845.00',
+      },
+    ]);
+    // Started on Mon 22 (today is Wed 24): Wed, Thu and Fri can still be saved, 3 × £145.00 = £435.00,
+    // by an off-hire after Tue 23, the last day already paid.
+    expect(hireSuggestions(week, new Set(week), 14500, charges, '2026-06-24')).toEqual([
+      {
+        kind: 'end',
+        savesPence: 43500,
+        change: { offHireDate: '2026-06-23' },
+        label: 'Nothing is booked on this hire: off-hire it now: saves £435.00',
+      },
     ]);
   });
   it('offers to off-hire over a middle gap only when it costs more than collecting and delivering again', () => {
