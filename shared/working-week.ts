@@ -82,3 +82,44 @@ export function weekHoursOf(stored: StoredWeeklyHours): WeekHours {
 export function engineWeekly(stored: StoredWeeklyHours): WeeklyHours {
   return Array.from({ length: 7 }, (_, d) => (stored[String(d)] ?? []).map(([a, b]) => [a, b] as const));
 }
+
+const SHORT_DAY: Record<Weekday, string> = {
+  mon: 'Mon',
+  tue: 'Tue',
+  wed: 'Wed',
+  thu: 'Thu',
+  fri: 'Fri',
+  sat: 'Sat',
+  sun: 'Sun',
+};
+
+/**
+ * A week's hours in a line, as people say them: days in a row with the same hours run together
+ * (Monday first), a finish at 24:00 is "midnight", and a day with two spans says both.
+ *
+ * @example
+ * weekWords({ '1': [[480, 1020]], '2': [[480, 1020]], '3': [[480, 1020]], '4': [[480, 1020]], '5': [[480, 1020]], '6': [[480, 720]] })
+ * // 'Mon–Fri 08:00–17:00; Sat 08:00–12:00'
+ */
+export function weekWords(stored: StoredWeeklyHours): string {
+  const week = weekHoursOf(stored);
+  const spansOf = (d: Weekday) => week[d].map((s) => `${s.from}–${s.to === '24:00' ? 'midnight' : s.to}`).join(' and ');
+  const runs: { first: Weekday; last: Weekday; hours: string }[] = [];
+  for (const d of WEEKDAYS) {
+    const hours = spansOf(d);
+    const last = runs.at(-1);
+    if (hours === '') continue;
+    if (last && last.hours === hours && WEEKDAYS.indexOf(last.last) === WEEKDAYS.indexOf(d) - 1) last.last = d;
+    else runs.push({ first: d, last: d, hours });
+  }
+  if (runs.length === 0) return 'No working days';
+  return runs
+    .map((r) => {
+      const days =
+        r.first === r.last
+          ? SHORT_DAY[r.first]
+          : `${SHORT_DAY[r.first]}${WEEKDAYS.indexOf(r.last) - WEEKDAYS.indexOf(r.first) === 1 ? ', ' : '–'}${SHORT_DAY[r.last]}`;
+      return `${days} ${r.hours}`;
+    })
+    .join('; ');
+}

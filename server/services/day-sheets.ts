@@ -1,11 +1,13 @@
 import type { Knex } from 'knex';
 import { cautionsFor } from '../../shared/cautions.ts';
 import type { DaySheet, DaySheetList } from '../../shared/schemas/day-sheets.ts';
-import type { MyWorkItem, MyWorkList, MyWorkQuery } from '../../shared/schemas/my-work.ts';
+import type { MyWorkHours, MyWorkItem, MyWorkList, MyWorkQuery } from '../../shared/schemas/my-work.ts';
+import { weekWords, type StoredWeeklyHours } from '../../shared/working-week.ts';
 import { PROGRESS_ACTIONS, type BookingState, type ProgressAction } from '../../shared/schemas/bookings.ts';
 import { actionsFor } from '../../shared/booking-states.ts';
 import { addDays, endOfLocalDay, localDateOf, startOfLocalDay, todayIn } from '../../shared/local-dates.ts';
 import { Booking, Firm } from '../models/index.ts';
+import { ownResourceIds } from '../models/base.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { AbsencesService } from './absences.ts';
@@ -239,19 +241,47 @@ export class DaySheetsService {
       : query.from
         ? new Date(from.getTime() + query.days * DAY_MS)
         : new Date(startOfLocalDay(addDays(today, query.days), timeZone));
-    const [visits, away] = await Promise.all([
+    const [visits, away, hours] = await Promise.all([
       this.visits(actor, from, to),
       new AbsencesService(this.knex).ownAwayDuring(actor, from, to, timeZone),
+      this.ownHours(actor),
     ]);
     const dayOf = (iso: string) => localDateOf(Date.parse(iso), timeZone);
     return {
       today,
       timeZone,
       away,
+      hours,
       items: visits.map(({ ownResource, ...v }) => {
         const days = { first: dayOf(v.startsAt), last: dayOf(new Date(Date.parse(v.endsAt) - 1).toISOString()) };
         return { ...v, day: days.first, actions: progressActions(v.state, ownResource, days, today) };
       }),
     };
+  }
+
+  /**
+   * The weeks the reader's own rows work to (their person row and the crews they are in, on the
+   * books): a row with no week of its own works to the firm's standard week, its first calendar.
+   */
+  private async ownHours(actor: Actor): Promise<MyWorkHours[]> {
+    const standard = this.knex.raw('(SELECT min(s.id) FROM calendars s WHERE s.firm_id = r.firm_id)');
+    const rows = (await this.knex('resources as r')
+      .whereIn('r.id', ownResourceIds(this.knex, actor))
+      .where({ 'r.active': true, 'r.firm_id': actor.firmId })
+      .join('calendars as c', 'c.id', this.knex.raw('coalesce(r.calendar_id, ?)', [standard]))
+      .orderBy(['c.id', 'r.name'])
+      .select('r.name', 'c.id as calendar_id', 'c.name as week', 'c.weekly_hours')) as {
+      name: string;
+      calendarId: string;
+      week: string;
+      weeklyHours: StoredWeeklyHours;
+    }[];
+    const byWeek = new Map<string, MyWorkHours>();
+    for (const r of rows) {
+      const line = byWeek.get(String(r.calendarId));
+      if (line) line.resourceNames.push(r.name);
+      else byWeek.set(String(r.calendarId), { resourceNames: [r.name], week: r.week, words: weekWords(r.weeklyHours) });
+    }
+    return [...byWeek.values()];
   }
 }

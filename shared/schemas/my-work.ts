@@ -59,6 +59,16 @@ export interface MyWorkAway {
   reason: string;
 }
 
+/**
+ * The hours the reader works to: their own row and each crew they are in, grouped by working week
+ * (names in order), the week's name, and its days and hours in a line ("Mon–Fri 08:00–17:00").
+ */
+export interface MyWorkHours {
+  resourceNames: string[];
+  week: string;
+  words: string;
+}
+
 export interface MyWorkList {
   /** Today in the firm's zone (YYYY-MM-DD), by the server's clock. */
   today: string;
@@ -66,4 +76,6 @@ export interface MyWorkList {
   items: MyWorkItem[];
   /** The reader's time away and the firm's closed days in the range, first day first. */
   away: MyWorkAway[];
+  /** The weeks the reader works to (one line each; most readers have one). */
+  hours: MyWorkHours[];
 }

@@ -49,6 +49,7 @@ describe('the day list', () => {
   it('puts today first, counts work still running from yesterday as today, and names the days', () => {
     const list: MyWorkList = {
       away: [],
+      hours: [],
       today: '2026-06-01',
       timeZone: 'Europe/London',
       items: [
@@ -68,6 +69,7 @@ describe('the day list', () => {
 
   it("puts the reader's time away on each day it covers, in words, with the time where it is part of a day", () => {
     const list: MyWorkList = {
+      hours: [],
       away: [
         {
           resourceName: 'Crew Heron',
@@ -215,6 +217,7 @@ describe('hours of work that runs over a night', () => {
 describe('marking progress', () => {
   const list: MyWorkList = {
     away: [],
+    hours: [],
     today: '2026-06-01',
     timeZone: 'Europe/London',
     items: [item('41', '2026-06-01', '2026-06-01T07:00:00Z', { actions: ['arrive'] })],

@@ -83,6 +83,10 @@ describe('a crew member on a phone', () => {
     const card = page.locator('article.visit', { hasText: 'TW-8811' }).filter({ hasText: 'Excavate pit' });
     await card.waitFor({ timeout: 15_000 });
     expect(await page.locator('h2').first().textContent()).toBe('Today');
+    // The hours he and his crew work to, above the day list (the demo's standard week).
+    expect((await page.getByTestId('my-hours').textContent())?.trim()).toBe(
+      'Your hours: Mon–Fri 08:00–17:00 (Standard week).',
+    );
     await expect.poll(() => card.textContent()).toContain('LS6 2AB');
     const text = (await card.textContent()) ?? '';
     expect(text).toContain('9 Weir Street');

@@ -265,6 +265,40 @@ describe('marking progress, and taking it back, through the guarded writer', () 
     }
   });
 
+  it('says the hours of the week each of his rows works to, a crew moved onto a late shift on a line of its own', async () => {
+    // The demo's standard week: Mon–Fri 08:00–17:00 (seeds/demo.ts, invented for the demo).
+    expect((await myWork()).hours).toEqual([
+      { resourceNames: ['Connor Reid', 'Crew Heron'], week: 'Standard week', words: 'Mon–Fri 08:00–17:00' },
+    ]);
+    const owner = await signIn(ctx, account('owner').email);
+    const added = await owner
+      .post('/api/firm/calendars')
+      .set('X-CSRF-Token', owner.csrf)
+      .send({ name: 'Late shift' })
+      .expect(201);
+    const late = String(added.body.calendar.id);
+    await ctx
+      .knex('calendars')
+      .where({ id: late })
+      .update({ weekly_hours: JSON.stringify({ 1: [[720, 1200]], 2: [[720, 1200]], 5: [[960, 1440]] }) });
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const tideway = await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
+    try {
+      await owner
+        .put(`/api/resources/${heron}/calendar`)
+        .set('X-CSRF-Token', owner.csrf)
+        .send({ calendarId: late, was: await idOf(ctx.knex, 'calendars', { name: 'Standard week', firm_id: tideway }) })
+        .expect(200);
+      expect((await myWork()).hours).toEqual([
+        { resourceNames: ['Connor Reid'], week: 'Standard week', words: 'Mon–Fri 08:00–17:00' },
+        { resourceNames: ['Crew Heron'], week: 'Late shift', words: 'Mon, Tue 12:00–20:00; Fri 16:00–midnight' },
+      ]);
+    } finally {
+      await ctx.knex('resources').where({ id: heron }).update({ calendar_id: null });
+      await ctx.knex('calendars').where({ id: late }).delete();
+    }
+  });
+
   it('refuses "On site" days ahead and "Done" before "On site" (409, in plain words)', async () => {
     const early = await post(thursday, { action: 'arrive', version: await versionOf(thursday) }).expect(409);
     expect(early.body.detail).toBe('This booking is on Thu 4 Jun 08:00: it can be marked on site on that day.');
