@@ -7,10 +7,12 @@ import {
   signIn,
   startTestApp,
   sentWhileResourcesHeld,
+  untilWaitingOnLocks,
   type Agent,
   type TestContext,
 } from '../helpers/server.ts';
 import type { ClashReport, HireReport, UtilisationReport } from '../../shared/reports/types.ts';
+import { lockResources } from '../../server/services/booking-writes.ts';
 
 /*
  * A small known week added to the demo (TEST_TODAY is Mon 1 Jun 2026; June is BST, UTC+1):
@@ -576,9 +578,38 @@ describe("changing a hire's dates", () => {
       code: 'hire-started',
       detail: 'This hire has started, so it stays on the books: change its off-hire instead.',
     });
-    // Cancelled: nothing covers the Wed 24 booking any more.
-    const cancelled = await cancel(other, '?version=1').expect(200);
-    expect(named(cancelled)).toEqual([['TW-9001', 'Dig (day 2)', '2026-06-24T07:00:00.000Z']]);
+    // Cancelled while a booking of the digger on Wed 24 evening is under way (its write path holds
+    // the digger's lock and has written the row): the cancel waits for it, and names it too.
+    const trim = await addStage('Trim the pit', 7, ['mini_excavator']);
+    const holder = await ctx.knex.transaction();
+    let answer: Awaited<ReturnType<typeof cancel>> | undefined;
+    try {
+      await lockResources(holder, [digger]);
+      await holder('bookings').insert({
+        stage_id: trim,
+        resource_id: digger,
+        starts_at: '2026-06-24T16:30:00Z',
+        ends_at: '2026-06-24T17:30:00Z',
+        state: 'pencilled',
+      });
+      const sent = cancel(other, '?version=1').then((r) => (answer = r));
+      await untilWaitingOnLocks(ctx.knex, 1);
+      expect(answer).toBeUndefined();
+      await holder.commit();
+      await sent;
+    } catch (e) {
+      await holder.rollback();
+      throw e;
+    }
+    onTestFinished(async () => {
+      await ctx.knex('stages').where({ id: trim }).del(); // and its booking with it
+    });
+    // Nothing covers the Wed 24 bookings any more.
+    expect(answer!.status).toBe(200);
+    expect(named(answer!)).toEqual([
+      ['TW-9001', 'Dig (day 2)', '2026-06-24T07:00:00.000Z'],
+      ['TW-9001', 'Trim the pit', '2026-06-24T16:30:00.000Z'],
+    ]);
     expect(await ctx.knex('hire_periods').whereIn('id', [other, started]).pluck('id')).toEqual([started]);
     expect(
       await ctx
