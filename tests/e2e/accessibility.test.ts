@@ -150,7 +150,7 @@ describe('dialogs and panels', () => {
     }
   }, 60_000);
 
-  it("pass axe-core on the manager's fix preview", async () => {
+  it("pass axe-core on the manager's fix preview and a hire's dates", async () => {
     const { context, page } = await signedIn('manager', false);
     try {
       await open(page, '/reports');
@@ -161,6 +161,13 @@ describe('dialogs and panels', () => {
       expect(await withDialog(page, 'Preview the fix')).toEqual([]);
       // Its dates read as the rest of the page's do ("Mon 8 Jun"), not as stored.
       expect(await page.getByRole('dialog', { name: 'Preview the fix' }).innerText()).not.toMatch(/\d{4}-\d\d-\d\d/);
+      await page.keyboard.press('Escape');
+      await page.getByRole('dialog', { name: 'Preview the fix' }).waitFor({ state: 'detached' });
+      await page
+        .getByRole('button', { name: /^Change the dates of the hire of / })
+        .first()
+        .click();
+      expect(await withDialog(page, /^Change the hire of /)).toEqual([]);
     } finally {
       await context.close();
     }
