@@ -73,3 +73,16 @@ export function visibleJobIds(knex: Knex, actor: Actor): Knex.QueryBuilder {
         .whereIn('b.resource_id', firmResourceIds(knex, actor.firmId));
   }
 }
+
+/**
+ * The firm's standard week for a resource row aliased `alias`, as SQL: its firm's first calendar.
+ * A resource with no week of its own works to it (see {@link workingWeekIdOf}).
+ */
+export function standardWeekIdOf(knex: Knex, alias: string): Knex.Raw {
+  return knex.raw('(SELECT min(s.id) FROM calendars s WHERE s.firm_id = ??.firm_id)', [alias]);
+}
+
+/** The working week a resource row aliased `alias` works to, as SQL: its own, else its firm's standard week. */
+export function workingWeekIdOf(knex: Knex, alias: string): Knex.Raw {
+  return knex.raw('coalesce(??.calendar_id, ?)', [alias, standardWeekIdOf(knex, alias)]);
+}

@@ -7,7 +7,7 @@ import { PROGRESS_ACTIONS, type BookingState, type ProgressAction } from '../../
 import { actionsFor } from '../../shared/booking-states.ts';
 import { addDays, endOfLocalDay, localDateOf, startOfLocalDay, todayIn } from '../../shared/local-dates.ts';
 import { Booking, Firm } from '../models/index.ts';
-import { ownResourceIds } from '../models/base.ts';
+import { ownResourceIds, workingWeekIdOf } from '../models/base.ts';
 import type { Actor } from './actor.ts';
 import { scoped } from './scope.ts';
 import { AbsencesService } from './absences.ts';
@@ -264,11 +264,10 @@ export class DaySheetsService {
    * books): a row with no week of its own works to the firm's standard week, its first calendar.
    */
   private async ownHours(actor: Actor): Promise<MyWorkHours[]> {
-    const standard = this.knex.raw('(SELECT min(s.id) FROM calendars s WHERE s.firm_id = r.firm_id)');
     const rows = (await this.knex('resources as r')
       .whereIn('r.id', ownResourceIds(this.knex, actor))
       .where({ 'r.active': true, 'r.firm_id': actor.firmId })
-      .join('calendars as c', 'c.id', this.knex.raw('coalesce(r.calendar_id, ?)', [standard]))
+      .join('calendars as c', 'c.id', workingWeekIdOf(this.knex, 'r'))
       .orderBy(['c.id', 'r.name'])
       .select('r.name', 'c.id as calendar_id', 'c.name as week', 'c.weekly_hours')) as {
       name: string;

@@ -1,4 +1,5 @@
 import { Firm, Membership, Resource, Unit, User } from '../models/index.ts';
+import { standardWeekIdOf, workingWeekIdOf } from '../models/base.ts';
 import type { Actor } from './actor.ts';
 import { workingWeekFor } from './read-policy.ts';
 import { scoped } from './scope.ts';
@@ -25,14 +26,14 @@ export class DirectoryService {
   }
 
   async resources(actor: Actor) {
-    // The week each works to: its own, else its firm's first calendar (the standard week).
-    const standard = Resource.knex().raw('(SELECT min(s.id) FROM calendars s WHERE s.firm_id = resources.firm_id)');
+    // The week each works to: its own, else its firm's standard week.
+    const knex = Resource.knex();
     const rows = (await scoped(Resource, actor)
       .where('resources.active', true)
       .join('firms', 'firms.id', 'resources.firm_id')
-      .leftJoin('calendars as week', 'week.id', Resource.knex().raw('coalesce(resources.calendar_id, ?)', [standard]))
+      .leftJoin('calendars as week', 'week.id', workingWeekIdOf(knex, 'resources'))
       .select('resources.*', 'firms.name as firmName', 'firms.kind as firmKind', 'week.name as weekName')
-      .select(Resource.knex().raw('week.id = ? AS standard_week', [standard]))
+      .select(knex.raw('week.id = ? AS standard_week', [standardWeekIdOf(knex, 'resources')]))
       .orderBy(['firms.name', 'resources.kind', 'resources.name'])) as (Resource & {
       firmName: string;
       firmKind: string;
