@@ -1,4 +1,4 @@
-import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, afterEach, beforeAll, describe, expect, it, onTestFinished, vi } from 'vitest';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
 import { addStage } from '../helpers/flows.ts';
 import { BookingWriter } from '../../server/services/booking-writes.ts';
@@ -266,7 +266,12 @@ describe('marking progress, and taking it back, through the guarded writer', () 
   });
 
   it('says the hours of the week each of his rows works to, a crew moved onto a late shift on a line of its own', async () => {
-    // The demo's standard week: Mon–Fri 08:00–17:00 (seeds/demo.ts, invented for the demo).
+    // The demo's standard week: Mon–Fri 08:00–17:00 (seeds/demo.ts, invented for the demo). Connor's
+    // own row keeps no week of its own (as after a move back onto the standard week): it works to it.
+    const connor = await idOf(ctx.knex, 'resources', { name: 'Connor Reid' });
+    const stored = await ctx.knex('resources').where({ id: connor }).first('calendar_id');
+    await ctx.knex('resources').where({ id: connor }).update({ calendar_id: null });
+    onTestFinished(() => ctx.knex('resources').where({ id: connor }).update({ calendar_id: stored.calendarId }));
     expect((await myWork()).hours).toEqual([
       { resourceNames: ['Connor Reid', 'Crew Heron'], week: 'Standard week', words: 'Mon–Fri 08:00–17:00' },
     ]);
