@@ -87,13 +87,19 @@ export class HirePeriodsService {
 
   /**
    * Approve, end, or change dates and prices of one of the firm's hire periods; answers with the
-   * machine's bookings from now on that the new dates leave outside every hire of it.
+   * machine's bookings from now on that the new dates leave outside every hire of it. Ending a hire
+   * (the machine has gone back) puts its off-hire at now if it was later; an ended hire takes no
+   * change but being reopened (approved again, with the off-hire it had).
    */
   async update(actor: Actor, id: string, input: UpdateHirePeriod): Promise<HirePeriodSaved> {
     return this.knex.transaction(async (trx) => {
       const before = await this.held(trx, actor, id, input.version);
+      this.refuseStep(before, input);
       const onHireAt = input.onHireAt ? new Date(input.onHireAt) : before.onHireAt;
-      const offHireAt = input.offHireAt ? new Date(input.offHireAt) : before.offHireAt;
+      let offHireAt = input.offHireAt ? new Date(input.offHireAt) : before.offHireAt;
+      // Ended: the machine went back now, so it is off hire from now (to the minute) if it was later.
+      const now = Math.floor(this.now() / 60_000) * 60_000;
+      if (input.status === 'ended' && offHireAt.getTime() > now) offHireAt = new Date(now);
       if (offHireAt.getTime() <= onHireAt.getTime()) {
         throw new BadRequestError('The off-hire must be after the on-hire.', [
           {
@@ -140,6 +146,29 @@ export class HirePeriodsService {
       await notifyResourceChange(trx, String(hire.resourceId));
       return { affected: await this.leftOutside(trx, actor, hire, null) };
     });
+  }
+
+  /**
+   * The steps a hire may not take: ending one that is not approved or has not started (it is
+   * approved, changed or cancelled instead), and any change to an ended hire but reopening it
+   * (status approved again: the end's Undo).
+   */
+  private refuseStep(hire: VersionedHire, input: UpdateHirePeriod): void {
+    const refuse = (code: string, detail: string) => {
+      throw new ConflictError(detail, { code, current: viewOf(hire) });
+    };
+    if (hire.status === 'ended') {
+      if (input.status !== 'approved')
+        refuse(
+          'hire-ended',
+          'This hire has ended, so it stays as it was: record a new hire if the machine comes back.',
+        );
+      return;
+    }
+    if (input.status !== 'ended') return;
+    if (hire.status !== 'approved') refuse('hire-not-approved', 'Approve this hire before ending it.');
+    if (hire.onHireAt.getTime() > this.now())
+      refuse('hire-not-started', "This hire hasn't started, so there is nothing to end: cancel it instead.");
   }
 
   /**

@@ -357,6 +357,49 @@ describe("a hire's dates, changed on a phone and put back", () => {
     }
   }, 60_000);
 
+  it('ends a started hire now after asking, names what it leaves off hire, and Undo reopens it', async () => {
+    const { context, phone } = await managerPhone();
+    try {
+      const machine = await machineId();
+      const stored = () =>
+        app.ctx
+          .knex('hire_periods')
+          .where({ resource_id: machine })
+          .orderBy('id') // the demo's hire
+          .first('off_hire_at', 'status', 'version')
+          .then((h) => ({ off: h.offHireAt.toISOString(), status: h.status, version: h.version }));
+      const before = await stored();
+      await phone.goto(`${app.url}/reports`);
+      await phone.getByRole('button', { name: /^Change the dates of the hire of 3 t excavator \(hired\)/ }).click();
+      await phone.getByRole('button', { name: 'End the hire now…' }).click();
+      const asked = phone.getByRole('dialog', { name: 'End the hire of 3 t excavator (hired) now?' });
+      await asked.getByRole('button', { name: 'Keep it' }).click();
+      await asked.waitFor({ state: 'detached' });
+      expect(await stored()).toEqual(before);
+      await phone.getByRole('button', { name: 'End the hire now…' }).click();
+      await asked.getByRole('button', { name: 'End the hire', exact: true }).click();
+      const status = phone.locator('.hire-changed');
+      await expect
+        .poll(() => status.textContent(), { timeout: 10_000 })
+        .toMatch(/^\d+ bookings? of 3 t excavator \(hired\) now falls? outside its hire/);
+      expect(await status.getByRole('listitem').first().textContent()).toMatch(/^TW-\d{4} · Excavate pit · /);
+      // Off hire from the server's now (Mon 1 Jun, 08:00 BST), ended.
+      expect(await stored()).toEqual({ off: '2026-06-01T07:00:00.000Z', status: 'ended', version: before.version + 1 });
+      // Ended, the table offers no more changes to it.
+      await expect
+        .poll(() => phone.getByRole('button', { name: /^Change the dates of the hire of 3 t excavator/ }).count())
+        .toBe(0);
+      await asked.waitFor({ state: 'detached' });
+      await status.scrollIntoViewIfNeeded();
+      await phone.screenshot({ path: 'tests/e2e/artifacts/hire-ended-phone.png' });
+      await status.getByRole('button', { name: /^Undo: reopen the hire, / }).click();
+      await expect.poll(() => status.count(), { timeout: 10_000 }).toBe(0);
+      expect(await stored()).toEqual({ ...before, version: before.version + 2 });
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+
   it('cancels a hire not yet started after asking, and Undo records it again', async () => {
     // Mon 15 – Wed 17 Jun, not started on Mon 1 Jun.
     const [{ id }] = await app.ctx

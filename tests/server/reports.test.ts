@@ -620,4 +620,78 @@ describe("changing a hire's dates", () => {
     ).toEqual({ n: '1' });
     await change({ version: await version(), offHireAt: '2026-06-26T17:00:00Z' });
   });
+
+  it('ends a started hire now (its off-hire from now), refuses other changes to it, and reopens it', async () => {
+    const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
+    // A hire of the digger from Mon 25 May to Fri 5 Jun, started (today is Mon 1 Jun, 08:00 BST),
+    // with the digger booked on Wed 3 Jun; and the Mon 22 – Fri 26 Jun hire, not started.
+    const started = String(
+      (
+        await manager
+          .post('/api/hire-periods')
+          .set('X-CSRF-Token', manager.csrf)
+          .send({
+            supplierFirmId: ridgeway,
+            resourceId: digger,
+            onHireAt: '2026-05-25T07:00:00Z',
+            offHireAt: '2026-06-05T16:00:00Z',
+            dayRatePence: 14500,
+          })
+          .expect(201)
+      ).body.id,
+    );
+    const level = await addStage('Level the base', 8, ['mini_excavator']);
+    await ctx.knex('bookings').insert({
+      stage_id: level,
+      resource_id: digger,
+      starts_at: '2026-06-03T07:00:00Z',
+      ends_at: '2026-06-03T11:00:00Z',
+      state: 'pencilled',
+    });
+    onTestFinished(async () => {
+      await ctx.knex('stages').where({ id: level }).del();
+      await ctx.knex('hire_periods').where({ id: started }).del();
+    });
+    const patch = (id: string, body: Record<string, unknown>) =>
+      manager.patch(`/api/hire-periods/${id}`).set('X-CSRF-Token', manager.csrf).send(body);
+
+    // Requested, not approved yet: it is approved before it is ended.
+    expect((await patch(started, { version: 1, status: 'ended' }).expect(409)).body.code).toBe('hire-not-approved');
+    await patch(started, { version: 1, status: 'approved' }).expect(200);
+    // Not started: nothing to end, it is cancelled instead.
+    const notStarted = await patch(hireId, { version: await version(), status: 'ended' }).expect(409);
+    expect(notStarted.body).toMatchObject({
+      code: 'hire-not-started',
+      detail: "This hire hasn't started, so there is nothing to end: cancel it instead.",
+    });
+
+    const ended = await patch(started, { version: 2, status: 'ended' }).expect(200);
+    expect(ended.body.hire).toMatchObject({
+      status: 'ended',
+      onHireAt: '2026-05-25T07:00:00.000Z',
+      offHireAt: '2026-06-01T07:00:00.000Z',
+      version: 3,
+    });
+    expect(named(ended)).toEqual([['TW-9001', 'Level the base', '2026-06-03T07:00:00.000Z']]);
+    // The board's checks agree: the Wed 3 Jun booking is outside every hire of the digger.
+    const june: ClashReport = (await manager.get(`/api/reports/clashes?${qs(JUNE)}`).expect(200)).body;
+    expect(june.rows.filter((r) => r.kind === 'hire').map((r) => r.date)).toContain('2026-06-03');
+
+    // Ended, it takes no other change, nor a cancel.
+    for (const body of [
+      { version: 3, offHireAt: '2026-06-05T16:00:00Z' },
+      { version: 3, dayRatePence: 100 },
+    ]) {
+      expect((await patch(started, body).expect(409)).body.code).toBe('hire-ended');
+    }
+    expect(
+      (await manager.delete(`/api/hire-periods/${started}?version=3`).set('X-CSRF-Token', manager.csrf).expect(409))
+        .body.code,
+    ).toBe('hire-started');
+    // Reopened (the end's Undo): approved again with the off-hire it had, and nothing left off hire.
+    const reopened = await patch(started, { version: 3, status: 'approved', offHireAt: '2026-06-05T16:00:00Z' });
+    expect(reopened.status).toBe(200);
+    expect(reopened.body.hire).toMatchObject({ status: 'approved', offHireAt: '2026-06-05T16:00:00.000Z', version: 4 });
+    expect(reopened.body.affected).toEqual([]);
+  });
 });
