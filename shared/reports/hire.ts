@@ -186,7 +186,9 @@ export function hireReport(ctx: ReportContext, facts: ReadonlyMap<string, HirePe
       idleCostPence: idle.costPence,
       totalCostPence: idle.paidDays * p.dayRatePence + charges.deliveryPence + charges.collectionPence,
       bookingsOutsideHire: outside,
-      suggestions: hireSuggestions(paid, new Set(idle.idleDays), p.dayRatePence, charges, today),
+      // An ended hire is history: the machine has gone back, nothing about it can change.
+      suggestions:
+        f?.status === 'ended' ? [] : hireSuggestions(paid, new Set(idle.idleDays), p.dayRatePence, charges, today),
       link: hireLink(ctx, p, name),
     };
   });
@@ -218,14 +220,14 @@ export function hireReport(ctx: ReportContext, facts: ReadonlyMap<string, HirePe
 /**
  * Two hires of one machine: overlapping ones pay twice for the shared days; back-to-back ones
  * with a short gap pay a collection and a delivery that keeping the machine through the gap
- * would save.
+ * would save. Not with an ended hire: that machine has gone back.
  */
 function addMergeSuggestions(ctx: ReportContext, rows: HirePeriodRow[]): void {
   for (let i = 0; i < rows.length; i++) {
     for (let j = i + 1; j < rows.length; j++) {
       const a = rows[i] as HirePeriodRow,
         b = rows[j] as HirePeriodRow;
-      if (a.resourceId !== b.resourceId) continue;
+      if (a.resourceId !== b.resourceId || a.status === 'ended' || b.status === 'ended') continue;
       const pa = paidDaysOf(ctx, {
         id: a.id,
         resourceId: a.resourceId,

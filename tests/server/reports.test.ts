@@ -677,6 +677,32 @@ describe("changing a hire's dates", () => {
     const june: ClashReport = (await manager.get(`/api/reports/clashes?${qs(JUNE)}`).expect(200)).body;
     expect(june.rows.filter((r) => r.kind === 'hire').map((r) => r.date)).toContain('2026-06-03');
 
+    // Ended, the report suggests nothing for it (it paid for today, idle, but it is history), nor
+    // keeping it on hire into a hire from Tue 2 Jun with a £500.00 delivery.
+    const after = String(
+      (
+        await manager
+          .post('/api/hire-periods')
+          .set('X-CSRF-Token', manager.csrf)
+          .send({
+            supplierFirmId: ridgeway,
+            resourceId: digger,
+            onHireAt: '2026-06-02T06:00:00Z',
+            offHireAt: '2026-06-02T16:00:00Z',
+            dayRatePence: 14500,
+            deliveryPence: 50000,
+          })
+          .expect(201)
+      ).body.id,
+    );
+    onTestFinished(async () => {
+      await ctx.knex('hire_periods').where({ id: after }).del();
+    });
+    const hireReport: HireReport = (await manager.get(`/api/reports/hire?${qs(JUNE)}`).expect(200)).body;
+    const row = (id: string) => hireReport.periods.find((p) => p.id === id)!;
+    expect(row(started)).toMatchObject({ status: 'ended', suggestions: [] });
+    expect(row(after).suggestions.map((s) => s.kind)).toEqual(['end']);
+
     // Ended, it takes no other change, nor a cancel.
     for (const body of [
       { version: 3, offHireAt: '2026-06-05T16:00:00Z' },
