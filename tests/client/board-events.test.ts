@@ -7,6 +7,7 @@ import {
   groupHeading,
   groupOf,
   holidaysOf,
+  offHireOf,
   problemsByBooking,
   rowsOf,
   trayOf,
@@ -292,6 +293,35 @@ describe('shading and the tray', () => {
     const data = board();
     data.calendars[0]!.closures = [{ start: MON + 86_400_000, end: MON + 2 * 86_400_000, reason: 'Dentist' }];
     expect(closuresOf(data).map((c) => c.title)).toEqual(['Not working: Dentist']);
+  });
+
+  it("shade a hired machine's time on no hire: before its first hire, between hires, all of it with none", () => {
+    const data = board();
+    const H = 3_600_000,
+      D = 86_400_000;
+    const hire = (id: string, resourceId: string, onHire: number, offHire: number) => ({
+      id,
+      resourceId,
+      onHire,
+      offHire,
+      dayRatePence: 14500,
+    });
+    // A hire Mon 08:00 – Thu 00:00 with a second one inside it, then one from Sat running past the
+    // range; a hire of another row, and one that ended before the range, change nothing.
+    data.hirePeriods = [
+      hire('h2', 'r2', MON + D, MON + 2 * D),
+      hire('h1', 'r2', MON + 8 * H, MON + 3 * D),
+      hire('h3', 'r2', MON + 5 * D, MON + 9 * D),
+      hire('h4', 'r1', MON, MON + D),
+      hire('h0', 'r2', MON - 30 * D, MON - 20 * D),
+    ];
+    const spans = (d: BoardData) => offHireOf(d).map((b) => [b.resourceIds, b.start, b.end, b.classNames, b.title]);
+    expect(spans(data)).toEqual([
+      [['r2'], data.from, MON + 8 * H, ['wl-off-hire'], 'Off hire'],
+      [['r2'], MON + 3 * D, MON + 5 * D, ['wl-off-hire'], 'Off hire'],
+    ]);
+    data.hirePeriods = [];
+    expect(spans(data)).toEqual([[['r2'], data.from, data.to, ['wl-off-hire'], 'Off hire']]);
   });
 
   it('list unbooked stages per job in dependency order (a declined booking puts a stage back)', () => {

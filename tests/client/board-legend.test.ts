@@ -10,6 +10,7 @@ import {
   STATE_LABELS,
   closuresOf,
   eventsOf,
+  offHireOf,
   problemsByBooking,
 } from '@/components/board/board-events';
 import { chipMarks } from '@/components/board/booking-chip';
@@ -17,7 +18,7 @@ import { WEEK, HOUR, MON, boardJob } from './board-week';
 
 const STATES: BookingState[] = ['pencilled', 'sent', 'confirmed', 'declined', 'on_site', 'done'];
 
-/** A board with a booking in every state, every marker, a busy-elsewhere block, a closure and a holiday. */
+/** A board with a booking in every state, every marker, a busy-elsewhere block, a closure, a holiday and a hired machine off hire. */
 function everything(): BoardData {
   return {
     from: MON - 24 * HOUR,
@@ -43,6 +44,18 @@ function everything(): BoardData {
         firmName: 'Tideway',
         firmKind: 'installer',
         ownership: 'owned',
+      },
+      {
+        id: 'r2',
+        firmId: 'f1',
+        category: 'machine',
+        kind: 'excavator',
+        calendarId: 'c1',
+        hired: true,
+        name: '3 t excavator',
+        firmName: 'Tideway',
+        firmKind: 'installer',
+        ownership: 'hired',
       },
     ],
     jobs: [
@@ -166,9 +179,10 @@ describe('the key to the board', () => {
       },
     ]);
     const events = eventsOf(data, { canEdit: true, problems, declined: true });
-    const blocks = closuresOf(data, [
-      { calendarId: 'c1', start: MON + 96 * HOUR, end: MON + 120 * HOUR, name: 'A holiday' },
-    ]);
+    const blocks = [
+      ...closuresOf(data, [{ calendarId: 'c1', start: MON + 96 * HOUR, end: MON + 120 * HOUR, name: 'A holiday' }]),
+      ...offHireOf(data),
+    ];
     const classes = new Set([...events, ...blocks].flatMap((e) => e.classNames).filter((c) => c !== 'wl-booking'));
     const symbols = new Set(events.flatMap((e) => chipMarks(e.extendedProps).split(' ')).filter(Boolean));
     // The fixture reaches every state, marker and block the board can draw.
@@ -177,6 +191,7 @@ describe('the key to the board', () => {
       'wl-elsewhere',
       'wl-has-problem',
       'wl-holiday',
+      'wl-off-hire',
       'wl-overdue',
       'wl-proposed',
       'wl-state-confirmed',

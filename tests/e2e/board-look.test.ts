@@ -232,6 +232,7 @@ describe('the board at 1280 × 800', () => {
       'Busy elsewhere',
       'Not working',
       'Public holiday',
+      'Off hire',
       'Outside working hours',
       'Now',
     ]) {

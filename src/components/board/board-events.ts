@@ -1,7 +1,7 @@
 /**
  * The board's data turned into what the resource timeline draws: rows (resources, grouped by firm
- * and kind), events (bookings) and background blocks (holidays, closures, absences). Pure, so it is
- * tested without a browser.
+ * and kind), events (bookings) and background blocks (holidays, closures, absences, a hired
+ * machine off hire). Pure, so it is tested without a browser.
  */
 import type { BoardBooking, BoardData, BoardJob, BoardResource, BoardStage } from '@shared/board-data';
 import { MOVABLE_STATES } from '@shared/booking-states';
@@ -102,6 +102,11 @@ export const BOARD_BLOCKS = {
   },
   closed: { label: 'Not working', description: 'closure or absence', className: 'wl-closed' },
   holiday: { label: 'Public holiday', description: "a holiday in the resource's region", className: 'wl-holiday' },
+  offHire: {
+    label: 'Off hire',
+    description: 'a hired machine with no hire recorded for that time',
+    className: 'wl-off-hire',
+  },
 } as const;
 
 const KIND_LABELS: Record<string, string> = {
@@ -314,6 +319,43 @@ export function closuresOf(
         classNames: [BOARD_BLOCKS.holiday.className],
         title: h.name,
       });
+  }
+  return out;
+}
+
+/**
+ * The time in the board's range when a hired machine is on no hire (before its on-hire, after its
+ * off-hire, between two hires, or all of it when none is recorded), shaded on its row: a booking
+ * there is one the engine flags.
+ *
+ * @example
+ * offHireOf(data) // [{ id: 'off-hire-r2-0', resourceIds: ['r2'], start: data.from, end: onHire, … }]
+ */
+export function offHireOf(data: BoardData): BackgroundInput[] {
+  const out: BackgroundInput[] = [];
+  for (const r of data.resources) {
+    if (r.hired !== true) continue;
+    const hires = data.hirePeriods
+      .filter((h) => h.resourceId === r.id && h.offHire > data.from && h.onHire < data.to)
+      .sort((a, b) => a.onHire - b.onHire);
+    let from = data.from;
+    const gap = (to: number) => {
+      if (to > from)
+        out.push({
+          id: `off-hire-${r.id}-${out.length}`,
+          resourceIds: [r.id],
+          start: from,
+          end: to,
+          display: 'background',
+          classNames: [BOARD_BLOCKS.offHire.className],
+          title: BOARD_BLOCKS.offHire.label,
+        });
+    };
+    for (const h of hires) {
+      gap(h.onHire);
+      from = Math.max(from, h.offHire);
+    }
+    gap(data.to);
   }
   return out;
 }
