@@ -237,6 +237,21 @@ describe('the hire table', () => {
     expect(html).toContain('<td data-label="Off hire">Fri 8 Jan 2027</td>');
   });
 
+  it("says each hire's status in words, and offers Approve only while it waits and Change dates until it ends", async () => {
+    const html = (status: HirePeriodRow['status']) =>
+      renderHtml(HireTable, { rows: [{ ...period(0), status }], canApprove: true, busyId: null, currentYear: 2026 });
+    const waiting = await html('requested');
+    expect(waiting).toContain('Waiting for approval');
+    expect(waiting).toContain('>Approve<');
+    expect(waiting).toContain('Change dates…');
+    const approved = await html('approved');
+    expect(approved).toContain('Approved');
+    expect(approved).not.toContain('>Approve<');
+    const ended = await html('ended');
+    expect(ended).toContain('Ended: gone back');
+    expect(ended).not.toContain('Change dates…');
+  });
+
   it('counts the bookings outside the hire in words that read right for one or more', async () => {
     const html = (n: number) =>
       renderHtml(HireTable, { rows: [period(n)], canApprove: false, busyId: null, currentYear: 2026 });
