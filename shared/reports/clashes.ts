@@ -1,4 +1,4 @@
-import { resourceCalendarOf, violationKey, type Booking, type Violation } from '../scheduler/index.ts';
+import { resourceCalendarOf, violationKey, type Booking, type HirePeriod, type Violation } from '../scheduler/index.ts';
 import {
   boardLink,
   dateIn,
@@ -56,10 +56,25 @@ export function extraHire(ctx: ReportContext, booking: Booking): { days: number;
 }
 
 /** The hire period of a booking's machine nearest to the booking in time, if it has any. */
-function nearestHire(ctx: ReportContext, booking: Booking): { id: string } | undefined {
+function nearestHire(ctx: ReportContext, booking: Booking): HirePeriod | undefined {
   const gap = (p: { onHire: number; offHire: number }) =>
     Math.max(0, p.onHire - booking.end, booking.start - p.offHire);
   return [...(ctx.index.hireByResource.get(booking.resourceId) ?? [])].sort((a, b) => gap(a) - gap(b))[0];
+}
+
+/**
+ * The days the nearest hire of a booking's machine would run to take the booking in: an earlier
+ * first day, a later last day, or both. The last day is the one whose 23:59 (a hire's off-hire, as
+ * the form records it) is at or after the booking's end.
+ */
+function coverOf(ctx: ReportContext, booking: Booking): ClashRow['cover'] {
+  const hire = nearestHire(ctx, booking);
+  if (!hire) return undefined;
+  return {
+    hireId: hire.id,
+    ...(booking.start < hire.onHire ? { onHireDate: dateIn(ctx, booking.start) } : {}),
+    ...(booking.end > hire.offHire ? { offHireDate: dateIn(ctx, booking.end + 59_999) } : {}),
+  };
 }
 
 function rowOf(ctx: ReportContext, v: Violation): (ClashRow & { offending?: Booking }) | null {
@@ -83,6 +98,7 @@ function rowOf(ctx: ReportContext, v: Violation): (ClashRow & { offending?: Book
   ];
   const date = dateIn(ctx, from);
   const kind = v.kind as ClashKind;
+  const cover = kind === 'hire' ? coverOf(ctx, offending) : undefined;
   const resourceIds = kind === 'person_double' ? v.resourceIds : [offending.resourceId];
   const bookingIds = ownBookings.map((b) => b.id);
   return {
@@ -106,9 +122,10 @@ function rowOf(ctx: ReportContext, v: Violation): (ClashRow & { offending?: Book
       resourceName: kind === 'person_double' ? undefined : resourceName(ctx, offending.resourceId),
       highlight: bookingIds,
       // A machine outside its hire: the hire it falls outside of is drawn beside it.
-      hireId: kind === 'hire' ? nearestHire(ctx, offending)?.id : undefined,
+      hireId: cover?.hireId,
     }),
     fixes: [],
+    ...(cover ? { cover } : {}),
     offending,
   };
 }

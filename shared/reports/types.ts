@@ -80,6 +80,11 @@ export interface ClashRow {
   costPence: number;
   link: string;
   fixes: SuggestedFix[];
+  /**
+   * A machine outside its hire: the nearest hire of it, and the first or last day (YYYY-MM-DD, the
+   * firm's calendar) that would take the booking in, for the form that changes a hire's dates.
+   */
+  cover?: { hireId: string; onHireDate?: string; offHireDate?: string };
 }
 
 export interface ClashReport {

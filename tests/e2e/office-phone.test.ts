@@ -400,6 +400,47 @@ describe("a hire's dates, changed on a phone and put back", () => {
     }
   }, 60_000);
 
+  it("keeps the hire on to take in the booking made after it, from the clash report's button, and Undo puts it back", async () => {
+    const { context, phone } = await managerPhone();
+    try {
+      const machine = await machineId();
+      const offHires = () =>
+        app.ctx
+          .knex('hire_periods')
+          .where({ resource_id: machine })
+          .orderBy('id')
+          .select('off_hire_at')
+          .then((all: { offHireAt: Date }[]) => all.map((h) => h.offHireAt.toISOString()));
+      const before = await offHires();
+      await phone.goto(`${app.url}/reports`);
+      // The demo's TW-2410 digs on the 3 t excavator after its hire has gone back.
+      const keep = phone.getByRole('button', { name: /^Keep it on hire to / });
+      await keep.first().waitFor({ timeout: 10_000 });
+      expect(await keep.count()).toBe(1);
+      await keep.click();
+      const dialog = phone.getByRole('dialog', { name: 'Change the hire of 3 t excavator (hired)' });
+      await dialog.getByText('Filled in to take in the booking outside the hire').waitFor();
+      const lastDay = await dialog.getByLabel('Off hire after').inputValue();
+      expect(lastDay).toMatch(/^2026-\d\d-\d\d$/);
+      await dialog.getByRole('button', { name: 'Save the dates' }).click();
+      const status = phone.locator('.hire-changed');
+      await expect
+        .poll(async () => (await status.textContent())?.trim(), { timeout: 10_000 })
+        .toMatch(
+          /^The hire of 3 t excavator \(hired\) now runs .*: every booking of it from now on that was on hire still is\./,
+        );
+      // The clash is gone with it; the hire runs to 23:59 (BST) of the dig's last day.
+      await expect.poll(() => keep.count(), { timeout: 10_000 }).toBe(0);
+      expect(await offHires()).toEqual(before.map((off, i) => (i === 0 ? `${lastDay}T22:59:00.000Z` : off)));
+      await status.getByRole('button', { name: /^Undo: put back / }).click();
+      await expect.poll(() => status.count(), { timeout: 10_000 }).toBe(0);
+      await keep.waitFor({ timeout: 10_000 });
+      expect(await offHires()).toEqual(before);
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+
   it('cancels a hire not yet started after asking, and Undo records it again', async () => {
     // Mon 15 – Wed 17 Jun, not started on Mon 1 Jun.
     const [{ id }] = await app.ctx

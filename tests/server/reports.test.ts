@@ -419,6 +419,35 @@ describe('the clash report', () => {
 
     const hire = mine.find((r) => r.kind === 'hire')!;
     expect(hire.costPence).toBe(14500); // 1 working day (Mon 29 Jun) outside the hire × £145.00
+    // What would cover it: the hire (Mon 22 – Fri 26 Jun) running to Mon 29 Jun.
+    expect(hire.cover).toEqual({ hireId, offHireDate: '2026-06-29' });
+  });
+
+  it("gives the hire's days that cover a booking outside it, which the hire then does", async () => {
+    const version = async () => Number((await ctx.knex('hire_periods').where({ id: hireId }).first('version')).version);
+    const change = async (body: Record<string, unknown>) =>
+      manager
+        .patch(`/api/hire-periods/${hireId}`)
+        .set('X-CSRF-Token', manager.csrf)
+        .send({ version: await version(), ...body })
+        .expect(200);
+    const hireRows = async () =>
+      ((await manager.get(`/api/reports/clashes?${qs(JUNE)}`).expect(200)).body as ClashReport).rows.filter(
+        (r) => r.kind === 'hire' && r.jobReferences.includes('TW-9001'),
+      );
+    try {
+      // On hire from Wed 24 Jun: the Tue 23 dig is before it; the Mon 29 one still after it.
+      await change({ onHireAt: '2026-06-23T23:00:00Z' });
+      expect((await hireRows()).map((r) => [r.date, r.cover])).toEqual([
+        ['2026-06-23', { hireId, onHireDate: '2026-06-23' }],
+        ['2026-06-29', { hireId, offHireDate: '2026-06-29' }],
+      ]);
+      // The days given, as the hire form records them (00:00 of the first, 23:59 of the last, BST).
+      await change({ onHireAt: '2026-06-22T23:00:00Z', offHireAt: '2026-06-29T22:59:00Z' });
+      expect(await hireRows()).toEqual([]);
+    } finally {
+      await change({ onHireAt: '2026-06-22T06:00:00Z', offHireAt: '2026-06-26T17:00:00Z' });
+    }
   });
 
   it('tells Tideway only that Priya Nair is busy elsewhere, never whose job it is', async () => {
