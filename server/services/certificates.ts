@@ -177,7 +177,8 @@ export class CertificatesService {
   /** The office records (or with null takes back) why the job may be handed over without the certificate. */
   async waive(actor: Actor, jobId: string, input: PutCertificateWaiver): Promise<CertificateView> {
     await this.knex.transaction(async (trx) => {
-      const job = await scoped(Job, actor, trx).findById(jobId).forUpdate();
+      // The job's row queues its own saves; FOR NO KEY UPDATE lets writes that only point at it go on.
+      const job = await scoped(Job, actor, trx).findById(jobId).forNoKeyUpdate();
       if (!job || !isOffice(actor)) throw new NotFoundError('job');
       const before = await loadCertificate(trx, jobId);
       const was = before.waiver?.reason ?? null;

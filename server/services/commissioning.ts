@@ -180,9 +180,10 @@ export class CommissioningService {
 
   async put(actor: Actor, jobId: string, input: PutCommissioning): Promise<CommissioningView> {
     return this.knex.transaction(async (trx) => {
-      // The job row is the lock: two saves of one record queue here, and the second sees the new version.
+      // The job row is the lock: two saves of one record queue here, and the second sees the new
+      // version. FOR NO KEY UPDATE lets writes that only point at the job go on.
       const job = await this.visibleJob(actor, jobId, trx);
-      await trx('jobs').where('id', job.id).forUpdate().first('id');
+      await trx('jobs').where('id', job.id).forNoKeyUpdate().first('id');
       if (!(await this.mayEdit(actor, jobId, trx))) {
         throw new ForbiddenError('Only the crew booked on the commissioning, or the office, can change this record.');
       }

@@ -14,7 +14,8 @@ export class JobEditsService {
 
   async update(actor: Actor, id: string, input: UpdateJob): Promise<Job> {
     return this.knex.transaction(async (trx) => {
-      const before = await scoped(Job, actor, trx).findById(id).forUpdate();
+      // The job's row queues its own saves; FOR NO KEY UPDATE lets writes that only point at it go on.
+      const before = await scoped(Job, actor, trx).findById(id).forNoKeyUpdate();
       if (!before) throw new NotFoundError('job');
       if (before.version !== input.version) {
         throw new ConflictError('Someone else changed this job since you loaded it.', {

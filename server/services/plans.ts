@@ -37,7 +37,8 @@ export class PlansService {
       // A booking of one of its stages under way holds the job in the write path: wait for it (taking
       // the job's lock first, as the write path does), and count it.
       await lockJobs(trx, [String(jobId)]);
-      const job = await scoped(Job, actor, trx).findById(jobId).forUpdate();
+      // The job's row queues its own saves; FOR NO KEY UPDATE lets writes that only point at it go on.
+      const job = await scoped(Job, actor, trx).findById(jobId).forNoKeyUpdate();
       if (!job) throw new NotFoundError('job');
       const booked = await scoped(Booking, actor, trx)
         .whereIn('bookings.stage_id', Stage.query(trx).select('id').where('job_id', job.id))

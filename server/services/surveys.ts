@@ -83,7 +83,8 @@ export class SurveysService {
   /** Records the survey; the first save moves an enquiry to "surveyed". Stale versions get 409. */
   async put(actor: Actor, jobId: string, input: PutSurvey): Promise<SurveyView> {
     return this.knex.transaction(async (trx) => {
-      const job = await scoped(Job, actor, trx).findById(jobId).forUpdate();
+      // The job's row queues its own saves; FOR NO KEY UPDATE lets writes that only point at it go on.
+      const job = await scoped(Job, actor, trx).findById(jobId).forNoKeyUpdate();
       if (!job) throw new NotFoundError('job');
       const before = await scoped(Survey, actor, trx).findOne({ jobId }).forUpdate();
       if ((before?.version ?? 0) !== input.version) {
