@@ -135,6 +135,22 @@ async function readBody(response: Response): Promise<unknown> {
   }
 }
 
+/**
+ * How long a read may take, answer and body, before the page says so and offers to try again
+ * (on site, a phone's connection can stall without failing). Writes wait for the server: given up
+ * on here, their outcome would be unknown.
+ */
+export const READ_TIMEOUT_MS = 30_000;
+
+/** Thrown when a read got no whole answer within READ_TIMEOUT_MS: status 0, like a network failure. */
+function timedOut(): ApiError {
+  return new ApiError({
+    status: 0,
+    title: 'The server took too long to answer',
+    detail: 'Check your connection and try again.',
+  });
+}
+
 /** Sends one request and resolves with the parsed JSON body (undefined for 204). */
 export async function request<T>(path: string, options: RequestOptions = {}): Promise<T> {
   const method = options.method ?? 'GET';
@@ -142,21 +158,41 @@ export async function request<T>(path: string, options: RequestOptions = {}): Pr
   if (options.body !== undefined) headers['Content-Type'] = 'application/json';
   if (method !== 'GET' && csrfToken) headers['X-CSRF-Token'] = csrfToken;
 
+  // The caller's signal (a newer load replacing this one) and, for a read, the timeout abort it.
+  const controller = new AbortController();
+  const caller = options.signal;
+  const callerAborted = () => controller.abort();
+  if (caller?.aborted) controller.abort();
+  else caller?.addEventListener('abort', callerAborted, { once: true });
+  let late = false;
+  const timer =
+    method === 'GET'
+      ? setTimeout(() => {
+          late = true;
+          controller.abort();
+        }, READ_TIMEOUT_MS)
+      : undefined;
+
   let response: Response;
+  let body: unknown;
   try {
     response = await fetch(withQuery(path, options.query), {
       method,
       headers,
       credentials: 'same-origin',
       body: options.body === undefined ? undefined : JSON.stringify(options.body),
-      signal: options.signal,
+      signal: controller.signal,
     });
+    body = await readBody(response);
   } catch (cause) {
+    if (late && !caller?.aborted) throw timedOut();
     if (cause instanceof Error && cause.name === 'AbortError') throw cause;
     throw networkError(cause);
+  } finally {
+    clearTimeout(timer);
+    caller?.removeEventListener('abort', callerAborted);
   }
 
-  const body = await readBody(response);
   if (response.ok) return body as T;
   const error = problemToError(response.status, body);
   if (response.status === 401 && !options.allowUnauthorized) onUnauthorized();

@@ -1,5 +1,13 @@
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
-import { ApiError, api, problemToError, setCsrfToken, setUnauthorizedHandler, withQuery } from '@/api/client';
+import {
+  ApiError,
+  READ_TIMEOUT_MS,
+  api,
+  problemToError,
+  setCsrfToken,
+  setUnauthorizedHandler,
+  withQuery,
+} from '@/api/client';
 import { stubFetch } from './fake-fetch';
 
 beforeEach(() => {
@@ -104,6 +112,65 @@ describe('request', () => {
       status: 0,
       title: 'Waterline could not reach the server',
     });
+  });
+
+  /** A fetch that never answers, but gives up as a browser does when its signal aborts; `answer` ends it. */
+  function stallingFetch() {
+    let answer: (body: unknown) => void = () => {};
+    vi.stubGlobal(
+      'fetch',
+      (_url: string, init: RequestInit) =>
+        new Promise<Response>((resolve, reject) => {
+          init.signal?.addEventListener('abort', () => reject(new DOMException('Aborted', 'AbortError')));
+          answer = (body) =>
+            resolve(
+              new Response(JSON.stringify(body), { status: 200, headers: { 'Content-Type': 'application/json' } }),
+            );
+        }),
+    );
+    return { answer: (body: unknown) => answer(body) };
+  }
+
+  it('gives up on a read with no answer after READ_TIMEOUT_MS, as a failure to try again', async () => {
+    vi.useFakeTimers();
+    try {
+      stallingFetch();
+      const read = api.get('/api/board');
+      const outcome = read.then(
+        () => 'answered',
+        (e: unknown) => e,
+      );
+      await vi.advanceTimersByTimeAsync(READ_TIMEOUT_MS - 1);
+      let settled = false;
+      void outcome.then(() => (settled = true));
+      await Promise.resolve();
+      expect(settled).toBe(false);
+      await vi.advanceTimersByTimeAsync(1);
+      expect(await outcome).toMatchObject({ status: 0, title: 'The server took too long to answer' });
+    } finally {
+      vi.useRealTimers();
+    }
+  });
+
+  it('waits for a write however long it takes (given up on, its outcome would be unknown)', async () => {
+    vi.useFakeTimers();
+    try {
+      const fetchStub = stallingFetch();
+      const write = api.post<{ saved: boolean }>('/api/bookings', { stageId: '1' });
+      await vi.advanceTimersByTimeAsync(3 * READ_TIMEOUT_MS);
+      fetchStub.answer({ saved: true });
+      expect(await write).toEqual({ saved: true });
+    } finally {
+      vi.useRealTimers();
+    }
+  });
+
+  it("passes the caller's abort through untouched, timer or not", async () => {
+    stallingFetch();
+    const caller = new AbortController();
+    const read = api.get('/api/board', { signal: caller.signal });
+    caller.abort();
+    await expect(read).rejects.toMatchObject({ name: 'AbortError' });
   });
 
   it('passes an abort through untouched, so a cancelled load is not shown as a failure', async () => {
