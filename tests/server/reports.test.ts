@@ -34,6 +34,20 @@ const WEEK = { from: '2026-06-21T23:00:00Z', to: '2026-06-28T23:00:00Z' }; // Mo
 const JUNE = { from: '2026-05-31T23:00:00Z', to: '2026-07-04T23:00:00Z' };
 const qs = (r: { from: string; to: string }) => `from=${encodeURIComponent(r.from)}&to=${encodeURIComponent(r.to)}`;
 
+/**
+ * Records a hire of the digger from Ridgeway Plant Hire at £145.00 a day, as requested (more of the
+ * body as given), through the API; its id.
+ */
+async function recordDiggerHire(onHireAt: string, offHireAt: string, more: Record<string, unknown> = {}) {
+  const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
+  const res = await manager
+    .post('/api/hire-periods')
+    .set('X-CSRF-Token', manager.csrf)
+    .send({ supplierFirmId: ridgeway, resourceId: digger, onHireAt, offHireAt, dayRatePence: 14500, ...more })
+    .expect(201);
+  return String(res.body.id);
+}
+
 async function addStage(name: string, sequence: number, kinds: string[]): Promise<string> {
   const [row] = await ctx
     .knex('stages')
@@ -311,26 +325,8 @@ describe('the hire report', () => {
     );
   });
   it('names the other hire of a merge suggestion by its day, as the other suggestions do', async () => {
-    const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
-    const hire = async (onHireAt: string, offHireAt: string, deliveryPence: number) =>
-      String(
-        (
-          await manager
-            .post('/api/hire-periods')
-            .set('X-CSRF-Token', manager.csrf)
-            .send({
-              supplierFirmId: ridgeway,
-              resourceId: digger,
-              onHireAt,
-              offHireAt,
-              dayRatePence: 14500,
-              deliveryPence,
-              collectionPence: 6000,
-              approve: true,
-            })
-            .expect(201)
-        ).body.id,
-      );
+    const hire = (onHireAt: string, offHireAt: string, deliveryPence: number) =>
+      recordDiggerHire(onHireAt, offHireAt, { deliveryPence, collectionPence: 6000, approve: true });
     // Thu 25 – Fri 26 Jun again: two paid days on both hires. Then Tue 30 Jun after a one-working-day
     // gap (Mon 29), delivered for £100.00: collecting and delivering again costs more than the day.
     const overlapping = await hire('2026-06-25T06:00:00Z', '2026-06-26T17:00:00Z', 6000);
@@ -573,20 +569,9 @@ describe("changing a hire's dates", () => {
   });
 
   it('does not name a booking another hire of the machine still covers, until that hire is cancelled', async () => {
-    const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
-    const hire = async (onHireAt: string, offHireAt: string) =>
-      String(
-        (
-          await manager
-            .post('/api/hire-periods')
-            .set('X-CSRF-Token', manager.csrf)
-            .send({ supplierFirmId: ridgeway, resourceId: digger, onHireAt, offHireAt, dayRatePence: 14500 })
-            .expect(201)
-        ).body.id,
-      );
     // A second hire of the digger on Wed 24 Jun alone, and one that started before today (Mon 1 Jun).
-    const other = await hire('2026-06-23T23:00:00Z', '2026-06-24T22:59:00Z');
-    const started = await hire('2026-05-25T07:00:00Z', '2026-06-05T16:00:00Z');
+    const other = await recordDiggerHire('2026-06-23T23:00:00Z', '2026-06-24T22:59:00Z');
+    const started = await recordDiggerHire('2026-05-25T07:00:00Z', '2026-06-05T16:00:00Z');
     onTestFinished(async () => {
       await ctx.knex('hire_periods').whereIn('id', [other, started]).del();
     });
@@ -651,24 +636,9 @@ describe("changing a hire's dates", () => {
   });
 
   it('ends a started hire now (its off-hire from now), refuses other changes to it, and reopens it', async () => {
-    const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
     // A hire of the digger from Mon 25 May to Fri 5 Jun, started (today is Mon 1 Jun, 08:00 BST),
     // with the digger booked on Wed 3 Jun; and the Mon 22 – Fri 26 Jun hire, not started.
-    const started = String(
-      (
-        await manager
-          .post('/api/hire-periods')
-          .set('X-CSRF-Token', manager.csrf)
-          .send({
-            supplierFirmId: ridgeway,
-            resourceId: digger,
-            onHireAt: '2026-05-25T07:00:00Z',
-            offHireAt: '2026-06-05T16:00:00Z',
-            dayRatePence: 14500,
-          })
-          .expect(201)
-      ).body.id,
-    );
+    const started = await recordDiggerHire('2026-05-25T07:00:00Z', '2026-06-05T16:00:00Z');
     const level = await addStage('Level the base', 8, ['mini_excavator']);
     await ctx.knex('bookings').insert({
       stage_id: level,
@@ -708,22 +678,7 @@ describe("changing a hire's dates", () => {
 
     // Ended, the report suggests nothing for it (it paid for today, idle, but it is history), nor
     // keeping it on hire into a hire from Tue 2 Jun with a £500.00 delivery.
-    const after = String(
-      (
-        await manager
-          .post('/api/hire-periods')
-          .set('X-CSRF-Token', manager.csrf)
-          .send({
-            supplierFirmId: ridgeway,
-            resourceId: digger,
-            onHireAt: '2026-06-02T06:00:00Z',
-            offHireAt: '2026-06-02T16:00:00Z',
-            dayRatePence: 14500,
-            deliveryPence: 50000,
-          })
-          .expect(201)
-      ).body.id,
-    );
+    const after = await recordDiggerHire('2026-06-02T06:00:00Z', '2026-06-02T16:00:00Z', { deliveryPence: 50000 });
     onTestFinished(async () => {
       await ctx.knex('hire_periods').where({ id: after }).del();
     });
