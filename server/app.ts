@@ -31,6 +31,8 @@ import { Health } from './health.ts';
 import { projectRoot } from './paths.ts';
 import { problemRoutes } from './routes/problems.ts';
 import { BoardStream } from './services/board-stream.ts';
+import { answerUnreadableRequests } from './unreadable-requests.ts';
+import type { Server } from 'node:http';
 
 export interface AppDeps {
   config: Config;
@@ -44,6 +46,8 @@ export interface AppDeps {
 export interface WaterlineApp {
   app: Express;
   routes: RouteTable;
+  /** Listens as production does: requests Node cannot parse answered with problem+json too. */
+  listen(port: number, host: string, ready?: () => void): Server;
   close(): Promise<void>;
 }
 
@@ -204,6 +208,7 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
   return {
     app,
     routes,
+    listen: (port, host, ready) => answerUnreadableRequests(app.listen(port, host, ready), config.PUBLIC_URL),
     async close() {
       // Open board streams first: they hold HTTP responses open and a LISTEN connection.
       await stream.close();

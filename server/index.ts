@@ -8,7 +8,7 @@ import { startPruning, type Pruning } from '../workers/prune.ts';
 
 const config = loadConfig();
 const knex = createKnex(config.DATABASE_URL);
-const { app, close } = createApp({ config, knex });
+const { listen, close } = createApp({ config, knex });
 // `npm start` runs the outbox relay and mail worker in this process (RUN_WORKER=1); production runs `npm run worker` apart.
 let mail: MailPipeline | null = null;
 let weather: WeatherRefresh | null = null;
@@ -20,7 +20,7 @@ if (process.env.RUN_WORKER === '1') {
   pruning = startPruning({ knex, config, logger });
 }
 
-const server = app.listen(config.PORT, config.HOST, () => {
+const server = listen(config.PORT, config.HOST, () => {
   console.log(`Waterline is listening on ${config.PUBLIC_URL}`);
 });
 

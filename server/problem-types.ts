@@ -18,6 +18,15 @@ export const PROBLEM_TYPES: Record<string, { title: string; explanation: string 
     title: 'The request body is too large',
     explanation: 'The body is larger than this installation accepts. Send less at once.',
   },
+  'headers-too-large': {
+    title: 'The address or its headers are too long',
+    explanation:
+      'The address and headers together are longer than this installation reads (a very long search, or a link pasted twice). Search with fewer words, or ask for less at once.',
+  },
+  'unreadable-request': {
+    title: 'The request could not be read',
+    explanation: 'The request is not well-formed HTTP. Send it again from the app.',
+  },
   unauthorized: {
     title: 'Sign in to continue',
     explanation: 'The request needs a signed-in session. Sign in and try again.',

@@ -4,8 +4,11 @@ import { EmailAddress, Id, NAMES_A_CHANGE, OneLine, Paging, WorkDate, multiLineT
 export const INSTALLATION_TYPES = ['in_ground', 'semi_recessed', 'slab', 'deck'] as const;
 export const JOB_STATUSES = ['enquiry', 'surveyed', 'planned', 'in_progress', 'handed_over', 'cancelled'] as const;
 
+/** The longest search the jobs list takes (the box stops there too). */
+export const JOB_SEARCH_MAX = 100;
+
 export const JobQuery = Paging.extend({
-  search: oneLineText(100).optional(),
+  search: oneLineText(JOB_SEARCH_MAX).optional(),
   status: z.enum(JOB_STATUSES).optional(),
   installationType: z.enum(INSTALLATION_TYPES).optional(),
   sort: z.enum(['promisedFrom', 'reference', 'customerName', 'status', 'orderedOn']).default('promisedFrom'),

@@ -63,7 +63,7 @@ export async function startServer(): Promise<RunningApp> {
   const url = `http://127.0.0.1:${port}`;
   const ctx = await startTestApp({ PUBLIC_URL: url });
   const server: Server = await new Promise((resolve) => {
-    const s = ctx.waterline.app.listen(port, '127.0.0.1', () => resolve(s));
+    const s = ctx.waterline.listen(port, '127.0.0.1', () => resolve(s));
   });
   return {
     ctx,

@@ -570,3 +570,166 @@ describe('a crew member', () => {
     expect(res.body.items.map((r: { name: string }) => r.name).sort()).toEqual(['Connor Reid', 'Crew Heron']);
   });
 });
+
+describe('hostile input on every route (generated from the route table)', () => {
+  const HOSTILE: [string, unknown][] = [
+    ['NUL', 'a\u0000b'],
+    ['year 9999', '9999-12-31T23:59:59Z'],
+    ['year 275760', '+275760-09-13T00:00:00Z'],
+    ['date 9999', '9999-12-31'],
+    ['1e308', 1e308],
+    ['-1', -1],
+    ['2^53+2', 9007199254740994],
+    ['1.5', 1.5],
+    ['object', { a: 1 }],
+    ['array', ['x']],
+    ['null', null],
+    ['true', true],
+    ['lone surrogate', '\ud800'],
+    ['long text', 'x'.repeat(20_000)],
+  ];
+  const FIELDS = [
+    'version',
+    'startsAt',
+    'endsAt',
+    'from',
+    'to',
+    'date',
+    'name',
+    'reason',
+    'note',
+    'notes',
+    'accessNotes',
+    'state',
+    'action',
+    'resourceId',
+    'stageId',
+    'jobId',
+    'firmId',
+    'personIds',
+    'previousPersonIds',
+    'role',
+    'previousRole',
+    'previousName',
+    'calendarId',
+    'was',
+    'hours',
+    'survey',
+    'status',
+    'onHire',
+    'offHire',
+    'onHireDate',
+    'offHireDate',
+    'dailyRate',
+    'amount',
+    'amountPence',
+    'email',
+    'reference',
+    'customerName',
+    'siteAddress',
+    'siteTown',
+    'sitePostcode',
+    'installationType',
+    'promisedBy',
+    'kind',
+    'versions',
+    'items',
+    'bookings',
+    'region',
+    'stepMinutes',
+    'bookingStepMinutes',
+    'token',
+    'ids',
+    'jobIds',
+    'earliest',
+    'horizonDays',
+  ];
+  it('never answers 500, and every refusal is problem+json', async () => {
+    const verdicts: string[] = [];
+    // The owner reaches every office route; a crew member and a partner reach their own few.
+    for (const role of ['owner', 'crew', 'partner'] as const)
+      for (const route of apiRoutes().filter((r) => allowed(r, role) && r.path !== '/api/session/firm')) {
+        const ids = own[reachOfRole(role)];
+        const path = pathFor(route, ids);
+        const base = validBody(route, ids);
+        const bodies: [string, unknown][] = [];
+        for (const [what, value] of HOSTILE) {
+          bodies.push([`every field ${what}`, Object.fromEntries(FIELDS.map((f) => [f, value]))]);
+          for (const f of Object.keys(base.body ?? {})) bodies.push([`${f} ${what}`, { ...base.body, [f]: value }]);
+        }
+        bodies.push(['array body', []], ['text body', 'x'], ['number body', 7]);
+        for (const [what, body] of bodies) {
+          const agent = agents.get(role)!;
+          const req = agent[route.method](path).set('X-CSRF-Token', agent.csrf).set('Content-Type', 'application/json');
+          if (base.query) req.query(base.query);
+          const res = await req.send(JSON.stringify(body));
+          const ok =
+            res.status < 500 &&
+            (res.status < 400 || /application\/problem\+json/.test(res.headers['content-type'] ?? ''));
+          if (!ok)
+            verdicts.push(
+              `${role} ${route.method.toUpperCase()} ${route.path} ${what} → ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`,
+            );
+        }
+      }
+    expect(verdicts).toEqual([]);
+  }, 600_000);
+
+  it('never answers 500 to a read, whatever its query holds', async () => {
+    const VALUES = [
+      'a\u0000b',
+      '9999-12-31T23:59:59Z',
+      '+275760-09-13T00:00:00Z',
+      '9999-12-31',
+      '0000-01-01',
+      '-1',
+      '1e308',
+      '1.5',
+      '\ud800',
+      'x'.repeat(600),
+    ];
+    const KEYS = [
+      'from',
+      'to',
+      'date',
+      'search',
+      'page',
+      'pageSize',
+      'jobId',
+      'resourceId',
+      'stageId',
+      'firmId',
+      'kind',
+      'status',
+      'state',
+      'weeks',
+      'days',
+      'version',
+      'role',
+      'q',
+      'sort',
+    ];
+    const verdicts: string[] = [];
+    for (const role of ['owner', 'crew', 'partner'] as const)
+      for (const route of apiRoutes().filter((r) => r.method === 'get' && allowed(r, role))) {
+        const agent = agents.get(role)!;
+        const path = pathFor(route, own[reachOfRole(role)]);
+        const queries: [string, Record<string, string | string[]>][] = VALUES.map((v) => [
+          JSON.stringify(v).slice(0, 30),
+          { ...QUERIES[route.path], ...Object.fromEntries(KEYS.map((k) => [k, v])) },
+        ]);
+        queries.push(['repeated keys', Object.fromEntries(KEYS.map((k) => [k, ['2026-06-01', '2026-06-02']]))]);
+        for (const [what, query] of queries) {
+          const res = await agent.get(path).query(query);
+          const ok =
+            res.status < 500 &&
+            (res.status < 400 || /application\/problem\+json/.test(res.headers['content-type'] ?? ''));
+          if (!ok)
+            verdicts.push(
+              `${role} GET ${route.path} ${what} → ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`,
+            );
+        }
+      }
+    expect(verdicts).toEqual([]);
+  }, 600_000);
+});
