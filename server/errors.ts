@@ -108,6 +108,11 @@ export const CONSTRAINT_REFUSALS: Record<string, PlainRefusal> = {
     field: 'name',
     message: 'is already used by another resource',
   },
+  invitations_one_open_per_address: {
+    detail: 'An invitation to this address was sent a moment ago: it is in the list.',
+    field: 'email',
+    message: 'was invited a moment ago',
+  },
   calendars_firm_id_name_unique: {
     detail: 'Another calendar of your firm already has this name.',
     field: 'name',

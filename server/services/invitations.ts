@@ -21,6 +21,11 @@ export interface InvitationView {
   firmName: string;
 }
 
+/** A new invitation, and the ids of the open ones to the same address it replaced (their links stop working). */
+export interface CreatedInvitation extends InvitationView {
+  replaced: string[];
+}
+
 export type InvitationOutcome =
   | { result: 'accepted' | 'already-member'; invitation: InvitationView }
   | { result: 'used' }
@@ -75,9 +80,36 @@ export class InvitationsService {
       );
   }
 
-  async create(actor: Actor, input: CreateInvitation): Promise<InvitationView> {
+  /**
+   * Invites a person by e-mail. Someone already in the firm is refused (409 `member`: their role is
+   * changed in the list of people). An invitation still open to the same address is withdrawn and
+   * replaced: inviting again is how an owner sends a lost or expired link anew, and only the newest
+   * link works. Two at once (a double-click) send one: the second is refused by the index of open
+   * invitations (409).
+   */
+  async create(actor: Actor, input: CreateInvitation): Promise<CreatedInvitation> {
     assertRoleOfFirm(actor, input.role);
     return this.knex.transaction(async (trx) => {
+      const member = await trx('memberships as m')
+        .join('users as u', 'u.id', 'm.user_id')
+        .where('m.firm_id', actor.firmId)
+        .whereRaw('lower(u.email) = lower(?)', [input.email])
+        .first('m.id');
+      if (member)
+        throw new ConflictError(
+          `${input.email} is already in your firm: change their role in the list of people instead.`,
+          { code: 'member', errors: [{ field: 'email', message: 'is already in your firm' }] },
+        );
+      const now = new Date(this.now());
+      const replaced = (
+        await trx('invitations')
+          .where({ firm_id: actor.firmId, accepted_at: null, withdrawn_at: null })
+          .whereRaw('lower(email) = lower(?)', [input.email])
+          .update({ withdrawn_at: now, withdrawn_by: actor.userId })
+          .returning('id')
+      ).map((r: { id: string | number }) => String(r.id));
+      for (const id of replaced)
+        await recordChange(trx, actor, 'invitation', id, 'update', { withdrawnAt: null }, { withdrawnAt: now });
       const [row] = await trx('invitations')
         .insert({
           firm_id: actor.firmId,
@@ -92,7 +124,7 @@ export class InvitationsService {
         email: input.email,
         role: input.role,
       });
-      return toView((await this.rows(trx).where('i.id', row.id).first()) as InvitationRow);
+      return { ...toView((await this.rows(trx).where('i.id', row.id).first()) as InvitationRow), replaced };
     });
   }
 

@@ -273,6 +273,36 @@ describe("the firm's invitations", () => {
     expect(stored.withdrawnAt).toBeInstanceOf(Date);
     await page.screenshot({ path: 'tests/e2e/artifacts/firm-invitations.png' });
   });
+
+  it('sends again to an address invited before, saying the earlier link stops; someone already in the firm is named under the box', async () => {
+    await page.goto(`${app.url}/firm`);
+    const invite = page.getByRole('form', { name: 'Invite a person' });
+    const address = invite.getByLabel('E-mail');
+    const list = page.getByRole('region', { name: 'Invitations' });
+    for (const text of ['Invitation sent to', 'Invitation sent again to']) {
+      await address.fill('nell.lost@tideway.example');
+      await invite.getByRole('button', { name: 'Invite' }).click();
+      await page.getByText(new RegExp(`^${text} nell\\.lost@tideway\\.example`)).waitFor();
+    }
+    await page
+      .getByText('Invitation sent again to nell.lost@tideway.example: the link sent before no longer works')
+      .waitFor();
+    const rows = list.locator('li', { hasText: 'nell.lost@tideway.example' });
+    await rows.getByText(/^Withdrawn /).waitFor();
+    expect(await rows.getByText(/^Not accepted yet/).count()).toBe(1);
+
+    await address.fill(account('scheduler').email);
+    await invite.getByRole('button', { name: 'Invite' }).click();
+    // Under the box, and the box points at it.
+    const problem = page.locator('#invite-email-problem');
+    await problem.waitFor();
+    expect(await problem.textContent()).toMatch(/is already in your firm/);
+    expect(await address.getAttribute('aria-describedby')).toContain('invite-email-problem');
+    await page.screenshot({ path: 'tests/e2e/artifacts/firm-invite-again.png' });
+    expect(
+      await app.ctx.knex('invitations').where('email', account('scheduler').email).count({ n: '*' }).first(),
+    ).toEqual({ n: '0' });
+  });
 });
 
 describe("a job's price and payment amounts", () => {

@@ -1,16 +1,23 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { account, signIn, TEST_TODAY, type Agent } from '../helpers/server.ts';
-import { startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
+import {
+  startMailTestApp,
+  waitForMailSettled,
+  waitUntil,
+  type MailTestContext,
+  type TestPipeline,
+} from '../helpers/mail.ts';
 import { composeMessage } from '../../server/mail/messages.ts';
 
 let ctx: MailTestContext;
+let pipeline: TestPipeline;
 let owner: Agent;
 const EMAIL = 'jo.planner@tideway.example';
 
 beforeAll(async () => {
   ctx = await startMailTestApp();
-  ctx.startPipeline();
+  pipeline = ctx.startPipeline();
   owner = await signIn(ctx, account('owner').email);
 });
 afterAll(async () => {
@@ -176,5 +183,93 @@ describe('withdrawing an invitation', () => {
     expect((await ctx.knex('invitations').where('id', open).first('withdrawn_at')).withdrawnAt).toBeNull();
     const theirs = (await otherOwner.get('/api/firm/invitations').expect(200)).body.items;
     expect(theirs.map((i: { email: string }) => i.email)).not.toContain('still.open@tideway.example');
+  });
+});
+
+describe('inviting the same person again', () => {
+  const send = (email: string, role = 'crew') =>
+    owner.post('/api/firm/invitations').set('X-CSRF-Token', owner.csrf).send({ email, role });
+  const linksTo = async (email: string, n: number) => {
+    const mails = await ctx.inbox.waitFor((m) => m.to.includes(email), n);
+    return mails.map((m) => new URL(/^Accept the invitation:\n(\S+)$/m.exec(m.text)![1]!).pathname);
+  };
+  const open = async (email: string) =>
+    ctx
+      .knex('invitations')
+      .whereRaw('lower(email) = lower(?)', [email])
+      .whereNull('accepted_at')
+      .whereNull('withdrawn_at')
+      .pluck('id');
+
+  it('sends a new link and the one sent before stops working: one open invitation, both audited', async () => {
+    const email = 'lost.link@tideway.example';
+    const first = (await send(email).expect(201)).body;
+    expect(first.replaced).toEqual([]);
+    const [oldLink] = await linksTo(email, 1);
+    // Typed again with capitals, and as a scheduler this time: the same address.
+    const again = (await send('Lost.Link@tideway.example', 'scheduler').expect(201)).body;
+    expect(again).toMatchObject({ email, role: 'scheduler', replaced: [first.id] });
+    expect(await open(email)).toEqual([again.id]);
+    const links = await linksTo(email, 2);
+    const newLink = links.find((l) => l !== oldLink)!;
+    await request(ctx.waterline.app).get(oldLink!).expect(410);
+    await request(ctx.waterline.app).post(newLink).type('form').send({}).expect(200);
+    const audit = await ctx.knex('audit_log').where({ entity: 'invitation', entity_id: first.id }).pluck('action');
+    expect(audit).toEqual(['create', 'update']);
+    expect((await signIn(ctx, email).then((a) => a.get('/api/session'))).body.role).toBe('scheduler');
+  });
+
+  it('sent twice at once (a double-click): one open invitation, and only its link works', async () => {
+    const email = 'double.click@tideway.example';
+    const answers = await Promise.all([send(email), send(email)]);
+    // In turn, the second replaces the first; truly at once, the second is refused (below).
+    for (const a of answers) expect([201, 409]).toContain(a.status);
+    const [id] = await open(email);
+    expect(await open(email)).toHaveLength(1);
+    await waitForMailSettled(ctx, pipeline);
+    const links = (await ctx.inbox.list())
+      .filter((m) => m.to.includes(email))
+      .map((m) => new URL(/^Accept the invitation:\n(\S+)$/m.exec(m.text)![1]!).pathname);
+    const working = [];
+    for (const link of links) if ((await request(ctx.waterline.app).get(link)).status === 200) working.push(link);
+    expect(working).toHaveLength(1);
+    expect(id).toBeDefined();
+  });
+
+  it('one arriving while another to the same address is being written waits, then is refused by name (409)', async () => {
+    const email = 'same.moment@tideway.example';
+    const firmId = (await ctx.knex('firms').where('name', 'Tideway Hot Tubs').first('id')).id;
+    const trx = await ctx.knex.transaction();
+    await trx('invitations').insert({
+      firm_id: firmId,
+      email,
+      role: 'crew',
+      expires_at: new Date(Date.now() + 86_400_000),
+    });
+    const pending = send(email).then((r) => r);
+    // The request's insert waits on the open invitation being written (a lock not yet granted).
+    await waitUntil(async () => {
+      const waiting = await ctx.knex('pg_locks').where('granted', false).count<{ count: string }[]>('* as count');
+      return Number(waiting[0]!.count) > 0;
+    });
+    await trx.commit();
+    const refused = await pending;
+    expect(refused.status).toBe(409);
+    expect(refused.body).toMatchObject({
+      detail: 'An invitation to this address was sent a moment ago: it is in the list.',
+      errors: [{ field: 'email', message: 'was invited a moment ago' }],
+    });
+    expect(await open(email)).toHaveLength(1);
+  });
+
+  it('refuses someone already in the firm, naming the address, and sends nothing', async () => {
+    const before = await ctx.knex('invitations').count();
+    const res = await send(account('scheduler').email.toUpperCase(), 'manager').expect(409);
+    expect(res.body).toMatchObject({
+      code: 'member',
+      detail: `${account('scheduler').email} is already in your firm: change their role in the list of people instead.`,
+      errors: [{ field: 'email', message: 'is already in your firm' }],
+    });
+    expect(await ctx.knex('invitations').count()).toEqual(before);
   });
 });
