@@ -111,7 +111,7 @@ export const CONSTRAINT_REFUSALS: Record<string, PlainRefusal> = {
   invitations_one_open_per_address: {
     detail: 'An invitation to this address was sent a moment ago: it is in the list.',
     field: 'email',
-    message: 'was invited a moment ago',
+    message: 'is already invited: the invitation went a moment ago',
   },
   calendars_firm_id_name_unique: {
     detail: 'Another calendar of your firm already has this name.',

@@ -8,8 +8,16 @@ import type {
   CreateAbsence,
   CreateClosure,
 } from '../../shared/schemas/absences.ts';
-import { addDays, localSpanOf, localTimeOn, startOfLocalDay } from '../../shared/local-dates.ts';
-import { BadRequestError, NotFoundError } from '../errors.ts';
+import {
+  addDays,
+  dayOfDate,
+  localSpanOf,
+  localTimeOn,
+  startOfLocalDay,
+  type LocalSpan,
+} from '../../shared/local-dates.ts';
+import { formatDayOfWeek } from '../../shared/scheduler/format.ts';
+import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
 import { notifyFirmChange, notifyResourceChange } from './board-stream.ts';
@@ -82,6 +90,11 @@ export class AbsencesService {
       const r = await this.ownResource(actor, resourceId, trx);
       await lockOwnTime(trx, String(r.id));
       const { startsAt, endsAt } = instantsOf(input, r.timeZone);
+      refuseOverlap(
+        `${r.name} is already marked away`,
+        await overlapping(trx('calendar_exceptions').where('resource_id', r.id), startsAt, endsAt),
+        r.timeZone,
+      );
       const [row] = (await trx('calendar_exceptions')
         .insert({ resource_id: r.id, starts_at: startsAt, ends_at: endsAt, reason: input.reason })
         .returning(['id', 'resource_id', 'starts_at', 'ends_at', 'reason'])) as ExceptionRow[];
@@ -189,6 +202,11 @@ export class AbsencesService {
       if (calendars.length === 0) throw new NotFoundError('working calendar');
       await lockFirmTime(trx, actor.firmId);
       const { startsAt, endsAt } = instantsOf(input, timeZone);
+      refuseOverlap(
+        'The firm is already closed',
+        await overlapping(trx('calendar_exceptions').where('calendar_id', calendars[0]), startsAt, endsAt),
+        timeZone,
+      );
       const rows = await trx('calendar_exceptions')
         .insert(calendars.map((c) => ({ calendar_id: c, starts_at: startsAt, ends_at: endsAt, reason: input.reason })))
         .returning(['id', 'calendar_id', 'starts_at', 'ends_at', 'reason']);
@@ -225,6 +243,40 @@ export class AbsencesService {
       await notifyFirmChange(trx, actor.firmId);
     });
   }
+}
+
+/** Time away (or closed days) of `q` that [startsAt, endsAt) would overlap, soonest first. */
+async function overlapping(q: Knex.QueryBuilder, startsAt: Date, endsAt: Date): Promise<ExceptionRow[]> {
+  return (await q
+    .where('starts_at', '<', endsAt)
+    .where('ends_at', '>', startsAt)
+    .orderBy('starts_at')
+    .select('id', 'starts_at', 'ends_at', 'reason')) as ExceptionRow[];
+}
+
+/** "Tue 13 Oct", "Tue 13 Oct – Fri 16 Oct", "Thu 24 Dec from 13:00": days and times as the page lists them. */
+function spanWords(s: LocalSpan): string {
+  const day = (date: string) => formatDayOfWeek(dayOfDate(date)) ?? date;
+  if (s.from === s.to) {
+    if (s.fromTime && s.toTime) return `${day(s.from)} ${s.fromTime}–${s.toTime}`;
+    if (s.fromTime) return `${day(s.from)} from ${s.fromTime}`;
+    return s.toTime ? `${day(s.from)} until ${s.toTime}` : day(s.from);
+  }
+  return `${day(s.from)}${s.fromTime ? ` ${s.fromTime}` : ''} – ${day(s.to)}${s.toTime ? ` ${s.toTime}` : ''}`;
+}
+
+/**
+ * Time away that would overlap time away already marked is refused (409 `overlap`), naming it: the
+ * page lists one entry for each time away, and taking one off must not leave the other's days
+ * behind unseen. The caller holds the resource's (or the firm's) lock, so two at once queue here.
+ */
+function refuseOverlap(already: string, rows: ExceptionRow[], zone: string): void {
+  if (rows.length === 0) return;
+  const named = rows.map((e) => `${spanWords(localSpanOf(e.startsAt, e.endsAt, zone))} (${e.reason})`).join(', ');
+  throw new ConflictError(`${already} ${named}. Change the days, or take that off first.`, {
+    code: 'overlap',
+    errors: [{ field: 'from', message: 'must not overlap days already marked' }],
+  });
 }
 
 /**

@@ -76,6 +76,17 @@ describe('time away on the Resources page', () => {
       '2026-06-04T13:00:00.000Z',
       '2026-06-04T23:00:00.000Z',
     ]);
+    // The whole of that day again: it overlaps the afternoon marked, so it is named and not kept.
+    await panel.getByLabel('Part of a day').uncheck();
+    await panel.getByLabel('Why').fill('Holiday');
+    await panel.getByRole('button', { name: 'Mark away' }).click();
+    const overlap = panel.getByRole('alert');
+    await overlap.waitFor();
+    expect(await overlap.textContent()).toBe('First day away must not overlap days already marked');
+    expect(await panel.getByLabel('First day away').getAttribute('aria-describedby')).toBe(
+      await overlap.getAttribute('id'),
+    );
+    expect(await awayRows()).toEqual([{ reason: 'Dentist' }]);
     await panel.getByRole('button', { name: 'Take off…' }).click();
     await page.getByRole('button', { name: 'Take it off' }).click();
     await panel.getByText('No time away marked.').waitFor();

@@ -167,6 +167,71 @@ describe('marking a crew away', () => {
   });
 });
 
+describe('time away that overlaps time away already marked', () => {
+  it('is refused, naming what is marked, for whole days and part of a day; days next to it are fine', async () => {
+    const week = await markAway(scheduler, otter, { from: '2026-11-09', to: '2026-11-13', reason: 'Holiday' }).expect(
+      201,
+    );
+    const count = async () => Number((await ctx.knex('calendar_exceptions').count('* as n').first())!.n);
+    const was = await count();
+    for (const body of [
+      { from: '2026-11-09', to: '2026-11-13', reason: 'Holiday' },
+      { from: '2026-11-12', to: '2026-11-17', reason: 'Holiday' },
+      { from: '2026-11-11', to: '2026-11-11', fromTime: '14:00', reason: 'Dentist' },
+    ]) {
+      const res = await markAway(scheduler, otter, body).expect(409);
+      expect(res.body).toMatchObject({
+        code: 'overlap',
+        detail:
+          'Crew Otter is already marked away Mon 9 Nov – Fri 13 Nov (Holiday). Change the days, or take that off first.',
+        errors: [{ field: 'from', message: 'must not overlap days already marked' }],
+      });
+    }
+    expect(await count()).toBe(was);
+    // The Friday after, and the Sunday before: they meet it, they do not overlap it.
+    const after = await markAway(scheduler, otter, { from: '2026-11-14', to: '2026-11-14', reason: 'Training' }).expect(
+      201,
+    );
+    const before = await markAway(scheduler, otter, {
+      from: '2026-11-08',
+      to: '2026-11-08',
+      fromTime: '09:00',
+      reason: 'Training',
+    }).expect(201);
+    const part = await markAway(scheduler, otter, {
+      from: '2026-11-08',
+      to: '2026-11-08',
+      toTime: '10:00',
+      reason: 'Dentist',
+    }).expect(409);
+    expect(part.body.detail).toBe(
+      'Crew Otter is already marked away Sun 8 Nov from 09:00 (Training). Change the days, or take that off first.',
+    );
+    for (const id of [week.body.absence.id, after.body.absence.id, before.body.absence.id])
+      await scheduler.delete(`/api/absences/${id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+  });
+
+  it('sent twice at once (a double-click): one is kept, the other refused', async () => {
+    const body = { from: '2026-11-20', to: '2026-11-20', reason: 'Holiday' };
+    const answers = await Promise.all([markAway(scheduler, otter, body), markAway(scheduler, otter, body)]);
+    expect(answers.map((a) => a.status).sort()).toEqual([201, 409]);
+    const listed = (await scheduler.get(`/api/resources/${otter}/absences`).expect(200)).body.items.filter(
+      (a: { from: string }) => a.from === '2026-11-20',
+    );
+    expect(listed).toHaveLength(1);
+    await scheduler.delete(`/api/absences/${listed[0].id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+  });
+
+  it("another resource's time away, or the firm's closed days, are no overlap", async () => {
+    const heron = await idOf(ctx.knex, 'resources', { name: 'Crew Heron' });
+    const body = { from: '2026-11-23', to: '2026-11-23', reason: 'Holiday' };
+    const a = await markAway(scheduler, otter, body).expect(201);
+    const b = await markAway(scheduler, heron, body).expect(201);
+    await scheduler.delete(`/api/absences/${a.body.absence.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+    await scheduler.delete(`/api/absences/${b.body.absence.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+  });
+});
+
 describe('part of a day away', () => {
   it('keeps the time it starts or ends, shades only that part of the day, and the engine books around it', async () => {
     const job = await makeJob(ctx.knex, {
@@ -448,6 +513,21 @@ describe('closing the whole firm', () => {
       end: Date.UTC(2026, 5, 12, 23),
     });
     await scheduler.delete(`/api/firm/closures/${res.body.closure.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
+  });
+
+  it('refuses closed days that overlap days already closed, naming them, twice at once too', async () => {
+    const res = await close(scheduler, { from: '2026-06-10', to: '2026-06-11', reason: 'Works shutdown' }).expect(409);
+    expect(res.body).toMatchObject({
+      code: 'overlap',
+      detail: 'The firm is already closed Wed 10 Jun (Works shutdown). Change the days, or take that off first.',
+      errors: [{ field: 'from', message: 'must not overlap days already marked' }],
+    });
+    const body = { from: '2026-12-29', to: '2026-12-30', reason: 'Stocktake' };
+    const answers = await Promise.all([close(scheduler, body), close(scheduler, body)]);
+    expect(answers.map((a) => a.status).sort()).toEqual([201, 409]);
+    const kept = answers.find((a) => a.status === 201)!.body.closure;
+    expect((await scheduler.get('/api/firm/closures').expect(200)).body.items).toContainEqual(kept);
+    await scheduler.delete(`/api/firm/closures/${kept.id}`).set('X-CSRF-Token', scheduler.csrf).expect(204);
   });
 
   it('opens the firm again on every calendar, and another firm cannot take it off', async () => {

@@ -257,7 +257,7 @@ describe('inviting the same person again', () => {
     expect(refused.status).toBe(409);
     expect(refused.body).toMatchObject({
       detail: 'An invitation to this address was sent a moment ago: it is in the list.',
-      errors: [{ field: 'email', message: 'was invited a moment ago' }],
+      errors: [{ field: 'email', message: 'is already invited: the invitation went a moment ago' }],
     });
     expect(await open(email)).toHaveLength(1);
   });
