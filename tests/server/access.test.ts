@@ -407,6 +407,34 @@ function validBody(
       return { body: { name: 'Renamed week', previousName: 'Standard week' } };
     case 'put /api/resources/:id/calendar':
       return { body: { calendarId: ids.calendar, was: ids.calendar } };
+    // Routes without an id, so the hostile-input sweep below reaches past validation into the service.
+    case 'post /api/bookings':
+      return { body: { stageId: ids.stage, resourceId: ids.resource, startsAt: '2026-09-02T08:00:00Z' } };
+    case 'post /api/bookings/batch':
+      return {
+        body: { bookings: [{ stageId: ids.stage, resourceId: ids.resource, startsAt: '2026-09-02T08:00:00Z' }] },
+      };
+    case 'post /api/jobs':
+      return {
+        body: {
+          reference: 'TW-3999',
+          customerName: 'Ines Calloway',
+          siteAddress: '4 Heron Row',
+          siteTown: 'Otley',
+          sitePostcode: 'LS21 3AB',
+          installationType: 'slab',
+        },
+      };
+    case 'post /api/resources':
+      return { body: { name: 'Crew Sweep', category: 'crew', kind: 'install_crew' } };
+    case 'post /api/firm/calendars':
+      return { body: { name: 'Sweep week' } };
+    case 'post /api/firm/invitations':
+      return { body: { email: 'sweep@tideway.example', role: 'viewer' } };
+    case 'post /api/plan/slots':
+      return { body: { stageId: ids.stage, resourceKind: 'install_crew' } };
+    case 'post /api/plan/auto-place':
+      return { body: { jobIds: [ids.job], budgetMs: 0 } };
     case 'post /api/firm/closures':
     case 'post /api/resources/:id/absences':
       return { body: { from: '2026-09-21', to: '2026-09-21', reason: 'Holiday' } };
@@ -658,6 +686,17 @@ describe('hostile input on every route (generated from the route table)', () => 
           for (const f of Object.keys(base.body ?? {})) bodies.push([`${f} ${what}`, { ...base.body, [f]: value }]);
         }
         bodies.push(['array body', []], ['text body', 'x'], ['number body', 7]);
+        // The base itself passes validation, so each change of one field is what is refused or taken.
+        if (base.body) {
+          const agent = agents.get(role)!;
+          const req = agent[route.method](path).set('X-CSRF-Token', agent.csrf);
+          if (base.query) req.query(base.query);
+          const res = await req.send(base.body);
+          if (res.status === 400)
+            verdicts.push(
+              `${role} ${route.method.toUpperCase()} ${route.path}: its base body is refused ${JSON.stringify(res.body.errors)}`,
+            );
+        }
         for (const [what, body] of bodies) {
           const agent = agents.get(role)!;
           const req = agent[route.method](path).set('X-CSRF-Token', agent.csrf).set('Content-Type', 'application/json');
