@@ -55,6 +55,26 @@ afterAll(async () => {
 const card = (id: string) => page.locator(`[data-slot-id="${id}"]`);
 
 describe('our slots on a phone', () => {
+  it('jumps from the top to each list, the keyboard with it', async () => {
+    await page.goto(`${app.url}/slots`);
+    const jump = page.getByRole('navigation', { name: 'Slots by state' });
+    await jump.waitFor();
+    const links = await jump.getByRole('link').allTextContents();
+    const headings = await page.getByRole('heading', { level: 2 }).allTextContents();
+    // One link a list, worded as its heading, with its count.
+    expect(links).toEqual(headings.map((h) => h.replace(/\s+/g, ' ').trim()));
+    expect(links.length).toBeGreaterThan(1);
+    const last = jump.getByRole('link').last();
+    await last.click();
+    const heading = page.getByRole('heading', { level: 2 }).last();
+    await expect.poll(() => heading.evaluate((el) => el === document.activeElement)).toBe(true);
+    // Its heading is at the top of the screen, far down the page.
+    const box = await heading.boundingBox();
+    expect(Math.abs(box!.y)).toBeLessThan(5);
+    expect(await page.evaluate(() => scrollY)).toBeGreaterThan(844);
+    expect(new URL(page.url()).hash).toBe('');
+  });
+
   it('confirms a slot from its card', async () => {
     await page.goto(`${app.url}/slots`);
     await card(first.id).waitFor();
