@@ -324,6 +324,30 @@ describe("a hire's dates, changed on a phone and put back", () => {
   const machineId = async () =>
     String((await app.ctx.knex('resources').where({ name: '3 t excavator (hired)' }).first('id')).id);
 
+  it('goes from the top of Reports to each table, the keyboard with it', async () => {
+    const { context, phone } = await managerPhone();
+    try {
+      await phone.goto(`${app.url}/reports`);
+      const parts = phone.getByRole('navigation', { name: 'Parts of this page' });
+      await parts.waitFor();
+      expect(await parts.getByRole('link').allTextContents()).toEqual([
+        'Clashes',
+        'Hired machines',
+        'Jobs at risk',
+        'Utilisation',
+      ]);
+      for (const name of ['Utilisation', 'Clashes']) {
+        const heading = phone.getByRole('heading', { level: 2, name, exact: true });
+        await heading.waitFor();
+        await parts.getByRole('link', { name, exact: true }).click();
+        await expect.poll(() => heading.evaluate((el) => el === document.activeElement)).toBe(true);
+        await expect.poll(async () => Math.round((await heading.boundingBox())!.y)).toBeLessThan(5);
+      }
+    } finally {
+      await context.close();
+    }
+  });
+
   it('names the booking an earlier off-hire leaves off hire, and Undo puts the exact times back', async () => {
     const { context, phone } = await managerPhone();
     try {
