@@ -18,6 +18,8 @@ export interface InvitationView {
   acceptedAt: string | null;
   /** When an owner withdrew it (its link no longer works); null while it stands. */
   withdrawnAt: string | null;
+  /** The invitation to the same address that replaced it (withdrawn by inviting again); null otherwise. */
+  replacedBy: string | null;
   firmName: string;
 }
 
@@ -39,6 +41,7 @@ interface InvitationRow {
   expiresAt: Date;
   acceptedAt: Date | null;
   withdrawnAt: Date | null;
+  replacedBy: string | null;
   firmName: string;
   firmId: string;
 }
@@ -50,6 +53,7 @@ const toView = (r: InvitationRow): InvitationView => ({
   expiresAt: r.expiresAt.toISOString(),
   acceptedAt: r.acceptedAt?.toISOString() ?? null,
   withdrawnAt: r.withdrawnAt?.toISOString() ?? null,
+  replacedBy: r.replacedBy === null || r.replacedBy === undefined ? null : String(r.replacedBy),
   firmName: r.firmName,
 });
 
@@ -75,6 +79,7 @@ export class InvitationsService {
         'i.expires_at',
         'i.accepted_at',
         'i.withdrawn_at',
+        'i.replaced_by',
         'i.firm_id',
         'f.name as firm_name',
       );
@@ -108,8 +113,6 @@ export class InvitationsService {
           .update({ withdrawn_at: now, withdrawn_by: actor.userId })
           .returning('id')
       ).map((r: { id: string | number }) => String(r.id));
-      for (const id of replaced)
-        await recordChange(trx, actor, 'invitation', id, 'update', { withdrawnAt: null }, { withdrawnAt: now });
       const [row] = await trx('invitations')
         .insert({
           firm_id: actor.firmId,
@@ -119,6 +122,17 @@ export class InvitationsService {
           expires_at: new Date(this.now() + INVITATION_DAYS * 86_400_000),
         })
         .returning('id');
+      if (replaced.length > 0) await trx('invitations').whereIn('id', replaced).update({ replaced_by: row.id });
+      for (const id of replaced)
+        await recordChange(
+          trx,
+          actor,
+          'invitation',
+          id,
+          'update',
+          { withdrawnAt: null },
+          { withdrawnAt: now, replacedBy: String(row.id) },
+        );
       await enqueueMessage(trx, `invitation.${row.id}`, 'invitation', { invitationId: String(row.id) });
       await recordChange(trx, actor, 'invitation', String(row.id), 'create', null, {
         email: input.email,

@@ -8,6 +8,8 @@ export interface InvitationRow {
   expiresAt: string;
   acceptedAt: string | null;
   withdrawnAt: string | null;
+  /** The invitation that replaced it, when the same address was invited again. */
+  replacedBy?: string | null;
 }
 
 /**
@@ -25,6 +27,8 @@ export function invitationStatus(
 ): { text: string; open: boolean } {
   const day = (iso: string) => formatCalendarDate(localDateOf(Date.parse(iso), timeZone), { currentYear });
   if (inv.acceptedAt) return { text: `Accepted ${day(inv.acceptedAt)}`, open: false };
+  if (inv.withdrawnAt && inv.replacedBy)
+    return { text: `Sent again ${day(inv.withdrawnAt)}: this link no longer works`, open: false };
   if (inv.withdrawnAt) return { text: `Withdrawn ${day(inv.withdrawnAt)}`, open: false };
   if (Date.parse(inv.expiresAt) <= now)
     return { text: `Not accepted; the link ran out ${day(inv.expiresAt)}`, open: false };

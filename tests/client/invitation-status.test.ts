@@ -30,6 +30,10 @@ describe("an invitation's standing in words", () => {
       text: 'Withdrawn Sat 30 May',
       open: false,
     });
+    // Withdrawn by inviting the same address again: said so, not left looking withdrawn by hand.
+    expect(
+      invitationStatus(inv({ withdrawnAt: '2026-05-30T10:00:00Z', replacedBy: '7' }), NOW, 'Europe/London', 2026),
+    ).toEqual({ text: 'Sent again Sat 30 May: this link no longer works', open: false });
     expect(invitationStatus(inv({ expiresAt: '2026-05-31T10:00:00Z' }), NOW, 'Europe/London', 2026)).toEqual({
       text: 'Not accepted; the link ran out Sun 31 May',
       open: false,

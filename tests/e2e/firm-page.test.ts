@@ -288,7 +288,7 @@ describe("the firm's invitations", () => {
       .getByText('Invitation sent again to nell.lost@tideway.example: the link sent before no longer works')
       .waitFor();
     const rows = list.locator('li', { hasText: 'nell.lost@tideway.example' });
-    await rows.getByText(/^Withdrawn /).waitFor();
+    await rows.getByText(/^Sent again Mon 1 Jun: this link no longer works$/).waitFor();
     expect(await rows.getByText(/^Not accepted yet/).count()).toBe(1);
 
     await address.fill(account('scheduler').email);

@@ -214,8 +214,16 @@ describe('inviting the same person again', () => {
     const newLink = links.find((l) => l !== oldLink)!;
     await request(ctx.waterline.app).get(oldLink!).expect(410);
     await request(ctx.waterline.app).post(newLink).type('form').send({}).expect(200);
-    const audit = await ctx.knex('audit_log').where({ entity: 'invitation', entity_id: first.id }).pluck('action');
-    expect(audit).toEqual(['create', 'update']);
+    const audit = await ctx
+      .knex('audit_log')
+      .where({ entity: 'invitation', entity_id: first.id })
+      .orderBy('id')
+      .select('action', 'after');
+    expect(audit.map((a) => a.action)).toEqual(['create', 'update']);
+    expect(audit[1]!.after).toMatchObject({ replacedBy: again.id });
+    const listed = (await owner.get('/api/firm/invitations').expect(200)).body.items;
+    expect(listed.find((i: { id: string }) => i.id === first.id)).toMatchObject({ replacedBy: again.id });
+    expect(listed.find((i: { id: string }) => i.id === again.id)).toMatchObject({ replacedBy: null });
     expect((await signIn(ctx, email).then((a) => a.get('/api/session'))).body.role).toBe('scheduler');
   });
 
