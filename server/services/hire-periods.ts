@@ -15,6 +15,8 @@ import { recordChange } from './audit.ts';
 import { notifyResourceChange } from './board-stream.ts';
 import { lockResources } from './booking-writes.ts';
 import { findVisible, scoped } from './scope.ts';
+import { dayOfDate, localDateOf } from '../../shared/local-dates.ts';
+import { formatDayOfWeek } from '../../shared/scheduler/format.ts';
 
 /** The model has no typed version yet: the migration 20261215000100 adds it and updated_at. */
 type VersionedHire = HirePeriod & { version: number; updatedAt: Date };
@@ -63,6 +65,8 @@ export class HirePeriodsService {
           { field: 'supplierFirmId', message: 'is not a firm you work with' },
         ]);
       }
+      if (!input.alsoOverlapping)
+        await askIfOverlapping(trx, actor, String(resource.id), new Date(input.onHireAt), new Date(input.offHireAt));
       const inserted = (await HirePeriod.query(trx)
         .insert({
           resourceId: input.resourceId,
@@ -108,6 +112,9 @@ export class HirePeriodsService {
           },
         ]);
       }
+      // Only new days are asked about: an overlap the hire already had was answered when it was made.
+      if ((input.onHireAt || input.offHireAt) && !input.alsoOverlapping)
+        await askIfOverlapping(trx, actor, String(before.resourceId), onHireAt, offHireAt, id);
       const status = input.status ?? before.status;
       const after = (await HirePeriod.query(trx).patchAndFetchById(id, {
         onHireAt,
@@ -217,4 +224,47 @@ export class HirePeriodsService {
       (b) => inside(was, b) && !inside(is, b),
     );
   }
+}
+
+/**
+ * Another hire of the machine over any of [onHireAt, offHireAt) is asked about first (409
+ * `hire-overlap`, naming it): one machine paid for twice over the same days is most often a hire
+ * recorded twice. It is not forbidden (the supplier may really have charged both, and the hire
+ * report then suggests merging them): sent again with `alsoOverlapping`, it is saved. Hires that
+ * meet, one ending as the next starts, do not overlap. Called under the machine's lock.
+ */
+async function askIfOverlapping(
+  trx: Knex.Transaction,
+  actor: Actor,
+  resourceId: string,
+  onHireAt: Date,
+  offHireAt: Date,
+  exceptId?: string,
+): Promise<void> {
+  const q = trx('hire_periods as h')
+    .join('firms as s', 's.id', 'h.supplier_firm_id')
+    .join('resources as r', 'r.id', 'h.resource_id')
+    .where('h.resource_id', resourceId)
+    .where('h.on_hire_at', '<', offHireAt)
+    .where('h.off_hire_at', '>', onHireAt)
+    .orderBy('h.on_hire_at')
+    .first('h.id', 'h.on_hire_at', 'h.off_hire_at', 's.name as supplier', 'r.name as machine');
+  if (exceptId !== undefined) q.whereNot('h.id', exceptId);
+  const other = (await q) as
+    { id: string; onHireAt: Date; offHireAt: Date; supplier: string; machine: string } | undefined;
+  if (!other) return;
+  const { timeZone } = (await trx('firms').where('id', actor.firmId).first('time_zone')) as { timeZone: string };
+  const day = (t: number) => formatDayOfWeek(dayOfDate(localDateOf(t, timeZone))) ?? localDateOf(t, timeZone);
+  throw new ConflictError(
+    `${other.machine} is already on hire ${day(other.onHireAt.getTime())} – ${day(other.offHireAt.getTime() - 1)} from ${other.supplier}: both hires would be paid for over the days they share.`,
+    {
+      code: 'hire-overlap',
+      overlapping: {
+        id: String(other.id),
+        onHireAt: other.onHireAt.toISOString(),
+        offHireAt: other.offHireAt.toISOString(),
+        supplierName: other.supplier,
+      },
+    },
+  );
 }

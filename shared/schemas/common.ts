@@ -140,10 +140,20 @@ export type Problem = z.infer<typeof Problem>;
  *
  * @example UpdateThing.strict().refine(...NAMES_A_CHANGE)
  */
-export const NAMES_A_CHANGE = [
-  (patch: object) => Object.keys(patch).some((k) => k !== 'version'),
-  {
-    message: 'names nothing to change: send at least one field with the version',
-    when: (payload: { issues: readonly unknown[] }) => payload.issues.length === 0,
-  },
-] as const;
+export const NAMES_A_CHANGE = namesAChange();
+
+/**
+ * {@link NAMES_A_CHANGE} for an update that also takes fields which change nothing by themselves
+ * (an answer to a question, such as "record it as well"): they do not count as the change.
+ *
+ * @example UpdateHire.strict().refine(...namesAChange('alsoOverlapping'))
+ */
+export function namesAChange(...besides: string[]) {
+  return [
+    (patch: object) => Object.keys(patch).some((k) => k !== 'version' && !besides.includes(k)),
+    {
+      message: 'names nothing to change: send at least one field with the version',
+      when: (payload: { issues: readonly unknown[] }) => payload.issues.length === 0,
+    },
+  ] as const;
+}

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { Id, NAMES_A_CHANGE, requiredAs, WorkInstant } from './common.ts';
+import { Id, namesAChange, requiredAs, WorkInstant } from './common.ts';
 import type { AffectedBooking } from './absences.ts';
 
 const pence = (what: string) =>
@@ -21,6 +21,8 @@ export const CreateHirePeriod = z
     collectionPence: pence('The collection charge').default(0),
     /** Record it already approved (the manager's own hire) or as requested. */
     approve: z.boolean().default(false),
+    /** The manager was told it overlaps another hire of the machine, and records it as well. */
+    alsoOverlapping: z.boolean().default(false),
   })
   .refine((h) => Date.parse(h.offHireAt) > Date.parse(h.onHireAt), {
     path: ['offHireAt'],
@@ -38,10 +40,12 @@ export const UpdateHirePeriod = z
     dayRatePence: pence('The day rate').optional(),
     deliveryPence: pence('The delivery charge').optional(),
     collectionPence: pence('The collection charge').optional(),
+    /** As on recording one: new days that overlap another hire of the machine are saved as well. */
+    alsoOverlapping: z.boolean().optional(),
   })
   // A field it doesn't take is refused, not dropped, and so is a change that names no field.
   .strict()
-  .refine(...NAMES_A_CHANGE)
+  .refine(...namesAChange('alsoOverlapping'))
   .refine(
     (h) => h.onHireAt === undefined || h.offHireAt === undefined || Date.parse(h.offHireAt) > Date.parse(h.onHireAt),
     { path: ['offHireAt'], message: 'must be after the on-hire' },

@@ -13,7 +13,16 @@ export function useAction(fields?: FieldErrors) {
   const { showProblem, showDone } = useProblemMessage();
   const busy = ref<string | null>(null);
 
-  async function run(key: string, action: () => Promise<unknown>, done: string | (() => string)): Promise<boolean> {
+  /**
+   * `handled`: a refusal the caller answers itself (a question to ask first): not shown, and false
+   * comes back as for any other.
+   */
+  async function run(
+    key: string,
+    action: () => Promise<unknown>,
+    done: string | (() => string),
+    options: { handled?: (caught: unknown) => boolean } = {},
+  ): Promise<boolean> {
     busy.value = key;
     try {
       await action();
@@ -21,6 +30,7 @@ export function useAction(fields?: FieldErrors) {
       showDone(typeof done === 'function' ? done() : done);
       return true;
     } catch (caught) {
+      if (options.handled?.(caught)) return false;
       fields?.take(caught);
       showProblem(caught);
       return false;

@@ -301,6 +301,29 @@ describe('office pages on a phone', () => {
         .orderBy('id', 'desc')
         .first('day_rate_pence', 'delivery_pence', 'status');
       expect(saved).toEqual({ dayRatePence: 14550, deliveryPence: 0, status: 'approved' });
+
+      // The same machine again over some of those days: asked first, naming the hire it overlaps.
+      const count = async () =>
+        Number((await app.ctx.knex('hire_periods').count<{ n: string }[]>('* as n').first())!.n);
+      const was = await count();
+      await page.getByRole('button', { name: 'Record a hire…' }).click();
+      await form.getByLabel('Machine').selectOption({ index: 1 });
+      await form.getByLabel('Supplier').selectOption({ index: 1 });
+      await form.getByLabel('On hire from').fill('2026-09-16');
+      await form.getByLabel('Off hire after').fill('2026-09-23');
+      await form.getByLabel('Day rate (£)').fill('145.50');
+      await form.getByRole('button', { name: 'Record the hire' }).click();
+      const question = page.getByRole('dialog', { name: 'The machine is already on hire then' });
+      await question.waitFor();
+      expect(await question.textContent()).toMatch(
+        /is already on hire Fri 11 Sep – Fri 18 Sep from .+: both hires would be paid for over the days they share\. Record this hire as well\?/,
+      );
+      await question.getByRole('button', { name: 'Go back' }).click();
+      await question.waitFor({ state: 'hidden' });
+      expect(await count()).toBe(was);
+      await form.getByRole('button', { name: 'Record the hire' }).click();
+      await question.getByRole('button', { name: 'Record it as well' }).click();
+      await expect.poll(count).toBe(was + 1);
     } finally {
       page.off('request', onRequest);
     }
@@ -385,6 +408,59 @@ describe("a hire's dates, changed on a phone and put back", () => {
       await expect.poll(() => status.count(), { timeout: 10_000 }).toBe(0);
       expect(await stored()).toEqual({ ...before, version: before.version + 2 });
     } finally {
+      await context.close();
+    }
+  }, 60_000);
+
+  it('asks before new days run into another hire of the machine, and saves them only when told to', async () => {
+    const { context, phone } = await managerPhone();
+    const machine = await machineId();
+    const demo = await app.ctx
+      .knex('hire_periods')
+      .where({ resource_id: machine })
+      .orderBy('id')
+      .first('id', 'supplier_firm_id', 'off_hire_at', 'version');
+    // A second hire of the machine, from the Monday after the demo's hire ends, for a week.
+    const startsAt = new Date(demo.offHireAt.getTime() + 7 * 86_400_000);
+    const [next] = await app.ctx
+      .knex('hire_periods')
+      .insert({
+        resource_id: machine,
+        hirer_firm_id: (await app.ctx.knex('resources').where({ id: machine }).first('firm_id')).firmId,
+        supplier_firm_id: demo.supplierFirmId,
+        on_hire_at: startsAt,
+        off_hire_at: new Date(startsAt.getTime() + 4 * 86_400_000),
+        day_rate_pence: 14500,
+        status: 'approved',
+      })
+      .returning('id');
+    try {
+      await phone.goto(`${app.url}/reports`);
+      await phone
+        .getByRole('button', { name: /^Change the dates of the hire of 3 t excavator \(hired\)/ })
+        .first()
+        .click();
+      const dialog = phone.getByRole('dialog', { name: 'Change the hire of 3 t excavator (hired)' });
+      // Kept on hire into the second hire's days.
+      const into = new Date(startsAt.getTime() + 86_400_000).toISOString().slice(0, 10);
+      await dialog.getByLabel('Off hire after').fill(into);
+      await dialog.getByRole('button', { name: 'Save the dates' }).click();
+      const question = phone.getByRole('dialog', { name: 'The machine is already on hire then' });
+      await question.waitFor();
+      expect(await question.textContent()).toMatch(/Save these days as well\?/);
+      await question.getByRole('button', { name: 'Go back' }).click();
+      await question.waitFor({ state: 'hidden' });
+      const version = async () => (await app.ctx.knex('hire_periods').where({ id: demo.id }).first('version')).version;
+      expect(await version()).toBe(demo.version);
+      await dialog.getByRole('button', { name: 'Save the dates' }).click();
+      await question.getByRole('button', { name: 'Save them as well' }).click();
+      await expect.poll(version, { timeout: 10_000 }).toBe(demo.version + 1);
+    } finally {
+      await app.ctx.knex('hire_periods').where({ id: next.id }).del();
+      await app.ctx
+        .knex('hire_periods')
+        .where({ id: demo.id })
+        .update({ off_hire_at: demo.offHireAt, version: demo.version });
       await context.close();
     }
   }, 60_000);

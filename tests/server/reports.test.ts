@@ -329,7 +329,47 @@ describe('the hire report', () => {
       recordDiggerHire(onHireAt, offHireAt, { deliveryPence, collectionPence: 6000, approve: true });
     // Thu 25 – Fri 26 Jun again: two paid days on both hires. Then Tue 30 Jun after a one-working-day
     // gap (Mon 29), delivered for £100.00: collecting and delivering again costs more than the day.
-    const overlapping = await hire('2026-06-25T06:00:00Z', '2026-06-26T17:00:00Z', 6000);
+    // Overlapping the hire from Mon 22 Jun: asked about first, naming it, then recorded as well.
+    const ridgeway = await idOf(ctx.knex, 'firms', { name: 'Ridgeway Plant Hire' });
+    const asked = await manager
+      .post('/api/hire-periods')
+      .set('X-CSRF-Token', manager.csrf)
+      .send({
+        supplierFirmId: ridgeway,
+        resourceId: digger,
+        onHireAt: '2026-06-25T06:00:00Z',
+        offHireAt: '2026-06-26T17:00:00Z',
+        dayRatePence: 14500,
+      })
+      .expect(409);
+    expect(asked.body).toMatchObject({
+      code: 'hire-overlap',
+      detail:
+        'Test mini digger (hired) is already on hire Mon 22 Jun – Fri 26 Jun from Ridgeway Plant Hire: both hires would be paid for over the days they share.',
+      overlapping: { id: hireId, supplierName: 'Ridgeway Plant Hire' },
+    });
+    const overlapping = await recordDiggerHire('2026-06-25T06:00:00Z', '2026-06-26T17:00:00Z', {
+      deliveryPence: 6000,
+      collectionPence: 6000,
+      approve: true,
+      alsoOverlapping: true,
+    });
+    // A change of its price alone is not asked about again: its days were answered for.
+    await manager
+      .patch(`/api/hire-periods/${overlapping}`)
+      .set('X-CSRF-Token', manager.csrf)
+      .send({ version: 1, dayRatePence: 14500 })
+      .expect(200);
+    // The answer alone is no change.
+    expect(
+      (
+        await manager
+          .patch(`/api/hire-periods/${overlapping}`)
+          .set('X-CSRF-Token', manager.csrf)
+          .send({ version: 2, alsoOverlapping: true })
+          .expect(400)
+      ).body.errors,
+    ).toEqual([{ field: '(body)', message: 'names nothing to change: send at least one field with the version' }]);
     const later = await hire('2026-06-30T06:00:00Z', '2026-06-30T17:00:00Z', 10000);
     // Wed 1 Jul, the next day after that one: no working day between.
     const next = await hire('2026-07-01T06:00:00Z', '2026-07-01T17:00:00Z', 10000);
@@ -570,7 +610,7 @@ describe("changing a hire's dates", () => {
 
   it('does not name a booking another hire of the machine still covers, until that hire is cancelled', async () => {
     // A second hire of the digger on Wed 24 Jun alone, and one that started before today (Mon 1 Jun).
-    const other = await recordDiggerHire('2026-06-23T23:00:00Z', '2026-06-24T22:59:00Z');
+    const other = await recordDiggerHire('2026-06-23T23:00:00Z', '2026-06-24T22:59:00Z', { alsoOverlapping: true });
     const started = await recordDiggerHire('2026-05-25T07:00:00Z', '2026-06-05T16:00:00Z');
     onTestFinished(async () => {
       await ctx.knex('hire_periods').whereIn('id', [other, started]).del();
@@ -699,7 +739,11 @@ describe("changing a hire's dates", () => {
         .body.code,
     ).toBe('hire-started');
     // Reopened (the end's Undo): approved again with the off-hire it had, and nothing left off hire.
-    const reopened = await patch(started, { version: 3, status: 'approved', offHireAt: '2026-06-05T16:00:00Z' });
+    // Its old off-hire now overlaps the hire from Tue 2 Jun: asked about first (the page's Undo
+    // answers for the manager: it puts back what was).
+    const back = { version: 3, status: 'approved', offHireAt: '2026-06-05T16:00:00Z' };
+    expect((await patch(started, back).expect(409)).body.code).toBe('hire-overlap');
+    const reopened = await patch(started, { ...back, alsoOverlapping: true });
     expect(reopened.status).toBe(200);
     expect(reopened.body.hire).toMatchObject({ status: 'approved', offHireAt: '2026-06-05T16:00:00.000Z', version: 4 });
     expect(reopened.body.affected).toEqual([]);
