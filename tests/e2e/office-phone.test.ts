@@ -318,6 +318,7 @@ describe('office pages on a phone', () => {
       expect(await question.textContent()).toMatch(
         /is already on hire Fri 11 Sep – Fri 18 Sep from .+: both hires would be paid for over the days they share\. Record this hire as well\?/,
       );
+      await page.screenshot({ path: 'tests/e2e/artifacts/hire-overlap-question.png' });
       await question.getByRole('button', { name: 'Go back' }).click();
       await question.waitFor({ state: 'hidden' });
       expect(await count()).toBe(was);
