@@ -1,4 +1,5 @@
 import { dayNumber, isoDateOfDay, localDayOf, localToInstant, timeZoneOffset } from './scheduler/time-zone.ts';
+import { formatDayOfWeek } from './scheduler/format.ts';
 
 /**
  * Calendar dates (`YYYY-MM-DD`) as a firm means them: a day on the firm's own clock, never a fixed
@@ -183,4 +184,15 @@ export function localSpanOf(start: InstantLike, end: InstantLike, zone: string):
     fromTime: s === startOfLocalDay(from, zone) ? null : localTimeOf(s, zone),
     toTime: endsAtMidnight ? null : localTimeOf(e, zone),
   };
+}
+
+/**
+ * A date as the server's sentences say it, "Tue 13 Oct" (no year: the sentence is about the plan
+ * at hand); a date outside the years 1000 to 9999 as it is.
+ *
+ * @example
+ * dateWords('2026-10-13') // 'Tue 13 Oct'
+ */
+export function dateWords(date: string): string {
+  return formatDayOfWeek(dayOfDate(date)) ?? date;
 }

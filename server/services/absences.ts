@@ -10,13 +10,12 @@ import type {
 } from '../../shared/schemas/absences.ts';
 import {
   addDays,
-  dayOfDate,
+  dateWords,
   localSpanOf,
   localTimeOn,
   startOfLocalDay,
   type LocalSpan,
 } from '../../shared/local-dates.ts';
-import { formatDayOfWeek } from '../../shared/scheduler/format.ts';
 import { BadRequestError, ConflictError, NotFoundError } from '../errors.ts';
 import { reachOf, type Actor } from './actor.ts';
 import { recordChange } from './audit.ts';
@@ -256,13 +255,12 @@ async function overlapping(q: Knex.QueryBuilder, startsAt: Date, endsAt: Date): 
 
 /** "Tue 13 Oct", "Tue 13 Oct – Fri 16 Oct", "Thu 24 Dec from 13:00": days and times as the page lists them. */
 function spanWords(s: LocalSpan): string {
-  const day = (date: string) => formatDayOfWeek(dayOfDate(date)) ?? date;
   if (s.from === s.to) {
-    if (s.fromTime && s.toTime) return `${day(s.from)} ${s.fromTime}–${s.toTime}`;
-    if (s.fromTime) return `${day(s.from)} from ${s.fromTime}`;
-    return s.toTime ? `${day(s.from)} until ${s.toTime}` : day(s.from);
+    if (s.fromTime && s.toTime) return `${dateWords(s.from)} ${s.fromTime}–${s.toTime}`;
+    if (s.fromTime) return `${dateWords(s.from)} from ${s.fromTime}`;
+    return s.toTime ? `${dateWords(s.from)} until ${s.toTime}` : dateWords(s.from);
   }
-  return `${day(s.from)}${s.fromTime ? ` ${s.fromTime}` : ''} – ${day(s.to)}${s.toTime ? ` ${s.toTime}` : ''}`;
+  return `${dateWords(s.from)}${s.fromTime ? ` ${s.fromTime}` : ''} – ${dateWords(s.to)}${s.toTime ? ` ${s.toTime}` : ''}`;
 }
 
 /**

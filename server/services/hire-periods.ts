@@ -15,8 +15,7 @@ import { recordChange } from './audit.ts';
 import { notifyResourceChange } from './board-stream.ts';
 import { lockResources } from './booking-writes.ts';
 import { findVisible, scoped } from './scope.ts';
-import { dayOfDate, localDateOf } from '../../shared/local-dates.ts';
-import { formatDayOfWeek } from '../../shared/scheduler/format.ts';
+import { dateWords, localDateOf } from '../../shared/local-dates.ts';
 
 /** The model has no typed version yet: the migration 20261215000100 adds it and updated_at. */
 type VersionedHire = HirePeriod & { version: number; updatedAt: Date };
@@ -254,7 +253,7 @@ async function askIfOverlapping(
     { id: string; onHireAt: Date; offHireAt: Date; supplier: string; machine: string } | undefined;
   if (!other) return;
   const { timeZone } = (await trx('firms').where('id', actor.firmId).first('time_zone')) as { timeZone: string };
-  const day = (t: number) => formatDayOfWeek(dayOfDate(localDateOf(t, timeZone))) ?? localDateOf(t, timeZone);
+  const day = (t: number) => dateWords(localDateOf(t, timeZone));
   throw new ConflictError(
     `${other.machine} is already on hire ${day(other.onHireAt.getTime())} – ${day(other.offHireAt.getTime() - 1)} from ${other.supplier}: both hires would be paid for over the days they share.`,
     {

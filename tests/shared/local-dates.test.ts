@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { createBoardIndex, jobCriticalPath, weeklyHours, type Board } from '../../shared/scheduler/index.ts';
 import {
   addDays,
+  dateWords,
   dayOfDate,
   deadlineDate,
   endOfLocalDay,
@@ -203,5 +204,16 @@ describe("the engine's lateness against a promised date", () => {
   it('flags the same delivery a day later, by the time past the end of the promised day', () => {
     // Ends 17:00 BST on 2 July; the promise ran out at midnight BST: 17 hours late.
     expect(lateBy('Europe/London', 2)).toBe(17 * HOUR);
+  });
+});
+
+describe('a date in words', () => {
+  it('gives the weekday, day and month, and a date it cannot name as it is', () => {
+    // Checked against GNU date (`date -d 2026-10-13 '+%a %-d %b'` and so on): 13 Oct 2026 is a
+    // Tuesday, 29 Feb 2028 a Tuesday, 1 Jan 2000 a Saturday.
+    expect(dateWords('2026-10-13')).toBe('Tue 13 Oct');
+    expect(dateWords('2028-02-29')).toBe('Tue 29 Feb');
+    expect(dateWords('2000-01-01')).toBe('Sat 1 Jan');
+    expect(dateWords('0999-12-31')).toBe('0999-12-31');
   });
 });
