@@ -53,7 +53,7 @@ const toView = (r: InvitationRow): InvitationView => ({
   expiresAt: r.expiresAt.toISOString(),
   acceptedAt: r.acceptedAt?.toISOString() ?? null,
   withdrawnAt: r.withdrawnAt?.toISOString() ?? null,
-  replacedBy: r.replacedBy === null || r.replacedBy === undefined ? null : String(r.replacedBy),
+  replacedBy: r.replacedBy ? String(r.replacedBy) : null,
   firmName: r.firmName,
 });
 
@@ -119,7 +119,7 @@ export class InvitationsService {
           email: input.email,
           role: input.role,
           invited_by: actor.userId,
-          expires_at: new Date(this.now() + INVITATION_DAYS * 86_400_000),
+          expires_at: new Date(now.getTime() + INVITATION_DAYS * 86_400_000),
         })
         .returning('id');
       if (replaced.length > 0) await trx('invitations').whereIn('id', replaced).update({ replaced_by: row.id });
