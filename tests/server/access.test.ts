@@ -39,6 +39,8 @@ const reachOfRole = (role: Role): Reach => (role === 'crew' ? 'crew' : role === 
 let own: Record<Reach, Record<IdKind, string>>;
 let other: Record<Reach, Record<IdKind, string>>;
 let tideway: string;
+/** Tideway's hired machine and its supplier (the demo's hire), for a hire the sweep can record. */
+let hired: { supplierFirmId: string; resourceId: string };
 
 const first = async (q: Promise<{ id: string | number } | undefined>) => String((await q)!.id);
 
@@ -74,6 +76,8 @@ beforeAll(async () => {
   const slot = await bookingOf((q) => q.where('resources.name', 'Priya Nair').where('bookings.state', 'sent'));
   const tom = await idOf(k, 'resources', { name: 'Tom Ashworth' });
   const twHire = await first(k('hire_periods').where('hirer_firm_id', tideway).first('id'));
+  const hire = await k('hire_periods').where('id', twHire).first('supplier_firm_id', 'resource_id');
+  hired = { supplierFirmId: String(hire.supplierFirmId), resourceId: String(hire.resourceId) };
 
   // Another installer's rows: Moorview's job, stage and booking, a file and a hire period of theirs.
   const mvJob = await idOf(k, 'jobs', { reference: 'MV-118' });
@@ -435,6 +439,16 @@ function validBody(
       return { body: { stageId: ids.stage, resourceKind: 'install_crew' } };
     case 'post /api/plan/auto-place':
       return { body: { jobIds: [ids.job], budgetMs: 0 } };
+    case 'post /api/hire-periods':
+      return {
+        body: { ...hired, onHireAt: '2026-10-05T07:00:00Z', offHireAt: '2026-10-09T16:00:00Z', dayRatePence: 14500 },
+      };
+    case 'put /api/jobs/:id/price':
+      return { body: { pricePence: 1_250_000, wasPence: null } };
+    case 'post /api/jobs/:id/payments/deposit':
+      return { body: { amountPence: 10_000 } };
+    case 'put /api/firm/settings':
+      return { body: { keepPhotoLocation: false } };
     case 'post /api/firm/closures':
     case 'post /api/resources/:id/absences':
       return { body: { from: '2026-09-21', to: '2026-09-21', reason: 'Holiday' } };
