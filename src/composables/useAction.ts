@@ -32,7 +32,8 @@ export function useAction(fields?: FieldErrors) {
     } catch (caught) {
       if (options.handled?.(caught)) return false;
       fields?.take(caught);
-      showProblem(caught);
+      // What is said under a box is not said again, less well, in the message.
+      showProblem(caught, fields ? { shownUnder: fields.hasBox } : {});
       return false;
     } finally {
       busy.value = null;

@@ -96,7 +96,14 @@ export function useFieldErrors() {
     first?.scrollIntoView({ block: 'center' });
   }
 
-  return { errors, check, take, clear, status, sentence, describe, focusFirst };
+  /** True when the field's box is on the page now, so its problem shows under it. */
+  function hasBox(field: string): boolean {
+    const id = boxIds.get(field);
+    if (id === undefined) return false;
+    return typeof document === 'undefined' || document.getElementById(id) !== null;
+  }
+
+  return { errors, check, take, clear, status, sentence, describe, focusFirst, hasBox };
 }
 
 export type FieldErrors = ReturnType<typeof useFieldErrors>;

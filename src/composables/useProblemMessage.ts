@@ -10,8 +10,13 @@ export function useProblemMessage() {
   const message = useMessage();
   const notification = useNotification();
 
-  function showProblem(error: unknown): void {
-    const summary = problemSummary(error);
+  /**
+   * `shownUnder`: a field whose problem the page already says under its box, in the box's own
+   * words; the message leaves it out rather than say it again by the field's code ("From …").
+   */
+  function showProblem(error: unknown, options: { shownUnder?: (field: string) => boolean } = {}): void {
+    const full = problemSummary(error);
+    const summary = { ...full, fields: full.fields.filter((f) => !options.shownUnder?.(f.field)) };
     if (summary.fields.length === 0) {
       message.error(summary.detail ? `${summary.title}. ${summary.detail}` : summary.title, {
         duration: 6000,

@@ -87,6 +87,9 @@ describe('time away on the Resources page', () => {
       await overlap.getAttribute('id'),
     );
     expect(await awayRows()).toEqual([{ reason: 'Dentist' }]);
+    // The message names what is marked; the box's problem is said under it, not again by its code.
+    await page.getByText(/^Conflict\. Crew Heron is already marked away Thu 4 Jun from 14:00 \(Dentist\)\./).waitFor();
+    expect(await page.getByText('From must not overlap').count()).toBe(0);
     await panel.getByRole('button', { name: 'Take off…' }).click();
     await page.getByRole('button', { name: 'Take it off' }).click();
     await panel.getByText('No time away marked.').waitFor();
