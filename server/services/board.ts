@@ -31,6 +31,7 @@ import {
   busyElsewhere,
   ELSEWHERE_BLOCKING_STATES,
   ELSEWHERE_STATE,
+  calendarNameFor,
   closureReasonFor,
 } from './read-policy.ts';
 import { cureRulesFromWeather } from './cure-temperatures.ts';
@@ -283,8 +284,10 @@ export async function loadBoard(knex: Knex | Knex.Transaction, actor: Actor, que
     const firm = firmOf.get(c.firmId);
     if (!firm) continue;
     if (!defaultCalendarOfFirm.has(c.firmId)) defaultCalendarOfFirm.set(c.firmId, c.id);
+    const name = calendarNameFor(actor, c.firmId, c.name);
     calendars.push({
       id: c.id,
+      ...(name === undefined ? {} : { name }),
       timeZone: firm.timeZone,
       weekly: engineWeekly(c.weeklyHours),
       holidayRegion: holidayRegionOf(firm.holidayRegion),

@@ -351,6 +351,14 @@ export function closureReasonFor(actor: Actor, ownerFirmId: string, reason: stri
 }
 
 /**
+ * A working week's name on the board (what the engine's refusals call it): told to its own firm
+ * only; another firm's week is named by nothing but its hours.
+ */
+export function calendarNameFor(actor: Actor, ownerFirmId: string, name: string): string | undefined {
+  return String(ownerFirmId) === String(actor.firmId) ? name : undefined;
+}
+
+/**
  * The working week a resource keeps, by name, on the Resources page: told to its own firm only,
  * and only when it is not the firm's standard week (null then, and for another firm's resource:
  * a partner's hours show on the board as shading, its week names are its own).

@@ -1,5 +1,12 @@
-import { compileCalendar, isWorkingInstant, nextWorkingInstant, type CompiledCalendar } from './calendar.js';
+import {
+  calendarWords,
+  compileCalendar,
+  isWorkingInstant,
+  nextWorkingInstant,
+  type CompiledCalendar,
+} from './calendar.js';
 import { SchedulerError } from './errors.js';
+import { workWords } from './format.js';
 import { MINUTE_MS, localToInstant, timeZoneOffset } from './time-zone.js';
 import type { Instant, Stage, WorkingCalendar } from './types.js';
 
@@ -175,7 +182,8 @@ export function bookableStart(cal: Cal, instant: Instant, options: BookableStart
   }
   throw new SchedulerError(
     'no_working_time',
-    `Calendar ${c.source.id} has no working day long enough within ten years`,
+    `${calendarWords(c)} has no working day with ${workWords(fit / MINUTE_MS)} of working time within ten years: the stage can't be done in one day on it.`,
+    { calendarId: c.source.id, fitMinutes: fit / MINUTE_MS },
   );
 }
 

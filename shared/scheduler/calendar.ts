@@ -307,7 +307,7 @@ export function addWorkingMinutes(cal: Cal, instant: Instant, minutes: number): 
       }
     }
   }
-  throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working time within ten years`);
+  throw noWorkingTime(c);
 }
 
 /**
@@ -326,7 +326,7 @@ export function nextWorkingInstant(cal: Cal, instant: Instant): Instant {
       if ((ivs[i + 1] as number) > instant) return Math.max(ivs[i] as number, instant);
     }
   }
-  throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working time within ten years`);
+  throw noWorkingTime(c);
 }
 
 /**
@@ -358,6 +358,27 @@ export function isWorkingEnd(cal: Cal, instant: Instant): boolean {
     if ((ivs[i] as number) < instant && instant <= (ivs[i + 1] as number)) return true;
   }
   return false;
+}
+
+/**
+ * A working week by its name when the board gives one ('The working week "Standard week"'), else by
+ * its id: how the engine's refusals name a calendar.
+ *
+ * @example
+ * calendarWords(compileCalendar({ ...week, name: 'Late shift' })) // 'The working week "Late shift"'
+ */
+export function calendarWords(c: CompiledCalendar): string {
+  const name = c.source.name;
+  return typeof name === 'string' && name.trim() !== '' ? `The working week "${name}"` : `Calendar ${c.source.id}`;
+}
+
+/** A week with no working time to count or search in (every day unworked, or closed, for ten years). */
+function noWorkingTime(c: CompiledCalendar): SchedulerError {
+  return new SchedulerError(
+    'no_working_time',
+    `${calendarWords(c)} has no working time within ten years: nothing can be booked on it until it has working hours.`,
+    { calendarId: c.source.id },
+  );
 }
 
 /**
@@ -495,14 +516,12 @@ export function addWorkingDays(cal: Cal, instant: Instant, days: number): Instan
       ivs = c.dayIntervals(day);
       n++;
     } while (ivs.length === 0 && n < SEARCH_DAYS);
-    if (ivs.length === 0)
-      throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working time within ten years`);
+    if (ivs.length === 0) throw noWorkingTime(c);
     offset = days > 0 ? 0 : dayLength(ivs);
   }
   let left = Math.abs(days);
   for (let n = 0; left > 0; n++) {
-    if (n > SEARCH_DAYS)
-      throw new SchedulerError('no_working_time', `Calendar ${c.source.id} has no working time within ten years`);
+    if (n > SEARCH_DAYS) throw noWorkingTime(c);
     day += step;
     ivs = c.dayIntervals(day);
     if (ivs.length > 0) left--;

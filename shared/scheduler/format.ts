@@ -62,3 +62,15 @@ export function formatDayOfWeek(day: number): string | undefined {
 export function formatPence(pence: number): string {
   return formatWholePence(Math.round(pence));
 }
+
+/**
+ * Working time in words: minutes under an hour, otherwise hours to two places.
+ *
+ * @example
+ * workWords(45)  // '45 min'
+ * workWords(270) // '4.5 h'
+ */
+export function workWords(minutes: number): string {
+  if (minutes < 60) return `${Math.round(minutes)} min`;
+  return `${Math.round((minutes / 60) * 100) / 100} h`;
+}

@@ -28,6 +28,8 @@ export interface PublicHoliday {
 /** A firm's (or a resource's) working time: weekly hours, public holidays and closures. */
 export interface WorkingCalendar {
   id: string;
+  /** The week's name as its firm calls it ("Standard week"), for messages; absent where the reader may not see it. */
+  name?: string;
   /** IANA time zone, e.g. Europe/London. */
   timeZone: string;
   weekly: WeeklyHours;

@@ -12,7 +12,7 @@ import { bookableStart, mustFitInOneDay, roundUpToStep } from './booking-step.js
 import { addWorkingDays, addWorkingMinutes, type CompiledCalendar } from './calendar.js';
 import { cureElapsedDays, releaseInstant } from './cure.js';
 import { SchedulerError } from './errors.js';
-import { formatInstant } from './format.js';
+import { formatInstant, workWords } from './format.js';
 import { applyLag, describeLag } from './lag.js';
 import { makeViolation, stageLabel, type BookingsOf } from './checks/violation.js';
 import { leadTimeRulesOfStage, noticeWords } from './checks/lead-time.js';
@@ -207,11 +207,6 @@ export function unbookedTimesOf(plan: UnbookedPlan, stageId: string): UnbookedTi
  */
 export function unbookedStageTimes(index: BoardIndex, stageId: string): UnbookedTimes | null {
   return unbookedTimesOf(unbookedPlan(index), stageId);
-}
-
-function workWords(minutes: number): string {
-  if (minutes < 60) return `${Math.round(minutes)} min`;
-  return `${Math.round((minutes / 60) * 100) / 100} h`;
 }
 
 function lagWords(lag: DepLink['dep']['lag']): string {

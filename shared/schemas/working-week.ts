@@ -29,11 +29,20 @@ const Day = z
     }
   });
 
+/** Why a week with no working day is refused (after the field's name: "The week needs…"). */
+export const EMPTY_WEEK = 'needs at least one working day: nothing can be booked on a week without working hours';
+
 /** PUT /api/firm/calendars/:id: the whole week, and the version it was based on (GET gives it). */
 export const PutCalendarHours = z
   .object({
     version: z.number(requiredAs('the version of the hours you loaded')).int().min(1),
-    hours: z.object(Object.fromEntries(WEEKDAYS.map((d) => [d, Day])) as Record<Weekday, typeof Day>).strict(),
+    hours: z
+      .object(Object.fromEntries(WEEKDAYS.map((d) => [d, Day])) as Record<Weekday, typeof Day>)
+      .strict()
+      // Every day unworked: nothing could be booked on it, and every booking on it would be refused.
+      .refine((week) => WEEKDAYS.some((d) => week[d].length > 0), {
+        message: EMPTY_WEEK,
+      }),
   })
   .strict();
 export type PutCalendarHours = z.infer<typeof PutCalendarHours>;

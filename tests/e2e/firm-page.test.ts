@@ -88,6 +88,24 @@ describe('the working week', () => {
     expect((await storedWeek())['5']).toEqual([[480, 1020]]);
   }, 60_000);
 
+  it('names a week with every day unticked under Monday, saves nothing, and discards it', async () => {
+    await page.goto(`${app.url}/firm`);
+    const form = page.getByRole('form', { name: 'Working hours: Standard week' });
+    for (const day of ['Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday']) {
+      const worked = form.getByRole('group', { name: day }).getByRole('checkbox');
+      await worked.uncheck();
+    }
+    await form.getByRole('button', { name: 'Save hours' }).click();
+    const monday = form.getByRole('group', { name: 'Monday' }).getByRole('checkbox');
+    expect(await problemOf(monday)).toBe(
+      'The week needs at least one working day: nothing can be booked on a week without working hours',
+    );
+    expect(await page.evaluate(() => document.activeElement?.id)).toBe(await monday.getAttribute('id'));
+    expect((await storedWeek())['1']).toEqual([[480, 1020]]);
+    await form.getByRole('button', { name: 'Discard changes' }).click();
+    expect(await monday.isChecked()).toBe(true);
+  }, 60_000);
+
   it("moves to Scotland's bank holidays and back", async () => {
     await page.goto(`${app.url}/firm`);
     const region = page.getByLabel('Bank holidays of');

@@ -9,6 +9,7 @@ import {
   type TestContext,
 } from '../helpers/server.ts';
 import { makeJob } from '../helpers/flows.ts';
+import { EMPTY_WEEK } from '../../shared/schemas/working-week.ts';
 
 /*
  * A firm's working week on the firm page: Tideway's standard week (seeded Monday–Friday
@@ -20,6 +21,8 @@ let owner: Agent;
 let scheduler: Agent;
 let standard: string;
 let otter: string;
+/** Tideway's own calendars (the board names them); the rest are partners'. */
+let tidewayCalendars: string[];
 let job: { jobId: string; stage: Record<string, string> };
 
 const FIVE_DAYS = { from: '08:00', to: '17:00' };
@@ -74,6 +77,12 @@ beforeAll(async () => {
         .first('id')
     ).id,
   );
+  tidewayCalendars = (
+    await ctx
+      .knex('calendars')
+      .where('firm_id', await idOf(ctx.knex, 'firms', { name: 'Tideway Hot Tubs' }))
+      .select('id')
+  ).map((c: { id: string }) => String(c.id));
   job = await makeJob(ctx.knex, {
     reference: 'WW-401',
     stages: [
@@ -134,6 +143,16 @@ describe("the firm's working week", () => {
       .expect(200);
     const cal = board.body.calendars.find((c: { id: string }) => c.id === standard);
     expect(cal.weekly[5]).toEqual([[480, 780]]);
+    // Named for its own firm (the engine's refusals say "The working week "Standard week" …"); a
+    // partner's weeks ride along by their hours alone (the read policy).
+    expect(cal.name).toBe('Standard week');
+    // (A resource's own week with its time away is `<week>+r<resource>`, named as its week.)
+    const weekOf = (c: { id: string }) => String(c.id).split('+')[0]!;
+    const theirs = board.body.calendars.filter((c: { id: string }) => !tidewayCalendars.includes(weekOf(c)));
+    const ours = board.body.calendars.filter((c: { id: string }) => tidewayCalendars.includes(weekOf(c)));
+    for (const c of ours) expect(c.name, c.id).toEqual(expect.any(String));
+    expect(theirs.length).toBeGreaterThan(0);
+    for (const c of theirs) expect(c).not.toHaveProperty('name');
     expect(cal.weekly[1]).toEqual([[480, 1020]]);
     // The write path's engine reads the new hours: a Friday afternoon is refused now.
     const refused = await book(job.stage.handover!, '2026-06-19T13:00:00Z', '2026-06-19T15:00:00Z').expect(422);
@@ -183,6 +202,13 @@ describe("the firm's working week", () => {
     ]);
     // Up to midnight is a finish, never a start.
     await putHours({ version: 2, hours: week({ sat: [{ from: '24:00', to: '24:00' }] }) }).expect(400);
+    // Every day unworked: nothing could be booked on it (the engine would refuse every booking).
+    const empty = await putHours({
+      version: 2,
+      hours: { mon: [], tue: [], wed: [], thu: [], fri: [], sat: [], sun: [] },
+    }).expect(400);
+    expect(empty.body.errors).toEqual([{ field: 'hours', message: EMPTY_WEEK }]);
+    expect(EMPTY_WEEK).toMatch(/^needs at least one working day/);
     // Nothing was saved.
     expect((await owner.get('/api/firm/working-week').expect(200)).body.calendars[0].version).toBe(2);
   });

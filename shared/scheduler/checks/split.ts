@@ -2,14 +2,10 @@ import { resourceCalendarOf, type BoardIndex } from '../board-index.js';
 import { bookableStart, mustFitInOneDay, roundDownToStep } from '../booking-step.js';
 import { addWorkingMinutes, workingMinutesBetween, type CompiledCalendar } from '../calendar.js';
 import { SchedulerError } from '../errors.js';
-import { formatInstant } from '../format.js';
+import { formatInstant, workWords } from '../format.js';
 import { MINUTE_MS } from '../time-zone.js';
 import type { Booking, Stage, Violation } from '../types.js';
 import { stageLabel, violationOf } from './violation.js';
-
-function hours(minutes: number): string {
-  return minutes < 60 ? `${minutes} min` : `${Math.round((minutes / 60) * 100) / 100} h`;
-}
 
 /**
  * What a booking's times come to on a calendar for a stage of `need` minutes: the message after the
@@ -149,6 +145,6 @@ function splitWords(index: BoardIndex, cal: CompiledCalendar, start: number, end
     if (next !== null) details.earliestStart = next;
     if (fits) details.latestStartThatDay = latest;
   }
-  const words = ` would be split over ${days === 2 ? 'two' : 'several'} working days (${formatInstant(start, tz)} to ${formatInstant(end, tz)}): its ${hours(need)} must be done within one working day — ${advice}`;
+  const words = ` would be split over ${days === 2 ? 'two' : 'several'} working days (${formatInstant(start, tz)} to ${formatInstant(end, tz)}): its ${workWords(need)} must be done within one working day — ${advice}`;
   return { end, need, words, details, next: undefined };
 }

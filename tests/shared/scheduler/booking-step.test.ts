@@ -75,6 +75,19 @@ describe('the first start a person would book', () => {
     expect(bookableStart(electriciansWeek, at(2026, 10, 2, 13))).toBe(at(2026, 10, 2, 13));
   });
 
+  it('refuses, naming the week and the time wanted, when no day of the week is long enough', () => {
+    // 07:40–16:00 is 8 h 20 min a day: 9 h never fits.
+    const named = { ...lateStarter, name: 'Late start' };
+    expect(() => bookableStart(named, at(2026, 6, 1, 7), { fitMinutes: 540 })).toThrowError(
+      expect.objectContaining({
+        code: 'no_working_time',
+        message:
+          'The working week "Late start" has no working day with 9 h of working time within ten years: the stage can\'t be done in one day on it.',
+        details: { calendarId: 'late', fitMinutes: 540 },
+      }),
+    );
+  });
+
   it("a working day is the week's longest (ranges merged); a stage fits one when no longer and not allowed to continue", () => {
     expect(longestWorkingDayMinutes(electriciansWeek)).toBe(540);
     expect(

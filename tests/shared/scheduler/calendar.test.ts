@@ -162,11 +162,25 @@ describe('refuses bad input with typed errors', () => {
     const bad = { id: 'x', timeZone: LONDON, weekly: weeklyHours([1], [[600, 1500]]) };
     expect(() => compileCalendar(bad)).toThrowError(expect.objectContaining({ code: 'invalid_calendar' }));
   });
-  it('a calendar with no working time at all', () => {
+  it('a calendar with no working time at all, named by its week where the board gives the name', () => {
     const never = { id: 'never', timeZone: LONDON, weekly: weeklyHours([], []) };
     expect(() => nextWorkingInstant(never, at(2026, 1, 1))).toThrowError(
-      expect.objectContaining({ code: 'no_working_time' }),
+      expect.objectContaining({ code: 'no_working_time', message: expect.stringMatching(/^Calendar never has no/) }),
     );
+    const named = { ...never, name: 'Night shift' };
+    for (const attempt of [
+      () => nextWorkingInstant(named, at(2026, 1, 1)),
+      () => addWorkingMinutes(named, at(2026, 1, 1), 60),
+      () => addWorkingMinutes(named, at(2026, 1, 1), -60),
+    ])
+      expect(attempt).toThrowError(
+        expect.objectContaining({
+          code: 'no_working_time',
+          message:
+            'The working week "Night shift" has no working time within ten years: nothing can be booked on it until it has working hours.',
+          details: { calendarId: 'never' },
+        }),
+      );
   });
   it('a non-finite instant', () => {
     expect(() => addWorkingMinutes(firmCal, Number.NaN, 10)).toThrow(RangeError);
