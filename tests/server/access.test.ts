@@ -365,6 +365,8 @@ function pathFor(route: RouteSpec, ids: Record<IdKind, string>): string {
   return route.path.replace(':installationType', 'slab').replace(':id', kind ? ids[kind] : '');
 }
 
+const DAY = [{ from: '08:00', to: '17:00' }];
+
 /** A body valid enough that a write reaches its lookup (so another firm's id meets the scope, not the validator). */
 function validBody(
   route: RouteSpec,
@@ -405,7 +407,8 @@ function validBody(
       return { body: { name: 'Crew Renamed', previousName: 'Crew Heron' } };
     case 'put /api/firm/calendars/:id':
       return {
-        body: { version: 1, hours: { mon: [], tue: [], wed: [], thu: [], fri: [], sat: [], sun: [] } },
+        // The demo's own standard week (Mon–Fri 08:00–17:00): taken, it leaves the plan as it was.
+        body: { version: 1, hours: { mon: DAY, tue: DAY, wed: DAY, thu: DAY, fri: DAY, sat: [], sun: [] } },
       };
     case 'patch /api/firm/calendars/:id':
       return { body: { name: 'Renamed week', previousName: 'Standard week' } };
@@ -782,6 +785,156 @@ describe('hostile input on every route (generated from the route table)', () => 
               `${role} GET ${route.path} ${what} → ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`,
             );
         }
+      }
+    expect(verdicts).toEqual([]);
+  }, 600_000);
+});
+
+/*
+ * A double-click, or two people saving the same thing: every write route the owner, a crew member
+ * and a partner may call, sent twice at once. Neither may fail as a 500 or without problem+json, and
+ * of two changes from the same version only one may be taken (the other is told it is stale). The
+ * row a versioned change writes is held by the test until both requests have read what they read,
+ * so the two truly overlap.
+ */
+describe('two of the same request at once, on every write route (generated from the route table)', () => {
+  /** Where a route's `version` lives, so both requests carry the current one and truly race. */
+  const VERSION_OF: Record<IdKind, string | undefined> = {
+    booking: 'bookings',
+    job: 'jobs',
+    hire: 'hire_periods',
+    calendar: 'calendars',
+    stage: undefined,
+    file: undefined,
+    person: undefined,
+    resource: undefined,
+    absence: undefined,
+    closure: undefined,
+    invitation: undefined,
+    member: undefined,
+  };
+
+  /**
+   * A booking of the caller's own firm still ahead (pencilled or confirmed, on its own crew), a new
+   * one for each booking route: the seeded ids of the matrix are done bookings, which every change
+   * refuses before any lock is taken.
+   */
+  async function liveBooking(role: 'owner' | 'crew' | 'partner', taken: Set<string>) {
+    const q = ctx
+      .knex('bookings')
+      .join('resources', 'resources.id', 'bookings.resource_id')
+      .join('stages', 'stages.id', 'bookings.stage_id')
+      .join('jobs', 'jobs.id', 'stages.job_id')
+      .where('bookings.starts_at', '>', new Date('2026-06-08T00:00:00Z'))
+      .whereNotIn('bookings.id', [...taken])
+      .orderBy('bookings.starts_at')
+      .first('bookings.id', 'bookings.stage_id', 'bookings.version', 'bookings.starts_at', 'bookings.ends_at');
+    if (role === 'partner') q.where('resources.name', 'Priya Nair').where('bookings.state', 'sent');
+    else if (role === 'crew')
+      q.where('resources.name', 'Crew Heron').whereIn('bookings.state', ['pencilled', 'confirmed']);
+    else q.where('jobs.firm_id', tideway).where('resources.firm_id', tideway).where('bookings.state', 'pencilled');
+    const row = await q;
+    if (row === undefined) return undefined;
+    taken.add(String(row.id));
+    return row as { id: string; stageId: string; version: number; startsAt: Date; endsAt: Date };
+  }
+
+  /**
+   * Sends the requests while the test holds the row they change (FOR UPDATE), and lets it go only
+   * once each is either answered or waiting on a lock: both have read what they read before either
+   * writes, the tightest the two can be. Rows without a version are not held.
+   */
+  async function heldAtOnce<R extends { status: number }>(
+    route: RouteSpec,
+    ids: Record<IdKind, string>,
+    send: () => PromiseLike<R>[],
+  ): Promise<R[]> {
+    const kind = idKindOf(route.path);
+    const table = kind ? VERSION_OF[kind] : undefined;
+    if (!kind || !table) return Promise.all(send());
+    const holder = await ctx.knex.transaction();
+    let answered = 0;
+    let sent: Promise<R[]> | undefined;
+    try {
+      if (route.path.endsWith('/survey')) await holder('jobs').where('id', ids.job).forUpdate().first('id');
+      else await holder(table).where('id', ids[kind]).forUpdate().first('id');
+      const requests = send().map((r) => Promise.resolve(r).then((res) => (answered++, res)));
+      sent = Promise.all(requests);
+      const waiting = async () =>
+        Number(
+          (
+            await ctx.knex.raw(
+              `SELECT count(*) AS n FROM pg_stat_activity WHERE datname = current_database() AND wait_event_type = 'Lock'`,
+            )
+          ).rows[0].n,
+        );
+      for (const started = Date.now(); Date.now() - started < 10_000;) {
+        if (answered + (await waiting()) >= requests.length) break;
+        await new Promise((r) => setTimeout(r, 10));
+      }
+    } finally {
+      await holder.commit();
+    }
+    return sent;
+  }
+
+  async function current(route: RouteSpec, ids: Record<IdKind, string>) {
+    const base = validBody(route, ids);
+    const kind = idKindOf(route.path);
+    const table = kind ? VERSION_OF[kind] : undefined;
+    if (!kind || !table) return base;
+    if (route.path.endsWith('/survey')) {
+      const survey = await ctx.knex('surveys').where('job_id', ids.job).first('version');
+      return { ...base, body: { ...base.body, version: survey?.version ?? 0 } };
+    }
+    const row = await ctx.knex(table).where('id', ids[kind]).first('version');
+    if (row === undefined) return base;
+    const body = base.body && 'version' in base.body ? { ...base.body, version: row.version } : base.body;
+    const query = base.query && 'version' in base.query ? { ...base.query, version: String(row.version) } : base.query;
+    return { ...base, body, query };
+  }
+
+  it('answers both below 500, each refusal problem+json, and at most one of a versioned pair is taken', async () => {
+    const verdicts: string[] = [];
+    const taken = new Set<string>();
+    for (const role of ['owner', 'crew', 'partner'] as const)
+      for (const route of apiRoutes().filter(
+        (r) => r.method !== 'get' && allowed(r, role) && r.path !== '/api/session/firm',
+      )) {
+        let ids = own[reachOfRole(role)];
+        if (idKindOf(route.path) === 'booking' || idKindOf(route.path) === 'stage') {
+          const live = await liveBooking(role, taken);
+          if (live) ids = { ...ids, booking: String(live.id), stage: String(live.stageId) };
+        }
+        let options = await current(route, ids);
+        const moving =
+          route.path === '/api/stages/:id/move' || `${route.method} ${route.path}` === 'patch /api/bookings/:id';
+        if (moving) {
+          // The stage or booking a day later, from the times it has now.
+          const b = await ctx.knex('bookings').where('id', ids.booking).first('starts_at', 'ends_at', 'version');
+          const later = (d: Date) => new Date(d.getTime() + 86_400_000).toISOString();
+          options =
+            route.path === '/api/stages/:id/move'
+              ? { body: { startsAt: later(b.startsAt), versions: { [ids.booking]: b.version } } }
+              : { body: { version: b.version, startsAt: later(b.startsAt), endsAt: later(b.endsAt) } };
+        }
+        const path = pathFor(route, ids);
+        const both = await heldAtOnce(route, ids, () => [
+          call(role, route, path, options),
+          call(role, route, path, options),
+        ]);
+        for (const res of both) {
+          const ok =
+            res.status < 500 &&
+            (res.status < 400 || /application\/problem\+json/.test(res.headers['content-type'] ?? ''));
+          if (!ok)
+            verdicts.push(
+              `${role} ${route.method.toUpperCase()} ${route.path} → ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`,
+            );
+        }
+        const versioned = 'version' in (options.body ?? {}) || 'version' in (options.query ?? {});
+        if (versioned && both.every((r) => r.status < 300))
+          verdicts.push(`${role} ${route.method.toUpperCase()} ${route.path}: both took the same version`);
       }
     expect(verdicts).toEqual([]);
   }, 600_000);
