@@ -742,24 +742,15 @@ export class BookingWriter {
    * Everything is kept, or nothing.
    */
   async run<T>(ctx: WriteContext, scope: LockScope, work: (w: BookingWork) => Promise<T>): Promise<WriteOutcome<T>> {
-    try {
-      return await this.knex.transaction(async (trx) => {
-        await this.lock(trx, scope);
-        const w = new BookingWork(trx, ctx, this);
-        const result = await work(w);
-        const warnings = await this.verify(trx, ctx, [...w.checkStages]);
-        return { result, written: w.written, warnings };
-      });
-    } catch (error) {
-      // Two writers that PostgreSQL had to pick between: the loser is told to try again, not a 500.
-      if (isPgError(error, '40P01') || isPgError(error, '40001')) {
-        throw new ConflictError(
-          'Another change to the same bookings was saved at the same moment: reload and try again.',
-          { code: 'write-conflict' },
-        );
-      }
-      throw error;
-    }
+    // Two writers PostgreSQL had to pick between: the error handler tells the loser to try again
+    // (409 write-conflict), as for every other route.
+    return this.knex.transaction(async (trx) => {
+      await this.lock(trx, scope);
+      const w = new BookingWork(trx, ctx, this);
+      const result = await work(w);
+      const warnings = await this.verify(trx, ctx, [...w.checkStages]);
+      return { result, written: w.written, warnings };
+    });
   }
 
   /** The engine's verdict per installer whose stages changed, reading as that installer's office. */

@@ -467,6 +467,55 @@ describe('database refusals in the user’s words', () => {
     expectPlain(check.body);
   });
 
+  it('two writers PostgreSQL had to choose between (a deadlock, a serialisation failure): 409, try again, anywhere', async () => {
+    // A real deadlock: each transaction holds one job's row and asks for the other's.
+    const other = await idOf(ctx.knex, 'jobs', { reference: 'TW-2406' });
+    const [a, b] = [await ctx.knex.transaction(), await ctx.knex.transaction()];
+    let deadlock: unknown;
+    try {
+      await a('jobs').where('id', jobId).forUpdate().first('id');
+      await b('jobs').where('id', other).forUpdate().first('id');
+      const settled = await Promise.allSettled([
+        a('jobs').where('id', other).forUpdate().first('id'),
+        b('jobs').where('id', jobId).forUpdate().first('id'),
+      ]);
+      deadlock = settled.find((r) => r.status === 'rejected')?.reason;
+    } finally {
+      await a.rollback().catch(() => undefined);
+      await b.rollback().catch(() => undefined);
+    }
+    expect((deadlock as { code?: string }).code).toBe('40P01');
+    // A real serialisation failure: two SERIALIZABLE transactions each read what the other writes.
+    const [c, d] = [await ctx.knex.transaction(), await ctx.knex.transaction()];
+    let serial: unknown;
+    try {
+      await c.raw('SET TRANSACTION ISOLATION LEVEL SERIALIZABLE');
+      await d.raw('SET TRANSACTION ISOLATION LEVEL SERIALIZABLE');
+      await c('jobs').where('id', jobId).first('access_notes');
+      await d('jobs').where('id', other).first('access_notes');
+      await c('jobs').where('id', other).update({ access_notes: 'c' });
+      await d('jobs').where('id', jobId).update({ access_notes: 'd' });
+      await c.commit();
+      // d read what c wrote, and c read what d wrote: d can no longer be serialised.
+      await d('jobs').where('id', other).update({ access_notes: 'd' });
+    } catch (e) {
+      serial = e;
+    } finally {
+      await c.rollback().catch(() => undefined);
+      await d.rollback().catch(() => undefined);
+    }
+    expect((serial as { code?: string }).code).toBe('40001');
+    for (const err of [deadlock, serial]) {
+      const told = answer(err);
+      expect(told.status).toBe(409);
+      expect(told.body).toMatchObject({
+        code: 'write-conflict',
+        detail: 'Another change was saved at the same moment: reload and try again.',
+      });
+      expectPlain(told.body);
+    }
+  });
+
   it('a value the database cannot hold says what is wrong, without SQL', async () => {
     const nul = answer(await refusal((trx) => trx('jobs').where('id', jobId).update({ site_town: 'Otley\u0000' })));
     expect(nul).toMatchObject({ status: 400, body: { detail: 'A value contains a character that cannot be stored.' } });
