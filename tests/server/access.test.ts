@@ -790,6 +790,90 @@ describe('hostile input on every route (generated from the route table)', () => 
   }, 600_000);
 });
 
+/** Where a route's `version` lives, so both requests carry the current one and truly race. */
+const VERSION_OF: Record<IdKind, string | undefined> = {
+  booking: 'bookings',
+  job: 'jobs',
+  hire: 'hire_periods',
+  calendar: 'calendars',
+  stage: undefined,
+  file: undefined,
+  person: undefined,
+  resource: undefined,
+  absence: undefined,
+  closure: undefined,
+  invitation: undefined,
+  member: undefined,
+};
+
+/**
+ * A booking of the caller's own firm still ahead (pencilled or confirmed, on its own crew), a new
+ * one for each booking route: the seeded ids of the matrix are done bookings, which every change
+ * refuses before any lock is taken.
+ */
+async function liveBooking(role: 'owner' | 'crew' | 'partner', taken: Set<string>) {
+  const q = ctx
+    .knex('bookings')
+    .join('resources', 'resources.id', 'bookings.resource_id')
+    .join('stages', 'stages.id', 'bookings.stage_id')
+    .join('jobs', 'jobs.id', 'stages.job_id')
+    .where('bookings.starts_at', '>', new Date('2026-06-08T00:00:00Z'))
+    .whereNotIn('bookings.id', [...taken])
+    .orderBy('bookings.starts_at')
+    .first('bookings.id', 'bookings.stage_id', 'bookings.version', 'bookings.starts_at', 'bookings.ends_at');
+  if (role === 'partner') q.where('resources.name', 'Priya Nair').where('bookings.state', 'sent');
+  else if (role === 'crew')
+    q.where('resources.name', 'Crew Heron').whereIn('bookings.state', ['pencilled', 'confirmed']);
+  else q.where('jobs.firm_id', tideway).where('resources.firm_id', tideway).where('bookings.state', 'pencilled');
+  const row = await q;
+  if (row === undefined) return undefined;
+  taken.add(String(row.id));
+  return row as { id: string; stageId: string; version: number; startsAt: Date; endsAt: Date };
+}
+
+/** The route's valid body (see validBody) made current: the version stored now, a crew's people as they are. */
+async function current(route: RouteSpec, ids: Record<IdKind, string>) {
+  const base = validBody(route, ids);
+  if (`${route.method} ${route.path}` === 'put /api/resources/:id/members') {
+    const people = (await ctx.knex('crew_members').where('crew_id', ids.resource).orderBy('person_id')).map(
+      (m: { personId: string }) => String(m.personId),
+    );
+    return { body: { personIds: people, previousPersonIds: people } };
+  }
+  const kind = idKindOf(route.path);
+  const table = kind ? VERSION_OF[kind] : undefined;
+  if (!kind || !table) return base;
+  if (route.path.endsWith('/survey')) {
+    const survey = await ctx.knex('surveys').where('job_id', ids.job).first('version');
+    return { ...base, body: { ...base.body, version: survey?.version ?? 0 } };
+  }
+  const row = await ctx.knex(table).where('id', ids[kind]).first('version');
+  if (row === undefined) return base;
+  const body = base.body && 'version' in base.body ? { ...base.body, version: row.version } : base.body;
+  const query = base.query && 'version' in base.query ? { ...base.query, version: String(row.version) } : base.query;
+  return { ...base, body, query };
+}
+
+/** The ids a route is sent with: a booking still ahead for booking and stage routes (see liveBooking). */
+async function idsFor(role: 'owner' | 'crew' | 'partner', path: string, taken: Set<string>) {
+  const ids = own[reachOfRole(role)];
+  const kind = idKindOf(path);
+  if (kind !== 'booking' && kind !== 'stage') return ids;
+  const live = await liveBooking(role, taken);
+  return live ? { ...ids, booking: String(live.id), stage: String(live.stageId) } : ids;
+}
+
+/** What a route is sent: its valid body at the current version; a move or a booking's change a day later. */
+async function optionsFor(route: RouteSpec, ids: Record<IdKind, string>) {
+  const moving = route.path === '/api/stages/:id/move' || `${route.method} ${route.path}` === 'patch /api/bookings/:id';
+  if (!moving) return current(route, ids);
+  const b = await ctx.knex('bookings').where('id', ids.booking).first('starts_at', 'ends_at', 'version');
+  const later = (d: Date) => new Date(d.getTime() + 86_400_000).toISOString();
+  return route.path === '/api/stages/:id/move'
+    ? { body: { startsAt: later(b.startsAt), versions: { [ids.booking]: b.version } } }
+    : { body: { version: b.version, startsAt: later(b.startsAt), endsAt: later(b.endsAt) } };
+}
+
 /*
  * A double-click, or two people saving the same thing: every write route the owner, a crew member
  * and a partner may call, sent twice at once. Neither may fail as a 500 or without problem+json, and
@@ -798,47 +882,6 @@ describe('hostile input on every route (generated from the route table)', () => 
  * so the two truly overlap.
  */
 describe('two of the same request at once, on every write route (generated from the route table)', () => {
-  /** Where a route's `version` lives, so both requests carry the current one and truly race. */
-  const VERSION_OF: Record<IdKind, string | undefined> = {
-    booking: 'bookings',
-    job: 'jobs',
-    hire: 'hire_periods',
-    calendar: 'calendars',
-    stage: undefined,
-    file: undefined,
-    person: undefined,
-    resource: undefined,
-    absence: undefined,
-    closure: undefined,
-    invitation: undefined,
-    member: undefined,
-  };
-
-  /**
-   * A booking of the caller's own firm still ahead (pencilled or confirmed, on its own crew), a new
-   * one for each booking route: the seeded ids of the matrix are done bookings, which every change
-   * refuses before any lock is taken.
-   */
-  async function liveBooking(role: 'owner' | 'crew' | 'partner', taken: Set<string>) {
-    const q = ctx
-      .knex('bookings')
-      .join('resources', 'resources.id', 'bookings.resource_id')
-      .join('stages', 'stages.id', 'bookings.stage_id')
-      .join('jobs', 'jobs.id', 'stages.job_id')
-      .where('bookings.starts_at', '>', new Date('2026-06-08T00:00:00Z'))
-      .whereNotIn('bookings.id', [...taken])
-      .orderBy('bookings.starts_at')
-      .first('bookings.id', 'bookings.stage_id', 'bookings.version', 'bookings.starts_at', 'bookings.ends_at');
-    if (role === 'partner') q.where('resources.name', 'Priya Nair').where('bookings.state', 'sent');
-    else if (role === 'crew')
-      q.where('resources.name', 'Crew Heron').whereIn('bookings.state', ['pencilled', 'confirmed']);
-    else q.where('jobs.firm_id', tideway).where('resources.firm_id', tideway).where('bookings.state', 'pencilled');
-    const row = await q;
-    if (row === undefined) return undefined;
-    taken.add(String(row.id));
-    return row as { id: string; stageId: string; version: number; startsAt: Date; endsAt: Date };
-  }
-
   /**
    * Sends the requests while the test holds the row they change (FOR UPDATE), and lets it go only
    * once each is either answered or waiting on a lock: both have read what they read before either
@@ -876,43 +919,6 @@ describe('two of the same request at once, on every write route (generated from 
       await holder.commit();
     }
     return sent;
-  }
-
-  async function current(route: RouteSpec, ids: Record<IdKind, string>) {
-    const base = validBody(route, ids);
-    const kind = idKindOf(route.path);
-    const table = kind ? VERSION_OF[kind] : undefined;
-    if (!kind || !table) return base;
-    if (route.path.endsWith('/survey')) {
-      const survey = await ctx.knex('surveys').where('job_id', ids.job).first('version');
-      return { ...base, body: { ...base.body, version: survey?.version ?? 0 } };
-    }
-    const row = await ctx.knex(table).where('id', ids[kind]).first('version');
-    if (row === undefined) return base;
-    const body = base.body && 'version' in base.body ? { ...base.body, version: row.version } : base.body;
-    const query = base.query && 'version' in base.query ? { ...base.query, version: String(row.version) } : base.query;
-    return { ...base, body, query };
-  }
-
-  /** The ids a route is sent with: a booking still ahead for booking and stage routes (see liveBooking). */
-  async function idsFor(role: 'owner' | 'crew' | 'partner', path: string, taken: Set<string>) {
-    const ids = own[reachOfRole(role)];
-    const kind = idKindOf(path);
-    if (kind !== 'booking' && kind !== 'stage') return ids;
-    const live = await liveBooking(role, taken);
-    return live ? { ...ids, booking: String(live.id), stage: String(live.stageId) } : ids;
-  }
-
-  /** What a route is sent: its valid body at the current version; a move or a booking's change a day later. */
-  async function optionsFor(route: RouteSpec, ids: Record<IdKind, string>) {
-    const moving =
-      route.path === '/api/stages/:id/move' || `${route.method} ${route.path}` === 'patch /api/bookings/:id';
-    if (!moving) return current(route, ids);
-    const b = await ctx.knex('bookings').where('id', ids.booking).first('starts_at', 'ends_at', 'version');
-    const later = (d: Date) => new Date(d.getTime() + 86_400_000).toISOString();
-    return route.path === '/api/stages/:id/move'
-      ? { body: { startsAt: later(b.startsAt), versions: { [ids.booking]: b.version } } }
-      : { body: { version: b.version, startsAt: later(b.startsAt), endsAt: later(b.endsAt) } };
   }
 
   const versioned = (options: { body?: object; query?: object }) =>
@@ -988,4 +994,87 @@ describe('two of the same request at once, on every write route (generated from 
     expect(pairs).toBeGreaterThan(50);
     expect(verdicts).toEqual([]);
   }, 600_000);
+});
+
+/*
+ * Another firm's ids where a body names things (a stage, a resource, a week, people, jobs, a unit, a
+ * supplier): every write route with such a field, as the owner, a crew member and a partner, with
+ * each field in turn given the id of a firm the caller has nothing to do with. None may be taken;
+ * the refusal tells nothing of the other firm's thing.
+ */
+describe("another firm's ids in a request's body", () => {
+  it('are never taken, on any write route, by any role', async () => {
+    const k = ctx.knex;
+    const moorview = await idOf(k, 'firms', { name: 'Moorview Spas' });
+    // A unit in Moorview's own catalogue (the demo gives it none).
+    const [unit] = await k('units')
+      .insert({
+        firm_id: moorview,
+        model: 'Moor 6',
+        maker: 'Moorview',
+        length_mm: 2200,
+        width_mm: 2200,
+        height_mm: 900,
+        dry_weight_kg: 400,
+        filled_weight_kg: 1900,
+        water_litres: 1500,
+      })
+      .returning('id');
+    const theirUnit = String(unit.id);
+    const verdicts: string[] = [];
+    const taken = new Set<string>();
+    let tried = 0;
+    for (const role of ['owner', 'crew', 'partner'] as const) {
+      const theirs = other[reachOfRole(role)];
+      /** The foreign value for a body field naming something, or undefined for any other field. */
+      const foreign = (field: string, value: unknown): unknown => {
+        const one: Record<string, string> = {
+          stageId: theirs.stage,
+          resourceId: theirs.resource,
+          calendarId: theirs.calendar,
+          was: theirs.calendar,
+          unitId: theirUnit,
+          supplierFirmId: moorview,
+        };
+        if (field in one) return one[field];
+        if (field === 'personIds' || field === 'previousPersonIds') return [theirs.person];
+        if (field === 'jobIds') return [theirs.job];
+        if (field === 'versions') return { [theirs.booking]: 1 };
+        if (field === 'bookings' && Array.isArray(value))
+          return value.map((b: object) => ({ ...b, stageId: theirs.stage }));
+        return undefined;
+      };
+      for (const route of apiRoutes().filter(
+        (r) => r.method !== 'get' && allowed(r, role) && r.path !== '/api/session/firm',
+      )) {
+        // Bodies as they would pass now (current versions, a booking still ahead), so each refusal
+        // is the foreign id's and not a stale version's.
+        const ids = await idsFor(role, route.path, taken);
+        const base = await optionsFor(route, ids);
+        // A job's unit is left out of the bodies above: try it too where a job is written.
+        const fields = Object.entries(base.body ?? {});
+        if (/^(post \/api\/jobs|patch \/api\/jobs\/:id)$/.test(`${route.method} ${route.path}`))
+          fields.push(['unitId', undefined]);
+        for (const [field, value] of fields) {
+          const swapped = foreign(field, value);
+          if (swapped === undefined) continue;
+          tried++;
+          const res = await call(role, route, pathFor(route, ids), {
+            ...base,
+            body: { ...base.body, [field]: swapped },
+          });
+          if (res.status < 400 || res.status >= 500)
+            verdicts.push(
+              `${role} ${route.method.toUpperCase()} ${route.path} with their ${field} → ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`,
+            );
+          else if (JSON.stringify(res.body).includes('Moorview'))
+            verdicts.push(
+              `${role} ${route.method.toUpperCase()} ${route.path} with their ${field}: the refusal names Moorview`,
+            );
+        }
+      }
+    }
+    expect(tried).toBeGreaterThanOrEqual(17);
+    expect(verdicts).toEqual([]);
+  }, 120_000);
 });
