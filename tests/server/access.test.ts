@@ -1078,3 +1078,102 @@ describe("another firm's ids in a request's body", () => {
     expect(verdicts).toEqual([]);
   }, 120_000);
 });
+
+/*
+ * What no other firm may read, planted as marked values in Moorview's rows (an installer Tideway has
+ * nothing to do with) and in Tideway's own private fields, then looked for in every read the route
+ * table has, as each of Tideway's roles and as Brightspark's partner coordinator (who works for both
+ * installers). A marked value in any answer of a firm it is not theirs to read is a leak.
+ */
+describe('what is not theirs, looked for in every read (generated from the route table)', () => {
+  it("no role of another firm reads another firm's householders, prices, reasons, weeks or invitations", async () => {
+    const k = ctx.knex;
+    const moorview = await idOf(k, 'firms', { name: 'Moorview Spas' });
+    const mark = (firm: string, what: string) => `zq${firm}${what}qz`;
+    /** Marks every private field of a firm's rows; returns the marked texts and numbers. */
+    async function plant(firmId: string, firm: string): Promise<string[]> {
+      await k('jobs')
+        .where('firm_id', firmId)
+        .update({
+          customer_phone: `07${firm === 'mv' ? '1' : '2'}00 900${firm === 'mv' ? '111' : '222'}`,
+          customer_email: `${mark(firm, 'mail')}@home.example`,
+          price_pence: firm === 'mv' ? 987_654_301 : 987_654_302,
+        });
+      // Names are unique within a firm: the mark, then the calendar's id.
+      await k('calendars')
+        .where('firm_id', firmId)
+        .update({ name: k.raw("? || ' ' || id", [mark(firm, 'week')]) });
+      const calendarIds = k('calendars').where('firm_id', firmId).select('id');
+      const resourceIds = k('resources').where('firm_id', firmId).select('id');
+      await k('calendar_exceptions')
+        .whereIn('calendar_id', calendarIds)
+        .orWhereIn('resource_id', resourceIds)
+        .update({ reason: mark(firm, 'reason') });
+      await k('hire_periods')
+        .where('hirer_firm_id', firmId)
+        .update({ day_rate_pence: firm === 'mv' ? 987_654_311 : 987_654_312 });
+      await k('invitations')
+        .where('firm_id', firmId)
+        .update({ email: `${mark(firm, 'invite')}@example.com` });
+      const phones = (await k('jobs').where('firm_id', firmId).distinct('customer_phone')).map(
+        (r: { customerPhone: string }) => r.customerPhone,
+      );
+      return [
+        ...phones,
+        mark(firm, 'mail'),
+        mark(firm, 'week'),
+        mark(firm, 'reason'),
+        mark(firm, 'invite'),
+        String(firm === 'mv' ? 987_654_301 : 987_654_302),
+        String(firm === 'mv' ? 987_654_311 : 987_654_312),
+      ];
+    }
+    const theirs = await plant(moorview, 'mv');
+    const ours = await plant(tideway, 'tw');
+    // Brightspark's own (it has no jobs, and its coordinator keeps no invitations): its people's
+    // reasons for time away and its weeks' names.
+    const partners = (await plant(await idOf(k, 'firms', { name: 'Brightspark Electrical' }), 'bs')).filter((m) =>
+      /^zqbs(reason|week)/.test(m),
+    );
+
+    const verdicts: string[] = [];
+    let reads = 0;
+    /** Everything Tideway's owner and Brightspark's coordinator read: each firm's marks must be in its own (they are readable at all). */
+    const ownerRead: string[] = [];
+    const partnerRead: string[] = [];
+    for (const role of ROLES) {
+      // Tideway's roles must not read Moorview's; Brightspark's coordinator neither installer's.
+      const forbidden = role === 'partner' ? [...theirs, ...ours] : [...theirs, ...partners];
+      const agent = agents.get(role)!;
+      for (const route of apiRoutes().filter((r) => r.method === 'get' && allowed(r, role))) {
+        for (const ids of [own[reachOfRole(role)], other[reachOfRole(role)]]) {
+          const res = await agent.get(pathFor(route, ids)).query(QUERIES[route.path] ?? {});
+          reads++;
+          const text = res.text ?? '';
+          if (role === 'owner') ownerRead.push(text);
+          if (role === 'partner') partnerRead.push(text);
+          for (const secret of forbidden)
+            if (text.includes(secret)) verdicts.push(`${role} GET ${pathFor(route, ids)} reads ${secret}`);
+        }
+      }
+    }
+    // The calendar feed of each of Brightspark's people (read by any calendar app, no sign-in).
+    const partner = agents.get('partner')!;
+    for (const person of ['Tom Ashworth', 'Priya Nair']) {
+      const personId = await idOf(k, 'resources', { name: person });
+      const feed = await partner
+        .post(`/api/partner/people/${personId}/feed`)
+        .set('X-CSRF-Token', partner.csrf)
+        .expect(201);
+      const ics = await request(ctx.waterline.app).get(new URL(feed.body.url).pathname).expect(200);
+      expect(ics.text).toMatch(/^BEGIN:VCALENDAR/);
+      reads++;
+      for (const secret of [...theirs, ...ours])
+        if (ics.text.includes(secret)) verdicts.push(`${person}'s calendar feed reads ${secret}`);
+    }
+    expect(reads).toBeGreaterThan(100);
+    expect(ours.filter((mark) => !ownerRead.some((text) => text.includes(mark)))).toEqual([]);
+    expect(partners.filter((mark) => !partnerRead.some((text) => text.includes(mark)))).toEqual([]);
+    expect(verdicts).toEqual([]);
+  }, 300_000);
+});
