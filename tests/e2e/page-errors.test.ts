@@ -1,0 +1,113 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { account, idOf, TEST_TODAY } from '../helpers/server.ts';
+import { ROLES, type Role } from '../../shared/permissions.ts';
+
+/*
+ * Every page of the app, opened by each role in chromium (office roles at 1280 × 800, crew and the
+ * partner's coordinator on a phone), on the demo data at the test scenario's today: nothing may go
+ * wrong that the person does not see. No uncaught error, nothing logged as an error or a framework
+ * warning, no request answered 5xx, and no request the page had no business making (a 4xx: the page
+ * asked for something the role may not read, or that is not there). A page the role may not open
+ * is no exception: it says so, quietly.
+ */
+let app: RunningApp;
+let browser: Browser;
+let job: string;
+
+beforeAll(async () => {
+  app = await startServer();
+  job = await idOf(app.ctx.knex, 'jobs', { reference: 'TW-2402' });
+  browser = await launchBrowser();
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+/** Every path of the router, with the demo's job TW-2402 where a page takes a job. */
+const pages = () => [
+  '/',
+  '/board',
+  '/jobs',
+  '/jobs/new',
+  `/jobs/${job}`,
+  `/jobs/${job}/edit`,
+  `/jobs/${job}/survey`,
+  `/jobs/${job}/commission`,
+  `/jobs/${job}/handover`,
+  '/resources',
+  '/firm',
+  '/templates',
+  '/my-work',
+  '/slots',
+  '/slots/day-sheets',
+  '/day-sheets',
+  '/reports',
+  '/no-such-page',
+];
+
+/** What went wrong on a page while it loaded and settled, in words (empty: nothing). */
+async function troubleOn(page: Page, url: string): Promise<string[]> {
+  const trouble: string[] = [];
+  const onError = (e: Error) => trouble.push(`uncaught: ${e.message}`);
+  const onConsole = (m: { type(): string; text(): string }) => {
+    if (m.type() === 'error' || (m.type() === 'warning' && m.text().includes('[Vue warn]')))
+      trouble.push(`${m.type()}: ${m.text().slice(0, 300)}`);
+  };
+  const onResponse = (r: { status(): number; url(): string; request(): { method(): string } }) => {
+    if (r.status() >= 400) trouble.push(`${r.request().method()} ${new URL(r.url()).pathname} → ${r.status()}`);
+  };
+  // Requests under way (the board's live stream never ends, so it is not waited for).
+  const pending = new Set<unknown>();
+  const onRequest = (r: { url(): string }) => {
+    if (!r.url().includes('/api/board/stream')) pending.add(r);
+  };
+  const onDone = (r: unknown) => pending.delete(r);
+  page.on('pageerror', onError);
+  page.on('console', onConsole);
+  page.on('response', onResponse);
+  page.on('request', onRequest);
+  page.on('requestfinished', onDone);
+  page.on('requestfailed', onDone);
+  try {
+    await page.goto(url);
+    await page.getByRole('heading', { level: 1 }).first().waitFor();
+    // Settled: no request under way for a little while (what the page asks for after it draws).
+    let quiet = 0;
+    for (const started = Date.now(); quiet < 5 && Date.now() - started < 10_000;) {
+      quiet = pending.size === 0 ? quiet + 1 : 0;
+      await page.waitForTimeout(40);
+    }
+  } finally {
+    page.off('pageerror', onError);
+    page.off('console', onConsole);
+    page.off('response', onResponse);
+    page.off('request', onRequest);
+    page.off('requestfinished', onDone);
+    page.off('requestfailed', onDone);
+  }
+  return trouble;
+}
+
+describe('every page, as each role', () => {
+  it.each(ROLES.map((r) => [r]))(
+    'as %s: no uncaught error, no error logged, no request refused',
+    async (role) => {
+      const page =
+        role === 'crew' || role === 'partner'
+          ? await phonePage(browser)
+          : await browser.newPage({ viewport: { width: 1280, height: 800 } });
+      await page.context().clock.setFixedTime(TEST_TODAY);
+      const demo = role === 'partner' ? account('partner', 'Brightspark Electrical') : account(role as Role);
+      await signInThroughPage(page, app.url, demo.email);
+      const found: string[] = [];
+      for (const path of pages())
+        for (const t of await troubleOn(page, `${app.url}${path}`)) found.push(`${path}: ${t}`);
+      await page.context().close();
+      expect(found).toEqual([]);
+    },
+    120_000,
+  );
+});
