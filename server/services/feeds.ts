@@ -8,6 +8,7 @@ import { loadBookingFactsMany, slotSections } from '../mail/facts.ts';
 import type { Actor } from './actor.ts';
 import { findVisible } from './scope.ts';
 import { bookingDuring } from './ranges.ts';
+import { recordChange } from './audit.ts';
 
 const hashOf = (token: string) => createHash('sha256').update(token).digest('hex');
 const DAY = 86_400_000;
@@ -34,14 +35,16 @@ export class FeedsService {
   async rotate(actor: Actor, resourceId: string): Promise<{ url: string; createdAt: string }> {
     return this.knex.transaction(async (trx) => {
       const person = await this.person(actor, resourceId, trx);
-      await trx('calendar_feeds')
-        .where({ resource_id: person.id })
-        .whereNull('revoked_at')
-        .update({ revoked_at: new Date() });
+      await this.stopLive(trx, actor, person);
       const token = randomBytes(24).toString('base64url');
       const [row] = await trx('calendar_feeds')
         .insert({ resource_id: person.id, token_hash: hashOf(token), created_by: actor.userId })
-        .returning('created_at');
+        .returning(['id', 'created_at']);
+      // A link that shows a person's work to whoever holds it: who made it is audited (never the token).
+      await recordChange(trx, actor, 'calendar_feed', String(row.id), 'create', null, {
+        resourceId: String(person.id),
+        person: person.name,
+      });
       return { url: `${this.publicUrl}/feeds/${token}.ics`, createdAt: row.createdAt.toISOString() };
     });
   }
@@ -49,11 +52,27 @@ export class FeedsService {
   async revoke(actor: Actor, resourceId: string): Promise<void> {
     await this.knex.transaction(async (trx) => {
       const person = await this.person(actor, resourceId, trx);
-      await trx('calendar_feeds')
-        .where({ resource_id: person.id })
-        .whereNull('revoked_at')
-        .update({ revoked_at: new Date() });
+      await this.stopLive(trx, actor, person);
     });
+  }
+
+  /** Stops the person's live feed (if any), audited: its link no longer works. */
+  private async stopLive(trx: Knex.Transaction, actor: Actor, person: Resource): Promise<void> {
+    const stopped: { id: string }[] = await trx('calendar_feeds')
+      .where({ resource_id: person.id })
+      .whereNull('revoked_at')
+      .update({ revoked_at: new Date() })
+      .returning('id');
+    for (const feed of stopped)
+      await recordChange(
+        trx,
+        actor,
+        'calendar_feed',
+        String(feed.id),
+        'delete',
+        { resourceId: String(person.id), person: person.name },
+        null,
+      );
   }
 
   /** The feed for a live token, or null (unknown and revoked tokens look the same). */

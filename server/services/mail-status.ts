@@ -6,6 +6,7 @@ import { composeMessage, type OutboxKind, type OutboxPayload } from '../mail/mes
 import { isOffice } from './read-policy.ts';
 import { scoped } from './scope.ts';
 import type { Actor } from './actor.ts';
+import { recordChange } from './audit.ts';
 import type { SendAgainResult, UndeliveredMail, UndeliveredMailList } from '../../shared/schemas/mail-status.ts';
 
 /** Mail still waiting after this long counts as undelivered (its queue may be down). */
@@ -215,16 +216,23 @@ export class MailStatusService {
     if (!(await this.inScope(actor).where('o.id', id).first('o.id'))) throw new NotFoundError('e-mail');
     const before = this.waitingSince();
     // One UPDATE decides: a concurrent click waits for this row's lock, then no longer matches.
-    const updated = await this.knex('outbox')
-      .where('id', id)
-      .where((q) => {
-        q.where('status', 'failed').orWhere((w) =>
-          w.whereIn('status', ['pending', 'queued']).where('next_attempt_at', '<', before),
-        );
-      })
-      .update({ status: 'pending', attempts: 0, next_attempt_at: this.knex.fn.now() })
-      .returning('status');
-    if (updated.length) return { id, status: 'pending', requeued: true };
+    const requeued = await this.knex.transaction(async (trx) => {
+      const was = await trx('outbox').where('id', id).forUpdate().first('status', 'attempts');
+      const updated = await trx('outbox')
+        .where('id', id)
+        .where((q) => {
+          q.where('status', 'failed').orWhere((w) =>
+            w.whereIn('status', ['pending', 'queued']).where('next_attempt_at', '<', before),
+          );
+        })
+        .update({ status: 'pending', attempts: 0, next_attempt_at: trx.fn.now() })
+        .returning('status');
+      // Who sent it again, and from what: in the audit log with every other change.
+      if (updated.length)
+        await recordChange(trx, actor, 'outbox', String(id), 'update', was, { status: 'pending', attempts: 0 });
+      return updated.length > 0;
+    });
+    if (requeued) return { id, status: 'pending', requeued: true };
     const current = (await this.knex('outbox').where('id', id).first('status')) as {
       status: 'pending' | 'queued' | 'sent';
     };

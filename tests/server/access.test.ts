@@ -414,6 +414,8 @@ function validBody(
       return { body: { name: 'Renamed week', previousName: 'Standard week' } };
     case 'put /api/resources/:id/calendar':
       return { body: { calendarId: ids.calendar, was: ids.calendar } };
+    case 'put /api/firm/holiday-region':
+      return { body: { holidayRegion: 'GB-ENG', was: 'GB-ENG' } };
     // Routes without an id, so the hostile-input sweep below reaches past validation into the service.
     case 'post /api/bookings':
       return { body: { stageId: ids.stage, resourceId: ids.resource, startsAt: '2026-09-02T08:00:00Z' } };
@@ -1174,6 +1176,72 @@ describe('what is not theirs, looked for in every read (generated from the route
     expect(reads).toBeGreaterThan(100);
     expect(ours.filter((mark) => !ownerRead.some((text) => text.includes(mark)))).toEqual([]);
     expect(partners.filter((mark) => !partnerRead.some((text) => text.includes(mark)))).toEqual([]);
+    expect(verdicts).toEqual([]);
+  }, 300_000);
+});
+
+/*
+ * Every change is in the audit log: each write route, sent once with a body that changes something,
+ * as the owner, a crew member and a partner; whatever it answers with 2xx must have left a row in
+ * the audit log. Only the planner's two previews change nothing, by design.
+ */
+describe('every change audited (generated from the route table)', () => {
+  const PREVIEWS = ['post /api/plan/slots', 'post /api/plan/auto-place'];
+
+  it('leaves an audit row for every write a route takes', async () => {
+    const k = ctx.knex;
+    const audited = async () => Number((await k('audit_log').count('* as n'))[0]!.n);
+    // Another week of Tideway's, to move a crew onto (the matrix's body moves it onto its own week).
+    const [week] = await k('calendars')
+      .insert({ firm_id: tideway, name: 'Audit week', weekly_hours: JSON.stringify({ 1: [[480, 1020]] }) })
+      .returning('id');
+    const verdicts: string[] = [];
+    const taken = new Set<string>();
+    let writes = 0;
+    for (const role of ['owner', 'crew', 'partner'] as const)
+      for (const route of apiRoutes().filter(
+        (r) => r.method !== 'get' && allowed(r, role) && r.path !== '/api/session/firm',
+      )) {
+        let ids = await idsFor(role, route.path, taken);
+        // An invitation still open to withdraw (earlier sweeps withdrew the matrix's own).
+        if (idKindOf(route.path) === 'invitation') {
+          const [open] = await k('invitations')
+            .insert({
+              firm_id: tideway,
+              email: 'audit.sweep@tideway.example',
+              role: 'viewer',
+              expires_at: new Date('2026-12-31T00:00:00Z'),
+            })
+            .returning('id');
+          ids = { ...ids, invitation: String(open.id) };
+        }
+        let options = await optionsFor(route, ids);
+        // The matrix's bodies that change nothing, made changes.
+        const key = `${route.method} ${route.path}`;
+        if (key === 'put /api/firm/members/:id') {
+          const { role: now } = await k('memberships').where({ user_id: ids.member, firm_id: tideway }).first('role');
+          options = { body: { role: now === 'scheduler' ? 'viewer' : 'scheduler', previousRole: now } };
+        }
+        if (key === 'put /api/firm/holiday-region') {
+          const firmId = role === 'partner' ? await idOf(k, 'firms', { name: 'Brightspark Electrical' }) : tideway;
+          const { holidayRegion: was } = await k('firms').where('id', firmId).first('holiday_region');
+          options = { body: { holidayRegion: was === 'GB-SCT' ? 'GB-ENG' : 'GB-SCT', was } };
+        }
+        if (key === 'put /api/resources/:id/calendar') {
+          const { calendarId } = await k('resources').where('id', ids.resource).first('calendar_id');
+          const was = String(calendarId ?? ids.calendar);
+          options = { body: { calendarId: String(week.id) === was ? ids.calendar : String(week.id), was } };
+        }
+        const before = await audited();
+        const res = await call(role, route, pathFor(route, ids), options);
+        if (res.status >= 300) continue;
+        writes++;
+        const rows = (await audited()) - before;
+        if (PREVIEWS.includes(key)) {
+          if (rows !== 0) verdicts.push(`${role} ${key}: a preview wrote ${rows} audit rows`);
+        } else if (rows === 0) verdicts.push(`${role} ${key} → ${res.status}, and nothing in the audit log`);
+      }
+    expect(writes).toBeGreaterThanOrEqual(20);
     expect(verdicts).toEqual([]);
   }, 300_000);
 });

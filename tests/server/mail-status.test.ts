@@ -213,6 +213,15 @@ describe('Send again', () => {
       status: 'pending',
       attempts: 0,
     });
+    // One row in the audit log, for the click that sent it again: who, and from what.
+    const audit = await ctx.knex('audit_log').where({ entity: 'outbox', entity_id: row.failed });
+    expect(audit).toHaveLength(1);
+    expect(audit[0]).toMatchObject({
+      action: 'update',
+      actorUserId: await idOf(ctx.knex, 'users', { email: account('scheduler').email }),
+      before: { status: 'failed' },
+      after: { status: 'pending', attempts: 0 },
+    });
 
     // The address is fine now: the relay and the worker send it.
     const pipeline = ctx.startPipeline();

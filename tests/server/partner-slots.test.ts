@@ -319,6 +319,22 @@ describe('a private calendar feed per person', () => {
     await request(ctx.waterline.app).get(path2).expect(200);
     await partner.delete(`/api/partner/people/${tom}/feed`).set('X-CSRF-Token', partner.csrf).expect(204);
     await request(ctx.waterline.app).get(path2).expect(404);
+
+    // Each link made and each stopped is in the audit log, by whom and for whom (never the token).
+    const feedIds = stored.map((r) => String(r.id));
+    const audit = await ctx.knex('audit_log').where('entity', 'calendar_feed').orderBy('id');
+    const coordinator = await idOf(ctx.knex, 'users', { email: account('partner', 'Brightspark Electrical').email });
+    const made = audit.filter((a) => a.action === 'create');
+    const stopped = audit.filter((a) => a.action === 'delete');
+    expect(made.length).toBeGreaterThanOrEqual(2);
+    // The first link stopped when the second was made, the second when it was taken away.
+    expect(stopped.map((a) => a.entityId)).toEqual(expect.arrayContaining(feedIds));
+    expect(stopped.map((a) => a.entityId)).toContain(made.at(-1)!.entityId);
+    for (const a of audit) {
+      expect(String(a.actorUserId)).toBe(coordinator);
+      expect((a.after ?? a.before).person).toBe('Tom Ashworth');
+      expect(JSON.stringify(a)).not.toContain(secret);
+    }
   });
 
   it("is only for the firm's own people", async () => {
