@@ -56,8 +56,18 @@ export async function dragTrayStage(
   await page.mouse.down();
   await glide(page, from, to);
   // The engine's verdict shows by the pointer once FullCalendar has checked the place: drop then.
+  // On a loaded machine the timeline may still be settling when the glide ends, and FullCalendar
+  // only looks again on the next pointer move: a person's hand is never still, so nudge it.
   const reason = page.locator('.drag-reason');
-  await reason.waitFor({ timeout: 5_000 });
+  for (let nudge = 0; ; nudge++) {
+    try {
+      await reason.waitFor({ timeout: 2_500 });
+      break;
+    } catch (e) {
+      if (nudge === 4) throw e;
+      await page.mouse.move(to.x + (nudge % 2 === 0 ? 1 : 0), to.y);
+    }
+  }
   const said = (await reason.innerText()).replace(/\s+/g, ' ').trim();
   await page.mouse.up();
   return said;

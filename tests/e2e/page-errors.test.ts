@@ -8,9 +8,10 @@ import { ROLES, type Role } from '../../shared/permissions.ts';
  * Every page of the app, opened by each role in chromium (office roles at 1280 × 800, crew and the
  * partner's coordinator on a phone), on the demo data at the test scenario's today: nothing may go
  * wrong that the person does not see. No uncaught error, nothing logged as an error or a framework
- * warning, no request answered 5xx, and no request the page had no business making (a 4xx: the page
- * asked for something the role may not read, or that is not there). A page the role may not open
- * is no exception: it says so, quietly.
+ * warning, no request answered 5xx, no request the page had no business making (a 4xx: the page
+ * asked for something the role may not read, or that is not there), and no "undefined", "NaN",
+ * "null", "Invalid Date" or "[object Object]" in what it shows. A page the role may not open is no
+ * exception: it says so, quietly.
  */
 let app: RunningApp;
 let browser: Browser;
@@ -80,6 +81,10 @@ async function troubleOn(page: Page, url: string): Promise<string[]> {
       quiet = pending.size === 0 ? quiet + 1 : 0;
       await page.waitForTimeout(40);
     }
+    // Nothing on the page reads as a value that went missing on the way.
+    const shown = await page.evaluate(() => document.body.innerText);
+    for (const slip of shown.match(/\b(undefined|NaN|null)\b|Invalid Date|\[object \w+\]/g) ?? [])
+      trouble.push(`shows "${slip}"`);
   } finally {
     page.off('pageerror', onError);
     page.off('console', onConsole);
