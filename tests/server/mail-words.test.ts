@@ -1,0 +1,153 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import ICAL from 'ical.js';
+import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
+import { pencilIn } from '../helpers/mail.ts';
+import { unbookJobs } from '../helpers/demo.ts';
+import { composeMessage, type OutboxKind, type OutgoingMail } from '../../server/mail/messages.ts';
+
+/*
+ * The e-mails a day's work sends, made here through the API as people make them: a request to
+ * Brightspark's electrician and her confirmation, the slot then moved and withdrawn, another request
+ * declined, an invitation and a householder's deposit. Each is composed as the mail worker composes
+ * it: it has someone to go to, a subject, a plain-text part and an HTML part, and none of them says
+ * "undefined", "NaN", "null", "Invalid Date" or "[object …]" where a value went missing on the way;
+ * a calendar attachment parses as iCalendar (RFC 5545, by ical.js, an independent reader).
+ */
+let ctx: TestContext;
+let scheduler: Agent;
+let owner: Agent;
+let partner: Agent;
+
+beforeAll(async () => {
+  ctx = await startTestApp();
+  // Rows other test files left: only what this file sends is read.
+  await ctx.knex('outbox').del();
+  scheduler = await signIn(ctx, account('scheduler').email);
+  owner = await signIn(ctx, account('owner').email);
+  partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
+});
+afterAll(async () => {
+  await ctx.close();
+});
+
+const SLIP = /\b(undefined|NaN|null)\b|Invalid Date|\[object \w+\]/;
+
+const send = (agent: Agent, method: 'post' | 'patch' | 'put', path: string, body: object) =>
+  agent[method](path).set('X-CSRF-Token', agent.csrf).send(body);
+const versionOf = async (id: string) => (await ctx.knex('bookings').where('id', id).first('version')).version as number;
+
+/** Each e-mail as the worker composes it moments after the change that queued it. */
+const composed: { where: string; kind: string; mail: OutgoingMail }[] = [];
+let seen = '0';
+async function composeNew(): Promise<void> {
+  const rows = (await ctx.knex('outbox').where('id', '>', seen).orderBy('id').select('id', 'kind', 'payload')) as {
+    id: string;
+    kind: OutboxKind;
+    payload: Record<string, unknown>;
+  }[];
+  for (const row of rows) {
+    seen = String(row.id);
+    const mail = await composeMessage({ knex: ctx.knex, config: ctx.config }, row.kind, row.payload);
+    if ('skip' in mail) throw new Error(`${row.kind} #${row.id} skipped at once: ${mail.skip}`);
+    composed.push({ where: `${row.kind} #${row.id}`, kind: row.kind, mail });
+  }
+}
+
+describe("the e-mails of a day's work", () => {
+  it('each has someone to go to, a subject, both parts and no value gone missing', async () => {
+    await unbookJobs(ctx.knex, 'TW-2415');
+    // Asked of Priya Nair, confirmed by her firm, moved an hour, then withdrawn.
+    const asked = await pencilIn(ctx.knex, {
+      job: 'TW-2415',
+      stage: 'electrical_connect',
+      resource: 'Priya Nair',
+      startsAt: '2027-08-17T08:00:00Z',
+      endsAt: '2027-08-17T12:00:00Z',
+    });
+    const published = await send(scheduler, 'post', `/api/bookings/${asked.id}/publish`, { version: asked.version });
+    expect(published.status, JSON.stringify(published.body)).toBe(200);
+    await composeNew();
+    const confirmed = await send(partner, 'post', `/api/partner/slots/${asked.id}/answer`, {
+      version: await versionOf(asked.id),
+      action: 'confirm',
+    });
+    expect(confirmed.status, JSON.stringify(confirmed.body)).toBe(200);
+    await composeNew();
+    const moved = await send(scheduler, 'patch', `/api/bookings/${asked.id}`, {
+      version: await versionOf(asked.id),
+      startsAt: '2027-08-17T09:00:00Z',
+      endsAt: '2027-08-17T13:00:00Z',
+    });
+    expect(moved.status, JSON.stringify(moved.body)).toBe(200);
+    await composeNew();
+    const withdrawn = await send(scheduler, 'post', `/api/bookings/${asked.id}/cancel`, {
+      version: await versionOf(asked.id),
+    });
+    expect(withdrawn.status, JSON.stringify(withdrawn.body)).toBe(200);
+    await composeNew();
+    // Asked of Tom Ashworth, declined with a reason.
+    const other = await pencilIn(ctx.knex, {
+      job: 'TW-2415',
+      stage: 'electrical_first_fix',
+      resource: 'Tom Ashworth',
+      startsAt: '2027-08-10T08:00:00Z',
+      endsAt: '2027-08-10T12:00:00Z',
+    });
+    await send(scheduler, 'post', `/api/bookings/${other.id}/publish`, { version: other.version }).expect(200);
+    await composeNew();
+    const declined = await send(partner, 'post', `/api/partner/slots/${other.id}/answer`, {
+      version: await versionOf(other.id),
+      action: 'decline',
+      reason: 'Away on a course that week',
+    });
+    expect(declined.status, JSON.stringify(declined.body)).toBe(200);
+    await composeNew();
+    // A new fitter invited; the householder asked for a deposit.
+    await send(owner, 'post', '/api/firm/invitations', { email: 'new.hand@tideway.example', role: 'crew' }).expect(201);
+    await composeNew();
+    const job = await idOf(ctx.knex, 'jobs', { reference: 'TW-2415' });
+    const { pricePence } = await ctx.knex('jobs').where('id', job).first('price_pence');
+    await send(owner, 'put', `/api/jobs/${job}/price`, { pricePence: 1_450_000, wasPence: pricePence }).expect(200);
+    const deposit = await send(owner, 'post', `/api/jobs/${job}/payments/deposit`, { amountPence: 290_000 });
+    expect(deposit.status, JSON.stringify(deposit.body)).toBe(201);
+    await composeNew();
+
+    const slips: string[] = [];
+    for (const { where, mail } of composed) {
+      const m = mail;
+      if (m.to.length === 0 || m.to.some((a) => !/^[^@\s]+@[^@\s]+$/.test(a))) slips.push(`${where}: to ${m.to}`);
+      if (m.subject.trim() === '') slips.push(`${where}: no subject`);
+      if (m.text.trim() === '' || m.html.trim() === '') slips.push(`${where}: a part is empty`);
+      for (const [part, body] of [
+        ['subject', m.subject],
+        ['text', m.text],
+        ['html', m.html],
+      ] as const) {
+        const found = SLIP.exec(body);
+        if (found)
+          slips.push(
+            `${where}: its ${part} says "${found[0]}" (…${body.slice(Math.max(0, found.index - 60), found.index + 20)}…)`,
+          );
+      }
+      if (m.ics) {
+        const cal = new ICAL.Component(ICAL.parse(m.ics.content));
+        if (cal.getFirstPropertyValue('method') !== m.ics.method) slips.push(`${where}: calendar method`);
+        const found = SLIP.exec(m.ics.content);
+        if (found) slips.push(`${where}: its calendar says "${found[0]}"`);
+      }
+    }
+    // Each kind a day's work sends, composed at its moment.
+    expect(new Set(composed.map((c) => c.kind))).toEqual(
+      new Set([
+        'booking_request',
+        'booking_confirmed',
+        'booking_update',
+        'booking_cancel',
+        'booking_declined',
+        'invitation',
+        'payment_request',
+      ]),
+    );
+    expect(slips).toEqual([]);
+  });
+});
