@@ -22,7 +22,8 @@ export function problemSummary(error: unknown): ProblemSummary {
 
 /**
  * One line of text for a field problem, the field named in words by the last part of its path
- * (`quantities.perimeterGapMm` → "Perimeter gap mm"), or just the message when no field is named.
+ * and its unit in brackets (`quantities.perimeterGapMm` → "Perimeter gap (mm)", see fieldWords), or
+ * just the message when no field is named.
  * A form that knows its labels says it better under the box (fieldSentence); this is the fallback.
  *
  * @example fieldProblemText({ field: 'siteTown', message: 'is required' }) // 'Site town is required'
@@ -35,8 +36,38 @@ export function fieldProblemText(problem: FieldProblem): string {
       .split('.')
       .filter((part) => !/^\d+$/.test(part))
       .pop() ?? problem.field;
-  const words = last.replace(/([a-z0-9])([A-Z])/g, '$1 $2').toLowerCase();
-  return fieldSentence(humanise(words), problem.message) as string;
+  return fieldSentence(fieldWords(last), problem.message) as string;
+}
+
+/** A field name's unit, as its last part says it (`…Mm`, `…Pence`), in the words a form would use. */
+const UNITS: [RegExp, string][] = [
+  [/TPerM3$/, 't/m³'],
+  [/M3$/, 'm³'],
+  [/Mm$/, 'mm'],
+  [/Kg$/, 'kg'],
+  [/Kw$/, 'kW'],
+  [/Pence$/, 'pence'],
+  [/Percent$/, '%'],
+  [/Minutes$/, 'minutes'],
+  [/Hours$/, 'hours'],
+  [/Days$/, 'days'],
+  [/(?<=[a-z])C$/, '°C'],
+  [/(?<=[a-z])M$/, 'm'],
+  [/(?<=[a-z])T$/, 't'],
+];
+
+/**
+ * A field's code in words, its unit in brackets: `perimeterGapMm` → "Perimeter gap (mm)",
+ * `dayRatePence` → "Day rate (pence)", `siteTown` → "Site town".
+ *
+ * @example fieldWords('subBaseDensityTPerM3') // 'Sub base density (t/m³)'
+ */
+export function fieldWords(code: string): string {
+  for (const [suffix, unit] of UNITS) {
+    const name = code.replace(suffix, '');
+    if (name !== code && name !== '') return `${fieldWords(name)} (${unit})`;
+  }
+  return humanise(code.replace(/([a-z0-9])([A-Z])/g, '$1 $2').toLowerCase());
 }
 
 /**

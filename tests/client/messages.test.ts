@@ -24,8 +24,30 @@ describe('problemSummary', () => {
   it('writes a field problem as one line', () => {
     expect(fieldProblemText({ field: 'siteTown', message: 'is required' })).toBe('Site town is required');
     expect(fieldProblemText({ field: 'quantities.perimeterGapMm', message: 'must be at most 1,000' })).toBe(
-      'Perimeter gap mm must be at most 1,000',
+      'Perimeter gap (mm) must be at most 1,000',
     );
+    // A unit at the end of a field's code is said as a form says it, in brackets.
+    expect(fieldProblemText({ field: 'dayRatePence', message: 'must be a whole number' })).toBe(
+      'Day rate (pence) must be a whole number',
+    );
+    expect(fieldProblemText({ field: 'quantities.subBaseDensityTPerM3', message: 'must be at most 3' })).toBe(
+      'Sub base density (t/m³) must be at most 3',
+    );
+    expect(fieldProblemText({ field: 'cureDatumC', message: 'must be between −15 and 15 °C' })).toBe(
+      'Cure datum (°C) must be between −15 and 15 °C',
+    );
+    expect(fieldProblemText({ field: 'craneDistanceToSetDownM', message: 'must be at most 60' })).toBe(
+      'Crane distance to set down (m) must be at most 60',
+    );
+    expect(fieldProblemText({ field: 'moveMinutes', message: 'must be at least 0' })).toBe(
+      'Move (minutes) must be at least 0',
+    );
+    // Words that merely end in a capital are left alone, as is a code that is all unit.
+    expect(fieldProblemText({ field: 'horizonDays', message: 'must be at most 365' })).toBe(
+      'Horizon (days) must be at most 365',
+    );
+    expect(fieldProblemText({ field: 'stageId', message: 'is required' })).toBe('Stage id is required');
+    expect(fieldProblemText({ field: 'Mm', message: 'is required' })).toBe('Mm is required');
     expect(fieldProblemText({ field: 'stages.0', message: 'pick a stage' })).toBe('Pick a stage');
     expect(fieldProblemText({ field: '', message: 'Nothing to save' })).toBe('Nothing to save');
     expect(fieldProblemText({ field: '(body)', message: 'names nothing to change: send at least one field' })).toBe(
