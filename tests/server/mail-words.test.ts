@@ -8,7 +8,8 @@ import { composeMessage, type OutboxKind, type OutgoingMail } from '../../server
 /*
  * The e-mails a day's work sends, made here through the API as people make them: a request to
  * Brightspark's electrician and her confirmation, the slot then moved and withdrawn, another request
- * declined, an invitation and a householder's deposit. Each is composed as the mail worker composes
+ * declined, a third answered with another time that is refused, an invitation and a householder's
+ * deposit. Each is composed as the mail worker composes
  * it: it has someone to go to, a subject, a plain-text part and an HTML part, and none of them says
  * "undefined", "NaN", "null", "Invalid Date" or "[object …]" where a value went missing on the way;
  * a calendar attachment parses as iCalendar (RFC 5545, by ical.js, an independent reader).
@@ -102,6 +103,30 @@ describe("the e-mails of a day's work", () => {
     });
     expect(declined.status, JSON.stringify(declined.body)).toBe(200);
     await composeNew();
+    // Asked of Tom again for the connection; his firm proposes another time, which is refused.
+    const third = await pencilIn(ctx.knex, {
+      job: 'TW-2415',
+      stage: 'electrical_connect',
+      resource: 'Tom Ashworth',
+      startsAt: '2027-08-24T08:00:00Z',
+      endsAt: '2027-08-24T12:00:00Z',
+    });
+    await send(scheduler, 'post', `/api/bookings/${third.id}/publish`, { version: third.version }).expect(200);
+    await composeNew();
+    const proposed = await send(partner, 'post', `/api/partner/slots/${third.id}/answer`, {
+      version: await versionOf(third.id),
+      action: 'propose',
+      proposedStart: '2027-08-25T08:00:00Z',
+      proposedEnd: '2027-08-25T12:00:00Z',
+      reason: 'Wednesday suits the wholesaler delivery',
+    });
+    expect(proposed.status, JSON.stringify(proposed.body)).toBe(200);
+    await composeNew();
+    const refused = await send(scheduler, 'post', `/api/bookings/${third.id}/proposal/refuse`, {
+      version: await versionOf(third.id),
+    });
+    expect(refused.status, JSON.stringify(refused.body)).toBe(200);
+    await composeNew();
     // A new fitter invited; the householder asked for a deposit.
     await send(owner, 'post', '/api/firm/invitations', { email: 'new.hand@tideway.example', role: 'crew' }).expect(201);
     await composeNew();
@@ -144,6 +169,7 @@ describe("the e-mails of a day's work", () => {
         'booking_update',
         'booking_cancel',
         'booking_declined',
+        'proposal_refused',
         'invitation',
         'payment_request',
       ]),
