@@ -4,11 +4,15 @@ import { account, idOf, signIn, startTestApp, type Agent, type TestContext } fro
 import { pencilIn } from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import { composeMessage, type OutboxKind, type OutgoingMail } from '../../server/mail/messages.ts';
+import { scanOverdueRequests } from '../../server/services/reminders.ts';
+
+const DAY = 86_400_000;
 
 /*
  * The e-mails a day's work sends, made here through the API as people make them: a request to
  * Brightspark's electrician and her confirmation, the slot then moved and withdrawn, another request
- * declined, a third answered with another time that is refused, an invitation and a householder's
+ * declined, a third reminded when unanswered and then answered with another time that is refused,
+ * a crane confirmed for a lift (the householder hears the day), an invitation and a householder's
  * deposit. Each is composed as the mail worker composes
  * it: it has someone to go to, a subject, a plain-text part and an HTML part, and none of them says
  * "undefined", "NaN", "null", "Invalid Date" or "[object …]" where a value went missing on the way;
@@ -113,6 +117,11 @@ describe("the e-mails of a day's work", () => {
     });
     await send(scheduler, 'post', `/api/bookings/${third.id}/publish`, { version: third.version }).expect(200);
     await composeNew();
+    // Not answered in time: the reminder scan (run as if a day later) reminds the electrician.
+    expect(await scanOverdueRequests(ctx.knex, { now: new Date(Date.now() + DAY), reminderHours: 1 })).toBeGreaterThan(
+      0,
+    );
+    await composeNew();
     const proposed = await send(partner, 'post', `/api/partner/slots/${third.id}/answer`, {
       version: await versionOf(third.id),
       action: 'propose',
@@ -126,6 +135,25 @@ describe("the e-mails of a day's work", () => {
       version: await versionOf(third.id),
     });
     expect(refused.status, JSON.stringify(refused.body)).toBe(200);
+    await composeNew();
+    // A crane asked for TW-2421's lift and confirmed by Fellside: the householder hears the lift day.
+    await unbookJobs(ctx.knex, 'TW-2421');
+    const lift = await pencilIn(ctx.knex, {
+      job: 'TW-2421',
+      stage: 'lift',
+      resource: '25 t city crane',
+      startsAt: '2027-09-07T08:00:00Z',
+      endsAt: '2027-09-07T11:00:00Z',
+    });
+    const craneAsked = await send(scheduler, 'post', `/api/bookings/${lift.id}/publish`, { version: lift.version });
+    expect(craneAsked.status, JSON.stringify(craneAsked.body)).toBe(200);
+    await composeNew();
+    const fellside = await signIn(ctx, account('partner', 'Fellside Crane Hire').email);
+    const craneSaid = await send(fellside, 'post', `/api/partner/slots/${lift.id}/answer`, {
+      version: await versionOf(lift.id),
+      action: 'confirm',
+    });
+    expect(craneSaid.status, JSON.stringify(craneSaid.body)).toBe(200);
     await composeNew();
     // A new fitter invited; the householder asked for a deposit.
     await send(owner, 'post', '/api/firm/invitations', { email: 'new.hand@tideway.example', role: 'crew' }).expect(201);
@@ -165,7 +193,9 @@ describe("the e-mails of a day's work", () => {
     expect(new Set(composed.map((c) => c.kind))).toEqual(
       new Set([
         'booking_request',
+        'booking_reminder',
         'booking_confirmed',
+        'customer_notice',
         'booking_update',
         'booking_cancel',
         'booking_declined',
