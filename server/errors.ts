@@ -266,9 +266,6 @@ const withField = (r: PlainRefusal) => (r.field && r.message ? [{ field: r.field
  * Database refusals in the user's words: the status by kind (unique/exclusion → 409, a missing
  * reference → 422, one still in use → 409, not-null/check/data → 400), the sentence by constraint.
  */
-/** What the loser of two writes at the same moment is told (see databaseError). */
-export const WRITE_CONFLICT = 'Another change was saved at the same moment: reload and try again.';
-
 function databaseError(err: unknown): HttpError | null {
   const pg = postgresError(err);
   if (!pg) return null;
@@ -305,7 +302,9 @@ function databaseError(err: unknown): HttpError | null {
     // route it was, the one it gave up on is told to try again, never a 500.
     case '40P01':
     case '40001':
-      return new ConflictError(WRITE_CONFLICT, { code: 'write-conflict' });
+      return new ConflictError('Another change was saved at the same moment: reload and try again.', {
+        code: 'write-conflict',
+      });
   }
   if (pg.code.startsWith('23'))
     return new ConflictError('The change conflicts with what is already recorded; reload and try again.');
