@@ -49,50 +49,52 @@ const pages = () => [
   '/no-such-page',
 ];
 
-/** What went wrong on a page while it loaded and settled, in words (empty: nothing). */
-async function troubleOn(page: Page, url: string): Promise<string[]> {
-  const trouble: string[] = [];
-  const onError = (e: Error) => trouble.push(`uncaught: ${e.message}`);
-  const onConsole = (m: { type(): string; text(): string }) => {
+/**
+ * Listens to a page for as long as it lives: what went wrong (taken by `take`) and the requests
+ * under way (the board's live stream never ends, so it is not counted).
+ */
+function watch(page: Page): { take(): string[]; pending: Set<unknown> } {
+  let trouble: string[] = [];
+  const pending = new Set<unknown>();
+  page.on('pageerror', (e) => trouble.push(`uncaught: ${e.message}`));
+  page.on('console', (m) => {
     if (m.type() === 'error' || (m.type() === 'warning' && m.text().includes('[Vue warn]')))
       trouble.push(`${m.type()}: ${m.text().slice(0, 300)}`);
-  };
-  const onResponse = (r: { status(): number; url(): string; request(): { method(): string } }) => {
+  });
+  page.on('response', (r) => {
     if (r.status() >= 400) trouble.push(`${r.request().method()} ${new URL(r.url()).pathname} → ${r.status()}`);
-  };
-  // Requests under way (the board's live stream never ends, so it is not waited for).
-  const pending = new Set<unknown>();
-  const onRequest = (r: { url(): string }) => {
+  });
+  page.on('request', (r) => {
     if (!r.url().includes('/api/board/stream')) pending.add(r);
+  });
+  page.on('requestfinished', (r) => pending.delete(r));
+  page.on('requestfailed', (r) => pending.delete(r));
+  return {
+    pending,
+    take() {
+      const found = trouble;
+      trouble = [];
+      return found;
+    },
   };
-  const onDone = (r: unknown) => pending.delete(r);
-  page.on('pageerror', onError);
-  page.on('console', onConsole);
-  page.on('response', onResponse);
-  page.on('request', onRequest);
-  page.on('requestfinished', onDone);
-  page.on('requestfailed', onDone);
-  try {
-    await page.goto(url);
-    await page.getByRole('heading', { level: 1 }).first().waitFor();
-    // Settled: no request under way for a little while (what the page asks for after it draws).
-    let quiet = 0;
-    for (const started = Date.now(); quiet < 5 && Date.now() - started < 10_000;) {
-      quiet = pending.size === 0 ? quiet + 1 : 0;
-      await page.waitForTimeout(40);
-    }
-    // Nothing on the page reads as a value that went missing on the way.
-    const shown = await page.evaluate(() => document.body.innerText);
-    for (const slip of shown.match(/\b(undefined|NaN|null)\b|Invalid Date|\[object \w+\]/g) ?? [])
-      trouble.push(`shows "${slip}"`);
-  } finally {
-    page.off('pageerror', onError);
-    page.off('console', onConsole);
-    page.off('response', onResponse);
-    page.off('request', onRequest);
-    page.off('requestfinished', onDone);
-    page.off('requestfailed', onDone);
+}
+
+/** What went wrong on a page while it loaded and settled, in words (empty: nothing). */
+async function troubleOn(page: Page, watched: ReturnType<typeof watch>, url: string): Promise<string[]> {
+  watched.take();
+  await page.goto(url);
+  await page.getByRole('heading', { level: 1 }).first().waitFor();
+  // Settled: no request under way for a little while (what the page asks for after it draws).
+  let quiet = 0;
+  for (const started = Date.now(); quiet < 5 && Date.now() - started < 10_000;) {
+    quiet = watched.pending.size === 0 ? quiet + 1 : 0;
+    await page.waitForTimeout(40);
   }
+  const trouble = watched.take();
+  // Nothing on the page reads as a value that went missing on the way.
+  const shown = await page.evaluate(() => document.body.innerText);
+  for (const slip of shown.match(/\b(undefined|NaN|null)\b|Invalid Date|\[object \w+\]/g) ?? [])
+    trouble.push(`shows "${slip}"`);
   return trouble;
 }
 
@@ -107,9 +109,10 @@ describe('every page, as each role', () => {
       await page.context().clock.setFixedTime(TEST_TODAY);
       const demo = role === 'partner' ? account('partner', 'Brightspark Electrical') : account(role as Role);
       await signInThroughPage(page, app.url, demo.email);
+      const watched = watch(page);
       const found: string[] = [];
       for (const path of pages())
-        for (const t of await troubleOn(page, `${app.url}${path}`)) found.push(`${path}: ${t}`);
+        for (const t of await troubleOn(page, watched, `${app.url}${path}`)) found.push(`${path}: ${t}`);
       await page.context().close();
       expect(found).toEqual([]);
     },
