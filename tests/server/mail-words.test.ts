@@ -5,6 +5,8 @@ import { pencilIn } from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import { composeMessage, type OutboxKind, type OutgoingMail } from '../../server/mail/messages.ts';
 import { scanOverdueRequests } from '../../server/services/reminders.ts';
+import { S3ObjectStore } from '../../server/storage/object-store.ts';
+import { ALL_TICKED, makeHandoverJob, signaturePng } from '../helpers/handover.ts';
 
 const DAY = 86_400_000;
 
@@ -13,7 +15,8 @@ const DAY = 86_400_000;
  * Brightspark's electrician and her confirmation, the slot then moved and withdrawn, another request
  * declined, a third reminded when unanswered and then answered with another time that is refused,
  * a crane confirmed for a lift (the householder hears the day), an invitation and a householder's
- * deposit. Each is composed as the mail worker composes
+ * deposit, and a handover signed on site (the pack, and the householder's service plan). Each is
+ * composed as the mail worker composes
  * it: it has someone to go to, a subject, a plain-text part and an HTML part, and none of them says
  * "undefined", "NaN", "null", "Invalid Date" or "[object …]" where a value went missing on the way;
  * a calendar attachment parses as iCalendar (RFC 5545, by ical.js, an independent reader).
@@ -22,9 +25,11 @@ let ctx: TestContext;
 let scheduler: Agent;
 let owner: Agent;
 let partner: Agent;
+let store: S3ObjectStore;
 
 beforeAll(async () => {
   ctx = await startTestApp();
+  store = new S3ObjectStore(ctx.config);
   // Rows other test files left: only what this file sends is read.
   await ctx.knex('outbox').del();
   scheduler = await signIn(ctx, account('scheduler').email);
@@ -32,7 +37,8 @@ beforeAll(async () => {
   partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);
 });
 afterAll(async () => {
-  await ctx.close();
+  store?.close();
+  await ctx?.close();
 });
 
 const SLIP = /\b(undefined|NaN|null)\b|Invalid Date|\[object \w+\]/;
@@ -52,7 +58,7 @@ async function composeNew(): Promise<void> {
   }[];
   for (const row of rows) {
     seen = String(row.id);
-    const mail = await composeMessage({ knex: ctx.knex, config: ctx.config }, row.kind, row.payload);
+    const mail = await composeMessage({ knex: ctx.knex, config: ctx.config, store }, row.kind, row.payload);
     if ('skip' in mail) throw new Error(`${row.kind} #${row.id} skipped at once: ${mail.skip}`);
     composed.push({ where: `${row.kind} #${row.id}`, kind: row.kind, mail });
   }
@@ -164,6 +170,22 @@ describe("the e-mails of a day's work", () => {
     const deposit = await send(owner, 'post', `/api/jobs/${job}/payments/deposit`, { amountPence: 290_000 });
     expect(deposit.status, JSON.stringify(deposit.body)).toBe(201);
     await composeNew();
+    // Connor Reid hands an install over this afternoon: the householder gets the pack, then the
+    // dates of the service visits the firm's plan books ahead.
+    const handedOver = await makeHandoverJob(ctx.knex, {
+      reference: 'MW-301',
+      startsAt: '2026-06-01T16:00:00Z',
+      store,
+    });
+    const crew = await signIn(ctx, account('crew').email);
+    const signed = await send(crew, 'post', `/api/jobs/${handedOver.jobId}/handover`, {
+      checklist: { ...ALL_TICKED },
+      householderName: 'Ruth Calder',
+      householderEmail: 'ruth@calder.example',
+      signature: await signaturePng(),
+    });
+    expect(signed.status, JSON.stringify(signed.body)).toBe(201);
+    await composeNew();
 
     const slips: string[] = [];
     for (const { where, mail } of composed) {
@@ -181,6 +203,9 @@ describe("the e-mails of a day's work", () => {
           slips.push(
             `${where}: its ${part} says "${found[0]}" (…${body.slice(Math.max(0, found.index - 60), found.index + 20)}…)`,
           );
+      }
+      for (const a of m.attachments ?? []) {
+        if (a.content.length === 0 || SLIP.test(a.filename)) slips.push(`${where}: attachment "${a.filename}"`);
       }
       if (m.ics) {
         const cal = new ICAL.Component(ICAL.parse(m.ics.content));
@@ -202,6 +227,8 @@ describe("the e-mails of a day's work", () => {
         'proposal_refused',
         'invitation',
         'payment_request',
+        'handover_pack',
+        'service_plan_notice',
       ]),
     );
     expect(slips).toEqual([]);
