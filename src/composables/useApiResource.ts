@@ -1,4 +1,4 @@
-import { ref, shallowRef, watch, onScopeDispose, type Ref, type ShallowRef } from 'vue';
+import { computed, ref, shallowRef, watch, onScopeDispose, type ComputedRef, type Ref, type ShallowRef } from 'vue';
 import { api, ApiError, type RequestOptions } from '@/api/client';
 
 export interface ApiSource {
@@ -11,6 +11,35 @@ export interface ApiResource<T> {
   loading: Ref<boolean>;
   error: ShallowRef<ApiError | null>;
   refresh: () => Promise<void>;
+  /** When the data held was answered (epoch ms), null before the first answer. */
+  loadedAt: Ref<number | null>;
+  /**
+   * The server could not be reached (no signal, or it is down) and an earlier answer is at hand: the
+   * page keeps showing it, saying from when (LoadProblem's `loadedAt`), rather than emptying the screen.
+   */
+  stale: ComputedRef<boolean>;
+}
+
+export interface ApiResourceOptions {
+  /**
+   * Keep the last answer in memory for this tab, so the page can show it again, dated, when it is
+   * opened without a signal (My work or a slot list on site, after a look at another page). Forgotten
+   * when the session changes (see {@link forgetKeptAnswers}).
+   */
+  keep?: boolean;
+}
+
+/** A failure of reaching the server at all (no answer, or a proxy's 502–504), not an answer refusing. */
+export function isUnreachable(error: ApiError | null): boolean {
+  return error !== null && (error.status === 0 || error.status === 502 || error.status === 503 || error.status === 504);
+}
+
+/** The last answers of resources that keep theirs, by path and query. */
+const kept = new Map<string, { data: unknown; at: number }>();
+
+/** Drops every kept answer: another person or firm is signed in now, or nobody. */
+export function forgetKeptAnswers(): void {
+  kept.clear();
 }
 
 /**
@@ -19,10 +48,13 @@ export interface ApiResource<T> {
  * so a slow answer never overwrites a newer one. Return null from the source to wait.
  * @example const { data, loading, error, refresh } = useApiResource<ItemList<ResourceRow>>(() => ({ path: '/api/resources' }))
  */
-export function useApiResource<T>(source: () => ApiSource | null): ApiResource<T> {
+export function useApiResource<T>(source: () => ApiSource | null, options: ApiResourceOptions = {}): ApiResource<T> {
   const data = shallowRef<T | null>(null);
   const loading = ref(false);
   const error = shallowRef<ApiError | null>(null);
+  const loadedAt = ref<number | null>(null);
+  /** Which source the data held answers (a page of a list, a day's sheet). */
+  let dataKey: string | null = null;
   let controller: AbortController | null = null;
 
   async function fetchNow(target: ApiSource | null): Promise<void> {
@@ -30,13 +62,26 @@ export function useApiResource<T>(source: () => ApiSource | null): ApiResource<T
     if (!target) return;
     const own = new AbortController();
     controller = own;
+    const key = JSON.stringify(target);
     loading.value = true;
     error.value = null;
     try {
       data.value = await api.get<T>(target.path, { query: target.query, signal: own.signal });
+      dataKey = key;
+      loadedAt.value = Date.now();
+      if (options.keep) kept.set(key, { data: data.value, at: loadedAt.value });
     } catch (caught) {
       if (own.signal.aborted) return;
-      error.value = caught instanceof ApiError ? caught : new ApiError({ status: 0, title: 'Something went wrong' });
+      const failed = caught instanceof ApiError ? caught : new ApiError({ status: 0, title: 'Something went wrong' });
+      if (dataKey !== key) {
+        // What is held answers another source (yesterday's sheet, the last page): never shown as this
+        // one's. This one's own earlier answer, kept, is shown instead when the server was out of reach.
+        const earlier = isUnreachable(failed) ? kept.get(key) : undefined;
+        data.value = earlier === undefined ? null : (earlier.data as T);
+        loadedAt.value = earlier === undefined ? null : earlier.at;
+        dataKey = earlier === undefined ? null : key;
+      }
+      error.value = failed;
     } finally {
       if (controller === own) {
         loading.value = false;
@@ -52,5 +97,6 @@ export function useApiResource<T>(source: () => ApiSource | null): ApiResource<T
   );
   onScopeDispose(() => controller?.abort());
 
-  return { data, loading, error, refresh: () => fetchNow(source()) };
+  const stale = computed(() => data.value !== null && isUnreachable(error.value));
+  return { data, loading, error, refresh: () => fetchNow(source()), loadedAt, stale };
 }

@@ -23,8 +23,18 @@ export function useJobDetail(jobId: Ref<string>, can: (permission: Permission) =
   // The path is read inside the getter, so a new job id re-fetches; null (not permitted) waits for ever.
   const source = (section: keyof typeof JOB_SECTIONS, path: () => string) => () =>
     can(JOB_SECTIONS[section]) ? { path: path() } : null;
-  const job = useApiResource<JobDetail>(source('job', () => `/api/jobs/${jobId.value}`));
-  const stages = useApiResource<ItemList<JobStage>>(source('stages', () => `/api/jobs/${jobId.value}/stages`));
+  // The job and its stages are kept for the tab: a crew looking at a job again on site without a
+  // signal still has the site, the phone numbers and the stages, dated.
+  const job = useApiResource<JobDetail>(
+    source('job', () => `/api/jobs/${jobId.value}`),
+    { keep: true },
+  );
+  const stages = useApiResource<ItemList<JobStage>>(
+    source('stages', () => `/api/jobs/${jobId.value}/stages`),
+    {
+      keep: true,
+    },
+  );
   const quantities = useApiResource<QuantitiesBody>(source('quantities', () => `/api/jobs/${jobId.value}/quantities`));
   const files = useApiResource<ItemList<FileView>>(source('files', () => `/api/jobs/${jobId.value}/files`));
   const shows = (section: keyof typeof JOB_SECTIONS) => can(JOB_SECTIONS[section]);

@@ -20,7 +20,8 @@ export interface MyWorkPrompts {
  * @example const { groups, mark } = useMyWork({ confirm, announce, problem }); await mark(item, 'arrive')
  */
 export function useMyWork(prompts: MyWorkPrompts) {
-  const list = useApiResource<MyWorkList>(() => ({ path: '/api/my-work' }));
+  // Kept for the tab: opened again on site without a signal, the page shows the last list, dated.
+  const list = useApiResource<MyWorkList>(() => ({ path: '/api/my-work' }), { keep: true });
   const groups = computed(() => (list.data.value ? groupByDay(list.data.value) : []));
   const busy = ref<string | null>(null);
 

@@ -9,9 +9,11 @@ import type { PartnerAnswer, PartnerSlot } from '@shared/schemas/answers';
  * @example const { slots, loading, error, refresh, answer } = usePartnerSlots()
  */
 export function usePartnerSlots() {
-  const { data, loading, error, refresh } = useApiResource<{ items: PartnerSlot[] }>(() => ({
-    path: '/api/partner/slots',
-  }));
+  // Kept for the tab: the electrician on site without a signal still has the slots, dated.
+  const { data, loading, error, refresh, loadedAt, stale } = useApiResource<{ items: PartnerSlot[] }>(
+    () => ({ path: '/api/partner/slots' }),
+    { keep: true },
+  );
   const busy = ref<string | null>(null);
   const slots = computed(() => data.value?.items ?? []);
 
@@ -29,5 +31,5 @@ export function usePartnerSlots() {
     }
   }
 
-  return { slots, loading, error, refresh, answer, busy };
+  return { slots, loading, error, refresh, loadedAt, stale, answer, busy };
 }

@@ -3,6 +3,7 @@ import { computed, ref } from 'vue';
 import { ApiError, api, setCsrfToken } from '@/api/client';
 import type { Membership, Role, SessionBody, SessionFirm, SessionUser } from '@/api/types';
 import { can as roleCan, homeFor, isRole, type Permission } from '@/router/access';
+import { forgetKeptAnswers } from '@/composables/useApiResource';
 
 /** Who is signed in, in which firm and with which role: the one app-wide piece of state. */
 export const useSessionStore = defineStore('session', () => {
@@ -20,6 +21,8 @@ export const useSessionStore = defineStore('session', () => {
 
   function apply(body: SessionBody | null): void {
     const valid = body !== null && isRole(body.role);
+    // Answers kept for a page opened without a signal belong to one person in one firm.
+    if (!valid || body.user.id !== user.value?.id || body.firm.id !== firm.value?.id) forgetKeptAnswers();
     user.value = valid ? body.user : null;
     firm.value = valid ? body.firm : null;
     role.value = valid ? body.role : null;

@@ -139,3 +139,22 @@ export function hoursOnDay(start: number, end: number, date: string, timeZone: s
   const b = at(end, end <= to);
   return start >= from && end <= to ? `${a}–${b}` : `${a} – ${b}`;
 }
+
+/**
+ * When a kept answer was loaded, as a sentence's end: its time alone on the same day in the firm's
+ * zone, else its day too.
+ * @example keptSince(Date.parse('2026-12-05T07:42:00Z'), 'Europe/London', new Date('2026-12-05T10:00:00Z')) // 'at 07:42'
+ * @example keptSince(Date.parse('2026-12-04T16:05:00Z'), 'Europe/London', new Date('2026-12-05T10:00:00Z')) // 'on Fri 4 Dec at 16:05'
+ */
+export function keptSince(at: number, timeZone: string, now: Date = new Date()): string {
+  const when = new Date(at);
+  const time = new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+  }).format(when);
+  const day = todayIn(timeZone, when);
+  if (day === todayIn(timeZone, now)) return `at ${time}`;
+  return `on ${formatCalendarDate(day, { currentYear: currentYearIn(timeZone, now) })} at ${time}`;
+}

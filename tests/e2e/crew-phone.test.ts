@@ -113,6 +113,43 @@ describe('a crew member on a phone', () => {
       .toBe('confirmed');
     await card.getByRole('button', { name: 'On site' }).waitFor();
   }, 90_000);
+  it('keeps the work and the job on screen without a signal, dated, and marks nothing until it is back', async () => {
+    await page.goto(`${app.url}/my-work`);
+    const card = page.locator('article.visit', { hasText: 'TW-8811' }).filter({ hasText: 'Excavate pit' });
+    await card.waitFor({ timeout: 15_000 });
+    await card.getByRole('link', { name: 'The job' }).click();
+    await page.getByRole('heading', { name: /TW-8811/ }).waitFor();
+
+    // In the garden behind the house: no signal. Back to the list, and to the job again.
+    await page.context().setOffline(true);
+    try {
+      await page.goBack();
+      const notice = page.getByTestId('kept-answer');
+      await notice.waitFor();
+      expect(await notice.textContent()).toMatch(
+        /could not reach the server.*Below is what was loaded at \d\d:\d\d: it may have changed since/,
+      );
+      expect(await card.textContent()).toContain('9 Weir Street');
+      await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-no-signal.png' });
+      await page.goForward();
+      await page.getByRole('heading', { name: /TW-8811/ }).waitFor();
+      await page.getByTestId('kept-answer').waitFor();
+      expect(await page.getByText('Excavate pit').count()).toBeGreaterThan(0);
+      await page.goBack();
+      await card.waitFor();
+      // A step can't be marked without the server: it says so, and nothing changes.
+      await card.getByRole('button', { name: 'On site' }).click();
+      await page.getByRole('button', { name: 'Yes, on site' }).click();
+      await page.getByText('Waterline could not reach the server').last().waitFor();
+      expect((await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('confirmed');
+    } finally {
+      await page.context().setOffline(false);
+    }
+    // The signal back: Try again, and the list is today's again, with no notice.
+    await page.getByTestId('kept-answer').getByRole('button', { name: 'Try again' }).click();
+    await page.getByTestId('kept-answer').waitFor({ state: 'detached' });
+    await card.waitFor();
+  }, 60_000);
   it('names each slip in the survey under its box, keeps what was typed, saves nothing, then saves it put right', async () => {
     await page.goto(`${app.url}/jobs/${jobId}/survey`);
     const width = page.getByLabel('Narrowest width (mm)');

@@ -146,4 +146,22 @@ describe('our slots on a phone', () => {
     await expect.poll(() => card(third.id).textContent()).toContain('Wednesday 18 August 2027, 09:00–13:00');
     expect((await app.ctx.knex('bookings').where('id', third.id).first('state')).state).toBe('sent');
   });
+  it('keeps the slots on screen without a signal, dated, on coming back to them', async () => {
+    await page.goto(`${app.url}/slots`);
+    await card(first.id).waitFor();
+    await page.getByRole('button', { name: 'Menu' }).click();
+    await page.getByRole('link', { name: 'Day sheets' }).click();
+    await page.waitForURL(/\/slots\/day-sheets/);
+    await page.context().setOffline(true);
+    try {
+      await page.goBack();
+      await page.getByTestId('kept-answer').waitFor();
+      expect(await card(first.id).textContent()).toContain('Tuesday 3 August 2027, 09:00–13:00');
+    } finally {
+      await page.context().setOffline(false);
+    }
+    await page.getByTestId('kept-answer').getByRole('button', { name: 'Try again' }).click();
+    await page.getByTestId('kept-answer').waitFor({ state: 'detached' });
+    await card(first.id).waitFor();
+  });
 });
