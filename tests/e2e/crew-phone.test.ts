@@ -2,6 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
 import { account, idOf } from '../helpers/server.ts';
+import sharp from 'sharp';
+import { S3ObjectStore } from '../../server/storage/object-store.ts';
 
 /*
  * My work on a phone (390 × 844 CSS pixels, a common handset size: common practice, no source).
@@ -192,4 +194,61 @@ describe('a crew member on a phone', () => {
       accessWidthMm: 900,
     });
   }, 60_000);
+  it("makes a camera's large photo small on the phone before sending it, upright, its location the firm's choice", async () => {
+    // A 12-megapixel photo held on its side (EXIF orientation 6) from an invented camera, with a
+    // position near Otley; noise makes it as large as a camera's (several MB).
+    const taken = await sharp({
+      create: {
+        width: 4000,
+        height: 3000,
+        channels: 3,
+        background: { r: 0, g: 0, b: 0 },
+        noise: { type: 'gaussian', mean: 128, sigma: 40 },
+      },
+    })
+      .jpeg({ quality: 92 })
+      .withExif({
+        IFD0: { Make: 'Otterbrook', Model: 'Field Camera 2' },
+        IFD3: { GPSLatitudeRef: 'N', GPSLatitude: '53/1 54/1 3/1', GPSLongitudeRef: 'W', GPSLongitude: '1/1 41/1 2/1' },
+      })
+      .withMetadata({ orientation: 6 })
+      .toBuffer();
+    expect(taken.length).toBeGreaterThan(2 * 1024 * 1024);
+    const store = new S3ObjectStore(app.ctx.config);
+    const firm = await idOf(app.ctx.knex, 'firms', { name: 'Tideway Hot Tubs' });
+    const stored = async (name: string) => {
+      const row = await app.ctx.knex('job_files').where({ job_id: jobId, name }).first('object_key', 'size_bytes');
+      const body = await store.get(row.objectKey);
+      return { size: Number(row.sizeBytes), body, meta: await sharp(body).metadata() };
+    };
+    try {
+      for (const [name, keep] of [
+        ['pit-north.jpg', false],
+        ['pit-south.jpg', true],
+      ] as const) {
+        await app.ctx
+          .knex('firm_settings')
+          .insert({ firm_id: firm, keep_photo_location: keep })
+          .onConflict('firm_id')
+          .merge(['keep_photo_location']);
+        await page.goto(`${app.url}/jobs/${jobId}/survey`);
+        await page.locator('input[type=file]').first().setInputFiles({ name, mimeType: 'image/jpeg', buffer: taken });
+        await page.getByText(`${name} saved`).waitFor({ timeout: 30_000 });
+        const { size, body, meta } = await stored(name);
+        // Sent at most 2,560 px on its long side, drawn upright (portrait), and a fraction of the size.
+        expect({ width: meta.width, height: meta.height, orientation: meta.orientation ?? 1 }).toEqual({
+          width: 1920,
+          height: 2560,
+          orientation: 1,
+        });
+        expect(size).toBe(body.length);
+        expect(size).toBeLessThan(taken.length / 2);
+        // The camera and place went with it; the server kept them only where the firm keeps locations.
+        expect(body.includes(Buffer.from('Otterbrook'))).toBe(keep);
+      }
+    } finally {
+      await app.ctx.knex('firm_settings').where('firm_id', firm).update({ keep_photo_location: false });
+      store.close();
+    }
+  }, 90_000);
 });
