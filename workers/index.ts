@@ -10,7 +10,6 @@ const config = loadConfig();
 const logger = pino({ level: config.LOG_LEVEL }).child({ process: 'worker' });
 const knex = createKnex(config.DATABASE_URL, { min: 0, max: 5 });
 const pipeline = startMailPipeline({ knex, config, logger });
-logger.info({ queue: config.MAIL_QUEUE }, 'mail worker started');
 const weather = startWeatherRefresh({ knex, config, logger });
 const pruning = startPruning({ knex, config, logger });
 
@@ -29,3 +28,6 @@ async function shutdown(signal: string): Promise<void> {
 }
 process.on('SIGTERM', () => void shutdown('SIGTERM'));
 process.on('SIGINT', () => void shutdown('SIGINT'));
+// Said once the signals are handled: a stop sent on reading it (a deploy, a test) finishes the mail in
+// hand instead of killing the process half set up.
+logger.info({ queue: config.MAIL_QUEUE }, 'mail worker started');
