@@ -84,4 +84,26 @@ describe('the scheduler on the board', () => {
     expect(rows).toEqual([]);
     await page.screenshot({ path: 'tests/e2e/artifacts/board-refused-lift.png' });
   }, 90_000);
+  it('says when the board is not live (the stream answered 502 while the server restarts), and is live again by itself', async () => {
+    await page.goto(`${app.url}/board?view=week&date=2026-09-14`);
+    await page.locator('.fc-timeline-lane').first().waitFor();
+    // Streams opened from now on get a proxy's 502: the browser gives up on them, the board opens them again.
+    let refused = 0;
+    await page.route('**/api/board/stream', (route) => {
+      refused++;
+      return route.fulfill({ status: 502, body: 'Bad gateway' });
+    });
+    try {
+      // The page's own stream is open already: a reload of the page opens a new one, into the 502s.
+      await page.reload();
+      const notice = page.getByTestId('not-live');
+      await notice.waitFor({ timeout: 20_000 });
+      expect(await notice.textContent()).toContain('Changes others make may not show until the connection is back');
+      expect(refused).toBeGreaterThan(1);
+      await page.screenshot({ path: 'tests/e2e/artifacts/board-not-live.png' });
+    } finally {
+      await page.unroute('**/api/board/stream');
+    }
+    await page.getByTestId('not-live').waitFor({ state: 'detached', timeout: 30_000 });
+  }, 60_000);
 });
