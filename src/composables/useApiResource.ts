@@ -27,7 +27,16 @@ export interface ApiResourceOptions {
    * when the session changes (see {@link forgetKeptAnswers}).
    */
   keep?: boolean;
+  /**
+   * Load again when the signal comes back, and when the page is looked at again after
+   * {@link LOOKED_AGAIN_AFTER_MS} (a phone taken out of a pocket hours later): a list people work
+   * from through the day is today's, not the morning's.
+   */
+  refreshOnReturn?: boolean;
 }
+
+/** How long a page may have been out of sight before looking at it again loads it again. */
+export const LOOKED_AGAIN_AFTER_MS = 60_000;
 
 /** A failure of reaching the server at all (no answer, or a proxy's 502–504), not an answer refusing. */
 export function isUnreachable(error: ApiError | null): boolean {
@@ -96,6 +105,25 @@ export function useApiResource<T>(source: () => ApiSource | null, options: ApiRe
     { immediate: true },
   );
   onScopeDispose(() => controller?.abort());
+
+  if (options.refreshOnReturn && typeof window !== 'undefined' && typeof document !== 'undefined') {
+    let hiddenAt: number | null = null;
+    const online = () => void fetchNow(source());
+    const seen = () => {
+      if (document.visibilityState === 'hidden') hiddenAt ??= Date.now();
+      else if (hiddenAt !== null) {
+        const away = Date.now() - hiddenAt;
+        hiddenAt = null;
+        if (away >= LOOKED_AGAIN_AFTER_MS) void fetchNow(source());
+      }
+    };
+    window.addEventListener('online', online);
+    document.addEventListener('visibilitychange', seen);
+    onScopeDispose(() => {
+      window.removeEventListener('online', online);
+      document.removeEventListener('visibilitychange', seen);
+    });
+  }
 
   const stale = computed(() => data.value !== null && isUnreachable(error.value));
   return { data, loading, error, refresh: () => fetchNow(source()), loadedAt, stale };

@@ -21,7 +21,7 @@ export interface MyWorkPrompts {
  */
 export function useMyWork(prompts: MyWorkPrompts) {
   // Kept for the tab: opened again on site without a signal, the page shows the last list, dated.
-  const list = useApiResource<MyWorkList>(() => ({ path: '/api/my-work' }), { keep: true });
+  const list = useApiResource<MyWorkList>(() => ({ path: '/api/my-work' }), { keep: true, refreshOnReturn: true });
   const groups = computed(() => (list.data.value ? groupByDay(list.data.value) : []));
   const busy = ref<string | null>(null);
 

@@ -12,7 +12,7 @@ export function usePartnerSlots() {
   // Kept for the tab: the electrician on site without a signal still has the slots, dated.
   const { data, loading, error, refresh, loadedAt, stale } = useApiResource<{ items: PartnerSlot[] }>(
     () => ({ path: '/api/partner/slots' }),
-    { keep: true },
+    { keep: true, refreshOnReturn: true },
   );
   const busy = ref<string | null>(null);
   const slots = computed(() => data.value?.items ?? []);

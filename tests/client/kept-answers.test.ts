@@ -1,6 +1,6 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { effectScope } from 'vue';
-import { forgetKeptAnswers, useApiResource, type ApiSource } from '@/composables/useApiResource';
+import { forgetKeptAnswers, LOOKED_AGAIN_AFTER_MS, useApiResource, type ApiSource } from '@/composables/useApiResource';
 import LoadProblem from '@/components/LoadProblem.vue';
 import { ApiError } from '@/api/client';
 import { keptSince } from '@/utils/dates';
@@ -31,7 +31,7 @@ function server(answers: (unknown | number | 'offline')[]) {
   });
 }
 
-function mount<T>(source: () => ApiSource | null, options?: { keep?: boolean }) {
+function mount<T>(source: () => ApiSource | null, options?: { keep?: boolean; refreshOnReturn?: boolean }) {
   const scope = effectScope();
   const resource = scope.run(() => useApiResource<T>(source, options))!;
   return { resource, stop: () => scope.stop() };
@@ -119,6 +119,71 @@ describe('what a page keeps when the server is out of reach', () => {
     expect(afterSignOut.resource.data.value).toBeNull();
     expect(afterSignOut.resource.error.value?.status).toBe(0);
     afterSignOut.stop();
+  });
+});
+
+describe('a list people work from through the day', () => {
+  /** A page's window and document: the test says when the signal is back and when the page is hidden or seen. */
+  function browserPage() {
+    const win = new EventTarget();
+    const doc = Object.assign(new EventTarget(), { visibilityState: 'visible' as 'visible' | 'hidden' });
+    vi.stubGlobal('window', win);
+    vi.stubGlobal('document', doc);
+    return {
+      online: () => win.dispatchEvent(new Event('online')),
+      hide: () => {
+        doc.visibilityState = 'hidden';
+        doc.dispatchEvent(new Event('visibilitychange'));
+      },
+      show: () => {
+        doc.visibilityState = 'visible';
+        doc.dispatchEvent(new Event('visibilitychange'));
+      },
+    };
+  }
+
+  it('loads again when the signal comes back, and when looked at again after a minute or more out of sight', async () => {
+    vi.useFakeTimers({ toFake: ['Date'], now: new Date('2026-12-05T07:42:00Z') });
+    const page = browserPage();
+    const sent = server([{ items: ['dig'] }, { items: ['dig', 'pour'] }, { items: ['walls'] }]);
+    const { resource, stop } = mount<{ items: string[] }>(() => ({ path: '/api/my-work' }), {
+      refreshOnReturn: true,
+    });
+    await flush();
+    page.online();
+    await flush();
+    expect(resource.data.value).toEqual({ items: ['dig', 'pour'] });
+    // Out of sight for less than a minute: nothing is asked.
+    page.hide();
+    vi.setSystemTime(Date.now() + LOOKED_AGAIN_AFTER_MS - 1);
+    page.show();
+    await flush();
+    expect(sent).toHaveLength(2);
+    // In a pocket for an hour: looked at again, it loads again.
+    page.hide();
+    vi.setSystemTime(Date.now() + 3_600_000);
+    page.show();
+    await flush();
+    expect(sent).toHaveLength(3);
+    expect(resource.data.value).toEqual({ items: ['walls'] });
+    // Gone from the page: nothing more is asked.
+    stop();
+    page.online();
+    await flush();
+    expect(sent).toHaveLength(3);
+  });
+
+  it('asks nothing more of a page that did not ask for it', async () => {
+    const page = browserPage();
+    const sent = server([{ items: ['dig'] }, { items: ['dig'] }]);
+    const { stop } = mount<{ items: string[] }>(() => ({ path: '/api/resources' }));
+    await flush();
+    page.online();
+    page.hide();
+    page.show();
+    await flush();
+    expect(sent).toHaveLength(1);
+    stop();
   });
 });
 
