@@ -89,13 +89,14 @@ export function formatInstant(iso: string, timeZone: string, options: CalendarDa
     month: 'short',
     ...(year !== options.currentYear ? { year: 'numeric' } : {}),
   }).format(value);
-  const time = new Intl.DateTimeFormat('en-GB', {
-    timeZone,
-    hour: '2-digit',
-    minute: '2-digit',
-    hourCycle: 'h23',
-  }).format(value);
-  return `${parts.replace(',', '')}, ${time}`;
+  return `${parts.replace(',', '')}, ${clockTime(value, timeZone)}`;
+}
+
+/** The 24-hour clock time of an instant in a zone. @example clockTime(new Date('2026-07-14T07:42:00Z'), 'Europe/London') // '08:42' */
+function clockTime(value: Date, timeZone: string): string {
+  return new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(
+    value,
+  );
 }
 
 /**
@@ -148,12 +149,7 @@ export function hoursOnDay(start: number, end: number, date: string, timeZone: s
  */
 export function keptSince(at: number, timeZone: string, now: Date = new Date()): string {
   const when = new Date(at);
-  const time = new Intl.DateTimeFormat('en-GB', {
-    timeZone,
-    hour: '2-digit',
-    minute: '2-digit',
-    hourCycle: 'h23',
-  }).format(when);
+  const time = clockTime(when, timeZone);
   const day = todayIn(timeZone, when);
   if (day === todayIn(timeZone, now)) return `at ${time}`;
   return `on ${formatCalendarDate(day, { currentYear: currentYearIn(timeZone, now) })} at ${time}`;
