@@ -43,8 +43,16 @@ export function isUnreachable(error: ApiError | null): boolean {
   return error !== null && (error.status === 0 || error.status === 502 || error.status === 503 || error.status === 504);
 }
 
-/** The last answers of resources that keep theirs, by path and query. */
+/** The last answers of resources that keep theirs, by path and query, the latest last. */
 const kept = new Map<string, { data: unknown; at: number }>();
+/** How many answers are kept (a day of job pages); the longest unused goes first. */
+const KEPT_MOST = 50;
+
+function keepAnswer(key: string, data: unknown, at: number): void {
+  kept.delete(key);
+  kept.set(key, { data, at });
+  if (kept.size > KEPT_MOST) kept.delete(kept.keys().next().value as string);
+}
 
 /** Drops every kept answer: another person or firm is signed in now, or nobody. */
 export function forgetKeptAnswers(): void {
@@ -78,7 +86,7 @@ export function useApiResource<T>(source: () => ApiSource | null, options: ApiRe
       data.value = await api.get<T>(target.path, { query: target.query, signal: own.signal });
       dataKey = key;
       loadedAt.value = Date.now();
-      if (options.keep) kept.set(key, { data: data.value, at: loadedAt.value });
+      if (options.keep) keepAnswer(key, data.value, loadedAt.value);
     } catch (caught) {
       if (own.signal.aborted) return;
       const failed = caught instanceof ApiError ? caught : new ApiError({ status: 0, title: 'Something went wrong' });

@@ -187,6 +187,37 @@ describe('a list people work from through the day', () => {
   });
 });
 
+describe('how much a tab keeps', () => {
+  it('keeps the last fifty pages, the one looked at longest ago going first', async () => {
+    let offline = false;
+    stubFetch((request) => {
+      if (offline) throw new TypeError('Failed to fetch');
+      return { status: 200, body: { id: Number(request.url.split('/').pop()) } };
+    });
+    for (let i = 0; i <= 50; i++) {
+      const page = mount<{ id: number }>(() => ({ path: `/api/jobs/${i}` }), { keep: true });
+      await flush();
+      page.stop();
+      // Job 0 looked at again after the others, so it is not the oldest.
+      if (i === 25) {
+        const again = mount<{ id: number }>(() => ({ path: '/api/jobs/0' }), { keep: true });
+        await flush();
+        again.stop();
+      }
+    }
+    offline = true;
+    const open = async (id: number) => {
+      const page = mount<{ id: number }>(() => ({ path: `/api/jobs/${id}` }), { keep: true });
+      await flush();
+      page.stop();
+      return page.resource.data.value;
+    };
+    expect(await open(1)).toBeNull();
+    expect(await open(0)).toEqual({ id: 0 });
+    expect(await open(50)).toEqual({ id: 50 });
+  });
+});
+
 describe('whose kept answers they are', () => {
   const session = (userId: string, firmId: string) => ({
     user: { id: userId, name: 'Connor Reid', email: 'connor.reid@tideway.example' },
