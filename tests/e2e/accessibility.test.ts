@@ -57,7 +57,8 @@ async function signedIn(role: Role, phone: boolean): Promise<{ context: BrowserC
 /** Opens a page and waits until its data is drawn (and, on the board, its bookings labelled). */
 async function open(page: Page, path: string): Promise<void> {
   await page.goto(`${app.url}${path}`);
-  await page.waitForLoadState('networkidle');
+  // Under the whole suite's load on two cores a page has been seen to take over 30 s to settle.
+  await page.waitForLoadState('networkidle', { timeout: 60_000 });
   if (path.startsWith('/board') && !(await page.locator('.day-list').count()))
     await page.waitForSelector('.fc-event.wl-booking[aria-label]');
   await page.evaluate(() => document.fonts.ready);
