@@ -1,5 +1,5 @@
 import { computed, ref } from 'vue';
-import { api } from '@/api/client';
+import { api, ApiError } from '@/api/client';
 import { useApiResource } from '@/composables/useApiResource';
 import { groupByDay, PROGRESS_WORDS, UNDO_OF } from '@/components/my-work/my-work';
 import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
@@ -29,6 +29,15 @@ export function useMyWork(prompts: MyWorkPrompts) {
     return api.post<BookingView>(`/api/bookings/${item.bookingId}/progress`, { action, version });
   }
 
+  /**
+   * A step refused: said, and when the booking changed meanwhile (an answer lost to a weak signal,
+   * or marked on another phone of the crew) the list is loaded again to show it as it is now.
+   */
+  async function refused(error: unknown): Promise<void> {
+    prompts.problem(error);
+    if (error instanceof ApiError && error.status === 409) await list.refresh();
+  }
+
   /** Marks a step after asking; the announcement's Undo takes it back from the version just saved. */
   async function mark(item: MyWorkItem, action: ProgressAction): Promise<boolean> {
     const words = PROGRESS_WORDS[action];
@@ -48,7 +57,7 @@ export function useMyWork(prompts: MyWorkPrompts) {
       await list.refresh();
       return true;
     } catch (error) {
-      prompts.problem(error);
+      await refused(error);
       return false;
     } finally {
       busy.value = null;
@@ -63,7 +72,7 @@ export function useMyWork(prompts: MyWorkPrompts) {
       prompts.announce(`${item.stage.name}: ${PROGRESS_WORDS[action].done}`, null);
       await list.refresh();
     } catch (error) {
-      prompts.problem(error);
+      await refused(error);
     } finally {
       busy.value = null;
     }

@@ -271,4 +271,37 @@ describe('marking progress', () => {
     expect(sent.filter((r) => r.method === 'POST')).toEqual([]);
     scope.stop();
   });
+  it('shows the list as it is now when the step was marked meanwhile (an answer lost, or another phone)', async () => {
+    const onSite = { ...list, items: [{ ...list.items[0]!, state: 'on_site' as const, version: 4, actions: [] }] };
+    let gets = 0;
+    const sent = stubFetch((r) => {
+      if (r.method === 'GET') return { status: 200, body: gets++ === 0 ? list : onSite };
+      return { status: 409, body: { title: 'This booking was changed since you loaded it', code: 'stale-version' } };
+    });
+    const problems: unknown[] = [];
+    const scope = effectScope();
+    const work = scope.run(() =>
+      useMyWork({ confirm: async () => true, announce: () => undefined, problem: (e) => problems.push(e) }),
+    )!;
+    await flush();
+    expect(await work.mark(work.groups.value[0]!.items[0]!, 'arrive')).toBe(false);
+    expect(problems).toHaveLength(1);
+    expect(sent.filter((r) => r.method === 'GET')).toHaveLength(2);
+    expect(work.groups.value[0]!.items[0]!.state).toBe('on_site');
+    scope.stop();
+  });
+
+  it('does not load again for a refusal of another kind', async () => {
+    const sent = stubFetch((r) =>
+      r.method === 'GET' ? { status: 200, body: list } : { status: 422, body: { title: 'Not yet' } },
+    );
+    const scope = effectScope();
+    const work = scope.run(() =>
+      useMyWork({ confirm: async () => true, announce: () => undefined, problem: () => undefined }),
+    )!;
+    await flush();
+    expect(await work.mark(work.groups.value[0]!.items[0]!, 'arrive')).toBe(false);
+    expect(sent.filter((r) => r.method === 'GET')).toHaveLength(1);
+    scope.stop();
+  });
 });

@@ -69,6 +69,24 @@ async function mark(card: ReturnType<Page['locator']>, button: string, yes: stri
   await page.getByRole('button', { name: yes }).click();
 }
 
+/** The householder signs on the pad with the mouse. */
+async function drawSignature(): Promise<void> {
+  const pad = page.getByTestId('signature-pad');
+  await pad.scrollIntoViewIfNeeded();
+  const box = (await pad.boundingBox())!;
+  await page.mouse.move(box.x + 30, box.y + 120);
+  await page.mouse.down();
+  for (const [dx, dy] of [
+    [80, 40],
+    [130, 110],
+    [190, 50],
+    [260, 100],
+    [320, 60],
+  ] as const)
+    await page.mouse.move(box.x + dx, box.y + dy, { steps: 6 });
+  await page.mouse.up();
+}
+
 describe('a crew member on a phone', () => {
   it('commissions and hands over on a 390 px page, and the householder gets the pack by e-mail', async () => {
     await signInThroughPage(page, app.url, account('crew').email);
@@ -132,26 +150,10 @@ describe('a crew member on a phone', () => {
     expect(await page.content()).not.toContain('ruth@calder.example');
 
     // The householder signs with the mouse; "Clear" empties the pad, then they sign again.
-    const pad = page.getByTestId('signature-pad');
-    await pad.scrollIntoViewIfNeeded();
-    const draw = async () => {
-      const box = (await pad.boundingBox())!;
-      await page.mouse.move(box.x + 30, box.y + 120);
-      await page.mouse.down();
-      for (const [dx, dy] of [
-        [80, 40],
-        [130, 110],
-        [190, 50],
-        [260, 100],
-        [320, 60],
-      ] as const)
-        await page.mouse.move(box.x + dx, box.y + dy, { steps: 6 });
-      await page.mouse.up();
-    };
-    await draw();
+    await drawSignature();
     await page.getByRole('button', { name: 'Clear' }).click();
     expect(await sign.isDisabled()).toBe(true);
-    await draw();
+    await drawSignature();
     await expect.poll(() => sign.isDisabled()).toBe(false);
     await page.screenshot({ path: 'tests/e2e/artifacts/handover-signed-pad.png', fullPage: true });
 
@@ -182,4 +184,32 @@ describe('a crew member on a phone', () => {
     );
     expect(notice!.text).toContain('September 2026 (HE-501-S1)');
   }, 180_000);
+  it('shows the handover as signed when its answer was lost to a weak signal and Sign is pressed again', async () => {
+    const again = await makeHandoverJob(app.ctx.knex, { reference: 'HE-502', startsAt: '2026-06-01T14:00:00Z', store });
+    await page.goto(`${app.url}/jobs/${again.jobId}/handover`);
+    const sign = page.getByRole('button', { name: 'Sign and hand over' });
+    await sign.waitFor();
+    for (const item of HANDOVER_CHECKLIST) await page.getByText(item.title, { exact: true }).click();
+    await drawSignature();
+    await expect.poll(() => sign.isDisabled()).toBe(false);
+    // The first Sign reaches the server and is saved; its answer never reaches the phone.
+    let lost = 0;
+    await page.route(`**/api/jobs/${again.jobId}/handover`, async (route) => {
+      if (route.request().method() !== 'POST' || lost > 0) return route.continue();
+      lost++;
+      await route.fetch();
+      await route.abort('connectionreset');
+    });
+    await sign.click();
+    await page.getByText('Waterline could not reach the server').last().waitFor();
+    expect(await app.ctx.knex('handovers').where('job_id', again.jobId).first('householder_name')).toEqual({
+      householderName: 'Ruth Calder',
+    });
+    // The form is as it was; pressed again, the server says it is signed, and the page shows it so.
+    await sign.click();
+    await page.getByTestId('handover-done').waitFor({ timeout: 20_000 });
+    expect(await page.getByTestId('handover-done').textContent()).toContain('Ruth Calder signed');
+    expect(await app.ctx.knex('handovers').where('job_id', again.jobId)).toHaveLength(1);
+    await page.unroute(`**/api/jobs/${again.jobId}/handover`);
+  }, 90_000);
 });
