@@ -73,6 +73,7 @@ export function useApiResource<T>(source: () => ApiSource | null, options: ApiRe
   /** Which source the data held answers (a page of a list, a day's sheet). */
   let dataKey: string | null = null;
   let controller: AbortController | null = null;
+  const stale = computed(() => data.value !== null && isUnreachable(error.value));
 
   async function fetchNow(target: ApiSource | null): Promise<void> {
     controller?.abort();
@@ -81,9 +82,12 @@ export function useApiResource<T>(source: () => ApiSource | null, options: ApiRe
     controller = own;
     const key = JSON.stringify(target);
     loading.value = true;
-    error.value = null;
+    // An earlier answer on screen stays dated while it is asked for again (on a weak signal that can
+    // take half a minute): the notice goes with the new answer, not with the asking.
+    if (!(stale.value && dataKey === key)) error.value = null;
     try {
       data.value = await api.get<T>(target.path, { query: target.query, signal: own.signal });
+      error.value = null;
       dataKey = key;
       loadedAt.value = Date.now();
       if (options.keep) keepAnswer(key, data.value, loadedAt.value);
@@ -133,6 +137,5 @@ export function useApiResource<T>(source: () => ApiSource | null, options: ApiRe
     });
   }
 
-  const stale = computed(() => data.value !== null && isUnreachable(error.value));
   return { data, loading, error, refresh: () => fetchNow(source()), loadedAt, stale };
 }

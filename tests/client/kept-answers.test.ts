@@ -65,6 +65,34 @@ describe('what a page keeps when the server is out of reach', () => {
     stop();
   });
 
+  it('keeps the notice while the list is asked for again, until the new answer comes', async () => {
+    let answer: (value: unknown) => void = () => undefined;
+    const slow = new Promise((resolve) => (answer = resolve));
+    let calls = 0;
+    stubFetch(async () => {
+      calls++;
+      if (calls === 1) return { status: 200, body: { items: ['dig'] } };
+      if (calls === 2) throw new TypeError('Failed to fetch');
+      await slow;
+      return { status: 200, body: { items: ['pour'] } };
+    });
+    const { resource, stop } = mount<{ items: string[] }>(() => ({ path: '/api/my-work' }));
+    await flush();
+    await resource.refresh();
+    expect(resource.stale.value).toBe(true);
+    // Tried again on a weak signal: still dated, and busy, while the answer is on its way.
+    const again = resource.refresh();
+    expect(resource.loading.value).toBe(true);
+    expect(resource.stale.value).toBe(true);
+    expect(resource.error.value?.status).toBe(0);
+    answer(undefined);
+    await again;
+    expect(resource.stale.value).toBe(false);
+    expect(resource.error.value).toBeNull();
+    expect(resource.data.value).toEqual({ items: ['pour'] });
+    stop();
+  });
+
   it('never calls a refusal an old copy: not found, not allowed and a server error are errors', async () => {
     for (const status of [403, 404, 500]) {
       server([{ items: ['dig'] }, status]);
@@ -277,6 +305,10 @@ describe('the notice over a kept answer', () => {
     const kept = await renderHtml(LoadProblem, { error, loadedAt: Date.now() - 60_000 });
     expect(kept).toContain('data-testid="kept-answer"');
     expect(kept).toMatch(/Below is what was loaded (at|on [^<]+ at) \d\d:\d\d: it may have changed since/);
+    expect(kept).toContain('>Try again<');
+    const trying = await renderHtml(LoadProblem, { error, loadedAt: Date.now() - 60_000, busy: true });
+    expect(trying).toContain('Trying again…');
+    expect(trying).toContain('disabled');
     const nothing = await renderHtml(LoadProblem, { error, loadedAt: null });
     expect(nothing).not.toContain('kept-answer');
     expect(nothing).toContain('Check your connection and try again.');
