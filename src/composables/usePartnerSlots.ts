@@ -10,10 +10,11 @@ import type { PartnerAnswer, PartnerSlot } from '@shared/schemas/answers';
  */
 export function usePartnerSlots() {
   // Kept for the tab: the electrician on site without a signal still has the slots, dated.
-  const { data, loading, error, refresh, loadedAt, stale } = useApiResource<{ items: PartnerSlot[] }>(
-    () => ({ path: '/api/partner/slots' }),
-    { keep: true, refreshOnReturn: true },
-  );
+  const resource = useApiResource<{ items: PartnerSlot[] }>(() => ({ path: '/api/partner/slots' }), {
+    keep: true,
+    refreshOnReturn: true,
+  });
+  const { data, loading, error, refresh, stale } = resource;
   const busy = ref<string | null>(null);
   const slots = computed(() => data.value?.items ?? []);
 
@@ -31,5 +32,5 @@ export function usePartnerSlots() {
     }
   }
 
-  return { slots, loading, error, refresh, loadedAt, stale, answer, busy };
+  return { resource, slots, loading, error, refresh, stale, answer, busy };
 }

@@ -297,20 +297,54 @@ describe('the notice over a kept answer', () => {
   });
 
   it('dates what is shown below it, and says only what went wrong when nothing is shown', async () => {
-    const error = new ApiError({
-      status: 0,
-      title: 'Waterline could not reach the server',
-      detail: 'Check your connection and try again.',
+    let hold: (value: unknown) => void = () => undefined;
+    const held = new Promise((resolve) => (hold = resolve));
+    let calls = 0;
+    stubFetch(async (request) => {
+      calls++;
+      if (request.url === '/api/nothing') throw new TypeError('Failed to fetch');
+      if (calls === 1) return { status: 200, body: { items: ['dig'] } };
+      if (calls === 2) throw new TypeError('Failed to fetch');
+      await held;
+      throw new TypeError('Failed to fetch');
     });
-    const kept = await renderHtml(LoadProblem, { error, loadedAt: Date.now() - 60_000 });
+    const shown = mount<{ items: string[] }>(() => ({ path: '/api/my-work' }));
+    await flush();
+    await shown.resource.refresh();
+    const kept = await renderHtml(LoadProblem, { resource: shown.resource });
     expect(kept).toContain('data-testid="kept-answer"');
+    expect(kept).toContain('Waterline could not reach the server');
     expect(kept).toMatch(/Below is what was loaded (at|on [^<]+ at) \d\d:\d\d: it may have changed since/);
     expect(kept).toContain('>Try again<');
-    const trying = await renderHtml(LoadProblem, { error, loadedAt: Date.now() - 60_000, busy: true });
+    // Asked for again: the button says so until an answer comes.
+    const again = shown.resource.refresh();
+    const trying = await renderHtml(LoadProblem, { resource: shown.resource });
     expect(trying).toContain('Trying again…');
     expect(trying).toContain('disabled');
-    const nothing = await renderHtml(LoadProblem, { error, loadedAt: null });
+    hold(undefined);
+    await again;
+    shown.stop();
+    const empty = mount<unknown>(() => ({ path: '/api/nothing' }));
+    await flush();
+    const nothing = await renderHtml(LoadProblem, { resource: empty.resource });
     expect(nothing).not.toContain('kept-answer');
     expect(nothing).toContain('Check your connection and try again.');
+    empty.stop();
+    // Loaded before, then refused (not a lost signal): an error, not a dated copy.
+    let goneCalls = 0;
+    stubFetch(() =>
+      goneCalls++ === 0 ? { status: 200, body: { id: 1 } } : { status: 404, body: { title: 'Not found' } },
+    );
+    const gone = mount<unknown>(() => ({ path: '/api/jobs/1' }));
+    await flush();
+    await gone.resource.refresh();
+    const refused = await renderHtml(LoadProblem, { resource: gone.resource });
+    expect(refused).toContain('Not found');
+    expect(refused).not.toContain('kept-answer');
+    gone.stop();
+    // Given an error alone, as the other pages do.
+    const plain = await renderHtml(LoadProblem, { error: new ApiError({ status: 404, title: 'Not found' }) });
+    expect(plain).toContain('Not found');
+    expect(plain).not.toContain('kept-answer');
   });
 });
