@@ -101,12 +101,16 @@ describe('the outbox while Redis is down', () => {
       state: 'sent',
     });
     // As a restarted Redis leaves it: the row says queued a while ago, and no job exists for it.
-    await ctx.knex.transaction((trx) => queueBookingMessage(trx, { bookingId: b.id, kind: 'request', version: 1 }));
-    const row = await ctx.knex('outbox').whereRaw("payload->>'bookingId' = ?", [b.id]).first();
-    await ctx
-      .knex('outbox')
-      .where('id', row.id)
-      .update({ status: 'queued', next_attempt_at: new Date(Date.now() - 3_600_000) });
+    // Written queued in the one transaction, so the running relay never sees it pending and hands
+    // it over itself first.
+    const row = await ctx.knex.transaction(async (trx) => {
+      await queueBookingMessage(trx, { bookingId: b.id, kind: 'request', version: 1 });
+      const written = await trx('outbox').whereRaw("payload->>'bookingId' = ?", [b.id]).first();
+      await trx('outbox')
+        .where('id', written.id)
+        .update({ status: 'queued', next_attempt_at: new Date(Date.now() - 3_600_000) });
+      return written;
+    });
     expect(await pipeline.relay.requeueStale()).toBe(1);
     await waitUntil(
       async () => (await ctx.knex('outbox').where('id', row.id).first()).status === 'sent',
