@@ -55,6 +55,9 @@ export interface DragCheckOptions {
   bookingWindow?: () => BookingWindow | undefined;
 }
 
+/** Longest a press on a stage or booking holds the live board's reloads (see inHand). */
+export const HOLD_LONGEST_MS = 60_000;
+
 const refuse = (start: number, reason: string): DragVerdict => ({
   allowed: false,
   reasons: [reason],
@@ -84,6 +87,8 @@ export function useDragCheck(
   let cacheKey = '';
   let lastProbe: DragProbe | null = null;
   let dragging = false;
+  // When the button went down on a stage or booking, until it comes up (see inHand).
+  let heldSince: number | null = null;
 
   /**
    * A time beyond the booking window (a year typed as 2031 or 9999 in the move dialog) is refused in
@@ -277,7 +282,26 @@ export function useDragCheck(
     stop();
   }
 
+  function letGo(): void {
+    heldSince = null;
+    window.removeEventListener('pointerup', letGo);
+    window.removeEventListener('pointercancel', letGo);
+  }
+
+  /**
+   * A stage or booking is in the scheduler's hand: from the button going down on it, before any
+   * verdict shows, until it comes up. The live board holds its reloads meanwhile (redrawing the
+   * timeline under a drag drops it). A button let go where the page can't see it (outside the
+   * window) ends the hold after HOLD_LONGEST_MS, so the board is never held for good.
+   */
+  function inHand(now = Date.now()): boolean {
+    return heldSince !== null && now - heldSince < HOLD_LONGEST_MS;
+  }
+
   function start(): void {
+    heldSince = Date.now();
+    window.addEventListener('pointerup', letGo);
+    window.addEventListener('pointercancel', letGo);
     cacheKey = '';
     lastProbe = null;
     dragging = true;
@@ -290,6 +314,7 @@ export function useDragCheck(
   }
 
   function stop(): void {
+    letGo();
     dragging = false;
     window.removeEventListener('pointermove', track);
     window.removeEventListener('mousemove', track);
@@ -324,6 +349,7 @@ export function useDragCheck(
     evaluateSet,
     start,
     stop,
+    inHand,
     pointerOverTray,
   };
 }

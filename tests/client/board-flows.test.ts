@@ -2,7 +2,7 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import type { BoardData } from '@shared/board-data';
 import { createBoardIndex } from '@shared/scheduler/index';
 import { toEngineBoard } from '@shared/board-data';
-import { useDragCheck } from '@/composables/useDragCheck';
+import { HOLD_LONGEST_MS, useDragCheck } from '@/composables/useDragCheck';
 import { dependentsChoice } from '@/components/board/move-options';
 import { declinedItems, newlyDeclined } from '@/components/board/declines';
 import { eventsOf } from '@/components/board/board-events';
@@ -266,6 +266,36 @@ describe('the drag check', () => {
     // What the drop handler runs: the same verdict, and the box stays gone.
     expect(drag.evaluate(probe).allowed).toBe(false);
     expect(drag.shown.value).toBeNull();
+  });
+
+  it('has the stage in hand from the button going down, before any verdict, until it comes up', () => {
+    const win = new EventTarget();
+    vi.stubGlobal('window', win);
+    const drag = useDragCheck(() => indexOf(board()));
+    expect(drag.inHand()).toBe(false);
+    drag.start();
+    // Picked up, not yet over a row: no verdict, but in hand (the live board holds its reloads).
+    expect(drag.verdict.value).toBeNull();
+    expect(drag.inHand()).toBe(true);
+    win.dispatchEvent(new Event('pointerup'));
+    expect(drag.inHand()).toBe(false);
+    // A touch the browser takes over (a scroll) ends it too.
+    drag.start();
+    win.dispatchEvent(new Event('pointercancel'));
+    expect(drag.inHand()).toBe(false);
+    // A drop handled by the board itself.
+    drag.start();
+    drag.stop();
+    expect(drag.inHand()).toBe(false);
+  });
+
+  it('lets the live board go after a minute when the button came up where the page could not see it', () => {
+    vi.stubGlobal('window', new EventTarget());
+    const drag = useDragCheck(() => indexOf(board()));
+    const t0 = Date.now();
+    drag.start();
+    expect(drag.inHand(t0 + HOLD_LONGEST_MS - 1_000)).toBe(true);
+    expect(drag.inHand(t0 + HOLD_LONGEST_MS + 1_000)).toBe(false);
   });
 
   it('names the job of a clash the filters hide, while dragging', () => {

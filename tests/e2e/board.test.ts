@@ -1,7 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
-import { account, idOf } from '../helpers/server.ts';
+import { account, idOf, signIn } from '../helpers/server.ts';
+import { makeJob } from '../helpers/flows.ts';
 
 let app: RunningApp;
 let browser: Browser;
@@ -13,6 +14,19 @@ beforeAll(async () => {
   page = await (
     await browser.newContext({ viewport: { width: 1440, height: 900 }, timezoneId: 'Europe/London' })
   ).newPage();
+  // Counts the live stream's booking events as the page receives them (the test's own eyes only).
+  await page.addInitScript(() => {
+    const Source = window.EventSource;
+    window.EventSource = class extends Source {
+      constructor(url: string | URL, init?: EventSourceInit) {
+        super(url, init);
+        this.addEventListener('bookings', () => {
+          (window as unknown as { liveEvents: number }).liveEvents =
+            ((window as unknown as { liveEvents?: number }).liveEvents ?? 0) + 1;
+        });
+      }
+    };
+  });
 }, 60_000);
 afterAll(async () => {
   await browser?.close();
@@ -84,6 +98,66 @@ describe('the scheduler on the board', () => {
     expect(rows).toEqual([]);
     await page.screenshot({ path: 'tests/e2e/artifacts/board-refused-lift.png' });
   }, 90_000);
+  it('holds a live update while a stage is in hand, so the drag is not dropped, and shows it after', async () => {
+    const heron = await idOf(app.ctx.knex, 'resources', { name: 'Crew Heron' });
+    const priya = await idOf(app.ctx.knex, 'resources', { name: 'Priya Nair' });
+    const job = await makeJob(app.ctx.knex, {
+      reference: 'LV-201',
+      town: 'Pateley Bridge',
+      postcode: 'HG3 5AA',
+      stages: [{ kind: 'electrical_connect', name: 'Connect and certify', minutes: 240, needs: { electrician: 1 } }],
+      links: [],
+    });
+    const office = await signIn(app.ctx, account('scheduler').email);
+    await page.goto(`${app.url}/board?view=week&date=2026-09-14&q=Heron`);
+    await page.waitForSelector(`td.fc-timeline-lane[data-resource-id="${heron}"]`);
+    await page.getByText('Loading…').waitFor({ state: 'hidden' });
+    const seen = () => page.evaluate(() => (window as unknown as { liveEvents?: number }).liveEvents ?? 0);
+    const seenBefore = await seen();
+
+    // The scheduler picks the lift up from the tray and is still moving it…
+    const item = page.locator('.tray-stage[data-title="TW-2423 · Crane lift into pit"]');
+    await item.scrollIntoViewIfNeeded();
+    const box = (await item.boundingBox())!;
+    const from = { x: box.x + 20, y: box.y + 10 };
+    await page.mouse.move(from.x, from.y);
+    await page.mouse.down();
+    for (let i = 1; i <= 5; i += 1) await page.mouse.move(from.x + i * 4, from.y + i * 2);
+    // …when someone else books Priya for another job: the board hears of it at once.
+    const made = await office
+      .post('/api/bookings')
+      .set('X-CSRF-Token', office.csrf)
+      .send({ stageId: job.stage.electrical_connect, resourceId: priya, startsAt: '2026-09-17T07:00:00Z' })
+      .expect(201);
+    await expect.poll(seen, { timeout: 10_000 }).toBeGreaterThan(seenBefore);
+    // The board would reload 250 ms after the event: held while the stage is in hand. (An absence
+    // can only be waited for: 2 s, eight times the delay.)
+    const reloaded = page
+      .waitForRequest((r) => r.url().includes('/api/board?'), { timeout: 2_000 })
+      .then(
+        () => 'reloaded under the drag',
+        () => 'held',
+      );
+    expect(await reloaded).toBe('held');
+
+    // The drag is still alive: over Heron's row on Wednesday 16 September, the engine's verdict shows.
+    const slot = (await page
+      .locator('td.fc-timeline-slot-lane[data-date="2026-09-16T06:00:00"]')
+      .first()
+      .boundingBox())!;
+    const lane = (await page.locator(`td.fc-timeline-lane[data-resource-id="${heron}"]`).first().boundingBox())!;
+    const to = { x: slot.x + slot.width / 3 + 4, y: lane.y + lane.height / 2 };
+    const at = from.x + 20;
+    for (let i = 1; i <= 20; i += 1)
+      await page.mouse.move(at + ((to.x - at) * i) / 20, from.y + 10 + ((to.y - from.y - 10) * i) / 20);
+    await page.locator('.drag-reason').waitFor({ timeout: 10_000 });
+    // Let go: the held reload runs now, and brings the other booking in.
+    const afterDrop = page.waitForResponse((r) => r.url().includes('/api/board?'), { timeout: 10_000 });
+    await page.mouse.up();
+    const board = (await (await afterDrop).json()) as { bookings: { id: string }[] };
+    expect(board.bookings.map((b) => String(b.id))).toContain(String(made.body.bookings[0].id));
+  }, 60_000);
+
   it('says when the board is not live (the stream answered 502 while the server restarts), and is live again by itself', async () => {
     await page.goto(`${app.url}/board?view=week&date=2026-09-14`);
     await page.locator('.fc-timeline-lane').first().waitFor();

@@ -48,29 +48,38 @@ export async function dragTrayStage(
   fractionIntoSlot: number,
 ): Promise<string> {
   const item = page.locator(`.tray-stage[data-title="${stageTitle}"]`);
-  await item.scrollIntoViewIfNeeded();
-  const to = await rowPoint(page, resourceId, slotDate, fractionIntoSlot);
-  const box = (await item.boundingBox())!;
-  const from = { x: box.x + 20, y: box.y + 10 };
-  await page.mouse.move(from.x, from.y);
-  await page.mouse.down();
-  await glide(page, from, to);
-  // The engine's verdict shows by the pointer once FullCalendar has checked the place: drop then.
-  // On a loaded machine the timeline may still be settling when the glide ends, and FullCalendar
-  // only looks again on the next pointer move: a person's hand is never still, so nudge it.
-  const reason = page.locator('.drag-reason');
-  for (let nudge = 0; ; nudge++) {
-    try {
-      await reason.waitFor({ timeout: 2_500 });
-      break;
-    } catch (e) {
-      if (nudge === 4) throw e;
-      await page.mouse.move(to.x + (nudge % 2 === 0 ? 1 : 0), to.y);
+  // A drag that never took (the button went down as the tray was redrawn under it) is made again,
+  // as a person would; one that took always shows the engine's verdict by the pointer.
+  for (let attempt = 1; ; attempt++) {
+    await item.scrollIntoViewIfNeeded();
+    const to = await rowPoint(page, resourceId, slotDate, fractionIntoSlot);
+    const box = (await item.boundingBox())!;
+    const from = { x: box.x + 20, y: box.y + 10 };
+    await page.mouse.move(from.x, from.y);
+    await page.mouse.down();
+    await glide(page, from, to);
+    // The engine's verdict shows by the pointer once FullCalendar has checked the place: drop then.
+    // On a loaded machine the timeline may still be settling when the glide ends, and FullCalendar
+    // only looks again on the next pointer move: a person's hand is never still, so nudge it.
+    const reason = page.locator('.drag-reason');
+    let shown = false;
+    for (let nudge = 0; nudge < 4 && !shown; nudge++) {
+      shown = await reason.waitFor({ timeout: 2_500 }).then(
+        () => true,
+        () => false,
+      );
+      if (!shown) await page.mouse.move(to.x + (nudge % 2 === 0 ? 1 : 0), to.y);
     }
+    if (shown) {
+      const said = (await reason.innerText()).replace(/\s+/g, ' ').trim();
+      await page.mouse.up();
+      return said;
+    }
+    // Nothing in hand: let go over the tray (where a drop does nothing) and start again.
+    await glide(page, to, from);
+    await page.mouse.up();
+    if (attempt === 2) throw new Error(`dragging '${stageTitle}' never showed the engine's verdict, twice`);
   }
-  const said = (await reason.innerText()).replace(/\s+/g, ' ').trim();
-  await page.mouse.up();
-  return said;
 }
 
 /** Drags a booking on the board onto a resource's row at a fraction of a slot. */
