@@ -1,5 +1,6 @@
 import { defineConfig } from 'vite';
 import vue from '@vitejs/plugin-vue';
+import { VitePWA } from 'vite-plugin-pwa';
 import { fileURLToPath } from 'node:url';
 
 // The API server in development; WATERLINE_API points elsewhere (e.g. a second checkout on another port).
@@ -23,8 +24,26 @@ const vendorGroups = [
   },
 ];
 
+/**
+ * The service worker (src/service-worker/sw.ts), built to /sw.js. It keeps ahead of use what any
+ * page needs to open without a signal: the page, the shell's code and styles, the fonts. The
+ * board, its timeline library and the reports' charts are kept only once opened (most phones on
+ * site never open them). No manifest: the app is not offered for installing.
+ */
+const serviceWorker = VitePWA({
+  strategies: 'injectManifest',
+  srcDir: 'src/service-worker',
+  filename: 'sw.ts',
+  injectRegister: false,
+  manifest: false,
+  injectManifest: {
+    globPatterns: ['index.html', 'favicon.svg', 'assets/*.{js,css,woff2}'],
+    globIgnores: ['assets/BoardView-*', 'assets/fullcalendar-*', 'assets/ReportCharts-*'],
+  },
+});
+
 export default defineConfig({
-  plugins: [vue()],
+  plugins: [vue(), serviceWorker],
   resolve: {
     alias: {
       '@': fileURLToPath(new URL('./src', import.meta.url)),

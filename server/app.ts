@@ -128,7 +128,16 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
   // page costs no session read, no membership look-up and sets no cookie. Paths the route table owns
   // (the API, sign-in, links, feeds, problem pages) go on to their routes; the Vue app owns the rest.
   if (existsSync(distDir)) {
-    app.use(express.static(distDir, { index: false, maxAge: '1h' }));
+    app.use(
+      express.static(distDir, {
+        index: false,
+        maxAge: '1h',
+        // The service worker is looked for again on every visit: a new version reaches phones at once.
+        setHeaders: (res, file) => {
+          if (path.basename(file) === 'sw.js') res.setHeader('Cache-Control', 'no-cache');
+        },
+      }),
+    );
     let serverPaths: Set<string> | undefined;
     const ownedByServer = (p: string) =>
       (serverPaths ??= new Set(['api', 'auth', ...routes.routes.map((r) => r.path.split('/')[1] ?? '')])).has(

@@ -10,6 +10,7 @@ import { router } from './router';
 import { setUnauthorizedHandler } from './api/client';
 import { useSessionStore } from './stores/session';
 import { cssVariables } from './styles/palette';
+import { registerServiceWorker } from './service-worker/register';
 
 for (const [name, value] of Object.entries(cssVariables())) document.documentElement.style.setProperty(name, value);
 
@@ -26,3 +27,4 @@ setUnauthorizedHandler(() => {
 });
 
 app.mount('#app');
+registerServiceWorker();

@@ -5,7 +5,8 @@ export interface SignInProblem {
 
 /**
  * The message for `/sign-in?error=…`. Unknown codes still get a plain message, so a new server
- * code never leaves the person without an explanation.
+ * code never leaves the person without an explanation. (`unavailable`, the server not reached, is
+ * not a sign-in problem: the sign-in page shows its own waiting state for it.)
  * @example signInErrorText('unknown_account')?.title // 'No access yet'
  */
 export function signInErrorText(code: unknown): SignInProblem | null {
@@ -15,11 +16,6 @@ export function signInErrorText(code: unknown): SignInProblem | null {
       return {
         title: 'No access yet',
         detail: 'This Google account has no access to Waterline yet. Ask an owner of your firm to invite you.',
-      };
-    case 'unavailable':
-      return {
-        title: 'Waterline could not be reached',
-        detail: 'The server did not answer. Check your connection and try again in a moment.',
       };
     case 'signed_out':
       return { title: 'You were signed out', detail: 'Your session ended. Sign in again to carry on.' };

@@ -9,7 +9,7 @@ export async function launchBrowser(): Promise<Browser> {
   const executablePath = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
   if (!existsSync(executablePath))
     throw new Error(`No chromium at ${executablePath}: npm test installs it as root, or run apt-get install chromium`);
-  return chromium.launch({
+  const browser = await chromium.launch({
     executablePath,
     headless: true,
     args: [
@@ -23,6 +23,11 @@ export async function launchBrowser(): Promise<Browser> {
       '--disable-dev-shm-usage',
     ],
   });
+  // The app's service worker fetches the whole app ahead in every new context: tests that are not
+  // about it go without (tests/e2e/offline-app.test.ts asks for it with serviceWorkers: 'allow').
+  const newContext = browser.newContext.bind(browser);
+  browser.newContext = (options = {}) => newContext({ serviceWorkers: 'block', ...options });
+  return browser;
 }
 
 /**

@@ -7,6 +7,7 @@ import { PERMISSIONS, ROLES, type Role } from '../../shared/permissions.ts';
 import { SCOPED_MODELS } from '../../server/models/index.ts';
 import { ScopedModel } from '../../server/models/base.ts';
 import type { RouteSpec } from '../../server/routes/table.ts';
+import { SERVER_OWNED_PAGES } from '../../src/service-worker/routes.ts';
 
 /**
  * The access matrix, generated from the permission table (shared/permissions.ts) and the route
@@ -295,6 +296,18 @@ describe('the route table', () => {
         `${r.method} ${r.path}`,
       ).toBe(true);
     }
+  });
+
+  it("is never answered from a phone's kept copy of the app: every route the server owns is one the service worker leaves to it", () => {
+    const paths = ctx.waterline.routes.routes.map((r) => r.path.replace(/:[^/]+/g, 'x'));
+    expect(paths.length).toBeGreaterThan(10);
+    expect(paths.filter((p) => !SERVER_OWNED_PAGES.some((re) => re.test(p)))).toEqual([]);
+    // …and the app's own pages are the service worker's to open without a signal.
+    for (const page of ['/board', '/my-work', '/jobs/12', '/sign-in', '/slots'])
+      expect(
+        SERVER_OWNED_PAGES.some((re) => re.test(page)),
+        page,
+      ).toBe(false);
   });
 
   it('refuses to take a route without an access rule', async () => {
