@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { launchBrowser, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
+import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
 import { account } from '../helpers/server.ts';
 
 /*
@@ -16,15 +16,8 @@ let page: Page;
 beforeAll(async () => {
   app = await startServer();
   browser = await launchBrowser();
-  context = await browser.newContext({
-    serviceWorkers: 'allow',
-    viewport: { width: 390, height: 844 },
-    deviceScaleFactor: 2,
-    isMobile: true,
-    hasTouch: true,
-    timezoneId: 'Europe/London',
-  });
-  page = await context.newPage();
+  page = await phonePage(browser, { serviceWorkers: 'allow' });
+  context = page.context();
 }, 60_000);
 afterAll(async () => {
   await browser?.close();

@@ -1,4 +1,4 @@
-import { chromium, type Browser, type Page } from 'playwright-core';
+import { chromium, type Browser, type BrowserContextOptions, type Page } from 'playwright-core';
 import net from 'node:net';
 import type { Server } from 'node:http';
 import { existsSync } from 'node:fs';
@@ -34,13 +34,14 @@ export async function launchBrowser(): Promise<Browser> {
  * A page on a phone: 390 × 844 CSS pixels at twice the density, touch, in London (a common handset
  * size: common practice, no source).
  */
-export async function phonePage(browser: Browser): Promise<Page> {
+export async function phonePage(browser: Browser, options: BrowserContextOptions = {}): Promise<Page> {
   const context = await browser.newContext({
     viewport: { width: 390, height: 844 },
     deviceScaleFactor: 2,
     isMobile: true,
     hasTouch: true,
     timezoneId: 'Europe/London',
+    ...options,
   });
   return context.newPage();
 }
