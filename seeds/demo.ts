@@ -143,13 +143,23 @@ export const SEEDED_TABLES = [
 ] as const;
 
 /**
- * Empties the tables the demo fills (and what hangs off them), so a seeding starts afresh.
+ * Tables that name the seeded rows by their ids without a foreign key: the outbox's keys
+ * (`booking.12.request.v1`), the answer links used (`answer.b12.v1`), link attempts and the live
+ * board's change log (by firm id). With the ids started again, a row left here would meet a new
+ * row of the same id: a new booking's request taken as sent already (the outbox ignores a key it
+ * holds), its link as answered already.
+ */
+export const ROWS_NAMING_SEEDED_IDS = ['outbox', 'link_uses', 'link_attempts', 'board_changes'] as const;
+
+/**
+ * Empties the tables the demo fills (and what hangs off them, by foreign key or by id), so a
+ * seeding starts afresh.
  *
  * @example
  * await emptySeededTables(knex); await seedDemo(knex, { today })
  */
 export async function emptySeededTables(knex: Knex): Promise<void> {
-  await knex.raw(`TRUNCATE ${SEEDED_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+  await knex.raw(`TRUNCATE ${[...SEEDED_TABLES, ...ROWS_NAMING_SEEDED_IDS].join(', ')} RESTART IDENTITY CASCADE`);
 }
 
 /**

@@ -30,8 +30,6 @@ let store: S3ObjectStore;
 beforeAll(async () => {
   ctx = await startTestApp();
   store = new S3ObjectStore(ctx.config);
-  // Rows other test files left: only what this file sends is read.
-  await ctx.knex('outbox').del();
   scheduler = await signIn(ctx, account('scheduler').email);
   owner = await signIn(ctx, account('owner').email);
   partner = await signIn(ctx, account('partner', 'Brightspark Electrical').email);

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { emptySeededTables, seedDemo } from '../../seeds/demo.ts';
+import { queueBookingMessage } from '../../server/services/outbox.ts';
 import { DEMO_ACCOUNTS } from '../../seeds/demo-accounts.ts';
 import { ROLES } from '../../shared/permissions.ts';
 import { loadBoard } from '../../server/services/board.ts';
@@ -204,6 +205,34 @@ describe('the demo scenario', () => {
       pencilled: expect.any(Number),
     });
     expect(requests.filter((r) => r.overdueAt !== null)).toHaveLength(1);
+  });
+
+  it('starts afresh when seeded again: no row is left anywhere to meet a new row of the same id', async () => {
+    const booking = String((await ctx.knex('bookings').orderBy('id').first('id')).id);
+    // What a day's use leaves behind: a request in the outbox, its link answered, a refused link.
+    await ctx.knex.transaction((trx) => queueBookingMessage(trx, { bookingId: booking, kind: 'request', version: 9 }));
+    const before = await ctx.knex('outbox').whereRaw("payload->>'bookingId' = ?", [booking]).first('created_at');
+    await ctx.knex('link_uses').insert({ jti: `answer.b${booking}.v9`, purpose: 'answer', subject_id: booking });
+    await ctx.knex('link_attempts').insert({ reason: 'used', path: '/answer/x', jti: `answer.b${booking}.v9` });
+    const tables = (
+      await ctx.knex.raw<{ rows: { tablename: string }[] }>(
+        "SELECT tablename FROM pg_tables WHERE schemaname = 'public' AND tablename NOT LIKE 'knex\\_%'",
+      )
+    ).rows.map((r) => r.tablename);
+    const count = async (t: string) => Number((await ctx.knex(t).count<{ n: string }[]>('* as n'))[0]!.n);
+    for (const t of ['outbox', 'link_uses', 'link_attempts', 'board_changes', 'bookings'])
+      expect(await count(t), t).toBeGreaterThan(0);
+
+    await emptySeededTables(ctx.knex);
+    const left: Record<string, number> = {};
+    for (const t of tables) if ((await count(t)) > 0) left[t] = await count(t);
+    expect(left).toEqual({});
+    // Booking ids start again: the same request written anew is kept, not taken for the old one.
+    await seedDemo(ctx.knex, { today: TEST_TODAY });
+    await ctx.knex.transaction((trx) => queueBookingMessage(trx, { bookingId: booking, kind: 'request', version: 9 }));
+    const rows = await ctx.knex('outbox').whereRaw("payload->>'bookingId' = ?", [booking]).select('created_at');
+    expect(rows).toHaveLength(1);
+    expect(rows[0].createdAt.getTime()).toBeGreaterThan(before.createdAt.getTime());
   });
 
   // Days that once broke it or sit on edges: a Wednesday in December, the day after each clock
