@@ -2,6 +2,7 @@ import { createRouter, createWebHistory, type RouteRecordRaw } from 'vue-router'
 import type { Role } from '@/api/types';
 import { useSessionStore } from '@/stores/session';
 import { decideNavigation, rolesWith } from './access';
+import { isCodeLoadError, reloadForPage } from './stale-build';
 
 declare module 'vue-router' {
   interface RouteMeta {
@@ -143,6 +144,20 @@ router.beforeEach(async (to) => {
     return to.path === '/sign-in' ? true : { path: '/sign-in', query: { error: 'unavailable', next: to.fullPath } };
   }
   return decideNavigation(to, { signedIn: session.signedIn, role: session.role });
+});
+
+// A page's code that could not be fetched (a release since this tab opened, or the signal gone):
+// the page is loaded afresh once; failing again, it is the server that can't be reached.
+router.onError((error, to) => {
+  if (!isCodeLoadError(error)) return;
+  const loaded = reloadForPage(to.fullPath, {
+    storage: sessionStorage,
+    load: (path) => window.location.assign(path),
+    now: Date.now(),
+  });
+  // (The waiting page's own code missing too: nothing more to try from here.)
+  if (!loaded && to.path !== '/sign-in')
+    void router.replace({ path: '/sign-in', query: { error: 'unavailable', next: to.fullPath } });
 });
 
 router.afterEach((to) => {

@@ -158,6 +158,35 @@ describe('the scheduler on the board', () => {
     expect(board.bookings.map((b) => String(b.id))).toContain(String(made.body.bookings[0].id));
   }, 60_000);
 
+  it("opens another page after a new release, though the tab still holds the old one's (its code gone from the server)", async () => {
+    await page.goto(`${app.url}/board?view=week&date=2026-09-14`);
+    await page.locator('.fc-timeline-lane').first().waitFor();
+    // The Jobs page's code, as the tab knows it, is no longer on the server (as after a release):
+    // refused until the page is loaded afresh, which brings the release's own files.
+    let documents = 0;
+    const onRequest = (r: { resourceType: () => string }) => {
+      if (r.resourceType() === 'document') documents++;
+    };
+    page.on('request', onRequest);
+    let refused = 0;
+    await page.route('**/assets/JobsView-*.js', (route) => {
+      if (documents > 0) return route.fallback();
+      refused++;
+      return route.fulfill({ status: 404, body: 'Not found' });
+    });
+    try {
+      await page.getByRole('navigation').getByRole('link', { name: 'Jobs' }).click();
+      await page.getByRole('heading', { name: 'Jobs', level: 1 }).waitFor({ timeout: 15_000 });
+      expect(new URL(page.url()).pathname).toBe('/jobs');
+      // It took a fresh load of the page, once.
+      expect(refused).toBeGreaterThan(0);
+      expect(documents).toBe(1);
+    } finally {
+      page.off('request', onRequest);
+      await page.unroute('**/assets/JobsView-*.js');
+    }
+  }, 60_000);
+
   it('says when the board is not live (the stream answered 502 while the server restarts), and is live again by itself', async () => {
     await page.goto(`${app.url}/board?view=week&date=2026-09-14`);
     await page.locator('.fc-timeline-lane').first().waitFor();
