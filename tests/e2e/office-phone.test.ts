@@ -480,6 +480,9 @@ describe("a hire's dates, changed on a phone and put back", () => {
       const before = await stored();
       await phone.goto(`${app.url}/reports`);
       await phone.getByRole('button', { name: /^Change the dates of the hire of 3 t excavator \(hired\)/ }).click();
+      // The dialog done moving in before its button is pressed (a press mid-way once never opened the question).
+      await phone.getByRole('dialog', { name: 'Change the hire of 3 t excavator (hired)' }).waitFor();
+      await phone.waitForFunction(() => document.getAnimations().length === 0);
       await phone.getByRole('button', { name: 'End the hire now…' }).click();
       const asked = phone.getByRole('dialog', { name: 'End the hire of 3 t excavator (hired) now?' });
       await asked.getByRole('button', { name: 'Keep it' }).click();
