@@ -372,6 +372,37 @@ describe("a hire's dates, changed on a phone and put back", () => {
     }
   });
 
+  it('keeps the part jumped to at the top while the tables are still arriving', async () => {
+    const { context, phone } = await managerPhone();
+    try {
+      // A weak signal: the tables come 2 s late. Utilisation is the last part: until its table is
+      // in, the page is too short to bring its heading to the top.
+      let late = 0;
+      await phone.route(/\/api\/reports\/(clashes|hire|utilisation)\?/, async (route) => {
+        const answer = await route.fetch();
+        await new Promise((r) => setTimeout(r, 2_000));
+        late++;
+        await route.fulfill({ response: answer });
+      });
+      await phone.goto(`${app.url}/reports`);
+      const heading = phone.getByRole('heading', { level: 2, name: 'Utilisation', exact: true });
+      await heading.waitFor();
+      expect(late).toBe(0);
+      await phone
+        .getByRole('navigation', { name: 'Parts of this page' })
+        .getByRole('link', { name: 'Utilisation', exact: true })
+        .click();
+      await expect.poll(() => late, { timeout: 15_000 }).toBe(3);
+      // The tables are drawn, the page hundreds of pixels longer, and the part is at the top.
+      await phone.getByRole('link', { name: 'Download the totals (CSV)' }).waitFor();
+      await phone.waitForFunction(() => document.getAnimations().length === 0);
+      await expect.poll(async () => Math.round((await heading.boundingBox())!.y)).toBeLessThan(5);
+      expect(await heading.evaluate((el) => el === document.activeElement)).toBe(true);
+    } finally {
+      await context.close();
+    }
+  });
+
   it('names the booking an earlier off-hire leaves off hire, and Undo puts the exact times back', async () => {
     const { context, phone } = await managerPhone();
     try {
