@@ -52,7 +52,12 @@ interface Loader {
 export function reloadForPage(path: string, loader: Loader): boolean {
   const last = lastTry(loader.storage);
   if (last?.path === path && typeof last.at === 'number' && loader.now - last.at < RELOAD_GUARD_MS) return false;
-  loader.storage.setItem(KEY, JSON.stringify({ path, at: loader.now }));
+  try {
+    loader.storage.setItem(KEY, JSON.stringify({ path, at: loader.now }));
+  } catch {
+    // Nowhere to note the try (storage full or refused): a load could then repeat for ever.
+    return false;
+  }
   loader.load(path);
   return true;
 }

@@ -33,6 +33,18 @@ describe('a page whose code could not be fetched', () => {
     expect(loads).toEqual(['/jobs?q=Otley', '/reports', '/jobs?q=Otley']);
   });
 
+  it('is not loaded afresh when the try cannot be noted (storage refused), so it can never repeat for ever', () => {
+    const loads: string[] = [];
+    const storage = {
+      getItem: () => null,
+      setItem: () => {
+        throw new DOMException('The quota has been exceeded.', 'QuotaExceededError');
+      },
+    };
+    expect(reloadForPage('/jobs', { storage, load: (p) => loads.push(p), now: 1 })).toBe(false);
+    expect(loads).toEqual([]);
+  });
+
   it('is loaded afresh when what was kept of the last try is unreadable', () => {
     const storage = memoryStorage();
     storage.setItem('waterline.reloadedFor', '{not json');
