@@ -4,8 +4,9 @@
  */
 export function registerServiceWorker(): void {
   if (!import.meta.env.PROD || !('serviceWorker' in navigator)) return;
-  window.addEventListener('load', () => {
-    // A browser that refuses (private windows of some, a policy) works as before, online only.
-    navigator.serviceWorker.register('/sw.js', { scope: '/' }).catch(() => undefined);
-  });
+  // A browser that refuses (private windows of some, a policy) works as before, online only.
+  const register = () => void navigator.serviceWorker.register('/sw.js', { scope: '/' }).catch(() => undefined);
+  // After the page's own load, so fetching the app ahead never slows the first page.
+  if (document.readyState === 'complete') register();
+  else window.addEventListener('load', register, { once: true });
 }
