@@ -29,6 +29,8 @@ export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
   const lastUndo = computed(() => undoStack.value[0] ?? null);
   let controller: AbortController | null = null;
   let range: BoardRange | null = null;
+  // Saved writes merged so far: a load asked for before the latest of them may answer without it.
+  let merged = 0;
 
   // The engine's index is built once per load (or merged write) and serves the analysis and every drag check.
   const index = computed<BoardIndex | null>(() => (data.value ? boardIndexOf(data.value, seesAll()) : null));
@@ -54,11 +56,16 @@ export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
     const own = new AbortController();
     controller = own;
     loading.value = true;
+    const mergedBefore = merged;
     try {
-      data.value = await api.get<BoardData>('/api/board', {
+      const answer = await api.get<BoardData>('/api/board', {
         query: { from: new Date(next.from).toISOString(), to: new Date(next.to).toISOString() },
         signal: own.signal,
       });
+      // A write saved while this was on its way (a drop as the live board reloaded): the answer may
+      // be from before it, and would put a stage just booked back in the tray. Asked again instead.
+      if (merged !== mergedBefore) return await load(next);
+      data.value = answer;
       error.value = null;
     } catch (caught) {
       if (own.signal.aborted) return;
@@ -76,6 +83,7 @@ export function useBoard(options: { seesAllBookings?: () => boolean } = {}) {
   function merge(saved: BoardBooking[], removedIds: string[] = []): void {
     const current = data.value;
     if (!current) return;
+    merged++;
     const byId = new Map(saved.map((b) => [b.id, b]));
     // The board's own fields (a proposal, an overdue flag) stay until the next load; a decline goes with its state.
     const bookings = current.bookings

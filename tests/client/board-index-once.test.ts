@@ -158,6 +158,66 @@ describe("the board's engine index", () => {
     scope.stop();
   });
 
+  it('never lets a load asked for before a saved write put the stage just booked back in the tray', async () => {
+    const pour = {
+      id: 'b2',
+      stageId: 'base',
+      resourceId: 'r2',
+      start: MON + 24 * HOUR,
+      end: MON + 28 * HOUR,
+      state: 'pencilled' as const,
+      installerFirmId: 'f1',
+      version: 1,
+    };
+    // The server's board: without the pour until it is saved.
+    let saved = false;
+    const answers: ((body: BoardData) => void)[] = [];
+    const sent = stubFetch(
+      () =>
+        new Promise((resolve) => {
+          answers.push((body) => resolve({ status: 200, body }));
+        }),
+    );
+    const scope = effectScope();
+    const { b, shown } = scope.run(() => {
+      const b = useBoard();
+      const shown = useBoardFilter({
+        data: () => b.data.value,
+        index: () => b.index.value,
+        filters: () => ({ firm: '', kind: '', job: '', state: '', q: '' }),
+        problems: () => new Map(),
+        canEdit: () => true,
+        revealed: () => new Set(),
+        selectedStage: () => null,
+      });
+      return { b, shown };
+    })!;
+    const serverBoard = () => ({ ...board(), bookings: [...board().bookings, ...(saved ? [pour] : [])] });
+    const first = b.load({ from: MON - 8 * HOUR, to: MON + 7 * 24 * HOUR });
+    answers.shift()!(serverBoard());
+    await first;
+    const tray = () => shown.tray.value.flatMap((t) => t.stages.map((s) => s.stage.id));
+    expect(tray()).toEqual(['base']);
+
+    // The live board reloads (another change elsewhere) as the pour is dropped: the reload is asked
+    // for first, the drop's write is saved and merged, then the reload's answer (from before) comes.
+    const reload = b.load();
+    await vi.waitFor(() => expect(answers).toHaveLength(1));
+    saved = true;
+    b.merge([pour]);
+    expect(tray()).toEqual([]);
+    answers.shift()!({ ...board() });
+    // Not shown: the board is asked again, and shows the server's board as it now is.
+    await vi.waitFor(() => expect(answers).toHaveLength(1));
+    expect(tray()).toEqual([]);
+    answers.shift()!(serverBoard());
+    await reload;
+    expect(sent.filter((r) => r.url.includes('/api/board'))).toHaveLength(3);
+    expect(b.data.value?.bookings.map((x) => x.id)).toEqual(['b1', 'b2']);
+    expect(tray()).toEqual([]);
+    scope.stop();
+  });
+
   it("gives the same analysis as the engine's own analyseBoard", () => {
     const data = board();
     data.bookings.push({
