@@ -104,6 +104,26 @@ function board(): BoardData {
   };
 }
 
+/** What the board page holds: its data, the drag check and the rows, events and tray, unfiltered. */
+function boardPage() {
+  const scope = effectScope();
+  const parts = scope.run(() => {
+    const b = useBoard();
+    const drag = useDragCheck(() => b.index.value);
+    const shown = useBoardFilter({
+      data: () => b.data.value,
+      index: () => b.index.value,
+      filters: () => ({ firm: '', kind: '', job: '', state: '', q: '' }),
+      problems: () => new Map(),
+      canEdit: () => true,
+      revealed: () => new Set(),
+      selectedStage: () => null,
+    });
+    return { b, drag, shown };
+  })!;
+  return { scope, ...parts };
+}
+
 describe("the board's engine index", () => {
   it('is built once per load, and serves the analysis, the tray and every drag check', async () => {
     const loads: string[] = [];
@@ -111,21 +131,7 @@ describe("the board's engine index", () => {
       loads.push(request.url);
       return { status: 200, body: board() };
     });
-    const scope = effectScope();
-    const { b, drag, shown } = scope.run(() => {
-      const b = useBoard();
-      const drag = useDragCheck(() => b.index.value);
-      const shown = useBoardFilter({
-        data: () => b.data.value,
-        index: () => b.index.value,
-        filters: () => ({ firm: '', kind: '', job: '', state: '', q: '' }),
-        problems: () => new Map(),
-        canEdit: () => true,
-        revealed: () => new Set(),
-        selectedStage: () => null,
-      });
-      return { b, drag, shown };
-    })!;
+    const { scope, b, drag, shown } = boardPage();
     await b.load({ from: MON - 8 * HOUR, to: MON + 7 * 24 * HOUR });
     expect(loads).toHaveLength(1);
 
@@ -178,20 +184,7 @@ describe("the board's engine index", () => {
           answers.push((body) => resolve({ status: 200, body }));
         }),
     );
-    const scope = effectScope();
-    const { b, shown } = scope.run(() => {
-      const b = useBoard();
-      const shown = useBoardFilter({
-        data: () => b.data.value,
-        index: () => b.index.value,
-        filters: () => ({ firm: '', kind: '', job: '', state: '', q: '' }),
-        problems: () => new Map(),
-        canEdit: () => true,
-        revealed: () => new Set(),
-        selectedStage: () => null,
-      });
-      return { b, shown };
-    })!;
+    const { scope, b, shown } = boardPage();
     const serverBoard = () => ({ ...board(), bookings: [...board().bookings, ...(saved ? [pour] : [])] });
     const first = b.load({ from: MON - 8 * HOUR, to: MON + 7 * 24 * HOUR });
     answers.shift()!(serverBoard());
