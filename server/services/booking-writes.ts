@@ -106,6 +106,11 @@ export type BookingChange =
       version?: number | undefined;
       /** A partner's own words with a decline or proposal: kept in the audit row beside the change. */
       reason?: string | undefined;
+      /**
+       * When a crew marked the step on a phone without a signal, sent once it had one (epoch ms):
+       * the day an arrival is checked against, kept in the audit row beside the time it came in.
+       */
+      markedAt?: number | undefined;
     };
 
 /** A change to a booking that exists (a declined booking dropped again is rebooked). */
@@ -419,7 +424,8 @@ export class BookingWork {
     // A declined booking moved to another time or person is rebooked: it starts again as pencilled.
     if (timed && action === 'move' && before.state === 'declined') action = 'rebook';
     const to = this.stateAfter(action, before.state, side);
-    if (action === 'arrive') await this.checkOnTheDay(before, installerFirmId);
+    const markedAt = 'markedAt' in change ? change.markedAt : undefined;
+    if (action === 'arrive') await this.checkOnTheDay(before, installerFirmId, markedAt);
     // What the stage needs before it is done (a complete commissioning record, the certificate at handover).
     if (action === 'finish') await checkStageFinish(this.trx, stageId);
 
@@ -485,7 +491,10 @@ export class BookingWork {
           )
         : before;
     await this.messages(action, before, after, side, newResource?.side ?? side);
-    await this.record(action, before, after, installerFirmId, 'reason' in change ? change.reason : undefined);
+    await this.record(action, before, after, installerFirmId, {
+      reason: 'reason' in change ? change.reason : undefined,
+      markedAt,
+    });
     const moved =
       before.startsAt.getTime() !== after.startsAt.getTime() || before.endsAt.getTime() !== after.endsAt.getTime();
     if (moved || newResource || action === 'send') this.checkStages.add(stageId);
@@ -577,12 +586,19 @@ export class BookingWork {
     before: Booking | null,
     after: Booking | null,
     installerFirmId?: string,
-    reason?: string,
+    said: { reason?: string | undefined; markedAt?: number | undefined } = {},
   ): Promise<void> {
     this.written.push({ action, before, after });
     const row = (after ?? before)!;
     const firmId = installerFirmId ?? (await this.sideOf(String(row.stageId), String(row.resourceId))).installerFirmId;
-    const snapshot = after ? { ...after.toJSON(), action, ...(reason ? { reason } : {}) } : null;
+    const snapshot = after
+      ? {
+          ...after.toJSON(),
+          action,
+          ...(said.reason ? { reason: said.reason } : {}),
+          ...(said.markedAt !== undefined ? { markedAt: new Date(said.markedAt).toISOString() } : {}),
+        }
+      : null;
     await recordChange(
       this.trx,
       this.ctx.actor,
@@ -595,11 +611,14 @@ export class BookingWork {
     );
   }
 
-  /** People are on site on the day of the booking, not a week ahead: today, in the firm's zone, must fall within it. */
-  private async checkOnTheDay(booking: Booking, installerFirmId: string): Promise<void> {
+  /**
+   * People are on site on the day of the booking, not a week ahead: the day it was marked (today,
+   * or the day a phone without a signal kept it from), in the firm's zone, must fall within it.
+   */
+  private async checkOnTheDay(booking: Booking, installerFirmId: string, markedAt?: number): Promise<void> {
     const firm = await this.trx('firms').where('id', installerFirmId).first('time_zone');
     const zone = String(firm?.timeZone ?? 'Europe/London');
-    const today = localDayOf(zone, this.writer.now());
+    const today = localDayOf(zone, markedAt ?? this.writer.now());
     const first = localDayOf(zone, booking.startsAt.getTime());
     const last = localDayOf(zone, booking.endsAt.getTime() - 1);
     if (today < first || today > last) {

@@ -320,10 +320,15 @@ export class BookingsService {
     return { ...(await this.saved(actor, outcome)), reasked };
   }
 
-  /** A crew (or the office) marks a booking on site, then done, or takes either back. */
+  /**
+   * A crew (or the office) marks a booking on site, then done, or takes either back; a step a phone
+   * kept while it had no signal comes with how long ago it was marked.
+   */
   async markProgress(actor: Actor, id: string, input: MarkProgress): Promise<BookingView> {
+    // A kept step's time by the server's clock (the phone says how long ago, not when: its clock may be wrong).
+    const markedAt = input.markedMsAgo === undefined ? undefined : this.writer.now() - input.markedMsAgo;
     await this.writer.run({ actor, party: partyOf(actor) }, { bookingIds: [id] }, (w) =>
-      w.apply({ action: progressActionOf(input), bookingId: id, version: input.version }),
+      w.apply({ action: progressActionOf(input), bookingId: id, version: input.version, markedAt }),
     );
     return this.get(actor, id);
   }

@@ -3,8 +3,7 @@ import { cautionsFor } from '../../shared/cautions.ts';
 import type { DaySheet, DaySheetList } from '../../shared/schemas/day-sheets.ts';
 import type { MyWorkHours, MyWorkItem, MyWorkList, MyWorkQuery } from '../../shared/schemas/my-work.ts';
 import { weekWords, type StoredWeeklyHours } from '../../shared/working-week.ts';
-import { PROGRESS_ACTIONS, type BookingState, type ProgressAction } from '../../shared/schemas/bookings.ts';
-import { actionsFor } from '../../shared/booking-states.ts';
+import { progressActions } from '../../shared/progress-actions.ts';
 import { addDays, endOfLocalDay, localDateOf, startOfLocalDay, todayIn } from '../../shared/local-dates.ts';
 import { Booking, Firm } from '../models/index.ts';
 import { ownResourceIds, workingWeekIdOf } from '../models/base.ts';
@@ -49,28 +48,9 @@ type Row = Booking & {
 };
 
 /** A visit with the booking's own facts a page needs beside the day sheet's. */
-export type Visit = Omit<MyWorkItem, 'day' | 'actions'> & { ownResource: boolean };
+export type Visit = Omit<MyWorkItem, 'day' | 'actions'>;
 
 const DAY_MS = 86_400_000;
-
-/**
- * The progress a crew may mark on its own booking now: the state machine's crew actions, and
- * "arrive" only on a day the booking covers (the writer refuses it on any other day).
- *
- * @example
- * progressActions('confirmed', true, { first: '2026-06-01', last: '2026-06-01' }, '2026-06-01') // ['arrive']
- */
-export function progressActions(
-  state: string,
-  ownResource: boolean,
-  days: { first: string; last: string },
-  today: string,
-): ProgressAction[] {
-  const allowed = actionsFor(state as BookingState, { party: 'crew', side: ownResource ? 'own' : 'partner' });
-  return PROGRESS_ACTIONS.filter(
-    (a) => allowed.includes(a) && (a !== 'arrive' || (days.first <= today && today <= days.last)),
-  );
-}
 
 /**
  * One printable sheet per crew (or person) per day: where they go, when, whom to call, what to
@@ -162,7 +142,7 @@ export class DaySheetsService {
     return rows.map((r) => ({
       bookingId: r.id,
       version: r.version,
-      ownResource: String(r.resourceFirmId) === String(r.jobFirmId),
+      side: String(r.resourceFirmId) === String(r.jobFirmId) ? 'own' : 'partner',
       startsAt: r.startsAt.toISOString(),
       endsAt: r.endsAt.toISOString(),
       state: r.state,
@@ -212,7 +192,7 @@ export class DaySheetsService {
       new Date(endOfLocalDay(date, timeZone)),
     );
     const sheets = new Map<string, DaySheet>();
-    for (const { resource, version: _version, ownResource: _own, ...visit } of visits) {
+    for (const { resource, version: _version, side: _side, ...visit } of visits) {
       if (resource.category === 'machine') continue;
       const sheet = sheets.get(resource.id) ?? { resource, date, visits: [] };
       sheet.visits.push(visit);
@@ -246,16 +226,16 @@ export class DaySheetsService {
       new AbsencesService(this.knex).ownAwayDuring(actor, from, to, timeZone),
       this.ownHours(actor),
     ]);
-    const dayOf = (iso: string) => localDateOf(Date.parse(iso), timeZone);
     return {
       today,
       timeZone,
       away,
       hours,
-      items: visits.map(({ ownResource, ...v }) => {
-        const days = { first: dayOf(v.startsAt), last: dayOf(new Date(Date.parse(v.endsAt) - 1).toISOString()) };
-        return { ...v, day: days.first, actions: progressActions(v.state, ownResource, days, today) };
-      }),
+      items: visits.map((v) => ({
+        ...v,
+        day: localDateOf(Date.parse(v.startsAt), timeZone),
+        actions: progressActions(v, today, timeZone),
+      })),
     };
   }
 

@@ -161,14 +161,29 @@ export const PROGRESS_ACTIONS = ['arrive', 'finish', 'undo-arrive', 'undo-finish
 export type ProgressAction = (typeof PROGRESS_ACTIONS)[number];
 
 /**
+ * How long a phone without a signal keeps a step it marked (and the server still takes it): a
+ * weekend out of reach, with a day to spare. Older, the office marks it.
+ */
+export const MARK_KEPT_AT_MOST_MS = 48 * 3_600_000;
+
+/**
  * A crew marks its own work: `{ action, version }`, or the older `{ state: 'on_site' | 'done', version }`
- * (on site = arrive, done = finish). Exactly one of the two is given.
+ * (on site = arrive, done = finish). Exactly one of the two is given. `markedMsAgo`: when a phone
+ * without a signal kept the step to send later, how long before sending it was marked, by the
+ * phone's own clock (a time elapsed stays right on a phone whose clock is set wrong, where a time
+ * of day would not); the server counts it back from its own clock.
  */
 export const MarkProgress = z
   .object({
     action: z.enum(PROGRESS_ACTIONS).optional(),
     state: z.enum(['on_site', 'done']).optional(),
     version: z.number().int().min(1),
+    markedMsAgo: z
+      .number()
+      .int()
+      .min(0, 'must not be negative')
+      .max(MARK_KEPT_AT_MOST_MS, `must be within the last ${MARK_KEPT_AT_MOST_MS / 3_600_000} hours`)
+      .optional(),
   })
   .refine((m) => (m.action === undefined) !== (m.state === undefined), {
     path: ['action'],

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import type { DaySheet, DaySheetVisit } from './day-sheets.ts';
 import type { ProgressAction } from './bookings.ts';
+import type { ResourceSide } from '../booking-states.ts';
 import { IsoInstant } from './common.ts';
 
 /**
@@ -35,6 +36,11 @@ export interface MyWorkItem extends DaySheetVisit {
   version: number;
   /** The crew or person row the booking is on. */
   resource: DaySheet['resource'];
+  /**
+   * Whose resource the booking is on: the installer's own crew, or a partner firm's (whose crew
+   * mark done, but whose arrival the installer's office marks).
+   */
+  side: ResourceSide;
   /** The local date (firm's zone) the booking starts on, YYYY-MM-DD. */
   day: string;
   /**

@@ -23,6 +23,7 @@ function item(id: string, day: string, startsAt: string, over: Partial<MyWorkIte
     startsAt,
     endsAt: new Date(Date.parse(startsAt) + 4 * 3_600_000).toISOString(),
     state: 'confirmed',
+    side: 'own',
     day,
     actions: [],
     resource: { id: '7', name: 'Crew Heron', kind: 'install_crew', category: 'crew', firmName: 'Tideway Hot Tubs' },

@@ -115,7 +115,7 @@ describe('a crew member on a phone', () => {
       .toBe('confirmed');
     await card.getByRole('button', { name: 'On site' }).waitFor();
   }, 90_000);
-  it('keeps the work and the job on screen without a signal, dated, and marks nothing until it is back', async () => {
+  it('keeps the work and the job on screen without a signal, dated, and keeps a step marked meanwhile until it is back', async () => {
     await page.goto(`${app.url}/my-work`);
     const card = page.locator('article.visit', { hasText: 'TW-8811' }).filter({ hasText: 'Excavate pit' });
     await card.waitFor({ timeout: 15_000 });
@@ -139,17 +139,48 @@ describe('a crew member on a phone', () => {
       expect(await page.getByText('Excavate pit').count()).toBeGreaterThan(0);
       await page.goBack();
       await card.waitFor();
-      // A step can't be marked without the server: it says so, and nothing changes.
+      // A step marked without the server is kept on the phone, shown marked, with when.
       await card.getByRole('button', { name: 'On site' }).click();
       await page.getByRole('button', { name: 'Yes, on site' }).click();
-      await page.getByText('Waterline could not reach the server').last().waitFor();
+      await page
+        .getByText('No signal: Excavate pit marked on site on this phone, sent when there is a signal')
+        .waitFor();
+      await card.getByRole('button', { name: 'Done' }).waitFor();
+      expect(await card.getByTestId('kept-step').textContent()).toMatch(
+        /Marked at \d\d:\d\d on this phone, not sent yet: no signal\./,
+      );
+      expect(await page.getByTestId('kept-steps').textContent()).toContain('1 step marked on this phone');
       expect((await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('confirmed');
+      // Kept in the phone's storage (a closed tab keeps it too), and nothing of the householder's with it.
+      const stored = await page.evaluate(() =>
+        Object.keys(localStorage)
+          .filter((k) => k.startsWith('waterline:kept-steps:'))
+          .map((k) => localStorage.getItem(k))
+          .join(),
+      );
+      expect(stored).toContain('"action":"arrive"');
+      expect(stored).not.toMatch(/Weir Street|Mina Holt|LS6|07700/);
+      await page.getByRole('dialog').waitFor({ state: 'detached' });
+      await page.waitForFunction(() => document.getAnimations().length === 0);
+      await page.getByTestId('kept-steps').scrollIntoViewIfNeeded();
+      await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-kept-step.png' });
     } finally {
       await page.context().setOffline(false);
     }
-    // The signal back: the list loads again by itself, with no notice.
+    // The signal back: the list loads again by itself, with no notice, and the kept step goes with
+    // the time it was marked.
     await page.getByTestId('kept-answer').waitFor({ state: 'detached' });
-    await card.waitFor();
+    await page.getByText('Sent 1 step kept on this phone').waitFor({ timeout: 15_000 });
+    expect((await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('on_site');
+    const audit = await app.ctx
+      .knex('audit_log')
+      .where({ entity: 'booking', entity_id: today })
+      .orderBy('id', 'desc')
+      .first('after');
+    expect(audit.after).toMatchObject({ action: 'arrive', markedAt: expect.stringMatching(/^2026-06-01T/) });
+    await page.getByTestId('kept-steps').waitFor({ state: 'detached' });
+    expect(await card.getByTestId('kept-step').count()).toBe(0);
+    await card.getByRole('button', { name: 'Done' }).waitFor();
   }, 60_000);
   it('names each slip in the survey under its box, keeps what was typed, saves nothing, then saves it put right', async () => {
     await page.goto(`${app.url}/jobs/${jobId}/survey`);

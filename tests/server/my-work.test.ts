@@ -18,6 +18,7 @@ const run = vi.spyOn(BookingWriter.prototype, 'run');
 const post = (id: string, body: object) =>
   crew.post(`/api/bookings/${id}/progress`).set('X-CSRF-Token', crew.csrf).send(body);
 const versionOf = async (id: string) => (await ctx.knex('bookings').where('id', id).first('version')).version as number;
+const stageOf = async (id: string) => (await ctx.knex('bookings').where('id', id).first('stage_id')).stageId as string;
 const myWork = async () => (await crew.get('/api/my-work').expect(200)).body as MyWorkList;
 
 beforeAll(async () => {
@@ -309,6 +310,70 @@ describe('marking progress, and taking it back, through the guarded writer', () 
     expect(early.body.detail).toBe('This booking is on Thu 4 Jun 08:00: it can be marked on site on that day.');
     const notYet = await post(thursday, { action: 'finish', version: await versionOf(thursday) }).expect(409);
     expect(notYet.body.detail).toBe("A confirmed booking can't be marked done.");
+  });
+
+  it('takes a step a phone kept without a signal, checked against the day it was marked, the time kept in the audit', async () => {
+    // Sunday's base pour, marked on site at 09:30 BST on the day with no signal, sent on Monday at 08:00 BST.
+    const job = (
+      await ctx
+        .knex('stages')
+        .where({ id: await stageOf(today) })
+        .first('job_id')
+    ).jobId as string;
+    const [stage] = await ctx
+      .knex('stages')
+      .insert({
+        job_id: job,
+        kind: 'base',
+        name: 'Pour base',
+        sequence: 3,
+        duration_minutes: 120,
+        requirements: JSON.stringify([{ kind: 'install_crew', count: 1 }]),
+      })
+      .returning('id');
+    const [b] = await ctx
+      .knex('bookings')
+      .insert({
+        stage_id: stage.id,
+        resource_id: await idOf(ctx.knex, 'resources', { name: 'Connor Reid' }),
+        starts_at: '2026-05-31T08:00:00Z',
+        ends_at: '2026-05-31T10:00:00Z',
+        state: 'confirmed',
+      })
+      .returning('id');
+    const sunday = String(b.id);
+    onTestFinished(() => ctx.knex('stages').where({ id: stage.id }).delete());
+
+    const late = await post(sunday, { action: 'arrive', version: 1 }).expect(409);
+    expect(late.body.detail).toBe('This booking is on Sun 31 May 09:00: it can be marked on site on that day.');
+
+    // 22 h 30 min before the test clock's Mon 1 Jun 07:00Z, by the phone's own clock.
+    const kept = await post(sunday, { action: 'arrive', version: 1, markedMsAgo: 22.5 * 3_600_000 }).expect(200);
+    expect(kept.body).toMatchObject({ state: 'on_site', version: 2 });
+    const audit = await ctx.knex('audit_log').where({ entity: 'booking', entity_id: sunday }).orderBy('id').first();
+    expect(audit.after).toMatchObject({ action: 'arrive', markedAt: '2026-05-31T08:30:00.000Z' });
+
+    // The marked day is checked as today would be: a kept step can't mark Thursday's work on site early.
+    const early = await post(thursday, {
+      action: 'arrive',
+      version: await versionOf(thursday),
+      markedMsAgo: 3_600_000,
+    }).expect(409);
+    expect(early.body.detail).toBe('This booking is on Thu 4 Jun 08:00: it can be marked on site on that day.');
+  });
+
+  it('refuses a kept step marked more than 48 hours ago, or a time still to come, naming markedMsAgo (400)', async () => {
+    const old = await post(thursday, { action: 'finish', version: 1, markedMsAgo: 48 * 3_600_000 + 60_000 }).expect(
+      400,
+    );
+    expect(old.body.errors).toEqual([{ field: 'markedMsAgo', message: 'must be within the last 48 hours' }]);
+    const ahead = await post(thursday, { action: 'finish', version: 1, markedMsAgo: -60_000 }).expect(400);
+    expect(ahead.body.errors).toEqual([{ field: 'markedMsAgo', message: 'must not be negative' }]);
+    for (const markedMsAgo of [1.5, '60000', 1e308, null]) {
+      const bad = await post(thursday, { action: 'finish', version: 1, markedMsAgo }).expect(400);
+      expect([...new Set(bad.body.errors.map((e: { field: string }) => e.field))]).toEqual(['markedMsAgo']);
+    }
+    expect(await versionOf(thursday)).toBe(1);
   });
 
   it('still takes the older { state } form', async () => {

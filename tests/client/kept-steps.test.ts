@@ -1,0 +1,237 @@
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import { effectScope } from 'vue';
+import { asKept, keepMark, markStore, pageStore, type KeptMark } from '@/components/my-work/kept-marks';
+import { useMyWork } from '@/composables/useMyWork';
+import { ApiError } from '@/api/client';
+import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
+import { stubFetch, type SentRequest } from './fake-fetch';
+
+afterEach(() => {
+  vi.unstubAllGlobals();
+});
+
+/** Lets the fake fetch answer and Vue's watchers run (polled, not a fixed sleep). */
+async function until(check: () => boolean): Promise<void> {
+  for (let i = 0; i < 200 && !check(); i++) await new Promise((resolve) => setTimeout(resolve, 0));
+  expect(check()).toBe(true);
+}
+
+// A Monday morning dig, the test's own; the phone's clock at 09:30 BST that day.
+const MARKED = Date.parse('2026-06-01T08:30:00Z');
+let clock = MARKED;
+const dig: MyWorkItem = {
+  bookingId: '41',
+  version: 3,
+  startsAt: '2026-06-01T07:00:00Z',
+  endsAt: '2026-06-01T11:00:00Z',
+  state: 'confirmed',
+  side: 'own',
+  day: '2026-06-01',
+  actions: ['arrive'],
+  resource: { id: '7', name: 'Crew Heron', kind: 'install_crew', category: 'crew', firmName: 'Tideway Hot Tubs' },
+  stage: { id: 's41', kind: 'excavation', name: 'Excavate pit' },
+  job: { id: '12', reference: 'TW-2407', unitName: null, installationType: 'in_ground', unitFacing: null },
+  site: { address: 'The Old Barn, Hall Lane', town: 'Bramhope', postcode: 'LS16 9AS', accessNotes: null },
+  contacts: [],
+  alongside: [],
+  cautions: [],
+  unitArrives: null,
+} as MyWorkItem;
+const list: MyWorkList = { today: '2026-06-01', timeZone: 'Europe/London', items: [dig], away: [], hours: [] };
+const step = (action: KeptMark['action'], version = 3): KeptMark => ({
+  bookingId: '41',
+  action,
+  version,
+  markedAt: new Date(MARKED).toISOString(),
+  label: 'Excavate pit · TW-2407',
+});
+
+describe('steps kept on the phone', () => {
+  it('go in order, each one version on from the last kept for its booking; taking one back cancels it', () => {
+    const arrived = keepMark([], step('arrive'));
+    const done = keepMark(arrived, step('finish'));
+    expect(done.map((m) => [m.action, m.version])).toEqual([
+      ['arrive', 3],
+      ['finish', 4],
+    ]);
+    // "Not done yet" before anything was sent: nothing need go for either.
+    expect(keepMark(done, step('undo-finish')).map((m) => m.action)).toEqual(['arrive']);
+    expect(keepMark(arrived, step('undo-arrive'))).toEqual([]);
+    // Another booking's steps keep their own versions.
+    expect(keepMark(arrived, { ...step('arrive', 9), bookingId: '42' }).map((m) => m.version)).toEqual([3, 9]);
+  });
+
+  it('show the card as it will be once sent, by the same rule the server lists the buttons', () => {
+    const onSite = asKept(dig, [step('arrive')], list);
+    expect([onSite.state, onSite.actions]).toEqual(['on_site', ['finish', 'undo-arrive']]);
+    const done = asKept(dig, keepMark([step('arrive')], step('finish')), list);
+    expect([done.state, done.actions]).toEqual(['done', ['undo-finish']]);
+    // A partner firm's crew member marks done but not on site (the installer's office marks that).
+    const theirs = asKept({ ...dig, state: 'on_site', side: 'partner' }, [step('undo-arrive')], list);
+    expect([theirs.state, theirs.actions]).toEqual(['confirmed', []]);
+    expect(asKept(dig, [], list)).toBe(dig);
+  });
+
+  it("are each person's own in the browser's storage, and what can't be read counts as none", () => {
+    const items = new Map<string, string>();
+    const storage = {
+      getItem: (k: string) => items.get(k) ?? null,
+      setItem: (k: string, v: string) => void items.set(k, v),
+      removeItem: (k: string) => void items.delete(k),
+    } as Storage;
+    const connor = markStore(storage, '5', '1');
+    expect(connor.write([step('arrive')])).toBe(true);
+    expect(connor.read()).toEqual([step('arrive')]);
+    expect(markStore(storage, '6', '1').read()).toEqual([]);
+    // Nothing of the householder's goes on the phone.
+    expect([...items.values()].join()).not.toMatch(/Old Barn|Bramhope|LS16/);
+    items.set('waterline:kept-steps:1:5', '{not json');
+    expect(connor.read()).toEqual([]);
+    items.set('waterline:kept-steps:1:5', JSON.stringify([step('arrive'), { bookingId: 41, action: 'fly' }]));
+    expect(connor.read()).toEqual([step('arrive')]);
+    expect(connor.write([])).toBe(true);
+    expect(items.size).toBe(0);
+    const full = {
+      ...storage,
+      setItem: () => {
+        throw new Error('QuotaExceededError');
+      },
+    } as Storage;
+    expect(markStore(full, '5', '1').write([step('arrive')])).toBe(false);
+  });
+});
+
+describe('marking a step without a signal', () => {
+  afterEach(() => {
+    clock = MARKED;
+  });
+  function work(answer: (r: SentRequest) => { status: number; body?: unknown }, store = pageStore()) {
+    const sent = stubFetch(answer);
+    const said: string[] = [];
+    const undos: (() => Promise<void>)[] = [];
+    const problems: unknown[] = [];
+    const scope = effectScope();
+    const w = scope.run(() =>
+      useMyWork(
+        {
+          confirm: async () => true,
+          announce: (text, undo) => {
+            said.push(text);
+            if (undo) undos.push(undo);
+          },
+          problem: (e) => problems.push(e),
+        },
+        { store, now: () => clock },
+      ),
+    )!;
+    const posts = () => sent.filter((r) => r.method === 'POST').map((r) => r.body);
+    return { w, sent, said, undos, problems, posts, store, stop: () => scope.stop() };
+  }
+
+  it('keeps the step with the time it was marked, shows it marked, and sends it in order once there is a signal', async () => {
+    let signal = false;
+    let version = 3;
+    const t = work((r) => {
+      if (!signal && r.method === 'POST') throw new TypeError('Failed to fetch');
+      if (r.method === 'GET') return { status: 200, body: list };
+      version++;
+      return { status: 200, body: { id: '41', state: 'on_site', version } };
+    });
+    await until(() => t.w.groups.value.length === 1);
+    expect(await t.w.mark(t.w.groups.value[0]!.items[0]!, 'arrive')).toBe(true);
+    expect(t.said).toEqual(['No signal: Excavate pit marked on site on this phone, sent when there is a signal']);
+    const card = () => t.w.groups.value[0]!.items[0]!;
+    expect([card().state, card().actions]).toEqual(['on_site', ['finish', 'undo-arrive']]);
+    expect(t.w.keptSince('41')).toBe('2026-06-01T08:30:00.000Z');
+    // Done, marked next: kept behind the first without trying the server.
+    const tried = t.posts().length;
+    expect(await t.w.mark(card(), 'finish')).toBe(true);
+    expect(t.posts()).toHaveLength(tried);
+    expect(t.store.read().map((m) => [m.action, m.version])).toEqual([
+      ['arrive', 3],
+      ['finish', 4],
+    ]);
+
+    await t.w.sendKept(); // still no signal: both stay, nothing said unless asked
+    expect(t.store.read()).toHaveLength(2);
+    expect(t.problems).toEqual([]);
+    await t.w.sendKept({ sayNoSignal: true }); // Send now
+    expect((t.problems as ApiError[]).map((p) => [p.status, p.title])).toEqual([
+      [0, 'Waterline could not reach the server'],
+    ]);
+    t.problems.length = 0;
+
+    // The signal back 25 minutes on: each goes with how long ago it was marked.
+    signal = true;
+    clock = MARKED + 25 * 60_000;
+    await t.w.sendKept();
+    expect(t.posts().slice(-2)).toEqual([
+      { action: 'arrive', version: 3, markedMsAgo: 1_500_000 },
+      { action: 'finish', version: 4, markedMsAgo: 1_500_000 },
+    ]);
+    expect(t.store.read()).toEqual([]);
+    expect(t.w.keptSince('41')).toBeNull();
+    expect(t.said.at(-1)).toBe('Sent 2 steps kept on this phone');
+    expect(t.problems).toEqual([]);
+    t.stop();
+  });
+
+  it("takes a kept step back with the announcement's Undo, sending nothing", async () => {
+    const t = work((r) => {
+      if (r.method === 'POST') throw new TypeError('Failed to fetch');
+      return { status: 200, body: list };
+    });
+    await until(() => t.w.groups.value.length === 1);
+    await t.w.mark(t.w.groups.value[0]!.items[0]!, 'arrive');
+    await t.undos[0]!();
+    expect(t.store.read()).toEqual([]);
+    expect(t.w.groups.value[0]!.items[0]!.state).toBe('confirmed');
+    expect(t.said.at(-1)).toBe('Excavate pit: no longer on site');
+    expect(t.posts()).toEqual([{ action: 'arrive', version: 3 }]);
+    t.stop();
+  });
+
+  it('says a refusal with the step it was about, and drops that booking’s kept steps', async () => {
+    const store = pageStore();
+    store.write([step('arrive'), step('finish', 4)]);
+    const t = work(
+      (r) =>
+        r.method === 'GET'
+          ? { status: 200, body: list }
+          : {
+              status: 409,
+              body: { title: 'This booking was changed since you loaded it', detail: 'Moved to Tuesday.' },
+            },
+      store,
+    );
+    // Kept from an earlier visit: tried as soon as the list has come.
+    await until(() => t.problems.length === 1);
+    const problem = t.problems[0] as ApiError;
+    expect([problem.status, problem.title, problem.detail]).toEqual([
+      409,
+      'Not sent: Excavate pit · TW-2407, marked on site',
+      'Moved to Tuesday.',
+    ]);
+    expect(t.posts()).toHaveLength(1);
+    expect(t.store.read()).toEqual([]);
+    t.stop();
+  });
+
+  it('counts a step as sent when its first try reached the server and only the answer was lost', async () => {
+    const store = pageStore();
+    store.write([step('arrive')]);
+    let gets = 0;
+    const onSite = { ...list, items: [{ ...dig, state: 'on_site', version: 4, actions: ['finish', 'undo-arrive'] }] };
+    const t = work(
+      (r) =>
+        r.method === 'GET'
+          ? { status: 200, body: gets++ === 0 ? list : onSite }
+          : { status: 409, body: { title: 'This booking was changed since you loaded it' } },
+      store,
+    );
+    await until(() => t.said.length === 1);
+    expect(t.said).toEqual(['Sent 1 step kept on this phone']);
+    expect(t.problems).toEqual([]);
+    t.stop();
+  });
+});
