@@ -103,3 +103,13 @@ export function decideNavigation(to: GuardTarget, session: GuardSession): GuardD
   if (to.path === '/') return { path: homeFor(role) };
   return mayVisit(to.meta, role) ? true : { path: homeFor(role) };
 }
+
+/**
+ * The tab's title for a page: its own, or what the sign-in page is showing when it is waiting
+ * for the server (a tab left on it should not read "Sign in" to someone who is signed in).
+ * @example titleOf({ meta: { title: 'Sign in' }, query: { error: 'unavailable' } }) // 'Waiting for a connection'
+ */
+export function titleOf(to: { meta: { title?: string }; query: Record<string, unknown> }): string {
+  if (to.meta.title === 'Sign in' && to.query.error === 'unavailable') return 'Waiting for a connection';
+  return to.meta.title ?? '';
+}

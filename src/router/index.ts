@@ -1,7 +1,7 @@
 import { createRouter, createWebHistory, type RouteRecordRaw } from 'vue-router';
 import type { Role } from '@/api/types';
 import { useSessionStore } from '@/stores/session';
-import { decideNavigation, rolesWith } from './access';
+import { decideNavigation, rolesWith, titleOf } from './access';
 import { isCodeLoadError, reloadForPage } from './stale-build';
 
 declare module 'vue-router' {
@@ -161,5 +161,6 @@ router.onError((error, to) => {
 });
 
 router.afterEach((to) => {
-  document.title = to.meta.title ? `${to.meta.title} · Waterline` : 'Waterline';
+  const title = titleOf(to);
+  document.title = title ? `${title} · Waterline` : 'Waterline';
 });

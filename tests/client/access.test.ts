@@ -1,6 +1,16 @@
 import { describe, expect, it } from 'vitest';
 import type { Role } from '@/api/types';
-import { ALL_ROLES, can, decideNavigation, homeFor, mayVisit, navFor, rolesWith, safeNext } from '@/router/access';
+import {
+  ALL_ROLES,
+  can,
+  decideNavigation,
+  homeFor,
+  mayVisit,
+  navFor,
+  rolesWith,
+  safeNext,
+  titleOf,
+} from '@/router/access';
 
 const navLabels = (role: Role) => navFor(role).map((item) => item.label);
 
@@ -131,5 +141,15 @@ describe('decideNavigation', () => {
     it('lets a role open what it may see', () => {
       expect(decideNavigation(to('/firm', { roles: rolesWith('firm:manage') }), as('owner'))).toBe(true);
     });
+  });
+});
+
+describe("the tab's title", () => {
+  it("is the page's own, and says the sign-in page is waiting when the server can't be reached", () => {
+    expect(titleOf({ meta: { title: 'My work' }, query: {} })).toBe('My work');
+    expect(titleOf({ meta: { title: 'Sign in' }, query: {} })).toBe('Sign in');
+    expect(titleOf({ meta: { title: 'Sign in' }, query: { error: 'denied' } })).toBe('Sign in');
+    expect(titleOf({ meta: { title: 'Sign in' }, query: { error: 'unavailable' } })).toBe('Waiting for a connection');
+    expect(titleOf({ meta: {}, query: {} })).toBe('');
   });
 });

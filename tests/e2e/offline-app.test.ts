@@ -44,6 +44,7 @@ describe('the app without a signal', () => {
     expect(new URL(page.url()).pathname).toBe('/sign-in');
     expect(new URL(page.url()).searchParams.get('next')).toBe('/my-work');
     expect(await page.getByRole('heading', { level: 1 }).textContent()).toBe('Waiting for a connection');
+    expect(await page.title()).toBe('Waiting for a connection · Waterline');
     await expect.poll(() => notice.getByRole('button', { name: 'Try again now' }).isVisible()).toBe(true);
     await page.screenshot({ path: 'tests/e2e/artifacts/offline-app-phone.png' });
     // Tried again with still no signal: the same page, still waiting for the page asked for.
