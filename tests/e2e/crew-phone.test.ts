@@ -164,6 +164,16 @@ describe('a crew member on a phone', () => {
       await page.waitForFunction(() => document.getAnimations().length === 0);
       await page.getByTestId('kept-steps').scrollIntoViewIfNeeded();
       await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-kept-step.png' });
+      // Another page points the way back to My work, where kept steps go from.
+      await card.getByRole('link', { name: 'The job' }).click();
+      const elsewhere = page.getByTestId('kept-elsewhere');
+      await elsewhere.waitFor();
+      expect(await elsewhere.textContent()).toMatch(
+        /1 step marked without a signal is waiting on this\s+phone: open My work to send it\./,
+      );
+      await elsewhere.getByRole('link', { name: 'open My work to send it' }).click();
+      await card.waitFor();
+      expect(await page.getByTestId('kept-elsewhere').count()).toBe(0);
     } finally {
       await page.context().setOffline(false);
     }
@@ -181,6 +191,35 @@ describe('a crew member on a phone', () => {
     await page.getByTestId('kept-steps').waitFor({ state: 'detached' });
     expect(await card.getByTestId('kept-step').count()).toBe(0);
     await card.getByRole('button', { name: 'Done' }).waitFor();
+  }, 60_000);
+  it('asks before signing out while a step marked without a signal has not gone', async () => {
+    const key = await page.evaluate(async () => {
+      const s = await (await fetch('/api/session')).json();
+      return `waterline:kept-steps:${s.firm.id}:${s.user.id}`;
+    });
+    const waiting = [
+      {
+        bookingId: today,
+        action: 'finish',
+        version: 1,
+        markedAt: new Date().toISOString(),
+        label: 'Excavate pit · TW-8811',
+      },
+    ];
+    await page.goto(`${app.url}/jobs/${jobId}`);
+    await page.evaluate(([k, v]) => localStorage.setItem(k!, v!), [key, JSON.stringify(waiting)]);
+    await page.getByRole('button', { name: 'Menu' }).click();
+    await page.getByRole('button', { name: 'Sign out' }).last().click();
+    const ask = page.getByRole('dialog', { name: 'Sign out with steps not sent?' });
+    await ask.waitFor();
+    expect(await ask.textContent()).toContain(
+      '1 step marked without a signal has not gone yet. It stays on this phone and goes when you sign in again and open My work, within 48 hours.',
+    );
+    await ask.getByRole('button', { name: 'Stay signed in' }).click();
+    await ask.waitFor({ state: 'detached' });
+    expect(new URL(page.url()).pathname).toBe(`/jobs/${jobId}`);
+    expect(await page.evaluate(async () => (await fetch('/api/session')).status)).toBe(200);
+    await page.evaluate((k) => localStorage.removeItem(k), key);
   }, 60_000);
   it('names each slip in the survey under its box, keeps what was typed, saves nothing, then saves it put right', async () => {
     await page.goto(`${app.url}/jobs/${jobId}/survey`);
