@@ -105,6 +105,10 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
       `No signal: ${item.stage.name} ${PROGRESS_WORDS[action].done} on this phone, sent when there is a signal`,
       back
         ? async () => {
+            // Sent meanwhile (the signal came back within the Undo's seconds): taken back on the server.
+            const stillKept = kept.value.some((m) => m.bookingId === item.bookingId && m.action === action);
+            const current = list.data.value?.items.find((i) => i.bookingId === item.bookingId);
+            if (!stillKept && current) return undo(current, back, current.version);
             save(
               keepMark(kept.value, {
                 bookingId: item.bookingId,
@@ -213,8 +217,8 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
     if (sent === 0 && refusals.length === 0) return;
     await list.refresh();
     for (const r of refusals) {
-      const now = list.data.value?.items.find((i) => i.bookingId === r.mark.bookingId);
-      if (r.error instanceof ApiError && r.error.status === 409 && now && now.state === r.expected) {
+      const current = list.data.value?.items.find((i) => i.bookingId === r.mark.bookingId);
+      if (r.error instanceof ApiError && r.error.status === 409 && current && current.state === r.expected) {
         sent++;
         continue;
       }

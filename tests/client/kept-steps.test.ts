@@ -191,6 +191,36 @@ describe('marking a step without a signal', () => {
     t.stop();
   });
 
+  it('takes the step back on the server when the Undo comes after the kept step has gone', async () => {
+    let signal = false;
+    let gets = 0;
+    const onSite = { ...list, items: [{ ...dig, state: 'on_site', version: 4, actions: ['finish', 'undo-arrive'] }] };
+    const t = work((r) => {
+      if (!signal && r.method === 'POST') throw new TypeError('Failed to fetch');
+      if (r.method === 'GET') return { status: 200, body: gets++ === 0 ? list : onSite };
+      return {
+        status: 200,
+        body: {
+          id: '41',
+          state: (r.body as { action: string }).action === 'arrive' ? 'on_site' : 'confirmed',
+          version: 5,
+        },
+      };
+    });
+    await until(() => t.w.groups.value.length === 1);
+    await t.w.mark(t.w.groups.value[0]!.items[0]!, 'arrive');
+    signal = true;
+    await t.w.sendKept();
+    await t.undos[0]!();
+    expect(t.posts().slice(-2)).toEqual([
+      { action: 'arrive', version: 3, markedMsAgo: 0 },
+      { action: 'undo-arrive', version: 4 },
+    ]);
+    expect(t.store.read()).toEqual([]);
+    expect(t.said.at(-1)).toBe('Excavate pit: no longer on site');
+    t.stop();
+  });
+
   it('says a refusal with the step it was about, and drops that booking’s kept steps', async () => {
     const store = pageStore();
     store.write([step('arrive'), step('finish', 4)]);
