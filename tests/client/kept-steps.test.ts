@@ -1,6 +1,13 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { effectScope } from 'vue';
-import { asKept, keepMark, markStore, pageStore, type KeptMark } from '@/components/my-work/kept-marks';
+import {
+  asKept,
+  keepMark,
+  keptOnThisPhone,
+  markStore,
+  pageStore,
+  type KeptMark,
+} from '@/components/my-work/kept-marks';
 import { useMyWork } from '@/composables/useMyWork';
 import { ApiError } from '@/api/client';
 import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
@@ -98,6 +105,26 @@ describe('steps kept on the phone', () => {
       },
     } as Storage;
     expect(markStore(full, '5', '1').write([step('arrive')])).toBe(false);
+  });
+});
+
+describe('the count the waiting page gives', () => {
+  it("adds up every person's kept steps on the phone, and nothing else stored", () => {
+    const items = new Map<string, string>([
+      ['waterline:kept-steps:1:5', JSON.stringify([step('arrive'), step('finish', 4)])],
+      ['waterline:kept-steps:2:9', JSON.stringify([step('arrive')])],
+      ['waterline:kept-steps:1:6', '{broken'],
+      ['waterline:something-else', JSON.stringify([step('arrive')])],
+    ]);
+    const storage = {
+      get length() {
+        return items.size;
+      },
+      key: (i: number) => [...items.keys()][i] ?? null,
+      getItem: (k: string) => items.get(k) ?? null,
+    } as Storage;
+    expect(keptOnThisPhone(storage)).toBe(3);
+    expect(keptOnThisPhone(undefined)).toBe(0);
   });
 });
 

@@ -37,6 +37,17 @@ describe('the app without a signal', () => {
     );
     await expect.poll(() => page.evaluate(() => navigator.serviceWorker.controller !== null)).toBe(true);
 
+    // A step marked earlier with no signal is still waiting on the phone (kept-marks.ts).
+    const keptKey = 'waterline:kept-steps:1:5';
+    await page.evaluate(
+      ([k, v]) => localStorage.setItem(k!, v!),
+      [
+        keptKey,
+        JSON.stringify([
+          { bookingId: '1', action: 'arrive', version: 1, markedAt: new Date().toISOString(), label: 'Survey · TW-1' },
+        ]),
+      ],
+    );
     await context.setOffline(true);
     await page.reload();
     const notice = page.getByRole('alert').filter({ hasText: 'Waterline could not reach its server' });
@@ -45,6 +56,10 @@ describe('the app without a signal', () => {
     expect(new URL(page.url()).searchParams.get('next')).toBe('/my-work');
     expect(await page.getByRole('heading', { level: 1 }).textContent()).toBe('Waiting for a connection');
     expect(await page.title()).toBe('Waiting for a connection · Waterline');
+    expect(await page.getByTestId('kept-waiting').textContent()).toMatch(
+      /^\s*1 step marked on this phone without a signal\s+is kept here, and sent from My work when the connection is back\.\s*$/,
+    );
+    await page.evaluate((k) => localStorage.removeItem(k), keptKey);
     await expect.poll(() => notice.getByRole('button', { name: 'Try again now' }).isVisible()).toBe(true);
     await page.screenshot({ path: 'tests/e2e/artifacts/offline-app-phone.png' });
     // Tried again with still no signal: the same page, still waiting for the page asked for.

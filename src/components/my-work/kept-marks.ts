@@ -26,6 +26,30 @@ export interface MarkStore {
   write(marks: readonly KeptMark[]): boolean;
 }
 
+const KEY_PREFIX = 'waterline:kept-steps:';
+
+/**
+ * How many steps wait on this phone, whoever marked them: the waiting page (no one known to be
+ * signed in while the server can't be reached) says they are safe.
+ * @example keptOnThisPhone(localStorage) // 1
+ */
+export function keptOnThisPhone(storage: Storage | undefined): number {
+  let n = 0;
+  try {
+    if (!storage) return 0;
+    for (let i = 0; i < storage.length; i++) {
+      const key = storage.key(i);
+      if (key?.startsWith(KEY_PREFIX)) {
+        const parsed: unknown = JSON.parse(storage.getItem(key) ?? '[]');
+        if (Array.isArray(parsed)) n += parsed.filter(isKeptMark).length;
+      }
+    }
+  } catch {
+    return n;
+  }
+  return n;
+}
+
 function isKeptMark(x: unknown): x is KeptMark {
   if (typeof x !== 'object' || x === null) return false;
   const m = x as Record<string, unknown>;
@@ -45,7 +69,7 @@ function isKeptMark(x: unknown): x is KeptMark {
  * @example markStore(localStorage, 'u7', 'f1').read() // []
  */
 export function markStore(storage: Storage | undefined, userId: string, firmId: string): MarkStore {
-  const key = `waterline:kept-steps:${firmId}:${userId}`;
+  const key = `${KEY_PREFIX}${firmId}:${userId}`;
   return {
     read() {
       try {
