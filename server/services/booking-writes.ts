@@ -91,6 +91,9 @@ interface TimedChange {
   endsAt?: number | undefined;
 }
 
+/** The steps of progress on site, whose time is kept in the audit row. */
+const PROGRESS_STEPS: ReadonlySet<BookingAction> = new Set(['arrive', 'finish', 'undo-arrive', 'undo-finish']);
+
 export type BookingChange =
   | ({ action: 'book' | 'book-confirmed'; stageId: string; resourceId: string } & TimedChange)
   | ({
@@ -424,8 +427,11 @@ export class BookingWork {
     // A declined booking moved to another time or person is rebooked: it starts again as pencilled.
     if (timed && action === 'move' && before.state === 'declined') action = 'rebook';
     const to = this.stateAfter(action, before.state, side);
-    const markedAt = 'markedAt' in change ? change.markedAt : undefined;
-    if (action === 'arrive') await this.checkOnTheDay(before, installerFirmId, markedAt);
+    // When a step of progress was marked: the phone's time for a step it kept, else now. The audit
+    // row keeps it, and the job page reads it back (on site since, done at).
+    const kept = 'markedAt' in change ? change.markedAt : undefined;
+    const markedAt = PROGRESS_STEPS.has(action) ? (kept ?? this.writer.now()) : undefined;
+    if (action === 'arrive') await this.checkOnTheDay(before, installerFirmId, kept);
     // What the stage needs before it is done (a complete commissioning record, the certificate at handover).
     if (action === 'finish') await checkStageFinish(this.trx, stageId);
 

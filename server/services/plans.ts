@@ -1,4 +1,5 @@
 import type { Knex } from 'knex';
+import { progressTimes } from './progress-times.ts';
 import { jobQuantities } from '../../shared/quantities/job-quantities.ts';
 import { planFromTemplate, spoilAwayNote, type Plan } from '../../shared/templates/plan.ts';
 import { cautionsFor } from '../../shared/cautions.ts';
@@ -149,6 +150,11 @@ export class PlansService {
       const a = answers.get(String(id));
       return a?.action === 'decline' ? answerReasonFor(actor, String(job.firmId), a.reason) : null;
     };
+    // On site since, done at: for the bookings that are there now (a step taken back no longer counts).
+    const times = await progressTimes(
+      this.knex,
+      bookings.filter((b) => b.state === 'on_site' || b.state === 'done').map((b) => String(b.id)),
+    );
     const kindOf = new Map(stages.map((s) => [s.id, s.kind]));
     // Predecessors by the name their stage actually has (a kind's words can differ from it).
     const nameOf = new Map(stages.map((s) => [s.id, s.name]));
@@ -186,6 +192,12 @@ export class PlansService {
             endsAt: b.endsAt.toISOString(),
             state: b.state,
             ...(b.state === 'declined' ? { declineReason: declineReason(b.id) } : {}),
+            ...(b.state === 'on_site' || b.state === 'done'
+              ? {
+                  arrivedAt: times.get(String(b.id))?.arrivedAt ?? null,
+                  doneAt: b.state === 'done' ? (times.get(String(b.id))?.doneAt ?? null) : null,
+                }
+              : {}),
           })),
       })),
     };

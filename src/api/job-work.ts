@@ -44,6 +44,12 @@ export interface StageBooking {
   state: string;
   /** A declined booking: why, in the partner's own words (null when they gave none). */
   declineReason?: string | null;
+  /**
+   * On site or done: when the crew were marked on site, and done (a step kept on a phone without
+   * a signal by when it was marked there); null when not known (marked before times were kept).
+   */
+  arrivedAt?: string | null;
+  doneAt?: string | null;
 }
 export interface JobStage {
   id: string;

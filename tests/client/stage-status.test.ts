@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { noticeText, stageBookingStatus } from '@/components/job-detail/stage-status';
+import { noticeText, progressTimeWords, stageBookingStatus } from '@/components/job-detail/stage-status';
 import { cancelWords, refuseWords } from '@/components/board/request-confirm';
 import StageList from '@/components/job-detail/StageList.vue';
 import type { JobStage } from '@/api/job-work';
@@ -182,5 +182,24 @@ describe('the notice a stage needs, in words', () => {
       "35 working days' notice (the maker's lead time), counted from the order date",
     );
     expect(noticeText({ workingDays: 1, countedFrom: 'now' })).toBe("1 working day's notice, counted from booking");
+  });
+});
+
+describe('when the crew were on site', () => {
+  // A dig booked Mon 1 Jun 08:00–12:00 BST (UTC+1 in June).
+  const dig = { startsAt: '2026-06-01T07:00:00Z', arrivedAt: '2026-06-01T07:10:00Z', doneAt: '2026-06-01T10:40:00Z' };
+  it('says the times on the booking’s day, with the day on another, and only as far as it has got', () => {
+    expect(progressTimeWords({ ...dig, state: 'on_site', doneAt: null }, 'Europe/London')).toBe('since 08:10');
+    expect(progressTimeWords({ ...dig, state: 'done' }, 'Europe/London')).toBe('from 08:10, done at 11:40');
+    // Finished next morning (a dig that may continue next working day).
+    expect(progressTimeWords({ ...dig, state: 'done', doneAt: '2026-06-02T08:05:00Z' }, 'Europe/London')).toBe(
+      'from 08:10, done at Tue 2 Jun 09:05',
+    );
+    // Taken back to on site: the old "done" no longer counts.
+    expect(progressTimeWords({ ...dig, state: 'on_site' }, 'Europe/London')).toBe('since 08:10');
+    expect(progressTimeWords({ ...dig, state: 'confirmed' }, 'Europe/London')).toBeNull();
+    expect(progressTimeWords({ ...dig, state: 'on_site', arrivedAt: null, doneAt: null }, 'Europe/London')).toBeNull();
+    // Marked done before times were kept for on site: what is known.
+    expect(progressTimeWords({ ...dig, state: 'done', arrivedAt: null }, 'Europe/London')).toBe('done at 11:40');
   });
 });

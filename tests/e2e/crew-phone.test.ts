@@ -191,6 +191,15 @@ describe('a crew member on a phone', () => {
     await page.getByTestId('kept-steps').waitFor({ state: 'detached' });
     expect(await card.getByTestId('kept-step').count()).toBe(0);
     await card.getByRole('button', { name: 'Done' }).waitFor();
+    // The job page says when the crew were on site: the time the step was marked, a moment before
+    // it was sent (the server's test clock is Mon 1 Jun 08:00 BST).
+    await card.getByRole('link', { name: 'The job' }).click();
+    await page.locator('.stage__title', { hasText: 'Excavate pit' }).click();
+    await expect
+      .poll(() => page.locator('.stage__bookings li').first().textContent())
+      .toMatch(/On site · since (07:59|08:00)/);
+    await page.waitForFunction(() => document.getAnimations().length === 0);
+    await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-job-on-site.png' });
   }, 60_000);
   it('asks before signing out while a step marked without a signal has not gone', async () => {
     const key = await page.evaluate(async () => {

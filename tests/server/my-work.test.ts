@@ -352,6 +352,20 @@ describe('marking progress, and taking it back, through the guarded writer', () 
     expect(kept.body).toMatchObject({ state: 'on_site', version: 2 });
     const audit = await ctx.knex('audit_log').where({ entity: 'booking', entity_id: sunday }).orderBy('id').first();
     expect(audit.after).toMatchObject({ action: 'arrive', markedAt: '2026-05-31T08:30:00.000Z' });
+    // The job page says when: on site from the time kept on the phone, done at the server's now.
+    const onJobPage = async () =>
+      ((await crew.get(`/api/jobs/${job}/stages`).expect(200)).body.items as { bookings: { id: string }[] }[])
+        .flatMap((s) => s.bookings)
+        .find((b) => String(b.id) === sunday);
+    expect(await onJobPage()).toMatchObject({ state: 'on_site', arrivedAt: '2026-05-31T08:30:00.000Z', doneAt: null });
+    const done = await post(sunday, { action: 'finish', version: 2 }).expect(200);
+    expect(await onJobPage()).toMatchObject({
+      state: 'done',
+      arrivedAt: '2026-05-31T08:30:00.000Z',
+      doneAt: '2026-06-01T07:00:00.000Z',
+    });
+    await post(sunday, { action: 'undo-finish', version: done.body.version }).expect(200);
+    expect(await onJobPage()).toMatchObject({ state: 'on_site', doneAt: null });
 
     // The marked day is checked as today would be: a kept step can't mark Thursday's work on site early.
     const early = await post(thursday, {

@@ -7,7 +7,7 @@ import type { JobStage, StageBooking } from '@/api/job-work';
 import { STATE_LABELS } from '@/components/board/board-events';
 import { humanise } from '@/utils/labels';
 import type { BookingState } from '@shared/schemas/bookings';
-import { localDateOf } from '@shared/local-dates';
+import { dateWords, localDateOf, localTimeOf } from '@shared/local-dates';
 import { plural } from '@shared/plural';
 
 export interface StageBookingStatus {
@@ -75,4 +75,32 @@ export function noticeText(n: NonNullable<JobStage['notice']>): string {
   const why = n.reason ? ` (${n.reason})` : '';
   const from = n.countedFrom === 'order' ? 'counted from the order date' : 'counted from booking';
   return `${plural(n.workingDays, "working day's", "working days'")} notice${who}${why}, ${from}`;
+}
+
+/**
+ * When the crew were marked on site, and done, on a booking that has got that far, said after its
+ * state ("On site · since 09:30"): the time alone on the booking's first day, with the day on
+ * another ("since Sun 31 May 09:30").
+ *
+ * @example
+ * progressTimeWords({ state: 'done', startsAt: '2026-06-01T07:00:00Z', arrivedAt: '2026-06-01T07:10:00Z', doneAt: '2026-06-01T10:40:00Z', … }, 'Europe/London')
+ * // 'from 08:10, done at 11:40'
+ */
+export function progressTimeWords(
+  b: Pick<StageBooking, 'state' | 'startsAt' | 'arrivedAt' | 'doneAt'>,
+  timeZone: string,
+): string | null {
+  const day = localDateOf(Date.parse(b.startsAt), timeZone);
+  const when = (iso: string) => {
+    const at = Date.parse(iso);
+    return localDateOf(at, timeZone) === day
+      ? localTimeOf(at, timeZone)
+      : `${dateWords(localDateOf(at, timeZone))} ${localTimeOf(at, timeZone)}`;
+  };
+  if (b.state === 'on_site') return b.arrivedAt ? `since ${when(b.arrivedAt)}` : null;
+  if (b.state !== 'done') return null;
+  const parts: string[] = [];
+  if (b.arrivedAt) parts.push(`from ${when(b.arrivedAt)}`);
+  if (b.doneAt) parts.push(`done at ${when(b.doneAt)}`);
+  return parts.length ? parts.join(', ') : null;
 }
