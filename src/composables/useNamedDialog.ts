@@ -13,10 +13,39 @@ function named(options: DialogOptions): DialogOptions {
  * const dialog = useNamedDialog()
  * dialog.warning({ title: 'Mark done?', content: '…', positiveText: 'Done' })
  */
-export function useNamedDialog(): Pick<ReturnType<typeof useDialog>, 'create' | 'warning'> {
+export function useNamedDialog(): Pick<ReturnType<typeof useDialog>, 'create' | 'warning'> & {
+  ask: (question: { title: string; content: string; yes: string; no: string }) => Promise<boolean>;
+} {
   const dialog = useDialog();
   return {
     create: (options) => dialog.create(named(options)),
     warning: (options) => dialog.warning(named(options)),
+    /**
+     * A warning asked as a question: true on `yes`, false on `no` and on any other way out (the
+     * close button, Escape, a tap outside), answered once.
+     */
+    ask: ({ title, content, yes, no }) =>
+      new Promise<boolean>((resolve) => {
+        let answered = false;
+        const answer = (value: boolean) => {
+          if (!answered) {
+            answered = true;
+            resolve(value);
+          }
+        };
+        dialog.warning(
+          named({
+            title,
+            content,
+            positiveText: yes,
+            negativeText: no,
+            onPositiveClick: () => answer(true),
+            onNegativeClick: () => answer(false),
+            onClose: () => answer(false),
+            onMaskClick: () => answer(false),
+            onAfterLeave: () => answer(false),
+          }),
+        );
+      }),
   };
 }
