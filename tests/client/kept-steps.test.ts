@@ -110,11 +110,12 @@ describe('steps kept on the phone', () => {
 
 describe('the count the waiting page gives', () => {
   it("adds up every person's kept steps on the phone, and nothing else stored", () => {
+    // One entry that can't be read hides none of the others.
     const items = new Map<string, string>([
-      ['waterline:kept-steps:1:5', JSON.stringify([step('arrive'), step('finish', 4)])],
-      ['waterline:kept-steps:2:9', JSON.stringify([step('arrive')])],
       ['waterline:kept-steps:1:6', '{broken'],
+      ['waterline:kept-steps:1:5', JSON.stringify([step('arrive'), step('finish', 4)])],
       ['waterline:something-else', JSON.stringify([step('arrive')])],
+      ['waterline:kept-steps:2:9', JSON.stringify([step('arrive')])],
     ]);
     const storage = {
       get length() {

@@ -39,15 +39,22 @@ export function keptOnThisPhone(storage: Storage | undefined): number {
     if (!storage) return 0;
     for (let i = 0; i < storage.length; i++) {
       const key = storage.key(i);
-      if (key?.startsWith(KEY_PREFIX)) {
-        const parsed: unknown = JSON.parse(storage.getItem(key) ?? '[]');
-        if (Array.isArray(parsed)) n += parsed.filter(isKeptMark).length;
-      }
+      if (key?.startsWith(KEY_PREFIX)) n += readMarks(storage, key).length;
     }
   } catch {
-    return n;
+    // The storage itself refused (a browser that blocks it): nothing known to be kept.
   }
   return n;
+}
+
+/** The kept steps under one key; what can't be read (not JSON, not steps) counts as none. */
+function readMarks(storage: Storage | undefined, key: string): KeptMark[] {
+  try {
+    const parsed: unknown = JSON.parse(storage?.getItem(key) ?? '[]');
+    return Array.isArray(parsed) ? parsed.filter(isKeptMark) : [];
+  } catch {
+    return [];
+  }
 }
 
 function isKeptMark(x: unknown): x is KeptMark {
@@ -71,14 +78,7 @@ function isKeptMark(x: unknown): x is KeptMark {
 export function markStore(storage: Storage | undefined, userId: string, firmId: string): MarkStore {
   const key = `${KEY_PREFIX}${firmId}:${userId}`;
   return {
-    read() {
-      try {
-        const parsed: unknown = JSON.parse(storage?.getItem(key) ?? '[]');
-        return Array.isArray(parsed) ? parsed.filter(isKeptMark) : [];
-      } catch {
-        return [];
-      }
-    },
+    read: () => readMarks(storage, key),
     write(marks) {
       try {
         if (!storage) return false;
