@@ -67,7 +67,8 @@ export async function signIn(ctx: { waterline: { app: WaterlineApp['app'] | stri
   const authorize = new URL('/authorize', pick.origin);
   pick.searchParams.forEach((v, k) => authorize.searchParams.set(k, v));
   authorize.searchParams.set('login_hint', email);
-  const provider = await fetch(authorize, { redirect: 'manual' });
+  // Bounded, so a provider that never answers fails here by name rather than as the test's timeout.
+  const provider = await fetch(authorize, { redirect: 'manual', signal: AbortSignal.timeout(10_000) });
   const callback = new URL(provider.headers.get('location') ?? '');
   const done = await agent.get(callback.pathname + callback.search);
   if (done.status !== 302 || done.headers.location !== '/jobs') {
