@@ -201,6 +201,24 @@ describe('a crew member on a phone', () => {
     await page.waitForFunction(() => document.getAnimations().length === 0);
     await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-job-on-site.png' });
   }, 60_000);
+  it("shows the scheduler on the board's job panel when the crew were on site", async () => {
+    const office = await browser.newContext({ viewport: { width: 1280, height: 800 }, timezoneId: 'Europe/London' });
+    try {
+      const desk = await office.newPage();
+      await signInThroughPage(desk, app.url, account('scheduler').email);
+      await desk.goto(`${app.url}/board?view=day&date=2026-06-01`);
+      await desk.locator(`.fc-event[data-booking-id="${today}"]`).click();
+      const drawer = desk.locator('.n-drawer');
+      await drawer.getByText('TW-8811 · Headingley').waitFor();
+      // The step marked on the phone above (kept, then sent): its time, as the job page says it.
+      await expect
+        .poll(() => drawer.locator('.bookings__item--on_site').textContent())
+        .toMatch(/Connor Reid · On site · since (07:59|08:00)/);
+    } finally {
+      await office.close();
+    }
+  }, 60_000);
+
   it('asks before signing out while a step marked without a signal has not gone', async () => {
     const key = await page.evaluate(async () => {
       const s = await (await fetch('/api/session')).json();
