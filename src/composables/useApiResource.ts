@@ -24,7 +24,8 @@ export interface ApiResourceOptions {
   /**
    * Keep the last answer in memory for this tab, so the page can show it again, dated, when it is
    * opened without a signal (My work or a slot list on site, after a look at another page). Forgotten
-   * when the session changes (see {@link forgetKeptAnswers}).
+   * when the session changes (see {@link forgetKeptAnswers}). An earlier answer shown for want of a
+   * signal is loaded again when the browser says the signal is back.
    */
   keep?: boolean;
   /**
@@ -117,6 +118,14 @@ export function useApiResource<T>(source: () => ApiSource | null, options: ApiRe
     { immediate: true },
   );
   onScopeDispose(() => controller?.abort());
+
+  if (options.keep && !options.refreshOnReturn && typeof window !== 'undefined') {
+    const back = () => {
+      if (isUnreachable(error.value)) void fetchNow(source());
+    };
+    window.addEventListener('online', back);
+    onScopeDispose(() => window.removeEventListener('online', back));
+  }
 
   if (options.refreshOnReturn && typeof window !== 'undefined' && typeof document !== 'undefined') {
     let hiddenAt: number | null = null;

@@ -1,6 +1,7 @@
-import { onScopeDispose, ref, watch, type Ref } from 'vue';
+import { computed, effectScope, onScopeDispose, ref, shallowRef, watch, type EffectScope, type Ref } from 'vue';
 import { useRoute } from 'vue-router';
-import { markStore, type MarkStore } from '@/components/my-work/kept-marks';
+import { keptStepsWritten, markStore, type MarkStore } from '@/components/my-work/kept-marks';
+import { useMyWork, type MyWorkPrompts } from '@/composables/useMyWork';
 import { useSessionStore } from '@/stores/session';
 
 /**
@@ -14,7 +15,7 @@ export function keptStepsStore(): MarkStore {
 
 /**
  * How many kept steps wait on this phone for the person signed in: counted again on each page
- * change and when another tab changes them, so any page can point the way to My work.
+ * change, whenever this tab writes them, and when another tab does.
  * @example const waiting = useKeptStepCount() // waiting.value === 1 after a step marked with no signal
  */
 export function useKeptStepCount(): Ref<number> {
@@ -24,10 +25,60 @@ export function useKeptStepCount(): Ref<number> {
   const recount = () => {
     count.value = session.user && session.firm ? keptStepsStore().read().length : 0;
   };
-  watch(() => [route.fullPath, session.user?.id, session.firm?.id], recount, { immediate: true });
+  watch(() => [route.fullPath, session.user?.id, session.firm?.id, keptStepsWritten.value], recount, {
+    immediate: true,
+  });
   if (typeof window !== 'undefined') {
     window.addEventListener('storage', recount);
     onScopeDispose(() => window.removeEventListener('storage', recount));
   }
   return count;
+}
+
+/**
+ * Kept steps sent from whatever page is open, not only My work: while steps wait and another page
+ * is shown, My work's own sender runs there without its page (the same order, checks and words:
+ * useMyWork), trying on the browser's `online`, every SEND_KEPT_EVERY_MS and on Send now. On My
+ * work it stops, and My work's page sends them itself.
+ * @example const { waiting, sending, sendNow } = useKeptStepsElsewhere({ announce, problem })
+ */
+export function useKeptStepsElsewhere(prompts: Pick<MyWorkPrompts, 'announce' | 'problem'>) {
+  const session = useSessionStore();
+  const route = useRoute();
+  const waiting = useKeptStepCount();
+  const sender = shallowRef<ReturnType<typeof useMyWork> | null>(null);
+  let scope: EffectScope | undefined;
+  const stop = () => {
+    scope?.stop();
+    scope = undefined;
+    sender.value = null;
+  };
+  watch(
+    () =>
+      // Kept running until a send under way has finished and been said.
+      (waiting.value > 0 || (sender.value?.sending.value ?? false)) &&
+      route.path !== '/my-work' &&
+      session.can('bookings:progress'),
+    (on) => {
+      if (!on) return stop();
+      if (scope) return;
+      scope = effectScope(true);
+      sender.value =
+        scope.run(() =>
+          useMyWork(
+            // Nothing is marked from here: only kept steps are sent, and said.
+            { confirm: async () => false, announce: (text) => prompts.announce(text, null), problem: prompts.problem },
+            { store: keptStepsStore() },
+          ),
+        ) ?? null;
+    },
+    { immediate: true },
+  );
+  onScopeDispose(stop);
+  return {
+    waiting,
+    sending: computed(() => sender.value?.sending.value ?? false),
+    /** Send now: a person asked, so "still no signal" is said. */
+    sendNow: () => sender.value?.sendKept({ sayNoSignal: true }) ?? Promise.resolve(),
+  };
 }

@@ -2,7 +2,14 @@ import { computed, onScopeDispose, ref, watch } from 'vue';
 import { api, ApiError, networkError } from '@/api/client';
 import { useApiResource } from '@/composables/useApiResource';
 import { groupByDay, PROGRESS_WORDS, UNDO_OF } from '@/components/my-work/my-work';
-import { asKept, keepMark, pageStore, type KeptMark, type MarkStore } from '@/components/my-work/kept-marks';
+import {
+  asKept,
+  keepMark,
+  keptStepsWritten,
+  pageStore,
+  type KeptMark,
+  type MarkStore,
+} from '@/components/my-work/kept-marks';
 import { plural } from '@shared/plural';
 import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
 import type { BookingView, ProgressAction } from '@shared/schemas/bookings';
@@ -28,6 +35,13 @@ export interface MyWorkOptions {
   now?: () => number;
 }
 
+/** True while a page of this tab is sending kept steps (they go one at a time, in order). */
+let sendingInTab = false;
+
+/** The same kept step (read again from the store, it is another object). */
+const sameMark = (a: KeptMark, b: KeptMark) =>
+  a.bookingId === b.bookingId && a.action === b.action && a.version === b.version && a.markedAt === b.markedAt;
+
 /** True when the step never got an answer: no signal, the server out of reach, or too slow to say. */
 const noSignal = (error: unknown) => error instanceof ApiError && error.status === 0;
 
@@ -52,9 +66,18 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
   const busy = ref<string | null>(null);
   const sending = ref(false);
 
-  function save(marks: KeptMark[]): void {
+  // The store is where kept steps live: another page of this tab may send some meanwhile (see
+  // useKeptSteps.ts), so each change starts from what it holds, unless it refused the last write
+  // (private browsing, full): then they live only in this page.
+  let stored = true;
+  function change(next: (marks: KeptMark[]) => KeptMark[]): void {
+    const marks = next(stored ? store.read() : kept.value);
+    stored = store.write(marks);
     kept.value = marks;
-    store.write(marks);
+  }
+  /** What the store holds now (another page's sending may have taken some). */
+  function reread(): void {
+    if (stored) kept.value = store.read();
   }
 
   /** The time the last kept step of a booking was marked, or null when none is waiting. */
@@ -91,8 +114,8 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
   /** Keeps a step on the phone and says so; its Undo takes the kept step back before it is sent. */
   function keep(item: MyWorkItem, action: ProgressAction): void {
     const label = `${item.stage.name} · ${item.job.reference}`;
-    save(
-      keepMark(kept.value, {
+    change((marks) =>
+      keepMark(marks, {
         bookingId: item.bookingId,
         action,
         version: item.version,
@@ -106,11 +129,12 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
       back
         ? async () => {
             // Sent meanwhile (the signal came back within the Undo's seconds): taken back on the server.
+            reread();
             const stillKept = kept.value.some((m) => m.bookingId === item.bookingId && m.action === action);
             const current = list.data.value?.items.find((i) => i.bookingId === item.bookingId);
             if (!stillKept && current) return undo(current, back, current.version);
-            save(
-              keepMark(kept.value, {
+            change((marks) =>
+              keepMark(marks, {
                 bookingId: item.bookingId,
                 action: back,
                 version: item.version,
@@ -136,6 +160,7 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
     )
       return false;
     // After a kept step, the next one of the same booking waits behind it (they go in order).
+    reread();
     if (keptSince(item.bookingId) !== null) {
       keep(item, action);
       return true;
@@ -181,19 +206,22 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
    * its answer was lost).
    */
   async function sendKept(options: { sayNoSignal?: boolean } = {}): Promise<void> {
-    if (sending.value || kept.value.length === 0) return;
+    reread();
+    // One sender at a time in the tab: My work's and the one other pages run (useKeptSteps.ts).
+    if (sending.value || sendingInTab || kept.value.length === 0) return;
     sending.value = true;
+    sendingInTab = true;
     let sent = 0;
     const refusals: { mark: KeptMark; error: unknown; expected: string | null }[] = [];
     try {
-      while (kept.value.length > 0) {
+      for (reread(); kept.value.length > 0; reread()) {
         const m = kept.value[0]!;
         busy.value = m.bookingId;
         try {
           // How long ago, by this phone's clock: right even when the clock is set wrong.
           const markedMsAgo = Math.max(0, now() - Date.parse(m.markedAt));
           await send(m.bookingId, { action: m.action, version: m.version, markedMsAgo });
-          save(kept.value.filter((k) => k !== m));
+          change((marks) => marks.filter((k) => !sameMark(k, m)));
           sent++;
         } catch (error) {
           if (noSignal(error)) {
@@ -206,13 +234,14 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
           for (const k of kept.value)
             if (k.bookingId === m.bookingId && item && expected !== null)
               expected = stateAfterProgress(expected, item.side, k.action);
-          save(kept.value.filter((k) => k.bookingId !== m.bookingId));
+          change((marks) => marks.filter((k) => k.bookingId !== m.bookingId));
           refusals.push({ mark: m, error, expected });
         }
       }
     } finally {
       busy.value = null;
       sending.value = false;
+      sendingInTab = false;
     }
     if (sent === 0 && refusals.length === 0) return;
     await list.refresh();
@@ -248,6 +277,13 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
       clearInterval(timer);
     });
   }
+  // Kept steps sent by another page of the tab meanwhile (useKeptSteps.ts): the list is asked for
+  // again, so their cards show where the bookings stand now.
+  watch(keptStepsWritten, () => {
+    const before = kept.value.length;
+    reread();
+    if (!sending.value && kept.value.length < before) void list.refresh();
+  });
   // Steps kept in an earlier visit are tried once the list has come (so a refusal can be weighed
   // against where the booking stands).
   if (kept.value.length > 0) {

@@ -293,3 +293,85 @@ describe('marking a step without a signal', () => {
     t.stop();
   });
 });
+
+describe('kept steps with two pages of one tab open (My work, and the sender other pages run)', () => {
+  afterEach(() => {
+    clock = MARKED;
+  });
+
+  it('are sent once, in order, by one page at a time; a step kept meanwhile is not lost, and My work shows them sent', async () => {
+    const items = new Map<string, string>();
+    const storage = {
+      getItem: (k: string) => items.get(k) ?? null,
+      setItem: (k: string, v: string) => void items.set(k, v),
+      removeItem: (k: string) => void items.delete(k),
+    } as Storage;
+    const store = () => markStore(storage, '5', '1');
+    let signal = false;
+    let release: (() => void) | undefined;
+    let gets = 0;
+    const sent = stubFetch(async (r) => {
+      if (r.method === 'GET') {
+        gets++;
+        return { status: 200, body: list };
+      }
+      if (!signal) throw new TypeError('Failed to fetch');
+      // The first step's answer is held until the test lets it go.
+      if ((r.body as { action: string }).action === 'arrive') await new Promise<void>((go) => (release = go));
+      return { status: 200, body: { id: '41', state: 'on_site', version: 4 } };
+    });
+    const prompts = (said: string[]) => ({
+      confirm: async () => true,
+      announce: (text: string) => void said.push(text),
+      problem: (e: unknown) => {
+        throw e;
+      },
+    });
+    const myWorkSaid: string[] = [];
+    const elsewhereSaid: string[] = [];
+    const scope = effectScope();
+    const [myWork, elsewhere] = scope.run(() => [
+      useMyWork(prompts(myWorkSaid), { store: store(), now: () => clock }),
+      useMyWork(prompts(elsewhereSaid), { store: store(), now: () => clock }),
+    ])!;
+    await until(() => myWork.groups.value.length === 1 && elsewhere.list.data.value !== null);
+    expect(await myWork.mark(myWork.groups.value[0]!.items[0]!, 'arrive')).toBe(true);
+    expect(
+      store()
+        .read()
+        .map((m) => m.action),
+    ).toEqual(['arrive']);
+
+    signal = true;
+    const sending = elsewhere.sendKept();
+    await until(() => release !== undefined);
+    // While one page sends, the other sends nothing of its own.
+    await myWork.sendKept();
+    // Done, marked on My work while the first step is on its way: kept behind it.
+    const card = myWork.groups.value[0]!.items[0]!;
+    expect(await myWork.mark(card, 'finish')).toBe(true);
+    expect(
+      store()
+        .read()
+        .map((m) => [m.action, m.version]),
+    ).toEqual([
+      ['arrive', 3],
+      ['finish', 4],
+    ]);
+    const getsBefore = gets;
+    release!();
+    await sending;
+    const posts = sent.filter((r) => r.method === 'POST').map((r) => r.body);
+    expect(posts).toEqual([
+      { action: 'arrive', version: 3 },
+      { action: 'arrive', version: 3, markedMsAgo: 0 },
+      { action: 'finish', version: 4, markedMsAgo: 0 },
+    ]);
+    expect(store().read()).toEqual([]);
+    expect(elsewhereSaid).toEqual(['Sent 2 steps kept on this phone']);
+    // My work no longer shows them kept, and asked where the booking stands now.
+    await until(() => myWork.kept.value.length === 0 && gets > getsBefore + 1);
+    expect(myWork.keptSince('41')).toBeNull();
+    scope.stop();
+  });
+});

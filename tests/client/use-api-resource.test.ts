@@ -96,4 +96,31 @@ describe('useApiResource', () => {
     expect(resource.loading.value).toBe(false);
     scope.stop();
   });
+
+  it('loads a kept answer shown for want of a signal again when the signal is back, and nothing else', async () => {
+    setUnauthorizedHandler(() => {});
+    const browser = new EventTarget();
+    vi.stubGlobal('window', browser);
+    const waiting = manualFetch();
+    const scope = effectScope();
+    const job = scope.run(() => useApiResource<{ ref: string }>(() => ({ path: '/api/jobs/77' }), { keep: true }))!;
+    scope.run(() => useApiResource(() => ({ path: '/api/jobs/78' }), { keep: true }));
+    waiting[0]?.release({ ref: 'TW-7' });
+    waiting[1]?.release({ title: 'Not found' }, 404);
+    await flush();
+    // Opened again with no signal (a proxy's 504): the kept answer, dated.
+    const again = job.refresh();
+    waiting[2]?.release({ title: 'Gateway timeout' }, 504);
+    await again;
+    expect([job.stale.value, job.data.value]).toEqual([true, { ref: 'TW-7' }]);
+    browser.dispatchEvent(new Event('online'));
+    // Only the one shown for want of a signal asks again: a refusal is not a signal problem.
+    expect(waiting.map((w) => w.url)).toEqual(['/api/jobs/77', '/api/jobs/78', '/api/jobs/77', '/api/jobs/77']);
+    waiting[3]?.release({ ref: 'TW-7' });
+    await flush();
+    expect([job.stale.value, job.error.value]).toEqual([false, null]);
+    scope.stop();
+    browser.dispatchEvent(new Event('online'));
+    expect(waiting).toHaveLength(4);
+  });
 });

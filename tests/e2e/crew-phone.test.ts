@@ -164,23 +164,27 @@ describe('a crew member on a phone', () => {
       await page.waitForFunction(() => document.getAnimations().length === 0);
       await page.getByTestId('kept-steps').scrollIntoViewIfNeeded();
       await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-kept-step.png' });
-      // Another page points the way back to My work, where kept steps go from.
+      // Another page says the step waits, and that it goes by itself.
       await card.getByRole('link', { name: 'The job' }).click();
       const elsewhere = page.getByTestId('kept-elsewhere');
       await elsewhere.waitFor();
       expect(await elsewhere.textContent()).toMatch(
-        /1 step marked without a signal is waiting on this\s+phone: open My work to send it\./,
+        /1 step marked without a signal is waiting on this\s+phone: sent by itself once there is a signal \(see it on My work\)\.\s*Send now/,
       );
-      await elsewhere.getByRole('link', { name: 'open My work to send it' }).click();
-      await card.waitFor();
-      expect(await page.getByTestId('kept-elsewhere').count()).toBe(0);
+      await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-kept-elsewhere.png' });
+      // Send now with still no signal says so, and keeps the step.
+      await elsewhere.getByRole('button', { name: 'Send now' }).click();
+      await page.locator('#messages').getByText('Waterline could not reach the server').waitFor();
+      expect(await elsewhere.count()).toBe(1);
     } finally {
       await page.context().setOffline(false);
     }
-    // The signal back: the list loads again by itself, with no notice, and the kept step goes with
-    // the time it was marked.
-    await page.getByTestId('kept-answer').waitFor({ state: 'detached' });
+    // The signal back while the job page is open: the kept step goes from there, with the time it
+    // was marked, and the job page stays where it was.
     await page.getByText('Sent 1 step kept on this phone').waitFor({ timeout: 15_000 });
+    await page.getByTestId('kept-elsewhere').waitFor({ state: 'detached' });
+    await page.getByTestId('kept-answer').waitFor({ state: 'detached' });
+    expect(new URL(page.url()).pathname).toBe(`/jobs/${jobId}`);
     expect((await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('on_site');
     const audit = await app.ctx
       .knex('audit_log')
@@ -188,9 +192,11 @@ describe('a crew member on a phone', () => {
       .orderBy('id', 'desc')
       .first('after');
     expect(audit.after).toMatchObject({ action: 'arrive', markedAt: expect.stringMatching(/^2026-06-01T/) });
-    await page.getByTestId('kept-steps').waitFor({ state: 'detached' });
-    expect(await card.getByTestId('kept-step').count()).toBe(0);
+    // Back on My work: nothing waits, and the card shows the booking as it now stands.
+    await page.goBack();
     await card.getByRole('button', { name: 'Done' }).waitFor();
+    expect(await page.getByTestId('kept-steps').count()).toBe(0);
+    expect(await card.getByTestId('kept-step').count()).toBe(0);
     // The job page says when the crew were on site: the time the step was marked, a moment before
     // it was sent (the server's test clock is Mon 1 Jun 08:00 BST).
     await card.getByRole('link', { name: 'The job' }).click();

@@ -4,6 +4,7 @@
  * and version, the step, when it was marked, and the stage's name and job reference to say it):
  * no householder's name, address or phone ever goes on the device.
  */
+import { ref } from 'vue';
 import type { MyWorkItem } from '@shared/schemas/my-work';
 import { MARK_KEPT_AT_MOST_MS, PROGRESS_ACTIONS, type ProgressAction } from '@shared/schemas/bookings';
 import { progressActions, stateAfterProgress } from '@shared/progress-actions';
@@ -27,6 +28,9 @@ export interface MarkStore {
 }
 
 const KEY_PREFIX = 'waterline:kept-steps:';
+
+/** Counts the writes to kept steps in this tab, so whatever shows how many wait can count again. */
+export const keptStepsWritten = ref(0);
 
 /**
  * How many steps wait on this phone, whoever marked them: the waiting page (no one known to be
@@ -84,6 +88,7 @@ export function markStore(storage: Storage | undefined, userId: string, firmId: 
         if (!storage) return false;
         if (marks.length === 0) storage.removeItem(key);
         else storage.setItem(key, JSON.stringify(marks));
+        keptStepsWritten.value++;
         return true;
       } catch {
         return false;
