@@ -208,7 +208,7 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
   async function sendKept(options: { sayNoSignal?: boolean } = {}): Promise<void> {
     reread();
     // One sender at a time in the tab: My work's and the one other pages run (useKeptSteps.ts).
-    if (sending.value || sendingInTab || kept.value.length === 0) return;
+    if (sendingInTab || kept.value.length === 0) return;
     sending.value = true;
     sendingInTab = true;
     let sent = 0;
