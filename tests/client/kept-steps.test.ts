@@ -53,6 +53,17 @@ const step = (action: KeptMark['action'], version = 3): KeptMark => ({
   label: 'Excavate pit · TW-2407',
 });
 
+/** The browser's storage as far as kept steps use it, with what it holds to look at. */
+function memoryStorage(): { items: Map<string, string>; storage: Storage } {
+  const items = new Map<string, string>();
+  const storage = {
+    getItem: (k: string) => items.get(k) ?? null,
+    setItem: (k: string, v: string) => void items.set(k, v),
+    removeItem: (k: string) => void items.delete(k),
+  } as Storage;
+  return { items, storage };
+}
+
 describe('steps kept on the phone', () => {
   it('go in order, each one version on from the last kept for its booking; taking one back cancels it', () => {
     const arrived = keepMark([], step('arrive'));
@@ -80,12 +91,7 @@ describe('steps kept on the phone', () => {
   });
 
   it("are each person's own in the browser's storage, and what can't be read counts as none", () => {
-    const items = new Map<string, string>();
-    const storage = {
-      getItem: (k: string) => items.get(k) ?? null,
-      setItem: (k: string, v: string) => void items.set(k, v),
-      removeItem: (k: string) => void items.delete(k),
-    } as Storage;
+    const { items, storage } = memoryStorage();
     const connor = markStore(storage, '5', '1');
     expect(connor.write([step('arrive')])).toBe(true);
     expect(connor.read()).toEqual([step('arrive')]);
@@ -300,12 +306,7 @@ describe('kept steps with two pages of one tab open (My work, and the sender oth
   });
 
   it('are sent once, in order, by one page at a time; a step kept meanwhile is not lost, and My work shows them sent', async () => {
-    const items = new Map<string, string>();
-    const storage = {
-      getItem: (k: string) => items.get(k) ?? null,
-      setItem: (k: string, v: string) => void items.set(k, v),
-      removeItem: (k: string) => void items.delete(k),
-    } as Storage;
+    const { storage } = memoryStorage();
     const store = () => markStore(storage, '5', '1');
     let signal = false;
     let release: (() => void) | undefined;
