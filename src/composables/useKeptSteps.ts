@@ -1,6 +1,6 @@
 import { computed, effectScope, onScopeDispose, ref, shallowRef, watch, type EffectScope, type Ref } from 'vue';
 import { useRoute } from 'vue-router';
-import { keptStepsWritten, markStore, type MarkStore } from '@/components/my-work/kept-marks';
+import { keptStepsWritten, markStore, type KeptMark, type MarkStore } from '@/components/my-work/kept-marks';
 import { useMyWork, type MyWorkPrompts } from '@/composables/useMyWork';
 import { useSessionStore } from '@/stores/session';
 
@@ -14,25 +14,31 @@ export function keptStepsStore(): MarkStore {
 }
 
 /**
- * How many kept steps wait on this phone for the person signed in: counted again on each page
- * change, whenever this tab writes them, and when another tab does.
+ * The kept steps waiting on this phone for the person signed in, in the order they go: read again
+ * whenever this tab writes them, when another tab does, and when someone else signs in.
+ * @example useKeptMarks().value.map((m) => m.action) // ['arrive']
+ */
+export function useKeptMarks(): Ref<KeptMark[]> {
+  const session = useSessionStore();
+  const marks = ref<KeptMark[]>([]);
+  const reread = () => {
+    marks.value = session.user && session.firm ? keptStepsStore().read() : [];
+  };
+  watch(() => [session.user?.id, session.firm?.id, keptStepsWritten.value], reread, { immediate: true });
+  if (typeof window !== 'undefined') {
+    window.addEventListener('storage', reread);
+    onScopeDispose(() => window.removeEventListener('storage', reread));
+  }
+  return marks;
+}
+
+/**
+ * How many kept steps wait on this phone for the person signed in (see {@link useKeptMarks}).
  * @example const waiting = useKeptStepCount() // waiting.value === 1 after a step marked with no signal
  */
-export function useKeptStepCount(): Ref<number> {
-  const session = useSessionStore();
-  const route = useRoute();
-  const count = ref(0);
-  const recount = () => {
-    count.value = session.user && session.firm ? keptStepsStore().read().length : 0;
-  };
-  watch(() => [route.fullPath, session.user?.id, session.firm?.id, keptStepsWritten.value], recount, {
-    immediate: true,
-  });
-  if (typeof window !== 'undefined') {
-    window.addEventListener('storage', recount);
-    onScopeDispose(() => window.removeEventListener('storage', recount));
-  }
-  return count;
+export function useKeptStepCount(): Readonly<Ref<number>> {
+  const marks = useKeptMarks();
+  return computed(() => marks.value.length);
 }
 
 /**

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { noticeText, progressTimeWords, stageBookingStatus } from '@/components/job-detail/stage-status';
+import { keptStepWords, noticeText, progressTimeWords, stageBookingStatus } from '@/components/job-detail/stage-status';
 import { cancelWords, refuseWords } from '@/components/board/request-confirm';
 import StageList from '@/components/job-detail/StageList.vue';
 import type { JobStage } from '@/api/job-work';
@@ -201,5 +201,23 @@ describe('when the crew were on site', () => {
     expect(progressTimeWords({ ...dig, state: 'on_site', arrivedAt: null, doneAt: null }, 'Europe/London')).toBeNull();
     // Marked done before times were kept for on site: what is known.
     expect(progressTimeWords({ ...dig, state: 'done', arrivedAt: null }, 'Europe/London')).toBe('done at 11:40');
+  });
+});
+
+describe('a step kept on this phone, on the job page', () => {
+  const mark = (action: 'arrive' | 'finish' | 'undo-arrive', markedAt: string, bookingId = '41') => ({
+    bookingId,
+    action,
+    version: 3,
+    markedAt,
+    label: 'Excavate pit · TW-2407',
+  });
+  it("is said on its own booking with the time it was marked, in the firm's zone, each in order", () => {
+    const marks = [mark('arrive', '2026-06-01T07:59:00Z'), mark('arrive', '2026-06-01T08:15:00Z', '42')];
+    expect(keptStepWords('41', marks, 'Europe/London')).toBe('on this phone, not sent yet: marked on site at 08:59');
+    expect(keptStepWords('41', [...marks, mark('finish', '2026-06-01T10:40:00Z')], 'Europe/London')).toBe(
+      'on this phone, not sent yet: marked on site at 08:59, then marked done at 11:40',
+    );
+    expect(keptStepWords('43', marks, 'Europe/London')).toBeNull();
   });
 });

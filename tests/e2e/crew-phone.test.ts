@@ -171,6 +171,11 @@ describe('a crew member on a phone', () => {
       expect(await elsewhere.textContent()).toMatch(
         /1 step marked without a signal is waiting on this\s+phone: sent by itself once there is a signal \(see it on My work\)\.\s*Send now/,
       );
+      // The job page says the step waits on its booking, beside the state the server has.
+      await page.locator('.stage__title', { hasText: 'Excavate pit' }).click();
+      expect(await page.locator('.stage__bookings li').first().textContent()).toMatch(
+        /Confirmed · on this phone, not sent yet: marked on site at \d\d:\d\d/,
+      );
       await page.screenshot({ path: 'tests/e2e/artifacts/crew-phone-kept-elsewhere.png' });
       // Send now with still no signal says so, and keeps the step.
       await elsewhere.getByRole('button', { name: 'Send now' }).click();
@@ -185,6 +190,10 @@ describe('a crew member on a phone', () => {
     await page.getByTestId('kept-elsewhere').waitFor({ state: 'detached' });
     await page.getByTestId('kept-answer').waitFor({ state: 'detached' });
     expect(new URL(page.url()).pathname).toBe(`/jobs/${jobId}`);
+    // Loaded again by itself: the booking as it now stands, nothing said to wait.
+    await expect
+      .poll(() => page.locator('.stage__bookings li').first().textContent())
+      .toMatch(/On site · since (07:59|08:00)$/);
     expect((await app.ctx.knex('bookings').where('id', today).first('state')).state).toBe('on_site');
     const audit = await app.ctx
       .knex('audit_log')

@@ -7,6 +7,8 @@ import type { JobStage, StageBooking } from '@/api/job-work';
 import { STATE_LABELS } from '@/components/board/board-events';
 import { humanise } from '@/utils/labels';
 import type { BookingState } from '@shared/schemas/bookings';
+import type { KeptMark } from '@/components/my-work/kept-marks';
+import { PROGRESS_WORDS } from '@/components/my-work/my-work';
 import { dateWords, localDateOf, localTimeOf } from '@shared/local-dates';
 import { plural } from '@shared/plural';
 
@@ -103,4 +105,19 @@ export function progressTimeWords(
   if (b.arrivedAt) parts.push(`from ${when(b.arrivedAt)}`);
   if (b.doneAt) parts.push(`done at ${when(b.doneAt)}`);
   return parts.length ? parts.join(', ') : null;
+}
+
+/**
+ * Steps of a booking marked on this phone without a signal and not sent yet, said after its state
+ * (which is still the server's): "on this phone, not sent yet: marked on site at 09:30".
+ *
+ * @example
+ * keptStepWords('41', [{ bookingId: '41', action: 'arrive', markedAt: '2026-06-01T08:30:00Z', … }], 'Europe/London')
+ * // 'on this phone, not sent yet: marked on site at 09:30'
+ */
+export function keptStepWords(bookingId: string, marks: readonly KeptMark[], timeZone: string): string | null {
+  const own = marks.filter((m) => m.bookingId === bookingId);
+  if (own.length === 0) return null;
+  const steps = own.map((m) => `${PROGRESS_WORDS[m.action].done} at ${localTimeOf(Date.parse(m.markedAt), timeZone)}`);
+  return `on this phone, not sent yet: ${steps.join(', then ')}`;
 }
