@@ -107,6 +107,22 @@ describe("a partner's booking on the job panel", () => {
     expect(html).toContain('Rhian Vale (Larkspur Electrical): ✖ Declined Mon 14 Sep 11:00 Send again Take off');
   });
 
+  it("says when the partner's people were on site, where the panel knows it", async () => {
+    const data = board();
+    data.bookings[0] = { ...data.bookings[0]!, state: 'on_site' } as never;
+    const html = text(
+      await renderHtml(PartnerRequests, {
+        stageId: 'connect',
+        data,
+        timeZone: 'Europe/London',
+        canEdit: true,
+        progress: (b: { id: string }) => (b.id === 'b1' ? 'since 08:10' : null),
+      }),
+    );
+    expect(html).toContain('Rhian Vale (Larkspur Electrical): ▶ On site · since 08:10');
+    expect(html).not.toContain('Dev Holt');
+  });
+
   it('offers no slot to move to, nor taking off, once the work on the stage has started', async () => {
     expect(await panel(board())).toContain('Find a slot');
     const started = board();
