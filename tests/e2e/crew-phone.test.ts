@@ -249,19 +249,26 @@ describe('a crew member on a phone', () => {
       },
     ];
     await page.goto(`${app.url}/jobs/${jobId}`);
-    await page.evaluate(([k, v]) => localStorage.setItem(k!, v!), [key, JSON.stringify(waiting)]);
-    await page.getByRole('button', { name: 'Menu' }).click();
-    await page.getByRole('button', { name: 'Sign out' }).last().click();
-    const ask = page.getByRole('dialog', { name: 'Sign out with steps not sent?' });
-    await ask.waitFor();
-    expect(await ask.textContent()).toContain(
-      '1 step marked without a signal has not gone yet. It stays on this phone and goes when you sign in again and open My work, within 48 hours.',
-    );
-    await ask.getByRole('button', { name: 'Stay signed in' }).click();
-    await ask.waitFor({ state: 'detached' });
-    expect(new URL(page.url()).pathname).toBe(`/jobs/${jobId}`);
+    await page.getByRole('heading', { name: /TW-8811/ }).waitFor();
+    // Kept while there is no signal, so no page sends it (kept steps go from any page once there is one).
+    await page.context().setOffline(true);
+    try {
+      await page.evaluate(([k, v]) => localStorage.setItem(k!, v!), [key, JSON.stringify(waiting)]);
+      await page.getByRole('button', { name: 'Menu' }).click();
+      await page.getByRole('button', { name: 'Sign out' }).last().click();
+      const ask = page.getByRole('dialog', { name: 'Sign out with steps not sent?' });
+      await ask.waitFor();
+      expect(await ask.textContent()).toContain(
+        '1 step marked without a signal has not gone yet. It stays on this phone and goes once you sign in again with a signal, within 48 hours.',
+      );
+      await ask.getByRole('button', { name: 'Stay signed in' }).click();
+      await ask.waitFor({ state: 'detached' });
+      expect(new URL(page.url()).pathname).toBe(`/jobs/${jobId}`);
+      await page.evaluate((k) => localStorage.removeItem(k), key);
+    } finally {
+      await page.context().setOffline(false);
+    }
     expect(await page.evaluate(async () => (await fetch('/api/session')).status)).toBe(200);
-    await page.evaluate((k) => localStorage.removeItem(k), key);
   }, 60_000);
   it('names each slip in the survey under its box, keeps what was typed, saves nothing, then saves it put right', async () => {
     await page.goto(`${app.url}/jobs/${jobId}/survey`);

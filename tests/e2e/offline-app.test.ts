@@ -57,7 +57,7 @@ describe('the app without a signal', () => {
     expect(await page.getByRole('heading', { level: 1 }).textContent()).toBe('Waiting for a connection');
     expect(await page.title()).toBe('Waiting for a connection · Waterline');
     expect(await page.getByTestId('kept-waiting').textContent()).toMatch(
-      /^\s*1 step marked on this phone without a signal\s+is kept here, and sent from My work when the connection is back\.\s*$/,
+      /^\s*1 step marked on this phone without a signal\s+is kept here, and sent once the connection is back\.\s*$/,
     );
     await page.evaluate((k) => localStorage.removeItem(k), keptKey);
     await expect.poll(() => notice.getByRole('button', { name: 'Try again now' }).isVisible()).toBe(true);
