@@ -61,13 +61,16 @@ export function useKeptStepsElsewhere(prompts: Pick<MyWorkPrompts, 'announce' | 
   };
   watch(
     () =>
-      // Kept running until a send under way has finished and been said.
+      // Kept running until a send under way has finished and been said; begun again for another
+      // person or firm, whose steps are kept apart (a firm's steps never go under another's session).
       (waiting.value > 0 || (sender.value?.sending.value ?? false)) &&
       route.path !== '/my-work' &&
-      session.can('bookings:progress'),
-    (on) => {
-      if (!on) return stop();
-      if (scope) return;
+      session.can('bookings:progress')
+        ? `${session.user?.id}:${session.firm?.id}`
+        : '',
+    (whose) => {
+      stop();
+      if (whose === '') return;
       scope = effectScope(true);
       sender.value =
         scope.run(() =>

@@ -70,6 +70,10 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
   // useKeptSteps.ts), so each change starts from what it holds, unless it refused the last write
   // (private browsing, full): then they live only in this page.
   let stored = true;
+  let disposed = false;
+  onScopeDispose(() => {
+    disposed = true;
+  });
   function change(next: (marks: KeptMark[]) => KeptMark[]): void {
     const marks = next(stored ? store.read() : kept.value);
     stored = store.write(marks);
@@ -214,7 +218,8 @@ export function useMyWork(prompts: MyWorkPrompts, options: MyWorkOptions = {}) {
     let sent = 0;
     const refusals: { mark: KeptMark; error: unknown; expected: string | null }[] = [];
     try {
-      for (reread(); kept.value.length > 0; reread()) {
+      // A page gone (another opened, or someone else signed in) sends nothing more than the step under way.
+      for (reread(); kept.value.length > 0 && !disposed; reread()) {
         const m = kept.value[0]!;
         busy.value = m.bookingId;
         try {

@@ -376,3 +376,29 @@ describe('kept steps with two pages of one tab open (My work, and the sender oth
     scope.stop();
   });
 });
+
+describe('a page that goes while it sends kept steps', () => {
+  it('sends nothing more than the step under way, and the rest stay kept', async () => {
+    const { storage } = memoryStorage();
+    const store = markStore(storage, '5', '1');
+    store.write([step('arrive'), { ...step('arrive'), bookingId: '42' }]);
+    let release: (() => void) | undefined;
+    const sent = stubFetch(async (r) => {
+      if (r.method === 'GET') return { status: 200, body: list };
+      await new Promise<void>((go) => (release = go));
+      return { status: 200, body: { id: '41', state: 'on_site', version: 4 } };
+    });
+    const scope = effectScope();
+    const w = scope.run(() =>
+      useMyWork({ confirm: async () => true, announce: () => {}, problem: () => {} }, { store, now: () => clock }),
+    )!;
+    // Kept from an earlier visit: sent once the list has come; the first answer is held.
+    await until(() => release !== undefined);
+    // Another page opened (or another person signed in): this one's scope ends mid-send.
+    scope.stop();
+    release!();
+    await until(() => !w.sending.value);
+    expect(sent.filter((r) => r.method === 'POST').map((r) => r.url)).toEqual(['/api/bookings/41/progress']);
+    expect(store.read().map((m) => m.bookingId)).toEqual(['42']);
+  });
+});
