@@ -73,6 +73,17 @@ describe('office pages on a phone', () => {
     expect(await minutes.evaluate((td) => getComputedStyle(td, '::before').content)).toBe('"Minutes of work"');
     expect(await page.locator('table.grid thead').isVisible()).toBe(false);
     expect(await overflow()).toBeLessThanOrEqual(1);
+    // Whose notice each is: the delivery's, counted from the unit's order, has no party and reads
+    // as the whole stage's (the default stores none at all), never as an empty choice.
+    const whose = (stage: string) =>
+      page
+        .getByLabel(`Who needs the notice for ${stage}`)
+        .evaluate((s: HTMLSelectElement) => s.selectedOptions[0]?.textContent?.trim() ?? '');
+    expect(await whose('Delivery')).toBe('for the whole stage');
+    expect(await whose('Crane lift into pit')).toBe('for the crane');
+    // And whose notice it is, in the template's own words.
+    const deliveryNotice = page.locator('.notice', { has: page.getByLabel('Who needs the notice for Delivery') });
+    expect(await deliveryNotice.textContent()).toContain("(the maker's lead time)");
     await page.screenshot({ path: 'tests/e2e/artifacts/templates-phone.png' });
   });
 
