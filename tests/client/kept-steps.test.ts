@@ -1,5 +1,7 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { effectScope } from 'vue';
+import { createApp, effectScope } from 'vue';
+import { createMemoryHistory, createRouter } from 'vue-router';
+import { createPinia, setActivePinia } from 'pinia';
 import {
   asKept,
   keepMark,
@@ -9,6 +11,8 @@ import {
   type KeptMark,
 } from '@/components/my-work/kept-marks';
 import { useMyWork } from '@/composables/useMyWork';
+import { useKeptStepsElsewhere } from '@/composables/useKeptSteps';
+import { useSessionStore } from '@/stores/session';
 import { ApiError } from '@/api/client';
 import type { MyWorkItem, MyWorkList } from '@shared/schemas/my-work';
 import { stubFetch, type SentRequest } from './fake-fetch';
@@ -400,5 +404,66 @@ describe('a page that goes while it sends kept steps', () => {
     await until(() => !w.sending.value);
     expect(sent.filter((r) => r.method === 'POST').map((r) => r.url)).toEqual(['/api/bookings/41/progress']);
     expect(store.read().map((m) => m.bookingId)).toEqual(['42']);
+  });
+});
+
+describe('the sender other pages run, when the person switches firm', () => {
+  it("sends the new firm's kept steps under its session, and leaves the old firm's kept", async () => {
+    const { storage } = memoryStorage();
+    vi.stubGlobal('localStorage', storage);
+    // Connor keeps a step in each of his two firms (booking 41 in firm 1, 42 in firm 2).
+    markStore(storage, '5', '1').write([step('arrive')]);
+    markStore(storage, '5', '2').write([{ ...step('arrive'), bookingId: '42' }]);
+    const sessionOf = (firmId: string) => ({
+      user: { id: '5', name: 'Connor Reid', email: 'connor.reid@tideway.example' },
+      firm: { id: firmId, name: `Firm ${firmId}`, kind: 'installer', timeZone: 'Europe/London' },
+      role: 'crew',
+      memberships: [],
+      csrfToken: 'token',
+    });
+    let signal = false;
+    let activeFirm = '1';
+    /** Each step sent, with the firm whose session it went under. */
+    const under: string[] = [];
+    stubFetch((r) => {
+      if (r.url === '/api/session') return { status: 200, body: sessionOf(activeFirm) };
+      if (r.url === '/api/session/firm') {
+        activeFirm = (r.body as { firmId: string }).firmId;
+        return { status: 200, body: sessionOf(activeFirm) };
+      }
+      if (!signal) throw new TypeError('Failed to fetch');
+      if (r.method === 'GET') return { status: 200, body: { ...list, items: [dig, { ...dig, bookingId: '42' }] } };
+      under.push(`${r.url.split('/')[3]} as firm ${activeFirm}`);
+      return { status: 200, body: { id: r.url.split('/')[3], state: 'on_site', version: 4 } };
+    });
+    const pinia = createPinia();
+    setActivePinia(pinia);
+    const router = createRouter({ history: createMemoryHistory(), routes: [{ path: '/:any(.*)*', component: {} }] });
+    await router.push('/board');
+    const app = createApp({}).use(pinia).use(router);
+    const session = useSessionStore();
+    await session.load();
+    const said: string[] = [];
+    const scope = effectScope();
+    const elsewhere = app.runWithContext(() =>
+      scope.run(() => useKeptStepsElsewhere({ announce: (text) => void said.push(text), problem: () => {} })),
+    )!;
+    expect(elsewhere.waiting.value).toBe(1);
+
+    // Firm 2 chosen while there is no signal; then the signal comes back and he taps Send now.
+    await session.switchFirm('2');
+    await until(() => elsewhere.waiting.value === 1);
+    signal = true;
+    await elsewhere.sendNow();
+    await until(() => under.length === 1 && !elsewhere.sending.value);
+    expect(under).toEqual(['42 as firm 2']);
+    expect(markStore(storage, '5', '2').read()).toEqual([]);
+    // Firm 1's step waits for firm 1's session.
+    expect(
+      markStore(storage, '5', '1')
+        .read()
+        .map((m) => m.bookingId),
+    ).toEqual(['41']);
+    scope.stop();
   });
 });
