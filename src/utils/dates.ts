@@ -14,9 +14,20 @@ function calendarToUtc(date: string): Date | null {
   return Number.isNaN(value.getTime()) || value.getUTCDate() !== Number(d) ? null : value;
 }
 
+/**
+ * The day an address names (`?date=2026-06-01`) when the pages can show it: a real date within
+ * WORK_YEARS, the one rule the API checks it by; otherwise null, and the page shows today. A link
+ * typed by hand or cut short (2026-02-30, 0000-01-01, 9999-12-31) never reaches a calendar or the API.
+ * @example workDateOf('2026-02-30') // null
+ */
+export function workDateOf(value: unknown): string | null {
+  return WorkDate.safeParse(value).success ? (value as string) : null;
+}
+
 /** Today's calendar date in a time zone (the one rule, in shared/local-dates.ts). @example todayIn('Europe/London', new Date('2026-03-29T23:30:00Z')) // '2026-03-30' */
 export { todayIn } from '@shared/local-dates';
 import { todayIn } from '@shared/local-dates';
+import { WorkDate } from '@shared/schemas/common';
 import { dayNumber, localToInstant, timeZoneOffset } from '@shared/scheduler/time-zone';
 
 /** The firm's current year, left out of the dates it shows. @example currentYearIn('Europe/London', new Date('2026-12-31T23:30:00Z')) // 2026 */

@@ -119,3 +119,25 @@ describe('every page, as each role', () => {
     120_000,
   );
 });
+
+describe('an address naming a day that is not one, or one out of the years work is planned in', () => {
+  it('opens the board and the day sheets on today, with nothing going wrong', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    await page.context().clock.setFixedTime(TEST_TODAY);
+    await signInThroughPage(page, app.url, account('scheduler').email);
+    const watched = watch(page);
+    const found: string[] = [];
+    // A day that does not exist, year 0 and year 9999 (the API plans in 2000–2100).
+    for (const date of ['2026-02-30', '0000-01-01', '9999-12-31']) {
+      for (const t of await troubleOn(page, watched, `${app.url}/board?date=${date}`))
+        found.push(`board ${date}: ${t}`);
+      // The week of the test's today, Monday 1 June 2026.
+      expect(await page.getByText('Mon 1 – Sun 7 Jun 2026').count(), date).toBe(1);
+      for (const t of await troubleOn(page, watched, `${app.url}/day-sheets?date=${date}`))
+        found.push(`day sheets ${date}: ${t}`);
+      expect(await page.locator('input[type="date"]').inputValue(), date).toBe('2026-06-01');
+    }
+    await page.context().close();
+    expect(found).toEqual([]);
+  }, 60_000);
+});
