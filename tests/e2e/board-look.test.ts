@@ -214,6 +214,20 @@ describe('the board at 1280 × 800', () => {
       .poll(async () => (await headerRows(page))[0])
       .toEqual(['Week 27 · 29 Jun – 5 Jul', 'Week 28 · 6–12 Jul']);
     expect(await page.locator('.board-toolbar__title').innerText()).toBe('Mon 29 Jun – Sun 12 Jul 2026');
+
+    // A year out of planning (the API's 2000–2100) can't be gone to: the board stays where it is,
+    // and the next date typed is taken.
+    const went: string[] = [];
+    const onNavigated = (frame: { url(): string }) => void went.push(new URL(frame.url()).search);
+    page.on('framenavigated', onNavigated);
+    await picker.fill('Mon 3 Jan 2101');
+    await picker.press('Enter');
+    await picker.fill('Mon 6 Jul 2026');
+    await picker.press('Enter');
+    await page.waitForURL(/date=2026-07-06/);
+    page.off('framenavigated', onNavigated);
+    expect(went.filter((search) => search.includes('2101'))).toEqual([]);
+    expect(went.some((search) => search.includes('date=2026-07-06'))).toBe(true);
   }, 60_000);
 
   it('names every state and marker in the key', async () => {
