@@ -68,6 +68,21 @@ describe('the day list', () => {
     expect(dayLabel('2026-06-08', '2026-06-01')).toBe('Monday 8 June');
   });
 
+  it("starts with today, empty, when the work is on later days (a Saturday before Monday's), and lists no day at all with no work", () => {
+    const saturday: MyWorkList = {
+      away: [],
+      hours: [],
+      today: '2026-06-06',
+      timeZone: 'Europe/London',
+      items: [item('4', '2026-06-08', '2026-06-08T07:00:00Z')],
+    };
+    expect(groupByDay(saturday).map((g) => [g.day, g.label, g.items.map((i) => i.bookingId)])).toEqual([
+      ['2026-06-06', 'Today', []],
+      ['2026-06-08', 'Monday 8 June', ['4']],
+    ]);
+    expect(groupByDay({ ...saturday, items: [] })).toEqual([]);
+  });
+
   it("puts the reader's time away on each day it covers, in words, with the time where it is part of a day", () => {
     const list: MyWorkList = {
       hours: [],

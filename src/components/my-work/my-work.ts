@@ -29,7 +29,9 @@ export function dayLabel(day: string, today: string): string {
 
 /**
  * The bookings by the day they start, today first; a booking that started earlier and is still
- * running (a two-day dig) is today's work.
+ * running (a two-day dig) is today's work. With nothing today but work later, today still comes
+ * first, empty, so the first day listed is never taken for today's (the page says there is
+ * nothing); with nothing at all there are no groups.
  * @example groupByDay(list)[0] // { day: '2026-06-01', label: 'Today', items: [...] }
  */
 export function groupByDay(list: MyWorkList): DayGroup[] {
@@ -41,6 +43,7 @@ export function groupByDay(list: MyWorkList): DayGroup[] {
     const day = item.day < list.today ? list.today : item.day;
     groups.set(day, [...(groups.get(day) ?? []), item]);
   }
+  if (groups.size > 0 && !groups.has(list.today)) groups.set(list.today, []);
   return [...groups.entries()]
     .sort(([a], [b]) => a.localeCompare(b))
     .map(([day, items]) => ({ day, label: dayLabel(day, list.today), items, away: awayOn(list.away, day) }));
