@@ -2,6 +2,7 @@ import { CAUTION_NOTE, cautionLines } from '../../shared/cautions.ts';
 import type { BookingFacts } from '../mail/facts.ts';
 import { telHref } from '../../shared/phone.ts';
 import { describeWindow } from '../../shared/slot-window.ts';
+import { dateWords, localDateOf, localTimeOf } from '../../shared/local-dates.ts';
 import { supplyLines } from '../../shared/slot-supply.ts';
 import type { AnswerAction } from '../services/links.ts';
 import type { LinkRefusal } from '../services/links.ts';
@@ -136,8 +137,31 @@ A newer e-mail has been sent to you; here is the slot as it is now:</p>${slotDet
   );
 }
 
-export function closedPage(f: BookingFacts, after = ''): string {
-  const state =
+/** How an answer reads after "It was": what the partner did with the request. */
+const ANSWERED_AS: Record<AnswerAction, string> = {
+  confirm: 'confirmed',
+  decline: 'declined',
+  propose: 'answered with another time proposed',
+};
+
+/**
+ * A link of a request already answered (each request's links work once), opened again: when and
+ * how it was answered, where the booking stands now and the slot as it is now, so the e-mail still
+ * leads to the site, the times and whom to call on the day. `after`: as for {@link closedPage}.
+ */
+export function usedPage(f: BookingFacts, answer: { action: AnswerAction; at: Date }, after = ''): string {
+  const zone = f.installer.timeZone;
+  const when = `${dateWords(localDateOf(answer.at, zone))} at ${localTimeOf(answer.at, zone)}`;
+  return page(
+    'This request was already answered',
+    `<p>It was ${e(ANSWERED_AS[answer.action])} on ${e(when)}, and the links in its e-mail work once. This booking is now ${e(stateWords(f))}. To change anything, ${callInstaller(f)}.</p>${slotDetails(f)}${after}`,
+    'warn',
+  );
+}
+
+/** Where a booking stands, as a partner reads it. */
+function stateWords(f: BookingFacts): string {
+  return (
     {
       confirmed: 'confirmed',
       declined: 'declined',
@@ -145,10 +169,14 @@ export function closedPage(f: BookingFacts, after = ''): string {
       on_site: 'under way',
       done: 'done',
       sent: 'waiting for an answer',
-    }[f.booking.state] ?? f.booking.state;
+    }[f.booking.state] ?? f.booking.state
+  );
+}
+
+export function closedPage(f: BookingFacts, after = ''): string {
   return page(
     'Already answered',
-    `<p>This booking is ${e(state)}, so there is nothing to answer. To change anything, ${callInstaller(f)}.</p>${slotDetails(f)}${after}`,
+    `<p>This booking is ${e(stateWords(f))}, so there is nothing to answer. To change anything, ${callInstaller(f)}.</p>${slotDetails(f)}${after}`,
     'warn',
   );
 }

@@ -2,14 +2,21 @@ import express, { type Request, type Response } from 'express';
 import type { Knex } from 'knex';
 import type { RouteTable } from './table.ts';
 import { bookingLimitsOf, type Config } from '../config.ts';
-import { LinkError, LinkSigner, type AnswerClaims, type InviteClaims, type LinkRefusal } from '../services/links.ts';
+import {
+  LinkError,
+  LinkSigner,
+  type AnswerAction,
+  type AnswerClaims,
+  type InviteClaims,
+  type LinkRefusal,
+} from '../services/links.ts';
 import { ConfirmationsService, requestKeyOf } from '../services/confirmations.ts';
 import { InvitationsService, type InvitationView } from '../services/invitations.ts';
 import { FeedsService } from '../services/feeds.ts';
 import { loadBookingFacts, type BookingFacts } from '../mail/facts.ts';
 import { CertificateLinks, certificateLinkFor } from '../services/certificates.ts';
 import { certificateSection } from '../pages/certificates.ts';
-import { answerForm, answeredPage, closedPage, refusalPage, stalePage, takenPage } from '../pages/answers.ts';
+import { answerForm, answeredPage, closedPage, refusalPage, stalePage, takenPage, usedPage } from '../pages/answers.ts';
 import { escapeHtml as e, page } from '../pages/page.ts';
 import { z } from 'zod';
 import { AnswerReason, DECLINE_REASON_CHOICES, reasonText } from '../../shared/schemas/answers.ts';
@@ -115,16 +122,36 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     return link ? certificateSection(link) : '';
   }
 
+  /** A refusal, logged as an attempt; `html` in place of the reason's own page. */
   async function refuse(
     req: Request,
     res: Response,
     reason: LinkRefusal | 'used' | 'gone',
     jti?: string,
+    html?: string,
   ): Promise<void> {
     const path = req.path.replace(/\/[^/]+$/, '/…');
     req.log?.warn({ reason, jti, path }, 'link refused');
     await knex('link_attempts').insert({ reason, path, jti: jti ?? null, ip: req.ip ?? null });
-    res.status(STATUS[reason]).type('html').send(refusalPage(reason));
+    res
+      .status(STATUS[reason])
+      .type('html')
+      .send(html ?? refusalPage(reason));
+  }
+
+  /**
+   * A link of a request answered already: refused (each request's links work once), with when and
+   * how it was answered and the slot as it is now (see usedPage).
+   */
+  async function refuseUsed(req: Request, res: Response, c: AnswerClaims, facts: BookingFacts): Promise<void> {
+    const answer = await knex('booking_answers')
+      .where({ booking_id: c.bookingId, booking_version: c.version })
+      .orderBy('created_at')
+      .first<{ action: AnswerAction; createdAt: Date } | undefined>('action', 'created_at');
+    const html = answer
+      ? usedPage(facts, { action: answer.action, at: answer.createdAt }, await certificateAfter(facts))
+      : undefined;
+    return refuse(req, res, 'used', c.jti, html);
   }
 
   async function claims(req: Request, res: Response, purpose: 'answer'): Promise<AnswerClaims | null>;
@@ -151,7 +178,7 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     if (!c) return;
     const facts = await loadBookingFacts(knex, c.bookingId);
     if (!facts) return refuse(req, res, 'gone', c.jti);
-    if (await knex('link_uses').where('jti', requestKeyOf(c)).first()) return refuse(req, res, 'used', c.jti);
+    if (await knex('link_uses').where('jti', requestKeyOf(c)).first()) return refuseUsed(req, res, c, facts);
     if (facts.booking.version !== c.version) {
       res.type('html').send(stalePage(facts));
       return;
@@ -189,7 +216,11 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
       proposal = { start, end };
     }
     const outcome = await confirmations.answerByLink(c, proposal, reason);
-    if (outcome.result === 'used' || outcome.result === 'gone') return refuse(req, res, outcome.result, c.jti);
+    if (outcome.result === 'gone') return refuse(req, res, 'gone', c.jti);
+    if (outcome.result === 'used') {
+      const facts = await loadBookingFacts(knex, c.bookingId);
+      return facts ? refuseUsed(req, res, c, facts) : refuse(req, res, 'gone', c.jti);
+    }
     const facts = (await loadBookingFacts(knex, c.bookingId))!;
     switch (outcome.result) {
       case 'stale':

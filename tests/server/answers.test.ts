@@ -78,12 +78,26 @@ describe('an answer link opened with GET', () => {
       answer: { action: 'confirm', via: 'link', version: 2 },
     });
 
-    // Used once: a second press is refused, logged, and changes nothing.
+    // Used once: a second press is refused, logged, and changes nothing. The page says when and how
+    // the request was answered (in the installer's zone) and shows the slot as it is now, so the
+    // e-mail still leads to the site and whom to call on the day.
+    // Answered at 13:05 UTC on the test's today: 14:05 in London (British Summer Time).
+    await ctx.knex('booking_answers').where('booking_id', id).update({ created_at: '2026-06-01T13:05:00Z' });
+    const when = 'Mon 1 Jun at 14:05';
     const again = await web().post(links.confirm).type('form').send({}).expect(409);
-    expect(again.text).toContain('already been used');
+    expect(again.text).toContain('This request was already answered');
+    expect(again.text).toContain(`It was confirmed on ${when}, and the links in its e-mail work once.`);
+    expect(again.text).toContain('This booking is now confirmed.');
     expect(await attempts('used')).toHaveLength(1);
-    const opened = await web().get(links.confirm).expect(409);
-    expect(opened.text).toContain('already been used');
+    expect(await stateOf(id)).toBe('confirmed');
+    for (const link of [links.confirm, links.decline, links.propose]) {
+      const opened = await web().get(link).expect(409);
+      expect(opened.text).toContain(`It was confirmed on ${when}`);
+      expect(opened.text).toContain('Installer office, Tideway Hot Tubs: <a href="tel:01134960001">0113 496 0001</a>');
+      expect(opened.text).toContain('Tuesday 4 May 2027');
+      expect(opened.text).not.toMatch(/<form method="post"/);
+    }
+    expect(await attempts('used')).toHaveLength(4);
   });
 });
 
