@@ -137,6 +137,22 @@ A newer e-mail has been sent to you; here is the slot as it is now:</p>${slotDet
   );
 }
 
+/** An invitation's own words where a booking's would mislead. */
+const INVITE_REFUSALS = {
+  used: [
+    'This invitation was already accepted',
+    'Each invitation link works once. Sign in with Google using the e-mail address it was sent to.',
+  ],
+  gone: [
+    'This invitation no longer exists',
+    'The firm withdrew it or sent a newer one. Ask the person who invited you for a new invitation.',
+  ],
+  expired: [
+    'This invitation has expired',
+    'Invitation links work for a limited time. Ask the person who invited you to send a new one.',
+  ],
+} as const;
+
 /** How an answer reads after "It was": what the partner did with the request. */
 const ANSWERED_AS: Record<AnswerAction, string> = {
   confirm: 'confirmed',
@@ -190,7 +206,15 @@ Please decline it or propose another time from the e-mail, or ${callInstaller(f)
   );
 }
 
-export function refusalPage(reason: LinkRefusal | 'used' | 'gone'): string {
+/**
+ * The page for a link refused. `subject`: what the link was for, so a used, expired or withdrawn
+ * invitation is not spoken of as a booking.
+ */
+export function refusalPage(reason: LinkRefusal | 'used' | 'gone', subject: 'answer' | 'invite' = 'answer'): string {
+  if (subject === 'invite' && reason in INVITE_REFUSALS) {
+    const [title, text] = INVITE_REFUSALS[reason as keyof typeof INVITE_REFUSALS];
+    return page(title, `<p>${e(text)}</p>`, 'refused');
+  }
   const text: Record<typeof reason, [string, string]> = {
     tampered: [
       'This link is not valid',

@@ -136,7 +136,7 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     res
       .status(STATUS[reason])
       .type('html')
-      .send(html ?? refusalPage(reason));
+      .send(html ?? refusalPage(reason, req.path.startsWith('/invite/') ? 'invite' : 'answer'));
   }
 
   /**
@@ -249,13 +249,33 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
   ) => `<dl><dt>Firm</dt><dd>${e(inv.firmName)}</dd><dt>Role</dt><dd>${e(ROLE_LABELS[inv.role])}</dd>
 <dt>For</dt><dd>${e(inv.email)}</dd></dl>`;
 
+  /** "Sign in with Google using …" and its button: where an invitation accepted leads. */
+  const signInTo = (inv: InvitationView) => `<p>Now sign in with Google using <strong>${e(inv.email)}</strong>.</p>
+<form method="get" action="/auth/google"><button type="submit">Sign in with Google</button></form>`;
+
+  /** An invitation link opened again once accepted: refused (it works once), with the way in. */
+  const refuseAccepted = (req: Request, res: Response, c: InviteClaims, inv: InvitationView) =>
+    refuse(
+      req,
+      res,
+      'used',
+      c.jti,
+      page(
+        'This invitation was already accepted',
+        `${invitationBody(inv)}
+<p>Each invitation link works once.</p>${signInTo(inv)}`,
+        'warn',
+      ),
+    );
+
   table.get('/invite/:token', 'public', async (req, res) => {
     noStore(res);
     const c = await claims(req, res, 'invite');
     if (!c) return;
     const inv = await invitations.peek(c);
     if (!inv) return refuse(req, res, 'gone', c.jti);
-    if (inv.acceptedAt || (await knex('link_uses').where('jti', c.jti).first())) return refuse(req, res, 'used', c.jti);
+    if (inv.acceptedAt || (await knex('link_uses').where('jti', c.jti).first()))
+      return refuseAccepted(req, res, c, inv);
     res.type('html').send(
       page(
         `Join ${inv.firmName} on Waterline`,
@@ -270,14 +290,16 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     const c = await claims(req, res, 'invite');
     if (!c) return;
     const outcome = await invitations.accept(c);
-    if (outcome.result === 'used' || outcome.result === 'gone' || outcome.result === 'expired')
-      return refuse(req, res, outcome.result, c.jti);
+    if (outcome.result === 'used') {
+      const inv = await invitations.peek(c);
+      return inv ? refuseAccepted(req, res, c, inv) : refuse(req, res, 'gone', c.jti);
+    }
+    if (outcome.result === 'gone' || outcome.result === 'expired') return refuse(req, res, outcome.result, c.jti);
     res.type('html').send(
       page(
         outcome.result === 'accepted' ? 'Invitation accepted' : 'You are already a member',
         `${invitationBody(outcome.invitation)}
-<p>Now sign in with Google using <strong>${e(outcome.invitation.email)}</strong>.</p>
-<form method="get" action="/auth/google"><button type="submit">Sign in with Google</button></form>`,
+${signInTo(outcome.invitation)}`,
         'ok',
       ),
     );

@@ -9,6 +9,7 @@ import {
   type TestPipeline,
 } from '../helpers/mail.ts';
 import { composeMessage } from '../../server/mail/messages.ts';
+import { LinkSigner } from '../../server/services/links.ts';
 
 let ctx: MailTestContext;
 let pipeline: TestPipeline;
@@ -64,9 +65,16 @@ describe('inviting a new scheduler', () => {
       user: { email: EMAIL },
     });
 
-    // The link works once.
-    const again = await request(ctx.waterline.app).post(link).type('form').send({}).expect(409);
-    expect(again.text).toContain('already been used');
+    // The link works once; opened again it says so in an invitation's words, and leads to sign-in.
+    for (const again of [
+      await request(ctx.waterline.app).post(link).type('form').send({}).expect(409),
+      await request(ctx.waterline.app).get(link).expect(409),
+    ]) {
+      expect(again.text).toContain('This invitation was already accepted');
+      expect(again.text).toContain(`Now sign in with Google using <strong>${EMAIL}</strong>`);
+      expect(again.text).toContain('<form method="get" action="/auth/google">');
+      expect(again.text).not.toMatch(/booking|installer/i);
+    }
   });
 
   it('is for owners only', async () => {
@@ -126,8 +134,22 @@ describe('withdrawing an invitation', () => {
     const res = await withdraw(owner, id).expect(200);
     expect(res.body).toMatchObject({ id, email, acceptedAt: null, withdrawnAt: expect.any(String) });
 
-    await request(ctx.waterline.app).get(link).expect(410);
-    await request(ctx.waterline.app).post(link).type('form').send({}).expect(410);
+    for (const gone of [
+      await request(ctx.waterline.app).get(link).expect(410),
+      await request(ctx.waterline.app).post(link).type('form').send({}).expect(410),
+    ]) {
+      // In an invitation's words, not a booking's.
+      expect(gone.text).toContain('This invitation no longer exists');
+      expect(gone.text).not.toMatch(/booking|installer/i);
+    }
+    // A link past its time says it has expired, in the same words.
+    const late = await new LinkSigner(ctx.config.LINK_SECRET).signInvite({
+      invitationId: id,
+      expiresAt: new Date(TEST_TODAY.getTime() - 60_000),
+    });
+    const expired = await request(ctx.waterline.app).get(`/invite/${late}`).expect(410);
+    expect(expired.text).toContain('This invitation has expired');
+    expect(expired.text).not.toMatch(/booking|installer/i);
     expect(await ctx.knex('users').where('email', email).first()).toBeUndefined();
 
     const listed = (await owner.get('/api/firm/invitations').expect(200)).body.items.find(
