@@ -27,6 +27,7 @@ type SlotRow = Booking & {
   installerPhone: string | null;
   timeZone: string;
   jobId: string;
+  jobReference: string;
   customerName: string;
   customerPhone: string | null;
   sharesCustomerContact: boolean | null;
@@ -89,6 +90,7 @@ export class PartnerSlotsService {
         'i.phone as installer_phone',
         'i.time_zone',
         'j.id as job_id',
+        'j.reference as job_reference',
         'j.customer_name',
         'j.customer_phone',
         'fs.share_customer_contact_with_partners as shares_customer_contact',
@@ -158,6 +160,7 @@ export class PartnerSlotsService {
         resource: { id: String(r.resourceId), name: r.resourceName, kind: r.resourceKind },
         site: { address: r.siteAddress, town: r.siteTown, postcode: r.sitePostcode, accessNotes: r.accessNotes },
         installer: { name: r.installerName, phone: r.installerPhone },
+        job: { reference: r.jobReference },
         unit: r.unitModel
           ? `${r.unitModel}, ${r.lengthMm} × ${r.widthMm} × ${r.heightMm} mm, ${r.dryWeightKg} kg dry`
           : null,

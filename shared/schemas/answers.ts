@@ -107,6 +107,8 @@ export const PartnerSlot = z.object({
   resource: z.object({ id: Id, name: z.string(), kind: z.string() }),
   site: z.object({ address: z.string(), town: z.string(), postcode: z.string(), accessNotes: z.string().nullable() }),
   installer: z.object({ name: z.string(), phone: z.string().nullable() }),
+  /** The installer's job, by the reference its e-mails give (what the partner quotes on the phone). */
+  job: z.object({ reference: z.string() }),
   /** The unit and, for electrical work, the house's supply and the unit's load as lines (shared/slot-supply.ts). */
   unit: z.string().nullable(),
   supply: z.array(z.string()).nullable(),

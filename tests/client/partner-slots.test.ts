@@ -14,6 +14,7 @@ function slot(id: string, state: string, startsAt: string): PartnerSlot {
     resource: { id: '40', name: 'Pat Sparks', kind: 'electrician' },
     site: { address: '4 Mill Row', town: 'Otley', postcode: 'LS21 1AA', accessNotes: null },
     installer: { name: 'Tideway Hot Tubs', phone: null },
+    job: { reference: 'TW-7002' },
     unit: null,
     supply: null,
     facing: null,

@@ -79,6 +79,10 @@ describe('our slots on a phone', () => {
     await page.goto(`${app.url}/slots`);
     await card(first.id).waitFor();
     expect(await card(first.id).textContent()).toContain('Tuesday 3 August 2027, 09:00–13:00 (Europe/London, BST)');
+    // Whose work and which job, as the e-mail says it: a firm working for several installers can tell.
+    expect(await card(first.id).locator('dt:has-text("Work") + dd').textContent()).toBe(
+      'Connect and certify for Tideway Hot Tubs (job TW-2417)',
+    );
     // A slot that runs over a night says both days, as its e-mail does.
     expect(await card(overnight.id).textContent()).toContain(
       'Monday 9 August 2027 to Tuesday 10 August 2027, 16:00 on the first day to 10:00 on the last (Europe/London, BST)',

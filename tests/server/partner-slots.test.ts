@@ -58,6 +58,7 @@ describe("a partner's own slots", () => {
       resource: { name: 'Priya Nair', kind: 'electrician' },
       site: { address: '56 Church Street', town: 'Bingley', postcode: 'BD16 2LE' },
       installer: { name: 'Tideway Hot Tubs', phone: '0113 496 0001' },
+      job: { reference: 'TW-2417' },
     });
     expect((mine as unknown as { cautions: string[] }).cautions.join(' ')).toMatch(
       /registered \(licensed\) electrician/,
