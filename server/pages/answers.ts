@@ -153,6 +153,14 @@ const INVITE_REFUSALS = {
   ],
 } as const;
 
+/** A certificate link's: it is no request, and the certificate can still go from Our slots. */
+const CERTIFICATE_REFUSALS = {
+  expired: [
+    'This link has expired',
+    'Certificate links work for a while after the job. Sign in to Waterline and upload it from Our slots, or ask the installer for a new link.',
+  ],
+} as const;
+
 /** How an answer reads after "It was": what the partner did with the request. */
 const ANSWERED_AS: Record<AnswerAction, string> = {
   confirm: 'confirmed',
@@ -210,11 +218,14 @@ Please decline it or propose another time from the e-mail, or ${callInstaller(f)
  * The page for a link refused. `subject`: what the link was for, so a used, expired or withdrawn
  * invitation is not spoken of as a booking.
  */
-export function refusalPage(reason: LinkRefusal | 'used' | 'gone', subject: 'answer' | 'invite' = 'answer'): string {
-  if (subject === 'invite' && reason in INVITE_REFUSALS) {
-    const [title, text] = INVITE_REFUSALS[reason as keyof typeof INVITE_REFUSALS];
-    return page(title, `<p>${e(text)}</p>`, 'refused');
-  }
+export function refusalPage(
+  reason: LinkRefusal | 'used' | 'gone',
+  subject: 'answer' | 'invite' | 'certificate' = 'answer',
+): string {
+  const own: Partial<Record<typeof reason, readonly [string, string]>> =
+    subject === 'invite' ? INVITE_REFUSALS : subject === 'certificate' ? CERTIFICATE_REFUSALS : {};
+  const words = own[reason];
+  if (words) return page(words[0], `<p>${e(words[1])}</p>`, 'refused');
   const text: Record<typeof reason, [string, string]> = {
     tampered: [
       'This link is not valid',

@@ -81,7 +81,7 @@ export function handoverRecordRoutes(
         jti: null,
         ip: req.ip ?? null,
       });
-      res.status(STATUS[error.reason]).type('html').send(refusalPage(error.reason));
+      res.status(STATUS[error.reason]).type('html').send(refusalPage(error.reason, 'certificate'));
       return null;
     }
   }

@@ -297,7 +297,11 @@ describe('the certificate link (no sign-in)', () => {
       { bookingId: connect['TW-2402']!, firmId: '1' },
       new Date(TEST_TODAY.getTime() - 1000),
     );
-    expect((await request(ctx.waterline.app).get(`/answer/certificate/${expired}`)).status).toBe(410);
+    const late = await request(ctx.waterline.app).get(`/answer/certificate/${expired}`);
+    expect(late.status).toBe(410);
+    // In a certificate link's words: no request to ask for again, and the other way to send it.
+    expect(late.text).toContain('upload it from Our slots, or ask the installer for a new link');
+    expect(late.text).not.toContain('new request');
     expect((await request(ctx.waterline.app).get(`/answer/certificate/${token.slice(0, -3)}abc`)).status).toBe(400);
     expect((await loadCertificate(ctx.knex, job['TW-2402']!)).certificate?.name).toBe('EIC TW-2402.pdf');
   });
