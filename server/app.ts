@@ -28,7 +28,7 @@ import { csrfProtection } from './middleware/csrf.ts';
 import { createRateLimits } from './middleware/rate-limit.ts';
 import { actorFor } from './services/session.ts';
 import { Health } from './health.ts';
-import { projectRoot } from './paths.ts';
+import { projectRoot, workSansFiles } from './paths.ts';
 import { problemRoutes } from './routes/problems.ts';
 import { BoardStream } from './services/board-stream.ts';
 import { answerUnreadableRequests } from './unreadable-requests.ts';
@@ -124,6 +124,10 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
         compression.filter(req, res),
     }),
   );
+  // The font of the server's own pages (answer links, invitations), the app's own: the same for
+  // everyone, so before sessions, and kept a year (a file's name changes with the package's version
+  // only, so not forever).
+  app.use('/fonts', express.static(workSansFiles, { index: false, maxAge: '365d' }));
   // The built client is the same for everyone, so it is served before sessions: a file or the app's
   // page costs no session read, no membership look-up and sets no cookie. Paths the route table owns
   // (the API, sign-in, links, feeds, problem pages) go on to their routes; the Vue app owns the rest.
@@ -140,7 +144,7 @@ export function createApp({ config, knex, now = Date.now, distDir = builtClientD
     );
     let serverPaths: Set<string> | undefined;
     const ownedByServer = (p: string) =>
-      (serverPaths ??= new Set(['api', 'auth', ...routes.routes.map((r) => r.path.split('/')[1] ?? '')])).has(
+      (serverPaths ??= new Set(['api', 'auth', 'fonts', ...routes.routes.map((r) => r.path.split('/')[1] ?? '')])).has(
         p.split('/')[1] ?? '',
       );
     app.use((req, res, next) =>

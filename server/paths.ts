@@ -1,4 +1,5 @@
 import { existsSync } from 'node:fs';
+import { createRequire } from 'node:module';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -15,3 +16,13 @@ function findRoot(from: string): string {
 }
 
 export const projectRoot = findRoot(path.dirname(fileURLToPath(import.meta.url)));
+
+/**
+ * The font files of Work Sans (SIL Open Font License, the package @fontsource/work-sans): the
+ * handover pack embeds them, and the server's own pages (answer links, invitations) load them from
+ * /fonts, as the app does from its bundle.
+ */
+export const workSansFiles = path.join(
+  path.dirname(createRequire(import.meta.url).resolve('@fontsource/work-sans/LICENSE')),
+  'files',
+);

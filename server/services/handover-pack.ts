@@ -1,17 +1,14 @@
-import { createRequire } from 'node:module';
 import path from 'node:path';
 import PDFDocument from 'pdfkit';
 import { HANDOVER_CHECKLIST, HANDOVER_NOTE, WARRANTY_REMINDER } from '../../shared/handover.ts';
+import { workSansFiles } from '../paths.ts';
 
 /*
  * The handover pack: one PDF the householder keeps, built with pdfkit. Text is set in Work Sans
  * (SIL Open Font License, the package @fontsource/work-sans), embedded, so £, °, – and × print as
  * themselves; pdfkit's built-in fonts only know Windows-1252.
  */
-const fontDir = path.join(
-  path.dirname(createRequire(import.meta.url).resolve('@fontsource/work-sans/LICENSE')),
-  'files',
-);
+const fontDir = workSansFiles;
 const FONTS = {
   body: path.join(fontDir, 'work-sans-latin-400-normal.woff'),
   bold: path.join(fontDir, 'work-sans-latin-600-normal.woff'),

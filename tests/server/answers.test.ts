@@ -334,3 +334,29 @@ describe('proposing another time', () => {
     expect(await stateOf(id)).toBe('confirmed');
   });
 });
+
+describe('the pages a link opens', () => {
+  it("are set in the app's font, served from the app itself before any session (no cookie set) and kept a year", async () => {
+    // (Last in this file: a refused link is logged, and the tests above count what they leave.)
+    const page = await web().get('/answer/not-a-token').expect(400);
+    const urls = [...page.text.matchAll(/src:url\((\/fonts\/[^)]+)\) format\('woff2'\)/g)].map((m) => m[1]!);
+    expect(urls).toEqual([
+      '/fonts/work-sans-latin-400-normal.woff2',
+      '/fonts/work-sans-latin-ext-400-normal.woff2',
+      '/fonts/work-sans-latin-600-normal.woff2',
+      '/fonts/work-sans-latin-ext-600-normal.woff2',
+    ]);
+    expect(page.text).toContain("font-family:'Work Sans',system-ui");
+    for (const url of urls) {
+      const font = await web().get(url).buffer(true).expect(200);
+      expect(font.headers['content-type']).toBe('font/woff2');
+      expect(font.headers['cache-control']).toBe('public, max-age=31536000');
+      expect(font.headers['set-cookie']).toBeUndefined();
+      // A WOFF2 file begins with its signature, "wOF2" (W3C WOFF File Format 2.0, §3).
+      expect((font.body as Buffer).subarray(0, 4).toString('latin1')).toBe('wOF2');
+    }
+    // A font not there is a plain 404 problem, not the app's page.
+    const missing = await web().get('/fonts/no-such-font.woff2').expect(404);
+    expect(missing.headers['content-type']).toMatch(/application\/problem\+json/);
+  });
+});
