@@ -1,5 +1,16 @@
 // The engine benchmark's floor (bench/engine.ts): the same graph and bookings in plain typed arrays.
-import type { Board, BoardAnalysis } from '../shared/scheduler/index.js';
+import {
+  addWorkingMinutes,
+  compileCalendar,
+  isWorkingEnd,
+  isWorkingInstant,
+  workingMinutesBetween,
+  type Board,
+  type BoardAnalysis,
+  type Booking,
+  type CompiledCalendar,
+  type Stage,
+} from '../shared/scheduler/index.js';
 
 /** The board read into typed arrays: what any implementation has to hold, ids turned into numbers. */
 export interface FloorInput {
@@ -239,4 +250,50 @@ export function copyResult(a: BoardAnalysis): BoardAnalysis {
     stages: p.stages.map((t) => ({ ...t })),
   }));
   return { ...a, violations, criticalPaths };
+}
+
+/** The board's calendars compiled and its active bookings, for {@link calendarPass}. */
+export interface CalendarInput {
+  cals: CompiledCalendar[];
+  active: Booking[];
+  stages: Stage[];
+  now: number;
+}
+
+export function calendarInput(board: Board, now: number): CalendarInput {
+  return {
+    cals: board.calendars.map((c) => compileCalendar(c)),
+    active: board.bookings.filter((b) => b.state !== 'declined'),
+    stages: board.stages,
+    now,
+  };
+}
+
+/**
+ * The calendar arithmetic an analysis cannot avoid, alone: for each active booking its working
+ * minutes, whether it starts and ends in working time and which local days it touches; for each
+ * stage an early finish, a float to a date three weeks on, a duration and a late start. No objects,
+ * no checks: what any engine answering in working time still spends on calendars. Returns a sum
+ * (so nothing is optimised away).
+ */
+export function calendarPass(x: CalendarInput): number {
+  const { cals, active, stages, now } = x;
+  let sink = 0;
+  for (let i = 0; i < active.length; i++) {
+    const b = active[i] as Booking;
+    const c = cals[i % cals.length] as CompiledCalendar;
+    sink += workingMinutesBetween(c, b.start, b.end);
+    sink += isWorkingInstant(c, b.start) ? 1 : 0;
+    sink += isWorkingEnd(c, b.end) ? 1 : 0;
+    sink += c.dayOf(b.start) - c.dayOf(b.end - 1);
+  }
+  for (let i = 0; i < stages.length; i++) {
+    const c = cals[i % cals.length] as CompiledCalendar;
+    const t = now + (i % 500) * 3_600_000;
+    const ef = addWorkingMinutes(c, t, (stages[i] as Stage).durationMinutes);
+    sink += workingMinutesBetween(c, ef, t + 21 * 86_400_000);
+    sink += workingMinutesBetween(c, t, ef);
+    sink += addWorkingMinutes(c, ef + 86_400_000, -240);
+  }
+  return sink;
 }
