@@ -247,7 +247,7 @@ async function composeCancel(deps: ComposeDeps, f: BookingFacts, version: number
           `${f.job.siteAddress}, ${f.job.siteTown}`,
         ],
       },
-      { heading: 'Questions', lines: [`${f.installer.name}: ${f.installer.phone ?? ''}`.trim()] },
+      { heading: 'Questions', lines: [questionsTo(f)] },
     ],
     footer: [`Sent by Waterline for ${f.installer.name} to ${f.partner.name}.`],
   };
@@ -344,6 +344,16 @@ async function composeDeclined(
   };
 }
 
+/**
+ * Whom to ask about a slot: the installer with its phone, or its e-mail where it keeps no phone (a
+ * firm's phone is optional), never a name with nothing after its colon.
+ * @example questionsTo(f) // 'Tideway Hot Tubs: 0113 496 0001'
+ */
+export function questionsTo(f: Pick<BookingFacts, 'installer'>): string {
+  const reach = f.installer.phone ?? f.installer.email;
+  return reach ? `${f.installer.name}: ${reach}` : f.installer.name;
+}
+
 /** The householder's checklist before a delivery or lift day. */
 export const CUSTOMER_CHECKLIST = [
   'Clear the access route from the road to the spa position: gates open or removed, bins, pots and garden furniture out of the way.',
@@ -375,7 +385,7 @@ async function composeCustomerNotice(
       { heading: changed ? 'New date' : 'Date', lines: [when.date, `${when.window} (${when.zone})`] },
       { heading: 'Where', lines: [f.job.siteAddress, `${f.job.siteTown} ${f.job.sitePostcode}`] },
       { heading: 'Before the day, please', lines: CUSTOMER_CHECKLIST },
-      { heading: 'Questions', lines: [`${f.installer.name}: ${f.installer.phone ?? ''}`.trim()] },
+      { heading: 'Questions', lines: [questionsTo(f)] },
     ],
     footer: [`Sent by Waterline for ${f.installer.name}.`],
   };

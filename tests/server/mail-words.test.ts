@@ -3,7 +3,7 @@ import ICAL from 'ical.js';
 import { account, idOf, signIn, startTestApp, type Agent, type TestContext } from '../helpers/server.ts';
 import { pencilIn } from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
-import { composeMessage, type OutboxKind, type OutgoingMail } from '../../server/mail/messages.ts';
+import { composeMessage, questionsTo, type OutboxKind, type OutgoingMail } from '../../server/mail/messages.ts';
 import { scanOverdueRequests } from '../../server/services/reminders.ts';
 import { S3ObjectStore } from '../../server/storage/object-store.ts';
 import { ALL_TICKED, makeHandoverJob, signaturePng } from '../helpers/handover.ts';
@@ -230,5 +230,18 @@ describe("the e-mails of a day's work", () => {
       ]),
     );
     expect(slips).toEqual([]);
+  });
+});
+
+describe('whom an e-mail says to ask', () => {
+  it('is the installer with its phone, its e-mail where it keeps no phone, and never a name with nothing after its colon', () => {
+    const installer = { id: '1', name: 'Tideway Hot Tubs', timeZone: 'Europe/London' };
+    expect(questionsTo({ installer: { ...installer, phone: '0113 496 0001', email: 'office@tideway.example' } })).toBe(
+      'Tideway Hot Tubs: 0113 496 0001',
+    );
+    expect(questionsTo({ installer: { ...installer, phone: null, email: 'office@tideway.example' } })).toBe(
+      'Tideway Hot Tubs: office@tideway.example',
+    );
+    expect(questionsTo({ installer: { ...installer, phone: null, email: null } })).toBe('Tideway Hot Tubs');
   });
 });
