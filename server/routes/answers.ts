@@ -140,6 +140,35 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
   }
 
   /**
+   * Whether the booking is still with the firm its link's request went to (booking_requests keeps
+   * the resource each request was sent for). A slot since given to another firm shows the first
+   * firm's links nothing of it: not its new times, people or contacts, nor a certificate link.
+   * Every request the mail path sends is recorded there; a link whose request has no record (made
+   * by hand, as tests do, or older than the record) is taken as its booking's firm's, as before.
+   */
+  async function stillTheirs(c: AnswerClaims, facts: BookingFacts): Promise<boolean> {
+    const sentTo = await knex('booking_requests as q')
+      .join('resources as r', 'r.id', 'q.resource_id')
+      .where({ 'q.booking_id': c.bookingId, 'q.booking_version': c.version })
+      .first<{ firmId: string } | undefined>('r.firm_id');
+    return sentTo === undefined || String(sentTo.firmId) === String(facts.resource.firmId);
+  }
+
+  /** A link of a slot no longer with the firm it was sent to: refused, saying nothing of the slot now. */
+  const refuseNotTheirs = (req: Request, res: Response, c: AnswerClaims) =>
+    refuse(
+      req,
+      res,
+      'gone',
+      c.jti,
+      page(
+        'This slot is no longer with your firm',
+        `<p>${e('The installer has given this work to someone else, so its links no longer work. Nothing more is needed from you.')}</p>`,
+        'refused',
+      ),
+    );
+
+  /**
    * A link of a request answered already: refused (each request's links work once), with when and
    * how it was answered and the slot as it is now (see usedPage).
    */
@@ -178,6 +207,7 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     if (!c) return;
     const facts = await loadBookingFacts(knex, c.bookingId);
     if (!facts) return refuse(req, res, 'gone', c.jti);
+    if (!(await stillTheirs(c, facts))) return refuseNotTheirs(req, res, c);
     if (await knex('link_uses').where('jti', requestKeyOf(c)).first()) return refuseUsed(req, res, c, facts);
     if (facts.booking.version !== c.version) {
       res.type('html').send(stalePage(facts));
@@ -194,6 +224,9 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     noStore(res);
     const c = await claims(req, res, 'answer');
     if (!c) return;
+    const asked = await loadBookingFacts(knex, c.bookingId);
+    if (!asked) return refuse(req, res, 'gone', c.jti);
+    if (!(await stillTheirs(c, asked))) return refuseNotTheirs(req, res, c);
     let proposal: { start: Date; end: Date } | undefined;
     let reason: string | undefined;
     if (c.action !== 'confirm') {
@@ -201,27 +234,27 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
       reason = reasonOf((req.body ?? {}) as Record<string, unknown>);
     }
     if (c.action === 'propose') {
-      const facts = await loadBookingFacts(knex, c.bookingId);
-      if (!facts) return refuse(req, res, 'gone', c.jti);
       const body = (req.body ?? {}) as Record<string, unknown>;
-      const start = instantOf(body.date, body.start, facts.installer.timeZone);
-      const end = instantOf(body.endDate || body.date, body.end, facts.installer.timeZone);
+      const start = instantOf(body.date, body.start, asked.installer.timeZone);
+      const end = instantOf(body.endDate || body.date, body.end, asked.installer.timeZone);
       if (!start || !end || end <= start) {
         res
           .status(400)
           .type('html')
-          .send(answerForm(facts, 'propose', req.originalUrl, 'Give a date and a finishing time after the start.'));
+          .send(answerForm(asked, 'propose', req.originalUrl, 'Give a date and a finishing time after the start.'));
         return;
       }
       proposal = { start, end };
     }
     const outcome = await confirmations.answerByLink(c, proposal, reason);
     if (outcome.result === 'gone') return refuse(req, res, 'gone', c.jti);
-    if (outcome.result === 'used') {
-      const facts = await loadBookingFacts(knex, c.bookingId);
-      return facts ? refuseUsed(req, res, c, facts) : refuse(req, res, 'gone', c.jti);
-    }
-    const facts = (await loadBookingFacts(knex, c.bookingId))!;
+    const facts = await loadBookingFacts(knex, c.bookingId);
+    if (!facts) return refuse(req, res, 'gone', c.jti);
+    // Given to another firm while this answer waited: the slot as it is now is not this firm's to
+    // see (an answer taken is the link's own firm's, by its version).
+    if ((outcome.result === 'used' || outcome.result === 'stale') && !(await stillTheirs(c, facts)))
+      return refuseNotTheirs(req, res, c);
+    if (outcome.result === 'used') return refuseUsed(req, res, c, facts);
     switch (outcome.result) {
       case 'stale':
         res.status(409).type('html').send(stalePage(facts));

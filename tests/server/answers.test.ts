@@ -1,6 +1,6 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { account, signIn, TEST_TODAY, type Agent } from '../helpers/server.ts';
+import { account, idOf, signIn, TEST_TODAY, type Agent } from '../helpers/server.ts';
 import { answerLinks, calendarOf, pencilIn, startMailTestApp, type MailTestContext } from '../helpers/mail.ts';
 import { unbookJobs } from '../helpers/demo.ts';
 import { LinkSigner } from '../../server/services/links.ts';
@@ -188,6 +188,65 @@ describe('a link for a version that has changed', () => {
     const post = await web().post(old.confirm).type('form').send({}).expect(409);
     expect(post.text).toContain('This slot has changed');
     expect(await stateOf(id)).toBe('sent');
+  });
+});
+
+describe("a slot given to another firm, through the first firm's links", () => {
+  it('shows nothing of it: not its new person, times or site, nor a certificate link, whether the link was used or not', async () => {
+    const gareth = await idOf(ctx.knex, 'resources', { name: 'Gareth Pryce' });
+    const moveTo = async (id: string, startsAt: string, endsAt: string) =>
+      scheduler
+        .patch(`/api/bookings/${id}`)
+        .set('X-CSRF-Token', scheduler.csrf)
+        .send({
+          version: (await ctx.knex('bookings').where('id', id).first('version')).version,
+          resourceId: gareth,
+          startsAt,
+          endsAt,
+        })
+        .expect(200);
+    await unbookJobs(ctx.knex, 'TW-2418');
+    // Answered by Brightspark from its e-mail, then given to Northgate's electrician a day later.
+    const answered = await requested({
+      job: 'TW-2418',
+      stage: 'electrical_connect',
+      resource: 'Tom Ashworth',
+      startsAt: '2027-06-15T08:00:00Z',
+      endsAt: '2027-06-15T12:00:00Z',
+    });
+    const used = answerLinks(answered.mail);
+    await web().post(used.confirm).type('form').send({}).expect(200);
+    await moveTo(answered.id, '2027-06-16T08:00:00Z', '2027-06-16T12:00:00Z');
+    // Asked of Brightspark and never answered, then given to Northgate.
+    const unanswered = await requested({
+      job: 'TW-2418',
+      stage: 'electrical_first_fix',
+      resource: 'Tom Ashworth',
+      startsAt: '2027-06-08T08:00:00Z',
+      endsAt: '2027-06-08T12:00:00Z',
+    });
+    const stale = answerLinks(unanswered.mail);
+    await moveTo(unanswered.id, '2027-06-09T08:00:00Z', '2027-06-09T12:00:00Z');
+    const pages = [
+      await web().get(used.confirm).expect(410),
+      await web().get(used.decline).expect(410),
+      await web().post(used.confirm).type('form').send({}).expect(410),
+      await web().get(stale.confirm).expect(410),
+      await web().post(stale.confirm).type('form').send({}).expect(410),
+      await web()
+        .post(stale.propose)
+        .type('form')
+        .send({ date: '2027-05-27', start: '09:00', end: '13:00' })
+        .expect(410),
+    ];
+    const site = (await ctx.knex('jobs').where('reference', 'TW-2418').first('site_address')).siteAddress as string;
+    for (const page of pages) {
+      expect(page.text).toContain('This slot is no longer with your firm');
+      expect(page.text).not.toMatch(/Gareth Pryce|June 2027|certificate|<form/i);
+      expect(page.text).not.toContain(site);
+    }
+    // Nothing was taken through them: Northgate's request waits for Northgate.
+    expect(await stateOf(unanswered.id)).toBe('sent');
   });
 });
 
