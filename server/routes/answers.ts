@@ -21,6 +21,7 @@ import { escapeHtml as e, page } from '../pages/page.ts';
 import { z } from 'zod';
 import { AnswerReason, DECLINE_REASON_CHOICES, reasonText } from '../../shared/schemas/answers.ts';
 import { ROLE_LABELS } from '../../shared/permissions.ts';
+import { answerLinkSeesSlot } from '../services/read-policy.ts';
 import { parse } from '../middleware/validate.ts';
 import { BadRequestError } from '../errors.ts';
 import {
@@ -139,19 +140,17 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
       .send(html ?? refusalPage(reason, req.path.startsWith('/invite/') ? 'invite' : 'answer'));
   }
 
-  /**
-   * Whether the booking is still with the firm its link's request went to (booking_requests keeps
-   * the resource each request was sent for). A slot since given to another firm shows the first
-   * firm's links nothing of it: not its new times, people or contacts, nor a certificate link.
-   * Every request the mail path sends is recorded there; a link whose request has no record (made
-   * by hand, as tests do, or older than the record) is taken as its booking's firm's, as before.
-   */
+  /** Whether the link may see its slot as it is now (the read policy's answerLinkSeesSlot). */
   async function stillTheirs(c: AnswerClaims, facts: BookingFacts): Promise<boolean> {
+    // booking_requests keeps the resource each request was sent for.
     const sentTo = await knex('booking_requests as q')
       .join('resources as r', 'r.id', 'q.resource_id')
       .where({ 'q.booking_id': c.bookingId, 'q.booking_version': c.version })
       .first<{ firmId: string } | undefined>('r.firm_id');
-    return sentTo === undefined || String(sentTo.firmId) === String(facts.resource.firmId);
+    return answerLinkSeesSlot({
+      requestedFirmId: sentTo === undefined ? null : String(sentTo.firmId),
+      bookingFirmId: String(facts.resource.firmId),
+    });
   }
 
   /** A link of a slot no longer with the firm it was sent to: refused, saying nothing of the slot now. */

@@ -369,3 +369,16 @@ export function workingWeekFor(
 ): string | null {
   return String(r.firmId) === String(actor.firmId) && !r.standardWeek ? r.weekName : null;
 }
+
+/**
+ * What an answer link shows of its slot beyond the link's own refusal: the slot as it is now (its
+ * times, people, site and contacts, a certificate link) only while the booking is still with the
+ * firm the link's request went to. A slot since given to another firm is that firm's to read.
+ * `requestedFirmId` null: the request has no record (a link made by hand, or older than the
+ * record), taken as its booking's firm's.
+ *
+ * @example answerLinkSeesSlot({ requestedFirmId: '3', bookingFirmId: '4' }) // false
+ */
+export function answerLinkSeesSlot(link: { requestedFirmId: string | null; bookingFirmId: string }): boolean {
+  return link.requestedFirmId === null || link.requestedFirmId === link.bookingFirmId;
+}
