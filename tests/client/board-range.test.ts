@@ -76,6 +76,15 @@ describe('the range loaded for a view', () => {
     expect([month.from, month.to]).toEqual([Date.UTC(2026, 1, 1) - DAY, Date.UTC(2026, 2, 1) + DAY]);
     expect(mondayOf('2026-09-20')).toBe('2026-09-14');
   });
+
+  it('stops at the years work is planned in (2000–2100), where the API stops', () => {
+    // The week of Wed 29 Dec 2100 runs to Sun 2 Jan 2101: loaded up to the end of 2100.
+    const last = rangeOf('resourceTimelineWeek', '2100-12-29');
+    expect([last.from, last.to]).toEqual([Date.UTC(2100, 11, 26), Date.UTC(2101, 0, 1) - 1]);
+    // The week of Sat 1 Jan 2000 began on Mon 27 Dec 1999: loaded from the start of 2000.
+    const first = rangeOf('resourceTimelineWeek', '2000-01-01');
+    expect([first.from, first.to]).toEqual([Date.UTC(2000, 0, 1), Date.UTC(2000, 0, 4)]);
+  });
 });
 
 describe('ISO week numbers', () => {

@@ -228,6 +228,12 @@ describe('the board at 1280 × 800', () => {
     page.off('framenavigated', onNavigated);
     expect(went.filter((search) => search.includes('2101'))).toEqual([]);
     expect(went.some((search) => search.includes('date=2026-07-06'))).toBe(true);
+
+    // The arrows stop there too: in the last week of 2100 there is no next week, but a previous one.
+    await page.goto(`${app.url}/board?view=week&date=2100-12-29`);
+    await page.waitForSelector('.fc-timeline-lane[data-resource-id]');
+    expect(await page.getByRole('button', { name: 'Next week' }).isDisabled()).toBe(true);
+    expect(await page.getByRole('button', { name: 'Previous week' }).isDisabled()).toBe(false);
   }, 60_000);
 
   it('names every state and marker in the key', async () => {

@@ -4,6 +4,7 @@
  * Pure (no calendar component, no clock reads beyond `todayIso`'s default), so it is tested alone.
  */
 import type { WorkingCalendar } from '@shared/scheduler/index';
+import { WORK_YEARS } from '@shared/schemas/common';
 
 /** The timeline's views: a day of hours, a week of mornings and afternoons, a fortnight and a month of days. */
 export type BoardViewName =
@@ -127,7 +128,12 @@ export function rangeOf(view: BoardViewName, date: string): { from: number; to: 
     start = Date.UTC(d.getUTCFullYear(), d.getUTCMonth(), 1);
     end = Date.UTC(d.getUTCFullYear(), d.getUTCMonth() + 1, 1);
   }
-  return { from: start - DAY, to: end + DAY };
+  // Never past the years work is planned in (WORK_YEARS), which the API's window keeps to: the last
+  // week of 2100 loads up to the year's end instead of being refused.
+  return {
+    from: Math.max(start - DAY, Date.UTC(WORK_YEARS.min, 0, 1)),
+    to: Math.min(end + DAY, Date.UTC(WORK_YEARS.max + 1, 0, 1) - 1),
+  };
 }
 
 /** The ISO 8601 week number of a calendar day (weeks start on Monday; week 1 holds the year's first Thursday). */
