@@ -223,9 +223,10 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
     noStore(res);
     const c = await claims(req, res, 'answer');
     if (!c) return;
+    // A booking gone is the write path's to find (it answers 'gone'); one given to another firm is
+    // refused here, before anything of it is shown or tried.
     const asked = await loadBookingFacts(knex, c.bookingId);
-    if (!asked) return refuse(req, res, 'gone', c.jti);
-    if (!(await stillTheirs(c, asked))) return refuseNotTheirs(req, res, c);
+    if (asked && !(await stillTheirs(c, asked))) return refuseNotTheirs(req, res, c);
     let proposal: { start: Date; end: Date } | undefined;
     let reason: string | undefined;
     if (c.action !== 'confirm') {
@@ -233,6 +234,7 @@ export function answerRoutes(table: RouteTable, { knex, config, now = Date.now }
       reason = reasonOf((req.body ?? {}) as Record<string, unknown>);
     }
     if (c.action === 'propose') {
+      if (!asked) return refuse(req, res, 'gone', c.jti);
       const body = (req.body ?? {}) as Record<string, unknown>;
       const start = instantOf(body.date, body.start, asked.installer.timeZone);
       const end = instantOf(body.endDate || body.date, body.end, asked.installer.timeZone);
