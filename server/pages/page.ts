@@ -25,7 +25,7 @@ export function page(title: string, body: string, tone: 'ok' | 'warn' | 'refused
 <style>
 ${FONT_FACES}
 body{margin:0;background:#eef2f5;font-family:'Work Sans',system-ui,Arial,sans-serif;color:#1d2730}
-main{max-width:34rem;margin:1rem auto;background:#fff;border-radius:8px;padding:1.2rem 1.2rem 1.5rem;border-top:6px solid ${edge}}
+main{max-width:34rem;margin:1rem auto;background:#fff;border-radius:8px;padding:1.2rem 1.2rem 1.5rem;border-top:6px solid ${edge};overflow-wrap:anywhere}
 h1{font-size:1.35rem;margin:0 0 .8rem}p,li,dd{font-size:1.05rem;line-height:1.45}dt{font-weight:bold;margin-top:.6rem}dd{margin:0}
 button{display:block;width:100%;padding:.9rem;font-size:1.1rem;font-weight:bold;border-radius:6px;border:2px solid #0b5c7a;background:#0b5c7a;color:#fff;margin-top:1rem;cursor:pointer}
 button:focus-visible,input:focus-visible,a:focus-visible{outline:3px solid #f0b429;outline-offset:2px}

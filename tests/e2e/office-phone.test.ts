@@ -3,6 +3,7 @@ import type { Browser, Page } from 'playwright-core';
 import { launchBrowser, phonePage, signInThroughPage, startServer, type RunningApp } from '../helpers/browser.ts';
 import { account, idOf } from '../helpers/server.ts';
 import { JOB_SEARCH_MAX } from '../../shared/schemas/jobs.ts';
+import { LinkSigner } from '../../server/services/links.ts';
 
 /*
  * The office pages on a phone (390 × 844 CSS pixels, a common handset size: common practice, no
@@ -85,6 +86,27 @@ describe('office pages on a phone', () => {
     const deliveryNotice = page.locator('.notice', { has: page.getByLabel('Who needs the notice for Delivery') });
     expect(await deliveryNotice.textContent()).toContain("(the maker's lead time)");
     await page.screenshot({ path: 'tests/e2e/artifacts/templates-phone.png' });
+  });
+
+  it("opens an invitation's page with a long address wrapped inside it, nothing off the edge", async () => {
+    const email = 'alexandra.montgomerywhitfield.sitescheduling@northernhottubinstallations.example';
+    const session = await (await page.request.get(`${app.url}/api/session`)).json();
+    const made = await page.request.post(`${app.url}/api/firm/invitations`, {
+      headers: { 'X-CSRF-Token': session.csrfToken },
+      data: { email, role: 'scheduler' },
+    });
+    expect(made.status(), await made.text()).toBe(201);
+    // The link its e-mail carries, signed as the mail path signs it.
+    const token = await new LinkSigner(app.ctx.config.LINK_SECRET).signInvite({
+      invitationId: String((await made.json()).id),
+      expiresAt: new Date(Date.now() + 86_400_000),
+    });
+    await page.goto(`${app.url}/invite/${token}`);
+    await page.getByRole('heading', { name: 'Join Tideway Hot Tubs on Waterline' }).waitFor();
+    expect(await page.getByText(email).isVisible()).toBe(true);
+    expect(await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)).toBe(
+      0,
+    );
   });
 
   it("names a template's slips by stage, marks their boxes, brings the first into view, and saves nothing", async () => {
